@@ -1,0 +1,3 @@
+"""specgen: binder specification dossiers for historic masonry repair."""
+
+__version__ = "0.1.0"

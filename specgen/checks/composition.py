@@ -1,0 +1,118 @@
+"""Checks on oxide analyses: closure and the cementation index."""
+from __future__ import annotations
+
+from specgen.checks.registry import register
+from specgen.checks.result import Basis, CheckResult, Input, Limit, Quantity, Step
+from specgen.science import oxides
+
+ECKEL = Basis("reference", "eckel1922", "cementation index, as reproduced in Boynton (1980)")
+CI_TERMS = (("S", "SiO2", 2.8), ("A", "Al2O3", 1.1), ("F", "Fe2O3", 0.7))
+
+
+# Conventional order of an analysis report: silicate-forming oxides, bases, volatiles.
+ORDER = ["SiO2", "Al2O3", "Fe2O3", "CaO", "MgO", "SO3", "K2O", "Na2O", "CO2", "LOI"]
+
+
+def oxide_order(name: str):
+    return (ORDER.index(name) if name in ORDER else len(ORDER), name)
+
+
+def _source(analysis) -> str:
+    return f"analysis {analysis.id}" + (f" ({analysis.laboratory})" if analysis.laboratory else "")
+
+
+@register("CHEM-CLOSURE", "Oxide analysis closure", "analysis", order=100)
+def closure_check(analysis, ctx) -> CheckResult:
+    """The reported constituents (LOI included) should add up to 100 %."""
+    ox = analysis.mass_percent
+    c = oxides.closure(ox)
+    ok, warn = ctx.rules["analysis.closure_pass"], ctx.rules["analysis.closure_attention"]
+    gap = abs(c.deviation)
+    status = "pass" if gap <= ok.value else "attention" if gap <= warn.value else "fail"
+    names = sorted(ox, key=oxide_order)
+    step = Step(
+        title="Sum of reported constituents",
+        formula=r"\Sigma = \sum_i w_i",
+        inputs=tuple(Input(f"w({n})", n, ox[n], "%", _source(analysis)) for n in names),
+        substituted=r"\Sigma = " + " + ".join(f"{ox[n]:.2f}" for n in names),
+        result=round(c.total, 4), unit="%", symbol="Σ")
+    msg = (f"total {c.total:.2f} %, {c.deviation:+.2f} % from 100 %; "
+           f"pass within ±{ok.value:g} %, attention within ±{warn.value:g} %")
+    return CheckResult(
+        code="CHEM-CLOSURE", title="Oxide analysis closure", subject=analysis.id,
+        subject_kind="analysis", status=status, value=round(c.total, 4), unit="%",
+        basis=(ok.basis,), steps=(step,),
+        limit=Limit("within", 100 - ok.value, 100 + ok.value, "%",
+                    f"100 ± {ok.value:g} % (attention to ± {warn.value:g} %)",
+                    rule=ok.key, overridden=ok.justification or warn.justification),
+        message=msg,
+        quantities=(Quantity("analysis_total", round(c.total, 4), "%", "sum of constituents"),
+                    Quantity("loss_on_ignition", ox.get("LOI", 0.0), "%", "loss on ignition")))
+
+
+@register("CHEM-CI", "Cementation index", "analysis", order=110)
+def cementation_index_check(analysis, ctx) -> CheckResult:
+    """Eckel's cementation index and the hydraulicity band it falls in."""
+    ox = analysis.mass_percent
+    missing = [k for k in ("CaO", "SiO2") if k not in ox]
+    if missing:
+        return CheckResult(
+            code="CHEM-CI", title="Cementation index", subject=analysis.id,
+            subject_kind="analysis", status="not_assessed", value=None, unit="",
+            basis=(ECKEL,), message=f"not assessed: the analysis gives no {', '.join(missing)}")
+    ci = oxides.cementation_index(ox)
+    get = lambda k: ox.get(k, 0.0)  # noqa: E731 - oxides not reported count as zero
+    inputs = tuple(Input(sym, name, get(name), "%", _source(analysis))
+                   for sym, name, _ in CI_TERMS + (("C", "CaO", 0), ("M", "MgO", 0)))
+    step = Step(
+        title="Cementation index (Eckel)",
+        formula=r"CI = \frac{2.8\,S + 1.1\,A + 0.7\,F}{C + 1.4\,M}",
+        inputs=inputs,
+        substituted=(rf"CI = \frac{{2.8 \times {get('SiO2'):.2f} + 1.1 \times {get('Al2O3'):.2f}"
+                     rf" + 0.7 \times {get('Fe2O3'):.2f}}}{{{get('CaO'):.2f} + 1.4 \times "
+                     rf"{get('MgO'):.2f}}}"),
+        result=round(ci, 4), unit="", symbol="CI")
+    band = classify(ci, ctx)
+    status, message = _judge(analysis, band, ctx)
+    return CheckResult(
+        code="CHEM-CI", title="Cementation index", subject=analysis.id, subject_kind="analysis",
+        status=status, value=round(ci, 4), unit="", basis=(ECKEL, band["basis"]), steps=(step,),
+        limit=Limit("within", band["low"], band["high"], "", f"band '{band['name']}': "
+                    f"{_edges(band)}", rule="hydraulicity_bands"),
+        message=f"CI = {ci:.3f}: {message}",
+        quantities=(Quantity("cementation_index", round(ci, 4), "", "Eckel cementation index"),
+                    Quantity("hydraulicity_class", band["name"], "",
+                             "band of the cementation index" + (" (borderline)"
+                                                                if band["borderline"] else ""))))
+
+
+def classify(ci: float, ctx) -> dict:
+    """Place ``ci`` in the hydraulicity bands (content/data/hydraulicity_bands.yaml)."""
+    from specgen import refdata
+    table = refdata.load("hydraulicity_bands")
+    margin = ctx.rules["analysis.band_margin"].value
+    band = oxides.classify(ci, table.data, margin)
+    basis = Basis("reference", "boynton1980", "hydraulicity bands of the cementation index",
+                  note=table.tag)
+    return {"name": band.name, "low": band.lower, "high": band.upper,
+            "borderline": band.borderline, "neighbour": band.neighbour, "basis": basis}
+
+
+def _judge(analysis, band: dict, ctx) -> tuple[str, str]:
+    """Attention when borderline or when the band contradicts the declared binder type."""
+    text = f"falls in the band '{band['name']}' ({_edges(band)})"
+    if band["borderline"]:
+        return "attention", (text + f", within the margin of the edge with "
+                             f"'{band['neighbour']}': borderline")
+    binder = ctx.project.binders.get(analysis.material) if analysis.material else None
+    if binder is None or binder.type not in ("natural_cement",):
+        return "info", text
+    if band["name"] != "natural cement":
+        return "attention", text + f", but binder {binder.id} is declared a natural cement"
+    return "pass", text + f", consistent with binder {binder.id} declared a natural cement"
+
+
+def _edges(band: dict) -> str:
+    low = "" if band["low"] is None else f"{band['low']:g}"
+    high = "" if band["high"] is None else f"{band['high']:g}"
+    return f"{low}–{high}" if low and high else (f"≥ {low}" if low else f"< {high}")

@@ -1,0 +1,71 @@
+"""The registry of checks.  Built-in checks use the same decorator an extension would.
+
+A check is a function ``fn(subject, ctx) -> CheckResult | Iterable[CheckResult]``
+registered with a unique code, a title, the kind of subject it runs on, and an
+``order`` (checks run in ascending order, so a check may read quantities that an
+earlier one recorded in ``ctx``).
+"""
+from __future__ import annotations
+
+from collections.abc import Callable, Iterable
+from dataclasses import dataclass
+
+SUBJECT_KINDS = ("analysis", "binder", "mix", "zone", "project")
+
+
+@dataclass(frozen=True)
+class CheckSpec:
+    """A registered check."""
+
+    code: str
+    title: str
+    subject_kind: str
+    order: int
+    fn: Callable
+    description: str = ""
+
+
+_REGISTRY: dict[str, CheckSpec] = {}
+
+
+class DuplicateCheckCode(ValueError):
+    """Two checks claimed the same code."""
+
+
+def register(code: str, title: str, subject_kind: str, order: int = 500, description: str = ""):
+    """Decorator: add a check under ``code``; a second check with the same code is refused."""
+    if subject_kind not in SUBJECT_KINDS:
+        raise ValueError(f"subject kind must be one of {SUBJECT_KINDS}; got {subject_kind!r}")
+
+    def deco(fn: Callable) -> Callable:
+        if code in _REGISTRY:
+            raise DuplicateCheckCode(f"check code '{code}' is already registered by "
+                                     f"{_REGISTRY[code].fn.__module__}.{_REGISTRY[code].fn.__name__}")
+        _REGISTRY[code] = CheckSpec(code, title, subject_kind, order, fn,
+                                    description or (fn.__doc__ or "").strip().split("\n")[0])
+        return fn
+    return deco
+
+
+def unregister(code: str) -> None:
+    """Remove a check (for tests and extensions replacing a built-in one)."""
+    _REGISTRY.pop(code, None)
+
+
+def checks() -> list[CheckSpec]:
+    """All registered checks in run order."""
+    load_builtin()
+    return sorted(_REGISTRY.values(), key=lambda s: (s.order, s.code))
+
+
+def load_builtin() -> None:
+    """Import the built-in check modules (each registers itself on import)."""
+    import specgen.checks.builtin  # noqa: F401
+
+
+def as_list(out) -> list:
+    if out is None:
+        return []
+    if isinstance(out, Iterable) and not hasattr(out, "code"):
+        return list(out)
+    return [out]

@@ -1,0 +1,111 @@
+"""What a check returns: a result that explains itself.
+
+A :class:`CheckResult` carries everything the dossier's calculation sheet shows —
+formula, inputs with units and sources, substituted values, result, basis — so the
+sheet is rendered from it and never written twice.  Values are stored in the unit
+they are shown in (``unit``); the science underneath works in SI.
+"""
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass, field
+from typing import Literal
+
+Status = Literal["pass", "fail", "attention", "hold", "not_assessed", "info"]
+STATUSES: tuple[str, ...] = ("fail", "hold", "attention", "not_assessed", "pass", "info")
+STATUS_WORDS = {"pass": "pass", "fail": "fail", "attention": "attention", "hold": "hold",
+                "not_assessed": "not assessed", "info": "for information"}
+
+
+@dataclass(frozen=True)
+class Basis:
+    """Why a limit or formula applies: a reference key + clause, or a kind of basis.
+
+    ``kind`` is ``reference`` (then ``ref`` names an entry of the bibliography),
+    ``common practice`` or ``project requirement``.
+    """
+
+    kind: Literal["reference", "common practice", "project requirement"]
+    ref: str = ""
+    clause: str = ""
+    note: str = ""
+
+    def text(self) -> str:
+        if self.kind != "reference":
+            return self.kind + (f" — {self.note}" if self.note else "")
+        return self.ref + (f", {self.clause}" if self.clause else "")
+
+
+@dataclass(frozen=True)
+class Input:
+    """One input of a calculation: symbol (plain text), meaning, value in its shown unit, source."""
+
+    symbol: str
+    name: str
+    value: float | str
+    unit: str
+    source: str
+
+
+@dataclass(frozen=True)
+class Step:
+    """One calculation step: formula and substituted expression (LaTeX), inputs, result."""
+
+    title: str
+    formula: str
+    inputs: tuple[Input, ...]
+    substituted: str
+    result: float
+    unit: str
+    symbol: str = ""
+
+
+@dataclass(frozen=True)
+class Limit:
+    """The limit a value is compared with; ``compare`` says how (``<=``, ``>=``, ``within``)."""
+
+    compare: str
+    low: float | None = None
+    high: float | None = None
+    unit: str = ""
+    text: str = ""
+    rule: str = ""
+    overridden: str = ""  # the project's written justification, when a default was changed
+
+
+@dataclass(frozen=True)
+class Quantity:
+    """A computed quantity for results.json: stable snake_case name, value and unit."""
+
+    name: str
+    value: float | str | list | dict
+    unit: str
+    label: str = ""
+
+
+@dataclass(frozen=True)
+class CheckResult:
+    """The outcome of one check on one subject."""
+
+    code: str
+    title: str
+    subject: str
+    subject_kind: str
+    status: Status
+    value: float | str | None
+    unit: str
+    basis: tuple[Basis, ...]
+    steps: tuple[Step, ...] = ()
+    limit: Limit | None = None
+    message: str = ""
+    quantities: tuple[Quantity, ...] = ()
+    notes: tuple[str, ...] = field(default_factory=tuple)
+
+    @property
+    def key(self) -> str:
+        """Unique key of the result in a dossier: ``CODE/subject``."""
+        return f"{self.code}/{self.subject}"
+
+    def to_dict(self) -> dict:
+        d = asdict(self)
+        d["status_word"] = STATUS_WORDS[self.status]
+        return d

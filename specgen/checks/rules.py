@@ -1,0 +1,75 @@
+"""Rules are data: limits and bands declared in ``content/rules/*.yaml`` with their basis.
+
+A rule file holds ``rules:`` keyed by name; the full key is ``<file stem>.<name>``.
+Each rule has ``value``, ``unit``, ``description`` and ``basis`` (``kind`` plus
+``ref``/``clause`` for a published source).  A project may change a value only
+through ``rule_overrides`` in dossier.yaml with a written justification, which the
+dossier shows beside every check that used the rule.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+from functools import lru_cache
+from pathlib import Path
+
+import yaml
+
+from specgen.checks.result import Basis
+from specgen.refdata import CONTENT_DIR
+
+RULES_DIR = CONTENT_DIR / "rules"
+
+
+@dataclass(frozen=True)
+class Rule:
+    """One limit with its unit, meaning and basis; ``justification`` set when overridden."""
+
+    key: str
+    value: float
+    unit: str
+    description: str
+    basis: Basis
+    default: float | None = None
+    justification: str = ""
+
+
+def _basis(raw: dict, where: str) -> Basis:
+    if not isinstance(raw, dict) or raw.get("kind") not in {"reference", "common practice",
+                                                              "project requirement"}:
+        raise ValueError(f"{where}: basis needs kind: reference | common practice | project requirement")
+    return Basis(raw["kind"], str(raw.get("ref", "")), str(raw.get("clause", "")),
+                 str(raw.get("note", "")))
+
+
+@lru_cache(maxsize=None)
+def builtin_rules() -> dict[str, Rule]:
+    """Every rule shipped in ``content/rules``."""
+    out: dict[str, Rule] = {}
+    for path in sorted(Path(RULES_DIR).glob("*.yaml")):
+        doc = yaml.safe_load(path.read_text(encoding="utf-8")) or {}
+        for name, raw in (doc.get("rules") or {}).items():
+            key = f"{path.stem}.{name}"
+            out[key] = Rule(key, float(raw["value"]), str(raw.get("unit", "")),
+                            str(raw.get("description", "")), _basis(raw.get("basis"), key))
+    return out
+
+
+class RuleBook:
+    """The rules in force for one project: built-ins with the project's overrides applied."""
+
+    def __init__(self, overrides=()):
+        self._rules = dict(builtin_rules())
+        for ov in overrides:
+            base = self._rules[ov.rule]
+            self._rules[ov.rule] = replace(base, value=float(ov.value), default=base.value,
+                                           justification=ov.justification)
+
+    def __getitem__(self, key: str) -> Rule:
+        return self._rules[key]
+
+    def keys(self):
+        return self._rules.keys()
+
+    def overridden(self) -> list[Rule]:
+        """Rules the project changed, for the dossier's list of departures."""
+        return [r for r in self._rules.values() if r.justification]

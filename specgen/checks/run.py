@@ -1,0 +1,97 @@
+"""Stage 2+3, compute and check: run every registered check on every subject.
+
+The result, :class:`Results`, is the contract between computing and everything
+after it; ``results.json`` is its serialised form (see ``to_json``).
+"""
+from __future__ import annotations
+
+import json
+from dataclasses import dataclass, field
+
+from specgen import __version__
+from specgen.checks.registry import as_list, checks
+from specgen.checks.result import STATUSES, CheckResult, Quantity
+from specgen.checks.rules import RuleBook
+
+
+@dataclass
+class Context:
+    """What a check may use: the project, the rules in force, quantities recorded so far."""
+
+    project: object
+    rules: RuleBook
+    quantities: dict[str, dict[str, Quantity]] = field(default_factory=dict)
+
+    def record(self, subject: str, q: Quantity) -> None:
+        """Record a computed quantity for ``subject`` (later checks and results.json see it)."""
+        self.quantities.setdefault(subject, {})[q.name] = q
+
+    def quantity(self, subject: str, name: str) -> Quantity | None:
+        return self.quantities.get(subject, {}).get(name)
+
+
+@dataclass
+class Results:
+    """Every check result and every computed quantity of one project revision."""
+
+    project_code: str
+    revision: str
+    checks: list[CheckResult]
+    quantities: dict[str, dict[str, Quantity]]
+    subjects: dict[str, str]  # subject id → kind
+
+    def counts(self) -> dict[str, int]:
+        """Number of results per status, in severity order."""
+        return {s: sum(1 for c in self.checks if c.status == s) for s in STATUSES}
+
+    def worst(self) -> str:
+        for s in STATUSES:
+            if any(c.status == s for c in self.checks):
+                return s
+        return "pass"
+
+    def to_dict(self) -> dict:
+        return {
+            "format": "specgen-results/1",
+            "generator": f"specgen {__version__}",
+            "project": self.project_code,
+            "revision": self.revision,
+            "counts": self.counts(),
+            "checks": [c.to_dict() for c in self.checks],
+            "quantities": {s: {n: {"value": q.value, "unit": q.unit, "label": q.label}
+                               for n, q in sorted(qs.items())}
+                           for s, qs in sorted(self.quantities.items())},
+            "subjects": dict(sorted(self.subjects.items())),
+        }
+
+    def to_json(self) -> str:
+        return json.dumps(self.to_dict(), indent=2, sort_keys=True, ensure_ascii=False) + "\n"
+
+
+def subjects_of(project, kind: str) -> list[tuple[str, object]]:
+    """(id, object) pairs a check of ``kind`` runs on."""
+    if kind == "analysis":
+        return list(project.analyses.items())
+    if kind == "binder":
+        return list(project.binders.items())
+    if kind == "mix":
+        return list(project.mixes.items())
+    if kind == "zone":
+        return [(z.id, z) for z in project.dossier.zones]
+    return [(project.dossier.project.code, project)]
+
+
+def evaluate(project) -> Results:
+    """Run all checks in order; each may record quantities for later ones."""
+    ctx = Context(project, RuleBook(project.dossier.rule_overrides))
+    out: list[CheckResult] = []
+    subjects: dict[str, str] = {}
+    for spec in checks():
+        for sid, subject in subjects_of(project, spec.subject_kind):
+            subjects[sid] = spec.subject_kind
+            for res in as_list(spec.fn(subject, ctx)):
+                for q in res.quantities:
+                    ctx.record(res.subject, q)
+                out.append(res)
+    return Results(project.dossier.project.code, project.revision.code, out, ctx.quantities,
+                   subjects)

@@ -1,0 +1,102 @@
+"""The command line: parses arguments, calls build()/check(), maps errors to exit codes.
+
+Exit codes: 0 all clear; 1 a check failed (``check``) or verification failed;
+2 invalid input or usage.  No traceback reaches the user for an error of ours.
+Heavy libraries are imported only by the commands that need them.
+"""
+from __future__ import annotations
+
+import json
+import sys
+from pathlib import Path
+
+import click
+
+from specgen import __version__
+from specgen.errors import InputErrors, SpecgenError
+
+
+def _fail(exc: SpecgenError) -> None:
+    text = exc.report() if isinstance(exc, InputErrors) else str(exc)
+    click.echo(text, err=True)
+    sys.exit(exc.exit_code)
+
+
+@click.group(context_settings={"help_option_names": ["-h", "--help"]})
+@click.version_option(__version__, prog_name="specgen")
+def cli() -> None:
+    """specgen: binder specification dossiers for historic masonry repair.
+
+    A project folder of data files goes in; a checked, versioned site and a PDF come out.
+    """
+
+
+@cli.command()
+@click.argument("directory", type=click.Path(file_okay=False, path_type=Path))
+def new(directory: Path) -> None:
+    """Write a commented starter project into DIRECTORY."""
+    from specgen.starter import write_starter
+    try:
+        written = write_starter(directory)
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(f"Starter project written to {directory} ({len(written)} files). "
+               f"Next: specgen check {directory}")
+
+
+@cli.command("check")
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.option("--format", "fmt", type=click.Choice(["table", "json"]), default="table",
+              show_default=True, help="table for people, json for tools (results.json content)")
+def check_cmd(directory: Path, fmt: str) -> None:
+    """Run every check on the project in DIRECTORY and print the results."""
+    from specgen.build import check
+    try:
+        _, results = check(directory)
+    except SpecgenError as exc:
+        _fail(exc)
+    if fmt == "json":
+        click.echo(results.to_json(), nl=False)
+    else:
+        from specgen.textreport import table
+        click.echo(table(results))
+    sys.exit(1 if results.counts().get("fail") else 0)
+
+
+@cli.command()
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.option("--out", "out", type=click.Path(file_okay=False, path_type=Path), default=None,
+              help="output folder (default: DIRECTORY/../<folder name>-site)")
+@click.option("--page-size", type=click.Choice(["a4", "letter"]), default="a4", show_default=True)
+@click.option("--quiet", is_flag=True, help="no progress display")
+def build(directory: Path, out: Path | None, page_size: str, quiet: bool) -> None:
+    """Build the site and PDF of the project's revision into OUT/<revision>/."""
+    from specgen.build import build as run_build
+    out = out or directory.resolve().parent / f"{directory.resolve().name}-site"
+    steps = iter(range(1, 100))
+
+    def progress(step: str) -> None:
+        if not quiet:
+            click.echo(f"[{next(steps)}] {step}", err=True)
+    try:
+        target = run_build(directory, out, page_size=page_size, progress=progress)
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(f"Built {target} (open {target / 'index.html'})")
+
+
+@cli.command()
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.option("--port", default=8000, show_default=True, help="port on 127.0.0.1")
+def serve(directory: Path, port: int) -> None:
+    """Live preview: rebuild the site when a project file changes and serve it locally."""
+    from specgen.preview import serve as run_serve
+    try:
+        run_serve(directory, port)
+    except SpecgenError as exc:
+        _fail(exc)
+
+
+def main() -> None:
+    """Console entry point."""
+    cli(prog_name="specgen")

@@ -1,0 +1,99 @@
+"""Every error specgen shows to a person lives here.
+
+Messages are for people: they name the file, the line or row, the field, what was
+expected, what was found, and the fix.  Input problems are collected into one
+:class:`InputErrors` so a user sees all of them at once; the run stops before
+anything is written.  Each class is also a builtin (``ValueError``/``OSError``) so
+library callers can catch them the usual way.
+"""
+from __future__ import annotations
+
+import difflib
+from collections.abc import Iterable
+from dataclasses import dataclass
+
+
+class SpecgenError(Exception):
+    """Base of every error specgen raises on purpose."""
+
+    exit_code = 1
+
+
+@dataclass(frozen=True)
+class Problem:
+    """One thing wrong with the input, located as precisely as we can."""
+
+    file: str
+    message: str
+    line: int | None = None
+    row: int | None = None
+    field: str | None = None
+    fix: str | None = None
+
+    def __str__(self) -> str:
+        where = self.file
+        if self.line is not None:
+            where += f", line {self.line}"
+        if self.row is not None:
+            where += f", row {self.row}"
+        text = f"{where}: "
+        if self.field:
+            text += f"{self.field}: "
+        text += self.message
+        if self.fix:
+            text += f" Fix: {self.fix}"
+        return text
+
+
+class InputErrors(SpecgenError, ValueError):
+    """One or more problems with a project folder (exit status 2)."""
+
+    exit_code = 2
+
+    def __init__(self, problems: Iterable[Problem]):
+        self.problems = list(problems)
+        super().__init__("\n".join(str(p) for p in self.problems))
+
+    def report(self) -> str:
+        """Human-readable listing of all problems, with a count."""
+        n = len(self.problems)
+        head = f"{n} problem{'s' if n != 1 else ''} in the project folder:"
+        return "\n".join([head] + [f"  - {p}" for p in self.problems])
+
+
+class UsageError(SpecgenError, ValueError):
+    """The command was called in a way that cannot work (exit status 2)."""
+
+    exit_code = 2
+
+
+class PublishError(SpecgenError, OSError):
+    """The output could not be written (disk full, read-only folder, issued revision)."""
+
+    exit_code = 2
+
+
+class RevisionRefused(PublishError):
+    """Rebuilding an issued revision with different inputs."""
+
+
+def did_you_mean(word: str, choices: Iterable[str]) -> str | None:
+    """The nearest valid spelling, phrased for a message, or ``None``."""
+    close = difflib.get_close_matches(str(word), list(choices), n=1, cutoff=0.6)
+    return f"did you mean '{close[0]}'?" if close else None
+
+
+class ProblemLog:
+    """Collects problems while loading; raise them all together at the end."""
+
+    def __init__(self) -> None:
+        self.problems: list[Problem] = []
+
+    def add(self, file: str, message: str, **where) -> None:
+        """Record one problem (keywords: line, row, field, fix)."""
+        self.problems.append(Problem(file=file, message=message, **where))
+
+    def raise_if_any(self) -> None:
+        """Stop the run with every problem found so far."""
+        if self.problems:
+            raise InputErrors(self.problems)

@@ -1,0 +1,91 @@
+"""Cross-references between project files: every id named must exist.
+
+Also the sanity window on analysis totals: a total far from 100 % is a
+transcription or unit error and stops the run; a modest gap is left to the
+closure check, which reports it with its calculation.
+"""
+from __future__ import annotations
+
+from specgen.errors import ProblemLog, did_you_mean
+from specgen.project.files import Located
+
+SKIP: dict = {}  # stands for the ids of a file that failed to load
+
+
+def _ref(log, located, rel, path, value, known: dict, what: str) -> None:
+    if value is None or value in known or known is SKIP:
+        return
+    loc = located.get(rel)
+    line = loc.line_of(path) if loc else None
+    field = ".".join(str(p) if not isinstance(p, int) else f"[{p}]" for p in path).replace(".[", "[")
+    hint = did_you_mean(value, known)
+    log.add(rel, f"names {what} '{value}', which is not defined.", line=line, field=field,
+            fix=hint or (f"define it, or use one of: {', '.join(sorted(known))}." if known
+                         else f"define it first."))
+
+
+def check_references(project, located: dict[str, Located], log: ProblemLog,
+                     failed: set[str] = frozenset()) -> None:
+    """Record a problem for every dangling id and every implausible analysis total.
+
+    References into a file that itself failed to load are not checked: its own
+    problems are already reported and would only be repeated here.
+    """
+    from specgen.project.load import TOTAL_WINDOW
+    d = project.dossier
+    mat_ok, mix_ok = "materials.yaml" not in failed, "mixes.yaml" not in failed
+    an_ok = "analyses.yaml" not in failed
+    units_ = project.masonry_units if mat_ok else SKIP
+    hist = project.historic_mortars if mat_ok else SKIP
+    binders = project.binders if mat_ok else SKIP
+    sands = project.sands if mat_ok else SKIP
+    mixes = project.mixes if mix_ok else SKIP
+    analyses = project.analyses if an_ok else SKIP
+    for i, z in enumerate(d.zones):
+        _ref(log, located, "dossier.yaml", ("zones", i, "units"), z.units, units_,
+             "masonry unit")
+        _ref(log, located, "dossier.yaml", ("zones", i, "historic_mortar"), z.historic_mortar,
+             hist, "historic mortar")
+        for j, m in enumerate(z.candidates):
+            _ref(log, located, "dossier.yaml", ("zones", i, "candidates", j), m, mixes, "mix")
+    for i, b in enumerate(project.binders.values()):
+        _ref(log, located, "materials.yaml", ("binders", i, "analysis"), b.analysis,
+             analyses, "analysis")
+    for i, h in enumerate(project.historic_mortars.values()):
+        _ref(log, located, "materials.yaml", ("historic_mortars", i, "binder_analysis"),
+             h.binder_analysis, analyses, "analysis")
+    for i, m in enumerate(project.mixes.values()):
+        for j, part in enumerate(m.binders):
+            _ref(log, located, "mixes.yaml", ("mixes", i, "binders", j, "binder"), part.binder,
+                 binders, "binder")
+        for j, part in enumerate(m.sands):
+            _ref(log, located, "mixes.yaml", ("mixes", i, "sands", j, "sand"), part.sand,
+                 sands, "sand")
+    for i, a in enumerate(project.analyses.values()):
+        _ref(log, located, "analyses.yaml", ("analyses", i, "material"), a.material,
+             binders, "binder")
+        total = sum(a.mass_percent.values())
+        if not TOTAL_WINDOW[0] <= total <= TOTAL_WINDOW[1]:
+            loc = located.get("analyses.yaml")
+            log.add("analyses.yaml", f"constituents of analysis '{a.id}' add up to {total:.1f} %; "
+                    f"expected close to 100 % (accepted {TOTAL_WINDOW[0]:g}–{TOTAL_WINDOW[1]:g} %).",
+                    line=loc.line_of(("analyses", i, "mass_percent")) if loc else None,
+                    field=f"analyses[{i}].mass_percent",
+                    fix="check for a mistyped value, a missing LOI, or values not in mass %.")
+    if mixes is not SKIP:
+        _strength_refs(project.strength, mixes, log)
+
+
+def _strength_refs(results, mixes: dict, log: ProblemLog) -> None:
+    """One problem per unknown mix id in the lab results, listing the rows it is on."""
+    rows: dict[str, list[int]] = {}
+    for r in results:
+        if r.mix not in mixes:
+            rows.setdefault(r.mix, []).append(r.row)
+    for mix, where in rows.items():
+        first = results[0].file
+        more = f" (also rows {', '.join(map(str, where[1:6]))}{' …' if len(where) > 6 else ''})" \
+            if len(where) > 1 else ""
+        hint = did_you_mean(mix, mixes)
+        log.add(first, f"names mix '{mix}', which is not defined in mixes.yaml{more}.",
+                row=where[0], field="mix", fix=hint or "define the mix, or correct the id.")

@@ -1,0 +1,182 @@
+"""load: a project folder → a validated :class:`Project` (SI units), or every problem at once."""
+from __future__ import annotations
+
+import hashlib
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from pydantic import BaseModel, ValidationError
+
+from specgen.errors import ProblemLog, did_you_mean
+from specgen.project import schema
+from specgen.project.files import Located, read_csv, read_yaml
+from specgen.project.tables import StrengthResult, strength_results
+
+ROOT_FILE = "dossier.yaml"
+# file name → (model, required); the folder layout is fixed so every project reads alike.
+DOCUMENTS: dict[str, tuple[type[BaseModel], bool]] = {
+    ROOT_FILE: (schema.Dossier, True),
+    "analyses.yaml": (schema.AnalysesFile, False),
+    "materials.yaml": (schema.MaterialsFile, False),
+    "mixes.yaml": (schema.MixesFile, False),
+}
+STRENGTH_FILE = "lab/strength.csv"
+NARRATIVE_DIR = "narrative"
+# An analysis whose total is this far from 100 % is a transcription or unit error, not chemistry.
+TOTAL_WINDOW = (85.0, 115.0)
+
+
+@dataclass(frozen=True)
+class InputFile:
+    """A file read from the project folder (path relative to it) and its SHA-256."""
+
+    path: str
+    sha256: str
+    size: int
+
+
+@dataclass
+class Project:
+    """Everything read from a project folder, validated, in SI units."""
+
+    root: Path
+    dossier: schema.Dossier
+    analyses: dict[str, schema.Analysis] = field(default_factory=dict)
+    binders: dict[str, schema.Binder] = field(default_factory=dict)
+    masonry_units: dict[str, schema.MasonryUnit] = field(default_factory=dict)
+    historic_mortars: dict[str, schema.HistoricMortar] = field(default_factory=dict)
+    sands: dict[str, schema.Sand] = field(default_factory=dict)
+    mixes: dict[str, schema.Mix] = field(default_factory=dict)
+    strength: list[StrengthResult] = field(default_factory=list)
+    narrative: dict[str, str] = field(default_factory=dict)
+    inputs: list[InputFile] = field(default_factory=list)
+
+    @property
+    def revision(self) -> schema.Revision:
+        return self.dossier.revision
+
+
+def _field_path(loc: tuple) -> str:
+    return ".".join(str(p) if not isinstance(p, int) else f"[{p}]" for p in loc).replace(".[", "[")
+
+
+def _model_fields(model: type[BaseModel], loc: tuple) -> list[str]:
+    """Valid keys at ``loc`` inside ``model`` (for 'did you mean')."""
+    current = model
+    for part in loc[:-1]:
+        if isinstance(part, int):
+            continue
+        info = current.model_fields.get(part) if hasattr(current, "model_fields") else None
+        if info is None:
+            return []
+        ann = info.annotation
+        for arg in getattr(ann, "__args__", ()) or (ann,):
+            if isinstance(arg, type) and issubclass(arg, BaseModel):
+                current = arg
+                break
+            for sub in getattr(arg, "__args__", ()):
+                if isinstance(sub, type) and issubclass(sub, BaseModel):
+                    current = sub
+        else:
+            if not (isinstance(ann, type) and issubclass(ann, BaseModel)):
+                pass
+    return list(getattr(current, "model_fields", {}).keys())
+
+
+def validate(located: Located, model: type[BaseModel], rel: str, log: ProblemLog):
+    """Validate a parsed document; translate pydantic errors into located problems."""
+    try:
+        return model.model_validate(located.data)
+    except ValidationError as exc:
+        for err in exc.errors():
+            loc = tuple(err["loc"])
+            line = located.line_of(loc)
+            msg = err["msg"].removeprefix("Value error, ")
+            fix = None
+            if err["type"] == "extra_forbidden":
+                fix = did_you_mean(loc[-1], _model_fields(model, loc)) or "remove the key."
+                msg = f"unknown key '{loc[-1]}'."
+            elif err["type"] == "missing":
+                msg = "this required field is missing."
+                fix = f"add '{loc[-1]}:'."
+            else:
+                found = err.get("input")
+                if isinstance(found, (dict, list)) or repr(found) in msg or str(found) in msg:
+                    msg = msg.rstrip(".") + "."
+                else:
+                    msg = f"{msg} (found {found!r})."
+            log.add(rel, msg, line=line, field=_field_path(loc), fix=fix)
+        return None
+
+
+def _hash(path: Path, rel: str) -> InputFile:
+    data = path.read_bytes()
+    return InputFile(rel, hashlib.sha256(data).hexdigest(), len(data))
+
+
+def load_project(root: Path | str) -> Project:
+    """Read and validate a project folder; raise :class:`~specgen.errors.InputErrors` on problems."""
+    root = Path(root)
+    log = ProblemLog()
+    if not (root / ROOT_FILE).is_file():
+        log.add(str(root / ROOT_FILE), "not found: a project folder needs this root file.",
+                fix=f"run 'specgen new {root}' for a starter project, or check the folder name.")
+        log.raise_if_any()
+    docs, located = {}, {}
+    for name, (model, required) in DOCUMENTS.items():
+        path = root / name
+        if not path.is_file():
+            if required:
+                log.add(name, "not found.")
+            continue
+        loc = read_yaml(path, name, log)
+        if loc is not None:
+            located[name] = loc
+            docs[name] = validate(loc, model, name, log)
+    strength = []
+    if (root / STRENGTH_FILE).is_file():
+        table = read_csv(root / STRENGTH_FILE, STRENGTH_FILE, log)
+        if table is not None:
+            strength = strength_results(table, STRENGTH_FILE, log)
+    if docs.get(ROOT_FILE) is None:
+        log.raise_if_any()
+    project = _assemble(root, docs, strength, log)
+    from specgen.project.crossref import check_references
+    failed = {name for name in DOCUMENTS if (root / name).is_file() and docs.get(name) is None}
+    check_references(project, located, log, failed)
+    log.raise_if_any()
+    return project
+
+
+def _index(items, kind: str, rel: str, log: ProblemLog) -> dict:
+    out = {}
+    for i, item in enumerate(items):
+        if item.id in out:
+            log.add(rel, f"{kind} id '{item.id}' is used twice.", field=f"[{i}].id",
+                    fix="give each one its own id.")
+        out[item.id] = item
+    return out
+
+
+def _assemble(root: Path, docs: dict, strength: list, log: ProblemLog) -> Project:
+    p = Project(root=root, dossier=docs[ROOT_FILE], strength=strength)
+    if an := docs.get("analyses.yaml"):
+        p.analyses = _index(an.analyses, "analysis", "analyses.yaml", log)
+    if mat := docs.get("materials.yaml"):
+        p.binders = _index(mat.binders, "binder", "materials.yaml", log)
+        p.masonry_units = _index(mat.masonry_units, "masonry unit", "materials.yaml", log)
+        p.historic_mortars = _index(mat.historic_mortars, "historic mortar", "materials.yaml", log)
+        p.sands = _index(mat.sands, "sand", "materials.yaml", log)
+    if mx := docs.get("mixes.yaml"):
+        p.mixes = _index(mx.mixes, "mix", "mixes.yaml", log)
+    narrative_dir = root / NARRATIVE_DIR
+    if narrative_dir.is_dir():
+        from specgen.project.files import read_text
+        for md in sorted(narrative_dir.glob("*.md")):
+            text = read_text(md, f"{NARRATIVE_DIR}/{md.name}", log)
+            if text is not None:
+                p.narrative[md.stem] = text
+    for path in sorted(root.rglob("*")):
+        if path.is_file() and not any(part.startswith(".") for part in path.relative_to(root).parts):
+            p.inputs.append(_hash(path, path.relative_to(root).as_posix()))
+    return p

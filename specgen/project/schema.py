@@ -1,0 +1,202 @@
+"""The project folder format: one pydantic model per YAML document.
+
+Every field has a type, a default where one makes sense, and a one-line
+description (the format reference is generated from these).  Quantities are
+written with their unit (``"12 MPa"``, ``"1740 psi"``) and arrive here as SI floats.
+Unknown keys are refused (with a suggestion) so a typo never silently drops data.
+"""
+from __future__ import annotations
+
+import datetime as dt
+from typing import Annotated, Literal
+
+from pydantic import AfterValidator, BaseModel, BeforeValidator, ConfigDict, Field
+
+from specgen import units
+
+ID_PATTERN = r"^[A-Za-z0-9][A-Za-z0-9._-]{0,39}$"
+Id = Annotated[str, Field(pattern=ID_PATTERN, description="short identifier: letters, digits, . _ -")]
+Text = Annotated[str, Field(max_length=4000)]
+
+
+def _quantity(kind: str):
+    def parse(value):
+        return units.parse(value, kind)
+    return BeforeValidator(parse)
+
+
+def _positive(value: float) -> float:
+    if value <= 0:
+        raise ValueError(f"must be greater than zero; found {value:g} (in SI units)")
+    return value
+
+
+Pressure = Annotated[float, _quantity("pressure"), AfterValidator(_positive)]
+Length = Annotated[float, _quantity("length"), AfterValidator(_positive)]
+Area = Annotated[float, _quantity("area"), AfterValidator(_positive)]
+Density = Annotated[float, _quantity("density"), AfterValidator(_positive)]
+Duration = Annotated[float, _quantity("time"), AfterValidator(_positive)]
+Temperature = Annotated[float, _quantity("temperature")]
+MassPercent = Annotated[float, BeforeValidator(lambda v: _percent(v)), Field(ge=0, le=100)]
+
+
+def _percent(value):
+    """Oxide contents: a number (mass %) or text ending in '%'."""
+    if isinstance(value, str) and value.strip().endswith("%"):
+        return float(value.strip().rstrip("%"))
+    return value
+
+
+class Model(BaseModel):
+    """Base of every document model: unknown keys refused, values immutable."""
+
+    model_config = ConfigDict(extra="forbid", frozen=True, str_strip_whitespace=True)
+
+
+# ---------------------------------------------------------------- dossier.yaml
+class ProjectInfo(Model):
+    code: Id = Field(description="project reference used in file names and headers")
+    title: Text = Field(description="title of the works, as on the cover")
+    site: Text = Field(description="address or location of the structure")
+    client: Text = Field(description="who commissions the dossier")
+    protected_building: bool = Field(False, description="listed/protected: consent caution shown")
+    work_at_height: bool = Field(False, description="facades or walls needing access equipment")
+    significance: Text = Field("", description="one paragraph on the fabric's significance")
+
+
+class Party(Model):
+    role: Text = Field(description="role in the works, e.g. specifier, reviewer, laboratory")
+    name: Text = Field(description="person or team")
+    organisation: Text = Field("", description="organisation")
+
+
+class Revision(Model):
+    code: Annotated[str, Field(pattern=r"^[A-Za-z0-9][A-Za-z0-9._-]{0,19}$",
+                               description="revision code, e.g. R1; becomes the output folder")]
+    date: dt.date = Field(description="issue date (YYYY-MM-DD); fixes all dates in the output")
+    status: Literal["draft", "issued"] = Field("draft", description="draft or issued")
+    purpose: Literal["preliminary", "for_approval", "for_construction"] = Field(
+        "preliminary", description="what the revision is issued for")
+    description: Text = Field(description="what changed in this revision and why")
+
+
+class Zone(Model):
+    id: Id = Field(description="zone identifier, e.g. Z1")
+    name: Text = Field(description="short name of the zone of work")
+    works: Literal["repointing", "render", "bedding"] = Field(description="kind of work")
+    units: Id | None = Field(None, description="masonry unit id (materials.yaml) of the fabric")
+    historic_mortar: Id | None = Field(None, description="historic mortar id (materials.yaml)")
+    exposure: Text = Field("", description="exposure of the zone (splash, sheltered, ...)")
+    area: Area | None = Field(None, description="wall area of the works, e.g. '120 m^2'")
+    candidates: list[Id] = Field(default_factory=list, description="candidate mix ids")
+
+
+class MinimumStrength(Model):
+    age: Duration = Field(description="test age, e.g. '28 d'")
+    value: Pressure = Field(description="minimum compressive strength, e.g. '2 MPa'")
+
+
+class Requirements(Model):
+    min_compressive: list[MinimumStrength] = Field(
+        default_factory=list, description="minimum compressive strengths at stated ages")
+    max_compressive_long_term: Pressure | None = Field(
+        None, description="cap on long-term compressive strength (compatibility)")
+
+
+class RuleOverride(Model):
+    rule: Text = Field(description="rule key from content/rules, e.g. analysis.closure_pass")
+    value: float = Field(description="new limit, in the rule's unit")
+    justification: Text = Field(min_length=10, description="why the project departs from the default")
+
+
+class Dossier(Model):
+    """The root file ``dossier.yaml``."""
+
+    project: ProjectInfo
+    parties: list[Party] = Field(default_factory=list, description="people and roles")
+    revision: Revision
+    zones: list[Zone] = Field(default_factory=list, description="zones of work")
+    requirements: Requirements = Field(default_factory=Requirements,
+                                       description="project requirements")
+    rule_overrides: list[RuleOverride] = Field(default_factory=list,
+                                               description="justified departures from rules")
+
+
+# --------------------------------------------------------------- analyses.yaml
+class Analysis(Model):
+    id: Id = Field(description="analysis identifier")
+    kind: Literal["raw_stone", "binder", "historic_binder"] = Field(
+        description="what was analysed")
+    material: Id | None = Field(None, description="binder id (materials.yaml) this analysis is of")
+    description: Text = Field("", description="sample description")
+    laboratory: Text = Field("", description="who analysed it, report reference")
+    date: dt.date | None = Field(None, description="date of the analysis")
+    mass_percent: dict[str, MassPercent] = Field(
+        description="constituents in mass %, e.g. CaO: 41.2, LOI: 30.5")
+
+
+class AnalysesFile(Model):
+    analyses: list[Analysis] = Field(default_factory=list, description="oxide analyses")
+
+
+# -------------------------------------------------------------- materials.yaml
+class Binder(Model):
+    id: Id = Field(description="binder identifier")
+    name: Text = Field(description="descriptive name (no trade names)")
+    type: Literal["natural_cement", "nhl", "fl", "hl", "air_lime", "portland", "pozzolan"] = Field(
+        description="binder family")
+    declared_class: Text = Field("", description="declared class, e.g. NHL 3.5")
+    analysis: Id | None = Field(None, description="analysis id of this binder")
+    bulk_density: Density | None = Field(None, description="loose bulk density, e.g. '850 kg/m^3'")
+
+
+class MasonryUnit(Model):
+    id: Id
+    name: Text
+    compressive_strength: Pressure | None = Field(None, description="unit compressive strength")
+    length: Length | None = Field(None, description="unit length, e.g. '215 mm'")
+    height: Length | None = Field(None, description="unit height, e.g. '65 mm'")
+
+
+class HistoricMortar(Model):
+    id: Id
+    name: Text
+    compressive_strength: Pressure | None = Field(None, description="sound historic mortar strength")
+    binder_analysis: Id | None = Field(None, description="analysis id of its binder fraction")
+
+
+class Sand(Model):
+    id: Id
+    name: Text
+    bulk_density: Density | None = Field(None, description="loose bulk density")
+
+
+class MaterialsFile(Model):
+    binders: list[Binder] = Field(default_factory=list)
+    masonry_units: list[MasonryUnit] = Field(default_factory=list)
+    historic_mortars: list[HistoricMortar] = Field(default_factory=list)
+    sands: list[Sand] = Field(default_factory=list)
+
+
+# ----------------------------------------------------------------- mixes.yaml
+class BinderPart(Model):
+    binder: Id = Field(description="binder id")
+    parts: float = Field(gt=0, description="parts by volume")
+
+
+class SandPart(Model):
+    sand: Id = Field(description="sand id")
+    parts: float = Field(gt=0, description="parts by volume")
+
+
+class Mix(Model):
+    id: Id = Field(description="mix identifier")
+    name: Text = Field(description="descriptive name")
+    binders: list[BinderPart] = Field(min_length=1, description="binder parts by volume")
+    sands: list[SandPart] = Field(default_factory=list, description="sand parts by volume")
+    water_binder_ratio: float | None = Field(None, gt=0, lt=3, description="water/binder by mass")
+    notes: Text = Field("", description="free text")
+
+
+class MixesFile(Model):
+    mixes: list[Mix] = Field(default_factory=list)

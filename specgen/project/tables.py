@@ -1,0 +1,142 @@
+"""Tabular lab data (CSV): column declarations and typed rows.
+
+A column is declared once with its kind; a quantity column must carry its unit
+in the header (``value [MPa]``, ``age [d]``) and is converted to SI here.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from specgen import units
+from specgen.errors import ProblemLog, did_you_mean
+from specgen.project.files import CsvTable
+
+
+@dataclass(frozen=True)
+class Column:
+    """One CSV column: header name, unit kind (``None`` = text), whether required."""
+
+    name: str
+    kind: str | None = None
+    required: bool = True
+    choices: tuple[str, ...] = ()
+    description: str = ""
+
+
+@dataclass(frozen=True)
+class StrengthResult:
+    """One specimen test: SI values (age s, value Pa, temperature K)."""
+
+    specimen: str
+    mix: str
+    age: float
+    test: str
+    value: float
+    curing_temperature: float | None
+    row: int
+    file: str
+
+
+STRENGTH_COLUMNS = (
+    Column("specimen", description="specimen id, unique in the file"),
+    Column("mix", description="mix id (mixes.yaml)"),
+    Column("age", "time", description="age at test, header with unit e.g. 'age [d]'"),
+    Column("test", choices=("compressive", "flexural"), description="test kind"),
+    Column("value", "pressure", description="strength, header with unit e.g. 'value [MPa]'"),
+    Column("curing_temperature", "temperature", required=False,
+           description="curing temperature, e.g. 'curing_temperature [degC]'"),
+)
+
+
+def map_headers(table: CsvTable, columns, rel: str, log: ProblemLog) -> dict[str, tuple[str, str | None]]:
+    """Match CSV headers to declared columns: name → (header text, unit text)."""
+    found: dict[str, tuple[str, str | None]] = {}
+    known = [c.name for c in columns]
+    by_name = {c.name: c for c in columns}
+    for header in table.headers:
+        name, unit = units.split_header(header)
+        if name not in by_name:
+            hint = did_you_mean(name, known)
+            log.add(rel, f"unknown column '{name}'.", row=1, field=header,
+                    fix=hint or f"use one of: {', '.join(known)}.")
+            continue
+        col = by_name[name]
+        if col.kind and unit is None:
+            log.add(rel, f"column '{name}' has no unit.", row=1, field=header,
+                    fix=f"write the unit in the header, e.g. '{name} [{_example_unit(col.kind)}]'.")
+            continue
+        if col.kind:
+            try:
+                units.parse_unit(unit, col.kind)
+            except units.UnitProblem as exc:
+                log.add(rel, str(exc) + ".", row=1, field=header)
+                continue
+        found[name] = (header, unit)
+    for col in columns:
+        if col.required and col.name not in found and not any(
+                units.split_header(h)[0] == col.name for h in table.headers):
+            log.add(rel, f"required column '{col.name}' is missing.", row=1,
+                    fix=f"add a column '{col.name}'" + (f" with its unit" if col.kind else "") + ".")
+    return found
+
+
+def _example_unit(kind: str) -> str:
+    return {"pressure": "MPa", "time": "d", "temperature": "degC", "length": "mm",
+            "fraction": "%", "mass": "g"}.get(kind, units.KINDS[kind].si)
+
+
+def cell(table_row: dict, col: Column, found, rel: str, row: int, log: ProblemLog):
+    """Value of one cell: SI float for quantities, text otherwise; ``None`` if empty/invalid."""
+    if col.name not in found:
+        return None
+    header, unit = found[col.name]
+    raw = table_row.get(header, "").strip()
+    if raw == "":
+        if col.required:
+            log.add(rel, "is empty.", row=row, field=header, fix="fill in the value.")
+        return None
+    if col.kind is None:
+        if col.choices and raw not in col.choices:
+            hint = did_you_mean(raw, col.choices)
+            log.add(rel, f"'{raw}' is not allowed here.", row=row, field=header,
+                    fix=hint or f"use one of: {', '.join(col.choices)}.")
+            return None
+        return raw
+    try:
+        number = float(raw.replace(",", ".")) if raw.count(",") == 1 and "." not in raw else float(raw)
+    except ValueError:
+        log.add(rel, f"expected a number; found '{raw}'.", row=row, field=header)
+        return None
+    if not math.isfinite(number):
+        log.add(rel, f"expected a finite number; found '{raw}'.", row=row, field=header)
+        return None
+    return units.to_si(number, unit, col.kind)
+
+
+def strength_results(table: CsvTable, rel: str, log: ProblemLog) -> list[StrengthResult]:
+    """Typed strength results; checks ages > 0, strength > 0 and unique specimens."""
+    found = map_headers(table, STRENGTH_COLUMNS, rel, log)
+    out: list[StrengthResult] = []
+    seen: dict[str, int] = {}
+    for row, rec in table.rows:
+        v = {c.name: cell(rec, c, found, rel, row, log) for c in STRENGTH_COLUMNS}
+        if any(v[c.name] is None for c in STRENGTH_COLUMNS if c.required):
+            continue
+        if v["age"] <= 0:
+            log.add(rel, f"age must be greater than zero; found {rec[found['age'][0]]}.", row=row,
+                    field=found["age"][0], fix="give the age at test in days since casting.")
+            continue
+        if v["value"] <= 0:
+            log.add(rel, f"strength must be greater than zero; found {rec[found['value'][0]]}.",
+                    row=row, field=found["value"][0],
+                    fix="record a failed or untested specimen in the notes, not as a value.")
+            continue
+        if v["specimen"] in seen:
+            log.add(rel, f"specimen '{v['specimen']}' already appears in row {seen[v['specimen']]}.",
+                    row=row, field="specimen", fix="give each specimen its own id.")
+            continue
+        seen[v["specimen"]] = row
+        out.append(StrengthResult(v["specimen"], v["mix"], v["age"], v["test"], v["value"],
+                                  v["curing_temperature"], row, rel))
+    return out

@@ -1,0 +1,62 @@
+"""Stage 5, publish: PageSet → site, PDF, results.json and manifest in ``OUT/<revision>/``."""
+from __future__ import annotations
+
+import hashlib
+from pathlib import Path
+
+from specgen.publish.output import (move_into_place, refuse_if_issued, staging_dir,
+                                    update_versions, write_manifest)
+
+STATE = {"draft": "draft", "issued": "issued"}
+PURPOSE = {"preliminary": "preliminary", "for_approval": "for approval",
+           "for_construction": "for construction"}
+
+
+def pdf_name(project) -> str:
+    return f"{project.dossier.project.code}-{project.revision.code}.pdf"
+
+
+def publish(project, results, pages, out: Path, *, page_size: str = "a4",
+            progress=lambda s: None) -> Path:
+    """Write site + PDF + results.json into a staging folder, then move it into place."""
+    from specgen.publish.pdf import to_html, write_pdf
+    from specgen.publish.site import build_site
+    rev = project.revision
+    target = out / rev.code
+    refuse_if_issued(target, project.inputs)
+    staging = staging_dir(out, rev.code)
+    try:
+        progress("publish: site")
+        build_site(pages, staging, f"{project.dossier.project.title} — {rev.code}")
+        progress("publish: PDF")
+        results_json = results.to_json().encode("utf-8")
+        (staging / "results.json").write_bytes(results_json)
+        html = to_html(pages, _print_context(project))
+        attachments = {"results.json": results_json}
+        for f in project.inputs:
+            attachments[f"input/{f.path}"] = (project.root / f.path).read_bytes()
+        ident = hashlib.sha256(f"{project.dossier.project.code}/{rev.code}".encode()).digest()[:16]
+        write_pdf(pages, html, staging / pdf_name(project), attachments=attachments,
+                  page_size=page_size, identifier=ident)
+        write_manifest(staging, project.inputs, {
+            "project": project.dossier.project.code, "revision": rev.code,
+            "status": rev.status, "date": rev.date.isoformat(), "format": "specgen-manifest/1"})
+        progress("publish: moving the revision into place")
+        move_into_place(staging, target)
+    except BaseException:
+        import shutil
+        shutil.rmtree(staging, ignore_errors=True)
+        raise
+    update_versions(out)
+    return target
+
+
+def _print_context(project) -> dict:
+    p, rev = project.dossier.project, project.revision
+    specifier = next((x for x in project.dossier.parties if x.role == "specifier"), None)
+    author = (specifier.organisation or specifier.name) if specifier else p.client
+    return {"title": f"{p.title} — revision {rev.code}", "author": author,
+            "subject": f"Binder specification dossier, {p.site}",
+            "keywords": f"{p.code}, revision {rev.code}, repair mortar, binder specification",
+            "date": rev.date.isoformat(), "project": p, "revision": rev,
+            "state": STATE[rev.status], "purpose": PURPOSE[rev.purpose]}

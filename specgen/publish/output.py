@@ -1,0 +1,105 @@
+"""Writing a revision: atomic, append-only, with a manifest and the versions list.
+
+A revision is assembled in a staging folder inside the output folder, then
+renamed into place, so a reader (or a killed build) never sees half a revision.
+An issued revision is never overwritten by different inputs.
+"""
+from __future__ import annotations
+
+import hashlib
+import json
+import os
+import shutil
+import tempfile
+from pathlib import Path
+
+from specgen.errors import PublishError, RevisionRefused
+
+MANIFEST = "manifest.json"
+VERSIONS = "versions.json"
+
+
+def sha256_file(path: Path) -> str:
+    h = hashlib.sha256()
+    with open(path, "rb") as f:
+        for chunk in iter(lambda: f.read(1 << 16), b""):
+            h.update(chunk)
+    return h.hexdigest()
+
+
+def staging_dir(out: Path, revision: str) -> Path:
+    """A fresh staging folder next to where the revision will live (same filesystem)."""
+    try:
+        out.mkdir(parents=True, exist_ok=True)
+        return Path(tempfile.mkdtemp(prefix=f".staging-{revision}-", dir=out))
+    except OSError as exc:
+        raise PublishError(f"{out}: cannot write the output folder ({exc.strerror}). "
+                           "Fix: choose a writable folder with --out, or free disk space.") from exc
+
+
+def write_manifest(folder: Path, inputs, meta: dict) -> dict:
+    """SHA-256 of every output file and every input file, written as manifest.json."""
+    outputs = {p.relative_to(folder).as_posix(): sha256_file(p)
+               for p in sorted(folder.rglob("*")) if p.is_file()}
+    manifest = dict(meta, outputs=outputs,
+                    inputs={f.path: f.sha256 for f in inputs})
+    (folder / MANIFEST).write_text(json.dumps(manifest, indent=2, sort_keys=True) + "\n",
+                                   encoding="utf-8")
+    return manifest
+
+
+def refuse_if_issued(target: Path, inputs) -> None:
+    """An issued revision may only be rebuilt from identical inputs."""
+    mf = target / MANIFEST
+    if not mf.is_file():
+        return
+    old = json.loads(mf.read_text(encoding="utf-8"))
+    if old.get("status") != "issued":
+        return
+    if old.get("inputs") != {f.path: f.sha256 for f in inputs}:
+        raise RevisionRefused(
+            f"revision {target.name} was issued and its inputs have changed since. "
+            "Fix: raise a new revision (revision.code in dossier.yaml) and describe what changed.")
+
+
+def move_into_place(staging: Path, target: Path) -> None:
+    """Replace ``target`` by ``staging`` with renames only (old copy removed afterwards)."""
+    old = None
+    if target.exists():
+        old = target.with_name(f".old-{target.name}-{os.getpid()}")
+        os.replace(target, old)
+    os.replace(staging, target)
+    if old is not None:
+        shutil.rmtree(old, ignore_errors=True)
+
+
+def write_atomic(path: Path, text: str) -> None:
+    """Write a small file by writing a sibling and renaming it over the old one."""
+    tmp = path.with_name(f".{path.name}.tmp-{os.getpid()}")
+    tmp.write_text(text, encoding="utf-8")
+    os.replace(tmp, path)
+
+
+def update_versions(out: Path) -> list[dict]:
+    """versions.json (read by the site's revision selector) and the root redirect."""
+    revs = []
+    for mf in sorted(out.glob(f"*/{MANIFEST}")):
+        if mf.parent.name.startswith("."):
+            continue
+        m = json.loads(mf.read_text(encoding="utf-8"))
+        revs.append({"version": mf.parent.name, "title": f"{mf.parent.name} ({m.get('status')}, "
+                     f"{m.get('date')})", "aliases": [], "date": m.get("date", "")})
+    revs.sort(key=lambda r: (r["date"], r["version"]), reverse=True)
+    if revs:
+        revs[0]["aliases"] = ["current"]
+        write_atomic(out / VERSIONS, json.dumps(revs, indent=2) + "\n")
+        current = revs[0]["version"]
+        write_atomic(out / "index.html", REDIRECT.format(rev=current))
+    return revs
+
+
+REDIRECT = """<!DOCTYPE html>
+<html lang="en"><head><meta charset="utf-8"><title>Current revision</title>
+<meta http-equiv="refresh" content="0; url={rev}/index.html"></head>
+<body><p>The current revision is <a href="{rev}/index.html">{rev}</a>.</p></body></html>
+"""

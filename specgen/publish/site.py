@@ -1,0 +1,56 @@
+"""The MkDocs adapter: a PageSet in, a static site out.  The only module that imports MkDocs.
+
+MkDocs 1.6 and mkdocs-material 9 are frozen upstream; everything engine-specific
+stays here.  Pages are fed in-process through an ``on_files`` hook that adds
+``File.generated`` entries, so nothing is written to a docs folder first.
+"""
+from __future__ import annotations
+
+import logging
+import tempfile
+from pathlib import Path
+
+from specgen.refdata import CONTENT_DIR
+
+BASE_CONFIG = CONTENT_DIR.parent / "mkdocs.yml"
+SITE_ASSETS = CONTENT_DIR / "site" / "assets"
+
+
+class _FeedPages:
+    """Minimal MkDocs plugin object that injects the page set's files."""
+
+    def __init__(self, pageset, extra_assets: dict[str, bytes]):
+        self.pageset = pageset
+        self.extra_assets = extra_assets
+
+    def on_files(self, files, config):
+        from mkdocs.structure.files import File
+        for path, text in self.pageset.pages.items():
+            files.append(File.generated(config, path, content=text))
+        for path, data in {**self.extra_assets, **self.pageset.assets}.items():
+            files.append(File.generated(config, path, content=data))
+        return files
+
+
+def _site_assets() -> dict[str, bytes]:
+    return {f"assets/{p.name}": p.read_bytes() for p in sorted(SITE_ASSETS.iterdir())
+            if p.is_file() and p.suffix in {".css", ".js", ".svg", ".png"}}
+
+
+def build_site(pageset, site_dir: Path, site_name: str, extra: dict | None = None) -> None:
+    """Build the site for ``pageset`` into ``site_dir`` (which must not exist yet)."""
+    from mkdocs.commands.build import build
+    from mkdocs.config import load_config
+
+    logging.getLogger("mkdocs").setLevel(logging.WARNING)
+    nav = [{item.title: item.path} for item in pageset.nav]
+    with tempfile.TemporaryDirectory(prefix="specgen-docs-") as empty_docs:
+        config = load_config(str(BASE_CONFIG), site_name=site_name, docs_dir=empty_docs,
+                             site_dir=str(site_dir), nav=nav)
+        config.extra.update(extra or {})
+        config.plugins["specgen-pages"] = _FeedPages(pageset, _site_assets())
+        config.plugins.run_event("startup", command="build", dirty=False)
+        try:
+            build(config)
+        finally:
+            config.plugins.run_event("shutdown")

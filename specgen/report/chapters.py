@@ -1,0 +1,64 @@
+"""Page builders: each chapter registers a template and a function preparing its context.
+
+Templates never compute: everything they show is prepared here (numbers formatted,
+rows built).  Chapters run in ``order``; a chapter with no data still renders and
+says so.  Extensions register chapters with the same decorator.
+"""
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass
+
+from specgen.checks.result import STATUS_WORDS
+from specgen.report.fmt import anchor, num, qty
+
+
+@dataclass(frozen=True)
+class ChapterSpec:
+    path: str
+    title: str
+    order: int
+    template: str
+    fn: Callable
+    in_print: bool = True
+
+
+_CHAPTERS: dict[str, ChapterSpec] = {}
+
+
+def chapter(path: str, title: str, order: int, template: str, in_print: bool = True):
+    """Decorator registering a chapter; two chapters may not claim one path."""
+    def deco(fn):
+        if path in _CHAPTERS:
+            raise ValueError(f"chapter path '{path}' is already registered")
+        _CHAPTERS[path] = ChapterSpec(path, title, order, template, fn, in_print)
+        return fn
+    return deco
+
+
+def chapters() -> list[ChapterSpec]:
+    import specgen.report.builtin_chapters  # noqa: F401 - registers the built-in chapters
+    return sorted(_CHAPTERS.values(), key=lambda c: (c.order, c.path))
+
+
+def badge(status: str) -> str:
+    """HTML for a status badge (our own status words)."""
+    return f'<span class="sg-badge sg-{status}">{STATUS_WORDS[status]}</span>'
+
+
+def sheet_anchor(result) -> str:
+    return "calc-" + anchor(result.code, result.subject)
+
+
+def check_rows(results, page_of_sheets: str = "calculations.md") -> list[dict]:
+    """One row per check result, linking to its calculation sheet."""
+    return [{"code": c.code, "title": c.title, "subject": c.subject, "badge": badge(c.status),
+             "status": c.status, "value": qty(c.value, c.unit), "message": c.message,
+             "href": f"{page_of_sheets}#{sheet_anchor(c)}"} for c in results.checks]
+
+
+def fmt_value(value, unit: str) -> str:
+    return qty(value, unit) if not isinstance(value, str) else value
+
+
+__all__ = ["chapter", "chapters", "badge", "check_rows", "sheet_anchor", "num", "qty", "fmt_value"]

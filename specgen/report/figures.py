@@ -1,0 +1,50 @@
+"""Figures drawn with matplotlib as SVG, reproducibly (fixed hash salt, no date metadata).
+
+matplotlib is imported inside the functions so that ``specgen check`` never loads it.
+"""
+from __future__ import annotations
+
+import io
+
+
+def _pyplot():
+    import matplotlib
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+    matplotlib.rcParams.update({
+        "svg.hashsalt": "specgen", "svg.fonttype": "path", "font.family": "DejaVu Sans",
+        "font.size": 9, "axes.spines.top": False, "axes.spines.right": False,
+    })
+    return plt
+
+
+def to_svg(fig) -> bytes:
+    """Serialise a figure to SVG bytes without a creation date (reproducible output)."""
+    buf = io.BytesIO()
+    fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": "specgen"},
+                bbox_inches="tight")
+    _pyplot().close(fig)
+    return buf.getvalue()
+
+
+BAND_COLOURS = ["#f3ede2", "#e7dcc7", "#d9c8a7", "#c8b087", "#a98f64", "#8a7250"]
+
+
+def band_chart(points: list[tuple[str, float]], bands: list[dict], title: str) -> bytes:
+    """Place each analysis's index on the band scale (one row per analysis)."""
+    plt = _pyplot()
+    fig, ax = plt.subplots(figsize=(7.0, 0.6 + 0.42 * max(1, len(points))))
+    top = max([float(b["high"]) for b in bands] + [v for _, v in points]) * 1.05
+    for i, b in enumerate(bands):
+        lo, hi = float(b["low"]), float(b["high"])
+        ax.axvspan(lo, hi, color=BAND_COLOURS[i % len(BAND_COLOURS)], zorder=0)
+        ax.text((lo + hi) / 2, len(points) - 0.35, b["name"], ha="center", va="bottom",
+                fontsize=7, color="#3b2f22", wrap=True)
+    for y, (label, value) in enumerate(reversed(points)):
+        ax.plot([value], [y], marker="D", color="#1f3a5f", markersize=7, zorder=3)
+        ax.text(value, y + 0.18, f"{value:.3f}", ha="center", fontsize=7.5, color="#1f3a5f")
+    ax.set_yticks(range(len(points)), [p[0] for p in reversed(points)])
+    ax.set_ylim(-0.6, len(points) + 0.1)
+    ax.set_xlim(0, top)
+    ax.set_xlabel(title)
+    return to_svg(fig)

@@ -1,0 +1,33 @@
+"""Math rendered to SVG on the server, so the site and the PDF show the same glyphs
+and neither needs JavaScript.  Each distinct expression becomes one asset file,
+named by the hash of its LaTeX source (so identical inputs give identical files)."""
+from __future__ import annotations
+
+import hashlib
+import re
+from functools import lru_cache
+
+from markupsafe import Markup, escape
+
+
+@lru_cache(maxsize=4096)
+def svg_of(latex: str) -> str:
+    """SVG text of a LaTeX expression (ziamath, STIX Two Math font shipped in the package)."""
+    import ziamath
+    svg = ziamath.Latex(latex, size=18).svg()
+    return re.sub(r"\s+$", "", svg)
+
+
+class MathAssets:
+    """Turns LaTeX into ``<img>`` tags pointing at SVG assets of a page set."""
+
+    def __init__(self, pageset, folder: str = "math"):
+        self.pageset = pageset
+        self.folder = folder
+
+    def img(self, latex: str, depth: int = 0) -> Markup:
+        """An ``<img>`` for ``latex``; ``depth`` is how deep the citing page is in the site."""
+        name = hashlib.sha256(latex.encode("utf-8")).hexdigest()[:16]
+        path = self.pageset.add_asset(f"{self.folder}/{name}.svg", svg_of(latex).encode("utf-8"))
+        prefix = "../" * depth
+        return Markup(f'<img class="sg-math" src="{prefix}{path}" alt="{escape(latex)}">')

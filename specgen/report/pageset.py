@@ -1,0 +1,51 @@
+"""The engine-neutral page set: what render produces and publish consumes."""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+
+@dataclass(frozen=True)
+class NavItem:
+    """One navigation entry: a page title and its path in the page set."""
+
+    title: str
+    path: str
+
+
+@dataclass
+class PageSet:
+    """Pages (path → Markdown text) and assets (path → bytes) plus navigation order.
+
+    Paths are POSIX, relative to the site root (``index.md``, ``figures/ci.svg``).
+    ``print_order`` lists the pages that make up the PDF, in order.
+    """
+
+    pages: dict[str, str] = field(default_factory=dict)
+    assets: dict[str, bytes] = field(default_factory=dict)
+    nav: list[NavItem] = field(default_factory=list)
+    titles: dict[str, str] = field(default_factory=dict)
+
+    def add_page(self, path: str, title: str, text: str) -> None:
+        if path in self.pages:
+            raise ValueError(f"page '{path}' is produced twice")
+        self.pages[path] = text
+        self.titles[path] = title
+        self.nav.append(NavItem(title, path))
+
+    def add_asset(self, path: str, data: bytes) -> str:
+        """Store an asset once; returns its path (identical content may be added again)."""
+        if path in self.assets and self.assets[path] != data:
+            raise ValueError(f"asset '{path}' is produced twice with different content")
+        self.assets[path] = data
+        return path
+
+    def write_to(self, folder) -> None:
+        """Debug aid: write the page set to disk as plain files."""
+        from pathlib import Path
+        root = Path(folder)
+        for path, text in self.pages.items():
+            (root / path).parent.mkdir(parents=True, exist_ok=True)
+            (root / path).write_text(text, encoding="utf-8")
+        for path, data in self.assets.items():
+            (root / path).parent.mkdir(parents=True, exist_ok=True)
+            (root / path).write_bytes(data)

@@ -1,0 +1,104 @@
+"""Stage 4, render: Project + Results → PageSet (Markdown pages, figures, math SVG).
+
+Templates are Jinja2 files producing Markdown, looked up first in the project's
+``templates/`` folder (the project's files win) and then in ``content/templates``.
+Autoescaping is on: every string from the project is HTML-escaped, so a name or
+note can never inject markup or script into the site or the PDF.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import jinja2
+from markupsafe import Markup, escape
+
+from specgen.refdata import CONTENT_DIR
+from specgen.report.chapters import badge, chapters, sheet_anchor
+from specgen.report.fmt import as_given, num, qty
+from specgen.report.mathsvg import MathAssets
+from specgen.report.pageset import PageSet
+from specgen.report.references import Citations
+
+
+def template_env(project_root) -> jinja2.Environment:
+    """Jinja environment: project templates first, then ours."""
+    loaders = []
+    if project_root is not None and (project_root / "templates").is_dir():
+        loaders.append(jinja2.FileSystemLoader(str(project_root / "templates")))
+    loaders.append(jinja2.FileSystemLoader(str(CONTENT_DIR / "templates")))
+    env = jinja2.Environment(loader=jinja2.ChoiceLoader(loaders), autoescape=True,
+                             undefined=jinja2.StrictUndefined, trim_blocks=True,
+                             lstrip_blocks=True, keep_trailing_newline=True)
+    env.filters["num"] = num
+    env.filters["cell"] = lambda v: Markup(str(escape(v)).replace("|", "&#124;").replace("\n", " "))
+    return env
+
+
+@dataclass
+class RenderEnv:
+    """What a chapter function may use while preparing its context."""
+
+    project: object
+    results: object
+    pageset: PageSet
+    math: MathAssets
+    citations: Citations = field(default_factory=Citations)
+    figures: list = field(default_factory=list)
+
+    @property
+    def rules_overridden(self) -> list:
+        from specgen.checks.rules import RuleBook
+        return RuleBook(self.project.dossier.rule_overrides).overridden()
+
+    def figure(self, path: str, svg: bytes, caption: str) -> dict:
+        """Add a figure asset; figures are numbered in order of appearance."""
+        self.pageset.add_asset(path, svg)
+        self.figures.append(path)
+        return {"src": path, "caption": caption, "n": len(self.figures)}
+
+    def cite(self, basis) -> dict | None:
+        if basis.kind != "reference":
+            return None
+        n = self.citations.cite(basis.ref)
+        return {"n": n, "href": f"references.md#ref-{basis.ref}", "clause": basis.clause}
+
+    def sheet(self, c) -> dict:
+        """Context of one calculation sheet, straight from the check result."""
+        steps = [{"title": s.title, "formula": self.math.img(s.formula),
+                  "substituted": self.math.img(s.substituted),
+                  "result": qty(s.result, s.unit), "symbol": s.symbol,
+                  "inputs": [{"symbol": i.symbol, "name": i.name, "value": as_given(i.value),
+                              "unit": i.unit or "—", "source": i.source} for i in s.inputs]}
+                 for s in c.steps]
+        bases = [{"text": b.text(), "cite": self.cite(b), "kind": b.kind} for b in c.basis]
+        limit = None
+        if c.limit:
+            limit = {"text": c.limit.text, "rule": c.limit.rule, "overridden": c.limit.overridden}
+        return {"anchor": sheet_anchor(c), "code": c.code, "title": c.title, "subject": c.subject,
+                "badge": badge(c.status), "message": c.message, "steps": steps, "bases": bases,
+                "limit": limit, "value": qty(c.value, c.unit), "notes": list(c.notes)}
+
+
+def render(project, results) -> PageSet:
+    """Render every registered chapter into a page set (narrative placed by file name)."""
+    pageset = PageSet()
+    env = RenderEnv(project, results, pageset, MathAssets(pageset))
+    jenv = template_env(getattr(project, "root", None))
+    base = {"project": project.dossier.project, "revision": project.revision,
+            "narrative": {}}
+    for spec in chapters():
+        ctx = dict(base, **spec.fn(env), title=spec.title)
+        stem = spec.path.rsplit(".", 1)[0]
+        ctx["narrative"] = _narrative_for(project, "introduction" if stem == "index" else stem)
+        text = jenv.get_template(spec.template).render(**ctx)
+        pageset.add_page(spec.path, spec.title, text)
+    return pageset
+
+
+def _narrative_for(project, name: str) -> Markup:
+    """The specifier's narrative for a page (``narrative/<page>.md``), as trusted Markdown.
+
+    Raw HTML in the narrative is escaped: the specifier writes Markdown, not markup.
+    """
+    text = project.narrative.get(name)
+    return Markup(escape(text)) if text else Markup("")

@@ -1,0 +1,31 @@
+"""Plain-text table of check results for the terminal."""
+from __future__ import annotations
+
+import shutil
+
+from specgen.checks.result import STATUS_WORDS
+
+
+def _fmt(value, unit: str) -> str:
+    if value is None:
+        return "—"
+    if isinstance(value, float):
+        value = f"{value:.4g}"
+    return f"{value} {unit}".strip()
+
+
+def table(results) -> str:
+    """One line per check: code, subject, status word, value, finding (cut to the terminal)."""
+    width = shutil.get_terminal_size((120, 20)).columns
+    rows = [("CHECK", "SUBJECT", "STATUS", "VALUE", "FINDING")]
+    rows += [(c.code, c.subject, STATUS_WORDS[c.status], _fmt(c.value, c.unit), c.message)
+             for c in results.checks]
+    widths = [max(len(r[i]) for r in rows) for i in range(4)]
+    lines = []
+    for r in rows:
+        line = "  ".join(r[i].ljust(widths[i]) for i in range(4)) + "  " + r[4]
+        lines.append(line if len(line) <= width else line[: width - 1] + "…")
+    counts = ", ".join(f"{n} {STATUS_WORDS[s]}" for s, n in results.counts().items() if n)
+    lines.append("")
+    lines.append(f"{results.project_code} revision {results.revision}: {counts or 'no checks ran'}")
+    return "\n".join(lines)

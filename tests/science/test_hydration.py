@@ -1,0 +1,130 @@
+"""Hydration volume bookkeeping and Powers' model."""
+import periodictable
+import pytest
+
+from specgen import refdata
+from specgen.science.hydration import (
+    BELITE_HYDRATION, POZZOLANIC, Reaction, check_balanced, csh_density_sensitivity, powers,
+    reaction_balance, water_for_full_hydration)
+from specgen.science.oxides import ChemistryInputError
+
+AW = refdata.load("atomic_weights").data
+SETS = refdata.load("cement_densities").data
+BENTZ = SETS["bentz_nist"]["values"]            # Bentz, NIST chemical-shrinkage tables
+PRACTICE = SETS["rounded_practice"]["values"]   # common practice, C-S-H about 2.0 g/cm3
+
+
+def test_reactions_balance():
+    check_balanced(BELITE_HYDRATION, AW)
+    check_balanced(POZZOLANIC, AW)
+    wrong = Reaction("C2S + 4 H -> C1.7SH4 + 0.3 CH", (("C2S", 1.0), ("H", 4.0)),
+                     (("C1.7SH4", 1.0), ("CH", 0.3)))
+    with pytest.raises(ChemistryInputError, match="does not balance"):
+        check_balanced(wrong, AW)
+
+
+def test_belite_volumes_bentz_set():
+    # By hand, cm3/mol (periodictable-consistent molar masses, Bentz densities g/cm3):
+    #   C2S 172.24/3.28 = 52.51; water 4.3*18.015/0.9971 = 77.69;
+    #   C1.7SH4 227.47/2.11 = 107.81; CH 0.3*74.09/2.24 = 9.92
+    #   shrinkage (130.20 - 117.73)/130.20 = 9.58 %  (DOMAIN primer: ~9.6 %, computed)
+    #   solid volume (117.73 - 52.51)/52.51 = +124.2 %  (DOMAIN primer: ~+124 %, computed)
+    bal = reaction_balance(BELITE_HYDRATION, AW, BENTZ)
+    assert -bal.volumes["C2S"] * 1e6 == pytest.approx(52.51, abs=0.01)
+    assert bal.volumes["C1.7SH4"] * 1e6 == pytest.approx(107.81, abs=0.01)
+    assert bal.chemical_shrinkage == pytest.approx(0.0958, abs=0.001)
+    assert bal.solid_volume_increase == pytest.approx(1.242, abs=0.005)
+
+
+def test_belite_volumes_rule_of_thumb():
+    # Common practice: with C-S-H ~2.0 g/cm3, 1 C2S + 1.5 water -> 2.2 C-S-H + 0.2 CH by
+    # volume, chemical shrinkage ~4.5 %, solid volume ~+140 %.  The rule comes from the
+    # rounded volumes (2.5 -> 2.4), so tolerances: volumes +-0.05, shrinkage +-0.5 points,
+    # solid volume +-5 points (computed: 4.6 %, +137 %).
+    bal = reaction_balance(BELITE_HYDRATION, AW, PRACTICE)
+    rel = bal.relative
+    assert (rel["C2S"], rel["H"], rel["C1.7SH4"], rel["CH"]) == pytest.approx(
+        (1.0, 1.5, 2.2, 0.2), abs=0.05)
+    assert bal.chemical_shrinkage == pytest.approx(0.045, abs=0.005)
+    assert bal.solid_volume_increase == pytest.approx(1.40, abs=0.05)
+
+
+def test_water_and_lime_per_kg_c2s():
+    # By hand (periodictable masses): water 4.3*18.015/172.24 = 0.4498 kg/kg C2S;
+    # CH 0.3*74.09/172.24 = 0.1290 kg/kg.  Independent of densities.
+    bal = reaction_balance(BELITE_HYDRATION, AW, BENTZ)
+    m = lambda f: periodictable.formula(f).mass  # noqa: E731
+    assert bal.water_per_kg == pytest.approx(4.3 * m("H2O") / m("Ca2SiO4"), rel=1e-4)
+    assert bal.ch_per_kg == pytest.approx(0.3 * m("Ca(OH)2") / m("Ca2SiO4"), rel=1e-4)
+    # A binder of 70 % C2S (the rest taken as inert): 0.7*0.4498 = 0.3148 kg/kg.
+    water = water_for_full_hydration({"C2S": 0.7, "amorphous": 0.3}, {"C2S": bal})
+    assert water == pytest.approx(0.3148, abs=2e-4)
+
+
+def test_pozzolanic_reaction_gains_less_solid_volume():
+    # Common practice: a lime-pozzolan reaction adds roughly a third to the solid volume,
+    # far less than belite hydration.  By hand (practice set): solids 1.7*74.09/2.24 +
+    # 60.08/2.2 = 56.23 + 27.31 = 83.54 -> 113.74 cm3: +36 %.
+    for densities in (PRACTICE, BENTZ):
+        poz = reaction_balance(POZZOLANIC, AW, densities)
+        assert poz.solid_volume_increase == pytest.approx(1 / 3, abs=0.06)
+        assert poz.solid_volume_increase < reaction_balance(
+            BELITE_HYDRATION, AW, densities).solid_volume_increase
+        assert poz.ch_per_kg < 0  # portlandite is consumed
+
+
+def test_csh_density_sensitivity():
+    cases = csh_density_sensitivity(BELITE_HYDRATION, AW, BENTZ, [2000.0, 2110.0])
+    assert cases[1].chemical_shrinkage == pytest.approx(
+        reaction_balance(BELITE_HYDRATION, AW, BENTZ).chemical_shrinkage)
+    # a lighter C-S-H fills more space: less shrinkage, more solid volume
+    assert cases[0].chemical_shrinkage < cases[1].chemical_shrinkage
+    assert cases[0].solid_volume_increase > cases[1].solid_volume_increase
+
+
+@pytest.mark.parametrize("wc, alpha", [(0.4, 0.6), (0.5, 1.0), (0.6, 0.8), (0.7, 0.5)])
+def test_powers_reduces_to_portland_form(wc, alpha):
+    # Powers & Brownyard form for Portland cement (from memory):
+    #   p = (w/c - 0.36 a)/(w/c + 0.32),  X = 0.68 a/(0.32 a + w/c)
+    # with cement 3.15 g/cm3 and 0.68 cm3 of gel per g hydrated; tolerance 0.005 covers
+    # the rounding of 0.36 and 0.32 (exactly 0.3625 and 0.3175 here).
+    state = powers(wc, alpha, 3150.0, 0.68e-3, 1000.0)
+    assert state.capillary_porosity == pytest.approx((wc - 0.36 * alpha) / (wc + 0.32), abs=0.005)
+    assert state.gel_space_ratio == pytest.approx(0.68 * alpha / (0.32 * alpha + wc), abs=0.005)
+    assert not state.space_limited
+
+
+def test_powers_space_limit():
+    # w/c 0.30: hydration stops when capillary space is filled, at
+    # a = 0.30/(0.68 - 0.3175) = 0.828 (same Powers assumptions as above).
+    state = powers(0.30, 1.0, 3150.0, 0.68e-3, 1000.0)
+    assert state.space_limited and state.max_degree == pytest.approx(0.828, abs=1e-3)
+    assert state.capillary_porosity == pytest.approx(0.0, abs=1e-12)
+    assert state.gel_space_ratio == pytest.approx(1.0)
+
+
+def test_powers_with_belite_bookkeeping():
+    bal = reaction_balance(BELITE_HYDRATION, AW, BENTZ)
+    # solid products 117.73 cm3 per 172.24 g C2S = 0.6835 cm3/g (by hand, Bentz set)
+    assert bal.product_volume_per_kg * 1e3 == pytest.approx(0.6835, abs=2e-4)
+    low, high = (powers(wb, 1.0, BENTZ["C2S"], bal.product_volume_per_kg, BENTZ["H"])
+                 for wb in (0.45, 0.8))
+    assert 0 < low.capillary_porosity < high.capillary_porosity
+
+
+@pytest.mark.parametrize("args, message", [
+    ((0.5, 1.2, 3150.0, 0.68e-3, 1000.0), "degree of hydration"),
+    ((0.0, 0.5, 3150.0, 0.68e-3, 1000.0), "w/b must be a positive"),
+    ((0.5, 0.5, -1.0, 0.68e-3, 1000.0), "binder density"),
+    ((0.5, float("nan"), 3150.0, 0.68e-3, 1000.0), "degree of hydration"),
+])
+def test_powers_bad_input(args, message):
+    with pytest.raises(ChemistryInputError, match=message):
+        powers(*args)
+
+
+def test_density_set_must_be_complete():
+    with pytest.raises(ChemistryInputError, match="'CH'"):
+        reaction_balance(BELITE_HYDRATION, AW, {k: v for k, v in BENTZ.items() if k != "CH"})
+    with pytest.raises(ChemistryInputError, match="mass fraction"):
+        water_for_full_hydration({"C2S": 1.5}, {})

@@ -1,0 +1,104 @@
+"""End-to-end: the demo project built once (session fixture), read as its users would."""
+from __future__ import annotations
+
+import json
+import shutil
+
+import pytest
+
+pytestmark = pytest.mark.e2e
+
+CHROMIUM = shutil.which("chromium") or "/usr/bin/chromium"
+
+
+def test_revision_layout(demo_build):
+    rev = demo_build / "R1"
+    for name in ("index.html", "calculations.html", "composition.html", "results.json",
+                 "manifest.json", "WEP-2026-R1.pdf"):
+        assert (rev / name).is_file(), name
+    versions = json.loads((demo_build / "versions.json").read_text())
+    assert versions[0]["version"] == "R1" and versions[0]["aliases"] == ["current"]
+    assert 'url=R1/index.html' in (demo_build / "index.html").read_text()
+
+
+def test_results_json_names_and_units(demo_build):
+    data = json.loads((demo_build / "R1" / "results.json").read_text())
+    q = data["quantities"]["NC1-A"]
+    # by hand: (2.8*21.5 + 1.1*8.1 + 0.7*4.2)/(57.9 + 1.4*2.3) = 72.05/61.12 = 1.17883
+    assert q["cementation_index"]["value"] == pytest.approx(1.17883, abs=1e-4)
+    assert q["cementation_index"]["unit"] == ""
+    assert q["loss_on_ignition"] == {"value": 3.2, "unit": "%", "label": "loss on ignition"}
+    assert {c["code"] for c in data["checks"]} >= {"CHEM-CLOSURE", "CHEM-CI"}
+
+
+def test_manifest_hashes_match_files(demo_build):
+    import hashlib
+    rev = demo_build / "R1"
+    manifest = json.loads((rev / "manifest.json").read_text())
+    for path, digest in manifest["outputs"].items():
+        assert hashlib.sha256((rev / path).read_bytes()).hexdigest() == digest, path
+    assert "dossier.yaml" in manifest["inputs"]
+
+
+def test_calculation_sheet_in_site(demo_build):
+    html = (demo_build / "R1" / "calculations.html").read_text()
+    assert 'id="calc-chem-ci-nc1-a"' in html
+    assert "CHEM-CI · NC1-A — Cementation index" in html
+    assert 'alt="CI = \\frac{2.8\\,S + 1.1\\,A + 0.7\\,F}{C + 1.4\\,M}"' in html
+    assert "2.8 \\times 21.50" in html             # substituted values
+    assert "Result: <strong>CI = 1.179</strong>" in html
+    assert 'href="references.html#ref-eckel1922"' in html
+
+
+def test_site_makes_no_outside_request(demo_build):
+    for page in (demo_build / "R1").glob("*.html"):
+        text = page.read_text()
+        for bad in ("https://fonts.", "unpkg.com", "cdn.jsdelivr", "googletagmanager"):
+            assert bad not in text, (page.name, bad)
+
+
+def test_pdf_text_and_structure(demo_build):
+    from pypdf import PdfReader
+    reader = PdfReader(str(demo_build / "R1" / "WEP-2026-R1.pdf"))
+    text = "\n".join(p.extract_text() for p in reader.pages)
+    for needle in ("CHEM-CLOSURE", "CHEM-CI", "Revision R1", "Calculation sheets",
+                   "does not replace", "Eckel", "page 2 of"):
+        assert needle in text, needle
+    assert reader.metadata.title.startswith("Repair of the East Pier masonry")
+    top = [o.title for o in reader.outline if not isinstance(o, list)]
+    assert top[0].startswith("Repair of the East Pier")  # the summary page carries the title
+    assert {"Scope and zones of work", "Binder composition", "Calculation sheets",
+            "Cautions", "References", "Input files"} <= set(top)
+    names = set(reader.attachments)
+    assert {"results.json", "input/dossier.yaml", "input/lab/strength.csv"} <= names
+
+
+def test_pages_in_real_browser(demo_build):
+    """Every page loads in Debian's Chromium with no console error and no outside request."""
+    playwright = pytest.importorskip("playwright.sync_api")
+    if not shutil.which("chromium"):
+        pytest.skip("Debian chromium is not installed")
+    rev = demo_build / "R1"
+    errors, outside = [], []
+    with playwright.sync_playwright() as pw:
+        browser = pw.chromium.launch(executable_path=CHROMIUM, args=[
+            "--no-sandbox", "--disable-gpu", "--disable-background-networking",
+            "--disable-component-update", "--disable-sync", "--no-first-run"])
+        page = browser.new_page()
+        page.on("console", lambda m: errors.append(m.text) if m.type == "error" else None)
+        page.on("request", lambda r: outside.append(r.url)
+                if not r.url.startswith(("file:", "data:", "blob:")) else None)
+        for html in sorted(rev.glob("*.html")):
+            if html.name == "404.html":
+                continue
+            page.goto(html.as_uri())
+            page.wait_for_load_state("load")
+            assert page.title(), html.name
+        page.goto((rev / "index.html").as_uri())
+        body = page.inner_text("body")
+        shot = page.screenshot(full_page=True)
+        browser.close()
+    assert not errors, errors
+    assert not outside, outside
+    assert "Status of the checks" in body and "CHEM-CI" in body
+    assert len(shot) > 20_000  # a blank page compresses to a few kB
