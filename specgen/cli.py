@@ -97,6 +97,23 @@ def serve(directory: Path, port: int) -> None:
         _fail(exc)
 
 
+@cli.command()
+@click.option("--format", "fmt", type=click.Choice(["table", "markdown"]), default="table",
+              show_default=True)
+def names(fmt: str) -> None:
+    """List every results.json quantity name with its unit and meaning."""
+    from specgen.checks.registry import quantity_names
+    rows = quantity_names()
+    if fmt == "markdown":
+        click.echo("| name | unit | meaning |\n|---|---|---|")
+        for q in rows:
+            click.echo(f"| `{q.name}` | {q.unit or '—'} | {q.description} |")
+        return
+    width = max(len(q.name) for q in rows)
+    for q in rows:
+        click.echo(f"{q.name.ljust(width)}  {(q.unit or '-').ljust(8)}  {q.description}")
+
+
 def main() -> None:
     """Console entry point."""
     cli(prog_name="specgen")

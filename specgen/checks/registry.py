@@ -69,3 +69,39 @@ def as_list(out) -> list:
     if isinstance(out, Iterable) and not hasattr(out, "code"):
         return list(out)
     return [out]
+
+
+@dataclass(frozen=True)
+class QuantityName:
+    """A documented name of results.json: stable snake_case, unit shown, meaning."""
+
+    name: str
+    unit: str
+    description: str
+    module: str
+
+
+_NAMES: dict[str, QuantityName] = {}
+
+
+def declare(name: str, unit: str, description: str) -> None:
+    """Declare a results.json quantity name (once; same name with another unit is refused)."""
+    import inspect
+    import re
+    if not re.fullmatch(r"[a-z][a-z0-9_]*", name):
+        raise ValueError(f"quantity name '{name}' must be snake_case")
+    module = inspect.stack()[1].frame.f_globals.get("__name__", "")
+    old = _NAMES.get(name)
+    if old and (old.unit, old.description) != (unit, description):
+        raise DuplicateCheckCode(f"quantity '{name}' is declared twice ({old.module}, {module})")
+    _NAMES[name] = QuantityName(name, unit, description, module)
+
+
+def quantity_names() -> list[QuantityName]:
+    """Every declared results.json name, sorted."""
+    load_builtin()
+    return sorted(_NAMES.values(), key=lambda q: q.name)
+
+
+def is_declared(name: str) -> bool:
+    return name in _NAMES

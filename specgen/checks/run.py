@@ -9,7 +9,7 @@ import json
 from dataclasses import dataclass, field
 
 from specgen import __version__
-from specgen.checks.registry import as_list, checks
+from specgen.checks.registry import as_list, checks, is_declared
 from specgen.checks.result import STATUSES, CheckResult, Quantity
 from specgen.checks.rules import RuleBook
 
@@ -91,6 +91,9 @@ def evaluate(project) -> Results:
             subjects[sid] = spec.subject_kind
             for res in as_list(spec.fn(subject, ctx)):
                 for q in res.quantities:
+                    if not is_declared(q.name):
+                        raise ValueError(f"check {spec.code} records undeclared quantity "
+                                         f"'{q.name}': declare() it in {spec.fn.__module__}")
                     ctx.record(res.subject, q)
                 out.append(res)
     return Results(project.dossier.project.code, project.revision.code, out, ctx.quantities,

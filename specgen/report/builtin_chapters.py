@@ -1,7 +1,7 @@
 """The dossier's built-in chapters (summary, scope, composition, sheets, cautions, ...)."""
 from __future__ import annotations
 
-from specgen.checks.composition import oxide_order
+from specgen.checks.composition_checks import oxide_order
 from specgen.report.cautions import cautions_for
 from specgen.report.chapters import badge, chapter, check_rows, sheet_anchor
 from specgen.report.fmt import num, qty

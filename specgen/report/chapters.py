@@ -37,7 +37,14 @@ def chapter(path: str, title: str, order: int, template: str, in_print: bool = T
 
 
 def chapters() -> list[ChapterSpec]:
-    import specgen.report.builtin_chapters  # noqa: F401 - registers the built-in chapters
+    """Registered chapters in order; importing every ``*_chapters`` module registers ours."""
+    import importlib
+    import pkgutil
+
+    import specgen.report as pkg
+    for info in sorted(pkgutil.iter_modules(pkg.__path__), key=lambda m: m.name):
+        if info.name.endswith("_chapters"):
+            importlib.import_module(f"specgen.report.{info.name}")
     return sorted(_CHAPTERS.values(), key=lambda c: (c.order, c.path))
 
 

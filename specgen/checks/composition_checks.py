@@ -1,9 +1,14 @@
 """Checks on oxide analyses: closure and the cementation index."""
 from __future__ import annotations
 
-from specgen.checks.registry import register
+from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Limit, Quantity, Step
 from specgen.science import oxides
+
+declare("analysis_total", "%", "sum of the reported constituents of an analysis, LOI included")
+declare("loss_on_ignition", "%", "loss on ignition as reported (mass %)")
+declare("cementation_index", "", "Eckel cementation index (2.8S + 1.1A + 0.7F)/(C + 1.4M)")
+declare("hydraulicity_class", "", "band of the cementation index (Eckel's bands via Boynton)")
 
 ECKEL = Basis("reference", "eckel1922", "cementation index, as reproduced in Boynton (1980)")
 CI_TERMS = (("S", "SiO2", 2.8), ("A", "Al2O3", 1.1), ("F", "Fe2O3", 0.7))
