@@ -102,3 +102,31 @@ def test_pages_in_real_browser(demo_build):
     assert not outside, outside
     assert "Status of the checks" in body and "CHEM-CI" in body
     assert len(shot) > 20_000  # a blank page compresses to a few kB
+
+
+def test_search_finds_a_known_term_offline(demo_build):
+    """The vendored search shim lets search work from the folder (file://)."""
+    playwright = pytest.importorskip("playwright.sync_api")
+    if not shutil.which("chromium"):
+        pytest.skip("Debian chromium is not installed")
+    with playwright.sync_playwright() as pw:
+        browser = pw.chromium.launch(executable_path=CHROMIUM, args=[
+            "--no-sandbox", "--disable-gpu", "--disable-background-networking"])
+        page = browser.new_page()
+        page.goto((demo_build / "R1" / "index.html").as_uri())
+        page.fill("input.md-search__input", "Blackscar")
+        page.wait_for_selector(".md-search-result__item", timeout=15000)
+        meta = page.inner_text(".md-search-result__meta")
+        browser.close()
+    assert "matching document" in meta
+
+
+def test_two_builds_are_byte_identical(demo_build, tmp_path):
+    from specgen.build import build
+    from tests.conftest import DEMO
+    again = build(DEMO, tmp_path)
+    first = demo_build / "R1"
+    names = sorted(p.relative_to(first).as_posix() for p in first.rglob("*") if p.is_file())
+    assert names == sorted(p.relative_to(again).as_posix() for p in again.rglob("*") if p.is_file())
+    for name in names:
+        assert (first / name).read_bytes() == (again / name).read_bytes(), name

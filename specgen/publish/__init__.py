@@ -37,7 +37,7 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
             attachments[f"input/{f.path}"] = (project.root / f.path).read_bytes()
         ident = hashlib.sha256(f"{project.dossier.project.code}/{rev.code}".encode()).digest()[:16]
         write_pdf(pages, html, staging / pdf_name(project), attachments=attachments,
-                  page_size=page_size, identifier=ident)
+                  page_size=page_size, identifier=ident, stamp=_stamp(rev.date))
         write_manifest(staging, project.inputs, {
             "project": project.dossier.project.code, "revision": rev.code,
             "status": rev.status, "date": rev.date.isoformat(), "format": "specgen-manifest/1"})
@@ -49,6 +49,11 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
         raise
     update_versions(out)
     return target
+
+
+def _stamp(date):
+    import datetime as dt
+    return dt.datetime(date.year, date.month, date.day, tzinfo=dt.timezone.utc)
 
 
 def _print_context(project) -> dict:

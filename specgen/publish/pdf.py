@@ -81,13 +81,18 @@ def _fetcher(pageset):
 
 
 def write_pdf(pageset, html: str, target, *, attachments: dict[str, bytes], page_size: str = "a4",
-              identifier: bytes | None = None) -> None:
-    """Render ``html`` to a PDF/A-3b at ``target`` with ``attachments`` embedded."""
+              identifier: bytes | None = None, stamp=None) -> None:
+    """Render ``html`` to a PDF/A-3b at ``target`` with ``attachments`` embedded.
+
+    ``stamp`` (a datetime, the revision date) dates the attachments, so identical
+    inputs give a byte-identical PDF.
+    """
     import weasyprint
     css = (PRINT_DIR / "print.css").read_text(encoding="utf-8")
     css = css.replace("size: A4;", f"size: {PAGE_SIZES[page_size]};", 1)
     doc = weasyprint.HTML(string=html, base_url=BASE, url_fetcher=_fetcher(pageset))
-    files = [weasyprint.Attachment(string=data, name=name, description=name)
+    files = [weasyprint.Attachment(string=data, name=name, description=name,
+                                   created=stamp, modified=stamp)
              for name, data in sorted(attachments.items())]
     doc.write_pdf(target, stylesheets=[weasyprint.CSS(string=css)], attachments=files,
                   pdf_variant="pdf/a-3b", pdf_identifier=identifier, custom_metadata=True)
