@@ -3,6 +3,11 @@
 ``build()`` is what ``specgen build`` runs; ``check()`` stops after the checks.
 Only ``build()`` imports the rendering and publishing stages (and with them
 matplotlib, MkDocs and WeasyPrint), so ``specgen check`` stays light.
+
+A project folder may keep the inputs of its earlier issued revisions under
+``issued/<revision>/`` (each a complete project folder as it was issued); a build
+first builds any of those missing from the output folder, oldest first, so the
+full revision history can be published anywhere from the project alone.
 """
 from __future__ import annotations
 
@@ -12,7 +17,9 @@ from collections.abc import Callable
 from pathlib import Path
 
 from specgen.checks.run import Results, evaluate
+from specgen.errors import InputErrors, Problem
 from specgen.project import Project, load_project
+from specgen.project.load import ARCHIVE_DIR
 
 
 def check(project_dir: Path | str) -> tuple[Project, Results]:
@@ -27,17 +34,59 @@ def _quiet(step: str) -> None:
 
 def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str = "a4",
           progress: Callable[[str], None] = _quiet) -> Path:
-    """Build the project's revision into ``out_dir/<revision>/``; returns that folder."""
+    """Build the project's revision (and missing archived ones) into ``out_dir/<revision>/``."""
     progress("load: reading and validating the project folder")
     project = load_project(project_dir)
+    archived = _load_archive(Path(project_dir), project)
+    out = Path(out_dir)
+    for old in archived:
+        if not (out / old.revision.code / "manifest.json").is_file():
+            progress(f"revision {old.revision.code} (issued, from {ARCHIVE_DIR}/)")
+            _build_one(old, out, page_size, progress)
+    return _build_one(project, out, page_size, progress)
+
+
+def _build_one(project: Project, out: Path, page_size: str, progress) -> Path:
+    from specgen.publish import publish
+    from specgen.publish.history import history_for
+    from specgen.report.render import render
     progress("check: running the checks")
     results = evaluate(project)
-    from specgen.publish import publish
-    from specgen.report.render import render
+    history = history_for(out, project, results)
     progress("render: pages, figures and calculation sheets")
-    pages = render(project, results)
+    pages = render(project, results, history)
     _fix_dates(project.revision.date)
-    return publish(project, results, pages, Path(out_dir), page_size=page_size, progress=progress)
+    return publish(project, results, pages, out, page_size=page_size, progress=progress,
+                   changes=history.changes)
+
+
+def _load_archive(root: Path, current: Project) -> list[Project]:
+    """The archived issued revisions, validated, oldest first."""
+    folder = root / ARCHIVE_DIR
+    if not folder.is_dir():
+        return []
+    problems, found = [], []
+    for sub in sorted(p for p in folder.iterdir() if p.is_dir()):
+        try:
+            old = load_project(sub)
+        except InputErrors as exc:
+            problems += [Problem(f"{ARCHIVE_DIR}/{sub.name}/{p.file}", p.message, p.line, p.row,
+                                 p.field, p.fix) for p in exc.problems]
+            continue
+        where = f"{ARCHIVE_DIR}/{sub.name}/dossier.yaml"
+        if old.revision.code != sub.name or old.revision.status != "issued":
+            problems.append(Problem(where, f"holds revision '{old.revision.code}' "
+                                    f"({old.revision.status}); an archive folder holds the issued "
+                                    "revision it is named after.", field="revision",
+                                    fix=f"set code: {sub.name} and status: issued, or rename the folder."))
+        if old.revision.code.lower() == current.revision.code.lower():
+            problems.append(Problem("dossier.yaml", f"revision '{current.revision.code}' is already "
+                                    f"issued in {ARCHIVE_DIR}/{sub.name}/.", field="revision.code",
+                                    fix="raise a new revision code for the current inputs."))
+        found.append(old)
+    if problems:
+        raise InputErrors(problems)
+    return sorted(found, key=lambda p: (p.revision.date, p.revision.code))
 
 
 def _fix_dates(date: dt.date) -> None:

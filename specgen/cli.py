@@ -98,6 +98,41 @@ def serve(directory: Path, port: int) -> None:
 
 
 @cli.command()
+@click.argument("out", type=click.Path(file_okay=False, path_type=Path))
+@click.option("--from", "old", required=True, help="earlier revision code")
+@click.option("--to", "new", required=True, help="later revision code")
+@click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text",
+              show_default=True)
+def diff(out: Path, old: str, new: str, fmt: str) -> None:
+    """Print what changed between two revisions built into OUT."""
+    from specgen.publish.history import as_text, between
+    try:
+        changes = between(out, old, new)
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(json.dumps(changes, indent=2, sort_keys=True) if fmt == "json" else as_text(changes))
+
+
+@cli.command()
+@click.argument("revision_dir", type=click.Path(file_okay=False, path_type=Path))
+def verify(revision_dir: Path) -> None:
+    """Check a built revision against its manifest (exit 1 on any difference)."""
+    from specgen.publish.output import verify as run_verify
+    try:
+        report = run_verify(revision_dir)
+    except SpecgenError as exc:
+        _fail(exc)
+    bad = False
+    for kind in ("modified", "missing", "extra"):
+        for path in report[kind]:
+            bad = True
+            click.echo(f"{kind}: {path}")
+    click.echo(f"{revision_dir}: " + ("does NOT match its manifest" if bad
+                                      else "every file matches its manifest"))
+    sys.exit(1 if bad else 0)
+
+
+@cli.command()
 @click.option("--format", "fmt", type=click.Choice(["table", "markdown"]), default="table",
               show_default=True)
 def names(fmt: str) -> None:

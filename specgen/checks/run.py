@@ -39,6 +39,8 @@ class Results:
     checks: list[CheckResult]
     quantities: dict[str, dict[str, Quantity]]
     subjects: dict[str, str]  # subject id → kind
+    specimens: dict[str, dict] = field(default_factory=dict)  # lab results by specimen id
+    comments: list[dict] = field(default_factory=list)        # review comments, as given
 
     def counts(self) -> dict[str, int]:
         """Number of results per status, in severity order."""
@@ -62,6 +64,8 @@ class Results:
                                for n, q in sorted(qs.items())}
                            for s, qs in sorted(self.quantities.items())},
             "subjects": dict(sorted(self.subjects.items())),
+            "specimens": dict(sorted(self.specimens.items())),
+            "comments": self.comments,
         }
 
     def to_json(self) -> str:
@@ -96,5 +100,8 @@ def evaluate(project) -> Results:
                                          f"'{q.name}': declare() it in {spec.fn.__module__}")
                     ctx.record(res.subject, q)
                 out.append(res)
+    specimens = {r.specimen: {"mix": r.mix, "test": r.test, "age_d": round(r.age / 86400, 6),
+                              "value_MPa": round(r.value / 1e6, 6)} for r in project.strength}
+    comments = [c.model_dump(mode="json") for c in project.comments]
     return Results(project.dossier.project.code, project.revision.code, out, ctx.quantities,
-                   subjects)
+                   subjects, specimens, comments)

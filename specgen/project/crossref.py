@@ -74,6 +74,39 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
                     fix="check for a mistyped value, a missing LOI, or values not in mass %.")
     if mixes is not SKIP:
         _strength_refs(project.strength, mixes, log)
+    _comment_refs(project, located.get("comments.yaml"), log)
+
+
+# Pages a comment may name (the stems of the dossier's chapter files).
+PAGES = ("index", "summary", "scope", "composition", "strength", "compatibility", "works",
+         "specification", "calculations", "cautions", "references", "history", "changes",
+         "comments", "inputs")
+
+
+def _comment_refs(project, located, log: ProblemLog) -> None:
+    """A comment must name an existing check code (optionally /subject) or a page."""
+    from specgen.checks.registry import checks
+    codes = {s.code for s in checks()}
+    for i, c in enumerate(project.comments):
+        if c.status == "closed" and not c.closed_in:
+            log.add("comments.yaml", f"comment '{c.id}' is closed but says not in which revision.",
+                    line=located.line_of(("comments", i)) if located else None,
+                    field=f"comments[{i}].closed_in", fix="add 'closed_in: <revision>'.")
+        code, _, subject = c.about.partition("/")
+        if c.about in PAGES or (code in codes and (not subject or subject in _subjects(project))):
+            continue
+        hint = did_you_mean(c.about, sorted(codes) + list(PAGES))
+        log.add("comments.yaml", f"comment '{c.id}' is about '{c.about}', which is neither a check "
+                "code nor a page of the dossier.",
+                line=located.line_of(("comments", i, "about")) if located else None,
+                field=f"comments[{i}].about",
+                fix=hint or f"use a check code ({', '.join(sorted(codes))}) or a page "
+                            f"({', '.join(PAGES)}).")
+
+
+def _subjects(project) -> set[str]:
+    return (set(project.analyses) | set(project.binders) | set(project.mixes)
+            | {z.id for z in project.dossier.zones} | {project.dossier.project.code})
 
 
 def _strength_refs(results, mixes: dict, log: ProblemLog) -> None:

@@ -19,7 +19,9 @@ DOCUMENTS: dict[str, tuple[type[BaseModel], bool]] = {
     "analyses.yaml": (schema.AnalysesFile, False),
     "materials.yaml": (schema.MaterialsFile, False),
     "mixes.yaml": (schema.MixesFile, False),
+    "comments.yaml": (schema.CommentsFile, False),
 }
+ARCHIVE_DIR = "issued"  # issued/<revision>/: the inputs of earlier issued revisions
 STRENGTH_FILE = "lab/strength.csv"
 NARRATIVE_DIR = "narrative"
 # An analysis whose total is this far from 100 % is a transcription or unit error, not chemistry.
@@ -49,6 +51,7 @@ class Project:
     mixes: dict[str, schema.Mix] = field(default_factory=dict)
     strength: list[StrengthResult] = field(default_factory=list)
     narrative: dict[str, str] = field(default_factory=dict)
+    comments: list[schema.Comment] = field(default_factory=list)
     inputs: list[InputFile] = field(default_factory=list)
 
     @property
@@ -169,6 +172,8 @@ def _assemble(root: Path, docs: dict, strength: list, log: ProblemLog) -> Projec
         p.sands = _index(mat.sands, "sand", "materials.yaml", log)
     if mx := docs.get("mixes.yaml"):
         p.mixes = _index(mx.mixes, "mix", "mixes.yaml", log)
+    if cm := docs.get("comments.yaml"):
+        p.comments = list(_index(cm.comments, "comment", "comments.yaml", log).values())
     narrative_dir = root / NARRATIVE_DIR
     if narrative_dir.is_dir():
         from specgen.project.files import read_text
@@ -177,6 +182,7 @@ def _assemble(root: Path, docs: dict, strength: list, log: ProblemLog) -> Projec
             if text is not None:
                 p.narrative[md.stem] = text
     for path in sorted(root.rglob("*")):
-        if path.is_file() and not any(part.startswith(".") for part in path.relative_to(root).parts):
+        parts = path.relative_to(root).parts
+        if path.is_file() and parts[0] != ARCHIVE_DIR and not any(x.startswith(".") for x in parts):
             p.inputs.append(_hash(path, path.relative_to(root).as_posix()))
     return p

@@ -200,3 +200,23 @@ class Mix(Model):
 
 class MixesFile(Model):
     mixes: list[Mix] = Field(default_factory=list)
+
+
+# --------------------------------------------------------------- comments.yaml
+class Comment(Model):
+    """One review comment and the specifier's response."""
+
+    id: Id = Field(description="comment identifier, e.g. C1")
+    raised_in: Annotated[str, Field(pattern=r"^[A-Za-z0-9][A-Za-z0-9._-]{0,19}$",
+                                    description="revision in which it was raised")]
+    about: Text = Field(description="check code (CODE or CODE/subject) or page (e.g. composition)")
+    reviewer_role: Text = Field(description="role of the reviewer, e.g. heritage officer")
+    text: Text = Field(description="the comment")
+    status: Literal["open", "closed"] = Field("open", description="open or closed")
+    response: Text = Field("", description="the specifier's response")
+    closed_in: Annotated[str, Field(pattern=r"^[A-Za-z0-9][A-Za-z0-9._-]{0,19}$")] | None = Field(
+        None, description="revision in which it was closed")
+
+
+class CommentsFile(Model):
+    comments: list[Comment] = Field(default_factory=list, description="review comments")

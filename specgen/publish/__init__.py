@@ -17,7 +17,7 @@ def pdf_name(project) -> str:
 
 
 def publish(project, results, pages, out: Path, *, page_size: str = "a4",
-            progress=lambda s: None) -> Path:
+            progress=lambda s: None, changes: dict | None = None) -> Path:
     """Write site + PDF + results.json into a staging folder, then move it into place."""
     from specgen.publish.pdf import to_html, write_pdf
     from specgen.publish.site import build_site
@@ -31,6 +31,11 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
         progress("publish: PDF")
         results_json = results.to_json().encode("utf-8")
         (staging / "results.json").write_bytes(results_json)
+        if changes is not None:
+            import json
+            (staging / "changes.json").write_text(
+                json.dumps(changes, indent=2, sort_keys=True, ensure_ascii=False) + "\n",
+                encoding="utf-8")
         html = to_html(pages, _print_context(project))
         attachments = {"results.json": results_json}
         for f in project.inputs:
@@ -40,7 +45,8 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
                   page_size=page_size, identifier=ident, stamp=_stamp(rev.date))
         write_manifest(staging, project.inputs, {
             "project": project.dossier.project.code, "revision": rev.code,
-            "status": rev.status, "date": rev.date.isoformat(), "format": "specgen-manifest/1"})
+            "status": rev.status, "date": rev.date.isoformat(), "format": "specgen-manifest/1",
+            "description": rev.description})
         progress("publish: moving the revision into place")
         move_into_place(staging, target)
     except BaseException:

@@ -95,7 +95,20 @@ def update_versions(out: Path) -> list[dict]:
         write_atomic(out / VERSIONS, json.dumps(revs, indent=2) + "\n")
         current = revs[0]["version"]
         write_atomic(out / "index.html", REDIRECT.format(rev=current))
+        write_atomic(out / "revisions.html", _revisions_page(revs))
     return revs
+
+
+def _revisions_page(revs: list[dict]) -> str:
+    """A static list of every revision: works from a folder, without a web server."""
+    from html import escape
+    rows = "\n".join(
+        f'<li><a href="{escape(r["version"])}/index.html">{escape(r["title"])}</a>'
+        + (" — current" if r["aliases"] else "") + "</li>" for r in revs)
+    return ("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
+            "<title>Revisions</title><style>body{font-family:sans-serif;margin:2em auto;"
+            "max-width:40em;color:#2a332b}a{color:#1f3a5f}</style></head><body>"
+            f"<h1>Revisions of the dossier</h1><ul>\n{rows}\n</ul></body></html>\n")
 
 
 REDIRECT = """<!DOCTYPE html>
@@ -103,3 +116,22 @@ REDIRECT = """<!DOCTYPE html>
 <meta http-equiv="refresh" content="0; url={rev}/index.html"></head>
 <body><p>The current revision is <a href="{rev}/index.html">{rev}</a>.</p></body></html>
 """
+
+
+def verify(folder: Path) -> dict[str, list[str]]:
+    """Compare a revision folder with its manifest: modified, missing and extra files."""
+    mf = folder / MANIFEST
+    try:
+        manifest = json.loads(mf.read_text(encoding="utf-8"))
+        expected = manifest["outputs"]
+    except (OSError, ValueError, KeyError) as exc:
+        raise PublishError(f"{mf}: no readable manifest ({exc}). Fix: name a revision folder "
+                           "written by specgen build, e.g. OUT/R1.") from exc
+    present = {p.relative_to(folder).as_posix() for p in folder.rglob("*")
+               if p.is_file() and p.name != MANIFEST}
+    return {
+        "modified": sorted(p for p in expected if p in present
+                           and sha256_file(folder / p) != expected[p]),
+        "missing": sorted(p for p in expected if p not in present),
+        "extra": sorted(p for p in present if p not in expected),
+    }

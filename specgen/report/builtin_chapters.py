@@ -17,7 +17,9 @@ def summary(env) -> dict:
     counts = [{"status": s, "badge": badge(s), "n": n} for s, n in r.counts().items() if n]
     return {"counts": counts, "rows": check_rows(r),
             "purpose": PURPOSE_WORDS[p.revision.purpose], "state": STATE_WORDS[p.revision.status],
-            "parties": p.dossier.parties, "overrides": env.rules_overridden}
+            "parties": p.dossier.parties, "overrides": env.rules_overridden,
+            "open_comments": sum(1 for c in p.comments if c.status == "open"),
+            "previous": env.history.previous if env.history else None}
 
 
 @chapter("scope.md", "Scope and zones of work", 20, "scope.md.j2")

@@ -42,6 +42,7 @@ class RenderEnv:
     results: object
     pageset: PageSet
     math: MathAssets
+    history: object = None
     citations: Citations = field(default_factory=Citations)
     figures: list = field(default_factory=list)
 
@@ -49,6 +50,10 @@ class RenderEnv:
     def rules_overridden(self) -> list:
         from specgen.checks.rules import RuleBook
         return RuleBook(self.project.dossier.rule_overrides).overridden()
+
+    def pageset_paths(self) -> set[str]:
+        """Stems of every chapter of the dossier (for links to pages)."""
+        return {c.path.rsplit(".", 1)[0] for c in chapters()}
 
     def figure(self, path: str, svg: bytes, caption: str) -> dict:
         """Add a figure asset; figures are numbered in order of appearance."""
@@ -79,10 +84,14 @@ class RenderEnv:
                 "limit": limit, "value": qty(c.value, c.unit), "notes": list(c.notes)}
 
 
-def render(project, results) -> PageSet:
-    """Render every registered chapter into a page set (narrative placed by file name)."""
+def render(project, results, history=None) -> PageSet:
+    """Render every registered chapter into a page set (narrative placed by file name).
+
+    ``history`` (:class:`specgen.publish.history.History`) gives earlier revisions and
+    the change report; without it the dossier is rendered as a first revision.
+    """
     pageset = PageSet()
-    env = RenderEnv(project, results, pageset, MathAssets(pageset))
+    env = RenderEnv(project, results, pageset, MathAssets(pageset), history)
     jenv = template_env(getattr(project, "root", None))
     base = {"project": project.dossier.project, "revision": project.revision,
             "narrative": {}}
