@@ -8,21 +8,25 @@ import pytest
 
 pytestmark = pytest.mark.e2e
 
+REV = "R3"  # the demo's current (draft) revision; R1 and R2 are archived under issued/
+
 CHROMIUM = shutil.which("chromium") or "/usr/bin/chromium"
 
 
 def test_revision_layout(demo_build):
-    rev = demo_build / "R1"
+    rev = demo_build / REV
     for name in ("index.html", "calculations.html", "composition.html", "results.json",
-                 "manifest.json", "WEP-2026-R1.pdf"):
+                 "manifest.json", f"WEP-2026-{REV}.pdf"):
         assert (rev / name).is_file(), name
     versions = json.loads((demo_build / "versions.json").read_text())
-    assert versions[0]["version"] == "R1" and versions[0]["aliases"] == ["current"]
-    assert 'url=R1/index.html' in (demo_build / "index.html").read_text()
+    assert [v["version"] for v in versions] == ["R3", "R2", "R1"]
+    assert versions[0]["aliases"] == ["current"]
+    assert 'url=R3/index.html' in (demo_build / "index.html").read_text()
+    assert 'href="R1/index.html"' in (demo_build / "revisions.html").read_text()
 
 
 def test_results_json_names_and_units(demo_build):
-    data = json.loads((demo_build / "R1" / "results.json").read_text())
+    data = json.loads((demo_build / REV / "results.json").read_text())
     q = data["quantities"]["NC1-A"]
     # by hand: (2.8*21.5 + 1.1*8.1 + 0.7*4.2)/(57.9 + 1.4*2.3) = 72.05/61.12 = 1.17883
     assert q["cementation_index"]["value"] == pytest.approx(1.17883, abs=1e-4)
@@ -33,7 +37,7 @@ def test_results_json_names_and_units(demo_build):
 
 def test_manifest_hashes_match_files(demo_build):
     import hashlib
-    rev = demo_build / "R1"
+    rev = demo_build / REV
     manifest = json.loads((rev / "manifest.json").read_text())
     for path, digest in manifest["outputs"].items():
         assert hashlib.sha256((rev / path).read_bytes()).hexdigest() == digest, path
@@ -41,7 +45,7 @@ def test_manifest_hashes_match_files(demo_build):
 
 
 def test_calculation_sheet_in_site(demo_build):
-    html = (demo_build / "R1" / "calculations.html").read_text()
+    html = (demo_build / REV / "calculations.html").read_text()
     assert 'id="calc-chem-ci-nc1-a"' in html
     assert "CHEM-CI · NC1-A — Cementation index" in html
     assert 'alt="CI = \\frac{2.8\\,S + 1.1\\,A + 0.7\\,F}{C + 1.4\\,M}"' in html
@@ -51,7 +55,7 @@ def test_calculation_sheet_in_site(demo_build):
 
 
 def test_site_makes_no_outside_request(demo_build):
-    for page in (demo_build / "R1").glob("*.html"):
+    for page in (demo_build / REV).glob("*.html"):
         text = page.read_text()
         for bad in ("https://fonts.", "unpkg.com", "cdn.jsdelivr", "googletagmanager"):
             assert bad not in text, (page.name, bad)
@@ -59,9 +63,9 @@ def test_site_makes_no_outside_request(demo_build):
 
 def test_pdf_text_and_structure(demo_build):
     from pypdf import PdfReader
-    reader = PdfReader(str(demo_build / "R1" / "WEP-2026-R1.pdf"))
+    reader = PdfReader(str(demo_build / REV / f"WEP-2026-{REV}.pdf"))
     text = "\n".join(p.extract_text() for p in reader.pages)
-    for needle in ("CHEM-CLOSURE", "CHEM-CI", "Revision R1", "Calculation sheets",
+    for needle in ("CHEM-CLOSURE", "CHEM-CI", f"Revision {REV}", "Calculation sheets",
                    "does not replace", "Eckel", "page 2 of"):
         assert needle in text, needle
     assert reader.metadata.title.startswith("Repair of the East Pier masonry")
@@ -78,7 +82,7 @@ def test_pages_in_real_browser(demo_build):
     playwright = pytest.importorskip("playwright.sync_api")
     if not shutil.which("chromium"):
         pytest.skip("Debian chromium is not installed")
-    rev = demo_build / "R1"
+    rev = demo_build / REV
     errors, outside = [], []
     with playwright.sync_playwright() as pw:
         browser = pw.chromium.launch(executable_path=CHROMIUM, args=[
@@ -113,7 +117,7 @@ def test_search_finds_a_known_term_offline(demo_build):
         browser = pw.chromium.launch(executable_path=CHROMIUM, args=[
             "--no-sandbox", "--disable-gpu", "--disable-background-networking"])
         page = browser.new_page()
-        page.goto((demo_build / "R1" / "index.html").as_uri())
+        page.goto((demo_build / REV / "index.html").as_uri())
         page.fill("input.md-search__input", "Blackscar")
         page.wait_for_selector(".md-search-result__item", timeout=15000)
         meta = page.inner_text(".md-search-result__meta")
@@ -125,7 +129,7 @@ def test_two_builds_are_byte_identical(demo_build, tmp_path):
     from specgen.build import build
     from tests.conftest import DEMO
     again = build(DEMO, tmp_path)
-    first = demo_build / "R1"
+    first = demo_build / REV
     names = sorted(p.relative_to(first).as_posix() for p in first.rglob("*") if p.is_file())
     assert names == sorted(p.relative_to(again).as_posix() for p in again.rglob("*") if p.is_file())
     for name in names:

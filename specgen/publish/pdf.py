@@ -39,12 +39,22 @@ def _extensions() -> tuple[list, dict]:
 
 
 def _page_id(path: str) -> str:
-    return "page-" + path.rsplit(".", 1)[0].replace("/", "-")
+    return "page-" + _stem(path)
 
 
-def _relink(html: str) -> str:
-    """``x.md#a`` → ``#a``; ``x.md`` → ``#page-x`` (one document now)."""
-    html = re.sub(r'href="([\w/-]+)\.md#([^"]+)"', r'href="#\2"', html)
+def _stem(path: str) -> str:
+    return path.rsplit(".", 1)[0].replace("/", "-")
+
+
+def _relink(html: str, stem: str) -> str:
+    """One document now: namespace every id by its page and point links at the new ids.
+
+    ``x.md#a`` → ``#p-x-a``; ``#a`` → ``#p-<this page>-a``; ``x.md`` → ``#page-x``.
+    """
+    html = re.sub(r'id="([^"]+)"', lambda m: f'id="p-{stem}-{m.group(1)}"', html)
+    html = re.sub(r'href="([\w/-]+)\.md#([^"]+)"',
+                  lambda m: f'href="#p-{_stem(m.group(1))}-{m.group(2)}"', html)
+    html = re.sub(r'href="#(?!p-|page-)([^"]+)"', lambda m: f'href="#p-{stem}-{m.group(1)}"', html)
     return re.sub(r'href="([\w/-]+)\.md"', lambda m: f'href="#{_page_id(m.group(1) + ".md")}"', html)
 
 
@@ -55,7 +65,7 @@ def to_html(pageset, context: dict) -> str:
     sections = []
     for item in pageset.nav:
         md = markdown.Markdown(extensions=names, extension_configs=configs)
-        body = _relink(md.convert(pageset.pages[item.path]))
+        body = _relink(md.convert(pageset.pages[item.path]), _stem(item.path))
         sections.append({"id": _page_id(item.path), "title": item.title, "html": body})
     env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(PRINT_DIR)), autoescape=True)
     env.filters["safe_html"] = jinja2.utils.markupsafe.Markup

@@ -1,0 +1,90 @@
+"""Revisions: archive, change report, issued revisions kept intact, verify, comments."""
+from __future__ import annotations
+
+import json
+import shutil
+
+import pytest
+
+pytestmark = pytest.mark.e2e
+
+
+def test_change_report_r1_to_r2(demo_build, cli):
+    changes = json.loads((demo_build / "R2" / "changes.json").read_text())
+    assert changes["from"] == "R1" and changes["to"] == "R2"
+    assert "lab/strength.csv" in changes["inputs"]["changed"]
+    assert len(changes["specimens"]["added"]) == 18          # 3 mixes × 6 specimens at 90 d
+    hm = next(c for c in changes["checks"] if c["key"] == "CHEM-CLOSURE/HM1-B")
+    # demo data: LOI 20.3 -> 21.5 moves the total 98.4 -> 99.6 % (attention -> pass)
+    assert (hm["old_status"], hm["new_status"]) == ("attention", "pass")
+    assert hm["delta"] == pytest.approx(1.2)
+    text = cli("diff", demo_build, "--from", "R1", "--to", "R2").output
+    assert "CHEM-CLOSURE/HM1-B: attention → pass; 98.4 → 99.6 % (Δ +1.2 %)" in text
+    page = (demo_build / "R2" / "changes.html").read_text()
+    assert "Compared with revision <strong>R1</strong>" in page
+
+
+def test_diff_unknown_revision(demo_build, cli):
+    result = cli("diff", demo_build, "--from", "R9", "--to", "R2")
+    assert result.exit_code == 2
+    assert f"{demo_build}: no revision 'R9' (revisions there: R1, R2, R3)." in result.output
+
+
+def test_first_revision_says_so(demo_build):
+    assert not (demo_build / "R1" / "changes.json").exists()
+    assert "This is the first revision of the dossier" in (demo_build / "R1" / "changes.html").read_text()
+
+
+def test_comment_page_and_summary_count(demo_build):
+    page = (demo_build / "R3" / "comments.html").read_text()
+    assert "2 open, 1 closed." in page
+    assert 'href="calculations.html#calc-chem-ci-nhl-a"' in page
+    assert "<strong>Open review comments:</strong> 2" in (demo_build / "R3" / "index.html").read_text()
+
+
+def test_verify_reports_changes(demo_build, cli, tmp_path):
+    copy = tmp_path / "R2"
+    shutil.copytree(demo_build / "R2", copy)
+    ok = cli("verify", copy)
+    assert ok.exit_code == 0 and "every file matches its manifest" in ok.output
+    (copy / "index.html").write_text("altered")
+    (copy / "results.json").unlink()
+    (copy / "note.txt").write_text("x")
+    bad = cli("verify", copy)
+    assert bad.exit_code == 1
+    assert "modified: index.html" in bad.output and "missing: results.json" in bad.output
+    assert "extra: note.txt" in bad.output
+
+
+def test_issued_revision_refuses_changed_inputs(demo_copy, tmp_path, cli):
+    out = tmp_path / "out"
+    r = cli("build", demo_copy / "issued" / "R1", "--out", out, "--quiet")
+    assert r.exit_code == 0, r.output
+    before = (out / "R1" / "manifest.json").read_bytes()
+    same = cli("build", demo_copy / "issued" / "R1", "--out", out, "--quiet")
+    assert same.exit_code == 0 and (out / "R1" / "manifest.json").read_bytes() == before
+    csv = demo_copy / "issued" / "R1" / "lab" / "strength.csv"
+    csv.write_text(csv.read_text().replace("M1-01d-C1,M1,1,compressive,1.18", "M1-01d-C1,M1,1,compressive,1.28"))
+    refused = cli("build", demo_copy / "issued" / "R1", "--out", out, "--quiet")
+    assert refused.exit_code == 2
+    assert ("revision R1 was issued and its inputs have changed since. Fix: raise a new revision "
+            "(revision.code in dossier.yaml) and describe what changed.") in refused.output
+    assert (out / "R1" / "manifest.json").read_bytes() == before
+
+
+def test_comment_naming_unknown_check(demo_copy, cli):
+    path = demo_copy / "comments.yaml"
+    path.write_text(path.read_text().replace("about: CHEM-CI/NHL-A", "about: CHEM-CL"))
+    result = cli("check", demo_copy)
+    assert result.exit_code == 2
+    assert ("comments.yaml, line 17: comments[1].about: comment 'C2' is about 'CHEM-CL', which is "
+            "neither a check code nor a page of the dossier. Fix: did you mean 'CHEM-CI'?") in result.output
+
+
+def test_revision_code_colliding_with_archive(demo_copy, cli):
+    path = demo_copy / "dossier.yaml"
+    path.write_text(path.read_text().replace("  code: R3\n", "  code: r2\n"))
+    result = cli("build", demo_copy, "--out", demo_copy.parent / "o", "--quiet")
+    assert result.exit_code == 2
+    assert "revision 'r2' is already issued in issued/R2/." in result.output
+    assert not (demo_copy.parent / "o").exists()
