@@ -59,6 +59,18 @@ def read_text(path: Path, rel: str, log: ProblemLog) -> str | None:
         return None
 
 
+def _flow_depth(text: str) -> int:
+    """Deepest nesting of [ ] and { } (a cheap guard before the recursive parser)."""
+    depth = deepest = 0
+    for ch in text:
+        if ch in "[{":
+            depth += 1
+            deepest = max(deepest, depth)
+        elif ch in "]}":
+            depth = max(0, depth - 1)
+    return deepest
+
+
 def _walk(node: yaml.Node, path: tuple, lines: dict, depth: int, budget: list) -> Any:
     budget[0] -= 1
     if budget[0] < 0:
@@ -82,10 +94,16 @@ def _walk(node: yaml.Node, path: tuple, lines: dict, depth: int, budget: list) -
     return _scalar(node)
 
 
+_CONSTRUCTOR = yaml.SafeLoader("")  # one loader builds every scalar (safe tags only)
+
+
 def _scalar(node: yaml.Node) -> Any:
     if not isinstance(node, yaml.ScalarNode):
         return node  # rejected by the caller
-    return yaml.SafeLoader(io.StringIO("")).construct_object(node, deep=True)
+    try:
+        return _CONSTRUCTOR.construct_object(node, deep=True)
+    finally:
+        _CONSTRUCTOR.constructed_objects.clear()
 
 
 def read_yaml(path: Path, rel: str, log: ProblemLog) -> Located | None:
@@ -93,8 +111,17 @@ def read_yaml(path: Path, rel: str, log: ProblemLog) -> Located | None:
     text = read_text(path, rel, log)
     if text is None:
         return None
+    depth = _flow_depth(text)
+    if depth > MAX_YAML_DEPTH:
+        log.add(rel, f"is nested {depth} levels deep; the limit is {MAX_YAML_DEPTH}.",
+                fix="write the data out flat, as in the starter project.")
+        return None
     try:
         root = yaml.compose(text, Loader=yaml.SafeLoader)
+    except RecursionError:
+        log.add(rel, f"is nested too deeply to read (more than {MAX_YAML_DEPTH} levels).",
+                fix="write the data out flat, as in the starter project.")
+        return None
     except yaml.MarkedYAMLError as exc:
         mark = exc.problem_mark or exc.context_mark
         line = mark.line + 1 if mark else None

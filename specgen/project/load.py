@@ -117,6 +117,33 @@ def _hash(path: Path, rel: str) -> InputFile:
     return InputFile(rel, hashlib.sha256(data).hexdigest(), len(data))
 
 
+def inside(root: Path, rel: str, file: str, field: str, log: ProblemLog) -> Path | None:
+    """Resolve ``rel`` (a path written in a project file) and refuse it if it leaves the folder.
+
+    Absolute paths, ``..`` and symbolic links that point outside the project are refused,
+    so a project can never make specgen read (or publish) a file from elsewhere.
+    """
+    candidate = Path(rel)
+    if candidate.is_absolute() or ".." in candidate.parts:
+        log.add(file, f"the path '{rel}' leaves the project folder.", field=field,
+                fix="give a path relative to the project folder, without '..'.")
+        return None
+    resolved = (root / candidate).resolve()
+    if not resolved.is_relative_to(root.resolve()):
+        log.add(file, f"the path '{rel}' points outside the project folder (through a link).",
+                field=field, fix="copy the file into the project folder instead of linking it.")
+        return None
+    return resolved
+
+
+def _escaping_links(root: Path, log: ProblemLog) -> None:
+    for path in sorted(root.rglob("*")):
+        if path.is_symlink() and not path.resolve().is_relative_to(root.resolve()):
+            rel = path.relative_to(root).as_posix()
+            log.add(rel, "is a link to a file outside the project folder.",
+                    fix="copy the file into the project folder instead of linking it.")
+
+
 def load_project(root: Path | str) -> Project:
     """Read and validate a project folder; raise :class:`~specgen.errors.InputErrors` on problems."""
     root = Path(root)
@@ -125,6 +152,8 @@ def load_project(root: Path | str) -> Project:
         log.add(str(root / ROOT_FILE), "not found: a project folder needs this root file.",
                 fix=f"run 'specgen new {root}' for a starter project, or check the folder name.")
         log.raise_if_any()
+    _escaping_links(root, log)
+    log.raise_if_any()
     docs, located = {}, {}
     for name, (model, required) in DOCUMENTS.items():
         path = root / name

@@ -4,6 +4,7 @@ from __future__ import annotations
 import hashlib
 from pathlib import Path
 
+from specgen.errors import PublishError
 from specgen.publish.output import (move_into_place, refuse_if_issued, staging_dir,
                                     update_versions, write_manifest)
 
@@ -49,11 +50,22 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
             "description": rev.description})
         progress("publish: moving the revision into place")
         move_into_place(staging, target)
+    except OSError as exc:
+        import shutil
+        shutil.rmtree(staging, ignore_errors=True)
+        raise PublishError(f"{out}: the revision could not be written ({exc.strerror or exc}); "
+                           "nothing was changed in the output folder. Fix: free disk space or "
+                           "choose a writable folder with --out.") from exc
     except BaseException:
         import shutil
         shutil.rmtree(staging, ignore_errors=True)
         raise
-    update_versions(out)
+    try:
+        update_versions(out)
+    except OSError as exc:
+        raise PublishError(f"{out}: revision {rev.code} was written but the revision list could "
+                           f"not be updated ({exc.strerror or exc}). Fix: free disk space and "
+                           "build again.") from exc
     return target
 
 

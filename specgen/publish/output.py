@@ -27,11 +27,40 @@ def sha256_file(path: Path) -> str:
     return h.hexdigest()
 
 
+def _alive(pid: int) -> bool:
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except PermissionError:
+        return True
+    return True
+
+
+def recover(out: Path) -> None:
+    """Tidy what a killed build left: restore a revision caught between its two renames,
+    remove abandoned staging folders.  Folders of a build still running are left alone."""
+    if not out.is_dir():
+        return
+    for d in sorted(out.glob(".old-*")) + sorted(out.glob(".staging-*")):
+        parts = d.name.split("-")  # .old-<pid>-<revision> / .staging-<pid>-<revision>-<random>
+        pid = int(parts[1]) if len(parts) > 2 and parts[1].isdigit() else None
+        if pid is not None and pid != os.getpid() and _alive(pid):
+            continue
+        if d.name.startswith(".old-"):
+            target = out / "-".join(parts[2:])
+            if not target.exists():
+                os.replace(d, target)  # the new copy never arrived: the old one is current
+                continue
+        shutil.rmtree(d, ignore_errors=True)
+
+
 def staging_dir(out: Path, revision: str) -> Path:
     """A fresh staging folder next to where the revision will live (same filesystem)."""
     try:
         out.mkdir(parents=True, exist_ok=True)
-        return Path(tempfile.mkdtemp(prefix=f".staging-{revision}-", dir=out))
+        recover(out)
+        return Path(tempfile.mkdtemp(prefix=f".staging-{os.getpid()}-{revision}-", dir=out))
     except OSError as exc:
         raise PublishError(f"{out}: cannot write the output folder ({exc.strerror}). "
                            "Fix: choose a writable folder with --out, or free disk space.") from exc
@@ -66,7 +95,7 @@ def move_into_place(staging: Path, target: Path) -> None:
     """Replace ``target`` by ``staging`` with renames only (old copy removed afterwards)."""
     old = None
     if target.exists():
-        old = target.with_name(f".old-{target.name}-{os.getpid()}")
+        old = target.with_name(f".old-{os.getpid()}-{target.name}")
         os.replace(target, old)
     os.replace(staging, target)
     if old is not None:

@@ -65,7 +65,8 @@ def to_html(pageset, context: dict) -> str:
     sections = []
     for item in pageset.nav:
         md = markdown.Markdown(extensions=names, extension_configs=configs)
-        body = _relink(md.convert(pageset.pages[item.path]), _stem(item.path))
+        from specgen.report.safety import neutralise_links
+        body = _relink(neutralise_links(md.convert(pageset.pages[item.path])), _stem(item.path))
         sections.append({"id": _page_id(item.path), "title": item.title, "html": body})
     env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(PRINT_DIR)), autoescape=True)
     env.filters["safe_html"] = jinja2.utils.markupsafe.Markup

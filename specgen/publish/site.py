@@ -6,6 +6,7 @@ stays here.  Pages are fed in-process through an ``on_files`` hook that adds
 """
 from __future__ import annotations
 
+import html
 import logging
 import tempfile
 from pathlib import Path
@@ -31,6 +32,10 @@ class _FeedPages:
             files.append(File.generated(config, path, content=data))
         return files
 
+    def on_page_content(self, html, page, config, files):
+        from specgen.report.safety import neutralise_links
+        return neutralise_links(html)
+
 
 def _site_assets() -> dict[str, bytes]:
     return {f"assets/{p.name}": p.read_bytes() for p in sorted(SITE_ASSETS.iterdir())
@@ -44,8 +49,11 @@ def build_site(pageset, site_dir: Path, site_name: str, extra: dict | None = Non
 
     logging.getLogger("mkdocs").setLevel(logging.WARNING)
     nav = [{item.title: item.path} for item in pageset.nav]
+    # The static list of every revision sits one level above each revision folder.
+    nav.append({"All revisions": "../revisions.html"})
     with tempfile.TemporaryDirectory(prefix="specgen-docs-") as empty_docs:
-        config = load_config(str(BASE_CONFIG), site_name=site_name, docs_dir=empty_docs,
+        # The theme inserts site_name unescaped: escape it here (project text is never markup).
+        config = load_config(str(BASE_CONFIG), site_name=html.escape(site_name), docs_dir=empty_docs,
                              site_dir=str(site_dir), nav=nav)
         config.extra.update(extra or {})
         config.plugins["specgen-pages"] = _FeedPages(pageset, _site_assets())
