@@ -1,0 +1,457 @@
+"""Strength-versus-age models: fit, compare, predict with a confidence band.
+
+API units are SI: ages in seconds (``DAY`` = 86400 s), strengths in Pa; parameter
+estimates and standard errors are reported in SI (Pa, s, dimensionless).  Internally the
+fit works in days and MPa so that the parameters are of order one.
+
+Models (``MODELS``):
+
+* ``two_component`` -- natural cement's two stages: an aluminate part saturating within
+  hours plus a silicate (belite) part growing over weeks to months,
+  ``f = fA·(1 - exp(-t/tauA)) + fS·(1 - exp(-(t/tauS)^b))``.  ``tauA`` (bounded to
+  1 min - 12 h) is fitted only when at least two distinct ages are under half a day;
+  otherwise it is held at ``tau_a_s`` (common practice: the aluminate fraction sets in
+  minutes and its strength is in place within hours), and the fit says so.
+* ``en1992_age`` -- EN 1992-1-1 eq. 3.2 age function with fitted ``f28`` and ``s``:
+  ``f = f28·exp{s[1 - (28 d/t)^0.5]}``.
+* ``hyperbolic`` -- ``f = f_inf·t/(k + t)``.
+
+Fitting is weighted least squares (``scipy.optimize.least_squares``, analytic Jacobians)
+on individual results, within physical bounds, from a grid start in which the linear
+amplitudes are solved exactly.  Default weights are relative (1 / mean at that age:
+scatter taken proportional to strength, i.e. a constant CV); ``equal`` weights or given
+per-result standard deviations are also accepted.  Standard errors come from the Jacobian
+at the optimum, ``Cov = s²·(JᵀJ)⁻¹``.  Models are compared by AICc (Burnham & Anderson).
+The prediction band is a pointwise confidence band for the mean strength by the delta
+method, ``f ± t(1-α/2, dof)·sqrt(gᵀ·Cov·g)`` with ``g = ∂f/∂θ``, its lower edge
+clipped at zero.
+"""
+from __future__ import annotations
+
+import math
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import optimize, stats
+
+DAY = 86400.0                 # s
+_MPA = 1e6                    # Pa per MPa (internal working unit)
+TAU_A_DEFAULT_S = 3600.0      # common practice: aluminate strength in place within hours
+TAU_A_BOUNDS_S = (60.0, 12 * 3600.0)   # "minutes to hours"
+EARLY_AGE_S = 0.5 * DAY       # ages below this resolve the aluminate time constant
+MAX_EXTRAPOLATION = 15.0      # refused beyond 15x the last (or below 1/15 the first) age
+_COND_LIMIT = 1e12            # JᵀJ condition number above which parameters are not separable
+
+
+class StrengthFitError(ValueError):
+    """The data cannot support the fit; the message says what is needed."""
+
+
+class StrengthExtrapolationError(StrengthFitError):
+    """A prediction was asked for too far outside the tested ages."""
+
+
+@dataclass(frozen=True)
+class _Spec:
+    key: str
+    title: str
+    formula: str
+    names: tuple[str, ...]
+    si: tuple[float, ...]          # internal -> SI factor per parameter
+    units: tuple[str, ...]
+    f: Callable
+    jac: Callable
+    bounds: Callable               # ymax (MPa), ages (d) -> (lower, upper)
+
+
+def _two(x, t):
+    fa, ta, fs, ts, b = x
+    return fa * -np.expm1(-t / ta) + fs * -np.expm1(-(t / ts) ** b)
+
+
+def _two_jac(x, t):
+    fa, ta, fs, ts, b = x
+    ea, u = np.exp(-t / ta), (t / ts) ** b
+    es = np.exp(-u)
+    return np.column_stack([1.0 - ea, -fa * ea * t / ta ** 2, 1.0 - es,
+                            -fs * es * b * u / ts, fs * es * u * np.log(t / ts)])
+
+
+def age_function_en1992(age_s, s: float):
+    """EN 1992-1-1 eq. 3.2 ``βcc(t) = exp{s[1 - (28 d/t)^0.5]}``; age in s, s dimensionless."""
+    t = np.asarray(age_s, dtype=float) / DAY
+    if np.any(t <= 0) or not np.all(np.isfinite(t)) or not math.isfinite(s):
+        raise StrengthFitError("the age function needs positive finite ages and a finite s")
+    return np.exp(s * (1.0 - np.sqrt(28.0 / t)))
+
+
+def _ec(x, t):
+    f28, s = x
+    return f28 * np.exp(s * (1.0 - np.sqrt(28.0 / t)))
+
+
+def _ec_jac(x, t):
+    f28, s = x
+    g = 1.0 - np.sqrt(28.0 / t)
+    e = np.exp(s * g)
+    return np.column_stack([e, f28 * e * g])
+
+
+def _hyp(x, t):
+    finf, k = x
+    return finf * t / (k + t)
+
+
+def _hyp_jac(x, t):
+    finf, k = x
+    return np.column_stack([t / (k + t), -finf * t / (k + t) ** 2])
+
+
+# Physical bounds (internal units MPa, d): strengths non-negative and within a generous
+# multiple of the largest result; time constants from a minute to ten years.
+MODELS: dict[str, _Spec] = {s.key: s for s in (
+    _Spec("two_component", "two-component model (aluminate + silicate)",
+          "f = fA·(1 - exp(-t/tauA)) + fS·(1 - exp(-(t/tauS)^b))",
+          ("f_A", "tau_A", "f_S", "tau_S", "b"), (_MPA, DAY, _MPA, DAY, 1.0),
+          ("Pa", "s", "Pa", "s", "1"), _two, _two_jac,
+          lambda ym, t: ([0.0, TAU_A_BOUNDS_S[0] / DAY, 0.0, 1.0, 0.3],
+                         [2.0 * ym, TAU_A_BOUNDS_S[1] / DAY, 20.0 * ym, 3650.0, 3.0])),
+    _Spec("en1992_age", "EN 1992-1-1 age function (fitted s, f28)",
+          "f = f28·exp{s[1 - (28 d/t)^0.5]}", ("f28", "s"), (_MPA, 1.0), ("Pa", "1"),
+          _ec, _ec_jac, lambda ym, t: ([1e-3, 0.01], [20.0 * ym, 3.0])),
+    _Spec("hyperbolic", "hyperbolic law", "f = f_inf·t/(k + t)", ("f_inf", "k"),
+          (_MPA, DAY), ("Pa", "s"), _hyp, _hyp_jac,
+          lambda ym, t: ([1e-3, 1e-3], [50.0 * ym, 3650.0])),
+)}
+
+
+@dataclass(frozen=True, eq=False)
+class FitResult:
+    """One fitted model.  ``params``/``std_errors`` in SI; ``fixed`` = held parameters."""
+
+    model: str
+    title: str
+    formula: str
+    params: dict[str, float]
+    std_errors: dict[str, float]
+    units: dict[str, str]
+    fixed: dict[str, float]
+    n_obs: int
+    n_ages: int
+    dof: int
+    sigma_hat: float          # residual SD in weighted units (relative weights: a CV)
+    aicc: float | None        # None when n is too small for AICc
+    age_min: float            # s
+    age_max: float            # s
+    weighting: str
+    at_bounds: tuple[str, ...]
+    notes: tuple[str, ...]
+    x: tuple[float, ...]      # internal full parameter vector (MPa, d)
+    free: tuple[bool, ...]    # parameters the covariance is estimated for
+    cov: tuple[tuple[float, ...], ...]   # internal covariance of the free parameters
+
+
+@dataclass(frozen=True)
+class Prediction:
+    """Predicted mean strength (Pa) at ``age`` (s) with its confidence band."""
+
+    age: float                # s
+    value: float              # Pa (also lower, upper)
+    lower: float
+    upper: float
+    level: float              # e.g. 0.95
+    extrapolated: bool
+    method: str
+
+
+def n_parameters(model: str, ages_s: Sequence[float]) -> int:
+    """Number of fitted parameters of ``model`` for these ages (tauA free or held)."""
+    a = np.asarray(ages_s, float)
+    held = model == "two_component" and np.unique(a[a < EARLY_AGE_S]).size < 2
+    return len(MODELS[model].names) - int(held)
+
+
+def validate_data(ages_s: Sequence[float], values_pa: Sequence[float]):
+    """Checked arrays (ages s, strengths Pa); raises :class:`StrengthFitError` with the fix."""
+    t = np.asarray(ages_s, dtype=float).ravel()
+    y = np.asarray(values_pa, dtype=float).ravel()
+    if t.size != y.size:
+        raise StrengthFitError(f"{t.size} ages but {y.size} strength results; "
+                               "give one age per result")
+    if not (np.all(np.isfinite(t)) and np.all(np.isfinite(y))):
+        raise StrengthFitError("ages and strengths must be finite numbers (found NaN or inf)")
+    if np.any(t <= 0.0):
+        raise StrengthFitError("ages must be greater than zero")
+    if np.any(y <= 0.0):
+        raise StrengthFitError("strength results must be greater than zero; a zero result "
+                               "is not a test result (check the specimen record)")
+    n_ages = np.unique(t).size
+    if n_ages < 2:
+        raise StrengthFitError("a strength-age fit needs results at >= 2 distinct ages; "
+                               f"got {n_ages}")
+    if np.ptp(y) == 0.0:
+        raise StrengthFitError(f"all results are equal ({y[0] / _MPA:g} MPa at every age): "
+                               "there is no strength development to fit; check the data")
+    return t, y
+
+
+def _weights(t_d, y, weighting, sigma_pa):
+    if sigma_pa is not None:
+        sig = np.broadcast_to(np.asarray(sigma_pa, float), y.shape) / _MPA
+        if not np.all(np.isfinite(sig)) or np.any(sig <= 0):
+            raise StrengthFitError("given standard deviations must be finite and > 0")
+        return 1.0 / sig, "weights 1/sigma² from the given standard deviations"
+    if weighting == "relative":
+        ages, inv = np.unique(t_d, return_inverse=True)
+        means = np.bincount(inv, y) / np.bincount(inv)
+        return 1.0 / means[inv], "relative: weights 1/(mean at age)², constant CV assumed"
+    if weighting == "equal":
+        return np.full(y.shape, 1.0 / y.mean()), "equal weights"
+    raise StrengthFitError(f"unknown weighting '{weighting}'; use 'relative' or 'equal'")
+
+
+def _start(spec, t, y, w, x_fixed):
+    """Grid over the nonlinear parameters with the amplitudes solved by NNLS."""
+    best, best_x = math.inf, None
+    if spec.key == "two_component":
+        grid = [(ts, b) for ts in np.geomspace(1.0, 3000.0, 13) for b in (0.5, 0.75, 1.0, 1.5, 2.2)]
+        ta = x_fixed[1]
+        col_a = -np.expm1(-t / ta) * w
+        for ts, b in grid:
+            a = np.column_stack([col_a, -np.expm1(-(t / ts) ** b) * w])
+            amp, rn = optimize.nnls(a, y * w)
+            if rn < best:
+                best, best_x = rn, [amp[0], ta, amp[1], ts, b]
+        return np.array(best_x)
+    for q in (np.linspace(0.02, 2.5, 40) if spec.key == "en1992_age"
+              else np.geomspace(0.01, 3000.0, 40)):
+        col = spec.f([1.0, q], t) * w
+        amp = max(float(col @ (y * w) / (col @ col)), 1e-3)
+        rn = float(np.sum((amp * col - y * w) ** 2))
+        if rn < best:
+            best, best_x = rn, [amp, q]
+    return np.array(best_x)
+
+
+def fit_model(model: str, ages_s: Sequence[float], values_pa: Sequence[float], *,
+              weighting: str = "relative", sigma_pa: Sequence[float] | None = None,
+              tau_a_s: float = TAU_A_DEFAULT_S) -> FitResult:
+    """Fit one model (key of ``MODELS``) to results (ages s, strengths Pa) by WLS.
+
+    Refuses (:class:`StrengthFitError`) when there are fewer distinct ages than
+    parameters + 1, or the parameters cannot be separated with the ages given.
+    """
+    if model not in MODELS:
+        raise StrengthFitError(f"unknown model '{model}'; choose from {', '.join(MODELS)}")
+    spec = MODELS[model]
+    t_s, y_pa = validate_data(ages_s, values_pa)
+    t, y = t_s / DAY, y_pa / _MPA
+    p, n_ages = n_parameters(model, t_s), np.unique(t).size
+    if n_ages < p + 1:
+        raise StrengthFitError(f"the {spec.title} has {p} parameters and needs results at "
+                               f">= {p + 1} distinct ages; got {n_ages}")
+    w, wdesc = _weights(t, y, weighting, sigma_pa)
+    lo, hi = (np.array(b, float) for b in spec.bounds(float(y.max()), t))
+    free = np.ones(len(spec.names), bool)
+    x_full = np.zeros(len(spec.names))
+    notes = []
+    if model == "two_component":
+        if not TAU_A_BOUNDS_S[0] <= tau_a_s <= TAU_A_BOUNDS_S[1]:
+            raise StrengthFitError("tau_A must lie between 1 min and 12 h")
+        x_full[1] = tau_a_s / DAY
+        if p == 4:
+            free[1] = False
+            notes.append(f"tau_A held at {tau_a_s / 60:g} min: fewer than two ages under "
+                         "half a day, so the aluminate time constant cannot be fitted")
+    x0 = np.clip(_start(spec, t, y, w, x_full), lo, hi)
+    return _solve(spec, t, y, w, wdesc, x0, free, lo, hi, notes, t_s)
+
+
+def _solve(spec, t, y, w, wdesc, x0, free, lo, hi, notes, t_s) -> FitResult:
+    base = x0.copy()
+
+    def full(z):
+        x = base.copy()
+        x[free] = z
+        return x
+
+    res = optimize.least_squares(
+        lambda z: (spec.f(full(z), t) - y) * w, x0[free],
+        jac=lambda z: spec.jac(full(z), t)[:, free] * w[:, None],
+        bounds=(lo[free], hi[free]), method="trf", x_scale="jac")
+    x = full(res.x)
+    n, p, rss = y.size, int(free.sum()), float(np.sum(res.fun ** 2))
+    span = hi - lo
+    at = free & ((x - lo < 1e-4 * span) | (hi - x < 1e-4 * span))
+    est, cov = _covariance(spec, x, t, w, free, at, rss / (n - p))
+    names = spec.names
+    at_b = tuple(nm for i, nm in enumerate(names) if at[i])
+    if at_b:
+        notes.append("at a bound: " + ", ".join(at_b) + ("; held there for the standard "
+                     "errors, so the band is conditional on it" if (at & ~est).any() else
+                     " (its standard error from the Jacobian is not reliable)"))
+    return _result(spec, x, free, est, cov, rss, n, p, t, t_s, wdesc, at_b, notes)
+
+
+def _result(spec, x, free, est, cov, rss, n, p, t, t_s, wdesc, at_b, notes) -> FitResult:
+    names = spec.names
+    se = np.zeros(x.size)
+    se[est] = np.sqrt(np.clip(np.diag(cov), 0.0, None))
+    return FitResult(
+        model=spec.key, title=spec.title, formula=spec.formula,
+        params={nm: float(x[i] * spec.si[i]) for i, nm in enumerate(names) if free[i]},
+        std_errors={nm: float(se[i] * spec.si[i]) for i, nm in enumerate(names) if est[i]},
+        units=dict(zip(names, spec.units)),
+        fixed={nm: float(x[i] * spec.si[i]) for i, nm in enumerate(names) if not free[i]},
+        n_obs=n, n_ages=int(np.unique(t).size), dof=n - p, sigma_hat=math.sqrt(rss / (n - p)),
+        aicc=_aicc(rss, n, p), age_min=float(t_s.min()), age_max=float(t_s.max()),
+        weighting=wdesc, at_bounds=at_b, notes=tuple(notes), x=tuple(map(float, x)),
+        free=tuple(map(bool, est)), cov=tuple(tuple(map(float, r)) for r in cov))
+
+
+def _covariance(spec, x, t, w, free, at, s2):
+    """``s²·(JᵀJ)⁻¹`` over the free parameters; if singular, hold those at a bound."""
+    for est in (free, free & ~at):
+        jw = spec.jac(x, t)[:, est] * w[:, None]
+        jtj = jw.T @ jw
+        d = np.sqrt(np.diag(jtj))
+        # condition of the scale-free (correlation-like) matrix: near-collinear columns
+        if est.any() and np.all(np.isfinite(jtj)) and np.all(d > 0) and \
+                np.linalg.cond(jtj / np.outer(d, d)) < _COND_LIMIT:
+            return est, np.linalg.inv(jtj) * s2
+    raise StrengthFitError(f"the {spec.title}: its parameters cannot be separated with "
+                           "these ages; results at more (and later) ages are needed")
+
+
+def _aicc(rss: float, n: int, p: int) -> float | None:
+    """AICc of a least-squares fit, k = p + 1 (the residual variance counts)."""
+    k = p + 1
+    if n - k - 1 <= 0:
+        return None
+    rss = max(rss, n * 1e-24)          # an exact fit must not give log(0)
+    return n * math.log(rss / n) + 2 * k + 2 * k * (k + 1) / (n - k - 1)
+
+
+def _check_age(fit: FitResult, age: float, max_factor: float) -> bool:
+    """True when ``age`` (s) is an extrapolation; raises beyond the allowed factor."""
+    if not math.isfinite(age) or age <= 0.0:
+        raise StrengthFitError(f"prediction age must be a positive number of seconds; got {age}")
+    if age > fit.age_max * max_factor or age < fit.age_min / max_factor:
+        raise StrengthExtrapolationError(
+            f"{age / DAY:g} d lies outside {max_factor:g}x the tested ages "
+            f"({fit.age_min / DAY:g}-{fit.age_max / DAY:g} d); predictions are limited to "
+            f"{fit.age_min / DAY / max_factor:.3g}-{fit.age_max / DAY * max_factor:g} d")
+    return age > fit.age_max * (1 + 1e-9) or age < fit.age_min * (1 - 1e-9)
+
+
+def curve(fit: FitResult, ages_s: Sequence[float], level: float = 0.95,
+          max_factor: float = MAX_EXTRAPOLATION):
+    """Arrays (value, lower, upper) in Pa at ages (s); delta-method confidence band."""
+    if not 0.0 < level < 1.0:
+        raise StrengthFitError(f"confidence level must lie between 0 and 1; got {level}")
+    a = np.atleast_1d(np.asarray(ages_s, float))
+    for age in a:
+        _check_age(fit, float(age), max_factor)
+    spec, x, free = MODELS[fit.model], np.array(fit.x), np.array(fit.free)
+    t = a / DAY
+    f = spec.f(x, t)
+    g = spec.jac(x, t)[:, free]
+    var = np.einsum("ij,jk,ik->i", g, np.array(fit.cov), g)
+    half = stats.t.ppf(0.5 + level / 2.0, fit.dof) * np.sqrt(np.clip(var, 0.0, None))
+    return f * _MPA, np.clip(f - half, 0.0, None) * _MPA, (f + half) * _MPA
+
+
+def predict(fit: FitResult, age_s: float, level: float = 0.95,
+            max_factor: float = MAX_EXTRAPOLATION) -> Prediction:
+    """Mean strength (Pa) at ``age_s`` with a ``level`` confidence band (delta method)."""
+    extrap = _check_age(fit, float(age_s), max_factor)
+    v, lo, hi = curve(fit, [age_s], level, max_factor)
+    return Prediction(age=float(age_s), value=float(v[0]), lower=float(lo[0]),
+                      upper=float(hi[0]), level=level, extrapolated=extrap,
+                      method=f"delta method, t(dof = {fit.dof}) pointwise confidence band "
+                             "for the mean, lower edge clipped at 0")
+
+
+def components(fit: FitResult, ages_s: Sequence[float]) -> dict[str, np.ndarray]:
+    """Contributions (Pa) at ages (s): aluminate and silicate for the two-component model."""
+    t = np.atleast_1d(np.asarray(ages_s, float)) / DAY
+    if np.any(t <= 0) or not np.all(np.isfinite(t)):
+        raise StrengthFitError("ages must be positive finite numbers of seconds")
+    x = np.array(fit.x)
+    if fit.model != "two_component":
+        return {fit.model: MODELS[fit.model].f(x, t) * _MPA}
+    fa, ta, fs, ts, b = x
+    return {"aluminate": fa * -np.expm1(-t / ta) * _MPA,
+            "silicate": fs * -np.expm1(-(t / ts) ** b) * _MPA}
+
+
+@dataclass(frozen=True, eq=False)
+class Selection:
+    """Models compared by AICc; ``best`` is None when no model could be fitted."""
+
+    best: FitResult | None
+    fits: tuple[FitResult, ...]          # ranked, lowest AICc first
+    delta_aicc: dict[str, float]
+    akaike_weights: dict[str, float]
+    not_assessed: dict[str, str]         # model -> reason it was not fitted
+    reasoning: str
+
+
+def _support(delta: float) -> str:
+    # Burnham & Anderson (2002), Model Selection and Multimodel Inference, sec. 2.6 (from memory)
+    if delta <= 2.0:
+        return "substantial support"
+    if delta <= 7.0:
+        return "considerably less support"
+    return "essentially no support" if delta > 10.0 else "little support"
+
+
+def fit_all(ages_s: Sequence[float], values_pa: Sequence[float],
+            models: Sequence[str] = tuple(MODELS), **kw) -> Selection:
+    """Fit every model that the data can support and choose one by AICc.
+
+    Rule: lowest AICc, except that a model with fewer parameters within ΔAICc <= 2 of the
+    lowest is preferred (parsimony).  Bad data raise :class:`StrengthFitError`; a model the
+    data cannot support is listed in ``not_assessed`` with the reason.
+    """
+    validate_data(ages_s, values_pa)
+    fits, skipped = [], {}
+    for m in models:
+        try:
+            fits.append(fit_model(m, ages_s, values_pa, **kw))
+        except StrengthExtrapolationError:
+            raise
+        except StrengthFitError as exc:
+            skipped[m] = str(exc)
+    ranked = [f for f in fits if f.aicc is not None]
+    for f in fits:
+        if f.aicc is None:
+            skipped[f.model] = (f"{f.n_obs} results are too few for AICc with "
+                                f"{len(f.params)} parameters")
+    if not ranked:
+        why = "; ".join(f"{MODELS[m].title}: {r}" for m, r in skipped.items())
+        return Selection(None, (), {}, {}, skipped, "not assessed: " + why)
+    ranked.sort(key=lambda f: f.aicc)
+    low = ranked[0].aicc
+    delta = {f.model: f.aicc - low for f in ranked}
+    rel = {m: math.exp(-0.5 * d) for m, d in delta.items()}
+    tot = sum(rel.values())
+    weights = {m: r / tot for m, r in rel.items()}
+    near = [f for f in ranked if delta[f.model] <= 2.0]
+    best = min(near, key=lambda f: (len(f.params), f.aicc))
+    return Selection(best, tuple(ranked), delta, weights, skipped,
+                     _reasoning(best, ranked, delta, weights, skipped))
+
+
+def _reasoning(best, ranked, delta, weights, skipped) -> str:
+    out = [f"Chosen: {best.title} (AICc {best.aicc:.2f}, Akaike weight "
+           f"{weights[best.model]:.2f}, {len(best.params)} parameters)."]
+    if best is not ranked[0]:
+        out.append(f"It has fewer parameters than {ranked[0].title} and lies within ΔAICc = "
+                   f"{delta[best.model]:.2f} <= 2 of it, so the simpler model is preferred.")
+    out += [f"{f.title}: AICc {f.aicc:.2f}, ΔAICc {f.aicc - best.aicc:+.2f} against the chosen "
+            f"model ({_support(abs(f.aicc - best.aicc))} relative to it)."
+            for f in ranked if f is not best]
+    out += [f"{MODELS[m].title} not fitted: {r}." for m, r in skipped.items()]
+    return " ".join(out)

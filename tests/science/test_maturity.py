@@ -1,0 +1,131 @@
+"""Maturity (ASTM C1074): Arrhenius and Nurse-Saul equivalent ages, strength in the wall."""
+import math
+
+import numpy as np
+import pytest
+from scipy import constants
+
+from specgen import refdata
+from specgen.science.maturity import (
+    VALID_RANGE_K, MaturityInputError, activation_energy_fhp, arrhenius_factor, earliest_time,
+    equivalent_age, equivalent_age_arrhenius, equivalent_age_nurse_saul, in_wall_strength,
+    temperature_time_factor)
+from specgen.science.strength_models import DAY, fit_model
+
+DEF = refdata.load("maturity_defaults").data
+# 33.5 kJ/mol, Freiesleben Hansen & Pedersen (from memory)
+E = DEF["activation_energy"]["value"]
+TREF = DEF["reference_temperature"]["value"]     # 293.15 K (20 °C), common practice
+T0 = DEF["nurse_saul_datum"]["value"]            # 263.15 K (-10 °C), common practice
+K = constants.zero_Celsius
+MPA = 1e6
+
+
+def test_defaults_table_matches_module_range():
+    assert (DEF["valid_range"]["low"], DEF["valid_range"]["high"]) == VALID_RANGE_K
+    assert E == 33500.0 and TREF == pytest.approx(K + 20) and T0 == pytest.approx(K - 10)
+    assert "must be measured" in DEF["activation_energy"]["warning"]
+
+
+@pytest.mark.parametrize("t_c, factor", [
+    # ASTM C1074 Arrhenius factor exp[-(E/R)(1/T - 1/Tref)], by hand with
+    # E/R = 33500 / 8.314463 (CODATA R, scipy.constants) = 4029.12 K, Tref = 293.15 K:
+    (30.0, 1.57362),   # 1/303.15 - 1/293.15 = -1.12526e-4 -> exp(+0.453380) = 1.57362
+    (10.0, 0.61545),   # 1/283.15 - 1/293.15 = +1.20474e-4 -> exp(-0.485405) = 0.61545
+    (20.0, 1.0),       # at the reference temperature by definition
+])
+def test_arrhenius_factor_by_hand(t_c, factor):
+    assert float(arrhenius_factor(K + t_c, E, TREF)) == pytest.approx(factor, abs=2e-5)
+
+
+def test_arrhenius_constant_temperature_seven_days_at_30c():
+    # ASTM C1074, by hand: 7 d at 30 °C -> te = 7 * 1.57362 = 11.0154 d at 20 °C
+    te = equivalent_age_arrhenius([0, 7 * DAY], K + 30, activation_energy=E, t_ref_k=TREF)
+    assert te[-1] / DAY == pytest.approx(11.0154, abs=1e-3)
+
+
+def test_arrhenius_history_uses_interval_average_temperature():
+    # ASTM C1074 uses the average temperature of each interval.  Readings at 0, 1, 2, 3 d of
+    # 10, 10, 30, 30 °C: interval averages 10, 20, 30 °C, by hand
+    #   te = 0.61545 + 1.0 + 1.57362 = 3.18907 d
+    te = equivalent_age_arrhenius(np.array([0, 1, 2, 3]) * DAY, K + np.array([10, 10, 30, 30.0]),
+                                  activation_energy=E, t_ref_k=TREF)
+    assert te / DAY == pytest.approx([0.0, 0.61545, 1.61545, 3.18907], abs=1e-4)
+
+
+def test_nurse_saul_by_hand():
+    # ASTM C1074 Nurse-Saul, datum -10 °C: same history, (Ta - T0) = 20, 30, 40 K per day
+    #   M = 90 K·d; te = M / (20 - (-10)) = 3.0 d at 20 °C
+    times, temps = np.array([0, 1, 2, 3]) * DAY, K + np.array([10, 10, 30, 30.0])
+    m = temperature_time_factor(times, temps, datum_k=T0)
+    assert m[-1] / DAY == pytest.approx(90.0, rel=1e-12)
+    te = equivalent_age_nurse_saul(times, temps, datum_k=T0, t_ref_k=TREF)
+    assert te[-1] / DAY == pytest.approx(3.0, rel=1e-12)
+    # 7 d at 30 °C: 40 K * 7 d / 30 K = 9.333 d
+    te7 = equivalent_age([0, 7 * DAY], K + 30, method="nurse_saul", datum_k=T0, t_ref_k=TREF)
+    assert te7[-1] / DAY == pytest.approx(9.3333, abs=1e-4)
+
+
+def test_fhp_activation_energy_below_twenty_degrees():
+    # Freiesleben Hansen & Pedersen (from memory): E = 33.5 + 1.47 (20 - T) kJ/mol below 20 °C
+    b = DEF["activation_energy"]["below_reference"]
+    e5 = activation_energy_fhp(K + 5, E, b["slope"], b["split_temperature"])
+    assert e5 == pytest.approx(33500 + 1470 * 15, rel=1e-12)       # 55.55 kJ/mol
+    assert activation_energy_fhp(K + 25, E, b["slope"], b["split_temperature"]) == E
+
+
+@pytest.mark.parametrize("times, temps, words", [
+    ([0, DAY, 2 * DAY], [K + 20, K - 15, K + 20], "-15.0 °C at reading 2 is below the range"),
+    ([0, DAY], [K + 20, K + 70], "70.0 °C at reading 2 is above the range"),
+    ([0, DAY, DAY], K + 20, "times must increase; reading 3"),
+    ([0], K + 20, "at least two times"),
+    ([0, DAY, 2 * DAY], [K + 20, K + 20], "3 times but 2 temperatures"),
+    ([0, DAY], [20.0, 21.0], "was it entered in °F or K"),       # °C typed as K
+])
+def test_bad_histories_are_refused(times, temps, words):
+    with pytest.raises(MaturityInputError, match=words):
+        equivalent_age_arrhenius(times, temps, activation_energy=E, t_ref_k=TREF)
+
+
+def test_bad_method_and_energy():
+    with pytest.raises(MaturityInputError, match="needs an activation energy"):
+        equivalent_age([0, DAY], K + 20, method="arrhenius", t_ref_k=TREF)
+    with pytest.raises(MaturityInputError, match="unknown method"):
+        equivalent_age([0, DAY], K + 20, method="guess", t_ref_k=TREF)
+    with pytest.raises(MaturityInputError, match="activation energy must be > 0"):
+        arrhenius_factor(K + 20, 0.0, TREF)
+
+
+def _en1992_fit():
+    # Noise-free invented results from the EN 1992-1-1 age function, f28 = 5 MPa, s = 0.25
+    ages = np.repeat([1, 3, 7, 14, 28], 3).astype(float)
+    vals = 5.0 * np.exp(0.25 * (1 - np.sqrt(28 / ages)))
+    return fit_model("en1992_age", ages * DAY, vals * MPA)
+
+
+def test_earliest_time_at_reference_and_warm_wall():
+    fit = _en1992_fit()
+    target = 5.0 * math.exp(-0.25) * MPA      # EN 1992-1-1 eq. 3.2: 0.7788 f28 at 7 d
+    times = np.linspace(0, 60, 61) * DAY
+    te20 = equivalent_age_arrhenius(times, K + 20, activation_energy=E, t_ref_k=TREF)
+    r = earliest_time(fit, target, times, te20, conservative=False)
+    assert r.reached and r.time / DAY == pytest.approx(7.0, abs=0.01)
+    # At 30 °C the same equivalent age comes 1.57362x sooner: 7 / 1.57362 = 4.448 d
+    te30 = equivalent_age_arrhenius(times, K + 30, activation_energy=E, t_ref_k=TREF)
+    r30 = earliest_time(fit, target, times, te30, conservative=False)
+    assert r30.time / DAY == pytest.approx(4.448, abs=0.01)
+    assert r30.equivalent_age / DAY == pytest.approx(7.0, abs=0.01)
+
+
+def test_earliest_time_not_reached_and_in_wall_strength():
+    fit = _en1992_fit()
+    times = np.linspace(0, 10, 11) * DAY
+    te = equivalent_age_arrhenius(times, K + 5, activation_energy=E, t_ref_k=TREF)
+    r = earliest_time(fit, 5.0 * MPA, times, te)      # f28 not reached in 10 cold days
+    assert not r.reached and r.time is None and "not reached by the end of the history" in r.reason
+    v, lo, hi, ok = in_wall_strength(fit, te)
+    assert not ok[0] and v[0] == 0.0                  # te = 0: not assessed, no NaN
+    assert np.all(ok[1:]) and np.all(np.diff(v[1:]) > 0)
+    assert np.all(np.isfinite(np.concatenate([v, lo, hi])))
+    with pytest.raises(MaturityInputError, match="target strength must be > 0"):
+        earliest_time(fit, 0.0, times, te)

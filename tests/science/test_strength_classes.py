@@ -1,0 +1,136 @@
+"""EN 459-1 / ASTM C270 descriptive classes, pass/fail/hold and the later test age."""
+import math
+
+import numpy as np
+import pytest
+from scipy import stats
+
+from specgen import refdata
+from specgen.science import strength_models as sm
+from specgen.science.strength_classes import (
+    SHRINK_RULE, ClassInputError, accept, classes_from_table, compare_ranges, pooled_cv,
+    recommend_test_age, strongest_minimum)
+from specgen.science.strength_models import DAY, fit_model, predict
+
+MPA = 1e6
+TABLES = refdata.load("strength_classes").data
+EN459 = classes_from_table(TABLES["en459_1"])      # EN 459-1 (from memory)
+C270 = classes_from_table(TABLES["astm_c270"])     # ASTM C270 property specification
+CANDIDATES = [a * DAY for a in TABLES["candidate_test_ages"]["age_days"]]   # common practice
+
+
+def test_tables_convert_to_si():
+    # EN 459-1 (from memory): NHL 3.5 is 3.5-10 MPa at 28 d; NHL 5 also >= 2 MPa at 7 d
+    nhl35 = next(c for c in EN459 if c.name == "NHL 3.5")
+    assert (nhl35.lower, nhl35.upper, nhl35.age) == (3.5e6, 10e6, 28 * DAY)
+    nhl5 = next(c for c in EN459 if c.name == "NHL 5")
+    assert (nhl5.early_age, nhl5.early_lower) == (7 * DAY, 2e6)
+    # ASTM C270: M 2500 psi = 17.2 MPa ... K 75 psi = 0.5 MPa (1 psi = 6894.757 Pa, scipy)
+    psi = 6894.757
+    mins = {c.name: c.lower for c in C270}
+    for name, p in {"M": 2500, "S": 1800, "N": 750, "O": 350, "K": 75}.items():
+        assert mins[name] == pytest.approx(p * psi, abs=0.06e6)
+    with pytest.raises(ClassInputError, match="malformed"):
+        classes_from_table({"age_days": 28, "classes": [{"name": "X"}]})
+
+
+@pytest.mark.parametrize("f28, f7, expected", [
+    # EN 459-1 ranges (from memory): 2-7, 3.5-10, 5-15 MPa; overlapping, so several may hold
+    (1.5, None, ()),
+    (2.0, None, ("NHL 2",)),                     # lower edge included
+    (4.0, None, ("NHL 2", "NHL 3.5")),
+    (6.0, 1.5, ("NHL 2", "NHL 3.5")),            # 7-d 1.5 MPa < 2 MPa: not NHL 5
+    (6.0, 2.5, ("NHL 2", "NHL 3.5", "NHL 5")),
+    (12.0, 3.0, ("NHL 5",)),
+    (16.0, 5.0, ()),
+])
+def test_en459_ranges(f28, f7, expected):
+    r = compare_ranges(f28 * MPA, EN459, standard="EN 459-1", source="x",
+                       early_pa=None if f7 is None else f7 * MPA)
+    assert r.matches == expected
+    assert len(r.lines) == 3
+
+
+def test_en459_class_5_without_seven_day_result_is_not_claimed():
+    r = compare_ranges(6.0 * MPA, EN459, standard="EN 459-1", source="x")
+    assert "NHL 5" not in r.matches
+    assert "not checked (no result at that age)" in r.lines[2]
+
+
+@pytest.mark.parametrize("f28, expected", [
+    # ASTM C270 minimums at 28 d: M 17.2, S 12.4, N 5.2, O 2.4, K 0.5 MPa
+    (0.3, ()), (0.5, ("K",)), (3.0, ("O",)), (5.2, ("N",)), (13.0, ("S",)), (20.0, ("M",)),
+])
+def test_c270_strongest_type_met(f28, expected):
+    assert strongest_minimum(f28 * MPA, C270, standard="ASTM C270", source="x").matches == expected
+
+
+@pytest.mark.parametrize("value, lower, upper, limit, kind, status", [
+    (5.0, 4.0, 6.0, 3.5, "min", "pass"),
+    (5.0, 4.0, 6.0, 4.0, "min", "pass"),     # lower edge on the limit clears it
+    (3.0, 2.5, 3.4, 3.5, "min", "fail"),
+    (3.6, 3.0, 4.2, 3.5, "min", "hold"),
+    (5.0, 4.0, 6.0, 7.0, "max", "pass"),
+    (8.0, 7.5, 9.0, 7.0, "max", "fail"),
+    (6.8, 6.0, 7.6, 7.0, "max", "hold"),
+])
+def test_accept(value, lower, upper, limit, kind, status):
+    assert accept(value * MPA, lower * MPA, upper * MPA, limit * MPA, kind) == status
+
+
+@pytest.mark.parametrize("args, words", [
+    ((5e6, 6e6, 7e6, 4e6, "min"), "must contain the value"),
+    ((5e6, 4e6, 6e6, float("nan"), "min"), "finite"),
+    ((5e6, 4e6, 6e6, 4e6, "between"), "'min' or 'max'"),
+])
+def test_accept_bad_input(args, words):
+    with pytest.raises(ClassInputError, match=words):
+        accept(*args)
+
+
+def _fit_to_28_days():
+    # Invented natural-cement-like results to 28 d (two-component truth, CV 5 %)
+    t = np.repeat([1.0, 3, 7, 14, 28], 3)
+    rng = np.random.default_rng(11)
+    y = sm.MODELS["two_component"].f(np.array([1.5, 1 / 24, 10.0, 90.0, 1.2]), t)
+    return fit_model("two_component", t * DAY, y * (1 + 0.05 * rng.standard_normal(t.size)) * MPA)
+
+
+def test_hold_recommends_first_deciding_age_by_the_stated_rule():
+    fit = _fit_to_28_days()
+    p28 = predict(fit, 28 * DAY)
+    limit = p28.value                          # band at 28 d straddles it: hold
+    assert accept(p28.value, p28.lower, p28.upper, limit, "min") == "hold"
+    rec = recommend_test_age(fit, limit, "min", CANDIDATES, cv=0.05, n_specimens=3)
+    assert rec.age == 56 * DAY and rec.expected_status == "pass"
+    # The rule by hand: h = t(0.975, 2) * CV * f(56 d) / sqrt(3), t from scipy.stats
+    f56 = predict(fit, 56 * DAY).value
+    assert rec.half_width == pytest.approx(stats.t.ppf(0.975, 2) * 0.05 * f56 / math.sqrt(3))
+    assert rec.expected_value - limit > rec.half_width and rec.rule == SHRINK_RULE
+    # A limit half a test half-width below the 56-d estimate is not decided at 56 d; the
+    # next candidate (90 d) decides if its margin exceeds its own half-width.
+    h56 = rec.half_width
+    limit2 = f56 - 0.5 * h56
+    f90 = predict(fit, 90 * DAY).value
+    h90 = stats.t.ppf(0.975, 2) * 0.05 * f90 / math.sqrt(3)
+    assert f90 - limit2 > h90
+    later = recommend_test_age(fit, limit2, "min", CANDIDATES, cv=0.05, n_specimens=3)
+    assert later.age == 90 * DAY and later.half_width == pytest.approx(h90)
+
+
+def test_hold_on_a_maximum_and_no_candidate_deciding():
+    fit = _fit_to_28_days()
+    f90 = predict(fit, 90 * DAY).value
+    rec = recommend_test_age(fit, 2 * f90, "max", CANDIDATES, cv=0.05)
+    assert rec.expected_status == "pass" and rec.age == 56 * DAY
+    none = recommend_test_age(fit, f90, "min", [90 * DAY], cv=0.05)
+    assert none.age is None and "no candidate age is expected to decide" in none.reason
+    with pytest.raises(ClassInputError, match="n_specimens"):
+        recommend_test_age(fit, f90, "min", CANDIDATES, cv=0.05, n_specimens=1)
+
+
+def test_pooled_cv():
+    # By hand: sqrt((2*0.04² + 2*0.06²) / 4) = sqrt(0.0026) = 0.05099
+    assert pooled_cv([0.04, 0.06, 0.0], [3, 3, 1]) == pytest.approx(0.050990, abs=1e-6)
+    with pytest.raises(ClassInputError):
+        pooled_cv([0.0], [1])

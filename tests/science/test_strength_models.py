@@ -1,0 +1,212 @@
+"""Strength-age models: EN 1992-1-1 age function, WLS fits, bands, AICc, refusals."""
+import math
+
+import numpy as np
+import pytest
+from scipy import optimize, stats
+
+from specgen.science import strength_models as sm
+from specgen.science.strength_models import (
+    DAY, StrengthExtrapolationError, StrengthFitError, age_function_en1992, components, curve,
+    fit_all, fit_model, predict)
+
+MPA = 1e6
+EARLY = [1, 3, 7, 14, 28]                # d, the usual test ages up to 28 d
+
+
+def _data(model, x, ages_d, cv=0.05, seed=0, reps=3):
+    """Synthetic results (invented data) from known internal parameters (MPa, d)."""
+    t = np.repeat(np.asarray(ages_d, float), reps)
+    rng = np.random.default_rng(seed)
+    y = sm.MODELS[model].f(np.asarray(x, float), t) * (1 + cv * rng.standard_normal(t.size))
+    return t * DAY, y * MPA
+
+
+@pytest.mark.parametrize("s, t_d, beta", [
+    # EN 1992-1-1 eq. 3.2; by hand: (28/7)^0.5 = 2 -> exp(s*(1-2)) = exp(-s)
+    (0.25, 7, 0.7788),     # exp(-0.25) = 0.77880  (EN 1992-1-1 3.1.2; DOMAIN primer 0.7788)
+    (0.38, 7, 0.6839),     # exp(-0.38) = 0.68386
+    (0.20, 7, 0.8187),     # exp(-0.20) = 0.81873
+    (0.25, 28, 1.0),       # 1 - (28/28)^0.5 = 0 -> 1 by definition
+    (0.25, 112, 1.1331),   # (28/112)^0.5 = 0.5 -> exp(0.125) = 1.13315
+])
+def test_en1992_age_function(s, t_d, beta):
+    assert float(age_function_en1992(t_d * DAY, s)) == pytest.approx(beta, abs=5e-5)
+
+
+def test_en1992_fit_recovers_exact_parameters_and_eq_3_2():
+    # Noise-free data from f28 = 5 MPa, s = 0.25: the fit returns them, and the prediction
+    # at 7 d is 0.7788 * 5 = 3.894 MPa (EN 1992-1-1 eq. 3.2, by hand above).
+    t, y = _data("en1992_age", [5.0, 0.25], EARLY, cv=0.0)
+    fit = fit_model("en1992_age", t, y)
+    assert fit.params["f28"] / MPA == pytest.approx(5.0, rel=1e-4)
+    assert fit.params["s"] == pytest.approx(0.25, rel=1e-4)
+    assert predict(fit, 7 * DAY).value / MPA == pytest.approx(3.894, abs=1e-3)
+
+
+def test_standard_errors_match_scipy_curve_fit():
+    # Reference: scipy.optimize.curve_fit (absolute_sigma=False gives s²(JᵀWJ)⁻¹), same
+    # weights (sigma = mean at age, the module's relative weighting).
+    t, y = _data("en1992_age", [5.0, 0.3], EARLY, cv=0.06, seed=3)
+    fit = fit_model("en1992_age", t, y)
+    td, ym = t / DAY, y / MPA
+    means = {a: ym[td == a].mean() for a in np.unique(td)}
+    sig = np.array([means[a] for a in td])
+    p, pcov = optimize.curve_fit(lambda tt, f28, s: f28 * np.exp(s * (1 - np.sqrt(28 / tt))),
+                                 td, ym, p0=[4, 0.2], sigma=sig, absolute_sigma=False)
+    assert fit.params["f28"] / MPA == pytest.approx(p[0], rel=1e-4)
+    assert fit.params["s"] == pytest.approx(p[1], rel=1e-4)
+    assert fit.std_errors["f28"] / MPA == pytest.approx(math.sqrt(pcov[0, 0]), rel=1e-3)
+    assert fit.std_errors["s"] == pytest.approx(math.sqrt(pcov[1, 1]), rel=1e-3)
+
+
+def test_hyperbolic_fit_recovers_parameters():
+    t, y = _data("hyperbolic", [8.0, 20.0], EARLY + [56, 90], cv=0.03, seed=5)
+    fit = fit_model("hyperbolic", t, y)
+    assert fit.params["f_inf"] / MPA == pytest.approx(8.0, rel=0.15)
+    assert fit.params["k"] / DAY == pytest.approx(20.0, rel=0.25)
+    # the truth lies within about 3 standard errors (invented data, fixed seed)
+    assert abs(fit.params["f_inf"] / MPA - 8.0) < 3 * fit.std_errors["f_inf"] / MPA
+
+
+@pytest.mark.parametrize("model, x, ages", [
+    ("en1992_age", [5.0, 0.3], EARLY),
+    ("hyperbolic", [8.0, 20.0], EARLY),
+    ("two_component", [1.5, 1 / 24, 10.0, 90.0, 1.2], EARLY + [56, 90]),
+])
+def test_confidence_band_coverage_over_200_seeds(model, x, ages):
+    # Definition of a 95 % confidence band: over repeated samples the true mean curve lies
+    # inside it about 95 % of the time.  200 seeds: binomial SE 1.5 points; the delta
+    # method is approximate, so the window is 0.85-0.99 at 28 d and up to 4x the last age.
+    at = np.array([28.0, 2 * ages[-1], 4 * ages[-1]])
+    truth = sm.MODELS[model].f(np.asarray(x, float), at) * MPA
+    hits = np.zeros(at.size)
+    for seed in range(200):
+        fit = fit_model(model, *_data(model, x, ages, cv=0.06, seed=seed))
+        _, lo, hi = curve(fit, at * DAY)
+        hits += (lo <= truth) & (truth <= hi)
+    assert np.all(hits / 200 >= 0.85) and np.all(hits / 200 <= 0.99), hits / 200
+
+
+TRUE_TWO = [1.5, 1 / 24, 10.0, 90.0, 1.2]    # fA MPa, tauA d (1 h), fS MPa, tauS d, b
+
+
+def test_two_component_attributes_strength_to_the_right_stage():
+    # Common practice (DOMAIN primer sec. 1): the aluminate part gives < 2 MPa in the first
+    # day; the silicate (C2S) part dominates only after about four weeks and grows for months.
+    t, y = _data("two_component", TRUE_TWO, EARLY + [56, 90], cv=0.05, seed=11)
+    assert y[t == DAY].mean() < 2 * MPA
+    sel = fit_all(t, y)
+    assert sel.best.model == "two_component"
+    fit = sel.best
+    assert fit.params["f_A"] / MPA == pytest.approx(1.5, rel=0.2)
+    assert "tau_A" in fit.fixed and "held" in fit.notes[0]
+    parts = components(fit, np.array([1, 3, 56, 90, 365]) * DAY)
+    al, si = parts["aluminate"], parts["silicate"]
+    assert al[0] > si[0] and al[1] > si[1]              # early strength is aluminate
+    assert np.all(si[2:] > al[2:]) and si[-1] > 3 * al[-1]   # later strength is silicate
+    total = predict(fit, 90 * DAY).value
+    assert al[3] + si[3] == pytest.approx(total, rel=1e-9)
+
+
+def test_two_component_fits_tau_a_with_early_ages():
+    # Ages of 1 h, 3 h and 6 h resolve the aluminate time constant (true 2 h, invented data).
+    x = [1.5, 2 / 24, 10.0, 90.0, 1.2]
+    t, y = _data("two_component", x, [1 / 24, 3 / 24, 6 / 24, 1, 3, 7, 28, 90], cv=0.03, seed=2)
+    fit = fit_model("two_component", t, y)
+    assert "tau_A" in fit.params and not fit.fixed
+    assert fit.params["tau_A"] / 3600 == pytest.approx(2.0, rel=0.35)
+    assert 60 <= fit.params["tau_A"] <= 12 * 3600
+
+
+def test_refusal_says_what_is_needed():
+    t, y = _data("two_component", TRUE_TWO, [1, 7, 28, 90], cv=0.05)
+    with pytest.raises(StrengthFitError, match="4 parameters and needs results at >= 5 "
+                                               "distinct ages; got 4"):
+        fit_model("two_component", t, y)
+    t, y = _data("en1992_age", [5.0, 0.3], [7, 28], cv=0.05)
+    with pytest.raises(StrengthFitError, match="needs results at >= 3 distinct ages; got 2"):
+        fit_model("en1992_age", t, y)
+    sel = fit_all(t, y)
+    assert sel.best is None and sel.reasoning.startswith("not assessed")
+    with pytest.raises(StrengthFitError, match=">= 2 distinct ages; got 1"):
+        fit_all([28 * DAY] * 3, [4e6, 4.2e6, 4.1e6])
+
+
+def test_fit_all_lists_unsupported_models_and_ranks_the_rest():
+    t, y = _data("en1992_age", [5.0, 0.3], [3, 7, 28], cv=0.05, seed=4)
+    sel = fit_all(t, y)
+    assert "two_component" in sel.not_assessed
+    assert "distinct ages" in sel.not_assessed["two_component"]
+    assert sel.best is not None and "AICc" in sel.reasoning
+    assert sum(sel.akaike_weights.values()) == pytest.approx(1.0)
+
+
+@pytest.mark.parametrize("ages, values, words", [
+    ([DAY, 7 * DAY, 28 * DAY], [3e6, 3e6, 3e6], "all results are equal"),
+    ([DAY, 7 * DAY, 28 * DAY], [0.0, 2e6, 3e6], "greater than zero"),
+    ([DAY, 7 * DAY, 28 * DAY], [1e6, float("nan"), 3e6], "finite"),
+    ([0.0, 7 * DAY, 28 * DAY], [1e6, 2e6, 3e6], "ages must be greater than zero"),
+    ([DAY, 7 * DAY], [1e6, 2e6, 3e6], "one age per result"),
+])
+def test_bad_data_give_clear_errors(ages, values, words):
+    for model in sm.MODELS:
+        with pytest.raises(StrengthFitError, match=words):
+            fit_model(model, ages, values)
+
+
+def test_aicc_differences_match_scipy_normal_log_likelihood():
+    # AICc = -2 ln L + 2k + 2k(k+1)/(n-k-1), ln L from scipy.stats.norm.logpdf of the
+    # weighted residuals at the MLE sigma² = RSS/n (k = parameters + 1).
+    t, y = _data("two_component", TRUE_TWO, EARLY + [56, 90], cv=0.05, seed=8)
+    sel = fit_all(t, y)
+    ref = {}
+    td, ym = t / DAY, y / MPA
+    w = 1 / np.array([ym[td == a].mean() for a in td])
+    for fit in sel.fits:
+        r = (sm.MODELS[fit.model].f(np.array(fit.x), td) - ym) * w
+        n, k = r.size, len(fit.params) + 1
+        lnl = stats.norm.logpdf(r, scale=math.sqrt(np.mean(r ** 2))).sum()
+        ref[fit.model] = -2 * lnl + 2 * k + 2 * k * (k + 1) / (n - k - 1)
+    base = sel.fits[0].model
+    for fit in sel.fits:
+        assert sel.delta_aicc[fit.model] == pytest.approx(ref[fit.model] - ref[base], abs=1e-6)
+
+
+def test_parsimony_rule_prefers_fewer_parameters_within_two():
+    # Data from the EN 1992 function: the two-parameter curves should be chosen.
+    t, y = _data("en1992_age", [5.0, 0.3], EARLY + [56, 90], cv=0.05, seed=1)
+    sel = fit_all(t, y)
+    assert len(sel.best.params) == 2
+    assert all(f.aicc >= sel.best.aicc - 2.0 for f in sel.fits)
+
+
+def test_prediction_flags_and_limits_extrapolation():
+    t, y = _data("en1992_age", [5.0, 0.3], EARLY, cv=0.05, seed=6)
+    fit = fit_model("en1992_age", t, y)
+    inside, year = predict(fit, 14 * DAY), predict(fit, 365 * DAY)
+    assert not inside.extrapolated and year.extrapolated
+    assert inside.lower < inside.value < inside.upper
+    assert "delta method" in year.method
+    assert all(math.isfinite(v) for v in (year.value, year.lower, year.upper))
+    with pytest.raises(StrengthExtrapolationError, match=r"limited to .*-420 d"):
+        predict(fit, 450 * DAY)          # 16x the last age (28 d); limit 15x = 420 d
+    with pytest.raises(StrengthFitError, match="positive"):
+        predict(fit, -DAY)
+
+
+def test_noise_free_fit_gives_finite_zero_width_band_not_nan():
+    t, y = _data("hyperbolic", [8.0, 20.0], EARLY, cv=0.0)
+    fit = fit_model("hyperbolic", t, y)
+    v, lo, hi = curve(fit, np.array([1, 28, 365]) * DAY)
+    assert np.all(np.isfinite(np.concatenate([v, lo, hi])))
+    assert np.allclose(hi - lo, 0, atol=1e3)      # < 0.001 MPa
+    assert fit.aicc is not None and math.isfinite(fit.aicc)
+
+
+def test_plain_names_and_units_of_parameters():
+    t, y = _data("two_component", TRUE_TWO, EARLY + [56, 90], cv=0.05, seed=11)
+    fit = fit_model("two_component", t, y)
+    assert fit.units["f_S"] == "Pa" and fit.units["tau_S"] == "s"
+    assert set(fit.std_errors) <= set(fit.params)
+    assert all(math.isfinite(v) and v >= 0 for v in fit.std_errors.values())

@@ -1,0 +1,156 @@
+"""Statistics of one group of strength results: summary, EN 1990 Annex D, Grubbs."""
+import math
+import statistics
+
+import numpy as np
+import pytest
+from scipy import stats
+
+from specgen import refdata
+from specgen.science.strength_stats import (
+    StrengthInputError, characteristic_value, check_plausible, grubbs_critical, grubbs_screen,
+    kn_factor, kn_from_table, summarise)
+
+MPA = 1e6
+KN = refdata.load("en1990_kn").data    # EN 1990 Annex D Table D1 (from memory)
+
+
+def test_summary_matches_statistics_module():
+    # Reference: Python's statistics module (sample SD, n - 1).
+    x = [4.1e6, 4.6e6, 5.2e6, 4.9e6]
+    s = summarise(x)
+    assert s.n == 4
+    assert s.mean == pytest.approx(statistics.mean(x))
+    assert s.sd == pytest.approx(statistics.stdev(x))
+    assert s.cv == pytest.approx(statistics.stdev(x) / statistics.mean(x))
+    assert (s.minimum, s.maximum) == (4.1e6, 5.2e6)
+
+
+def test_single_result_has_zero_sd_not_nan():
+    s = summarise([3.0e6])
+    assert (s.sd, s.cv) == (0.0, 0.0)
+
+
+@pytest.mark.parametrize("bad, words", [
+    ([], "no strength results"),
+    ([2e6, 0.0, 3e6], "greater than zero"),
+    ([2e6, -1e6], "greater than zero"),
+    ([2e6, float("nan")], "finite"),
+])
+def test_bad_results_are_refused(bad, words):
+    with pytest.raises(StrengthInputError, match=words):
+        summarise(bad)
+
+
+# EN 1990 Annex D Table D1 (from memory); the table rounds u(0.95) to 1.64 and to two
+# decimals, and its n = 20 'unknown' entry (1.76) sits 0.012 below the formula (1.772).
+@pytest.mark.parametrize("i", range(len(KN["n"])))
+def test_kn_formula_against_table_d1(i):
+    n = KN["n"][i]
+    if math.isinf(n):
+        # n -> infinity: k_n -> u(0.95) = 1.645 (scipy.stats.norm); Table D1: 1.64
+        assert stats.norm.ppf(0.95) == pytest.approx(KN["vx_known"][i], abs=0.006)
+        assert KN["vx_unknown"][i] == KN["vx_known"][i]
+        return
+    assert kn_factor(n, True) == pytest.approx(KN["vx_known"][i], abs=0.02)
+    if KN["vx_unknown"][i] is not None:
+        assert kn_factor(n, False) == pytest.approx(KN["vx_unknown"][i], abs=0.015)
+
+
+def test_kn_n3_unknown_variance_against_scipy_t():
+    # EN 1990 Table D1 (from memory): n = 3, Vx unknown -> 3.37;
+    # scipy.stats.t: t(0.95, 2) = 2.920 -> 2.920 * sqrt(4/3) = 3.372
+    k = kn_factor(3, False)
+    assert k == pytest.approx(stats.t.ppf(0.95, 2) * math.sqrt(1 + 1 / 3), rel=1e-12)
+    assert k == pytest.approx(3.37, abs=0.005)
+    assert kn_from_table(3, KN, known_variance=False) == 3.37
+
+
+def test_kn_table_interpolates_in_one_over_n():
+    # n = 7 lies between the tabulated 6 (2.18) and 8 (2.00); linear in 1/n:
+    # (1/6 - 1/7) / (1/6 - 1/8) = 0.5714 of the way from 2.18 to 2.00 -> 2.0771
+    assert kn_from_table(7, KN, known_variance=False) == pytest.approx(2.0771, abs=1e-4)
+    assert kn_from_table(10_000, KN, known_variance=True) == pytest.approx(1.64, abs=1e-3)
+    with pytest.raises(StrengthInputError, match="no k_n for n = 2"):
+        kn_from_table(2, KN, known_variance=False)
+
+
+def test_characteristic_value_worked_by_hand():
+    # By hand: 4.0, 4.5, 5.0 MPa -> mean 4.5, s = 0.5; unknown variance
+    #   k_3 = 3.372 (scipy.stats.t, see above) -> fk = 4.5 - 3.372*0.5 = 2.814 MPa
+    cv = characteristic_value([4.0e6, 4.5e6, 5.0e6])
+    assert cv.value / MPA == pytest.approx(2.814, abs=0.001)
+    assert cv.variance == "unknown" and "EN 1990" in cv.basis
+    # Known sigma 0.3 MPa: k = 1.6449*sqrt(4/3) = 1.8993 -> fk = 4.5 - 0.5698 = 3.930 MPa
+    kv = characteristic_value([4.0e6, 4.5e6, 5.0e6], sigma=0.3e6)
+    assert kv.value / MPA == pytest.approx(3.930, abs=0.001)
+    # Table D1 factor passed in instead of the formula: 4.5 - 3.37*0.5 = 2.815
+    tv = characteristic_value([4.0e6, 4.5e6, 5.0e6], k_n=kn_from_table(3, KN, False))
+    assert tv.value / MPA == pytest.approx(2.815, abs=1e-9)
+
+
+def test_characteristic_value_needs_two_results_for_unknown_variance():
+    with pytest.raises(StrengthInputError, match="at least 2 results"):
+        characteristic_value([4.0e6])
+    assert characteristic_value([4.0e6], sigma=0.2e6).value == pytest.approx(
+        4.0e6 - stats.norm.ppf(0.95) * math.sqrt(2) * 0.2e6)
+
+
+# Grubbs two-sided critical values at alpha = 0.05, ASTM E178 table (upper 2.5 % one-sided
+# column), from memory.
+@pytest.mark.parametrize("n, g", [(3, 1.155), (4, 1.481), (5, 1.715), (6, 1.887),
+                                  (7, 2.020), (8, 2.126), (10, 2.290)])
+def test_grubbs_critical_values(n, g):
+    assert grubbs_critical(n, 0.05) == pytest.approx(g, abs=0.002)
+
+
+def test_grubbs_critical_has_stated_size_by_simulation():
+    # Definition of the test (reference: numpy normal samples): under H0 a fraction
+    # alpha of samples of n = 5 gives G > G_crit.  200 000 samples: SE of 0.05 is 0.0005.
+    rng = np.random.default_rng(1)
+    x = rng.standard_normal((200_000, 5))
+    g = np.max(np.abs(x - x.mean(1, keepdims=True)), 1) / x.std(1, ddof=1)
+    assert np.mean(g > grubbs_critical(5, 0.05)) == pytest.approx(0.05, abs=0.002)
+
+
+def test_grubbs_flags_with_reason_and_keeps_the_rest():
+    # By hand: 10.0 10.2 9.9 10.1 13.0 MPa: mean 10.64; squared deviations
+    #   0.4096 + 0.1936 + 0.5476 + 0.2916 + 5.5696 = 7.012 -> s = sqrt(7.012/4) = 1.3240,
+    #   G = (13.0 - 10.64)/1.3240 = 1.782 > G_crit(5) = 1.715
+    vals = [10.0e6, 10.2e6, 9.9e6, 10.1e6, 13.0e6]
+    scr = grubbs_screen(vals)
+    assert scr.assessed and len(scr.flagged) == 1
+    f = scr.flagged[0]
+    assert (f.index, f.value) == (4, 13.0e6)
+    assert scr.statistic == pytest.approx(1.782, abs=0.001)
+    assert scr.critical == pytest.approx(1.715, abs=0.001)
+    assert "G = 1.782 > G_crit = 1.715" in f.reason
+    assert [k.index for k in scr.kept] == [0, 1, 2, 3]
+    assert len(scr.kept) + len(scr.flagged) == len(vals)    # nothing vanishes
+
+
+def test_grubbs_no_outlier_and_small_groups():
+    scr = grubbs_screen([4.0e6, 4.2e6, 4.1e6, 4.3e6])
+    assert scr.flagged == () and len(scr.kept) == 4 and "no outlier" in scr.message
+    small = grubbs_screen([4.0e6, 9.0e6])
+    assert not small.assessed and len(small.kept) == 2
+    assert "needs at least 3 values" in small.message
+    equal = grubbs_screen([4.0e6] * 4)
+    assert equal.flagged == () and equal.statistic == 0.0
+
+
+def test_grubbs_repeated_screen():
+    vals = [10.0, 10.1, 9.9, 10.05, 9.95, 10.02, 14.0, 13.0]
+    once = grubbs_screen([v * 1e6 for v in vals])
+    again = grubbs_screen([v * 1e6 for v in vals], iterate=True)
+    assert len(again.flagged) >= len(once.flagged)
+    assert {f.index for f in once.flagged} <= {f.index for f in again.flagged}
+
+
+def test_psi_entered_as_mpa_is_flagged():
+    # common practice plausible range (content/data/strength_classes.yaml); 1 MPa = 145 psi,
+    # so 725 psi (5 MPa) typed under an MPa heading reads as 725 MPa.
+    rng = refdata.load("strength_classes").data["plausible_range"]["compressive"]
+    msgs = check_plausible([5.0e6, 725e6], rng["low_mpa"] * MPA, rng["high_mpa"] * MPA)
+    assert len(msgs) == 1 and "psi" in msgs[0] and msgs[0].startswith("result 2")
+    assert check_plausible([0.3e6, 25e6], rng["low_mpa"] * MPA, rng["high_mpa"] * MPA) == []
