@@ -69,10 +69,24 @@ def parse_unit(text: str, kind: str) -> pint.Unit:
     return unit
 
 
-def to_si(value: float, unit_text: str, kind: str) -> float:
-    """Convert a number given in ``unit_text`` to the SI unit of ``kind``."""
+@lru_cache(maxsize=512)
+def _affine(unit_text: str, kind: str) -> tuple[float, float]:
+    """(scale, offset) with SI = scale·value + offset; every unit conversion is affine."""
     unit = parse_unit(unit_text, kind)
-    return float(ureg.Quantity(float(value), unit).to(KINDS[kind].si).magnitude)
+    si = KINDS[kind].si
+    zero = float(ureg.Quantity(0.0, unit).to(si).magnitude)
+    one = float(ureg.Quantity(1.0, unit).to(si).magnitude)
+    return one - zero, zero
+
+
+def to_si(value: float, unit_text: str, kind: str) -> float:
+    """Convert a number given in ``unit_text`` to the SI unit of ``kind``.
+
+    pint is asked once per unit for the conversion's scale and offset (cached), so a
+    lab table of thousands of rows converts at the cost of a multiplication each.
+    """
+    scale, offset = _affine(unit_text, kind)
+    return scale * float(value) + offset
 
 
 def parse(text: object, kind: str, *, default_unit: str | None = None) -> float:

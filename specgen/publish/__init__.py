@@ -2,6 +2,9 @@
 from __future__ import annotations
 
 import hashlib
+import json
+import os
+import shutil
 from pathlib import Path
 
 from specgen.errors import PublishError
@@ -18,46 +21,26 @@ def pdf_name(project) -> str:
 
 
 def publish(project, results, pages, out: Path, *, page_size: str = "a4",
-            progress=lambda s: None, changes: dict | None = None) -> Path:
-    """Write site + PDF + results.json into a staging folder, then move it into place."""
-    from specgen.publish.pdf import to_html, write_pdf
-    from specgen.publish.site import build_site
+            progress=lambda s: None, changes: dict | None = None, parallel: bool = True) -> Path:
+    """Write site + PDF + results.json into a staging folder, then move it into place.
+
+    With ``parallel`` the site is built in a forked process while this one renders the
+    PDF: the two engines share nothing, and the machine has two cores.
+    """
     rev = project.revision
     target = out / rev.code
     refuse_if_issued(target, project.inputs)
     staging = staging_dir(out, rev.code)
     try:
-        progress("publish: site")
-        build_site(pages, staging, f"{project.dossier.project.title} — {rev.code}")
-        progress("publish: PDF")
-        results_json = results.to_json().encode("utf-8")
-        (staging / "results.json").write_bytes(results_json)
-        if changes is not None:
-            import json
-            (staging / "changes.json").write_text(
-                json.dumps(changes, indent=2, sort_keys=True, ensure_ascii=False) + "\n",
-                encoding="utf-8")
-        html = to_html(pages, _print_context(project))
-        attachments = {"results.json": results_json}
-        for f in project.inputs:
-            attachments[f"input/{f.path}"] = (project.root / f.path).read_bytes()
-        ident = hashlib.sha256(f"{project.dossier.project.code}/{rev.code}".encode()).digest()[:16]
-        write_pdf(pages, html, staging / pdf_name(project), attachments=attachments,
-                  page_size=page_size, identifier=ident, stamp=_stamp(rev.date))
-        write_manifest(staging, project.inputs, {
-            "project": project.dossier.project.code, "revision": rev.code,
-            "status": rev.status, "date": rev.date.isoformat(), "format": "specgen-manifest/1",
-            "description": rev.description})
+        _publish_into(staging, project, results, pages, page_size, progress, changes, parallel)
         progress("publish: moving the revision into place")
         move_into_place(staging, target)
     except OSError as exc:
-        import shutil
         shutil.rmtree(staging, ignore_errors=True)
         raise PublishError(f"{out}: the revision could not be written ({exc.strerror or exc}); "
                            "nothing was changed in the output folder. Fix: free disk space or "
                            "choose a writable folder with --out.") from exc
     except BaseException:
-        import shutil
         shutil.rmtree(staging, ignore_errors=True)
         raise
     try:
@@ -67,6 +50,73 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
                            f"not be updated ({exc.strerror or exc}). Fix: free disk space and "
                            "build again.") from exc
     return target
+
+
+def _publish_into(staging, project, results, pages, page_size, progress, changes, parallel):
+    from specgen.publish.pdf import to_html, write_pdf
+    from specgen.publish.site import build_site
+    rev = project.revision
+    name = f"{project.dossier.project.title} — {rev.code}"
+    progress("publish: site" + (" and PDF in parallel" if parallel else ""))
+    child = _fork(build_site, pages, staging, name) if parallel else None
+    if child is None:
+        build_site(pages, staging, name)
+    progress("publish: PDF")
+    results_json = results.to_json().encode("utf-8")
+    attachments = {"results.json": results_json}
+    for f in project.inputs:
+        attachments[f"input/{f.path}"] = (project.root / f.path).read_bytes()
+    ident = hashlib.sha256(f"{project.dossier.project.code}/{rev.code}".encode()).digest()[:16]
+    pdf_tmp = staging.with_name(staging.name + ".pdf")  # beside the site: MkDocs empties its folder
+    try:
+        write_pdf(pages, to_html(pages, _print_context(project)), pdf_tmp, attachments=attachments,
+                  page_size=page_size, identifier=ident, stamp=_stamp(rev.date))
+        if child is not None:
+            _join(child)
+        os.replace(pdf_tmp, staging / pdf_name(project))
+    finally:
+        if pdf_tmp.exists():
+            pdf_tmp.unlink()
+    (staging / "results.json").write_bytes(results_json)
+    if changes is not None:
+        (staging / "changes.json").write_text(
+            json.dumps(changes, indent=2, sort_keys=True, ensure_ascii=False) + "\n",
+            encoding="utf-8")
+    write_manifest(staging, project.inputs, {
+        "project": project.dossier.project.code, "revision": rev.code,
+        "status": rev.status, "date": rev.date.isoformat(), "format": "specgen-manifest/1",
+        "description": rev.description})
+
+
+def _child(fn, args, conn) -> None:
+    try:
+        fn(*args)
+        conn.send(None)
+    except BaseException as exc:  # reported to the parent, which raises it as ours
+        conn.send(f"{type(exc).__name__}: {exc}")
+    finally:
+        conn.close()
+
+
+def _fork(fn, *args):
+    """Run ``fn(*args)`` in a forked process; ``None`` where fork is unavailable."""
+    import multiprocessing
+    if "fork" not in multiprocessing.get_all_start_methods():
+        return None
+    ctx = multiprocessing.get_context("fork")
+    parent, child = ctx.Pipe(duplex=False)
+    proc = ctx.Process(target=_child, args=(fn, args, child), daemon=True)
+    proc.start()
+    child.close()
+    return proc, parent
+
+
+def _join(handle) -> None:
+    proc, conn = handle
+    error = conn.recv() if conn.poll(None) else "the site process ended without a word"
+    proc.join()
+    if error or proc.exitcode:
+        raise PublishError(f"the site could not be built: {error or proc.exitcode}")
 
 
 def _stamp(date):

@@ -45,7 +45,10 @@ def recover(out: Path) -> None:
     for d in sorted(out.glob(".old-*")) + sorted(out.glob(".staging-*")):
         parts = d.name.split("-")  # .old-<pid>-<revision> / .staging-<pid>-<revision>-<random>
         pid = int(parts[1]) if len(parts) > 2 and parts[1].isdigit() else None
-        if pid is not None and pid != os.getpid() and _alive(pid):
+        if pid is not None and _alive(pid):
+            continue  # a build still running (this process included) owns it
+        if d.is_file():  # a PDF rendered beside its staging folder
+            d.unlink(missing_ok=True)
             continue
         if d.name.startswith(".old-"):
             target = out / "-".join(parts[2:])
