@@ -144,3 +144,30 @@ def test_bad_build_writes_nothing_and_keeps_earlier_build(cli, demo_copy, demo_b
     assert "Traceback" not in result.output
     assert _tree_hashes(demo_build) == before
     assert not [p for p in demo_build.iterdir() if p.name.startswith(".")]
+
+
+def test_sieve_passing_above_100(cli, demo_copy):
+    edit(demo_copy / "lab/sieves.csv", "S1,2.36,92", "S1,2.36,192")
+    out = run_check(cli, demo_copy)
+    assert ("lab/sieves.csv, row 3: passing: passing must lie between 0 and 100 %; found 192 %. "
+            "Fix: give the cumulative percentage passing.") in out
+
+
+def test_sieve_table_without_retained_or_passing(cli, demo_copy):
+    (demo_copy / "lab/sieves.csv").write_text("sample,sieve [mm]\nS1,4.75\n", encoding="utf-8")
+    out = run_check(cli, demo_copy)
+    assert ("lab/sieves.csv, row 1: needs a column 'retained' (mass on each sieve) or 'passing' "
+            "(cumulative %). Fix: add e.g. 'retained [g]' or 'passing [%]'.") in out
+
+
+def test_colour_lightness_out_of_range(cli, demo_copy):
+    edit(demo_copy / "lab/colour.csv", "HM1,61.8,", "HM1,161.8,")
+    out = run_check(cli, demo_copy)
+    assert ("lab/colour.csv, row 2: L: L* must lie between 0 and 100; found 161.8. Fix: check the "
+            "column order (L*, a*, b*) and the instrument's export.") in out
+
+
+def test_colour_unknown_illuminant(cli, demo_copy):
+    edit(demo_copy / "lab/colour.csv", "HM1,61.8,3.9,14.2,D65", "HM1,61.8,3.9,14.2,D66")
+    out = run_check(cli, demo_copy)
+    assert "lab/colour.csv, row 2: illuminant: 'D66' is not allowed here. Fix: did you mean 'D65'?" in out

@@ -10,7 +10,8 @@ from pydantic import BaseModel, ValidationError
 from specgen.errors import ProblemLog, did_you_mean
 from specgen.project import schema
 from specgen.project.files import Located, read_csv, read_yaml
-from specgen.project.tables import StrengthResult, strength_results
+from specgen.project.tables import (ColourReading, SieveRow, StrengthResult, colour_rows,
+                                    sieve_rows, strength_results)
 
 ROOT_FILE = "dossier.yaml"
 # file name → (model, required); the folder layout is fixed so every project reads alike.
@@ -23,6 +24,8 @@ DOCUMENTS: dict[str, tuple[type[BaseModel], bool]] = {
 }
 ARCHIVE_DIR = "issued"  # issued/<revision>/: the inputs of earlier issued revisions
 STRENGTH_FILE = "lab/strength.csv"
+# tabular lab data: file → reader of typed rows (and the Project field it fills)
+TABLES = {"lab/sieves.csv": ("sieves", sieve_rows), "lab/colour.csv": ("colours", colour_rows)}
 NARRATIVE_DIR = "narrative"
 # An analysis whose total is this far from 100 % is a transcription or unit error, not chemistry.
 TOTAL_WINDOW = (85.0, 115.0)
@@ -52,6 +55,8 @@ class Project:
     strength: list[StrengthResult] = field(default_factory=list)
     narrative: dict[str, str] = field(default_factory=dict)
     comments: list[schema.Comment] = field(default_factory=list)
+    sieves: list[SieveRow] = field(default_factory=list)
+    colours: list[ColourReading] = field(default_factory=list)
     inputs: list[InputFile] = field(default_factory=list)
 
     @property
@@ -170,9 +175,15 @@ def load_project(root: Path | str) -> Project:
         table = read_csv(root / STRENGTH_FILE, STRENGTH_FILE, log)
         if table is not None:
             strength = strength_results(table, STRENGTH_FILE, log)
+    tables = {}
+    for rel, (attr, reader) in TABLES.items():
+        if (root / rel).is_file() and (table := read_csv(root / rel, rel, log)) is not None:
+            tables[attr] = reader(table, rel, log)
     if docs.get(ROOT_FILE) is None:
         log.raise_if_any()
     project = _assemble(root, docs, strength, log)
+    for attr, rows in tables.items():
+        setattr(project, attr, rows)
     from specgen.project.crossref import check_references
     failed = {name for name in DOCUMENTS if (root / name).is_file() and docs.get(name) is None}
     check_references(project, located, log, failed)

@@ -140,3 +140,93 @@ def strength_results(table: CsvTable, rel: str, log: ProblemLog) -> list[Strengt
         out.append(StrengthResult(v["specimen"], v["mix"], v["age"], v["test"], v["value"],
                                   v["curing_temperature"], row, rel))
     return out
+
+
+@dataclass(frozen=True)
+class SieveRow:
+    """One sieve of a sieve analysis: aperture (m) and mass retained (kg) or fraction passing."""
+
+    sample: str
+    sieve: float
+    retained: float | None
+    passing: float | None
+    row: int
+    file: str
+
+
+@dataclass(frozen=True)
+class ColourReading:
+    """One CIELAB reading of a sample (L*, a*, b*) with its illuminant and observer."""
+
+    sample: str
+    L: float
+    a: float
+    b: float
+    illuminant: str
+    observer: str
+    row: int
+    file: str
+
+
+SIEVE_COLUMNS = (
+    Column("sample", description="sample id: a sand (materials.yaml) or a historic aggregate"),
+    Column("sieve", "length", description="sieve aperture, e.g. 'sieve [mm]'"),
+    Column("retained", "mass", required=False, description="mass retained on the sieve, e.g. 'retained [g]'"),
+    Column("passing", "fraction", required=False, description="cumulative passing, e.g. 'passing [%]'"),
+)
+COLOUR_COLUMNS = (
+    Column("sample", description="sample id: a trial panel, a mix or a historic mortar"),
+    Column("L", "dimensionless", description="CIELAB L* (0–100), header 'L [1]'"),
+    Column("a", "dimensionless", description="CIELAB a*, header 'a [1]'"),
+    Column("b", "dimensionless", description="CIELAB b*, header 'b [1]'"),
+    Column("illuminant", required=False, choices=("D65", "D50", "C", "A", "F2", "F11"),
+           description="illuminant of the reading (default D65)"),
+    Column("observer", required=False, choices=("2", "10"), description="standard observer, degrees"),
+)
+
+
+def typed_rows(table: CsvTable, columns, rel: str, log: ProblemLog) -> list[tuple[int, dict]]:
+    """Rows as {column: SI value or text}; rows missing a required cell are left out."""
+    found = map_headers(table, columns, rel, log)
+    out = []
+    for row, rec in table.rows:
+        v = {c.name: cell(rec, c, found, rel, row, log) for c in columns}
+        if all(v[c.name] is not None for c in columns if c.required):
+            out.append((row, v))
+    return out
+
+
+def sieve_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[SieveRow]:
+    """Sieve analyses; each row gives a mass retained or a percentage passing (0–100 %)."""
+    names = {units.split_header(h)[0] for h in table.headers}
+    if not names & {"retained", "passing"}:
+        log.add(rel, "needs a column 'retained' (mass on each sieve) or 'passing' (cumulative %).",
+                row=1, fix="add e.g. 'retained [g]' or 'passing [%]'.")
+        return []
+    out = []
+    for row, v in typed_rows(table, SIEVE_COLUMNS, rel, log):
+        if v["sieve"] <= 0:
+            log.add(rel, "sieve aperture must be greater than zero.", row=row, field="sieve")
+        elif v["passing"] is not None and not 0 <= v["passing"] <= 1:
+            log.add(rel, f"passing must lie between 0 and 100 %; found {v['passing'] * 100:g} %.",
+                    row=row, field="passing", fix="give the cumulative percentage passing.")
+        elif v["retained"] is not None and v["retained"] < 0:
+            log.add(rel, "mass retained cannot be negative.", row=row, field="retained")
+        else:
+            out.append(SieveRow(v["sample"], v["sieve"], v["retained"], v["passing"], row, rel))
+    return out
+
+
+def colour_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[ColourReading]:
+    """CIELAB readings; L* must lie in 0–100 and a*, b* within ±128."""
+    out = []
+    for row, v in typed_rows(table, COLOUR_COLUMNS, rel, log):
+        if not 0 <= v["L"] <= 100:
+            log.add(rel, f"L* must lie between 0 and 100; found {v['L']:g}.", row=row, field="L",
+                    fix="check the column order (L*, a*, b*) and the instrument's export.")
+        elif abs(v["a"]) > 128 or abs(v["b"]) > 128:
+            log.add(rel, "a* and b* must lie within ±128.", row=row, field="a/b")
+        else:
+            out.append(ColourReading(v["sample"], v["L"], v["a"], v["b"],
+                                     v["illuminant"] or "D65", v["observer"] or "2", row, rel))
+    return out
