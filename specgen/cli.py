@@ -149,6 +149,14 @@ def names(fmt: str) -> None:
         click.echo(f"{q.name.ljust(width)}  {(q.unit or '-').ljust(8)}  {q.description}")
 
 
+@cli.command(hidden=True)
+@click.option("--runs", default=3, show_default=True, help="repetitions per measurement")
+def bench(runs: int) -> None:
+    """Developers: time check, build, re-issue and the bare toolchain (ratios in one run)."""
+    from specgen.bench import main as run_bench
+    run_bench(runs)
+
+
 def main() -> None:
     """Console entry point."""
     cli(prog_name="specgen")

@@ -1,0 +1,106 @@
+"""``specgen bench``: one run on this machine, ratios against the bare toolchain.
+
+Measures (a) ``check`` on the demo, (b) a full cold build of the demo's current
+revision, (c) a re-issue after one new lab result, (d) the floor: plain ``mkdocs
+build`` of the same Markdown (written to disk) plus a plain WeasyPrint render of the
+same print HTML, each run in sequence, (e) ``check`` on synthetic projects of
+10, 50 and 200 mixes (the growth exponent is the log–log slope of time against
+results).  Medians of ``runs`` repetitions; figures are not part of the floor, so
+the ratio (b)/(d) errs against us.
+"""
+from __future__ import annotations
+
+import math
+import shutil
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+
+def _median(fn, runs: int) -> float:
+    times = []
+    for _ in range(runs):
+        t = time.perf_counter()
+        fn()
+        times.append(time.perf_counter() - t)
+    return statistics.median(times)
+
+
+def _project_copy(demo: Path, where: Path) -> Path:
+    dst = where / "project"
+    shutil.copytree(demo, dst, ignore=shutil.ignore_patterns("issued"))
+    return dst
+
+
+def _floor(project: Path, work: Path):
+    """Bare toolchain on the same pages: mkdocs build from disk + WeasyPrint of the print HTML."""
+    from specgen.build import check
+    from specgen.publish import _print_context
+    from specgen.publish.pdf import _fetcher, to_html
+    from specgen.publish.site import BASE_CONFIG, _site_assets
+    from specgen.report.render import render
+    proj, results = check(project)
+    pages = render(proj, results)
+    docs = work / "floor-docs"
+    pages.write_to(docs)
+    for path, data in _site_assets().items():
+        (docs / path).parent.mkdir(parents=True, exist_ok=True)
+        (docs / path).write_bytes(data)
+    cfg = work / "mkdocs.yml"
+    nav = "\n".join(f"  - '{n.title}': {n.path}" for n in pages.nav)
+    cfg.write_text(BASE_CONFIG.read_text().replace("site_name: specgen dossier", "site_name: floor")
+                   + f"docs_dir: {docs}\nsite_dir: {work / 'floor-site'}\nnav:\n{nav}\n")
+    html = to_html(pages, _print_context(proj))
+
+    def run():
+        import os
+        subprocess.run([sys.executable, "-m", "mkdocs", "build", "-q", "-f", str(cfg)], check=True,
+                       cwd=BASE_CONFIG.parent, env=dict(os.environ, NO_MKDOCS_2_WARNING="1"))
+        import weasyprint
+        css = (BASE_CONFIG.parent / "content/print/print.css").read_text()
+        weasyprint.HTML(string=html, base_url="file:///specgen-pageset/",
+                        url_fetcher=_fetcher(pages)).write_pdf(
+            str(work / "floor.pdf"), stylesheets=[weasyprint.CSS(string=css)])
+    return run
+
+
+def main(runs: int = 3) -> None:
+    from specgen.build import build, check
+    from specgen.synthetic import write_project
+    demo = Path(__file__).resolve().parent.parent / "demo_project"
+    with tempfile.TemporaryDirectory(prefix="specgen-bench-") as tmp:
+        work = Path(tmp)
+        project = _project_copy(demo, work)
+        a = _median(lambda: check(project), runs)
+        outs = iter(range(1000))
+        b = _median(lambda: build(project, work / f"out{next(outs)}"), runs)
+        csv = project / "lab" / "strength.csv"
+        base = csv.read_text()
+
+        def reissue():
+            out = work / f"re{next(outs)}"
+            build(project, out)
+            csv.write_text(base + "M1-90d-C9,M1,90,compressive,7.9,20\n")
+            t = time.perf_counter()
+            build(project, out)
+            csv.write_text(base)
+            return time.perf_counter() - t
+        c = statistics.median(reissue() for _ in range(runs))
+        d = _median(_floor(project, work), runs)
+        sizes, times = [], []
+        for n in (10, 50, 200):
+            syn = write_project(work / f"syn{n}", n)
+            times.append(_median(lambda: check(syn), runs))
+            sizes.append(n * 8 * 3)
+        slope = (math.log(times[-1]) - math.log(times[0])) / (math.log(sizes[-1]) - math.log(sizes[0]))
+    print(f"(a) check, demo                      {a:7.3f} s")
+    print(f"(b) full cold build, demo            {b:7.3f} s")
+    print(f"(c) re-issue after one new result    {c:7.3f} s")
+    print(f"(d) bare toolchain floor (mkdocs + WeasyPrint, sequential) {d:7.3f} s")
+    for n, s, t in zip((10, 50, 200), sizes, times):
+        print(f"(e) check, {n:3d} mixes / {s:5d} results  {t:7.3f} s")
+    print(f"ratio (b)/(d) = {b / d:.2f}   ratio (c)/(b) = {c / b:.2f}   "
+          f"growth exponent of (e) = {slope:.2f}")
