@@ -149,6 +149,13 @@ def names(fmt: str) -> None:
         click.echo(f"{q.name.ljust(width)}  {(q.unit or '-').ljust(8)}  {q.description}")
 
 
+@cli.command("format")
+def format_reference() -> None:
+    """Print the project folder format reference (every key, type, unit, default, meaning)."""
+    from specgen.project.reference import markdown
+    click.echo(markdown(), nl=False)
+
+
 @cli.command(hidden=True)
 @click.option("--runs", default=3, show_default=True, help="repetitions per measurement")
 def bench(runs: int) -> None:

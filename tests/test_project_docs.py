@@ -82,3 +82,11 @@ def test_check_exit_code_one_on_a_failed_check(cli, demo_copy):
     result = cli("check", demo_copy)
     assert result.exit_code == 1
     assert re.search(r"CHEM-CLOSURE\s+BS-1\s+fail", result.output)
+
+
+def test_format_reference_is_generated_from_the_schema():
+    from specgen.project.reference import markdown
+    shipped = (REPO / "content" / "format-reference.md").read_text()
+    assert shipped == markdown(), "regenerate with: specgen format > content/format-reference.md"
+    for key in ("`revision.code`", "`zones[].area`", "`mixes[].binders[].parts`", "`value`"):
+        assert key in shipped

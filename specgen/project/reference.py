@@ -1,0 +1,72 @@
+"""The project folder format reference, generated from the schema (never written twice)."""
+from __future__ import annotations
+
+import typing
+
+from pydantic import BaseModel
+from pydantic_core import PydanticUndefined
+
+from specgen.project import schema
+from specgen.project.load import DOCUMENTS
+from specgen.project.tables import COLOUR_COLUMNS, SIEVE_COLUMNS, STRENGTH_COLUMNS
+
+UNIT_OF = {"Pressure": "pressure, e.g. '12 MPa'", "Length": "length, e.g. '10 mm'",
+           "Area": "area, e.g. '240 m^2'", "Density": "density, e.g. '850 kg/m^3'",
+           "Duration": "time, e.g. '28 d'", "Temperature": "temperature, e.g. '20 degC'",
+           "MassPercent": "mass %"}
+
+
+def _type_name(annotation) -> tuple[str, type[BaseModel] | None]:
+    for name, alias in vars(schema).items():
+        if name in UNIT_OF and annotation == alias:
+            return UNIT_OF[name], None
+    origin, args = typing.get_origin(annotation), typing.get_args(annotation)
+    if isinstance(annotation, type) and issubclass(annotation, BaseModel):
+        return "mapping", annotation
+    if origin is list and args:
+        inner, model = _type_name(args[0])
+        return f"list of {inner}", model
+    if origin is typing.Literal:
+        return " / ".join(map(str, args)), None
+    if args and type(None) in args:
+        inner = [a for a in args if a is not type(None)]
+        name, model = _type_name(inner[0])
+        return name + " (optional)", model
+    if origin is dict:
+        return "mapping of name → mass %", None
+    return getattr(annotation, "__name__", str(annotation)).replace("Annotated", "text"), None
+
+
+def _rows(model: type[BaseModel], prefix: str, out: list) -> None:
+    for name, info in model.model_fields.items():
+        kind, sub = _type_name(info.annotation)
+        if info.metadata and kind in ("str", "text"):
+            kind = "text"
+        if info.is_required():
+            default = "required"
+        elif info.default_factory is not None:
+            default = "empty"
+        else:
+            default = "—" if info.default in (None, PydanticUndefined) else repr(info.default)
+        out.append((f"{prefix}{name}", kind, default, info.description or ""))
+        if sub is not None:
+            _rows(sub, f"{prefix}{name}{'[]' if kind.startswith('list') else ''}.", out)
+
+
+def markdown() -> str:
+    """Every key of every project file: type/unit, default and meaning, as Markdown."""
+    lines = ["# Project folder format", "",
+             "Generated from the schema by `specgen format`; quantities are written with their unit.", ""]
+    for file, (model, required) in DOCUMENTS.items():
+        lines += [f"## `{file}`" + (" (required)" if required else ""), "",
+                  "| key | type / unit | default | meaning |", "|---|---|---|---|"]
+        rows: list = []
+        _rows(model, "", rows)
+        lines += [f"| `{k}` | {t} | {d} | {m} |" for k, t, d, m in rows] + [""]
+    for file, cols in (("lab/strength.csv", STRENGTH_COLUMNS), ("lab/sieves.csv", SIEVE_COLUMNS),
+                       ("lab/colour.csv", COLOUR_COLUMNS)):
+        lines += [f"## `{file}`", "", "| column | kind (unit in the header) | required | meaning |",
+                  "|---|---|---|---|"]
+        lines += [f"| `{c.name}` | {c.kind or ('one of ' + ', '.join(c.choices) if c.choices else 'text')} "
+                  f"| {'yes' if c.required else 'no'} | {c.description} |" for c in cols] + [""]
+    return "\n".join(lines)
