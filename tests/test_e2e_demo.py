@@ -134,3 +134,12 @@ def test_two_builds_are_byte_identical(demo_build, tmp_path):
     assert names == sorted(p.relative_to(again).as_posix() for p in again.rglob("*") if p.is_file())
     for name in names:
         assert (first / name).read_bytes() == (again / name).read_bytes(), name
+
+
+def test_wide_tables_get_a_landscape_page():
+    from specgen.publish.pdf import WIDE_COLUMNS, _landscape_wide_tables
+    head = "".join(f"<th>c{i}</th>" for i in range(WIDE_COLUMNS + 1))
+    wide = f"<table><thead><tr>{head}</tr></thead></table>"
+    narrow = "<table><thead><tr><th>a</th><th>b</th></tr></thead></table>"
+    assert _landscape_wide_tables(wide).startswith('<div class="sg-wide">')
+    assert _landscape_wide_tables(narrow) == narrow

@@ -58,6 +58,18 @@ def _relink(html: str, stem: str) -> str:
     return re.sub(r'href="([\w/-]+)\.md"', lambda m: f'href="#{_page_id(m.group(1) + ".md")}"', html)
 
 
+WIDE_COLUMNS = 12  # tables with more columns than this go on a landscape page
+
+
+def _landscape_wide_tables(html: str) -> str:
+    """Wrap wide tables in a block printed on a landscape page (``@page wide``)."""
+    def wrap(m: re.Match) -> str:
+        header = re.search(r"<tr>(.*?)</tr>", m.group(0), flags=re.S)
+        cols = len(re.findall(r"<th\b", header.group(1))) if header else 0
+        return f'<div class="sg-wide">{m.group(0)}</div>' if cols > WIDE_COLUMNS else m.group(0)
+    return re.sub(r"<table>.*?</table>", wrap, html, flags=re.S)
+
+
 def to_html(pageset, context: dict) -> str:
     """The print HTML: cover, contents, then every page in navigation order."""
     import markdown
@@ -67,6 +79,7 @@ def to_html(pageset, context: dict) -> str:
         md = markdown.Markdown(extensions=names, extension_configs=configs)
         from specgen.report.safety import neutralise_links
         body = _relink(neutralise_links(md.convert(pageset.pages[item.path])), _stem(item.path))
+        body = _landscape_wide_tables(body)
         sections.append({"id": _page_id(item.path), "title": item.title, "html": body})
     env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(PRINT_DIR)), autoescape=True)
     env.filters["safe_html"] = jinja2.utils.markupsafe.Markup
@@ -101,6 +114,7 @@ def write_pdf(pageset, html: str, target, *, attachments: dict[str, bytes], page
     import weasyprint
     css = (PRINT_DIR / "print.css").read_text(encoding="utf-8")
     css = css.replace("size: A4;", f"size: {PAGE_SIZES[page_size]};", 1)
+    css = css.replace("size: A4 landscape;", f"size: {PAGE_SIZES[page_size]} landscape;")
     doc = weasyprint.HTML(string=html, base_url=BASE, url_fetcher=_fetcher(pageset))
     files = [weasyprint.Attachment(string=data, name=name, description=name,
                                    created=stamp, modified=stamp)
