@@ -90,3 +90,12 @@ def test_format_reference_is_generated_from_the_schema():
     assert shipped == markdown(), "regenerate with: specgen format > content/format-reference.md"
     for key in ("`revision.code`", "`zones[].area`", "`mixes[].binders[].parts`", "`value`"):
         assert key in shipped
+
+
+def test_starter_comments_come_from_the_schema(tmp_path):
+    from specgen.project.schema import Revision, Zone
+    from specgen.starter import write_starter
+    write_starter(tmp_path / "p")
+    text = (tmp_path / "p" / "dossier.yaml").read_text()
+    assert f"# {Revision.model_fields['date'].description}" in text
+    assert f"# {Zone.model_fields['works'].description} (repointing | render | bedding)" in text
