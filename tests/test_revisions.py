@@ -74,10 +74,10 @@ def test_issued_revision_refuses_changed_inputs(demo_copy, tmp_path, cli):
 
 def test_comment_naming_unknown_check(demo_copy, cli):
     path = demo_copy / "comments.yaml"
-    path.write_text(path.read_text().replace("about: CHEM-CI/NHL-A", "about: CHEM-CL"))
+    path.write_text(path.read_text().replace("about: CHEM-CI/NHL-A", "about: CHEM-CJ"))
     result = cli("check", demo_copy)
     assert result.exit_code == 2
-    assert ("comments.yaml, line 17: comments[1].about: comment 'C2' is about 'CHEM-CL', which is "
+    assert ("comments.yaml, line 17: comments[1].about: comment 'C2' is about 'CHEM-CJ', which is "
             "neither a check code nor a page of the dossier. Fix: did you mean 'CHEM-CI'?") in result.output
 
 

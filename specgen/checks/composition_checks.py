@@ -1,12 +1,15 @@
 """Checks on oxide analyses: closure and the cementation index."""
 from __future__ import annotations
 
+from specgen.checks.chemistry_common import guarded, prepared, source
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Limit, Quantity, Step
 from specgen.science import oxides
 
-declare("analysis_total", "%", "sum of the reported constituents of an analysis, LOI included")
-declare("loss_on_ignition", "%", "loss on ignition as reported (mass %)")
+declare("analysis_total", "%", "sum of the reported constituents of an analysis, LOI included "
+        "(CO2 and H2O reported beside LOI counted once, as parts of it)")
+declare("loss_on_ignition", "%", "loss on ignition as reported (mass %); CO2 + H2O when no LOI "
+        "is given")
 declare("cementation_index", "", "Eckel cementation index (2.8S + 1.1A + 0.7F)/(C + 1.4M)")
 declare("hydraulicity_class", "", "band of the cementation index (Eckel's bands via Boynton)")
 
@@ -22,11 +25,11 @@ def oxide_order(name: str):
     return (ORDER.index(name) if name in ORDER else len(ORDER), name)
 
 
-def _source(analysis) -> str:
-    return f"analysis {analysis.id}" + (f" ({analysis.laboratory})" if analysis.laboratory else "")
+CLOSURE_BASIS = (Basis("common practice", note="an analysis with LOI closes near 100 %"),)
 
 
 @register("CHEM-CLOSURE", "Oxide analysis closure", "analysis", order=100)
+@guarded("CHEM-CLOSURE", "Oxide analysis closure", "analysis", CLOSURE_BASIS)
 def closure_check(analysis, ctx) -> CheckResult:
     """The reported constituents (LOI included) should add up to 100 %."""
     ox = analysis.mass_percent
@@ -34,11 +37,15 @@ def closure_check(analysis, ctx) -> CheckResult:
     ok, warn = ctx.rules["analysis.closure_pass"], ctx.rules["analysis.closure_attention"]
     gap = abs(c.deviation)
     status = "pass" if gap <= ok.value else "attention" if gap <= warn.value else "fail"
-    names = sorted(ox, key=oxide_order)
+    # The science counts CO2/H2O once when LOI is reported (they are parts of it): so does the sheet.
+    parts = [k for k in ox if "LOI" in ox and k in oxides.LOSS_KEYS[1:]]
+    names = sorted((k for k in ox if k not in parts), key=oxide_order)
+    notes = tuple(f"{k} = {ox[k]:g} % is part of LOI = {ox['LOI']:g} %: not added a second time"
+                  for k in sorted(parts, key=oxide_order))
     step = Step(
         title="Sum of reported constituents",
         formula=r"\Sigma = \sum_i w_i",
-        inputs=tuple(Input(f"w({n})", n, ox[n], "%", _source(analysis)) for n in names),
+        inputs=tuple(Input(f"w({n})", n, ox[n], "%", source(analysis)) for n in names),
         substituted=r"\Sigma = " + " + ".join(f"{ox[n]:.2f}" for n in names),
         result=round(c.total, 4), unit="%", symbol="Σ")
     msg = (f"total {c.total:.2f} %, {c.deviation:+.2f} % from 100 %; "
@@ -50,15 +57,18 @@ def closure_check(analysis, ctx) -> CheckResult:
         limit=Limit("within", 100 - ok.value, 100 + ok.value, "%",
                     f"100 ± {ok.value:g} % (attention to ± {warn.value:g} %)",
                     rule=ok.key, overridden=ok.justification or warn.justification),
-        message=msg,
+        message=msg, notes=notes,
         quantities=(Quantity("analysis_total", round(c.total, 4), "%", "sum of constituents"),
-                    Quantity("loss_on_ignition", ox.get("LOI", 0.0), "%", "loss on ignition")))
+                    Quantity("loss_on_ignition", round(oxides.loss_on_ignition(ox), 4), "%",
+                             "loss on ignition")))
 
 
 @register("CHEM-CI", "Cementation index", "analysis", order=110)
+@guarded("CHEM-CI", "Cementation index", "analysis", (ECKEL,))
 def cementation_index_check(analysis, ctx) -> CheckResult:
     """Eckel's cementation index and the hydraulicity band it falls in."""
-    ox = analysis.mass_percent
+    prep = prepared(analysis)
+    ox = prep.ox
     missing = [k for k in ("CaO", "SiO2") if k not in ox]
     if missing:
         return CheckResult(
@@ -67,7 +77,7 @@ def cementation_index_check(analysis, ctx) -> CheckResult:
             basis=(ECKEL,), message=f"not assessed: the analysis gives no {', '.join(missing)}")
     ci = oxides.cementation_index(ox)
     get = lambda k: ox.get(k, 0.0)  # noqa: E731 - oxides not reported count as zero
-    inputs = tuple(Input(sym, name, get(name), "%", _source(analysis))
+    inputs = tuple(Input(sym, name, get(name), "%", source(analysis))
                    for sym, name, _ in CI_TERMS + (("C", "CaO", 0), ("M", "MgO", 0)))
     step = Step(
         title="Cementation index (Eckel)",
@@ -84,7 +94,7 @@ def cementation_index_check(analysis, ctx) -> CheckResult:
         status=status, value=round(ci, 4), unit="", basis=(ECKEL, band["basis"]), steps=(step,),
         limit=Limit("within", band["low"], band["high"], "", f"band '{band['name']}': "
                     f"{_edges(band)}", rule="hydraulicity_bands"),
-        message=f"CI = {ci:.3f}: {message}",
+        message=f"CI = {ci:.3f}: {message}", notes=prep.assumptions,
         quantities=(Quantity("cementation_index", round(ci, 4), "", "Eckel cementation index"),
                     Quantity("hydraulicity_class", band["name"], "",
                              "band of the cementation index" + (" (borderline)"

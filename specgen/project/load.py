@@ -58,6 +58,8 @@ class Project:
     sieves: list[SieveRow] = field(default_factory=list)
     colours: list[ColourReading] = field(default_factory=list)
     inputs: list[InputFile] = field(default_factory=list)
+    firing: dict = field(default_factory=dict)  # binder id → FiringSeries (project/firing.py)
+    site_temperature: object = None  # SiteTemperature (project/site_temperature.py) or None
 
     @property
     def revision(self) -> schema.Revision:
@@ -184,6 +186,11 @@ def load_project(root: Path | str) -> Project:
     project = _assemble(root, docs, strength, log)
     for attr, rows in tables.items():
         setattr(project, attr, rows)
+    from specgen.project.firing import firing_series
+    project.firing = firing_series(root, project.binders, log)
+    from specgen.project.site_temperature import curing_temperature_problems, site_temperature
+    project.site_temperature = site_temperature(root, project.dossier, log)
+    curing_temperature_problems(project.strength, log)
     from specgen.project.crossref import check_references
     failed = {name for name in DOCUMENTS if (root / name).is_file() and docs.get(name) is None}
     check_references(project, located, log, failed)

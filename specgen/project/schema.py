@@ -10,7 +10,8 @@ from __future__ import annotations
 import datetime as dt
 from typing import Annotated, Literal
 
-from pydantic import AfterValidator, BaseModel, BeforeValidator, ConfigDict, Field
+from pydantic import (AfterValidator, BaseModel, BeforeValidator, ConfigDict, Field,
+                      field_validator, model_validator)
 
 from specgen import units
 
@@ -37,6 +38,8 @@ Area = Annotated[float, _quantity("area"), AfterValidator(_positive)]
 Density = Annotated[float, _quantity("density"), AfterValidator(_positive)]
 Duration = Annotated[float, _quantity("time"), AfterValidator(_positive)]
 Temperature = Annotated[float, _quantity("temperature")]
+MolarEnergy = Annotated[float, _quantity("molar_energy"), AfterValidator(_positive)]
+Fraction = Annotated[float, _quantity("fraction"), AfterValidator(_positive)]
 MassPercent = Annotated[float, BeforeValidator(lambda v: _percent(v)), Field(ge=0, le=100)]
 
 
@@ -101,12 +104,40 @@ class Requirements(Model):
         default_factory=list, description="minimum compressive strengths at stated ages")
     max_compressive_long_term: Pressure | None = Field(
         None, description="cap on long-term compressive strength (compatibility)")
+    load_strength: Pressure | None = Field(
+        None, description="in-wall compressive strength to reach before the work is loaded or "
+        "exposed, e.g. '1 MPa' (dated from site_temperature)")
 
 
 class RuleOverride(Model):
     rule: Text = Field(description="rule key from content/rules, e.g. analysis.closure_pass")
     value: float = Field(description="new limit, in the rule's unit")
     justification: Text = Field(min_length=10, description="why the project departs from the default")
+
+
+class ChemistrySettings(Model):
+    """Assumptions of the binder-chemistry calculations, declared once for the project."""
+
+    aluminate_assignment: Literal["amorphous", "C4AF+C3A", "C2AS gehlenite"] = Field(
+        "amorphous", description="where Al2O3/Fe2O3 go in the phase estimate below sintering")
+    density_set: Literal["bentz_nist", "rounded_practice"] = Field(
+        "bentz_nist", description="density set for hydration volumes (content/data/"
+        "cement_densities.yaml)")
+
+
+class StrengthSettings(Model):
+    """Assumptions of the strength-development calculations, declared once for the project."""
+
+    activation_energy: MolarEnergy | None = Field(
+        None, description="apparent activation energy of the binder (ASTM C1074), e.g. "
+        "'40 kJ/mol'; default from content/data/maturity_defaults.yaml")
+    maturity_method: Literal["arrhenius", "nurse_saul"] = Field(
+        "arrhenius", description="equivalent-age method used for predictions in the wall")
+    datum_temperature: Temperature | None = Field(
+        None, description="Nurse-Saul datum temperature, e.g. '-10 degC' (default -10 degC)")
+    known_cv: Fraction | None = Field(
+        None, description="replicate coefficient of variation known from a long laboratory "
+        "record, e.g. '8 %': characteristic values are then also given with known variance")
 
 
 class Dossier(Model):
@@ -120,6 +151,13 @@ class Dossier(Model):
                                        description="project requirements")
     rule_overrides: list[RuleOverride] = Field(default_factory=list,
                                                description="justified departures from rules")
+    chemistry: ChemistrySettings = Field(default_factory=ChemistrySettings,
+                                         description="assumptions of the chemistry checks")
+    strength: StrengthSettings = Field(default_factory=StrengthSettings,
+                                       description="assumptions of the strength checks")
+    site_temperature: Text | None = Field(
+        None, description="curing temperature in the wall: a constant, e.g. '8 degC', or a CSV "
+        "under lab/ with columns 'day [d]' and 'temperature [degC]' (daily means)")
 
 
 # --------------------------------------------------------------- analyses.yaml
@@ -133,6 +171,27 @@ class Analysis(Model):
     date: dt.date | None = Field(None, description="date of the analysis")
     mass_percent: dict[str, MassPercent] = Field(
         description="constituents in mass %, e.g. CaO: 41.2, LOI: 30.5")
+    lumped_split: dict[str, dict[str, float]] = Field(
+        default_factory=dict, description="declared split of a lumped oxide, e.g. "
+        "'Al2O3+Fe2O3': {Al2O3: 0.6, Fe2O3: 0.4} (fractions summing to 1)")
+
+    @field_validator("lumped_split")
+    @classmethod
+    def _split_matches(cls, value: dict, info):
+        """Each split names a lumped key of mass_percent and exactly its oxides, summing to 1."""
+        reported = info.data.get("mass_percent") or {}
+        for key, fractions in value.items():
+            if key not in reported or "+" not in key:
+                raise ValueError(f"'{key}' is not a lumped constituent of mass_percent "
+                                 "(a key such as 'Al2O3+Fe2O3')")
+            if set(fractions) != set(key.split("+")):
+                raise ValueError(f"the split of '{key}' must name {', '.join(key.split('+'))}; "
+                                 f"found {', '.join(fractions) or 'nothing'}")
+            if any(not 0 <= f <= 1 for f in fractions.values()) or \
+                    abs(sum(fractions.values()) - 1) > 1e-6:
+                raise ValueError(f"the split fractions of '{key}' must lie in 0-1 and sum to 1; "
+                                 f"they sum to {sum(fractions.values()):g}")
+        return value
 
 
 class AnalysesFile(Model):
@@ -140,6 +199,21 @@ class AnalysesFile(Model):
 
 
 # -------------------------------------------------------------- materials.yaml
+class Firing(Model):
+    """A firing record: peak temperature and/or a time-temperature CSV under lab/."""
+
+    peak: Temperature | None = Field(None, description="peak kiln temperature, e.g. '950 degC'")
+    record: Text | None = Field(None, description="CSV under lab/ with columns 'time [h]' and "
+                                "'temperature [degC]'")
+    description: Text = Field("", description="kiln, fuel, charge, who recorded it")
+
+    @model_validator(mode="after")
+    def _something_recorded(self):
+        if self.peak is None and self.record is None:
+            raise ValueError("a firing record needs 'peak:' or 'record:' (or both)")
+        return self
+
+
 class Binder(Model):
     id: Id = Field(description="binder identifier")
     name: Text = Field(description="descriptive name (no trade names)")
@@ -148,6 +222,8 @@ class Binder(Model):
     declared_class: Text = Field("", description="declared class, e.g. NHL 3.5")
     analysis: Id | None = Field(None, description="analysis id of this binder")
     bulk_density: Density | None = Field(None, description="loose bulk density, e.g. '850 kg/m^3'")
+    contains_clinker: bool = Field(False, description="holds sintered clinker: Bogue applies")
+    firing: Firing | None = Field(None, description="firing record of the binder (kiln trial)")
 
 
 class MasonryUnit(Model):

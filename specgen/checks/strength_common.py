@@ -1,0 +1,277 @@
+"""Strength development of one mix and test kind, computed once per run and shared.
+
+Gathers the specimens of a mix, converts lab curing to equivalent age at the reference
+temperature (ASTM C1074), aggregates each tested age (EN 1990 Annex D characteristic
+value, Grubbs screen), fits the strength-age models (AICc selection) and predicts with a
+band that is widened, by the rule in ``content/rules/strength.yaml``, when it
+extrapolates far from a short record.  The checks and the strength chapter both read
+from here, so a number is never computed twice in two ways.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from specgen import refdata
+from specgen.science import maturity, strength_models as sm, strength_stats as ss
+
+DAY = sm.DAY
+MPA = 1e6
+TESTS = ("compressive", "flexural")
+
+
+@dataclass(frozen=True)
+class Group:
+    """The results of one tested age: kept specimens, statistics, outlier screen."""
+
+    test: str
+    age: float                       # s, nominal age at test
+    te: float                        # s, mean equivalent age at Tref
+    specimens: tuple                 # StrengthResult rows, all of them
+    kept: tuple                      # rows kept after the screen
+    flagged: tuple                   # (row, reason) pairs excluded by the screen
+    summary: ss.Summary
+    characteristic: ss.Characteristic | None
+    known: ss.Characteristic | None  # with the project's known CV, when given
+    screen: ss.OutlierScreen
+    noted: tuple = ()                # (row, reason) flagged by the screen but kept (n too small)
+
+
+@dataclass(frozen=True)
+class Band:
+    """A prediction at ``age`` (s) in Pa with its band; ``widened`` by the short-record rule."""
+
+    age: float
+    value: float
+    lower: float
+    upper: float
+    raw_lower: float
+    raw_upper: float
+    extrapolated: bool
+    widened: bool
+    note: str
+
+
+@dataclass
+class Series:
+    """Everything about one mix and test kind."""
+
+    mix: str
+    test: str
+    groups: list[Group] = field(default_factory=list)
+    implausible: list[str] = field(default_factory=list)
+    t_fit: np.ndarray | None = None  # equivalent ages (s) of the kept results
+    y_fit: np.ndarray | None = None  # Pa
+    selection: sm.Selection | None = None
+    fit_error: str = ""
+
+    @property
+    def fit(self) -> sm.FitResult | None:
+        return self.selection.best if self.selection else None
+
+    @property
+    def last_age(self) -> float:
+        return max(g.te for g in self.groups)
+
+
+@dataclass(frozen=True)
+class Settings:
+    """Maturity settings in force (SI) and where each came from."""
+
+    method: str
+    activation_energy: float
+    energy_source: str
+    datum: float
+    t_ref: float
+    warning: str
+
+
+def settings(project) -> Settings:
+    """The project's maturity settings, defaults from content/data/maturity_defaults.yaml."""
+    d = refdata.load("maturity_defaults").data
+    s = project.dossier.strength
+    e = s.activation_energy
+    src = "project input (dossier.yaml strength.activation_energy)" if e else (
+        f"default: {d['activation_energy']['source']} ({d['activation_energy']['tag']})")
+    return Settings(s.maturity_method, e or float(d["activation_energy"]["value"]), src,
+                    s.datum_temperature or float(d["nurse_saul_datum"]["value"]),
+                    float(d["reference_temperature"]["value"]),
+                    "" if e else " ".join(d["activation_energy"]["warning"].split()))
+
+
+def lab_factor(temp_k: float | None, st: Settings) -> float:
+    """Equivalent-age rate of constant lab curing at ``temp_k`` (None: the reference)."""
+    if temp_k is None:
+        return 1.0
+    if st.method == "nurse_saul":
+        return float(maturity.equivalent_age_nurse_saul(
+            [0.0, 1.0], temp_k, datum_k=st.datum, t_ref_k=st.t_ref)[-1])
+    return float(maturity.arrhenius_factor(temp_k, st.activation_energy, st.t_ref))
+
+
+def analyse(project, rules) -> dict[tuple[str, str], Series]:
+    """Series of every mix and test kind that has results (key: (mix id, test))."""
+    st = settings(project)
+    rows: dict[tuple[str, str], list] = {}
+    for r in project.strength:
+        rows.setdefault((r.mix, r.test), []).append(r)
+    plaus = refdata.load("strength_classes").data["plausible_range"]
+    out = {}
+    for key in sorted(rows):
+        out[key] = _series(key, rows[key], st, rules, plaus[key[1]], project)
+    return out
+
+
+def cached(ctx) -> dict[tuple[str, str], Series]:
+    """:func:`analyse` once per run (kept on the check context)."""
+    found = ctx.__dict__.get("_strength")
+    if found is None:
+        found = ctx.__dict__["_strength"] = analyse(ctx.project, ctx.rules)
+    return found
+
+
+def _series(key, rows, st, rules, plaus, project) -> Series:
+    s = Series(*key)
+    sigma_cv = project.dossier.strength.known_cv
+    by_age: dict[float, list] = {}
+    for r in rows:
+        by_age.setdefault(r.age, []).append(r)
+    s.implausible = [f"{r.specimen} (row {r.row}): {m.split(': ', 1)[1]}" for r in rows
+                     for m in ss.check_plausible([r.value], plaus["low_mpa"] * MPA,
+                                                 plaus["high_mpa"] * MPA)]
+    t_fit, y_fit = [], []
+    for age in sorted(by_age):
+        g = _group(key[1], age, by_age[age], st, rules, sigma_cv)
+        s.groups.append(g)
+        t_fit += [r.age * lab_factor(r.curing_temperature, st) for r in g.kept]
+        y_fit += [r.value for r in g.kept]
+    s.t_fit, s.y_fit = np.array(t_fit), np.array(y_fit)
+    if s.implausible:
+        s.fit_error = ("results of implausible magnitude (see the aggregation check): "
+                       "correct the unit or the values before fitting")
+        return s
+    try:
+        s.selection = sm.fit_all(s.t_fit, s.y_fit)
+        if s.selection.best is None:
+            s.fit_error = s.selection.reasoning
+    except sm.StrengthFitError as exc:
+        s.fit_error = str(exc)
+    return s
+
+
+def _group(test, age, rows, st, rules, known_cv) -> Group:
+    values = [r.value for r in rows]
+    screen = ss.grubbs_screen(values, alpha=rules["strength.grubbs_alpha"].value)
+    if len(rows) >= rules["strength.grubbs_min_n"].value:
+        kept = tuple(rows[f.index] for f in screen.kept)
+        flagged = tuple((rows[f.index], f.reason) for f in screen.flagged)
+        noted = ()
+    else:   # too few to drop one: the flag is reported and the result kept
+        kept, flagged = tuple(rows), ()
+        noted = tuple((rows[f.index], f.reason + _bound_note(len(rows), screen.statistic))
+                      for f in screen.flagged)
+    kv = [r.value for r in kept]
+    summ = ss.summarise(kv)
+    frac = rules["strength.fractile"].value
+    char = ss.characteristic_value(kv, fractile=frac) if summ.n >= 2 else None
+    known = (ss.characteristic_value(kv, sigma=known_cv * summ.mean, fractile=frac)
+             if known_cv else None)
+    te = float(np.mean([r.age * lab_factor(r.curing_temperature, st) for r in kept]))
+    return Group(test, age, te, tuple(rows), kept, flagged, summ, char, known, screen, noted)
+
+
+def _bound_note(n: int, g: float) -> str:
+    # For n values G can never exceed (n - 1)/sqrt(n); two equal (rounded) results of three
+    # put it exactly there, so at n = 3 a tie alone "fails" the test at alpha = 0.05.
+    top = (n - 1) / math.sqrt(n)
+    return (f"; G is at its upper bound (n−1)/√n = {top:.4f}: two results are equal, as "
+            "rounding makes likely" if g >= top - 1e-6 else "")
+
+
+def band(series: Series, age_s: float, rules) -> Band:
+    """Prediction at ``age_s`` with the short-record widening rule applied.
+
+    Rule (content/rules/strength.yaml): when the last tested (equivalent) age is below
+    ``short_record_age`` and ``age_s`` exceeds ``short_record_ratio`` times it, the
+    half-widths are multiplied by ``band_inflation`` and the band is widened to the
+    envelope of the bands of every model within ``envelope_delta_aicc`` of the chosen one.
+    Raises :class:`~specgen.science.strength_models.StrengthFitError` beyond the range.
+    """
+    fit, sel = series.fit, series.selection
+    level = rules["strength.confidence_level"].value
+    p = sm.predict(fit, age_s, level)
+    last = fit.age_max
+    short = (last < rules["strength.short_record_age"].value * DAY
+             and age_s > rules["strength.short_record_ratio"].value * last)
+    if not short:
+        return Band(age_s, p.value, p.lower, p.upper, p.lower, p.upper, p.extrapolated, False, "")
+    k = rules["strength.band_inflation"].value
+    lo, hi = max(p.value - k * (p.value - p.lower), 0.0), p.value + k * (p.upper - p.value)
+    near = [f for f in sel.fits if f is not fit
+            and sel.delta_aicc[f.model] - sel.delta_aicc[fit.model]
+            <= rules["strength.envelope_delta_aicc"].value]
+    for f in near:
+        q = sm.predict(f, age_s, level)
+        lo, hi = min(lo, q.lower), max(hi, q.upper)
+    names = ", ".join(f.title for f in near)
+    note = (f"extrapolated from a record ending at {last / DAY:g} d: half-width × {k:g}"
+            + (f", envelope with {names}" if names else "") + "; indicative only")
+    return Band(age_s, p.value, lo, hi, p.lower, p.upper, True, True, note)
+
+
+def pooled_cv(series: Series) -> float:
+    """Pooled replicate CV (ratio) of the series' groups with two or more results."""
+    from specgen.science.strength_classes import pooled_cv as pooled
+    groups = [g for g in series.groups if g.summary.n >= 2]
+    if not groups:
+        return 0.0
+    return pooled([g.summary.cv for g in groups], [g.summary.n for g in groups])
+
+
+def site_history(project, horizon_s: float) -> tuple[np.ndarray, np.ndarray] | None:
+    """(times s, temperatures K) of the site record; a constant is laid out daily."""
+    site = project.site_temperature
+    if site is None:
+        return None
+    if site.constant is not None:
+        t = np.arange(0.0, math.ceil(horizon_s / DAY) + 1.0) * DAY
+        return t, np.full(t.size, site.constant)
+    pts = np.array(site.points, float)
+    return pts[:, 0] - pts[0, 0], pts[:, 1]
+
+
+def site_equivalent_age(project, st: Settings, method: str, horizon_s: float):
+    """(times s, equivalent ages s) in the wall by ``method``, or None without a record."""
+    hist = site_history(project, horizon_s)
+    if hist is None:
+        return None
+    t, temp = hist
+    te = maturity.equivalent_age(t, temp, method=method, activation_energy=st.activation_energy,
+                                 datum_k=st.datum, t_ref_k=st.t_ref)
+    return t, te
+
+
+def band_curve(series: Series, ages_s, rules):
+    """Vectorised :func:`band` over ``ages_s`` (s, within the model's range), for figures.
+
+    Returns (value, lower, upper, widened) arrays in Pa; the same rule as :func:`band`.
+    """
+    fit, sel = series.fit, series.selection
+    level = rules["strength.confidence_level"].value
+    a = np.asarray(ages_s, float)
+    v, lo, hi = sm.curve(fit, a, level)
+    wide = (fit.age_max < rules["strength.short_record_age"].value * DAY) & (
+        a > rules["strength.short_record_ratio"].value * fit.age_max)
+    if not wide.any():
+        return v, lo, hi, wide
+    k = rules["strength.band_inflation"].value
+    lo = np.where(wide, np.clip(v - k * (v - lo), 0.0, None), lo)
+    hi = np.where(wide, v + k * (hi - v), hi)
+    for f in sel.fits:
+        if f is not fit and sel.delta_aicc[f.model] - sel.delta_aicc[fit.model] <= \
+                rules["strength.envelope_delta_aicc"].value:
+            _, flo, fhi = sm.curve(f, a, level)
+            lo, hi = np.where(wide, np.minimum(lo, flo), lo), np.where(wide, np.maximum(hi, fhi), hi)
+    return v, lo, hi, wide

@@ -1,0 +1,97 @@
+"""Strength-development figures (matplotlib, SVG via :func:`specgen.report.figures.to_svg`).
+
+The numbers drawn are prepared by the chapter from ``specgen.checks.strength_common``
+and the science; these functions only draw.  Ages in days, strengths in MPa.
+matplotlib is imported inside the functions so that ``specgen check`` never loads it.
+"""
+from __future__ import annotations
+
+from specgen.report.figures import _pyplot, to_svg
+
+INK, BAND, WIDE = "#1f3a5f", "#c9d6e6", "#eadfcb"
+ALUMINATE, SILICATE, WALL, LIMIT = "#e3c48f", "#a9c5a0", "#8a4f7d", "#a23b2a"
+
+
+def strength_age(data: dict) -> bytes:
+    """Strength against log age: specimens, means ± SD, fitted curve and band, components,
+    requirement lines and the in-wall curve.
+
+    ``data`` keys: ``title``; ``specimens`` [(age, MPa)]; ``means`` [(age, mean, sd)];
+    ``curve`` {ages, value, lower, upper, widened} or None; ``components`` {name: values}
+    on the curve's ages; ``limits`` [(age or None, MPa, label, kind)]; ``wall`` {ages,
+    value} or None; ``model`` label of the fitted model.
+    """
+    plt = _pyplot()
+    fig, ax = plt.subplots(figsize=(7.0, 4.2))
+    c = data.get("curve")
+    if c:
+        _stacked_components(ax, c["ages"], data.get("components") or {})
+        _band(ax, c)
+        ax.plot(c["ages"], c["value"], color=INK, lw=1.6, label=f"fit: {data['model']}")
+    if data.get("wall"):
+        w = data["wall"]
+        ax.plot(w["ages"], w["value"], color=WALL, lw=1.3, ls="-.",
+                label="in the wall (site temperature)")
+    xs, ys = zip(*data["specimens"]) if data["specimens"] else ((), ())
+    ax.plot(xs, ys, "o", ms=3.2, mfc="white", mec="#555555", mew=0.8, ls="none",
+            label="specimens")
+    ages, means, sds = zip(*data["means"]) if data["means"] else ((), (), ())
+    ax.errorbar(ages, means, yerr=sds, fmt="s", ms=4.5, color=INK, capsize=3, lw=1,
+                label="mean ± SD")
+    for age, value, label, kind in data.get("limits", []):
+        _limit(ax, age, value, label, kind)
+    ax.set_xscale("log")
+    ax.set_xlabel("age (d, log scale; equivalent age at 20 °C for the fit)")
+    ax.set_ylabel(f"{data['test']} strength (MPa)")
+    ax.set_ylim(bottom=0)
+    ax.set_title(data["title"], fontsize=9.5, loc="left")
+    ax.grid(True, which="major", color="#e5e5e5", lw=0.6)
+    ax.legend(fontsize=7, loc="upper center", bbox_to_anchor=(0.5, -0.16), ncol=3,
+              frameon=False)
+    return to_svg(fig)
+
+
+def _stacked_components(ax, ages, parts: dict) -> None:
+    """The two stages shaded separately: aluminate from 0, silicate stacked on top."""
+    if "aluminate" not in parts:
+        return
+    al, si = parts["aluminate"], parts["silicate"]
+    ax.fill_between(ages, 0, al, color=ALUMINATE, alpha=0.55, lw=0,
+                    label="aluminate stage (fast)")
+    ax.fill_between(ages, al, [a + s for a, s in zip(al, si)], color=SILICATE, alpha=0.45,
+                    lw=0, label="silicate stage (slow)")
+
+
+def _band(ax, c: dict) -> None:
+    import numpy as np
+    wide = np.asarray(c["widened"], bool)
+    ages, lo, hi = (np.asarray(c[k], float) for k in ("ages", "lower", "upper"))
+    ax.fill_between(ages, lo, hi, where=~wide, color=BAND, alpha=0.8, lw=0,
+                    label="95 % band", interpolate=True)
+    if wide.any():
+        ax.fill_between(ages, lo, hi, where=wide, color=WIDE, alpha=0.8, lw=0, hatch="///",
+                        edgecolor="#b9a27a", label="band widened (short record)")
+
+
+def _limit(ax, age, value, label, kind) -> None:
+    ax.axhline(value, color=LIMIT, lw=0.8, ls="--" if kind == "min" else ":")
+    if age is not None:
+        ax.plot([age], [value], marker="^" if kind == "min" else "v", color=LIMIT, ms=6)
+    ax.annotate(label, xy=(0.01, value), xycoords=("axes fraction", "data"), ha="left",
+                va="bottom", fontsize=7, color=LIMIT)
+
+
+def residuals(panels: list[dict]) -> bytes:
+    """Relative residuals (observed/fitted − 1, %) against log age, one panel per test kind."""
+    plt = _pyplot()
+    fig, axes = plt.subplots(1, len(panels), figsize=(7.0, 2.6), squeeze=False)
+    for ax, p in zip(axes[0], panels):
+        ax.axhline(0, color="#777777", lw=0.8)
+        ax.plot(p["ages"], p["residuals"], "o", ms=3.5, color=INK, mfc="white")
+        ax.set_xscale("log")
+        ax.set_xlabel("equivalent age (d)")
+        ax.set_ylabel("residual (%)")
+        ax.set_title(f"{p['test']}: {p['model']}", fontsize=8.5, loc="left")
+        ax.grid(True, color="#eeeeee", lw=0.6)
+    fig.tight_layout()
+    return to_svg(fig)

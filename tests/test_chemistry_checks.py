@@ -1,0 +1,109 @@
+"""Chemistry checks on the demo analyses, recomputed by hand from the oxide values."""
+from __future__ import annotations
+
+import math
+
+import pytest
+
+from specgen.build import check
+
+
+def by(results):
+    return {(c.code, c.subject): c for c in results.checks}
+
+
+@pytest.fixture(scope="module")
+def demo():
+    from tests.conftest import DEMO
+    return check(DEMO)
+
+
+def test_indices_of_the_trial_natural_cement(demo):
+    _, results = demo
+    q = results.quantities["NC1-A"]
+    # NC1-A: SiO2 21.5, Al2O3 8.1, Fe2O3 4.2, CaO 57.9, MgO 2.3, SO3 0.9 (demo data), by hand:
+    #   HI (Vicat) = (21.5 + 8.1 + 4.2)/(57.9 + 2.3) = 33.8/60.2 = 0.56146
+    #   LSF (Taylor, Cement Chemistry, from memory) = (57.9 - 0.7*0.9)/(2.8*21.5 + 1.18*8.1 + 0.65*4.2)
+    #       = 57.27/72.488 = 0.79006
+    #   SR = 21.5/(8.1 + 4.2) = 1.74797;  AR = 8.1/4.2 = 1.92857
+    assert q["hydraulic_index"].value == pytest.approx(0.56146, abs=5e-5)
+    assert q["lime_saturation_factor"].value == pytest.approx(0.79006, abs=5e-5)
+    assert q["silica_ratio"].value == pytest.approx(1.74797, abs=5e-5)
+    assert q["alumina_ratio"].value == pytest.approx(1.92857, abs=5e-5)
+    lsf = by(results)[("CHEM-LSF", "NC1-A")]
+    assert lsf.status == "info" and "descriptive" in lsf.message
+
+
+def test_raw_stone_carbonate_co2_balance_and_clay(demo):
+    _, results = demo
+    q = results.quantities["BS-1"]
+    # BS-1: CaO 40.1, MgO 1.6, CO2 30.0, LOI 33.0 (demo data).  Molar masses from IUPAC atomic
+    # weights: CaO 56.077, MgO 40.304, CO2 44.009, CaCO3 100.086 g/mol.
+    #   capacity = 40.1*44.009/56.077 + 1.6*44.009/40.304 = 31.4700 + 1.7471 = 33.2171 %
+    #   gap = 33.2171 - 30.0 = 3.2171 %;  CaCO3 = 30.0*100.086/44.009 = 68.226 %
+    #   clay = SiO2 + Al2O3 + Fe2O3 + (LOI - CO2) = 14.8 + 5.6 + 2.9 + 3.0 = 26.3 %
+    assert q["co2_gap"].value == pytest.approx(3.2171, abs=2e-3)
+    assert q["carbonate_content"].value == pytest.approx(68.226, abs=5e-3)
+    assert q["clay_fraction"].value == pytest.approx(26.3, abs=1e-6)
+    checks = by(results)
+    assert checks[("CHEM-CLAY", "BS-1")].status == "pass"  # 20-30 % clay, common practice
+
+
+def test_loss_free_factor(demo):
+    _, results = demo
+    c = by(results)[("CHEM-LOSSFREE", "BS-1")]
+    assert c.value == pytest.approx(100 / 67.0, abs=1e-3)  # 100/(100 - 33.0), by hand
+
+
+def test_no_nan_in_results(demo):
+    _, results = demo
+    for c in results.checks:
+        if isinstance(c.value, float):
+            assert math.isfinite(c.value), c.key
+
+
+@pytest.mark.parametrize("old, new, expect", [
+    # missing CaO and SiO2: indices cannot be formed -> not assessed, never a crash
+    ("SiO2: 21.5, Al2O3: 8.1, Fe2O3: 4.2, CaO: 57.9,", "Al2O3: 8.1, Fe2O3: 4.2, Cr2O3: 79.4,", "not_assessed"),
+])
+def test_missing_oxides_not_assessed(demo_copy, old, new, expect):
+    path = demo_copy / "analyses.yaml"
+    path.write_text(path.read_text().replace(old, new, 1))
+    _, results = check(demo_copy)
+    assert by(results)[("CHEM-HI", "NC1-A")].status == expect
+    assert by(results)[("CHEM-CI", "NC1-A")].status == expect
+
+
+def test_negative_oxide_is_refused(demo_copy, cli):
+    path = demo_copy / "analyses.yaml"
+    path.write_text(path.read_text().replace("MgO: 2.3,", "MgO: -2.3,", 1))
+    result = cli("check", demo_copy)
+    assert result.exit_code == 2
+    assert "analyses[1].mass_percent.MgO: Input should be greater than or equal to 0" in result.output
+
+
+def test_raw_stone_without_co2_is_not_assessed(demo_copy):
+    path = demo_copy / "analyses.yaml"
+    path.write_text(path.read_text().replace("Na2O: 0.2, CO2: 30.0, LOI: 33.0}", "Na2O: 0.2, LOI: 33.0}", 1))
+    _, results = check(demo_copy)
+    c = by(results)[("CHEM-CO2", "BS-1")]
+    assert c.status == "not_assessed" and "gives no CO2" in c.message
+
+
+def test_loss_on_ignition_above_50_percent(demo_copy, cli):
+    path = demo_copy / "analyses.yaml"
+    path.write_text(path.read_text().replace("CaO: 57.9, MgO: 2.3, SO3: 0.9, K2O: 1.1, Na2O: 0.3, LOI: 3.2}",
+                                             "CaO: 5.9, MgO: 2.3, SO3: 0.9, K2O: 1.1, Na2O: 0.3, LOI: 55.2}", 1))
+    result = cli("check", demo_copy)
+    assert result.exit_code == 2 and "Traceback" not in result.output
+    assert ("analyses.yaml, line 16: analyses[1].mass_percent: analysis 'NC1-A': loss on ignition "
+            "55.20 % exceeds 50 %") in result.output
+
+
+def test_lumped_oxide_without_split_is_not_assessed(demo_copy):
+    path = demo_copy / "analyses.yaml"
+    path.write_text(path.read_text().replace("Al2O3: 8.1, Fe2O3: 4.2,", "Al2O3+Fe2O3: 12.3,", 1))
+    _, results = check(demo_copy)
+    ci = by(results)[("CHEM-CI", "NC1-A")]
+    assert ci.status == "not_assessed"
+    assert "'Al2O3+Fe2O3' is reported lumped and no split is declared" in ci.message
