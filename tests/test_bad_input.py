@@ -54,7 +54,7 @@ def test_missing_required_field(cli, demo_copy):
 def test_missing_unit(cli, demo_copy):
     edit(demo_copy / "materials.yaml", 'compressive_strength: "48 MPa"', "compressive_strength: 48")
     out = run_check(cli, demo_copy)
-    assert ("materials.yaml, line 16: masonry_units[0].compressive_strength: the number 48 has "
+    assert ("materials.yaml, line 20: masonry_units[0].compressive_strength: the number 48 has "
             "no unit; write it with its unit, e.g. '12 MPa' or '1740 psi'.") in out
 
 
@@ -117,7 +117,7 @@ def test_non_utf8_file(cli, demo_copy):
     path = demo_copy / "materials.yaml"
     path.write_bytes(path.read_bytes().replace("Blue engineering".encode(), "Bleu \xe9ngineering".encode("latin-1")))
     out = run_check(cli, demo_copy)
-    assert re.search(r"materials\.yaml, line 16: is not UTF-8 text \(byte 0xe9 at offset \d+\)\. "
+    assert re.search(r"materials\.yaml, line 20: is not UTF-8 text \(byte 0xe9 at offset \d+\)\. "
                      r"Fix: save the file as UTF-8", out)
 
 

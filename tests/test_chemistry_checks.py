@@ -92,7 +92,7 @@ def test_raw_stone_without_co2_is_not_assessed(demo_copy):
 
 def test_loss_on_ignition_above_50_percent(demo_copy, cli):
     path = demo_copy / "analyses.yaml"
-    path.write_text(path.read_text().replace("CaO: 57.9, MgO: 2.3, SO3: 0.9, K2O: 1.1, Na2O: 0.3, LOI: 3.2}",
+    path.write_text(path.read_text().replace("CaO: 57.9, MgO: 2.3, SO3: 0.9, K2O: 1.1, Na2O: 0.3, CO2: 1.9, LOI: 3.2}",
                                              "CaO: 5.9, MgO: 2.3, SO3: 0.9, K2O: 1.1, Na2O: 0.3, LOI: 55.2}", 1))
     result = cli("check", demo_copy)
     assert result.exit_code == 2 and "Traceback" not in result.output

@@ -1,7 +1,6 @@
 """The dossier's built-in chapters (summary, scope, composition, sheets, cautions, ...)."""
 from __future__ import annotations
 
-from specgen.checks.composition_checks import oxide_order
 from specgen.report.cautions import cautions_for
 from specgen.report.chapters import badge, chapter, check_rows, sheet_anchor
 from specgen.report.fmt import num, qty
@@ -40,30 +39,6 @@ def scope(env) -> dict:
         reqs.append(f"long-term compressive strength at most "
                     f"{qty(req.max_compressive_long_term / 1e6, 'MPa', 3)}")
     return {"zones": rows, "requirements": reqs}
-
-
-@chapter("composition.md", "Binder composition", 30, "composition.md.j2")
-def composition(env) -> dict:
-    p, r = env.project, env.results
-    oxides = sorted({k for a in p.analyses.values() for k in a.mass_percent},
-                    key=oxide_order)
-    rows = [{"id": a.id, "kind": a.kind.replace("_", " "), "cells": [
-        num(a.mass_percent[k], 3) if k in a.mass_percent else "—" for k in oxides]}
-        for a in p.analyses.values()]
-    ci = [c for c in r.checks if c.code == "CHEM-CI" and isinstance(c.value, float)]
-    figure = None
-    if ci:
-        from specgen import refdata
-        from specgen.report.figures import band_chart
-        bands = [{"name": b["name"], "low": b["lower"], "high": b["upper"]}
-                 for b in refdata.load("hydraulicity_bands").data]
-        svg = band_chart([(c.subject, c.value) for c in ci], bands, "cementation index (Eckel)")
-        figure = env.figure("figures/cementation-index.svg", svg,
-                            "Cementation index of each analysis on the hydraulicity bands")
-    return {"oxides": oxides, "rows": rows, "figure": figure,
-            "results": [{"subject": c.subject, "badge": badge(c.status), "message": c.message,
-                         "href": f"calculations.md#{sheet_anchor(c)}"}
-                        for c in r.checks if c.code in ("CHEM-CLOSURE", "CHEM-CI")]}
 
 
 @chapter("calculations.md", "Calculation sheets", 80, "calculations.md.j2")

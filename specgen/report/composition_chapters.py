@@ -1,0 +1,118 @@
+"""The composition chapter: analyses, indices and class, raw stone, and per binder the
+calcination balance, firing, potential phases and hydration volumes.
+
+Every number shown comes from the check results (``results.quantities``) — the
+chapter formats and arranges, it does not compute.
+"""
+from __future__ import annotations
+
+from specgen.checks.composition_checks import oxide_order
+from specgen.report.chapters import badge, chapter, sheet_anchor
+from specgen.report.fmt import num
+
+MAJOR = ("SiO2", "Al2O3", "Fe2O3", "CaO", "MgO", "SO3")
+BINDER_TYPES = {"natural_cement": "natural cement", "nhl": "natural hydraulic lime (NHL)",
+                "fl": "formulated lime (FL)", "hl": "hydraulic lime (HL)", "air_lime": "air lime",
+                "portland": "Portland cement", "pozzolan": "pozzolan"}
+INDEX_COLUMNS = (("cementation_index", "CI"), ("hydraulic_index", "HI"),
+                 ("lime_saturation_factor", "LSF"), ("silica_ratio", "SR"),
+                 ("alumina_ratio", "AR"))
+
+
+def _q(env, subject: str, name: str):
+    q = env.results.quantities.get(subject, {}).get(name)
+    return q.value if q is not None else None
+
+
+def _findings(env, subject: str) -> list[dict]:
+    return [{"code": c.code, "title": c.title, "badge": badge(c.status), "message": c.message,
+             "href": f"calculations.md#{sheet_anchor(c)}"}
+            for c in env.results.checks if c.subject == subject and c.code.startswith("CHEM-")]
+
+
+@chapter("composition.md", "Binder composition", 30, "composition.md.j2")
+def composition(env) -> dict:
+    p, r = env.project, env.results
+    oxides = sorted({k for a in p.analyses.values() for k in a.mass_percent}, key=oxide_order)
+    rows = [{"id": a.id, "kind": a.kind.replace("_", " "), "cells": [
+        num(a.mass_percent[k], 3) if k in a.mass_percent else "—" for k in oxides]}
+        for a in p.analyses.values()]
+    ci = [c for c in r.checks if c.code == "CHEM-CI" and isinstance(c.value, float)]
+    figure = None
+    if ci:
+        from specgen import refdata
+        from specgen.report.figures import band_chart
+        bands = [{"name": b["name"], "low": b["lower"], "high": b["upper"]}
+                 for b in refdata.load("hydraulicity_bands").data]
+        svg = band_chart([(c.subject, c.value) for c in ci], bands, "cementation index (Eckel)")
+        figure = env.figure("figures/cementation-index.svg", svg,
+                            "Cementation index of each analysis on the hydraulicity bands")
+    indices = [{"id": a.id, "class": _q(env, a.id, "hydraulicity_class") or "—",
+                "cells": [num(v, 3) if (v := _q(env, a.id, k)) is not None else "—"
+                          for k, _ in INDEX_COLUMNS]} for a in p.analyses.values()]
+    analyses = [{"id": a.id, "kind": a.kind.replace("_", " "), "description": a.description,
+                 "findings": _findings(env, a.id)} for a in p.analyses.values()]
+    binders = [_binder(env, b) for b in p.binders.values()]
+    return {"oxides": oxides, "rows": rows, "figure": figure, "indices": indices,
+            "index_heads": [h for _, h in INDEX_COLUMNS], "analyses": analyses,
+            "binders": binders, "phases_figure": _phase_figure(env, p),
+            "hydration": _hydration(env, p)}
+
+
+def _binder(env, b) -> dict:
+    p = env.project
+    expected = _q(env, b.id, "expected_fired_composition")
+    balance = []
+    if expected:
+        from specgen.checks.chemistry_common import binder_analysis, raw_analyses
+        raw = raw_analyses(b, p)[0]
+        measured = binder_analysis(b, p)
+        lf = _q(env, measured.id, "loss_free_composition") or {}
+        for ox in (k for k in MAJOR if k in expected or k in lf):
+            e, m = expected.get(ox), lf.get(ox)
+            balance.append({"oxide": ox, "raw": num(raw.mass_percent.get(ox, 0.0), 3),
+                            "expected": num(e, 3) if e is not None else "—",
+                            "measured": num(m, 3) if m is not None else "—",
+                            "delta": f"{(m or 0.0) - (e or 0.0):+.2f}"})
+    return {"id": b.id, "name": b.name, "type": BINDER_TYPES.get(b.type, b.type), "balance": balance,
+            "findings": _findings(env, b.id)}
+
+
+def _phase_figure(env, p):
+    rows = [(b.id, ph) for b in p.binders.values()
+            if (ph := _q(env, b.id, "potential_phases"))]
+    if not rows:
+        return None
+    from specgen.report.composition_figures import phase_bars
+    return env.figure("figures/potential-phases.svg", phase_bars(rows),
+                      "Potential phases of each binder (mass %); assignment as declared")
+
+
+def _hydration(env, p) -> dict | None:
+    volumes = next((v for b in p.binders.values()
+                    if (v := _q(env, b.id, "hydration_volumes"))), None)
+    if volumes is None:
+        return None
+    from specgen.checks.hydration_checks import chosen
+    from specgen.report.composition_figures import hydration_bars
+    name, other = chosen(p)
+    fig = env.figure("figures/hydration-volumes.svg",
+                     hydration_bars([(k, volumes[k]["volumes"]) for k in (name, other)]),
+                     "Belite hydration by volume, before and after, with each density set")
+    sets = []
+    for k in (name, other):
+        v = volumes[k]["volumes"]
+        sets.append({"name": k, "chosen": k == name, "h": num(v["H"], 3),
+                     "csh": num(v["C1.7SH4"], 3), "ch": num(v["CH"], 3),
+                     "shrinkage": num(volumes[k]["chemical_shrinkage"], 3),
+                     "increase": num(volumes[k]["solid_volume_increase"], 3)})
+    per_binder = [{"id": b.id, "c2s": num(_q(env, b.id, "c2s_potential"), 3),
+                   "water": num(_q(env, b.id, "water_for_full_hydration"), 3),
+                   "ch": num(_q(env, b.id, "ch_from_hydration"), 3)}
+                  for b in p.binders.values() if _q(env, b.id, "water_for_full_hydration")]
+    mixes = [{"id": m.id, "wb": num(m.water_binder_ratio, 3),
+              "porosity": num(_q(env, m.id, "capillary_porosity"), 3),
+              "x": num(_q(env, m.id, "gel_space_ratio"), 3),
+              "findings": _findings(env, m.id)}
+             for m in p.mixes.values() if _q(env, m.id, "capillary_porosity") is not None]
+    return {"figure": fig, "sets": sets, "binders": per_binder, "mixes": mixes}
