@@ -54,7 +54,9 @@ def _build_one(project: Project, out: Path, page_size: str, progress) -> Path:
     results = evaluate(project)
     history = history_for(out, project, results)
     progress("render: pages, figures and calculation sheets")
-    pages = render(project, results, history)
+    from specgen.report import cache
+    with cache.using(out / cache.CACHE_DIR):  # unchanged figures and math are reused
+        pages = render(project, results, history)
     _fix_dates(project.revision.date)
     return publish(project, results, pages, out, page_size=page_size, progress=progress,
                    changes=history.changes)

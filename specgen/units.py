@@ -33,6 +33,7 @@ KINDS: dict[str, Kind] = {k.name: k for k in [
     Kind("area", "m**2", "'120 m^2' or '1300 ft^2'"),
     Kind("volume", "m**3", "'0.02 m^3' or '20 L'"),
     Kind("mass", "kg", "'25 kg' or '55 lb'"),
+    Kind("volume_rate", "m**3/s", "'12 L/h' or '0.2 L/min'"),
     Kind("density", "kg/m**3", "'1500 kg/m^3'"),
     Kind("time", "s", "'28 d', '90 min' or '4 h'"),
     Kind("temperature", "K", "'20 degC' or '68 degF'"),
@@ -40,6 +41,7 @@ KINDS: dict[str, Kind] = {k.name: k for k in [
     Kind("molar_energy", "J/mol", "'33.5 kJ/mol'"),
     Kind("expansion", "1/K", "'8e-6 1/K'"),
     Kind("capillary", "kg/m**2/s**0.5", "'0.05 kg/(m^2*s^0.5)' or '0.4 kg/(m^2*min^0.5)'"),
+    Kind("areal_mass", "kg/m**2", "'1.2 kg/m^2' or '0.12 g/cm^2'"),
     Kind("dimensionless", "dimensionless", "'12'"),
 ]}
 

@@ -55,6 +55,7 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
     for i, h in enumerate(project.historic_mortars.values()):
         _ref(log, located, "materials.yaml", ("historic_mortars", i, "binder_analysis"),
              h.binder_analysis, analyses, "analysis")
+    _compatibility_refs(project, located, log, mixes if mat_ok else SKIP)
     for i, m in enumerate(project.mixes.values()):
         for j, part in enumerate(m.binders):
             _ref(log, located, "mixes.yaml", ("mixes", i, "binders", j, "binder"), part.binder,
@@ -114,7 +115,24 @@ def _comment_refs(project, located, log: ProblemLog) -> None:
 
 def _subjects(project) -> set[str]:
     return (set(project.analyses) | set(project.binders) | set(project.mixes)
-            | {z.id for z in project.dossier.zones} | {project.dossier.project.code})
+            | {z.id for z in project.dossier.zones} | {project.dossier.project.code}
+            | {f"{z.id}/{m}" for z in project.dossier.zones for m in z.candidates})
+
+
+def _compatibility_refs(project, located, log: ProblemLog, mixes) -> None:
+    """Mixes of measured mortar properties, and historic aggregate samples in lab/sieves.csv."""
+    for i, props in enumerate(project.mortar_properties.values()):
+        _ref(log, located, "materials.yaml", ("mortar_properties", i, "mix"), props.mix, mixes, "mix")
+    samples = {r.sample for r in project.sieves}
+    for i, h in enumerate(project.historic_mortars.values()):
+        if h.aggregate_sample and h.aggregate_sample not in samples:
+            loc = located.get("materials.yaml")
+            hint = did_you_mean(h.aggregate_sample, sorted(samples))
+            log.add("materials.yaml", f"historic mortar '{h.id}' names aggregate sample "
+                    f"'{h.aggregate_sample}', which is not in lab/sieves.csv.",
+                    line=loc.line_of(("historic_mortars", i, "aggregate_sample")) if loc else None,
+                    field=f"historic_mortars[{i}].aggregate_sample",
+                    fix=hint or "add its sieve analysis to lab/sieves.csv, or correct the id.")
 
 
 def _strength_refs(results, mixes: dict, log: ProblemLog) -> None:

@@ -10,8 +10,8 @@ from pydantic import BaseModel, ValidationError
 from specgen.errors import ProblemLog, did_you_mean
 from specgen.project import schema
 from specgen.project.files import Located, read_csv, read_yaml
-from specgen.project.tables import (ColourReading, SieveRow, StrengthResult, colour_rows,
-                                    sieve_rows, strength_results)
+from specgen.project.tables import (ColourReading, SieveRow, StrengthResult, capillary_rows,
+                                    colour_rows, sieve_rows, strength_results)
 
 ROOT_FILE = "dossier.yaml"
 # file name → (model, required); the folder layout is fixed so every project reads alike.
@@ -25,7 +25,8 @@ DOCUMENTS: dict[str, tuple[type[BaseModel], bool]] = {
 ARCHIVE_DIR = "issued"  # issued/<revision>/: the inputs of earlier issued revisions
 STRENGTH_FILE = "lab/strength.csv"
 # tabular lab data: file → reader of typed rows (and the Project field it fills)
-TABLES = {"lab/sieves.csv": ("sieves", sieve_rows), "lab/colour.csv": ("colours", colour_rows)}
+TABLES = {"lab/sieves.csv": ("sieves", sieve_rows), "lab/colour.csv": ("colours", colour_rows),
+          "lab/capillary.csv": ("capillary", capillary_rows)}
 NARRATIVE_DIR = "narrative"
 # An analysis whose total is this far from 100 % is a transcription or unit error, not chemistry.
 TOTAL_WINDOW = (85.0, 115.0)
@@ -51,12 +52,15 @@ class Project:
     masonry_units: dict[str, schema.MasonryUnit] = field(default_factory=dict)
     historic_mortars: dict[str, schema.HistoricMortar] = field(default_factory=dict)
     sands: dict[str, schema.Sand] = field(default_factory=dict)
+    mortar_properties: dict[str, schema.MortarProperties] = field(default_factory=dict)  # by mix
     mixes: dict[str, schema.Mix] = field(default_factory=dict)
     strength: list[StrengthResult] = field(default_factory=list)
     narrative: dict[str, str] = field(default_factory=dict)
     comments: list[schema.Comment] = field(default_factory=list)
     sieves: list[SieveRow] = field(default_factory=list)
     colours: list[ColourReading] = field(default_factory=list)
+    capillary: list = field(default_factory=list)  # CapillaryReading rows (project/tables.py)
+    gradings: dict = field(default_factory=dict)   # sample id → Grading (project/gradings.py)
     inputs: list[InputFile] = field(default_factory=list)
     firing: dict = field(default_factory=dict)  # binder id → FiringSeries (project/firing.py)
     site_temperature: object = None  # SiteTemperature (project/site_temperature.py) or None
@@ -186,6 +190,8 @@ def load_project(root: Path | str) -> Project:
     project = _assemble(root, docs, strength, log)
     for attr, rows in tables.items():
         setattr(project, attr, rows)
+    from specgen.project.gradings import gradings
+    project.gradings = gradings(project.sieves, log)
     from specgen.project.firing import firing_series
     project.firing = firing_series(root, project.binders, log)
     from specgen.project.site_temperature import curing_temperature_problems, site_temperature
@@ -217,6 +223,11 @@ def _assemble(root: Path, docs: dict, strength: list, log: ProblemLog) -> Projec
         p.masonry_units = _index(mat.masonry_units, "masonry unit", "materials.yaml", log)
         p.historic_mortars = _index(mat.historic_mortars, "historic mortar", "materials.yaml", log)
         p.sands = _index(mat.sands, "sand", "materials.yaml", log)
+        for i, props in enumerate(mat.mortar_properties):
+            if props.mix in p.mortar_properties:
+                log.add("materials.yaml", f"mix '{props.mix}' has two entries of mortar_properties.",
+                        field=f"mortar_properties[{i}].mix", fix="merge them into one entry.")
+            p.mortar_properties[props.mix] = props
     if mx := docs.get("mixes.yaml"):
         p.mixes = _index(mx.mixes, "mix", "mixes.yaml", log)
     if cm := docs.get("comments.yaml"):

@@ -40,7 +40,13 @@ Duration = Annotated[float, _quantity("time"), AfterValidator(_positive)]
 Temperature = Annotated[float, _quantity("temperature")]
 MolarEnergy = Annotated[float, _quantity("molar_energy"), AfterValidator(_positive)]
 Fraction = Annotated[float, _quantity("fraction"), AfterValidator(_positive)]
+Volume = Annotated[float, _quantity("volume"), AfterValidator(_positive)]
+Mass = Annotated[float, _quantity("mass"), AfterValidator(_positive)]
+VolumeRate = Annotated[float, _quantity("volume_rate"), AfterValidator(_positive)]
 MassPercent = Annotated[float, BeforeValidator(lambda v: _percent(v)), Field(ge=0, le=100)]
+Mass = Annotated[float, _quantity("mass"), AfterValidator(_positive)]
+Expansion = Annotated[float, _quantity("expansion"), AfterValidator(_positive)]
+Capillary = Annotated[float, _quantity("capillary"), AfterValidator(_positive)]
 
 
 def _percent(value):
@@ -92,6 +98,21 @@ class Zone(Model):
     exposure: Text = Field("", description="exposure of the zone (splash, sheltered, ...)")
     area: Area | None = Field(None, description="wall area of the works, e.g. '120 m^2'")
     candidates: list[Id] = Field(default_factory=list, description="candidate mix ids")
+    mix: Id | None = Field(None, description="mix the works quantities are worked out for "
+                           "(default: every candidate)")
+    joint_width: Length | None = Field(None, description="repointing: joint width, e.g. '10 mm'")
+    joint_depth: Length | None = Field(None, description="repointing: depth raked out, e.g. "
+                                       "'20 mm' (default: works.joint_depth_ratio × width)")
+    coats: list[Length] = Field(default_factory=list, description="render: thickness of each "
+                                "coat, e.g. ['12 mm', '8 mm']")
+    masonry_volume: Volume | None = Field(None, description="bedding: volume of masonry "
+                                          "rebedded or rebuilt, e.g. '1.8 m^3'")
+    mortar_fraction: Fraction | None = Field(None, description="bedding: mortar as a fraction "
+                                             "of the masonry volume, e.g. '22 %'")
+    wastage: Fraction | None = Field(None, description="wastage allowance on the mortar volume, "
+                                     "e.g. '12 %' (default from content/rules/works.yaml)")
+    placing_rate: VolumeRate | None = Field(None, description="mortar the zone's crew places, "
+                                            "e.g. '8 L/h' (sizes the gaugings)")
 
 
 class MinimumStrength(Model):
@@ -140,6 +161,28 @@ class StrengthSettings(Model):
         "record, e.g. '8 %': characteristic values are then also given with known variance")
 
 
+class CompatibilitySettings(Model):
+    """Choices of the compatibility checks, declared once for the project."""
+
+    salt_table: Literal["wta_2_9", "onorm_b3355"] = Field(
+        "wta_2_9", description="published salt-load table (content/data/salt_load.yaml)")
+    grading_envelope: Literal["astm_c144_natural", "astm_c144_manufactured"] = Field(
+        "astm_c144_natural", description="grading envelope of the repair sand "
+        "(content/data/grading_envelopes.yaml)")
+    repair_thickness: Length | None = Field(
+        None, description="thickness of the repair layer (pointing depth or render), e.g. "
+        "'20 mm', for sd = μ·d")
+
+
+class WorksSettings(Model):
+    """Settings of the works quantities and the site batching cards."""
+
+    bags: bool = Field(False, description="give whole bags of each binder (needs bag_mass on "
+                       "every binder used)")
+    measure: Volume | None = Field(None, description="volume of the measure binder and sand "
+                                   "are gauged in, e.g. '1 L' (default works.measure_volume)")
+
+
 class Dossier(Model):
     """The root file ``dossier.yaml``."""
 
@@ -155,6 +198,10 @@ class Dossier(Model):
                                          description="assumptions of the chemistry checks")
     strength: StrengthSettings = Field(default_factory=StrengthSettings,
                                        description="assumptions of the strength checks")
+    compatibility: CompatibilitySettings = Field(
+        default_factory=CompatibilitySettings, description="choices of the compatibility checks")
+    works: WorksSettings = Field(default_factory=lambda: WorksSettings(),
+                                 description="settings of the works quantities and batching")
     site_temperature: Text | None = Field(
         None, description="curing temperature in the wall: a constant, e.g. '8 degC', or a CSV "
         "under lab/ with columns 'day [d]' and 'temperature [degC]' (daily means)")
@@ -224,27 +271,80 @@ class Binder(Model):
     bulk_density: Density | None = Field(None, description="loose bulk density, e.g. '850 kg/m^3'")
     contains_clinker: bool = Field(False, description="holds sintered clinker: Bogue applies")
     firing: Firing | None = Field(None, description="firing record of the binder (kiln trial)")
+    particle_density: Density | None = Field(None, description="particle density for the "
+                                             "yield, e.g. '2900 kg/m^3'")
+    bag_mass: Mass | None = Field(None, description="mass of one bag as supplied, e.g. '25 kg'")
 
 
-class MasonryUnit(Model):
+class Hygrothermal(Model):
+    """Measured properties compared by the compatibility checks (fabric and repair mortar)."""
+
+    elastic_modulus: Pressure | None = Field(None, description="static elastic modulus, e.g. '6 GPa'")
+    capillary_coefficient: Capillary | None = Field(
+        None, description="capillary absorption coefficient (EN 1015-18 style), e.g. "
+        "'0.4 kg/(m^2*min^0.5)'; or readings in lab/capillary.csv under the same id")
+    vapour_resistance_factor: float | None = Field(
+        None, gt=0, description="water-vapour diffusion resistance factor μ (EN ISO 12572), e.g. 12")
+    thermal_expansion: Expansion | None = Field(
+        None, description="linear thermal expansion coefficient, e.g. '8e-6 1/K'")
+    hygric_expansion: Fraction | None = Field(
+        None, description="hygric (wetting) expansion, dry to saturated, e.g. '0.2 mm/m'")
+    source: Text = Field("", description="laboratory and report of these properties")
+
+
+class SaltContent(Model):
+    """Soluble salts of a fabric sample (mass % of the dry material)."""
+
+    chloride: MassPercent | None = Field(None, description="chloride Cl⁻, mass %")
+    nitrate: MassPercent | None = Field(None, description="nitrate NO3⁻, mass %")
+    sulfate: MassPercent | None = Field(None, description="sulfate SO4²⁻, mass %")
+    sample: Text = Field("", description="where and how deep it was sampled, laboratory")
+
+
+class AcidDigestion(Model):
+    """Acid digestion of a historic mortar sample: the insoluble residue is its aggregate."""
+
+    sample_mass: Mass = Field(description="dry mass of the mortar sample, e.g. '50.0 g'")
+    residue_mass: Mass = Field(description="dry mass of the acid-insoluble residue, e.g. '38.5 g'")
+    binder_bulk_density: Density | None = Field(
+        None, description="loose bulk density assumed for the binder, e.g. '700 kg/m^3'")
+    aggregate_bulk_density: Density | None = Field(
+        None, description="loose bulk density of the recovered aggregate, e.g. '1500 kg/m^3'")
+    laboratory: Text = Field("", description="who did it, report reference")
+
+
+class MasonryUnit(Hygrothermal):
     id: Id
     name: Text
     compressive_strength: Pressure | None = Field(None, description="unit compressive strength")
     length: Length | None = Field(None, description="unit length, e.g. '215 mm'")
     height: Length | None = Field(None, description="unit height, e.g. '65 mm'")
+    salts: SaltContent | None = Field(None, description="soluble salts of the units")
 
 
-class HistoricMortar(Model):
+class HistoricMortar(Hygrothermal):
     id: Id
     name: Text
     compressive_strength: Pressure | None = Field(None, description="sound historic mortar strength")
     binder_analysis: Id | None = Field(None, description="analysis id of its binder fraction")
+    salts: SaltContent | None = Field(None, description="soluble salts of the historic mortar")
+    aggregate_sample: Id | None = Field(
+        None, description="sample id in lab/sieves.csv of its aggregate recovered by acid digestion")
+    acid_digestion: AcidDigestion | None = Field(None, description="acid digestion results")
+
+
+class MortarProperties(Hygrothermal):
+    """Properties measured on a candidate repair mortar (strength comes from lab/strength.csv)."""
+
+    mix: Id = Field(description="mix id (mixes.yaml)")
 
 
 class Sand(Model):
     id: Id
     name: Text
     bulk_density: Density | None = Field(None, description="loose bulk density")
+    particle_density: Density | None = Field(None, description="particle density for the "
+                                             "yield, e.g. '2650 kg/m^3'")
 
 
 class MaterialsFile(Model):
@@ -252,6 +352,8 @@ class MaterialsFile(Model):
     masonry_units: list[MasonryUnit] = Field(default_factory=list)
     historic_mortars: list[HistoricMortar] = Field(default_factory=list)
     sands: list[Sand] = Field(default_factory=list)
+    mortar_properties: list[MortarProperties] = Field(
+        default_factory=list, description="measured properties of candidate repair mortars")
 
 
 # ----------------------------------------------------------------- mixes.yaml
@@ -265,12 +367,27 @@ class SandPart(Model):
     parts: float = Field(gt=0, description="parts by volume")
 
 
+class Admixture(Model):
+    name: Text = Field(description="what it is, e.g. citric acid retarder (no trade names)")
+    dose: Fraction = Field(description="dose as a fraction of the binder mass, e.g. '0.2 %'")
+    purpose: Text = Field("", description="why it is added, e.g. retarder")
+
+
 class Mix(Model):
     id: Id = Field(description="mix identifier")
     name: Text = Field(description="descriptive name")
     binders: list[BinderPart] = Field(min_length=1, description="binder parts by volume")
     sands: list[SandPart] = Field(default_factory=list, description="sand parts by volume")
     water_binder_ratio: float | None = Field(None, gt=0, lt=3, description="water/binder by mass")
+    consistence: Length | None = Field(None, description="target flow value (EN 1015-3), e.g. "
+                                       "'165 mm', where water is gauged to consistence")
+    air_content: Fraction | None = Field(None, description="air content of the fresh mortar "
+                                         "(EN 1015-7), e.g. '5 %'")
+    admixtures: list[Admixture] = Field(default_factory=list, description="admixtures dosed "
+                                        "by binder mass")
+    workable_life: Duration | None = Field(None, description="workable life measured in the "
+                                           "laboratory (EN 1015-9), e.g. '25 min'")
+    workable_life_source: Text = Field("", description="laboratory report of the workable life")
     notes: Text = Field("", description="free text")
 
 

@@ -230,3 +230,37 @@ def colour_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[ColourReadin
             out.append(ColourReading(v["sample"], v["L"], v["a"], v["b"],
                                      v["illuminant"] or "D65", v["observer"] or "2", row, rel))
     return out
+
+
+@dataclass(frozen=True)
+class CapillaryReading:
+    """One reading of a capillary absorption test: time (s) and water uptake per area (kg/m²)."""
+
+    sample: str
+    time: float
+    uptake: float
+    row: int
+    file: str
+
+
+CAPILLARY_COLUMNS = (
+    Column("sample", description="sample id: a masonry unit, historic mortar or mix"),
+    Column("time", "time", description="time since the face touched water, e.g. 'time [min]'"),
+    Column("uptake", "areal_mass", description="water taken up per area of the wetted face, "
+           "e.g. 'uptake [kg/m^2]'"),
+)
+
+
+def capillary_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[CapillaryReading]:
+    """Capillary absorption readings; time and uptake must not be negative."""
+    out = []
+    for row, v in typed_rows(table, CAPILLARY_COLUMNS, rel, log):
+        if v["time"] < 0:
+            log.add(rel, "time cannot be negative.", row=row, field="time",
+                    fix="give the time since the specimen's face was placed in water.")
+        elif v["uptake"] < 0:
+            log.add(rel, "uptake cannot be negative.", row=row, field="uptake",
+                    fix="give the mass gained per area of the wetted face.")
+        else:
+            out.append(CapillaryReading(v["sample"], v["time"], v["uptake"], row, rel))
+    return out

@@ -8,13 +8,18 @@ from specgen.report.fmt import num, qty
 PURPOSE_WORDS = {"preliminary": "preliminary", "for_approval": "for approval",
                  "for_construction": "for construction"}
 STATE_WORDS = {"draft": "draft", "issued": "issued"}
+#: Statuses listed with their finding at the top of the summary, most severe first.
+DECIDING = ("fail", "hold", "attention")
 
 
 @chapter("index.md", "Summary", 10, "summary.md.j2")
 def summary(env) -> dict:
     p, r = env.project, env.results
     counts = [{"status": s, "badge": badge(s), "n": n} for s, n in r.counts().items() if n]
-    return {"counts": counts, "rows": check_rows(r),
+    rows = check_rows(r)
+    flagged = sorted((row for row in rows if row["status"] in DECIDING),
+                     key=lambda row: DECIDING.index(row["status"]))
+    return {"counts": counts, "rows": rows, "flagged": flagged,
             "purpose": PURPOSE_WORDS[p.revision.purpose], "state": STATE_WORDS[p.revision.status],
             "parties": p.dossier.parties, "overrides": env.rules_overridden,
             "open_comments": sum(1 for c in p.comments if c.status == "open"),

@@ -5,6 +5,7 @@ matplotlib is imported inside :func:`specgen.report.figures._pyplot`.
 """
 from __future__ import annotations
 
+from specgen.report.cache import figure
 from specgen.report.figures import _pyplot, to_svg
 
 PHASE_COLOURS = {
@@ -19,6 +20,7 @@ VOLUME_LABELS = {"C2S": "belite", "H": "water", "C1.7SH4": "C-S-H", "CH": "CH",
                  "shrinkage": "chemical shrinkage (empty)"}
 
 
+@figure
 def phase_bars(rows: list[tuple[str, dict[str, float]]]) -> bytes:
     """One stacked horizontal bar per binder: potential phases in mass %."""
     plt = _pyplot()
@@ -43,6 +45,7 @@ def phase_bars(rows: list[tuple[str, dict[str, float]]]) -> bytes:
     return to_svg(fig)
 
 
+@figure
 def hydration_bars(cases: list[tuple[str, dict[str, float]]]) -> bytes:
     """Before/after volume bars of belite hydration for each density set.
 

@@ -6,6 +6,8 @@ from __future__ import annotations
 
 import io
 
+from specgen.report.cache import figure
+
 
 def _pyplot():
     import matplotlib
@@ -30,6 +32,7 @@ def to_svg(fig) -> bytes:
 BAND_COLOURS = ["#f3ede2", "#e7dcc7", "#d9c8a7", "#c8b087", "#a98f64", "#8a7250"]
 
 
+@figure
 def band_chart(points: list[tuple[str, float]], bands: list[dict], title: str) -> bytes:
     """Place each analysis's index on the band scale (one row per analysis)."""
     import textwrap

@@ -12,10 +12,14 @@ from markupsafe import Markup, escape
 
 @lru_cache(maxsize=4096)
 def svg_of(latex: str) -> str:
-    """SVG text of a LaTeX expression (ziamath, STIX Two Math font shipped in the package)."""
-    import ziamath
-    svg = ziamath.Latex(latex, size=18).svg()
-    return re.sub(r"\s+$", "", svg)
+    """SVG text of a LaTeX expression (ziamath, STIX Two Math font shipped in the package);
+    kept in the output folder's artefact cache (specgen/report/cache.py)."""
+    from specgen.report.cache import cached
+
+    def draw() -> bytes:
+        import ziamath
+        return re.sub(r"\s+$", "", ziamath.Latex(latex, size=18).svg()).encode("utf-8")
+    return cached("math", latex, draw).decode("utf-8")
 
 
 class MathAssets:

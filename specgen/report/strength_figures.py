@@ -6,12 +6,14 @@ matplotlib is imported inside the functions so that ``specgen check`` never load
 """
 from __future__ import annotations
 
+from specgen.report.cache import figure
 from specgen.report.figures import _pyplot, to_svg
 
 INK, BAND, WIDE = "#1f3a5f", "#c9d6e6", "#eadfcb"
 ALUMINATE, SILICATE, WALL, LIMIT = "#e3c48f", "#a9c5a0", "#8a4f7d", "#a23b2a"
 
 
+@figure
 def strength_age(data: dict) -> bytes:
     """Strength against log age: specimens, means ± SD, fitted curve and band, components,
     requirement lines and the in-wall curve.
@@ -66,8 +68,11 @@ def _band(ax, c: dict) -> None:
     import numpy as np
     wide = np.asarray(c["widened"], bool)
     ages, lo, hi = (np.asarray(c[k], float) for k in ("ages", "lower", "upper"))
-    ax.fill_between(ages, lo, hi, where=~wide, color=BAND, alpha=0.8, lw=0,
+    # Translucent, with its edges drawn, so the two stages stay readable underneath.
+    ax.fill_between(ages, lo, hi, where=~wide, color=BAND, alpha=0.35, lw=0,
                     label="95 % band", interpolate=True)
+    for edge in (lo, hi):
+        ax.plot(ages, edge, color=INK, lw=0.5, ls=(0, (2, 2)), alpha=0.7)
     if wide.any():
         ax.fill_between(ages, lo, hi, where=wide, color=WIDE, alpha=0.8, lw=0, hatch="///",
                         edgecolor="#b9a27a", label="band widened (short record)")
@@ -81,6 +86,7 @@ def _limit(ax, age, value, label, kind) -> None:
                 va="bottom", fontsize=7, color=LIMIT)
 
 
+@figure
 def residuals(panels: list[dict]) -> bytes:
     """Relative residuals (observed/fitted − 1, %) against log age, one panel per test kind."""
     plt = _pyplot()

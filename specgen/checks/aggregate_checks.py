@@ -1,0 +1,242 @@
+"""Aggregate of each candidate mix against the historic aggregate and a grading envelope.
+
+* COMP-GRAD: grading of the mix's sand (a blend of its sands, volume parts converted to mass
+  with the loose bulk densities) — % retained, cumulative % passing, fineness modulus
+  (ASTM C125) — against the historic aggregate recovered by acid digestion (RMS difference
+  of % passing, a rule) and against the envelope the project chose (data with its source).
+* COMP-BLEND: the proportions of the sands that best match the historic grading
+  (non-negative least squares, proportions summing to one), beside the proposed ones.
+* COMP-BA: binder:aggregate of the historic mortar from acid digestion, by mass and by
+  volume, beside the mix's proportions by volume.
+"""
+from __future__ import annotations
+
+from specgen import refdata
+from specgen.checks import compatibility_common as cc
+from specgen.checks.registry import declare, register
+from specgen.checks.result import Basis, Input, Limit, Quantity, Step
+from specgen.science import grading as gr
+
+declare("fineness_modulus", "", "fineness modulus (ASTM C125) of the repair sand and of the "
+        "historic aggregate")
+declare("grading_deviation", "%", "RMS and largest difference of cumulative % passing, repair "
+        "sand − historic aggregate, on their common sieves")
+declare("blend_proportions", "", "mass proportions of the sands that best match the historic "
+        "grading (NNLS, sum 1), with the proposed ones and the RMS difference in %")
+declare("binder_aggregate_ratio", "", "binder:aggregate of the historic mortar from acid "
+        "digestion (by mass, by volume) and of the mix (by volume)")
+
+C125 = Basis("reference", "astmc125", "fineness modulus")
+
+
+def envelope(ctx) -> tuple[str, dict]:
+    key = ctx.project.dossier.compatibility.grading_envelope
+    return key, refdata.load("grading_envelopes").data[key]
+
+
+def mix_sand(pair, project) -> tuple[gr.Grading | None, list[str], list[tuple[str, float]]]:
+    """(blended grading, missing items, [(sand id, mass fraction)]) of the mix's sands."""
+    mix, missing = pair.mix, []
+    if mix is None or not mix.sands:
+        return None, [f"mix {pair.mix_id} names no sand (mixes.yaml)"], []
+    for part in mix.sands:
+        if part.sand not in project.gradings:
+            missing.append(f"no sieve analysis of sand {part.sand} in lab/sieves.csv")
+        s = project.sands.get(part.sand)
+        if len(mix.sands) > 1 and (s is None or s.bulk_density is None):
+            missing.append(f"sand {part.sand} has no bulk_density (materials.yaml), needed to "
+                           "turn volume parts into mass")
+    if missing:
+        return None, missing, []
+    if len(mix.sands) == 1:
+        fr = [1.0]
+    else:
+        fr = gr.volume_to_mass_fractions([p.parts for p in mix.sands],
+                                         [project.sands[p.sand].bulk_density for p in mix.sands])
+    g = gr.blend([project.gradings[p.sand] for p in mix.sands], fr)
+    return g, [], [(p.sand, f) for p, f in zip(mix.sands, fr)]
+
+
+def historic_aggregate(pair, project) -> tuple[gr.Grading | None, str]:
+    h = pair.historic
+    if h is None:
+        return None, cc.fabric_names(pair)[1]
+    if not h.aggregate_sample:
+        return None, (f"historic mortar {h.id} names no aggregate_sample (its aggregate "
+                      "recovered by acid digestion, in lab/sieves.csv)")
+    return project.gradings.get(h.aggregate_sample), ""
+
+
+def _grading_step(name: str, g: gr.Grading, fm: float, src: str) -> Step:
+    inputs = tuple(Input(f"P({s * 1000:g})", f"passing {s * 1000:g} mm (retained {100 * r:.1f} %, "
+                         f"cumulative retained {100 * c:.1f} %)", round(100 * p, 2), "%", src)
+                   for s, r, c, p in zip(g.sieves, g.retained, g.cumulative, g.passing))
+    cum = " + ".join(f"{100 * c:.4g}" for c, s in zip(g.cumulative, g.sieves) if s >= 0.00015 - 1e-9)
+    return Step(f"Fineness modulus of {name}", r"FM = \frac{\sum \text{cumulative \% retained}}{100}",
+                inputs, rf"FM = \frac{{{cum}}}{{100}} = {fm:.3f}", round(fm, 4), "", "FM")
+
+
+@register("COMP-GRAD", "Aggregate grading against the historic aggregate", "zone", order=550)
+def grading_check(zone, ctx):
+    """Fineness modulus, RMS difference from the historic aggregate, envelope."""
+    return [_grading_one(p, ctx) for p in cc.pairs(zone, ctx.project)]
+
+
+def _grading_one(pair, ctx):
+    code, title, p = "COMP-GRAD", "Aggregate grading against the historic aggregate", ctx.project
+    fm_sieves = refdata.load("sieve_series").data["fineness_modulus"]
+    g, missing, fractions = mix_sand(pair, p)
+    hist, why = historic_aggregate(pair, p)
+    if why:
+        missing.append(why)
+    if missing:
+        return cc.not_assessed(code, title, pair, missing, basis=(C125,))
+    ekey, env = envelope(ctx)
+    steps, statuses, msg, notes = [], [], [], []
+    fm = {}
+    for name, gg, src in ((f"repair sand of {pair.mix_id}", g,
+                           "lab/sieves.csv, blended by mass " + ", ".join(
+                               f"{s} {f:.3f}" for s, f in fractions)),
+                          (f"historic aggregate {pair.historic.aggregate_sample}", hist,
+                           "lab/sieves.csv")):
+        try:
+            v = gr.fineness_modulus(gg, fm_sieves)
+        except gr.GradingInputError as exc:
+            notes.append(f"fineness modulus of {name} not computed: {exc}")
+            continue
+        fm["repair" if name.startswith("repair") else "historic"] = round(v, 4)
+        steps.append(_grading_step(name, gg, v, src))
+    dev = gr.deviation(g, hist)
+    rms_lim = ctx.rules["compatibility.grading_rms_max"].value
+    steps.append(Step("Difference from the historic aggregate",
+                      r"\Delta_\mathrm{rms} = \sqrt{\frac{1}{n}\sum (P_\mathrm{repair} - P_\mathrm{hist})^2}",
+                      tuple(Input(f"ΔP({s * 1000:g})", f"difference at {s * 1000:g} mm",
+                                  round(100 * d, 3), "%", "computed")
+                            for s, d in zip(dev.sieves, dev.difference)),
+                      rf"\Delta_\mathrm{{rms}} = {100 * dev.rms:.3f}", round(100 * dev.rms, 4), "%",
+                      "Δ_rms"))
+    statuses.append("pass" if 100 * dev.rms <= rms_lim else "attention")
+    msg.append(f"RMS difference from the historic aggregate {100 * dev.rms:.1f} % (at most "
+               f"{rms_lim:g} %), largest {100 * dev.max_abs:.1f} %")
+    limits = [(e["sieve_mm"] / 1000, e["low"] / 100, e["high"] / 100) for e in env["limits"]]
+    usable = [lim for lim in limits if gr.match_sieve(lim[0], g.sieves) or lim[0] > g.sieves[0]]
+    skipped = [lim[0] for lim in limits if lim not in usable]
+    if skipped:
+        notes.append("envelope sieves without a result, not compared: "
+                     + ", ".join(f"{s * 1000:g} mm" for s in skipped))
+    cmp = gr.compare_envelope(g, usable)
+    out = [f"{s * 1000:g} mm ({100 * pp:.0f} % passing, limits {100 * lo:g}–{100 * hi:g} %)"
+           for s, pp, lo, hi, d in zip(cmp.sieves, cmp.passing, cmp.low, cmp.high, cmp.outside)
+           if d > 1e-9]
+    statuses.append("pass" if not out else "attention")
+    msg.append(f"within the {env['title']} envelope" if not out
+               else "outside the envelope at " + "; ".join(out))
+    if "repair" in fm and "historic" in fm:
+        msg.insert(0, f"FM {fm['repair']:.2f} (historic {fm['historic']:.2f})")
+    notes.append(f"envelope: {env['title']} — {env['source']} ({env.get('tag', '')})")
+    return cc.result(code, title, pair, cc.worst(statuses), round(100 * dev.rms, 3), "%",
+                     [C125, Basis("reference", env["ref"], env["source"]),
+                      cc.rule_basis(ctx, "grading_rms_max")], "; ".join(msg), steps=steps,
+                     notes=notes,
+                     limit=cc.rule_limit(ctx, "grading_rms_max", "<=", f"Δ_rms ≤ {rms_lim:g} %"),
+                     quantities=[Quantity("fineness_modulus", fm, "", "fineness modulus"),
+                                 Quantity("grading_deviation",
+                                          {"rms": round(100 * dev.rms, 3),
+                                           "max": round(100 * dev.max_abs, 3)}, "%",
+                                          "difference of % passing from the historic aggregate")])
+
+
+@register("COMP-BLEND", "Sand blend that best matches the historic aggregate", "zone", order=551)
+def blend_check(zone, ctx):
+    """Non-negative least-squares blend of the sands against the historic grading."""
+    return [_blend_one(p, ctx) for p in cc.pairs(zone, ctx.project)]
+
+
+def _blend_one(pair, ctx):
+    code, title, p = "COMP-BLEND", "Sand blend that best matches the historic aggregate", ctx.project
+    hist, why = historic_aggregate(pair, p)
+    mix_sands = [s.sand for s in pair.mix.sands] if pair.mix else []
+    sands = [s for s in mix_sands if s in p.gradings]
+    if len(sands) < 2:      # one sand alone: try every sand of the project with a grading
+        sands = [s for s in p.sands if s in p.gradings]
+    missing = ([why] if why else []) + ([] if len(sands) >= 2 else [
+        "fewer than two sands with a sieve analysis in lab/sieves.csv to blend"])
+    if missing:
+        return cc.not_assessed(code, title, pair, missing, basis=(C125,))
+    fit = gr.fit_blend([p.gradings[s] for s in sands], hist)
+    best = {s: round(f, 4) for s, f in zip(sands, fit.proportions)}
+    _, _, proposed = mix_sand(pair, p)
+    prop = {s: round(f, 4) for s, f in proposed}
+    inputs = tuple(Input(f"x_{s}", f"mass proportion of sand {s}", v, "", "fitted (NNLS)")
+                   for s, v in best.items())
+    inputs += tuple(Input(f"x0_{s}", f"proposed proportion of {s}", v, "",
+                          f"mixes.yaml {pair.mix_id} (volume parts × bulk density)")
+                    for s, v in prop.items())
+    step = Step("Best blend by non-negative least squares",
+                r"\min_{x \ge 0,\ \sum x = 1} \sum_j \Big(\sum_i x_i P_{ij} - P_{\mathrm{hist},j}\Big)^2",
+                inputs, ", ".join(f"x_{{{s}}} = {v:.3f}" for s, v in best.items())
+                + rf",\ \Delta_\mathrm{{rms}} = {100 * fit.rms:.2f}\,\%", round(100 * fit.rms, 4),
+                "%", "Δ_rms")
+    text = ", ".join(f"{s} {100 * v:.0f} %" for s, v in best.items())
+    ptext = ", ".join(f"{s} {100 * v:.0f} %" for s, v in prop.items()) or "—"
+    return cc.result(code, title, pair, "info", round(100 * fit.rms, 3), "%",
+                     [Basis("common practice", note="match of the historic grading by a blend of "
+                            "available sands; scipy.optimize.nnls")],
+                     f"best blend by mass {text} (RMS {100 * fit.rms:.1f} %); proposed {ptext}",
+                     steps=[step],
+                     quantities=[Quantity("blend_proportions", {"best": best, "proposed": prop,
+                                                                "rms": round(100 * fit.rms, 3)},
+                                          "", "sand blend proportions by mass")])
+
+
+@register("COMP-BA", "Binder:aggregate of the historic mortar", "zone", order=552)
+def binder_aggregate_check(zone, ctx):
+    """Binder:aggregate from acid digestion, by mass and volume, beside the mix's proportions."""
+    return [_ba_one(p, ctx) for p in cc.pairs(zone, ctx.project)]
+
+
+def _ba_one(pair, ctx):
+    code, title = "COMP-BA", "Binder:aggregate of the historic mortar"
+    h = pair.historic
+    if h is None or h.acid_digestion is None:
+        return cc.not_assessed(code, title, pair, [
+            cc.fabric_names(pair)[1] if h is None else
+            f"historic mortar {h.id} has no acid_digestion results (materials.yaml)"])
+    d = h.acid_digestion
+    r = gr.binder_aggregate(d.sample_mass, d.residue_mass, d.binder_bulk_density,
+                            d.aggregate_bulk_density)
+    src = f"materials.yaml {h.id}.acid_digestion"
+    inputs = (Input("m_s", "dry mortar sample", round(d.sample_mass * 1000, 3), "g", src),
+              Input("m_r", "acid-insoluble residue (aggregate)", round(d.residue_mass * 1000, 3), "g", src))
+    steps = [Step("Binder:aggregate by mass", r"B{:}A_m = \frac{m_s - m_r}{m_r}", inputs,
+                  rf"B{{:}}A_m = \frac{{{d.sample_mass * 1000:g} - {d.residue_mass * 1000:g}}}"
+                  rf"{{{d.residue_mass * 1000:g}}} = {r.by_mass:.4f}", round(r.by_mass, 5), "", "B:A_m")]
+    notes = ["the acid-soluble loss is counted as binder as found (carbonated); fines dissolved "
+             "from a calcareous aggregate would be counted as binder"]
+    if r.by_volume is not None:
+        steps.append(Step("Binder:aggregate by loose volume",
+                          r"B{:}A_V = \frac{(m_s - m_r)/\rho_b}{m_r/\rho_a}",
+                          inputs + (Input("ρ_b", "binder loose bulk density", d.binder_bulk_density,
+                                          "kg/m³", src),
+                                    Input("ρ_a", "aggregate loose bulk density",
+                                          d.aggregate_bulk_density, "kg/m³", src)),
+                          rf"B{{:}}A_V = {r.by_volume:.4f}", round(r.by_volume, 5), "", "B:A_V"))
+    else:
+        notes.append("by volume not computed: binder_bulk_density and aggregate_bulk_density not both given")
+    q = {"historic_by_mass": round(r.by_mass, 4),
+         "historic_by_volume": None if r.by_volume is None else round(r.by_volume, 4)}
+    mix_txt = ""
+    if pair.mix is not None and pair.mix.sands:
+        b, s = sum(x.parts for x in pair.mix.binders), sum(x.parts for x in pair.mix.sands)
+        q["mix_by_volume"] = round(b / s, 4)
+        mix_txt = f"; mix {pair.mix_id} 1 : {s / b:.2g} by volume (B:A {b / s:.3f})"
+    vol = f", 1 : {1 / r.by_volume:.2g} by volume" if r.by_volume else ""
+    return cc.result(code, title, pair, "info", round(r.by_mass, 4), "",
+                     [Basis("common practice", note="acid digestion of a lime or natural-cement "
+                            "mortar with a siliceous aggregate")],
+                     f"historic mortar {h.id}: 1 : {1 / r.by_mass:.2g} by mass{vol}{mix_txt}",
+                     steps=steps, notes=notes,
+                     quantities=[Quantity("binder_aggregate_ratio", q, "", "binder:aggregate")])
+
+
+__all__ = ["grading_check", "blend_check", "binder_aggregate_check", "Limit"]

@@ -1,0 +1,100 @@
+"""Colour of each candidate's trial panel against the historic mortar (COMP-COLOUR).
+
+Readings come from lab/colour.csv: several CIELAB readings per sample, the panel of a mix
+under the mix id and the historic mortar under its id, each with illuminant and observer.
+The mean colours are compared by CIEDE2000 (our implementation of Sharma, Wu & Dalal 2005)
+against the project's threshold.  No standard threshold exists for repointing: the
+dossier says so, and says that trial panels judged dry by eye decide.
+"""
+from __future__ import annotations
+
+from specgen.checks import compatibility_common as cc
+from specgen.checks.registry import declare, register
+from specgen.checks.result import Basis, Input, Quantity, Step
+from specgen.science import colour
+
+declare("delta_e_2000", "", "CIEDE2000 difference between the mean colours of the trial panel "
+        "and the historic mortar, with both means, spreads and the illuminant/observer")
+
+SHARMA = Basis("reference", "sharma2005", "CIEDE2000, eqs. 1–22")
+DECIDES = ("no standard acceptance threshold exists for repointing; ΔE00 ≈ 1 is just noticeable "
+           "and 2–3.5 visible at a glance (common practice); trial panels judged dry, by eye, "
+           "in daylight, decide")
+
+
+def readings(project, sample: str):
+    return [r for r in project.colours if r.sample == sample]
+
+
+@register("COMP-COLOUR", "Colour of the trial panel against the historic mortar", "zone", order=560)
+def colour_check(zone, ctx):
+    """Mean CIELAB of panel and historic mortar, spread, CIEDE2000 against the threshold."""
+    return [_colour_one(p, ctx) for p in cc.pairs(zone, ctx.project)]
+
+
+def _summary_step(name: str, rows, s: colour.LabSummary) -> Step:
+    inputs = tuple(Input("Lab", f"reading {i + 1}", f"{r.L:g}, {r.a:g}, {r.b:g}", "",
+                         f"{r.file} row {r.row} ({r.illuminant}/{r.observer}°)")
+                   for i, r in enumerate(rows))
+    inputs += (Input("s", "sample SD of L*, a*, b*", ", ".join(f"{v:.2f}" for v in s.sd), "",
+                     "computed (n − 1)"),)
+    m = s.mean
+    return Step(f"Mean colour of {name} (n = {s.n})", r"\bar L^* = \frac{1}{n}\sum L^*_i \ldots",
+                inputs, rf"(\bar L^*, \bar a^*, \bar b^*) = ({m[0]:.2f}, {m[1]:.2f}, {m[2]:.2f})",
+                round(s.spread, 4), "", "spread ΔE00")
+
+
+def _colour_one(pair, ctx):
+    code, title, p = "COMP-COLOUR", "Colour of the trial panel against the historic mortar", ctx.project
+    hist_id = pair.historic.id if pair.historic else None
+    panel, hist = readings(p, pair.mix_id), readings(p, hist_id) if hist_id else []
+    missing = []
+    if not panel:
+        missing.append(f"no colour readings of the trial panel of {pair.mix_id} (lab/colour.csv, "
+                       f"sample '{pair.mix_id}')")
+    if hist_id is None:
+        missing.append(cc.fabric_names(pair)[1])
+    elif not hist:
+        missing.append(f"no colour readings of historic mortar {hist_id} (lab/colour.csv)")
+    if missing:
+        return cc.not_assessed(code, title, pair, missing, basis=(SHARMA,))
+    conds = {(r.illuminant, r.observer) for r in panel + hist}
+    if len(conds) > 1:
+        return cc.not_assessed(code, title, pair, [
+            "the readings use different illuminant/observer conditions ("
+            + ", ".join(f"{i}/{o}°" for i, o in sorted(conds)) + "): measure panel and historic "
+            "mortar under the same conditions"], basis=(SHARMA,))
+    sp = colour.summarise([(r.L, r.a, r.b) for r in panel])
+    sh = colour.summarise([(r.L, r.a, r.b) for r in hist])
+    de = colour.ciede2000(sp.mean, sh.mean)
+    limit = ctx.rules["compatibility.colour_delta_e_max"].value
+    ill, obs = conds.pop()
+    steps = [_summary_step(f"trial panel {pair.mix_id}", panel, sp),
+             _summary_step(f"historic mortar {hist_id}", hist, sh),
+             Step("CIEDE2000 difference of the means",
+                  r"\Delta E_{00} = \sqrt{\left(\frac{\Delta L'}{S_L}\right)^2 + "
+                  r"\left(\frac{\Delta C'}{S_C}\right)^2 + \left(\frac{\Delta H'}{S_H}\right)^2 + "
+                  r"R_T\frac{\Delta C'}{S_C}\frac{\Delta H'}{S_H}}",
+                  (Input("ΔL'", "lightness difference", round(de.dL, 4), "", "computed"),
+                   Input("ΔC'", "chroma difference", round(de.dC, 4), "", "computed"),
+                   Input("ΔH'", "hue difference", round(de.dH, 4), "", "computed"),
+                   Input("S_L, S_C, S_H", "weighting functions",
+                         f"{de.SL:.4f}, {de.SC:.4f}, {de.SH:.4f}", "", "computed"),
+                   Input("R_T", "rotation term", round(de.RT, 5), "", "computed")),
+                  rf"\Delta E_{{00}} = \sqrt{{({de.dL:.3f}/{de.SL:.3f})^2 + ({de.dC:.3f}/{de.SC:.3f})^2"
+                  rf" + ({de.dH:.3f}/{de.SH:.3f})^2 + ({de.RT:.4f})\,\ldots}} = {de.value:.3f}",
+                  round(de.value, 4), "", "ΔE00")]
+    status = "pass" if de.value <= limit else "attention"
+    notes = [DECIDES, f"readings under illuminant {ill}, {obs}° observer"]
+    if sp.n < 3 or sh.n < 3:
+        notes.append("fewer than three readings of a sample: the spread is poorly known")
+    q = {"value": round(de.value, 4), "panel_mean": [round(v, 3) for v in sp.mean],
+         "panel_spread": round(sp.spread, 4), "historic_mean": [round(v, 3) for v in sh.mean],
+         "historic_spread": round(sh.spread, 4), "illuminant": ill, "observer": obs}
+    return cc.result(code, title, pair, status, round(de.value, 3), "",
+                     [SHARMA, cc.rule_basis(ctx, "colour_delta_e_max")],
+                     f"ΔE00 {de.value:.2f} between the mean of {sp.n} panel reading(s) and {sh.n} of "
+                     f"{hist_id} (threshold {limit:g}, project rule); trial panels judged dry decide",
+                     steps=steps, notes=notes,
+                     limit=cc.rule_limit(ctx, "colour_delta_e_max", "<=", f"ΔE00 ≤ {limit:g}"),
+                     quantities=[Quantity("delta_e_2000", q, "", "CIEDE2000 difference")])

@@ -1,0 +1,374 @@
+"""Works checks: mix yield, works quantities per zone, site gaugings, weather window.
+
+Codes: ``MIX-YIELD`` (mix), ``WORKS-QTY`` (zone), ``SITE-GAUGE`` (mix), ``SITE-WEATHER``
+(project).  Formulas are in ``specgen.science.mix_design``, ``works`` and ``batching``;
+inputs and their sources are gathered in ``specgen.checks.works_common``.
+"""
+from __future__ import annotations
+
+from specgen.checks import works_common as wc
+from specgen.checks.registry import declare, register
+from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step
+from specgen.science import batching as bt
+from specgen.science import works as wk
+
+PRACTICE = Basis("common practice", note="absolute-volume method; defaults in "
+                 "content/data/mix_densities.yaml and content/rules/works.yaml")
+WORKS = Basis("common practice", note="quantities from the zone's dimensions; wastage "
+              "applied once (content/rules/works.yaml)")
+GAUGE = Basis("common practice", note="gauging sized to the workable life (EN 1015-9 where "
+              "measured), the crew's placing rate and a safety factor")
+WEATHER = Basis("common practice", note="working-temperature window and curing durations of "
+                "content/rules/works.yaml")
+L = 1e-3  # m³ per litre
+
+declare("mass_proportions", "", "binder : each sand by mass, from parts by loose volume and bulk "
+        "densities (binders together = 1)")
+declare("yield_per_m3", "kg/m³", "kg of each constituent (binders, sands, water, admixtures) per "
+        "m³ of fresh mortar, absolute-volume method with air content")
+declare("fresh_density", "kg/m³", "density of the fresh mortar from the absolute-volume yield")
+declare("joint_length_per_m2", "m/m²", "joint length per m² of wall face, stretcher bond "
+        "(bed joints + perpends net of crossings)")
+declare("mortar_volume", "m³", "mortar volume of a zone, wastage allowance included (applied once)")
+declare("mortar_volume_net", "m³", "mortar volume of a zone before wastage")
+declare("binder_mass", "kg", "mass of each binder for a zone, by mix")
+declare("sand_mass", "kg", "mass of each sand for a zone, by mix")
+declare("water_mass", "kg", "mass of gauging water for a zone, by mix")
+declare("admixture_mass", "kg", "mass of each admixture for a zone, by mix")
+declare("bags", "", "whole bags of each binder for a zone, by mix")
+declare("max_gauging_volume", "L", "largest gauging placed within the workable life, by zone "
+        "(workable life × placing rate / safety factor)")
+declare("gauging", "", "the gauging on the batching card: binder measures, measure volume, "
+        "fresh volume, measures and masses of each constituent")
+declare("gaugings_per_day", "", "gaugings to keep a zone's crew supplied for a working day, by zone")
+declare("workable_life", "min", "workable life used for the gaugings, with whether it was measured")
+declare("weather_window", "°C", "working-temperature window {low, high} and curing/protection days")
+declare("days_outside_window", "", "days of the site temperature record outside the working "
+        "window, each {day, temperature in °C, side}")
+
+
+def _not_assessed(code, title, subject, kind, reason, basis) -> CheckResult:
+    return CheckResult(code=code, title=title, subject=subject, subject_kind=kind,
+                       status="not_assessed", value=None, unit="", basis=(basis,),
+                       message=f"not assessed: {reason}")
+
+
+def _r(x: float, n: int = 4) -> float:
+    return float(f"{x:.{n}g}")
+
+
+# ---------------------------------------------------------------- mix yield
+@register("MIX-YIELD", "Mix proportions and yield", "mix", order=600)
+def mix_yield_check(mix, ctx) -> CheckResult:
+    """Proportions by volume and by mass; absolute-volume yield in kg per m³ with air content."""
+    title, p = "Mix proportions and yield", ctx.project
+    y = wc.mix_yield(p, mix, ctx.rules)
+    if y is None:
+        why = (f"water is gauged to the consistence target {mix.consistence * 1000:g} mm "
+               "(EN 1015-3)" if mix.consistence else "no water/binder ratio is given")
+        return _not_assessed("MIX-YIELD", title, mix.id, "mix", f"{why}; give "
+                             "water_binder_ratio in mixes.yaml to compute the yield", PRACTICE)
+    parts = wc.parts_of(p, mix)
+    air, rho_w = wc.air_of(mix, ctx.rules), wc.water_density()
+    binder = sum(y.masses[q.constituent.name] for q in parts if q.constituent.kind == "binder")
+    props = {k: round(v / binder, 4) for k, v in y.masses.items()}
+    steps = [_mass_step(parts, y, binder), _yield_step(parts, y, mix, air, rho_w)]
+    per = {k: round(v, 2) for k, v in y.per_m3.items()}
+    text = " : ".join(f"{q.constituent.parts:g}" for q in parts)
+    mass_text = " : ".join(f"{props[q.constituent.name]:.3g}" for q in parts)
+    return CheckResult(
+        code="MIX-YIELD", title=title, subject=mix.id, subject_kind="mix", status="info",
+        value=round(y.binder_mass_per_m3, 1), unit="kg/m³", basis=(PRACTICE,),
+        steps=tuple(steps),
+        message=(f"{text} by loose volume = {mass_text} by mass; {y.binder_mass_per_m3:.0f} kg "
+                 f"of binder and {y.per_m3[wc.WATER]:.0f} kg of water per m³ of fresh mortar "
+                 f"(air {100 * air.value:.3g} %, fresh density {y.fresh_density:.0f} kg/m³)"),
+        quantities=(Quantity("mass_proportions", props, "", "proportions by mass (binder = 1)"),
+                    Quantity("yield_per_m3", per, "kg/m³", "kg per m³ of fresh mortar"),
+                    Quantity("fresh_density", round(y.fresh_density, 1), "kg/m³",
+                             "fresh mortar density")))
+
+
+def _mass_step(parts, y, binder) -> Step:
+    inputs = []
+    for q in parts:
+        c = q.constituent
+        inputs += [Input(f"V_{c.name}", f"{q.label}: parts by loose volume", c.parts, "",
+                         "mixes.yaml"),
+                   Input(f"ρb_{c.name}", f"{q.label}: loose bulk density", c.bulk_density,
+                         "kg/m³", q.bulk.source)]
+    sub = r",\ ".join(rf"m_{{\mathrm{{{q.constituent.name}}}}} = {q.constituent.parts:g} \times "
+                      rf"{q.constituent.bulk_density:g} = {y.masses[q.constituent.name]:.1f}"
+                      for q in parts)
+    return Step("Masses of one batch (1 part = 1 m³ loose) and proportions by mass",
+                r"m_i = V_i\,\rho_{b,i},\qquad m_i / \textstyle\sum_{\mathrm{binders}} m",
+                tuple(inputs), sub + rf";\ \sum m_b = {binder:.1f}\ \mathrm{{kg}}",
+                round(binder, 2), "kg", "Σm_b")
+
+
+def _yield_step(parts, y, mix, air, rho_w) -> Step:
+    inputs = [Input(f"ρp_{q.constituent.name}", f"{q.label}: particle density",
+                    q.constituent.particle_density, "kg/m³", q.particle.source) for q in parts]
+    inputs += [Input("w/b", "water/binder ratio by mass", mix.water_binder_ratio, "",
+                     f"mixes.yaml {mix.id}.water_binder_ratio"),
+               Input("ρ_w", "density of water", rho_w.value, "kg/m³", rho_w.source),
+               Input("a", "air content", round(100 * air.value, 3), "%", air.source)]
+    inputs += [Input(f"dose_{i + 1}", f"{a.name} (% of binder mass)", round(100 * a.dose, 4), "%",
+                     f"mixes.yaml {mix.id}.admixtures[{i}]; volume neglected")
+               for i, a in enumerate(mix.admixtures)]
+    terms = " + ".join(rf"\frac{{{y.masses[q.constituent.name]:.1f}}}"
+                       rf"{{{q.constituent.particle_density:g}}}" for q in parts)
+    sub = (rf"V_f = \frac{{{terms} + \frac{{{y.water:.1f}}}{{{rho_w.value:g}}}}}"
+           rf"{{1 - {air.value:.4g}}} = \frac{{{y.solid_water_volume:.4f}}}{{{1 - air.value:.4g}}}"
+           rf" = {y.fresh_volume:.4f}\ \mathrm{{m^3}};\ c_b = {y.binder_mass_per_m3:.1f}\ "
+           rf"\mathrm{{kg/m^3}}")
+    return Step("Absolute-volume yield: fresh volume of the batch and kg per m³",
+                r"V_f = \frac{\sum_i m_i/\rho_{p,i} + m_w/\rho_w}{1 - a},\quad m_w = (w/b)"
+                r"\sum m_b,\quad c_i = m_i / V_f", tuple(inputs), sub,
+                round(y.fresh_volume, 5), "m³", "V_f")
+
+
+# ---------------------------------------------------------------- works quantities
+@register("WORKS-QTY", "Works quantities", "zone", order=610)
+def works_quantities_check(zone, ctx) -> CheckResult:
+    """Mortar volume of the zone (wastage once) → binder, sands, water, admixtures, bags."""
+    title, p = "Works quantities", ctx.project
+    v = wc.zone_volume(zone, p, ctx.rules)
+    if v.reason:
+        return _not_assessed("WORKS-QTY", title, zone.id, "zone", f"{zone.works}: {v.reason} "
+                             f"for zone {zone.id} in dossier.yaml", WORKS)
+    steps = [_volume_step(zone, v)]
+    masses: dict[str, dict] = {"binder_mass": {}, "sand_mass": {}, "water_mass": {},
+                               "admixture_mass": {}, "bags": {}}
+    skipped = []
+    for mix in wc.mixes_of(zone, p):
+        y = ctx.quantity(mix.id, "yield_per_m3")
+        if y is None:
+            skipped.append(f"{mix.id}: no yield (MIX-YIELD not assessed)")
+            continue
+        bags = ({b.binder: p.binders[b.binder].bag_mass for b in mix.binders}
+                if p.dossier.works.bags else {})
+        t = wk.totals(v.total, y.value, bags)
+        kinds = {b.binder: "binder_mass" for b in mix.binders}
+        kinds |= {s.sand: "sand_mass" for s in mix.sands}
+        for name, m in t.masses.items():
+            kind = kinds.get(name, "water_mass" if name == wc.WATER else "admixture_mass")
+            if kind == "water_mass":
+                masses[kind][mix.id] = round(m, 2)
+            else:
+                masses[kind].setdefault(mix.id, {})[name] = round(m, 3 if kind ==
+                                                                   "admixture_mass" else 2)
+        if bags:
+            masses["bags"][mix.id] = t.bags
+        steps.append(_totals_step(mix, v, y.value, t, bags))
+    q = [Quantity("mortar_volume", round(v.total, 5), "m³", "mortar volume with wastage"),
+         Quantity("mortar_volume_net", round(v.net, 5), "m³", "mortar volume before wastage")]
+    if v.joint_length is not None:
+        q.append(Quantity("joint_length_per_m2", round(v.joint_length, 4), "m/m²",
+                          "joint length per m² of face"))
+    q += [Quantity(n, d, "" if n == "bags" else "kg", n.replace("_", " "))
+          for n, d in masses.items() if d]
+    msg = (f"{zone.works}: {v.net:.3g} m³ net + {100 * v.wastage.value:.3g} % wastage = "
+           f"{v.total:.3g} m³ of mortar")
+    if masses["binder_mass"]:
+        msg += "; binder " + ", ".join(
+            f"{m}: " + " + ".join(f"{kg:.0f} kg {b}" for b, kg in d.items())
+            for m, d in masses["binder_mass"].items())
+    return CheckResult(code="WORKS-QTY", title=title, subject=zone.id, subject_kind="zone",
+                       status="info", value=round(v.total, 4), unit="m³", basis=(WORKS,),
+                       steps=tuple(steps), message=msg, notes=tuple(skipped), quantities=tuple(q))
+
+
+def _shown(value: float, div: float) -> float:
+    return _r(value / div, 6)
+
+
+def _volume_step(zone, v: wc.ZoneVolume) -> Step:
+    inputs = [Input(s, n, _shown(val, d), u, src) for s, n, val, u, d, src in v.inputs]
+    inputs.append(Input("w", "wastage allowance", round(100 * v.wastage.value, 3), "%",
+                        v.wastage.source))
+    x = {s: val for s, _, val, _, _, _ in v.inputs}
+    w = v.wastage.value
+    if zone.works == "repointing":
+        formula = (r"L = \frac{l + j + h}{(l + j)(h + j)},\quad V = A\,L\,j\,d\,(1 + w)")
+        sub = (rf"L = \frac{{{x['l']:g} + {x['j']:g} + {x['h']:g}}}{{({x['l']:g} + {x['j']:g})"
+               rf"({x['h']:g} + {x['j']:g})}} = {v.joint_length:.3f}\ \mathrm{{m/m^2}};\ "
+               rf"V = {x['A']:g} \times {v.joint_length:.3f} \times {x['j']:g} \times "
+               rf"{x['d']:g} \times {1 + w:.3g} = {v.total:.4f}")
+    elif zone.works == "render":
+        ts = [val for s, _, val, _, _, _ in v.inputs if s.startswith("t_")]
+        formula = r"V = A \sum_k t_k\,(1 + w)"
+        sub = (rf"V = {x['A']:g} \times ({' + '.join(f'{t:g}' for t in ts)}) \times {1 + w:.3g}"
+               rf" = {v.total:.4f}")
+    else:
+        formula = r"V = V_m\,f\,(1 + w)"
+        sub = rf"V = {x['V_m']:g} \times {x['f']:.3g} \times {1 + w:.3g} = {v.total:.4f}"
+    return Step(f"Mortar volume ({zone.works}), wastage applied once", formula, tuple(inputs),
+                sub, round(v.total, 5), "m³", "V")
+
+
+def _totals_step(mix, v, per_m3: dict, t: wk.Totals, bags: dict) -> Step:
+    inputs = [Input("V", "mortar volume with wastage", round(v.total, 5), "m³", "step above")]
+    inputs += [Input(f"c_{k}", f"{k} per m³ of fresh mortar", c, "kg/m³",
+                     f"MIX-YIELD/{mix.id}") for k, c in per_m3.items()]
+    inputs += [Input(f"m_bag,{b}", f"bag mass of {b}", m, "kg", f"materials.yaml {b}.bag_mass")
+               for b, m in bags.items()]
+    sub = r",\ ".join(rf"m_{{\mathrm{{{k}}}}} = {c:g} \times {v.total:.4f} = {t.masses[k]:.2f}"
+                      for k, c in per_m3.items())
+    if bags:
+        sub += r";\ " + r",\ ".join(rf"n_{{\mathrm{{{b}}}}} = \lceil {t.masses[b]:.2f} / {m:g}"
+                                    rf"\rceil = {t.bags[b]}" for b, m in bags.items())
+    return Step(f"Constituents for mix {mix.id}", r"m_i = c_i\,V"
+                + (r",\quad n = \lceil m_b / m_{bag} \rceil" if bags else ""),
+                tuple(inputs), sub, round(sum(t.masses[b.binder] for b in mix.binders), 2),
+                "kg", "m_b")
+
+
+# ---------------------------------------------------------------- site gaugings
+@register("SITE-GAUGE", "Site gauging size", "mix", order=620)
+def gauging_check(mix, ctx) -> CheckResult | list:
+    """Largest gauging placed in time, binder measures per gauging, gaugings per day."""
+    title, p, rules = "Site gauging size", ctx.project, ctx.rules
+    zones = [z for z in p.dossier.zones if mix.id in [m.id for m in wc.mixes_of(z, p)]]
+    if not zones:
+        return []
+    y = wc.mix_yield(p, mix, rules)
+    if y is None:
+        return _not_assessed("SITE-GAUGE", title, mix.id, "mix", "the mix has no yield "
+                             "(see MIX-YIELD)", GAUGE)
+    life, measured = wc.workable_life(p, mix, rules)
+    sf = wc.rule_si(rules, "gauging_safety_factor", "dimensionless")
+    day = wc.rule_si(rules, "working_day", "time")
+    measure = (wc.Sourced(p.dossier.works.measure, "dossier.yaml works.measure")
+               if p.dossier.works.measure else wc.rule_si(rules, "measure_volume", "volume"))
+    yb = wc.fresh_per_loose_binder(y, mix)
+    rates = {z.id: (wc.Sourced(z.placing_rate, f"dossier.yaml {z.id}.placing_rate")
+                    if z.placing_rate else wc.rule_si(rules, "placing_rate", "volume_rate"))
+             for z in zones}
+    vmax = {z: bt.max_gauging_volume(life.value, r.value, sf.value) for z, r in rates.items()}
+    gov = min(vmax, key=vmax.get)
+    n = bt.binder_measures(vmax[gov], measure.value, yb)
+    steps = [_vmax_step(vmax, rates, life, sf)]
+    notes, status = [], "info"
+    if not measured:
+        notes.append(f"workable life not measured: the default {life.value / 60:g} min is used "
+                     "(measure it on the trial mix, EN 1015-9, and give workable_life in "
+                     "mixes.yaml)")
+        status = "attention" if life.value < 1800 else status
+    q = [Quantity("max_gauging_volume", {z: round(v / L, 3) for z, v in vmax.items()}, "L",
+                  "largest gauging placed in time"),
+         Quantity("workable_life", {"value": round(life.value / 60, 2), "measured": measured},
+                  "min", "workable life used")]
+    if n < 1:
+        status = "attention"
+        msg = (f"the measure of {measure.value / L:g} L makes a gauging larger than the "
+               f"{vmax[gov] / L:.2g} L that can be placed in time in zone {gov}: use a smaller "
+               "measure (dossier.yaml works.measure)")
+        return CheckResult(code="SITE-GAUGE", title=title, subject=mix.id, subject_kind="mix",
+                           status=status, value=round(vmax[gov] / L, 3), unit="L", basis=(GAUGE,),
+                           steps=tuple(steps), message=msg, notes=tuple(notes),
+                           quantities=tuple(q))
+    parts = {b.binder: b.parts for b in mix.binders} | {s.sand: s.parts for s in mix.sands}
+    g = bt.gauging(n, measure.value, parts, sum(b.parts for b in mix.binders), yb, y.per_m3)
+    per_day = {z: bt.gaugings_per_day(r.value, day.value, g.volume) for z, r in rates.items()}
+    steps.append(_gauging_step(mix, g, measure, yb, vmax[gov], gov, y))
+    steps.append(_per_day_step(per_day, rates, day, g))
+    rho_w = wc.water_density().value
+    q += [Quantity("gauging", {"binder_measures": n, "measure_L": round(measure.value / L, 4),
+                               "volume_L": round(g.volume / L, 3), "governing_zone": gov,
+                               "measures": {k: round(v, 3) for k, v in g.measures.items()},
+                               "mass_kg": {k: round(v, 4) for k, v in g.masses.items()},
+                               "water_L": round(g.masses[wc.WATER] / rho_w / L, 3)},
+                   "", "gauging on the batching card"),
+          Quantity("gaugings_per_day", per_day, "", "gaugings per working day")]
+    water = g.masses[wc.WATER] / rho_w / L
+    msg = (f"{life.value / 60:g} min workable life ({'measured' if measured else 'default'}): "
+           f"at most {vmax[gov] / L:.3g} L per gauging (zone {gov}); gauge {n} measure(s) of "
+           f"binder ({measure.value / L:g} L) = {g.volume / L:.3g} L of mortar with "
+           f"{water:.2f} L of water")
+    return CheckResult(code="SITE-GAUGE", title=title, subject=mix.id, subject_kind="mix",
+                       status=status, value=round(g.volume / L, 3), unit="L", basis=(GAUGE,),
+                       steps=tuple(steps), message=msg, notes=tuple(notes), quantities=tuple(q))
+
+
+def _vmax_step(vmax, rates, life, sf) -> Step:
+    inputs = [Input("t_w", "workable life", round(life.value / 60, 3), "min", life.source),
+              Input("γ", "safety factor", sf.value, "", sf.source)]
+    inputs += [Input(f"q_{z}", f"placing rate, zone {z}", round(r.value / L * 3600, 4), "L/h",
+                     r.source) for z, r in rates.items()]
+    sub = r",\ ".join(rf"V_{{\max,{z}}} = \frac{{{life.value / 60:g} \times "
+                      rf"{rates[z].value / L * 3600:g}/60}}{{{sf.value:g}}} = {v / L:.3f}\ "
+                      r"\mathrm{L}" for z, v in vmax.items())
+    return Step("Largest gauging placed within the workable life", r"V_{\max} = t_w\,q/\gamma",
+                tuple(inputs), sub, round(min(vmax.values()) / L, 4), "L", "V_max")
+
+
+def _gauging_step(mix, g, measure, yb, vmax, gov, y) -> Step:
+    inputs = (Input("V_max", f"largest gauging (zone {gov}, governing)", round(vmax / L, 4), "L",
+                    "step above"),
+              Input("V_m", "measure volume", round(measure.value / L, 4), "L", measure.source),
+              Input("Y_b", "fresh mortar per volume of loose binder", round(yb, 4), "",
+                    f"MIX-YIELD/{mix.id}: V_f / Σ binder parts"))
+    sub = (rf"N = \left\lfloor \frac{{{vmax / L:.3f}}}{{{measure.value / L:g} \times {yb:.3f}}}"
+           rf"\right\rfloor = {g.binder_measures};\ V_g = {g.binder_measures} \times "
+           rf"{measure.value / L:g} \times {yb:.3f} = {g.volume / L:.3f}\ \mathrm{{L}}")
+    return Step("Binder measures per gauging and its volume",
+                r"N = \lfloor V_{\max} / (V_m Y_b) \rfloor,\quad V_g = N V_m Y_b,\quad "
+                r"m_i = c_i V_g", inputs, sub, round(g.volume / L, 4), "L", "V_g")
+
+
+def _per_day_step(per_day, rates, day, g) -> Step:
+    inputs = [Input("T", "placing hours per day", round(day.value / 3600, 3), "h", day.source),
+              Input("V_g", "gauging volume", round(g.volume / L, 4), "L", "step above")]
+    sub = r",\ ".join(rf"n_{{{z}}} = \lceil {rates[z].value / L * 3600:g} \times "
+                      rf"{day.value / 3600:g} / {g.volume / L:.3f} \rceil = {n}"
+                      for z, n in per_day.items())
+    return Step("Gaugings per working day", r"n = \lceil q\,T / V_g \rceil", tuple(inputs), sub,
+                max(per_day.values()), "", "n")
+
+
+# ---------------------------------------------------------------- weather
+@register("SITE-WEATHER", "Working temperature and curing", "project", order=630)
+def weather_check(project, ctx) -> CheckResult:
+    """Working-temperature window, curing/protection durations, days outside the window."""
+    title, rules = "Working temperature and curing", ctx.rules
+    lo, hi = (wc.rule_si(rules, k, "temperature") for k in ("min_working_temperature",
+                                                             "max_working_temperature"))
+    cure, protect = (wc.rule_si(rules, k, "time") for k in ("curing_days", "protection_days"))
+    window = {"low": round(lo.value - 273.15, 2), "high": round(hi.value - 273.15, 2),
+              "curing_days": round(cure.value / 86400, 2),
+              "protection_days": round(protect.value / 86400, 2)}
+    inputs = [Input("T_min", "lowest working temperature", window["low"], "°C", lo.source),
+              Input("T_max", "highest working temperature", window["high"], "°C", hi.source),
+              Input("t_c", "keep damp for", window["curing_days"], "d", cure.source),
+              Input("t_p", "protect for", window["protection_days"], "d", protect.source)]
+    code, sub = project.dossier.project.code, project.site_temperature
+    q = [Quantity("weather_window", window, "°C", "working window (°C) and curing days")]
+    base = (f"place mortar only between {window['low']:g} and {window['high']:g} °C; keep damp "
+            f"{window['curing_days']:g} d and protect {window['protection_days']:g} d")
+    if sub is None:
+        return CheckResult(code="SITE-WEATHER", title=title, subject=code, subject_kind="project",
+                           status="info", value=None, unit="", basis=(WEATHER,),
+                           steps=(Step("Working window", r"T_{\min} < T < T_{\max}",
+                                       tuple(inputs), "—", 0, "", "—"),),
+                           message=base + "; no site temperature record is given",
+                           quantities=tuple(q))
+    points = [(0.0, sub.constant)] if sub.constant is not None else list(sub.points)
+    outside = [{"day": round(t / 86400, 3), "temperature": round(k - 273.15, 2),
+                "side": "cold" if k <= lo.value else "hot"}
+               for t, k in points if k <= lo.value or k > hi.value]
+    inputs.append(Input("T_d", "daily mean temperatures", f"{len(points)} reading(s)", "°C",
+                        sub.source))
+    q.append(Quantity("days_outside_window", outside, "", "days outside the working window"))
+    cold = sum(1 for o in outside if o["side"] == "cold")
+    step = Step("Days of the site record outside the working window",
+                r"\text{outside} \iff T_d \le T_{\min}\ \text{or}\ T_d > T_{\max}", tuple(inputs),
+                rf"{cold}\ \text{{cold}} + {len(outside) - cold}\ \text{{hot}}\ \text{{of}}\ "
+                rf"{len(points)}", len(outside), "d", "n")
+    msg = base + f"; {len(outside)} of {len(points)} day(s) of {sub.source} fall outside"
+    if outside:
+        first = ", ".join(f"{o['day']:g}" for o in outside[:8])
+        msg += f" (days {first}{' …' if len(outside) > 8 else ''}): plan protection or no work"
+    return CheckResult(code="SITE-WEATHER", title=title, subject=code, subject_kind="project",
+                       status="attention" if outside else "pass", value=len(outside), unit="d",
+                       basis=(WEATHER,), steps=(step,), message=msg, quantities=tuple(q))

@@ -1,0 +1,95 @@
+"""Content-hash cache of rendered artefacts (math SVG and figures), so a re-issue after one
+new lab result redraws only what changed.
+
+The key of an entry is the SHA-256 of the code version (every source file of the
+``specgen`` package and the versions of matplotlib and ziamath), the artefact kind and
+its inputs; any change to any of them misses.  Rendering is deterministic, so a hit
+returns exactly the bytes a fresh render would give.  The cache lives in
+``OUT/.cache/`` (one per output folder, set by :func:`using`); without it nothing is
+cached.  Entries are written to a temporary file and renamed, so a killed build never
+leaves a half-written entry.
+"""
+from __future__ import annotations
+
+import contextlib
+import contextvars
+import functools
+import hashlib
+import json
+import os
+from pathlib import Path
+
+_DIR: contextvars.ContextVar[Path | None] = contextvars.ContextVar("specgen_cache", default=None)
+CACHE_DIR = ".cache"
+
+
+@functools.lru_cache(maxsize=1)
+def code_version() -> str:
+    """Hash of the package's source files and of the drawing libraries' versions."""
+    h = hashlib.sha256()
+    root = Path(__file__).resolve().parent.parent
+    for path in sorted(root.rglob("*.py")):
+        h.update(str(path.relative_to(root)).encode())
+        h.update(path.read_bytes())
+    for name in ("matplotlib", "ziamath"):
+        try:
+            from importlib.metadata import version
+            h.update(f"{name}={version(name)}".encode())
+        except Exception:  # noqa: BLE001 - an unknown version still keys consistently
+            h.update(f"{name}=?".encode())
+    return h.hexdigest()
+
+
+@contextlib.contextmanager
+def using(folder: Path | str | None):
+    """Cache artefacts under ``folder`` for the duration of the block (None: no cache)."""
+    token = _DIR.set(Path(folder) if folder is not None else None)
+    try:
+        yield
+    finally:
+        _DIR.reset(token)
+
+
+def _plain(value):
+    """JSON form of figure inputs: numpy arrays and tuples as lists, the rest by repr."""
+    if hasattr(value, "tolist"):
+        return value.tolist()
+    if isinstance(value, (set, frozenset)):
+        return sorted(value, key=repr)
+    return repr(value)
+
+
+def key_of(kind: str, inputs) -> str:
+    text = json.dumps([code_version(), kind, inputs], sort_keys=True, default=_plain)
+    return hashlib.sha256(text.encode("utf-8")).hexdigest()
+
+
+def cached(kind: str, inputs, produce) -> bytes:
+    """The bytes ``produce()`` gives for ``inputs``, from the cache when present."""
+    folder = _DIR.get()
+    if folder is None:
+        return produce()
+    key = key_of(kind, inputs)
+    path = folder / kind / key[:2] / key
+    try:
+        return path.read_bytes()
+    except OSError:
+        pass
+    data = produce()
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        tmp = path.with_name(f".{key}.{os.getpid()}.tmp")
+        tmp.write_bytes(data)
+        os.replace(tmp, path)
+    except OSError:
+        pass  # a cache that cannot be written only costs time
+    return data
+
+
+def figure(fn):
+    """Decorator for figure functions returning SVG bytes: cached by their arguments."""
+    @functools.wraps(fn)
+    def wrapper(*args, **kwargs):
+        return cached(f"figure-{fn.__module__}.{fn.__qualname__}", [args, kwargs],
+                      lambda: fn(*args, **kwargs))
+    return wrapper

@@ -1,0 +1,133 @@
+"""Sieve analysis, fineness modulus, envelopes, blend fit and binder:aggregate."""
+import numpy as np
+import pytest
+from scipy import optimize
+
+from specgen import refdata
+from specgen.science.grading import (GradingInputError, binder_aggregate, blend, compare_envelope,
+                                     deviation, fineness_modulus, fit_blend, from_passing,
+                                     from_retained, volume_to_mass_fractions)
+
+SERIES = refdata.load("sieve_series").data["standard"]
+FM_SIEVES = refdata.load("sieve_series").data["fineness_modulus"]
+MM = 1e-3
+
+
+def test_fm_sieves_are_astm_c125():
+    # ASTM C125, fineness modulus: 150 µm, 300 µm, 600 µm, 1.18, 2.36, 4.75, 9.5, 19.0,
+    # 37.5, 75, 150 mm (from memory)
+    assert [round(s / MM, 3) for s in FM_SIEVES] == [0.15, 0.3, 0.6, 1.18, 2.36, 4.75, 9.5,
+                                                     19.0, 37.5, 75.0, 150.0]
+
+
+def test_fineness_modulus_published_worked_example():
+    # Kosmatka, Kerkhoff & Panarese, Design and Control of Concrete Mixtures (PCA), table
+    # "determination of fineness modulus of fine aggregates" (from memory): % retained
+    # 9.5 mm 0, 4.75 mm 2, 2.36 mm 13, 1.18 mm 20, 600 µm 20, 300 µm 24, 150 µm 18, pan 3;
+    # cumulative 0, 2, 15, 35, 55, 79, 97 -> FM = 283 / 100 = 2.83.
+    sizes = [9.5 * MM, 4.75 * MM, 2.36 * MM, 1.18 * MM, 0.6 * MM, 0.3 * MM, 0.15 * MM]
+    g = from_retained(sizes, [0, 2, 13, 20, 20, 24, 18], SERIES, pan=3)
+    assert [round(100 * c, 6) for c in g.cumulative] == [0, 2, 15, 35, 55, 79, 97]
+    assert fineness_modulus(g, FM_SIEVES) == pytest.approx(2.83, abs=1e-12)
+    assert g.pan == pytest.approx(0.03)
+
+
+def test_fineness_modulus_from_passing_equals_from_retained():
+    sizes = [4.75 * MM, 2.36 * MM, 1.18 * MM, 0.6 * MM, 0.3 * MM, 0.15 * MM]
+    g = from_passing(sizes, [1.0, 0.92, 0.74, 0.51, 0.24, 0.07], SERIES)
+    # by hand: cumulative retained 0 + 8 + 26 + 49 + 76 + 93 = 252 % -> FM 2.52
+    assert fineness_modulus(g, FM_SIEVES) == pytest.approx(2.52, abs=1e-12)
+    assert [round(100 * r, 6) for r in g.retained] == [0, 8, 18, 23, 27, 17]
+
+
+def test_fineness_modulus_needs_the_fm_sieves():
+    g = from_passing([4.75 * MM, 2.36 * MM, 1.18 * MM, 0.6 * MM, 0.3 * MM],
+                     [1, .9, .7, .5, .2], SERIES)
+    with pytest.raises(GradingInputError, match="the fineness modulus needs the 0.15 mm sieve"):
+        fineness_modulus(g, FM_SIEVES)
+
+
+@pytest.mark.parametrize("sizes, passing, words", [
+    ([2.36, 1.18, 0.6], [0.9, 0.95, 0.5],
+     "cumulative passing is not monotone: 95 % passes 1.18 mm but only 90 % passes the coarser 2.36 mm"),
+    ([2.36, 1.18, 0.6], [1.2, 0.9, 0.5], "passing must lie between 0 and 100 %"),
+    ([2.36, 0.6, 0.3], [1.0, 0.5, 0.2], "the sieve series has gaps: no result for 1.18 mm"),
+    ([2.0, 1.18, 0.6], [1.0, 0.8, 0.5], "sieve 2 mm is not in the standard series"),
+])
+def test_bad_gradings_refused(sizes, passing, words):
+    with pytest.raises(GradingInputError, match=words.replace("(", r"\(").replace(")", r"\)")):
+        from_passing([s * MM for s in sizes], passing, SERIES)
+
+
+# ASTM C144 Table 1, natural sand (from memory): % passing 4.75 mm 100, 2.36 mm 95-100,
+# 1.18 mm 70-100, 600 µm 40-75, 300 µm 10-35, 150 µm 2-15, 75 µm 0-5.
+C144_NATURAL = [(4.75, 100, 100), (2.36, 95, 100), (1.18, 70, 100), (0.6, 40, 75),
+                (0.3, 10, 35), (0.15, 2, 15), (0.075, 0, 5)]
+# ASTM C144 Table 1, manufactured sand (from memory): 300 µm 20-40, 150 µm 10-25, 75 µm 0-10.
+C144_MANUFACTURED = [(4.75, 100, 100), (2.36, 95, 100), (1.18, 70, 100), (0.6, 40, 75),
+                     (0.3, 20, 40), (0.15, 10, 25), (0.075, 0, 10)]
+
+
+@pytest.mark.parametrize("key, expected", [("astm_c144_natural", C144_NATURAL),
+                                           ("astm_c144_manufactured", C144_MANUFACTURED)])
+def test_envelope_data_matches_astm_c144(key, expected):
+    env = refdata.load("grading_envelopes").data[key]
+    assert [(e["sieve_mm"], e["low"], e["high"]) for e in env["limits"]] == expected
+    assert "ASTM C144" in env["source"] and env["tag"] == "memory"
+
+
+def test_envelope_comparison_inside_and_outside():
+    env = [(s * MM, lo / 100, hi / 100) for s, lo, hi in C144_NATURAL]
+    sizes = [4.75, 2.36, 1.18, 0.6, 0.3, 0.15, 0.075]
+    inside = from_passing([s * MM for s in sizes], [1, .97, .8, .55, .2, .08, .02], SERIES)
+    assert compare_envelope(inside, env).within
+    coarse = from_passing([s * MM for s in sizes], [1, .9, .7, .5, .2, .08, .02], SERIES)
+    cmp = compare_envelope(coarse, env)
+    assert not cmp.within and cmp.outside[1] == pytest.approx(0.05)
+
+
+def test_blend_fit_recovers_known_proportions():
+    sizes = [s * MM for s in (4.75, 2.36, 1.18, 0.6, 0.3, 0.15)]
+    a = from_passing(sizes, [1.0, 0.92, 0.74, 0.51, 0.24, 0.07], SERIES)
+    b = from_passing(sizes, [1.0, 0.99, 0.83, 0.58, 0.33, 0.14], SERIES)
+    c = from_passing(sizes, [1.0, 0.80, 0.50, 0.30, 0.10, 0.02], SERIES)
+    target = blend([a, b, c], [0.5, 0.2, 0.3])        # synthetic blend of known proportions
+    fit = fit_blend([a, b, c], target)
+    assert fit.proportions == pytest.approx((0.5, 0.2, 0.3), abs=1e-4)
+    assert fit.rms < 1e-5
+    # non-negativity: a target finer than every sand gives the finest sand alone
+    fine = from_passing(sizes, [1.0, 1.0, 0.95, 0.8, 0.5, 0.25], SERIES)
+    fit2 = fit_blend([a, b, c], fine)
+    assert min(fit2.proportions) >= 0 and sum(fit2.proportions) == pytest.approx(1.0)
+    # reference: scipy.optimize.lsq_linear with bounds [0, 1] on the same augmented system
+    A = np.column_stack([[1.0, 0.92, 0.74, 0.51, 0.24, 0.07], [1.0, 0.99, 0.83, 0.58, 0.33, 0.14],
+                         [1.0, 0.80, 0.50, 0.30, 0.10, 0.02]])
+    Aa = np.vstack([A, 1e3 * np.ones(3)])
+    ba = np.concatenate([[1.0, 1.0, 0.95, 0.8, 0.5, 0.25], [1e3]])
+    ref = optimize.lsq_linear(Aa, ba, bounds=(0, np.inf)).x
+    assert fit2.proportions == pytest.approx(tuple(ref / ref.sum()), abs=1e-5)
+
+
+def test_deviation_rms_and_max():
+    sizes = [s * MM for s in (2.36, 1.18, 0.6)]
+    a = from_passing(sizes, [0.9, 0.7, 0.5], SERIES)
+    b = from_passing(sizes, [0.95, 0.7, 0.4], SERIES)
+    d = deviation(a, b)
+    # by hand: differences -0.05, 0, 0.10 -> RMS sqrt((0.0025 + 0.01) / 3) = 0.0645497
+    assert d.rms == pytest.approx(0.0645497, abs=1e-7) and d.max_abs == pytest.approx(0.10)
+
+
+def test_volume_parts_to_mass_fractions():
+    # by hand: 1.0 x 1550 = 1550, 0.5 x 1450 = 725 -> 1550 / 2275 = 0.681319
+    f = volume_to_mass_fractions([1.0, 0.5], [1550, 1450])
+    assert f[0] == pytest.approx(0.681319, abs=1e-6)
+
+
+def test_binder_aggregate_from_acid_digestion():
+    # by hand: 50.0 g sample, 38.5 g insoluble residue -> binder 11.5 g, 11.5 / 38.5 = 0.298701
+    # by volume with 700 and 1500 kg/m3: (11.5 / 700) / (38.5 / 1500) = 0.640074
+    r = binder_aggregate(0.050, 0.0385, 700, 1500)
+    assert r.by_mass == pytest.approx(0.298701, abs=1e-6)
+    assert r.by_volume == pytest.approx(0.640074, abs=1e-6)
+    with pytest.raises(GradingInputError, match="lighter than the sample"):
+        binder_aggregate(0.05, 0.06)

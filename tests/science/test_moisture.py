@@ -1,0 +1,55 @@
+"""Capillary absorption coefficient (least squares against root time) and sd = μ·d."""
+import math
+
+import numpy as np
+import pytest
+from scipy import stats
+
+from specgen.science.moisture import MoistureInputError, capillary_coefficient, sd_value
+
+
+def test_slope_of_an_exact_line():
+    t = np.array([1, 4, 9, 16, 25]) * 60.0          # √t = 1..5 √min
+    w = 0.2 + 0.05 * np.sqrt(t)
+    fit = capillary_coefficient(t, w)
+    assert fit.slope == pytest.approx(0.05, abs=1e-12) and fit.intercept == pytest.approx(0.2)
+    assert fit.r2 == pytest.approx(1.0)
+
+
+def test_slope_against_scipy_linregress():
+    t = np.array([5, 10, 15, 30, 60, 90]) * 60.0
+    w = np.array([0.61, 0.85, 1.06, 1.47, 2.05, 2.52])
+    fit = capillary_coefficient(t, w)
+    ref = stats.linregress(np.sqrt(t), w)          # reference library: scipy.stats
+    assert fit.slope == pytest.approx(ref.slope, rel=1e-12)
+    assert fit.intercept == pytest.approx(ref.intercept, rel=1e-12)
+    assert fit.stderr == pytest.approx(ref.stderr, rel=1e-9)
+    assert fit.r2 == pytest.approx(ref.rvalue ** 2, rel=1e-12)
+
+
+def test_en1015_18_two_point_factor():
+    # EN 1015-18: C = 0.1 (M2 - M1) kg/(m²·min^0.5), M in g at 10 and 90 min on a 40 x 40 mm
+    # face (from memory).  The factor is 1 / (A (√90 - √10)) with A = 0.0016 m², mass in kg:
+    factor = 1e-3 / (0.0016 * (math.sqrt(90) - math.sqrt(10)))
+    assert factor == pytest.approx(0.1, rel=0.02)
+    # two readings are the least-squares line through them
+    m1, m2 = 3.1e-3, 7.9e-3                         # kg
+    t = [10 * 60.0, 90 * 60.0, 50 * 60.0]
+    w = [m1 / 0.0016, m2 / 0.0016]
+    w.append(w[0] + (w[1] - w[0]) * (math.sqrt(50) - math.sqrt(10)) / (math.sqrt(90) - math.sqrt(10)))
+    fit = capillary_coefficient(t, w)
+    assert fit.slope * math.sqrt(60) == pytest.approx(factor * (m2 - m1) * 1e3, rel=1e-9)
+
+
+def test_bad_readings():
+    with pytest.raises(MoistureInputError, match="at least three readings"):
+        capillary_coefficient([60, 120], [0.1, 0.2])
+    with pytest.raises(MoistureInputError, match="not negative"):
+        capillary_coefficient([-60, 120, 240], [0.1, 0.2, 0.3])
+
+
+def test_sd_value():
+    # EN ISO 12572: sd = μ·d; μ = 12, d = 25 mm -> 0.3 m (by hand)
+    assert sd_value(12, 0.025) == pytest.approx(0.3)
+    with pytest.raises(MoistureInputError):
+        sd_value(0, 0.02)

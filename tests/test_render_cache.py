@@ -1,0 +1,68 @@
+"""The artefact cache: a hit is byte-identical to a fresh render, and a re-issue after one
+new lab result redraws only what that result changes."""
+from __future__ import annotations
+
+import shutil
+
+import pytest
+
+from specgen.build import check
+from specgen.report import cache
+from specgen.report.mathsvg import svg_of
+from specgen.report.render import render
+
+
+def _render(project_dir, folder=None):
+    svg_of.cache_clear()  # no in-process memo: only the folder cache may help
+    project, results = check(project_dir)
+    with cache.using(folder):
+        pages = render(project, results)
+    return pages.pages, pages.assets
+
+
+def _entries(folder):
+    return {p.relative_to(folder).as_posix() for p in folder.rglob("*") if p.is_file()}
+
+
+@pytest.fixture
+def single(demo_copy):
+    shutil.rmtree(demo_copy / "issued")
+    return demo_copy
+
+
+def test_cache_hit_equals_fresh_render_and_reissue_redraws_little(single, tmp_path):
+    folder = tmp_path / "cache"
+    fresh = _render(single)
+    first = _render(single, folder)
+    assert first == fresh                      # a cold cache changes nothing
+    before = _entries(folder)
+    assert any(e.startswith("math/") for e in before)
+    assert any(e.startswith("figure-") for e in before)
+    assert _render(single, folder) == fresh    # every artefact from the cache: same bytes
+    assert _entries(folder) == before          # and nothing new drawn
+
+    csv = single / "lab" / "strength.csv"
+    csv.write_text(csv.read_text() + "M1-90d-C9,M1,90,compressive,7.9,20\n")
+    reissued = _render(single, folder)
+    new = _entries(folder) - before
+    # one new M1 result: M1's figures and the sheets whose numbers move are redrawn; the rest
+    # (other mixes, chemistry, the unchanged formulas) come from the cache
+    assert new and len(new) < 0.5 * len(before)
+    assert not any("strength-M3" in p for p in new)  # M3 untouched
+    assert reissued == _render(single)         # the re-issue equals a fresh render, byte for byte
+
+
+def test_code_change_misses(monkeypatch, tmp_path):
+    folder = tmp_path / "c"
+    calls = []
+
+    def draw():
+        calls.append(1)
+        return b"<svg/>"
+    with cache.using(folder):
+        assert cache.cached("figure-x", [1, 2], draw) == b"<svg/>"
+        assert cache.cached("figure-x", [1, 2], draw) == b"<svg/>"
+        assert len(calls) == 1
+        monkeypatch.setattr(cache, "code_version", lambda: "another version")
+        cache.cached("figure-x", [1, 2], draw)
+        assert len(calls) == 2
