@@ -97,6 +97,31 @@ def _model_fields(model: type[BaseModel], loc: tuple) -> list[str]:
     return list(getattr(current, "model_fields", {}).keys())
 
 
+def _give(model: type[BaseModel], loc: tuple) -> str | None:
+    """A fix for a zero or negative amount, from the field's own description."""
+    keys = [i for i, part in enumerate(loc) if isinstance(part, str)]
+    info = _field_info(model, loc[:keys[-1] + 1]) if keys else None
+    if info is None or not info.description:
+        return None
+    return f"give an amount greater than zero, with its unit ({info.description})."
+
+
+def _field_info(model: type[BaseModel], loc: tuple):
+    """The pydantic FieldInfo of the field at ``loc`` (its last string part) in ``model``."""
+    current = model
+    for part in loc[:-1]:
+        if isinstance(part, int):
+            continue
+        info = current.model_fields.get(part)
+        ann = info.annotation if info is not None else None
+        subs = [a for arg in (getattr(ann, "__args__", ()) or (ann,))
+                for a in (arg, *getattr(arg, "__args__", ()))]
+        current = next((a for a in subs if isinstance(a, type) and issubclass(a, BaseModel)), None)
+        if current is None:
+            return None
+    return current.model_fields.get(loc[-1])
+
+
 def validate(located: Located, model: type[BaseModel], rel: str, log: ProblemLog):
     """Validate a parsed document; translate pydantic errors into located problems."""
     try:
@@ -119,6 +144,8 @@ def validate(located: Located, model: type[BaseModel], rel: str, log: ProblemLog
                     msg = msg.rstrip(".") + "."
                 else:
                     msg = f"{msg} (found {found!r})."
+                if msg.startswith("must be greater than zero"):
+                    fix = _give(model, loc)
             log.add(rel, msg, line=line, field=_field_path(loc), fix=fix)
         return None
 
@@ -200,6 +227,8 @@ def load_project(root: Path | str) -> Project:
     from specgen.project.crossref import check_references
     failed = {name for name in DOCUMENTS if (root / name).is_file() and docs.get(name) is None}
     check_references(project, located, log, failed)
+    from specgen.project.works_inputs import works_problems
+    works_problems(project, located, log, failed)
     log.raise_if_any()
     return project
 

@@ -28,7 +28,7 @@ def _quantity(kind: str):
 
 def _positive(value: float) -> float:
     if value <= 0:
-        raise ValueError(f"must be greater than zero; found {value:g} (in SI units)")
+        raise ValueError("must be greater than zero")
     return value
 
 
@@ -359,12 +359,12 @@ class MaterialsFile(Model):
 # ----------------------------------------------------------------- mixes.yaml
 class BinderPart(Model):
     binder: Id = Field(description="binder id")
-    parts: float = Field(gt=0, description="parts by volume")
+    parts: float = Field(description="parts by volume")  # > 0: checked in works_inputs
 
 
 class SandPart(Model):
     sand: Id = Field(description="sand id")
-    parts: float = Field(gt=0, description="parts by volume")
+    parts: float = Field(description="parts by volume")  # > 0: checked in works_inputs
 
 
 class Admixture(Model):
@@ -376,7 +376,7 @@ class Admixture(Model):
 class Mix(Model):
     id: Id = Field(description="mix identifier")
     name: Text = Field(description="descriptive name")
-    binders: list[BinderPart] = Field(min_length=1, description="binder parts by volume")
+    binders: list[BinderPart] = Field(description="binder parts by volume")
     sands: list[SandPart] = Field(default_factory=list, description="sand parts by volume")
     water_binder_ratio: float | None = Field(None, gt=0, lt=3, description="water/binder by mass")
     consistence: Length | None = Field(None, description="target flow value (EN 1015-3), e.g. "

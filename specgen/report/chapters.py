@@ -54,7 +54,12 @@ def badge(status: str) -> str:
 
 
 def sheet_anchor(result) -> str:
-    return "calc-" + anchor(result.code, result.subject)
+    """The id of a check result's calculation sheet."""
+    return sheet_anchor_of(result.code, result.subject)
+
+
+def sheet_anchor_of(code: str, subject: str) -> str:
+    return "calc-" + anchor(code, subject)
 
 
 def check_rows(results, page_of_sheets: str = "calculations.md") -> list[dict]:

@@ -2,7 +2,7 @@
 from __future__ import annotations
 
 from specgen.checks.result import STATUS_WORDS
-from specgen.report.chapters import badge, chapter, sheet_anchor
+from specgen.report.chapters import badge, chapter, sheet_anchor, sheet_anchor_of
 from specgen.report.fmt import qty
 
 
@@ -20,7 +20,7 @@ def changes(env) -> dict:
                      "old_value": qty(c["old_value"], c["unit"]) if c["old_value"] is not None else "—",
                      "new_value": qty(c["new_value"], c["unit"]) if c["new_value"] is not None else "—",
                      "delta": qty(c["delta"], c["unit"]) if c["delta"] is not None else "—",
-                     "href": f"calculations.md#calc-{c['code'].lower()}-{c['subject'].lower()}"
+                     "href": f"calculations.md#{sheet_anchor_of(c['code'], c['subject'])}"
                      if c["new_status"] else None})
     return {"previous": h.previous, "inputs": ch["inputs"], "specimens": ch["specimens"],
             "checks": rows, "comments": ch["comments"],

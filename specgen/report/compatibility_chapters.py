@@ -1,0 +1,177 @@
+"""The historic fabric and the compatibility chapter (one section per zone): a matrix of
+candidate mortars × criteria with statuses, the grading curves with the envelope, colour
+swatches beside ΔE00, the moisture bar chart and the findings linked to their sheets.
+
+Numbers come from the check results (``results.quantities`` and ``checks``); curves and
+swatch colours are evaluated with the checks' and the science's own functions, never with
+formulas written here.
+"""
+from __future__ import annotations
+
+from specgen import refdata
+from specgen.checks import aggregate_checks as ag
+from specgen.checks import compatibility_checks as cmp
+from specgen.checks import compatibility_common as cc
+from specgen.report.chapters import badge, chapter, sheet_anchor
+from specgen.report.fmt import as_given, num, qty
+from specgen.science import colour
+
+#: The matrix columns: check code → short heading (the order of the columns).
+CRITERIA = {"COMP-STR-UNIT": "weaker than units", "COMP-STR-HIST": "not above historic",
+            "COMP-MOIST": "moisture openness", "COMP-MOVE": "movement",
+            "COMP-SALT": "salts", "COMP-GRAD": "grading", "COMP-COLOUR": "colour ΔE00"}
+FINDINGS = tuple(CRITERIA) + ("COMP-BLEND", "COMP-BA")
+PROPERTIES = (("compressive_strength", "compressive strength", 1e-6, "MPa"),
+              ("elastic_modulus", "elastic modulus", 1e-9, "GPa"),
+              ("capillary_coefficient", "capillary coefficient", cmp.ROOT_MIN, "kg/(m²·min^0.5)"),
+              ("vapour_resistance_factor", "vapour resistance factor μ", 1.0, ""),
+              ("thermal_expansion", "thermal expansion", 1e6, "× 10⁻⁶/K"),
+              ("hygric_expansion", "hygric expansion", 1e3, "mm/m"))
+
+
+def _check(env, code: str, subject: str):
+    return next((c for c in env.results.checks if c.code == code and c.subject == subject), None)
+
+
+def _cell(c) -> dict:
+    if c is None:
+        return {"badge": "—", "value": "", "href": ""}
+    value = "" if c.status == "not_assessed" or c.value is None else qty(c.value, c.unit, 3)
+    return {"badge": badge(c.status), "value": value,
+            "href": f"calculations.md#{sheet_anchor(c)}"}
+
+
+@chapter("fabric.md", "The historic fabric", 25, "fabric.md.j2")
+def fabric(env) -> dict:
+    """Masonry units and historic mortars with their measured properties, salts and sources."""
+    p = env.project
+    items = [_material("masonry unit", m) for m in p.masonry_units.values()]
+    items += [_material("historic mortar", m) for m in p.historic_mortars.values()]
+    return {"items": items}
+
+
+def _material(kind: str, m) -> dict:
+    rows = [{"name": label, "value": f"{as_given(round(getattr(m, attr) * factor, 9))} {unit}".strip()}
+            for attr, label, factor, unit in PROPERTIES if getattr(m, attr, None) is not None]
+    salts = getattr(m, "salts", None)
+    if salts is not None:
+        for ion in ("chloride", "nitrate", "sulfate"):
+            v = getattr(salts, ion)
+            if v is not None:
+                rows.append({"name": f"{ion} (soluble)", "value": f"{as_given(v)} mass %"})
+    extra = []
+    if getattr(m, "binder_analysis", None):
+        extra.append(f"binder analysis {m.binder_analysis} (see Binder composition)")
+    if getattr(m, "aggregate_sample", None):
+        extra.append(f"aggregate recovered by acid digestion: sample {m.aggregate_sample}")
+    return {"kind": kind, "id": m.id, "name": m.name, "rows": rows, "extra": extra,
+            "source": m.source or "—",
+            "salt_sample": salts.sample if salts is not None and salts.sample else ""}
+
+
+@chapter("compatibility.md", "Compatibility with the fabric", 50, "compatibility.md.j2")
+def compatibility(env) -> dict:
+    p = env.project
+    zones = [_zone(env, z) for z in p.dossier.zones if z.candidates]
+    return {"zones": zones, "criteria": list(CRITERIA.values()), "decides": DECIDES_TEXT}
+
+
+DECIDES_TEXT = ("No standard acceptance threshold exists for the colour of repointing: a CIEDE2000 "
+                "difference of about 1 is just noticeable and 2–3.5 is visible at a glance "
+                "(common practice). The threshold used here is a project rule; trial panels, "
+                "judged dry by eye in daylight, decide.")
+
+
+def _zone(env, z) -> dict:
+    p = env.project
+    pairs = cc.pairs(z, p)
+    matrix = [{"mix": pr.mix_id, "name": pr.mix.name if pr.mix else "unknown mix",
+               "cells": [_cell(_check(env, code, pr.subject)) for code in CRITERIA]}
+              for pr in pairs]
+    findings = [{"code": c.code, "title": c.title, "subject": c.subject, "badge": badge(c.status),
+                 "message": c.message, "href": f"calculations.md#{sheet_anchor(c)}"}
+                for code in FINDINGS for pr in pairs if (c := _check(env, code, pr.subject))]
+    unit = pairs[0].unit if pairs else None
+    hist = pairs[0].historic if pairs else None
+    return {"id": z.id, "name": z.name, "works": z.works,
+            "unit": f"{unit.id} — {unit.name}" if unit else "none named",
+            "historic": f"{hist.id} — {hist.name}" if hist else "none named",
+            "matrix": matrix, "findings": findings,
+            # figures are numbered as they are made: make them in the order they are shown
+            "figures": [f for f in (_grading_figure(env, z, pairs), _moisture_figure(env, z, pairs),
+                                    _colour_figure(env, z, pairs)) if f],
+            "has_colour": any(_check(env, "COMP-COLOUR", pr.subject) for pr in pairs)}
+
+
+def _curve(label: str, g) -> dict:
+    return {"label": label, "sieves_mm": [s * 1000 for s in g.sieves],
+            "passing": [100 * v for v in g.passing]}
+
+
+def _grading_figure(env, z, pairs) -> dict | None:
+    p = env.project
+    curves = []
+    for pr in pairs:
+        g, missing, _ = ag.mix_sand(pr, p)
+        if g is not None:
+            curves.append(_curve(f"{pr.mix_id} sand", g))
+    hist, _ = ag.historic_aggregate(pairs[0], p) if pairs else (None, "")
+    if not curves:
+        return None
+    key = p.dossier.compatibility.grading_envelope
+    env_data = refdata.load("grading_envelopes").data.get(key) if key else None
+    envelope = None
+    if env_data:
+        lim = sorted(env_data["limits"], key=lambda e: e["sieve_mm"])
+        envelope = {"title": env_data["title"], "sieves_mm": [e["sieve_mm"] for e in lim],
+                    "low": [e["low"] for e in lim], "high": [e["high"] for e in lim]}
+    from specgen.report.compatibility_figures import grading_curves
+    svg = grading_curves(curves, envelope, _curve(
+        f"historic aggregate {pairs[0].historic.aggregate_sample}", hist) if hist else None)
+    return env.figure(f"figures/grading-{z.id}.svg", svg,
+                      f"Zone {z.id}: grading of each candidate's sand"
+                      + (" against the historic aggregate" if hist else "")
+                      + (f" and the envelope {envelope['title']}" if envelope else ""))
+
+
+def _colour_figure(env, z, pairs) -> dict | None:
+    rows = []
+    for pr in pairs:
+        q = env.results.quantities.get(pr.subject, {}).get("delta_e_2000")
+        if q is None:
+            continue
+        v = q.value
+        hist, panel = colour.lab_to_srgb(v["historic_mean"]), colour.lab_to_srgb(v["panel_mean"])
+        rows.append({"label": f"{pr.mix_id} panel", "historic_label": pr.historic.id,
+                     "historic_hex": hist.hex, "panel_hex": panel.hex,
+                     "delta_e": num(v["value"], 3), "clipped": hist.clipped or panel.clipped})
+    if not rows:
+        return None
+    from specgen.report.compatibility_figures import colour_swatches
+    return env.figure(f"figures/colour-{z.id}.svg", colour_swatches(rows),
+                      f"Zone {z.id}: mean colours of the historic mortar and of each trial panel "
+                      "(display approximation of the CIELAB means, D65) with ΔE00")
+
+
+def _moisture_figure(env, z, pairs) -> dict | None:
+    p = env.project
+    if not pairs:
+        return None
+    bars = []
+    unit, hist = pairs[0].unit, pairs[0].historic
+    for role, m in (("unit", unit), ("historic", hist)):
+        if m is not None:
+            c = cmp.capillary(m, m.id, p)
+            bars.append({"label": f"{m.id} ({'units' if role == 'unit' else 'historic'})",
+                         "role": role, "capillary": round(c[0], 3) if c else None,
+                         "mu": m.vapour_resistance_factor})
+    for pr in pairs:
+        c = cmp.capillary(pr.props, pr.mix_id, p)
+        bars.append({"label": pr.mix_id, "role": "repair", "capillary": round(c[0], 3) if c else None,
+                     "mu": pr.props.vapour_resistance_factor if pr.props else None})
+    if not any(b["capillary"] or b["mu"] for b in bars):
+        return None
+    from specgen.report.compatibility_figures import moisture_bars
+    return env.figure(f"figures/moisture-{z.id}.svg", moisture_bars(bars),
+                      f"Zone {z.id}: capillary absorption and vapour resistance of the fabric "
+                      "and each candidate")

@@ -1,0 +1,45 @@
+"""End-to-end: the historic-fabric and compatibility chapters of the demo build."""
+from __future__ import annotations
+
+import json
+import re
+
+import pytest
+
+pytestmark = pytest.mark.e2e
+
+REV = "R3"
+
+
+def test_compatibility_matrix_links_every_pair_to_its_sheet(demo_build):
+    html = (demo_build / REV / "compatibility.html").read_text()
+    sheets = (demo_build / REV / "calculations.html").read_text()
+    results = json.loads((demo_build / REV / "results.json").read_text())
+    pairs = {c["subject"] for c in results["checks"] if c["code"].startswith("COMP-")}
+    assert pairs == {"Z1/M1", "Z1/M2", "Z1/M3", "Z2/M1", "Z2/M2", "Z3/M2", "Z3/M3"}
+    for code in ("comp-str-unit", "comp-str-hist", "comp-moist", "comp-move", "comp-salt",
+                 "comp-grad", "comp-colour"):
+        for pair in pairs:
+            anchor = f"calc-{code}-{pair.lower().replace('/', '-')}"
+            assert f'href="calculations.html#{anchor}"' in html, anchor
+            assert f'id="{anchor}"' in sheets, anchor
+    # the matrix is a real table, one row per candidate of each zone (3 + 2 + 2)
+    assert len(re.findall(r"<tr>\s*<td><strong>M\d</strong></td>", html)) == 7
+
+
+def test_compatibility_figures_and_colour_caveat(demo_build):
+    html = (demo_build / REV / "compatibility.html").read_text()
+    for zone in ("Z1", "Z2", "Z3"):
+        assert f'src="figures/moisture-{zone}.svg"' in html
+    assert 'src="figures/grading-Z1.svg"' in html and 'src="figures/colour-Z1.svg"' in html
+    assert (demo_build / REV / "figures" / "grading-Z1.svg").read_bytes().startswith(b"<?xml")
+    assert "No standard acceptance threshold exists for the colour of repointing" in html
+    assert "trial panels, judged dry by eye in daylight, decide" in html
+
+
+def test_fabric_chapter_lists_units_and_historic_mortars(demo_build):
+    html = (demo_build / REV / "fabric.html").read_text()
+    assert "EB1 — Blue engineering brick (1868)" in html
+    assert "<td>compressive strength</td>\n<td style=\"text-align: right;\">48 MPa</td>" in html
+    assert "HM2 — Parapet render, weathered" in html
+    assert "Northstead Materials Laboratory, report NML-4502" in html
