@@ -86,11 +86,13 @@ _NAMES: dict[str, QuantityName] = {}
 
 def declare(name: str, unit: str, description: str) -> None:
     """Declare a results.json quantity name (once; same name with another unit is refused)."""
-    import inspect
     import re
+    import sys
     if not re.fullmatch(r"[a-z][a-z0-9_]*", name):
         raise ValueError(f"quantity name '{name}' must be snake_case")
-    module = inspect.stack()[1].frame.f_globals.get("__name__", "")
+    # the declaring module, from the caller's frame only (inspect.stack() would read the
+    # source of every frame and costs seconds over all declarations)
+    module = sys._getframe(1).f_globals.get("__name__", "")
     old = _NAMES.get(name)
     if old and (old.unit, old.description) != (unit, description):
         raise DuplicateCheckCode(f"quantity '{name}' is declared twice ({old.module}, {module})")
