@@ -1,23 +1,21 @@
 """Works checks: mix yield, works quantities per zone, site gaugings, weather window.
 
-Codes: ``MIX-YIELD`` (mix), ``WORKS-QTY`` (zone), ``SITE-GAUGE`` (mix), ``SITE-WEATHER``
-(project).  Formulas are in ``specgen.science.mix_design``, ``works`` and ``batching``;
-inputs and their sources are gathered in ``specgen.checks.works_common``.
+Codes: ``MIX-YIELD`` (mix), ``WORKS-QTY`` (zone), ``SITE-WEATHER`` (project);
+``SITE-GAUGE`` (mix) is in ``works_gauging_checks``.  Formulas are in
+``specgen.science.mix_design`` and ``works``; inputs and their sources are gathered in
+``specgen.checks.works_common``.
 """
 from __future__ import annotations
 
 from specgen.checks import works_common as wc
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step
-from specgen.science import batching as bt
 from specgen.science import works as wk
 
 PRACTICE = Basis("common practice", note="absolute-volume method; defaults in "
                  "content/data/mix_densities.yaml and content/rules/works.yaml")
 WORKS = Basis("common practice", note="quantities from the zone's dimensions; wastage "
               "applied once (content/rules/works.yaml)")
-GAUGE = Basis("common practice", note="gauging sized to the workable life (EN 1015-9 where "
-              "measured), the crew's placing rate and a safety factor")
 WEATHER = Basis("common practice", note="working-temperature window and curing durations of "
                 "content/rules/works.yaml")
 L = 1e-3  # m³ per litre
@@ -36,12 +34,6 @@ declare("sand_mass", "kg", "mass of each sand for a zone, by mix")
 declare("water_mass", "kg", "mass of gauging water for a zone, by mix")
 declare("admixture_mass", "kg", "mass of each admixture for a zone, by mix")
 declare("bags", "", "whole bags of each binder for a zone, by mix")
-declare("max_gauging_volume", "L", "largest gauging placed within the workable life, by zone "
-        "(workable life × placing rate / safety factor)")
-declare("gauging", "", "the gauging on the batching card: binder measures, measure volume, "
-        "fresh volume, measures and masses of each constituent")
-declare("gaugings_per_day", "", "gaugings to keep a zone's crew supplied for a working day, by zone")
-declare("workable_life", "min", "workable life used for the gaugings, with whether it was measured")
 declare("weather_window", "°C", "working-temperature window {low, high} and curing/protection days")
 declare("days_outside_window", "", "days of the site temperature record outside the working "
         "window, each {day, temperature in °C, side}")
@@ -222,109 +214,6 @@ def _totals_step(mix, v, per_m3: dict, t: wk.Totals, bags: dict) -> Step:
                 + (r",\quad n = \lceil m_b / m_{bag} \rceil" if bags else ""),
                 tuple(inputs), sub, round(sum(t.masses[b.binder] for b in mix.binders), 2),
                 "kg", "m_b")
-
-
-# ---------------------------------------------------------------- site gaugings
-@register("SITE-GAUGE", "Site gauging size", "mix", order=620)
-def gauging_check(mix, ctx) -> CheckResult | list:
-    """Largest gauging placed in time, binder measures per gauging, gaugings per day."""
-    title, p, rules = "Site gauging size", ctx.project, ctx.rules
-    zones = [z for z in p.dossier.zones if mix.id in [m.id for m in wc.mixes_of(z, p)]]
-    if not zones:
-        return []
-    y = wc.mix_yield(p, mix, rules)
-    if y is None:
-        return _not_assessed("SITE-GAUGE", title, mix.id, "mix", "the mix has no yield "
-                             "(see MIX-YIELD)", GAUGE)
-    life, measured = wc.workable_life(p, mix, rules)
-    sf = wc.rule_si(rules, "gauging_safety_factor", "dimensionless")
-    day = wc.rule_si(rules, "working_day", "time")
-    measure = (wc.Sourced(p.dossier.works.measure, "dossier.yaml works.measure")
-               if p.dossier.works.measure else wc.rule_si(rules, "measure_volume", "volume"))
-    yb = wc.fresh_per_loose_binder(y, mix)
-    rates = {z.id: (wc.Sourced(z.placing_rate, f"dossier.yaml {z.id}.placing_rate")
-                    if z.placing_rate else wc.rule_si(rules, "placing_rate", "volume_rate"))
-             for z in zones}
-    vmax = {z: bt.max_gauging_volume(life.value, r.value, sf.value) for z, r in rates.items()}
-    gov = min(vmax, key=vmax.get)
-    n = bt.binder_measures(vmax[gov], measure.value, yb)
-    steps = [_vmax_step(vmax, rates, life, sf)]
-    notes, status = [], "info"
-    if not measured:
-        notes.append(f"workable life not measured: the default {life.value / 60:g} min is used "
-                     "(measure it on the trial mix, EN 1015-9, and give workable_life in "
-                     "mixes.yaml)")
-        status = "attention" if life.value < 1800 else status
-    q = [Quantity("max_gauging_volume", {z: round(v / L, 3) for z, v in vmax.items()}, "L",
-                  "largest gauging placed in time"),
-         Quantity("workable_life", {"value": round(life.value / 60, 2), "measured": measured},
-                  "min", "workable life used")]
-    if n < 1:
-        status = "attention"
-        msg = (f"the measure of {measure.value / L:g} L makes a gauging larger than the "
-               f"{vmax[gov] / L:.2g} L that can be placed in time in zone {gov}: use a smaller "
-               "measure (dossier.yaml works.measure)")
-        return CheckResult(code="SITE-GAUGE", title=title, subject=mix.id, subject_kind="mix",
-                           status=status, value=round(vmax[gov] / L, 3), unit="L", basis=(GAUGE,),
-                           steps=tuple(steps), message=msg, notes=tuple(notes),
-                           quantities=tuple(q))
-    parts = {b.binder: b.parts for b in mix.binders} | {s.sand: s.parts for s in mix.sands}
-    g = bt.gauging(n, measure.value, parts, sum(b.parts for b in mix.binders), yb, y.per_m3)
-    per_day = {z: bt.gaugings_per_day(r.value, day.value, g.volume) for z, r in rates.items()}
-    steps.append(_gauging_step(mix, g, measure, yb, vmax[gov], gov, y))
-    steps.append(_per_day_step(per_day, rates, day, g))
-    rho_w = wc.water_density().value
-    q += [Quantity("gauging", {"binder_measures": n, "measure_L": round(measure.value / L, 4),
-                               "volume_L": round(g.volume / L, 3), "governing_zone": gov,
-                               "measures": {k: round(v, 3) for k, v in g.measures.items()},
-                               "mass_kg": {k: round(v, 4) for k, v in g.masses.items()},
-                               "water_L": round(g.masses[wc.WATER] / rho_w / L, 3)},
-                   "", "gauging on the batching card"),
-          Quantity("gaugings_per_day", per_day, "", "gaugings per working day")]
-    water = g.masses[wc.WATER] / rho_w / L
-    msg = (f"{life.value / 60:g} min workable life ({'measured' if measured else 'default'}): "
-           f"at most {vmax[gov] / L:.3g} L per gauging (zone {gov}); gauge {n} measure(s) of "
-           f"binder ({measure.value / L:g} L) = {g.volume / L:.3g} L of mortar with "
-           f"{water:.2f} L of water")
-    return CheckResult(code="SITE-GAUGE", title=title, subject=mix.id, subject_kind="mix",
-                       status=status, value=round(g.volume / L, 3), unit="L", basis=(GAUGE,),
-                       steps=tuple(steps), message=msg, notes=tuple(notes), quantities=tuple(q))
-
-
-def _vmax_step(vmax, rates, life, sf) -> Step:
-    inputs = [Input("t_w", "workable life", round(life.value / 60, 3), "min", life.source),
-              Input("γ", "safety factor", sf.value, "", sf.source)]
-    inputs += [Input(f"q_{z}", f"placing rate, zone {z}", round(r.value / L * 3600, 4), "L/h",
-                     r.source) for z, r in rates.items()]
-    sub = r",\ ".join(rf"V_{{\max,{z}}} = \frac{{{life.value / 60:g} \times "
-                      rf"{rates[z].value / L * 3600:g}/60}}{{{sf.value:g}}} = {v / L:.3f}\ "
-                      r"\mathrm{L}" for z, v in vmax.items())
-    return Step("Largest gauging placed within the workable life", r"V_{\max} = t_w\,q/\gamma",
-                tuple(inputs), sub, round(min(vmax.values()) / L, 4), "L", "V_max")
-
-
-def _gauging_step(mix, g, measure, yb, vmax, gov, y) -> Step:
-    inputs = (Input("V_max", f"largest gauging (zone {gov}, governing)", round(vmax / L, 4), "L",
-                    "step above"),
-              Input("V_m", "measure volume", round(measure.value / L, 4), "L", measure.source),
-              Input("Y_b", "fresh mortar per volume of loose binder", round(yb, 4), "",
-                    f"MIX-YIELD/{mix.id}: V_f / Σ binder parts"))
-    sub = (rf"N = \left\lfloor \frac{{{vmax / L:.3f}}}{{{measure.value / L:g} \times {yb:.3f}}}"
-           rf"\right\rfloor = {g.binder_measures};\ V_g = {g.binder_measures} \times "
-           rf"{measure.value / L:g} \times {yb:.3f} = {g.volume / L:.3f}\ \mathrm{{L}}")
-    return Step("Binder measures per gauging and its volume",
-                r"N = \lfloor V_{\max} / (V_m Y_b) \rfloor,\quad V_g = N V_m Y_b,\quad "
-                r"m_i = c_i V_g", inputs, sub, round(g.volume / L, 4), "L", "V_g")
-
-
-def _per_day_step(per_day, rates, day, g) -> Step:
-    inputs = [Input("T", "placing hours per day", round(day.value / 3600, 3), "h", day.source),
-              Input("V_g", "gauging volume", round(g.volume / L, 4), "L", "step above")]
-    sub = r",\ ".join(rf"n_{{{z}}} = \lceil {rates[z].value / L * 3600:g} \times "
-                      rf"{day.value / 3600:g} / {g.volume / L:.3f} \rceil = {n}"
-                      for z, n in per_day.items())
-    return Step("Gaugings per working day", r"n = \lceil q\,T / V_g \rceil", tuple(inputs), sub,
-                max(per_day.values()), "", "n")
 
 
 # ---------------------------------------------------------------- weather

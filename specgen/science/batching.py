@@ -13,7 +13,8 @@ tool of volume V_m the binder is gauged in; sands are gauged in the same measure
 the mix's proportions), so that the card can be followed without arithmetic:
 
     Y_b = V_fresh / V_binder,loose       (fresh mortar per m³ of loose binder, from the yield)
-    N   = ⌊V_max / (V_m · Y_b)⌋          binder measures per gauging
+    N   = ⌊V_max / (V_m · Y_b)⌋          binder measures per gauging (V_m halved while N = 0,
+                                         down to the smallest measure the site keeps)
     V_g = N · V_m · Y_b                  fresh volume of the gauging
     n   = ⌈q · T / V_g⌉                  gaugings per working day of length T
 
@@ -48,6 +49,22 @@ def binder_measures(v_max: float, measure: float, fresh_per_loose_binder: float)
     """N = ⌊V_max / (V_m · Y_b)⌋: whole binder measures per gauging (0: the measure is too big)."""
     _positive(v_max=v_max, measure=measure, fresh_per_loose_binder=fresh_per_loose_binder)
     return math.floor(v_max / (measure * fresh_per_loose_binder) + 1e-9)
+
+
+def fitting_measure(v_max: float, measure: float, fresh_per_loose_binder: float,
+                    smallest: float) -> tuple[float, int]:
+    """(V_m, N): the measure halved until one binder measure fits in V_max, not below ``smallest``.
+
+    A crew gauging a quick-setting binder reaches for a smaller scoop rather than
+    a fraction of a measure; halving keeps the card free of fractions.  N is 0 when
+    even the smallest measure makes too much mortar.
+    """
+    _positive(smallest=smallest)
+    n = binder_measures(v_max, measure, fresh_per_loose_binder)
+    while n < 1 and measure / 2 >= smallest * (1 - 1e-9):
+        measure /= 2
+        n = binder_measures(v_max, measure, fresh_per_loose_binder)
+    return measure, n
 
 
 def gaugings_per_day(placing_rate: float, working_day: float, gauging_volume: float) -> int:
