@@ -39,11 +39,17 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str = "a4"
     project = load_project(project_dir)
     archived = _load_archive(Path(project_dir), project)
     out = Path(out_dir)
-    for old in archived:
-        if not (out / old.revision.code / "manifest.json").is_file():
-            progress(f"revision {old.revision.code} (issued, from {ARCHIVE_DIR}/)")
-            _build_one(old, out, page_size, progress)
-    return _build_one(project, out, page_size, progress)
+    from specgen.report import cache
+    # unchanged figures and math are reused from the output folder's artefact cache;
+    # after a complete build it keeps only what this build used
+    with cache.using(out / cache.CACHE_DIR) as used:
+        for old in archived:
+            if not (out / old.revision.code / "manifest.json").is_file():
+                progress(f"revision {old.revision.code} (issued, from {ARCHIVE_DIR}/)")
+                _build_one(old, out, page_size, progress)
+        built = _build_one(project, out, page_size, progress)
+    cache.prune(out / cache.CACHE_DIR, used)
+    return built
 
 
 def _build_one(project: Project, out: Path, page_size: str, progress) -> Path:
@@ -54,9 +60,7 @@ def _build_one(project: Project, out: Path, page_size: str, progress) -> Path:
     results = evaluate(project)
     history = history_for(out, project, results)
     progress("render: pages, figures and calculation sheets")
-    from specgen.report import cache
-    with cache.using(out / cache.CACHE_DIR):  # unchanged figures and math are reused
-        pages = render(project, results, history)
+    pages = render(project, results, history)
     _fix_dates(project.revision.date)
     return publish(project, results, pages, out, page_size=page_size, progress=progress,
                    changes=history.changes)

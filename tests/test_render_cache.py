@@ -66,3 +66,17 @@ def test_code_change_misses(monkeypatch, tmp_path):
         monkeypatch.setattr(cache, "code_version", lambda: "another version")
         cache.cached("figure-x", [1, 2], draw)
         assert len(calls) == 2
+
+
+def test_prune_keeps_only_what_a_build_used(tmp_path):
+    folder = tmp_path / "c"
+    with cache.using(folder):
+        cache.cached("figure-a", [1], lambda: b"a")
+        cache.cached("figure-b", [2], lambda: b"b")
+    (folder / "figure-a" / ".stray.123.tmp").write_bytes(b"half")  # left by a killed build
+    with cache.using(folder) as used:
+        assert cache.cached("figure-a", [1], lambda: b"never drawn") == b"a"
+    assert cache.prune(folder, used) == 2          # figure-b's entry and the stray file
+    with cache.using(folder):
+        assert cache.cached("figure-a", [1], lambda: b"never drawn") == b"a"
+    assert sorted(p.parent.parent.name for p in folder.rglob("*") if p.is_file()) == ["figure-a"]

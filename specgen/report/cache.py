@@ -20,6 +20,7 @@ import os
 from pathlib import Path
 
 _DIR: contextvars.ContextVar[Path | None] = contextvars.ContextVar("specgen_cache", default=None)
+_USED: contextvars.ContextVar[set | None] = contextvars.ContextVar("specgen_cache_used", default=None)
 CACHE_DIR = ".cache"
 
 
@@ -42,12 +43,32 @@ def code_version() -> str:
 
 @contextlib.contextmanager
 def using(folder: Path | str | None):
-    """Cache artefacts under ``folder`` for the duration of the block (None: no cache)."""
+    """Cache artefacts under ``folder`` for the duration of the block (None: no cache).
+
+    Yields the set of entry paths read or written in the block (for :func:`prune`).
+    """
+    used: set[Path] = set()
     token = _DIR.set(Path(folder) if folder is not None else None)
+    token_used = _USED.set(used)
     try:
-        yield
+        yield used
     finally:
         _DIR.reset(token)
+        _USED.reset(token_used)
+
+
+def prune(folder: Path | str, used: set[Path]) -> int:
+    """Delete every entry of ``folder`` not in ``used`` (and stray temporary files), so the
+    cache holds what the last complete build needed and no more.  Returns the count."""
+    gone = 0
+    for path in sorted(Path(folder).rglob("*")):
+        if path.is_file() and path not in used:
+            try:
+                path.unlink()
+                gone += 1
+            except OSError:
+                pass
+    return gone
 
 
 def _plain(value):
@@ -71,6 +92,9 @@ def cached(kind: str, inputs, produce) -> bytes:
         return produce()
     key = key_of(kind, inputs)
     path = folder / kind / key[:2] / key
+    used = _USED.get()
+    if used is not None:
+        used.add(path)
     try:
         return path.read_bytes()
     except OSError:
