@@ -102,3 +102,44 @@ def test_unwritable_output_gives_clear_message(single_revision, tmp_path, cli):
     assert f"{blocker / 'out'}: cannot write the output folder (Not a directory)." in result.output
     assert "Traceback" not in result.output
     assert blocker.read_text().startswith("a file where")
+
+
+def _disk_full(*args, **kwargs):
+    import errno
+    raise OSError(errno.ENOSPC, "No space left on device")
+
+
+def test_full_disk_during_the_pdf_leaves_nothing_half_written(single_revision, cli, monkeypatch):
+    root, out = single_revision
+    before = {k: v for k, v in tree(out).items() if not k.startswith(".cache/")}
+    csv = root / "lab" / "strength.csv"
+    csv.write_text(csv.read_text().replace("M1-01d-C1,M1,1,compressive,1.",
+                                           "M1-01d-C1,M1,1,compressive,1.0"))
+    import specgen.publish.pdf
+    monkeypatch.setattr(specgen.publish.pdf, "write_pdf", _disk_full)
+    result = cli("build", root, "--out", out, "--quiet")
+    assert result.exit_code == 2, result.output
+    assert (f"{out}: the revision could not be written (No space left on device); nothing was "
+            "changed in the output folder. Fix: free disk space or choose a writable folder "
+            "with --out.") in result.output
+    assert "Traceback" not in result.output
+    time.sleep(0.5)  # the site process is stopped, not left writing into a removed folder
+    after = {k: v for k, v in tree(out).items() if not k.startswith(".cache/")}
+    assert after == before
+
+
+def test_read_only_output_simulated_for_root(single_revision, cli, monkeypatch):
+    import errno
+    import specgen.publish.output as output
+    root, out = single_revision
+
+    def read_only(*args, **kwargs):
+        raise OSError(errno.EROFS, "Read-only file system")
+    monkeypatch.setattr(output.tempfile, "mkdtemp", read_only)
+    before = tree(out)
+    result = cli("build", root, "--out", out, "--quiet")
+    assert result.exit_code == 2, result.output
+    assert (f"{out}: cannot write the output folder (Read-only file system). Fix: choose a "
+            "writable folder with --out, or free disk space.") in result.output
+    assert {k: v for k, v in tree(out).items() if not k.startswith(".cache/")} == \
+        {k: v for k, v in before.items() if not k.startswith(".cache/")}

@@ -64,6 +64,7 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     progress("publish: PDF")
     results_json = results.to_json().encode("utf-8")
     attachments = {"results.json": results_json}
+    attachments.update({path: pages.assets[path] for path in pages.downloads})
     for f in project.inputs:
         attachments[f"input/{f.path}"] = (project.root / f.path).read_bytes()
     ident = hashlib.sha256(f"{project.dossier.project.code}/{rev.code}".encode()).digest()[:16]
@@ -73,8 +74,11 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
                   page_size=page_size, identifier=ident, stamp=_stamp(rev.date))
         if child is not None:
             _join(child)
+            child = None
         os.replace(pdf_tmp, staging / pdf_name(project))
     finally:
+        if child is not None:  # the PDF failed: stop the site before the staging is removed
+            _stop(child)
         if pdf_tmp.exists():
             pdf_tmp.unlink()
     (staging / "results.json").write_bytes(results_json)
@@ -117,6 +121,15 @@ def _join(handle) -> None:
     proc.join()
     if error or proc.exitcode:
         raise PublishError(f"the site could not be built: {error or proc.exitcode}")
+
+
+def _stop(handle) -> None:
+    """End the site process early (the build failed) and wait for it, so it cannot write
+    into a staging folder that is being removed."""
+    proc, conn = handle
+    proc.terminate()
+    proc.join()
+    conn.close()
 
 
 def _stamp(date):
