@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from specgen.checks.composition_checks import oxide_order
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import num
+from specgen.report.fmt import as_given, num
 
 MAJOR = ("SiO2", "Al2O3", "Fe2O3", "CaO", "MgO", "SO3")
 BINDER_TYPES = {"natural_cement": "natural cement", "nhl": "natural hydraulic lime (NHL)",
@@ -35,7 +35,7 @@ def composition(env) -> dict:
     p, r = env.project, env.results
     oxides = sorted({k for a in p.analyses.values() for k in a.mass_percent}, key=oxide_order)
     rows = [{"id": a.id, "kind": a.kind.replace("_", " "), "cells": [
-        num(a.mass_percent[k], 3) if k in a.mass_percent else "—" for k in oxides]}
+        as_given(a.mass_percent[k]) if k in a.mass_percent else "—" for k in oxides]}
         for a in p.analyses.values()]
     ci = [c for c in r.checks if c.code == "CHEM-CI" and isinstance(c.value, float)]
     figure = None

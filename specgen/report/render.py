@@ -45,6 +45,7 @@ class RenderEnv:
     history: object = None
     citations: Citations = field(default_factory=Citations)
     figures: list = field(default_factory=list)
+    tables: int = 0
 
     @property
     def rules_overridden(self) -> list:
@@ -60,6 +61,13 @@ class RenderEnv:
         self.pageset.add_asset(path, svg)
         self.figures.append(path)
         return {"src": path, "caption": caption, "n": len(self.figures)}
+
+    def table(self, caption: str) -> Markup:
+        """A numbered table caption, placed just above a table in a template:
+        ``{{ table("Analyses, mass %") }}``.  Tables are numbered in order of appearance
+        over the whole dossier, like figures, so site and PDF carry the same numbers."""
+        self.tables += 1
+        return Markup('<p class="sg-table-caption">Table {}. {}</p>\n').format(self.tables, caption)
 
     def cite(self, basis) -> dict | None:
         if basis.kind != "reference":
@@ -93,15 +101,30 @@ def render(project, results, history=None) -> PageSet:
     pageset = PageSet()
     env = RenderEnv(project, results, pageset, MathAssets(pageset), history)
     jenv = template_env(getattr(project, "root", None))
+    jenv.globals["table"] = env.table
     base = {"project": project.dossier.project, "revision": project.revision,
             "narrative": {}}
     for spec in chapters():
-        ctx = dict(base, **spec.fn(env), title=spec.title)
-        stem = spec.path.rsplit(".", 1)[0]
-        ctx["narrative"] = _narrative_for(project, "introduction" if stem == "index" else stem)
-        text = jenv.get_template(spec.template).render(**ctx)
-        pageset.add_page(spec.path, spec.title, text)
+        for path, title, made in _pages_of(spec, spec.fn(env)):
+            ctx = dict(base, **made, title=title)
+            stem = path.rsplit(".", 1)[0]
+            ctx["narrative"] = _narrative_for(project, "introduction" if stem == "index" else stem)
+            text = jenv.get_template(spec.template).render(**ctx)
+            pageset.add_page(path, title, text)
     return pageset
+
+
+def _pages_of(spec, made) -> list[tuple[str, str, dict]]:
+    """(path, title, context) of each page of a chapter.
+
+    A chapter returns one context, or a list of contexts each naming its own ``path``
+    and ``title`` (a family of pages, e.g. one batching card per mix; an empty list
+    makes no page).
+    """
+    if isinstance(made, list):
+        return [(m["path"], m["title"], {k: v for k, v in m.items() if k not in ("path", "title")})
+                for m in made]
+    return [(spec.path, spec.title, made)]
 
 
 def _narrative_for(project, name: str) -> Markup:
