@@ -21,6 +21,7 @@ class Context:
     project: object
     rules: RuleBook
     quantities: dict[str, dict[str, Quantity]] = field(default_factory=dict)
+    results: list[CheckResult] = field(default_factory=list)  # every result so far, in run order
 
     def record(self, subject: str, q: Quantity) -> None:
         """Record a computed quantity for ``subject`` (later checks and results.json see it)."""
@@ -88,7 +89,7 @@ def subjects_of(project, kind: str) -> list[tuple[str, object]]:
 def evaluate(project) -> Results:
     """Run all checks in order; each may record quantities for later ones."""
     ctx = Context(project, RuleBook(project.dossier.rule_overrides))
-    out: list[CheckResult] = []
+    out: list[CheckResult] = ctx.results  # later checks (e.g. the selection) read earlier ones
     subjects: dict[str, str] = {}
     for spec in checks():
         for sid, subject in subjects_of(project, spec.subject_kind):

@@ -84,6 +84,8 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
     if mixes is not SKIP:
         _strength_refs(project.strength, mixes, log)
     _comment_refs(project, located.get("comments.yaml"), log)
+    if project.specification is not None:
+        specification_refs(project, located.get("specification.yaml"), log, mixes)
 
 
 # Pages a comment may name (the stems of the dossier's chapter files).
@@ -148,3 +150,130 @@ def _strength_refs(results, mixes: dict, log: ProblemLog) -> None:
         hint = did_you_mean(mix, mixes)
         log.add(first, f"names mix '{mix}', which is not defined in mixes.yaml{more}.",
                 row=where[0], field="mix", fix=hint or "define the mix, or correct the id.")
+
+
+# ---------------------------------------------------------------- specification.yaml
+SPEC = "specification.yaml"
+
+
+def specification_refs(project, located, log: ProblemLog, mixes) -> None:
+    """Selections, hold points, trial panels and prices name zones, mixes, roles that exist."""
+    spec = project.specification.doc
+    zones = {z.id: z for z in project.dossier.zones}
+    for i, s in enumerate(spec.selections):
+        _ref(log, {SPEC: located}, SPEC, ("selections", i, "zone"), s.zone, zones, "zone")
+        _ref(log, {SPEC: located}, SPEC, ("selections", i, "mix"), s.mix, mixes, "mix")
+    _selection_refs(spec.selections, zones, located, log)
+    _hold_point_refs(project, spec.hold_points, located, log)
+    _panel_refs(project, spec.trial_panels, located, log, mixes, zones)
+    for i, u in enumerate(spec.unit_prices):
+        _ref(log, {SPEC: located}, SPEC, ("unit_prices", i, "mix"), u.mix, mixes, "mix")
+
+
+def _line(located, *path) -> int | None:
+    return located.line_of(path) if located else None
+
+
+def _selection_refs(selections, zones: dict, located, log: ProblemLog) -> None:
+    """One selection per zone, and the chosen mix is one of the zone's candidates."""
+    first: dict[str, int] = {}
+    for i, s in enumerate(selections):
+        if s.zone in first:
+            log.add(SPEC, f"zone {s.zone} is selected twice (also selections[{first[s.zone]}]).",
+                    line=_line(located, "selections", i, "zone"), field=f"selections[{i}].zone",
+                    fix="keep one selection per zone.")
+        first.setdefault(s.zone, i)
+        zone = zones.get(s.zone)
+        if zone is not None and zone.candidates and s.mix not in zone.candidates:
+            log.add(SPEC, f"mix '{s.mix}' is not a candidate of zone {s.zone} (candidates: "
+                    f"{', '.join(zone.candidates)}).", line=_line(located, "selections", i, "mix"),
+                    field=f"selections[{i}].mix", fix=f"choose one of the candidates, or add "
+                    f"{s.mix} to the zone's candidates in dossier.yaml so that it is appraised.")
+
+
+def _roles(project) -> list[str]:
+    return sorted({p.role for p in project.dossier.parties})
+
+
+def _role_ref(project, role, what: str, where: tuple, located, log: ProblemLog) -> None:
+    roles = _roles(project)
+    field = f"{where[0]}[{where[1]}].{where[2]}"
+    if not role:
+        log.add(SPEC, f"{what} names no releasing role.", line=_line(located, *where[:2]),
+                field=field, fix=f"add '{where[2]}:' with the role of the party who releases "
+                f"it (dossier.yaml parties): {', '.join(roles) or 'add a party first'}.")
+    elif role not in roles:
+        log.add(SPEC, f"{what} names the role '{role}', which is not a party role in "
+                "dossier.yaml.", line=_line(located, *where), field=field,
+                fix=did_you_mean(role, roles) or f"use one of: {', '.join(roles)}, or add the "
+                "party to dossier.yaml.")
+
+
+def _hold_point_refs(project, hold_points, located, log: ProblemLog) -> None:
+    """Releasing role of each hold point; a release names its revision and its evidence."""
+    revisions = [project.revision.code] + sorted(
+        d.name for d in (project.root / "issued").glob("*") if d.is_dir())
+    seen: set[str] = set()
+    for i, h in enumerate(hold_points):
+        if h.id in seen:
+            log.add(SPEC, f"hold point id '{h.id}' is used twice.", field=f"hold_points[{i}].id",
+                    line=_line(located, "hold_points", i, "id"), fix="give each one its own id.")
+        seen.add(h.id)
+        _role_ref(project, h.released_by, f"hold point '{h.id}'", ("hold_points", i,
+                  "released_by"), located, log)
+        _release_refs(h, i, revisions, located, log)
+        if h.check and h.check.partition("/")[0] not in _codes():
+            log.add(SPEC, f"hold point '{h.id}' rests on check '{h.check}', which is not a "
+                    "check code.", line=_line(located, "hold_points", i, "check"),
+                    field=f"hold_points[{i}].check", fix=did_you_mean(h.check.partition("/")[0],
+                    _codes()) or "give a check code, e.g. STR-MIN or STR-MIN/M2.")
+
+
+def _codes() -> list[str]:
+    from specgen.checks.registry import checks
+    return sorted(s.code for s in checks())
+
+
+def _release_refs(h, i: int, revisions: list[str], located, log: ProblemLog) -> None:
+    where = f"hold_points[{i}]"
+    if h.state == "released" and not (h.released_in and h.evidence):
+        missing = " and ".join(k for k, v in (("released_in", h.released_in),
+                                               ("evidence", h.evidence)) if not v)
+        log.add(SPEC, f"hold point '{h.id}' is released but gives no {missing}.",
+                line=_line(located, "hold_points", i), field=f"{where}.state",
+                fix="say in which revision it was released and on what evidence, or set "
+                    "'state: open'.")
+    if h.state == "open" and h.released_in:
+        log.add(SPEC, f"hold point '{h.id}' is open but names a revision it was released in.",
+                line=_line(located, "hold_points", i, "released_in"),
+                field=f"{where}.released_in", fix="set 'state: released', or remove 'released_in'.")
+    if h.released_in and h.released_in not in revisions:
+        log.add(SPEC, f"hold point '{h.id}' was released in '{h.released_in}', which is neither "
+                "this revision nor an issued one.", field=f"{where}.released_in",
+                line=_line(located, "hold_points", i, "released_in"),
+                fix=f"use one of: {', '.join(revisions)}.")
+
+
+def _panel_refs(project, panels, located, log: ProblemLog, mixes, zones) -> None:
+    """Trial panels: their mix, zone, reviewer role, photo file and colour sample exist."""
+    from specgen.project.load import inside
+    samples = {r.sample for r in project.colours}
+    for i, tp in enumerate(panels):
+        _ref(log, {SPEC: located}, SPEC, ("trial_panels", i, "mix"), tp.mix, mixes, "mix")
+        _ref(log, {SPEC: located}, SPEC, ("trial_panels", i, "zone"), tp.zone, zones, "zone")
+        if tp.reviewer not in _roles(project):
+            _role_ref(project, tp.reviewer, f"trial panel '{tp.id}'",
+                      ("trial_panels", i, "reviewer"), located, log)
+        if tp.colour_sample and tp.colour_sample not in samples:
+            log.add(SPEC, f"trial panel '{tp.id}' names colour sample '{tp.colour_sample}', "
+                    "which is not in lab/colour.csv.", field=f"trial_panels[{i}].colour_sample",
+                    line=_line(located, "trial_panels", i, "colour_sample"),
+                    fix=did_you_mean(tp.colour_sample, sorted(samples))
+                    or "add its readings to lab/colour.csv, or correct the id.")
+        if tp.photo:
+            path = inside(project.root, tp.photo, SPEC, f"trial_panels[{i}].photo", log)
+            if path is not None and not path.is_file():
+                log.add(SPEC, f"trial panel '{tp.id}': the photo '{tp.photo}' is not in the "
+                        "project folder.", field=f"trial_panels[{i}].photo",
+                        line=_line(located, "trial_panels", i, "photo"),
+                        fix="copy the photo into the project folder, or correct the path.")

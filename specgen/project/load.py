@@ -21,6 +21,7 @@ DOCUMENTS: dict[str, tuple[type[BaseModel], bool]] = {
     "materials.yaml": (schema.MaterialsFile, False),
     "mixes.yaml": (schema.MixesFile, False),
     "comments.yaml": (schema.CommentsFile, False),
+    "specification.yaml": (schema.SpecificationFile, False),
 }
 ARCHIVE_DIR = "issued"  # issued/<revision>/: the inputs of earlier issued revisions
 STRENGTH_FILE = "lab/strength.csv"
@@ -64,6 +65,7 @@ class Project:
     inputs: list[InputFile] = field(default_factory=list)
     firing: dict = field(default_factory=dict)  # binder id → FiringSeries (project/firing.py)
     site_temperature: object = None  # SiteTemperature (project/site_temperature.py) or None
+    specification: object = None  # SpecificationData (project/specification.py) or None
 
     @property
     def revision(self) -> schema.Revision:
@@ -224,6 +226,9 @@ def load_project(root: Path | str) -> Project:
     from specgen.project.site_temperature import curing_temperature_problems, site_temperature
     project.site_temperature = site_temperature(root, project.dossier, log)
     curing_temperature_problems(project.strength, log)
+    from specgen.project.specification import SPEC_FILE, specification_data
+    project.specification = specification_data(root, docs.get(SPEC_FILE), located.get(SPEC_FILE),
+                                               ARCHIVE_DIR, log)
     from specgen.project.crossref import check_references
     failed = {name for name in DOCUMENTS if (root / name).is_file() and docs.get(name) is None}
     check_references(project, located, log, failed)
