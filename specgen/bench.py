@@ -7,7 +7,9 @@ same figures drawn with matplotlib and the same math drawn with ziamath (our ren
 pass with every cache off), then plain ``mkdocs build`` of the same Markdown (written
 to disk) and a plain WeasyPrint render of the same print HTML, in sequence, and
 (e) ``check`` on synthetic projects of 10, 50 and 200 mixes (the growth exponent is the
-log–log slope of time against results).  Medians of ``runs`` repetitions.
+log–log slope of time against results), and (f) once, the full build (site and PDF) of
+the 200-mix project in a fresh process, with its time and the peak resident memory of
+its largest process.  Medians of ``runs`` repetitions.
 """
 from __future__ import annotations
 
@@ -76,6 +78,23 @@ def _floor(project: Path, work: Path):
     return run
 
 
+_PEAK = """
+import resource, subprocess, sys, time
+t = time.perf_counter()
+subprocess.run([sys.executable, "-m", "specgen", "build", sys.argv[1], "--out", sys.argv[2],
+                "--quiet"], check=True, stdout=subprocess.DEVNULL)
+print(time.perf_counter() - t, resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss)
+"""
+
+
+def _peak_build(project: Path, out: Path) -> tuple[float, float]:
+    """(seconds, peak RSS in MiB of the largest process) of one build in a fresh process."""
+    done = subprocess.run([sys.executable, "-c", _PEAK, str(project), str(out)], check=True,
+                          capture_output=True, text=True)
+    seconds, kib = done.stdout.split()
+    return float(seconds), int(kib) / 1024
+
+
 def main(runs: int = 3) -> None:
     from specgen.build import build, check
     from specgen.synthetic import write_project
@@ -107,11 +126,13 @@ def main(runs: int = 3) -> None:
             times.append(_median(lambda: check(syn), runs))
             sizes.append(n * 8 * 3)
         slope = (math.log(times[-1]) - math.log(times[0])) / (math.log(sizes[-1]) - math.log(sizes[0]))
+        f_time, f_mib = _peak_build(syn, work / "syn-out")
     print(f"(a) check, demo                      {a:7.3f} s")
     print(f"(b) full cold build, demo            {b:7.3f} s")
     print(f"(c) re-issue after one new result    {c:7.3f} s")
     print(f"(d) bare toolchain floor (figures + math, mkdocs, WeasyPrint; sequential) {d:7.3f} s")
     for n, s, t in zip((10, 50, 200), sizes, times):
         print(f"(e) check, {n:3d} mixes / {s:5d} results  {t:7.3f} s")
+    print(f"(f) build, 200 mixes (site + PDF)   {f_time:7.1f} s, peak memory {f_mib:6.0f} MiB")
     print(f"ratio (b)/(d) = {b / d:.2f}   ratio (c)/(b) = {c / b:.2f}   "
           f"growth exponent of (e) = {slope:.2f}")
