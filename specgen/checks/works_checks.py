@@ -66,19 +66,28 @@ def mix_yield_check(mix, ctx) -> CheckResult:
     props = {k: round(v / binder, 4) for k, v in y.masses.items()}
     steps = [_mass_step(parts, y, binder), _yield_step(parts, y, mix, air, rho_w)]
     per = {k: round(v, 2) for k, v in y.per_m3.items()}
-    text = " : ".join(f"{q.constituent.parts:g}" for q in parts)
-    mass_text = " : ".join(f"{props[q.constituent.name]:.3g}" for q in parts)
+    text, mass_text = _ratio_text(parts, props)
     return CheckResult(
         code="MIX-YIELD", title=title, subject=mix.id, subject_kind="mix", status="info",
         value=round(y.binder_mass_per_m3, 1), unit="kg/m³", basis=(PRACTICE,),
         steps=tuple(steps),
-        message=(f"{text} by loose volume = {mass_text} by mass; {y.binder_mass_per_m3:.0f} kg "
+        message=(f"binder : sand {text} by loose volume, {mass_text} by mass; "
+                 f"{y.binder_mass_per_m3:.0f} kg "
                  f"of binder and {y.per_m3[wc.WATER]:.0f} kg of water per m³ of fresh mortar "
                  f"(air {100 * air.value:.3g} %, fresh density {y.fresh_density:.0f} kg/m³)"),
         quantities=(Quantity("mass_proportions", props, "", "proportions by mass (binder = 1)"),
                     Quantity("yield_per_m3", per, "kg/m³", "kg per m³ of fresh mortar"),
                     Quantity("fresh_density", round(y.fresh_density, 1), "kg/m³",
                              "fresh mortar density")))
+
+
+def _ratio_text(parts, props) -> tuple[str, str]:
+    """'1 : 1.5 (S1 1 + S2 0.5)' by loose volume and '1 : 2.68' by mass (binders together = 1)."""
+    kinds = {k: [q.constituent for q in parts if q.constituent.kind == k] for k in ("binder", "sand")}
+    vol = f"{sum(c.parts for c in kinds['binder']):g} : {sum(c.parts for c in kinds['sand']):g}"
+    mass = f"1 : {sum(props[c.name] for c in kinds['sand']):.3g}"
+    detail = [" + ".join(f"{c.name} {c.parts:g}" for c in cs) for cs in kinds.values() if len(cs) > 1]
+    return vol + (f" ({'; '.join(detail)})" if detail else ""), mass
 
 
 def _mass_step(parts, y, binder) -> Step:

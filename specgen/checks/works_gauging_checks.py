@@ -22,8 +22,8 @@ QUICK = 1800.0  # s: a default workable life shorter than this is flagged for me
 declare("max_gauging_volume", "L", "largest gauging placed within the workable life, by zone "
         "(workable life × placing rate / safety factor)")
 declare("gauging", "", "the gauging on the batching card: binder measures, measure volume (and "
-        "the measure it was halved from), fresh volume, measures and masses of each constituent, "
-        "water in litres, admixtures in grams")
+        "the measure it was halved from), fresh volume, measures, loose litres and masses of each "
+        "constituent, water in litres, admixtures in grams")
 declare("gaugings_per_day", "", "gaugings to keep a zone's crew supplied for a working day, by zone")
 declare("workable_life", "min", "workable life used for the gaugings, with whether it was measured")
 
@@ -100,6 +100,8 @@ def _gauged(mix, s: Site, y, vmax, gov, measure, n, q) -> CheckResult:
                                if measure < s.measure.value else None,
                                "volume_L": round(g.volume / L, 3), "governing_zone": gov,
                                "measures": {k: round(v, 3) for k, v in g.measures.items()},
+                               "loose_L": {k: round(v * measure / L, 3)
+                                           for k, v in g.measures.items()},
                                "mass_kg": {k: round(v, 4) for k, v in g.masses.items()},
                                "water_L": round(water, 3), "admixture_g": admix},
                    "", "gauging on the batching card"),

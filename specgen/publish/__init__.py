@@ -65,6 +65,7 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     results_json = results.to_json().encode("utf-8")
     attachments = {"results.json": results_json}
     attachments.update({path: pages.assets[path] for path in pages.downloads})
+    attachments.update({path: pages.assets[path] for path in pages.downloads})
     for f in project.inputs:
         attachments[f"input/{f.path}"] = (project.root / f.path).read_bytes()
     ident = hashlib.sha256(f"{project.dossier.project.code}/{rev.code}".encode()).digest()[:16]

@@ -1,30 +1,70 @@
-"""Which cautions a project needs, from the caution library in ``content/cautions.yaml``."""
+"""Which cautions a project needs, from the caution library in ``content/cautions.yaml``.
+
+The dossier's caution chapter shows every caution whose trigger applies to the
+project; the batching card of a mix shows, in their shorter ``card`` wording, those
+whose trigger applies to that mix (its binders, the kinds of work it is used for).
+"""
 from __future__ import annotations
+
+from dataclasses import dataclass
 
 import yaml
 
 from specgen.refdata import CONTENT_DIR
 
 
+@dataclass(frozen=True)
+class Scope:
+    """What a trigger is evaluated against: binder types, kinds of work, project flags."""
+
+    binders: frozenset
+    works: frozenset
+    project: object
+
+
 def _library() -> dict:
     return yaml.safe_load((CONTENT_DIR / "cautions.yaml").read_text(encoding="utf-8"))
 
 
-def _applies(trigger: str, project) -> bool:
+def _applies(trigger: str, scope: Scope) -> bool:
     kind, _, arg = trigger.partition(":")
+    wanted = set(arg.split("|"))
     if kind == "always":
         return True
     if kind == "binder":
-        return any(b.type == arg for b in project.binders.values())
+        return bool(wanted & scope.binders)
     if kind == "works":
-        return any(z.works == arg for z in project.dossier.zones)
+        return bool(wanted & scope.works)
     if kind == "project":
-        return bool(getattr(project.dossier.project, arg, False))
+        return any(getattr(scope.project, flag, False) for flag in wanted)
     raise ValueError(f"content/cautions.yaml: unknown trigger '{trigger}'")
+
+
+def project_scope(project) -> Scope:
+    return Scope(frozenset(b.type for b in project.binders.values()),
+                 frozenset(z.works for z in project.dossier.zones), project.dossier.project)
+
+
+def mix_scope(project, mix) -> Scope:
+    """The mix's binder types and the kinds of work of the zones it is a candidate or choice for."""
+    zones = [z for z in project.dossier.zones if mix.id in z.candidates or z.mix == mix.id]
+    return Scope(frozenset(project.binders[b.binder].type for b in mix.binders
+                           if b.binder in project.binders),
+                 frozenset(z.works for z in zones), project.dossier.project)
 
 
 def cautions_for(project) -> tuple[list[dict], str]:
     """The cautions that apply (in library order) and the closing notice shown always."""
     lib = _library()
-    chosen = [c for c in lib["cautions"] if _applies(c["trigger"], project)]
+    scope = project_scope(project)
+    chosen = [c for c in lib["cautions"] if _applies(c["trigger"], scope)]
     return chosen, lib["closing"]
+
+
+def card_cautions(project, mix) -> tuple[list[dict], str]:
+    """The card wording of the cautions that apply to ``mix``, and the card's closing notice."""
+    lib = _library()
+    scope = mix_scope(project, mix)
+    chosen = [{"id": c["id"], "title": c["title"], "text": c["card"]} for c in lib["cautions"]
+              if c.get("card") and _applies(c["trigger"], scope)]
+    return chosen, lib["card_closing"]

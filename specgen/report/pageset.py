@@ -24,6 +24,7 @@ class PageSet:
     assets: dict[str, bytes] = field(default_factory=dict)
     nav: list[NavItem] = field(default_factory=list)
     titles: dict[str, str] = field(default_factory=dict)
+    downloads: list[str] = field(default_factory=list)  # assets also attached to the PDF
 
     def add_page(self, path: str, title: str, text: str) -> None:
         if path in self.pages:
@@ -37,6 +38,14 @@ class PageSet:
         if path in self.assets and self.assets[path] != data:
             raise ValueError(f"asset '{path}' is produced twice with different content")
         self.assets[path] = data
+        return path
+
+    def add_download(self, path: str, data: bytes) -> str:
+        """An asset for the reader to take away (e.g. a CSV): published in the revision
+        folder beside the PDF, listed in the manifest, and attached to the PDF."""
+        self.add_asset(path, data)
+        if path not in self.downloads:
+            self.downloads.append(path)
         return path
 
     def write_to(self, folder) -> None:

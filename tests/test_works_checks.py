@@ -1,0 +1,171 @@
+"""Works checks on the demo and on edited copies: quantities, gaugings, bad input, CSV, cards."""
+from __future__ import annotations
+
+import json
+
+import pytest
+
+from specgen.build import check
+
+DEMO_NAMES = ("joint_length_per_m2", "mortar_volume", "binder_mass", "bags",
+              "max_gauging_volume", "yield_per_m3")
+
+
+def edit(path, old: str, new: str) -> None:
+    text = path.read_text(encoding="utf-8")
+    assert old in text, f"test setup: {old!r} not in {path.name}"
+    path.write_text(text.replace(old, new, 1), encoding="utf-8")
+
+
+@pytest.fixture(scope="module")
+def demo():
+    from tests.conftest import DEMO
+    return check(DEMO)
+
+
+def by(results):
+    return {(c.code, c.subject): c for c in results.checks}
+
+
+def test_quantities_are_assessed_for_every_zone(demo):
+    p, r = demo
+    for z in ("Z1", "Z2", "Z3"):
+        assert by(r)[("WORKS-QTY", z)].status == "info", by(r)[("WORKS-QTY", z)].message
+    for m in ("M1", "M2", "M3"):
+        assert by(r)[("SITE-GAUGE", m)].status in ("info", "attention")
+        assert r.quantities[m]["gauging"].value["binder_measures"] >= 1
+
+
+def test_results_json_names_for_the_demo(demo):
+    _, r = demo
+    found = {n for qs in json.loads(r.to_json())["quantities"].values() for n in qs}
+    assert set(DEMO_NAMES) <= found
+
+
+def test_demo_repointing_volume_by_hand(demo):
+    _, r = demo
+    q = r.quantities["Z1"]
+    # EB1 230 × 75 mm, 10 mm joints: (0.24 + 0.075)/(0.24 × 0.085) = 15.441 m/m² (by hand);
+    # 240 m² × 15.441 × 0.010 × 0.020 = 0.74118 m³; with 15 % wastage 0.85235 m³.
+    assert q["joint_length_per_m2"].value == pytest.approx(15.4412, abs=1e-4)
+    assert q["mortar_volume_net"].value == pytest.approx(0.74118, abs=1e-5)
+    assert q["mortar_volume"].value == pytest.approx(0.85235, abs=1e-5)
+    # Bags: binder mass / 25 kg rounded up.
+    for mix, binders in q["binder_mass"].value.items():
+        for b, kg in binders.items():
+            assert q["bags"].value[mix][b] == -(-kg // 25)
+
+
+def test_render_and_bedding_by_hand(demo):
+    _, r = demo
+    # Z2: 85 m² × (12 + 8) mm = 1.7 m³, + 10 % = 1.87 m³; Z3: 1.8 m³ × 20 % = 0.36, + 12 %.
+    assert r.quantities["Z2"]["mortar_volume"].value == pytest.approx(1.87)
+    assert r.quantities["Z3"]["mortar_volume"].value == pytest.approx(0.4032)
+
+
+def test_quick_set_halves_the_measure(demo):
+    _, r = demo
+    c = by(r)[("SITE-GAUGE", "M2")]
+    g = r.quantities["M2"]["gauging"].value
+    # M2 has no measured workable life: the natural-cement default of 10 min (common practice)
+    # at 8 L/h and γ = 1.5 allows 0.889 L, so the 1 L measure is halved to 0.25 L.
+    assert c.status == "attention"
+    assert (g["measure_L"], g["halved_from_L"], g["binder_measures"]) == (0.25, 1.0, 1)
+    assert "so the measure is halved to 0.25 L" in c.message
+    assert r.quantities["M2"]["max_gauging_volume"].value["Z1"] == pytest.approx(0.889)
+
+
+def test_quantities_not_assessed_without_dimensions(demo_copy):
+    edit(demo_copy / "dossier.yaml", '    coats: ["12 mm", "8 mm"]\n', "")
+    _, r = check(demo_copy)
+    c = by(r)[("WORKS-QTY", "Z2")]
+    assert c.status == "not_assessed"
+    assert c.message == "not assessed: render: give coats for zone Z2 in dossier.yaml"
+
+
+def run_check(cli, project) -> str:
+    result = cli("check", project)
+    assert result.exit_code == 2, result.output
+    assert "Traceback" not in result.output
+    return result.output
+
+
+def test_joint_wider_than_the_unit(cli, demo_copy):
+    edit(demo_copy / "dossier.yaml", 'joint_width: "10 mm"', 'joint_width: "80 mm"')
+    assert ("dossier.yaml, line 39: zones[0].joint_width: zone 'Z1': the joint width 80 mm is not "
+            "narrower than the unit EB1 (230 × 75 mm) it is laid between. Fix: give the joint "
+            "width with its unit, e.g. '10 mm', or correct the unit's length and height in "
+            "materials.yaml.") in run_check(cli, demo_copy)
+
+
+@pytest.mark.parametrize("area", ["0 m^2", "-85 m^2"])
+def test_zero_or_negative_area(cli, demo_copy, area):
+    edit(demo_copy / "dossier.yaml", 'area: "85 m^2"', f'area: "{area}"')
+    assert (f"dossier.yaml, line 48: zones[1].area: must be greater than zero (found '{area}'). "
+            "Fix: give an amount greater than zero, with its unit (wall area of the works, e.g. "
+            "'120 m^2').") in run_check(cli, demo_copy)
+
+
+def test_mix_whose_proportions_sum_to_nothing(cli, demo_copy):
+    edit(demo_copy / "mixes.yaml", "binders: [{binder: NH35, parts: 1}]",
+         "binders: [{binder: NH35, parts: 0}]")
+    edit(demo_copy / "mixes.yaml", "sands: [{sand: S1, parts: 2.5}]", "sands: [{sand: S1, parts: 0}]")
+    out = run_check(cli, demo_copy)
+    assert ("mixes.yaml, line 15: mixes[2].binders: mix 'M3': the binder parts sum to 0, so the "
+            "mix has no binder to batch. Fix: give each binder its parts by loose volume, e.g. "
+            "'binders: [{binder: B1, parts: 1}]'.") in out
+    assert ("mixes.yaml, line 16: mixes[2].sands[0].parts: parts by loose volume must be greater "
+            "than zero; found 0. Fix: give the sand's share of the mix by loose volume, e.g. "
+            "'parts: 2.5', or remove the sand from the mix.") in out
+
+
+def test_mix_without_binders(cli, demo_copy):
+    edit(demo_copy / "mixes.yaml", "binders: [{binder: NH35, parts: 1}]", "binders: []")
+    assert ("mixes.yaml, line 15: mixes[2].binders: mix 'M3': the binder parts sum to 0, so the "
+            "mix has no binder to batch.") in run_check(cli, demo_copy)
+
+
+def test_bag_mass_missing_when_bags_are_asked_for(cli, demo_copy):
+    edit(demo_copy / "materials.yaml", '    bulk_density: "700 kg/m^3"\n    bag_mass: "25 kg"\n',
+         '    bulk_density: "700 kg/m^3"\n')
+    assert ("materials.yaml, line 12: binders[1].bag_mass: dossier.yaml asks for whole bags "
+            "(works.bags: true) but binder 'NH35' has no bag mass. Fix: add 'bag_mass:' with the "
+            "mass of one bag as supplied, e.g. '25 kg', or set works.bags: false in "
+            "dossier.yaml.") in run_check(cli, demo_copy)
+
+
+def test_no_bags_needed_when_not_asked(demo_copy):
+    edit(demo_copy / "materials.yaml", '    bulk_density: "700 kg/m^3"\n    bag_mass: "25 kg"\n',
+         '    bulk_density: "700 kg/m^3"\n')
+    edit(demo_copy / "dossier.yaml", "  bags: true\n", "  bags: false\n")
+    _, r = check(demo_copy)
+    assert "bags" not in r.quantities["Z1"]
+    assert by(r)[("WORKS-QTY", "Z1")].status == "info"
+
+
+def test_schedule_csv_is_sorted_fixed_and_repeatable(demo):
+    from specgen.report import works_schedule as ws
+    p, r = demo
+    a, b = ws.to_csv(ws.schedule(p, r)), ws.to_csv(ws.schedule(p, r))
+    assert a == b
+    lines = a.decode("utf-8").split("\r\n")
+    assert lines[0] == "zone,works,mix,kind,item,description,value,unit"
+    assert "Z1,repointing,,volume,mortar_volume_net,mortar volume before wastage,0.7412,m3" in lines
+    assert "Z1,repointing,M1,bags,NC1,bags of 25 kg,18,bag" in lines
+    assert [ln.split(",")[0] for ln in lines[1:-1]] == sorted(ln.split(",")[0] for ln in lines[1:-1])
+
+
+def test_csv_cells_never_become_formulas():
+    from specgen.report.works_schedule import _cell
+    assert _cell("=HYPERLINK(\"x\")") == "'=HYPERLINK(\"x\")"
+    assert _cell("S1 — sand") == "S1 — sand"
+
+
+def test_card_cautions_come_from_the_library(demo):
+    from specgen.report.cautions import card_cautions
+    p, _ = demo
+    chosen, closing = card_cautions(p, p.mixes["M1"])
+    assert [c["id"] for c in chosen] == ["alkaline", "quick_set", "dust", "bags"]
+    assert "safety data sheet" in closing and "competent person" in closing
+    nhl, _ = card_cautions(p, p.mixes["M3"])
+    assert "quick_set" not in [c["id"] for c in nhl]   # NHL: no natural cement in M3
