@@ -1,7 +1,8 @@
 """Specification checks: the mortar chosen per zone, sampling, cost, trial panels, hold points.
 
 Codes: ``SPEC-COST`` (zone, one result per priced candidate), ``SPEC-SELECT`` (one result
-per zone), ``SPEC-SAMPLING`` (zone), ``SPEC-PANEL`` (zone), ``SPEC-HOLD`` (project).  They run
+per zone), ``SPEC-SAMPLING`` and ``SPEC-ACCEPT`` (zone); trial panels and hold points are in
+``specification_record_checks``.  They run
 after every other check: the selection is judged on the results of the checks that apply to
 the chosen mortar.  A chosen mortar that fails a check without a written justification is an
 input error (the specifier must either justify it or choose again).
@@ -20,21 +21,16 @@ SAMPLING = Basis("common practice", note="sampling rule of specification.yaml si
                  "content/rules/specification.yaml")
 COST = Basis("project requirement", note="specification.yaml unit_prices; mortar volume from "
              "WORKS-QTY")
-PANELS = Basis("common practice", note="trial panels are judged by eye, dry, in daylight, before "
-               "the works proceed")
-HOLDS = Basis("project requirement", note="specification.yaml hold_points")
 
 declare("selected_mix", "", "mix chosen for a zone (specification.yaml), by zone")
 declare("selection_status", "", "status of a zone's selection: pass, attention (a failing check "
         "justified, or a held one), hold (nothing selected) or not_assessed")
 declare("sample_sets", "", "sets of prisms for a zone's works: {sets, by_area, working_days, "
         "prisms, ages_d, per_set}")
+declare("site_acceptance", "MPa", "site acceptance criteria of a zone's chosen mortar by test "
+        "age {characteristic_min, individual_min, source} and the long-term cap")
 declare("cost_per_m2", "currency/m²", "cost of a candidate mortar per m² of the zone's wall, from "
         "its unit price and the zone's mortar volume")
-declare("trial_panel", "", "trial panels of a zone's chosen mortar: {id: {judgement, judged_dry, "
-        "date}}")
-declare("hold_points", "", "hold points with their state, releasing role, revision released in, "
-        "evidence and state in each earlier revision")
 
 
 def spec_of(ctx):
@@ -131,7 +127,7 @@ def _unjustified(zone, i, sel, failed, spec, ctx) -> Problem:
     clean = [m for m in zone.candidates if m != sel.mix and not any(
         c.status == "fail" for c in applicable(ctx.results, ctx.project, zone.id, m))]
     other = (f"choose {' or '.join(clean)}, which fail{'s' if len(clean) == 1 else ''} no check"
-             if clean else "no other candidate of the zone fails no check")
+             if clean else "choose another candidate (each of the others fails a check too)")
     return Problem(SPEC_FILE, f"mix '{sel.mix}' chosen for zone {zone.id} fails {codes}, and no "
                    "justification is given.", line=spec.line("selections", i, "mix"),
                    field=f"selections[{i}].justification",
@@ -182,7 +178,7 @@ def _setting(spec, name: str, rules, kind: str):
     return value, f"rule specification.{name} ({r.basis.text()})"
 
 
-def test_ages(project, spec) -> list[tuple[float, str]]:
+def site_test_ages(project, spec) -> list[tuple[float, str]]:
     """(age in s, source) of the site tests: the project's list, else the required ages."""
     if spec and spec.doc.site_tests.test_ages:
         return [(a, f"{SPEC_FILE} site_tests.test_ages") for a in spec.doc.site_tests.test_ages]
@@ -203,7 +199,7 @@ def sampling_check(zone, ctx) -> CheckResult:
     s = _sampling_inputs(zone, spec, ctx.rules)
     n = st.sample_sets(s["n_min"][0], zone.area, s["a"][0], vol.value if by_day else None,
                        s["q"][0], s["T"][0])
-    ages = test_ages(ctx.project, spec)
+    ages = site_test_ages(ctx.project, spec)
     total = st.prisms(n.sets, s["p"][0], len(ages))
     inputs = [Input("n_min", "fewest sets", s["n_min"][0], "", s["n_min"][1]),
               Input("a", "wall area per set", s["a"][0], "m²", s["a"][1]),
@@ -256,91 +252,45 @@ def _sampling_result(zone, n, total, s, ages, inputs, vol) -> CheckResult:
                    steps=(step,), quantities=(Quantity("sample_sets", q, "", "site prism sets"),))
 
 
-# ---------------------------------------------------------------- trial panels
-@register("SPEC-PANEL", "Trial panel of the chosen mortar", "zone", order=920)
-def panel_check(zone, ctx) -> CheckResult:
-    """Accepted panel judged dry → pass; rejected only → fail; pending, wet or none → attention."""
-    title, spec = "Trial panel of the chosen mortar", spec_of(ctx)
+# ---------------------------------------------------------------- site acceptance
+@register("SPEC-ACCEPT", "Site acceptance criteria for the chosen mortar", "zone", order=915)
+def acceptance_check(zone, ctx) -> CheckResult:
+    """Per test age: f_k ≥ f_req (STR-MIN's limit) and every set mean ≥ r · f_req; cap from STR-MAX."""
+    title, spec = "Site acceptance criteria for the chosen mortar", spec_of(ctx)
     chosen = ctx.quantity(zone.id, "selected_mix")
-    if spec is None or chosen is None:
-        return _result("SPEC-PANEL", title, zone.id, "not_assessed", None, "", PANELS,
-                       f"not assessed: no mortar selected for zone {zone.id}")
-    mix = chosen.value
-    panels = [(i, tp) for i, tp in enumerate(spec.doc.trial_panels)
-              if tp.mix == mix and tp.zone in (None, zone.id)]
-    inputs = tuple(Input(tp.id, f"panel of {tp.mix} at {tp.location}", _verdict(tp), "",
-                         f"{SPEC_FILE} trial_panels[{i}]") for i, tp in panels)
-    good = [tp for _, tp in panels if tp.judgement == "accepted" and tp.judged_dry]
-    if good:
-        status, msg = "pass", f"{_and([tp.id for tp in good])} of {mix} accepted, judged dry"
-    elif panels and all(tp.judgement == "rejected" for _, tp in panels):
-        status, msg = "fail", f"every trial panel of {mix} was rejected: choose again or build " \
-                              "a new panel"
-    elif panels:
-        status, msg = "attention", f"no panel of {mix} accepted when dry yet (" + "; ".join(
-            f"{tp.id} {_verdict(tp)}" for _, tp in panels) + ")"
-    else:
-        status, msg = "attention", f"no trial panel of {mix} is recorded for zone {zone.id}"
-    step = Step(f"Trial panels of {mix}", r"\mathrm{accepted} \wedge \mathrm{judged\ dry}",
-                inputs, f"{len(good)}\\ \\mathrm{{of}}\\ {len(panels)}", len(good), "", "n")
-    q = {tp.id: {"judgement": tp.judgement, "judged_dry": tp.judged_dry,
-                 "date": tp.date.isoformat()} for _, tp in panels}
-    return _result("SPEC-PANEL", title, zone.id, status, len(good), "", PANELS, msg,
-                   steps=(step,), quantities=(Quantity("trial_panel", q, "", "trial panels"),))
-
-
-def _verdict(tp) -> str:
-    if tp.judgement == "pending":
-        return "pending"
-    return f"{tp.judgement}{', judged dry' if tp.judged_dry else ', judged before it was dry'}"
-
-
-# ---------------------------------------------------------------- hold points
-@register("SPEC-HOLD", "Hold points", "project", order=930)
-def hold_check(project, ctx) -> CheckResult:
-    """State of every hold point, carried from earlier revisions; a re-opened one is flagged."""
-    title, spec, code = "Hold points", spec_of(ctx), project.dossier.project.code
-    if spec is None:
-        return _result("SPEC-HOLD", title, code, "not_assessed", None, "", HOLDS,
-                       f"not assessed: no {SPEC_FILE}", kind="project")
-    rev = project.revision.code
-    table, notes = {}, []
-    for h in spec.doc.hold_points:
-        history = {e.revision: e.hold_points[h.id][0] for e in spec.earlier if h.id in e.hold_points}
-        history[rev] = h.state
-        notes += _carry_notes(h, spec.earlier, rev)
-        table[h.id] = {"state": h.state, "stage": h.stage, "released_by": h.released_by,
-                       "released_in": h.released_in, "evidence": h.evidence, "check": h.check,
-                       "history": history}
-    listed = {h.id for h in spec.doc.hold_points}
-    notes += [f"{hid} of {e.revision} is no longer listed: say why it was withdrawn"
-              for e in spec.earlier[-1:] for hid in e.hold_points if hid not in listed]
-    released = [h for h in spec.doc.hold_points if h.state == "released"]
-    opened = [h.id for h in spec.doc.hold_points if h.state == "open"]
-    inputs = tuple(Input(h.id, h.what, " → ".join(f"{r} {s}" for r, s in table[h.id]["history"]
-                                                  .items()), "", f"{SPEC_FILE} hold_points[{i}]")
-                   for i, h in enumerate(spec.doc.hold_points))
-    step = Step("Hold points and their state in each revision", r"\mathrm{open} \to "
-                r"\mathrm{released\ (once,\ on\ evidence)}", inputs,
-                rf"\mathrm{{released}}: {len(released)},\ \mathrm{{open}}: {len(opened)}",
-                len(opened), "", "n_open")
-    msg = (f"{len(table)} hold point(s): {len(released)} released"
-           + (f" ({', '.join(f'{h.id} in {h.released_in}' for h in released)})" if released else "")
-           + f", {len(opened)} open" + (f" ({', '.join(opened)})" if opened else ""))
-    return _result("SPEC-HOLD", title, code, "attention" if notes else "info", len(opened), "",
-                   HOLDS, msg, kind="project", steps=(step,), notes=tuple(notes),
-                   quantities=(Quantity("hold_points", table, "", "hold points"),))
-
-
-def _carry_notes(h, earlier, rev: str) -> list[str]:
-    """A hold point released in an earlier revision stays released, in that revision."""
-    out = []
-    for e in earlier:
-        state, released_in = e.hold_points.get(h.id, (None, None))
-        if state == "released" and h.state == "open":
-            out.append(f"{h.id} was released in {released_in} ({e.revision}) and is open again "
-                       f"in {rev}: record why in its evidence")
-        elif state == "released" and released_in != h.released_in:
-            out.append(f"{h.id} was released in {released_in} according to {e.revision}, but in "
-                       f"{h.released_in} according to {rev}")
-    return out
+    verdicts = ctx.quantity(chosen.value, "acceptance") if chosen else None
+    if chosen is None or verdicts is None:
+        why = "no mortar selected" if chosen is None else "no strength requirement was judged"
+        return _result("SPEC-ACCEPT", title, zone.id, "not_assessed", None, "", SAMPLING,
+                       f"not assessed: {why} for zone {zone.id}")
+    mix, (r, r_src) = chosen.value, _setting(spec, "individual_minimum", ctx.rules, "fraction")
+    table, inputs, subs = {}, [Input("r", "individual minimum / required", round(100 * r, 4), "%",
+                                     r_src)], []
+    for age, _src in site_test_ages(ctx.project, spec):
+        key = f"min {age / 86400:g} d"
+        if key not in verdicts.value:
+            continue
+        req = verdicts.value[key]["limit"]
+        table[f"{age / 86400:g} d"] = {"characteristic_min": req,
+                                       "individual_min": round(r * req, 4),
+                                       "source": f"STR-MIN/{mix}"}
+        inputs.append(Input(f"f_req,{age / 86400:g}", f"required minimum at {age / 86400:g} d",
+                            req, "MPa", f"STR-MIN/{mix} (dossier.yaml requirements)"))
+        subs.append(rf"{age / 86400:g}\,\mathrm{{d}}: {r:g} \times {req:g} = {r * req:.3g}")
+    cap = next(((k, v) for k, v in verdicts.value.items() if k.startswith("max ")), None)
+    if cap:
+        table["cap"] = {"age_d": float(cap[0].split()[1]), "max": cap[1]["limit"],
+                        "source": f"STR-MAX/{mix}"}
+        inputs.append(Input("f_max", f"cap at {cap[0].split()[1]} d", cap[1]["limit"], "MPa",
+                            f"STR-MAX/{mix} (dossier.yaml requirements)"))
+    step = Step(f"Site acceptance of {mix} in zone {zone.id}",
+                r"f_k \ge f_{req},\quad \bar f_{set} \ge r\,f_{req}", tuple(inputs),
+                r",\ ".join(subs) or "-", len(subs), "", "ages")
+    msg = "; ".join(f"{k}: f_k ≥ {v['characteristic_min']:g} MPa, each set ≥ "
+                    f"{v['individual_min']:.3g} MPa" for k, v in table.items() if k != "cap")
+    if cap:
+        msg += f"; at {table['cap']['age_d']:g} d at most {table['cap']['max']:g} MPa"
+    return _result("SPEC-ACCEPT", title, zone.id, "info", len(subs), "", SAMPLING,
+                   msg or "no strength requirement at the site test ages",
+                   steps=(step,), quantities=(Quantity("site_acceptance", table, "MPa",
+                                                       "site acceptance criteria"),))

@@ -163,7 +163,7 @@ def specification_refs(project, located, log: ProblemLog, mixes) -> None:
     for i, s in enumerate(spec.selections):
         _ref(log, {SPEC: located}, SPEC, ("selections", i, "zone"), s.zone, zones, "zone")
         _ref(log, {SPEC: located}, SPEC, ("selections", i, "mix"), s.mix, mixes, "mix")
-    _selection_refs(spec.selections, zones, located, log)
+    _selection_refs(spec.selections, zones, located, log, mixes)
     _hold_point_refs(project, spec.hold_points, located, log)
     _panel_refs(project, spec.trial_panels, located, log, mixes, zones)
     for i, u in enumerate(spec.unit_prices):
@@ -174,7 +174,7 @@ def _line(located, *path) -> int | None:
     return located.line_of(path) if located else None
 
 
-def _selection_refs(selections, zones: dict, located, log: ProblemLog) -> None:
+def _selection_refs(selections, zones: dict, located, log: ProblemLog, mixes) -> None:
     """One selection per zone, and the chosen mix is one of the zone's candidates."""
     first: dict[str, int] = {}
     for i, s in enumerate(selections):
@@ -184,7 +184,7 @@ def _selection_refs(selections, zones: dict, located, log: ProblemLog) -> None:
                     fix="keep one selection per zone.")
         first.setdefault(s.zone, i)
         zone = zones.get(s.zone)
-        if zone is not None and zone.candidates and s.mix not in zone.candidates:
+        if zone is not None and s.mix in mixes and s.mix not in zone.candidates:
             log.add(SPEC, f"mix '{s.mix}' is not a candidate of zone {s.zone} (candidates: "
                     f"{', '.join(zone.candidates)}).", line=_line(located, "selections", i, "mix"),
                     field=f"selections[{i}].mix", fix=f"choose one of the candidates, or add "
@@ -240,7 +240,7 @@ def _release_refs(h, i: int, revisions: list[str], located, log: ProblemLog) -> 
         missing = " and ".join(k for k, v in (("released_in", h.released_in),
                                                ("evidence", h.evidence)) if not v)
         log.add(SPEC, f"hold point '{h.id}' is released but gives no {missing}.",
-                line=_line(located, "hold_points", i), field=f"{where}.state",
+                line=_line(located, "hold_points", i, "state"), field=f"{where}.state",
                 fix="say in which revision it was released and on what evidence, or set "
                     "'state: open'.")
     if h.state == "open" and h.released_in:

@@ -25,6 +25,9 @@ class PageSet:
     nav: list[NavItem] = field(default_factory=list)
     titles: dict[str, str] = field(default_factory=dict)
     downloads: list[str] = field(default_factory=list)  # assets also attached to the PDF
+    # files written into the revision folder after the site, outside the site engine (a
+    # Markdown export fed to MkDocs would become a page): path → bytes
+    exports: dict[str, bytes] = field(default_factory=dict)
 
     def add_page(self, path: str, title: str, text: str) -> None:
         if path in self.pages:
@@ -46,6 +49,13 @@ class PageSet:
         self.add_asset(path, data)
         if path not in self.downloads:
             self.downloads.append(path)
+        return path
+
+    def add_export(self, path: str, data: bytes) -> str:
+        """A plain export (Markdown, HTML fragment) written beside the PDF and attached to it."""
+        if path in self.exports or path in self.assets:
+            raise ValueError(f"export '{path}' is produced twice")
+        self.exports[path] = data
         return path
 
     def write_to(self, folder) -> None:

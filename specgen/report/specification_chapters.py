@@ -1,0 +1,218 @@
+"""The specification chapter: options appraisal, the choice per zone, the clauses, the site
+test regime, hold points and trial panels; and the plain exports of each zone's clauses.
+
+Statuses, values and clause numbers are read from the check results (SPEC-* and the checks
+on each candidate); nothing is recomputed here.
+"""
+from __future__ import annotations
+
+from markupsafe import Markup, escape
+
+from specgen.checks.result import STATUS_WORDS
+from specgen.checks.specification_checks import applicable
+from specgen.report.chapters import badge, chapter
+from specgen.report.fmt import anchor, as_given, num, qty
+from specgen.report.specification_clauses import clause_context, find, quantity
+
+STATE_CLASS = {"open": "hold", "released": "pass"}
+
+
+def _href(key: str) -> str:
+    code, _, subject = key.partition("/")
+    return f"calculations.md#calc-{anchor(code, subject)}"
+
+
+def _cell(c) -> dict:
+    if c is None:
+        return {"badge": Markup("—"), "value": "", "href": ""}
+    value = "" if c.status == "not_assessed" or c.value is None else qty(c.value, c.unit, 3)
+    return {"badge": Markup(badge(c.status)), "value": value, "href": _href(c.key)}
+
+
+def state_badge(state: str) -> Markup:
+    return Markup(f'<span class="sg-badge sg-{STATE_CLASS[state]}">{escape(state)}</span>')
+
+
+@chapter("specification.md", "Specification", 70, "specification.md.j2")
+def specification(env) -> dict:
+    p, r = env.project, env.results
+    spec = p.specification
+    zones = [_zone(env, z) for z in p.dossier.zones]
+    exports = _exports(env, zones) if spec else []
+    return {"has_spec": spec is not None, "zones": zones, "exports": exports,
+            "regime": _regime(r, p), "hold_points": _hold_points(p, r),
+            "panels": _panels(env), "currency": spec.doc.currency if spec else ""}
+
+
+def _zone(env, zone) -> dict:
+    p, r = env.project, env.results
+    sel = find(r, "SPEC-SELECT", zone.id)
+    chosen = quantity(r, zone.id, "selected_mix")
+    s = p.specification.selection_for(zone.id)[1] if chosen and p.specification else None
+    clauses = _clauses(env, zone, p.mixes[chosen]) if chosen else None
+    return {"id": zone.id, "name": zone.name, "works": zone.works, "matrix": _matrix(env, zone),
+            "selected": chosen, "mix_name": p.mixes[chosen].name if chosen else "",
+            "badge": Markup(badge(sel.status)) if sel else "", "status": sel.status if sel else "",
+            "message": sel.message if sel else "", "href": _href(sel.key) if sel else "",
+            "rationale": s.rationale if s else "", "justification": s.justification if s else "",
+            "notes": list(sel.notes) if sel else [], "clauses": clauses,
+            "failed": _failed(r, p, zone.id, chosen) if chosen else []}
+
+
+def _failed(results, project, zone_id: str, mix_id: str) -> list[dict]:
+    return [{"key": c.key, "title": c.title, "href": _href(c.key), "message": c.message}
+            for c in applicable(results.checks, project, zone_id, mix_id) if c.status == "fail"]
+
+
+def _matrix(env, zone) -> dict:
+    """Candidates × every check that applies to any of them, in run order, with cost per m²."""
+    r, cands = env.results, list(zone.candidates)
+    per = {m: {c.code: c for c in applicable(r.checks, env.project, zone.id, m)} for m in cands}
+    codes = []
+    for c in r.checks:
+        if c.code not in codes and any(c.code in per[m] for m in cands):
+            codes.append(c.code)
+    rows = [{"code": code, "title": next(per[m][code].title for m in cands if code in per[m]),
+             "cells": [_cell(per[m].get(code)) for m in cands]} for code in codes]
+    cost = [_cell(find(r, "SPEC-COST", f"{zone.id}/{m}")) for m in cands]
+    return {"candidates": cands, "rows": rows,
+            "cost": cost if any(c["value"] for c in cost) else None}
+
+
+def _ref_link(key: str) -> Markup:
+    return Markup(f"([{escape(key)}]({_href(key)}))") if key else Markup("")
+
+
+def _ref_plain(key: str) -> Markup:
+    return Markup(f"[{escape(key)}]") if key else Markup("")
+
+
+def _clauses(env, zone, mix) -> Markup:
+    from specgen.report.render import template_env
+    c = clause_context(env.project, env.results, zone, mix)
+    text = template_env(env.project.root).get_template("specification_clauses.md.j2").render(
+        c=c, h="###", ref=_ref_link)
+    return Markup(text)
+
+
+def _exports(env, zones) -> list[dict]:
+    """Per zone with a choice: the clauses as Markdown and as a clean HTML fragment."""
+    from specgen.report.render import template_env
+    from specgen.report.specification_export import html_fragment
+    p = env.project
+    jenv = template_env(p.root)
+    out = []
+    for z in (z for z in p.dossier.zones if quantity(env.results, z.id, "selected_mix")):
+        mix = p.mixes[quantity(env.results, z.id, "selected_mix")]
+        c = clause_context(p, env.results, z, mix)
+        md = jenv.get_template("specification_export.md.j2").render(
+            c=c, h="##", ref=_ref_plain, project=p.dossier.project, revision=p.revision,
+            cautions=_card_cautions(p, mix))
+        stem = f"exports/{p.dossier.project.code}-{p.revision.code}-{z.id}-specification"
+        md = md.replace("&#39;", "'").replace("&#34;", '"')  # quotes are plain text here
+        env.pageset.add_export(f"{stem}.md", md.encode("utf-8"))
+        env.pageset.add_export(f"{stem}.html", html_fragment(md).encode("utf-8"))
+        out.append({"zone": z.id, "md": f"{stem}.md", "html": f"{stem}.html"})
+    return out
+
+
+def _card_cautions(project, mix) -> dict:
+    from specgen.report.cautions import card_cautions, cautions_for
+    chosen, _ = card_cautions(project, mix)
+    everything, closing = cautions_for(project)
+    # the card wording where the library has one; the dossier's closing notice, which defers to
+    # local codes, the heritage authority and licensed practice, always
+    return {"items": chosen or [{"title": c["title"], "text": c["text"]} for c in everything],
+            "closing": closing}
+
+
+def _regime(results, project) -> dict:
+    """Sets of prisms per zone, the settings they rest on (with sources) and the acceptance."""
+    rows, settings = [], []
+    for z in project.dossier.zones:
+        res = find(results, "SPEC-SAMPLING", z.id)
+        q = quantity(results, z.id, "sample_sets")
+        if res is None:
+            continue
+        if not settings and res.steps:
+            settings = [{"name": i.name, "value": as_given(i.value), "unit": i.unit, "source": i.source}
+                        for i in res.steps[0].inputs if i.symbol in ("n_min", "a", "p", "k")]
+        acc = find(results, "SPEC-ACCEPT", z.id)
+        rows.append({"zone": z.id, "badge": Markup(badge(res.status)), "href": _href(res.key),
+                     "area": qty(z.area, "m²", 3) if z.area else "—",
+                     "by_area": as_given(q["by_area"]) if q and q["by_area"] else "—",
+                     "days": as_given(q["working_days"]) if q and q["working_days"] else "—",
+                     "sets": as_given(q["sets"]) if q else "—",
+                     "prisms": as_given(q["prisms"]) if q else "—",
+                     "message": res.message, "acceptance": acc.message if acc else "",
+                     "acc_href": _href(acc.key) if acc else ""})
+    return {"rows": rows, "settings": settings}
+
+
+def _hold_points(project, results) -> list[dict]:
+    """Hold points with who releases them, the state in each revision and the evidence."""
+    table = quantity(results, project.dossier.project.code, "hold_points") or {}
+    names = {p.role: p.name + (f", {p.organisation}" if p.organisation else "")
+             for p in project.dossier.parties}
+    out = []
+    for hid, h in table.items():
+        spec = next(x for x in project.specification.doc.hold_points if x.id == hid)
+        chk = _check_of(results, h["check"]) if h["check"] else None
+        out.append({"id": hid, "what": spec.what, "stage": h["stage"], "role": h["released_by"],
+                    "party": names.get(h["released_by"], ""), "state": state_badge(h["state"]),
+                    "released_in": h["released_in"] or "", "evidence": h["evidence"],
+                    "history": " → ".join(f"{rev}: {s}" for rev, s in h["history"].items()),
+                    "check": h["check"] or "", "check_badge": Markup(badge(chk.status))
+                    if chk else "", "check_href": _href(chk.key) if chk else ""})
+    return out
+
+
+def _check_of(results, ref: str):
+    code, _, subject = ref.partition("/")
+    return next((c for c in results.checks if c.code == code and (not subject or
+                 c.subject == subject)), None)
+
+
+def _panels(env) -> list[dict]:
+    p, r = env.project, env.results
+    if p.specification is None:
+        return []
+    out = []
+    for tp in p.specification.doc.trial_panels:
+        colour = find(r, "COMP-COLOUR", f"{tp.zone}/{tp.mix}") if tp.zone else None
+        fig = _photo(env, tp)
+        out.append({"id": tp.id, "mix": tp.mix, "zone": tp.zone or "—", "date": tp.date.isoformat(),
+                    "location": tp.location, "reviewer": tp.reviewer,
+                    "judgement": tp.judgement + (", dry" if tp.judged_dry else
+                                                 ", not yet dry" if tp.judgement != "pending"
+                                                 else ""),
+                    "judged_on": tp.judged_on.isoformat() if tp.judged_on else "—",
+                    "delta_e": num(colour.value, 3) if colour and colour.status != "not_assessed"
+                    else "—", "colour_href": _href(colour.key) if colour else "",
+                    "sample": tp.colour_sample or "—", "remarks": tp.remarks or "—", "photo": fig})
+    return out
+
+
+def _photo(env, tp) -> dict | None:
+    """The panel's photo as a page asset (the path was checked to lie inside the project)."""
+    if not tp.photo:
+        return None
+    suffix = tp.photo.rsplit(".", 1)[-1].lower()
+    data = (env.project.root / tp.photo).read_bytes()
+    path = env.pageset.add_asset(f"panels/{anchor(tp.id)}.{suffix}", data)
+    return {"src": path, "caption": f"Trial panel {tp.id} ({tp.mix}), {tp.location}"}
+
+
+def specification_summary(env) -> dict:
+    """For the summary page: the mortar chosen per zone and the open hold points."""
+    r, p = env.results, env.project
+    rows = []
+    for z in p.dossier.zones:
+        sel = find(r, "SPEC-SELECT", z.id)
+        if sel is not None and sel.status != "not_assessed":
+            rows.append({"zone": z.id, "mix": sel.value or "—", "badge": Markup(badge(sel.status)),
+                         "status": STATUS_WORDS[sel.status], "href": "specification.md"})
+    holds = quantity(r, p.dossier.project.code, "hold_points") or {}
+    return {"spec_selections": rows,
+            "spec_open_holds": [{"id": k, "stage": v["stage"], "role": v["released_by"]}
+                                for k, v in holds.items() if v["state"] == "open"]}

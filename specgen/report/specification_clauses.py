@@ -1,0 +1,142 @@
+"""The clauses of one zone's specification, as data for ``specification_clauses.md.j2``.
+
+Every number a clause states is read from a check result or a quantity that a check
+recorded (``source`` names it), or from the project file where it was typed — never
+computed or typed here.  The same context renders the chapter's clauses and the plain
+exports (Markdown and an HTML fragment) written beside the PDF.
+"""
+from __future__ import annotations
+
+from specgen.report.fmt import as_given, num
+
+BINDER_WORDS = {"natural_cement": "natural cement", "nhl": "natural hydraulic lime",
+                "fl": "formulated lime", "hl": "hydraulic lime", "air_lime": "air lime",
+                "portland": "portland cement", "pozzolan": "pozzolan"}
+
+
+def find(results, code: str, subject: str):
+    return next((c for c in results.checks if c.code == code and c.subject == subject), None)
+
+
+def quantity(results, subject: str, name: str):
+    q = results.quantities.get(subject, {}).get(name)
+    return q.value if q is not None else None
+
+
+def clause_context(project, results, zone, mix) -> dict:
+    """Everything the clause template shows for ``mix`` chosen in ``zone``."""
+    return {"zone": zone, "mix": mix, "materials": _materials(project, results, zone, mix),
+            "proportions": _proportions(results, zone, mix), "joints": _joints(project, zone),
+            "weather": _weather(project, results), "acceptance": _acceptance(results, zone, mix),
+            "sampling": _sampling(quantity(results, zone.id, "sample_sets")),
+            "non_conformance": _non_conformance(project),
+            "colour": _colour(project, results, zone, mix)}
+
+
+def _materials(project, results, zone, mix) -> dict:
+    binders = []
+    for part in mix.binders:
+        b = project.binders[part.binder]
+        ci = find(results, "CHEM-CI", b.analysis) if b.analysis else None
+        binders.append({"id": b.id, "name": b.name, "type": BINDER_WORDS[b.type],
+                        "declared": b.declared_class, "analysis": b.analysis,
+                        "band": ci.limit.text if ci and ci.limit else "",
+                        "ci": num(ci.value, 3) if ci and ci.status != "not_assessed" else "",
+                        "source": ci.key if ci else ""})
+    sands = [{"id": s.sand, "name": project.sands[s.sand].name} for s in mix.sands]
+    grad = find(results, "COMP-GRAD", f"{zone.id}/{mix.id}")
+    grading = None
+    if grad is not None and grad.limit is not None:
+        envelope = next((n.removeprefix("envelope: ") for n in grad.notes
+                         if n.startswith("envelope: ")), "")
+        grading = {"limit": grad.limit.text, "envelope": envelope, "source": grad.key,
+                   "historic": zone.historic_mortar}
+    admixtures = [{"name": a.name, "dose": as_given(round(100 * a.dose, 4)), "purpose": a.purpose}
+                  for a in mix.admixtures]
+    return {"binders": binders, "sands": sands, "grading": grading, "admixtures": admixtures}
+
+
+def _proportions(results, zone, mix) -> dict:
+    volume = " : ".join(as_given(p.parts) for p in mix.binders + mix.sands)
+    by_mass = quantity(results, mix.id, "mass_proportions")
+    names = [p.binder for p in mix.binders] + [p.sand for p in mix.sands]
+    gauging = quantity(results, mix.id, "gauging")
+    life = quantity(results, mix.id, "workable_life")
+    vmax = (quantity(results, mix.id, "max_gauging_volume") or {}).get(zone.id)
+    gauge = find(results, "SITE-GAUGE", mix.id)
+    return {"names": " : ".join(names), "volume": volume,
+            "mass": " : ".join(num(by_mass[n], 3) for n in names) if by_mass else "",
+            "wb": as_given(mix.water_binder_ratio) if mix.water_binder_ratio else "",
+            "consistence": as_given(round(mix.consistence * 1000, 6)) if mix.consistence else "",
+            "gauging": _gauging(gauging), "vmax": as_given(vmax) if vmax is not None else "",
+            "life": as_given(life["value"]) if life else "",
+            "life_measured": bool(life and life["measured"]),
+            "gauge_message": gauge.message if gauge is not None and not gauging else "",
+            "sources": {"mass": f"MIX-YIELD/{mix.id}", "gauging": f"SITE-GAUGE/{mix.id}"}}
+
+
+def _gauging(g: dict | None) -> dict | None:
+    """The batching card's gauging as written on the card (no padding zeros)."""
+    if not g:
+        return None
+    return {"binder_measures": g["binder_measures"], "measure_L": as_given(g["measure_L"]),
+            "water_L": as_given(g["water_L"]), "volume_L": as_given(g["volume_L"])}
+
+
+def _joints(project, zone) -> dict:
+    """Joint preparation and application numbers as written in dossier.yaml (or the rule)."""
+    ratio = project_rule(project, "works.joint_depth_ratio")
+    width = as_given(round(zone.joint_width * 1000, 6)) if zone.joint_width else ""
+    depth = as_given(round(zone.joint_depth * 1000, 6)) if zone.joint_depth else ""
+    return {"width": width, "depth": depth, "ratio": as_given(ratio),
+            "coats": [as_given(round(t * 1000, 6)) for t in zone.coats]}
+
+
+def project_rule(project, key: str) -> float:
+    from specgen.checks.rules import RuleBook
+    return RuleBook(project.dossier.rule_overrides)[key].value
+
+
+def _weather(project, results) -> dict | None:
+    w = quantity(results, project.dossier.project.code, "weather_window")
+    if w is None:
+        return None
+    return {k: as_given(v) for k, v in w.items()} | {"source": f"SITE-WEATHER/"
+                                                   f"{project.dossier.project.code}"}
+
+
+def _acceptance(results, zone, mix) -> dict | None:
+    table = quantity(results, zone.id, "site_acceptance")
+    if table is None:
+        return None
+    ages = [{"age": k, "fk": as_given(v["characteristic_min"]), "each": as_given(v["individual_min"]),
+             "source": v["source"]} for k, v in table.items() if k != "cap"]
+    cap = table.get("cap")
+    load = quantity(results, mix.id, "load_strength_day")
+    return {"ages": ages, "source": f"SPEC-ACCEPT/{zone.id}",
+            "cap": {"age": as_given(cap["age_d"]), "max": as_given(cap["max"]),
+                    "source": cap["source"]} if cap else None,
+            "load_day": as_given(load) if load is not None else "",
+            "load_source": f"STR-SITE/{mix.id}"}
+
+
+def _colour(project, results, zone, mix) -> dict | None:
+    c = find(results, "COMP-COLOUR", f"{zone.id}/{mix.id}")
+    spec = project.specification.doc if project.specification else None
+    panels = [tp.id for tp in (spec.trial_panels if spec else []) if tp.mix == mix.id
+              and tp.zone in (None, zone.id) and tp.judgement == "accepted" and tp.judged_dry]
+    if c is None and not panels:
+        return None
+    return {"limit": c.limit.text if c is not None and c.limit else "",
+            "source": c.key if c is not None else "", "panels": ", ".join(panels)}
+
+
+def _sampling(q: dict | None) -> dict | None:
+    if not q:
+        return None
+    return dict(q, ages=", ".join(f"{as_given(a)} d" for a in q["ages_d"]) or "none given")
+
+
+def _non_conformance(project) -> str:
+    spec = project.specification.doc if project.specification else None
+    return spec.site_tests.non_conformance if spec else ""

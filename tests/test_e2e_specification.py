@@ -1,0 +1,36 @@
+"""End-to-end: the specification page, its exports beside the PDF and the summary (demo R3)."""
+from __future__ import annotations
+
+import json
+
+import pytest
+
+pytestmark = pytest.mark.e2e
+
+REV = "R3"
+ZONES = ("Z1", "Z2", "Z3")
+
+
+def test_specification_page_and_exports_in_the_build(demo_build):
+    rev = demo_build / REV
+    page = (rev / "specification.html").read_text(encoding="utf-8")
+    for heading in ("Options appraisal", "Selection per zone", "Site test regime", "Hold points",
+                    "Trial panels", "Z1.7 Acceptance criteria"):
+        assert heading in page, heading
+    assert "Chosen although it fails checks" in page            # Z2, justified
+    manifest = json.loads((rev / "manifest.json").read_text())
+    for zone in ZONES:
+        for ext in ("md", "html"):
+            rel = f"exports/WEP-2026-{REV}-{zone}-specification.{ext}"
+            assert (rev / rel).is_file(), rel
+            assert rel in manifest["outputs"], rel
+            assert f'href="{rel}"' in page, rel
+    html = (rev / f"exports/WEP-2026-{REV}-Z1-specification.html").read_text(encoding="utf-8")
+    assert "<script" not in html and "<style" not in html
+    summary = (rev / "index.html").read_text(encoding="utf-8")
+    assert "Mortar chosen per zone" in summary and "Open hold points:" in summary
+    from pypdf import PdfReader
+    pdf = PdfReader(str(rev / f"WEP-2026-{REV}.pdf"))
+    text = "\n".join(p.extract_text() or "" for p in pdf.pages)
+    assert "Z1.7 Acceptance criteria" in text
+    assert f"exports/WEP-2026-{REV}-Z1-specification.md" in (pdf.attachments or {})

@@ -1,0 +1,312 @@
+"""The specification: selection per zone, clauses from the checks, site tests, hold points.
+
+Scenario tests on copies of the demo project.  Sampling values are worked by hand from the
+sampling rule (one set per area, per day's work, at least a minimum: common practice);
+strength limits are the project's requirements (dossier.yaml) as STR-MIN/STR-MAX judge them.
+"""
+from __future__ import annotations
+
+import math
+
+import pytest
+
+from specgen.build import check
+from specgen.errors import InputErrors
+from specgen.science import site_tests as st
+
+
+def edit(path, old: str, new: str) -> None:
+    text = path.read_text(encoding="utf-8")
+    assert old in text, f"test setup: {old!r} not in {path.name}"
+    path.write_text(text.replace(old, new, 1), encoding="utf-8")
+
+
+def by(results) -> dict:
+    return {(c.code, c.subject): c for c in results.checks}
+
+
+def run_check(cli, project) -> str:
+    result = cli("check", project)
+    assert result.exit_code == 2, result.output
+    assert "Traceback" not in result.output
+    return result.output
+
+
+def render_spec(project_dir):
+    """The specification page and its exports, rendered alone (no figures, no build)."""
+    from specgen.report.mathsvg import MathAssets
+    from specgen.report.pageset import PageSet
+    from specgen.report.render import RenderEnv, template_env
+    from specgen.report.specification_chapters import specification
+    project, results = check(project_dir)
+    pages = PageSet()
+    env = RenderEnv(project, results, pages, MathAssets(pages))
+    ctx = specification(env)
+    text = template_env(project.root).get_template("specification.md.j2").render(
+        title="Specification", narrative="", **ctx)
+    return text, pages, results
+
+
+# ------------------------------------------------------------------ selection
+def test_failing_choice_without_justification_is_an_input_error(cli, demo_copy):
+    spec = demo_copy / "specification.yaml"
+    text = spec.read_text(encoding="utf-8")
+    start = text.index("    justification: >-\n      M3 falls short")
+    end = text.index("\nsite_tests:")
+    spec.write_text(text[:start] + text[end:], encoding="utf-8")
+    out = run_check(cli, demo_copy)
+    assert ("specification.yaml, line 24: selections[2].justification: mix 'M3' chosen for zone "
+            "Z3 fails STR-MIN, and no justification is given. Fix: add 'justification:' saying "
+            "why the choice stands despite the failed check, or choose another candidate (each "
+            "of the others fails a check too).") in out
+
+
+def test_failing_choice_names_a_clean_candidate(cli, demo_copy):
+    # Z1 fails nothing with M2; choosing M3 (fails STR-MIN at 28 d) with no justification
+    edit(demo_copy / "specification.yaml", "  - zone: Z1\n    mix: M2", "  - zone: Z1\n    mix: M3")
+    out = run_check(cli, demo_copy)
+    assert ("specification.yaml, line 6: selections[0].justification: mix 'M3' chosen for zone Z1 "
+            "fails STR-MIN, and no justification is given. Fix: add 'justification:' saying why "
+            "the choice stands despite the failed check, or choose M1 or M2, which fail no "
+            "check.") in out   # M1 holds STR-MAX (a hold is not a failure)
+
+
+def test_justified_failure_is_attention_and_shown_prominently(demo_copy):
+    text, _, results = render_spec(demo_copy)
+    z2 = by(results)[("SPEC-SELECT", "Z2")]
+    assert z2.status == "attention" and z2.value == "M2"
+    assert z2.message.startswith("M2 selected although it fails COMP-MOIST and COMP-SALT — "
+                                 "justification: Both candidates fail for this zone.")
+    box = text[text.index('!!! warning "Chosen although it fails checks"'):]
+    assert "COMP-MOIST/Z2/M2</a> Repair at least as open as the units" in box.split("\n")[1]
+    assert "**Justification recorded by the specifier:** Both candidates fail" in box
+
+
+def test_clean_choice_passes_and_missing_choice_is_flagged(demo_copy):
+    text = (demo_copy / "specification.yaml").read_text(encoding="utf-8")
+    start, end = text.index("  - zone: Z3\n"), text.index("\nsite_tests:")
+    (demo_copy / "specification.yaml").write_text(text[:start] + text[end:], encoding="utf-8")
+    _, r = check(demo_copy)
+    z1, z3 = by(r)[("SPEC-SELECT", "Z1")], by(r)[("SPEC-SELECT", "Z3")]
+    assert z1.status == "pass" and z1.message == "M2 selected; it fails no check"
+    assert z3.status == "hold"
+    assert z3.message == ("no mortar selected for zone Z3: add a selection to specification.yaml "
+                          "(candidates: M2, M3)")
+    assert r.quantities["Z3"]["selection_status"].value == "hold"
+    assert "selected_mix" not in r.quantities["Z3"]
+
+
+def test_results_names_selection_and_hold_points(demo_copy):
+    _, r = check(demo_copy)
+    d = r.to_dict()["quantities"]
+    assert {z: d[z]["selected_mix"]["value"] for z in ("Z1", "Z2", "Z3")} == \
+        {"Z1": "M2", "Z2": "M2", "Z3": "M3"}
+    assert {z: d[z]["selection_status"]["value"] for z in ("Z1", "Z2", "Z3")} == \
+        {"Z1": "pass", "Z2": "attention", "Z3": "attention"}
+    holds = d["WEP-2026"]["hold_points"]["value"]
+    assert {k: v["state"] for k, v in holds.items()} == {
+        "HP1": "released", "HP2": "open", "HP3": "open", "HP4": "open", "HP5": "open"}
+    assert holds["HP1"]["released_in"] == "R3" and holds["HP1"]["released_by"] == "reviewer"
+
+
+def test_without_specification_file_nothing_is_selected(demo_copy):
+    (demo_copy / "specification.yaml").unlink()
+    _, r = check(demo_copy)
+    sel = by(r)[("SPEC-SELECT", "Z1")]
+    assert sel.status == "not_assessed"
+    assert sel.message == ("not assessed: no specification.yaml; add one with a selection for "
+                           "each zone")
+    assert by(r)[("SPEC-HOLD", "WEP-2026")].status == "not_assessed"
+
+
+# ------------------------------------------------------------------ clauses
+def test_clause_numbers_are_the_check_limits(demo_copy):
+    text, pages, r = render_spec(demo_copy)
+    c = by(r)
+    md = pages.exports["exports/WEP-2026-R3-Z1-specification.md"].decode()
+    acc = r.quantities["M2"]["acceptance"].value
+    # the project's requirements as STR-MIN/STR-MAX judged them: 2 MPa at 28 d, 3 MPa at 90 d,
+    # at most 9 MPa at 365 d (dossier.yaml requirements)
+    assert acc["min 28 d"]["limit"] == c[("STR-MIN", "M2")].limit.low == 2.0
+    assert f"is at least {acc['min 28 d']['limit']:g} MPa [STR-MIN/M2]" in md
+    assert f"is at least {acc['min 90 d']['limit']:g} MPa [STR-MIN/M2]" in md
+    assert (f"not stronger than {c[('STR-MAX', 'M2')].limit.high:g} MPa, so that it stays weaker "
+            "than the fabric [STR-MAX/M2]") in md
+    # individual minimum 80 % of the requirement (common practice rule): 1.6 and 2.4 MPa
+    assert "no set has a mean below 1.6 MPa [SPEC-ACCEPT/Z1]" in md
+    assert "no set has a mean below 2.4 MPa [SPEC-ACCEPT/Z1]" in md
+    w = r.quantities["WEP-2026"]["weather_window"].value
+    assert (f"at or below {w['low']:g} °C or when the temperature is falling towards it, nor "
+            f"above {w['high']:g} °C") in md
+    assert (f"for at least {w['curing_days']:g} days, and protected from frost, driving rain, "
+            f"strong sun and drying wind for at least {w['protection_days']:g} days") in md
+    assert f"within {c[('COMP-GRAD', 'Z1/M2')].limit.text} [COMP-GRAD/Z1/M2]" in md
+    assert "[CHEM-CI/NC1-A]" in md and "1.1–1.7" in md
+
+
+def test_clauses_follow_a_changed_requirement_and_rule(demo_copy):
+    edit(demo_copy / "dossier.yaml", '{age: "28 d", value: "2 MPa"}', '{age: "28 d", value: "2.5 MPa"}')
+    edit(demo_copy / "dossier.yaml", "compatibility:\n", "rule_overrides:\n"
+         "  - {rule: works.min_working_temperature, value: 7, justification: 'exposed harbour "
+         "wall, wind chill at the pier head'}\n"
+         "  - {rule: specification.individual_minimum, value: 75, justification: 'few sets "
+         "per zone in the short harbour season'}\n\ncompatibility:\n")
+    _, pages, r = render_spec(demo_copy)
+    md = pages.exports["exports/WEP-2026-R3-Z1-specification.md"].decode()
+    assert by(r)[("STR-MIN", "M2")].limit.low == 2.5
+    assert "is at least 2.5 MPa [STR-MIN/M2]" in md
+    assert "no set has a mean below 1.875 MPa [SPEC-ACCEPT/Z1]" in md   # 0.75 × 2.5
+    assert "at or below 7 °C" in md
+
+
+def test_project_template_overrides_the_clause_wording(demo_copy):
+    (demo_copy / "templates").mkdir()
+    (demo_copy / "templates" / "specification_clauses.md.j2").write_text(
+        "{{ h }} {{ c.zone.id }} Own clauses\n\nMortar {{ c.mix.id }}, cap "
+        "{{ c.acceptance.cap.max }} MPa {{ ref(c.acceptance.cap.source) }}.\n", encoding="utf-8")
+    text, pages, _ = render_spec(demo_copy)
+    md = pages.exports["exports/WEP-2026-R3-Z2-specification.md"].decode()
+    assert "## Z2 Own clauses\n\nMortar M2, cap 9 MPa [STR-MAX/M2]." in md
+    assert "### Z2 Own clauses" in text and "Joint preparation" not in text
+
+
+def test_exports_are_plain_and_escaped(demo_copy):
+    edit(demo_copy / "specification.yaml", "    Stop the works in the zone,",
+         "    <script>alert(1)</script> Stop the works in the zone,")
+    _, pages, _ = render_spec(demo_copy)
+    html = pages.exports["exports/WEP-2026-R3-Z1-specification.html"].decode()
+    md = pages.exports["exports/WEP-2026-R3-Z1-specification.md"].decode()
+    assert "<script" not in html and "&lt;script&gt;alert(1)&lt;/script&gt;" in html
+    assert "<script" not in md
+    assert html.startswith("<h1>Specification of zone Z1: Inner face, repointing of brick "
+                           "courses</h1>\n")
+    assert " class=" not in html and " href=" not in html and "<style" not in html
+    assert "<h2>Cautions</h2>" in html and "heritage" in html.lower()
+
+
+def test_clean_html_keeps_structure_only():
+    from specgen.report.specification_export import clean_html
+    dirty = ('<h2 id="x">Title</h2><p onclick="x()">a <a href="javascript:y">b</a> '
+             '<img src=x onerror=z>c</p><style>p{}</style><script>bad()</script><ol><li>d</li></ol>')
+    assert clean_html(dirty) == "<h2>Title</h2><p>a b c</p><ol><li>d</li></ol>"
+
+
+# ------------------------------------------------------------------ sampling
+@pytest.mark.parametrize("area, per_set, expected", [
+    (240.0, 50.0, 5),    # ⌈4.8⌉ (worked by hand)
+    (150.0, 50.0, 3),    # exactly three areas: no fourth set from rounding
+    (85.0, 50.0, 2),     # ⌈1.7⌉
+    (10.0, 50.0, 1),     # a small zone still gets one set
+])
+def test_sets_by_area(area, per_set, expected):
+    assert st.sets_by_area(area, per_set) == expected == math.ceil(round(area / per_set, 9))
+
+
+def test_sets_by_days_and_minimum():
+    # 0.852 m³ placed at 8 L/h for 6 h a day: 852 / 48 = 17.75 → 18 days (worked by hand)
+    assert st.working_days(0.852, 8e-3 / 3600, 6 * 3600) == 18
+    n = st.sample_sets(1, 240.0, 50.0, 0.852, 8e-3 / 3600, 6 * 3600)
+    assert (n.by_area, n.working_days, n.sets) == (5, 18, 18)
+    assert st.sample_sets(3, 40.0, 50.0).sets == 3          # the minimum governs
+    assert st.prisms(5, 3, 2) == 30
+
+
+def test_sampling_for_the_zone_area(demo_copy):
+    edit(demo_copy / "specification.yaml", "site_tests:\n",
+         "site_tests:\n  per_working_day: false\n  area_per_set: \"40 m^2\"\n")
+    _, r = check(demo_copy)
+    z1, z2 = r.quantities["Z1"]["sample_sets"].value, r.quantities["Z2"]["sample_sets"].value
+    # Z1 240 m² / 40 m² = 6 sets; Z2 85 m² / 40 m² = 2.125 → 3; 3 prisms × 2 ages (28, 90 d)
+    assert (z1["sets"], z1["prisms"], z1["working_days"]) == (6, 36, None)
+    assert (z2["sets"], z2["prisms"]) == (3, 18)
+    res = by(r)[("SPEC-SAMPLING", "Z1")]
+    assert res.message == "6 set(s) of 3 prisms per test age (6 by area): 36 prisms"
+    assert by(r)[("SPEC-SAMPLING", "Z3")].status == "not_assessed"   # no area, days not counted
+
+
+# ------------------------------------------------------------------ hold points
+def _archive_spec(project, rev: str, text: str) -> None:
+    (project / "issued" / rev / "specification.yaml").write_text(text, encoding="utf-8")
+
+
+EARLIER = """hold_points:
+  - {id: HP1, what: trial panels accepted, stage: before any work, released_by: reviewer}
+  - {id: HP2, what: site results, stage: beyond the first bay, released_by: specifier}
+  - {id: HP9, what: scaffold survey, stage: before access, released_by: client}
+"""
+
+
+def test_hold_point_states_carried_across_revisions(demo_copy):
+    _archive_spec(demo_copy, "R2", EARLIER)
+    text, _, r = render_spec(demo_copy)
+    holds = r.quantities["WEP-2026"]["hold_points"].value
+    assert holds["HP1"]["history"] == {"R2": "open", "R3": "released"}
+    assert holds["HP3"]["history"] == {"R3": "open"}
+    res = by(r)[("SPEC-HOLD", "WEP-2026")]
+    assert res.status == "attention"
+    assert res.notes == ("HP9 of R2 is no longer listed: say why it was withdrawn",)
+    assert "R2: open → R3: released" in text
+    assert ("- **HP1 released in R3** — evidence: Panel TP2 accepted at the site meeting of "
+            "2026-10-20 (heritage service note WDHS/EP/14).") in text
+
+
+def test_hold_point_released_earlier_cannot_silently_reopen(demo_copy):
+    _archive_spec(demo_copy, "R2", EARLIER.replace(
+        "released_by: specifier}", "released_by: specifier, state: released, released_in: R2, "
+        "evidence: results of sets 1-3}"))
+    _, r = check(demo_copy)
+    res = by(r)[("SPEC-HOLD", "WEP-2026")]
+    assert "HP2 was released in R2 (R2) and is open again in R3: record why in its evidence" \
+        in res.notes
+    assert r.quantities["WEP-2026"]["hold_points"].value["HP2"]["history"] == \
+        {"R2": "released", "R3": "open"}
+
+
+# ------------------------------------------------------------------ bad input
+@pytest.mark.parametrize("old, new, message", [
+    ("  - zone: Z3\n    mix: M3", "  - zone: Z3\n    mix: M9",
+     "specification.yaml, line 24: selections[2].mix: names mix 'M9', which is not defined. "
+     "Fix: define it, or use one of: M1, M2, M3."),
+    ("  - zone: Z3\n    mix: M3", "  - zone: Z8\n    mix: M3",
+     "specification.yaml, line 23: selections[2].zone: names zone 'Z8', which is not defined. "
+     "Fix: define it, or use one of: Z1, Z2, Z3."),
+    ("  - zone: Z3\n    mix: M3", "  - zone: Z1\n    mix: M3",
+     "specification.yaml, line 23: selections[2].zone: zone Z1 is selected twice (also "
+     "selections[0]). Fix: keep one selection per zone."),
+    ("  - zone: Z2\n    mix: M2", "  - zone: Z2\n    mix: M3",
+     "specification.yaml, line 12: selections[1].mix: mix 'M3' is not a candidate of zone Z2 "
+     "(candidates: M1, M2). Fix: choose one of the candidates, or add M3 to the zone's "
+     "candidates in dossier.yaml so that it is appraised."),
+    ("    stage: before pointing each lift of Z1\n    released_by: specifier\n",
+     "    stage: before pointing each lift of Z1\n",
+     "specification.yaml, line 60: hold_points[3].released_by: hold point 'HP4' names no "
+     "releasing role. Fix: add 'released_by:' with the role of the party who releases it "
+     "(dossier.yaml parties): client, laboratory, reviewer, specifier."),
+    ("    released_by: laboratory", "    released_by: labratory",
+     "specification.yaml, line 67: hold_points[4].released_by: hold point 'HP5' names the role "
+     "'labratory', which is not a party role in dossier.yaml. Fix: did you mean 'laboratory'?"),
+    ("    released_in: R3\n", "",
+     "specification.yaml, line 45: hold_points[0].state: hold point 'HP1' is released but gives "
+     "no released_in. Fix: say in which revision it was released and on what evidence, or set "
+     "'state: open'."),
+    ("    released_in: R3\n", "    released_in: R7\n",
+     "specification.yaml, line 46: hold_points[0].released_in: hold point 'HP1' was released in "
+     "'R7', which is neither this revision nor an issued one. Fix: use one of: R3, R1, R2."),
+    ("    colour_sample: M3\n", "    colour_sample: M33\n",
+     "specification.yaml, line 101: trial_panels[2].colour_sample: trial panel 'TP3' names colour "
+     "sample 'M33', which is not in lab/colour.csv. Fix: did you mean 'M3'?"),
+    ("    judgement: pending\n\ncurrency", "    judgement: pending\n    photo: ../TP4.jpg\n\n"
+     "currency", "specification.yaml: trial_panels[3].photo: the path '../TP4.jpg' leaves the "
+     "project folder. Fix: give a path relative to the project folder, without '..'."),
+])
+def test_bad_specification_messages(cli, demo_copy, old, new, message):
+    edit(demo_copy / "specification.yaml", old, new)
+    out = run_check(cli, demo_copy)
+    assert message in out
+
+
+def test_bad_input_stops_before_any_check(demo_copy):
+    edit(demo_copy / "specification.yaml", "  - zone: Z3\n    mix: M3", "  - zone: Z3\n    mix: M9")
+    with pytest.raises(InputErrors) as exc:
+        check(demo_copy)
+    assert len(exc.value.problems) == 1
