@@ -18,6 +18,9 @@ def svg_of(latex: str) -> str:
 
     def draw() -> bytes:
         import ziamath
+        # glyphs as plain paths, not <symbol>/<use>: WeasyPrint draws such SVG about twice
+        # as fast (measured on a formula repeated 60 times: 6.5 s against 14.4 s)
+        ziamath.config.svg2 = False
         return re.sub(r"\s+$", "", ziamath.Latex(latex, size=18).svg()).encode("utf-8")
     return cached("math", latex, draw).decode("utf-8")
 
