@@ -169,3 +169,55 @@ def test_card_cautions_come_from_the_library(demo):
     assert "safety data sheet" in closing and "competent person" in closing
     nhl, _ = card_cautions(p, p.mixes["M3"])
     assert "quick_set" not in [c["id"] for c in nhl]   # NHL: no natural cement in M3
+
+
+def _render_works(project, results):
+    """The works page and the card pages, rendered from their chapter functions alone."""
+    from specgen.report import works_chapters as wch
+    from specgen.report.mathsvg import MathAssets
+    from specgen.report.pageset import PageSet
+    from specgen.report.render import RenderEnv, template_env
+    pages = PageSet()
+    env = RenderEnv(project, results, pages, MathAssets(pages))
+    jenv = template_env(None)
+    base = {"project": project.dossier.project, "revision": project.revision, "narrative": ""}
+    text = jenv.get_template("works.md.j2").render(**base, **wch.works(env), title="Works")
+    cards = [jenv.get_template("card.md.j2").render(**base, **{k: v for k, v in c.items()
+                                                               if k != "path"})
+             for c in wch.cards(env)]
+    return text, cards, pages
+
+
+def test_works_page_and_cards_from_the_demo(demo):
+    text, cards, pages = _render_works(*demo)
+    assert "[WEP-2026-R3-quantities.csv](WEP-2026-R3-quantities.csv)" in text
+    assert "| NC1: bags of 25 kg | bags | 18 | 13 | — |" in text
+    assert "(calculations.md#calc-works-qty-z1)" in text
+    assert pages.downloads == ["WEP-2026-R3-quantities.csv"]
+    assert len(cards) == 3
+    m1 = cards[0]
+    # Water per gauging: 0.4675 kg (SITE-GAUGE) shown as 0.47 L; retarder 0.2 % of 0.85 kg
+    # binder = 1.7 g (by hand).
+    assert "| 1 | Pour the gauging water into a marked jug | jug | 0.47 L | 0.468 kg |" in m1
+    assert "| 2 | Dissolve the citric acid solution (retarder) in the water | scale | — | 1.7 g |" in m1
+    assert "Workable life **30 min** (measured)" in m1
+
+
+def test_works_page_says_so_without_data(demo_copy):
+    text = (demo_copy / "dossier.yaml").read_text(encoding="utf-8")
+    start, end = text.index("zones:\n"), text.index("requirements:\n")
+    (demo_copy / "dossier.yaml").write_text(text[:start] + "zones: []\n\n" + text[end:],
+                                            encoding="utf-8")
+    (demo_copy / "mixes.yaml").write_text("mixes: []\n", encoding="utf-8")
+    (demo_copy / "lab" / "strength.csv").unlink()
+    (demo_copy / "specification.yaml").unlink(missing_ok=True)
+    for name in ("capillary.csv", "colour.csv"):
+        (demo_copy / "lab" / name).unlink()
+    (demo_copy / "materials.yaml").write_text(
+        (demo_copy / "materials.yaml").read_text(encoding="utf-8").split("\n# Properties")[0],
+        encoding="utf-8")
+    text, cards, pages = _render_works(*check(demo_copy))
+    assert "No mixes are in the project yet (mixes.yaml)." in text
+    assert "No zones of work are defined yet (dossier.yaml, zones)." in text
+    assert "No batching card can be made yet" in text
+    assert cards == [] and pages.downloads == []
