@@ -24,7 +24,7 @@ def test_specification_page_and_exports_in_the_build(demo_build):
             rel = f"exports/WEP-2026-{REV}-{zone}-specification.{ext}"
             assert (rev / rel).is_file(), rel
             assert rel in manifest["outputs"], rel
-            assert f'href="{rel}"' in page, rel
+            assert f'href="./{rel}"' in page, rel
     html = (rev / f"exports/WEP-2026-{REV}-Z1-specification.html").read_text(encoding="utf-8")
     assert "<script" not in html and "<style" not in html
     summary = (rev / "index.html").read_text(encoding="utf-8")

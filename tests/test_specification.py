@@ -78,7 +78,10 @@ def test_justified_failure_is_attention_and_shown_prominently(demo_copy):
     assert z2.message.startswith("M2 selected although it fails COMP-MOIST and COMP-SALT — "
                                  "justification: Both candidates fail for this zone.")
     box = text[text.index('!!! warning "Chosen although it fails checks"'):]
-    assert "COMP-MOIST/Z2/M2</a> Repair at least as open as the units" in box.split("\n")[1]
+    assert box.split("\n")[1] == (
+        '    Fails <a href="calculations.md#calc-comp-moist-z2-m2">COMP-MOIST/Z2/M2</a> Repair at '
+        'least as open as the units; <a href="calculations.md#calc-comp-salt-z2-m2">'
+        'COMP-SALT/Z2/M2</a> Salt load of the fabric and sulfate expansion risk.')
     assert "**Justification recorded by the specifier:** Both candidates fail" in box
 
 
@@ -167,7 +170,7 @@ def test_project_template_overrides_the_clause_wording(demo_copy):
     text, pages, _ = render_spec(demo_copy)
     md = pages.exports["exports/WEP-2026-R3-Z2-specification.md"].decode()
     assert "## Z2 Own clauses\n\nMortar M2, cap 9 MPa [STR-MAX/M2]." in md
-    assert "### Z2 Own clauses" in text and "Joint preparation" not in text
+    assert "#### Z2 Own clauses" in text and "Joint preparation" not in text
 
 
 def test_exports_are_plain_and_escaped(demo_copy):

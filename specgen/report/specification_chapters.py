@@ -50,13 +50,16 @@ def _zone(env, zone) -> dict:
     chosen = quantity(r, zone.id, "selected_mix")
     s = p.specification.selection_for(zone.id)[1] if chosen and p.specification else None
     clauses = _clauses(env, zone, p.mixes[chosen]) if chosen else None
+    failed = _failed(r, p, zone.id, chosen) if chosen else []
     return {"id": zone.id, "name": zone.name, "works": zone.works, "matrix": _matrix(env, zone),
             "selected": chosen, "mix_name": p.mixes[chosen].name if chosen else "",
             "badge": Markup(badge(sel.status)) if sel else "", "status": sel.status if sel else "",
             "message": sel.message if sel else "", "href": _href(sel.key) if sel else "",
             "rationale": s.rationale if s else "", "justification": s.justification if s else "",
             "notes": list(sel.notes) if sel else [], "clauses": clauses,
-            "failed": _failed(r, p, zone.id, chosen) if chosen else []}
+            "n_failed": len(failed), "failed_links": Markup("; ").join(
+                Markup('<a href="{}">{}</a> {}').format(f["href"], f["key"], f["title"])
+                for f in failed)}
 
 
 def _failed(results, project, zone_id: str, mix_id: str) -> list[dict]:
@@ -91,7 +94,7 @@ def _clauses(env, zone, mix) -> Markup:
     from specgen.report.render import template_env
     c = clause_context(env.project, env.results, zone, mix)
     text = template_env(env.project.root).get_template("specification_clauses.md.j2").render(
-        c=c, h="###", ref=_ref_link)
+        c=c, h="####", ref=_ref_link)
     return Markup(text)
 
 
@@ -137,16 +140,28 @@ def _regime(results, project) -> dict:
         if not settings and res.steps:
             settings = [{"name": i.name, "value": as_given(i.value), "unit": i.unit, "source": i.source}
                         for i in res.steps[0].inputs if i.symbol in ("n_min", "a", "p", "k")]
-        acc = find(results, "SPEC-ACCEPT", z.id)
         rows.append({"zone": z.id, "badge": Markup(badge(res.status)), "href": _href(res.key),
                      "area": qty(z.area, "m²", 3) if z.area else "—",
                      "by_area": as_given(q["by_area"]) if q and q["by_area"] else "—",
                      "days": as_given(q["working_days"]) if q and q["working_days"] else "—",
                      "sets": as_given(q["sets"]) if q else "—",
                      "prisms": as_given(q["prisms"]) if q else "—",
-                     "message": res.message, "acceptance": acc.message if acc else "",
-                     "acc_href": _href(acc.key) if acc else ""})
-    return {"rows": rows, "settings": settings}
+                     "message": res.message})
+    return {"rows": rows, "settings": settings, "acceptance": _acceptance_rows(results, project)}
+
+
+def _acceptance_rows(results, project) -> list[dict]:
+    """One row per zone and test age: characteristic and set minimums, the cap (SPEC-ACCEPT)."""
+    rows = []
+    for z in project.dossier.zones:
+        table = quantity(results, z.id, "site_acceptance") or {}
+        mix, cap = quantity(results, z.id, "selected_mix"), table.get("cap")
+        for age, v in ((k, v) for k, v in table.items() if k != "cap"):
+            rows.append({"zone": z.id, "mix": mix, "age": age, "href": _href(f"SPEC-ACCEPT/{z.id}"),
+                         "fk": as_given(v["characteristic_min"]), "each": as_given(v["individual_min"]),
+                         "cap": f"{as_given(cap['max'])} MPa at {as_given(cap['age_d'])} d"
+                         if cap else "—"})
+    return rows
 
 
 def _hold_points(project, results) -> list[dict]:
