@@ -134,6 +134,24 @@ def test_bag_mass_missing_when_bags_are_asked_for(cli, demo_copy):
             "dossier.yaml.") in run_check(cli, demo_copy)
 
 
+def test_fractions_air_and_densities_out_of_range(cli, demo_copy):
+    edit(demo_copy / "mixes.yaml", 'air_content: "4.5 %"', 'air_content: "60 %"')
+    edit(demo_copy / "dossier.yaml", 'mortar_fraction: "20 %"', 'mortar_fraction: "120 %"')
+    edit(demo_copy / "materials.yaml", 'Washed estuary sand 0/4, bulk_density: "1550 kg/m^3"',
+         'Washed estuary sand 0/4, bulk_density: "2750 kg/m^3"')
+    out = run_check(cli, demo_copy)
+    assert ("mixes.yaml, line 4: mixes[0].air_content: mix 'M1': an air content of 60 % is out "
+            "of range; the yield takes 0–50 % of air. Fix: give the air content of the fresh "
+            "mortar (EN 1015-7) as a percentage, e.g. '5 %'.") in out
+    assert ("dossier.yaml, line 60: zones[2].mortar_fraction: zone 'Z3': mortar as a fraction of "
+            "the masonry volume must be below 100 %; found 120 %. Fix: give it as a percentage, "
+            "e.g. 'mortar_fraction: \"22 %\"'.") in out
+    # 2650 kg/m³: the default particle density of quartz sand (content/data/mix_densities.yaml)
+    assert ("materials.yaml, line 40: sands[0].bulk_density: sand 'S1': the loose bulk density "
+            "2750 kg/m³ is not below its particle density 2650 kg/m³ (loose material holds "
+            "voids).") in out
+
+
 def test_no_bags_needed_when_not_asked(demo_copy):
     edit(demo_copy / "materials.yaml", '    bulk_density: "700 kg/m^3"\n    bag_mass: "25 kg"\n',
          '    bulk_density: "700 kg/m^3"\n')

@@ -21,6 +21,10 @@ def works_problems(project, located: dict, log: ProblemLog, failed=frozenset()) 
             _bag_masses(project, located.get("materials.yaml"), log)
     if "mixes.yaml" not in failed:
         _mix_parts(project, located.get("mixes.yaml"), log)
+        _air(project, located.get("mixes.yaml"), log)
+    _fractions(project, located.get("dossier.yaml"), log)
+    if "materials.yaml" not in failed:
+        _densities(project, located.get("materials.yaml"), log)
 
 
 def _line(loc, path: tuple) -> int | None:
@@ -86,3 +90,47 @@ def _each_positive(parts, kind: str, i: int, loc, log: ProblemLog) -> None:
                     field=f"mixes[{i}].{key}[{j}].parts",
                     fix=f"give the {kind}'s share of the mix by loose volume, e.g. 'parts: 2.5', "
                         f"or remove the {kind} from the mix.")
+
+
+def _fractions(project, loc, log: ProblemLog) -> None:
+    """Mortar fraction and wastage are shares of a whole: below 100 %."""
+    for i, z in enumerate(project.dossier.zones):
+        for key, what in (("mortar_fraction", "mortar as a fraction of the masonry volume"),
+                          ("wastage", "the wastage allowance")):
+            value = getattr(z, key)
+            if value is not None and value >= 1:
+                log.add("dossier.yaml", f"zone '{z.id}': {what} must be below 100 %; found "
+                        f"{100 * value:g} %.", line=_line(loc, ("zones", i, key)),
+                        field=f"zones[{i}].{key}",
+                        fix=f"give it as a percentage, e.g. '{key}: \"{_EXAMPLE[key]}\"'.")
+
+
+_EXAMPLE = {"mortar_fraction": "22 %", "wastage": "12 %"}
+
+
+def _air(project, loc, log: ProblemLog) -> None:
+    for i, m in enumerate(project.mixes.values()):
+        if m.air_content is not None and m.air_content >= 0.5:
+            log.add("mixes.yaml", f"mix '{m.id}': an air content of {100 * m.air_content:g} % "
+                    "is out of range; the yield takes 0–50 % of air.", line=_line(loc, ("mixes", i, "air_content")),
+                    field=f"mixes[{i}].air_content",
+                    fix="give the air content of the fresh mortar (EN 1015-7) as a "
+                        "percentage, e.g. '5 %'.")
+
+
+def _densities(project, loc, log: ProblemLog) -> None:
+    """A loose bulk density is below the particle density (given, or the default)."""
+    from specgen import refdata
+    table = refdata.load("mix_densities").data["particle"]
+    for key, items in (("binders", project.binders), ("sands", project.sands)):
+        for i, x in enumerate(items.values()):
+            kind = x.type if key == "binders" else "sand"
+            particle = x.particle_density or float(table[kind]["value"])
+            if x.bulk_density is not None and x.bulk_density >= particle:
+                log.add("materials.yaml", f"{key[:-1]} '{x.id}': the loose bulk density "
+                        f"{x.bulk_density:g} kg/m³ is not below its particle density "
+                        f"{particle:g} kg/m³ (loose material holds voids).",
+                        line=_line(loc, (key, i, "bulk_density")),
+                        field=f"{key}[{i}].bulk_density",
+                        fix="give the loose bulk density, e.g. '1500 kg/m^3' for a sand, or "
+                            "the particle density ('particle_density:') if it differs.")
