@@ -313,3 +313,29 @@ def test_bad_input_stops_before_any_check(demo_copy):
     with pytest.raises(InputErrors) as exc:
         check(demo_copy)
     assert len(exc.value.problems) == 1
+
+
+# ------------------------------------------------------------------ fuzzing
+def test_malformed_specification_ends_in_located_messages(tmp_path_factory):
+    """The loader fuzz of test_fuzz_loaders, on the demo's specification.yaml (60 cases)."""
+    import shutil
+
+    from hypothesis import HealthCheck, given, settings
+
+    from tests.conftest import DEMO
+    from tests.test_fuzz_loaders import apply, mutation
+
+    @settings(max_examples=60, deadline=None, derandomize=True,
+              suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow])
+    @given(change=mutation)
+    def case(change):
+        root = tmp_path_factory.mktemp("fuzz-spec")
+        shutil.copytree(DEMO, root, dirs_exist_ok=True)
+        apply(root / "specification.yaml", *change)
+        try:
+            check(root)
+        except InputErrors as exc:
+            assert exc.problems
+            for p in exc.problems:
+                assert p.file and p.message and "Traceback" not in p.message, p
+    case()

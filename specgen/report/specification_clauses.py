@@ -38,7 +38,9 @@ def _materials(project, results, zone, mix) -> dict:
     for part in mix.binders:
         b = project.binders[part.binder]
         ci = find(results, "CHEM-CI", b.analysis) if b.analysis else None
-        binders.append({"id": b.id, "name": b.name, "type": BINDER_WORDS[b.type],
+        kind = BINDER_WORDS[b.type]
+        binders.append({"id": b.id, "name": b.name,
+                        "type": "" if kind in b.name.lower() else kind,  # said once, not twice
                         "declared": b.declared_class, "analysis": b.analysis,
                         "band": ci.limit.text if ci and ci.limit else "",
                         "ci": num(ci.value, 3) if ci and ci.status != "not_assessed" else "",
