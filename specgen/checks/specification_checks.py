@@ -264,33 +264,43 @@ def acceptance_check(zone, ctx) -> CheckResult:
         return _result("SPEC-ACCEPT", title, zone.id, "not_assessed", None, "", SAMPLING,
                        f"not assessed: {why} for zone {zone.id}")
     mix, (r, r_src) = chosen.value, _setting(spec, "individual_minimum", ctx.rules, "fraction")
-    table, inputs, subs = {}, [Input("r", "individual minimum / required", round(100 * r, 4), "%",
-                                     r_src)], []
-    for age, _src in site_test_ages(ctx.project, spec):
-        key = f"min {age / 86400:g} d"
-        if key not in verdicts.value:
-            continue
-        req = verdicts.value[key]["limit"]
-        table[f"{age / 86400:g} d"] = {"characteristic_min": req,
-                                       "individual_min": round(r * req, 4),
-                                       "source": f"STR-MIN/{mix}"}
-        inputs.append(Input(f"f_req,{age / 86400:g}", f"required minimum at {age / 86400:g} d",
-                            req, "MPa", f"STR-MIN/{mix} (dossier.yaml requirements)"))
-        subs.append(rf"{age / 86400:g}\,\mathrm{{d}}: {r:g} \times {req:g} = {r * req:.3g}")
-    cap = next(((k, v) for k, v in verdicts.value.items() if k.startswith("max ")), None)
-    if cap:
-        table["cap"] = {"age_d": float(cap[0].split()[1]), "max": cap[1]["limit"],
-                        "source": f"STR-MAX/{mix}"}
-        inputs.append(Input("f_max", f"cap at {cap[0].split()[1]} d", cap[1]["limit"], "MPa",
-                            f"STR-MAX/{mix} (dossier.yaml requirements)"))
+    table, inputs, subs = _acceptance_rows(site_test_ages(ctx.project, spec), mix, r,
+                                           verdicts.value)
+    inputs.insert(0, Input("r", "individual minimum / required", round(100 * r, 4), "%", r_src))
     step = Step(f"Site acceptance of {mix} in zone {zone.id}",
                 r"f_k \ge f_{req},\quad \bar f_{set} \ge r\,f_{req}", tuple(inputs),
                 r",\ ".join(subs) or "-", len(subs), "", "ages")
+    return _result("SPEC-ACCEPT", title, zone.id, "info", len(subs), "", SAMPLING,
+                   _acceptance_message(table), steps=(step,),
+                   quantities=(Quantity("site_acceptance", table, "MPa",
+                                        "site acceptance criteria"),))
+
+
+def _acceptance_rows(ages, mix: str, r: float, verdicts: dict) -> tuple[dict, list, list]:
+    """The criteria per test age that has a requirement, and the cap (table, inputs, steps)."""
+    table, inputs, subs = {}, [], []
+    for age, _src in ages:
+        d = f"{age / 86400:g}"
+        if f"min {d} d" not in verdicts:
+            continue
+        req = verdicts[f"min {d} d"]["limit"]
+        table[f"{d} d"] = {"characteristic_min": req, "individual_min": round(r * req, 4),
+                           "source": f"STR-MIN/{mix}"}
+        inputs.append(Input(f"f_req,{d}", f"required minimum at {d} d", req, "MPa",
+                            f"STR-MIN/{mix} (dossier.yaml requirements)"))
+        subs.append(rf"{d}\,\mathrm{{d}}: {r:g} \times {req:g} = {r * req:.3g}")
+    cap = next(((k, v) for k, v in verdicts.items() if k.startswith("max ")), None)
+    if cap:
+        age = cap[0].split()[1]
+        table["cap"] = {"age_d": float(age), "max": cap[1]["limit"], "source": f"STR-MAX/{mix}"}
+        inputs.append(Input("f_max", f"cap at {age} d", cap[1]["limit"], "MPa",
+                            f"STR-MAX/{mix} (dossier.yaml requirements)"))
+    return table, inputs, subs
+
+
+def _acceptance_message(table: dict) -> str:
     msg = "; ".join(f"{k}: f_k ≥ {v['characteristic_min']:g} MPa, each set ≥ "
                     f"{v['individual_min']:.3g} MPa" for k, v in table.items() if k != "cap")
-    if cap:
+    if "cap" in table:
         msg += f"; at {table['cap']['age_d']:g} d at most {table['cap']['max']:g} MPa"
-    return _result("SPEC-ACCEPT", title, zone.id, "info", len(subs), "", SAMPLING,
-                   msg or "no strength requirement at the site test ages",
-                   steps=(step,), quantities=(Quantity("site_acceptance", table, "MPa",
-                                                       "site acceptance criteria"),))
+    return msg or "no strength requirement at the site test ages"

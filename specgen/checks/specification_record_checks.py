@@ -33,22 +33,24 @@ def panel_check(zone, ctx) -> CheckResult:
     inputs = tuple(Input(tp.id, f"panel of {tp.mix} at {tp.location}", _verdict(tp), "",
                          f"{SPEC_FILE} trial_panels[{i}]") for i, tp in panels)
     good = [tp for _, tp in panels if tp.judgement == "accepted" and tp.judged_dry]
-    if good:
-        status, msg = "pass", f"{_and([tp.id for tp in good])} of {mix} accepted, judged dry"
-    elif panels and all(tp.judgement == "rejected" for _, tp in panels):
-        status, msg = "fail", f"every trial panel of {mix} was rejected: choose again or build " \
-                              "a new panel"
-    elif panels:
-        status, msg = "attention", f"no panel of {mix} accepted when dry yet (" + "; ".join(
-            f"{tp.id} {_verdict(tp)}" for _, tp in panels) + ")"
-    else:
-        status, msg = "attention", f"no trial panel of {mix} is recorded for zone {zone.id}"
+    status, msg = _panel_verdict(zone.id, mix, [tp for _, tp in panels], good)
     step = Step(f"Trial panels of {mix}", r"\mathrm{accepted} \wedge \mathrm{judged\ dry}",
                 inputs, f"{len(good)}\\ \\mathrm{{of}}\\ {len(panels)}", len(good), "", "n")
     q = {tp.id: {"judgement": tp.judgement, "judged_dry": tp.judged_dry,
                  "date": tp.date.isoformat()} for _, tp in panels}
     return _result("SPEC-PANEL", title, zone.id, status, len(good), "", PANELS, msg,
                    steps=(step,), quantities=(Quantity("trial_panel", q, "", "trial panels"),))
+
+
+def _panel_verdict(zone_id: str, mix: str, panels: list, good: list) -> tuple[str, str]:
+    if good:
+        return "pass", f"{_and([tp.id for tp in good])} of {mix} accepted, judged dry"
+    if panels and all(tp.judgement == "rejected" for tp in panels):
+        return "fail", f"every trial panel of {mix} was rejected: choose again or build a new panel"
+    if panels:
+        return "attention", f"no panel of {mix} accepted when dry yet (" + "; ".join(
+            f"{tp.id} {_verdict(tp)}" for tp in panels) + ")"
+    return "attention", f"no trial panel of {mix} is recorded for zone {zone_id}"
 
 
 def _verdict(tp) -> str:
@@ -65,18 +67,7 @@ def hold_check(project, ctx) -> CheckResult:
     if spec is None:
         return _result("SPEC-HOLD", title, code, "not_assessed", None, "", HOLDS,
                        f"not assessed: no {SPEC_FILE}", kind="project")
-    rev = project.revision.code
-    table, notes = {}, []
-    for h in spec.doc.hold_points:
-        history = {e.revision: e.hold_points[h.id][0] for e in spec.earlier if h.id in e.hold_points}
-        history[rev] = h.state
-        notes += _carry_notes(h, spec.earlier, rev)
-        table[h.id] = {"state": h.state, "stage": h.stage, "released_by": h.released_by,
-                       "released_in": h.released_in, "evidence": h.evidence, "check": h.check,
-                       "history": history}
-    listed = {h.id for h in spec.doc.hold_points}
-    notes += [f"{hid} of {e.revision} is no longer listed: say why it was withdrawn"
-              for e in spec.earlier[-1:] for hid in e.hold_points if hid not in listed]
+    table, notes = _hold_table(spec, project.revision.code)
     released = [h for h in spec.doc.hold_points if h.state == "released"]
     opened = [h.id for h in spec.doc.hold_points if h.state == "open"]
     inputs = tuple(Input(h.id, h.what, " → ".join(f"{r} {s}" for r, s in table[h.id]["history"]
@@ -92,6 +83,22 @@ def hold_check(project, ctx) -> CheckResult:
     return _result("SPEC-HOLD", title, code, "attention" if notes else "info", len(opened), "",
                    HOLDS, msg, kind="project", steps=(step,), notes=tuple(notes),
                    quantities=(Quantity("hold_points", table, "", "hold points"),))
+
+
+def _hold_table(spec, rev: str) -> tuple[dict, list[str]]:
+    """Each hold point with its state in every revision that listed it; notes on carry-over."""
+    table, notes = {}, []
+    for h in spec.doc.hold_points:
+        history = {e.revision: e.hold_points[h.id][0] for e in spec.earlier if h.id in e.hold_points}
+        history[rev] = h.state
+        notes += _carry_notes(h, spec.earlier, rev)
+        table[h.id] = {"state": h.state, "stage": h.stage, "released_by": h.released_by,
+                       "released_in": h.released_in, "evidence": h.evidence, "check": h.check,
+                       "history": history}
+    listed = {h.id for h in spec.doc.hold_points}
+    notes += [f"{hid} of {e.revision} is no longer listed: say why it was withdrawn"
+              for e in spec.earlier[-1:] for hid in e.hold_points if hid not in listed]
+    return table, notes
 
 
 def _carry_notes(h, earlier, rev: str) -> list[str]:
