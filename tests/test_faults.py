@@ -42,8 +42,11 @@ def kill_at(proc, marker: str, delay: float) -> str:
 
 @pytest.fixture(scope="module")
 def single_revision(tmp_path_factory):
+    """A built starter project (one revision): the faults are the same as on the demo, and
+    its small PDF keeps the repeated builds cheap."""
+    from specgen.starter import write_starter
     root = tmp_path_factory.mktemp("faults") / "project"
-    shutil.copytree("demo_project", root, ignore=shutil.ignore_patterns("issued"))
+    write_starter(root)
     out = root.parent / "out"
     assert subprocess.run([sys.executable, "-m", "specgen", "build", str(root), "--out",
                            str(out), "--quiet"], capture_output=True).returncode == 0
@@ -60,13 +63,13 @@ def test_kill_leaves_previous_output_intact(single_revision, marker, delay):
     root, out = single_revision
     before = tree(out)
     csv = root / "lab" / "strength.csv"
-    csv.write_text(csv.read_text().replace("M1-01d-C1,M1,1,compressive,1.18",
-                                           f"M1-01d-C1,M1,1,compressive,1.{int(time.time()*1000) % 90 + 10}"))
+    csv.write_text(csv.read_text().replace("M1-07-1,M1,7,compressive,1.1",
+                                           f"M1-07-1,M1,7,compressive,1.1{int(time.time()*1000) % 90 + 10}"))
     proc = start_build(root, out)
     seen = kill_at(proc, marker, delay)
     assert marker in seen
     after = {k: v for k, v in tree(out).items() if not k.startswith(".")}
-    rev = out / "R3"
+    rev = out / "R1"
     if after == before:
         pass  # killed before the move: the old revision is exactly as it was
     else:      # killed after the move: the new revision is complete and self-consistent
@@ -113,8 +116,8 @@ def test_full_disk_during_the_pdf_leaves_nothing_half_written(single_revision, c
     root, out = single_revision
     before = {k: v for k, v in tree(out).items() if not k.startswith(".cache/")}
     csv = root / "lab" / "strength.csv"
-    csv.write_text(csv.read_text().replace("M1-01d-C1,M1,1,compressive,1.",
-                                           "M1-01d-C1,M1,1,compressive,1.0"))
+    csv.write_text(csv.read_text().replace("M1-07-1,M1,7,compressive,1.1",
+                                           "M1-07-1,M1,7,compressive,1.105"))
     import specgen.publish.pdf
     monkeypatch.setattr(specgen.publish.pdf, "write_pdf", _disk_full)
     result = cli("build", root, "--out", out, "--quiet")
