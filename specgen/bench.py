@@ -95,7 +95,7 @@ def _peak_build(project: Path, out: Path) -> tuple[float, float]:
     return float(seconds), int(kib) / 1024
 
 
-def main(runs: int = 3) -> None:
+def main(runs: int = 3, large: bool = True) -> None:
     from specgen.build import build, check
     from specgen.synthetic import write_project
     demo = Path(__file__).resolve().parent.parent / "demo_project"
@@ -126,13 +126,14 @@ def main(runs: int = 3) -> None:
             times.append(_median(lambda: check(syn), runs))
             sizes.append(n * 8 * 3)
         slope = (math.log(times[-1]) - math.log(times[0])) / (math.log(sizes[-1]) - math.log(sizes[0]))
-        f_time, f_mib = _peak_build(syn, work / "syn-out")
+        f = _peak_build(syn, work / "syn-out") if large else None
     print(f"(a) check, demo                      {a:7.3f} s")
     print(f"(b) full cold build, demo            {b:7.3f} s")
     print(f"(c) re-issue after one new result    {c:7.3f} s")
     print(f"(d) bare toolchain floor (figures + math, mkdocs, WeasyPrint; sequential) {d:7.3f} s")
     for n, s, t in zip((10, 50, 200), sizes, times):
         print(f"(e) check, {n:3d} mixes / {s:5d} results  {t:7.3f} s")
-    print(f"(f) build, 200 mixes (site + PDF)   {f_time:7.1f} s, peak memory {f_mib:6.0f} MiB")
+    if f:
+        print(f"(f) build, 200 mixes (site + PDF)   {f[0]:7.1f} s, peak memory {f[1]:6.0f} MiB")
     print(f"ratio (b)/(d) = {b / d:.2f}   ratio (c)/(b) = {c / b:.2f}   "
           f"growth exponent of (e) = {slope:.2f}")

@@ -158,10 +158,12 @@ def format_reference() -> None:
 
 @cli.command(hidden=True)
 @click.option("--runs", default=3, show_default=True, help="repetitions per measurement")
-def bench(runs: int) -> None:
+@click.option("--large/--no-large", default=True, show_default=True,
+              help="also build the 200-mix project once (time and peak memory; slow)")
+def bench(runs: int, large: bool) -> None:
     """Developers: time check, build, re-issue and the bare toolchain (ratios in one run)."""
     from specgen.bench import main as run_bench
-    run_bench(runs)
+    run_bench(runs, large=large)
 
 
 def main() -> None:
