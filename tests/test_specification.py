@@ -126,7 +126,7 @@ def test_without_specification_file_nothing_is_selected(demo_copy):
 def test_clause_numbers_are_the_check_limits(demo_copy):
     text, pages, r = render_spec(demo_copy)
     c = by(r)
-    md = pages.exports["exports/WEP-2026-R3-Z1-specification.md"].decode()
+    md = pages.downloads["exports/WEP-2026-R3-Z1-specification.md"].decode()
     acc = r.quantities["M2"]["acceptance"].value
     # the project's requirements as STR-MIN/STR-MAX judged them: 2 MPa at 28 d, 3 MPa at 90 d,
     # at most 9 MPa at 365 d (dossier.yaml requirements)
@@ -155,7 +155,7 @@ def test_clauses_follow_a_changed_requirement_and_rule(demo_copy):
          "  - {rule: specification.individual_minimum, value: 75, justification: 'few sets "
          "per zone in the short harbour season'}\n\ncompatibility:\n")
     _, pages, r = render_spec(demo_copy)
-    md = pages.exports["exports/WEP-2026-R3-Z1-specification.md"].decode()
+    md = pages.downloads["exports/WEP-2026-R3-Z1-specification.md"].decode()
     assert by(r)[("STR-MIN", "M2")].limit.low == 2.5
     assert "is at least 2.5 MPa [STR-MIN/M2]" in md
     assert "no set has a mean below 1.875 MPa [SPEC-ACCEPT/Z1]" in md   # 0.75 × 2.5
@@ -168,7 +168,7 @@ def test_project_template_overrides_the_clause_wording(demo_copy):
         "{{ h }} {{ c.zone.id }} Own clauses\n\nMortar {{ c.mix.id }}, cap "
         "{{ c.acceptance.cap.max }} MPa {{ ref(c.acceptance.cap.source) }}.\n", encoding="utf-8")
     text, pages, _ = render_spec(demo_copy)
-    md = pages.exports["exports/WEP-2026-R3-Z2-specification.md"].decode()
+    md = pages.downloads["exports/WEP-2026-R3-Z2-specification.md"].decode()
     assert "## Z2 Own clauses\n\nMortar M2, cap 9 MPa [STR-MAX/M2]." in md
     assert "#### Z2 Own clauses" in text and "Joint preparation" not in text
 
@@ -177,8 +177,8 @@ def test_exports_are_plain_and_escaped(demo_copy):
     edit(demo_copy / "specification.yaml", "    Stop the works in the zone,",
          "    <script>alert(1)</script> Stop the works in the zone,")
     _, pages, _ = render_spec(demo_copy)
-    html = pages.exports["exports/WEP-2026-R3-Z1-specification.html"].decode()
-    md = pages.exports["exports/WEP-2026-R3-Z1-specification.md"].decode()
+    html = pages.downloads["exports/WEP-2026-R3-Z1-specification.html"].decode()
+    md = pages.downloads["exports/WEP-2026-R3-Z1-specification.md"].decode()
     assert "<script" not in html and "&lt;script&gt;alert(1)&lt;/script&gt;" in html
     assert "<script" not in md
     assert html.startswith("<h1>Specification of zone Z1: Inner face, repointing of brick "

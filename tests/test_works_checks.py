@@ -208,10 +208,10 @@ def _render_works(project, results):
 
 def test_works_page_and_cards_from_the_demo(demo):
     text, cards, pages = _render_works(*demo)
-    assert "[WEP-2026-R3-quantities.csv](WEP-2026-R3-quantities.csv)" in text
+    assert '<a href="./WEP-2026-R3-quantities.csv">WEP-2026-R3-quantities.csv</a>' in text
     assert "| NC1: bags of 25 kg | bags | 18 | 13 | — |" in text
     assert "(calculations.md#calc-works-qty-z1)" in text
-    assert pages.downloads == ["WEP-2026-R3-quantities.csv"]
+    assert list(pages.downloads) == ["WEP-2026-R3-quantities.csv"]
     assert len(cards) == 3
     m1 = cards[0]
     # Water per gauging: 0.4675 kg (SITE-GAUGE) shown as 0.47 L; retarder 0.2 % of 0.85 kg
@@ -238,4 +238,4 @@ def test_works_page_says_so_without_data(demo_copy):
     assert "No mixes are in the project yet (mixes.yaml)." in text
     assert "No zones of work are defined yet (dossier.yaml, zones)." in text
     assert "No batching card can be made yet" in text
-    assert cards == [] and pages.downloads == []
+    assert cards == [] and pages.downloads == {}

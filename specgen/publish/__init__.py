@@ -64,8 +64,7 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     progress("publish: PDF")
     results_json = results.to_json().encode("utf-8")
     attachments = {"results.json": results_json}
-    attachments.update({path: pages.assets[path] for path in pages.downloads})
-    attachments.update(pages.exports)
+    attachments.update(pages.downloads)
     for f in project.inputs:
         attachments[f"input/{f.path}"] = (project.root / f.path).read_bytes()
     ident = hashlib.sha256(f"{project.dossier.project.code}/{rev.code}".encode()).digest()[:16]
@@ -83,7 +82,7 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
         if pdf_tmp.exists():
             pdf_tmp.unlink()
     (staging / "results.json").write_bytes(results_json)
-    for rel, data in sorted(pages.exports.items()):  # after the site: MkDocs empties its folder
+    for rel, data in sorted(pages.downloads.items()):  # after the site: MkDocs empties its folder
         (staging / rel).parent.mkdir(parents=True, exist_ok=True)
         (staging / rel).write_bytes(data)
     if changes is not None:

@@ -24,10 +24,11 @@ class PageSet:
     assets: dict[str, bytes] = field(default_factory=dict)
     nav: list[NavItem] = field(default_factory=list)
     titles: dict[str, str] = field(default_factory=dict)
-    downloads: list[str] = field(default_factory=list)  # assets also attached to the PDF
-    # files written into the revision folder after the site, outside the site engine (a
-    # Markdown export fed to MkDocs would become a page): path → bytes
-    exports: dict[str, bytes] = field(default_factory=dict)
+    # files for the reader to take away (a quantities CSV, plain specification exports):
+    # written into the revision folder beside the PDF after the site is built (outside the
+    # site engine: a Markdown export fed to MkDocs would become a page), listed in the
+    # manifest and attached to the PDF; path → bytes
+    downloads: dict[str, bytes] = field(default_factory=dict)
 
     def add_page(self, path: str, title: str, text: str) -> None:
         if path in self.pages:
@@ -44,18 +45,10 @@ class PageSet:
         return path
 
     def add_download(self, path: str, data: bytes) -> str:
-        """An asset for the reader to take away (e.g. a CSV): published in the revision
-        folder beside the PDF, listed in the manifest, and attached to the PDF."""
-        self.add_asset(path, data)
-        if path not in self.downloads:
-            self.downloads.append(path)
-        return path
-
-    def add_export(self, path: str, data: bytes) -> str:
-        """A plain export (Markdown, HTML fragment) written beside the PDF and attached to it."""
-        if path in self.exports or path in self.assets:
-            raise ValueError(f"export '{path}' is produced twice")
-        self.exports[path] = data
+        """A file for the reader beside the PDF (see ``downloads``); returns its path."""
+        if path in self.assets or self.downloads.get(path, data) != data:
+            raise ValueError(f"download '{path}' is produced twice with different content")
+        self.downloads[path] = data
         return path
 
     def write_to(self, folder) -> None:
@@ -65,6 +58,6 @@ class PageSet:
         for path, text in self.pages.items():
             (root / path).parent.mkdir(parents=True, exist_ok=True)
             (root / path).write_text(text, encoding="utf-8")
-        for path, data in self.assets.items():
+        for path, data in list(self.assets.items()) + list(self.downloads.items()):
             (root / path).parent.mkdir(parents=True, exist_ok=True)
             (root / path).write_bytes(data)

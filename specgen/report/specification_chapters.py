@@ -113,8 +113,8 @@ def _exports(env, zones) -> list[dict]:
             cautions=_card_cautions(p, mix))
         stem = f"exports/{p.dossier.project.code}-{p.revision.code}-{z.id}-specification"
         md = md.replace("&#39;", "'").replace("&#34;", '"')  # quotes are plain text here
-        env.pageset.add_export(f"{stem}.md", md.encode("utf-8"))
-        env.pageset.add_export(f"{stem}.html", html_fragment(md).encode("utf-8"))
+        env.pageset.add_download(f"{stem}.md", md.encode("utf-8"))
+        env.pageset.add_download(f"{stem}.html", html_fragment(md).encode("utf-8"))
         out.append({"zone": z.id, "md": f"{stem}.md", "html": f"{stem}.html"})
     return out
 
