@@ -16,7 +16,7 @@ def test_works_page_cards_and_csv_exist(demo_build):
     r3 = demo_build / "R3"
     works = (r3 / "works.html").read_text(encoding="utf-8")
     assert "Mixes, quantities and batching" in works
-    assert f'href="{CSV}"' in works
+    assert f'href="./{CSV}"' in works
     assert 'href="card-M1.html"' in works
     for mix in ("M1", "M2", "M3"):
         card = (r3 / f"card-{mix}.html").read_text(encoding="utf-8")
