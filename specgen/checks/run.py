@@ -43,6 +43,15 @@ class Results:
     specimens: dict[str, dict] = field(default_factory=dict)  # lab results by specimen id
     comments: list[dict] = field(default_factory=list)        # review comments, as given
 
+    def check(self, code: str, subject: str) -> CheckResult | None:
+        """The result of check ``code`` on ``subject`` (None when it did not run)."""
+        return next((c for c in self.checks if c.code == code and c.subject == subject), None)
+
+    def value(self, subject: str, name: str):
+        """The value of quantity ``name`` recorded for ``subject`` (None when not recorded)."""
+        q = self.quantities.get(subject, {}).get(name)
+        return q.value if q is not None else None
+
     def counts(self) -> dict[str, int]:
         """Number of results per status, in severity order."""
         return {s: sum(1 for c in self.checks if c.status == s) for s in STATUSES}

@@ -2,7 +2,7 @@
 from __future__ import annotations
 
 from specgen.report.cautions import cautions_for
-from specgen.report.chapters import badge, chapter, check_rows, sheet_anchor
+from specgen.report.chapters import badge, chapter, check_rows
 from specgen.report.fmt import num, qty
 from specgen.report.specification_chapters import specification_summary
 

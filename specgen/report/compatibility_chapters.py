@@ -29,10 +29,6 @@ PROPERTIES = (("compressive_strength", "compressive strength", 1e-6, "MPa"),
               ("hygric_expansion", "hygric expansion", 1e3, "mm/m"))
 
 
-def _check(env, code: str, subject: str):
-    return next((c for c in env.results.checks if c.code == code and c.subject == subject), None)
-
-
 def _cell(c) -> dict:
     if c is None:
         return {"badge": "—", "value": "", "href": ""}
@@ -86,11 +82,11 @@ def _zone(env, z) -> dict:
     p = env.project
     pairs = cc.pairs(z, p)
     matrix = [{"mix": pr.mix_id, "name": pr.mix.name if pr.mix else "unknown mix",
-               "cells": [_cell(_check(env, code, pr.subject)) for code in CRITERIA]}
+               "cells": [_cell(env.results.check(code, pr.subject)) for code in CRITERIA]}
               for pr in pairs]
     findings = [{"code": c.code, "title": c.title, "subject": c.subject, "badge": badge(c.status),
                  "message": c.message, "href": f"calculations.md#{sheet_anchor(c)}"}
-                for code in FINDINGS for pr in pairs if (c := _check(env, code, pr.subject))]
+                for code in FINDINGS for pr in pairs if (c := env.results.check(code, pr.subject))]
     unit = pairs[0].unit if pairs else None
     hist = pairs[0].historic if pairs else None
     return {"id": z.id, "name": z.name, "works": z.works,
@@ -100,7 +96,7 @@ def _zone(env, z) -> dict:
             # figures are numbered as they are made: make them in the order they are shown
             "figures": [f for f in (_grading_figure(env, z, pairs), _moisture_figure(env, z, pairs),
                                     _colour_figure(env, z, pairs)) if f],
-            "has_colour": any(_check(env, "COMP-COLOUR", pr.subject) for pr in pairs)}
+            "has_colour": any(env.results.check("COMP-COLOUR", pr.subject) for pr in pairs)}
 
 
 def _curve(label: str, g) -> dict:
@@ -137,10 +133,9 @@ def _grading_figure(env, z, pairs) -> dict | None:
 def _colour_figure(env, z, pairs) -> dict | None:
     rows = []
     for pr in pairs:
-        q = env.results.quantities.get(pr.subject, {}).get("delta_e_2000")
-        if q is None:
+        v = env.results.value(pr.subject, "delta_e_2000")
+        if v is None:
             continue
-        v = q.value
         hist, panel = colour.lab_to_srgb(v["historic_mean"]), colour.lab_to_srgb(v["panel_mean"])
         rows.append({"label": f"{pr.mix_id} panel", "historic_label": pr.historic.id,
                      "historic_hex": hist.hex, "panel_hex": panel.hex,

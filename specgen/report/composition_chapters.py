@@ -8,20 +8,12 @@ from __future__ import annotations
 
 from specgen.checks.composition_checks import oxide_order
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import as_given, num
+from specgen.report.fmt import BINDER_WORDS, as_given, num
 
 MAJOR = ("SiO2", "Al2O3", "Fe2O3", "CaO", "MgO", "SO3")
-BINDER_TYPES = {"natural_cement": "natural cement", "nhl": "natural hydraulic lime (NHL)",
-                "fl": "formulated lime (FL)", "hl": "hydraulic lime (HL)", "air_lime": "air lime",
-                "portland": "Portland cement", "pozzolan": "pozzolan"}
 INDEX_COLUMNS = (("cementation_index", "CI"), ("hydraulic_index", "HI"),
                  ("lime_saturation_factor", "LSF"), ("silica_ratio", "SR"),
                  ("alumina_ratio", "AR"))
-
-
-def _q(env, subject: str, name: str):
-    q = env.results.quantities.get(subject, {}).get(name)
-    return q.value if q is not None else None
 
 
 def _findings(env, subject: str) -> list[dict]:
@@ -47,8 +39,8 @@ def composition(env) -> dict:
         svg = band_chart([(c.subject, c.value) for c in ci], bands, "cementation index (Eckel)")
         figure = env.figure("figures/cementation-index.svg", svg,
                             "Cementation index of each analysis on the hydraulicity bands")
-    indices = [{"id": a.id, "class": _q(env, a.id, "hydraulicity_class") or "—",
-                "cells": [num(v, 3) if (v := _q(env, a.id, k)) is not None else "—"
+    indices = [{"id": a.id, "class": env.results.value(a.id, "hydraulicity_class") or "—",
+                "cells": [num(v, 3) if (v := env.results.value(a.id, k)) is not None else "—"
                           for k, _ in INDEX_COLUMNS]} for a in p.analyses.values()]
     analyses = [{"id": a.id, "kind": a.kind.replace("_", " "), "description": a.description,
                  "findings": _findings(env, a.id)} for a in p.analyses.values()]
@@ -61,26 +53,26 @@ def composition(env) -> dict:
 
 def _binder(env, b) -> dict:
     p = env.project
-    expected = _q(env, b.id, "expected_fired_composition")
+    expected = env.results.value(b.id, "expected_fired_composition")
     balance = []
     if expected:
         from specgen.checks.chemistry_common import binder_analysis, raw_analyses
         raw = raw_analyses(b, p)[0]
         measured = binder_analysis(b, p)
-        lf = _q(env, measured.id, "loss_free_composition") or {}
+        lf = env.results.value(measured.id, "loss_free_composition") or {}
         for ox in (k for k in MAJOR if k in expected or k in lf):
             e, m = expected.get(ox), lf.get(ox)
             balance.append({"oxide": ox, "raw": num(raw.mass_percent.get(ox, 0.0), 3),
                             "expected": num(e, 3) if e is not None else "—",
                             "measured": num(m, 3) if m is not None else "—",
                             "delta": f"{(m or 0.0) - (e or 0.0):+.2f}"})
-    return {"id": b.id, "name": b.name, "type": BINDER_TYPES.get(b.type, b.type), "balance": balance,
+    return {"id": b.id, "name": b.name, "type": BINDER_WORDS.get(b.type, b.type), "balance": balance,
             "findings": _findings(env, b.id)}
 
 
 def _phase_figure(env, p):
     rows = [(b.id, ph) for b in p.binders.values()
-            if (ph := _q(env, b.id, "potential_phases"))]
+            if (ph := env.results.value(b.id, "potential_phases"))]
     if not rows:
         return None
     from specgen.report.composition_figures import phase_bars
@@ -90,7 +82,7 @@ def _phase_figure(env, p):
 
 def _hydration(env, p) -> dict | None:
     volumes = next((v for b in p.binders.values()
-                    if (v := _q(env, b.id, "hydration_volumes"))), None)
+                    if (v := env.results.value(b.id, "hydration_volumes"))), None)
     if volumes is None:
         return None
     from specgen.checks.hydration_checks import chosen
@@ -106,13 +98,13 @@ def _hydration(env, p) -> dict | None:
                      "csh": num(v["C1.7SH4"], 3), "ch": num(v["CH"], 3),
                      "shrinkage": num(volumes[k]["chemical_shrinkage"], 3),
                      "increase": num(volumes[k]["solid_volume_increase"], 3)})
-    per_binder = [{"id": b.id, "c2s": num(_q(env, b.id, "c2s_potential"), 3),
-                   "water": num(_q(env, b.id, "water_for_full_hydration"), 3),
-                   "ch": num(_q(env, b.id, "ch_from_hydration"), 3)}
-                  for b in p.binders.values() if _q(env, b.id, "water_for_full_hydration")]
+    per_binder = [{"id": b.id, "c2s": num(env.results.value(b.id, "c2s_potential"), 3),
+                   "water": num(env.results.value(b.id, "water_for_full_hydration"), 3),
+                   "ch": num(env.results.value(b.id, "ch_from_hydration"), 3)}
+                  for b in p.binders.values() if env.results.value(b.id, "water_for_full_hydration")]
     mixes = [{"id": m.id, "wb": num(m.water_binder_ratio, 3),
-              "porosity": num(_q(env, m.id, "capillary_porosity"), 3),
-              "x": num(_q(env, m.id, "gel_space_ratio"), 3),
+              "porosity": num(env.results.value(m.id, "capillary_porosity"), 3),
+              "x": num(env.results.value(m.id, "gel_space_ratio"), 3),
               "findings": _findings(env, m.id)}
-             for m in p.mixes.values() if _q(env, m.id, "capillary_porosity") is not None]
+             for m in p.mixes.values() if env.results.value(m.id, "capillary_porosity") is not None]
     return {"figure": fig, "sets": sets, "binders": per_binder, "mixes": mixes}

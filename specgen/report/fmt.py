@@ -4,6 +4,12 @@ from __future__ import annotations
 import math
 
 
+#: How the dossier names each binder type of materials.yaml (one table for every page).
+BINDER_WORDS = {"natural_cement": "natural cement", "nhl": "natural hydraulic lime (NHL)",
+                "fl": "formulated lime (FL)", "hl": "hydraulic lime (HL)", "air_lime": "air lime",
+                "portland": "Portland cement", "pozzolan": "pozzolan"}
+
+
 def num(value, digits: int = 4) -> str:
     """``value`` with ``digits`` significant figures (plain text); text passes through."""
     if value is None:

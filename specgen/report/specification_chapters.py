@@ -12,7 +12,7 @@ from specgen.checks.result import STATUS_WORDS
 from specgen.checks.specification_checks import applicable
 from specgen.report.chapters import badge, chapter
 from specgen.report.fmt import anchor, as_given, num, qty
-from specgen.report.specification_clauses import clause_context, find, quantity
+from specgen.report.specification_clauses import clause_context
 
 STATE_CLASS = {"open": "hold", "released": "pass"}
 
@@ -46,8 +46,8 @@ def specification(env) -> dict:
 
 def _zone(env, zone) -> dict:
     p, r = env.project, env.results
-    sel = find(r, "SPEC-SELECT", zone.id)
-    chosen = quantity(r, zone.id, "selected_mix")
+    sel = r.check("SPEC-SELECT", zone.id)
+    chosen = r.value(zone.id, "selected_mix")
     s = p.specification.selection_for(zone.id)[1] if chosen and p.specification else None
     clauses = _clauses(env, zone, p.mixes[chosen]) if chosen else None
     failed = _failed(r, p, zone.id, chosen) if chosen else []
@@ -77,7 +77,7 @@ def _matrix(env, zone) -> dict:
             codes.append(c.code)
     rows = [{"code": code, "title": next(per[m][code].title for m in cands if code in per[m]),
              "cells": [_cell(per[m].get(code)) for m in cands]} for code in codes]
-    cost = [_cell(find(r, "SPEC-COST", f"{zone.id}/{m}")) for m in cands]
+    cost = [_cell(r.check("SPEC-COST", f"{zone.id}/{m}")) for m in cands]
     return {"candidates": cands, "rows": rows,
             "cost": cost if any(c["value"] for c in cost) else None}
 
@@ -105,8 +105,8 @@ def _exports(env, zones) -> list[dict]:
     p = env.project
     jenv = template_env(p.root)
     out = []
-    for z in (z for z in p.dossier.zones if quantity(env.results, z.id, "selected_mix")):
-        mix = p.mixes[quantity(env.results, z.id, "selected_mix")]
+    for z in (z for z in p.dossier.zones if env.results.value(z.id, "selected_mix")):
+        mix = p.mixes[env.results.value(z.id, "selected_mix")]
         c = clause_context(p, env.results, z, mix)
         md = jenv.get_template("specification_export.md.j2").render(
             c=c, h="##", ref=_ref_plain, project=p.dossier.project, revision=p.revision,
@@ -133,8 +133,8 @@ def _regime(results, project) -> dict:
     """Sets of prisms per zone, the settings they rest on (with sources) and the acceptance."""
     rows, settings = [], []
     for z in project.dossier.zones:
-        res = find(results, "SPEC-SAMPLING", z.id)
-        q = quantity(results, z.id, "sample_sets")
+        res = results.check("SPEC-SAMPLING", z.id)
+        q = results.value(z.id, "sample_sets")
         if res is None:
             continue
         if not settings and res.steps:
@@ -154,8 +154,8 @@ def _acceptance_rows(results, project) -> list[dict]:
     """One row per zone and test age: characteristic and set minimums, the cap (SPEC-ACCEPT)."""
     rows = []
     for z in project.dossier.zones:
-        table = quantity(results, z.id, "site_acceptance") or {}
-        mix, cap = quantity(results, z.id, "selected_mix"), table.get("cap")
+        table = results.value(z.id, "site_acceptance") or {}
+        mix, cap = results.value(z.id, "selected_mix"), table.get("cap")
         for age, v in ((k, v) for k, v in table.items() if k != "cap"):
             rows.append({"zone": z.id, "mix": mix, "age": age, "href": _href(f"SPEC-ACCEPT/{z.id}"),
                          "fk": as_given(v["characteristic_min"]), "each": as_given(v["individual_min"]),
@@ -166,7 +166,7 @@ def _acceptance_rows(results, project) -> list[dict]:
 
 def _hold_points(project, results) -> list[dict]:
     """Hold points with who releases them, the state in each revision and the evidence."""
-    table = quantity(results, project.dossier.project.code, "hold_points") or {}
+    table = results.value(project.dossier.project.code, "hold_points") or {}
     names = {p.role: p.name + (f", {p.organisation}" if p.organisation else "")
              for p in project.dossier.parties}
     out = []
@@ -183,9 +183,11 @@ def _hold_points(project, results) -> list[dict]:
 
 
 def _check_of(results, ref: str):
+    """The result a hold point rests on: ``CODE/subject``, or the first result of ``CODE``."""
     code, _, subject = ref.partition("/")
-    return next((c for c in results.checks if c.code == code and (not subject or
-                 c.subject == subject)), None)
+    if subject:
+        return results.check(code, subject)
+    return next((c for c in results.checks if c.code == code), None)
 
 
 def _panels(env) -> list[dict]:
@@ -194,7 +196,7 @@ def _panels(env) -> list[dict]:
         return []
     out = []
     for tp in p.specification.doc.trial_panels:
-        colour = find(r, "COMP-COLOUR", f"{tp.zone}/{tp.mix}") if tp.zone else None
+        colour = r.check("COMP-COLOUR", f"{tp.zone}/{tp.mix}") if tp.zone else None
         fig = _photo(env, tp)
         out.append({"id": tp.id, "mix": tp.mix, "zone": tp.zone or "—", "date": tp.date.isoformat(),
                     "location": tp.location, "reviewer": tp.reviewer,
@@ -223,11 +225,11 @@ def specification_summary(env) -> dict:
     r, p = env.results, env.project
     rows = []
     for z in p.dossier.zones:
-        sel = find(r, "SPEC-SELECT", z.id)
+        sel = r.check("SPEC-SELECT", z.id)
         if sel is not None and sel.status != "not_assessed":
             rows.append({"zone": z.id, "mix": sel.value or "—", "badge": Markup(badge(sel.status)),
                          "status": STATUS_WORDS[sel.status], "href": "specification.md"})
-    holds = quantity(r, p.dossier.project.code, "hold_points") or {}
+    holds = r.value(p.dossier.project.code, "hold_points") or {}
     return {"spec_selections": rows,
             "spec_open_holds": [{"id": k, "stage": v["stage"], "role": v["released_by"]}
                                 for k, v in holds.items() if v["state"] == "open"]}

@@ -7,20 +7,8 @@ exports (Markdown and an HTML fragment) written beside the PDF.
 """
 from __future__ import annotations
 
-from specgen.report.fmt import as_given, num
+from specgen.report.fmt import BINDER_WORDS, as_given, num
 
-BINDER_WORDS = {"natural_cement": "natural cement", "nhl": "natural hydraulic lime",
-                "fl": "formulated lime", "hl": "hydraulic lime", "air_lime": "air lime",
-                "portland": "portland cement", "pozzolan": "pozzolan"}
-
-
-def find(results, code: str, subject: str):
-    return next((c for c in results.checks if c.code == code and c.subject == subject), None)
-
-
-def quantity(results, subject: str, name: str):
-    q = results.quantities.get(subject, {}).get(name)
-    return q.value if q is not None else None
 
 
 def clause_context(project, results, zone, mix) -> dict:
@@ -28,7 +16,7 @@ def clause_context(project, results, zone, mix) -> dict:
     return {"zone": zone, "mix": mix, "materials": _materials(project, results, zone, mix),
             "proportions": _proportions(results, zone, mix), "joints": _joints(project, zone),
             "weather": _weather(project, results), "acceptance": _acceptance(results, zone, mix),
-            "sampling": _sampling(quantity(results, zone.id, "sample_sets")),
+            "sampling": _sampling(results.value(zone.id, "sample_sets")),
             "non_conformance": _non_conformance(project),
             "colour": _colour(project, results, zone, mix)}
 
@@ -37,16 +25,17 @@ def _materials(project, results, zone, mix) -> dict:
     binders = []
     for part in mix.binders:
         b = project.binders[part.binder]
-        ci = find(results, "CHEM-CI", b.analysis) if b.analysis else None
+        ci = results.check("CHEM-CI", b.analysis) if b.analysis else None
         kind = BINDER_WORDS[b.type]
         binders.append({"id": b.id, "name": b.name,
-                        "type": "" if kind in b.name.lower() else kind,  # said once, not twice
+                        # the family said once, not twice ("NHL 3.5 natural hydraulic lime")
+                        "type": "" if kind.split(" (")[0].lower() in b.name.lower() else kind,
                         "declared": b.declared_class, "analysis": b.analysis,
                         "band": ci.limit.text if ci and ci.limit else "",
                         "ci": num(ci.value, 3) if ci and ci.status != "not_assessed" else "",
                         "source": ci.key if ci else ""})
     sands = [{"id": s.sand, "name": project.sands[s.sand].name} for s in mix.sands]
-    grad = find(results, "COMP-GRAD", f"{zone.id}/{mix.id}")
+    grad = results.check("COMP-GRAD", f"{zone.id}/{mix.id}")
     grading = None
     if grad is not None and grad.limit is not None:
         envelope = next((n.removeprefix("envelope: ") for n in grad.notes
@@ -60,12 +49,12 @@ def _materials(project, results, zone, mix) -> dict:
 
 def _proportions(results, zone, mix) -> dict:
     volume = " : ".join(as_given(p.parts) for p in mix.binders + mix.sands)
-    by_mass = quantity(results, mix.id, "mass_proportions")
+    by_mass = results.value(mix.id, "mass_proportions")
     names = [p.binder for p in mix.binders] + [p.sand for p in mix.sands]
-    gauging = quantity(results, mix.id, "gauging")
-    life = quantity(results, mix.id, "workable_life")
-    vmax = (quantity(results, mix.id, "max_gauging_volume") or {}).get(zone.id)
-    gauge = find(results, "SITE-GAUGE", mix.id)
+    gauging = results.value(mix.id, "gauging")
+    life = results.value(mix.id, "workable_life")
+    vmax = (results.value(mix.id, "max_gauging_volume") or {}).get(zone.id)
+    gauge = results.check("SITE-GAUGE", mix.id)
     return {"names": " : ".join(names), "volume": volume,
             "mass": " : ".join(num(by_mass[n], 3) for n in names) if by_mass else "",
             "wb": as_given(mix.water_binder_ratio) if mix.water_binder_ratio else "",
@@ -100,7 +89,7 @@ def project_rule(project, key: str) -> float:
 
 
 def _weather(project, results) -> dict | None:
-    w = quantity(results, project.dossier.project.code, "weather_window")
+    w = results.value(project.dossier.project.code, "weather_window")
     if w is None:
         return None
     return {k: as_given(v) for k, v in w.items()} | {"source": f"SITE-WEATHER/"
@@ -108,13 +97,13 @@ def _weather(project, results) -> dict | None:
 
 
 def _acceptance(results, zone, mix) -> dict | None:
-    table = quantity(results, zone.id, "site_acceptance")
+    table = results.value(zone.id, "site_acceptance")
     if table is None:
         return None
     ages = [{"age": k, "fk": as_given(v["characteristic_min"]), "each": as_given(v["individual_min"]),
              "source": v["source"]} for k, v in table.items() if k != "cap"]
     cap = table.get("cap")
-    load = quantity(results, mix.id, "load_strength_day")
+    load = results.value(mix.id, "load_strength_day")
     return {"ages": ages, "source": f"SPEC-ACCEPT/{zone.id}",
             "cap": {"age": as_given(cap["age_d"]), "max": as_given(cap["max"]),
                     "source": cap["source"]} if cap else None,
@@ -123,7 +112,7 @@ def _acceptance(results, zone, mix) -> dict | None:
 
 
 def _colour(project, results, zone, mix) -> dict | None:
-    c = find(results, "COMP-COLOUR", f"{zone.id}/{mix.id}")
+    c = results.check("COMP-COLOUR", f"{zone.id}/{mix.id}")
     spec = project.specification.doc if project.specification else None
     panels = [tp.id for tp in (spec.trial_panels if spec else []) if tp.mix == mix.id
               and tp.zone in (None, zone.id) and tp.judgement == "accepted" and tp.judged_dry]

@@ -37,7 +37,7 @@ def _mix(env, mix, series: list[sc.Series], rules) -> dict:
     results = [{"code": c.code, "title": c.title, "badge": badge(c.status), "message": c.message,
                 "href": f"calculations.md#{sheet_anchor(c)}"}
                for c in r.checks if c.subject == mix.id and c.code.startswith("STR-")]
-    pred = (r.quantities.get(mix.id, {}).get("predicted_strength"))
+    pred = r.value(mix.id, "predicted_strength")
     figures = [env.figure(f"figures/strength-{mix.id}-{s.test}.svg", _figure(env, mix, s, rules),
                           f"{mix.id}: {s.test} strength against age"
                           + (" — fitted model and band" if s.fit else "")
@@ -56,7 +56,7 @@ def _mix(env, mix, series: list[sc.Series], rules) -> dict:
             "models": _models(series), "reasoning": [
                 {"test": s.test, "text": s.selection.reasoning if s.selection else s.fit_error}
                 for s in series],
-            "predictions": _predictions(pred.value if pred else {}), "results": results,
+            "predictions": _predictions(pred or {}), "results": results,
             "figures": figures, "residuals": resid}
 
 

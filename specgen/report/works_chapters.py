@@ -15,10 +15,6 @@ from specgen.report.fmt import as_given, num
 CALC = "calculations.md"
 
 
-def _check(env, code: str, subject: str):
-    return next((c for c in env.results.checks if c.code == code and c.subject == subject), None)
-
-
 def _link(c) -> dict | None:
     if c is None:
         return None
@@ -32,14 +28,14 @@ def works(env) -> dict:
     csv_name = None
     if any(z.mixes for z in zones):
         csv_name = env.pageset.add_download(ws.csv_name(p), ws.to_csv(zones))
-    weather = ws.quantity(r, p.dossier.project.code, "weather_window")
-    outside = ws.quantity(r, p.dossier.project.code, "days_outside_window")
+    weather = r.value(p.dossier.project.code, "weather_window")
+    outside = r.value(p.dossier.project.code, "days_outside_window")
     return {"mixes": [_mix(env, m) for m in p.mixes.values()],
             "zones": [_zone(env, z) for z in zones], "csv": csv_name,
             "weather": _weather(weather, outside),
-            "weather_check": _link(_check(env, "SITE-WEATHER", p.dossier.project.code)),
+            "weather_check": _link(env.results.check("SITE-WEATHER", p.dossier.project.code)),
             "cards": [{"id": m.id, "href": card_path(m.id)} for m in p.mixes.values()
-                      if ws.quantity(r, m.id, "gauging")]}
+                      if r.value(m.id, "gauging")]}
 
 
 def card_path(mix_id: str) -> str:
@@ -48,8 +44,8 @@ def card_path(mix_id: str) -> str:
 
 def _mix(env, mix) -> dict:
     r = env.results
-    props = ws.quantity(r, mix.id, "mass_proportions") or {}
-    per_m3 = ws.quantity(r, mix.id, "yield_per_m3") or {}
+    props = r.value(mix.id, "mass_proportions") or {}
+    per_m3 = r.value(mix.id, "yield_per_m3") or {}
     parts = {b.binder: b.parts for b in mix.binders} | {s.sand: s.parts for s in mix.sands}
     rows = [{"name": ws.label(env.project, mix, k), "kind": ws.kind_of(mix, k),
              "parts": as_given(parts[k]) if k in parts else "—",
@@ -57,12 +53,12 @@ def _mix(env, mix) -> dict:
             for k, v in per_m3.items()]
     return {"id": mix.id, "name": mix.name, "rows": rows,
             "wb": as_given(mix.water_binder_ratio) if mix.water_binder_ratio else "—",
-            "check": _link(_check(env, "MIX-YIELD", mix.id)),
-            "gauge": _link(_check(env, "SITE-GAUGE", mix.id))}
+            "check": _link(env.results.check("MIX-YIELD", mix.id)),
+            "gauge": _link(env.results.check("SITE-GAUGE", mix.id))}
 
 
 def _zone(env, z: ws.ZoneSchedule) -> dict:
-    c = _check(env, "WORKS-QTY", z.zone.id)
+    c = env.results.check("WORKS-QTY", z.zone.id)
     return {"id": z.zone.id, "name": z.zone.name, "works": z.zone.works,
             "net": num(z.net, 4) if z.net is not None else None,
             "total": num(z.total, 4) if z.total is not None else None,
@@ -114,7 +110,7 @@ def cards(env) -> list[dict]:
     """One page per mix that has a gauging (SITE-GAUGE): the printable batching card."""
     pages = []
     for mix in env.project.mixes.values():
-        g = ws.quantity(env.results, mix.id, "gauging")
+        g = env.results.value(mix.id, "gauging")
         if g:
             pages.append(dict(_card(env, mix, g), path=card_path(mix.id),
                               title=f"Batching card {mix.id}"))
@@ -123,13 +119,13 @@ def cards(env) -> list[dict]:
 
 def _card(env, mix, g: dict) -> dict:
     p, r = env.project, env.results
-    life = ws.quantity(r, mix.id, "workable_life")
+    life = r.value(mix.id, "workable_life")
     cautions, closing = card_cautions(p, mix)
-    window = ws.quantity(r, p.dossier.project.code, "weather_window")
+    window = r.value(p.dossier.project.code, "weather_window")
     return {"mix": {"id": mix.id, "name": mix.name}, "measure": as_given(g["measure_L"]),
             "halved_from": as_given(g["halved_from_L"]) if g["halved_from_L"] else None,
             "volume": num(g["volume_L"], 3), "water": num(g["water_L"], 3),
             "life": as_given(life["value"]), "life_measured": life["measured"],
             "steps": ws.card_steps(p, mix, g), "zones": ws.card_zones(r, mix.id),
             "weather": _weather(window, None), "cautions": cautions, "closing": closing,
-            "check": _link(_check(env, "SITE-GAUGE", mix.id))}
+            "check": _link(env.results.check("SITE-GAUGE", mix.id))}

@@ -47,11 +47,6 @@ class ZoneSchedule:
     mixes: tuple[MixItems, ...]
 
 
-def quantity(results, subject: str, name: str):
-    q = results.quantities.get(subject, {}).get(name)
-    return q.value if q is not None else None
-
-
 def label(project, mix, key: str) -> str:
     """A constituent's name for people: binder or sand name with its id, water, admixture."""
     if key in project.binders:
@@ -74,26 +69,26 @@ def schedule(project, results) -> list[ZoneSchedule]:
     rules = RuleBook(project.dossier.rule_overrides)
     out = []
     for z in project.dossier.zones:
-        total = quantity(results, z.id, "mortar_volume")
+        total = results.value(z.id, "mortar_volume")
         wastage = None
         if total is not None:
             wastage = 100 * wc.zone_volume(z, project, rules).wastage.value
         mixes = tuple(m for m in (_mix_items(project, results, z.id, mix)
                                   for mix in wc.mixes_of(z, project)) if m.items)
-        out.append(ZoneSchedule(z, quantity(results, z.id, "mortar_volume_net"), total, wastage,
-                                quantity(results, z.id, "joint_length_per_m2"), mixes))
+        out.append(ZoneSchedule(z, results.value(z.id, "mortar_volume_net"), total, wastage,
+                                results.value(z.id, "joint_length_per_m2"), mixes))
     return out
 
 
 def _mix_items(project, results, zone_id: str, mix) -> MixItems:
-    bags = (quantity(results, zone_id, "bags") or {}).get(mix.id, {})
+    bags = (results.value(zone_id, "bags") or {}).get(mix.id, {})
     items = []
     for kind, name in MASS_NAMES:
-        for key, kg in ((quantity(results, zone_id, name) or {}).get(mix.id) or {}).items():
+        for key, kg in ((results.value(zone_id, name) or {}).get(mix.id) or {}).items():
             b = project.binders.get(key) if kind == "binder" else None
             items.append(Item(kind, key, label(project, mix, key), kg, bags.get(key),
                               b.bag_mass if b is not None and key in bags else None))
-    water = (quantity(results, zone_id, "water_mass") or {}).get(mix.id)
+    water = (results.value(zone_id, "water_mass") or {}).get(mix.id)
     if water is not None:
         items.append(Item("water", wc.WATER, "water", water))
     return MixItems(mix.id, tuple(sorted(items, key=lambda i: (KIND_ORDER.index(i.kind), i.id))))
@@ -152,7 +147,7 @@ def card_steps(project, mix, g: dict) -> list[dict]:
 
 
 def card_zones(results, mix_id: str) -> list[dict]:
-    vmax = quantity(results, mix_id, "max_gauging_volume") or {}
-    per_day = quantity(results, mix_id, "gaugings_per_day") or {}
+    vmax = results.value(mix_id, "max_gauging_volume") or {}
+    per_day = results.value(mix_id, "gaugings_per_day") or {}
     return [{"zone": z, "vmax": f"{v:.3g}", "per_day": per_day.get(z, "—")}
             for z, v in vmax.items()]
