@@ -30,7 +30,7 @@ def single(demo_copy):
     return demo_copy
 
 
-def test_cache_hit_equals_fresh_render_and_reissue_redraws_little(single, tmp_path):
+def test_cache_hit_equals_fresh_render_and_reissue_redraws_little(single, tmp_path, monkeypatch):
     folder = tmp_path / "cache"
     fresh = _render(single)
     first = _render(single, folder)
@@ -43,12 +43,21 @@ def test_cache_hit_equals_fresh_render_and_reissue_redraws_little(single, tmp_pa
 
     csv = single / "lab" / "strength.csv"
     csv.write_text(csv.read_text() + "M1-90d-C9,M1,90,compressive,7.9,20\n")
+    drawn = []                                  # (kind, inputs) of every artefact drawn anew
+    real = cache.cached
+
+    def spy(kind, inputs, produce):
+        return real(kind, inputs, lambda: (drawn.append((kind, repr(inputs))), produce())[1])
+    monkeypatch.setattr(cache, "cached", spy)
     reissued = _render(single, folder)
+    monkeypatch.undo()
     new = _entries(folder) - before
     # one new M1 result: M1's figures and the sheets whose numbers move are redrawn; the rest
     # (other mixes, chemistry, the unchanged formulas) come from the cache
-    assert new and len(new) < 0.5 * len(before)
-    assert not any("strength-M3" in p for p in new)  # M3 untouched
+    assert new and len(new) < 0.5 * len(before) and len(drawn) == len(new)
+    redrawn = [inputs for kind, inputs in drawn if kind.endswith("strength_age")]
+    assert redrawn and all("'M1 " in i for i in redrawn)   # M1's figures only
+    assert not any("'M3 " in i for i in redrawn)            # M3 untouched
     assert reissued == _render(single)         # the re-issue equals a fresh render, byte for byte
 
 

@@ -79,7 +79,7 @@ def _grading_step(name: str, g: gr.Grading, fm: float, src: str) -> Step:
 @register("COMP-GRAD", "Aggregate grading against the historic aggregate", "zone", order=550)
 def grading_check(zone, ctx):
     """Fineness modulus, RMS difference from the historic aggregate, envelope."""
-    return [_grading_one(p, ctx) for p in cc.pairs(zone, ctx.project)]
+    return cc.each_pair("COMP-GRAD", zone, ctx, _grading_one)
 
 
 def _grading_one(pair, ctx):
@@ -119,7 +119,7 @@ def _grading_one(pair, ctx):
     msg.append(f"RMS difference from the historic aggregate {100 * dev.rms:.1f} % (at most "
                f"{rms_lim:g} %), largest {100 * dev.max_abs:.1f} %")
     limits = [(e["sieve_mm"] / 1000, e["low"] / 100, e["high"] / 100) for e in env["limits"]]
-    usable = [lim for lim in limits if gr.match_sieve(lim[0], g.sieves) or lim[0] > g.sieves[0]]
+    usable = [lim for lim in limits if gr.known_at(g, lim[0])]
     skipped = [lim[0] for lim in limits if lim not in usable]
     if skipped:
         notes.append("envelope sieves without a result, not compared: "
@@ -149,7 +149,7 @@ def _grading_one(pair, ctx):
 @register("COMP-BLEND", "Sand blend that best matches the historic aggregate", "zone", order=551)
 def blend_check(zone, ctx):
     """Non-negative least-squares blend of the sands against the historic grading."""
-    return [_blend_one(p, ctx) for p in cc.pairs(zone, ctx.project)]
+    return cc.each_pair("COMP-BLEND", zone, ctx, _blend_one)
 
 
 def _blend_one(pair, ctx):
@@ -192,7 +192,7 @@ def _blend_one(pair, ctx):
 @register("COMP-BA", "Binder:aggregate of the historic mortar", "zone", order=552)
 def binder_aggregate_check(zone, ctx):
     """Binder:aggregate from acid digestion, by mass and volume, beside the mix's proportions."""
-    return [_ba_one(p, ctx) for p in cc.pairs(zone, ctx.project)]
+    return cc.each_pair("COMP-BA", zone, ctx, _ba_one)
 
 
 def _ba_one(pair, ctx):

@@ -29,7 +29,7 @@ def readings(project, sample: str):
 @register("COMP-COLOUR", "Colour of the trial panel against the historic mortar", "zone", order=560)
 def colour_check(zone, ctx):
     """Mean CIELAB of panel and historic mortar, spread, CIEDE2000 against the threshold."""
-    return [_colour_one(p, ctx) for p in cc.pairs(zone, ctx.project)]
+    return cc.each_pair("COMP-COLOUR", zone, ctx, _colour_one)
 
 
 def _summary_step(name: str, rows, s: colour.LabSummary) -> Step:

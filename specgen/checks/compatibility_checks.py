@@ -136,7 +136,7 @@ def strength_historic_check(zone, ctx):
 def capillary(material, sample_id: str, project) -> tuple[float, str, Step | None] | None:
     """(coefficient kg/(m²·min^0.5), source, fit step) given or fitted to lab/capillary.csv."""
     rows = [r for r in project.capillary if r.sample == sample_id]
-    if len(rows) >= 3:
+    if rows:  # readings given are used, or the reason they cannot be is said (never ignored)
         fit = moisture.capillary_coefficient([r.time for r in rows], [r.uptake for r in rows])
         c = fit.slope * ROOT_MIN
         inputs = tuple(Input("W_i", f"uptake at {r.time / 60:g} min", round(r.uptake, 4),
@@ -156,7 +156,7 @@ def capillary(material, sample_id: str, project) -> tuple[float, str, Step | Non
 @register("COMP-MOIST", "Repair at least as open as the units", "zone", order=520)
 def moisture_check(zone, ctx):
     """Capillary absorption and vapour resistance factor of repair and units, side by side."""
-    return [_moisture_one(p, ctx) for p in cc.pairs(zone, ctx.project)]
+    return cc.each_pair("COMP-MOIST", zone, ctx, _moisture_one)
 
 
 def _moisture_one(pair, ctx):
@@ -220,7 +220,7 @@ def _moisture_one(pair, ctx):
 @register("COMP-MOVE", "Similar thermal and moisture movement", "zone", order=530)
 def movement_check(zone, ctx):
     """Thermal (and hygric) expansion of repair against the units, within a relative tolerance."""
-    return [_movement_one(p, ctx) for p in cc.pairs(zone, ctx.project)]
+    return cc.each_pair("COMP-MOVE", zone, ctx, _movement_one)
 
 
 def _movement_one(pair, ctx):

@@ -38,6 +38,23 @@ def pairs(zone, project) -> list[Pair]:
             for m in zone.candidates]
 
 
+def each_pair(code: str, zone, ctx, fn) -> list[CheckResult]:
+    """``fn(pair, ctx)`` for every candidate of ``zone``; readings the science refuses
+    (a grading, capillary or colour input error) give that pair an explicit *not assessed*
+    with the reason, never a crash of the whole run."""
+    from specgen.checks.registry import title_of
+    from specgen.science.colour import ColourInputError
+    from specgen.science.grading import GradingInputError
+    from specgen.science.moisture import MoistureInputError
+    out = []
+    for pair in pairs(zone, ctx.project):
+        try:
+            out.append(fn(pair, ctx))
+        except (GradingInputError, MoistureInputError, ColourInputError) as exc:
+            out.append(not_assessed(code, title_of(code), pair, [str(exc)]))
+    return out
+
+
 def result(code: str, title: str, pair: Pair, status: str, value, unit: str, basis,
            message: str, steps=(), limit: Limit | None = None, quantities=(), notes=()) -> CheckResult:
     return CheckResult(code=code, title=title, subject=pair.subject, subject_kind="zone",

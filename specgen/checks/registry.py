@@ -47,6 +47,11 @@ def register(code: str, title: str, subject_kind: str, order: int = 500, descrip
     return deco
 
 
+def title_of(code: str) -> str:
+    """The registered title of check ``code`` (one place for it)."""
+    return _REGISTRY[code].title
+
+
 def unregister(code: str) -> None:
     """Remove a check (for tests and extensions replacing a built-in one)."""
     _REGISTRY.pop(code, None)

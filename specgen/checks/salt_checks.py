@@ -64,7 +64,7 @@ def aluminate_rich(mix, project, ctx) -> tuple[bool, str]:
 @register("COMP-SALT", "Salt load of the fabric and sulfate expansion risk", "zone", order=540)
 def salt_check(zone, ctx):
     """Salt-load classes of the fabric by the chosen table; ettringite/thaumasite risk."""
-    return [_salt_one(p, ctx) for p in cc.pairs(zone, ctx.project)]
+    return cc.each_pair("COMP-SALT", zone, ctx, _salt_one)
 
 
 def _salt_one(pair, ctx):

@@ -44,7 +44,6 @@ Volume = Annotated[float, _quantity("volume"), AfterValidator(_positive)]
 Mass = Annotated[float, _quantity("mass"), AfterValidator(_positive)]
 VolumeRate = Annotated[float, _quantity("volume_rate"), AfterValidator(_positive)]
 MassPercent = Annotated[float, BeforeValidator(lambda v: _percent(v)), Field(ge=0, le=100)]
-Mass = Annotated[float, _quantity("mass"), AfterValidator(_positive)]
 Expansion = Annotated[float, _quantity("expansion"), AfterValidator(_positive)]
 Capillary = Annotated[float, _quantity("capillary"), AfterValidator(_positive)]
 
@@ -311,6 +310,14 @@ class AcidDigestion(Model):
     aggregate_bulk_density: Density | None = Field(
         None, description="loose bulk density of the recovered aggregate, e.g. '1500 kg/m^3'")
     laboratory: Text = Field("", description="who did it, report reference")
+
+    @model_validator(mode="after")
+    def _residue_within_sample(self):
+        # the acid-insoluble residue is part of the sample: it cannot weigh more
+        if self.residue_mass >= self.sample_mass:
+            raise ValueError("residue_mass must be less than sample_mass (the residue is part "
+                             "of the sample); check the two masses and their units")
+        return self
 
 
 class MasonryUnit(Hygrothermal):

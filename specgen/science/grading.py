@@ -126,18 +126,21 @@ def fineness_modulus(g: Grading, fm_sieves: Sequence[float]) -> float:
     return total
 
 
+def known_at(g: Grading, size: float) -> bool:
+    """Whether ``g`` gives the passing at ``size``: a sieve of the analysis, or one coarser
+    than its top sieve when everything passed there."""
+    return (match_sieve(size, g.sieves) is not None
+            or (size > g.sieves[0] and g.passing[0] >= 1.0 - 1e-9))
+
+
 def passing_at(g: Grading, sieves: Sequence[float]) -> np.ndarray:
-    """Passing fractions of ``g`` at ``sieves`` (each must be in the analysis, or coarser
-    than its top sieve with everything passing there)."""
+    """Passing fractions of ``g`` at ``sieves`` (each must be :func:`known_at`)."""
     out = []
     for s in sieves:
-        m = match_sieve(s, g.sieves)
-        if m is not None:
-            out.append(g.passing[g.sieves.index(m)])
-        elif s > g.sieves[0] and g.passing[0] >= 1.0 - 1e-9:
-            out.append(1.0)
-        else:
+        if not known_at(g, s):
             raise GradingInputError(f"no result on the {s * 1000:g} mm sieve")
+        m = match_sieve(s, g.sieves)
+        out.append(g.passing[g.sieves.index(m)] if m is not None else 1.0)
     return np.array(out)
 
 

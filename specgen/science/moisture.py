@@ -49,6 +49,9 @@ def capillary_coefficient(times_s: Sequence[float], uptake: Sequence[float]) -> 
     xm, wm = x.mean(), w.mean()
     sxx = float(np.sum((x - xm) ** 2))
     slope = float(np.sum((x - xm) * (w - wm)) / sxx)
+    if slope <= 0:
+        raise MoistureInputError("the uptake does not rise with √t: check the readings' order "
+                                 "and units")
     intercept = float(wm - slope * xm)
     resid = w - (intercept + slope * x)
     sst = float(np.sum((w - wm) ** 2))

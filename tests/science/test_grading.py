@@ -83,6 +83,7 @@ def test_envelope_comparison_inside_and_outside():
     assert compare_envelope(inside, env).within
     coarse = from_passing([s * MM for s in sizes], [1, .9, .7, .5, .2, .08, .02], SERIES)
     cmp = compare_envelope(coarse, env)
+    # by hand: 90 % passing 2.36 mm against the C144 lower limit of 95 % -> 0.05 outside
     assert not cmp.within and cmp.outside[1] == pytest.approx(0.05)
 
 
@@ -95,10 +96,11 @@ def test_blend_fit_recovers_known_proportions():
     fit = fit_blend([a, b, c], target)
     assert fit.proportions == pytest.approx((0.5, 0.2, 0.3), abs=1e-4)
     assert fit.rms < 1e-5
-    # non-negativity: a target finer than every sand gives the finest sand alone
+    # non-negativity: a target finer than every sand gives the finest sand (b) alone
     fine = from_passing(sizes, [1.0, 1.0, 0.95, 0.8, 0.5, 0.25], SERIES)
     fit2 = fit_blend([a, b, c], fine)
     assert min(fit2.proportions) >= 0 and sum(fit2.proportions) == pytest.approx(1.0)
+    assert fit2.proportions == pytest.approx((0.0, 1.0, 0.0), abs=1e-6)
     # reference: scipy.optimize.lsq_linear with bounds [0, 1] on the same augmented system
     A = np.column_stack([[1.0, 0.92, 0.74, 0.51, 0.24, 0.07], [1.0, 0.99, 0.83, 0.58, 0.33, 0.14],
                          [1.0, 0.80, 0.50, 0.30, 0.10, 0.02]])

@@ -1,5 +1,4 @@
 """Capillary absorption coefficient (least squares against root time) and sd = μ·d."""
-import math
 
 import numpy as np
 import pytest
@@ -27,19 +26,9 @@ def test_slope_against_scipy_linregress():
     assert fit.r2 == pytest.approx(ref.rvalue ** 2, rel=1e-12)
 
 
-def test_en1015_18_two_point_factor():
-    # EN 1015-18: C = 0.1 (M2 - M1) kg/(m²·min^0.5), M in g at 10 and 90 min on a 40 x 40 mm
-    # face (from memory).  The factor is 1 / (A (√90 - √10)) with A = 0.0016 m², mass in kg:
-    factor = 1e-3 / (0.0016 * (math.sqrt(90) - math.sqrt(10)))
-    assert factor == pytest.approx(0.1, rel=0.02)
-    # two readings are the least-squares line through them
-    m1, m2 = 3.1e-3, 7.9e-3                         # kg
-    t = [10 * 60.0, 90 * 60.0, 50 * 60.0]
-    w = [m1 / 0.0016, m2 / 0.0016]
-    w.append(w[0] + (w[1] - w[0]) * (math.sqrt(50) - math.sqrt(10)) / (math.sqrt(90) - math.sqrt(10)))
-    fit = capillary_coefficient(t, w)
-    assert fit.slope * math.sqrt(60) == pytest.approx(factor * (m2 - m1) * 1e3, rel=1e-9)
-
+def test_uptake_that_does_not_rise_is_refused():
+    with pytest.raises(MoistureInputError, match="does not rise with √t"):
+        capillary_coefficient([300.0, 1800.0, 5400.0], [2.9, 1.7, 0.8])
 
 def test_bad_readings():
     with pytest.raises(MoistureInputError, match="at least three readings"):
