@@ -160,6 +160,11 @@ def test_clauses_follow_a_changed_requirement_and_rule(demo_copy):
     assert "is at least 2.5 MPa [STR-MIN/M2]" in md
     assert "no set has a mean below 1.875 MPa [SPEC-ACCEPT/Z1]" in md   # 0.75 × 2.5
     assert "at or below 7 °C" in md
+    # an overridden rule carries its written justification wherever it is an input
+    inputs = [i for st in by(r)[("SPEC-ACCEPT", "Z1")].steps for i in st.inputs]
+    assert any(i.source.startswith("rule specification.individual_minimum") and
+               i.source.endswith("project override: few sets per zone in the short harbour "
+                                 "season") for i in inputs)
 
 
 def test_project_template_overrides_the_clause_wording(demo_copy):

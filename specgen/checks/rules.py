@@ -32,6 +32,17 @@ class Rule:
     default: float | None = None
     justification: str = ""
 
+    def source(self) -> str:
+        """Where the value comes from, as an input's source: the rule, its basis and, when
+        the project overrides it, the written justification."""
+        text = f"rule {self.key} ({self.basis.text()})"
+        return text + (f"; project override: {self.justification}" if self.justification else "")
+
+    def si(self, kind: str) -> float:
+        """The value in SI (``kind`` as in specgen.units); a unitless rule as it stands."""
+        from specgen import units
+        return units.to_si(self.value, self.unit, kind) if self.unit else self.value
+
 
 def _basis(raw: dict, where: str) -> Basis:
     if not isinstance(raw, dict) or raw.get("kind") not in {"reference", "common practice",

@@ -169,13 +169,11 @@ def _judged(zone, sel, checks, status: str) -> CheckResult:
 # ---------------------------------------------------------------- sampling
 def _setting(spec, name: str, rules, kind: str):
     """(value SI, source): the project's site_tests value, else the rule."""
-    from specgen import units
     given = getattr(spec.doc.site_tests, name) if spec else None
     if given is not None:
         return given, f"{SPEC_FILE} site_tests.{name}"
     r = rules[f"specification.{name}"]
-    value = units.to_si(r.value, r.unit, kind) if r.unit else r.value
-    return value, f"rule specification.{name} ({r.basis.text()})"
+    return r.si(kind), r.source()
 
 
 def site_test_ages(project, spec) -> list[tuple[float, str]]:

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from specgen import refdata, units
+from specgen import refdata
 from specgen.science import mix_design as md
 from specgen.science import works as wk
 
@@ -28,11 +28,7 @@ class Sourced:
 def rule_si(rules, name: str, kind: str) -> Sourced:
     """A works rule converted to SI, with its source text."""
     r = rules[f"works.{name}"]
-    value = units.to_si(r.value, r.unit, kind) if r.unit else r.value
-    note = f"rule works.{name} ({r.basis.text()})"
-    if r.justification:
-        note += f"; project override: {r.justification}"
-    return Sourced(value, note)
+    return Sourced(r.si(kind), r.source())
 
 
 def _default(table: str, key: str) -> Sourced:
