@@ -14,7 +14,7 @@ from __future__ import annotations
 from specgen import refdata
 from specgen.checks import compatibility_common as cc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, Input, Limit, Quantity, Step
+from specgen.checks.result import Basis, Input, Quantity, Step
 from specgen.science import grading as gr
 
 declare("fineness_modulus", "", "fineness modulus (ASTM C125) of the repair sand and of the "
@@ -91,7 +91,7 @@ def _grading_one(pair, ctx):
         missing.append(why)
     if missing:
         return cc.not_assessed(code, title, pair, missing, basis=(C125,))
-    ekey, env = envelope(ctx)
+    _, env = envelope(ctx)
     steps, statuses, msg, notes = [], [], [], []
     fm = {}
     for name, gg, src in ((f"repair sand of {pair.mix_id}", g,
@@ -239,4 +239,4 @@ def _ba_one(pair, ctx):
                      quantities=[Quantity("binder_aggregate_ratio", q, "", "binder:aggregate")])
 
 
-__all__ = ["grading_check", "blend_check", "binder_aggregate_check", "Limit"]
+__all__ = ["grading_check", "blend_check", "binder_aggregate_check"]

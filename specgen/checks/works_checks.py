@@ -18,7 +18,6 @@ WORKS = Basis("common practice", note="quantities from the zone's dimensions; wa
               "applied once (content/rules/works.yaml)")
 WEATHER = Basis("common practice", note="working-temperature window and curing durations of "
                 "content/rules/works.yaml")
-L = 1e-3  # m³ per litre
 
 declare("mass_proportions", "", "binder : each sand by mass, from parts by loose volume and bulk "
         "densities (binders together = 1)")

@@ -211,8 +211,9 @@ def _role_ref(project, role, what: str, where: tuple, located, log: ProblemLog) 
 
 def _hold_point_refs(project, hold_points, located, log: ProblemLog) -> None:
     """Releasing role of each hold point; a release names its revision and its evidence."""
+    from specgen.project.load import ARCHIVE_DIR
     revisions = [project.revision.code] + sorted(
-        d.name for d in (project.root / "issued").glob("*") if d.is_dir())
+        d.name for d in (project.root / ARCHIVE_DIR).glob("*") if d.is_dir())
     seen: set[str] = set()
     for i, h in enumerate(hold_points):
         if h.id in seen:
