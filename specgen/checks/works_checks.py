@@ -28,6 +28,7 @@ declare("joint_length_per_m2", "m/m²", "joint length per m² of wall face, stre
         "(bed joints + perpends net of crossings)")
 declare("mortar_volume", "m³", "mortar volume of a zone, wastage allowance included (applied once)")
 declare("mortar_volume_net", "m³", "mortar volume of a zone before wastage")
+declare("wastage", "%", "wastage allowance applied (once) to a zone's mortar volume")
 declare("binder_mass", "kg", "mass of each binder for a zone, by mix")
 declare("sand_mass", "kg", "mass of each sand for a zone, by mix")
 declare("water_mass", "kg", "mass of gauging water for a zone, by mix")
@@ -162,7 +163,8 @@ def works_quantities_check(zone, ctx) -> CheckResult:
             masses["bags"][mix.id] = t.bags
         steps.append(_totals_step(mix, v, y.value, t, bags))
     q = [Quantity("mortar_volume", round(v.total, 5), "m³", "mortar volume with wastage"),
-         Quantity("mortar_volume_net", round(v.net, 5), "m³", "mortar volume before wastage")]
+         Quantity("mortar_volume_net", round(v.net, 5), "m³", "mortar volume before wastage"),
+         Quantity("wastage", round(100 * v.wastage.value, 4), "%", "wastage allowance")]
     if v.joint_length is not None:
         q.append(Quantity("joint_length_per_m2", round(v.joint_length, 4), "m/m²",
                           "joint length per m² of face"))

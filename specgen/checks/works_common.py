@@ -142,9 +142,9 @@ def zone_volume(zone, project, rules) -> ZoneVolume:
                                   ("the unit's height", unit and unit.height)) if not v]
         if missing:
             return ZoneVolume(0, wastage, 0, reason="give " + ", ".join(missing))
+        ratio = rules["works.joint_depth_ratio"]
         depth = (Sourced(zone.joint_depth, f"{where}.joint_depth") if zone.joint_depth
-                 else Sourced(rules["works.joint_depth_ratio"].value * zone.joint_width,
-                              "rule works.joint_depth_ratio × joint width (common practice)"))
+                 else Sourced(ratio.value * zone.joint_width, f"joint width × {ratio.source()}"))
         L = wk.joint_length_per_m2(unit.length, unit.height, zone.joint_width)
         net = wk.repointing_volume(zone.area, L, zone.joint_width, depth.value)
         inputs = (("A", "wall area", zone.area, "m²", 1, f"{where}.area"),

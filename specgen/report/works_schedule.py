@@ -13,7 +13,6 @@ import io
 from dataclasses import dataclass
 
 from specgen.checks import works_common as wc
-from specgen.checks.rules import RuleBook
 
 KIND_ORDER = ("volume", "binder", "bags", "sand", "water", "admixture")
 MASS_NAMES = (("binder", "binder_mass"), ("sand", "sand_mass"), ("admixture", "admixture_mass"))
@@ -66,13 +65,9 @@ def kind_of(mix, key: str) -> str:
 
 def schedule(project, results) -> list[ZoneSchedule]:
     """Per zone (in dossier order): volumes and, per mix, every constituent's mass."""
-    rules = RuleBook(project.dossier.rule_overrides)
     out = []
     for z in project.dossier.zones:
-        total = results.value(z.id, "mortar_volume")
-        wastage = None
-        if total is not None:
-            wastage = 100 * wc.zone_volume(z, project, rules).wastage.value
+        total, wastage = results.value(z.id, "mortar_volume"), results.value(z.id, "wastage")
         mixes = tuple(m for m in (_mix_items(project, results, z.id, mix)
                                   for mix in wc.mixes_of(z, project)) if m.items)
         out.append(ZoneSchedule(z, results.value(z.id, "mortar_volume_net"), total, wastage,
