@@ -54,7 +54,7 @@ def _r(x: float, n: int = 4) -> float:
 def mix_yield_check(mix, ctx) -> CheckResult:
     """Proportions by volume and by mass; absolute-volume yield in kg per m³ with air content."""
     title, p = "Mix proportions and yield", ctx.project
-    y = wc.mix_yield(p, mix, ctx.rules)
+    y = wc.yield_of(ctx, mix)
     if y is None:
         why = (f"water is gauged to the consistence target {mix.consistence * 1000:g} mm "
                "(EN 1015-3)" if mix.consistence else "no water/binder ratio is given")

@@ -96,6 +96,15 @@ def mix_yield(project, mix, rules) -> md.MixYield | None:
                                     water_density().value, doses)
 
 
+def yield_of(ctx, mix) -> md.MixYield | None:
+    """:func:`mix_yield` once per mix and run (kept on the check context): MIX-YIELD and
+    SITE-GAUGE use the same numbers."""
+    found = ctx.__dict__.setdefault("_yields", {})
+    if mix.id not in found:
+        found[mix.id] = mix_yield(ctx.project, mix, ctx.rules)
+    return found[mix.id]
+
+
 def fresh_per_loose_binder(y: md.MixYield, mix) -> float:
     """Y_b: m³ of fresh mortar per m³ of loose binder."""
     return y.fresh_volume / sum(b.parts for b in mix.binders)

@@ -64,7 +64,7 @@ def gauging_check(mix, ctx) -> CheckResult | list:
     zones = [z for z in p.dossier.zones if mix.id in [m.id for m in wc.mixes_of(z, p)]]
     if not zones:
         return []
-    y = wc.mix_yield(p, mix, ctx.rules)
+    y = wc.yield_of(ctx, mix)
     if y is None:
         return CheckResult(code="SITE-GAUGE", title=TITLE, subject=mix.id, subject_kind="mix",
                            status="not_assessed", value=None, unit="", basis=(GAUGE,),
