@@ -149,21 +149,22 @@ def _colour_figure(env, z, pairs) -> dict | None:
 
 
 def _moisture_figure(env, z, pairs) -> dict | None:
-    p = env.project
+    """Bars from what COMP-MOIST recorded per pair (the figure computes nothing)."""
     if not pairs:
         return None
-    bars = []
-    unit, hist = pairs[0].unit, pairs[0].historic
-    for role, m in (("unit", unit), ("historic", hist)):
-        if m is not None:
-            c = cmp.capillary(m, m.id, p)
-            bars.append({"label": f"{m.id} ({'units' if role == 'unit' else 'historic'})",
-                         "role": role, "capillary": round(c[0], 3) if c else None,
-                         "mu": m.vapour_resistance_factor})
-    for pr in pairs:
-        c = cmp.capillary(pr.props, pr.mix_id, p)
-        bars.append({"label": pr.mix_id, "role": "repair", "capillary": round(c[0], 3) if c else None,
-                     "mu": pr.props.vapour_resistance_factor if pr.props else None})
+    r = env.results
+    caps = [r.value(pr.subject, "capillary_coefficient") or {} for pr in pairs]
+    mus = [r.value(pr.subject, "vapour_resistance_factor") or {} for pr in pairs]
+
+    def first(key, found):
+        return next((f[key] for f in found if key in f), None)
+    bars = [{"label": f"{m.id} ({word})", "role": role, "capillary": first(key, caps),
+             "mu": first(key, mus)}
+            for role, key, word, m in (("unit", "units", "units", pairs[0].unit),
+                                       ("historic", "historic", "historic", pairs[0].historic))
+            if m is not None]
+    bars += [{"label": pr.mix_id, "role": "repair", "capillary": c.get("repair"),
+              "mu": mu.get("repair")} for pr, c, mu in zip(pairs, caps, mus)]
     if not any(b["capillary"] or b["mu"] for b in bars):
         return None
     from specgen.report.compatibility_figures import moisture_bars

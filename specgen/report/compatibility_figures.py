@@ -86,7 +86,7 @@ def moisture_bars(bars: list[dict]) -> bytes:
         vals = [b[key] if b[key] is not None else 0.0 for b in bars]
         ax.barh(ys, vals, color=colours, height=0.6)
         for y, b, v in zip(ys, bars, vals):
-            ax.text(v, y, f" {b[key]:g}" if b[key] is not None else " not given", va="center",
+            ax.text(v, y, f" {b[key]:.3g}" if b[key] is not None else " not given", va="center",
                     fontsize=7)
         ax.set_title(title, fontsize=8)
         ax.margins(x=0.25)
