@@ -53,7 +53,7 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
 
 
 def _publish_into(staging, project, results, pages, page_size, progress, changes, parallel):
-    from specgen.publish.pdf import to_html, write_pdf
+    from specgen.publish.pdf import write_pdf
     from specgen.publish.site import build_site
     rev = project.revision
     name = f"{project.dossier.project.title} — {rev.code}"
@@ -70,7 +70,7 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     ident = hashlib.sha256(f"{project.dossier.project.code}/{rev.code}".encode()).digest()[:16]
     pdf_tmp = staging.with_name(staging.name + ".pdf")  # beside the site: MkDocs empties its folder
     try:
-        write_pdf(pages, to_html(pages, _print_context(project)), pdf_tmp, attachments=attachments,
+        write_pdf(pages, _print_context(project), pdf_tmp, attachments=attachments,
                   page_size=page_size, identifier=ident, stamp=_stamp(rev.date))
         if child is not None:
             _join(child)
@@ -96,6 +96,8 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
 
 
 def _child(fn, args, conn) -> None:
+    from specgen.publish.pdf_parts import die_with_parent
+    die_with_parent()
     try:
         fn(*args)
         conn.send(None)

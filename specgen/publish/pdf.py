@@ -9,6 +9,7 @@ from __future__ import annotations
 
 import mimetypes
 import re
+from dataclasses import dataclass
 
 import jinja2
 import yaml
@@ -70,22 +71,87 @@ def _landscape_wide_tables(html: str) -> str:
     return re.sub(r"<table>.*?</table>", wrap, html, flags=re.S)
 
 
-def to_html(pageset, context: dict) -> str:
-    """The print HTML: cover, contents, then every page in navigation order."""
+PART_SIZE = 80_000  # characters of HTML: a chapter longer than this prints in parts
+
+
+@dataclass(frozen=True)
+class Piece:
+    """A run of one chapter's HTML that starts a new page (``cont``: not the chapter's first)."""
+
+    id: str
+    title: str
+    html: str
+    cont: bool = False
+
+
+def _cut_points(html: str, size: int) -> list[int]:
+    """Offsets of top-level ``<h2`` at which a long chapter is cut, about every ``size``."""
+    cuts, depth, last = [], 0, 0
+    for m in re.finditer(r"<(/?)(div|details|table|blockquote|figure|ul|ol|h2)\b", html):
+        tag = m.group(2)
+        if tag == "h2":
+            if not m.group(1) and depth == 0 and m.start() - last >= size:
+                cuts.append(m.start())
+                last = m.start()
+            continue
+        depth += -1 if m.group(1) else 1
+    return cuts
+
+
+def pieces(pageset, size: int = PART_SIZE) -> list[Piece]:
+    """Every chapter of the print in navigation order, long ones cut at top-level headings.
+
+    Each piece starts a new page, in the assembled dossier and in a single-document render
+    alike, so the cut points are the same page breaks either way.
+    """
     import markdown
+    from specgen.report.safety import neutralise_links
     names, configs = _extensions()
-    sections = []
+    out = []
     for item in pageset.nav:
         md = markdown.Markdown(extensions=names, extension_configs=configs)
-        from specgen.report.safety import neutralise_links
         body = _relink(neutralise_links(md.convert(pageset.pages[item.path])), _stem(item.path))
         body = _landscape_wide_tables(body)
-        sections.append({"id": _page_id(item.path), "title": item.title, "html": body})
+        bounds = [0, *_cut_points(body, size), len(body)]
+        for i, (a, b) in enumerate(zip(bounds, bounds[1:])):
+            out.append(Piece(_page_id(item.path), item.title, body[a:b], cont=i > 0))
+    return out
+
+
+def _template(name: str):
     env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(PRINT_DIR)), autoescape=True)
-    env.filters["safe_html"] = jinja2.utils.markupsafe.Markup
-    tpl = env.get_template("print.html.j2")
-    return tpl.render(sections=[dict(s, html=jinja2.utils.markupsafe.Markup(s["html"]))
-                                for s in sections], **context)
+    return env.get_template(name)
+
+
+def document_html(context: dict, sections: list[Piece], *, front: bool,
+                  toc_pages: dict[str, int] | None = None, toc: list[Piece] = ()) -> str:
+    """One print document: the cover and contents (``front``) and/or chapter pieces.
+
+    ``toc_pages`` (chapter id → page number) writes the contents' numbers as text, for a
+    front matter printed on its own; without it the contents use the engine's counters.
+    """
+    Markup = jinja2.utils.markupsafe.Markup
+    entries = [{"id": p.id, "title": p.title,
+                "page": (toc_pages or {}).get(p.id) if toc_pages is not None else None}
+               for p in toc if not p.cont]
+    return _template("print.html.j2").render(
+        front=front, toc=entries,
+        sections=[{"id": p.id, "cont": p.cont, "html": Markup(p.html)} for p in sections],
+        **context)
+
+
+def to_html(pageset, context: dict) -> str:
+    """The whole print as one HTML document (cover, contents, every chapter in order)."""
+    every = pieces(pageset)
+    return document_html(context, every, front=True, toc=every)
+
+
+def stylesheet(page_size: str, *extra: str) -> str:
+    """The print CSS for ``page_size`` (``a4`` or ``letter``), with ``extra`` sheets after it."""
+    css = "\n".join((PRINT_DIR / name).read_text(encoding="utf-8")
+                    for name in ("print.css", *extra))
+    css = css.replace("size: A4;", f"size: {PAGE_SIZES[page_size]};", 1)
+    return css.replace("size: A4 landscape;", f"size: {PAGE_SIZES[page_size]} landscape;")
 
 
 def _fetcher(pageset):
@@ -104,20 +170,81 @@ def _fetcher(pageset):
     return PageSetFetcher()
 
 
-def write_pdf(pageset, html: str, target, *, attachments: dict[str, bytes], page_size: str = "a4",
-              identifier: bytes | None = None, stamp=None) -> None:
-    """Render ``html`` to a PDF/A-3b at ``target`` with ``attachments`` embedded.
+def parts(every: list[Piece], size: int = PART_SIZE) -> list[list[Piece]]:
+    """Consecutive pieces grouped into parts of about ``size`` characters each."""
+    out: list[list[Piece]] = []
+    for piece in every:
+        if out and sum(len(p.html) for p in out[-1]) + len(piece.html) <= size:
+            out[-1].append(piece)
+        else:
+            out.append([piece])
+    return out
 
-    ``stamp`` (a datetime, the revision date) dates the attachments, so identical
-    inputs give a byte-identical PDF.
+
+PDF_OPTIONS = {"pdf_variant": "pdf/a-3b", "custom_metadata": True}
+PLACEHOLDER_PAGE = 8888  # the contents laid out once with numbers of this width
+
+
+def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
+              page_size: str = "a4", identifier: bytes | None = None, stamp=None,
+              workers: int | None = None) -> None:
+    """Print the page set as a PDF/A-3b at ``target`` with ``attachments`` embedded.
+
+    The chapters are printed in parts on every core (unchanged parts come from the
+    artefact cache), the front matter once their page numbers are known, the running
+    heads last; :mod:`specgen.publish.pdf_assembly` puts them together.  ``stamp`` (a
+    datetime, the revision date) dates the attachments, so identical inputs give a
+    byte-identical PDF.
     """
-    import weasyprint
-    css = (PRINT_DIR / "print.css").read_text(encoding="utf-8")
-    css = css.replace("size: A4;", f"size: {PAGE_SIZES[page_size]};", 1)
-    css = css.replace("size: A4 landscape;", f"size: {PAGE_SIZES[page_size]} landscape;")
-    doc = weasyprint.HTML(string=html, base_url=BASE, url_fetcher=_fetcher(pageset))
-    files = [weasyprint.Attachment(string=data, name=name, description=name,
-                                   created=stamp, modified=stamp)
-             for name, data in sorted(attachments.items())]
-    doc.write_pdf(target, stylesheets=[weasyprint.CSS(string=css)], attachments=files,
-                  pdf_variant="pdf/a-3b", pdf_identifier=identifier, custom_metadata=True)
+    from specgen.publish.pdf_assembly import assemble, global_anchors
+    from specgen.publish.pdf_parts import Printer, cached_or_submitted
+    every = pieces(pageset)
+    css = stylesheet(page_size, "parts.css")
+    files = [(name, data, stamp) for name, data in sorted(attachments.items())]
+    with Printer(pageset, workers) as printer:
+        def front(numbers, **extra):
+            return printer.submit(document_html(context, [], front=True, toc=every,
+                                                toc_pages=numbers), css, **PDF_OPTIONS, **extra)
+        guess = front({p.id: PLACEHOLDER_PAGE for p in every})
+        groups = parts(every)
+        order = sorted(range(len(groups)), key=lambda i: -sum(len(p.html) for p in groups[i]))
+        handles = {i: cached_or_submitted(printer, "pdf-part", document_html(
+            context, groups[i], front=False), css, **PDF_OPTIONS) for i in order}
+        printed = [handles[i].result() for i in range(len(groups))]
+        length = len(guess.result().pages)
+        for _ in range(3):  # the contents' length does not depend on its numbers, but check
+            anchors = global_anchors([_Blank(length), *printed])
+            numbers = {p.id: anchors[p.id][0] + 1 for p in every if p.id in anchors}
+            final = front(numbers, attachments=files, pdf_identifier=identifier)
+            sizes = [s for doc in printed for s in doc.pages]
+            stamps = _stamps(printer, context, page_size, length, sizes)
+            done = final.result()
+            if len(done.pages) == length:
+                break
+            length = len(done.pages)
+        stamps = [s.result() for s in stamps]
+    assemble(done, printed, stamps, target)
+
+
+class _Blank:
+    """Stands for the front matter while its length is all that is known of it."""
+
+    def __init__(self, pages: int):
+        self.pages, self.anchors = [None] * pages, {}
+
+
+STAMP_SPLIT = 400  # pages per stamp document
+
+
+def _stamps(printer, context, page_size: str, front_pages: int, sizes: list) -> list:
+    """Submit the running-head stamps: one page per page of the dossier."""
+    total = front_pages + len(sizes)
+    kinds = ["cover"] + [None] * (front_pages - 1) + ["wide" if w > h else None for w, h in sizes]
+    pages = [{"number": i + 1, "kind": k} for i, k in enumerate(kinds)]
+    css = stylesheet(page_size, "stamp.css")
+    tpl = _template("stamp.html.j2")
+    project, revision = context["project"].title, context["revision"].code
+    return [printer.submit(tpl.render(pages=pages[i:i + STAMP_SPLIT], total=total,
+                                      title=context["title"], project=project,
+                                      revision=revision), css, **PDF_OPTIONS)
+            for i in range(0, total, STAMP_SPLIT)]

@@ -1,5 +1,5 @@
-"""Content-hash cache of rendered artefacts (math SVG and figures), so a re-issue after one
-new lab result redraws only what changed.
+"""Content-hash cache of rendered artefacts (math SVG, figures, printed PDF parts), so a
+re-issue after one new lab result redraws only what changed.
 
 The key of an entry is the SHA-256 of the code version (every source file of the
 ``specgen`` package and the versions of matplotlib and ziamath), the artefact kind and
@@ -85,28 +85,50 @@ def key_of(kind: str, inputs) -> str:
     return hashlib.sha256(text.encode("utf-8")).hexdigest()
 
 
-def cached(kind: str, inputs, produce) -> bytes:
-    """The bytes ``produce()`` gives for ``inputs``, from the cache when present."""
+def _entry(kind: str, inputs) -> Path | None:
     folder = _DIR.get()
     if folder is None:
-        return produce()
+        return None
     key = key_of(kind, inputs)
     path = folder / kind / key[:2] / key
     used = _USED.get()
     if used is not None:
         used.add(path)
+    return path
+
+
+def lookup(kind: str, inputs) -> bytes | None:
+    """The cached bytes for ``inputs``, or None (a miss, or no cache in use)."""
+    path = _entry(kind, inputs)
+    if path is None:
+        return None
     try:
         return path.read_bytes()
     except OSError:
-        pass
-    data = produce()
+        return None
+
+
+def store(kind: str, inputs, data: bytes) -> None:
+    """Keep ``data`` for ``inputs`` (written to a temporary file and renamed)."""
+    path = _entry(kind, inputs)
+    if path is None:
+        return
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
-        tmp = path.with_name(f".{key}.{os.getpid()}.tmp")
+        tmp = path.with_name(f".{path.name}.{os.getpid()}.tmp")
         tmp.write_bytes(data)
         os.replace(tmp, path)
     except OSError:
         pass  # a cache that cannot be written only costs time
+
+
+def cached(kind: str, inputs, produce) -> bytes:
+    """The bytes ``produce()`` gives for ``inputs``, from the cache when present."""
+    found = lookup(kind, inputs)
+    if found is not None:
+        return found
+    data = produce()
+    store(kind, inputs, data)
     return data
 
 

@@ -1,0 +1,236 @@
+"""Printing in parts: each part of the dossier laid out and drawn by WeasyPrint on its own.
+
+A long dossier is printed as independent WeasyPrint documents (the front matter, the
+chapter pieces, the running-head stamps), in worker processes on every core, and put
+together by :mod:`specgen.publish.pdf_assembly`.  Beside each part's PDF bytes we keep
+what the assembly needs of its layout (:class:`Printed`): page sizes, anchors, links
+and bookmarks, all in PDF points with the origin at the bottom left of the page.
+
+A part's pages do not depend on where the part falls in the dossier (its running heads
+and folios are stamped later), so a part whose HTML has not changed is taken from the
+output folder's artefact cache on a re-issue, byte for byte as it was drawn.
+Memory stays bounded: a worker holds the layout of one part at a time.
+"""
+from __future__ import annotations
+
+import json
+import os
+from concurrent.futures import ProcessPoolExecutor
+from dataclasses import dataclass, field
+
+from specgen.errors import PublishError
+
+PT_PER_PX = 0.75  # 72 PDF points per inch / 96 CSS pixels per inch
+
+
+@dataclass
+class Printed:
+    """One rendered part: its PDF and the facts of its layout (coordinates in pt).
+
+    ``pages``: (width, height) of each page; ``anchors``: id → (page, x, y);
+    ``links``: (page, kind, target, (x1, y1, x2, y2)) with kind ``internal`` (target an
+    anchor id) or ``external`` (a URL); ``bookmarks``: (page, level, label, x, y).
+    Page numbers count from 0 within the part.
+    """
+
+    pdf: bytes
+    pages: list = field(default_factory=list)
+    anchors: dict = field(default_factory=dict)
+    links: list = field(default_factory=list)
+    bookmarks: list = field(default_factory=list)
+
+    def to_bytes(self) -> bytes:
+        facts = json.dumps({"pages": self.pages, "anchors": self.anchors, "links": self.links,
+                            "bookmarks": self.bookmarks}, sort_keys=True,
+                           separators=(",", ":")).encode("utf-8")
+        return len(facts).to_bytes(8, "big") + facts + self.pdf
+
+    @classmethod
+    def from_bytes(cls, data: bytes) -> Printed:
+        n = int.from_bytes(data[:8], "big")
+        facts = json.loads(data[8:8 + n])
+        return cls(pdf=data[8 + n:], pages=facts["pages"], anchors=facts["anchors"],
+                   links=facts["links"], bookmarks=facts["bookmarks"])
+
+
+def print_document(html: str, css: str, pageset, **options) -> Printed:
+    """Lay out and draw one document; ``options`` go to WeasyPrint (as its ``write_pdf``)."""
+    import weasyprint
+
+    from specgen.publish.pdf import BASE, _fetcher
+    if "attachments" in options:  # (name, bytes, datetime) triples: plain data for the workers
+        options = dict(options, attachments=[
+            weasyprint.Attachment(string=data, name=name, description=name, created=when,
+                                  modified=when) for name, data, when in options["attachments"]])
+    doc = weasyprint.HTML(string=html, base_url=BASE, url_fetcher=_fetcher(pageset)).render(
+        stylesheets=[weasyprint.CSS(string=css)], **options)
+    out = Printed(pdf=b"")
+    for number, page in enumerate(doc.pages):
+        height = page.height
+
+        def pt(x, y, height=height):
+            return round(x * PT_PER_PX, 3), round((height - y) * PT_PER_PX, 3)
+        out.pages.append([round(page.width * PT_PER_PX, 3), round(height * PT_PER_PX, 3)])
+        for name, (x1, y1, _x2, _y2) in sorted(page.anchors.items()):
+            out.anchors.setdefault(name, [number, *pt(x1, y1)])
+        for kind, target, (x1, y1, x2, y2), _box in page.links:
+            if kind in ("internal", "external"):
+                out.links.append([number, kind, target, [*pt(x1, y2), *pt(x2, y1)]])
+        for level, label, (x, y), _state in page.bookmarks:
+            out.bookmarks.append([number, level, label, *pt(x, y)])
+    out.pdf = _quietly(doc.write_pdf, **options)
+    return out
+
+
+def _quietly(write, **options) -> bytes:
+    """Write the PDF without WeasyPrint's warnings about links to other parts' anchors
+    (the assembly makes those links itself)."""
+    import logging
+    log = logging.getLogger("weasyprint")
+
+    class _NoForeignAnchors(logging.Filter):
+        def filter(self, record):
+            return "No anchor #" not in record.getMessage()
+    only = _NoForeignAnchors()
+    log.addFilter(only)
+    try:
+        return write(**options)
+    finally:
+        log.removeFilter(only)
+
+
+# --- worker processes ------------------------------------------------------------------
+
+_PAGESET = None  # set before the workers fork: the assets they serve to WeasyPrint
+
+
+def die_with_parent() -> None:
+    """This process ends when the build process ends (even by SIGKILL), never lingering
+    (Linux; elsewhere a no-op)."""
+    try:
+        import ctypes
+        import signal
+        ctypes.CDLL("libc.so.6", use_errno=True).prctl(1, signal.SIGKILL)  # PR_SET_PDEATHSIG
+    except (OSError, AttributeError):
+        pass
+
+
+def _work(job: tuple[str, str, dict]) -> bytes:
+    html, css, options = job
+    return print_document(html, css, _PAGESET, **options).to_bytes()
+
+
+class Printer:
+    """Prints documents in worker processes (forked, so they share the page set).
+
+    ``submit`` returns a handle whose ``result()`` is a :class:`Printed`; where fork is
+    unavailable, or with one worker, documents are printed in this process when asked.
+    """
+
+    def __init__(self, pageset, workers: int | None = None):
+        global _PAGESET
+        self.pageset = pageset
+        workers = workers or min(2, os.cpu_count() or 1)
+        self.pool = None
+        import multiprocessing
+        if workers > 1 and "fork" in multiprocessing.get_all_start_methods():
+            _PAGESET = pageset
+            self.pool = ProcessPoolExecutor(max_workers=workers,
+                                            mp_context=multiprocessing.get_context("fork"),
+                                            initializer=die_with_parent)
+
+    def submit(self, html: str, css: str, **options):
+        if self.pool is None:
+            return _Later(lambda: print_document(html, css, self.pageset, **options))
+        return _Pooled(self.pool.submit(_work, (html, css, options)))
+
+    def close(self, cancel: bool = False) -> None:
+        global _PAGESET
+        if self.pool is not None:
+            self.pool.shutdown(wait=True, cancel_futures=cancel)
+            self.pool = None
+        _PAGESET = None
+
+    def __enter__(self):
+        return self
+
+    def __exit__(self, kind, exc, tb):
+        self.close(cancel=kind is not None)
+
+
+class _Later:
+    def __init__(self, produce):
+        self.produce = produce
+
+    def result(self) -> Printed:
+        return self.produce()
+
+
+class _Pooled:
+    def __init__(self, future):
+        self.future = future
+
+    def result(self) -> Printed:
+        from concurrent.futures.process import BrokenProcessPool
+        try:
+            return Printed.from_bytes(self.future.result())
+        except BrokenProcessPool as exc:
+            raise PublishError("a PDF worker process ended unexpectedly (out of memory?); "
+                               "nothing was changed in the output folder. Fix: build again, "
+                               "or free memory.") from exc
+
+
+class _Done:
+    def __init__(self, printed: Printed):
+        self.printed = printed
+
+    def result(self) -> Printed:
+        return self.printed
+
+
+def cached_or_submitted(printer: Printer, kind: str, html: str, css: str, **options):
+    """A handle for the part: from the artefact cache when drawn before, else submitted.
+
+    The key covers the HTML, the CSS, the options, our code and WeasyPrint's version, and
+    (through the assets' names, which are content hashes) every figure and formula.
+    """
+    from specgen.report import cache
+    inputs = [html, css, sorted(options.items()), _engine_version(),
+              _asset_digests(html, printer.pageset)]
+    found = cache.lookup(kind, inputs)
+    if found is not None:
+        return _Done(Printed.from_bytes(found))
+    handle = printer.submit(html, css, **options)
+    return _Stored(handle, kind, inputs)
+
+
+class _Stored:
+    def __init__(self, handle, kind, inputs):
+        self.handle, self.kind, self.inputs = handle, kind, inputs
+
+    def result(self) -> Printed:
+        from specgen.report import cache
+        printed = self.handle.result()
+        cache.store(self.kind, self.inputs, printed.to_bytes())
+        return printed
+
+
+def _asset_digests(html: str, pageset) -> list:
+    """SHA-256 of every asset the HTML uses (figures keep their names when redrawn)."""
+    import hashlib
+    import re
+
+    from specgen.publish.pdf import BASE
+    out = []
+    for src in sorted(set(re.findall(r'src="([^"]+)"', html))):
+        data = pageset.assets.get(src.removeprefix(BASE))
+        out.append([src, hashlib.sha256(data).hexdigest() if data is not None else None])
+    return out
+
+
+def _engine_version() -> str:
+    from importlib.metadata import version
+    try:
+        return f"weasyprint={version('weasyprint')}"
+    except Exception:  # noqa: BLE001 - an unknown version still keys consistently
+        return "weasyprint=?"

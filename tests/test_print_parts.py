@@ -1,0 +1,150 @@
+"""Printing in parts: where a chapter may be cut, that the parts put together read as one
+document (folios, contents, links, outline), and that a part taken from the cache is the
+part drawn fresh.  The PDFs are read back with pypdf, a reader independent of ours."""
+from __future__ import annotations
+
+import re
+import shutil
+import subprocess
+import sys
+
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from specgen.publish.pdf import _cut_points, parts, Piece
+
+
+def _chapter(blocks: list[tuple[str, int]]) -> str:
+    """HTML made of top-level h2 sections and h2 headings nested inside divs and tables."""
+    out = []
+    for kind, n in blocks:
+        text = "x" * n
+        if kind == "h2":
+            out.append(f'<h2 id="s{len(out)}">Sheet</h2>\n<p>{text}</p>\n')
+        elif kind == "div":
+            out.append(f'<div class="card"><h2>inside</h2><p>{text}</p></div>\n')
+        else:
+            out.append(f"<table><tr><td><h2>cell</h2>{text}</td></tr></table>\n")
+    return "".join(out)
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.lists(st.tuples(st.sampled_from(["h2", "div", "table"]), st.integers(0, 400)),
+                max_size=40),
+       st.integers(50, 2000))
+def test_cuts_only_before_top_level_headings(blocks, size):
+    html = _chapter(blocks)
+    cuts = _cut_points(html, size)
+    assert cuts == sorted(set(cuts))
+    for cut in cuts:
+        assert html.startswith("<h2 id=", cut)            # never inside a div or a table
+    bounds = [0, *cuts, len(html)]
+    assert "".join(html[a:b] for a, b in zip(bounds, bounds[1:])) == html
+    assert all(b - a >= size for a, b in zip(bounds, bounds[1:-1]))  # not cut finer than asked
+
+
+def test_parts_keep_order_and_size():
+    pieces = [Piece(f"page-{i}", f"T{i}", "y" * n) for i, n in enumerate([10, 20, 70, 5, 5, 90])]
+    groups = parts(pieces, size=40)
+    assert [p for g in groups for p in g] == pieces
+    assert [[p.id for p in g] for g in groups] == [["page-0", "page-1"], ["page-2"],
+                                                  ["page-3", "page-4"], ["page-5"]]
+
+
+@pytest.fixture(scope="module")
+def starter_build(tmp_path_factory):
+    from specgen.starter import write_starter
+    root = tmp_path_factory.mktemp("parts") / "project"
+    write_starter(root)
+    out = root.parent / "out"
+    done = subprocess.run([sys.executable, "-m", "specgen", "build", str(root), "--out", str(out),
+                           "--quiet"], capture_output=True, text=True)
+    assert done.returncode == 0, done.stderr
+    return root, out
+
+
+def _pdf(out):
+    (pdf,) = (out / "R1").glob("*.pdf")
+    return pdf
+
+
+def test_assembled_pdf_reads_as_one_document(starter_build):
+    from pypdf import PdfReader
+    _, out = starter_build
+    reader = PdfReader(str(_pdf(out)))
+    n = len(reader.pages)
+    texts = [p.extract_text() for p in reader.pages]
+    for i, text in enumerate(texts):
+        assert f"page {i + 1} of {n}" in text, i          # the folio of every page
+    # the contents' numbers are the pages the outline (made from the headings) leads to
+    toc = dict((m.group(1).strip(), int(m.group(2)))
+               for m in re.finditer(r"^(.+?) \.{3,}\s*(\d+)$", texts[1], flags=re.M))
+    chapters = {o.title: reader.get_destination_page_number(o) + 1
+                for o in reader.outline if not isinstance(o, list)}
+    assert len(toc) >= 8
+    for title, page in toc.items():
+        if title in chapters:
+            assert chapters[title] == page, title
+    assert sum(1 for t in toc if t in chapters) >= len(toc) - 1  # the summary's bookmark is the project title
+    # every link inside the document leads to one of its pages; the contents link to the
+    # chapters' first pages
+    pages = {p.indirect_reference.idnum: i for i, p in enumerate(reader.pages)}
+    contents_targets = set()
+    for i, page in enumerate(reader.pages):
+        for ref in page.get("/Annots", []):
+            annot = ref.get_object()
+            if "/Dest" in annot:
+                target = pages[annot["/Dest"][0].idnum]
+                assert 0 <= target < n
+                if i == 1:
+                    contents_targets.add(target + 1)
+    assert contents_targets == set(toc.values())
+
+
+def test_wide_tables_print_landscape_with_the_running_heads(tmp_path):
+    from types import SimpleNamespace
+
+    from pypdf import PdfReader
+
+    from specgen.publish.pdf import WIDE_COLUMNS, write_pdf
+    from specgen.report.pageset import PageSet
+    cols = WIDE_COLUMNS + 2
+    table = ("| " + " | ".join(f"c{i}" for i in range(cols)) + " |\n"
+             + "|" + "---|" * cols + "\n"
+             + "".join("| " + " | ".join(str(r * i) for i in range(cols)) + " |\n"
+                       for r in range(5)))
+    pages = PageSet()
+    pages.add_page("index.md", "Summary", "# Summary\n\nNarrow text.\n")
+    pages.add_page("wide.md", "Wide", f"# Wide\n\n{table}\nAfter the table.\n")
+    project = SimpleNamespace(title="Test pier", site="Nowhere", client="Nobody", code="T-1")
+    context = {"title": "Test pier — revision A", "author": "specgen tests", "subject": "s",
+               "keywords": "k", "date": "2026-01-01", "project": project,
+               "revision": SimpleNamespace(code="A"), "state": "draft", "purpose": "preliminary"}
+    target = tmp_path / "t.pdf"
+    write_pdf(pages, context, target, attachments={"a.txt": b"a"}, workers=1)
+    reader = PdfReader(str(target))
+    n = len(reader.pages)
+    wide = [i for i, p in enumerate(reader.pages) if p.mediabox.width > p.mediabox.height]
+    assert wide and len(wide) < n
+    for i in wide:
+        text = reader.pages[i].extract_text()
+        assert f"page {i + 1} of {n}" in text and "Test pier" in text and "Revision A" in text
+    assert set(reader.attachments) == {"a.txt"}
+
+
+def test_parts_from_the_cache_give_the_same_pdf(starter_build, tmp_path):
+    """A rebuild into the same output folder takes every part from the cache: same bytes as
+    the first build, and no part drawn anew."""
+    root, out = starter_build
+    again = tmp_path / "again"
+    shutil.copytree(out, again)
+    first = _pdf(out).read_bytes()
+    parts_before = {p for p in (again / ".cache" / "pdf-part").rglob("*") if p.is_file()}
+    assert parts_before
+    shutil.rmtree(again / "R1")  # a draft is rebuilt anyway; here nothing is left to reuse but the cache
+    done = subprocess.run([sys.executable, "-m", "specgen", "build", str(root), "--out",
+                           str(again), "--quiet"], capture_output=True, text=True)
+    assert done.returncode == 0, done.stderr
+    assert _pdf(again).read_bytes() == first
+    assert {p for p in (again / ".cache" / "pdf-part").rglob("*") if p.is_file()} == parts_before
