@@ -48,7 +48,8 @@ def _floor(project: Path, work: Path):
     """Bare toolchain on the same pages: mkdocs build from disk + WeasyPrint of the print HTML."""
     from specgen.build import check
     from specgen.publish import _print_context
-    from specgen.publish.pdf import _fetcher, to_html
+    from specgen.publish.pdf import to_html
+    from specgen.publish.pdf_parts import _fetcher
     from specgen.publish.site import BASE_CONFIG, _site_assets
     from specgen.report.render import render
     proj, results = check(project)

@@ -22,7 +22,7 @@ def _ref(log, located, rel, path, value, known: dict, what: str) -> None:
     hint = did_you_mean(value, known)
     log.add(rel, f"names {what} '{value}', which is not defined.", line=line, field=field,
             fix=hint or (f"define it, or use one of: {', '.join(sorted(known))}." if known
-                         else f"define it first."))
+                         else "define it first."))
 
 
 def check_references(project, located: dict[str, Located], log: ProblemLog,

@@ -77,7 +77,7 @@ def map_headers(table: CsvTable, columns, rel: str, log: ProblemLog) -> dict[str
         if col.required and col.name not in found and not any(
                 units.split_header(h)[0] == col.name for h in table.headers):
             log.add(rel, f"required column '{col.name}' is missing.", row=1,
-                    fix=f"add a column '{col.name}'" + (f" with its unit" if col.kind else "") + ".")
+                    fix=f"add a column '{col.name}'" + (" with its unit" if col.kind else "") + ".")
     return found
 
 

@@ -1,13 +1,15 @@
 """The PDF: the same rendered pages, assembled with our print template and print CSS.
 
 Markdown is converted with the same extensions as the site; links between pages
-become links inside the one document; images are served from the page set in
-memory (the fetcher refuses every other URL, so the PDF never reaches the network).
-WeasyPrint is imported inside the functions so ``specgen check`` never loads it.
+become links inside the one document.  Long chapters are cut at top-level headings
+into pieces that each start a page; pieces are grouped into parts, printed on every
+core by :mod:`specgen.publish.pdf_parts` (the only WeasyPrint import; images are served
+from the page set in memory and every other URL is refused, so the PDF never reaches
+the network) and put together by :mod:`specgen.publish.pdf_assembly` (pypdf).
+``to_html`` gives the same print as one document (the benchmark's floor renders it).
 """
 from __future__ import annotations
 
-import mimetypes
 import re
 from dataclasses import dataclass
 
@@ -152,22 +154,6 @@ def stylesheet(page_size: str, *extra: str) -> str:
                     for name in ("print.css", *extra))
     css = css.replace("size: A4;", f"size: {PAGE_SIZES[page_size]};", 1)
     return css.replace("size: A4 landscape;", f"size: {PAGE_SIZES[page_size]} landscape;")
-
-
-def _fetcher(pageset):
-    from weasyprint.urls import URLFetcher, URLFetcherResponse
-
-    class PageSetFetcher(URLFetcher):
-        """Serves the page set's assets; refuses every other URL (no network, no disk)."""
-
-        def fetch(self, url, headers=None):
-            path = url[len(BASE):] if url.startswith(BASE) else None
-            if path is None or path not in pageset.assets:
-                raise ValueError(f"the PDF may only use the dossier's own assets, not {url}")
-            mime = mimetypes.guess_type(path)[0] or "application/octet-stream"
-            return URLFetcherResponse(url, pageset.assets[path], {"Content-Type": mime})
-
-    return PageSetFetcher()
 
 
 def parts(every: list[Piece], size: int = PART_SIZE) -> list[list[Piece]]:

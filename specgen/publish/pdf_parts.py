@@ -57,7 +57,7 @@ def print_document(html: str, css: str, pageset, **options) -> Printed:
     """Lay out and draw one document; ``options`` go to WeasyPrint (as its ``write_pdf``)."""
     import weasyprint
 
-    from specgen.publish.pdf import BASE, _fetcher
+    from specgen.publish.pdf import BASE
     if "attachments" in options:  # (name, bytes, datetime) triples: plain data for the workers
         options = dict(options, attachments=[
             weasyprint.Attachment(string=data, name=name, description=name, created=when,
@@ -97,6 +97,25 @@ def _quietly(write, **options) -> bytes:
         return write(**options)
     finally:
         log.removeFilter(only)
+
+
+def _fetcher(pageset):
+    import mimetypes
+
+    from specgen.publish.pdf import BASE
+    from weasyprint.urls import URLFetcher, URLFetcherResponse
+
+    class PageSetFetcher(URLFetcher):
+        """Serves the page set's assets; refuses every other URL (no network, no disk)."""
+
+        def fetch(self, url, headers=None):
+            path = url[len(BASE):] if url.startswith(BASE) else None
+            if path is None or path not in pageset.assets:
+                raise ValueError(f"the PDF may only use the dossier's own assets, not {url}")
+            mime = mimetypes.guess_type(path)[0] or "application/octet-stream"
+            return URLFetcherResponse(url, pageset.assets[path], {"Content-Type": mime})
+
+    return PageSetFetcher()
 
 
 # --- worker processes ------------------------------------------------------------------
