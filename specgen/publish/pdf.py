@@ -134,7 +134,7 @@ def document_html(context: dict, sections: list[Piece], *, front: bool,
     """
     Markup = jinja2.utils.markupsafe.Markup
     entries = [{"id": p.id, "title": p.title,
-                "page": (toc_pages or {}).get(p.id) if toc_pages is not None else None}
+                "page": toc_pages.get(p.id) if toc_pages is not None else None}
                for p in toc if not p.cont]
     return _template("print.html.j2").render(
         front=front, toc=entries,
