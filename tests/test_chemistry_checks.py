@@ -107,3 +107,22 @@ def test_lumped_oxide_without_split_is_not_assessed(demo_copy):
     ci = by(results)[("CHEM-CI", "NC1-A")]
     assert ci.status == "not_assessed"
     assert "'Al2O3+Fe2O3' is reported lumped and no split is declared" in ci.message
+
+
+def test_carbonate_sheet_steps_recompute_with_periodictable(demo):
+    """CHEM-CO2 on the raw stone BS-1 (demo data: CaO 40.1, MgO 1.6, CO2 30.0 %): CO2 goes to
+    CaO first, the rest to MgO; each step's inputs are listed so a reader can recompute it."""
+    import periodictable as pt
+    _, results = demo
+    c = by(results)[("CHEM-CO2", "BS-1")]
+    steps = {s.symbol: s for s in c.steps}
+    m = lambda f: pt.formula(f).mass  # noqa: E731 - molar mass in g/mol (reference library)
+    k_ca = m("CO2") / m("CaO")                      # 44.009/56.077 = 0.78480
+    co2_ca = min(30.0, k_ca * 40.1)                 # calcite first: all 30.0 % of the CO2
+    co2_mg = min(30.0 - co2_ca, m("CO2") / m("MgO") * 1.6)
+    carb = co2_ca * m("CaCO3") / m("CO2") + co2_mg * m("MgCO3") / m("CO2")  # 30 * 2.27420 = 68.23
+    assert steps["CO2_Ca"].result == pytest.approx(co2_ca, abs=1e-3)
+    assert steps["CO2_Mg"].result == pytest.approx(co2_mg, abs=1e-3)
+    assert steps["carb"].result == pytest.approx(carb, abs=1e-3)
+    assert {i.symbol for i in steps["carb"].inputs} == {"r_Ca", "r_Mg"}
+    assert results.quantities["BS-1"]["carbonate_content"].value == pytest.approx(carb, abs=1e-3)

@@ -167,3 +167,18 @@ def test_binder_without_co2_is_not_assessed_with_the_fix(demo):
     c = by(demo)[("CHEM-BURN", "NH35")]
     assert c.status == "not_assessed"
     assert "gives no CO2; ask the laboratory for CO2 beside LOI" in c.message
+
+
+def test_pozzolanic_comparison_recomputes_from_its_listed_volumes():
+    """The comparison step lists every volume it uses; the shrinkage follows from them by hand,
+    and each volume is n*M/rho with periodictable molar masses."""
+    from tests.conftest import DEMO
+    _, results = check(DEMO)
+    c = next(c for c in results.checks if c.code == "CHEM-HYDR")
+    step = next(s for s in c.steps if s.symbol == "ε_poz")
+    v = {i.symbol: i.value for i in step.inputs}
+    assert set(v) == {"V_{CH}", "V_{S}", "V_{H}", "V_{CSH}"}
+    reactants = v["V_{CH}"] + v["V_{S}"] + v["V_{H}"]
+    assert step.result == pytest.approx(100 * (reactants - v["V_{CSH}"]) / reactants, abs=2e-3)
+    # water: 2.3 mol x 18.015 g/mol / 0.9971 g/cm3 (density of water at 25 degC, from memory)
+    assert v["V_{H}"] == pytest.approx(2.3 * M("H2O") / 0.9971, rel=1e-3)

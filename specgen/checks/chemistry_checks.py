@@ -165,6 +165,8 @@ def co2_check(analysis, ctx) -> CheckResult:
     bal = calcination.co2_balance(ox, aw, rule.value)
     carb = calcination.carbonate_content(ox, aw)
     k_ca, k_mg = (calcination.co2_per_oxide(o, aw) for o in ("CaO", "MgO"))
+    r_ca, r_mg = (calcination.molar_mass(c, aw) / calcination.molar_mass("CO2", aw)
+                  for c in ("CaCO3", "MgCO3"))
     g = lambda k: ox.get(k, 0.0)  # noqa: E731
     steps = (
         Step("CO2 that CaO and MgO could carry", r"CO_2^{cap} = k_C\,C + k_M\,M",
@@ -176,9 +178,23 @@ def co2_check(analysis, ctx) -> CheckResult:
         Step("Gap to CO2 measured", r"\Delta = CO_2^{cap} - CO_2",
              oxide_inputs(analysis, ox, (("CO2", "CO2"),)),
              rf"\Delta = {bal.capacity:.2f} - {bal.measured:.2f}", round(bal.gap, 4), "%", "Δ"),
-        Step("Carbonates from CO2 (CO2 to CaO first)",
-             r"w_{carb} = CaCO_3 + MgCO_3", (), rf"w_{{carb}} = {carb.caco3:.2f} + "
-             rf"{carb.mgco3:.2f}", round(carb.caco3 + carb.mgco3, 4), "%", "carb"))
+        Step("CO2 given to CaO first (calcite)", r"CO_2^{Ca} = \min(CO_2,\ k_C\,C)",
+             oxide_inputs(analysis, ox, (("CO2", "CO2"), ("C", "CaO"))) + (
+                 Input("k_C", "M(CO2)/M(CaO)", round(k_ca, 5), "g/g", ATOMIC),),
+             rf"CO_2^{{Ca}} = \min({g('CO2'):.2f},\ {k_ca:.4f} \times {g('CaO'):.2f})",
+             round(carb.co2_to_cao, 4), "%", "CO2_Ca"),
+        Step("The rest of the CO2 to MgO (magnesite)",
+             r"CO_2^{Mg} = \min(CO_2 - CO_2^{Ca},\ k_M\,M)",
+             oxide_inputs(analysis, ox, (("M", "MgO"),)) + (
+                 Input("k_M", "M(CO2)/M(MgO)", round(k_mg, 5), "g/g", ATOMIC),),
+             rf"CO_2^{{Mg}} = \min({g('CO2'):.2f} - {carb.co2_to_cao:.2f},\ {k_mg:.4f} \times "
+             rf"{g('MgO'):.2f})", round(carb.co2_to_mgo, 4), "%", "CO2_Mg"),
+        Step("Carbonates from that CO2",
+             r"w_{carb} = CO_2^{Ca}\,r_{Ca} + CO_2^{Mg}\,r_{Mg}",
+             (Input("r_Ca", "M(CaCO3)/M(CO2)", round(r_ca, 5), "g/g", ATOMIC),
+              Input("r_Mg", "M(MgCO3)/M(CO2)", round(r_mg, 5), "g/g", ATOMIC)),
+             rf"w_{{carb}} = {carb.co2_to_cao:.2f} \times {r_ca:.4f} + {carb.co2_to_mgo:.2f} "
+             rf"\times {r_mg:.4f}", round(carb.caco3 + carb.mgco3, 4), "%", "carb"))
     status = "attention" if bal.flagged else "pass"
     return CheckResult(
         code="CHEM-CO2", title=CO2_TITLE, subject=analysis.id, subject_kind="analysis",

@@ -178,6 +178,8 @@ class Carbonates:
     mgco3: float
     unassigned_co2: float
     method: str
+    co2_to_cao: float = 0.0   # mass % of the stone: the CO2 given to CaO (calcite)
+    co2_to_mgo: float = 0.0   # and to MgO (magnesite), the rest
 
 
 def carbonate_content(ox: Mapping[str, float], atomic_weights: Mapping[str, float]) -> Carbonates:
@@ -194,7 +196,8 @@ def carbonate_content(ox: Mapping[str, float], atomic_weights: Mapping[str, floa
         caco3=co2_ca * molar_mass("CaCO3", aw) / m_co2,
         mgco3=co2_mg * molar_mass("MgCO3", aw) / m_co2,
         unassigned_co2=ox["CO2"] - co2_ca - co2_mg,
-        method="CO2 assigned to CaO as calcite first, the remainder to MgO as MgCO3")
+        method="CO2 assigned to CaO as calcite first, the remainder to MgO as MgCO3",
+        co2_to_cao=co2_ca, co2_to_mgo=co2_mg)
 
 
 @dataclass(frozen=True)
