@@ -10,6 +10,7 @@ import signal
 import subprocess
 import sys
 import time
+from pathlib import Path
 
 import pytest
 
@@ -35,9 +36,36 @@ def kill_at(proc, marker: str, delay: float) -> str:
         if marker in line:
             time.sleep(delay)
             break
+    kids = _children(proc.pid)
     proc.send_signal(signal.SIGKILL)
     proc.wait(timeout=60)
+    # the site and PDF worker processes end with the build, never left running
+    deadline = time.time() + 10
+    while time.time() < deadline and [k for k in kids if _running(k)]:
+        time.sleep(0.1)
+    assert not [k for k in kids if _running(k)], "child processes outlived the build"
     return seen
+
+
+def _children(pid: int) -> list[str]:
+    """Process ids whose parent is ``pid`` (from /proc)."""
+    out = []
+    for stat in Path("/proc").glob("[0-9]*/stat"):
+        try:
+            fields = stat.read_text().rsplit(")", 1)[1].split()
+        except (OSError, IndexError):
+            continue
+        if fields[1] == str(pid):
+            out.append(stat.parent.name)
+    return out
+
+
+def _running(pid: str) -> bool:
+    try:
+        status = Path(f"/proc/{pid}/status").read_text()
+    except OSError:
+        return False
+    return "State:\tZ" not in status
 
 
 @pytest.fixture(scope="module")
