@@ -301,3 +301,21 @@ def test_envelope_sieve_coarser_than_the_analysis(demo_copy):
     assert "envelope sieves without a result, not compared: 4.75 mm, 0.075 mm" in c.notes
     assert ("fineness modulus of repair sand of M3 not computed: the fineness modulus needs the "
             "4.75 mm sieve") in c.notes
+
+
+def test_recorded_grading_curves_give_the_recorded_fineness_modulus(demo):
+    """The curves COMP-GRAD records (and the grading figure draws) carry the fineness modulus
+    it reports: FM = sum of cumulative % retained on 0.15, 0.3, 0.6, 1.18, 2.36 and 4.75 mm
+    (and coarser standard sieves), divided by 100 (ASTM C125, from memory)."""
+    _, results = demo
+    graded = [c for c in results.checks if c.code == "COMP-GRAD" and c.status != "not_assessed"]
+    assert graded
+    for c in graded:
+        curves = results.value(c.subject, "grading_curves")
+        fm = results.value(c.subject, "fineness_modulus")
+        for side in ("repair", "historic"):
+            passing = dict(zip(curves[side]["sieves_mm"], curves[side]["passing"]))
+            series = [s for s in (0.15, 0.3, 0.6, 1.18, 2.36, 4.75, 9.5) if s in passing]
+            assert len(series) >= 5, (c.subject, side)
+            by_hand = sum(100 - passing[s] for s in series) / 100
+            assert by_hand == pytest.approx(fm[side], abs=1e-3), (c.subject, side)

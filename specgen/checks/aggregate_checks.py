@@ -21,6 +21,8 @@ declare("fineness_modulus", "", "fineness modulus (ASTM C125) of the repair sand
         "historic aggregate")
 declare("grading_deviation", "%", "RMS and largest difference of cumulative % passing, repair "
         "sand − historic aggregate, on their common sieves")
+declare("grading_curves", "%", "cumulative % passing against sieve size (mm) of the repair "
+        "sand (blended) and of the historic aggregate, as the grading figure draws them")
 declare("blend_proportions", "", "mass proportions of the sands that best match the historic "
         "grading (NNLS, sum 1), with the proposed ones and the RMS difference in %")
 declare("binder_aggregate_ratio", "", "binder:aggregate of the historic mortar from acid "
@@ -65,6 +67,11 @@ def historic_aggregate(pair, project) -> tuple[gr.Grading | None, str]:
         return None, (f"historic mortar {h.id} names no aggregate_sample (its aggregate "
                       "recovered by acid digestion, in lab/sieves.csv)")
     return project.gradings.get(h.aggregate_sample), ""
+
+
+def _curve(g: gr.Grading) -> dict:
+    return {"sieves_mm": [round(s * 1000, 6) for s in g.sieves],
+            "passing": [round(100 * v, 4) for v in g.passing]}
 
 
 def _grading_step(name: str, g: gr.Grading, fm: float, src: str) -> Step:
@@ -140,6 +147,9 @@ def _grading_one(pair, ctx):
                      notes=notes,
                      limit=cc.rule_limit(ctx, "grading_rms_max", "<=", f"Δ_rms ≤ {rms_lim:g} %"),
                      quantities=[Quantity("fineness_modulus", fm, "", "fineness modulus"),
+                                 Quantity("grading_curves", {"repair": _curve(g),
+                                                             "historic": _curve(hist)}, "%",
+                                          "cumulative % passing by sieve (mm)"),
                                  Quantity("grading_deviation",
                                           {"rms": round(100 * dev.rms, 3),
                                            "max": round(100 * dev.max_abs, 3)}, "%",

@@ -9,7 +9,6 @@ formulas written here.
 from __future__ import annotations
 
 from specgen import refdata
-from specgen.checks import aggregate_checks as ag
 from specgen.checks import compatibility_checks as cmp
 from specgen.checks import compatibility_common as cc
 from specgen.report.chapters import badge, chapter, sheet_anchor
@@ -99,21 +98,15 @@ def _zone(env, z) -> dict:
             "has_colour": any(env.results.check("COMP-COLOUR", pr.subject) for pr in pairs)}
 
 
-def _curve(label: str, g) -> dict:
-    return {"label": label, "sieves_mm": [s * 1000 for s in g.sieves],
-            "passing": [100 * v for v in g.passing]}
-
-
 def _grading_figure(env, z, pairs) -> dict | None:
+    """Curves from what COMP-GRAD recorded per pair (the figure computes nothing)."""
     p = env.project
-    curves = []
-    for pr in pairs:
-        g, missing, _ = ag.mix_sand(pr, p)
-        if g is not None:
-            curves.append(_curve(f"{pr.mix_id} sand", g))
-    hist, _ = ag.historic_aggregate(pairs[0], p) if pairs else (None, "")
-    if not curves:
+    recorded = [(pr, env.results.value(pr.subject, "grading_curves")) for pr in pairs]
+    recorded = [(pr, v) for pr, v in recorded if v]
+    if not recorded:
         return None
+    curves = [dict(v["repair"], label=f"{pr.mix_id} sand") for pr, v in recorded]
+    first, hist = recorded[0][0], recorded[0][1]["historic"]
     key = p.dossier.compatibility.grading_envelope
     env_data = refdata.load("grading_envelopes").data.get(key) if key else None
     envelope = None
@@ -122,11 +115,11 @@ def _grading_figure(env, z, pairs) -> dict | None:
         envelope = {"title": env_data["title"], "sieves_mm": [e["sieve_mm"] for e in lim],
                     "low": [e["low"] for e in lim], "high": [e["high"] for e in lim]}
     from specgen.report.compatibility_figures import grading_curves
-    svg = grading_curves(curves, envelope, _curve(
-        f"historic aggregate {pairs[0].historic.aggregate_sample}", hist) if hist else None)
+    svg = grading_curves(curves, envelope, dict(
+        hist, label=f"historic aggregate {first.historic.aggregate_sample}"))
     return env.figure(f"figures/grading-{z.id}.svg", svg,
                       f"Zone {z.id}: grading of each candidate's sand"
-                      + (" against the historic aggregate" if hist else "")
+                      + " against the historic aggregate"
                       + (f" and the envelope {envelope['title']}" if envelope else ""))
 
 
