@@ -319,3 +319,21 @@ def test_recorded_grading_curves_give_the_recorded_fineness_modulus(demo):
             assert len(series) >= 5, (c.subject, side)
             by_hand = sum(100 - passing[s] for s in series) / 100
             assert by_hand == pytest.approx(fm[side], abs=1e-3), (c.subject, side)
+
+
+def test_colour_uses_the_sample_the_trial_panel_names(demo):
+    """The panel's readings are those of the sample its trial panel names (colour_sample), not
+    whatever is filed under the mix id; ΔE00 of the means agrees with colour-science."""
+    project, _ = demo
+    rows = [(58.0, 2.0, 12.0), (58.6, 2.4, 12.6), (57.7, 1.9, 11.8)]
+    with open(project / "lab" / "colour.csv", "a", encoding="utf-8") as f:
+        f.writelines(f"TP2-DRY,{L},{a},{b},D65,10\n" for L, a, b in rows)
+    _edit(project / "specification.yaml", "    colour_sample: M2", "    colour_sample: TP2-DRY")
+    _, results = check(project)
+    c = _by(results)[("COMP-COLOUR", "Z1/M2")]
+    q = results.value("Z1/M2", "delta_e_2000")
+    mean = np.mean(rows, axis=0)
+    assert q["panel_mean"] == pytest.approx(list(mean), abs=1e-3)
+    assert "trial panel TP2 (sample TP2-DRY)" in c.steps[0].title
+    ref = colour.delta_E(mean, np.array(q["historic_mean"]), method="CIE 2000")  # colour-science
+    assert q["value"] == pytest.approx(float(ref), abs=1e-3)

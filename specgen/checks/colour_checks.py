@@ -1,7 +1,10 @@
 """Colour of each candidate's trial panel against the historic mortar (COMP-COLOUR).
 
-Readings come from lab/colour.csv: several CIELAB readings per sample, the panel of a mix
-under the mix id and the historic mortar under its id, each with illuminant and observer.
+Readings come from lab/colour.csv: several CIELAB readings per sample, each with illuminant
+and observer.  The panel's readings are those of the sample a trial panel of the mix names
+(``colour_sample`` in specification.yaml): a panel built for the zone first, else a panel of
+the same mix elsewhere (said in a note), else the readings under the mix id; the historic
+mortar's are under its id.
 The mean colours are compared by CIEDE2000 (our implementation of Sharma, Wu & Dalal 2005)
 against the project's threshold.  No standard threshold exists for repointing: the
 dossier says so, and says that trial panels judged dry by eye decide.
@@ -26,6 +29,19 @@ def readings(project, sample: str):
     return [r for r in project.colours if r.sample == sample]
 
 
+def panel_sample(pair, project) -> tuple[str, str]:
+    """(sample id of the candidate's panel readings, where that choice comes from)."""
+    spec = project.specification
+    panels = [tp for tp in (spec.doc.trial_panels if spec else [])
+              if tp.mix == pair.mix_id and tp.colour_sample]
+    for here in (True, False):
+        for tp in panels:
+            if (tp.zone == pair.zone.id) == here or (here and tp.zone is None):
+                where = "" if here else f", built for zone {tp.zone}: the same mortar"
+                return tp.colour_sample, f"trial panel {tp.id} (sample {tp.colour_sample}{where})"
+    return pair.mix_id, f"sample {pair.mix_id} (no trial panel of {pair.mix_id} names a colour sample)"
+
+
 @register("COMP-COLOUR", "Colour of the trial panel against the historic mortar", "zone", order=560)
 def colour_check(zone, ctx):
     """Mean CIELAB of panel and historic mortar, spread, CIEDE2000 against the threshold."""
@@ -47,11 +63,12 @@ def _summary_step(name: str, rows, s: colour.LabSummary) -> Step:
 def _colour_one(pair, ctx):
     code, title, p = "COMP-COLOUR", "Colour of the trial panel against the historic mortar", ctx.project
     hist_id = pair.historic.id if pair.historic else None
-    panel, hist = readings(p, pair.mix_id), readings(p, hist_id) if hist_id else []
+    sample, source = panel_sample(pair, p)
+    panel, hist = readings(p, sample), readings(p, hist_id) if hist_id else []
     missing = []
     if not panel:
         missing.append(f"no colour readings of the trial panel of {pair.mix_id} (lab/colour.csv, "
-                       f"sample '{pair.mix_id}')")
+                       f"{source})")
     if hist_id is None:
         missing.append(cc.fabric_names(pair)[1])
     elif not hist:
@@ -69,7 +86,7 @@ def _colour_one(pair, ctx):
     de = colour.ciede2000(sp.mean, sh.mean)
     limit = ctx.rules["compatibility.colour_delta_e_max"].value
     ill, obs = conds.pop()
-    steps = [_summary_step(f"trial panel {pair.mix_id}", panel, sp),
+    steps = [_summary_step(f"the panel of {pair.mix_id}: {source}", panel, sp),
              _summary_step(f"historic mortar {hist_id}", hist, sh),
              Step("CIEDE2000 difference of the means",
                   r"\Delta E_{00} = \sqrt{\left(\frac{\Delta L'}{S_L}\right)^2 + "
