@@ -40,7 +40,7 @@ def grading_curves(curves: list[dict], envelope: dict | None, historic: dict | N
     ax.set_ylim(0, 102)
     ax.xaxis.set_major_formatter(plt.FuncFormatter(lambda v, _: f"{v:g}"))
     ax.grid(True, which="both", lw=0.3, alpha=0.5)
-    ax.legend(fontsize=7, loc="upper left", frameon=True, framealpha=0.9)
+    ax.legend(fontsize=7, loc="upper center", bbox_to_anchor=(0.5, -0.16), ncol=2, frameon=False)
     return to_svg(fig)
 
 
