@@ -14,7 +14,7 @@ from __future__ import annotations
 from specgen import refdata
 from specgen.checks import compatibility_common as cc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, Input, Quantity, Step
+from specgen.checks.result import Basis, Input, Quantity, Step, worst
 from specgen.science import grading as gr
 
 declare("fineness_modulus", "", "fineness modulus (ASTM C125) of the repair sand and of the "
@@ -141,7 +141,7 @@ def _grading_one(pair, ctx):
     if "repair" in fm and "historic" in fm:
         msg.insert(0, f"FM {fm['repair']:.2f} (historic {fm['historic']:.2f})")
     notes.append(f"envelope: {env['title']} — {env['source']} ({env.get('tag', '')})")
-    return cc.result(code, title, pair, cc.worst(statuses), round(100 * dev.rms, 3), "%",
+    return cc.result(code, title, pair, worst(statuses), round(100 * dev.rms, 3), "%",
                      [C125, Basis("reference", env["ref"], env["source"]),
                       cc.rule_basis(ctx, "grading_rms_max")], "; ".join(msg), steps=steps,
                      notes=notes,

@@ -11,7 +11,7 @@ import functools
 import math
 from dataclasses import dataclass
 
-from specgen.checks.result import Basis, CheckResult, Input
+from specgen.checks.result import Basis, Input, not_assessed
 from specgen.science.oxides import ChemistryInputError, split_lumped
 
 TAYLOR = Basis("reference", "taylor1997", "lime saturation factor, silica and alumina ratios")
@@ -53,14 +53,6 @@ def prepared(analysis) -> Prepared:
         return Prepared(ox, ())
     split = split_lumped(ox, analysis.lumped_split)
     return Prepared(split.analysis, split.assumptions)
-
-
-def not_assessed(code: str, title: str, subject: str, kind: str, basis: tuple,
-                 reason: str) -> CheckResult:
-    """A result that says why a check could not be made."""
-    return CheckResult(code=code, title=title, subject=subject, subject_kind=kind,
-                       status="not_assessed", value=None, unit="", basis=basis,
-                       message=f"not assessed: {reason}")
 
 
 def guarded(code: str, title: str, kind: str, basis: tuple):

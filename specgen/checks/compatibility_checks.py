@@ -16,7 +16,7 @@ import math
 
 from specgen.checks import compatibility_common as cc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, Input, Quantity, Step
+from specgen.checks.result import Basis, Input, Quantity, Step, worst
 from specgen.science import moisture
 
 declare("strength_ratio_to_unit", "", "repair mortar compressive strength / masonry unit "
@@ -106,7 +106,7 @@ def _hierarchy_one(code, title, target, pair, fabric, ctx):
         gone = [n for n, v in ((f"mix {pair.mix_id}", props and props.elastic_modulus),
                                (f"{what} {fabric.id}", fabric.elastic_modulus)) if not v]
         notes.append("elastic modulus not compared: not given for " + " and ".join(gone))
-    status = cc.worst(statuses)
+    status = worst(statuses)
     name = "strength_ratio_to_unit" if target == "unit" else "strength_ratio_to_historic"
     head = ratios.get("predicted", ratios.get("measured"))
     return cc.result(
@@ -200,7 +200,7 @@ def _moisture_one(pair, ctx):
                                  "dossier.yaml compatibility.repair_thickness")),
                           rf"s_d = {mu_rep:g} \times {d:g} = {sd:.4f}", round(sd, 5), "m", "s_d"))
         mus["sd_repair_m"] = round(sd, 5)
-    status = cc.worst(statuses)
+    status = worst(statuses)
     msg = (f"C repair {c_rep[0]:.3g} vs units {c_unit[0]:.3g} kg/(m²·min^0.5) (ratio "
            f"{sc.result:.2f}, at least {c_min:g}); μ repair {mu_rep:g} vs units {mu_unit:g} "
            f"(ratio {sm.result:.2f}, at most {mu_max:g})")
@@ -252,7 +252,7 @@ def _movement_one(pair, ctx):
                           round(dev, 5), "", "δ"))
         statuses.append("pass" if dev <= tol else "attention")
         words.append(f"{kind} {rep:g} vs {fab:g} {u} (δ = {dev:.2f})")
-    return cc.result(code, title, pair, cc.worst(statuses), steps[0].result, "",
+    return cc.result(code, title, pair, worst(statuses), steps[0].result, "",
                      [cc.rule_basis(ctx, "movement_tolerance")],
                      "; ".join(words) + f"; tolerance {tol:g}", steps=steps, notes=notes,
                      limit=cc.rule_limit(ctx, "movement_tolerance", "<=", f"δ ≤ {tol:g}"))

@@ -9,6 +9,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from specgen.checks.result import Basis, CheckResult, Limit, Step
+from specgen.checks.result import not_assessed as _not_assessed
 
 MPA, GPA = 1e6, 1e9
 PRACTICE = Basis("common practice", note="content/rules/compatibility.yaml")
@@ -66,8 +67,7 @@ def result(code: str, title: str, pair: Pair, status: str, value, unit: str, bas
 def not_assessed(code: str, title: str, pair: Pair, missing: list[str], basis=(PRACTICE,),
                  steps=()) -> CheckResult:
     """An explicit not-assessed result naming everything that is missing."""
-    return result(code, title, pair, "not_assessed", None, "", basis,
-                  "not assessed: " + "; ".join(missing), steps=steps)
+    return _not_assessed(code, title, pair.subject, "zone", basis, "; ".join(missing), steps)
 
 
 def fabric_names(pair: Pair) -> tuple[str, str]:
@@ -86,11 +86,6 @@ def rule_limit(ctx, key: str, compare: str, text: str, unit: str = "") -> Limit:
 
 def rule_basis(ctx, key: str) -> Basis:
     return ctx.rules[f"compatibility.{key}"].basis
-
-
-def worst(statuses) -> str:
-    from specgen.checks.result import STATUSES
-    return min(statuses, key=STATUSES.index) if statuses else "pass"
 
 
 def ratio_step(title: str, symbol: str, num_name: str, num_value: float, num_src: str,

@@ -109,3 +109,17 @@ class CheckResult:
         d = asdict(self)
         d["status_word"] = STATUS_WORDS[self.status]
         return d
+
+
+def worst(statuses) -> str:
+    """The most severe of ``statuses`` in the order of :data:`STATUSES` ("pass" for none)."""
+    statuses = list(statuses)
+    return min(statuses, key=STATUSES.index) if statuses else "pass"
+
+
+def not_assessed(code: str, title: str, subject: str, kind: str, basis, reason: str,
+                 steps=()) -> CheckResult:
+    """The one way a check says it could not be made, and why (``reason``)."""
+    return CheckResult(code=code, title=title, subject=subject, subject_kind=kind,
+                       status="not_assessed", value=None, unit="", basis=tuple(basis),
+                       steps=tuple(steps), message=f"not assessed: {reason}")

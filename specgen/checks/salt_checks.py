@@ -13,7 +13,7 @@ from __future__ import annotations
 from specgen import refdata
 from specgen.checks import compatibility_common as cc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, Input, Quantity, Step
+from specgen.checks.result import Basis, Input, Quantity, Step, worst
 
 declare("salt_load_class", "", "salt-load class of chloride, nitrate and sulfate in each fabric "
         "material by the project's table {material: {ion: class}}, with the table")
@@ -109,7 +109,7 @@ def _salt_one(pair, ctx):
         rich, why = aluminate_rich(pair.mix, ctx.project, ctx)
         notes.append(f"binder of {pair.mix_id}: {why}")
         if rich:
-            status = "fail" if sulfate == "high" else cc.worst([status, "attention"])
+            status = "fail" if sulfate == "high" else worst([status, "attention"])
             msg.append(f"expansion risk: {sulfate} sulfate load in the fabric and an "
                        f"aluminate-rich binder in {pair.mix_id} — sulfate reacts with the "
                        "binder's aluminates to ettringite and, cold and wet with carbonate "

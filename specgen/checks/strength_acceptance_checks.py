@@ -15,7 +15,7 @@ from __future__ import annotations
 from specgen import refdata
 from specgen.checks import strength_common as sc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import STATUSES, Basis, CheckResult, Input, Limit, Quantity, Step
+from specgen.checks.result import Basis, CheckResult, Input, Limit, Quantity, Step, worst
 from specgen.checks.strength_checks import (C1074, EN1990, age_key, mpa, not_assessed,
                                             pred_step)
 from specgen.science import maturity, strength_classes as scl, strength_models as sm
@@ -35,10 +35,6 @@ declare("load_strength_day", "d", "earliest day after placement at which the low
         "reaches the load strength")
 declare("strength_classes", "", "EN 459-1 classes and ASTM C270 type met by the 28-d mean "
         "(descriptive)")
-
-
-def _worst(statuses) -> str:
-    return min(statuses, key=STATUSES.index)
 
 
 def _comp(ctx, mix) -> sc.Series | None:
@@ -87,7 +83,7 @@ def minimum_check(mix, ctx):
         return []
     s = _comp(ctx, mix.id)
     items = [_min_item(s, m.age, m.value, ctx) for m in sorted(reqs, key=lambda m: m.age)]
-    status = _worst([i["status"] for i in items])
+    status = worst([i["status"] for i in items])
     text = "; ".join(f"{age_key(m.age)} (min {m.value / MPA:g} MPa): {i['status']} — {i['text']}"
                      for m, i in zip(sorted(reqs, key=lambda m: m.age), items))
     gov = next(i for i in items if i["status"] == status)

@@ -10,6 +10,7 @@ from __future__ import annotations
 from specgen.checks import strength_common as sc
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step
+from specgen.checks.result import not_assessed as _not_assessed
 from specgen.science import strength_models as sm
 
 DAY, MPA = sc.DAY, sc.MPA
@@ -63,9 +64,8 @@ def merged(ctx, subject: str, name: str, key: str, value, unit: str, label: str)
 
 
 def not_assessed(code: str, title: str, mix: str, reason: str, basis=(AICC,)) -> CheckResult:
-    return CheckResult(code=code, title=title, subject=mix, subject_kind="mix",
-                       status="not_assessed", value=None, unit="", basis=tuple(basis),
-                       message=f"not assessed: {reason}")
+    """Not assessed, for a mix (the model-selection basis unless another is given)."""
+    return _not_assessed(code, title, mix, "mix", basis, reason)
 
 
 def series_of(ctx, mix: str) -> list[sc.Series]:

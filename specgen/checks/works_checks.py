@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from specgen.checks import works_common as wc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step
+from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step, not_assessed
 from specgen.science import works as wk
 
 PRACTICE = Basis("common practice", note="absolute-volume method; defaults in "
@@ -39,12 +39,6 @@ declare("days_outside_window", "", "days of the site temperature record outside 
         "window, each {day, temperature in °C, side}")
 
 
-def _not_assessed(code, title, subject, kind, reason, basis) -> CheckResult:
-    return CheckResult(code=code, title=title, subject=subject, subject_kind=kind,
-                       status="not_assessed", value=None, unit="", basis=(basis,),
-                       message=f"not assessed: {reason}")
-
-
 def _r(x: float, n: int = 4) -> float:
     return float(f"{x:.{n}g}")
 
@@ -58,8 +52,8 @@ def mix_yield_check(mix, ctx) -> CheckResult:
     if y is None:
         why = (f"water is gauged to the consistence target {mix.consistence * 1000:g} mm "
                "(EN 1015-3)" if mix.consistence else "no water/binder ratio is given")
-        return _not_assessed("MIX-YIELD", title, mix.id, "mix", f"{why}; give "
-                             "water_binder_ratio in mixes.yaml to compute the yield", PRACTICE)
+        return not_assessed("MIX-YIELD", title, mix.id, "mix", (PRACTICE,), f"{why}; give "
+                            "water_binder_ratio in mixes.yaml to compute the yield")
     parts = wc.parts_of(p, mix)
     air, rho_w = wc.air_of(mix, ctx.rules), wc.water_density()
     binder = sum(y.masses[q.constituent.name] for q in parts if q.constituent.kind == "binder")
@@ -136,8 +130,8 @@ def works_quantities_check(zone, ctx) -> CheckResult:
     title, p = "Works quantities", ctx.project
     v = wc.zone_volume(zone, p, ctx.rules)
     if v.reason:
-        return _not_assessed("WORKS-QTY", title, zone.id, "zone", f"{zone.works}: {v.reason} "
-                             f"for zone {zone.id} in dossier.yaml", WORKS)
+        return not_assessed("WORKS-QTY", title, zone.id, "zone", (WORKS,),
+                            f"{zone.works}: {v.reason} for zone {zone.id} in dossier.yaml")
     steps = [_volume_step(zone, v)]
     masses: dict[str, dict] = {"binder_mass": {}, "sand_mass": {}, "water_mass": {},
                                "admixture_mass": {}, "bags": {}}
