@@ -6,6 +6,7 @@ whose trigger applies to that mix (its binders, the kinds of work it is used for
 """
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 
 import yaml
@@ -22,7 +23,9 @@ class Scope:
     project: object
 
 
+@functools.lru_cache(maxsize=1)
 def _library() -> dict:
+    """The caution library, read once per process (callers only read it)."""
     return yaml.safe_load((CONTENT_DIR / "cautions.yaml").read_text(encoding="utf-8"))
 
 
