@@ -37,19 +37,27 @@ def state_badge(state: str) -> Markup:
 def specification(env) -> dict:
     p, r = env.project, env.results
     spec = p.specification
-    zones = [_zone(env, z) for z in p.dossier.zones]
-    exports = _exports(env, zones) if spec else []
+    from specgen.report.render import template_env
+    jenv = template_env(p.root)
+    # the clauses of each zone's chosen mix, worked out once for the page and the exports
+    chosen, clauses = {}, {}
+    for z in p.dossier.zones:
+        if r.value(z.id, "selected_mix"):
+            chosen[z.id] = p.mixes[r.value(z.id, "selected_mix")]
+            clauses[z.id] = clause_context(p, r, z, chosen[z.id])
+    zones = [_zone(env, z, jenv, clauses.get(z.id)) for z in p.dossier.zones]
+    exports = _exports(env, jenv, chosen, clauses) if spec else []
     return {"has_spec": spec is not None, "zones": zones, "exports": exports,
             "regime": _regime(r, p), "hold_points": _hold_points(p, r),
             "panels": _panels(env), "currency": spec.doc.currency if spec else ""}
 
 
-def _zone(env, zone) -> dict:
+def _zone(env, zone, jenv, clause_ctx) -> dict:
     p, r = env.project, env.results
     sel = r.check("SPEC-SELECT", zone.id)
     chosen = r.value(zone.id, "selected_mix")
     s = p.specification.selection_for(zone.id)[1] if chosen and p.specification else None
-    clauses = _clauses(env, zone, p.mixes[chosen]) if chosen else None
+    clauses = _clauses(jenv, clause_ctx) if clause_ctx else None
     failed = _failed(r, p, zone.id, chosen) if chosen else []
     return {"id": zone.id, "name": zone.name, "works": zone.works, "matrix": _matrix(env, zone),
             "selected": chosen, "mix_name": p.mixes[chosen].name if chosen else "",
@@ -90,24 +98,18 @@ def _ref_plain(key: str) -> Markup:
     return Markup(f"[{escape(key)}]") if key else Markup("")
 
 
-def _clauses(env, zone, mix) -> Markup:
-    from specgen.report.render import template_env
-    c = clause_context(env.project, env.results, zone, mix)
-    text = template_env(env.project.root).get_template("specification_clauses.md.j2").render(
-        c=c, h="####", ref=_ref_link)
-    return Markup(text)
+def _clauses(jenv, c) -> Markup:
+    return Markup(jenv.get_template("specification_clauses.md.j2").render(c=c, h="####",
+                                                                          ref=_ref_link))
 
 
-def _exports(env, zones) -> list[dict]:
+def _exports(env, jenv, chosen, clauses) -> list[dict]:
     """Per zone with a choice: the clauses as Markdown and as a clean HTML fragment."""
-    from specgen.report.render import template_env
     from specgen.report.specification_export import html_fragment
     p = env.project
-    jenv = template_env(p.root)
     out = []
-    for z in (z for z in p.dossier.zones if env.results.value(z.id, "selected_mix")):
-        mix = p.mixes[env.results.value(z.id, "selected_mix")]
-        c = clause_context(p, env.results, z, mix)
+    for z in (z for z in p.dossier.zones if z.id in chosen):
+        mix, c = chosen[z.id], clauses[z.id]
         md = jenv.get_template("specification_export.md.j2").render(
             c=c, h="##", ref=_ref_plain, project=p.dossier.project, revision=p.revision,
             cautions=_card_cautions(p, mix))
