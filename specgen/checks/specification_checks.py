@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from specgen.checks.registry import declare, register
 from specgen.checks.result import STATUS_WORDS, Basis, CheckResult, Input, Quantity, Step
+from specgen.checks.strength_checks import DAY, age_key
 from specgen.errors import InputErrors, Problem
 from specgen.project.specification import SPEC_FILE
 from specgen.science import site_tests as st
@@ -202,7 +203,7 @@ def sampling_check(zone, ctx) -> CheckResult:
     inputs = [Input("n_min", "fewest sets", s["n_min"][0], "", s["n_min"][1]),
               Input("a", "wall area per set", s["a"][0], "m²", s["a"][1]),
               Input("p", "prisms per set and age", s["p"][0], "", s["p"][1]),
-              Input("k", "test ages", ", ".join(f"{t / 86400:g}" for t, _ in ages) or "none",
+              Input("k", "test ages", ", ".join(f"{t / DAY:g}" for t, _ in ages) or "none",
                     "d", ages[0][1] if ages else "none given")]
     if zone.area:
         inputs.append(Input("A", "wall area", zone.area, "m²", f"dossier.yaml {zone.id}.area"))
@@ -241,7 +242,7 @@ def _sampling_result(zone, n, total, s, ages, inputs, vol) -> CheckResult:
                 r"n = \max\left(n_{\min},\ \lceil A/a \rceil,\ \lceil V/(qT) \rceil\right),"
                 r"\quad N = n\,p\,k", tuple(inputs), sub, n.sets, "", "n")
     q = {"sets": n.sets, "by_area": n.by_area, "working_days": n.working_days, "prisms": total,
-         "per_set": per, "ages_d": [round(t / 86400, 3) for t, _ in ages]}
+         "per_set": per, "ages_d": [round(t / DAY, 3) for t, _ in ages]}
     why = [f"{n.by_area} by area" if n.by_area is not None else "",
            f"{n.working_days} day(s) of work" if n.working_days is not None else ""]
     return _result("SPEC-SAMPLING", "Sets of site prisms for the zone", zone.id, "info", n.sets,
@@ -278,20 +279,20 @@ def _acceptance_rows(ages, mix: str, r: float, verdicts: dict) -> tuple[dict, li
     """The criteria per test age that has a requirement, and the cap (table, inputs, steps)."""
     table, inputs, subs = {}, [], []
     for age, _src in ages:
-        d = f"{age / 86400:g}"
-        if f"min {d} d" not in verdicts:
+        key, d = age_key(age), f"{age / DAY:g}"
+        if f"min {key}" not in verdicts:
             continue
-        req = verdicts[f"min {d} d"]["limit"]
-        table[f"{d} d"] = {"characteristic_min": req, "individual_min": round(r * req, 4),
+        req = verdicts[f"min {key}"]["limit"]
+        table[key] = {"characteristic_min": req, "individual_min": round(r * req, 4),
                            "source": f"STR-MIN/{mix}"}
         inputs.append(Input(f"f_req,{d}", f"required minimum at {d} d", req, "MPa",
                             f"STR-MIN/{mix} (dossier.yaml requirements)"))
         subs.append(rf"{d}\,\mathrm{{d}}: {r:g} \times {req:g} = {r * req:.3g}")
     cap = next(((k, v) for k, v in verdicts.items() if k.startswith("max ")), None)
     if cap:
-        age = cap[0].split()[1]
-        table["cap"] = {"age_d": float(age), "max": cap[1]["limit"], "source": f"STR-MAX/{mix}"}
-        inputs.append(Input("f_max", f"cap at {age} d", cap[1]["limit"], "MPa",
+        age = cap[1]["age_d"]
+        table["cap"] = {"age_d": age, "max": cap[1]["limit"], "source": f"STR-MAX/{mix}"}
+        inputs.append(Input("f_max", f"cap at {age:g} d", cap[1]["limit"], "MPa",
                             f"STR-MAX/{mix} (dossier.yaml requirements)"))
     return table, inputs, subs
 

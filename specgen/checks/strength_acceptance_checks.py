@@ -159,7 +159,8 @@ def maximum_check(mix, ctx):
                     rule="requirements.max_compressive_long_term"),
         message=f"{item['text']} against the cap {cap / MPA:g} MPa",
         quantities=(Quantity("acceptance", {**_prev(ctx, mix.id), f"max {age_key(age)}": {
-            "status": item["status"], "value": item.get("value"), "limit": cap / MPA}}, "",
+            "status": item["status"], "value": item.get("value"), "limit": cap / MPA,
+            "age_d": round(age / DAY, 6)}}, "",
             "verdict per requirement"),))
 
 
