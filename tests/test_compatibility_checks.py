@@ -337,3 +337,16 @@ def test_colour_uses_the_sample_the_trial_panel_names(demo):
     assert "trial panel TP2 (sample TP2-DRY)" in c.steps[0].title
     ref = colour.delta_E(mean, np.array(q["historic_mean"]), method="CIE 2000")  # colour-science
     assert q["value"] == pytest.approx(float(ref), abs=1e-3)
+
+
+def test_grading_blend_uses_the_default_bulk_density_like_the_yield(demo):
+    """A sand without a bulk density takes the same default the works checks use (the sheet
+    names it), instead of leaving the grading not assessed."""
+    project, _ = demo
+    _edit(project / "materials.yaml", 'bulk_density: "1450 kg/m^3"}', "}")  # S2 without one
+    _, results = check(project)
+    c = _by(results)[("COMP-GRAD", "Z1/M1")]
+    assert c.status != "not_assessed", c.message
+    assert "default" in c.steps[0].inputs[0].source
+    yield_ = _by(results)[("MIX-YIELD", "M1")]
+    assert yield_.status != "not_assessed"

@@ -36,27 +36,35 @@ def envelope(ctx) -> tuple[str, dict]:
     return key, refdata.load("grading_envelopes").data[key]
 
 
-def mix_sand(pair, project) -> tuple[gr.Grading | None, list[str], list[tuple[str, float]]]:
-    """(blended grading, missing items, [(sand id, mass fraction)]) of the mix's sands."""
+def mix_sand(pair, project) -> tuple[gr.Grading | None, list[str], list[tuple[str, float, str]]]:
+    """(blended grading, missing items, [(sand id, mass fraction, source of its bulk density)])
+    of the mix's sands.
+
+    Volume parts become mass with the sands' loose bulk densities, given or else the
+    default the works checks use (one rule for the yield and the grading).
+    """
+    from specgen.checks.works_common import parts_of
     mix, missing = pair.mix, []
     if mix is None or not mix.sands:
         return None, [f"mix {pair.mix_id} names no sand (mixes.yaml)"], []
     for part in mix.sands:
         if part.sand not in project.gradings:
             missing.append(f"no sieve analysis of sand {part.sand} in lab/sieves.csv")
-        s = project.sands.get(part.sand)
-        if len(mix.sands) > 1 and (s is None or s.bulk_density is None):
-            missing.append(f"sand {part.sand} has no bulk_density (materials.yaml), needed to "
-                           "turn volume parts into mass")
     if missing:
         return None, missing, []
-    if len(mix.sands) == 1:
-        fr = [1.0]
-    else:
-        fr = gr.volume_to_mass_fractions([p.parts for p in mix.sands],
-                                         [project.sands[p.sand].bulk_density for p in mix.sands])
-    g = gr.blend([project.gradings[p.sand] for p in mix.sands], fr)
-    return g, [], [(p.sand, f) for p, f in zip(mix.sands, fr)]
+    sands = [pt for pt in parts_of(project, mix) if pt.constituent.kind == "sand"]
+    fr = gr.volume_to_mass_fractions([pt.constituent.parts for pt in sands],
+                                     [pt.constituent.bulk_density for pt in sands])
+    g = gr.blend([project.gradings[pt.constituent.name] for pt in sands], fr)
+    return g, [], [(pt.constituent.name, f, pt.bulk.source) for pt, f in zip(sands, fr)]
+
+
+def _densities(fractions) -> str:
+    """Where the bulk densities that turned volume parts into mass came from."""
+    if len(fractions) < 2:
+        return ""
+    return (" (volume parts × loose bulk density: "
+            + "; ".join(f"{s} {src}" for s, _, src in fractions) + ")")
 
 
 def historic_aggregate(pair, project) -> tuple[gr.Grading | None, str]:
@@ -103,7 +111,7 @@ def _grading_one(pair, ctx):
     fm = {}
     for name, gg, src in ((f"repair sand of {pair.mix_id}", g,
                            "lab/sieves.csv, blended by mass " + ", ".join(
-                               f"{s} {f:.3f}" for s, f in fractions)),
+                               f"{s} {f:.3f}" for s, f, _ in fractions) + _densities(fractions)),
                           (f"historic aggregate {pair.historic.aggregate_sample}", hist,
                            "lab/sieves.csv")):
         try:
@@ -176,11 +184,11 @@ def _blend_one(pair, ctx):
     fit = gr.fit_blend([p.gradings[s] for s in sands], hist)
     best = {s: round(f, 4) for s, f in zip(sands, fit.proportions)}
     _, _, proposed = mix_sand(pair, p)
-    prop = {s: round(f, 4) for s, f in proposed}
+    prop = {s: round(f, 4) for s, f, _ in proposed}
     inputs = tuple(Input(f"x_{s}", f"mass proportion of sand {s}", v, "", "fitted (NNLS)")
                    for s, v in best.items())
     inputs += tuple(Input(f"x0_{s}", f"proposed proportion of {s}", v, "",
-                          f"mixes.yaml {pair.mix_id} (volume parts × bulk density)")
+                          f"mixes.yaml {pair.mix_id}" + _densities(proposed))
                     for s, v in prop.items())
     step = Step("Best blend by non-negative least squares",
                 r"\min_{x \ge 0,\ \sum x = 1} \sum_j \Big(\sum_i x_i P_{ij} - P_{\mathrm{hist},j}\Big)^2",
