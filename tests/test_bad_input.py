@@ -172,3 +172,23 @@ def test_colour_unknown_illuminant(cli, demo_copy):
     edit(demo_copy / "lab/colour.csv", "HM1,61.8,3.9,14.2,D65", "HM1,61.8,3.9,14.2,D66")
     out = run_check(cli, demo_copy)
     assert "lab/colour.csv, row 2: illuminant: 'D66' is not allowed here. Fix: did you mean 'D65'?" in out
+
+
+def test_repeated_ids_are_located_at_their_line(cli, demo_copy):
+    edit(demo_copy / "materials.yaml", "  - {id: S2, name: Crushed gritstone fines",
+         "  - {id: S1, name: Crushed gritstone fines")
+    out = run_check(cli, demo_copy)
+    assert ("materials.yaml, line 41: sands[1].id: sand id 'S1' is given twice. Fix: give each "
+            "one its own id.") in out
+
+
+def test_repeated_mortar_properties_are_located(cli, demo_copy):
+    path = demo_copy / "materials.yaml"
+    text = path.read_text(encoding="utf-8")
+    lines = text.splitlines(keepends=True)
+    first = next(i for i, line in enumerate(lines) if line.startswith("  - {mix: M2,"))
+    lines[first] = lines[first].replace("{mix: M2,", "{mix: M1,")
+    path.write_text("".join(lines), encoding="utf-8")
+    out = run_check(cli, demo_copy)
+    assert (f"materials.yaml, line {first + 1}: mortar_properties[1].mix: mortar_properties of "
+            "mix 'M1' is given twice. Fix: merge the two entries into one.") in out

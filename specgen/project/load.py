@@ -216,7 +216,7 @@ def load_project(root: Path | str) -> Project:
             tables[attr] = reader(table, rel, log)
     if docs.get(ROOT_FILE) is None:
         log.raise_if_any()
-    project = _assemble(root, docs, strength, log)
+    project = _assemble(root, docs, located, strength, log)
     for attr, rows in tables.items():
         setattr(project, attr, rows)
     from specgen.project.gradings import gradings
@@ -238,34 +238,43 @@ def load_project(root: Path | str) -> Project:
     return project
 
 
-def _index(items, kind: str, rel: str, log: ProblemLog) -> dict:
+def _index(items, kind: str, rel: str, key: str, located: dict, log: ProblemLog,
+           id_field: str = "id") -> dict:
+    """``items`` of the list ``key`` in ``rel`` by their ``id_field``; a repeated id is a
+    problem located at its line."""
     out = {}
+    where = located.get(rel)
     for i, item in enumerate(items):
-        if item.id in out:
-            log.add(rel, f"{kind} id '{item.id}' is used twice.", field=f"[{i}].id",
-                    fix="give each one its own id.")
-        out[item.id] = item
+        ident = getattr(item, id_field)
+        if ident in out:
+            log.add(rel, f"{kind} '{ident}' is given twice.", field=f"{key}[{i}].{id_field}",
+                    line=where.line_of((key, i, id_field)) if where else None,
+                    fix="give each one its own id." if id_field == "id"
+                    else "merge the two entries into one.")
+        out[ident] = item
     return out
 
 
-def _assemble(root: Path, docs: dict, strength: list, log: ProblemLog) -> Project:
+def _assemble(root: Path, docs: dict, located: dict, strength: list,
+              log: ProblemLog) -> Project:
     p = Project(root=root, dossier=docs[ROOT_FILE], strength=strength)
     if an := docs.get("analyses.yaml"):
-        p.analyses = _index(an.analyses, "analysis", "analyses.yaml", log)
+        p.analyses = _index(an.analyses, "analysis id", "analyses.yaml", "analyses", located, log)
     if mat := docs.get("materials.yaml"):
-        p.binders = _index(mat.binders, "binder", "materials.yaml", log)
-        p.masonry_units = _index(mat.masonry_units, "masonry unit", "materials.yaml", log)
-        p.historic_mortars = _index(mat.historic_mortars, "historic mortar", "materials.yaml", log)
-        p.sands = _index(mat.sands, "sand", "materials.yaml", log)
-        for i, props in enumerate(mat.mortar_properties):
-            if props.mix in p.mortar_properties:
-                log.add("materials.yaml", f"mix '{props.mix}' has two entries of mortar_properties.",
-                        field=f"mortar_properties[{i}].mix", fix="merge them into one entry.")
-            p.mortar_properties[props.mix] = props
+        m = "materials.yaml"
+        p.binders = _index(mat.binders, "binder id", m, "binders", located, log)
+        p.masonry_units = _index(mat.masonry_units, "masonry unit id", m, "masonry_units",
+                                 located, log)
+        p.historic_mortars = _index(mat.historic_mortars, "historic mortar id", m,
+                                    "historic_mortars", located, log)
+        p.sands = _index(mat.sands, "sand id", m, "sands", located, log)
+        p.mortar_properties = _index(mat.mortar_properties, "mortar_properties of mix", m,
+                                     "mortar_properties", located, log, id_field="mix")
     if mx := docs.get("mixes.yaml"):
-        p.mixes = _index(mx.mixes, "mix", "mixes.yaml", log)
+        p.mixes = _index(mx.mixes, "mix id", "mixes.yaml", "mixes", located, log)
     if cm := docs.get("comments.yaml"):
-        p.comments = list(_index(cm.comments, "comment", "comments.yaml", log).values())
+        p.comments = list(_index(cm.comments, "comment id", "comments.yaml", "comments", located,
+                                 log).values())
     narrative_dir = root / NARRATIVE_DIR
     if narrative_dir.is_dir():
         from specgen.project.files import read_text
