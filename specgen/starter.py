@@ -13,24 +13,12 @@ from pathlib import Path
 from pydantic import BaseModel
 
 from specgen.errors import UsageError
+from specgen.project.schema import submodel
 from specgen.refdata import CONTENT_DIR
 
 STARTER = CONTENT_DIR / "starter"
 _KEY = re.compile(r"^(?P<indent>\s*)(?P<dash>- )?(?P<key>[A-Za-z_][A-Za-z0-9_]*):(?P<rest>.*)$")
 COMMENT_COLUMN = 34
-
-
-def _submodel(model: type[BaseModel], key: str) -> type[BaseModel] | None:
-    info = model.model_fields.get(key)
-    if info is None:
-        return None
-    stack = [info.annotation]
-    while stack:
-        t = stack.pop()
-        if isinstance(t, type) and issubclass(t, BaseModel):
-            return t
-        stack.extend(typing.get_args(t))
-    return None
 
 
 def _choices(info) -> str:
@@ -55,7 +43,7 @@ def annotate(text: str, model: type[BaseModel]) -> str:
         current = stack[-1][1]
         key = m.group("key")
         info = current.model_fields.get(key)
-        sub = _submodel(current, key)
+        sub = submodel(current, key)
         if sub is not None:
             stack.append((col, sub))
         if info is not None and info.description and "#" not in m.group("rest"):

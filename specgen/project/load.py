@@ -78,25 +78,8 @@ def _field_path(loc: tuple) -> str:
 
 def _model_fields(model: type[BaseModel], loc: tuple) -> list[str]:
     """Valid keys at ``loc`` inside ``model`` (for 'did you mean')."""
-    current = model
-    for part in loc[:-1]:
-        if isinstance(part, int):
-            continue
-        info = current.model_fields.get(part) if hasattr(current, "model_fields") else None
-        if info is None:
-            return []
-        ann = info.annotation
-        for arg in getattr(ann, "__args__", ()) or (ann,):
-            if isinstance(arg, type) and issubclass(arg, BaseModel):
-                current = arg
-                break
-            for sub in getattr(arg, "__args__", ()):
-                if isinstance(sub, type) and issubclass(sub, BaseModel):
-                    current = sub
-        else:
-            if not (isinstance(ann, type) and issubclass(ann, BaseModel)):
-                pass
-    return list(getattr(current, "model_fields", {}).keys())
+    holder = schema.model_at(model, loc[:-1])
+    return list(holder.model_fields) if holder is not None else []
 
 
 def _give(model: type[BaseModel], loc: tuple) -> str | None:
@@ -110,18 +93,8 @@ def _give(model: type[BaseModel], loc: tuple) -> str | None:
 
 def _field_info(model: type[BaseModel], loc: tuple):
     """The pydantic FieldInfo of the field at ``loc`` (its last string part) in ``model``."""
-    current = model
-    for part in loc[:-1]:
-        if isinstance(part, int):
-            continue
-        info = current.model_fields.get(part)
-        ann = info.annotation if info is not None else None
-        subs = [a for arg in (getattr(ann, "__args__", ()) or (ann,))
-                for a in (arg, *getattr(arg, "__args__", ()))]
-        current = next((a for a in subs if isinstance(a, type) and issubclass(a, BaseModel)), None)
-        if current is None:
-            return None
-    return current.model_fields.get(loc[-1])
+    holder = schema.model_at(model, loc[:-1])
+    return holder.model_fields.get(loc[-1]) if holder is not None else None
 
 
 def validate(located: Located, model: type[BaseModel], rel: str, log: ProblemLog):

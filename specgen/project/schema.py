@@ -513,3 +513,31 @@ class SpecificationFile(Model):
     trial_panels: list[TrialPanel] = Field(default_factory=list, description="trial panels")
     currency: Text = Field("", description="currency of the unit prices, e.g. GBP")
     unit_prices: list[UnitPrice] = Field(default_factory=list, description="prices of mortars")
+
+
+def submodel(model: type[BaseModel], key: str) -> type[BaseModel] | None:
+    """The model the field ``key`` of ``model`` holds (itself, in a list or optional), or None."""
+    import typing
+    info = model.model_fields.get(key)
+    if info is None:
+        return None
+    stack = [info.annotation]
+    while stack:
+        t = stack.pop()
+        if isinstance(t, type) and issubclass(t, BaseModel):
+            return t
+        stack.extend(typing.get_args(t))
+    return None
+
+
+def model_at(model: type[BaseModel], path: tuple) -> type[BaseModel] | None:
+    """The model whose keys sit at ``path`` (list indexes skipped) inside ``model``, or None."""
+    current = model
+    for part in path:
+        if isinstance(part, int):
+            continue
+        current = submodel(current, part)
+        if current is None:
+            return None
+    return current
+
