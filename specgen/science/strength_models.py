@@ -24,7 +24,8 @@ per-result standard deviations are also accepted.  Standard errors come from the
 at the optimum, ``Cov = s²·(JᵀJ)⁻¹``.  Models are compared by AICc (Burnham & Anderson).
 The prediction band is a pointwise confidence band for the mean strength by the delta
 method, ``f ± t(1-α/2, dof)·sqrt(gᵀ·Cov·g)`` with ``g = ∂f/∂θ``, its lower edge
-clipped at zero.
+clipped at zero and never falling with age (every model grows with age, so the mean at an
+age is at least the lower edge at any earlier one).
 """
 from __future__ import annotations
 
@@ -353,13 +354,28 @@ def curve(fit: FitResult, ages_s: Sequence[float], level: float = 0.95,
     a = np.atleast_1d(np.asarray(ages_s, float))
     for age in a:
         _check_age(fit, float(age), max_factor)
+    f, lo, hi = _band(fit, a / DAY, level)
+    # Every model here grows with age, so the mean at t is at least the mean at any earlier
+    # age: the lower edge at t is the highest lower edge at or before t (it would otherwise
+    # fall where the band widens beyond the tested ages, which no reader could believe).
+    grid = np.geomspace(min(fit.age_min / DAY, t_min := float(a.min()) / DAY),
+                        max(float(a.max()) / DAY, t_min), 256)
+    _, lo_grid, _ = _band(fit, grid, level)
+    for i, ti in enumerate(a / DAY):
+        earlier = lo_grid[grid <= ti * (1 + 1e-12)]
+        if earlier.size:
+            lo[i] = max(lo[i], float(earlier.max()))
+    return f * _MPA, lo * _MPA, hi * _MPA
+
+
+def _band(fit: FitResult, t_d: np.ndarray, level: float):
+    """(mean, lower, upper) in MPa at ages ``t_d`` (d): the pointwise delta-method band."""
     spec, x, free = MODELS[fit.model], np.array(fit.x), np.array(fit.free)
-    t = a / DAY
-    f = spec.f(x, t)
-    g = spec.jac(x, t)[:, free]
+    f = spec.f(x, t_d)
+    g = spec.jac(x, t_d)[:, free]
     var = np.einsum("ij,jk,ik->i", g, np.array(fit.cov), g)
     half = stats.t.ppf(0.5 + level / 2.0, fit.dof) * np.sqrt(np.clip(var, 0.0, None))
-    return f * _MPA, np.clip(f - half, 0.0, None) * _MPA, (f + half) * _MPA
+    return f, np.clip(f - half, 0.0, None), f + half
 
 
 def predict(fit: FitResult, age_s: float, level: float = 0.95,
@@ -370,7 +386,7 @@ def predict(fit: FitResult, age_s: float, level: float = 0.95,
     return Prediction(age=float(age_s), value=float(v[0]), lower=float(lo[0]),
                       upper=float(hi[0]), level=level, extrapolated=extrap,
                       method=f"delta method, t(dof = {fit.dof}) pointwise confidence band "
-                             "for the mean, lower edge clipped at 0")
+                             "for the mean, lower edge clipped at 0 and not falling with age")
 
 
 def components(fit: FitResult, ages_s: Sequence[float]) -> dict[str, np.ndarray]:

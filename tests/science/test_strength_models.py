@@ -210,3 +210,31 @@ def test_plain_names_and_units_of_parameters():
     assert fit.units["f_S"] == "Pa" and fit.units["tau_S"] == "s"
     assert set(fit.std_errors) <= set(fit.params)
     assert all(math.isfinite(v) and v >= 0 for v in fit.std_errors.values())
+
+
+def test_lower_edge_never_falls_with_age_and_is_the_delta_band_where_that_rises():
+    # A short record (to 28 d) predicted to 4x its last age: the plain delta-method lower
+    # edge turns down where the band widens.  Reference band: the delta method written out
+    # here with central finite differences (numpy) and scipy's t quantile.
+    fit = fit_model("two_component", *_data("two_component", TRUE_TWO, EARLY, cv=0.08, seed=3))
+    ages = np.geomspace(1, 4 * 28, 80)
+    value, lo, hi = curve(fit, ages * DAY)
+    x, cov = np.array(fit.x), np.array(fit.cov)
+    f = lambda xx: sm.MODELS[fit.model].f(xx, ages)  # noqa: E731
+    cols = []
+    for j in np.flatnonzero(fit.free):
+        h = 1e-6 * max(1.0, abs(x[j]))
+        e = np.zeros_like(x)
+        e[j] = h
+        cols.append((f(x + e) - f(x - e)) / (2 * h))
+    jac = np.column_stack(cols)
+    half = stats.t.ppf(0.975, fit.dof) * np.sqrt(np.einsum("ij,jk,ik->i", jac, cov, jac))
+    plain_lo = np.clip(f(x) - half, 0, None) * MPA
+    assert np.any(np.diff(plain_lo) < 0)                      # the case the rule is for
+    assert np.all(np.diff(lo) >= -1e-6 * MPA)                  # never falls with age
+    assert hi == pytest.approx((f(x) + half) * MPA, rel=1e-4)  # upper edge untouched
+    assert value == pytest.approx(f(x) * MPA, rel=1e-9)
+    rising = plain_lo >= np.maximum.accumulate(plain_lo) * (1 - 1e-12)
+    # where the plain edge rises the two agree (to the grid's step at a turning point)
+    assert np.all(np.abs(lo[rising] / plain_lo[rising] - 1) <= 1e-3)
+    assert np.all(lo >= np.maximum.accumulate(plain_lo) * (1 - 1e-9))
