@@ -146,3 +146,10 @@ def test_wide_tables_get_a_landscape_page():
     narrow = "<table><thead><tr><th>a</th><th>b</th></tr></thead></table>"
     assert _landscape_wide_tables(wide).startswith('<div class="sg-wide">')
     assert _landscape_wide_tables(narrow) == narrow
+
+
+def test_reference_titles_are_set_in_italics(demo_build):
+    """Titles in the reference list are emphasised, not shown with their Markdown asterisks."""
+    html = (demo_build / REV / "references.html").read_text()
+    assert "<em>Cements, Limes and Plasters" in html and "*Cements" not in html
+    assert 'id="ref-eckel1922"' in html
