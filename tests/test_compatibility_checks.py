@@ -202,61 +202,6 @@ def test_missing_salts_not_assessed(demo_copy):
         "nitrate, sulfate in mass %) to its masonry unit or historic mortar in materials.yaml")
 
 
-def test_bad_sieve_analysis_non_monotone(demo_copy):
-    _edit(demo_copy / "lab/sieves.csv", "HM1-agg,1.18,79", "HM1-agg,1.18,97")
-    out = _problems(demo_copy)
-    assert ("lab/sieves.csv, row 14: sieve: sample 'HM1-agg' (rows 14, 15, 16, 17, 18, 19): "
-            "cumulative passing is not monotone: 97 % passes 1.18 mm but only 95 % passes the "
-            "coarser 2.36 mm. Fix: cumulative passing must fall (or stay equal) from each sieve "
-            "to the next finer one: check the transcription.") in out
-
-
-def test_bad_sieve_analysis_gap(demo_copy):
-    _edit(demo_copy / "lab/sieves.csv", "S2,1.18,83\n", "")
-    out = _problems(demo_copy)
-    assert ("lab/sieves.csv, row 8: sieve: sample 'S2' (rows 8, 9, 10, 11, 12): the sieve "
-            "series has gaps: no result for 1.18 mm. Fix: add the missing sieves (every sieve "
-            "of the series between the coarsest and finest used).") in out
-
-
-def test_bad_sieve_analysis_unknown_size(demo_copy):
-    _edit(demo_copy / "lab/sieves.csv", "S2,2.36,99", "S2,2.0,99")
-    out = _problems(demo_copy)
-    assert ("lab/sieves.csv, row 8: sieve: sample 'S2' (rows 8, 9, 10, 11, 12, 13): sieve 2 mm "
-            "is not in the standard series (0.075, 0.15, 0.3, 0.6, 1.18, 2.36, 4.75, 9.5, 19, "
-            "37.5, 75, 150 mm). Fix: use the apertures of the standard series (ASTM E11 / C125), "
-            "e.g. 0.600 mm for No. 30.") in out
-
-
-def test_bad_percentage_above_100(demo_copy):
-    _edit(demo_copy / "lab/sieves.csv", "HM1-agg,0.300,28", "HM1-agg,0.300,128")
-    out = _problems(demo_copy)
-    assert ("lab/sieves.csv, row 18: passing: passing must lie between 0 and 100 %; found 128 %. "
-            "Fix: give the cumulative percentage passing.") in out
-
-
-def test_bad_lab_out_of_range(demo_copy):
-    _edit(demo_copy / "lab/colour.csv", "M3,62.0,4.0,14.4", "M3,-2.0,4.0,14.4")
-    out = _problems(demo_copy)
-    assert ("lab/colour.csv, row 10: L: L* must lie between 0 and 100; found -2. Fix: check the "
-            "column order (L*, a*, b*) and the instrument's export.") in out
-
-
-def test_unknown_aggregate_sample(demo_copy):
-    _edit(demo_copy / "materials.yaml", "aggregate_sample: HM1-agg", "aggregate_sample: HM1-ag")
-    out = _problems(demo_copy)
-    assert ("materials.yaml, line 32: historic_mortars[0].aggregate_sample: historic mortar 'HM1' "
-            "names aggregate sample 'HM1-ag', which is not in lab/sieves.csv. Fix: did you mean "
-            "'HM1-agg'?") in out
-
-
-def test_negative_capillary_time(demo_copy):
-    _edit(demo_copy / "lab/capillary.csv", "M2,5,0.78", "M2,-5,0.78")
-    out = _problems(demo_copy)
-    assert ("lab/capillary.csv, row 2: time: time cannot be negative. Fix: give the time since "
-            "the specimen's face was placed in water.") in out
-
-
 def test_rule_override_of_colour_threshold(demo_copy):
     _edit(demo_copy / "dossier.yaml", "compatibility:\n",
           "rule_overrides:\n  - {rule: compatibility.colour_delta_e_max, value: 4.0, "
@@ -265,14 +210,6 @@ def test_rule_override_of_colour_threshold(demo_copy):
     _, r = check(demo_copy)
     c = _by(r)[("COMP-COLOUR", "Z1/M2")]
     assert c.status == "pass" and c.limit.high == 4.0 and "heritage service" in c.limit.overridden
-
-
-def test_acid_digestion_residue_heavier_than_sample(demo_copy):
-    _edit(demo_copy / "materials.yaml", 'residue_mass: "36.8 g"', 'residue_mass: "63.8 g"')
-    out = _problems(demo_copy)
-    assert ("materials.yaml, line 33: historic_mortars[0].acid_digestion: residue_mass must be "
-            "less than sample_mass (the residue is part of the sample); check the two masses and "
-            "their units.") in out
 
 
 def test_too_few_capillary_readings_are_said_not_ignored(demo_copy):
@@ -350,3 +287,54 @@ def test_grading_blend_uses_the_default_bulk_density_like_the_yield(demo):
     assert "default" in c.steps[0].inputs[0].source
     yield_ = _by(results)[("MIX-YIELD", "M1")]
     assert yield_.status != "not_assessed"
+
+
+# Bad fabric and laboratory data: one edit, and the message that names file, line or row,
+# field and fix (checked word for word).
+BAD_DATA = [
+    pytest.param('lab/sieves.csv', 'HM1-agg,1.18,79', 'HM1-agg,1.18,97',
+                 "lab/sieves.csv, row 14: sieve: sample 'HM1-agg' (rows 14, 15, 16, 17, 18, 19): "
+                 'cumulative passing is not monotone: 97 % passes 1.18 mm but only 95 % passes '
+                 'the coarser 2.36 mm. Fix: cumulative passing must fall (or stay equal) from '
+                 'each sieve to the next finer one: check the transcription.',
+                 id='bad_sieve_analysis_non_monotone'),
+    pytest.param('lab/sieves.csv', 'S2,1.18,83\n', '',
+                 "lab/sieves.csv, row 8: sieve: sample 'S2' (rows 8, 9, 10, 11, 12): the sieve "
+                 'series has gaps: no result for 1.18 mm. Fix: add the missing sieves (every '
+                 'sieve of the series between the coarsest and finest used).',
+                 id='bad_sieve_analysis_gap'),
+    pytest.param('lab/sieves.csv', 'S2,2.36,99', 'S2,2.0,99',
+                 "lab/sieves.csv, row 8: sieve: sample 'S2' (rows 8, 9, 10, 11, 12, 13): sieve 2 "
+                 'mm is not in the standard series (0.075, 0.15, 0.3, 0.6, 1.18, 2.36, 4.75, 9.5, '
+                 '19, 37.5, 75, 150 mm). Fix: use the apertures of the standard series (ASTM E11 '
+                 '/ C125), e.g. 0.600 mm for No. 30.',
+                 id='bad_sieve_analysis_unknown_size'),
+    pytest.param('lab/sieves.csv', 'HM1-agg,0.300,28', 'HM1-agg,0.300,128',
+                 'lab/sieves.csv, row 18: passing: passing must lie between 0 and 100 %; found '
+                 '128 %. Fix: give the cumulative percentage passing.',
+                 id='bad_percentage_above_100'),
+    pytest.param('lab/colour.csv', 'M3,62.0,4.0,14.4', 'M3,-2.0,4.0,14.4',
+                 'lab/colour.csv, row 10: L: L* must lie between 0 and 100; found -2. Fix: check '
+                 "the column order (L*, a*, b*) and the instrument's export.",
+                 id='bad_lab_out_of_range'),
+    pytest.param('materials.yaml', 'aggregate_sample: HM1-agg', 'aggregate_sample: HM1-ag',
+                 'materials.yaml, line 32: historic_mortars[0].aggregate_sample: historic mortar '
+                 "'HM1' names aggregate sample 'HM1-ag', which is not in lab/sieves.csv. Fix: did "
+                 "you mean 'HM1-agg'?",
+                 id='unknown_aggregate_sample'),
+    pytest.param('lab/capillary.csv', 'M2,5,0.78', 'M2,-5,0.78',
+                 'lab/capillary.csv, row 2: time: time cannot be negative. Fix: give the time '
+                 "since the specimen's face was placed in water.",
+                 id='negative_capillary_time'),
+    pytest.param('materials.yaml', 'residue_mass: "36.8 g"', 'residue_mass: "63.8 g"',
+                 'materials.yaml, line 33: historic_mortars[0].acid_digestion: residue_mass must '
+                 'be less than sample_mass (the residue is part of the sample); check the two '
+                 'masses and their units.',
+                 id='acid_digestion_residue_heavier_than_sample'),
+]
+
+
+@pytest.mark.parametrize("path, old, new, message", BAD_DATA)
+def test_bad_data_is_refused_with_its_location(demo_copy, path, old, new, message):
+    _edit(demo_copy / path, old, new)
+    assert message in _problems(demo_copy)

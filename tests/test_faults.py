@@ -36,6 +36,8 @@ def kill_at(proc, marker: str, delay: float) -> str:
             time.sleep(delay)
             break
     kids = _children(proc.pid)
+    if marker == "publish: PDF":  # the PDF workers (and the site process) are running now
+        assert kids, "no worker process seen while the PDF was printed"
     proc.send_signal(signal.SIGKILL)
     proc.wait(timeout=60)
     # the site and PDF worker processes end with the build, never left running

@@ -34,11 +34,14 @@ def panel_sample(pair, project) -> tuple[str, str]:
     spec = project.specification
     panels = [tp for tp in (spec.doc.trial_panels if spec else [])
               if tp.mix == pair.mix_id and tp.colour_sample]
-    for here in (True, False):
-        for tp in panels:
-            if (tp.zone == pair.zone.id) == here or (here and tp.zone is None):
-                where = "" if here else f", built for zone {tp.zone}: the same mortar"
-                return tp.colour_sample, f"trial panel {tp.id} (sample {tp.colour_sample}{where})"
+    here = [tp for tp in panels if tp.zone in (None, pair.zone.id)]
+    if here:
+        tp = here[0]
+        return tp.colour_sample, f"trial panel {tp.id} (sample {tp.colour_sample})"
+    if panels:
+        tp = panels[0]
+        return tp.colour_sample, (f"trial panel {tp.id} (sample {tp.colour_sample}, built for "
+                                  f"zone {tp.zone}: the same mortar)")
     return pair.mix_id, f"sample {pair.mix_id} (no trial panel of {pair.mix_id} names a colour sample)"
 
 

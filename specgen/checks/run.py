@@ -44,8 +44,16 @@ class Results:
     comments: list[dict] = field(default_factory=list)        # review comments, as given
 
     def check(self, code: str, subject: str) -> CheckResult | None:
-        """The result of check ``code`` on ``subject`` (None when it did not run)."""
-        return next((c for c in self.checks if c.code == code and c.subject == subject), None)
+        """The result of check ``code`` on ``subject`` (None when it did not run).
+
+        Looked up in an index of the results, made again whenever results were added."""
+        index = self.__dict__.get("_index")
+        if index is None or index[0] != len(self.checks):
+            by_key = {}
+            for c in self.checks:
+                by_key.setdefault((c.code, c.subject), c)
+            index = self.__dict__["_index"] = (len(self.checks), by_key)
+        return index[1].get((code, subject))
 
     def value(self, subject: str, name: str):
         """The value of quantity ``name`` recorded for ``subject`` (None when not recorded)."""

@@ -16,6 +16,7 @@ from dataclasses import dataclass
 import jinja2
 import yaml
 
+from specgen.errors import PublishError
 from specgen.refdata import CONTENT_DIR
 
 PRINT_DIR = CONTENT_DIR / "print"
@@ -197,26 +198,23 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
         handles = {i: cached_or_submitted(printer, "pdf-part", document_html(
             context, groups[i], front=False), css, **PDF_OPTIONS) for i in order}
         printed = [handles[i].result() for i in range(len(groups))]
+        sizes = [size for doc in printed for size in doc.pages]
         length = len(guess.result().pages)
         for _ in range(3):  # the contents' length does not depend on its numbers, but check
-            anchors = global_anchors([_Blank(length), *printed])
+            anchors = global_anchors(printed, start=length)
             numbers = {p.id: anchors[p.id][0] + 1 for p in every if p.id in anchors}
             final = front(numbers, attachments=files, pdf_identifier=identifier)
-            sizes = [s for doc in printed for s in doc.pages]
             stamps = _stamps(printer, context, page_size, length, sizes)
             done = final.result()
             if len(done.pages) == length:
                 break
             length = len(done.pages)
+        else:
+            raise PublishError("the contents pages changed length with their page numbers "
+                               "three times; nothing was changed in the output folder. Fix: "
+                               "report this with the project.")
         stamps = [s.result() for s in stamps]
     assemble(done, printed, stamps, target)
-
-
-class _Blank:
-    """Stands for the front matter while its length is all that is known of it."""
-
-    def __init__(self, pages: int):
-        self.pages, self.anchors = [None] * pages, {}
 
 
 STAMP_SPLIT = 400  # pages per stamp document

@@ -74,10 +74,11 @@ def _lay_over(writer, page, stamp) -> None:
         [writer._add_object(before), *contents, writer._add_object(after)])
 
 
-def global_anchors(docs) -> dict[str, tuple[int, float, float]]:
-    """Anchor id → (page of the whole document, x, y); the first occurrence wins."""
+def global_anchors(docs, start: int = 0) -> dict[str, tuple[int, float, float]]:
+    """Anchor id → (page of the whole document, x, y), the ``docs`` following ``start``
+    pages; the first occurrence wins."""
     found: dict[str, tuple[int, float, float]] = {}
-    offset = 0
+    offset = start
     for doc in docs:
         for name, (page, x, y) in doc.anchors.items():
             found.setdefault(name, (offset + page, x, y))

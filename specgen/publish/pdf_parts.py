@@ -19,6 +19,7 @@ from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field
 
 from specgen.errors import PublishError
+from specgen.publish.pdf import BASE
 
 PT_PER_PX = 0.75  # 72 PDF points per inch / 96 CSS pixels per inch
 
@@ -57,7 +58,6 @@ def print_document(html: str, css: str, pageset, **options) -> Printed:
     """Lay out and draw one document; ``options`` go to WeasyPrint (as its ``write_pdf``)."""
     import weasyprint
 
-    from specgen.publish.pdf import BASE
     if "attachments" in options:  # (name, bytes, datetime) triples: plain data for the workers
         options = dict(options, attachments=[
             weasyprint.Attachment(string=data, name=name, description=name, created=when,
@@ -102,7 +102,6 @@ def _quietly(write, **options) -> bytes:
 def _fetcher(pageset):
     import mimetypes
 
-    from specgen.publish.pdf import BASE
     from weasyprint.urls import URLFetcher, URLFetcherResponse
 
     class PageSetFetcher(URLFetcher):
@@ -160,8 +159,9 @@ class Printer:
 
     def submit(self, html: str, css: str, **options):
         if self.pool is None:
-            return _Later(lambda: print_document(html, css, self.pageset, **options))
-        return _Pooled(self.pool.submit(_work, (html, css, options)))
+            return _Handle(lambda: print_document(html, css, self.pageset, **options))
+        future = self.pool.submit(_work, (html, css, options))
+        return _Handle(lambda: _unpack(future))
 
     def close(self, cancel: bool = False) -> None:
         global _PAGESET
@@ -177,61 +177,49 @@ class Printer:
         self.close(cancel=kind is not None)
 
 
-class _Later:
-    def __init__(self, produce):
-        self.produce = produce
+class _Handle:
+    """A document being printed; ``result()`` gives its :class:`Printed` (worked out once)."""
+
+    def __init__(self, get):
+        self._get, self._printed = get, None
 
     def result(self) -> Printed:
-        return self.produce()
+        if self._printed is None:
+            self._printed = self._get()
+        return self._printed
 
 
-class _Pooled:
-    def __init__(self, future):
-        self.future = future
-
-    def result(self) -> Printed:
-        from concurrent.futures.process import BrokenProcessPool
-        try:
-            return Printed.from_bytes(self.future.result())
-        except BrokenProcessPool as exc:
-            raise PublishError("a PDF worker process ended unexpectedly (out of memory?); "
-                               "nothing was changed in the output folder. Fix: build again, "
-                               "or free memory.") from exc
-
-
-class _Done:
-    def __init__(self, printed: Printed):
-        self.printed = printed
-
-    def result(self) -> Printed:
-        return self.printed
+def _unpack(future) -> Printed:
+    from concurrent.futures.process import BrokenProcessPool
+    try:
+        return Printed.from_bytes(future.result())
+    except BrokenProcessPool as exc:
+        raise PublishError("a PDF worker process ended unexpectedly (out of memory?); "
+                           "nothing was changed in the output folder. Fix: build again, "
+                           "or free memory.") from exc
 
 
 def cached_or_submitted(printer: Printer, kind: str, html: str, css: str, **options):
-    """A handle for the part: from the artefact cache when drawn before, else submitted.
+    """A handle for the part: from the artefact cache when drawn before, else submitted
+    (and kept in the cache once printed).
 
-    The key covers the HTML, the CSS, the options, our code and WeasyPrint's version, and
-    (through the assets' names, which are content hashes) every figure and formula.
+    The key covers the HTML, the CSS, the options, our code, WeasyPrint's version and the
+    SHA-256 of every asset the HTML uses.
     """
     from specgen.report import cache
     inputs = [html, css, sorted(options.items()), _engine_version(),
               _asset_digests(html, printer.pageset)]
     found = cache.lookup(kind, inputs)
     if found is not None:
-        return _Done(Printed.from_bytes(found))
+        printed = Printed.from_bytes(found)
+        return _Handle(lambda: printed)
     handle = printer.submit(html, css, **options)
-    return _Stored(handle, kind, inputs)
 
-
-class _Stored:
-    def __init__(self, handle, kind, inputs):
-        self.handle, self.kind, self.inputs = handle, kind, inputs
-
-    def result(self) -> Printed:
-        from specgen.report import cache
-        printed = self.handle.result()
-        cache.store(self.kind, self.inputs, printed.to_bytes())
+    def printed_and_kept() -> Printed:
+        printed = handle.result()
+        cache.store(kind, inputs, printed.to_bytes())
         return printed
+    return _Handle(printed_and_kept)
 
 
 def _asset_digests(html: str, pageset) -> list:
@@ -239,7 +227,6 @@ def _asset_digests(html: str, pageset) -> list:
     import hashlib
     import re
 
-    from specgen.publish.pdf import BASE
     out = []
     for src in sorted(set(re.findall(r'src="([^"]+)"', html))):
         data = pageset.assets.get(src.removeprefix(BASE))
