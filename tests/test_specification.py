@@ -90,7 +90,9 @@ def test_clean_choice_passes_and_missing_choice_is_flagged(demo_copy):
     (demo_copy / "specification.yaml").write_text(text[:start] + text[end:], encoding="utf-8")
     _, r = check(demo_copy)
     z1, z3 = by(r)[("SPEC-SELECT", "Z1")], by(r)[("SPEC-SELECT", "Z3")]
-    assert z1.status == "pass" and z1.message == "M2 selected; it fails no check"
+    # M2's cap at 365 d is held (365 d is beyond 3x its last tested age, 90 d)
+    assert z1.status == "attention" and z1.message == \
+        "M2 selected; decision rests on held check(s) STR-MAX"
     assert z3.status == "hold"
     assert z3.message == ("no mortar selected for zone Z3: add a selection to specification.yaml "
                           "(candidates: M2, M3)")
@@ -104,7 +106,7 @@ def test_results_names_selection_and_hold_points(demo_copy):
     assert {z: d[z]["selected_mix"]["value"] for z in ("Z1", "Z2", "Z3")} == \
         {"Z1": "M2", "Z2": "M2", "Z3": "M3"}
     assert {z: d[z]["selection_status"]["value"] for z in ("Z1", "Z2", "Z3")} == \
-        {"Z1": "pass", "Z2": "attention", "Z3": "attention"}
+        {"Z1": "attention", "Z2": "attention", "Z3": "attention"}   # Z1: STR-MAX/M2 held
     holds = d["WEP-2026"]["hold_points"]["value"]
     assert {k: v["state"] for k, v in holds.items()} == {
         "HP1": "released", "HP2": "open", "HP3": "open", "HP4": "open", "HP5": "open"}
@@ -223,11 +225,13 @@ def test_sampling_for_the_zone_area(demo_copy):
          "site_tests:\n  per_working_day: false\n  area_per_set: \"40 m^2\"\n")
     _, r = check(demo_copy)
     z1, z2 = r.quantities["Z1"]["sample_sets"].value, r.quantities["Z2"]["sample_sets"].value
-    # Z1 240 m² / 40 m² = 6 sets; Z2 85 m² / 40 m² = 2.125 → 3; 3 prisms × 2 ages (28, 90 d)
-    assert (z1["sets"], z1["prisms"], z1["working_days"]) == (6, 36, None)
-    assert (z2["sets"], z2["prisms"]) == (3, 18)
+    # Z1 240 m² / 40 m² = 6 sets; Z2 85 m² / 40 m² = 2.125 → 3; 3 prisms × 3 ages (28, 90 d
+    # required; 180 d named by the held cap STR-MAX/M2)
+    assert (z1["sets"], z1["prisms"], z1["working_days"]) == (6, 54, None)
+    assert (z2["sets"], z2["prisms"]) == (3, 27)
+    assert z1["ages_d"] == [28.0, 90.0, 180.0]
     res = by(r)[("SPEC-SAMPLING", "Z1")]
-    assert res.message == "6 set(s) of 3 prisms per test age (6 by area): 36 prisms"
+    assert res.message == "6 set(s) of 3 prisms per test age (6 by area): 54 prisms"
     assert by(r)[("SPEC-SAMPLING", "Z3")].status == "not_assessed"   # no area, days not counted
 
 

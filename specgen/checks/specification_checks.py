@@ -177,12 +177,33 @@ def _setting(spec, name: str, rules, kind: str):
     return r.si(kind), r.source()
 
 
-def site_test_ages(project, spec) -> list[tuple[float, str]]:
-    """(age in s, source) of the site tests: the project's list, else the required ages."""
+def site_test_ages(project, spec, holds=()) -> list[tuple[float, str]]:
+    """(age in s, source) of the site tests: the project's list, else the required ages;
+    plus the ages that strength holds name (``holds``: (age s, source)), when not listed."""
     if spec and spec.doc.site_tests.test_ages:
-        return [(a, f"{SPEC_FILE} site_tests.test_ages") for a in spec.doc.site_tests.test_ages]
-    return [(m.age, "dossier.yaml requirements.min_compressive")
-            for m in project.dossier.requirements.min_compressive]
+        ages = [(a, f"{SPEC_FILE} site_tests.test_ages") for a in spec.doc.site_tests.test_ages]
+    else:
+        ages = [(m.age, "dossier.yaml requirements.min_compressive")
+                for m in project.dossier.requirements.min_compressive]
+    have = {round(a / DAY, 6) for a, _ in ages}
+    for a, src in holds:
+        if round(a / DAY, 6) not in have:
+            ages.append((a, src))
+            have.add(round(a / DAY, 6))
+    return sorted(ages)
+
+
+def strength_holds(ctx, zone_id: str) -> list[tuple[float, str]]:
+    """(age s, source) that held strength verdicts of the zone's chosen mix name for testing."""
+    chosen = ctx.quantity(zone_id, "selected_mix")
+    acc = ctx.quantity(chosen.value, "acceptance") if chosen else None
+    out = []
+    for key, v in sorted((acc.value if acc else {}).items()):
+        if v.get("hold_age_d"):
+            code = "STR-MIN" if key.startswith("min") else "STR-MAX"
+            out.append((v["hold_age_d"] * DAY, f"{code}/{chosen.value} hold ({key}): the age "
+                        "that would decide"))
+    return out
 
 
 @register("SPEC-SAMPLING", "Sets of site prisms for the zone", "zone", order=910)
@@ -198,7 +219,7 @@ def sampling_check(zone, ctx) -> CheckResult:
     s = _sampling_inputs(zone, spec, ctx.rules)
     n = st.sample_sets(s["n_min"][0], zone.area, s["a"][0], vol.value if by_day else None,
                        s["q"][0], s["T"][0])
-    ages = site_test_ages(ctx.project, spec)
+    ages = site_test_ages(ctx.project, spec, strength_holds(ctx, zone.id))
     total = st.prisms(n.sets, s["p"][0], len(ages))
     inputs = [Input("n_min", "fewest sets", s["n_min"][0], "", s["n_min"][1]),
               Input("a", "wall area per set", s["a"][0], "m²", s["a"][1]),
@@ -263,7 +284,7 @@ def acceptance_check(zone, ctx) -> CheckResult:
         return _result("SPEC-ACCEPT", title, zone.id, "not_assessed", None, "", SAMPLING,
                        f"not assessed: {why} for zone {zone.id}")
     mix, (r, r_src) = chosen.value, _setting(spec, "individual_minimum", ctx.rules, "fraction")
-    table, inputs, subs = _acceptance_rows(site_test_ages(ctx.project, spec), mix, r,
+    table, inputs, subs = _acceptance_rows(site_test_ages(ctx.project, spec, strength_holds(ctx, zone.id)), mix, r,
                                            verdicts.value)
     inputs.insert(0, Input("r", "individual minimum / required", round(100 * r, 4), "%", r_src))
     step = Step(f"Site acceptance of {mix} in zone {zone.id}",

@@ -8,10 +8,11 @@ dossier's requirements is in ``strength_acceptance_checks``.
 from __future__ import annotations
 
 from specgen.checks import strength_common as sc
+from specgen.checks import strength_prior_common as spc
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step
 from specgen.checks.result import not_assessed as _not_assessed
-from specgen.science import strength_models as sm
+from specgen.science import strength_inference as si, strength_models as sm
 
 DAY, MPA = sc.DAY, sc.MPA
 EN1990 = Basis("reference", "en1990", "Annex D, D7.2 (5 % fractile, normal distribution)")
@@ -19,8 +20,6 @@ GRUBBS = Basis("reference", "grubbs1969", "two-sided test for one outlier; see a
 AICC = Basis("reference", "burnham2002", "AICc and ΔAICc, sec. 2.4 and 2.6")
 EN1992 = Basis("reference", "en1992", "eq. 3.2, age function of compressive strength")
 C1074 = Basis("reference", "astmc1074", "equivalent age (Arrhenius) and temperature-time factor")
-SHORT = Basis("common practice", note="band widened when extrapolating from a short record "
-              "(content/rules/strength.yaml)")
 
 declare("mean_strength", "MPa", "mean strength by test kind and tested age")
 declare("characteristic_strength", "MPa", "5 % characteristic strength by test kind and age "
@@ -289,67 +288,89 @@ def _pred_check(test: str, order: int):
     code, title = f"STR-PRED-{CODE_OF[test]}", f"Predicted strength ({test})"
 
     @register(code, title, "mix", order=order,
-              description=f"{test} strength predicted at requirement and late ages, with band")
+              description=f"{test} strength predicted at requirement and late ages: band for "
+                          "the mean curve and interval for the next set of site prisms")
     def check(mix, ctx):
         s = sc.cached(ctx).get((mix.id, test))
-        if s is None or s.fit is None:
-            return []        # the model-fit check says why
+        if s is None or s.run is None:
+            return []        # the inference check says why
+        if not s.run.ok:
+            why = "; ".join(s.run.misfit) or s.run.error
+            return not_assessed(code, title, mix.id, f"no prediction: {why}", (PRIOR_BASIS,))
         return _pred_result(code, title, mix.id, s, ctx)
     return check
 
 
+PRIOR_BASIS = Basis("common practice", note="two-stage law with the binder family's prior "
+                    "(content/data/strength_priors.yaml); see STR-INF")
+INDICATIVE = Basis("common practice", note="predictions beyond the extrapolation limit "
+                   "(rule strength.extrapolation_limit) are indicative only")
+
+
+def interval(s: sc.Series, age_s: float, kind: str, ctx, n: float | None = None):
+    """The inference interval at ``age_s`` (s): 'mean' (band for the mean curve) or 'set'
+    (mean of the next set of ``n`` prisms; default the site set size; inf: one batch)."""
+    n = spc.set_size(ctx.project, ctx.rules) if n is None else n
+    return si.interval(s.run.inference, age_s / DAY, kind,
+                       ctx.rules["strength.confidence_level"].value, n,
+                       ctx.rules["strength.extrapolation_limit"].value)
+
+
 def _pred_result(code, title, mix, s: sc.Series, ctx) -> CheckResult:
-    steps, data, widened, refused = [], {}, [], []
+    steps, data, indicative = [], {}, []
     for age in prediction_ages(ctx, s.test):
-        try:
-            b = sc.band(s, age, ctx.rules)
-        except sm.StrengthFitError as exc:
-            refused.append(f"{age / DAY:g} d not predicted: {exc}")
-            continue
-        steps.append(pred_step(s, b, ctx))
-        data[age_key(age)] = {"value": mpa(b.value), "lower": mpa(b.lower),
-                              "upper": mpa(b.upper), "extrapolated": b.extrapolated,
-                              "widened": b.widened}
-        if b.widened:
-            widened.append(age_key(age))
-    text = "; ".join(f"{k}: {v['value']:.3g} MPa [{v['lower']:.3g}, {v['upper']:.3g}]"
-                     + (" extrapolated" if v["extrapolated"] else "") for k, v in data.items())
-    status = "attention" if widened or refused else "info"
-    if widened:
-        text += (f"; band widened at {', '.join(widened)} (short record): indicative, "
-                 "not a basis for acceptance")
-    basis = (EN1992, AICC) + ((SHORT,) if widened else ())
+        m, p = interval(s, age, "mean", ctx), interval(s, age, "set", ctx)
+        steps.append(pred_step(s, p, ctx, mean=m))
+        data[age_key(age)] = {"value": round(m.value, 4), "lower": round(m.lower, 4),
+                              "upper": round(m.upper, 4), "pred_lower": round(p.lower, 4),
+                              "pred_upper": round(p.upper, 4), "n": p.kind,
+                              "extrapolated": age / DAY > s.run.inference.last_age * (1 + 1e-9),
+                              "indicative": m.indicative}
+        if m.indicative:
+            indicative.append(age_key(age))
+    text = "; ".join(f"{k}: {v['value']:.3g} MPa, mean [{v['lower']:.3g}, {v['upper']:.3g}], "
+                     f"next set [{v['pred_lower']:.3g}, {v['pred_upper']:.3g}]"
+                     + (" (indicative)" if v["indicative"] else "") for k, v in data.items())
+    if indicative:
+        text += (f"; {', '.join(indicative)} beyond "
+                 f"{ctx.rules['strength.extrapolation_limit'].value:g}× the last tested age "
+                 f"({s.run.inference.last_age:g} d): indicative, never deciding")
+    basis = (PRIOR_BASIS,) + ((INDICATIVE,) if indicative else ())
     return CheckResult(
-        code=code, title=title, subject=mix, subject_kind="mix", status=status,
+        code=code, title=title, subject=mix, subject_kind="mix",
+        status="attention" if indicative else "info",
         value=data[max(data, key=lambda k: float(k[:-2]))]["value"] if data else None,
-        unit="MPa", basis=basis, steps=tuple(steps), message=text or "; ".join(refused),
-        notes=tuple(refused), quantities=(merged(ctx, mix, "predicted_strength", s.test, data,
-                                                 "MPa", "predicted mean strength with band"),))
+        unit="MPa", basis=basis, steps=tuple(steps), message=text,
+        quantities=(merged(ctx, mix, "predicted_strength", s.test, data, "MPa",
+                           "predicted strength: band for the mean and interval for the next set"),))
 
 
-def pred_step(s: sc.Series, b: sc.Band, ctx, prefix: str = "") -> Step:
-    fit = s.fit
-    level = ctx.rules["strength.confidence_level"].value
-    half = b.raw_upper - b.value
-    inputs = [Input("t", "age (equivalent, at 20 °C)", round(b.age / DAY, 3), "d",
-                    "requirement or late age" if not prefix else prefix),
-              Input("model", "model", fit.title, "", "STR-FIT: chosen by AICc"),
-              Input("ν", "degrees of freedom", fit.dof, "", "n − parameters"),
-              Input("1−α", "confidence level", level, "", "rule strength.confidence_level")]
-    sub = (rf"\hat f = {b.value / MPA:.3f} \pm {half / MPA:.3f} \Rightarrow "
-           rf"[{b.raw_lower / MPA:.3f},\ {b.raw_upper / MPA:.3f}]")
-    if b.widened:
-        k = ctx.rules["strength.band_inflation"].value
-        inputs.append(Input("k", "band inflation (short record)", k, "",
-                            "rule strength.band_inflation (common practice, calibrated)"))
-        sub += rf";\ \times {k:g} \Rightarrow [{b.lower / MPA:.3f},\ {b.upper / MPA:.3f}]"
-    where = "extrapolated" if b.extrapolated else "within the tested ages"
-    title = (f"{prefix}: t_e = {b.age / DAY:.4g} d ({where})" if prefix
-             else f"{s.test} at {b.age / DAY:g} d ({where})")
+def pred_step(s: sc.Series, iv, ctx, prefix: str = "", mean=None) -> Step:
+    """Calculation of one inference interval (``iv``), with the mean band beside it."""
+    inf, level = s.run.inference, iv.level
+    limit = ctx.rules["strength.extrapolation_limit"].value
+    inputs = [Input("t", "age (equivalent, at 20 °C)", round(iv.age, 3), "d",
+                    prefix or "requirement or late age"),
+              Input("t_last", "last tested age", round(inf.last_age, 3), "d", "STR-AGG"),
+              Input("k_x", "extrapolation limit", limit, "×", "rule strength.extrapolation_limit "
+                    "(common practice)"),
+              Input("σ_b", "scatter between batches", round(100 * inf.sigma_b, 3), "%",
+                    inf.sigma_b_source),
+              Input("σ_w", "scatter within a batch", round(100 * inf.sigma_w, 3), "%",
+                    inf.sigma_w_source),
+              Input("q", f"Student t, {inf.dof:g} dof, {level:.0%} two-sided",
+                    round(inf.quantile(level), 4), "", "scipy.stats")]
+    sub = rf"\hat f = {iv.value:.3f};\ 	ext{{{iv.kind}}}: [{iv.lower:.3f},\ {iv.upper:.3f}]"
+    if mean is not None:
+        sub += rf";\ 	ext{{mean curve}}: [{mean.lower:.3f},\ {mean.upper:.3f}]"
+    where = ("indicative: beyond the extrapolation limit" if iv.indicative else
+             "extrapolated" if iv.age > inf.last_age * (1 + 1e-9) else "within the tested ages")
+    title = (f"{prefix}: t_e = {iv.age:.4g} d ({where}); interval for the {iv.kind}" if prefix
+             else f"{s.test} at {iv.age:g} d ({where}); interval for the {iv.kind}")
     return Step(title,
-                r"\hat f(t) \pm t_{1-\alpha/2,\,\nu}\sqrt{g^{\mathsf{T}}\,\Sigma\,g},"
-                r"\quad g = \partial f/\partial\theta", tuple(inputs), sub,
-                round(b.value / MPA, 4), "MPa", "f̂")
+                r"e^{\ln\hat f(t) \pm q\sqrt{g^{\mathsf T}\Sigma g + \sigma_b^2 + "
+                r"\sigma_w^2/n}},\quad g = \partial \ln f/\partial	heta",
+                tuple(inputs), sub, round(iv.value, 4), "MPa", "f̂")
 
 
 for _i, _t in enumerate(sc.TESTS):

@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from specgen import refdata
+from specgen.checks import strength_prior_common as spc
 from specgen.science import maturity, strength_models as sm, strength_stats as ss
 
 DAY = sm.DAY
@@ -66,6 +67,7 @@ class Series:
     y_fit: np.ndarray | None = None  # Pa
     selection: sm.Selection | None = None
     fit_error: str = ""
+    run: spc.InferenceRun | None = None   # the two-stage law fitted with the family's prior
 
     @property
     def fit(self) -> sm.FitResult | None:
@@ -148,6 +150,9 @@ def _series(key, rows, st, rules, plaus, project) -> Series:
         t_fit += [r.age * lab_factor(r.curing_temperature, st) for r in g.kept]
         y_fit += [r.value for r in g.kept]
     s.t_fit, s.y_fit = np.array(t_fit), np.array(y_fit)
+    mix = project.mixes.get(key[0])
+    if mix is not None:
+        s.run = spc.infer(s, spc.family(project, mix), rules)
     if s.implausible:
         s.fit_error = ("results of implausible magnitude (see the aggregation check): "
                        "correct the unit or the values before fitting")

@@ -143,6 +143,7 @@ class History:
     revisions: list[dict]
     previous: str | None
     changes: dict | None
+    earlier: tuple = ()          # (code, results.json as a dict) of each earlier revision
 
 
 def history_for(out: Path, project, results) -> History:
@@ -159,7 +160,7 @@ def history_for(out: Path, project, results) -> History:
     prev = earlier[-1]
     changes = compare(prev.results, prev.manifest.get("inputs", {}), results.to_dict(),
                       {f.path: f.sha256 for f in project.inputs})
-    return History(rows, prev.code, changes)
+    return History(rows, prev.code, changes, tuple((r.code, r.results) for r in earlier))
 
 
 def _refuse_case_collision(out: Path, code: str) -> None:

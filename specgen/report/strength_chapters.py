@@ -1,92 +1,125 @@
-"""The strength-development chapter: per mix, aggregates, model comparison, predictions,
-acceptance (linked to the calculation sheets) and figures.
+"""The strength-development chapter: per mix, aggregates, prior and data, model comparison,
+predictions with both intervals, how the intervals narrowed over the revisions, acceptance
+(linked to the calculation sheets) and figures.
 
-Numbers come from the check results and from ``specgen.checks.strength_common`` (the
-same computation the checks use); figure curves are evaluated with the science's
-``curve``/``components`` functions, never with formulas written here.
+Everything shown is read from Results (``results.json`` names, see DEVELOPERS.md): the
+fitted curves and interval arrays are recorded by STR-INF, the in-wall curve by STR-SITE.
+Nothing is refitted or recomputed here.
 """
 from __future__ import annotations
 
-import numpy as np
-
-from specgen.checks import strength_common as sc
 from specgen.checks.rules import RuleBook
 from specgen.report.chapters import badge, chapter, sheet_anchor
 from specgen.report.fmt import num
-from specgen.science import strength_models as sm
 
-DAY, MPA = sc.DAY, sc.MPA
+TERMS = {"early_fraction": ("early (fast-stage) fraction", ""),
+         "tau_fast_d": ("fast-stage time constant", "d"),
+         "tau_slow_d": ("slow-stage time constant", "d"),
+         "shape_b": ("slow-stage shape b", ""),
+         "gain_365_28": ("one-year / 28-day strength", "")}
 
 
 @chapter("strength.md", "Strength development", 40, "strength.md.j2")
 def strength(env) -> dict:
-    p = env.project
+    p, r = env.project, env.results
     rules = RuleBook(p.dossier.rule_overrides)
-    series = sc.analyse(p, rules)
-    mixes = [_mix(env, m, [s for (mid, _), s in series.items() if mid == m.id], rules)
-             for m in p.mixes.values() if any(mid == m.id for mid, _ in series)]
-    st = sc.settings(p)
-    return {"mixes": mixes, "has_data": bool(series), "warning": st.warning,
-            "energy": f"{num(st.activation_energy / 1000, 3)} kJ/mol ({st.energy_source})",
-            "method": st.method.replace("_", "-"),
-            "site": p.site_temperature.source if p.site_temperature else ""}
+    mixes = [_mix(env, m, rules) for m in p.mixes.values() if r.value(m.id, "mean_strength")]
+    site = next((c for c in r.checks if c.code == "STR-SITE" and c.steps), None)
+    energy = next((i for i in site.steps[0].inputs if i.symbol == "E"), None) if site else None
+    return {"mixes": mixes, "has_data": bool(mixes),
+            "warning": next((n for n in (site.notes if site else ()) if "must be measured" in n),
+                            ""),
+            "energy": f"{num(energy.value, 3)} kJ/mol ({energy.source})" if energy else "",
+            "method": (r.value(site.subject, "equivalent_age") or {}).get("method", "").replace(
+                "_", "-") if site else "",
+            "site": p.site_temperature.source if p.site_temperature else "",
+            "limit": f"{rules['strength.extrapolation_limit'].value:g}",
+            "level": f"{100 * rules['strength.confidence_level'].value:g} %"}
 
 
-def _mix(env, mix, series: list[sc.Series], rules) -> dict:
+def _mix(env, mix, rules) -> dict:
     r = env.results
     results = [{"code": c.code, "title": c.title, "badge": badge(c.status), "message": c.message,
                 "href": f"calculations.md#{sheet_anchor(c)}"}
                for c in r.checks if c.subject == mix.id and c.code.startswith("STR-")]
-    pred = r.value(mix.id, "predicted_strength")
-    figures = [env.figure(f"figures/strength-{mix.id}-{s.test}.svg", _figure(env, mix, s, rules),
-                          f"{mix.id}: {s.test} strength against age"
-                          + (" — fitted model and band" if s.fit else "")
-                          + (", requirements and strength in the wall"
-                             if s.fit and s.test == "compressive" else ""))
-               for s in series]
-    fitted = [s for s in series if s.fit is not None]
+    means = r.value(mix.id, "mean_strength") or {}
+    curves = r.value(mix.id, "strength_curve") or {}
+    figures = [env.figure(f"figures/strength-{mix.id}-{test}.svg",
+                          _figure(env, mix, test, curves.get(test), rules),
+                          f"{mix.id}: {test} strength against age"
+                          + (" — two-stage law with the family's prior, band for the mean and "
+                             "interval for the next set" if test in curves else ""))
+               for test in means]
     resid = None
-    if fitted:
+    if curves:
         from specgen.report.strength_figures import residuals
-        resid = env.figure(f"figures/strength-{mix.id}-residuals.svg",
-                           residuals([_residuals(s) for s in fitted]),
-                           f"{mix.id}: relative residuals of the chosen models")
-    return {"id": mix.id, "name": mix.name, "aggregates": _aggregates(series),
-            "has_known": any(g.known for s in series for g in s.groups),
-            "models": _models(series), "reasoning": [
-                {"test": s.test, "text": s.selection.reasoning if s.selection else s.fit_error}
-                for s in series],
-            "predictions": _predictions(pred or {}), "results": results,
+        resid = env.figure(f"figures/strength-{mix.id}-residuals.svg", residuals(
+            [{"test": t, "model": "two-stage law with prior",
+              "ages": [a for a, _ in c["residuals_pct"]],
+              "residuals": [v for _, v in c["residuals_pct"]]} for t, c in curves.items()]),
+            f"{mix.id}: relative residuals of the specimens about the fitted law")
+    return {"id": mix.id, "name": mix.name, "aggregates": _aggregates(r, mix.id),
+            "excluded": r.value(mix.id, "excluded_results") or [],
+            "has_known": bool(r.value(mix.id, "characteristic_strength_known_cv")),
+            "priors": _priors(r.value(mix.id, "strength_inference") or {}),
+            "models": _models(r, mix.id), "reasoning": _reasoning(r, mix.id),
+            "predictions": _predictions(r.value(mix.id, "predicted_strength") or {}),
+            "narrowing": _narrowing(env, mix.id), "results": results,
             "figures": figures, "residuals": resid}
 
 
-def _aggregates(series) -> list[dict]:
-    return [{"test": s.test, "age": f"{g.age / DAY:g}", "n": g.summary.n,
-             "mean": num(g.summary.mean / MPA, 3), "sd": num(g.summary.sd / MPA, 2),
-             "cv": num(100 * g.summary.cv, 2),
-             "fk": num(g.characteristic.value / MPA, 3) if g.characteristic else "—",
-             "fk_known": num(g.known.value / MPA, 3) if g.known else "—",
-             "excluded": ", ".join(r.specimen for r, _ in g.flagged) or "—"}
-            for s in series for g in s.groups]
-
-
-def _models(series) -> list[dict]:
+def _aggregates(r, mix: str) -> list[dict]:
+    means = r.value(mix, "mean_strength") or {}
+    cvs, fks = r.value(mix, "strength_cv") or {}, r.value(mix, "characteristic_strength") or {}
+    known = r.value(mix, "characteristic_strength_known_cv") or {}
+    curves = r.value(mix, "strength_curve") or {}
     rows = []
-    for s in series:
-        sel = s.selection
-        for f in (sel.fits if sel else ()):
-            rows.append({"test": s.test, "title": f.title, "k": len(f.params),
-                         "aicc": num(f.aicc, 4), "delta": num(sel.delta_aicc[f.model], 3),
-                         "weight": _weight(sel.akaike_weights[f.model]),
-                         "chosen": "chosen" if f is sel.best else ""})
-        for m, why in (sel.not_assessed.items() if sel else ()):
-            rows.append({"test": s.test, "title": sm.MODELS[m].title, "k": "—", "aicc": "—",
-                         "delta": "—", "weight": "—", "chosen": f"not fitted: {why}"})
+    for test, ages in means.items():
+        counts = {f"{m[0]:g}": m[3] for m in curves.get(test, {}).get("means", [])}
+        for age, m in sorted(ages.items(), key=lambda kv: float(kv[0][:-2])):
+            cv = cvs.get(test, {}).get(age)
+            fk, fkk = fks.get(test, {}).get(age), known.get(test, {}).get(age)
+            rows.append({"test": test, "age": age[:-2], "mean": num(m, 3),
+                         "sd": num(m * cv / 100, 2) if cv is not None else "—",
+                         "cv": num(cv, 2) if cv is not None else "—",
+                         "n": counts.get(age[:-2], "—"),
+                         "fk": num(fk, 3) if fk is not None else "—",
+                         "fk_known": num(fkk, 3) if fkk is not None else "—"})
     return rows
 
 
-def _weight(w: float) -> str:
-    return "< 0.001" if w < 0.001 else f"{w:.3f}"
+def _priors(inf: dict) -> list[dict]:
+    rows = []
+    for test, rec in inf.items():
+        for k, (name, unit) in TERMS.items():
+            lo, hi, src = rec["prior"][k]
+            m, plo, phi = rec["posterior"][k]
+            rows.append({"test": test, "term": name, "unit": unit,
+                         "prior": f"{num(lo, 3)} to {num(hi, 3)}", "source": src,
+                         "posterior": f"{num(m, 3)} [{num(plo, 3)}, {num(phi, 3)}]",
+                         "family": rec["label"], "widest": rec["widest"]})
+    return rows
+
+
+def _models(r, mix: str) -> list[dict]:
+    aicc, chosen = r.value(mix, "model_aicc") or {}, r.value(mix, "model_selected") or {}
+    rows = []
+    for test, models in aicc.items():
+        low = min(models.values())
+        for m, a in sorted(models.items(), key=lambda kv: kv[1]):
+            rows.append({"test": test, "title": m.replace("_", " "), "aicc": num(a, 4),
+                         "delta": num(a - low, 3), "chosen": "lowest AICc" if
+                         m == chosen.get(test) else ""})
+    return rows
+
+
+def _reasoning(r, mix: str) -> list[dict]:
+    out = []
+    for code, test in (("STR-FIT-C", "compressive"), ("STR-FIT-F", "flexural")):
+        c = r.check(code, mix)
+        if c is not None:
+            out.append({"test": test, "text": c.notes[0] if c.notes else c.message})
+    return out
 
 
 def _predictions(pred: dict) -> list[dict]:
@@ -94,63 +127,61 @@ def _predictions(pred: dict) -> list[dict]:
     for test, ages in pred.items():
         for age, v in sorted(ages.items(), key=lambda kv: float(kv[0][:-2])):
             flags = [w for w, on in (("extrapolated", v["extrapolated"]),
-                                     ("band widened: indicative", v["widened"])) if on]
+                                     ("indicative: never decides", v["indicative"])) if on]
             rows.append({"test": test, "age": age, "value": num(v["value"], 3),
-                         "lower": num(v["lower"], 3), "upper": num(v["upper"], 3),
+                         "mean": f"{num(v['lower'], 3)} – {num(v['upper'], 3)}",
+                         "set": f"{num(v['pred_lower'], 3)} – {num(v['pred_upper'], 3)}",
                          "flags": ", ".join(flags) or "—"})
     return rows
 
 
-def _figure(env, mix, s: sc.Series, rules) -> bytes:
+def _narrowing(env, mix: str) -> list[dict]:
+    """The band for the mean at each predicted age, revision by revision (earlier ones from
+    their results.json), with its width as upper/lower."""
+    h = env.history
+    revs = [(code, res.get("quantities", {}).get(mix, {}).get("predicted_strength", {})
+             .get("value", {})) for code, res in (h.earlier if h else ())]
+    revs.append((env.project.revision.code, env.results.value(mix, "predicted_strength") or {}))
+    rows = []
+    for code, pred in revs:
+        comp = pred.get("compressive", {}) if isinstance(pred, dict) else {}
+        for age in ("90 d", "365 d"):
+            v = comp.get(age)
+            if v and "pred_lower" in v:
+                rows.append({"rev": code, "age": age, "mean": f"{num(v['lower'], 3)} – "
+                             f"{num(v['upper'], 3)}", "ratio": num(v["upper"] / v["lower"], 3),
+                             "flag": "indicative" if v["indicative"] else ""})
+    return rows if len({r["rev"] for r in rows}) > 1 else []
+
+
+def _figure(env, mix, test: str, c: dict | None, rules) -> bytes:
     from specgen.report.strength_figures import strength_age
-    st = sc.settings(env.project)
-    data = {"title": f"{mix.id} — {mix.name}", "test": s.test, "model": "",
-            "specimens": [(r.age * sc.lab_factor(r.curing_temperature, st) / DAY, r.value / MPA)
-                          for g in s.groups for r in g.specimens],
-            "means": [(g.te / DAY, g.summary.mean / MPA, g.summary.sd / MPA) for g in s.groups],
-            "curve": None, "limits": _limits(env, rules) if s.test == "compressive" else []}
-    if s.fit is not None:
-        fit = s.fit
-        top = min(rules["strength.late_age_2"].value * DAY, fit.age_max * sm.MAX_EXTRAPOLATION)
-        ages = np.geomspace(max(fit.age_min / sm.MAX_EXTRAPOLATION, 0.25 * DAY), top, 160)
-        v, lo, hi, wide = sc.band_curve(s, ages, rules)
-        data.update(model=fit.title, curve={"ages": ages / DAY, "value": v / MPA,
-                                            "lower": lo / MPA, "upper": hi / MPA,
-                                            "widened": wide},
-                    components={k: a / MPA for k, a in sm.components(fit, ages).items()})
-        if s.test == "compressive":
-            data["wall"] = _wall(env, s, rules)
+    r = env.results
+    data = {"title": f"{mix.id} — {mix.name}", "test": test, "model": "",
+            "specimens": [tuple(p) for p in c["specimens"]] if c else [],
+            "means": [tuple(m[:3]) for m in c["means"]] if c else [],
+            "curve": None, "limits": _limits(env, rules) if test == "compressive" else []}
+    if c is None:
+        means = (r.value(mix.id, "mean_strength") or {}).get(test, {})
+        data["means"] = [(float(a[:-2]), m, 0.0) for a, m in means.items()]
+    elif c.get("usable", True):
+        data.update(model="two-stage law with the family's prior", curve=c,
+                    components={"aluminate": c["aluminate"], "silicate": c["silicate"]})
+        wall = r.value(mix.id, "in_wall_curve")
+        if test == "compressive" and wall:
+            data["wall"] = {"ages": wall["days"], "value": wall["value"]}
     return strength_age(data)
 
 
 def _limits(env, rules) -> list:
     req = env.project.dossier.requirements
-    out = [(m.age / DAY, m.value / MPA, f"min {m.value / MPA:g} MPa at {m.age / DAY:g} d", "min") for m in req.min_compressive]
+    out = [(m.age / 86400.0, m.value / 1e6, f"min {m.value / 1e6:g} MPa at {m.age / 86400.0:g} d",
+            "min") for m in req.min_compressive]
     if req.max_compressive_long_term:
-        out.append((rules["strength.late_age_2"].value, req.max_compressive_long_term / MPA,
-                    f"cap {req.max_compressive_long_term / MPA:g} MPa "
+        out.append((rules["strength.late_age_2"].value, req.max_compressive_long_term / 1e6,
+                    f"cap {req.max_compressive_long_term / 1e6:g} MPa "
                     f"(at {rules['strength.late_age_2'].value:g} d)", "max"))
     if req.load_strength:
-        out.append((None, req.load_strength / MPA,
-                    f"load strength {req.load_strength / MPA:g} MPa (in the wall)", "min"))
+        out.append((None, req.load_strength / 1e6,
+                    f"load strength {req.load_strength / 1e6:g} MPa (in the wall)", "min"))
     return out
-
-
-def _wall(env, s: sc.Series, rules) -> dict | None:
-    p, fit = env.project, s.fit
-    if p.site_temperature is None:
-        return None
-    st = sc.settings(p)
-    t, te = sc.site_equivalent_age(p, st, st.method, rules["strength.late_age_2"].value * DAY)
-    ok = (t > 0) & (te >= fit.age_min / sm.MAX_EXTRAPOLATION) & \
-        (te <= fit.age_max * sm.MAX_EXTRAPOLATION)
-    if not ok.any():
-        return None
-    v, _, _ = sm.curve(fit, te[ok])
-    return {"ages": t[ok] / DAY, "value": v / MPA}
-
-
-def _residuals(s: sc.Series) -> dict:
-    fitted, _, _ = sm.curve(s.fit, s.t_fit)
-    return {"test": s.test, "model": s.fit.title, "ages": s.t_fit / DAY,
-            "residuals": 100.0 * (s.y_fit / fitted - 1.0)}

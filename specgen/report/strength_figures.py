@@ -19,7 +19,7 @@ def strength_age(data: dict) -> bytes:
     requirement lines and the in-wall curve.
 
     ``data`` keys: ``title``; ``specimens`` [(age, MPa)]; ``means`` [(age, mean, sd)];
-    ``curve`` {ages, value, lower, upper, widened} or None; ``components`` {name: values}
+    ``curve`` the ``strength_curve`` record of Results or None; ``components`` {name: values}
     on the curve's ages; ``limits`` [(age or None, MPa, label, kind)]; ``wall`` {ages,
     value} or None; ``model`` label of the fitted model.
     """
@@ -27,9 +27,9 @@ def strength_age(data: dict) -> bytes:
     fig, ax = plt.subplots(figsize=(7.0, 4.2))
     c = data.get("curve")
     if c:
-        _stacked_components(ax, c["ages"], data.get("components") or {})
+        _stacked_components(ax, c["ages_d"], data.get("components") or {})
         _band(ax, c)
-        ax.plot(c["ages"], c["value"], color=INK, lw=1.6, label=f"fit: {data['model']}")
+        ax.plot(c["ages_d"], c["value"], color=INK, lw=1.6, label=f"fit: {data['model']}")
     if data.get("wall"):
         w = data["wall"]
         ax.plot(w["ages"], w["value"], color=WALL, lw=1.3, ls="-.",
@@ -65,17 +65,23 @@ def _stacked_components(ax, ages, parts: dict) -> None:
 
 
 def _band(ax, c: dict) -> None:
+    """Interval for the next set (light), band for the mean (darker); beyond the
+    extrapolation limit both are hatched: indicative only.  Nothing is clipped."""
     import numpy as np
-    wide = np.asarray(c["widened"], bool)
-    ages, lo, hi = (np.asarray(c[k], float) for k in ("ages", "lower", "upper"))
-    # Translucent, with its edges drawn, so the two stages stay readable underneath.
-    ax.fill_between(ages, lo, hi, where=~wide, color=BAND, alpha=0.35, lw=0,
-                    label="95 % band", interpolate=True)
-    for edge in (lo, hi):
-        ax.plot(ages, edge, color=INK, lw=0.5, ls=(0, (2, 2)), alpha=0.7)
-    if wide.any():
-        ax.fill_between(ages, lo, hi, where=wide, color=WIDE, alpha=0.8, lw=0, hatch="///",
-                        edgecolor="#b9a27a", label="band widened (short record)")
+    ages = np.asarray(c["ages_d"], float)
+    far = ages > float(c["indicative_from_d"])
+    level = f"{c['level']:.0%}"
+    for lo, hi, colour, label in (
+            ("pred_lo", "pred_hi", WIDE, f"{level} interval, next set of {c['n']} prisms"),
+            ("mean_lo", "mean_hi", BAND, f"{level} band for the mean curve")):
+        lo_, hi_ = np.asarray(c[lo], float), np.asarray(c[hi], float)
+        ax.fill_between(ages, lo_, hi_, color=colour, alpha=0.55, lw=0, label=label)
+        for edge in (lo_, hi_):
+            ax.plot(ages, edge, color=INK, lw=0.5, ls=(0, (2, 2)), alpha=0.7)
+    if far.any():
+        ax.fill_between(ages, np.asarray(c["pred_lo"], float), np.asarray(c["pred_hi"], float),
+                        where=far, facecolor="none", hatch="///", edgecolor="#b9a27a", lw=0,
+                        label=f"indicative (beyond {float(c['indicative_from_d']):g} d)")
 
 
 def _limit(ax, age, value, label, kind) -> None:

@@ -1,0 +1,137 @@
+"""Strength inference: Laplace posterior, lack-of-fit test, intervals, interval score.
+
+Each check value names its source beside it."""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+from scipy import stats
+
+from specgen import refdata
+from specgen.science import strength_inference as si
+
+PRIORS = refdata.load("strength_priors").data
+NC = si.prior_from_table("natural_cement", PRIORS["natural_cement"])
+# demo lab/strength.csv, mix M1, compressive (MPa)
+M1 = {1: [1.18, 1.24, 1.18], 3: [1.81, 1.74, 1.81], 7: [2.16, 2.52, 2.47],
+      28: [4.64, 4.76, 4.99], 90: [7.04, 7.77, 8.05]}
+
+
+def _record(last: float):
+    t = [a for a, v in M1.items() if a <= last for _ in v]
+    y = [x for a, v in M1.items() if a <= last for x in v]
+    return t, y
+
+
+def test_laplace_equals_the_conjugate_normal_posterior():
+    # Normal mean, known sigma, normal prior: posterior precision 1/s0² + n/σ², mean
+    # (m0/s0² + Σy/σ²)/precision (closed form; Gelman et al., Bayesian Data Analysis, sec. 2.5)
+    y, sigma, m0, s0 = np.array([4.1, 4.6, 3.8, 4.4]), 0.5, 3.0, 0.8
+    prec = 1 / s0 ** 2 + y.size / sigma ** 2
+    mean = (m0 / s0 ** 2 + y.sum() / sigma ** 2) / prec
+    lap = si.laplace_fit(lambda z: np.concatenate([(y - z[0]) / sigma, [(z[0] - m0) / s0]]),
+                         [0.0], y.size)
+    assert lap.mode[0] == pytest.approx(mean, rel=1e-6)
+    assert lap.cov[0, 0] == pytest.approx(1 / prec, rel=1e-5)
+    # effective parameters: the data's share of the precision, (n/σ²)/prec
+    assert lap.p_eff == pytest.approx((y.size / sigma ** 2) / prec, rel=1e-5)
+
+
+def test_laplace_equals_bayesian_linear_regression():
+    # y = a + b·x, Gaussian prior N(0, diag(4, 1)): posterior covariance (XᵀX/σ² + Λ⁻¹)⁻¹ and
+    # mean Cov·Xᵀy/σ² (closed form; Bishop, Pattern Recognition and Machine Learning, eq. 3.53-3.54)
+    x = np.array([0.0, 1.0, 2.0, 3.0, 5.0])
+    y = np.array([1.1, 2.9, 5.2, 6.8, 11.1])
+    sigma, prior_sd = 0.4, np.array([2.0, 1.0])
+    xm = np.column_stack([np.ones_like(x), x])
+    cov = np.linalg.inv(xm.T @ xm / sigma ** 2 + np.diag(1 / prior_sd ** 2))
+    mean = cov @ xm.T @ y / sigma ** 2
+    lap = si.laplace_fit(lambda z: np.concatenate([(y - xm @ z) / sigma, z / prior_sd]),
+                         [0.0, 0.0], y.size)
+    assert lap.mode == pytest.approx(mean, rel=1e-6)
+    assert lap.cov == pytest.approx(cov, rel=1e-4)
+
+
+def test_lack_of_fit_matches_statsmodels_anova():
+    # straight line fitted to replicated data; lack of fit against the cell-means model,
+    # reference: statsmodels anova_lm(reduced OLS, full one-way model)
+    sm = pytest.importorskip("statsmodels.formula.api")
+    from statsmodels.stats.anova import anova_lm
+    import pandas as pd
+    x = np.repeat([1.0, 2.0, 3.0, 4.0, 5.0], 3)
+    rng = np.random.default_rng(3)
+    y = 2.0 + 0.8 * x + 0.15 * x ** 2 + rng.normal(0, 0.2, x.size)
+    df = pd.DataFrame({"x": x, "y": y, "g": x.astype(str)})
+    reduced = sm.ols("y ~ x", df).fit()
+    full = sm.ols("y ~ C(g)", df).fit()
+    ref = anova_lm(reduced, full)
+    got = si.lack_of_fit(y, x, reduced.fittedvalues, 2)
+    assert got.f == pytest.approx(ref["F"][1], rel=1e-9)
+    assert got.p_value == pytest.approx(ref["Pr(>F)"][1], rel=1e-7)
+    assert (got.dof_lof, got.dof_pure) == (3.0, 10.0)
+
+
+def test_lack_of_fit_not_testable_without_replicates():
+    got = si.lack_of_fit([1.0, 2.0, 3.0], [1, 2, 3], [1.1, 1.9, 3.0], 2)
+    assert got.f is None and got.p_value is None
+
+
+def test_interval_score_by_its_definition():
+    # Gneiting & Raftery (2007) eq. 43, alpha = 0.05: width, plus 2/alpha times the miss
+    assert si.interval_score(1.0, 3.0, 2.0) == pytest.approx(2.0)
+    assert si.interval_score(1.0, 3.0, 0.5) == pytest.approx(2.0 + 40 * 0.5)    # 22 by hand
+    assert si.interval_score(1.0, 3.0, 3.25) == pytest.approx(2.0 + 40 * 0.25)  # 12 by hand
+    assert si.interval_score([1.0], [3.0], [3.25], alpha=0.1)[0] == pytest.approx(7.0)
+
+
+def test_record_to_28_days_is_wide_and_narrows_with_90_days():
+    short, long_ = si.fit(*_record(28), NC), si.fit(*_record(90), NC)
+    b28, b90 = si.bands(short, [90, 365]), si.bands(long_, [90, 365])
+    w28 = b28["mean_hi"] / b28["mean_lo"]
+    w90 = b90["mean_hi"] / b90["mean_lo"]
+    assert np.all(w90 < w28)
+    # the band from the 28-day record covers the measured 90-day mean (7.62 MPa, demo data)
+    assert b28["mean_lo"][0] < 7.62 < b28["mean_hi"][0]
+    # the 90-day prediction is above the measured 28-day mean (4.80 MPa): the silicate stage
+    assert b28["value"][0] > 4.80
+    # prediction interval for the next set contains the band for the mean
+    assert np.all(b28["pred_lo"] < b28["mean_lo"]) and np.all(b28["pred_hi"] > b28["mean_hi"])
+    # finite, positive, never NaN
+    assert all(np.all(np.isfinite(v)) and np.all(v > 0) for v in b28.values())
+
+
+def test_indicative_beyond_the_limit():
+    inf = si.fit(*_record(28), NC)
+    assert not si.interval(inf, 84, "set", limit_factor=3.0).indicative   # 3 x 28 d
+    assert si.interval(inf, 90, "set", limit_factor=3.0).indicative
+
+
+def test_fewer_than_three_ages_is_refused_with_the_fix():
+    with pytest.raises(si.InferenceError, match="three or more ages: test at 7, 28 and 90"):
+        si.fit([7, 7, 28, 28], [1.0, 1.1, 2.0, 2.1], NC)
+    with pytest.raises(si.InferenceError, match=r"results at 1 age\(s\)"):
+        si.fit([28, 28, 28], [2.0, 2.1, 2.2], NC)
+
+
+def test_a_fall_beyond_the_scatter_is_found():
+    t, y = [7, 7, 7, 28, 28, 28, 90, 90, 90], [2, 2.1, 2.05, 4, 4.1, 4.2, 2.5, 2.4, 2.6]
+    inf = si.fit(t, y, NC)
+    got = si.falls(inf.ages, inf.means_log, inf.counts, inf.sigma_w, NC.batch_cv.high)
+    assert [(a, b) for a, b, _ in got] == [(28.0, 90.0)]
+    assert got[0][2] == pytest.approx(2.5 / 4.1, rel=0.01)   # geometric means, by hand
+
+
+def test_prior_reads_ranges_as_central_95_percent():
+    # ln-normal: mu = mean of the logs, sd = log-range / (2 * 1.95996) (normal quantile, scipy)
+    t = NC.terms["tau_slow_d"]
+    assert t.mu == pytest.approx((math.log(20) + math.log(400)) / 2)
+    assert t.sd == pytest.approx(math.log(400 / 20) / (2 * stats.norm.ppf(0.975)))
+
+
+def test_every_prior_row_has_a_source():
+    for fam, row in PRIORS.items():
+        p = si.prior_from_table(fam, row)
+        for term in list(p.terms.values()) + [p.batch_cv, p.within_cv]:
+            assert term.source.strip(), (fam, term.name)
