@@ -166,6 +166,15 @@ def bench(runs: int, large: bool) -> None:
     run_bench(runs, large=large)
 
 
+@cli.command("validate-strength")
+@click.option("--series", default=200, show_default=True, help="simulated series per law")
+@click.option("--seed", default=7, show_default=True, help="random seed")
+def validate_strength(series: int, seed: int) -> None:
+    """Developers: coverage and interval score of the strength inference on simulated series."""
+    from specgen.validation import main as run_validation
+    run_validation(series, seed)
+
+
 def main() -> None:
     """Console entry point."""
     cli(prog_name="specgen")
