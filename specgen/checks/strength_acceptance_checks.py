@@ -7,8 +7,8 @@
   strength and the earliest day the load strength is reached;
 * STR-CLASS: descriptive comparison with EN 459-1 classes and ASTM C270 types.
 
-A band that extrapolates from a short record (widened, see strength_common.band) never
-decides alone: its verdict is at most ``hold``, with the later test age that would decide.
+Decisions use the interval for the next set of site prisms; a prediction beyond the
+extrapolation limit never decides: its verdict is ``hold``, with the test age that would.
 """
 from __future__ import annotations
 
@@ -26,7 +26,9 @@ from specgen.science import strength_inference as si, strength_stats as ss
 
 DAY, MPA = sc.DAY, sc.MPA
 REQ = Basis("project requirement", note="dossier.yaml requirements")
-RECOMMEND = Basis("common practice", note="later test age: " + scl.SHRINK_RULE)
+RECOMMEND = Basis("common practice", note="the test age named for a hold is the earliest "
+                  "candidate age (content/data/strength_classes.yaml) that brings the "
+                  "requirement's age within the extrapolation limit, else that age itself")
 EN459 = Basis("reference", "en459", "compressive strength classes (28 d, class 5 also 7 d)")
 C270 = Basis("reference", "astmc270", "property specification, minimum 28-d compressive strength")
 
@@ -297,6 +299,8 @@ def _site_result(mix, s: sc.Series, load, ctx) -> CheckResult:
         q.append(Quantity("load_strength_day", day, "d", "earliest day the load strength is met"))
     if st.warning:
         notes.append(st.warning)
+    if p.dossier.strength.site_temperature_is == "air":
+        notes.append(AIR_NOTE)
     q += [Quantity("equivalent_age", {"method": st.method, "wall": ages_te}, "d",
                    "equivalent age at 20 °C in the wall"),
           Quantity("in_wall_curve", _wall_curve(s, t, te, ctx), "MPa",
@@ -353,18 +357,25 @@ def _wall_text(wall: dict) -> str:
         + (" indicative" if v["indicative"] else "") for k, v in wall.items())
 
 
+WHERE = {"air": "air temperature, standing in for the temperature in the joint",
+         "surface": "surface temperature of the wall", "joint": "temperature in the joint"}
+AIR_NOTE = ("the site record is of air temperature, a stand-in for the temperature in the joint: "
+            "a sunlit or sheltered wall runs warmer or colder than the air, so give the joint or "
+            "surface temperature (dossier.yaml strength.site_temperature_is) when it is logged")
+
+
 def _te_step(p, st: sc.Settings, t, te, te2) -> Step:
     site = p.site_temperature
     temp = (f"{site.constant - 273.15:.1f}" if site.constant is not None else
             f"daily means, {len(site.points)} days")
-    inputs = (Input("E", "apparent activation energy", round(st.activation_energy / 1000, 3),
-                    "kJ/mol", st.energy_source),
-              Input("T", "site temperature", temp, "°C", f"site_temperature: {site.source}"),
+    kind = p.dossier.strength.site_temperature_is
+    inputs = (Input("E", "apparent activation energy", st.energy_text, "", st.energy_source),
+              Input("T", f"site temperature ({WHERE[kind]})", temp, "°C",
+                    f"site_temperature: {site.source}"),
               Input("T_r", "reference temperature", round(st.t_ref - 273.15, 2), "°C",
                     "maturity_defaults.yaml"),
               Input("T_0", "Nurse-Saul datum", round(st.datum - 273.15, 2), "°C",
-                    "project input" if p.dossier.strength.datum_temperature else
-                    "maturity_defaults.yaml (common practice)"),
+                    st.datum_source),
               Input("t_e'", f"equivalent age at {t[-1] / DAY:g} d by the other method "
                     f"({'Nurse-Saul' if st.method == 'arrhenius' else 'Arrhenius'})",
                     round(te2[-1] / DAY, 3), "d", "ASTM C1074, for comparison"))

@@ -12,7 +12,7 @@ from specgen.checks import strength_prior_common as spc
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step
 from specgen.checks.result import not_assessed as _not_assessed
-from specgen.science import strength_inference as si, strength_models as sm
+from specgen.science import maturity, strength_inference as si, strength_models as sm
 
 DAY, MPA = sc.DAY, sc.MPA
 EN1990 = Basis("reference", "en1990", "Annex D, D7.2 (5 % fractile, normal distribution)")
@@ -259,15 +259,16 @@ def _lab_step(s: sc.Series, ctx) -> Step | None:
         return None
     t = temps[0]
     a = sc.lab_factor(t, st)
-    inputs = (Input("E", "apparent activation energy", round(st.activation_energy / 1000, 3),
-                    "kJ/mol", st.energy_source),
+    e_t = float(maturity.arrhenius_energy(st.energy, t))
+    inputs = (Input("E", "apparent activation energy at T", round(e_t / 1000, 3), "kJ/mol",
+                    f"{st.energy_text}; {st.energy_source}"),
               Input("R", "gas constant", 8.314462618, "J/(mol·K)", "CODATA (scipy.constants)"),
               Input("T", "curing temperature", round(t - 273.15, 2), "°C", "lab/strength.csv"),
               Input("T_r", "reference temperature", round(st.t_ref - 273.15, 2), "°C",
                     "maturity_defaults.yaml (EN 1015-11 curing at 20 °C)"))
     return Step("Equivalent age of laboratory curing (fit on t_e = a_T · age)",
                 r"a_T = \exp\left[-\frac{E}{R}\left(\frac{1}{T} - \frac{1}{T_r}\right)\right]",
-                inputs, rf"a_T = \exp\left[-\frac{{{st.activation_energy:.0f}}}{{8.3145}}"
+                inputs, rf"a_T = \exp\left[-\frac{{{e_t:.0f}}}{{8.3145}}"
                 rf"\left(\frac{{1}}{{{t:.2f}}} - \frac{{1}}{{{st.t_ref:.2f}}}\right)\right] = "
                 rf"{a:.4f}", round(a, 5), "", "a_T")
 

@@ -2,10 +2,10 @@
 
 Gathers the specimens of a mix, converts lab curing to equivalent age at the reference
 temperature (ASTM C1074), aggregates each tested age (EN 1990 Annex D characteristic
-value, Grubbs screen), fits the strength-age models (AICc selection) and predicts with a
-band that is widened, by the rule in ``content/rules/strength.yaml``, when it
-extrapolates far from a short record.  The checks and the strength chapter both read
-from here, so a number is never computed twice in two ways.
+value, Grubbs screen), fits the least-squares strength-age models (AICc selection, for
+comparison) and the two-stage law with the binder family's prior (``Series.run``, see
+``strength_prior_common``), from which every prediction and decision comes.  The checks read
+from here, so a number is never computed twice in two ways; the chapter reads Results.
 """
 from __future__ import annotations
 
@@ -40,21 +40,6 @@ class Group:
     noted: tuple = ()                # (row, reason) flagged by the screen but kept (n too small)
 
 
-@dataclass(frozen=True)
-class Band:
-    """A prediction at ``age`` (s) in Pa with its band; ``widened`` by the short-record rule."""
-
-    age: float
-    value: float
-    lower: float
-    upper: float
-    raw_lower: float
-    raw_upper: float
-    extrapolated: bool
-    widened: bool
-    note: str
-
-
 @dataclass
 class Series:
     """Everything about one mix and test kind."""
@@ -83,24 +68,50 @@ class Settings:
     """Maturity settings in force (SI) and where each came from."""
 
     method: str
-    activation_energy: float
+    activation_energy: float        # J/mol: the measured value, or the default's at >= 20 °C
     energy_source: str
     datum: float
     t_ref: float
     warning: str
+    energy_slope: float = 0.0       # J/(mol·K) below ``energy_split``: temperature-dependent
+    energy_split: float = 293.15    # K
+    datum_source: str = ""
+
+    @property
+    def energy(self):
+        """E for the Arrhenius factor: a number (measured) or a function of T (default)."""
+        if self.energy_slope:
+            return maturity.fhp_energy(self.activation_energy, self.energy_slope,
+                                       self.energy_split)
+        return self.activation_energy
+
+    @property
+    def energy_text(self) -> str:
+        e = f"{self.activation_energy / 1000:g} kJ/mol"
+        if not self.energy_slope:
+            return e
+        return (f"{e} at or above {self.energy_split - 273.15:g} °C, plus "
+                f"{self.energy_slope / 1000:g} kJ/mol per kelvin below (temperature-dependent)")
 
 
 def settings(project) -> Settings:
-    """The project's maturity settings, defaults from content/data/maturity_defaults.yaml."""
+    """The project's maturity settings, defaults from content/data/maturity_defaults.yaml.
+
+    Without a measured activation energy the default is the temperature-dependent form."""
     d = refdata.load("maturity_defaults").data
     s = project.dossier.strength
-    e = s.activation_energy
+    e, ae = s.activation_energy, d["activation_energy"]
     src = "project input (dossier.yaml strength.activation_energy)" if e else (
-        f"default: {d['activation_energy']['source']} ({d['activation_energy']['tag']})")
-    return Settings(s.maturity_method, e or float(d["activation_energy"]["value"]), src,
-                    s.datum_temperature or float(d["nurse_saul_datum"]["value"]),
+        f"default, temperature-dependent form: {ae['source']} ({ae['tag']})")
+    below = ae["below_reference"]
+    datum = d["nurse_saul_datum"]
+    return Settings(s.maturity_method, e or float(ae["value"]), src,
+                    s.datum_temperature or float(datum["value"]),
                     float(d["reference_temperature"]["value"]),
-                    "" if e else " ".join(d["activation_energy"]["warning"].split()))
+                    "" if e else " ".join(ae["warning"].split()),
+                    0.0 if e else float(below["slope"]), float(below["split_temperature"]),
+                    "project input (dossier.yaml strength.datum_temperature)"
+                    if s.datum_temperature else f"{datum['source']}: {datum['notes']}")
 
 
 def lab_factor(temp_k: float | None, st: Settings) -> float:
@@ -110,7 +121,7 @@ def lab_factor(temp_k: float | None, st: Settings) -> float:
     if st.method == "nurse_saul":
         return float(maturity.equivalent_age_nurse_saul(
             [0.0, 1.0], temp_k, datum_k=st.datum, t_ref_k=st.t_ref)[-1])
-    return float(maturity.arrhenius_factor(temp_k, st.activation_energy, st.t_ref))
+    return float(maturity.arrhenius_factor(temp_k, st.energy, st.t_ref))
 
 
 def analyse(project, rules) -> dict[tuple[str, str], Series]:
@@ -195,46 +206,6 @@ def _bound_note(n: int, g: float) -> str:
             "rounding makes likely" if g >= top - 1e-6 else "")
 
 
-def band(series: Series, age_s: float, rules) -> Band:
-    """Prediction at ``age_s`` with the short-record widening rule applied.
-
-    Rule (content/rules/strength.yaml): when the last tested (equivalent) age is below
-    ``short_record_age`` and ``age_s`` exceeds ``short_record_ratio`` times it, the
-    half-widths are multiplied by ``band_inflation`` and the band is widened to the
-    envelope of the bands of every model within ``envelope_delta_aicc`` of the chosen one.
-    Raises :class:`~specgen.science.strength_models.StrengthFitError` beyond the range.
-    """
-    fit, sel = series.fit, series.selection
-    level = rules["strength.confidence_level"].value
-    p = sm.predict(fit, age_s, level)
-    last = fit.age_max
-    short = (last < rules["strength.short_record_age"].value * DAY
-             and age_s > rules["strength.short_record_ratio"].value * last)
-    if not short:
-        return Band(age_s, p.value, p.lower, p.upper, p.lower, p.upper, p.extrapolated, False, "")
-    k = rules["strength.band_inflation"].value
-    lo, hi = max(p.value - k * (p.value - p.lower), 0.0), p.value + k * (p.upper - p.value)
-    near = [f for f in sel.fits if f is not fit
-            and sel.delta_aicc[f.model] - sel.delta_aicc[fit.model]
-            <= rules["strength.envelope_delta_aicc"].value]
-    for f in near:
-        q = sm.predict(f, age_s, level)
-        lo, hi = min(lo, q.lower), max(hi, q.upper)
-    names = ", ".join(f.title for f in near)
-    note = (f"extrapolated from a record ending at {last / DAY:g} d: half-width × {k:g}"
-            + (f", envelope with {names}" if names else "") + "; indicative only")
-    return Band(age_s, p.value, lo, hi, p.lower, p.upper, True, True, note)
-
-
-def pooled_cv(series: Series) -> float:
-    """Pooled replicate CV (ratio) of the series' groups with two or more results."""
-    from specgen.science.strength_classes import pooled_cv as pooled
-    groups = [g for g in series.groups if g.summary.n >= 2]
-    if not groups:
-        return 0.0
-    return pooled([g.summary.cv for g in groups], [g.summary.n for g in groups])
-
-
 def site_history(project, horizon_s: float) -> tuple[np.ndarray, np.ndarray] | None:
     """(times s, temperatures K) of the site record; a constant is laid out daily."""
     site = project.site_temperature
@@ -253,30 +224,6 @@ def site_equivalent_age(project, st: Settings, method: str, horizon_s: float):
     if hist is None:
         return None
     t, temp = hist
-    te = maturity.equivalent_age(t, temp, method=method, activation_energy=st.activation_energy,
+    te = maturity.equivalent_age(t, temp, method=method, activation_energy=st.energy,
                                  datum_k=st.datum, t_ref_k=st.t_ref)
     return t, te
-
-
-def band_curve(series: Series, ages_s, rules):
-    """Vectorised :func:`band` over ``ages_s`` (s, within the model's range), for figures.
-
-    Returns (value, lower, upper, widened) arrays in Pa; the same rule as :func:`band`.
-    """
-    fit, sel = series.fit, series.selection
-    level = rules["strength.confidence_level"].value
-    a = np.asarray(ages_s, float)
-    v, lo, hi = sm.curve(fit, a, level)
-    wide = (fit.age_max < rules["strength.short_record_age"].value * DAY) & (
-        a > rules["strength.short_record_ratio"].value * fit.age_max)
-    if not wide.any():
-        return v, lo, hi, wide
-    k = rules["strength.band_inflation"].value
-    lo = np.where(wide, np.clip(v - k * (v - lo), 0.0, None), lo)
-    hi = np.where(wide, v + k * (hi - v), hi)
-    for f in sel.fits:
-        if f is not fit and sel.delta_aicc[f.model] - sel.delta_aicc[fit.model] <= \
-                rules["strength.envelope_delta_aicc"].value:
-            _, flo, fhi = sm.curve(f, a, level)
-            lo, hi = np.where(wide, np.minimum(lo, flo), lo), np.where(wide, np.maximum(hi, fhi), hi)
-    return v, lo, hi, wide

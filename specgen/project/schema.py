@@ -158,6 +158,9 @@ class StrengthSettings(Model):
     known_cv: Fraction | None = Field(
         None, description="replicate coefficient of variation known from a long laboratory "
         "record, e.g. '8 %': characteristic values are then also given with known variance")
+    site_temperature_is: Literal["air", "surface", "joint"] = Field(
+        "air", description="what site_temperature measures: air (a stand-in, flagged), the "
+        "wall surface or the joint itself")
 
 
 class CompatibilitySettings(Model):

@@ -29,7 +29,7 @@ def strength(env) -> dict:
     return {"mixes": mixes, "has_data": bool(mixes),
             "warning": next((n for n in (site.notes if site else ()) if "must be measured" in n),
                             ""),
-            "energy": f"{num(energy.value, 3)} kJ/mol ({energy.source})" if energy else "",
+            "energy": f"{energy.value} ({energy.source})" if energy else "",
             "method": (r.value(site.subject, "equivalent_age") or {}).get("method", "").replace(
                 "_", "-") if site else "",
             "site": p.site_temperature.source if p.site_temperature else "",

@@ -72,16 +72,22 @@ def _history(times_s, temps_k, valid_range) -> tuple[np.ndarray, np.ndarray]:
     return t, temp
 
 
-def arrhenius_factor(temp_k, activation_energy: float, t_ref_k: float):
-    """Age conversion factor ``exp[-(E/R)(1/T - 1/Tref)]`` (ASTM C1074); T, Tref in K."""
-    if not math.isfinite(activation_energy) or activation_energy <= 0:
+def arrhenius_factor(temp_k, activation_energy, t_ref_k: float):
+    """Age conversion factor ``exp[-(E/R)(1/T - 1/Tref)]`` (ASTM C1074); T, Tref in K.
+
+    ``activation_energy`` (J/mol) is a number, or a function of temperature (K) giving it,
+    e.g. :func:`fhp_energy` for the temperature-dependent form."""
+    if callable(activation_energy):
+        activation_energy = np.asarray(activation_energy(np.asarray(temp_k, float)), float)
+    e = np.asarray(activation_energy, float)
+    if not np.all(np.isfinite(e)) or np.any(e <= 0):
         raise MaturityInputError(f"activation energy must be > 0 J/mol; got {activation_energy}")
     if not math.isfinite(t_ref_k) or t_ref_k <= 0:
         raise MaturityInputError(f"reference temperature must be > 0 K; got {t_ref_k}")
-    return np.exp(-(activation_energy / R) * (1.0 / np.asarray(temp_k, float) - 1.0 / t_ref_k))
+    return np.exp(-(e / R) * (1.0 / np.asarray(temp_k, float) - 1.0 / t_ref_k))
 
 
-def equivalent_age_arrhenius(times_s: Sequence[float], temps_k, *, activation_energy: float,
+def equivalent_age_arrhenius(times_s: Sequence[float], temps_k, *, activation_energy,
                              t_ref_k: float, valid_range=VALID_RANGE_K) -> np.ndarray:
     """Cumulative Arrhenius equivalent age (s at Tref) at each time of the history."""
     t, temp = _history(times_s, temps_k, valid_range)
@@ -108,7 +114,7 @@ def equivalent_age_nurse_saul(times_s: Sequence[float], temps_k, *, datum_k: flo
                                    valid_range=valid_range) / (t_ref_k - datum_k)
 
 
-def equivalent_age(times_s, temps_k, *, method: str, activation_energy: float | None = None,
+def equivalent_age(times_s, temps_k, *, method: str, activation_energy=None,
                    datum_k: float | None = None, t_ref_k: float,
                    valid_range=VALID_RANGE_K) -> np.ndarray:
     """Equivalent age (s) by ``method`` 'arrhenius' (needs E) or 'nurse_saul' (needs T0)."""
@@ -201,3 +207,16 @@ def activation_energy_fhp(temp_k: float, e_ref: float, slope: float, t_split_k: 
     ``maturity_defaults.yaml``: 33.5 kJ/mol and 1.47 kJ/(mol·K) below 20 °C, from memory).
     """
     return float(e_ref if temp_k >= t_split_k else e_ref + slope * (t_split_k - temp_k))
+
+
+def arrhenius_energy(activation_energy, temp_k):
+    """E (J/mol) at ``temp_k`` (K) from a number or a function of temperature."""
+    return activation_energy(temp_k) if callable(activation_energy) else activation_energy
+
+
+def fhp_energy(e_ref: float, slope: float, t_split_k: float):
+    """The temperature-dependent activation energy as a function of T (K, array) -> J/mol."""
+    def energy(temp_k):
+        t = np.asarray(temp_k, float)
+        return np.where(t >= t_split_k, e_ref, e_ref + slope * (t_split_k - t))
+    return energy
