@@ -26,8 +26,8 @@ from specgen.science import strength_inference as si, strength_stats as ss
 
 DAY, MPA = sc.DAY, sc.MPA
 REQ = Basis("project requirement", note="dossier.yaml requirements")
-RECOMMEND = Basis("common practice", note="the test age named for a hold is the earliest "
-                  "candidate age (content/data/strength_classes.yaml) that brings the "
+RECOMMEND = Basis("common practice", note="later test age: the one named for a hold is the "
+                  "earliest candidate age (content/data/strength_classes.yaml) that brings the "
                   "requirement's age within the extrapolation limit, else that age itself")
 EN459 = Basis("reference", "en459", "compressive strength classes (28 d, class 5 also 7 d)")
 C270 = Basis("reference", "astmc270", "property specification, minimum 28-d compressive strength")

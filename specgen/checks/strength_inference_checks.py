@@ -65,7 +65,9 @@ def _result(code, title, mix, s: sc.Series, ctx) -> CheckResult:
     run, inf = s.run, s.run.inference
     level = ctx.rules["strength.confidence_level"].value
     n = spc.set_size(ctx.project, ctx.rules)
-    steps = (_prior_step(run), _scatter_step(inf), _lof_step(inf, ctx), _means_step(run, level))
+    post = si.posterior_summary(inf)
+    steps = (_prior_step(run, post), _scatter_step(inf), _lof_step(inf, ctx),
+             _means_step(run, level))
     notes = [run.family.reason]
     if run.family.widest:
         notes.append("no prior for this binder family: the widest prior is used")
@@ -85,7 +87,6 @@ def _result(code, title, mix, s: sc.Series, ctx) -> CheckResult:
         notes.append(run.error)
     status = ("hold" if run.falls else "attention" if run.misfit or run.family.widest
               else "info")
-    post = si.posterior_summary(inf)
     msg = (f"{run.family.prior.label}: one-year/28-day gain {post['gain_365_28'][0]:.2f} "
            f"[{post['gain_365_28'][1]:.2f}, {post['gain_365_28'][2]:.2f}] (prior "
            f"{inf.prior.terms['gain_365_28'].low:g}–{inf.prior.terms['gain_365_28'].high:g}); "
@@ -106,9 +107,8 @@ def _fmt(v: float) -> str:
     return f"{v:.3g}"
 
 
-def _prior_step(run: spc.InferenceRun) -> Step:
+def _prior_step(run: spc.InferenceRun, post: dict) -> Step:
     inf, prior = run.inference, run.family.prior
-    post = si.posterior_summary(inf)
     inputs = []
     for k, (sym, name, unit) in TERMS.items():
         t = prior.terms[k]
@@ -169,14 +169,14 @@ def _lof_step(inf: si.Inference, ctx) -> Step:
 
 def _means_step(run: spc.InferenceRun, level: float) -> Step:
     inf, inputs, subs = run.inference, [], []
-    for age, ml, n in zip(inf.ages, inf.means_log, inf.counts):
-        b = si.bands(inf, [age], level, n)
+    b = si.bands(inf, inf.ages, level, inf.counts)
+    for i, (age, ml, n) in enumerate(zip(inf.ages, inf.means_log, inf.counts)):
         mean = math.exp(ml)
         inputs.append(Input(f"f̄({age:.4g} d)", f"measured mean of {n:g} at {age:.4g} d",
                             round(mean, 4), "MPa", "STR-AGG (geometric mean of the kept results)"))
-        subs.append(rf"{age:.4g}\,\mathrm{{d}}: {mean:.3f} \in [{b['mean_lo'][0]:.3f},\ "
-                    rf"{b['mean_hi'][0]:.3f}]_{{mean}},\ [{b['pred_lo'][0]:.3f},\ "
-                    rf"{b['pred_hi'][0]:.3f}]_{{set}}")
+        subs.append(rf"{age:.4g}\,\mathrm{{d}}: {mean:.3f} \in [{b['mean_lo'][i]:.3f},\ "
+                    rf"{b['mean_hi'][i]:.3f}]_{{mean}},\ [{b['pred_lo'][i]:.3f},\ "
+                    rf"{b['pred_hi'][i]:.3f}]_{{set}}")
     return Step(f"Measured means against the {level:.0%} band for the mean curve and the "
                 "interval for a set of the same size",
                 r"e^{\ln\hat f \pm z\sqrt{g^{\mathsf T}\Sigma g}},\quad e^{\ln\hat f \pm "

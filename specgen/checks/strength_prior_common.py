@@ -100,12 +100,12 @@ def infer(series, fam: Family, rules) -> InferenceRun:
         run.misfit += (f"lack of fit: p = {inf.lof_batch_p:.3g} below "
                        f"{rules['strength.lof_alpha'].value:g} even allowing the prior's largest "
                        f"batch-to-batch scatter ({100 * fam.prior.batch_cv.high:g} %)",)
-    for age, ml, n in zip(inf.ages, inf.means_log, inf.counts):
-        b = si.bands(inf, [age], level, n)
+    b = si.bands(inf, inf.ages, level, inf.counts)
+    for i, (age, ml) in enumerate(zip(inf.ages, inf.means_log)):
         mean = float(np.exp(ml))
-        if not b["pred_lo"][0] <= mean <= b["pred_hi"][0]:
-            run.outside += ((float(age), mean, float(b["pred_lo"][0]), float(b["pred_hi"][0])),)
-        elif not b["mean_lo"][0] <= mean <= b["mean_hi"][0]:
+        if not b["pred_lo"][i] <= mean <= b["pred_hi"][i]:
+            run.outside += ((float(age), mean, float(b["pred_lo"][i]), float(b["pred_hi"][i])),)
+        elif not b["mean_lo"][i] <= mean <= b["mean_hi"][i]:
             run.mean_misses += (float(age),)
     if run.outside:
         run.misfit += ("the interval for a set misses the measured mean at " + ", ".join(

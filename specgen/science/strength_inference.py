@@ -39,6 +39,7 @@ from __future__ import annotations
 import math
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 from scipy import optimize, stats
@@ -65,17 +66,19 @@ class Laplace:
 
 
 def laplace_fit(residuals: Callable[[np.ndarray], np.ndarray], z0: Sequence[float],
-                n_data: int) -> Laplace:
+                n_data: int, jac: Callable[[np.ndarray], np.ndarray] | None = None) -> Laplace:
     """Minimise ``½·|r(z)|²`` where ``r`` stacks data residuals (first ``n_data``) and prior
     residuals, each already divided by its standard deviation; return the mode and
     ``(JᵀJ)⁻¹`` (Gauss-Newton Hessian of ``-ln p`` inverted: the Laplace approximation).
+    ``jac`` gives ∂r/∂z (by finite differences when None).
 
     For a model linear in ``z`` with a Gaussian prior this is the exact posterior.
     ``p_eff = tr((JᵀJ)⁻¹·J_dᵀJ_d)``: the effective number of parameters the data fix.
     """
     res = optimize.least_squares(residuals, np.asarray(z0, float), method="trf",
-                                 x_scale="jac", diff_step=1e-6)
-    j = res.jac
+                                 x_scale="jac", diff_step=1e-6,
+                                 jac=jac if jac is not None else "2-point")
+    j = jac(res.x) if jac is not None else res.jac
     h = j.T @ j
     cov = np.linalg.pinv(h)
     jd = j[:n_data]
@@ -106,14 +109,20 @@ def _log_f(z, t_d) -> np.ndarray:
 
 
 def _log_f_grad(z, t_d) -> np.ndarray:
-    """∂ ln f/∂z by central differences (rows: ages)."""
-    z = np.asarray(z, float)
-    out = np.empty((np.size(t_d), z.size))
-    for k in range(z.size):
-        e = np.zeros(z.size)
-        e[k] = 1e-5
-        out[:, k] = (_log_f(z + e, t_d) - _log_f(z - e, t_d)) / 2e-5
-    return out
+    """∂ ln f/∂z, analytic (rows: ages; columns: ln F, logit φ, ln τA, ln τS, ln b)."""
+    _, lg_phi, ln_ta, ln_ts, ln_b = (float(v) for v in z)
+    phi, ta, ts, b = 1.0 / (1.0 + math.exp(-lg_phi)), math.exp(ln_ta), math.exp(ln_ts), \
+        math.exp(ln_b)
+    t = np.atleast_1d(np.asarray(t_d, float))
+    ea = np.exp(-t / ta)
+    u = (t / ts) ** b
+    eb = np.exp(-u)
+    a_, b_ = -np.expm1(-t / ta), -np.expm1(-u)
+    shape = np.maximum(phi * a_ + (1 - phi) * b_, 1e-300)
+    return np.column_stack([
+        np.ones_like(t), (a_ - b_) * phi * (1 - phi) / shape,
+        -phi * (t / ta) * ea / shape, -(1 - phi) * b * u * eb / shape,
+        (1 - phi) * eb * b * u * np.log(t / ts) / shape])
 
 
 # ---------------------------------------------------------------- priors
@@ -231,7 +240,18 @@ class Inference:
         return dict(zip(("F", "phi", "tau_a", "tau_s", "b"), _unpack(self.mode)))
 
     def quantile(self, level: float) -> float:
-        return float(stats.t.ppf(0.5 + level / 2.0, self.dof))
+        """Student's t two-sided ``level`` quantile at the fit's degrees of freedom."""
+        return _t_quantile(level, self.dof)
+
+
+@lru_cache(maxsize=256)
+def _t_quantile(level: float, dof: float) -> float:
+    return float(stats.t.ppf(0.5 + level / 2.0, dof))
+
+
+@lru_cache(maxsize=32)
+def _z_quantile(level: float) -> float:
+    return float(stats.norm.ppf(0.5 + level / 2.0))
 
 
 def _groups(ages_d, values_mpa):
@@ -264,7 +284,7 @@ def fit(ages_d: Sequence[float], values_mpa: Sequence[float], prior: Prior) -> I
     s0b = _central_cv(prior.batch_cv)
     sb2, b_src = s0b ** 2, f"prior only ({100 * s0b:.1f} %)"
     lap = _solve(ages, means, counts, sb2, sw2, prior)
-    for _ in range(2):    # batch variance from the lack-of-fit mean square, then refit
+    for _ in range(1):    # batch variance from the lack-of-fit mean square, then refit once
         d_lof = ages.size - lap.p_eff
         if d_lof < 0.5:
             b_src = (f"prior only ({100 * s0b:.1f} %): the ages leave no degrees of freedom "
@@ -296,13 +316,20 @@ def _prior_residuals(z, prior: Prior) -> np.ndarray:
 
 def _solve(ages, means, counts, sb2, sw2, prior: Prior, z0=None) -> Laplace:
     sd = np.sqrt(sb2 + sw2 / counts)
+    sds = np.array([prior.terms[k].sd for k in PRIOR_KEYS])
+    gain_ages = np.array(GAIN_AGES_D)
 
     def resid(z):
         return np.concatenate([(means - _log_f(z, ages)) / sd, _prior_residuals(z, prior)])
+
+    def jac(z):
+        g = _log_f_grad(z, gain_ages)
+        prior_rows = np.vstack([np.eye(5)[1:5], g[1] - g[0]]) / sds[:, None]
+        return np.vstack([-_log_f_grad(z, ages) / sd[:, None], prior_rows])
     if z0 is None:
         z0 = np.array([0.0] + [prior.terms[k].mu for k in PRIOR_KEYS[:4]])
         z0[0] = float(np.max(means - _log_f(z0, ages)))
-    return laplace_fit(resid, z0, ages.size)
+    return laplace_fit(resid, z0, ages.size, jac)
 
 
 # ---------------------------------------------------------------- predictions
@@ -331,10 +358,10 @@ def _sd_curve(inf: Inference, t_d) -> tuple[np.ndarray, np.ndarray]:
 def bands(inf: Inference, t_d, level: float = 0.95, n: float = 3.0) -> dict[str, np.ndarray]:
     """Arrays (MPa) at ages ``t_d`` (d): ``value``, mean band ``mean_lo``/``mean_hi`` and the
     prediction interval for the mean of ``n`` prisms of a new batch ``pred_lo``/``pred_hi``
-    (``n = inf``: the batch's own strength)."""
+    (``n = inf``: the batch's own strength; ``n`` may be an array, one per age)."""
     m, s = _sd_curve(inf, t_d)
-    z, q = float(stats.norm.ppf(0.5 + level / 2.0)), inf.quantile(level)
-    sp = np.sqrt(s ** 2 + inf.sigma_b ** 2 + (inf.sigma_w ** 2 / n if math.isfinite(n) else 0.0))
+    z, q = _z_quantile(level), inf.quantile(level)
+    sp = np.sqrt(s ** 2 + inf.sigma_b ** 2 + inf.sigma_w ** 2 / np.asarray(n, float))
     return {"value": np.exp(m), "mean_lo": np.exp(m - z * s), "mean_hi": np.exp(m + z * s),
             "pred_lo": np.exp(m - q * sp), "pred_hi": np.exp(m + q * sp)}
 

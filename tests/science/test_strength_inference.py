@@ -135,3 +135,12 @@ def test_every_prior_row_has_a_source():
         p = si.prior_from_table(fam, row)
         for term in list(p.terms.values()) + [p.batch_cv, p.within_cv]:
             assert term.source.strip(), (fam, term.name)
+
+
+def test_analytic_gradient_matches_central_differences():
+    # reference: numpy central differences, step 1e-6 in each parameter
+    z = np.array([2.1, -1.5, -3.0, 4.0, -0.2])
+    t = np.array([0.5, 1.0, 7.0, 28.0, 90.0, 365.0])
+    num = np.column_stack([(si._log_f(z + e, t) - si._log_f(z - e, t)) / 2e-6
+                           for e in np.eye(5) * 1e-6])
+    assert si._log_f_grad(z, t) == pytest.approx(num, rel=1e-5, abs=1e-8)
