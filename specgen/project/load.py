@@ -118,7 +118,9 @@ def validate(located: Located, model: type[BaseModel], rel: str, log: ProblemLog
                 if isinstance(found, (dict, list)) or repr(found) in msg or str(found) in msg:
                     msg = msg.rstrip(".") + "."
                 else:
-                    msg = f"{msg} (found {found!r})."
+                    shown = repr(found)   # an offending value is quoted, not echoed whole
+                    shown = shown if len(shown) <= 80 else shown[:79] + "…"
+                    msg = f"{msg} (found {shown})."
                 if msg.startswith("must be greater than zero"):
                     fix = _give(model, loc)
             log.add(rel, msg, line=line, field=_field_path(loc), fix=fix)

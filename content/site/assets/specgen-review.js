@@ -133,7 +133,7 @@
       section.appendChild(o);
     });
     if (selected && section.value !== selected) {  // an element that is not a heading
-      var o = el("option", {value: selected}, "the selected passage (" + selected + ")");
+      var o = el("option", {value: selected}, "The selected passage");
       o.selected = true;
       section.appendChild(o);
     }
@@ -147,7 +147,7 @@
     items.forEach(function (c, i) {
       var li = el("li", {});
       li.appendChild(el("p", {"class": "sg-review-where"},
-        c.category + " — " + c.page + (c.anchor ? " › " + c.anchor : "") + " — " + c.date));
+        c.category + " — " + (c.label || c.page) + " — " + c.date));
       if (c.quote) { li.appendChild(el("blockquote", {}, c.quote)); }
       li.appendChild(el("p", {}, c.text));
       var del = el("button", {type: "button"}, "Delete this comment");
@@ -186,7 +186,10 @@
       return;
     }
     var items = load();
+    var chosen = section.options[section.selectedIndex];
+    var pageTitle = (document.querySelector("article h1") || {}).textContent || pageStem();
     items.push({key: newKey(), page: pageStem(), anchor: section.value || null,
+                label: pageTitle.trim() + (section.value ? " › " + chosen.textContent : ""),
                 quote: quote.value.replace(/\s+/g, " ").trim(), text: text.value.trim(),
                 author: author.value.trim(), organisation: organisation.value.trim(),
                 role: role.value.trim(),
@@ -201,7 +204,10 @@
   });
   exportButton.addEventListener("click", function () {
     var doc = {format: "specgen-review/1", project: ctx.project, revision: ctx.revision,
-               exported: new Date().toISOString().slice(0, 19) + "Z", comments: load()};
+               exported: new Date().toISOString().slice(0, 19) + "Z",
+               comments: load().map(function (c) {  // the label is for this panel only
+                 var copy = {}; Object.keys(c).forEach(function (k) { if (k !== "label") { copy[k] = c[k]; } });
+                 return copy; })};
     var blob = new Blob([JSON.stringify(doc, null, 2) + "\n"], {type: "application/json"});
     var a = el("a", {href: URL.createObjectURL(blob),
                      download: ctx.project + "-" + ctx.revision + "-review.json"});
