@@ -42,6 +42,7 @@ KINDS: dict[str, Kind] = {k.name: k for k in [
     Kind("expansion", "1/K", "'8e-6 1/K'"),
     Kind("capillary", "kg/m**2/s**0.5", "'0.05 kg/(m^2*s^0.5)' or '0.4 kg/(m^2*min^0.5)'"),
     Kind("areal_mass", "kg/m**2", "'1.2 kg/m^2' or '0.12 g/cm^2'"),
+    Kind("absorption_rate", "kg/m**2/s", "'1.5 kg/(m^2*min)' or '1 g/(min*in^2)'"),
     Kind("dimensionless", "dimensionless", "'12'"),
 ]}
 

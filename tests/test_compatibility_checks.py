@@ -107,8 +107,13 @@ def test_salt_classes_by_the_chosen_table(demo):
     # WTA 2-9 edges (content/data/salt_load.yaml, from memory): sulfate 1.65 % >= 1.5 -> high
     assert q["table"] == "wta_2_9" and q["HM2"]["sulfate"] == "high"
     c = _by(r)[("COMP-SALT", "Z2/M1")]
-    assert c.status == "fail" and "ettringite" in c.message and "thaumasite" in c.message
-    assert any("Al2O3 8.1 % in analysis NC1-A" in n for n in c.notes)   # demo analyses.yaml
+    # what the sulfate does to the binder is assessed by DUR-ETT and DUR-TSA (their own tests in
+    # tests/test_durability_checks.py); COMP-SALT classes the load and points to them
+    assert c.status == "attention" and c.message.startswith("high salt load (sulfate)")
+    assert any("DUR-ETT/Z2/M1" in n and "DUR-TSA/Z2/M1" in n for n in c.notes)
+    ett = _by(r)[("DUR-ETT", "Z2/M1")]
+    assert ett.status == "fail" and any("Al2O3 8.1 % in analysis NC1-A" in i.name   # analyses.yaml
+                                        for st in ett.steps for i in st.inputs)
     assert any("published salt-load tables disagree" in n for n in c.notes)
     assert _by(r)[("COMP-SALT", "Z3/M3")].status == "pass"     # NHL: no aluminate-rich binder
     # the other table classes the same brick differently: 0.31 % sulfate is high by ÖNORM B 3355

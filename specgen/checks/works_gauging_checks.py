@@ -17,7 +17,7 @@ GAUGE = Basis("common practice", note="gauging sized to the workable life (EN 10
               "measured), the crew's placing rate and a safety factor")
 TITLE = "Site gauging size"
 L = 1e-3  # m³ per litre
-QUICK = 1800.0  # s: a default workable life shorter than this is flagged for measurement
+QUICK = 1800.0  # s: a default workable life shorter than this is flagged as urgent to measure
 
 declare("max_gauging_volume", "L", "largest gauging placed within the workable life, by zone "
         "(workable life × placing rate / safety factor)")
@@ -120,10 +120,13 @@ def _gauged(mix, s: Site, y, vmax, gov, measure, n, q) -> CheckResult:
 
 
 def _notes(s: Site) -> list[str]:
-    if s.measured or s.life.value >= QUICK:
+    """A default workable life is an assumption: always flagged (sooner for a quick binder)."""
+    if s.measured:
         return []
-    return [f"workable life not measured: the default {s.life.value / 60:g} min is used "
-            "(measure it on the trial mix, EN 1015-9, and give workable_life in mixes.yaml)"]
+    urgent = " — a quick-setting binder: measure before site work" if s.life.value < QUICK else ""
+    return [f"assumption: workable life not measured, {s.life.value / 60:g} min used "
+            f"({s.life.source}); measure it on the trial mix (EN 1015-9) and give "
+            f"workable_life in mixes.yaml{urgent}"]
 
 
 def _result(mix, status, volume, steps, notes, q, msg) -> CheckResult:

@@ -66,6 +66,7 @@ class Project:
     firing: dict = field(default_factory=dict)  # binder id → FiringSeries (project/firing.py)
     site_temperature: object = None  # SiteTemperature (project/site_temperature.py) or None
     specification: object = None  # SpecificationData (project/specification.py) or None
+    exposure: dict = field(default_factory=dict)  # zone id → ZoneExposure (durability_inputs)
 
     @property
     def revision(self) -> schema.Revision:
@@ -207,6 +208,8 @@ def load_project(root: Path | str) -> Project:
     check_references(project, located, log, failed)
     from specgen.project.works_inputs import works_problems
     works_problems(project, located, log, failed)
+    from specgen.project.durability_inputs import durability_problems
+    project.exposure = durability_problems(project, located, log, failed)
     log.raise_if_any()
     return project
 

@@ -14,6 +14,9 @@ from pydantic import (AfterValidator, BaseModel, BeforeValidator, ConfigDict, Fi
                       field_validator, model_validator)
 
 from specgen import units
+from specgen.project.durability_schema import (AbsorptionRate, DurabilitySettings,
+                                               ExposureCondition, SettingTime, Soundness,
+                                               SubstrateProperties)
 
 ID_PATTERN = r"^[A-Za-z0-9][A-Za-z0-9._-]{0,39}$"
 Id = Annotated[str, Field(pattern=ID_PATTERN, description="short identifier: letters, digits, . _ -")]
@@ -95,6 +98,9 @@ class Zone(Model):
     units: Id | None = Field(None, description="masonry unit id (materials.yaml) of the fabric")
     historic_mortar: Id | None = Field(None, description="historic mortar id (materials.yaml)")
     exposure: Text = Field("", description="exposure of the zone (splash, sheltered, ...)")
+    exposure_conditions: list[ExposureCondition] = Field(
+        default_factory=list, description="the zone's exposure in the words the durability "
+        "checks read (used instead of the words found in 'exposure')")
     area: Area | None = Field(None, description="wall area of the works, e.g. '120 m^2'")
     candidates: list[Id] = Field(default_factory=list, description="candidate mix ids")
     mix: Id | None = Field(None, description="mix the works quantities are worked out for "
@@ -201,6 +207,8 @@ class Dossier(Model):
         default_factory=CompatibilitySettings, description="choices of the compatibility checks")
     works: WorksSettings = Field(default_factory=lambda: WorksSettings(),
                                  description="settings of the works quantities and batching")
+    durability: DurabilitySettings = Field(default_factory=lambda: DurabilitySettings(),
+                                           description="the site's winter climate")
     site_temperature: Text | None = Field(
         None, description="curing temperature in the wall: a constant, e.g. '8 degC', or a CSV "
         "under lab/ with columns 'day [d]' and 'temperature [degC]' (daily means)")
@@ -273,6 +281,8 @@ class Binder(Model):
     particle_density: Density | None = Field(None, description="particle density for the "
                                              "yield, e.g. '2900 kg/m^3'")
     bag_mass: Mass | None = Field(None, description="mass of one bag as supplied, e.g. '25 kg'")
+    soundness: Soundness | None = Field(None, description="free lime, free MgO and expansion "
+                                        "as measured")
 
 
 class Hygrothermal(Model):
@@ -327,6 +337,9 @@ class MasonryUnit(Hygrothermal):
     length: Length | None = Field(None, description="unit length, e.g. '215 mm'")
     height: Length | None = Field(None, description="unit height, e.g. '65 mm'")
     salts: SaltContent | None = Field(None, description="soluble salts of the units")
+    initial_rate_of_absorption: AbsorptionRate | None = Field(
+        None, description="initial rate of absorption (suction) of the units (ASTM C67 style), "
+        "e.g. '1.8 kg/(m^2*min)'")
 
 
 class HistoricMortar(Hygrothermal):
@@ -340,7 +353,7 @@ class HistoricMortar(Hygrothermal):
     acid_digestion: AcidDigestion | None = Field(None, description="acid digestion results")
 
 
-class MortarProperties(Hygrothermal):
+class MortarProperties(SubstrateProperties, Hygrothermal):
     """Properties measured on a candidate repair mortar (strength comes from lab/strength.csv)."""
 
     mix: Id = Field(description="mix id (mixes.yaml)")
@@ -395,6 +408,8 @@ class Mix(Model):
     workable_life: Duration | None = Field(None, description="workable life measured in the "
                                            "laboratory (EN 1015-9), e.g. '25 min'")
     workable_life_source: Text = Field("", description="laboratory report of the workable life")
+    setting: SettingTime | None = Field(None, description="initial and final setting time "
+                                        "measured on the binder paste as dosed")
     notes: Text = Field("", description="free text")
 
 
