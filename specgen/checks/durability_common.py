@@ -59,18 +59,19 @@ def memory_gate(ctx, status: str, rules, tables=()) -> tuple[str, list[str]]:
                     "source before the dossier is issued"]
 
 
-def recalled_tables(*names: str) -> list[str]:
-    """Those of the reference tables ``names`` whose values are recalled (tag memory)."""
-    from specgen import refdata
-    return [f"content/data/{n}.yaml" for n in names if refdata.load(n).tag == "memory"]
-
-
 def asked(test: str, method: str, why: str, code: str) -> dict:
     return {"test": test, "method": method, "why": why, "check": code}
 
 
-def tests_quantity(tests: list[dict]) -> list[Quantity]:
-    return [Quantity("tests_asked", tests, "", "tests to commission")] if tests else []
+def tests_quantity(ctx, subject: str, tests: list[dict]) -> list[Quantity]:
+    """``tests_asked`` of ``subject``: the tests asked by earlier checks on the same subject
+    kept (a quantity is recorded once per subject), these added."""
+    if not tests:
+        return []
+    prior = ctx.quantity(subject, "tests_asked")
+    merged = list(prior.value) if prior else []
+    merged += [t for t in tests if t not in merged]
+    return [Quantity("tests_asked", merged, "", "tests to commission")]
 
 
 def exposure(ctx, zone_id: str) -> dict | None:
@@ -80,9 +81,10 @@ def exposure(ctx, zone_id: str) -> dict | None:
 
 
 def tex(text: str) -> str:
-    """Plain words for a LaTeX \\text{} (the few characters it treats specially escaped)."""
-    for a, b in (("\\", " "), ("%", r"\%"), ("_", r"\_"), ("&", r"\&"), ("#", r"\#"),
-                 ("{", r"\{"), ("}", r"\}"), ("$", r"\$")):
+    """Plain words for a LaTeX \\text{}: the math renderer copies the characters into MathML
+    as they stand, so the XML specials are escaped and braces and backslashes kept out."""
+    for a, b in (("\\", " "), ("&", "&amp;"), ("<", "&lt;"), (">", "&gt;"), ("{", "("),
+                 ("}", ")")):
         text = text.replace(a, b)
     return text
 

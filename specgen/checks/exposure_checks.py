@@ -116,7 +116,7 @@ def _frost_one(pair, ctx) -> CheckResult:
         return cc.result("DUR-FROST", FROST, pair, "hold", None, "", [EN998, need.basis],
                          f"{e['designation']} asks for a declared freeze–thaw resistance; "
                          f"{pair.mix_id} has none: commission {test['method']}", steps=steps,
-                         quantities=dc.tests_quantity([test]))
+                         quantities=dc.tests_quantity(ctx, pair.subject, [test]))
     return _frost_tested(pair, ctx, e, need, ft, steps, test)
 
 
@@ -151,7 +151,8 @@ def _frost_tested(pair, ctx, e, need, ft, steps, test) -> CheckResult:
     return cc.result("DUR-FROST", FROST, pair, status, ft.cycles, "cycles", [EN998, need.basis],
                      msg, steps=steps, limit=Limit(">=", low=need.value, text=f"N ≥ {need.value:g}"
                                                    " cycles", rule=need.key),
-                     quantities=dc.tests_quantity([test] if status == "hold" else []))
+                     quantities=dc.tests_quantity(ctx, pair.subject,
+                                                   [test] if status == "hold" else []))
 
 
 def _indicators(pair, ctx) -> Step:

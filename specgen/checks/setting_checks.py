@@ -43,7 +43,7 @@ def setting_check(mix, ctx) -> CheckResult:
                         f"sizes the gaugings of {mix.id}", "SITE-SET")
         return _result(mix, "hold", None, "no setting time: commission " + test["method"] +
                        "; until then the gaugings rest on the workable life alone",
-                       q=dc.tests_quantity([test]))
+                       q=dc.tests_quantity(ctx, mix.id, [test]))
     src = f"mixes.yaml {mix.id}.setting ({METHOD[s.method]}; {s.source or 'laboratory not named'})"
     inputs = [Input("t_i", "initial set", round(s.initial / 60, 2), "min", src),
               Input("t_f", "final set", round(s.final / 60, 2), "min", src)]
@@ -63,10 +63,14 @@ def setting_check(mix, ctx) -> CheckResult:
         verdicts.append("attention")
         words.append(f"measured workable life {mix.workable_life / 60:g} min is longer than the "
                      f"initial set: the gaugings use {s.initial / 60:g} min; check the two tests")
+    inputs.append(Input("t_w,0", "workable life measured (EN 1015-9), else the binder default",
+                        round(_life0(mix, ctx) / 60, 2), "min",
+                        f"mixes.yaml {mix.id}.workable_life" if measured
+                        else "content/rules/works.yaml (default of the binder family)"))
     inputs.append(Input("t_w", "workable life used for the gaugings", round(life.value / 60, 2),
                         "min", life.source))
     step = Step("Setting times and the workable life the gaugings use",
-                r"t_i < t_f,\quad t_w = \min(t_{w,\,EN\,1015\text{-}9\ \text{or default}},\ t_i)",
+                r"t_i < t_f,\quad t_w = \min(t_{w,0},\ t_i)",
                 tuple(inputs), rf"t_i = {s.initial / 60:g},\ t_f = {s.final / 60:g},\ "
                 rf"t_w = {life.value / 60:g}\ \mathrm{{min}}", round(life.value / 60, 2), "min",
                 "t_w")
@@ -77,6 +81,14 @@ def setting_check(mix, ctx) -> CheckResult:
                      f"{life.source}")
     return _result(mix, status, round(s.initial / 60, 2), "; ".join(words), [step], notes,
                    basis=[BASIS] + [r.basis for r in used])
+
+
+def _life0(mix, ctx) -> float:
+    """The workable life before the initial set caps it (s)."""
+    if mix.workable_life is not None:
+        return mix.workable_life
+    return min(wc.rule_si(ctx.rules, f"workable_life_{f}", "time").value
+               for _, f in dc.binder_types(mix, ctx.project))
 
 
 def _family_limits(fam, s, ctx):

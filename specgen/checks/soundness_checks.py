@@ -90,7 +90,7 @@ def _measured(binder, s, ctx) -> CheckResult:
                        limit=Limit("<=", high=exp_r.value, unit="mm", text=f"expansion ≤ "
                                    f"{exp_r.value:g} mm", rule=exp_r.key),
                        message="; ".join(words), notes=tuple(notes),
-                       quantities=tuple(dc.tests_quantity(tests)))
+                       quantities=tuple(dc.tests_quantity(ctx, binder.id, tests)))
 
 
 def _unmeasured(binder, ctx) -> CheckResult:
@@ -113,7 +113,7 @@ def _unmeasured(binder, ctx) -> CheckResult:
     msg = ("nothing measured; " + ("; ".join(risks) if risks else "no risk indicated by the "
                                    "analysis or the firing") + f" — commission "
            f"{EXPANSION_TEST['method']}")
-    quantities = dc.tests_quantity([EXPANSION_TEST])
+    quantities = dc.tests_quantity(ctx, binder.id, [EXPANSION_TEST])
     if q.get("free_lime"):
         quantities.append(Quantity("free_oxide_range", q, "%", "free lime range"))
     return CheckResult(code="DUR-SOUND", title=TITLE, subject=binder.id, subject_kind="binder",

@@ -71,7 +71,8 @@ def _retain_one(pair, ctx) -> CheckResult:
         return cc.result("DUR-RETAIN", RETAIN, pair, "hold", None, "", [need.basis],
                          f"units of {word} suction: the mortar must retain at least "
                          f"{need.value:g} % of its water; {pair.mix_id} has no water retention "
-                         f"— commission the {test['method']}", quantities=dc.tests_quantity([test]))
+                         f"— commission the {test['method']}",
+                         quantities=dc.tests_quantity(ctx, pair.subject, [test]))
     inputs += [Input("WR", f"water retention of {pair.mix_id}", round(100 * wr, 3), "%",
                      f"materials.yaml mortar_properties {pair.mix_id}"),
                dc.rule_input(ctx, "WR_min", need.key.split(".")[1])]
@@ -112,7 +113,8 @@ def _bond_one(pair, ctx) -> CheckResult:
                         f"{pair.zone.id}", "DUR-BOND")
         return cc.result("DUR-BOND", BOND, pair, "hold", None, "", [EN1015_12, need.basis],
                          f"render bond of {pair.mix_id} not measured: commission the "
-                         f"{test['method']}", quantities=dc.tests_quantity([test]))
+                         f"{test['method']}",
+                         quantities=dc.tests_quantity(ctx, pair.subject, [test]))
     f = p.bond_strength / 1e6
     ok = f >= need.value
     status = "pass" if ok else ("attention" if p.bond_failure in ("mortar", "substrate")
@@ -171,7 +173,7 @@ def _carb_one(pair, ctx):
         miss = "no carbonation depths measured" if not reads else "no repair depth for the zone"
         return cc.result("DUR-CARB", CARB, pair, "attention", None, "", [basis],
                          f"{lead}; {miss} — measure by {test['method']}",
-                         quantities=dc.tests_quantity([test]))
+                         quantities=dc.tests_quantity(ctx, pair.subject, [test]))
     return _carb_fit(pair, reads, depth, basis, lead)
 
 

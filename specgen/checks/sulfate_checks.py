@@ -132,7 +132,7 @@ def _verdict(code, title, pair, ctx, conds, severe: bool, basis, rules, what: st
         return cc.result(code, title, pair, "hold", None, "", basis,
                          f"{what}: cannot decide — " + "; ".join(
                              f"{c.name} unknown: {c.decide}" for c in unknown), steps=steps,
-                         quantities=dc.tests_quantity(tests))
+                         quantities=dc.tests_quantity(ctx, pair.subject, tests))
     status = "fail" if severe else "attention"
     status, notes = dc.memory_gate(ctx, status, rules, tables)
     return cc.result(code, title, pair, status, float(len(conds)), "", basis,
@@ -140,9 +140,14 @@ def _verdict(code, title, pair, ctx, conds, severe: bool, basis, rules, what: st
                          f"{c.name}: {c.why}" for c in conds), steps=steps, notes=notes)
 
 
-def _salt_table(level: str) -> list[str]:
-    """The salt-load table when the verdict rests on a fabric class read from it."""
-    return dc.recalled_tables("salt_load") if level in ("medium", "high") else []
+def _salt_table(ctx, level: str) -> list[str]:
+    """The salt-load table when the verdict rests on a fabric class read from it and its
+    edges are recalled."""
+    from specgen.checks.salt_checks import table
+    key, tab = table(ctx)
+    if level in ("medium", "high") and tab.get("tag") == "memory":
+        return [f"the {key} salt-load edges (content/data/salt_load.yaml)"]
+    return []
 
 
 @register("DUR-TSA", TSA, "zone", order=546)
@@ -161,7 +166,7 @@ def _tsa_one(pair, ctx) -> CheckResult:
     severe = level == "high" or (level == "sea" and e.get("wetting") == "severe")
     return _verdict("DUR-TSA", TSA, pair, ctx, conds, severe, [TEG],
                     [dc.rule(ctx, "thaumasite_temperature_max")], "thaumasite",
-                    _salt_table(level))
+                    _salt_table(ctx, level))
 
 
 @register("DUR-ETT", ETT, "zone", order=547)
@@ -180,7 +185,7 @@ def _ett_one(pair, ctx) -> CheckResult:
     conds = [alu, sul, water(pair, ctx)]
     basis = [cc.rule_basis(ctx, "aluminate_rich_al2o3")]
     res = _verdict("DUR-ETT", ETT, pair, ctx, conds, level == "high", basis, [], "ettringite",
-                   _salt_table(level))
+                   _salt_table(ctx, level))
     if level == "sea" and res.status in ("attention", "fail"):
         from dataclasses import replace
         res = replace(res, notes=res.notes + (

@@ -49,7 +49,7 @@ def specification(env) -> dict:
     exports = _exports(env, jenv, chosen, clauses) if spec else []
     return {"has_spec": spec is not None, "zones": zones, "exports": exports,
             "regime": _regime(r, p), "hold_points": _hold_points(p, r),
-            "panels": _panels(env), "currency": spec.doc.currency if spec else ""}
+            "tests": _tests_asked(p, r), "panels": _panels(env), "currency": spec.doc.currency if spec else ""}
 
 
 def _zone(env, zone, jenv, clause_ctx) -> dict:
@@ -182,6 +182,18 @@ def _hold_points(project, results) -> list[dict]:
                     "check": h["check"] or "", "check_badge": Markup(badge(chk.status))
                     if chk else "", "check_href": _href(chk.key) if chk else ""})
     return out
+
+
+def _tests_asked(project, results) -> list[dict]:
+    """The tests the durability checks ask for, per zone (DUR-TESTS): each holds the zone."""
+    rows = []
+    for z in project.dossier.zones:
+        c = results.check("DUR-TESTS", z.id)
+        for t in results.value(z.id, "durability_tests") or []:
+            rows.append({"zone": z.id, "test": t["test"], "method": t["method"], "why": t["why"],
+                         "check": t["check"], "href": _href(t["check"]),
+                         "badge": Markup(badge(c.status)) if c else ""})
+    return rows
 
 
 def _check_of(results, ref: str):
