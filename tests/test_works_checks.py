@@ -186,7 +186,8 @@ def test_card_cautions_come_from_the_library(demo):
     from specgen.report.cautions import card_cautions
     p, _ = demo
     chosen, closing = card_cautions(p, p.mixes["M1"])
-    assert [c["id"] for c in chosen] == ["alkaline", "quick_set", "dust", "bags"]
+    # M1 serves Z2 (splash, demo dossier.yaml) on a site that freezes: tidal and frost cautions
+    assert [c["id"] for c in chosen] == ["alkaline", "quick_set", "dust", "bags", "tidal", "frost"]
     assert "safety data sheet" in closing and "competent person" in closing
     nhl, _ = card_cautions(p, p.mixes["M3"])
     assert "quick_set" not in [c["id"] for c in nhl]   # NHL: no natural cement in M3

@@ -36,7 +36,7 @@ Duration = Annotated[float, _quantity("time"), _Positive]
 Length = Annotated[float, _quantity("length"), _Positive]
 LengthOrZero = Annotated[float, _quantity("length"), Field(ge=0)]
 Pressure = Annotated[float, _quantity("pressure"), _Positive]
-Fraction = Annotated[float, _quantity("fraction"), Field(ge=0)]
+Percent = Annotated[float, _quantity("fraction"), Field(ge=0)]
 AbsorptionRate = Annotated[float, _quantity("absorption_rate"), _Positive]
 MassPercent = Annotated[float, BeforeValidator(_percent), Field(ge=0, le=100)]
 
@@ -71,7 +71,7 @@ class Soundness(Model):
         None, description="free MgO (periclase), mass % of the binder, e.g. 0.4")
     expansion: LengthOrZero | None = Field(
         None, description="Le Chatelier expansion (EN 196-3 / EN 459-2), e.g. '1.5 mm'")
-    autoclave_expansion: Fraction | None = Field(
+    autoclave_expansion: Percent | None = Field(
         None, description="autoclave expansion (ASTM C151), e.g. '0.3 %'")
     laboratory: str = Field("", max_length=4000, description="laboratory and report reference")
 
@@ -84,7 +84,7 @@ class SettingTime(Model):
     method: Literal["vicat_en196_3", "vicat_en459_2", "vicat_astm_c191",
                     "gillmore_astm_c266"] = Field(
         "vicat_en196_3", description="test method")
-    retarder_dose: Fraction | None = Field(
+    retarder_dose: Percent | None = Field(
         None, description="retarder dose of the tested paste, fraction of the binder mass, "
         "e.g. '0.2 %' (none: tested without retarder)")
     temperature: Temperature | None = Field(None, description="temperature of the test, "
@@ -98,9 +98,9 @@ class FreezeThaw(Model):
     method: str = Field(min_length=3, max_length=4000, description="test method as carried out, "
                         "e.g. 'prisms 40x40x160 mm, water-saturated, -15/+20 degC cycles'")
     cycles: int = Field(ge=1, description="cycles completed")
-    mass_loss: Fraction | None = Field(None, description="mass loss after the cycles, e.g. "
+    mass_loss: Percent | None = Field(None, description="mass loss after the cycles, e.g. "
                                        "'1.5 %'")
-    strength_loss: Fraction | None = Field(None, description="loss of compressive strength "
+    strength_loss: Percent | None = Field(None, description="loss of compressive strength "
                                            "against companion prisms, e.g. '12 %'")
     source: str = Field("", max_length=4000, description="laboratory and report reference")
 
@@ -116,7 +116,7 @@ class CarbonationReading(Model):
 class SubstrateProperties(Model):
     """Fresh and hardened properties of a repair mortar compared with the substrate."""
 
-    water_retention: Fraction | None = Field(
+    water_retention: Percent | None = Field(
         None, description="water retention of the fresh mortar (ASTM C1506 / EN 413-2 style "
         "suction test), e.g. '88 %'")
     bond_strength: Pressure | None = Field(

@@ -13,11 +13,14 @@ from specgen.project.tables import COLOUR_COLUMNS, SIEVE_COLUMNS, STRENGTH_COLUM
 UNIT_OF = {"Pressure": "pressure, e.g. '12 MPa'", "Length": "length, e.g. '10 mm'",
            "Area": "area, e.g. '240 m^2'", "Density": "density, e.g. '850 kg/m^3'",
            "Duration": "time, e.g. '28 d'", "Temperature": "temperature, e.g. '20 degC'",
-           "MassPercent": "mass %"}
+           "MassPercent": "mass %", "LengthOrZero": "length, e.g. '6 mm'",
+           "Percent": "percentage, e.g. '5 %'",
+           "AbsorptionRate": "absorption rate, e.g. '1.5 kg/(m^2*min)'"}
 
 
 def _type_name(annotation) -> tuple[str, type[BaseModel] | None]:
-    for name, alias in vars(schema).items():
+    from specgen.project import durability_schema
+    for name, alias in [*vars(schema).items(), *vars(durability_schema).items()]:
         if name in UNIT_OF and annotation == alias:
             return UNIT_OF[name], None
     origin, args = typing.get_origin(annotation), typing.get_args(annotation)
