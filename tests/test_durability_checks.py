@@ -353,3 +353,29 @@ def test_every_durability_sheet_formula_renders(demo):
     assert len(seen) > 20
     for latex in sorted(seen):
         assert svg_of(latex).startswith("<svg"), latex
+
+
+def test_practice_key_read_when_present():
+    from types import SimpleNamespace as NS
+
+    from specgen.checks.durability_common import PRACTICE_NOTE, practice
+    assert practice(NS(dossier=NS())) == ("european", PRACTICE_NOTE)
+    assert practice(NS(dossier=NS(practice="american"))) == ("american",
+                                                            "dossier.yaml practice: american")
+    assert practice(NS(dossier=NS(practice="european")))[0] == "european"
+
+
+def test_american_practice_names_the_c270_location(demo_copy, monkeypatch):
+    from specgen.checks import durability_common
+    monkeypatch.setattr(durability_common, "practice",
+                        lambda project: ("american", "dossier.yaml practice: american"))
+    _, r = check(demo_copy)
+    c = _by(r)[("DUR-EXPOSE", "Z3")]
+    # ASTM C270 Table X1.1 (from memory): at or below grade → type S (alternatives M, N)
+    assert c.message == (
+        "exterior, at or below grade (foundation and retaining walls, manholes, sewers, "
+        "pavements): type S recommended (alternatives M, N); weathering severe (EN 1996-1-1 "
+        "equivalent MX4 with MX3.2)")
+    assert c.basis[0].ref == "astmc270"
+    assert _by(r)[("DUR-EXPOSE", "Z2")].message.startswith(
+        "exterior, above grade, parapet wall: type N recommended (alternatives S)")
