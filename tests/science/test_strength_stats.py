@@ -96,8 +96,10 @@ def test_characteristic_value_needs_two_results_for_unknown_variance():
         4.0e6 - stats.norm.ppf(0.95) * math.sqrt(2) * 0.2e6)
 
 
-# Grubbs two-sided critical values at alpha = 0.05, ASTM E178 table (upper 2.5 % one-sided
-# column), from memory.
+# Grubbs two-sided critical values at alpha = 0.05, ASTM E178 Table 1 (upper 2.5 % one-sided
+# column), from memory.  n = 3: printed 1.155; the closed form (exact for n = 3) gives
+# 1.1543.  The 1.153 of the 5 % column belongs to a one-sided test (see
+# test_strength_checks.test_grubbs_tie_in_three_is_reported_not_dropped).
 @pytest.mark.parametrize("n, g", [(3, 1.155), (4, 1.481), (5, 1.715), (6, 1.887),
                                   (7, 2.020), (8, 2.126), (10, 2.290)])
 def test_grubbs_critical_values(n, g):
