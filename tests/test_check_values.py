@@ -194,7 +194,7 @@ def _porosity(wb, f, dens, alpha=0.7):
 BENTZ = {"C2S": 3280.0, "H": 997.1, "CH": 2240.0, "C1.7SH4": 2110.0}    # Bentz, NIST tables
 ROUNDED = {"C2S": 3300.0, "H": 1000.0, "CH": 2240.0, "C1.7SH4": 2000.0}  # common practice
 # Potential belite with the default amorphous aluminate assignment (lime suffices):
-# C2S = S x M(C2S)/M(SiO2) = 2.867 S -> NC1-A 21.5 -> 61.64 %, NHL-A 14.0 -> 40.14 %
+# C2S = S x M(C2S)/M(SiO2) = 2.86665 S -> NC1-A 21.5 -> 61.633 %, NHL-A 14.0 -> 40.133 %
 F_NC1 = 21.5 * M("Ca2SiO4") / M("SiO2") / 100
 F_NHL = 14.0 * M("Ca2SiO4") / M("SiO2") / 100
 
