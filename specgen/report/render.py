@@ -92,11 +92,12 @@ class RenderEnv:
                 "limit": limit, "value": qty(c.value, c.unit), "notes": list(c.notes)}
 
 
-def render(project, results, history=None) -> PageSet:
+def render(project, results, history=None, superseded: str | None = None) -> PageSet:
     """Render every registered chapter into a page set (narrative placed by file name).
 
     ``history`` (:class:`specgen.publish.history.History`) gives earlier revisions and
     the change report; without it the dossier is rendered as a first revision.
+    ``superseded`` names the issued revision that superseded this one (its pages say so).
     """
     pageset = PageSet()
     env = RenderEnv(project, results, pageset, MathAssets(pageset), history)
@@ -111,6 +112,8 @@ def render(project, results, history=None) -> PageSet:
             ctx["narrative"] = _narrative_for(project, "introduction" if stem == "index" else stem)
             text = jenv.get_template(spec.template).render(**ctx)
             pageset.add_page(path, title, text)
+    from specgen.report.marks import apply_marks
+    apply_marks(pageset, project, results, superseded)
     return pageset
 
 

@@ -8,8 +8,7 @@ from specgen.report.fmt import qty
 
 @chapter("changes.md", "Changes in this revision", 12, "changes.md.j2")
 def changes(env) -> dict:
-    h = env.history
-    ch = h.changes if h else None
+    ch = env.results.changes
     if not ch:
         return {"previous": None}
     rows = []
@@ -22,7 +21,8 @@ def changes(env) -> dict:
                      "delta": qty(c["delta"], c["unit"]) if c["delta"] is not None else "—",
                      "href": f"calculations.md#{sheet_anchor_of(c['code'], c['subject'])}"
                      if c["new_status"] else None})
-    return {"previous": h.previous, "inputs": ch["inputs"], "specimens": ch["specimens"],
+    return {"previous": ch["from"], "decision": ch.get("decision_lines", []),
+            "inputs": ch["inputs"], "specimens": ch["specimens"],
             "checks": rows, "comments": ch["comments"],
             "status_changes": sum(1 for c in ch["checks"] if c["old_status"] != c["new_status"])}
 
@@ -39,6 +39,8 @@ def history(env) -> dict:
 @chapter("comments.md", "Review comments", 88, "comments.md.j2")
 def comments(env) -> dict:
     checks = {f"{c.code}/{c.subject}": c for c in env.results.checks}
+    # open comments whose subject changed in this revision: put to the specifier by the audit
+    asked = {f.subject for f in env.results.findings if f.code == "AUD-COMMENT"}
     rows = []
     for c in env.project.comments:
         code, _, subject = c.about.partition("/")
@@ -50,6 +52,7 @@ def comments(env) -> dict:
             page = "index" if c.about in ("summary", "index") else c.about
             href = f"{page}.md" if page in env.pageset_paths() else None
         rows.append({"id": c.id, "raised": c.raised_in, "about": c.about, "href": href,
+                     "answered": c.id in asked,
                      "role": c.reviewer_role, "text": c.text, "status": c.status,
                      "response": c.response or "—", "closed": c.closed_in or "—"})
     return {"rows": rows, "open": sum(1 for r in rows if r["status"] == "open")}
