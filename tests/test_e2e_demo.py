@@ -20,8 +20,12 @@ def test_revision_layout(demo_build):
         assert (rev / name).is_file(), name
     versions = json.loads((demo_build / "versions.json").read_text())
     assert [v["version"] for v in versions] == ["R3", "R2", "R1"]
-    assert versions[0]["aliases"] == ["current"]
-    assert 'url=R3/index.html' in (demo_build / "index.html").read_text()
+    # the root opens the latest issued revision (R2) and names the draft R3 beside it
+    assert versions[0]["aliases"] == ["draft"] and versions[1]["aliases"] == ["current"]
+    root = (demo_build / "index.html").read_text()
+    assert 'url=R2/index.html' in root and 'A draft, <a href="R3/index.html">R3</a>' in root
+    assert "R1 (issued, 2026-10-01)</a> — superseded by R2" in \
+        (demo_build / "revisions.html").read_text()
     assert 'href="R1/index.html"' in (demo_build / "revisions.html").read_text()
 
 
