@@ -24,7 +24,7 @@ def test_revision_layout(demo_build):
     assert versions[0]["aliases"] == ["draft"] and versions[1]["aliases"] == ["current"]
     root = (demo_build / "index.html").read_text()
     assert 'url=R2/index.html' in root and 'A draft, <a href="R3/index.html">R3</a>' in root
-    assert "R1 (issued, 2026-10-01)</a> — superseded by R2" in \
+    assert "R1 (issued, 2026-10-05)</a> — superseded by R2" in \
         (demo_build / "revisions.html").read_text()
     assert 'href="R1/index.html"' in (demo_build / "revisions.html").read_text()
 
