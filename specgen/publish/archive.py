@@ -79,7 +79,9 @@ def set_revision(path: Path, values: dict[str, str]) -> None:
             end += 1
         while end > at and not lines[end - 1].strip():
             end -= 1
-        lines[at - 1:end] = [f"{indent}{key}: {text}"]
+        # a comment after a one-line value is the specifier's: keep it
+        note = re.search(r"\s+#[^'\"]*$", lines[at - 1]) if end == at else None
+        lines[at - 1:end] = [f"{indent}{key}: {text}{note.group(0) if note else ''}"]
     tmp = path.with_name(f".{path.name}.tmp-{os.getpid()}")
     tmp.write_text("\n".join(lines), encoding="utf-8")
     os.replace(tmp, path)

@@ -203,8 +203,10 @@ def verify(folder: Path) -> dict[str, list[str]]:
     except (OSError, ValueError, KeyError) as exc:
         raise PublishError(f"{mf}: no readable manifest ({exc}). Fix: name a revision folder "
                            "written by specgen build, e.g. OUT/R1.") from exc
+    # the manifest's own detached signature (specgen sign) is checked with the signatures
     present = {p.relative_to(folder).as_posix() for p in folder.rglob("*")
-               if p.is_file() and p.name != MANIFEST}
+               if p.is_file() and p.relative_to(folder).as_posix() not in (MANIFEST,
+                                                                           MANIFEST + ".p7s")}
     return {
         "modified": sorted(p for p in expected if p in present
                            and sha256_file(folder / p) != expected[p]),

@@ -32,7 +32,7 @@ def history(env) -> dict:
     rows = env.history.revisions if env.history else [
         {"code": env.project.revision.code, "date": env.project.revision.date.isoformat(),
          "status": env.project.revision.status, "description": env.project.revision.description,
-         "current": True}]
+         "facts": env.results.facts, "current": True}]
     return {"revisions": list(reversed(rows))}
 
 
