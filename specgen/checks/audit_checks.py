@@ -95,7 +95,7 @@ def description_rule(ctx) -> list[Finding]:
     """Write the factual part of the description; a free-text claim it refutes is a finding."""
     r, prev, p = ctx.results, ctx.previous, ctx.project
     if prev is None:
-        r.facts = ["First issued revision of the dossier: there is no earlier one to compare with."]
+        r.facts = ["No earlier issued revision: there is nothing to compare with."]
         return []
     inputs = {f.path: f.sha256 for f in p.inputs}
     r.changes = compare(prev.results, prev.inputs, r.to_dict(), inputs)
