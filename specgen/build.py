@@ -144,7 +144,8 @@ def _load_archive(root: Path, current: Project) -> list[Project]:
     if not folder.is_dir():
         return []
     problems, found = [], []
-    for sub in sorted(p for p in folder.iterdir() if p.is_dir()):
+    # a dot-folder is an issue in progress (or one a crash left), not an issued revision
+    for sub in sorted(p for p in folder.iterdir() if p.is_dir() and not p.name.startswith(".")):
         try:
             old = load_project(sub)
         except InputErrors as exc:

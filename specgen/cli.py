@@ -123,7 +123,9 @@ def issue_cmd(directory: Path, out, date, purpose, next_code, page_size: str, qu
     except SpecgenError as exc:
         _fail(exc)
     click.echo(f"Issued {done['issued']} into {done['folder']}; inputs frozen in "
-               f"{directory / 'issued' / done['issued']}; the project is now draft {done['next']}.")
+               f"{directory / 'issued' / done['issued']}; the project is now draft {done['next']}."
+               + (f" The audit lists {done['findings']} finding(s) on its Open findings page."
+                  if done["findings"] else ""))
 
 
 @cli.command("status")

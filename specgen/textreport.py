@@ -28,6 +28,11 @@ def table(results) -> str:
     counts = ", ".join(f"{n} {STATUS_WORDS[s]}" for s, n in results.counts().items() if n)
     lines.append("")
     lines.append(f"{results.project_code} revision {results.revision}: {counts or 'no checks ran'}")
+    blocking = len(results.blocking())
+    if results.findings:
+        lines.append(f"consistency audit: {blocking} finding(s) to resolve before issue, "
+                     f"{len(results.findings) - blocking} value(s) to confirm "
+                     "(specgen status lists them)")
     return "\n".join(lines)
 
 

@@ -81,8 +81,6 @@ def _context(trust: list[Path]):
 
 def verify_signatures(folder: Path, trust: list[Path]) -> list[dict]:
     """Every signature of the revision: PDF signatures and the manifest's, each intact or not."""
-    from pyhanko.pdf_utils.reader import PdfFileReader
-    from pyhanko.sign.validation import validate_pdf_signature
     out = []
     try:
         manifest = json.loads((folder / MANIFEST).read_text(encoding="utf-8"))
@@ -91,6 +89,8 @@ def verify_signatures(folder: Path, trust: list[Path]) -> list[dict]:
     signed = manifest.get("signed")
     if not signed:
         return out
+    from pyhanko.pdf_utils.reader import PdfFileReader
+    from pyhanko.sign.validation import validate_pdf_signature
     pdf = folder / signed["pdf"]
     try:
         reader = PdfFileReader(io.BytesIO(pdf.read_bytes()), strict=False)
