@@ -220,3 +220,21 @@ def test_revision_in_flow_style_is_refused(tmp_path, flow):
     path.write_text(flow)
     with pytest.raises(UsageError, match="not written as a block"):
         set_revision(path, {"status": "issued"})
+
+
+def test_status_says_where_the_project_stands(demo_copy, cli):
+    text = cli("status", demo_copy)
+    data = json.loads(cli("status", demo_copy, "--format", "json").output)
+    assert text.exit_code == 0
+    lines = text.output.splitlines()
+    # demo data: dossier.yaml (R3 draft for approval of 2026-11-30), issued/R2, HP2–HP5 open in
+    # specification.yaml, C2 and C3 open in comments.yaml
+    assert lines[0] == "WEP-2026 revision R3: draft, for approval, dated 2026-11-30"
+    assert lines[1] == "last issued revision: R2"
+    blocking = [f for f in data["findings"] if f["blocking"]]
+    assert lines[2].startswith(f"open findings: {len(blocking)} to resolve before issue")
+    assert "open hold points: HP2, HP3, HP4, HP5" in lines
+    assert "open review comments: C2, C3" in lines
+    assert lines[lines.index("since the last issue:") + 1].startswith("  Compared with R2")
+    check = cli("check", demo_copy)
+    assert f"consistency audit: {len(blocking)} finding(s) to resolve before issue" in check.output
