@@ -238,3 +238,35 @@ def test_status_says_where_the_project_stands(demo_copy, cli):
     assert lines[lines.index("since the last issue:") + 1].startswith("  Compared with R2")
     check = cli("check", demo_copy)
     assert f"consistency audit: {len(blocking)} finding(s) to resolve before issue" in check.output
+
+
+def _sources(node):
+    """Every 'source' (and '..._source') a clause context names, wherever it sits."""
+    if isinstance(node, dict):
+        for k, v in node.items():
+            if (k == "source" or k.endswith("_source")) and isinstance(v, str) and v:
+                yield v
+            elif k == "sources" and isinstance(v, dict):
+                yield from (x for x in v.values() if x)
+            else:
+                yield from _sources(v)
+    elif isinstance(node, (list, tuple)):
+        for v in node:
+            yield from _sources(v)
+
+
+def test_every_clause_number_names_an_existing_result(demo_copy):
+    """The clauses' numbers come from results: each source they name is a check that ran and
+    was assessed (demo: the three zones and their chosen mortars)."""
+    from specgen.report.specification_clauses import clause_context
+    project, results = check(demo_copy)
+    named = set()
+    for zone in project.dossier.zones:
+        mix = project.mixes[results.value(zone.id, "selected_mix")]
+        ctx = clause_context(project, results, zone, mix)
+        for src in _sources(ctx):
+            code, _, subject = src.partition("/")
+            found = results.check(code, subject)
+            assert found is not None and found.status != "not_assessed", (zone.id, src)
+            named.add(code)
+    assert {"STR-MIN", "SPEC-ACCEPT", "MIX-YIELD", "SITE-GAUGE", "COMP-COLOUR"} <= named
