@@ -22,11 +22,36 @@ from specgen.project import Project, load_project
 from specgen.project.load import ARCHIVE_DIR
 
 
+def reference_names() -> tuple[set[str], set[str]]:
+    """What a review comment may be about: every check code and every page of the dossier
+    (the check and chapter registries; loading knows neither)."""
+    from specgen.checks.registry import checks
+    from specgen.report.chapters import chapters
+    return ({s.code for s in checks()},
+            {c.path.rsplit(".", 1)[0] for c in chapters()} | {"summary"})
+
+
+def _load(project_dir) -> Project:
+    return load_project(project_dir, names=reference_names())
+
+
 def check(project_dir: Path | str) -> tuple[Project, Results]:
     """Load the project and run every check and the audit (no output written)."""
-    project = load_project(project_dir)
+    project = _load(project_dir)
     archived = _load_archive(Path(project_dir), project)
     return project, evaluate(project, previous=_previous(archived[-1] if archived else None))
+
+
+def import_comments(project_dir: Path | str, review_file: Path | str,
+                    out_dir: Path | str) -> list[str]:
+    """Take a reviewer's exported comment file into the project's ``comments.yaml``.
+
+    The comments are checked against the revision they were made on, as published in
+    ``out_dir``; those already taken in are skipped.  Returns the ids given to new comments.
+    """
+    from specgen.project.review_file import take_in
+    project = _load(project_dir)
+    return take_in(project, Path(review_file), Path(out_dir))
 
 
 def _quiet(step: str) -> None:
@@ -67,7 +92,7 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str = "a4"
     stops the build before anything is written.
     """
     progress("load: reading and validating the project folder")
-    project = load_project(project_dir)
+    project = _load(project_dir)
     archived = _load_archive(Path(project_dir), project)
     out = Path(out_dir)
     stale = frozen_inputs(out, archived, rebuild or {})
@@ -147,7 +172,7 @@ def _load_archive(root: Path, current: Project) -> list[Project]:
     # a dot-folder is an issue in progress (or one a crash left), not an issued revision
     for sub in sorted(p for p in folder.iterdir() if p.is_dir() and not p.name.startswith(".")):
         try:
-            old = load_project(sub)
+            old = _load(sub)
         except InputErrors as exc:
             problems += [Problem(f"{ARCHIVE_DIR}/{sub.name}/{p.file}", p.message, p.line, p.row,
                                  p.field, p.fix) for p in exc.problems]
@@ -185,7 +210,7 @@ def issue(project_dir: Path | str, out_dir: Path | str, *, date: dt.date | None 
     the audit has blocking findings."""
     from specgen.publish import archive
     root = Path(project_dir)
-    project = load_project(root)
+    project = _load(root)
     rev = project.revision
     if rev.status == "issued":
         raise UsageError(f"{root / 'dossier.yaml'}: revision {rev.code} is already issued. Fix: "
@@ -197,7 +222,7 @@ def issue(project_dir: Path | str, out_dir: Path | str, *, date: dt.date | None 
     staging = archive.freeze(project, ARCHIVE_DIR, {
         "status": "issued", "date": when.isoformat(), "purpose": purpose or rev.purpose})
     try:
-        issued = load_project(staging)
+        issued = _load(staging)
         results = evaluate(issued, previous=_previous(archived[-1] if archived else None))
         refuse_if_findings(issued, results)
         built = _build_one(issued, results, Path(out_dir), page_size, progress)
