@@ -125,8 +125,8 @@ def _notes(s: Site) -> list[str]:
         return []
     urgent = " — a quick-setting binder: measure before site work" if s.life.value < QUICK else ""
     return [f"assumption: workable life not measured, {s.life.value / 60:g} min used "
-            f"({s.life.source}); measure it on the trial mix (EN 1015-9) and give "
-            f"workable_life in mixes.yaml{urgent}"]
+            f"({s.life.source}); measure it on the trial mix (EN 1015-9) and record it with "
+            f"the mix{urgent}"]
 
 
 def _result(mix, status, volume, steps, notes, q, msg) -> CheckResult:
