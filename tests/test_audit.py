@@ -46,16 +46,17 @@ def test_true_description_gives_no_finding(demo_copy):
 
 
 def test_new_failure_not_named_by_the_justification_needs_a_decision(demo_copy):
-    edit(demo_copy / "specification.yaml", "covers: [COMP-MOIST/Z2/M2, COMP-SALT/Z2/M2]",
-         "covers: [COMP-MOIST/Z2/M2]")
+    edit(demo_copy / "specification.yaml",
+         "covers: [COMP-MOIST/Z2/M2, DUR-TSA/Z2/M2, DUR-ETT/Z2/M2, DUR-RETAIN/Z2/M2]",
+         "covers: [COMP-MOIST/Z2/M2, DUR-TSA/Z2/M2, DUR-ETT/Z2/M2]")
     found, results = findings(demo_copy, "AUD-DECIDE")
     sel = results.check("SPEC-SELECT", "Z2")
     assert sel.status == "needs_decision"
     assert results.value("Z2", "selection_status") == "needs_decision"
     assert [f.subject for f in found] == ["Z2"]
-    # COMP-SALT on M2 in Z2 was not assessed in R2 (no salt analyses then): new since R2
-    assert "COMP-SALT/Z2/M2 (Salt load of the fabric and sulfate expansion risk, new since R2)" \
-        in found[0].message
+    # DUR-RETAIN on M2 in Z2 was not assessed in R2 (no suction of the units then): new since R2
+    assert ("DUR-RETAIN/Z2/M2 (Water retention against the suction of the units, new since R2)"
+            in found[0].message)
     assert found[0].places[1].startswith("specification.yaml, line ")
 
 
