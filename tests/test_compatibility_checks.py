@@ -303,12 +303,23 @@ BAD_DATA = [
                  'series has gaps: no result for 1.18 mm. Fix: add the missing sieves (every '
                  'sieve of the series between the coarsest and finest used).',
                  id='bad_sieve_analysis_gap'),
-    pytest.param('lab/sieves.csv', 'S2,2.36,99', 'S2,2.0,99',
-                 "lab/sieves.csv, row 8: sieve: sample 'S2' (rows 8, 9, 10, 11, 12, 13): sieve 2 "
-                 'mm is not in the standard series (0.075, 0.15, 0.3, 0.6, 1.18, 2.36, 4.75, 9.5, '
-                 '19, 37.5, 75, 150 mm). Fix: use the apertures of the standard series (ASTM E11 '
-                 '/ C125), e.g. 0.600 mm for No. 30.',
+    # a size on neither series: EN 933-2 / ISO 565 basic set and ASTM E11 apertures (from
+    # memory, both tagged so in content/data/sieve_series.yaml)
+    pytest.param('lab/sieves.csv', 'S2,2.36,99', 'S2,2.5,99',
+                 "lab/sieves.csv, row 8: sieve: sample 'S2' (rows 8, 9, 10, 11, 12, 13): sieve 2.5 "
+                 'mm is on none of the standard series (ASTM E11 test sieves: 0.075, 0.15, 0.3, '
+                 '0.6, 1.18, 2.36, 4.75, 9.5, 19, 37.5, 75, 150 mm; EN 933-2 / ISO 565 basic set '
+                 'of test sieves: 0.063, 0.125, 0.25, 0.5, 1, 2, 4, 8, 16, 31.5, 63, 125 mm). Fix: '
+                 'give apertures of one standard series: ASTM E11 (e.g. 0.600 mm for No. 30) or '
+                 'EN 933-2 / ISO 565 (e.g. 0.5 mm).',
                  id='bad_sieve_analysis_unknown_size'),
+    # 2 mm is an EN 933-2 sieve, the rest of S2 ASTM E11: one sample, one series
+    pytest.param('lab/sieves.csv', 'S2,2.36,99', 'S2,2.0,99',
+                 "lab/sieves.csv, row 8: sieve: sample 'S2' (rows 8, 9, 10, 11, 12, 13): its "
+                 'sieves come from two series: 4.75, 1.18, 0.6, 0.3, 0.15 mm on ASTM E11 test '
+                 'sieves; 2 mm on EN 933-2 / ISO 565 basic set of test sieves. Fix: sieve each '
+                 'sample on one series, or split the rows into two samples.',
+                 id='bad_sieve_analysis_two_series'),
     pytest.param('lab/sieves.csv', 'HM1-agg,0.300,28', 'HM1-agg,0.300,128',
                  'lab/sieves.csv, row 18: passing: passing must lie between 0 and 100 %; found '
                  '128 %. Fix: give the cumulative percentage passing.',

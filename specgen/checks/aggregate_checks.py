@@ -22,7 +22,8 @@ declare("fineness_modulus", "", "fineness modulus (ASTM C125) of the repair sand
 declare("grading_deviation", "%", "RMS and largest difference of cumulative % passing, repair "
         "sand − historic aggregate, on their common sieves")
 declare("grading_curves", "%", "cumulative % passing against sieve size (mm) of the repair "
-        "sand (blended) and of the historic aggregate, as the grading figure draws them")
+        "sand (blended) and of the historic aggregate, and the envelope in force, as the "
+        "grading figure draws them")
 declare("blend_proportions", "", "mass proportions of the sands that best match the historic "
         "grading (NNLS, sum 1), with the proposed ones and the RMS difference in %")
 declare("binder_aggregate_ratio", "", "binder:aggregate of the historic mortar from acid "
@@ -32,8 +33,30 @@ C125 = Basis("reference", "astmc125", "fineness modulus")
 
 
 def envelope(ctx) -> tuple[str, dict]:
-    key = ctx.project.dossier.compatibility.grading_envelope
+    """The grading envelope in force: the project's choice, else its practice's."""
+    from specgen import practice
+    key = practice.resolve(ctx.project.dossier).grading_envelope
     return key, refdata.load("grading_envelopes").data[key]
+
+
+def _series_name(key: str) -> str:
+    return refdata.load("sieve_series").data["series"][key]["title"].split(" (")[0] if key else "?"
+
+
+def _envelope_step(g: gr.Grading, cmp: gr.EnvelopeComparison, env: dict) -> Step:
+    """The passing on the envelope's own sieves, read between the analysis' sieves where the
+    two series differ (linear in the logarithm of the aperture)."""
+    inputs = tuple(Input(f"P({s * 1000:g})", f"passing {s * 1000:g} mm "
+                         + ("(read between sieves)" if i else "(measured)")
+                         + f", limits {100 * lo:g}–{100 * hi:g} %", round(100 * p, 2), "%",
+                         "interpolated" if i else "lab/sieves.csv")
+                   for s, p, lo, hi, i in zip(cmp.sieves, cmp.passing, cmp.low, cmp.high,
+                                              cmp.interpolated or (False,) * len(cmp.sieves)))
+    return Step(f"Passing on the envelope's sieves ({_series_name(env.get('series', ''))}), "
+                f"from the analysis on the {_series_name(g.series)} sieves",
+                r"P(s) = P_2 + (P_1 - P_2)\,rac{\ln(s/s_2)}{\ln(s_1/s_2)}", inputs,
+                r"s_2 \le s \le s_1\ 	ext{adjacent sieves of the analysis}",
+                round(100 * max(cmp.outside), 3), "%", "outside")
 
 
 def mix_sand(pair, project) -> tuple[gr.Grading | None, list[str], list[tuple[str, float, str]]]:
@@ -80,6 +103,12 @@ def historic_aggregate(pair, project) -> tuple[gr.Grading | None, str]:
 def _curve(g: gr.Grading) -> dict:
     return {"sieves_mm": [round(s * 1000, 6) for s in g.sieves],
             "passing": [round(100 * v, 4) for v in g.passing]}
+
+
+def _envelope_curve(env: dict) -> dict:
+    lim = sorted(env["limits"], key=lambda e: e["sieve_mm"])
+    return {"title": env["title"], "sieves_mm": [e["sieve_mm"] for e in lim],
+            "low": [e["low"] for e in lim], "high": [e["high"] for e in lim]}
 
 
 def _grading_step(name: str, g: gr.Grading, fm: float, src: str) -> Step:
@@ -134,12 +163,24 @@ def _grading_one(pair, ctx):
     msg.append(f"RMS difference from the historic aggregate {100 * dev.rms:.1f} % (at most "
                f"{rms_lim:g} %), largest {100 * dev.max_abs:.1f} %")
     limits = [(e["sieve_mm"] / 1000, e["low"] / 100, e["high"] / 100) for e in env["limits"]]
-    usable = [lim for lim in limits if gr.known_at(g, lim[0])]
+    across = bool(g.series) and g.series != env.get("series", g.series)
+    usable = [lim for lim in limits if gr.known_at(g, lim[0])
+              or (across and gr.interpolated_passing(g, lim[0]) is not None)]
     skipped = [lim[0] for lim in limits if lim not in usable]
     if skipped:
         notes.append("envelope sieves without a result, not compared: "
                      + ", ".join(f"{s * 1000:g} mm" for s in skipped))
-    cmp = gr.compare_envelope(g, usable)
+    cmp = gr.compare_envelope(g, usable, interpolate=across)
+    if across:
+        steps.append(_envelope_step(g, cmp, env))
+        notes.append(f"the envelope is written on the {_series_name(env['series'])} sieves and "
+                     f"the sand was sieved on the {_series_name(g.series)} sieves: the passing "
+                     "on each envelope sieve is read between the two nearest sieves of the "
+                     "analysis, linear in the logarithm of the aperture")
+    if hist.series and g.series and hist.series != g.series:
+        notes.append(f"the historic aggregate was sieved on the {_series_name(hist.series)} "
+                     "sieves: its passing is read on the repair sand's sieves by the same "
+                     "interpolation")
     out = [f"{s * 1000:g} mm ({100 * pp:.0f} % passing, limits {100 * lo:g}–{100 * hi:g} %)"
            for s, pp, lo, hi, d in zip(cmp.sieves, cmp.passing, cmp.low, cmp.high, cmp.outside)
            if d > 1e-9]
@@ -156,7 +197,9 @@ def _grading_one(pair, ctx):
                      limit=cc.rule_limit(ctx, "grading_rms_max", "<=", f"Δ_rms ≤ {rms_lim:g} %"),
                      quantities=[Quantity("fineness_modulus", fm, "", "fineness modulus"),
                                  Quantity("grading_curves", {"repair": _curve(g),
-                                                             "historic": _curve(hist)}, "%",
+                                                             "historic": _curve(hist),
+                                                             "envelope": _envelope_curve(env)},
+                                          "%",
                                           "cumulative % passing by sieve (mm)"),
                                  Quantity("grading_deviation",
                                           {"rms": round(100 * dev.rms, 3),

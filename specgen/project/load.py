@@ -121,6 +121,7 @@ def validate(located: Located, model: type[BaseModel], rel: str, log: ProblemLog
                     msg = f"{msg} (found {found!r})."
                 if msg.startswith("must be greater than zero"):
                     fix = _give(model, loc)
+                fix = fix or (err.get("ctx") or {}).get("fix", "").strip() or None
             log.add(rel, msg, line=line, field=_field_path(loc), fix=fix)
         return None
 
@@ -194,6 +195,8 @@ def load_project(root: Path | str) -> Project:
         setattr(project, attr, rows)
     from specgen.project.gradings import gradings
     project.gradings = gradings(project.sieves, log)
+    from specgen.project.practice_inputs import practice_problems
+    practice_problems(project, located, log)
     from specgen.project.firing import firing_series
     project.firing = firing_series(root, project.binders, log)
     from specgen.project.site_temperature import curing_temperature_problems, site_temperature

@@ -12,6 +12,7 @@ from typing import Annotated, Literal
 
 from pydantic import (AfterValidator, BaseModel, BeforeValidator, ConfigDict, Field,
                       field_validator, model_validator)
+from pydantic_core import PydanticCustomError
 
 from specgen import units
 
@@ -160,14 +161,52 @@ class StrengthSettings(Model):
         "record, e.g. '8 %': characteristic values are then also given with known variance")
 
 
+def one_of(name: str, known, what: str, where: str) -> str:
+    """``name`` if it is in ``known``; else an error whose context carries the fix."""
+    from specgen.errors import did_you_mean
+    known = list(known)
+    if name not in known:
+        raise PydanticCustomError(
+            "unknown_name", "unknown {what} '{name}' ({where})",
+            {"what": what, "name": name, "where": where,
+             "fix": (did_you_mean(name, known) or "") + " Known: " + ", ".join(known) + "."})
+    return name
+
+
+def _practice_name(value: str) -> str:
+    from specgen import practice
+    return one_of(value, practice.sets(), "practice", "content/data/practice.yaml")
+
+
+def _mortar_classes_name(value: str) -> str:
+    from specgen import practice
+    return one_of(value, [s["mortar_classes"] for s in practice.sets().values()],
+                  "mortar classification", "content/data/strength_classes.yaml")
+
+
+class PracticeSettings(Model):
+    """The practice the project follows: which standards its dossier applies."""
+
+    follows: Annotated[str, AfterValidator(_practice_name)] | None = Field(
+        None, description="european or american (content/data/practice.yaml): sieve series, "
+        "grading envelope, mortar and binder classification and test methods; default american")
+    mortar_classes: Annotated[str, AfterValidator(_mortar_classes_name)] | None = Field(
+        None, description="mortar classification of the other practice, e.g. astm_c270 "
+        "(default: the one the practice names); needs mixing_reason")
+    mixing_reason: Text = Field("", description="why the project takes an item of another "
+                                "practice (an envelope, a classification, sieve data on "
+                                "the other series); shown on the scope page")
+
+
 class CompatibilitySettings(Model):
     """Choices of the compatibility checks, declared once for the project."""
 
     salt_table: Literal["wta_2_9", "onorm_b3355"] = Field(
         "wta_2_9", description="published salt-load table (content/data/salt_load.yaml)")
-    grading_envelope: Literal["astm_c144_natural", "astm_c144_manufactured"] = Field(
-        "astm_c144_natural", description="grading envelope of the repair sand "
-        "(content/data/grading_envelopes.yaml)")
+    grading_envelope: Literal["astm_c144_natural", "astm_c144_manufactured", "en13139_0_2",
+                              "en13139_0_4"] | None = Field(
+        None, description="grading envelope of the repair sand (content/data/"
+        "grading_envelopes.yaml); default: the one the practice names")
     repair_thickness: Length | None = Field(
         None, description="thickness of the repair layer (pointing depth or render), e.g. "
         "'20 mm', for sd = μ·d")
@@ -186,6 +225,8 @@ class Dossier(Model):
     """The root file ``dossier.yaml``."""
 
     project: ProjectInfo
+    practice: PracticeSettings = Field(default_factory=PracticeSettings,
+                                       description="the practice (set of standards) followed")
     parties: list[Party] = Field(default_factory=list, description="people and roles")
     revision: Revision
     zones: list[Zone] = Field(default_factory=list, description="zones of work")

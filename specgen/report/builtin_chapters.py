@@ -45,7 +45,22 @@ def scope(env) -> dict:
     if req.max_compressive_long_term:
         reqs.append(f"long-term compressive strength at most "
                     f"{qty(req.max_compressive_long_term / 1e6, 'MPa', 3)}")
-    return {"zones": rows, "requirements": reqs}
+    return {"zones": rows, "requirements": reqs, "practice": _practice(env)}
+
+
+def _practice(env) -> dict:
+    """The set of standards the dossier follows, each test method cited."""
+    from specgen import practice, refdata
+    from specgen.checks.result import Basis
+    pr = practice.resolve(env.project.dossier)
+    envelope = refdata.load("grading_envelopes").data[pr.grading_envelope]
+    classes = refdata.load("strength_classes").data[pr.mortar_classes]["source"].split(",")[0]
+    return {"title": pr.title, "stated": pr.stated, "mixed": list(pr.mixed),
+            "reason": pr.mixing_reason, "series": practice.series_title(pr.sieve_series),
+            "envelope": envelope["title"], "mortar_classes": classes,
+            "methods": [{"what": m["what"], "clause": m.get("clause", ""),
+                         "cite": env.cite(Basis("reference", m["ref"], m.get("clause", "")))}
+                        for m in pr.test_methods]}
 
 
 @chapter("calculations.md", "Calculation sheets", 80, "calculations.md.j2")
