@@ -188,11 +188,11 @@ def test_missing_fabric_property_is_not_assessed(demo_copy):
 
 
 def test_missing_salts_not_assessed(demo_copy):
-    for old in (', sulfate: 0.31, sample: "drilled powder 0-20 mm, inner face, NML-4502"}',
-                ', sulfate: 0.42, sample: "raked-out pointing, inner face, NML-4418"}'):
+    for old in (', sulfate: "0.31 %", sample: "drilled powder 0-20 mm, inner face, NML-4502"}',
+                ', sulfate: "0.42 %", sample: "raked-out pointing, inner face, NML-4418"}'):
         _edit(demo_copy / "materials.yaml", old, "}")
-    _edit(demo_copy / "materials.yaml", "salts: {chloride: 0.12, nitrate: 0.02}", "")
-    _edit(demo_copy / "materials.yaml", ",\n     salts: {chloride: 0.08, nitrate: 0.01}", "")
+    _edit(demo_copy / "materials.yaml", 'salts: {chloride: "0.12 %", nitrate: "0.02 %"}', "")
+    _edit(demo_copy / "materials.yaml", ',\n     salts: {chloride: "0.08 %", nitrate: "0.01 %"}', "")
     text = (demo_copy / "materials.yaml").read_text()
     (demo_copy / "materials.yaml").write_text(text.replace('NML-4502 (cores from course 14)",\n     }',
                                                            'NML-4502 (cores from course 14)"}'))

@@ -225,12 +225,13 @@ def clay_check(analysis, ctx) -> CheckResult:
     clay = calcination.clay_fraction(ox, aw, "oxide_sum")
     residue = calcination.clay_fraction(ox, aw, "residue")
     rng = calcination.clay_range_check(clay.fraction, low.value, high.value)
-    water = ox.get("H2O", oxides.loss_on_ignition(ox) - ox["CO2"])
+    water = oxides.combined_water(ox)
     g = lambda k: ox.get(k, 0.0)  # noqa: E731
     steps = (
         Step("Clay fraction (oxide sum)", r"w_{clay} = S + A + F + H_{comb}",
              oxide_inputs(analysis, ox, CSAFM[1:4]) + (
-                 Input("H_comb", "combined water = LOI − CO2", round(water, 4), "%",
+                 Input("H_comb", "combined water (H2O+)" if "H2O" in ox else
+                       "combined water = LOI − CO2 − moisture − organic matter", round(water, 4), "%",
                        source(analysis)),),
              rf"w_{{clay}} = {g('SiO2'):.2f} + {g('Al2O3'):.2f} + {g('Fe2O3'):.2f} + "
              rf"{water:.2f}", round(clay.fraction, 4), "%", "w_clay"),

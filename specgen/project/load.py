@@ -73,6 +73,7 @@ class Project:
 
 
 def _field_path(loc: tuple) -> str:
+    loc = tuple(p for p in loc if p != "[key]")  # a dict key's own error: the key is the field
     return ".".join(str(p) if not isinstance(p, int) else f"[{p}]" for p in loc).replace(".[", "[")
 
 
