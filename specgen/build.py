@@ -58,12 +58,44 @@ def _build_one(project: Project, out: Path, page_size: str, progress) -> Path:
     from specgen.report.render import render
     progress("check: running the checks")
     results = evaluate(project)
+    refuse_unconfirmed(project, results)
     history = history_for(out, project, results)
     progress("render: pages, figures and calculation sheets")
     pages = render(project, results, history)
     _fix_dates(project.revision.date)
     return publish(project, results, pages, out, page_size=page_size, progress=progress,
                    changes=history.changes)
+
+
+def refuse_unconfirmed(project: Project, results: Results) -> None:
+    """A revision for construction may not rest on a value still tagged ``memory``.
+
+    Raises :class:`InputErrors` (exit 2, nothing written) naming the revision's purpose in
+    dossier.yaml and every such value with the checks that used it.
+    """
+    values = results.unconfirmed()
+    if project.revision.purpose != "for_construction" or not values:
+        return
+    from specgen.errors import ProblemLog
+    from specgen.project.files import read_yaml
+    log = ProblemLog()
+    located = read_yaml(Path(project.root) / "dossier.yaml", "dossier.yaml", ProblemLog())
+    log.add("dossier.yaml", f"revision {project.revision.code} is for construction but rests on "
+            f"{len(values)} value(s) still tagged memory (recalled, not read in their source).",
+            line=located.line_of(("revision", "purpose")) if located else None,
+            field="revision.purpose",
+            fix="confirm each value listed below against its source, or issue the revision "
+            "for approval until then (purpose: for_approval).")
+    for v in values:
+        users = v["used_by"]
+        log.add(f"content/data/{v['table']}.yaml", f"tagged memory (source named: {v['source']}); "
+                f"used by {', '.join(users[:3])}" + (f" and {len(users) - 3} more" if
+                                                     len(users) > 3 else "") + ".",
+                field=v["path"] or "(the whole table)",
+                fix="read the value in the source and cite its clause or table (then remove the "
+                "tag), or declare it common practice with its range and reason, or a project "
+                "requirement (rule_overrides with a justification).")
+    log.raise_if_any()
 
 
 def _load_archive(root: Path, current: Project) -> list[Project]:

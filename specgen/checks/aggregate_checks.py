@@ -128,7 +128,7 @@ def grading_check(zone, ctx):
 
 def _grading_one(pair, ctx):
     code, title, p = "COMP-GRAD", "Aggregate grading against the historic aggregate", ctx.project
-    fm_sieves = refdata.load("sieve_series").data["fineness_modulus"]
+    fm_sieves = refdata.load("sieve_series").data["series"]["astm_e11"]["fineness_modulus"]
     g, missing, fractions = mix_sand(pair, p)
     hist, why = historic_aggregate(pair, p)
     if why:
@@ -189,7 +189,7 @@ def _grading_one(pair, ctx):
                else "outside the envelope at " + "; ".join(out))
     if "repair" in fm and "historic" in fm:
         msg.insert(0, f"FM {fm['repair']:.2f} (historic {fm['historic']:.2f})")
-    notes.append(f"envelope: {env['title']} — {env['source']} ({env.get('tag', '')})")
+    notes.append(f"envelope: {env['title']} — {refdata.shown(env['source'], env.get('tag', ''))}")
     return cc.result(code, title, pair, worst(statuses), round(100 * dev.rms, 3), "%",
                      [C125, Basis("reference", env["ref"], env["source"]),
                       cc.rule_basis(ctx, "grading_rms_max")], "; ".join(msg), steps=steps,

@@ -293,8 +293,8 @@ def class_check(mix, ctx):
     return CheckResult(
         code="STR-CLASS", title=title, subject=mix.id, subject_kind="mix", status="info",
         value=round(m / MPA, 4), unit="MPa", basis=(basis,), steps=(step,), message=text,
-        notes=tuple(cmp.lines) + (f"{standard} table: {cmp.source}"
-                                  + (f" ({table['tag']})" if table.get("tag") else ""),
+        notes=tuple(cmp.lines) + (f"{standard} table: "
+                                  + refdata.shown(cmp.source, table.get("tag", "")),
                                   _binder_class_note(mix, ctx.project)),
         quantities=(Quantity("strength_classes", {"standard": standard, "table": key,
                                                   "classes": list(cmp.matches)}, "",
