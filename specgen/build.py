@@ -32,9 +32,12 @@ def _quiet(step: str) -> None:
     pass
 
 
-def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str = "a4",
+def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None = None,
           progress: Callable[[str], None] = _quiet) -> Path:
-    """Build the project's revision (and missing archived ones) into ``out_dir/<revision>/``."""
+    """Build the project's revision (and missing archived ones) into ``out_dir/<revision>/``.
+
+    ``page_size`` (``a4`` or ``letter``) overrides the paper of the practice each revision
+    states (A4 when a revision states no practice, as before practices were stated)."""
     progress("load: reading and validating the project folder")
     project = load_project(project_dir)
     archived = _load_archive(Path(project_dir), project)
@@ -52,8 +55,18 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str = "a4"
     return built
 
 
-def _build_one(project: Project, out: Path, page_size: str, progress) -> Path:
+def _paper(project: Project, page_size: str | None) -> str:
+    """The paper of the PDF: asked for, else the stated practice's, else A4."""
+    from specgen import practice
+    if page_size:
+        return page_size
+    p = practice.resolve(project.dossier)
+    return p.paper.lower() if p.stated else "a4"
+
+
+def _build_one(project: Project, out: Path, page_size: str | None, progress) -> Path:
     from specgen.publish import publish
+    page_size = _paper(project, page_size)
     from specgen.publish.history import history_for
     from specgen.report.render import render
     progress("check: running the checks")

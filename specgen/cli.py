@@ -67,9 +67,11 @@ def check_cmd(directory: Path, fmt: str) -> None:
 @click.argument("directory", type=click.Path(path_type=Path))
 @click.option("--out", "out", type=click.Path(file_okay=False, path_type=Path), default=None,
               help="output folder (default: DIRECTORY/../<folder name>-site)")
-@click.option("--page-size", type=click.Choice(["a4", "letter"]), default="a4", show_default=True)
+@click.option("--page-size", type=click.Choice(["a4", "letter"]), default=None,
+              help="paper of the PDF (default: the paper of the practice the project states "
+              "in dossier.yaml, A4 when it states none)")
 @click.option("--quiet", is_flag=True, help="no progress display")
-def build(directory: Path, out: Path | None, page_size: str, quiet: bool) -> None:
+def build(directory: Path, out: Path | None, page_size: str | None, quiet: bool) -> None:
     """Build the site and PDF of the project's revision into OUT/<revision>/."""
     from specgen.build import build as run_build
     out = out or directory.resolve().parent / f"{directory.resolve().name}-site"

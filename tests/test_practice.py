@@ -31,7 +31,12 @@ def _problems(project) -> str:
 
 
 def _follow(project, text: str) -> None:
-    _edit(project / "dossier.yaml", "compatibility:\n", text + "compatibility:\n")
+    """Replace the demo's practice block (European, mixing stated) with ``text``."""
+    path = project / "dossier.yaml"
+    doc = path.read_text(encoding="utf-8")
+    start = doc.index("\npractice:\n") + 1
+    end = doc.index("\n\n", start) + 1
+    path.write_text(doc[:start] + text + doc[end:], encoding="utf-8")
 
 
 # EN 933-2 / ISO 565 basic set (R 20/3 principal sizes), mm (from memory)
@@ -130,9 +135,7 @@ def test_astm_sieves_on_an_en_envelope_by_interpolation_when_said(demo_copy):
 
 
 def test_en_1015_18_two_point_coefficient(demo_copy):
-    _follow(demo_copy, "practice:\n  follows: european\n  mixing_reason: the laboratory sieved "
-            "on its ASTM E11 sieves\n")
-    _, r = check(demo_copy)
+    _, r = check(demo_copy)       # the demo follows European practice
     caps = r.quantities["Z1/M2"]["capillary_coefficient"].value
     # demo lab/capillary.csv, M2: 1.04 kg/m2 at 10 min, 2.94 kg/m2 at 90 min:
     # C = (2.94 - 1.04)/(sqrt(90) - sqrt(10)) = 0.30041 kg/(m2 min^0.5)
@@ -144,19 +147,32 @@ def test_en_1015_18_two_point_coefficient(demo_copy):
     assert value == pytest.approx(0.1 * (2.94 - 1.04) * 1.6, rel=0.015)
 
 
+def test_american_practice_fits_the_slope_over_all_readings(demo_copy):
+    from scipy import stats
+    _follow(demo_copy, "practice:\n  follows: american\n")
+    _, r = check(demo_copy)
+    t = np.array([5, 10, 15, 30, 60, 90]) * 60.0                # demo lab/capillary.csv, M2
+    w = np.array([0.78, 1.04, 1.27, 1.74, 2.43, 2.94])
+    ref = stats.linregress(np.sqrt(t), w).slope * math.sqrt(60)  # scipy.stats, kg/(m²·min^0.5)
+    assert r.quantities["Z2/M2"]["capillary_coefficient"].value["repair"] == pytest.approx(
+        ref, abs=1e-4)
+    # and the mortar is classed by ASTM C270: 3.333 MPa meets type O (2.4 MPa), not N (5.2)
+    assert r.quantities["M2"]["strength_classes"].value["classes"] == ["O"]
+
+
 BAD_PRACTICE = [
     pytest.param("practice:\n  follows: europen\n",
-                 "dossier.yaml, line 72: practice.follows: unknown practice 'europen' "
+                 "dossier.yaml, line 74: practice.follows: unknown practice 'europen' "
                  "(content/data/practice.yaml). Fix: did you mean 'european'? Known: european, "
                  "american.", id="unknown_practice"),
     pytest.param("practice:\n  follows: european\n",
-                 "dossier.yaml, line 75: compatibility.grading_envelope: the grading envelope "
+                 "dossier.yaml, line 78: compatibility.grading_envelope: the grading envelope "
                  "'astm_c144_natural' belongs to American practice but the project follows "
                  "European practice. Fix: choose an envelope of European practice (en13139_0_2, "
                  "en13139_0_4), or say why the project mixes the two in practice.mixing_reason.",
                  id="envelope_of_the_other_practice"),
     pytest.param("practice:\n  follows: american\n  mortar_classes: en998_2\n",
-                 "dossier.yaml, line 73: practice.mortar_classes: the mortar classification "
+                 "dossier.yaml, line 75: practice.mortar_classes: the mortar classification "
                  "'en998_2' belongs to European practice but the project follows American "
                  "practice. Fix: remove the key (the practice names its own), or say why the "
                  "project mixes the two in practice.mixing_reason.",
@@ -173,7 +189,7 @@ def test_bad_practice_is_refused_with_its_location(demo_copy, text, message):
 def test_sieve_data_of_the_other_practice_without_saying_so(demo_copy):
     _follow(demo_copy, "practice:\n  follows: european\n")
     _edit(demo_copy / "dossier.yaml", "  grading_envelope: astm_c144_natural\n", "")
-    assert ("dossier.yaml, line 72: practice.follows: the grading envelope 'en13139_0_4' is "
+    assert ("dossier.yaml, line 74: practice.follows: the grading envelope 'en13139_0_4' is "
             "written on the EN 933-2 / ISO 565 basic set of test sieves, but "
             "lab/sieves.csv gives 'HM1-agg' (row 14), 'S1' (row 2), 'S2' (row 8) on the "
             "ASTM E11 test sieves.") in _problems(demo_copy)

@@ -230,25 +230,12 @@ def test_lab_curing_converted_to_equivalent_age(demo_copy):
 def test_classes_are_descriptive(demo_copy):
     _, r = check(demo_copy)
     c = _by(r)[("STR-CLASS", "M2")]
-    # M2 28-d mean (3.49 + 3.10 + 3.41)/3 = 3.333 MPa; the demo follows American practice:
-    # ASTM C270 type O minimum 2.4 MPa, type N 5.2 MPa (ASTM C270 property specification)
+    # M2 28-d mean (3.49 + 3.10 + 3.41)/3 = 3.333 MPa; the demo follows European practice:
+    # EN 998-2 class Mx needs a mean of at least x N/mm2 at 28 d (from memory): M2.5, not M5
     assert c.status == "info" and c.value == pytest.approx(3.3333, abs=1e-4)
-    assert r.quantities["M2"]["strength_classes"].value == {
-        "standard": "ASTM C270", "table": "astm_c270", "classes": ["O"]}
-    assert {b.ref for b in c.basis} == {"astmc270"}
-    # a mix is never placed in the EN 459-1 binder classes; the binder's declared class is named
-    assert any(n.startswith("EN 459-1 strength classes (NHL 2, 3.5, 5 …) belong to the binder")
-               for n in c.notes)
-
-
-def test_european_practice_classes_the_mortar_by_en_998_2(demo_copy):
-    _edit(demo_copy / "dossier.yaml", "compatibility:\n",
-          "practice:\n  follows: european\n  mixing_reason: laboratory sieved on the ASTM "
-          "series; envelope kept from R1\ncompatibility:\n")
-    _, r = check(demo_copy)
-    c = _by(r)[("STR-CLASS", "M2")]
-    # EN 998-2: class Mx needs a mean of at least x N/mm2 at 28 d (from memory): 3.333 MPa
-    # meets M2.5 (2.5) and not M5 (5.0)
     assert r.quantities["M2"]["strength_classes"].value == {
         "standard": "EN 998-2", "table": "en998_2", "classes": ["M2.5"]}
     assert {b.ref for b in c.basis} == {"en998_2"}
+    # a mix is never placed in the EN 459-1 binder classes; the binder's declared class is named
+    assert any(n.startswith("EN 459-1 strength classes (NHL 2, 3.5, 5 …) belong to the binder")
+               for n in c.notes)

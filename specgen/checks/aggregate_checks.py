@@ -27,7 +27,8 @@ declare("grading_curves", "%", "cumulative % passing against sieve size (mm) of 
 declare("blend_proportions", "", "mass proportions of the sands that best match the historic "
         "grading (NNLS, sum 1), with the proposed ones and the RMS difference in %")
 declare("binder_aggregate_ratio", "", "binder:aggregate of the historic mortar from acid "
-        "digestion (by mass, by volume) and of the mix (by volume)")
+        "digestion (by mass as found and net of the binder's loss on ignition, by volume) and "
+        "of the mix (by volume)")
 
 C125 = Basis("reference", "astmc125", "fineness modulus")
 
@@ -264,16 +265,29 @@ def _ba_one(pair, ctx):
             cc.fabric_names(pair)[1] if h is None else
             f"historic mortar {h.id} has no acid_digestion results (materials.yaml)"])
     d = h.acid_digestion
+    loi, loi_src = _binder_loss(h, ctx.project)
     r = gr.binder_aggregate(d.sample_mass, d.residue_mass, d.binder_bulk_density,
-                            d.aggregate_bulk_density)
+                            d.aggregate_bulk_density,
+                            None if loi is None else loi / 100)
     src = f"materials.yaml {h.id}.acid_digestion"
     inputs = (Input("m_s", "dry mortar sample", round(d.sample_mass * 1000, 3), "g", src),
               Input("m_r", "acid-insoluble residue (aggregate)", round(d.residue_mass * 1000, 3), "g", src))
     steps = [Step("Binder:aggregate by mass", r"B{:}A_m = \frac{m_s - m_r}{m_r}", inputs,
                   rf"B{{:}}A_m = \frac{{{d.sample_mass * 1000:g} - {d.residue_mass * 1000:g}}}"
                   rf"{{{d.residue_mass * 1000:g}}} = {r.by_mass:.4f}", round(r.by_mass, 5), "", "B:A_m")]
-    notes = ["the acid-soluble loss is counted as binder as found (carbonated); fines dissolved "
-             "from a calcareous aggregate would be counted as binder"]
+    notes = ["fines dissolved from a calcareous aggregate would be counted as binder"]
+    if r.by_mass_loss_free is not None:
+        steps.append(Step("Binder:aggregate net of the binder's loss on ignition",
+                          r"B{:}A_{m,0} = \frac{(m_s - m_r)(1 - LOI/100)}{m_r}",
+                          inputs + (Input("LOI", "loss on ignition of the binder fraction "
+                                          "(its CO2 and bound water are not binder)", loi, "%",
+                                          loi_src),),
+                          rf"B{{:}}A_{{m,0}} = {r.by_mass:.4f} \times (1 - {loi:g}/100) = "
+                          rf"{r.by_mass_loss_free:.4f}", round(r.by_mass_loss_free, 5), "",
+                          "B:A_m0"))
+    else:
+        notes.append(f"not corrected for loss on ignition: {loi_src}; the acid-soluble loss is "
+                     "counted as binder as found (carbonated, with its CO2 and bound water)")
     if r.by_volume is not None:
         steps.append(Step("Binder:aggregate by loose volume",
                           r"B{:}A_V = \frac{(m_s - m_r)/\rho_b}{m_r/\rho_a}",
@@ -285,6 +299,8 @@ def _ba_one(pair, ctx):
     else:
         notes.append("by volume not computed: binder_bulk_density and aggregate_bulk_density not both given")
     q = {"historic_by_mass": round(r.by_mass, 4),
+         "historic_by_mass_loss_free": None if r.by_mass_loss_free is None
+         else round(r.by_mass_loss_free, 4),
          "historic_by_volume": None if r.by_volume is None else round(r.by_volume, 4)}
     mix_txt = ""
     if pair.mix is not None and pair.mix.sands:
@@ -292,12 +308,27 @@ def _ba_one(pair, ctx):
         q["mix_by_volume"] = round(b / s, 4)
         mix_txt = f"; mix {pair.mix_id} 1 : {s / b:.2g} by volume (B:A {b / s:.3f})"
     vol = f", 1 : {1 / r.by_volume:.2g} by volume" if r.by_volume else ""
+    if r.by_mass_loss_free is not None:
+        vol = (f" as found, 1 : {1 / r.by_mass_loss_free:.2g} net of its loss on ignition "
+               f"({loi:g} %)") + vol
     return cc.result(code, title, pair, "info", round(r.by_mass, 4), "",
                      [Basis("common practice", note="acid digestion of a lime or natural-cement "
                             "mortar with a siliceous aggregate")],
                      f"historic mortar {h.id}: 1 : {1 / r.by_mass:.2g} by mass{vol}{mix_txt}",
                      steps=steps, notes=notes,
                      quantities=[Quantity("binder_aggregate_ratio", q, "", "binder:aggregate")])
+
+
+def _binder_loss(h, project) -> tuple[float | None, str]:
+    """Loss on ignition (mass %) of the historic mortar's binder fraction, and its source."""
+    from specgen.science import oxides
+    a = project.analyses.get(h.binder_analysis) if h.binder_analysis else None
+    if a is None:
+        return None, f"historic mortar {h.id} names no binder_analysis with a loss on ignition"
+    loi = oxides.loss_on_ignition(a.mass_percent)
+    if loi <= 0:
+        return None, f"analysis {a.id} gives no loss on ignition"
+    return loi, f"analysis {a.id}" + (f" ({a.laboratory})" if a.laboratory else "")
 
 
 __all__ = ["grading_check", "blend_check", "binder_aggregate_check"]

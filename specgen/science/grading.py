@@ -292,22 +292,34 @@ def volume_to_mass_fractions(parts: Sequence[float], bulk_densities: Sequence[fl
 class BinderAggregate:
     """Binder:aggregate of a historic mortar from acid digestion (aggregate = 1)."""
 
-    binder_mass: float                  # kg
+    binder_mass: float                  # kg, as found (acid-soluble loss)
     aggregate_mass: float               # kg
-    by_mass: float                      # binder / aggregate, by mass
+    by_mass: float                      # binder / aggregate, by mass (binder as found)
     by_volume: float | None             # binder / aggregate, by loose volume
+    binder_loss: float = 0.0            # fraction of the binder as found lost on ignition
+    by_mass_loss_free: float | None = None  # binder net of its CO2 and bound water
 
 
 def binder_aggregate(sample_mass: float, residue_mass: float,
                      binder_bulk_density: float | None = None,
-                     aggregate_bulk_density: float | None = None) -> BinderAggregate:
-    """Acid digestion: residue = aggregate, loss = binder; ratio by mass and by volume."""
+                     aggregate_bulk_density: float | None = None,
+                     binder_loss: float | None = None) -> BinderAggregate:
+    """Acid digestion: residue = aggregate, loss = binder; ratio by mass and by volume.
+
+    ``binder_loss`` (0–1, the loss on ignition of the binder fraction's analysis) removes the
+    CO2 taken up in carbonation and the bound water, which are not binder as batched:
+    binder = (m_s − m_r)·(1 − LOI).  The ratio by volume then uses that binder mass.
+    """
     if sample_mass <= 0 or residue_mass <= 0:
         raise GradingInputError("sample and residue masses must be greater than zero")
     if residue_mass >= sample_mass:
         raise GradingInputError("the insoluble residue must be lighter than the sample")
+    if binder_loss is not None and not 0 <= binder_loss < 1:
+        raise GradingInputError("the binder's loss on ignition must lie in 0–100 %")
     binder = sample_mass - residue_mass
+    net = binder * (1 - binder_loss) if binder_loss is not None else binder
     vol = None
     if binder_bulk_density and aggregate_bulk_density:
-        vol = (binder / binder_bulk_density) / (residue_mass / aggregate_bulk_density)
-    return BinderAggregate(binder, residue_mass, binder / residue_mass, vol)
+        vol = (net / binder_bulk_density) / (residue_mass / aggregate_bulk_density)
+    return BinderAggregate(binder, residue_mass, binder / residue_mass, vol, binder_loss or 0.0,
+                           net / residue_mass if binder_loss is not None else None)
