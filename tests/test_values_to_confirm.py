@@ -88,3 +88,16 @@ def test_every_data_table_declares_its_values():
         assert table.tag in allowed, path.name
         for m in re.finditer(r"^\s*tag: *(.*)$", path.read_text(encoding="utf-8"), re.M):
             assert m.group(1).strip().strip('"') in allowed, (path.name, m.group(0))
+
+
+def test_every_rule_declares_its_basis():
+    """A rule is a published value (bibliography key and clause), a rule of thumb with its
+    reason (and range where the trade gives one), or a project requirement."""
+    from specgen.checks.rules import builtin_rules
+    from specgen.report.references import library
+    for key, rule in builtin_rules().items():
+        b = rule.basis
+        if b.kind == "reference":
+            assert b.ref in library() and b.clause, key
+        elif b.kind == "common practice":
+            assert len(b.note) > 20, key

@@ -82,5 +82,10 @@ def inputs(env) -> dict:
 
 @chapter("references.md", "References", 90, "references.md.j2")
 def references(env) -> dict:
-    # Rendered last so that every citation made by earlier chapters is numbered.
+    # Rendered last so that every citation made by earlier chapters is numbered; a standard
+    # named in the text of a page (e.g. "EN 1015-11" in a clause) is cited too, so the list
+    # holds every standard the dossier names that the bibliography knows.
+    from specgen.report.references import named_in
+    for key in named_in(env.pageset.pages.values()):
+        env.citations.cite(key)
     return {"entries": env.citations.listing()}
