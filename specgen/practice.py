@@ -55,7 +55,15 @@ def series_title(key: str) -> str:
 
 
 def resolve(dossier) -> Practice:
-    """The practice of a validated ``schema.Dossier`` (names already checked on loading)."""
+    """The practice of a validated ``schema.Dossier`` (names already checked on loading).
+
+    Resolving reads which tables the set names, not their values: nothing is recorded as
+    used here (the checks record the values they then read)."""
+    with refdata.unrecorded():
+        return _resolve(dossier)
+
+
+def _resolve(dossier) -> Practice:
     chosen = dossier.practice
     key = chosen.follows or DEFAULT
     s = sets()[key]

@@ -72,6 +72,17 @@ def recording():
         _RECORDER.reset(token)
 
 
+@contextlib.contextmanager
+def unrecorded():
+    """Read tables without noting them: for choices (which envelope, which set) that name a
+    table entry without resting a value on it."""
+    token = _RECORDER.set(None)
+    try:
+        yield
+    finally:
+        _RECORDER.reset(token)
+
+
 def _note(use: Use) -> None:
     uses = _RECORDER.get()
     if uses is not None:

@@ -53,8 +53,10 @@ def _practice(env) -> dict:
     from specgen import practice, refdata
     from specgen.checks.result import Basis
     pr = practice.resolve(env.project.dossier)
-    envelope = refdata.load("grading_envelopes").data[pr.grading_envelope]
-    classes = refdata.load("strength_classes").data[pr.mortar_classes]["source"].split(",")[0]
+    with refdata.unrecorded():
+        envelope = refdata.load("grading_envelopes").data[pr.grading_envelope]
+    with refdata.unrecorded():
+        classes = refdata.load("strength_classes").data[pr.mortar_classes]["title"]
     return {"title": pr.title, "stated": pr.stated, "mixed": list(pr.mixed),
             "reason": pr.mixing_reason, "series": practice.series_title(pr.sieve_series),
             "envelope": envelope["title"], "mortar_classes": classes,
