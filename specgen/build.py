@@ -22,10 +22,35 @@ from specgen.project import Project, load_project
 from specgen.project.load import ARCHIVE_DIR
 
 
+def reference_names() -> tuple[set[str], set[str]]:
+    """What a review comment may be about: every check code and every page of the dossier
+    (the check and chapter registries; loading knows neither)."""
+    from specgen.checks.registry import checks
+    from specgen.report.chapters import chapters
+    return ({s.code for s in checks()},
+            {c.path.rsplit(".", 1)[0] for c in chapters()} | {"summary"})
+
+
+def _load(project_dir) -> Project:
+    return load_project(project_dir, names=reference_names())
+
+
 def check(project_dir: Path | str) -> tuple[Project, Results]:
     """Load the project and run every check (no output written)."""
-    project = load_project(project_dir)
+    project = _load(project_dir)
     return project, evaluate(project)
+
+
+def import_comments(project_dir: Path | str, review_file: Path | str,
+                    out_dir: Path | str) -> list[str]:
+    """Take a reviewer's exported comment file into the project's ``comments.yaml``.
+
+    The comments are checked against the revision they were made on, as published in
+    ``out_dir``; those already taken in are skipped.  Returns the ids given to new comments.
+    """
+    from specgen.project.review_file import take_in
+    project = _load(project_dir)
+    return take_in(project, Path(review_file), Path(out_dir))
 
 
 def _quiet(step: str) -> None:
@@ -39,7 +64,7 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None
     ``page_size`` (``a4`` or ``letter``) overrides the paper of the practice each revision
     states (A4 when a revision states no practice, as before practices were stated)."""
     progress("load: reading and validating the project folder")
-    project = load_project(project_dir)
+    project = _load(project_dir)
     archived = _load_archive(Path(project_dir), project)
     out = Path(out_dir)
     from specgen.report import cache
@@ -119,7 +144,7 @@ def _load_archive(root: Path, current: Project) -> list[Project]:
     problems, found = [], []
     for sub in sorted(p for p in folder.iterdir() if p.is_dir()):
         try:
-            old = load_project(sub)
+            old = _load(sub)
         except InputErrors as exc:
             problems += [Problem(f"{ARCHIVE_DIR}/{sub.name}/{p.file}", p.message, p.line, p.row,
                                  p.field, p.fix) for p in exc.problems]

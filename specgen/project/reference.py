@@ -90,6 +90,7 @@ def markdown() -> str:
                   "|---|---|---|---|"]
         lines += [f"| `{c.name}` | {c.kind or ('one of ' + ', '.join(c.choices) if c.choices else 'text')} "
                   f"| {'yes' if c.required else 'no'} | {c.description} |" for c in cols] + [""]
+    lines += _review_file()
     return "\n".join(lines)
 
 
@@ -108,3 +109,18 @@ def _constituents() -> list[str]:
         also = ", ".join(f"`{n}`" for n in c.get("synonyms", [])) or "—"
         out.append(f"| `{key}` | {c['name']} | {kinds[c['kind']]} | {also} |")
     return out + [""]
+
+
+def _review_file() -> list[str]:
+    """The reviewer's comment file: not part of the project folder, taken in by
+    ``specgen import-comments PROJECT FILE``."""
+    from specgen.project.review_file import FORMAT, ReviewFile
+    lines = ["## Reviewer's comment file (exported from the site)", "",
+             f"JSON, format `{FORMAT}`, written by the site's Review comments panel and taken into "
+             "`comments.yaml` by `specgen import-comments PROJECT FILE --out OUT` (the comments "
+             "are checked against the revision they were made on, published in OUT; a second "
+             "import of the same file adds nothing).", "",
+             "| key | type / unit | default | meaning |", "|---|---|---|---|"]
+    rows: list = []
+    _rows(ReviewFile, "", rows)
+    return lines + [f"| `{k}` | {t} | {d} | {m} |" for k, t, d, m in rows] + [""]
