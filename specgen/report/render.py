@@ -14,10 +14,11 @@ from markupsafe import Markup, escape
 
 from specgen.refdata import CONTENT_DIR
 from specgen.report.chapters import badge, chapters, sheet_anchor
-from specgen.report.fmt import as_given, num, qty
+from specgen.report.fmt import as_given, num, qty, unit_symbol
 from specgen.report.mathsvg import MathAssets
 from specgen.report.pageset import PageSet
 from specgen.report.references import Citations
+from specgen.report.wording import reader, rule_label, symbol
 
 
 def template_env(project_root) -> jinja2.Environment:
@@ -77,19 +78,25 @@ class RenderEnv:
 
     def sheet(self, c) -> dict:
         """Context of one calculation sheet, straight from the check result."""
-        steps = [{"title": s.title, "formula": self.math.img(s.formula),
+        # the sheet keeps four significant figures: enough to recompute by hand
+        steps = [{"title": reader(s.title), "formula": self.math.img(s.formula),
                   "substituted": self.math.img(s.substituted),
-                  "result": qty(s.result, s.unit), "symbol": s.symbol,
-                  "inputs": [{"symbol": i.symbol, "name": i.name, "value": as_given(i.value),
-                              "unit": i.unit or "—", "source": i.source} for i in s.inputs]}
+                  "result": qty(s.result, s.unit, 4), "symbol": symbol(s.symbol),
+                  "inputs": [{"symbol": symbol(i.symbol), "name": reader(i.name),
+                              "value": as_given(i.value) if not isinstance(i.value, str)
+                              else reader(i.value), "unit": unit_symbol(i.unit) or "—",
+                              "source": reader(i.source)} for i in s.inputs]}
                  for s in c.steps]
-        bases = [{"text": b.text(), "cite": self.cite(b), "kind": b.kind} for b in c.basis]
+        bases = [{"text": reader(b.text()), "cite": self.cite(b), "kind": b.kind}
+                 for b in c.basis]
         limit = None
         if c.limit:
-            limit = {"text": c.limit.text, "rule": c.limit.rule, "overridden": c.limit.overridden}
+            limit = {"text": reader(c.limit.text), "rule": rule_label(c.limit.rule),
+                     "overridden": c.limit.overridden}
         return {"anchor": sheet_anchor(c), "code": c.code, "title": c.title, "subject": c.subject,
-                "badge": badge(c.status), "message": c.message, "steps": steps, "bases": bases,
-                "limit": limit, "value": qty(c.value, c.unit), "notes": list(c.notes)}
+                "badge": badge(c.status), "message": reader(c.message), "steps": steps,
+                "bases": bases, "limit": limit, "value": qty(c.value, c.unit, 4),
+                "notes": [reader(n) for n in c.notes]}
 
 
 def render(project, results, history=None) -> PageSet:
