@@ -211,7 +211,7 @@ def _render_works(project, results):
 
 def test_works_page_and_cards_from_the_demo(demo):
     text, cards, pages = _render_works(*demo)
-    assert '<a href="./WEP-2026-R3-quantities.csv">WEP-2026-R3-quantities.csv</a>' in text
+    assert '<a href="./WEP-2026-R3-quantities.csv">quantities schedule (spreadsheet, CSV)</a>' in text
     assert "| NC1: bags of 25 kg | bags | 18 | 13 | — |" in text
     assert "(calculations.md#calc-works-qty-z1)" in text
     assert list(pages.downloads) == ["WEP-2026-R3-quantities.csv"]

@@ -21,17 +21,28 @@ class ChapterSpec:
     template: str
     fn: Callable
     in_print: bool = True
+    volume: str = "main"  # "main" (the report) or "appendix" (register, sheets, listings)
 
 
 _CHAPTERS: dict[str, ChapterSpec] = {}
 
 
-def chapter(path: str, title: str, order: int, template: str, in_print: bool = True):
-    """Decorator registering a chapter; two chapters may not claim one path."""
+VOLUMES = ("main", "appendix")
+
+
+def chapter(path: str, title: str, order: int, template: str, in_print: bool = True,
+            volume: str = "main"):
+    """Decorator registering a chapter; two chapters may not claim one path.
+
+    ``volume`` places it in the report (``main``) or in the appendices (``appendix``):
+    the site's navigation and the PDF's two volumes follow it."""
+    if volume not in VOLUMES:
+        raise ValueError(f"chapter '{path}': volume must be one of {VOLUMES}")
+
     def deco(fn):
         if path in _CHAPTERS:
             raise ValueError(f"chapter path '{path}' is already registered")
-        _CHAPTERS[path] = ChapterSpec(path, title, order, template, fn, in_print)
+        _CHAPTERS[path] = ChapterSpec(path, title, order, template, fn, in_print, volume)
         return fn
     return deco
 

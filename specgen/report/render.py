@@ -47,6 +47,7 @@ class RenderEnv:
     citations: Citations = field(default_factory=Citations)
     figures: list = field(default_factory=list)
     tables: int = 0
+    number: str = ""  # the number of the chapter being prepared ("7"; "B" in the appendix)
 
     @property
     def rules_overridden(self) -> list:
@@ -111,14 +112,36 @@ def render(project, results, history=None) -> PageSet:
     jenv.globals["table"] = env.table
     base = {"project": project.dossier.project, "revision": project.revision,
             "narrative": {}}
+    numbers = chapter_numbers(chapters())
     for spec in chapters():
-        for path, title, made in _pages_of(spec, spec.fn(env)):
-            ctx = dict(base, **made, title=title)
+        env.number = numbers.get(spec.path, "")
+        made = _pages_of(spec, spec.fn(env))
+        for i, (path, title, ctx) in enumerate(made, start=1):
+            if env.number:  # a family of pages is numbered within its chapter: 6.1, 6.2 …
+                title = f"{env.number}.{i} {title}" if len(made) > 1 or path != spec.path \
+                    else f"{env.number} {title}"
+            ctx = dict(base, **ctx, title=title)
             stem = path.rsplit(".", 1)[0]
             ctx["narrative"] = _narrative_for(project, "introduction" if stem == "index" else stem)
             text = jenv.get_template(spec.template).render(**ctx)
-            pageset.add_page(path, title, text)
+            pageset.add_page(path, title, text, volume=spec.volume)
     return pageset
+
+
+def chapter_numbers(specs) -> dict[str, str]:
+    """The dossier's own section numbers: the report's chapters 1, 2, 3 … after the
+    summary (which stands before them unnumbered), the appendices A, B, C …"""
+    out, main, appendix = {}, 0, 0
+    for spec in specs:
+        if spec.path == "index.md":
+            continue
+        if spec.volume == "appendix":
+            out[spec.path] = chr(ord("A") + appendix)
+            appendix += 1
+        else:
+            main += 1
+            out[spec.path] = str(main)
+    return out
 
 
 def _pages_of(spec, made) -> list[tuple[str, str, dict]]:

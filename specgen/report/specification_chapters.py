@@ -46,6 +46,9 @@ def specification(env) -> dict:
         if r.value(z.id, "selected_mix"):
             chosen[z.id] = p.mixes[r.value(z.id, "selected_mix")]
             clauses[z.id] = clause_context(p, r, z, chosen[z.id])
+            # clauses numbered within the dossier's sections: chapter.zone.clause (9.2.3)
+            clauses[z.id]["number"] = f"{env.number}.{len(clauses)}" if env.number \
+                else str(len(clauses))
     zones = [_zone(env, z, jenv, clauses.get(z.id)) for z in p.dossier.zones]
     exports = _exports(env, jenv, chosen, clauses) if spec else []
     return {"has_spec": spec is not None, "zones": zones, "exports": exports,
@@ -66,6 +69,7 @@ def _zone(env, zone, jenv, clause_ctx) -> dict:
             "message": reader(sel.message) if sel else "", "href": _href(sel.key) if sel else "",
             "rationale": s.rationale if s else "", "justification": s.justification if s else "",
             "notes": [reader(n) for n in sel.notes] if sel else [], "clauses": clauses,
+            "clause_number": clause_ctx["number"] if clause_ctx else "",
             "n_failed": len(failed), "failed_links": Markup("; ").join(
                 Markup('<a href="{}">{}</a> {}').format(f["href"], f["key"], f["title"])
                 for f in failed)}
