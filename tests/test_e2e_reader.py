@@ -93,3 +93,17 @@ def test_screenshots_of_the_key_pages(demo_build):
                 # nothing wider than the screen except inside a scrolling region
                 overflow = page.evaluate("document.documentElement.scrollWidth")
                 assert overflow <= width + 1, (name, width, overflow)
+
+
+def test_pdf_is_tagged_for_a_screen_reader(demo_build):
+    """One structure tree over the parts printed apart, language set, every page tied in,
+    every figure with an alternative text, tables with header cells (tests/pdf_structure.py)."""
+    from pypdf import PdfReader
+
+    from tests.pdf_structure import structure
+    found = structure(PdfReader(str(demo_build / REV / f"WEP-2026-{REV}.pdf")))
+    assert found.tree and found.marked and found.lang == "en"
+    assert found.untied_pages == []
+    assert found.types["/Figure"] >= 5 and found.figures_without_alt == 0
+    assert found.types["/TH"] > 100 and found.types["/H1"] >= 15
+    assert found.duplicate_ids == []
