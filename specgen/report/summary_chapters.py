@@ -12,6 +12,8 @@ from markupsafe import Markup
 from specgen.checks.result import STATUS_WORDS
 from specgen.report.chapters import badge, chapter, check_rows
 from specgen.report.fmt import count, date_text, qty, rounded
+from specgen.report.marks import control_context
+from specgen.report.review import open_by_category
 from specgen.report.wording import reader, rule_label
 
 PURPOSE_WORDS = {"preliminary": "preliminary", "for_approval": "for approval",
@@ -35,7 +37,8 @@ def summary(env) -> dict:
             "open_holds": [{"id": k, "what": what.get(k, ""), "stage": v["stage"],
                             "role": v["released_by"]} for k, v in holds.items()
                            if v["state"] == "open"],
-            "overrides": env.rules_overridden}
+            "overrides": env.rules_overridden,
+            "open_by_category": open_by_category(p.comments), "control": control_context(p, r)}
 
 
 def _zone(env, zone, holds: dict) -> dict:
