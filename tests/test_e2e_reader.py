@@ -18,8 +18,9 @@ from tests.reader_text import internal_names, reader_text
 pytestmark = pytest.mark.e2e
 
 REV = "R3"
-#: the input listing quotes file names as they are: that is its subject
-LISTINGS = {"inputs.html", "404.html"}
+#: pages whose subject is the input as it is written: the input listing, and the list of
+#: what to correct in the inputs before issue (it names the file and key to change)
+LISTINGS = {"inputs.html", "before-issue.html", "404.html"}
 
 
 def _pages(demo_build) -> list[Path]:

@@ -236,7 +236,7 @@ def ages_rule(ctx) -> list[Finding]:
                 "AUD-AGES", "Ages the site test regime does not test",
                 f"zone {zone.id}: the strength {what} of {sel.mix} is set at {age:g} d, but the "
                 f"site test regime tests at {regime} d only, so nothing on site would show it.",
-                (f"specification: clause {zone.id}.7 and the site test regime",
+                (f"specification: zone {zone.id}, clause 7, and the site test regime",
                  f"{SPEC_FILE}: site_tests.test_ages"),
                 f"add '{age:g} d' to site_tests.test_ages (the regime is then extended), or "
                 "change the requirement's age.", subject=zone.id))
