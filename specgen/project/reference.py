@@ -91,7 +91,17 @@ def markdown() -> str:
         lines += [f"| `{c.name}` | {c.kind or ('one of ' + ', '.join(c.choices) if c.choices else 'text')} "
                   f"| {'yes' if c.required else 'no'} | {c.description} |" for c in cols] + [""]
     lines += _review_file()
-    return "\n".join(lines)
+    return "\n".join(lines + ARCHIVE_NOTE)
+
+
+ARCHIVE_NOTE = [
+    "## `issued/<revision>/`", "",
+    "The inputs of each issued revision, exactly as issued (a complete project folder with "
+    "`revision.status: issued`). Do not copy files here by hand: `specgen issue DIR` freezes the "
+    "current inputs here with the issue date and purpose, builds the issued revision (its "
+    "manifest hashes these inputs) and opens the next draft revision in `dossier.yaml`. A later "
+    "build stops if an issued input was changed, unless told to rebuild that revision with "
+    "`--rebuild-issued REV --reason \"why\"` (the reason is recorded in its manifest).", ""]
 
 
 def _constituents() -> list[str]:

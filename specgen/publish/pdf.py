@@ -168,14 +168,17 @@ def parts(every: list[Piece], size: int = PART_SIZE) -> list[list[Piece]]:
     return out
 
 
-PDF_OPTIONS = {"pdf_variant": "pdf/a-3b", "custom_metadata": True}
+# PDF/A-3a: archival, with the inputs attached, and tagged (structure tree, alternative
+# texts, language).  WeasyPrint takes one variant per document: its PDF/UA-1 variant
+# tags the same way but is not PDF/A, so it could not carry the attachments as PDF/A-3.
+PDF_OPTIONS = {"pdf_variant": "pdf/a-3a", "custom_metadata": True}
 PLACEHOLDER_PAGE = 8888  # the contents laid out once with numbers of this width
 
 
 def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
               page_size: str = "a4", identifier: bytes | None = None, stamp=None,
               workers: int | None = None) -> None:
-    """Print the page set as a PDF/A-3b at ``target`` with ``attachments`` embedded.
+    """Print the page set as a tagged PDF/A-3a at ``target`` with ``attachments`` embedded.
 
     The chapters are printed in parts on every core (unchanged parts come from the
     artefact cache), the front matter once their page numbers are known, the running
@@ -186,7 +189,7 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
     from specgen.publish.pdf_assembly import assemble, global_anchors
     from specgen.publish.pdf_parts import Printer, cached_or_submitted
     every = pieces(pageset)
-    css = stylesheet(page_size, "parts.css")
+    css = stylesheet(page_size, "parts.css", "control.css")
     files = [(name, data, stamp) for name, data in sorted(attachments.items())]
     with Printer(pageset, workers) as printer:
         def front(numbers, **extra):
@@ -225,10 +228,11 @@ def _stamps(printer, context, page_size: str, front_pages: int, sizes: list) -> 
     total = front_pages + len(sizes)
     kinds = ["cover"] + [None] * (front_pages - 1) + ["wide" if w > h else None for w, h in sizes]
     pages = [{"number": i + 1, "kind": k} for i, k in enumerate(kinds)]
-    css = stylesheet(page_size, "stamp.css")
+    css = stylesheet(page_size, "stamp.css", "control.css")
     tpl = _template("stamp.html.j2")
     project, revision = context["project"].title, context["revision"].code
     return [printer.submit(tpl.render(pages=pages[i:i + STAMP_SPLIT], total=total,
                                       title=context["title"], project=project,
-                                      revision=revision), css, **PDF_OPTIONS)
+                                      revision=revision, mark=context.get("mark", "")), css,
+                           **PDF_OPTIONS)
             for i in range(0, total, STAMP_SPLIT)]
