@@ -22,12 +22,13 @@ PRACTICE_NOTE = ("practice not stated in dossier.yaml: European practice assumed
 def practice(project) -> tuple[str, str]:
     """('european' | 'american', where that came from)."""
     raw = getattr(project.dossier, "practice", None)
+    raw = getattr(raw, "follows", raw)          # dossier.yaml practice.follows
     raw = getattr(raw, "value", raw)
     if raw is None:
         return "european", PRACTICE_NOTE
     word = str(raw).lower()
     kind = "american" if word.startswith(("am", "astm", "us")) else "european"
-    return kind, f"dossier.yaml practice: {raw}"
+    return kind, f"dossier.yaml practice: {word}"
 
 
 def rule(ctx, name: str):

@@ -110,7 +110,7 @@ def _salt_one(pair, ctx):
                      f"DUR-TSA/{pair.subject} (thaumasite)")
     if not msg:
         msg.append("no class above medium")
-    notes.append(f"table: {tab['title']} — {tab['source']} ({tab.get('tag', '')}); published "
+    notes.append(f"table: {tab['title']} — {refdata.shown(tab['source'], tab.get('tag', ''))}; published "
                  "salt-load tables disagree, this one is the project's choice")
     return cc.result(code, title, pair, status, max(top.values(), key=order.index) if top else None,
                      "", [basis], f"{'; '.join(msg)} (table {key})", steps=steps, notes=notes,
