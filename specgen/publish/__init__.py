@@ -62,9 +62,10 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     rev = project.revision
     name = f"{project.dossier.project.title} — {rev.code}"
     progress("publish: site" + (" and PDF in parallel" if parallel else ""))
-    child = _fork(build_site, pages, staging, name) if parallel else None
+    extra = {"sg_report": _report_bar(project)}
+    child = _fork(build_site, pages, staging, name, extra) if parallel else None
     if child is None:
-        build_site(pages, staging, name)
+        build_site(pages, staging, name, extra)
     progress("publish: PDF")
     results_json = results.to_json().encode("utf-8")
     attachments = {"results.json": results_json}
@@ -146,6 +147,15 @@ def _stop(handle) -> None:
 def _stamp(date):
     import datetime as dt
     return dt.datetime(date.year, date.month, date.day, tzinfo=dt.timezone.utc)
+
+
+def _report_bar(project) -> dict:
+    """What the site's report bar shows on every page (escaped by the page frame)."""
+    from specgen.report.fmt import date_text
+    p, rev = project.dossier.project, project.revision
+    return {"project": p.title, "code": p.code, "revision": rev.code, "status": rev.status,
+            "state": STATE[rev.status], "purpose": PURPOSE[rev.purpose],
+            "date": date_text(rev.date)}
 
 
 def _print_context(project, marks: dict | None = None) -> dict:
