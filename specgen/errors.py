@@ -77,6 +77,20 @@ class RevisionRefused(PublishError):
     """Rebuilding an issued revision with different inputs."""
 
 
+QUOTE_LIMIT = 80  # characters of an offending value shown in a message
+
+
+def quote(value, limit: int = QUOTE_LIMIT) -> str:
+    """``value`` as text for a message, cut to about ``limit`` characters with the length said,
+    control characters shown as escapes (a 200 k-character value never floods the output)."""
+    text = value if isinstance(value, str) else repr(value)
+    text = "".join(c if c.isprintable() else repr(c)[1:-1] for c in text[:limit + 1])
+    if len(text) > limit or (isinstance(value, str) and len(value) > limit):
+        n = len(value) if isinstance(value, str) else len(repr(value))
+        return f"{text[:limit]}… ({n} characters)"
+    return text
+
+
 def did_you_mean(word: str, choices: Iterable[str]) -> str | None:
     """The nearest valid spelling, phrased for a message, or ``None``."""
     close = difflib.get_close_matches(str(word), list(choices), n=1, cutoff=0.6)

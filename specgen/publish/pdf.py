@@ -122,7 +122,8 @@ def pieces(pageset, size: int = PART_SIZE) -> list[Piece]:
 
 
 def _template(name: str):
-    env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(PRINT_DIR)), autoescape=True)
+    from specgen.templating import sandboxed
+    env = sandboxed(jinja2.FileSystemLoader(str(PRINT_DIR)))
     return env.get_template(name)
 
 
