@@ -23,8 +23,10 @@ from specgen.project.load import ARCHIVE_DIR
 
 
 def check(project_dir: Path | str) -> tuple[Project, Results]:
-    """Load the project and run every check (no output written)."""
+    """Load the project (and its archived issued revisions, validated as a build would)
+    and run every check (no output written)."""
     project = load_project(project_dir)
+    _load_archive(Path(project_dir), project)
     return project, evaluate(project)
 
 
@@ -67,19 +69,29 @@ def _build_one(project: Project, out: Path, page_size: str, progress) -> Path:
 
 
 def _load_archive(root: Path, current: Project) -> list[Project]:
-    """The archived issued revisions, validated, oldest first."""
+    """The archived issued revisions, validated, oldest first; the current revision must be
+    dated on or after every one of them."""
     folder = root / ARCHIVE_DIR
     if not folder.is_dir():
         return []
-    problems, found = [], []
+    problems, more, found = [], {}, []
     for sub in sorted(p for p in folder.iterdir() if p.is_dir()):
+        prefix = f"{ARCHIVE_DIR}/{sub.name}/"
+        if not (sub / "dossier.yaml").is_file():
+            problems.append(Problem(prefix + "dossier.yaml", "not found: an archived revision "
+                                    "folder holds the complete inputs of the revision it is "
+                                    "named after.", fix=f"restore the file (the PDF of revision "
+                                    f"{sub.name} carries it as the attachment input/dossier.yaml)"
+                                    ", or remove the folder if it is not an issued revision."))
+            continue
         try:
             old = load_project(sub)
         except InputErrors as exc:
-            problems += [Problem(f"{ARCHIVE_DIR}/{sub.name}/{p.file}", p.message, p.line, p.row,
-                                 p.field, p.fix) for p in exc.problems]
+            problems += [Problem(prefix + p.file, p.message, p.line, p.row, p.field, p.fix)
+                         for p in exc.problems]
+            more.update({prefix + f: n for f, n in exc.more.items()})
             continue
-        where = f"{ARCHIVE_DIR}/{sub.name}/dossier.yaml"
+        where = prefix + "dossier.yaml"
         if old.revision.code != sub.name or old.revision.status != "issued":
             problems.append(Problem(where, f"holds revision '{old.revision.code}' "
                                     f"({old.revision.status}); an archive folder holds the issued "
@@ -89,10 +101,23 @@ def _load_archive(root: Path, current: Project) -> list[Project]:
             problems.append(Problem("dossier.yaml", f"revision '{current.revision.code}' is already "
                                     f"issued in {ARCHIVE_DIR}/{sub.name}/.", field="revision.code",
                                     fix="raise a new revision code for the current inputs."))
+        elif old.revision.date > current.revision.date:
+            problems.append(Problem("dossier.yaml", f"revision {current.revision.code} is dated "
+                                    f"{current.revision.date}, before revision {old.revision.code} "
+                                    f"was issued ({old.revision.date}).", field="revision.date",
+                                    fix="date the revision on or after the last issued one.",
+                                    line=_line_of_date(root)))
         found.append(old)
-    if problems:
-        raise InputErrors(problems)
+    if problems or more:
+        raise InputErrors(problems, more)
     return sorted(found, key=lambda p: (p.revision.date, p.revision.code))
+
+
+def _line_of_date(root: Path) -> int | None:
+    from specgen.errors import ProblemLog
+    from specgen.project.files import read_yaml
+    located = read_yaml(root / "dossier.yaml", "dossier.yaml", ProblemLog())
+    return located.line_of(("revision", "date")) if located else None
 
 
 def _fix_dates(date: dt.date) -> None:

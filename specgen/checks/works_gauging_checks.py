@@ -10,7 +10,7 @@ from dataclasses import dataclass
 
 from specgen.checks import works_common as wc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step
+from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step, tex_name
 from specgen.science import batching as bt
 
 GAUGE = Basis("common practice", note="gauging sized to the workable life (EN 1015-9 where "
@@ -168,7 +168,7 @@ def _per_day_step(per_day, s: Site, g) -> Step:
     inputs = [Input("T", "placing hours per day", round(s.day.value / 3600, 3), "h",
                     s.day.source),
               Input("V_g", "gauging volume", round(g.volume / L, 4), "L", "step above")]
-    sub = r",\ ".join(rf"n_{{{z}}} = \lceil {s.rates[z].value / L * 3600:g} \times "
+    sub = r",\ ".join(rf"n_{{\mathrm{{{tex_name(z)}}}}} = \lceil {s.rates[z].value / L * 3600:g} \times "
                       rf"{s.day.value / 3600:g} / {g.volume / L:.3f} \rceil = {n}"
                       for z, n in per_day.items())
     return Step("Gaugings per working day", r"n = \lceil q\,T / V_g \rceil", tuple(inputs), sub,

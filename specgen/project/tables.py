@@ -5,11 +5,10 @@ in the header (``value [MPa]``, ``age [d]``) and is converted to SI here.
 """
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 from specgen import units
-from specgen.errors import ProblemLog, did_you_mean
+from specgen.errors import ProblemLog, did_you_mean, quote
 from specgen.project.files import CsvTable
 
 
@@ -54,11 +53,18 @@ def map_headers(table: CsvTable, columns, rel: str, log: ProblemLog) -> dict[str
     found: dict[str, tuple[str, str | None]] = {}
     known = [c.name for c in columns]
     by_name = {c.name: c for c in columns}
-    for header in table.headers:
+    seen: dict[str, int] = {}
+    for number, header in enumerate(table.headers, 1):
         name, unit = units.split_header(header)
+        if name in seen:  # which of the two would count is a guess: refuse, never pick one
+            log.add(rel, f"column '{quote(name)}' appears twice (columns {seen[name]} and "
+                    f"{number}).", row=1, field=quote(header), fix="keep one of the two columns.")
+            found.pop(name, None)
+            continue
+        seen[name] = number
         if name not in by_name:
             hint = did_you_mean(name, known)
-            log.add(rel, f"unknown column '{name}'.", row=1, field=header,
+            log.add(rel, f"unknown column '{quote(name)}'.", row=1, field=quote(header),
                     fix=hint or f"use one of: {', '.join(known)}.")
             continue
         col = by_name[name]
@@ -99,19 +105,20 @@ def cell(table_row: dict, col: Column, found, rel: str, row: int, log: ProblemLo
     if col.kind is None:
         if col.choices and raw not in col.choices:
             hint = did_you_mean(raw, col.choices)
-            log.add(rel, f"'{raw}' is not allowed here.", row=row, field=header,
+            log.add(rel, f"'{quote(raw)}' is not allowed here.", row=row, field=header,
                     fix=hint or f"use one of: {', '.join(col.choices)}.")
             return None
         return raw
     try:
         number = float(raw.replace(",", ".")) if raw.count(",") == 1 and "." not in raw else float(raw)
     except ValueError:
-        log.add(rel, f"expected a number; found '{raw}'.", row=row, field=header)
+        log.add(rel, f"expected a number; found '{quote(raw)}'.", row=row, field=header)
         return None
-    if not math.isfinite(number):
-        log.add(rel, f"expected a finite number; found '{raw}'.", row=row, field=header)
+    try:  # the one guard on every number read (units.plausible): finite, of a sane size
+        return units.plausible(units.to_si(number, unit, col.kind), col.kind, f"{raw} {unit}")
+    except units.UnitProblem as exc:
+        log.add(rel, f"{exc}.", row=row, field=header)
         return None
-    return units.to_si(number, unit, col.kind)
 
 
 def strength_results(table: CsvTable, rel: str, log: ProblemLog) -> list[StrengthResult]:
