@@ -84,7 +84,7 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
                     fix="check for a mistyped value, a missing LOI, or values not in mass %.")
     if mixes is not SKIP:
         _strength_refs(project.strength, mixes, log)
-    _comment_refs(project, located.get("comments.yaml"), log)
+    _comment_refs(project, located.get("comments.yaml"), log, failed)
     _sample_refs(project, log, failed)
     if project.specification is not None:
         specification_refs(project, located.get("specification.yaml"), log, mixes, failed)
@@ -106,7 +106,7 @@ def known_revisions(project) -> list[str]:
     return [project.revision.code] + [r for r in found if r != project.revision.code]
 
 
-def _comment_refs(project, located, log: ProblemLog) -> None:
+def _comment_refs(project, located, log: ProblemLog, failed=frozenset()) -> None:
     """A comment must name an existing check code (optionally /subject) or a page, and
     revisions that exist."""
     from specgen.checks.registry import checks
@@ -125,8 +125,9 @@ def _comment_refs(project, located, log: ProblemLog) -> None:
                     line=located.line_of(("comments", i)) if located else None,
                     field=f"comments[{i}].closed_in", fix="add 'closed_in: <revision>'.")
         code, _, subject = c.about.partition("/")
-        if c.about in PAGES or (code in codes and (not subject or subject in _subjects(project))):
-            continue
+        if c.about in PAGES or (code in codes and (not subject or subject in _subjects(project)
+                                                   or set(failed) & SUBJECT_FILES)):
+            continue  # subjects are not judged while a file defining them has problems
         hint = did_you_mean(c.about, sorted(codes) + list(PAGES))
         log.add("comments.yaml", f"comment '{c.id}' is about '{c.about}', which is neither a check "
                 "code nor a page of the dossier.",
@@ -175,6 +176,9 @@ def _sample_refs(project, log: ProblemLog, failed) -> None:
             log.add(rel, f"sample '{quote(sample)}' is not defined{more}; a sample here is {words}.",
                     row=where[0], field="sample", fix=did_you_mean(sample, sorted(known))
                     or "correct the id, or define the sample first.")
+
+
+SUBJECT_FILES = {"analyses.yaml", "materials.yaml", "mixes.yaml", "dossier.yaml"}
 
 
 def _subjects(project) -> set[str]:

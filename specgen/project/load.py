@@ -119,7 +119,8 @@ def validate(located: Located, model: type[BaseModel], rel: str, log: ProblemLog
                 if isinstance(found, (dict, list)) or repr(found) in msg or str(found) in msg:
                     msg = msg.rstrip(".") + "."
                 else:
-                    msg = f"{msg} (found {quote(repr(found))})."
+                    shown = f"'{quote(found)}'" if isinstance(found, str) else quote(repr(found))
+                    msg = f"{msg} (found {shown})."
                 if msg.startswith("must be greater than zero"):
                     fix = _give(model, loc)
             log.add(rel, msg, line=line, field=_field_path(loc), fix=fix)

@@ -203,6 +203,22 @@ def typed_rows(table: CsvTable, columns, rel: str, log: ProblemLog) -> list[tupl
     return out
 
 
+def first_of_each(rows: list, key, rel: str, what: str, field: str, log: ProblemLog) -> list:
+    """``rows`` without repeats of ``key(row)``; each repeat is a problem at its row (a row
+    given twice would silently count twice in a grading or a fit)."""
+    seen: dict = {}
+    out = []
+    for r in rows:
+        k = key(r)
+        if k in seen:
+            log.add(rel, f"{what} already appears in row {seen[k]}.", row=r.row, field=field,
+                    fix="keep one row per " + what.split(" ", 1)[0] + " (remove the repeat).")
+            continue
+        seen[k] = r.row
+        out.append(r)
+    return out
+
+
 def sieve_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[SieveRow]:
     """Sieve analyses; each row gives a mass retained or a percentage passing (0–100 %)."""
     names = {units.split_header(h)[0] for h in table.headers}
@@ -221,7 +237,8 @@ def sieve_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[SieveRow]:
             log.add(rel, "mass retained cannot be negative.", row=row, field="retained")
         else:
             out.append(SieveRow(v["sample"], v["sieve"], v["retained"], v["passing"], row, rel))
-    return out
+    return first_of_each(out, lambda r: (r.sample, r.sieve), rel, "sieve of this sample", "sieve",
+                         log)
 
 
 def colour_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[ColourReading]:
@@ -270,4 +287,5 @@ def capillary_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[Capillary
                     fix="give the mass gained per area of the wetted face.")
         else:
             out.append(CapillaryReading(v["sample"], v["time"], v["uptake"], row, rel))
-    return out
+    return first_of_each(out, lambda r: (r.sample, r.time), rel, "time of this sample", "time",
+                         log)
