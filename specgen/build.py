@@ -18,6 +18,7 @@ from pathlib import Path
 
 from specgen.checks.run import Results, evaluate
 from specgen.errors import InputErrors, Problem
+from specgen.killpoints import reached
 from specgen.project import Project, load_project
 from specgen.project.load import ARCHIVE_DIR
 
@@ -41,6 +42,9 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str = "a4"
     project = load_project(project_dir)
     archived = _load_archive(Path(project_dir), project)
     out = Path(out_dir)
+    from specgen.publish.output import preflight
+    preflight(out)  # a read-only or full output folder is found before anything is drawn
+    reached("load")
     from specgen.report import cache
     # unchanged figures and math are reused from the output folder's artefact cache;
     # after a complete build it keeps only what this build used
@@ -60,9 +64,11 @@ def _build_one(project: Project, out: Path, page_size: str, progress) -> Path:
     from specgen.report.render import render
     progress("check: running the checks")
     results = evaluate(project)
+    reached("check")
     history = history_for(out, project, results)
     progress("render: pages, figures and calculation sheets")
     pages = render(project, results, history)
+    reached("render")
     _fix_dates(project.revision.date)
     return publish(project, results, pages, out, page_size=page_size, progress=progress,
                    changes=history.changes)
@@ -118,6 +124,55 @@ def _line_of_date(root: Path) -> int | None:
     from specgen.project.files import read_yaml
     located = read_yaml(root / "dossier.yaml", "dossier.yaml", ProblemLog())
     return located.line_of(("revision", "date")) if located else None
+
+
+def verify(path: Path | str, project_dir: Path | str | None = None) -> list[str]:
+    """Every difference between built output and what it vouches for; empty when all match.
+
+    ``path`` is a revision folder or an output folder (then every revision in it, and
+    versions.json and the root index against the revisions present).  With
+    ``project_dir``, the inputs kept for each revision (``issued/<revision>/``, or the
+    project folder for its current revision) are checked against the manifest too.
+    """
+    from specgen.errors import PublishError
+    from specgen.publish import verify as v
+    path = Path(path)
+    if (path / "manifest.json").is_file():
+        folders, lines = [path], []
+    else:
+        folders = v.revisions_in(path) if path.is_dir() else []
+        if not folders:
+            raise PublishError(f"{path}: neither a revision folder nor an output folder written "
+                               "by specgen build. Fix: name OUT or OUT/<revision>.")
+        lines = v.folder_differences(path)
+    for folder in folders:
+        lines += [f"{folder.name}: {d}" for d in v.revision_differences(folder)]
+        if project_dir is not None:
+            lines += _kept_inputs(Path(project_dir), folder, v)
+    return lines
+
+
+def _kept_inputs(project: Path, folder: Path, v) -> list[str]:
+    from specgen.project.load import input_files
+    code = folder.name
+    kept = project / ARCHIVE_DIR / code
+    if not kept.is_dir():
+        kept = project if _revision_code(project) == code else None
+    if kept is None:
+        if v.manifest_of(folder).get("status") == "issued":
+            return [f"{code}: the project keeps no inputs of this issued revision "
+                    f"({ARCHIVE_DIR}/{code}/)"]
+        return []
+    return v.input_differences(folder, {f.path: f.sha256 for f in input_files(kept)})
+
+
+def _revision_code(project: Path) -> str | None:
+    from specgen.errors import ProblemLog
+    from specgen.project.files import read_yaml
+    located = read_yaml(project / "dossier.yaml", "dossier.yaml", ProblemLog())
+    data = located.data if located else None
+    rev = data.get("revision") if isinstance(data, dict) else None
+    return str(rev.get("code")) if isinstance(rev, dict) else None
 
 
 def _fix_dates(date: dt.date) -> None:

@@ -114,22 +114,27 @@ def diff(out: Path, old: str, new: str, fmt: str) -> None:
 
 
 @cli.command()
-@click.argument("revision_dir", type=click.Path(file_okay=False, path_type=Path))
-def verify(revision_dir: Path) -> None:
-    """Check a built revision against its manifest (exit 1 on any difference)."""
-    from specgen.publish.output import verify as run_verify
+@click.argument("path", type=click.Path(file_okay=False, path_type=Path))
+@click.option("--project", "project", type=click.Path(file_okay=False, path_type=Path),
+              default=None, help="project folder: also check the inputs it keeps for each "
+              "revision (issued/<revision>/) against the manifest")
+def verify(path: Path, project: Path | None) -> None:
+    """Check built output against its manifests (exit 1 on any difference).
+
+    PATH is a revision folder (OUT/R1) or an output folder (OUT: every revision, and
+    versions.json and the root index against the revisions present).
+    """
+    from specgen.build import verify as run_verify
     try:
-        report = run_verify(revision_dir)
+        differences = run_verify(path, project)
     except SpecgenError as exc:
         _fail(exc)
-    bad = False
-    for kind in ("modified", "missing", "extra"):
-        for path in report[kind]:
-            bad = True
-            click.echo(f"{kind}: {path}")
-    click.echo(f"{revision_dir}: " + ("does NOT match its manifest" if bad
-                                      else "every file matches its manifest"))
-    sys.exit(1 if bad else 0)
+    for line in differences:
+        click.echo(line)
+    click.echo(f"{path}: " + (f"does NOT match its manifest ({len(differences)} "
+                              f"difference{'s' if len(differences) != 1 else ''})"
+                              if differences else "every file matches its manifest"))
+    sys.exit(1 if differences else 0)
 
 
 @cli.command()

@@ -32,7 +32,6 @@ import os
 import random
 import shutil
 import tempfile
-import typing
 from collections import Counter
 from pathlib import Path
 

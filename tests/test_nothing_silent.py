@@ -3,7 +3,6 @@ changed a verdict) is refused with its file, line or row, field and fix; message
 short; one file's failure adds no follow-on errors about another."""
 from __future__ import annotations
 
-import shutil
 
 import pytest
 

@@ -31,8 +31,8 @@ def attacks(marker):
          "{{ project.__class__.__mro__[-1].__subclasses__() }}"),
         ("globals of a filter", f"{{{{ (num.__globals__['__builtins__']['__import__']('os'))"
                                 f".system('{cmd}') }}}}"),
-        ("attribute by name", f"{{{{ project|attr('__class__')|attr('__init__')"
-                              f"|attr('__globals__') }}}}"),
+        ("attribute by name", "{{ project|attr('__class__')|attr('__init__')"
+                              "|attr('__globals__') }}"),
         ("format string", "{{ '{0.__class__.__init__.__globals__}'.format(project) }}"),
         ("self reference", "{{ self._TemplateReference__context.cycler.__init__.__globals__ }}"),
         ("request-style builtins", "{{ lipsum.__globals__['os'].popen('id').read() }}"),

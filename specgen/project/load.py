@@ -291,8 +291,16 @@ def _assemble(root: Path, docs: dict, located: dict, strength: list,
             text = read_text(md, f"{NARRATIVE_DIR}/{md.name}", log)
             if text is not None:
                 p.narrative[md.stem] = text
+    p.inputs = input_files(root)
+    return p
+
+
+def input_files(root: Path) -> list[InputFile]:
+    """Every input file of a project folder with its SHA-256 (the archive under ``issued/``
+    and hidden files left out): what a revision's manifest records as its inputs."""
+    out = []
     for path in sorted(root.rglob("*")):
         parts = path.relative_to(root).parts
         if path.is_file() and parts[0] != ARCHIVE_DIR and not any(x.startswith(".") for x in parts):
-            p.inputs.append(_hash(path, path.relative_to(root).as_posix()))
-    return p
+            out.append(_hash(path, path.relative_to(root).as_posix()))
+    return out

@@ -8,6 +8,7 @@ import shutil
 from pathlib import Path
 
 from specgen.errors import PublishError
+from specgen.killpoints import reached
 from specgen.publish.output import (move_into_place, refuse_if_issued, staging_dir,
                                     update_versions, write_manifest)
 
@@ -43,6 +44,7 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
     except BaseException:
         shutil.rmtree(staging, ignore_errors=True)
         raise
+    reached("versions")
     try:
         update_versions(out)
     except OSError as exc:
@@ -75,6 +77,7 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
         if child is not None:
             _join(child)
             child = None
+        reached("site")
         os.replace(pdf_tmp, staging / pdf_name(project))
     finally:
         if child is not None:  # the PDF failed: stop the site before the staging is removed
@@ -93,6 +96,7 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
         "project": project.dossier.project.code, "revision": rev.code,
         "status": rev.status, "date": rev.date.isoformat(), "format": "specgen-manifest/1",
         "description": rev.description})
+    reached("staged")
 
 
 def _child(fn, args, conn) -> None:
