@@ -307,11 +307,8 @@ def judge(root: Path, where: dict, exc: InputErrors) -> list[str]:
             faults.append(f"unlocated: {p}")
         if len(str(p)) > MAX_PROBLEM_CHARS:
             faults.append(f"long message ({len(str(p))} characters): {str(p)[:120]}")
-        if not (p.file == corrupted or p.file.endswith("/" + corrupted)
-                or corrupted.endswith(p.file) or corrupted.startswith("issued/")
-                and p.file == corrupted):
-            if not (where.get("path") == ("revision", "date")):
-                faults.append(f"follow-on in another file: {p}")
+        if p.file != corrupted and where.get("path") != ("revision", "date"):
+            faults.append(f"follow-on in another file: {p}")
     line = expected_line(root, where)
     if line is not None and not any(p.line == line for p in problems):
         faults.append(f"no problem at line {line} ({where['path']}): {[str(p) for p in problems]}")

@@ -55,7 +55,7 @@ CASES = [
      "in revision 'R0'"),
     ("a colour reading of an unknown sample", "lab/colour.csv", "HM2,", "HMX,",
      "lab/colour.csv, row 12: sample: sample 'HMX' is not defined; a sample here is a historic "
-     "mortar, a mix, a masonry unit or a trial panel. Fix: did you mean 'HM2'?"),
+     "mortar, a mix, a masonry unit, a trial panel or a trial panel's colour_sample. Fix: did you mean 'HM2'?"),
     ("a capillary reading of an unknown sample", "lab/capillary.csv", "M2,5,", "M7,5,",
      "lab/capillary.csv, row 2: sample: sample 'M7' is not defined"),
     ("a duplicated CSV column", "lab/strength.csv",

@@ -139,8 +139,10 @@ def _comment_refs(project, located, log: ProblemLog, failed=frozenset()) -> None
 
 # lab table → (the Project fields whose ids its samples may be, in words)
 SAMPLE_KINDS = {
-    "lab/colour.csv": ("colours", ("historic_mortars", "mixes", "masonry_units", "trial panels"),
-                       "a historic mortar, a mix, a masonry unit or a trial panel"),
+    "lab/colour.csv": ("colours", ("historic_mortars", "mixes", "masonry_units", "trial panels",
+                                   "panel colour samples"),
+                       "a historic mortar, a mix, a masonry unit, a trial panel or a trial "
+                       "panel's colour_sample"),
     "lab/sieves.csv": ("sieves", ("sands", "aggregate samples"),
                        "a sand (materials.yaml) or a historic mortar's aggregate_sample"),
     "lab/capillary.csv": ("capillary", ("masonry_units", "historic_mortars", "mixes"),
@@ -149,9 +151,9 @@ SAMPLE_KINDS = {
 
 
 def _sample_ids(project, kind: str) -> set[str]:
-    if kind == "trial panels":
-        return {tp.id for tp in project.specification.doc.trial_panels} \
-            if project.specification is not None else set()
+    if kind in ("trial panels", "panel colour samples"):
+        panels = project.specification.doc.trial_panels if project.specification else []
+        return {tp.id if kind == "trial panels" else tp.colour_sample for tp in panels} - {None}
     if kind == "aggregate samples":
         return {h.aggregate_sample for h in project.historic_mortars.values()
                 if h.aggregate_sample}
