@@ -112,10 +112,13 @@ def _comment_refs(project, located, log: ProblemLog, failed=frozenset()) -> None
     from specgen.checks.registry import checks
     codes = {s.code for s in checks()}
     revisions = known_revisions(project)
+    # the archive (issued/) is the record of earlier revisions; a project that keeps none
+    # cannot say which exist, so its comments' revisions are taken as written
+    archived = len(revisions) > 1
     for i, c in enumerate(project.comments):
         for key in ("raised_in", "closed_in"):
             rev = getattr(c, key)
-            if rev is not None and rev not in revisions:
+            if archived and rev is not None and rev not in revisions:
                 log.add("comments.yaml", f"comment '{c.id}' was {key.replace('_in', '')} in "
                         f"revision '{rev}', which is neither this revision nor an issued one.",
                         line=located.line_of(("comments", i, key)) if located else None,
