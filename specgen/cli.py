@@ -13,7 +13,7 @@ from pathlib import Path
 import click
 
 from specgen import __version__
-from specgen.errors import InputErrors, SpecgenError
+from specgen.errors import InputErrors, SpecgenError, UsageError
 
 
 def _fail(exc: SpecgenError) -> None:
@@ -63,26 +63,85 @@ def check_cmd(directory: Path, fmt: str) -> None:
     sys.exit(1 if results.counts().get("fail") else 0)
 
 
+def _default_out(directory: Path) -> Path:
+    return directory.resolve().parent / f"{directory.resolve().name}-site"
+
+
+def _progress(quiet: bool):
+    steps = iter(range(1, 100))
+
+    def progress(step: str) -> None:
+        if not quiet:
+            click.echo(f"[{next(steps)}] {step}", err=True)
+    return progress
+
+
 @cli.command()
 @click.argument("directory", type=click.Path(path_type=Path))
 @click.option("--out", "out", type=click.Path(file_okay=False, path_type=Path), default=None,
               help="output folder (default: DIRECTORY/../<folder name>-site)")
 @click.option("--page-size", type=click.Choice(["a4", "letter"]), default="a4", show_default=True)
 @click.option("--quiet", is_flag=True, help="no progress display")
-def build(directory: Path, out: Path | None, page_size: str, quiet: bool) -> None:
+@click.option("--rebuild-issued", "rebuild", multiple=True, metavar="REV",
+              help="rebuild issued revision REV although its inputs changed (needs --reason)")
+@click.option("--reason", default=None, help="why the issued revision is rebuilt (recorded in "
+              "its manifest)")
+def build(directory: Path, out: Path | None, page_size: str, quiet: bool, rebuild: tuple,
+          reason: str | None) -> None:
     """Build the site and PDF of the project's revision into OUT/<revision>/."""
     from specgen.build import build as run_build
-    out = out or directory.resolve().parent / f"{directory.resolve().name}-site"
-    steps = iter(range(1, 100))
-
-    def progress(step: str) -> None:
-        if not quiet:
-            click.echo(f"[{next(steps)}] {step}", err=True)
+    if rebuild and not (reason or "").strip():
+        _fail(UsageError("--rebuild-issued needs --reason \"why\" (it is recorded in the "
+                         "revision's manifest)."))
     try:
-        target = run_build(directory, out, page_size=page_size, progress=progress)
+        target = run_build(directory, out or _default_out(directory), page_size=page_size,
+                           progress=_progress(quiet), rebuild={r: reason for r in rebuild})
     except SpecgenError as exc:
         _fail(exc)
     click.echo(f"Built {target} (open {target / 'index.html'})")
+
+
+@cli.command("issue")
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.option("--out", "out", type=click.Path(file_okay=False, path_type=Path), default=None,
+              help="output folder (default: DIRECTORY/../<folder name>-site)")
+@click.option("--date", "date", type=click.DateTime(["%Y-%m-%d"]), default=None,
+              help="issue date (default: today, UTC)")
+@click.option("--purpose", type=click.Choice(["preliminary", "for_approval", "for_construction"]),
+              default=None, help="what it is issued for (default: revision.purpose)")
+@click.option("--next", "next_code", default=None, help="code of the next draft (default: the "
+              "number raised by one)")
+@click.option("--page-size", type=click.Choice(["a4", "letter"]), default="a4", show_default=True)
+@click.option("--quiet", is_flag=True, help="no progress display")
+def issue_cmd(directory: Path, out, date, purpose, next_code, page_size: str, quiet: bool) -> None:
+    """Issue the current draft: freeze its inputs under issued/, build it, open the next draft."""
+    from specgen.build import issue
+    try:
+        done = issue(directory, out or _default_out(directory), date=date.date() if date else None,
+                     purpose=purpose, next_code=next_code, page_size=page_size,
+                     progress=_progress(quiet))
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(f"Issued {done['issued']} into {done['folder']}; inputs frozen in "
+               f"{directory / 'issued' / done['issued']}; the project is now draft {done['next']}."
+               + (f" The audit lists {done['findings']} finding(s) on its Open findings page."
+                  if done["findings"] else ""))
+
+
+@cli.command("status")
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text",
+              show_default=True)
+def status_cmd(directory: Path, fmt: str) -> None:
+    """Where the project stands: revision, findings, hold points, comments, changes."""
+    from specgen.build import status
+    from specgen.textreport import status_text
+    try:
+        report = status(directory)
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(json.dumps(report, indent=2, sort_keys=True) if fmt == "json"
+               else status_text(report))
 
 
 @cli.command()
@@ -97,6 +156,27 @@ def serve(directory: Path, port: int) -> None:
         _fail(exc)
 
 
+@cli.command("import-comments")
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.argument("review_file", type=click.Path(dir_okay=False, path_type=Path))
+@click.option("--out", "out", type=click.Path(file_okay=False, path_type=Path), default=None,
+              help="output folder holding the revision commented on "
+                   "(default: DIRECTORY/../<folder name>-site)")
+def import_comments(directory: Path, review_file: Path, out: Path | None) -> None:
+    """Take a reviewer's comment file (exported from the site) into comments.yaml."""
+    from specgen.build import import_comments as run_import
+    out = out or directory.resolve().parent / f"{directory.resolve().name}-site"
+    try:
+        ids = run_import(directory, review_file, out)
+    except SpecgenError as exc:
+        _fail(exc)
+    if ids:
+        click.echo(f"{len(ids)} new comment{'s' if len(ids) != 1 else ''} added to "
+                   f"{directory / 'comments.yaml'}: {', '.join(ids)}")
+    else:
+        click.echo(f"No new comment: every comment in {review_file} was taken in before.")
+
+
 @cli.command()
 @click.argument("out", type=click.Path(file_okay=False, path_type=Path))
 @click.option("--from", "old", required=True, help="earlier revision code")
@@ -104,13 +184,13 @@ def serve(directory: Path, port: int) -> None:
 @click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text",
               show_default=True)
 def diff(out: Path, old: str, new: str, fmt: str) -> None:
-    """Print what changed between two revisions built into OUT."""
-    from specgen.publish.history import as_text, between
+    """Print what changed between two revisions built into OUT (the decision first)."""
+    from specgen.build import diff as run_diff, diff_text
     try:
-        changes = between(out, old, new)
+        changes = run_diff(out, old, new)
     except SpecgenError as exc:
         _fail(exc)
-    click.echo(json.dumps(changes, indent=2, sort_keys=True) if fmt == "json" else as_text(changes))
+    click.echo(json.dumps(changes, indent=2, sort_keys=True) if fmt == "json" else diff_text(changes))
 
 
 @cli.command()
@@ -118,23 +198,55 @@ def diff(out: Path, old: str, new: str, fmt: str) -> None:
 @click.option("--project", "project", type=click.Path(file_okay=False, path_type=Path),
               default=None, help="project folder: also check the inputs it keeps for each "
               "revision (issued/<revision>/) against the manifest")
-def verify(path: Path, project: Path | None) -> None:
-    """Check built output against its manifests (exit 1 on any difference).
+@click.option("--trust", multiple=True, type=click.Path(dir_okay=False, path_type=Path),
+              help="certificate (PEM) to trust as a root when checking signatures")
+def verify(path: Path, project: Path | None, trust: tuple) -> None:
+    """Check built output against its manifests and signatures (exit 1 on any difference).
 
     PATH is a revision folder (OUT/R1) or an output folder (OUT: every revision, and
     versions.json and the root index against the revisions present).
     """
     from specgen.build import verify as run_verify
     try:
-        differences = run_verify(path, project)
+        report = run_verify(path, project, list(trust))
     except SpecgenError as exc:
         _fail(exc)
+    differences = report["differences"]
     for line in differences:
         click.echo(line)
+    broken = [s for s in report["signatures"] if not s["intact"]]
+    for s in report["signatures"]:
+        click.echo(f"signature of {s['file']}: {s['summary']}")
+    bad = bool(differences or broken)
     click.echo(f"{path}: " + (f"does NOT match its manifest ({len(differences)} "
-                              f"difference{'s' if len(differences) != 1 else ''})"
-                              if differences else "every file matches its manifest"))
-    sys.exit(1 if differences else 0)
+                              f"difference{'s' if len(differences) != 1 else ''}"
+                              f"{f', {len(broken)} broken signature' if broken else ''})"
+                              if bad else "every file matches its manifest"
+                              + (" and every signature is intact" if report["signatures"]
+                                 else "")))
+    sys.exit(1 if bad else 0)
+
+
+@cli.command()
+@click.argument("revision_dir", type=click.Path(file_okay=False, path_type=Path))
+@click.option("--key", required=True, type=click.Path(dir_okay=False, path_type=Path),
+              help="the specifier's private key (PEM); read, never copied")
+@click.option("--cert", required=True, type=click.Path(dir_okay=False, path_type=Path),
+              help="the specifier's certificate (PEM)")
+@click.option("--chain", multiple=True, type=click.Path(dir_okay=False, path_type=Path),
+              help="intermediate certificates (PEM)")
+@click.option("--passphrase-env", default=None, metavar="VAR",
+              help="environment variable holding the key's passphrase")
+def sign(revision_dir: Path, key: Path, cert: Path, chain: tuple, passphrase_env) -> None:
+    """Sign an issued revision's PDF (PAdES) and its manifest with the specifier's certificate."""
+    import os
+    from specgen.build import sign as run_sign
+    phrase = os.environ.get(passphrase_env, "").encode() if passphrase_env else None
+    try:
+        done = run_sign(revision_dir, key, cert, passphrase=phrase, chain=list(chain))
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(f"Signed {done['pdf']} and {done['manifest_signature']} as {done['signer']}.")
 
 
 @cli.command()

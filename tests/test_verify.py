@@ -46,8 +46,8 @@ def out_copy(demo_build, tmp_path_factory):
 @pytest.mark.e2e
 def test_verify_an_output_folder_and_the_kept_inputs(out_copy, cli):
     from tests.conftest import DEMO
-    assert verify(out_copy) == []
-    assert verify(out_copy, DEMO) == []   # issued/R1, issued/R2 and the current R3 inputs
+    assert verify(out_copy)["differences"] == []
+    assert verify(out_copy, DEMO)["differences"] == []   # issued/R1, issued/R2 and the current R3 inputs
     ok = cli("verify", out_copy, "--project", DEMO)
     assert ok.exit_code == 0 and "every file matches its manifest" in ok.output
 
@@ -62,7 +62,7 @@ def test_verify_names_each_difference(out_copy, demo_copy, tmp_path, cli):
     (out / "index.html").write_text((out / "index.html").read_text().replace("R3/", "R7/"))
     (demo_copy / "issued" / "R1" / "mixes.yaml").write_text("mixes: []\n")
     (demo_copy / "issued" / "R2" / "lab" / "strength.csv").unlink()
-    found = verify(out, demo_copy)
+    found = verify(out, demo_copy)["differences"]
     assert "versions.json lists R9, which is not in the folder" in found
     assert "versions.json does not list R1" in found
     assert "index.html points at R7, which is not a revision in the folder" in found
@@ -85,7 +85,7 @@ def test_verify_checks_the_inputs_the_pdf_carries(out_copy, tmp_path):
     writer.add_attachment("input/extra.yaml", b"not an input of R2\n")
     with open(pdf, "wb") as f:
         writer.write(f)
-    found = verify(rev)
+    found = verify(rev)["differences"]
     assert f"R2: modified: {pdf.name}" in found
     assert "R2: input in the PDF extra: extra.yaml" in found
     assert name  # the PDF carries the inputs it was built from

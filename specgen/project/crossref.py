@@ -26,7 +26,7 @@ def _ref(log, located, rel, path, value, known: dict, what: str) -> None:
 
 
 def check_references(project, located: dict[str, Located], log: ProblemLog,
-                     failed: set[str] = frozenset()) -> None:
+                     failed: set[str] = frozenset(), names=None) -> None:
     """Record a problem for every dangling id and every implausible analysis total.
 
     References into a file that itself failed to load are not checked: its own
@@ -84,16 +84,10 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
                     fix="check for a mistyped value, a missing LOI, or values not in mass %.")
     if mixes is not SKIP:
         _strength_refs(project.strength, mixes, log)
-    _comment_refs(project, located.get("comments.yaml"), log, failed)
+    _comment_refs(project, located.get("comments.yaml"), log, names, failed)
     _sample_refs(project, log, failed)
     if project.specification is not None:
         specification_refs(project, located.get("specification.yaml"), log, mixes, failed)
-
-
-# Pages a comment may name (the stems of the dossier's chapter files).
-PAGES = ("index", "summary", "scope", "composition", "strength", "compatibility", "works",
-         "specification", "calculations", "cautions", "references", "history", "changes",
-         "comments", "inputs")
 
 
 def known_revisions(project) -> list[str]:
@@ -102,15 +96,18 @@ def known_revisions(project) -> list[str]:
     from specgen.project.load import ARCHIVE_DIR
     root = project.root
     folder = root.parent if root.parent.name == ARCHIVE_DIR else root / ARCHIVE_DIR
-    found = sorted(d.name for d in folder.glob("*") if d.is_dir()) if folder.is_dir() else []
+    found = sorted(d.name for d in folder.glob("*") if d.is_dir() and not d.name.startswith(".")) \
+        if folder.is_dir() else []
     return [project.revision.code] + [r for r in found if r != project.revision.code]
 
 
-def _comment_refs(project, located, log: ProblemLog, failed=frozenset()) -> None:
+def _comment_refs(project, located, log: ProblemLog, names, failed=frozenset()) -> None:
     """A comment must name an existing check code (optionally /subject) or a page, and
-    revisions that exist."""
-    from specgen.checks.registry import checks
-    codes = {s.code for s in checks()}
+    revisions that exist.
+
+    ``names`` (check codes, page stems) comes from the pipeline, which knows the check and
+    chapter registries; loading knows neither.  Without it only the revisions are checked.
+    """
     revisions = known_revisions(project)
     # the archive (issued/) is the record of earlier revisions; a project that keeps none
     # cannot say which exist, so its comments' revisions are taken as written
@@ -127,17 +124,25 @@ def _comment_refs(project, located, log: ProblemLog, failed=frozenset()) -> None
             log.add("comments.yaml", f"comment '{c.id}' is closed but says not in which revision.",
                     line=located.line_of(("comments", i)) if located else None,
                     field=f"comments[{i}].closed_in", fix="add 'closed_in: <revision>'.")
+        if names is None:
+            continue
+        codes, pages = names
         code, _, subject = c.about.partition("/")
-        if c.about in PAGES or (code in codes and (not subject or subject in _subjects(project)
-                                                   or set(failed) & SUBJECT_FILES)):
+        if _is_page(c.about, pages) or (code in codes and (
+                not subject or subject in _subjects(project) or set(failed) & SUBJECT_FILES)):
             continue  # subjects are not judged while a file defining them has problems
-        hint = did_you_mean(c.about, sorted(codes) + list(PAGES))
+        hint = did_you_mean(c.about, sorted(codes) + sorted(pages))
         log.add("comments.yaml", f"comment '{c.id}' is about '{c.about}', which is neither a check "
                 "code nor a page of the dossier.",
                 line=located.line_of(("comments", i, "about")) if located else None,
                 field=f"comments[{i}].about",
                 fix=hint or f"use a check code ({', '.join(sorted(codes))}) or a page "
-                            f"({', '.join(PAGES)}).")
+                            f"({', '.join(sorted(pages))}).")
+
+
+def _is_page(about: str, pages) -> bool:
+    """A page stem, or a page of a chapter's family (``card-M1`` of ``card``)."""
+    return about in pages or about.partition("-")[0] in pages
 
 
 # lab table → (the Project fields whose ids its samples may be, in words)

@@ -164,8 +164,12 @@ def _escaping_links(root: Path, log: ProblemLog) -> None:
                     fix="copy the file into the project folder instead of linking it.")
 
 
-def load_project(root: Path | str) -> Project:
-    """Read and validate a project folder; raise :class:`~specgen.errors.InputErrors` on problems."""
+def load_project(root: Path | str, names=None) -> Project:
+    """Read and validate a project folder; raise :class:`~specgen.errors.InputErrors` on problems.
+
+    ``names`` — (check codes, page stems) that review comments may be about — is handed in by
+    the pipeline, which knows the registries; without it comments' subjects are not checked.
+    """
     root = Path(root)
     log = ProblemLog()
     if not (root / ROOT_FILE).is_file():
@@ -214,7 +218,7 @@ def load_project(root: Path | str) -> Project:
     # a file with problems of its own is not a reference for others: no follow-on errors
     failed = {name for name in DOCUMENTS if (root / name).is_file() and docs.get(name) is None}
     failed |= log.files()
-    check_references(project, located, log, failed)
+    check_references(project, located, log, failed, names)
     from specgen.project.works_inputs import works_problems
     works_problems(project, located, log, failed)
     log.raise_if_any()

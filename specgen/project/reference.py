@@ -70,4 +70,30 @@ def markdown() -> str:
                   "|---|---|---|---|"]
         lines += [f"| `{c.name}` | {c.kind or ('one of ' + ', '.join(c.choices) if c.choices else 'text')} "
                   f"| {'yes' if c.required else 'no'} | {c.description} |" for c in cols] + [""]
-    return "\n".join(lines)
+    lines += _review_file()
+    return "\n".join(lines + ARCHIVE_NOTE)
+
+
+ARCHIVE_NOTE = [
+    "## `issued/<revision>/`", "",
+    "The inputs of each issued revision, exactly as issued (a complete project folder with "
+    "`revision.status: issued`). Do not copy files here by hand: `specgen issue DIR` freezes the "
+    "current inputs here with the issue date and purpose, builds the issued revision (its "
+    "manifest hashes these inputs) and opens the next draft revision in `dossier.yaml`. A later "
+    "build stops if an issued input was changed, unless told to rebuild that revision with "
+    "`--rebuild-issued REV --reason \"why\"` (the reason is recorded in its manifest).", ""]
+
+
+def _review_file() -> list[str]:
+    """The reviewer's comment file: not part of the project folder, taken in by
+    ``specgen import-comments PROJECT FILE``."""
+    from specgen.project.review_file import FORMAT, ReviewFile
+    lines = ["## Reviewer's comment file (exported from the site)", "",
+             f"JSON, format `{FORMAT}`, written by the site's Review comments panel and taken into "
+             "`comments.yaml` by `specgen import-comments PROJECT FILE --out OUT` (the comments "
+             "are checked against the revision they were made on, published in OUT; a second "
+             "import of the same file adds nothing).", "",
+             "| key | type / unit | default | meaning |", "|---|---|---|---|"]
+    rows: list = []
+    _rows(ReviewFile, "", rows)
+    return lines + [f"| `{k}` | {t} | {d} | {m} |" for k, t, d, m in rows] + [""]

@@ -90,10 +90,10 @@ def folder_differences(out: Path) -> list[str]:
               if v not in present]
     lines += [f"{VERSIONS} does not list {v}" for v in sorted(present - set(names))]
     current = [v["version"] for v in listed if "current" in v.get("aliases", [])]
-    newest = _newest(out, present)
-    if current != [newest] and newest is not None:
+    opens = _opens(out, present)
+    if current != [opens] and opens is not None:
         lines.append(f"{VERSIONS} marks {', '.join(current) or 'no revision'} as current; "
-                     f"the newest present is {newest}")
+                     f"the latest issued revision present (else the newest) is {opens}")
     target = _index_target(out)
     if target is None or not (out / target / "index.html").is_file():
         lines.append(f"index.html points at {target or 'nothing'}, which is not a revision "
@@ -101,12 +101,13 @@ def folder_differences(out: Path) -> list[str]:
     return lines
 
 
-def _newest(out: Path, present: set[str]) -> str | None:
-    dated = []
-    for name in present:
-        m = manifest_of(out / name)
-        dated.append((m.get("date", ""), name))
-    return max(dated)[1] if dated else None
+def _opens(out: Path, present: set[str]) -> str | None:
+    """The revision the root should open: the latest issued, else the newest."""
+    dated = [(m.get("status") == "issued", m.get("date", ""), name)
+             for name in present for m in [manifest_of(out / name)]]
+    issued = [d for d in dated if d[0]]
+    pool = issued or dated
+    return max(pool, key=lambda d: (d[1], d[2]))[2] if pool else None
 
 
 def _index_target(out: Path) -> str | None:

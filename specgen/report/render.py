@@ -9,6 +9,7 @@ can reach only the context handed to it.
 """
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 
 import jinja2
@@ -33,7 +34,18 @@ def template_env(project_root) -> jinja2.Environment:
                     trim_blocks=True, lstrip_blocks=True, keep_trailing_newline=True)
     env.filters["num"] = num
     env.filters["cell"] = lambda v: Markup(str(escape(v)).replace("|", "&#124;").replace("\n", " "))
+    env.filters["plain"] = plain
     return env
+
+
+_MARKDOWN_SIGNS = re.compile(r"([\\`*_{}\[\]()#+\-.!|~])")
+
+
+def plain(value) -> Markup:
+    """Text from outside (a reviewer's comment) shown as text: neither HTML nor Markdown
+    can take effect, line breaks become spaces."""
+    text = " ".join(str(value).split())
+    return Markup(escape(_MARKDOWN_SIGNS.sub(r"\\\1", text)))
 
 
 @dataclass
@@ -48,6 +60,14 @@ class RenderEnv:
     citations: Citations = field(default_factory=Citations)
     figures: list = field(default_factory=list)
     tables: int = 0
+    deferred: list = field(default_factory=list)
+
+    def later(self, fn) -> Markup:
+        """A placeholder for Markdown that ``fn(pages)`` writes once every page of the
+        revision is rendered (e.g. whether a commented passage reads the same now)."""
+        from specgen.report.review import later_token
+        self.deferred.append(fn)
+        return later_token(len(self.deferred))
 
     @property
     def rules_overridden(self) -> list:
@@ -94,11 +114,12 @@ class RenderEnv:
                 "limit": limit, "value": qty(c.value, c.unit), "notes": list(c.notes)}
 
 
-def render(project, results, history=None) -> PageSet:
+def render(project, results, history=None, superseded: str | None = None) -> PageSet:
     """Render every registered chapter into a page set (narrative placed by file name).
 
     ``history`` (:class:`specgen.publish.history.History`) gives earlier revisions and
     the change report; without it the dossier is rendered as a first revision.
+    ``superseded`` names the issued revision that superseded this one (its pages say so).
     """
     pageset = PageSet()
     env = RenderEnv(project, results, pageset, MathAssets(pageset), history)
@@ -115,7 +136,25 @@ def render(project, results, history=None) -> PageSet:
                                                   "introduction" if stem == "index" else stem)
                 text = jenv.get_template(spec.template).render(**ctx)
                 pageset.add_page(path, title, text)
+    _resolve_later(env, pageset)
+    from specgen.report.review import CONTEXT_ASSET, review_context
+    pageset.add_asset(CONTEXT_ASSET, review_context(project))
+    from specgen.report.marks import apply_marks
+    apply_marks(pageset, project, results, superseded)
     return pageset
+
+
+def _resolve_later(env: RenderEnv, pageset: PageSet) -> None:
+    """Write the deferred parts into the pages that hold their placeholders."""
+    from specgen.report.review import later_token
+    if not env.deferred:
+        return
+    done = {str(later_token(n)): fn(pageset.pages) for n, fn in enumerate(env.deferred, 1)}
+    for path, text in pageset.pages.items():
+        if "<!--sg-later-" in text:
+            for token, part in done.items():
+                text = text.replace(token, part)
+            pageset.pages[path] = text
 
 
 def _pages_of(spec, made) -> list[tuple[str, str, dict]]:
