@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import errno
 import os
+import shutil
 import signal
 import subprocess
 import sys
@@ -57,6 +58,7 @@ def test_kill_at_every_point_leaves_every_revision_reachable(built, tmp_path):
     csv.write_text(csv.read_text().replace("M1-07-1,M1,7,compressive,1.1",
                                            "M1-07-1,M1,7,compressive,1.13"))
     trace = tmp_path / "trace"
+    shutil.copytree(out, tmp_path / "traced-out")  # the same rebuild as the killed ones
     traced = run_build(root, tmp_path / "traced-out", SPECGEN_KILL_TRACE=str(trace))
     assert traced.returncode == 0, traced.stderr
     points = trace.read_text().split()
