@@ -39,7 +39,7 @@ CASES = [
      "dossier.yaml, line 42: zones[1].id: zone id 'Z1' is given twice. Fix: give each one its "
      "own id."),
     ("a trial panel listed twice", "specification.yaml", "  - id: TP2\n", "  - id: TP1\n",
-     "specification.yaml, line 82: trial_panels[1].id: trial panel id 'TP1' is given twice."),
+     "specification.yaml, line 84: trial_panels[1].id: trial panel id 'TP1' is given twice."),
     ("a candidate listed twice", "dossier.yaml", "candidates: [M1, M2, M3]",
      "candidates: [M1, M2, M1]", "dossier.yaml, line 38: zones[0].candidates[2]: candidate mix "
      "'M1' is given twice. Fix: merge the two entries into one."),
