@@ -2,34 +2,8 @@
 from __future__ import annotations
 
 from specgen.report.cautions import cautions_for
-from specgen.report.chapters import badge, chapter, check_rows
+from specgen.report.chapters import chapter
 from specgen.report.fmt import num, qty
-from specgen.report.marks import control_context
-from specgen.report.review import open_by_category
-from specgen.report.specification_chapters import specification_summary
-
-PURPOSE_WORDS = {"preliminary": "preliminary", "for_approval": "for approval",
-                 "for_construction": "for construction"}
-STATE_WORDS = {"draft": "draft", "issued": "issued"}
-#: Statuses listed with their finding at the top of the summary, most severe first.
-DECIDING = ("fail", "hold", "attention")
-
-
-@chapter("index.md", "Summary", 10, "summary.md.j2")
-def summary(env) -> dict:
-    p, r = env.project, env.results
-    counts = [{"status": s, "badge": badge(s), "n": n} for s, n in r.counts().items() if n]
-    rows = check_rows(r)
-    flagged = sorted((row for row in rows if row["status"] in DECIDING),
-                     key=lambda row: DECIDING.index(row["status"]))
-    return {"counts": counts, "rows": rows, "flagged": flagged,
-            "purpose": PURPOSE_WORDS[p.revision.purpose], "state": STATE_WORDS[p.revision.status],
-            "parties": p.dossier.parties, "overrides": env.rules_overridden,
-            "open_comments": sum(1 for c in p.comments if c.status == "open"),
-            "open_by_category": open_by_category(p.comments),
-            "previous": env.history.previous if env.history else None,
-            "control": control_context(p, r), **specification_summary(env)}
-
 
 @chapter("scope.md", "Scope and zones of work", 20, "scope.md.j2")
 def scope(env) -> dict:
@@ -51,7 +25,7 @@ def scope(env) -> dict:
     return {"zones": rows, "requirements": reqs}
 
 
-@chapter("calculations.md", "Calculation sheets", 80, "calculations.md.j2")
+@chapter("calculations.md", "Calculation sheets", 80, "calculations.md.j2", volume="appendix")
 def calculations(env) -> dict:
     return {"sheets": [env.sheet(c) for c in env.results.checks]}
 
@@ -62,7 +36,7 @@ def cautions(env) -> dict:
     return {"cautions": chosen, "closing": closing}
 
 
-@chapter("inputs.md", "Input files", 95, "inputs.md.j2")
+@chapter("inputs.md", "Input files", 95, "inputs.md.j2", volume="appendix")
 def inputs(env) -> dict:
     return {"files": [{"path": f.path, "sha256": f.sha256, "size": f.size}
                       for f in env.project.inputs]}

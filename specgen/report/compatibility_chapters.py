@@ -13,6 +13,7 @@ from specgen.checks import compatibility_checks as cmp
 from specgen.checks import compatibility_common as cc
 from specgen.report.chapters import badge, chapter, sheet_anchor
 from specgen.report.fmt import as_given, num, qty
+from specgen.report.wording import reader
 from specgen.science import colour
 
 #: The matrix columns: check code → short heading (the order of the columns).
@@ -84,7 +85,7 @@ def _zone(env, z) -> dict:
                "cells": [_cell(env.results.check(code, pr.subject)) for code in CRITERIA]}
               for pr in pairs]
     findings = [{"code": c.code, "title": c.title, "subject": c.subject, "badge": badge(c.status),
-                 "message": c.message, "href": f"calculations.md#{sheet_anchor(c)}"}
+                 "message": reader(c.message), "href": f"calculations.md#{sheet_anchor(c)}"}
                 for code in FINDINGS for pr in pairs if (c := env.results.check(code, pr.subject))]
     unit = pairs[0].unit if pairs else None
     hist = pairs[0].historic if pairs else None
