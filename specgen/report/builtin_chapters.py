@@ -22,7 +22,24 @@ def scope(env) -> dict:
     if req.max_compressive_long_term:
         reqs.append(f"long-term compressive strength at most "
                     f"{qty(req.max_compressive_long_term / 1e6, 'MPa', 3)}")
-    return {"zones": rows, "requirements": reqs}
+    return {"zones": rows, "requirements": reqs, "practice": _practice(env)}
+
+
+def _practice(env) -> dict:
+    """The set of standards the dossier follows, each test method cited."""
+    from specgen import practice, refdata
+    from specgen.checks.result import Basis
+    pr = practice.resolve(env.project.dossier)
+    with refdata.unrecorded():
+        envelope = refdata.load("grading_envelopes").data[pr.grading_envelope]
+    with refdata.unrecorded():
+        classes = refdata.load("strength_classes").data[pr.mortar_classes]["title"]
+    return {"title": pr.title, "stated": pr.stated, "mixed": list(pr.mixed),
+            "reason": pr.mixing_reason, "series": practice.series_title(pr.sieve_series),
+            "envelope": envelope["title"], "mortar_classes": classes,
+            "methods": [{"what": m["what"], "clause": m.get("clause", ""),
+                         "cite": env.cite(Basis("reference", m["ref"], m.get("clause", "")))}
+                        for m in pr.test_methods]}
 
 
 @chapter("calculations.md", "Calculation sheets", 80, "calculations.md.j2", volume="appendix")
@@ -44,5 +61,10 @@ def inputs(env) -> dict:
 
 @chapter("references.md", "References", 90, "references.md.j2")
 def references(env) -> dict:
-    # Rendered last so that every citation made by earlier chapters is numbered.
+    # Rendered last so that every citation made by earlier chapters is numbered; a standard
+    # named in the text of a page (e.g. "EN 1015-11" in a clause) is cited too, so the list
+    # holds every standard the dossier names that the bibliography knows.
+    from specgen.report.references import named_in
+    for key in named_in(env.pageset.pages.values()):
+        env.citations.cite(key)
     return {"entries": env.citations.listing()}
