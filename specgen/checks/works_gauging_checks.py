@@ -11,7 +11,7 @@ from dataclasses import dataclass
 from specgen import refdata
 from specgen.checks import works_common as wc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step
+from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step, tex_name
 from specgen.science import batching as bt
 
 GAUGE = Basis("common practice", note="gauging sized to the workable life (EN 1015-9 where "
@@ -190,9 +190,10 @@ def _per_day_step(per_day, s: Site, g, times) -> Step:
               Input("V_g", "gauging volume", round(g.volume / L, 4), "L", "step above"),
               Input("n_max", "most gaugings a day", s.most_per_day.value, "",
                     s.most_per_day.source)]
-    sub = r",\ ".join(rf"k_{{{z}}} = {times[z]},\ n_{{{z}}} = \lceil {s.rates[z].value / L * 3600:g}"
-                      rf" \times {s.day.value / 3600:g} / ({times[z]} \times {g.volume / L:.3f})"
-                      rf" \rceil = {n}" for z, n in per_day.items())
+    sub = r",\ ".join(rf"k_{{\mathrm{{{tex_name(z)}}}}} = {times[z]},\ n_{{\mathrm{{{tex_name(z)}}}}}"
+                      rf" = \lceil {s.rates[z].value / L * 3600:g} \times {s.day.value / 3600:g}"
+                      rf" / ({times[z]} \times {g.volume / L:.3f}) \rceil = {n}"
+                      for z, n in per_day.items())
     return Step("Gaugings per working day", r"k = \max(1, \lfloor V_{\max} / V_g \rfloor),\quad "
                 r"n = \lceil q\,T / (k\,V_g) \rceil \leq n_{\max}", tuple(inputs), sub,
                 max(per_day.values()), "", "n")

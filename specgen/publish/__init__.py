@@ -8,6 +8,7 @@ import shutil
 from pathlib import Path
 
 from specgen.errors import PublishError
+from specgen.killpoints import reached
 from specgen.publish.output import (move_into_place, refuse_if_issued, staging_dir,
                                     update_versions, write_manifest)
 
@@ -46,6 +47,7 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
     except BaseException:
         shutil.rmtree(staging, ignore_errors=True)
         raise
+    reached("versions")
     try:
         update_versions(out)
     except OSError as exc:
@@ -81,6 +83,7 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
         if child is not None:
             _join(child)
             child = None
+        reached("site")
         os.replace(pdf_tmp, staging / pdf_name(project))
     finally:
         if child is not None:  # the PDF failed: stop the site before the staging is removed
@@ -100,6 +103,7 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
         "status": rev.status, "date": rev.date.isoformat(), "format": "specgen-manifest/1",
         "description": rev.description, "purpose": rev.purpose, "facts": results.facts,
         "findings": len(results.findings), **{k: v for k, v in control.items() if v}})
+    reached("staged")
 
 
 def _child(fn, args, conn) -> None:
