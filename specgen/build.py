@@ -14,6 +14,7 @@ from __future__ import annotations
 import datetime as dt
 import os
 from collections.abc import Callable
+from dataclasses import replace
 from pathlib import Path
 
 from specgen.checks.run import Results, evaluate
@@ -26,6 +27,21 @@ def check(project_dir: Path | str) -> tuple[Project, Results]:
     """Load the project and run every check (no output written)."""
     project = load_project(project_dir)
     return project, evaluate(project)
+
+
+def lab_workbook(project_dir: Path | str, path: Path | str | None = None, *,
+                 overwrite: bool = False) -> tuple[Path, dict[str, int]]:
+    """Write the laboratory workbook of the project (planned tests without results yet);
+    returns where and the rows per sheet.  Default file: ``<code>-<revision>-lab.xlsx``."""
+    from specgen.errors import UsageError
+    from specgen.labbook import write_workbook
+    project = load_project(project_dir)
+    code = project.dossier.project.code
+    target = Path(path or f"{code}-{project.revision.code}-lab.xlsx")
+    if target.exists() and not overwrite:
+        raise UsageError(f"{target}: already exists. Fix: name another file with --out, or "
+                         "add --force to replace it.")
+    return target, write_workbook(project, target)
 
 
 def _quiet(step: str) -> None:
@@ -76,8 +92,8 @@ def _load_archive(root: Path, current: Project) -> list[Project]:
         try:
             old = load_project(sub)
         except InputErrors as exc:
-            problems += [Problem(f"{ARCHIVE_DIR}/{sub.name}/{p.file}", p.message, p.line, p.row,
-                                 p.field, p.fix) for p in exc.problems]
+            problems += [replace(p, file=f"{ARCHIVE_DIR}/{sub.name}/{p.file}")
+                         for p in exc.problems]
             continue
         where = f"{ARCHIVE_DIR}/{sub.name}/dossier.yaml"
         if old.revision.code != sub.name or old.revision.status != "issued":

@@ -63,6 +63,26 @@ def check_cmd(directory: Path, fmt: str) -> None:
     sys.exit(1 if results.counts().get("fail") else 0)
 
 
+@cli.command("lab-workbook")
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.option("--out", "out", type=click.Path(dir_okay=False, path_type=Path), default=None,
+              help="workbook to write (default: <code>-<revision>-lab.xlsx here)")
+@click.option("--force", is_flag=True, help="replace the file if it exists")
+def lab_workbook(directory: Path, out: Path | None, force: bool) -> None:
+    """Write the laboratory's workbook: the planned tests, ready to fill in.
+
+    Put the filled-in workbook in DIRECTORY/lab/; it is read as the CSV files are.
+    """
+    from specgen.build import lab_workbook as write
+    try:
+        target, counts = write(directory, out, overwrite=force)
+    except SpecgenError as exc:
+        _fail(exc)
+    listed = ", ".join(f"{n} {sheet}" for sheet, n in counts.items())
+    click.echo(f"Wrote {target}: planned rows {listed}. "
+               f"Filled in, it goes in {directory}/lab/.")
+
+
 @cli.command()
 @click.argument("directory", type=click.Path(path_type=Path))
 @click.option("--out", "out", type=click.Path(file_okay=False, path_type=Path), default=None,
