@@ -69,4 +69,12 @@ def markdown() -> str:
                   "|---|---|---|---|"]
         lines += [f"| `{c.name}` | {c.kind or ('one of ' + ', '.join(c.choices) if c.choices else 'text')} "
                   f"| {'yes' if c.required else 'no'} | {c.description} |" for c in cols] + [""]
+    from specgen.project.workbook import SHEETS
+    lines += ["## `lab/*.xlsx` (laboratory workbooks)", "",
+              "A workbook's sheets are read as the CSV files of the same names ("
+              + ", ".join(f"`{s}`" for s in SHEETS) + "): header in row 1 with the units, one "
+              "row per specimen or reading, values (not formulas), dates as dates, no merged "
+              "cells. A row whose result cells are empty is a planned test without a report. "
+              "`specgen lab-workbook` writes one pre-filled with the tests the project plans; "
+              "macro-enabled and old binary files are refused unopened.", ""]
     return "\n".join(lines)
