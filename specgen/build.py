@@ -29,6 +29,14 @@ def check(project_dir: Path | str) -> tuple[Project, Results]:
     return project, evaluate(project)
 
 
+def missing(project_dir: Path | str):
+    """What the dossier still lacks to be complete for issue (``completeness.Missing`` items,
+    in the order a specifier works), with the project and results it was read from."""
+    from specgen.completeness import missing as lacking
+    project, results = check(project_dir)
+    return lacking(project, results), project
+
+
 def lab_workbook(project_dir: Path | str, path: Path | str | None = None, *,
                  overwrite: bool = False) -> tuple[Path, dict[str, int]]:
     """Write the laboratory workbook of the project (planned tests without results yet);

@@ -63,6 +63,23 @@ def check_cmd(directory: Path, fmt: str) -> None:
     sys.exit(1 if results.counts().get("fail") else 0)
 
 
+@cli.command("missing")
+@click.argument("directory", type=click.Path(path_type=Path))
+def missing_cmd(directory: Path) -> None:
+    """List what the dossier still lacks to be complete for issue, in working order.
+
+    Exit status 0 when nothing is missing, 1 otherwise, 2 on invalid input.
+    """
+    from specgen.build import missing
+    from specgen.completeness import as_text
+    try:
+        items, project = missing(directory)
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(as_text(items, project.dossier.project.code, project.revision.code))
+    sys.exit(1 if items else 0)
+
+
 @cli.command("lab-workbook")
 @click.argument("directory", type=click.Path(path_type=Path))
 @click.option("--out", "out", type=click.Path(dir_okay=False, path_type=Path), default=None,

@@ -8,7 +8,8 @@ from pydantic_core import PydanticUndefined
 
 from specgen.project import schema
 from specgen.project.load import DOCUMENTS
-from specgen.project.tables import COLOUR_COLUMNS, SIEVE_COLUMNS, STRENGTH_COLUMNS
+from specgen.project.tables import (CAPILLARY_COLUMNS, COLOUR_COLUMNS, SIEVE_COLUMNS,
+                                    STRENGTH_COLUMNS)
 
 UNIT_OF = {"Pressure": "pressure, e.g. '12 MPa'", "Length": "length, e.g. '10 mm'",
            "Area": "area, e.g. '240 m^2'", "Density": "density, e.g. '850 kg/m^3'",
@@ -63,8 +64,15 @@ def markdown() -> str:
         rows: list = []
         _rows(model, "", rows)
         lines += [f"| `{k}` | {t} | {d} | {m} |" for k, t, d, m in rows] + [""]
+    return "\n".join(lines + lab_lines())
+
+
+def lab_lines() -> list[str]:
+    """The laboratory files: CSV columns and the workbook rules, as Markdown lines."""
+    lines: list[str] = []
     for file, cols in (("lab/strength.csv", STRENGTH_COLUMNS), ("lab/sieves.csv", SIEVE_COLUMNS),
-                       ("lab/colour.csv", COLOUR_COLUMNS)):
+                       ("lab/colour.csv", COLOUR_COLUMNS),
+                       ("lab/capillary.csv", CAPILLARY_COLUMNS)):
         lines += [f"## `{file}`", "", "| column | kind (unit in the header) | required | meaning |",
                   "|---|---|---|---|"]
         lines += [f"| `{c.name}` | {c.kind or ('one of ' + ', '.join(c.choices) if c.choices else 'text')} "
@@ -77,4 +85,4 @@ def markdown() -> str:
               "cells. A row whose result cells are empty is a planned test without a report. "
               "`specgen lab-workbook` writes one pre-filled with the tests the project plans; "
               "macro-enabled and old binary files are refused unopened.", ""]
-    return "\n".join(lines)
+    return lines
