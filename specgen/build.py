@@ -52,13 +52,16 @@ def lab_workbook(project_dir: Path | str, path: Path | str | None = None, *,
     return target, write_workbook(project, target)
 
 
-def _quiet(step: str) -> None:
+def _quiet(step: str, done: int | None = None, total: int | None = None) -> None:
     pass
 
 
 def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str = "a4",
-          progress: Callable[[str], None] = _quiet) -> Path:
-    """Build the project's revision (and missing archived ones) into ``out_dir/<revision>/``."""
+          progress: Callable[..., None] = _quiet) -> Path:
+    """Build the project's revision (and missing archived ones) into ``out_dir/<revision>/``.
+
+    ``progress(step, done=None, total=None)`` hears each stage as it starts and, where the
+    work is counted (the PDF's parts), how much of it is done."""
     progress("load: reading and validating the project folder")
     project = load_project(project_dir)
     archived = _load_archive(Path(project_dir), project)

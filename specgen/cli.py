@@ -48,7 +48,9 @@ def new(directory: Path) -> None:
 @click.argument("directory", type=click.Path(path_type=Path))
 @click.option("--format", "fmt", type=click.Choice(["table", "json"]), default="table",
               show_default=True, help="table for people, json for tools (results.json content)")
-def check_cmd(directory: Path, fmt: str) -> None:
+@click.option("--wide", is_flag=True, help="one line per check, however long (the table "
+              "otherwise wraps findings to the terminal's width)")
+def check_cmd(directory: Path, fmt: str, wide: bool) -> None:
     """Run every check on the project in DIRECTORY and print the results."""
     from specgen.build import check
     try:
@@ -59,7 +61,7 @@ def check_cmd(directory: Path, fmt: str) -> None:
         click.echo(results.to_json(), nl=False)
     else:
         from specgen.textreport import table
-        click.echo(table(results))
+        click.echo(table(results, wide=wide))
     sys.exit(1 if results.counts().get("fail") else 0)
 
 
@@ -109,14 +111,11 @@ def lab_workbook(directory: Path, out: Path | None, force: bool) -> None:
 def build(directory: Path, out: Path | None, page_size: str, quiet: bool) -> None:
     """Build the site and PDF of the project's revision into OUT/<revision>/."""
     from specgen.build import build as run_build
+    from specgen.console import Progress
     out = out or directory.resolve().parent / f"{directory.resolve().name}-site"
-    steps = iter(range(1, 100))
-
-    def progress(step: str) -> None:
-        if not quiet:
-            click.echo(f"[{next(steps)}] {step}", err=True)
     try:
-        target = run_build(directory, out, page_size=page_size, progress=progress)
+        with Progress(click.get_text_stream("stderr"), quiet=quiet) as progress:
+            target = run_build(directory, out, page_size=page_size, progress=progress)
     except SpecgenError as exc:
         _fail(exc)
     click.echo(f"Built {target} (open {target / 'index.html'})")

@@ -21,7 +21,7 @@ def pdf_name(project) -> str:
 
 
 def publish(project, results, pages, out: Path, *, page_size: str = "a4",
-            progress=lambda s: None, changes: dict | None = None, parallel: bool = True) -> Path:
+            progress=lambda *a: None, changes: dict | None = None, parallel: bool = True) -> Path:
     """Write site + PDF + results.json into a staging folder, then move it into place.
 
     With ``parallel`` the site is built in a forked process while this one renders the
@@ -71,7 +71,8 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     pdf_tmp = staging.with_name(staging.name + ".pdf")  # beside the site: MkDocs empties its folder
     try:
         write_pdf(pages, _print_context(project), pdf_tmp, attachments=attachments,
-                  page_size=page_size, identifier=ident, stamp=_stamp(rev.date))
+                  page_size=page_size, identifier=ident, stamp=_stamp(rev.date),
+                  on_part=lambda done, total: progress("publish: PDF parts", done, total))
         if child is not None:
             _join(child)
             child = None

@@ -81,6 +81,9 @@ def compare(old: dict, old_inputs: dict, new: dict, new_inputs: dict) -> dict:
                        "title": (a or b)["title"],
                        "old_status": a["status"] if a else None,
                        "new_status": b["status"] if b else None,
+                       # the words the site shows (results.json carries them beside the code)
+                       "old_status_word": a.get("status_word", a["status"]) if a else None,
+                       "new_status_word": b.get("status_word", b["status"]) if b else None,
                        "old_value": a["value"] if a else None, "new_value": b["value"] if b else None,
                        "unit": (b or a)["unit"],
                        "delta": _delta(a["value"], b["value"]) if a and b else None})
@@ -119,7 +122,9 @@ def as_text(changes: dict) -> str:
                 lines.append(f"  {label} {kind}: {', '.join(part[kind])}")
     for c in changes["checks"]:
         delta = f" (Δ {c['delta']:+g} {c['unit']})".rstrip() if c["delta"] is not None else ""
-        lines.append(f"  {c['key']}: {c['old_status'] or '—'} → {c['new_status'] or '—'}; "
+        was, now = c.get("old_status_word", c["old_status"]), c.get("new_status_word",
+                                                                    c["new_status"])
+        lines.append(f"  {c['key']}: {was or '—'} → {now or '—'}; "
                      f"{_v(c['old_value'])} → {_v(c['new_value'])} {c['unit']}{delta}".rstrip())
     if changes["comments"]["new"]:
         lines.append(f"  review comments raised: {', '.join(changes['comments']['new'])}")
