@@ -14,7 +14,7 @@ from __future__ import annotations
 import datetime as dt
 import os
 from collections.abc import Callable
-from dataclasses import replace
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 from specgen.checks.run import Results, evaluate
@@ -91,6 +91,63 @@ def _build_one(project: Project, out: Path, page_size: str, progress) -> Path:
     _fix_dates(project.revision.date)
     return publish(project, results, pages, out, page_size=page_size, progress=progress,
                    changes=history.changes)
+
+
+# --------------------------------------------------------------------- live preview
+TEXT_ONLY = ("narrative/", "templates/")  # inputs whose change leaves the check results as they are
+
+
+@dataclass
+class Prepared:
+    """A revision loaded, checked and rendered, ready to publish (the preview's unit of work)."""
+
+    project: Project
+    results: Results
+    pages: object
+    data_key: tuple   # hashes of the inputs the checks read (all but narrative and templates)
+
+
+def _data_key(project: Project) -> tuple:
+    return tuple((f.path, f.sha256) for f in project.inputs if not f.path.startswith(TEXT_ONLY))
+
+
+def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | None = None,
+            cache_dir: Path | str | None = None, progress: Callable[..., None] = _quiet
+            ) -> Prepared:
+    """Load, check and render; the checks are reused from ``reuse`` when only narrative or
+    templates changed, and figures and math come from the artefact cache."""
+    from specgen.publish.history import history_for
+    from specgen.report import cache
+    from specgen.report.render import render
+    progress("load: reading and validating the project folder")
+    project = load_project(project_dir)
+    key = _data_key(project)
+    if reuse is not None and reuse.data_key == key:
+        results = reuse.results
+    else:
+        progress("check: running the checks")
+        results = evaluate(project)
+    progress("render: pages, figures and calculation sheets")
+    with cache.using(cache_dir or Path(out_dir) / cache.CACHE_DIR):
+        pages = render(project, results, history_for(Path(out_dir), project, results))
+    _fix_dates(project.revision.date)
+    return Prepared(project, results, pages, key)
+
+
+def preview_site(prepared: Prepared, out_dir: Path | str) -> Path:
+    """Publish the prepared revision's site (no PDF) into ``out_dir/<revision>/``."""
+    from specgen.publish.preview import site_only
+    return site_only(prepared.project, prepared.results, prepared.pages, Path(out_dir))
+
+
+def preview_pdf(prepared: Prepared, target: Path, *, cache_dir: Path | str | None = None,
+                progress: Callable[..., None] = _quiet) -> Path:
+    """Print the prepared revision's PDF into ``target`` (parts from the artefact cache)."""
+    from specgen.publish.preview import pdf_only
+    from specgen.report import cache
+    with cache.using(cache_dir or target.parent / cache.CACHE_DIR):
+        return pdf_only(prepared.project, prepared.results, prepared.pages, target,
+                        on_part=lambda done, total: progress("PDF parts", done, total))
 
 
 def _load_archive(root: Path, current: Project) -> list[Project]:

@@ -125,10 +125,17 @@ def build(directory: Path, out: Path | None, page_size: str, quiet: bool) -> Non
 @click.argument("directory", type=click.Path(path_type=Path))
 @click.option("--port", default=8000, show_default=True, help="port on 127.0.0.1")
 def serve(directory: Path, port: int) -> None:
-    """Live preview: rebuild the site when a project file changes and serve it locally."""
+    """Live preview on 127.0.0.1: the site first, the PDF in the background; rebuilt on change.
+
+    A bare page address (/strength.html) shows that page of the current revision; a page not
+    rebuilt after an edit (an input error, an issued revision) says so with the error.
+    """
+    from specgen.console import Progress
     from specgen.preview import serve as run_serve
     try:
-        run_serve(directory, port)
+        # plain lines: the server's own messages interleave with the stages
+        run_serve(directory, port, say=lambda text: click.echo(text, err=True),
+                  progress=Progress(click.get_text_stream("stderr"), terminal=False))
     except SpecgenError as exc:
         _fail(exc)
 
