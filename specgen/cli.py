@@ -203,10 +203,12 @@ def format_reference() -> None:
 @click.option("--runs", default=3, show_default=True, help="repetitions per measurement")
 @click.option("--large/--no-large", default=True, show_default=True,
               help="also build the 200-mix project once (time and peak memory; slow)")
-def bench(runs: int, large: bool) -> None:
+@click.option("--only", type=click.Choice(["all", "serve", "xlsx"]), default="all",
+              show_default=True, help="run only the preview or the workbook measurement")
+def bench(runs: int, large: bool, only: str) -> None:
     """Developers: time check, build, re-issue and the bare toolchain (ratios in one run)."""
     from specgen.bench import main as run_bench
-    run_bench(runs, large=large)
+    run_bench(runs, large=large, only=only)
 
 
 def main() -> None:

@@ -140,6 +140,9 @@ class Previewer:
         self.prepared = None
         self.cache = cache_dir(project)
         self._pdf_thread: threading.Thread | None = None
+        self._pdf_cv = threading.Condition()
+        self._pdf_want = None
+        self._pdf_busy = False
 
     def rebuild(self, changed: set[str] | None = None) -> bool:
         """One cycle: the site now, the PDF queued.  False (and a notice) on failure."""
@@ -170,30 +173,42 @@ class Previewer:
         return True
 
     def wait(self) -> None:
-        """Let a PDF being printed finish (before its folder is removed)."""
-        if self._pdf_thread is not None:
-            self._pdf_thread.join()
+        """Return when no PDF is being printed or waiting to be."""
+        with self._pdf_cv:
+            while self._pdf_want is not None or self._pdf_busy:
+                self._pdf_cv.wait()
 
     def _start_pdf(self, prepared, target: Path, generation: int) -> None:
-        def run():
-            from specgen.build import preview_pdf
+        """Ask for the PDF of this generation; the printer thread takes the newest request,
+        so a site rebuild never waits for a PDF (a superseded PDF is discarded)."""
+        with self._pdf_cv:
+            self._pdf_want = (prepared, target, generation)
+            self._pdf_cv.notify_all()
+            if self._pdf_thread is None:
+                self._pdf_thread = threading.Thread(target=self._printer, daemon=True)
+                self._pdf_thread.start()
+
+    def _printer(self) -> None:
+        from specgen.build import preview_pdf
+        while True:
+            with self._pdf_cv:
+                while self._pdf_want is None:
+                    self._pdf_cv.wait()
+                (prepared, target, generation), self._pdf_want = self._pdf_want, None
+                self._pdf_busy = True
             try:
                 pdf = preview_pdf(prepared, target, cache_dir=self.cache, progress=self.progress)
+                outcome, text = ("ready", pdf.name), f"PDF of {target.name} ready"
             except Exception as exc:  # noqa: BLE001 - reported on the pages, never fatal
-                with self.state.lock:
-                    if self.state.generation == generation:
-                        self.state.pdf = "failed"
-                self.say(f"PDF not printed: {exc}")
-                return
+                outcome, text = ("failed", ""), f"PDF not printed: {exc}"
             with self.state.lock:
-                if self.state.generation == generation:
-                    self.state.pdf, self.state.pdf_name = "ready", pdf.name
-            self.say(f"PDF of {target.name} ready")
-        previous = self._pdf_thread
-        if previous is not None and previous.is_alive():
-            previous.join()   # one PDF at a time; a newer generation supersedes it
-        self._pdf_thread = threading.Thread(target=run, daemon=True)
-        self._pdf_thread.start()
+                current = self.state.generation == generation
+                if current:
+                    self.state.pdf, self.state.pdf_name = outcome
+            self.say(text if current else f"{text} (superseded by a newer edit)")
+            with self._pdf_cv:
+                self._pdf_busy = False
+                self._pdf_cv.notify_all()
 
 
 def watch(project: Path, on_change, stop: threading.Event) -> None:
