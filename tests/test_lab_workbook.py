@@ -182,3 +182,14 @@ def test_cli_lab_workbook_refuses_to_overwrite(cli, demo_copy, tmp_path):
     assert again.exit_code == 2 and "Traceback" not in again.output
     assert f"{target}: already exists. Fix: name another file with --out" in again.output
     assert target.read_bytes() == before
+
+
+def test_a_specimen_in_both_the_csv_and_a_workbook_is_refused(workbook):
+    project_dir, path, _ = workbook
+    wb = openpyxl.load_workbook(path)
+    wb["strength"]["A2"] = "M1-28d-C1"            # already in lab/strength.csv, row 20
+    wb["strength"]["E2"] = 4.7
+    wb.save(project_dir / "lab" / "results.xlsx")
+    assert ("lab/results.xlsx, sheet 'strength', cell A2: specimen: specimen 'M1-28d-C1' is "
+            "also reported in lab/strength.csv, row 20. Fix: report each specimen once: remove "
+            "one of the two rows.") in _problems(project_dir)

@@ -241,9 +241,11 @@ def _unique_specimens(strength: list, log: ProblemLog) -> None:
     for r in strength:
         seen = first.setdefault(r.specimen, r)
         if seen is not r and seen.file != r.file:
+            # a workbook's strength rows are on its sheet 'strength', the id in column A
+            sheet = {"sheet": "strength", "cell": f"A{r.row}"} if r.file.endswith(".xlsx") else {}
             log.add(r.file, f"specimen '{r.specimen}' is also reported in {seen.file}, row "
                     f"{seen.row}.", row=r.row, field="specimen",
-                    fix="report each specimen once: remove one of the two rows.")
+                    fix="report each specimen once: remove one of the two rows.", **sheet)
 
 
 def _index(items, kind: str, rel: str, key: str, located: dict, log: ProblemLog,
