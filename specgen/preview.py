@@ -102,7 +102,8 @@ def handler_for(out: Path, state: State):
                 text = file.read_text(encoding="utf-8")
                 text = _BODY.sub(lambda m: m.group(0) + bar(state), text, count=1)
                 return self._send(text.encode("utf-8"), "text/html; charset=utf-8")
-            return super().do_GET()
+            # served from the resolved file: a bare address's assets live in the revision
+            return self._send(file.read_bytes(), self.guess_type(str(file)))
 
         def _resolve(self, path: str) -> Path | None:
             rel = path.lstrip("/")
@@ -211,8 +212,10 @@ class Previewer:
                 self._pdf_cv.notify_all()
 
 
-def watch(project: Path, on_change, stop: threading.Event) -> None:
-    """Call ``on_change(paths)`` after file events in ``project`` settle (watchdog)."""
+def watch(project: Path, on_change, stop: threading.Event,
+          started: threading.Event | None = None) -> None:
+    """Call ``on_change(paths)`` after file events in ``project`` settle (watchdog);
+    ``started`` is set once the folder is being watched."""
     from watchdog.events import FileSystemEventHandler
     from watchdog.observers import Observer
     pending: set[str] = set()
@@ -237,6 +240,8 @@ def watch(project: Path, on_change, stop: threading.Event) -> None:
     observer = Observer()
     observer.schedule(Collect(), str(root), recursive=True)
     observer.start()
+    if started is not None:
+        started.set()
     try:
         while not stop.is_set():
             if not event.wait(0.2):

@@ -20,6 +20,8 @@ def served(tmp_path):
     (out / "R1" / "index.html").write_text("<html><body><h1>Summary</h1></body></html>")
     (out / "R1" / "strength.html").write_text("<html><body class=x><h1>Strength</h1></body></html>")
     (out / "R1" / "P-R1.pdf").write_bytes(b"%PDF-1.7")
+    (out / "R1" / "assets").mkdir()
+    (out / "R1" / "assets" / "site.css").write_text("body{color:#111}")
     state = State()
     server = http.server.ThreadingHTTPServer(("127.0.0.1", 0), handler_for(out, state))
     threading.Thread(target=server.serve_forever, daemon=True).start()
@@ -58,6 +60,8 @@ def test_bare_page_address_answers_the_current_revision_with_the_bar(served):
     state.pdf, state.pdf_name = "ready", "P-R1.pdf"
     assert '<a href="/R1/P-R1.pdf">PDF</a>' in get(base + "/R1/strength.html")[1]
     assert get(base + "/R1/P-R1.pdf")[0] == 200
+    # the page's own relative links (assets/…) resolve from a bare address too
+    assert get(base + "/assets/site.css") == (200, "body{color:#111}")
     assert get(base + "/nothing.html")[0] == 404
     assert get(base + "/..%2f..%2fetc/passwd")[0] == 404
 
@@ -76,14 +80,14 @@ def test_a_page_not_rebuilt_carries_the_error_text(served):
 def test_watcher_reports_changed_files_and_ignores_editor_droppings(tmp_path):
     project = tmp_path / "p"
     (project / "narrative").mkdir(parents=True)
-    seen, stop = [], threading.Event()
+    seen, stop, started = [], threading.Event(), threading.Event()
 
     def changed(paths):
         seen.append(paths)
         stop.set()
-    thread = threading.Thread(target=watch, args=(project, changed, stop), daemon=True)
+    thread = threading.Thread(target=watch, args=(project, changed, stop, started), daemon=True)
     thread.start()
-    time.sleep(0.5)
+    assert started.wait(60)
     (project / "narrative" / ".summary.md.swp").write_text("x")
     (project / "narrative" / "summary.md").write_text("New text.")
     thread.join(timeout=30)
