@@ -193,13 +193,13 @@ def _merged_rows(ws, rel: str, log: ProblemLog) -> set[int]:
 
 def _same_headers(headers: list[str], written: list[str], letters: dict, sheet: str, rel: str,
                   log: ProblemLog) -> bool:
+    from openpyxl.utils import get_column_letter
     ok = True
     for i, want in enumerate(written):
         got = headers[i] if i < len(headers) else ""
         if got == want:
             continue
         ok = False
-        from openpyxl.utils import get_column_letter
         (wname, wunit), (gname, gunit) = split_header(want), split_header(got)
         if gname == wname and wunit:
             msg = f"the unit in the header was changed from '{wunit}' to '{gunit or ''}'."
