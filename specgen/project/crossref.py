@@ -27,10 +27,11 @@ def _ref(log, located, rel, path, value, known: dict, what: str) -> None:
 
 def _raw_ids(located: dict[str, Located], rel: str, key: str) -> dict:
     """Ids of the list ``key`` as written in ``rel`` (parsed, not validated); SKIP when the
-    file could not be parsed or an entry's id is unreadable."""
+    file could not be parsed, the list is missing or empty, or an entry's id is unreadable
+    (then the file's own problem is the one to fix, and no follow-on error is reported)."""
     loc = located.get(rel)
-    items = loc.data.get(key, []) if loc is not None and isinstance(loc.data, dict) else None
-    if not isinstance(items, list):
+    items = loc.data.get(key) if loc is not None and isinstance(loc.data, dict) else None
+    if not isinstance(items, list) or not items:
         return SKIP
     ids = {}
     for item in items:
