@@ -23,10 +23,35 @@ from specgen.project import Project, load_project
 from specgen.project.load import ARCHIVE_DIR
 
 
+def reference_names() -> tuple[set[str], set[str]]:
+    """What a review comment may be about: every check code and every page of the dossier
+    (the check and chapter registries; loading knows neither)."""
+    from specgen.checks.registry import checks
+    from specgen.report.chapters import chapters
+    return ({s.code for s in checks()},
+            {c.path.rsplit(".", 1)[0] for c in chapters()} | {"summary"})
+
+
+def _load(project_dir) -> Project:
+    return load_project(project_dir, names=reference_names())
+
+
 def check(project_dir: Path | str) -> tuple[Project, Results]:
     """Load the project and run every check (no output written)."""
-    project = load_project(project_dir)
+    project = _load(project_dir)
     return project, evaluate(project)
+
+
+def import_comments(project_dir: Path | str, review_file: Path | str,
+                    out_dir: Path | str) -> list[str]:
+    """Take a reviewer's exported comment file into the project's ``comments.yaml``.
+
+    The comments are checked against the revision they were made on, as published in
+    ``out_dir``; those already taken in are skipped.  Returns the ids given to new comments.
+    """
+    from specgen.project.review_file import take_in
+    project = _load(project_dir)
+    return take_in(project, Path(review_file), Path(out_dir))
 
 
 def missing(project_dir: Path | str):
@@ -43,7 +68,7 @@ def lab_workbook(project_dir: Path | str, path: Path | str | None = None, *,
     returns where and the rows per sheet.  Default file: ``<code>-<revision>-lab.xlsx``."""
     from specgen.errors import UsageError
     from specgen.labbook import write_workbook
-    project = load_project(project_dir)
+    project = _load(project_dir)
     code = project.dossier.project.code
     target = Path(path or f"{code}-{project.revision.code}-lab.xlsx")
     if target.exists() and not overwrite:
@@ -63,7 +88,7 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str = "a4"
     ``progress(step, done=None, total=None)`` hears each stage as it starts and, where the
     work is counted (the PDF's parts), how much of it is done."""
     progress("load: reading and validating the project folder")
-    project = load_project(project_dir)
+    project = _load(project_dir)
     archived = _load_archive(Path(project_dir), project)
     out = Path(out_dir)
     from specgen.report import cache
@@ -120,7 +145,7 @@ def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | N
     from specgen.report import cache
     from specgen.report.render import render
     progress("load: reading and validating the project folder")
-    project = load_project(project_dir)
+    project = _load(project_dir)
     key = _data_key(project)
     if reuse is not None and reuse.data_key == key:
         results = reuse.results
@@ -158,7 +183,7 @@ def _load_archive(root: Path, current: Project) -> list[Project]:
     problems, found = [], []
     for sub in sorted(p for p in folder.iterdir() if p.is_dir()):
         try:
-            old = load_project(sub)
+            old = _load(sub)
         except InputErrors as exc:
             problems += [replace(p, file=f"{ARCHIVE_DIR}/{sub.name}/{p.file}")
                          for p in exc.problems]

@@ -140,6 +140,27 @@ def serve(directory: Path, port: int) -> None:
         _fail(exc)
 
 
+@cli.command("import-comments")
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.argument("review_file", type=click.Path(dir_okay=False, path_type=Path))
+@click.option("--out", "out", type=click.Path(file_okay=False, path_type=Path), default=None,
+              help="output folder holding the revision commented on "
+                   "(default: DIRECTORY/../<folder name>-site)")
+def import_comments(directory: Path, review_file: Path, out: Path | None) -> None:
+    """Take a reviewer's comment file (exported from the site) into comments.yaml."""
+    from specgen.build import import_comments as run_import
+    out = out or directory.resolve().parent / f"{directory.resolve().name}-site"
+    try:
+        ids = run_import(directory, review_file, out)
+    except SpecgenError as exc:
+        _fail(exc)
+    if ids:
+        click.echo(f"{len(ids)} new comment{'s' if len(ids) != 1 else ''} added to "
+                   f"{directory / 'comments.yaml'}: {', '.join(ids)}")
+    else:
+        click.echo(f"No new comment: every comment in {review_file} was taken in before.")
+
+
 @cli.command()
 @click.argument("out", type=click.Path(file_okay=False, path_type=Path))
 @click.option("--from", "old", required=True, help="earlier revision code")

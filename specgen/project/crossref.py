@@ -43,7 +43,7 @@ def _raw_ids(located: dict[str, Located], rel: str, key: str) -> dict:
 
 
 def check_references(project, located: dict[str, Located], log: ProblemLog,
-                     failed: set[str] = frozenset()) -> None:
+                     failed: set[str] = frozenset(), names=None) -> None:
     """Record a problem for every dangling id and every implausible analysis total.
 
     References into a file that itself failed to load are not checked: its own
@@ -104,36 +104,40 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
                     fix="check for a mistyped value, a missing LOI, or values not in mass %.")
     if mixes is not SKIP:
         _strength_refs(project.strength, mixes, log)
-    _comment_refs(project, located.get("comments.yaml"), log)
+    _comment_refs(project, located.get("comments.yaml"), log, names)
     if project.specification is not None:
         specification_refs(project, located.get("specification.yaml"), log, mixes)
 
 
-# Pages a comment may name (the stems of the dossier's chapter files).
-PAGES = ("index", "summary", "scope", "composition", "strength", "compatibility", "works",
-         "specification", "calculations", "cautions", "references", "history", "changes",
-         "comments", "inputs")
+def _comment_refs(project, located, log: ProblemLog, names) -> None:
+    """A comment must name an existing check code (optionally /subject) or a page.
 
-
-def _comment_refs(project, located, log: ProblemLog) -> None:
-    """A comment must name an existing check code (optionally /subject) or a page."""
-    from specgen.checks.registry import checks
-    codes = {s.code for s in checks()}
+    ``names`` (check codes, page stems) comes from the pipeline, which knows the check and
+    chapter registries; loading knows neither.  Without it only the revisions are checked.
+    """
     for i, c in enumerate(project.comments):
         if c.status == "closed" and not c.closed_in:
             log.add("comments.yaml", f"comment '{c.id}' is closed but says not in which revision.",
                     line=located.line_of(("comments", i)) if located else None,
                     field=f"comments[{i}].closed_in", fix="add 'closed_in: <revision>'.")
-        code, _, subject = c.about.partition("/")
-        if c.about in PAGES or (code in codes and (not subject or subject in _subjects(project))):
+        if names is None:
             continue
-        hint = did_you_mean(c.about, sorted(codes) + list(PAGES))
+        codes, pages = names
+        code, _, subject = c.about.partition("/")
+        if _is_page(c.about, pages) or (code in codes and (not subject or subject in _subjects(project))):
+            continue
+        hint = did_you_mean(c.about, sorted(codes) + sorted(pages))
         log.add("comments.yaml", f"comment '{c.id}' is about '{c.about}', which is neither a check "
                 "code nor a page of the dossier.",
                 line=located.line_of(("comments", i, "about")) if located else None,
                 field=f"comments[{i}].about",
                 fix=hint or f"use a check code ({', '.join(sorted(codes))}) or a page "
-                            f"({', '.join(PAGES)}).")
+                            f"({', '.join(sorted(pages))}).")
+
+
+def _is_page(about: str, pages) -> bool:
+    """A page stem, or a page of a chapter's family (``card-M1`` of ``card``)."""
+    return about in pages or about.partition("-")[0] in pages
 
 
 def _subjects(project) -> set[str]:

@@ -120,7 +120,9 @@ def validate(located: Located, model: type[BaseModel], rel: str, log: ProblemLog
                 if isinstance(found, (dict, list)) or repr(found) in msg or str(found) in msg:
                     msg = msg.rstrip(".") + "."
                 else:
-                    msg = f"{msg} (found {found!r})."
+                    shown = repr(found)   # an offending value is quoted, not echoed whole
+                    shown = shown if len(shown) <= 80 else shown[:79] + "…"
+                    msg = f"{msg} (found {shown})."
                 if msg.startswith("must be greater than zero"):
                     fix = _give(model, loc)
             log.add(rel, msg, line=line, field=_field_path(loc), fix=fix)
@@ -159,8 +161,12 @@ def _escaping_links(root: Path, log: ProblemLog) -> None:
                     fix="copy the file into the project folder instead of linking it.")
 
 
-def load_project(root: Path | str) -> Project:
-    """Read and validate a project folder; raise :class:`~specgen.errors.InputErrors` on problems."""
+def load_project(root: Path | str, names=None) -> Project:
+    """Read and validate a project folder; raise :class:`~specgen.errors.InputErrors` on problems.
+
+    ``names`` — (check codes, page stems) that review comments may be about — is handed in by
+    the pipeline, which knows the registries; without it comments' subjects are not checked.
+    """
     root = Path(root)
     log = ProblemLog()
     if not (root / ROOT_FILE).is_file():
@@ -208,7 +214,7 @@ def load_project(root: Path | str) -> Project:
                                                ARCHIVE_DIR, log)
     from specgen.project.crossref import check_references
     failed = {name for name in DOCUMENTS if (root / name).is_file() and docs.get(name) is None}
-    check_references(project, located, log, failed)
+    check_references(project, located, log, failed, names)
     from specgen.project.works_inputs import works_problems
     works_problems(project, located, log, failed)
     log.raise_if_any()

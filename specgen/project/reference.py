@@ -64,7 +64,7 @@ def markdown() -> str:
         rows: list = []
         _rows(model, "", rows)
         lines += [f"| `{k}` | {t} | {d} | {m} |" for k, t, d, m in rows] + [""]
-    return "\n".join(lines + lab_lines())
+    return "\n".join(lines + lab_lines() + _review_file())
 
 
 def lab_lines() -> list[str]:
@@ -86,3 +86,18 @@ def lab_lines() -> list[str]:
               "`specgen lab-workbook` writes one pre-filled with the tests the project plans; "
               "macro-enabled and old binary files are refused unopened.", ""]
     return lines
+
+
+def _review_file() -> list[str]:
+    """The reviewer's comment file: not part of the project folder, taken in by
+    ``specgen import-comments PROJECT FILE``."""
+    from specgen.project.review_file import FORMAT, ReviewFile
+    lines = ["## Reviewer's comment file (exported from the site)", "",
+             f"JSON, format `{FORMAT}`, written by the site's Review comments panel and taken into "
+             "`comments.yaml` by `specgen import-comments PROJECT FILE --out OUT` (the comments "
+             "are checked against the revision they were made on, published in OUT; a second "
+             "import of the same file adds nothing).", "",
+             "| key | type / unit | default | meaning |", "|---|---|---|---|"]
+    rows: list = []
+    _rows(ReviewFile, "", rows)
+    return lines + [f"| `{k}` | {t} | {d} | {m} |" for k, t, d, m in rows] + [""]

@@ -18,6 +18,8 @@ from specgen import units
 ID_PATTERN = r"^[A-Za-z0-9][A-Za-z0-9._-]{0,39}$"
 Id = Annotated[str, Field(pattern=ID_PATTERN, description="short identifier: letters, digits, . _ -")]
 Text = Annotated[str, Field(max_length=4000)]
+# an element id in the published site (what a review comment is anchored to)
+ANCHOR_PATTERN = r"^[A-Za-z][A-Za-z0-9_:.-]{0,119}$"
 
 
 def _quantity(kind: str):
@@ -416,6 +418,19 @@ class Comment(Model):
     response: Text = Field("", description="the specifier's response")
     closed_in: Annotated[str, Field(pattern=r"^[A-Za-z0-9][A-Za-z0-9._-]{0,19}$")] | None = Field(
         None, description="revision in which it was closed")
+    category: Literal["question", "required change", "advisory"] | None = Field(
+        None, description="question, required change or advisory")
+    author: Text = Field("", description="who wrote it (name)")
+    organisation: Text = Field("", description="the author's organisation")
+    date: dt.date | None = Field(None, description="date written (YYYY-MM-DD)")
+    anchor: Annotated[str, Field(pattern=ANCHOR_PATTERN)] | None = Field(
+        None, description="the element of the page it is about (its id in the published site), "
+        "set by the comment import")
+    quote: Annotated[str, Field(max_length=2000)] = Field(
+        "", description="the text the reviewer selected, as published in raised_in")
+    key: Annotated[str, Field(pattern=r"^[A-Za-z0-9_-]{8,64}$")] | None = Field(
+        None, description="identity of an imported comment (keeps a second import from "
+        "duplicating it)")
 
 
 class CommentsFile(Model):

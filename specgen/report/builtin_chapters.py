@@ -4,6 +4,7 @@ from __future__ import annotations
 from specgen.report.cautions import cautions_for
 from specgen.report.chapters import badge, chapter, check_rows
 from specgen.report.fmt import num, qty
+from specgen.report.review import open_by_category
 from specgen.report.specification_chapters import specification_summary
 
 PURPOSE_WORDS = {"preliminary": "preliminary", "for_approval": "for approval",
@@ -24,6 +25,7 @@ def summary(env) -> dict:
             "purpose": PURPOSE_WORDS[p.revision.purpose], "state": STATE_WORDS[p.revision.status],
             "parties": p.dossier.parties, "overrides": env.rules_overridden,
             "open_comments": sum(1 for c in p.comments if c.status == "open"),
+            "open_by_category": open_by_category(p.comments),
             "previous": env.history.previous if env.history else None,
             **specification_summary(env)}
 

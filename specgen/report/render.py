@@ -7,6 +7,7 @@ note can never inject markup or script into the site or the PDF.
 """
 from __future__ import annotations
 
+import re
 from dataclasses import dataclass, field
 
 import jinja2
@@ -31,7 +32,18 @@ def template_env(project_root) -> jinja2.Environment:
                              lstrip_blocks=True, keep_trailing_newline=True)
     env.filters["num"] = num
     env.filters["cell"] = lambda v: Markup(str(escape(v)).replace("|", "&#124;").replace("\n", " "))
+    env.filters["plain"] = plain
     return env
+
+
+_MARKDOWN_SIGNS = re.compile(r"([\\`*_{}\[\]()#+\-.!|~])")
+
+
+def plain(value) -> Markup:
+    """Text from outside (a reviewer's comment) shown as text: neither HTML nor Markdown
+    can take effect, line breaks become spaces."""
+    text = " ".join(str(value).split())
+    return Markup(escape(_MARKDOWN_SIGNS.sub(r"\\\1", text)))
 
 
 @dataclass
@@ -46,6 +58,14 @@ class RenderEnv:
     citations: Citations = field(default_factory=Citations)
     figures: list = field(default_factory=list)
     tables: int = 0
+    deferred: list = field(default_factory=list)
+
+    def later(self, fn) -> Markup:
+        """A placeholder for Markdown that ``fn(pages)`` writes once every page of the
+        revision is rendered (e.g. whether a commented passage reads the same now)."""
+        from specgen.report.review import later_token
+        self.deferred.append(fn)
+        return later_token(len(self.deferred))
 
     @property
     def rules_overridden(self) -> list:
@@ -111,7 +131,23 @@ def render(project, results, history=None) -> PageSet:
             ctx["narrative"] = _narrative_for(project, "introduction" if stem == "index" else stem)
             text = jenv.get_template(spec.template).render(**ctx)
             pageset.add_page(path, title, text)
+    _resolve_later(env, pageset)
+    from specgen.report.review import CONTEXT_ASSET, review_context
+    pageset.add_asset(CONTEXT_ASSET, review_context(project))
     return pageset
+
+
+def _resolve_later(env: RenderEnv, pageset: PageSet) -> None:
+    """Write the deferred parts into the pages that hold their placeholders."""
+    from specgen.report.review import later_token
+    if not env.deferred:
+        return
+    done = {str(later_token(n)): fn(pageset.pages) for n, fn in enumerate(env.deferred, 1)}
+    for path, text in pageset.pages.items():
+        if "<!--sg-later-" in text:
+            for token, part in done.items():
+                text = text.replace(token, part)
+            pageset.pages[path] = text
 
 
 def _pages_of(spec, made) -> list[tuple[str, str, dict]]:
