@@ -17,8 +17,8 @@ from collections.abc import Callable
 from dataclasses import dataclass, replace
 from pathlib import Path
 
-from specgen.checks.run import Results, evaluate
-from specgen.errors import InputErrors, Problem
+from specgen.checks.run import Previous, Results, evaluate
+from specgen.errors import AuditRefused, InputErrors, Problem, UsageError
 from specgen.project import Project, load_project
 from specgen.project.load import ARCHIVE_DIR
 
@@ -37,9 +37,10 @@ def _load(project_dir) -> Project:
 
 
 def check(project_dir: Path | str) -> tuple[Project, Results]:
-    """Load the project and run every check (no output written)."""
+    """Load the project and run every check and the audit (no output written)."""
     project = _load(project_dir)
-    return project, evaluate(project)
+    archived = _load_archive(Path(project_dir), project)
+    return project, evaluate(project, previous=_previous(archived[-1] if archived else None))
 
 
 def import_comments(project_dir: Path | str, review_file: Path | str,
@@ -81,41 +82,111 @@ def _quiet(step: str, done: int | None = None, total: int | None = None) -> None
     pass
 
 
+def _previous(old: Project | None) -> Previous | None:
+    """What the audit and the change report compare a revision with: the issued one before."""
+    if old is None:
+        return None
+    rev = old.revision
+    return Previous(rev.code, rev.date.isoformat(), rev.description,
+                    evaluate(old).to_dict(), {f.path: f.sha256 for f in old.inputs})
+
+
+def blocks(project: Project) -> bool:
+    """Whether open blocking findings stop this revision from being built: issued for
+    construction, or for approval when the project asks for that."""
+    rev = project.revision
+    strict = project.dossier.document_control.block_for_approval
+    return rev.status == "issued" and (rev.purpose == "for_construction"
+                                       or (strict and rev.purpose == "for_approval"))
+
+
+def refuse_if_findings(project: Project, results: Results) -> None:
+    """Stop (exit 1) with the list when an issued revision still has blocking findings."""
+    found = results.blocking()
+    if found and blocks(project):
+        raise AuditRefused(project.revision, found)
+
+
 def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str = "a4",
-          progress: Callable[..., None] = _quiet) -> Path:
+          progress: Callable[..., None] = _quiet, rebuild: dict[str, str] | None = None) -> Path:
     """Build the project's revision (and missing archived ones) into ``out_dir/<revision>/``.
 
-    ``progress(step, done=None, total=None)`` hears each stage as it starts and, where the
-    work is counted (the PDF's parts), how much of it is done."""
+    ``rebuild`` maps an issued revision's code to the reason for rebuilding it from inputs
+    that changed after it was issued (recorded in its manifest); without it such a change
+    stops the build before anything is written.  ``progress(step, done=None, total=None)``
+    hears each stage as it starts and, where the work is counted (the PDF's parts), how much
+    of it is done.
+    """
     progress("load: reading and validating the project folder")
     project = _load(project_dir)
     archived = _load_archive(Path(project_dir), project)
     out = Path(out_dir)
+    stale = frozen_inputs(out, archived, rebuild or {})
+    previous = [None] + archived
+    progress("check: running the checks and the consistency audit")
+    results = evaluate(project, previous=_previous(previous[-1]))
+    refuse_if_findings(project, results)
     from specgen.report import cache
     # unchanged figures and math are reused from the output folder's artefact cache;
     # after a complete build it keeps only what this build used
     with cache.using(out / cache.CACHE_DIR) as used:
-        for old in archived:
-            if not (out / old.revision.code / "manifest.json").is_file():
+        for old, before in zip(archived, previous):
+            if old.revision.code in stale:
                 progress(f"revision {old.revision.code} (issued, from {ARCHIVE_DIR}/)")
-                _build_one(old, out, page_size, progress)
-        built = _build_one(project, out, page_size, progress)
+                old_results = evaluate(old, previous=_previous(before))
+                _build_one(old, old_results, out, page_size, progress,
+                           superseded=_next_issued(archived, old),
+                           rebuilt=(rebuild or {}).get(old.revision.code))
+        built = _build_one(project, results, out, page_size, progress)
     cache.prune(out / cache.CACHE_DIR, used)
     return built
 
 
-def _build_one(project: Project, out: Path, page_size: str, progress) -> Path:
+def _next_issued(archived: list[Project], old: Project) -> str | None:
+    later = [p.revision.code for p in archived if (p.revision.date, p.revision.code)
+             > (old.revision.date, old.revision.code)]
+    return later[0] if later else None
+
+
+def frozen_inputs(out: Path, archived: list[Project], rebuild: dict[str, str]) -> set[str]:
+    """Codes of the archived revisions to build: those not built as issued into ``out``, and
+    those told to ``rebuild``.  An issued revision whose inputs changed after its manifest
+    was written stops the build (nothing written) unless it is told to rebuild."""
+    from specgen.publish.output import issued_manifest
+    todo, problems = set(), []
+    for old in archived:
+        code, now = old.revision.code, {f.path: f.sha256 for f in old.inputs}
+        manifest = issued_manifest(out / code)
+        if manifest is None or code in rebuild:
+            todo.add(code)
+            continue
+        then = manifest.get("inputs", {})
+        changed = sorted(k for k in set(then) | set(now) if then.get(k) != now.get(k))
+        for path in changed:
+            what = ("was added" if path not in then else "was removed" if path not in now
+                    else "was changed")
+            problems.append(Problem(
+                f"{ARCHIVE_DIR}/{code}/{path}", f"{what} after revision {code} was issued (its "
+                f"inputs are hashed in {out / code / 'manifest.json'}); an issued revision is "
+                "frozen.", fix=f"restore the file as issued (the PDF of {code} carries it as the "
+                f"attachment input/{path}), or rebuild {code} from the changed inputs with "
+                f"--rebuild-issued {code} --reason \"why\", which records the reason."))
+    if problems:
+        raise InputErrors(problems)
+    return todo
+
+
+def _build_one(project: Project, results: Results, out: Path, page_size: str, progress,
+               superseded: str | None = None, rebuilt: str | None = None) -> Path:
     from specgen.publish import publish
     from specgen.publish.history import history_for
     from specgen.report.render import render
-    progress("check: running the checks")
-    results = evaluate(project)
     history = history_for(out, project, results)
     progress("render: pages, figures and calculation sheets")
-    pages = render(project, results, history)
+    pages = render(project, results, history, superseded=superseded)
     _fix_dates(project.revision.date)
     return publish(project, results, pages, out, page_size=page_size, progress=progress,
-                   changes=history.changes)
+                   changes=results.changes, superseded=superseded, rebuilt=rebuilt)
 
 
 # --------------------------------------------------------------------- live preview
@@ -150,8 +221,9 @@ def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | N
     if reuse is not None and reuse.data_key == key:
         results = reuse.results
     else:
-        progress("check: running the checks")
-        results = evaluate(project)
+        archived = _load_archive(Path(project_dir), project)
+        progress("check: running the checks and the consistency audit")
+        results = evaluate(project, previous=_previous(archived[-1] if archived else None))
     progress("render: pages, figures and calculation sheets")
     with cache.using(cache_dir or Path(out_dir) / cache.CACHE_DIR):
         pages = render(project, results, history_for(Path(out_dir), project, results))
@@ -181,7 +253,8 @@ def _load_archive(root: Path, current: Project) -> list[Project]:
     if not folder.is_dir():
         return []
     problems, found = [], []
-    for sub in sorted(p for p in folder.iterdir() if p.is_dir()):
+    # a dot-folder is an issue in progress (or one a crash left), not an issued revision
+    for sub in sorted(p for p in folder.iterdir() if p.is_dir() and not p.name.startswith(".")):
         try:
             old = _load(sub)
         except InputErrors as exc:
@@ -208,3 +281,86 @@ def _fix_dates(date: dt.date) -> None:
     """Reproducible output: every date stamped by the toolchain is the revision date."""
     epoch = int(dt.datetime(date.year, date.month, date.day, tzinfo=dt.timezone.utc).timestamp())
     os.environ["SOURCE_DATE_EPOCH"] = str(epoch)
+
+
+# ---------------------------------------------------------------- the life of a revision
+def issue(project_dir: Path | str, out_dir: Path | str, *, date: dt.date | None = None,
+          purpose: str | None = None, next_code: str | None = None, page_size: str = "a4",
+          progress: Callable[[str], None] = _quiet) -> dict:
+    """Issue the current draft: freeze its inputs into ``issued/<code>/`` with the date and
+    purpose, build it (manifest stamped ``issued``), then open the next draft revision.
+
+    Refused (nothing changed) when the revision is already issued or, for construction, while
+    the audit has blocking findings."""
+    from specgen.publish import archive
+    root = Path(project_dir)
+    project = _load(root)
+    rev = project.revision
+    if rev.status == "issued":
+        raise UsageError(f"{root / 'dossier.yaml'}: revision {rev.code} is already issued. Fix: "
+                         "raise a new draft revision (revision.code, status: draft) first.")
+    archived = _load_archive(root, project)
+    new_code = next_code or archive.next_code(rev.code)
+    when = date or dt.datetime.now(dt.timezone.utc).date()
+    progress(f"issue: freezing the inputs of {rev.code} into {ARCHIVE_DIR}/{rev.code}/")
+    staging = archive.freeze(project, ARCHIVE_DIR, {
+        "status": "issued", "date": when.isoformat(), "purpose": purpose or rev.purpose})
+    try:
+        issued = _load(staging)
+        results = evaluate(issued, previous=_previous(archived[-1] if archived else None))
+        refuse_if_findings(issued, results)
+        built = _build_one(issued, results, Path(out_dir), page_size, progress)
+        archive.commit(staging, rev.code)
+    finally:
+        if staging.exists():
+            import shutil
+            shutil.rmtree(staging, ignore_errors=True)
+    archive.open_next(root, new_code, when, rev.code)
+    return {"issued": rev.code, "folder": built, "next": new_code,
+            "findings": len(results.findings)}
+
+
+def status(project_dir: Path | str) -> dict:
+    """Where the project stands: revision, last issue, open findings, hold points, comments,
+    and what changed since the last issue."""
+    project, results = check(project_dir)
+    rev, code = project.revision, project.dossier.project.code
+    holds = results.value(code, "hold_points") or {}
+    return {"project": code, "revision": rev.code, "status": rev.status,
+            "purpose": rev.purpose.replace("_", " "), "date": rev.date.isoformat(),
+            "last_issued": results.previous, "blocks": blocks(project),
+            "findings": [f.to_dict() for f in results.findings],
+            "hold_points": sorted(k for k, v in holds.items() if v["state"] == "open"),
+            "comments": sorted(c.id for c in project.comments if c.status == "open"),
+            "facts": results.facts, "counts": results.counts()}
+
+
+def diff(out_dir: Path | str, old: str, new: str) -> dict:
+    """The change report between two revisions built into ``out_dir``."""
+    from specgen.checks.revision_delta import compare
+    from specgen.publish.history import find
+    a, b = find(Path(out_dir), old), find(Path(out_dir), new)
+    return compare(a.results, a.manifest.get("inputs", {}), b.results,
+                   b.manifest.get("inputs", {}))
+
+
+def diff_text(changes: dict) -> str:
+    """The change report as text (what ``specgen diff`` prints)."""
+    from specgen.checks.revision_delta import as_text
+    return as_text(changes)
+
+
+def verify(revision_dir: Path | str, trust: list[Path] = ()) -> dict:
+    """A built revision against its manifest, and its signatures when it is signed."""
+    from specgen.publish.output import verify as files_match
+    from specgen.publish.signing import verify_signatures
+    report = files_match(Path(revision_dir))
+    report["signatures"] = verify_signatures(Path(revision_dir), list(trust))
+    return report
+
+
+def sign(revision_dir: Path | str, key: Path, cert: Path, *, passphrase: bytes | None = None,
+         chain: list[Path] = ()) -> dict:
+    """Sign an issued revision's PDF (PAdES) and its manifest with the specifier's key."""
+    from specgen.publish.signing import sign_revision
+    return sign_revision(Path(revision_dir), key, cert, passphrase=passphrase, chain=list(chain))

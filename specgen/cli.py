@@ -13,7 +13,7 @@ from pathlib import Path
 import click
 
 from specgen import __version__
-from specgen.errors import InputErrors, SpecgenError
+from specgen.errors import InputErrors, SpecgenError, UsageError
 
 
 def _fail(exc: SpecgenError) -> None:
@@ -102,23 +102,84 @@ def lab_workbook(directory: Path, out: Path | None, force: bool) -> None:
                f"Filled in, it goes in {directory}/lab/.")
 
 
+def _default_out(directory: Path) -> Path:
+    return directory.resolve().parent / f"{directory.resolve().name}-site"
+
+
+def _progress(quiet: bool):
+    """The progress display (specgen/console.py): rich on a terminal inside ``with``, plain
+    lines otherwise."""
+    from specgen.console import Progress
+    return Progress(click.get_text_stream("stderr"), quiet=quiet)
+
+
 @cli.command()
 @click.argument("directory", type=click.Path(path_type=Path))
 @click.option("--out", "out", type=click.Path(file_okay=False, path_type=Path), default=None,
               help="output folder (default: DIRECTORY/../<folder name>-site)")
 @click.option("--page-size", type=click.Choice(["a4", "letter"]), default="a4", show_default=True)
 @click.option("--quiet", is_flag=True, help="no progress display")
-def build(directory: Path, out: Path | None, page_size: str, quiet: bool) -> None:
+@click.option("--rebuild-issued", "rebuild", multiple=True, metavar="REV",
+              help="rebuild issued revision REV although its inputs changed (needs --reason)")
+@click.option("--reason", default=None, help="why the issued revision is rebuilt (recorded in "
+              "its manifest)")
+def build(directory: Path, out: Path | None, page_size: str, quiet: bool, rebuild: tuple,
+          reason: str | None) -> None:
     """Build the site and PDF of the project's revision into OUT/<revision>/."""
     from specgen.build import build as run_build
-    from specgen.console import Progress
-    out = out or directory.resolve().parent / f"{directory.resolve().name}-site"
+    if rebuild and not (reason or "").strip():
+        _fail(UsageError("--rebuild-issued needs --reason \"why\" (it is recorded in the "
+                         "revision's manifest)."))
     try:
-        with Progress(click.get_text_stream("stderr"), quiet=quiet) as progress:
-            target = run_build(directory, out, page_size=page_size, progress=progress)
+        with _progress(quiet) as progress:
+            target = run_build(directory, out or _default_out(directory), page_size=page_size,
+                               progress=progress, rebuild={r: reason for r in rebuild})
     except SpecgenError as exc:
         _fail(exc)
     click.echo(f"Built {target} (open {target / 'index.html'})")
+
+
+@cli.command("issue")
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.option("--out", "out", type=click.Path(file_okay=False, path_type=Path), default=None,
+              help="output folder (default: DIRECTORY/../<folder name>-site)")
+@click.option("--date", "date", type=click.DateTime(["%Y-%m-%d"]), default=None,
+              help="issue date (default: today, UTC)")
+@click.option("--purpose", type=click.Choice(["preliminary", "for_approval", "for_construction"]),
+              default=None, help="what it is issued for (default: revision.purpose)")
+@click.option("--next", "next_code", default=None, help="code of the next draft (default: the "
+              "number raised by one)")
+@click.option("--page-size", type=click.Choice(["a4", "letter"]), default="a4", show_default=True)
+@click.option("--quiet", is_flag=True, help="no progress display")
+def issue_cmd(directory: Path, out, date, purpose, next_code, page_size: str, quiet: bool) -> None:
+    """Issue the current draft: freeze its inputs under issued/, build it, open the next draft."""
+    from specgen.build import issue
+    try:
+        done = issue(directory, out or _default_out(directory), date=date.date() if date else None,
+                     purpose=purpose, next_code=next_code, page_size=page_size,
+                     progress=_progress(quiet))
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(f"Issued {done['issued']} into {done['folder']}; inputs frozen in "
+               f"{directory / 'issued' / done['issued']}; the project is now draft {done['next']}."
+               + (f" The audit lists {done['findings']} finding(s) on its Open findings page."
+                  if done["findings"] else ""))
+
+
+@cli.command("status")
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text",
+              show_default=True)
+def status_cmd(directory: Path, fmt: str) -> None:
+    """Where the project stands: revision, findings, hold points, comments, changes."""
+    from specgen.build import status
+    from specgen.textreport import status_text
+    try:
+        report = status(directory)
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(json.dumps(report, indent=2, sort_keys=True) if fmt == "json"
+               else status_text(report))
 
 
 @cli.command()
@@ -168,22 +229,24 @@ def import_comments(directory: Path, review_file: Path, out: Path | None) -> Non
 @click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text",
               show_default=True)
 def diff(out: Path, old: str, new: str, fmt: str) -> None:
-    """Print what changed between two revisions built into OUT."""
-    from specgen.publish.history import as_text, between
+    """Print what changed between two revisions built into OUT (the decision first)."""
+    from specgen.build import diff as run_diff, diff_text
     try:
-        changes = between(out, old, new)
+        changes = run_diff(out, old, new)
     except SpecgenError as exc:
         _fail(exc)
-    click.echo(json.dumps(changes, indent=2, sort_keys=True) if fmt == "json" else as_text(changes))
+    click.echo(json.dumps(changes, indent=2, sort_keys=True) if fmt == "json" else diff_text(changes))
 
 
 @cli.command()
 @click.argument("revision_dir", type=click.Path(file_okay=False, path_type=Path))
-def verify(revision_dir: Path) -> None:
-    """Check a built revision against its manifest (exit 1 on any difference)."""
-    from specgen.publish.output import verify as run_verify
+@click.option("--trust", multiple=True, type=click.Path(dir_okay=False, path_type=Path),
+              help="certificate (PEM) to trust as a root when checking signatures")
+def verify(revision_dir: Path, trust: tuple) -> None:
+    """Check a built revision against its manifest and signatures (exit 1 on any difference)."""
+    from specgen.build import verify as run_verify
     try:
-        report = run_verify(revision_dir)
+        report = run_verify(revision_dir, list(trust))
     except SpecgenError as exc:
         _fail(exc)
     bad = False
@@ -191,9 +254,36 @@ def verify(revision_dir: Path) -> None:
         for path in report[kind]:
             bad = True
             click.echo(f"{kind}: {path}")
+    for s in report["signatures"]:
+        bad = bad or not s["intact"]
+        click.echo(f"signature of {s['file']}: {s['summary']}")
     click.echo(f"{revision_dir}: " + ("does NOT match its manifest" if bad
-                                      else "every file matches its manifest"))
+                                      else "every file matches its manifest"
+                                      + (" and every signature is intact" if report["signatures"]
+                                         else "")))
     sys.exit(1 if bad else 0)
+
+
+@cli.command()
+@click.argument("revision_dir", type=click.Path(file_okay=False, path_type=Path))
+@click.option("--key", required=True, type=click.Path(dir_okay=False, path_type=Path),
+              help="the specifier's private key (PEM); read, never copied")
+@click.option("--cert", required=True, type=click.Path(dir_okay=False, path_type=Path),
+              help="the specifier's certificate (PEM)")
+@click.option("--chain", multiple=True, type=click.Path(dir_okay=False, path_type=Path),
+              help="intermediate certificates (PEM)")
+@click.option("--passphrase-env", default=None, metavar="VAR",
+              help="environment variable holding the key's passphrase")
+def sign(revision_dir: Path, key: Path, cert: Path, chain: tuple, passphrase_env) -> None:
+    """Sign an issued revision's PDF (PAdES) and its manifest with the specifier's certificate."""
+    import os
+    from specgen.build import sign as run_sign
+    phrase = os.environ.get(passphrase_env, "").encode() if passphrase_env else None
+    try:
+        done = run_sign(revision_dir, key, cert, passphrase=phrase, chain=list(chain))
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(f"Signed {done['pdf']} and {done['manifest_signature']} as {done['signer']}.")
 
 
 @cli.command()

@@ -83,6 +83,29 @@ class RevisionRefused(PublishError):
     """Rebuilding an issued revision with different inputs."""
 
 
+class AuditRefused(SpecgenError):
+    """An issued revision (for construction, or for approval when the project says so) that
+    the consistency audit finds not ready: exit status 1, with every blocking finding."""
+
+    exit_code = 1
+
+    def __init__(self, revision, findings):
+        self.findings = list(findings)
+        head = (f"revision {revision.code} is issued {revision.purpose.replace('_', ' ')} but the "
+                f"consistency audit has {len(self.findings)} open finding"
+                f"{'s' if len(self.findings) != 1 else ''}; nothing was written:")
+        lines = [head]
+        for f in self.findings:
+            lines.append(f"  - {f.code}: {f.message}")
+            if f.places:
+                lines.append(f"      where: {'; '.join(f.places)}")
+            if f.fix:
+                lines.append(f"      fix: {f.fix}")
+        lines.append("Fix the findings (or build it as a draft: revision.status: draft, which "
+                     "lists them on its Before issue page).")
+        super().__init__("\n".join(lines))
+
+
 def did_you_mean(word: str, choices: Iterable[str]) -> str | None:
     """The nearest valid spelling, phrased for a message, or ``None``."""
     close = difflib.get_close_matches(str(word), list(choices), n=1, cutoff=0.6)

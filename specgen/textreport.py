@@ -49,4 +49,28 @@ def table(results, *, width: int | None = None, wide: bool = False) -> str:
     counts = ", ".join(f"{n} {STATUS_WORDS[s]}" for s, n in results.counts().items() if n)
     lines.append("")
     lines.append(f"{results.project_code} revision {results.revision}: {counts or 'no checks ran'}")
+    blocking = len(results.blocking())
+    if results.findings:
+        lines.append(f"consistency audit: {blocking} finding(s) to resolve before issue, "
+                     f"{len(results.findings) - blocking} value(s) to confirm "
+                     "(specgen status lists them)")
+    return "\n".join(lines)
+
+
+def status_text(s: dict) -> str:
+    """``specgen status`` for people: where the project stands."""
+    lines = [f"{s['project']} revision {s['revision']}: {s['status']}, {s['purpose']}, "
+             f"dated {s['date']}",
+             f"last issued revision: {s['last_issued'] or 'none yet'}"]
+    blocking = [f for f in s["findings"] if f["blocking"]]
+    lines.append(f"open findings: {len(blocking)} to resolve before issue"
+                 + (f", {len(s['findings']) - len(blocking)} values to confirm"
+                    if len(s["findings"]) > len(blocking) else "")
+                 + (" (this revision cannot be built until they are resolved)"
+                    if blocking and s["blocks"] else ""))
+    lines += [f"  - {f['code']}: {f['message']}" for f in blocking]
+    lines.append(f"open hold points: {', '.join(s['hold_points']) or 'none'}")
+    lines.append(f"open review comments: {', '.join(s['comments']) or 'none'}")
+    lines.append("since the last issue:")
+    lines += [f"  {fact}" for fact in s["facts"]] or ["  nothing to compare with"]
     return "\n".join(lines)

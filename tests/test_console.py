@@ -79,7 +79,7 @@ def test_command_line_uses_the_site_status_words():
 
 
 def test_change_report_text_uses_status_words():
-    from specgen.publish.history import as_text, compare
+    from specgen.checks.revision_delta import as_text, compare
     old = {"revision": "R1", "checks": [{"code": "COMP-GRAD", "subject": "Z1/M1", "title": "t",
                                          "status": "not_assessed", "status_word": "not assessed",
                                          "value": None, "unit": ""}]}

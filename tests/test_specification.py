@@ -54,7 +54,7 @@ def test_failing_choice_without_justification_is_an_input_error(cli, demo_copy):
     end = text.index("\nsite_tests:")
     spec.write_text(text[:start] + text[end:], encoding="utf-8")
     out = run_check(cli, demo_copy)
-    assert ("specification.yaml, line 24: selections[2].justification: mix 'M3' chosen for zone "
+    assert ("specification.yaml, line 25: selections[2].justification: mix 'M3' chosen for zone "
             "Z3 fails STR-MIN, and no justification is given. Fix: add 'justification:' saying "
             "why the choice stands despite the failed check, or choose another candidate (each "
             "of the others fails a check too).") in out
@@ -272,13 +272,13 @@ def test_hold_point_released_earlier_cannot_silently_reopen(demo_copy):
 # ------------------------------------------------------------------ bad input
 @pytest.mark.parametrize("old, new, message", [
     ("  - zone: Z3\n    mix: M3", "  - zone: Z3\n    mix: M9",
-     "specification.yaml, line 24: selections[2].mix: names mix 'M9', which is not defined. "
+     "specification.yaml, line 25: selections[2].mix: names mix 'M9', which is not defined. "
      "Fix: define it, or use one of: M1, M2, M3."),
     ("  - zone: Z3\n    mix: M3", "  - zone: Z8\n    mix: M3",
-     "specification.yaml, line 23: selections[2].zone: names zone 'Z8', which is not defined. "
+     "specification.yaml, line 24: selections[2].zone: names zone 'Z8', which is not defined. "
      "Fix: define it, or use one of: Z1, Z2, Z3."),
     ("  - zone: Z3\n    mix: M3", "  - zone: Z1\n    mix: M3",
-     "specification.yaml, line 23: selections[2].zone: zone Z1 is selected twice (also "
+     "specification.yaml, line 24: selections[2].zone: zone Z1 is selected twice (also "
      "selections[0]). Fix: keep one selection per zone."),
     ("  - zone: Z2\n    mix: M2", "  - zone: Z2\n    mix: M3",
      "specification.yaml, line 12: selections[1].mix: mix 'M3' is not a candidate of zone Z2 "
@@ -286,21 +286,21 @@ def test_hold_point_released_earlier_cannot_silently_reopen(demo_copy):
      "candidates in dossier.yaml so that it is appraised."),
     ("    stage: before pointing each lift of Z1\n    released_by: specifier\n",
      "    stage: before pointing each lift of Z1\n",
-     "specification.yaml, line 60: hold_points[3].released_by: hold point 'HP4' names no "
+     "specification.yaml, line 62: hold_points[3].released_by: hold point 'HP4' names no "
      "releasing role. Fix: add 'released_by:' with the role of the party who releases it "
      "(dossier.yaml parties): client, laboratory, reviewer, specifier."),
     ("    released_by: laboratory", "    released_by: labratory",
-     "specification.yaml, line 67: hold_points[4].released_by: hold point 'HP5' names the role "
+     "specification.yaml, line 69: hold_points[4].released_by: hold point 'HP5' names the role "
      "'labratory', which is not a party role in dossier.yaml. Fix: did you mean 'laboratory'?"),
     ("    released_in: R3\n", "",
-     "specification.yaml, line 45: hold_points[0].state: hold point 'HP1' is released but gives "
+     "specification.yaml, line 47: hold_points[0].state: hold point 'HP1' is released but gives "
      "no released_in. Fix: say in which revision it was released and on what evidence, or set "
      "'state: open'."),
     ("    released_in: R3\n", "    released_in: R7\n",
-     "specification.yaml, line 46: hold_points[0].released_in: hold point 'HP1' was released in "
+     "specification.yaml, line 48: hold_points[0].released_in: hold point 'HP1' was released in "
      "'R7', which is neither this revision nor an issued one. Fix: use one of: R3, R1, R2."),
     ("    colour_sample: M3\n", "    colour_sample: M33\n",
-     "specification.yaml, line 101: trial_panels[2].colour_sample: trial panel 'TP3' names colour "
+     "specification.yaml, line 103: trial_panels[2].colour_sample: trial panel 'TP3' names colour "
      "sample 'M33', which is not in lab/colour.csv. Fix: did you mean 'M3'?"),
     ("    judgement: pending\n\ncurrency", "    judgement: pending\n    photo: ../TP4.jpg\n\n"
      "currency", "specification.yaml: trial_panels[3].photo: the path '../TP4.jpg' leaves the "

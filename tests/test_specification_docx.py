@@ -54,7 +54,7 @@ def test_zone_document_has_headings_clauses_and_marking(rendered):
     assert clauses[0].startswith("Z1.1.1\tBinder.")
     assert [c.split("\t")[0] for c in clauses[-7:]] == [f"Z1.7.{i}" for i in range(1, 8)]
     header = doc.sections[0].header.paragraphs[0].text
-    assert header == "WEP-2026, revision R3 of 2026-11-30: DRAFT, not for construction"
+    assert header == "WEP-2026, revision R3 of 2026-11-30: DRAFT — not for construction"
     assert doc.core_properties.created == dt.datetime(2026, 11, 30, tzinfo=dt.timezone.utc)
 
 

@@ -10,10 +10,12 @@ from __future__ import annotations
 from dataclasses import asdict, dataclass, field
 from typing import Literal
 
-Status = Literal["pass", "fail", "attention", "hold", "not_assessed", "info"]
-STATUSES: tuple[str, ...] = ("fail", "hold", "attention", "not_assessed", "pass", "info")
-STATUS_WORDS = {"pass": "pass", "fail": "fail", "attention": "attention", "hold": "hold",
-                "not_assessed": "not assessed", "info": "for information"}
+Status = Literal["pass", "fail", "needs_decision", "attention", "hold", "not_assessed", "info"]
+STATUSES: tuple[str, ...] = ("fail", "needs_decision", "hold", "attention", "not_assessed",
+                             "pass", "info")
+STATUS_WORDS = {"pass": "pass", "fail": "fail", "needs_decision": "needs decision",
+                "attention": "attention", "hold": "hold", "not_assessed": "not assessed",
+                "info": "for information"}
 
 
 @dataclass(frozen=True)
@@ -123,3 +125,24 @@ def not_assessed(code: str, title: str, subject: str, kind: str, basis, reason: 
     return CheckResult(code=code, title=title, subject=subject, subject_kind=kind,
                        status="not_assessed", value=None, unit="", basis=tuple(basis),
                        steps=tuple(steps), message=f"not assessed: {reason}")
+
+
+@dataclass(frozen=True)
+class Finding:
+    """What the consistency audit found wrong with the dossier as a whole (not one check).
+
+    ``places`` are where a reader or the specifier finds it: a page and clause of the dossier
+    or an input file and field.  A ``blocking`` finding stops a revision for construction from
+    being built; the others are listed for the specifier to confirm.
+    """
+
+    code: str
+    title: str
+    message: str
+    places: tuple[str, ...] = ()
+    fix: str = ""
+    subject: str = ""
+    blocking: bool = True
+
+    def to_dict(self) -> dict:
+        return asdict(self)

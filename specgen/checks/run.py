@@ -9,8 +9,8 @@ import json
 from dataclasses import dataclass, field
 
 from specgen import __version__
-from specgen.checks.registry import as_list, checks, is_declared
-from specgen.checks.result import STATUSES, CheckResult, Quantity
+from specgen.checks.registry import as_list, audit_rules, checks, is_declared
+from specgen.checks.result import STATUSES, CheckResult, Finding, Quantity
 from specgen.checks.rules import RuleBook
 
 
@@ -42,6 +42,14 @@ class Results:
     subjects: dict[str, str]  # subject id → kind
     specimens: dict[str, dict] = field(default_factory=dict)  # lab results by specimen id
     comments: list[dict] = field(default_factory=list)        # review comments, as given
+    findings: list[Finding] = field(default_factory=list)     # the consistency audit's
+    previous: str | None = None   # the issued revision this one is compared with
+    changes: dict | None = None   # what changed since it (inputs, results, checks, decisions)
+    facts: list[str] = field(default_factory=list)  # the revision's description, from inputs
+
+    def blocking(self) -> list[Finding]:
+        """Findings that stop a revision for construction (or approval) from being built."""
+        return [f for f in self.findings if f.blocking]
 
     def check(self, code: str, subject: str) -> CheckResult | None:
         """The result of check ``code`` on ``subject`` (None when it did not run).
@@ -84,6 +92,9 @@ class Results:
             "subjects": dict(sorted(self.subjects.items())),
             "specimens": dict(sorted(self.specimens.items())),
             "comments": self.comments,
+            "findings": [f.to_dict() for f in self.findings],
+            "previous": self.previous,
+            "facts": self.facts,
         }
 
     def to_json(self) -> str:
@@ -103,8 +114,39 @@ def subjects_of(project, kind: str) -> list[tuple[str, object]]:
     return [(project.dossier.project.code, project)]
 
 
-def evaluate(project) -> Results:
-    """Run all checks in order; each may record quantities for later ones."""
+@dataclass(frozen=True)
+class Previous:
+    """The issued revision a revision is compared with: its results (results.json content)
+    and the SHA-256 of its input files."""
+
+    code: str
+    date: str
+    description: str
+    results: dict
+    inputs: dict[str, str]
+
+
+@dataclass
+class AuditContext:
+    """What an audit rule reads: the project, every result, the previous issued revision."""
+
+    project: object
+    results: Results
+    previous: Previous | None = None
+
+
+def evaluate(project, previous: Previous | None = None) -> Results:
+    """Run all checks in order (each may record quantities for later ones), then the
+    consistency audit over the whole revision."""
+    results = _run_checks(project)
+    ctx = AuditContext(project, results, previous)
+    results.previous = previous.code if previous else None
+    for rule in audit_rules():
+        results.findings.extend(rule.fn(ctx))
+    return results
+
+
+def _run_checks(project) -> Results:
     ctx = Context(project, RuleBook(project.dossier.rule_overrides))
     out: list[CheckResult] = ctx.results  # later checks (e.g. the selection) read earlier ones
     subjects: dict[str, str] = {}

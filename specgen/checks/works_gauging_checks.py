@@ -123,7 +123,7 @@ def _notes(s: Site) -> list[str]:
     if s.measured or s.life.value >= QUICK:
         return []
     return [f"workable life not measured: the default {s.life.value / 60:g} min is used "
-            "(measure it on the trial mix, EN 1015-9, and give workable_life in mixes.yaml)"]
+            "(measure it on the trial mix, EN 1015-9, and record it with the mix)"]
 
 
 def _result(mix, status, volume, steps, notes, q, msg) -> CheckResult:

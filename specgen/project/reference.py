@@ -64,7 +64,7 @@ def markdown() -> str:
         rows: list = []
         _rows(model, "", rows)
         lines += [f"| `{k}` | {t} | {d} | {m} |" for k, t, d, m in rows] + [""]
-    return "\n".join(lines + lab_lines() + _review_file())
+    return "\n".join(lines + lab_lines() + _review_file() + ARCHIVE_NOTE)
 
 
 def lab_lines() -> list[str]:
@@ -86,6 +86,16 @@ def lab_lines() -> list[str]:
               "`specgen lab-workbook` writes one pre-filled with the tests the project plans; "
               "macro-enabled and old binary files are refused unopened.", ""]
     return lines
+
+
+ARCHIVE_NOTE = [
+    "## `issued/<revision>/`", "",
+    "The inputs of each issued revision, exactly as issued (a complete project folder with "
+    "`revision.status: issued`). Do not copy files here by hand: `specgen issue DIR` freezes the "
+    "current inputs here with the issue date and purpose, builds the issued revision (its "
+    "manifest hashes these inputs) and opens the next draft revision in `dossier.yaml`. A later "
+    "build stops if an issued input was changed, unless told to rebuild that revision with "
+    "`--rebuild-issued REV --reason \"why\"` (the reason is recorded in its manifest).", ""]
 
 
 def _review_file() -> list[str]:

@@ -80,6 +80,40 @@ class Party(Model):
     organisation: Text = Field("", description="organisation")
 
 
+class Signatory(Model):
+    """One signature of the sign-off block: who, in what role, for whom, when."""
+
+    name: Text = Field(description="person who signs")
+    role: Text = Field("", description="their role, e.g. conservation architect")
+    organisation: Text = Field("", description="their organisation")
+    date: dt.date | None = Field(None, description="date of signature (YYYY-MM-DD)")
+
+
+class SignOff(Model):
+    """Who prepared, checked and approved a revision (shown empty on a draft)."""
+
+    prepared: Signatory | None = Field(None, description="prepared by")
+    checked: Signatory | None = Field(None, description="checked by")
+    approved: Signatory | None = Field(None, description="approved by")
+
+
+class Recipient(Model):
+    """One entry of the distribution list."""
+
+    name: Text = Field(description="person or office")
+    organisation: Text = Field("", description="organisation")
+    purpose: Text = Field("", description="why they receive it, e.g. for approval, for information")
+    receives: Text = Field("", description="what they receive, e.g. PDF, site link, printed copy")
+
+
+class DocumentControl(Model):
+    """How revisions are controlled."""
+
+    block_for_approval: bool = Field(False, description="a revision issued for approval also "
+                                     "refuses to build while the audit has blocking findings "
+                                     "(a revision for construction always does)")
+
+
 class Revision(Model):
     code: Annotated[str, Field(pattern=r"^[A-Za-z0-9][A-Za-z0-9._-]{0,19}$",
                                description="revision code, e.g. R1; becomes the output folder")]
@@ -88,6 +122,8 @@ class Revision(Model):
     purpose: Literal["preliminary", "for_approval", "for_construction"] = Field(
         "preliminary", description="what the revision is issued for")
     description: Text = Field(description="what changed in this revision and why")
+    sign_off: SignOff = Field(default_factory=lambda: SignOff(), description="prepared, "
+                              "checked and approved by (empty boxes on a draft)")
 
 
 class Zone(Model):
@@ -206,6 +242,10 @@ class Dossier(Model):
     site_temperature: Text | None = Field(
         None, description="curing temperature in the wall: a constant, e.g. '8 degC', or a CSV "
         "under lab/ with columns 'day [d]' and 'temperature [degC]' (daily means)")
+    distribution: list[Recipient] = Field(default_factory=list, description="who receives "
+                                          "the dossier (the distribution list)")
+    document_control: DocumentControl = Field(default_factory=lambda: DocumentControl(),
+                                              description="how revisions are controlled")
 
 
 # --------------------------------------------------------------- analyses.yaml
@@ -450,6 +490,9 @@ class Selection(Model):
     rationale: Text = Field(min_length=10, description="why this mortar was chosen for the zone")
     justification: Text = Field("", description="why the choice stands although a check on it "
                                 "fails; required when one does, shown prominently")
+    covers: list[Text] = Field(default_factory=list, description="the failing checks the "
+                               "justification answers, as CODE or CODE/subject; a check that "
+                               "fails and is not named here makes the selection need a decision")
 
 
 class SiteTests(Model):

@@ -21,7 +21,8 @@ def pdf_name(project) -> str:
 
 
 def publish(project, results, pages, out: Path, *, page_size: str = "a4",
-            progress=lambda *a: None, changes: dict | None = None, parallel: bool = True) -> Path:
+            progress=lambda *a: None, changes: dict | None = None, parallel: bool = True,
+            superseded: str | None = None, rebuilt: str | None = None) -> Path:
     """Write site + PDF + results.json into a staging folder, then move it into place.
 
     With ``parallel`` the site is built in a forked process while this one renders the
@@ -29,10 +30,12 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
     """
     rev = project.revision
     target = out / rev.code
-    refuse_if_issued(target, project.inputs)
+    rebuilds = refuse_if_issued(target, project.inputs, rebuilt)
     staging = staging_dir(out, rev.code)
+    control = {"rebuilds": rebuilds, "superseded_by": superseded}
     try:
-        _publish_into(staging, project, results, pages, page_size, progress, changes, parallel)
+        _publish_into(staging, project, results, pages, page_size, progress, changes, parallel,
+                      control)
         progress("publish: moving the revision into place")
         move_into_place(staging, target)
     except OSError as exc:
@@ -52,7 +55,8 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
     return target
 
 
-def _publish_into(staging, project, results, pages, page_size, progress, changes, parallel):
+def _publish_into(staging, project, results, pages, page_size, progress, changes, parallel,
+                  control):
     from specgen.publish.pdf import write_pdf
     from specgen.publish.site import build_site
     rev = project.revision
@@ -70,7 +74,8 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     ident = hashlib.sha256(f"{project.dossier.project.code}/{rev.code}".encode()).digest()[:16]
     pdf_tmp = staging.with_name(staging.name + ".pdf")  # beside the site: MkDocs empties its folder
     try:
-        write_pdf(pages, _print_context(project), pdf_tmp, attachments=attachments,
+        write_pdf(pages, _print_context(project, pages.marks), pdf_tmp,
+                  attachments=attachments,
                   page_size=page_size, identifier=ident, stamp=_stamp(rev.date),
                   on_part=lambda done, total: progress("publish: PDF parts", done, total))
         if child is not None:
@@ -93,7 +98,8 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     write_manifest(staging, project.inputs, {
         "project": project.dossier.project.code, "revision": rev.code,
         "status": rev.status, "date": rev.date.isoformat(), "format": "specgen-manifest/1",
-        "description": rev.description})
+        "description": rev.description, "purpose": rev.purpose, "facts": results.facts,
+        "findings": len(results.findings), **{k: v for k, v in control.items() if v}})
 
 
 def _child(fn, args, conn) -> None:
@@ -143,7 +149,7 @@ def _stamp(date):
     return dt.datetime(date.year, date.month, date.day, tzinfo=dt.timezone.utc)
 
 
-def _print_context(project) -> dict:
+def _print_context(project, marks: dict | None = None) -> dict:
     p, rev = project.dossier.project, project.revision
     specifier = next((x for x in project.dossier.parties if x.role == "specifier"), None)
     author = (specifier.organisation or specifier.name) if specifier else p.client
@@ -151,4 +157,5 @@ def _print_context(project) -> dict:
             "subject": f"Binder specification dossier, {p.site}",
             "keywords": f"{p.code}, revision {rev.code}, repair mortar, binder specification",
             "date": rev.date.isoformat(), "project": p, "revision": rev,
-            "state": STATE[rev.status], "purpose": PURPOSE[rev.purpose]}
+            "state": STATE[rev.status], "purpose": PURPOSE[rev.purpose],
+            "mark": (marks or {}).get("mark", ""), "sign_off": (marks or {}).get("sign_off", [])}

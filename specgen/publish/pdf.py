@@ -187,7 +187,7 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
     from specgen.publish.pdf_assembly import assemble, global_anchors
     from specgen.publish.pdf_parts import Printer, cached_or_submitted
     every = pieces(pageset)
-    css = stylesheet(page_size, "parts.css")
+    css = stylesheet(page_size, "parts.css", "control.css")
     files = [(name, data, stamp) for name, data in sorted(attachments.items())]
     with Printer(pageset, workers) as printer:
         def front(numbers, **extra):
@@ -230,10 +230,11 @@ def _stamps(printer, context, page_size: str, front_pages: int, sizes: list) -> 
     total = front_pages + len(sizes)
     kinds = ["cover"] + [None] * (front_pages - 1) + ["wide" if w > h else None for w, h in sizes]
     pages = [{"number": i + 1, "kind": k} for i, k in enumerate(kinds)]
-    css = stylesheet(page_size, "stamp.css")
+    css = stylesheet(page_size, "stamp.css", "control.css")
     tpl = _template("stamp.html.j2")
     project, revision = context["project"].title, context["revision"].code
     return [printer.submit(tpl.render(pages=pages[i:i + STAMP_SPLIT], total=total,
                                       title=context["title"], project=project,
-                                      revision=revision), css, **PDF_OPTIONS)
+                                      revision=revision, mark=context.get("mark", "")), css,
+                           **PDF_OPTIONS)
             for i in range(0, total, STAMP_SPLIT)]

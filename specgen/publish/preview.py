@@ -52,7 +52,7 @@ def pdf_only(project, results, pages, target: Path, *, page_size: str = "a4",
     attachments.update(pages.downloads)
     tmp = target.with_name(f".{target.name}-preview.pdf")
     try:
-        write_pdf(pages, _print_context(project), tmp, attachments=attachments,
+        write_pdf(pages, _print_context(project, pages.marks), tmp, attachments=attachments,
                   page_size=page_size, stamp=_stamp(project.revision.date), on_part=on_part)
         final = target / pdf_name(project)
         os.replace(tmp, final)

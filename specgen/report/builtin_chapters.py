@@ -4,6 +4,7 @@ from __future__ import annotations
 from specgen.report.cautions import cautions_for
 from specgen.report.chapters import badge, chapter, check_rows
 from specgen.report.fmt import num, qty
+from specgen.report.marks import control_context
 from specgen.report.review import open_by_category
 from specgen.report.specification_chapters import specification_summary
 
@@ -27,7 +28,7 @@ def summary(env) -> dict:
             "open_comments": sum(1 for c in p.comments if c.status == "open"),
             "open_by_category": open_by_category(p.comments),
             "previous": env.history.previous if env.history else None,
-            **specification_summary(env)}
+            "control": control_context(p, r), **specification_summary(env)}
 
 
 @chapter("scope.md", "Scope and zones of work", 20, "scope.md.j2")

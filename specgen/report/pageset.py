@@ -29,6 +29,9 @@ class PageSet:
     # site engine: a Markdown export fed to MkDocs would become a page), listed in the
     # manifest and attached to the PDF; path → bytes
     downloads: dict[str, bytes] = field(default_factory=dict)
+    # document-control marks for the print: the mark on every page ("DRAFT — not for
+    # construction", "Superseded by R4") and the cover's sign-off rows
+    marks: dict = field(default_factory=dict)
 
     def add_page(self, path: str, title: str, text: str) -> None:
         if path in self.pages:

@@ -112,11 +112,12 @@ class RenderEnv:
                 "limit": limit, "value": qty(c.value, c.unit), "notes": list(c.notes)}
 
 
-def render(project, results, history=None) -> PageSet:
+def render(project, results, history=None, superseded: str | None = None) -> PageSet:
     """Render every registered chapter into a page set (narrative placed by file name).
 
     ``history`` (:class:`specgen.publish.history.History`) gives earlier revisions and
     the change report; without it the dossier is rendered as a first revision.
+    ``superseded`` names the issued revision that superseded this one (its pages say so).
     """
     pageset = PageSet()
     env = RenderEnv(project, results, pageset, MathAssets(pageset), history)
@@ -134,6 +135,8 @@ def render(project, results, history=None) -> PageSet:
     _resolve_later(env, pageset)
     from specgen.report.review import CONTEXT_ASSET, review_context
     pageset.add_asset(CONTEXT_ASSET, review_context(project))
+    from specgen.report.marks import apply_marks
+    apply_marks(pageset, project, results, superseded)
     return pageset
 
 

@@ -118,8 +118,15 @@ def _colour(project, results, zone, mix) -> dict | None:
               and tp.zone in (None, zone.id) and tp.judgement == "accepted" and tp.judged_dry]
     if c is None and not panels:
         return None
-    return {"limit": c.limit.text if c is not None and c.limit else "",
-            "source": c.key if c is not None else "", "panels": ", ".join(panels)}
+    lim = c.limit if c is not None else None
+    # a reading outside the limit is said in the clause itself, never left for the reader to find
+    outside = (lim is not None and lim.compare == "<=" and lim.high is not None
+               and isinstance(c.value, (int, float)) and c.value > lim.high)
+    sel = project.specification.selection_for(zone.id) if project.specification else None
+    justified = bool(sel and any(ref in (c.code, c.key) for ref in sel[1].covers)) if c else False
+    return {"limit": lim.text if lim else "", "source": c.key if c is not None else "",
+            "panels": ", ".join(panels), "measured": num(c.value, 3) if outside else "",
+            "justified": justified}
 
 
 def _sampling(q: dict | None) -> dict | None:

@@ -29,7 +29,8 @@ def marking(revision) -> str:
     purpose = revision.purpose.replace("_", " ")
     if revision.status == "issued":
         return f"revision {revision.code} of {revision.date.isoformat()}: ISSUED {purpose}"
-    return f"revision {revision.code} of {revision.date.isoformat()}: DRAFT, not for construction"
+    from specgen.report.marks import DRAFT   # the same words as every page of the dossier
+    return f"revision {revision.code} of {revision.date.isoformat()}: {DRAFT}"
 
 
 def docx_bytes(fragment: str, *, title: str, mark: str, date: dt.date) -> bytes:
