@@ -110,7 +110,7 @@ def _progress(quiet: bool):
     """The progress display (specgen/console.py): rich on a terminal inside ``with``, plain
     lines otherwise."""
     from specgen.console import Progress
-    return Progress(click.get_text_stream("stderr"), quiet=quiet)
+    return Progress(sys.stderr, quiet=quiet)
 
 
 @cli.command()
@@ -196,7 +196,7 @@ def serve(directory: Path, port: int) -> None:
     try:
         # plain lines: the server's own messages interleave with the stages
         run_serve(directory, port, say=lambda text: click.echo(text, err=True),
-                  progress=Progress(click.get_text_stream("stderr"), terminal=False))
+                  progress=Progress(sys.stderr, terminal=False))
     except SpecgenError as exc:
         _fail(exc)
 
