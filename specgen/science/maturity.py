@@ -72,20 +72,28 @@ def _history(times_s, temps_k, valid_range) -> tuple[np.ndarray, np.ndarray]:
     return t, temp
 
 
-def arrhenius_factor(temp_k, activation_energy: float, t_ref_k: float):
-    """Age conversion factor ``exp[-(E/R)(1/T - 1/Tref)]`` (ASTM C1074); T, Tref in K."""
-    if not math.isfinite(activation_energy) or activation_energy <= 0:
+def arrhenius_factor(temp_k, activation_energy, t_ref_k: float):
+    """Age conversion factor ``exp[-(E/R)(1/T - 1/Tref)]`` (ASTM C1074); T, Tref in K.
+
+    ``activation_energy`` (J/mol) is one value or one per temperature."""
+    e = np.asarray(activation_energy, float)
+    if not np.all(np.isfinite(e)) or np.any(e <= 0):
         raise MaturityInputError(f"activation energy must be > 0 J/mol; got {activation_energy}")
     if not math.isfinite(t_ref_k) or t_ref_k <= 0:
         raise MaturityInputError(f"reference temperature must be > 0 K; got {t_ref_k}")
-    return np.exp(-(activation_energy / R) * (1.0 / np.asarray(temp_k, float) - 1.0 / t_ref_k))
+    return np.exp(-(e / R) * (1.0 / np.asarray(temp_k, float) - 1.0 / t_ref_k))
 
 
-def equivalent_age_arrhenius(times_s: Sequence[float], temps_k, *, activation_energy: float,
+def equivalent_age_arrhenius(times_s: Sequence[float], temps_k, *, activation_energy,
                              t_ref_k: float, valid_range=VALID_RANGE_K) -> np.ndarray:
-    """Cumulative Arrhenius equivalent age (s at Tref) at each time of the history."""
+    """Cumulative Arrhenius equivalent age (s at Tref) at each time of the history.
+
+    ``activation_energy`` is a constant (J/mol) or a function of the temperature (K), e.g.
+    :func:`activation_energy_fhp`, applied to each interval's average temperature."""
     t, temp = _history(times_s, temps_k, valid_range)
     ta = 0.5 * (temp[1:] + temp[:-1])           # ASTM C1074: average temperature of interval
+    if callable(activation_energy):
+        activation_energy = np.array([activation_energy(float(x)) for x in ta])
     rate = arrhenius_factor(ta, activation_energy, t_ref_k)
     return np.concatenate([[0.0], np.cumsum(rate * np.diff(t))])
 

@@ -134,3 +134,73 @@ def test_pooled_cv():
     assert pooled_cv([0.04, 0.06, 0.0], [3, 3, 1]) == pytest.approx(0.050990, abs=1e-6)
     with pytest.raises(ClassInputError):
         pooled_cv([0.0], [1])
+
+
+def test_comparison_lines_word_for_word():
+    # EN 459-1 ranges (from memory) at 4 MPa: NHL 2 (2-7) within, NHL 3.5 (3.5-10) within,
+    # NHL 5 (5-15, and >= 2 MPa at 7 d) outside
+    cmp_ = compare_ranges(4e6, EN459, standard="EN 459-1", source="table")
+    assert (cmp_.standard, cmp_.source) == ("EN 459-1", "table")
+    assert cmp_.lines[:2] == ("NHL 2: 2 MPa to 7 MPa at 28 d -> within",
+                              "NHL 3.5: 3.5 MPa to 10 MPa at 28 d -> within")
+    assert "NHL 5: 5 MPa to 15 MPa at 28 d -> outside" in cmp_.lines
+    # at 6 MPa with a 7-d result of 1.5 MPa: NHL 5 is in range but its 7-d minimum is not met
+    early = compare_ranges(6e6, EN459, standard="EN 459-1", source="t", early_pa=1.5e6)
+    assert "NHL 5: 5 MPa to 15 MPa at 28 d -> within; 7-d 1.5 MPa is below 2 MPa" in early.lines
+    assert "NHL 5" not in early.matches
+    met = compare_ranges(6e6, EN459, standard="EN 459-1", source="t", early_pa=2.0e6)
+    assert "NHL 5: 5 MPa to 15 MPa at 28 d -> within; 7-d 2 MPa meets 2 MPa" in met.lines
+    assert "NHL 5" in met.matches                       # the 7-d minimum is inclusive
+    none = compare_ranges(6e6, EN459, standard="EN 459-1", source="t")
+    assert ("NHL 5: 5 MPa to 15 MPa at 28 d -> within; the 7-d minimum 2 MPa is not checked "
+            "(no result at that age)") in none.lines
+    # ASTM C270 (property specification, as quoted in the DOMAIN primer: N 5.2 MPa, S 12.4):
+    # 5.2 MPa meets N exactly (the minimum is inclusive), not S
+    c270 = strongest_minimum(5.2e6, C270, standard="ASTM C270", source="s")
+    assert c270.matches == ("N",)
+    assert "S: min 12.4 MPa at 28 d -> not met" in c270.lines
+    assert "N: min 5.2 MPa at 28 d -> met" in c270.lines
+    assert strongest_minimum(0.4e6, C270, standard="ASTM C270", source="s").matches == ()
+
+
+@pytest.mark.parametrize("value, lower, upper, limit, kind, status", [
+    # band edges exactly on the limit (rule in the docstring): min passes at lower == limit,
+    # max passes at upper == limit; fails only strictly beyond
+    (3.0, 2.0, 4.0, 2.0, "min", "pass"),
+    (3.0, 2.0, 4.0, 4.0, "min", "hold"),
+    (3.0, 2.0, 4.0, 4.0000001, "min", "fail"),
+    (3.0, 2.0, 4.0, 4.0, "max", "pass"),
+    (3.0, 2.0, 4.0, 2.0, "max", "hold"),
+    (3.0, 2.0, 4.0, 1.9999999, "max", "fail"),
+    (3.0, 3.0, 3.0, 3.0, "min", "pass"),      # a zero-width band on the limit
+])
+def test_accept_at_the_edges(value, lower, upper, limit, kind, status):
+    assert accept(value, lower, upper, limit, kind) == status
+
+
+@pytest.mark.parametrize("call, message", [
+    (lambda: accept(3.0, 3.5, 4.0, 2.0, "min"),
+     "the band [3.5, 4] Pa must contain the value 3"),
+    (lambda: accept(3.0, 2.0, 4.0, 2.0, "mean"), "limit kind must be 'min' or 'max'; got 'mean'"),
+    (lambda: accept(float("nan"), 2.0, 4.0, 2.0, "min"),
+     "value, band and limit must be finite numbers; got (nan, 2.0, 4.0, 2.0)"),
+    (lambda: compare_ranges(0.0, EN459, standard="x", source="y"),
+     "strength must be a positive number of Pa; got 0.0"),
+    (lambda: strongest_minimum(-1.0, C270, standard="x", source="y"),
+     "strength must be a positive number of Pa; got -1.0"),
+    (lambda: pooled_cv([0.05], [1]), "pooled CV needs at least one group with two or more results"),
+    (lambda: pooled_cv([0.05, 0.04], [3]),
+     "pooled CV needs at least one group with two or more results"),
+])
+def test_class_refusals_word_for_word(call, message):
+    with pytest.raises(ClassInputError) as exc:
+        call()
+    assert str(exc.value) == message
+
+
+def test_pooled_cv_by_hand():
+    # sqrt(((3-1) 0.05² + (4-1) 0.08² + (1-1) 0.5²) / (2 + 3)) = sqrt((0.005 + 0.0192)/5)
+    # = sqrt(0.00484) = 0.069570; the single-result group (n = 1) carries no weight
+    assert pooled_cv([0.05, 0.08, 0.5], [3, 4, 1]) == pytest.approx(0.069570, abs=1e-6)
+    assert pooled_cv([0.05, 0.08], [2, 2]) == pytest.approx(math.sqrt((0.0025 + 0.0064) / 2),
+                                                            rel=1e-12)
