@@ -83,13 +83,14 @@ def refuse_if_findings(project: Project, results: Results) -> None:
         raise AuditRefused(project.revision, found)
 
 
-def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str = "a4",
+def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None = None,
           progress: Callable[[str], None] = _quiet, rebuild: dict[str, str] | None = None) -> Path:
     """Build the project's revision (and missing archived ones) into ``out_dir/<revision>/``.
 
     ``rebuild`` maps an issued revision's code to the reason for rebuilding it from inputs
     that changed after it was issued (recorded in its manifest); without it such a change
-    stops the build before anything is written.
+    stops the build before anything is written.  ``page_size`` (``a4`` or ``letter``)
+    overrides the paper of the practice each revision states (A4 when it states none).
     """
     progress("load: reading and validating the project folder")
     project = _load(project_dir)
@@ -100,6 +101,7 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str = "a4"
     progress("check: running the checks and the consistency audit")
     results = evaluate(project, previous=_previous(previous[-1]))
     refuse_if_findings(project, results)
+    refuse_unconfirmed(project, results)
     from specgen.report import cache
     # unchanged figures and math are reused from the output folder's artefact cache;
     # after a complete build it keeps only what this build used
@@ -114,6 +116,15 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str = "a4"
         built = _build_one(project, results, out, page_size, progress)
     cache.prune(out / cache.CACHE_DIR, used)
     return built
+
+
+def _paper(project: Project, page_size: str | None) -> str:
+    """The paper of the PDF: asked for, else the stated practice's, else A4."""
+    from specgen import practice
+    if page_size:
+        return page_size
+    p = practice.resolve(project.dossier)
+    return p.paper.lower() if p.stated else "a4"
 
 
 def _next_issued(archived: list[Project], old: Project) -> str | None:
@@ -150,9 +161,10 @@ def frozen_inputs(out: Path, archived: list[Project], rebuild: dict[str, str]) -
     return todo
 
 
-def _build_one(project: Project, results: Results, out: Path, page_size: str, progress,
+def _build_one(project: Project, results: Results, out: Path, page_size: str | None, progress,
                superseded: str | None = None, rebuilt: str | None = None) -> Path:
     from specgen.publish import publish
+    page_size = _paper(project, page_size)
     from specgen.publish.history import history_for
     from specgen.report.render import render
     history = history_for(out, project, results)
@@ -161,6 +173,37 @@ def _build_one(project: Project, results: Results, out: Path, page_size: str, pr
     _fix_dates(project.revision.date)
     return publish(project, results, pages, out, page_size=page_size, progress=progress,
                    changes=results.changes, superseded=superseded, rebuilt=rebuilt)
+
+
+def refuse_unconfirmed(project: Project, results: Results) -> None:
+    """A revision for construction may not rest on a value still tagged ``memory``.
+
+    Raises :class:`InputErrors` (exit 2, nothing written) naming the revision's purpose in
+    dossier.yaml and every such value with the checks that used it.
+    """
+    values = results.unconfirmed()
+    if project.revision.purpose != "for_construction" or not values:
+        return
+    from specgen.errors import ProblemLog
+    from specgen.project.files import read_yaml
+    log = ProblemLog()
+    located = read_yaml(Path(project.root) / "dossier.yaml", "dossier.yaml", ProblemLog())
+    log.add("dossier.yaml", f"revision {project.revision.code} is for construction but rests on "
+            f"{len(values)} value(s) still tagged memory (recalled, not read in their source).",
+            line=located.line_of(("revision", "purpose")) if located else None,
+            field="revision.purpose",
+            fix="confirm each value listed below against its source, or issue the revision "
+            "for approval until then (purpose: for_approval).")
+    for v in values:
+        users = v["used_by"]
+        log.add(f"content/data/{v['table']}.yaml", f"tagged memory (source named: {v['source']}); "
+                f"used by {', '.join(users[:3])}" + (f" and {len(users) - 3} more" if
+                                                     len(users) > 3 else "") + ".",
+                field=v["path"] or "(the whole table)",
+                fix="read the value in the source and cite its clause or table (then remove the "
+                "tag), or declare it common practice with its range and reason, or a project "
+                "requirement (rule_overrides with a justification).")
+    log.raise_if_any()
 
 
 def _load_archive(root: Path, current: Project) -> list[Project]:

@@ -80,13 +80,15 @@ def _progress(quiet: bool):
 @click.argument("directory", type=click.Path(path_type=Path))
 @click.option("--out", "out", type=click.Path(file_okay=False, path_type=Path), default=None,
               help="output folder (default: DIRECTORY/../<folder name>-site)")
-@click.option("--page-size", type=click.Choice(["a4", "letter"]), default="a4", show_default=True)
+@click.option("--page-size", type=click.Choice(["a4", "letter"]), default=None,
+              help="paper of the PDF (default: the paper of the practice the project states "
+              "in dossier.yaml, A4 when it states none)")
 @click.option("--quiet", is_flag=True, help="no progress display")
 @click.option("--rebuild-issued", "rebuild", multiple=True, metavar="REV",
               help="rebuild issued revision REV although its inputs changed (needs --reason)")
 @click.option("--reason", default=None, help="why the issued revision is rebuilt (recorded in "
               "its manifest)")
-def build(directory: Path, out: Path | None, page_size: str, quiet: bool, rebuild: tuple,
+def build(directory: Path, out: Path | None, page_size: str | None, quiet: bool, rebuild: tuple,
           reason: str | None) -> None:
     """Build the site and PDF of the project's revision into OUT/<revision>/."""
     from specgen.build import build as run_build

@@ -246,7 +246,7 @@ def _render_works(project, results):
 
 def test_works_page_and_cards_from_the_demo(demo):
     text, cards, pages = _render_works(*demo)
-    assert '<a href="./WEP-2026-R3-quantities.csv">WEP-2026-R3-quantities.csv</a>' in text
+    assert '<a href="./WEP-2026-R3-quantities.csv">quantities schedule (spreadsheet, CSV)</a>' in text
     # Z1 bags of NC1 for M1, M2, M3: 18 and 13 by hand (test_demo_repointing_volume_by_hand);
     # M3 uses NH35, so no NC1 bags
     assert "| NC1: bags of 25 kg | bags | 18 | 13 | — |" in text

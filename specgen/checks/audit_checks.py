@@ -176,10 +176,10 @@ def clause_limit_rule(ctx) -> list[Finding]:
             value = f"{c.value:.3g} {c.unit}".strip() if isinstance(c.value, float) else c.value
             out.append(Finding(
                 "AUD-CLAUSE-LIMIT", "Clause limit against the chosen mortar",
-                f"clause {zone.id}.{n} ({what}) states {c.limit.text if c.limit else c.title}, "
+                f"clause {n} of zone {zone.id} ({what}) states {c.limit.text if c.limit else c.title}, "
                 f"but the chosen mortar {sel.mix} gives {value} ({c.key}: {c.status.replace('_', ' ')}),"
                 " and the selection's justification does not name that check.",
-                (f"specification: clause {zone.id}.{n}", f"calculation sheet {c.key}",
+                (f"specification: zone {zone.id}, clause {n}", f"calculation sheet {c.key}",
                  _sel_place(spec, i, "covers")),
                 "justify the choice against this check and name it under covers (the clause "
                 "then says so), or choose a mortar that meets the limit, or change the limit "
@@ -196,10 +196,10 @@ def clause_source_rule(ctx) -> list[Finding]:
         if life and not life.get("measured"):
             out.append(Finding(
                 "AUD-CLAUSE-SOURCE", "Clause numbers that are not results",
-                f"clause {zone.id}.2 (workable life) writes {life['value']:g} min into the "
+                f"clause 2 of zone {zone.id} (workable life) writes {life['value']:g} min into the "
                 f"contract, the default of the binder family, not a measurement of {sel.mix}; "
                 "the gauging size rests on it too.",
-                (f"specification: clause {zone.id}.2", f"calculation sheet SITE-GAUGE/{sel.mix}",
+                (f"specification: zone {zone.id}, clause 2", f"calculation sheet SITE-GAUGE/{sel.mix}",
                  f"mixes.yaml: {sel.mix}.workable_life"),
                 f"have the laboratory measure the workable life of {sel.mix} (EN 1015-9) and give "
                 "it with workable_life_source.", subject=zone.id))
@@ -207,8 +207,8 @@ def clause_source_rule(ctx) -> list[Finding]:
                 ctx.project.dossier.requirements.min_compressive:
             out.append(Finding(
                 "AUD-CLAUSE-SOURCE", "Clause numbers that are not results",
-                f"clause {zone.id}.7 has no strength criteria: no acceptance result for "
-                f"{sel.mix}.", (f"specification: clause {zone.id}.7",),
+                f"clause 7 of zone {zone.id} has no strength criteria: no acceptance result for "
+                f"{sel.mix}.", (f"specification: zone {zone.id}, clause 7",),
                 "give lab strength results for the chosen mortar.", subject=zone.id))
     return out
 
@@ -236,7 +236,7 @@ def ages_rule(ctx) -> list[Finding]:
                 "AUD-AGES", "Ages the site test regime does not test",
                 f"zone {zone.id}: the strength {what} of {sel.mix} is set at {age:g} d, but the "
                 f"site test regime tests at {regime} d only, so nothing on site would show it.",
-                (f"specification: clause {zone.id}.7 and the site test regime",
+                (f"specification: zone {zone.id}, clause 7, and the site test regime",
                  f"{SPEC_FILE}: site_tests.test_ages"),
                 f"add '{age:g} d' to site_tests.test_ages (the regime is then extended), or "
                 "change the requirement's age.", subject=zone.id))

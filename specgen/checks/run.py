@@ -8,7 +8,7 @@ from __future__ import annotations
 import json
 from dataclasses import dataclass, field
 
-from specgen import __version__
+from specgen import __version__, refdata
 from specgen.checks.registry import as_list, audit_rules, checks, is_declared
 from specgen.checks.result import STATUSES, CheckResult, Finding, Quantity
 from specgen.checks.rules import RuleBook
@@ -50,6 +50,17 @@ class Results:
     def blocking(self) -> list[Finding]:
         """Findings that stop a revision for construction (or approval) from being built."""
         return [f for f in self.findings if f.blocking]
+
+    # every tagged reference value the checks read: {where, table, path, tag, source, title,
+    # used_by: [CODE/subject, ...]}, sorted by where (refdata.recording)
+    values_used: list[dict] = field(default_factory=list)
+
+    def unconfirmed(self) -> list[dict]:
+        """The values this revision rested on that are still tagged ``memory`` (recalled,
+        not read in the source): listed on the *Values to confirm* page of a draft, and a
+        revision for construction is refused while any remains (specgen.build)."""
+        from specgen.refdata import UNCONFIRMED
+        return [v for v in self.values_used if v["tag"] == UNCONFIRMED]
 
     def check(self, code: str, subject: str) -> CheckResult | None:
         """The result of check ``code`` on ``subject`` (None when it did not run).
@@ -95,6 +106,7 @@ class Results:
             "findings": [f.to_dict() for f in self.findings],
             "previous": self.previous,
             "facts": self.facts,
+            "values_used": self.values_used,
         }
 
     def to_json(self) -> str:
@@ -150,10 +162,15 @@ def _run_checks(project) -> Results:
     ctx = Context(project, RuleBook(project.dossier.rule_overrides))
     out: list[CheckResult] = ctx.results  # later checks (e.g. the selection) read earlier ones
     subjects: dict[str, str] = {}
+    used: dict = {}
     for spec in checks():
         for sid, subject in subjects_of(project, spec.subject_kind):
             subjects[sid] = spec.subject_kind
-            for res in as_list(spec.fn(subject, ctx)):
+            with refdata.recording() as uses:
+                returned = as_list(spec.fn(subject, ctx))
+            for u in uses:
+                used.setdefault(u, set()).update(r.key for r in returned)
+            for res in returned:
                 for q in res.quantities:
                     if not is_declared(q.name):
                         raise ValueError(f"check {spec.code} records undeclared quantity "
@@ -163,5 +180,9 @@ def _run_checks(project) -> Results:
     specimens = {r.specimen: {"mix": r.mix, "test": r.test, "age_d": round(r.age / 86400, 6),
                               "value_MPa": round(r.value / 1e6, 6)} for r in project.strength}
     comments = [c.model_dump(mode="json") for c in project.comments]
+    values = [{"where": u.where, "table": u.table, "path": u.path, "tag": u.tag,
+               "source": u.source, "title": u.title, "used_by": sorted(keys)}
+              for u, keys in sorted(used.items(), key=lambda kv: (kv[0].table, kv[0].path))
+              if keys]
     return Results(project.dossier.project.code, project.revision.code, out, ctx.quantities,
-                   subjects, specimens, comments)
+                   subjects, specimens, comments, values_used=values)

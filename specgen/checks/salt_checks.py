@@ -116,7 +116,7 @@ def _salt_one(pair, ctx):
                        "present, thaumasite; both expand and disrupt the joint")
     if not msg:
         msg.append("no class above medium" + (" and no sulfate-aluminate risk" if sulfate else ""))
-    notes.append(f"table: {tab['title']} — {tab['source']} ({tab.get('tag', '')}); published "
+    notes.append(f"table: {tab['title']} — {refdata.shown(tab['source'], tab.get('tag', ''))}; published "
                  "salt-load tables disagree, this one is the project's choice")
     return cc.result(code, title, pair, status, max(top.values(), key=order.index) if top else None,
                      "", [basis], f"{'; '.join(msg)} (table {key})", steps=steps, notes=notes,

@@ -94,7 +94,8 @@ def settings(project) -> Settings:
     s = project.dossier.strength
     e = s.activation_energy
     src = "project input (dossier.yaml strength.activation_energy)" if e else (
-        f"default: {d['activation_energy']['source']} ({d['activation_energy']['tag']})")
+        "default: " + refdata.shown(d["activation_energy"]["source"],
+                                    d["activation_energy"].get("tag", "")))
     return Settings(s.maturity_method, e or float(d["activation_energy"]["value"]), src,
                     s.datum_temperature or float(d["nurse_saul_datum"]["value"]),
                     float(d["reference_temperature"]["value"]),

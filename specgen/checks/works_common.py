@@ -33,13 +33,12 @@ def rule_si(rules, name: str, kind: str) -> Sourced:
 
 def _default(table: str, key: str) -> Sourced:
     d = refdata.load("mix_densities").data[table][key]
-    tag = f" ({d['tag']})" if d.get("tag") and d["tag"] not in d["source"] else ""
-    return Sourced(float(d["value"]), f"default: {d['source']}{tag}")
+    return Sourced(float(d["value"]), "default: " + refdata.shown(d["source"], d.get("tag", "")))
 
 
 def water_density() -> Sourced:
     d = refdata.load("mix_densities").data["water"]
-    return Sourced(float(d["value"]), f"{d['source']} ({d['tag']})" if d.get("tag") else d["source"])
+    return Sourced(float(d["value"]), refdata.shown(d["source"], d.get("tag", "")))
 
 
 def _given(value, file: str, field: str, table: str, key: str) -> Sourced:

@@ -73,6 +73,7 @@ class Project:
 
 
 def _field_path(loc: tuple) -> str:
+    loc = tuple(p for p in loc if p != "[key]")  # a dict key's own error: the key is the field
     return ".".join(str(p) if not isinstance(p, int) else f"[{p}]" for p in loc).replace(".[", "[")
 
 
@@ -123,6 +124,7 @@ def validate(located: Located, model: type[BaseModel], rel: str, log: ProblemLog
                     msg = f"{msg} (found {shown})."
                 if msg.startswith("must be greater than zero"):
                     fix = _give(model, loc)
+                fix = fix or (err.get("ctx") or {}).get("fix", "").strip() or None
             log.add(rel, msg, line=line, field=_field_path(loc), fix=fix)
         return None
 
@@ -200,6 +202,8 @@ def load_project(root: Path | str, names=None) -> Project:
         setattr(project, attr, rows)
     from specgen.project.gradings import gradings
     project.gradings = gradings(project.sieves, log)
+    from specgen.project.practice_inputs import practice_problems
+    practice_problems(project, located, log)
     from specgen.project.firing import firing_series
     project.firing = firing_series(root, project.binders, log)
     from specgen.project.site_temperature import curing_temperature_problems, site_temperature

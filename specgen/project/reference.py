@@ -16,11 +16,29 @@ UNIT_OF = {"Pressure": "pressure, e.g. '12 MPa'", "Length": "length, e.g. '10 mm
            "MassPercent": "mass %"}
 
 
-def _type_name(annotation) -> tuple[str, type[BaseModel] | None]:
+def _unit_kind(metadata) -> str | None:
+    """The unit kind a quantity field declares (its parser's ``unit_kind``), as words."""
+    from specgen import units
+    for m in metadata:
+        kind = getattr(getattr(m, "func", None), "unit_kind", None)
+        if kind in units.KINDS:
+            k = units.KINDS[kind]
+            return f"{k.name.replace('_', ' ')}, e.g. {k.example.split(' or ')[0]}"
+        if kind:
+            return kind
+    return None
+
+
+def _type_name(annotation, metadata=()) -> tuple[str, type[BaseModel] | None]:
+    if (kind := _unit_kind(metadata)) is not None:
+        return kind, None
     for name, alias in vars(schema).items():
         if name in UNIT_OF and annotation == alias:
             return UNIT_OF[name], None
     origin, args = typing.get_origin(annotation), typing.get_args(annotation)
+    if origin is typing.Annotated:
+        name, model = _type_name(args[0], annotation.__metadata__)
+        return ("text" if name == "str" else name), model
     if isinstance(annotation, type) and issubclass(annotation, BaseModel):
         return "mapping", annotation
     if origin is list and args:
@@ -33,13 +51,15 @@ def _type_name(annotation) -> tuple[str, type[BaseModel] | None]:
         name, model = _type_name(inner[0])
         return name + " (optional)", model
     if origin is dict:
-        return "mapping of name → mass %", None
+        if typing.get_origin(args[1]) is dict:
+            return "mapping of lumped key → {constituent: fraction}", None
+        return "mapping of constituent → mass %", None
     return getattr(annotation, "__name__", str(annotation)).replace("Annotated", "text"), None
 
 
 def _rows(model: type[BaseModel], prefix: str, out: list) -> None:
     for name, info in model.model_fields.items():
-        kind, sub = _type_name(info.annotation)
+        kind, sub = _type_name(info.annotation, info.metadata)
         if info.metadata and kind in ("str", "text"):
             kind = "text"
         if info.is_required():
@@ -63,6 +83,7 @@ def markdown() -> str:
         rows: list = []
         _rows(model, "", rows)
         lines += [f"| `{k}` | {t} | {d} | {m} |" for k, t, d, m in rows] + [""]
+    lines += _constituents()
     for file, cols in (("lab/strength.csv", STRENGTH_COLUMNS), ("lab/sieves.csv", SIEVE_COLUMNS),
                        ("lab/colour.csv", COLOUR_COLUMNS)):
         lines += [f"## `{file}`", "", "| column | kind (unit in the header) | required | meaning |",
@@ -81,6 +102,23 @@ ARCHIVE_NOTE = [
     "manifest hashes these inputs) and opens the next draft revision in `dossier.yaml`. A later "
     "build stops if an issued input was changed, unless told to rebuild that revision with "
     "`--rebuild-issued REV --reason \"why\"` (the reason is recorded in its manifest).", ""]
+
+
+def _constituents() -> list[str]:
+    """The constituents an analysis may name (content/data/constituents.yaml)."""
+    from specgen import refdata
+    table = refdata.load("constituents")
+    kinds = {"oxide": "stays on ignition", "loss": "volatile: counts as loss",
+             "other": "reported beside the oxides"}
+    out = ["## Constituents of an analysis (`analyses.yaml`, `mass_percent`)", "",
+           "Any other name is refused with the nearest spelling.  Loss on ignition (`LOI`) is "
+           "the measured total of the volatile constituents: when it is given, the parts "
+           "reported beside it are inside it and counted once.", "",
+           "| key | constituent | kind | also written |", "|---|---|---|---|"]
+    for key, c in table.data.items():
+        also = ", ".join(f"`{n}`" for n in c.get("synonyms", [])) or "—"
+        out.append(f"| `{key}` | {c['name']} | {kinds[c['kind']]} | {also} |")
+    return out + [""]
 
 
 def _review_file() -> list[str]:

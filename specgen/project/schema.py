@@ -12,6 +12,7 @@ from typing import Annotated, Literal
 
 from pydantic import (AfterValidator, BaseModel, BeforeValidator, ConfigDict, Field,
                       field_validator, model_validator)
+from pydantic_core import PydanticCustomError
 
 from specgen import units
 
@@ -25,6 +26,7 @@ ANCHOR_PATTERN = r"^[A-Za-z][A-Za-z0-9_:.-]{0,119}$"
 def _quantity(kind: str):
     def parse(value):
         return units.parse(value, kind)
+    parse.unit_kind = kind  # read by the format reference (project/reference.py)
     return BeforeValidator(parse)
 
 
@@ -55,6 +57,79 @@ def _percent(value):
     if isinstance(value, str) and value.strip().endswith("%"):
         return float(value.strip().rstrip("%"))
     return value
+
+
+def _percent_with_unit(value):
+    """A content that must carry its unit ('0.35 %', '3500 ppm'), as mass %."""
+    try:
+        return units.parse(value, "fraction") * 100.0
+    except units.UnitProblem:
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            raise PydanticCustomError(
+                "no_unit", "the number {value} has no unit",
+                {"value": value, "fix": f"write it with its unit, e.g. '{value} %' (mass % of "
+                 "the dry material) or in ppm."}) from None
+        raise
+
+
+_percent_with_unit.unit_kind = "mass %, with its unit, e.g. '0.35 %'"
+
+
+#: A mass content written with its unit, e.g. '0.35 %' (a bare number is refused).
+PercentWithUnit = Annotated[float, BeforeValidator(_percent_with_unit), Field(ge=0, le=100)]
+
+
+def _constituents():
+    from specgen import refdata
+    return refdata.load("constituents").data
+
+
+def _synonyms() -> dict[str, str]:
+    """Every name an analysis may use (canonical keys and synonyms, case-folded) → key."""
+    out = {}
+    for key, c in _constituents().items():
+        for name in [key, *c.get("synonyms", [])]:
+            out[" ".join(str(name).split()).casefold()] = key
+    return out
+
+
+def _canonical(name: str) -> str | None:
+    if "+" in name and len(parts := [p.strip() for p in name.split("+")]) > 1 \
+            and all(p for p in parts):
+        keys = [_synonyms().get(" ".join(p.split()).casefold()) for p in parts]
+        return "+".join(keys) if all(keys) else None
+    return _synonyms().get(" ".join(name.split()).casefold())
+
+
+def _canonical_names(value):
+    """Synonyms of old reports become the canonical keys; two names of one constituent are
+    refused; unknown names pass on to :func:`_known_constituent` (located at their key)."""
+    if not isinstance(value, dict):
+        return value
+    out, seen = {}, {}
+    for name, v in value.items():
+        key = _canonical(str(name)) or str(name)
+        if key in seen:
+            raise PydanticCustomError(
+                "repeated_constituent", "'{a}' and '{b}' name the same constituent ({key})",
+                {"a": seen[key], "b": name, "key": key,
+                 "fix": "give it once (keep the value the report prints under its own name)."})
+        seen[key] = name
+        out[key] = v
+    return out
+
+
+def _known_constituent(name: str) -> str:
+    if _canonical(name) is None:
+        from specgen.errors import did_you_mean
+        names = [n for k, c in _constituents().items() for n in [k, *c.get("synonyms", [])]]
+        hint = did_you_mean(name, names)
+        raise PydanticCustomError(
+            "unknown_constituent", "unknown constituent '{name}'",
+            {"name": name, "fix": (hint + " " if hint else "") + "Use a name of the list in the "
+             "format reference (content/data/constituents.yaml): oxides such as CaO, SiO2; LOI, "
+             "CO2, H2O+ (combined water), H2O- (moisture), organic matter, insoluble residue."})
+    return name
 
 
 class Model(BaseModel):
@@ -198,14 +273,52 @@ class StrengthSettings(Model):
         "record, e.g. '8 %': characteristic values are then also given with known variance")
 
 
+def one_of(name: str, known, what: str, where: str) -> str:
+    """``name`` if it is in ``known``; else an error whose context carries the fix."""
+    from specgen.errors import did_you_mean
+    known = list(known)
+    if name not in known:
+        raise PydanticCustomError(
+            "unknown_name", "unknown {what} '{name}' ({where})",
+            {"what": what, "name": name, "where": where,
+             "fix": (did_you_mean(name, known) or "") + " Known: " + ", ".join(known) + "."})
+    return name
+
+
+def _practice_name(value: str) -> str:
+    from specgen import practice
+    return one_of(value, practice.sets(), "practice", "content/data/practice.yaml")
+
+
+def _mortar_classes_name(value: str) -> str:
+    from specgen import practice
+    return one_of(value, [s["mortar_classes"] for s in practice.sets().values()],
+                  "mortar classification", "content/data/strength_classes.yaml")
+
+
+class PracticeSettings(Model):
+    """The practice the project follows: which standards its dossier applies."""
+
+    follows: Annotated[str, AfterValidator(_practice_name)] | None = Field(
+        None, description="european or american (content/data/practice.yaml): sieve series, "
+        "grading envelope, mortar and binder classification and test methods; default american")
+    mortar_classes: Annotated[str, AfterValidator(_mortar_classes_name)] | None = Field(
+        None, description="mortar classification of the other practice, e.g. astm_c270 "
+        "(default: the one the practice names); needs mixing_reason")
+    mixing_reason: Text = Field("", description="why the project takes an item of another "
+                                "practice (an envelope, a classification, sieve data on "
+                                "the other series); shown on the scope page")
+
+
 class CompatibilitySettings(Model):
     """Choices of the compatibility checks, declared once for the project."""
 
     salt_table: Literal["wta_2_9", "onorm_b3355"] = Field(
         "wta_2_9", description="published salt-load table (content/data/salt_load.yaml)")
-    grading_envelope: Literal["astm_c144_natural", "astm_c144_manufactured"] = Field(
-        "astm_c144_natural", description="grading envelope of the repair sand "
-        "(content/data/grading_envelopes.yaml)")
+    grading_envelope: Literal["astm_c144_natural", "astm_c144_manufactured", "en13139_0_2",
+                              "en13139_0_4"] | None = Field(
+        None, description="grading envelope of the repair sand (content/data/"
+        "grading_envelopes.yaml); default: the one the practice names")
     repair_thickness: Length | None = Field(
         None, description="thickness of the repair layer (pointing depth or render), e.g. "
         "'20 mm', for sd = μ·d")
@@ -224,6 +337,8 @@ class Dossier(Model):
     """The root file ``dossier.yaml``."""
 
     project: ProjectInfo
+    practice: PracticeSettings = Field(default_factory=PracticeSettings,
+                                       description="the practice (set of standards) followed")
     parties: list[Party] = Field(default_factory=list, description="people and roles")
     revision: Revision
     zones: list[Zone] = Field(default_factory=list, description="zones of work")
@@ -257,8 +372,10 @@ class Analysis(Model):
     description: Text = Field("", description="sample description")
     laboratory: Text = Field("", description="who analysed it, report reference")
     date: dt.date | None = Field(None, description="date of the analysis")
-    mass_percent: dict[str, MassPercent] = Field(
-        description="constituents in mass %, e.g. CaO: 41.2, LOI: 30.5")
+    mass_percent: Annotated[dict[Annotated[str, AfterValidator(_known_constituent)], MassPercent],
+                            BeforeValidator(_canonical_names)] = Field(
+        description="constituents in mass %, e.g. CaO: 41.2, LOI: 30.5 (names: see "
+        "'Constituents of an analysis' below; volatile ones count as loss)")
     lumped_split: dict[str, dict[str, float]] = Field(
         default_factory=dict, description="declared split of a lumped oxide, e.g. "
         "'Al2O3+Fe2O3': {Al2O3: 0.6, Fe2O3: 0.4} (fractions summing to 1)")
@@ -336,9 +453,12 @@ class Hygrothermal(Model):
 class SaltContent(Model):
     """Soluble salts of a fabric sample (mass % of the dry material)."""
 
-    chloride: MassPercent | None = Field(None, description="chloride Cl⁻, mass %")
-    nitrate: MassPercent | None = Field(None, description="nitrate NO3⁻, mass %")
-    sulfate: MassPercent | None = Field(None, description="sulfate SO4²⁻, mass %")
+    chloride: PercentWithUnit | None = Field(None, description="chloride Cl⁻, mass % of the dry "
+                                          "material with its unit, e.g. '0.35 %'")
+    nitrate: PercentWithUnit | None = Field(None, description="nitrate NO3⁻, mass % of the dry "
+                                          "material with its unit, e.g. '0.35 %'")
+    sulfate: PercentWithUnit | None = Field(None, description="sulfate SO4²⁻, mass % of the dry "
+                                          "material with its unit, e.g. '0.35 %'")
     sample: Text = Field("", description="where and how deep it was sampled, laboratory")
 
 

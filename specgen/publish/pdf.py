@@ -168,14 +168,17 @@ def parts(every: list[Piece], size: int = PART_SIZE) -> list[list[Piece]]:
     return out
 
 
-PDF_OPTIONS = {"pdf_variant": "pdf/a-3b", "custom_metadata": True}
+# PDF/A-3a: archival, with the inputs attached, and tagged (structure tree, alternative
+# texts, language).  WeasyPrint takes one variant per document: its PDF/UA-1 variant
+# tags the same way but is not PDF/A, so it could not carry the attachments as PDF/A-3.
+PDF_OPTIONS = {"pdf_variant": "pdf/a-3a", "custom_metadata": True}
 PLACEHOLDER_PAGE = 8888  # the contents laid out once with numbers of this width
 
 
 def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
               page_size: str = "a4", identifier: bytes | None = None, stamp=None,
               workers: int | None = None) -> None:
-    """Print the page set as a PDF/A-3b at ``target`` with ``attachments`` embedded.
+    """Print the page set as a tagged PDF/A-3a at ``target`` with ``attachments`` embedded.
 
     The chapters are printed in parts on every core (unchanged parts come from the
     artefact cache), the front matter once their page numbers are known, the running

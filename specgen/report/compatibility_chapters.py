@@ -8,11 +8,11 @@ formulas written here.
 """
 from __future__ import annotations
 
-from specgen import refdata
 from specgen.checks import compatibility_checks as cmp
 from specgen.checks import compatibility_common as cc
 from specgen.report.chapters import badge, chapter, sheet_anchor
 from specgen.report.fmt import as_given, num, qty
+from specgen.report.wording import reader
 from specgen.science import colour
 
 #: The matrix columns: check code → short heading (the order of the columns).
@@ -84,7 +84,7 @@ def _zone(env, z) -> dict:
                "cells": [_cell(env.results.check(code, pr.subject)) for code in CRITERIA]}
               for pr in pairs]
     findings = [{"code": c.code, "title": c.title, "subject": c.subject, "badge": badge(c.status),
-                 "message": c.message, "href": f"calculations.md#{sheet_anchor(c)}"}
+                 "message": reader(c.message), "href": f"calculations.md#{sheet_anchor(c)}"}
                 for code in FINDINGS for pr in pairs if (c := env.results.check(code, pr.subject))]
     unit = pairs[0].unit if pairs else None
     hist = pairs[0].historic if pairs else None
@@ -100,20 +100,13 @@ def _zone(env, z) -> dict:
 
 def _grading_figure(env, z, pairs) -> dict | None:
     """Curves from what COMP-GRAD recorded per pair (the figure computes nothing)."""
-    p = env.project
     recorded = [(pr, env.results.value(pr.subject, "grading_curves")) for pr in pairs]
     recorded = [(pr, v) for pr, v in recorded if v]
     if not recorded:
         return None
     curves = [dict(v["repair"], label=f"{pr.mix_id} sand") for pr, v in recorded]
     first, hist = recorded[0][0], recorded[0][1]["historic"]
-    key = p.dossier.compatibility.grading_envelope
-    env_data = refdata.load("grading_envelopes").data.get(key) if key else None
-    envelope = None
-    if env_data:
-        lim = sorted(env_data["limits"], key=lambda e: e["sieve_mm"])
-        envelope = {"title": env_data["title"], "sieves_mm": [e["sieve_mm"] for e in lim],
-                    "low": [e["low"] for e in lim], "high": [e["high"] for e in lim]}
+    envelope = recorded[0][1].get("envelope")
     from specgen.report.compatibility_figures import grading_curves
     svg = grading_curves(curves, envelope, dict(
         hist, label=f"historic aggregate {first.historic.aggregate_sample}"))

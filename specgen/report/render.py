@@ -15,10 +15,11 @@ from markupsafe import Markup, escape
 
 from specgen.refdata import CONTENT_DIR
 from specgen.report.chapters import badge, chapters, sheet_anchor
-from specgen.report.fmt import as_given, num, qty
+from specgen.report.fmt import as_given, num, qty, unit_symbol
 from specgen.report.mathsvg import MathAssets
 from specgen.report.pageset import PageSet
 from specgen.report.references import Citations
+from specgen.report.wording import reader, rule_label, symbol
 
 
 def template_env(project_root) -> jinja2.Environment:
@@ -58,6 +59,7 @@ class RenderEnv:
     citations: Citations = field(default_factory=Citations)
     figures: list = field(default_factory=list)
     tables: int = 0
+    number: str = ""  # the number of the chapter being prepared ("7"; "B" in the appendix)
     deferred: list = field(default_factory=list)
 
     def later(self, fn) -> Markup:
@@ -97,19 +99,25 @@ class RenderEnv:
 
     def sheet(self, c) -> dict:
         """Context of one calculation sheet, straight from the check result."""
-        steps = [{"title": s.title, "formula": self.math.img(s.formula),
+        # the sheet keeps four significant figures: enough to recompute by hand
+        steps = [{"title": reader(s.title), "formula": self.math.img(s.formula),
                   "substituted": self.math.img(s.substituted),
-                  "result": qty(s.result, s.unit), "symbol": s.symbol,
-                  "inputs": [{"symbol": i.symbol, "name": i.name, "value": as_given(i.value),
-                              "unit": i.unit or "—", "source": i.source} for i in s.inputs]}
+                  "result": qty(s.result, s.unit, 4), "symbol": symbol(s.symbol),
+                  "inputs": [{"symbol": symbol(i.symbol), "name": reader(i.name),
+                              "value": as_given(i.value) if not isinstance(i.value, str)
+                              else reader(i.value), "unit": unit_symbol(i.unit) or "—",
+                              "source": reader(i.source)} for i in s.inputs]}
                  for s in c.steps]
-        bases = [{"text": b.text(), "cite": self.cite(b), "kind": b.kind} for b in c.basis]
+        bases = [{"text": reader(b.text()), "cite": self.cite(b), "kind": b.kind}
+                 for b in c.basis]
         limit = None
         if c.limit:
-            limit = {"text": c.limit.text, "rule": c.limit.rule, "overridden": c.limit.overridden}
+            limit = {"text": reader(c.limit.text), "rule": rule_label(c.limit.rule),
+                     "overridden": c.limit.overridden}
         return {"anchor": sheet_anchor(c), "code": c.code, "title": c.title, "subject": c.subject,
-                "badge": badge(c.status), "message": c.message, "steps": steps, "bases": bases,
-                "limit": limit, "value": qty(c.value, c.unit), "notes": list(c.notes)}
+                "badge": badge(c.status), "message": reader(c.message), "steps": steps,
+                "bases": bases, "limit": limit, "value": qty(c.value, c.unit, 4),
+                "notes": [reader(n) for n in c.notes]}
 
 
 def render(project, results, history=None, superseded: str | None = None) -> PageSet:
@@ -125,19 +133,41 @@ def render(project, results, history=None, superseded: str | None = None) -> Pag
     jenv.globals["table"] = env.table
     base = {"project": project.dossier.project, "revision": project.revision,
             "narrative": {}}
+    numbers = chapter_numbers(chapters())
     for spec in chapters():
-        for path, title, made in _pages_of(spec, spec.fn(env)):
-            ctx = dict(base, **made, title=title)
+        env.number = numbers.get(spec.path, "")
+        made = _pages_of(spec, spec.fn(env))
+        for i, (path, title, ctx) in enumerate(made, start=1):
+            if env.number:  # a family of pages is numbered within its chapter: 6.1, 6.2 …
+                title = f"{env.number}.{i} {title}" if len(made) > 1 or path != spec.path \
+                    else f"{env.number} {title}"
+            ctx = dict(base, **ctx, title=title)
             stem = path.rsplit(".", 1)[0]
             ctx["narrative"] = _narrative_for(project, "introduction" if stem == "index" else stem)
             text = jenv.get_template(spec.template).render(**ctx)
-            pageset.add_page(path, title, text)
+            pageset.add_page(path, title, text, volume=spec.volume)
     _resolve_later(env, pageset)
     from specgen.report.review import CONTEXT_ASSET, review_context
     pageset.add_asset(CONTEXT_ASSET, review_context(project))
     from specgen.report.marks import apply_marks
     apply_marks(pageset, project, results, superseded)
     return pageset
+
+
+def chapter_numbers(specs) -> dict[str, str]:
+    """The dossier's own section numbers: the report's chapters 1, 2, 3 … after the
+    summary (which stands before them unnumbered), the appendices A, B, C …"""
+    out, main, appendix = {}, 0, 0
+    for spec in specs:
+        if spec.path == "index.md":
+            continue
+        if spec.volume == "appendix":
+            out[spec.path] = chr(ord("A") + appendix)
+            appendix += 1
+        else:
+            main += 1
+            out[spec.path] = str(main)
+    return out
 
 
 def _resolve_later(env: RenderEnv, pageset: PageSet) -> None:

@@ -11,8 +11,9 @@ from markupsafe import Markup, escape
 from specgen.checks.result import STATUS_WORDS
 from specgen.checks.specification_checks import applicable
 from specgen.report.chapters import badge, chapter
-from specgen.report.fmt import anchor, as_given, num, qty
+from specgen.report.fmt import anchor, as_given, num, qty, unit_symbol
 from specgen.report.specification_clauses import clause_context
+from specgen.report.wording import plain, reader
 
 STATE_CLASS = {"open": "hold", "released": "pass"}
 
@@ -25,7 +26,7 @@ def _href(key: str) -> str:
 def _cell(c) -> dict:
     if c is None:
         return {"badge": Markup("—"), "value": "", "href": ""}
-    value = "" if c.status == "not_assessed" or c.value is None else qty(c.value, c.unit, 3)
+    value = "" if c.status == "not_assessed" or c.value is None else qty(c.value, c.unit)
     return {"badge": Markup(badge(c.status)), "value": value, "href": _href(c.key)}
 
 
@@ -45,6 +46,9 @@ def specification(env) -> dict:
         if r.value(z.id, "selected_mix"):
             chosen[z.id] = p.mixes[r.value(z.id, "selected_mix")]
             clauses[z.id] = clause_context(p, r, z, chosen[z.id])
+            # clauses numbered within the dossier's sections: chapter.zone.clause (9.2.3)
+            clauses[z.id]["number"] = f"{env.number}.{len(clauses)}" if env.number \
+                else str(len(clauses))
     zones = [_zone(env, z, jenv, clauses.get(z.id)) for z in p.dossier.zones]
     exports = _exports(env, jenv, chosen, clauses) if spec else []
     return {"has_spec": spec is not None, "zones": zones, "exports": exports,
@@ -62,16 +66,17 @@ def _zone(env, zone, jenv, clause_ctx) -> dict:
     return {"id": zone.id, "name": zone.name, "works": zone.works, "matrix": _matrix(env, zone),
             "selected": chosen, "mix_name": p.mixes[chosen].name if chosen else "",
             "badge": Markup(badge(sel.status)) if sel else "", "status": sel.status if sel else "",
-            "message": sel.message if sel else "", "href": _href(sel.key) if sel else "",
+            "message": reader(sel.message) if sel else "", "href": _href(sel.key) if sel else "",
             "rationale": s.rationale if s else "", "justification": s.justification if s else "",
-            "notes": list(sel.notes) if sel else [], "clauses": clauses,
+            "notes": [reader(n) for n in sel.notes] if sel else [], "clauses": clauses,
+            "clause_number": clause_ctx["number"] if clause_ctx else "",
             "n_failed": len(failed), "failed_links": Markup("; ").join(
                 Markup('<a href="{}">{}</a> {}').format(f["href"], f["key"], f["title"])
                 for f in failed)}
 
 
 def _failed(results, project, zone_id: str, mix_id: str) -> list[dict]:
-    return [{"key": c.key, "title": c.title, "href": _href(c.key), "message": c.message}
+    return [{"key": c.key, "title": c.title, "href": _href(c.key), "message": reader(c.message)}
             for c in applicable(results.checks, project, zone_id, mix_id) if c.status == "fail"]
 
 
@@ -140,7 +145,7 @@ def _regime(results, project) -> dict:
         if res is None:
             continue
         if not settings and res.steps:
-            settings = [{"name": i.name, "value": as_given(i.value), "unit": i.unit, "source": i.source}
+            settings = [{"name": i.name, "value": as_given(i.value), "unit": unit_symbol(i.unit), "source": reader(i.source)}
                         for i in res.steps[0].inputs if i.symbol in ("n_min", "a", "p", "k")]
         rows.append({"zone": z.id, "badge": Markup(badge(res.status)), "href": _href(res.key),
                      "area": qty(z.area, "m²", 3) if z.area else "—",
@@ -148,7 +153,7 @@ def _regime(results, project) -> dict:
                      "days": as_given(q["working_days"]) if q and q["working_days"] else "—",
                      "sets": as_given(q["sets"]) if q else "—",
                      "prisms": as_given(q["prisms"]) if q else "—",
-                     "message": res.message})
+                     "message": reader(res.message)})
     return {"rows": rows, "settings": settings, "acceptance": _acceptance_rows(results, project)}
 
 

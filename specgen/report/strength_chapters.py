@@ -13,6 +13,7 @@ from specgen.checks import strength_common as sc
 from specgen.checks.rules import RuleBook
 from specgen.report.chapters import badge, chapter, sheet_anchor
 from specgen.report.fmt import num
+from specgen.report.wording import plain, reader
 from specgen.science import strength_models as sm
 
 DAY, MPA = sc.DAY, sc.MPA
@@ -27,14 +28,14 @@ def strength(env) -> dict:
              for m in p.mixes.values() if any(mid == m.id for mid, _ in series)]
     st = sc.settings(p)
     return {"mixes": mixes, "has_data": bool(series), "warning": st.warning,
-            "energy": f"{num(st.activation_energy / 1000, 3)} kJ/mol ({st.energy_source})",
+            "energy": f"{num(st.activation_energy / 1000, 3)} kJ/mol ({plain(st.energy_source)})",
             "method": st.method.replace("_", "-"),
-            "site": p.site_temperature.source if p.site_temperature else ""}
+            "site": plain(p.site_temperature.source) if p.site_temperature else ""}
 
 
 def _mix(env, mix, series: list[sc.Series], rules) -> dict:
     r = env.results
-    results = [{"code": c.code, "title": c.title, "badge": badge(c.status), "message": c.message,
+    results = [{"code": c.code, "title": c.title, "badge": badge(c.status), "message": reader(c.message),
                 "href": f"calculations.md#{sheet_anchor(c)}"}
                for c in r.checks if c.subject == mix.id and c.code.startswith("STR-")]
     pred = r.value(mix.id, "predicted_strength")

@@ -197,3 +197,11 @@ def test_co2_per_oxide(oxide, carbonate, loss):
     # reference library: periodictable molar masses
     ref = periodictable.formula("CO2").mass / periodictable.formula(oxide).mass
     assert got == pytest.approx(ref, rel=1e-4)
+
+
+@pytest.mark.parametrize("element", sorted(refdata.load("atomic_weights").data))
+def test_every_atomic_weight_matches_periodictable(element):
+    # Reference library: periodictable (IUPAC standard atomic weights); content/data/
+    # atomic_weights.yaml is confirmed by this comparison, so it carries no 'memory' tag.
+    assert refdata.load("atomic_weights").data[element] == pytest.approx(
+        getattr(periodictable, element).mass, rel=1e-4)
