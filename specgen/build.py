@@ -18,6 +18,7 @@ from pathlib import Path
 
 from specgen.checks.run import Previous, Results, evaluate
 from specgen.errors import AuditRefused, InputErrors, Problem, UsageError
+from specgen.killpoints import reached
 from specgen.project import Project, load_project
 from specgen.project.load import ARCHIVE_DIR
 
@@ -36,7 +37,8 @@ def _load(project_dir) -> Project:
 
 
 def check(project_dir: Path | str) -> tuple[Project, Results]:
-    """Load the project and run every check and the audit (no output written)."""
+    """Load the project (and its archived issued revisions, validated as a build would)
+    and run every check and the audit (no output written)."""
     project = _load(project_dir)
     archived = _load_archive(Path(project_dir), project)
     return project, evaluate(project, previous=_previous(archived[-1] if archived else None))
@@ -96,12 +98,16 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None
     project = _load(project_dir)
     archived = _load_archive(Path(project_dir), project)
     out = Path(out_dir)
+    from specgen.publish.output import preflight
+    preflight(out)  # a read-only or full output folder is found before anything is drawn
+    reached("load")
     stale = frozen_inputs(out, archived, rebuild or {})
     previous = [None] + archived
     progress("check: running the checks and the consistency audit")
     results = evaluate(project, previous=_previous(previous[-1]))
     refuse_if_findings(project, results)
     refuse_unconfirmed(project, results)
+    reached("check")
     from specgen.report import cache
     # unchanged figures and math are reused from the output folder's artefact cache;
     # after a complete build it keeps only what this build used
@@ -170,6 +176,7 @@ def _build_one(project: Project, results: Results, out: Path, page_size: str | N
     history = history_for(out, project, results)
     progress("render: pages, figures and calculation sheets")
     pages = render(project, results, history, superseded=superseded)
+    reached("render")
     _fix_dates(project.revision.date)
     return publish(project, results, pages, out, page_size=page_size, progress=progress,
                    changes=results.changes, superseded=superseded, rebuilt=rebuilt)
@@ -207,20 +214,30 @@ def refuse_unconfirmed(project: Project, results: Results) -> None:
 
 
 def _load_archive(root: Path, current: Project) -> list[Project]:
-    """The archived issued revisions, validated, oldest first."""
+    """The archived issued revisions, validated, oldest first; the current revision must be
+    dated on or after every one of them."""
     folder = root / ARCHIVE_DIR
     if not folder.is_dir():
         return []
-    problems, found = [], []
+    problems, more, found = [], {}, []
     # a dot-folder is an issue in progress (or one a crash left), not an issued revision
     for sub in sorted(p for p in folder.iterdir() if p.is_dir() and not p.name.startswith(".")):
+        prefix = f"{ARCHIVE_DIR}/{sub.name}/"
+        if not (sub / "dossier.yaml").is_file():
+            problems.append(Problem(prefix + "dossier.yaml", "not found: an archived revision "
+                                    "folder holds the complete inputs of the revision it is "
+                                    "named after.", fix=f"restore the file (the PDF of revision "
+                                    f"{sub.name} carries it as the attachment input/dossier.yaml)"
+                                    ", or remove the folder if it is not an issued revision."))
+            continue
         try:
             old = _load(sub)
         except InputErrors as exc:
-            problems += [Problem(f"{ARCHIVE_DIR}/{sub.name}/{p.file}", p.message, p.line, p.row,
-                                 p.field, p.fix) for p in exc.problems]
+            problems += [Problem(prefix + p.file, p.message, p.line, p.row, p.field, p.fix)
+                         for p in exc.problems]
+            more.update({prefix + f: n for f, n in exc.more.items()})
             continue
-        where = f"{ARCHIVE_DIR}/{sub.name}/dossier.yaml"
+        where = prefix + "dossier.yaml"
         if old.revision.code != sub.name or old.revision.status != "issued":
             problems.append(Problem(where, f"holds revision '{old.revision.code}' "
                                     f"({old.revision.status}); an archive folder holds the issued "
@@ -230,10 +247,78 @@ def _load_archive(root: Path, current: Project) -> list[Project]:
             problems.append(Problem("dossier.yaml", f"revision '{current.revision.code}' is already "
                                     f"issued in {ARCHIVE_DIR}/{sub.name}/.", field="revision.code",
                                     fix="raise a new revision code for the current inputs."))
+        elif old.revision.date > current.revision.date:
+            problems.append(Problem("dossier.yaml", f"revision {current.revision.code} is dated "
+                                    f"{current.revision.date}, before revision {old.revision.code} "
+                                    f"was issued ({old.revision.date}).", field="revision.date",
+                                    fix="date the revision on or after the last issued one.",
+                                    line=_line_of_date(root)))
         found.append(old)
-    if problems:
-        raise InputErrors(problems)
+    if problems or more:
+        raise InputErrors(problems, more)
     return sorted(found, key=lambda p: (p.revision.date, p.revision.code))
+
+
+def _line_of_date(root: Path) -> int | None:
+    from specgen.errors import ProblemLog
+    from specgen.project.files import read_yaml
+    located = read_yaml(root / "dossier.yaml", "dossier.yaml", ProblemLog())
+    return located.line_of(("revision", "date")) if located else None
+
+
+def verify(path: Path | str, project_dir: Path | str | None = None,
+           trust: list[Path] = ()) -> dict:
+    """Built output against what it vouches for: ``{"differences": [...], "signatures":
+    [...]}``; no differences and every signature intact when all match.
+
+    ``path`` is a revision folder or an output folder (then every revision in it, and
+    versions.json and the root index against the revisions present).  With
+    ``project_dir``, the inputs kept for each revision (``issued/<revision>/``, or the
+    project folder for its current revision) are checked against the manifest too.
+    Signed revisions' signatures are checked against the ``trust`` roots.
+    """
+    from specgen.errors import PublishError
+    from specgen.publish import verify as v
+    from specgen.publish.signing import verify_signatures
+    path = Path(path)
+    if (path / "manifest.json").is_file():
+        folders, lines = [path], []
+    else:
+        folders = v.revisions_in(path) if path.is_dir() else []
+        if not folders:
+            raise PublishError(f"{path}: neither a revision folder nor an output folder written "
+                               "by specgen build. Fix: name OUT or OUT/<revision>.")
+        lines = v.folder_differences(path)
+    signatures = []
+    for folder in folders:
+        lines += [f"{folder.name}: {d}" for d in v.revision_differences(folder)]
+        if project_dir is not None:
+            lines += _kept_inputs(Path(project_dir), folder, v)
+        signatures += verify_signatures(folder, list(trust))
+    return {"differences": lines, "signatures": signatures}
+
+
+def _kept_inputs(project: Path, folder: Path, v) -> list[str]:
+    from specgen.project.load import input_files
+    code = folder.name
+    kept = project / ARCHIVE_DIR / code
+    if not kept.is_dir():
+        kept = project if _revision_code(project) == code else None
+    if kept is None:
+        if v.manifest_of(folder).get("status") == "issued":
+            return [f"{code}: the project keeps no inputs of this issued revision "
+                    f"({ARCHIVE_DIR}/{code}/)"]
+        return []
+    return v.input_differences(folder, {f.path: f.sha256 for f in input_files(kept)})
+
+
+def _revision_code(project: Path) -> str | None:
+    from specgen.errors import ProblemLog
+    from specgen.project.files import read_yaml
+    located = read_yaml(project / "dossier.yaml", "dossier.yaml", ProblemLog())
+    data = located.data if located else None
+    rev = data.get("revision") if isinstance(data, dict) else None
+    return str(rev.get("code")) if isinstance(rev, dict) else None
 
 
 def _fix_dates(date: dt.date) -> None:
@@ -307,15 +392,6 @@ def diff_text(changes: dict) -> str:
     """The change report as text (what ``specgen diff`` prints)."""
     from specgen.checks.revision_delta import as_text
     return as_text(changes)
-
-
-def verify(revision_dir: Path | str, trust: list[Path] = ()) -> dict:
-    """A built revision against its manifest, and its signatures when it is signed."""
-    from specgen.publish.output import verify as files_match
-    from specgen.publish.signing import verify_signatures
-    report = files_match(Path(revision_dir))
-    report["signatures"] = verify_signatures(Path(revision_dir), list(trust))
-    return report
 
 
 def sign(revision_dir: Path | str, key: Path, cert: Path, *, passphrase: bytes | None = None,

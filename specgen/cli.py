@@ -196,28 +196,36 @@ def diff(out: Path, old: str, new: str, fmt: str) -> None:
 
 
 @cli.command()
-@click.argument("revision_dir", type=click.Path(file_okay=False, path_type=Path))
+@click.argument("path", type=click.Path(file_okay=False, path_type=Path))
+@click.option("--project", "project", type=click.Path(file_okay=False, path_type=Path),
+              default=None, help="project folder: also check the inputs it keeps for each "
+              "revision (issued/<revision>/) against the manifest")
 @click.option("--trust", multiple=True, type=click.Path(dir_okay=False, path_type=Path),
               help="certificate (PEM) to trust as a root when checking signatures")
-def verify(revision_dir: Path, trust: tuple) -> None:
-    """Check a built revision against its manifest and signatures (exit 1 on any difference)."""
+def verify(path: Path, project: Path | None, trust: tuple) -> None:
+    """Check built output against its manifests and signatures (exit 1 on any difference).
+
+    PATH is a revision folder (OUT/R1) or an output folder (OUT: every revision, and
+    versions.json and the root index against the revisions present).
+    """
     from specgen.build import verify as run_verify
     try:
-        report = run_verify(revision_dir, list(trust))
+        report = run_verify(path, project, list(trust))
     except SpecgenError as exc:
         _fail(exc)
-    bad = False
-    for kind in ("modified", "missing", "extra"):
-        for path in report[kind]:
-            bad = True
-            click.echo(f"{kind}: {path}")
+    differences = report["differences"]
+    for line in differences:
+        click.echo(line)
+    broken = [s for s in report["signatures"] if not s["intact"]]
     for s in report["signatures"]:
-        bad = bad or not s["intact"]
         click.echo(f"signature of {s['file']}: {s['summary']}")
-    click.echo(f"{revision_dir}: " + ("does NOT match its manifest" if bad
-                                      else "every file matches its manifest"
-                                      + (" and every signature is intact" if report["signatures"]
-                                         else "")))
+    bad = bool(differences or broken)
+    click.echo(f"{path}: " + (f"does NOT match its manifest ({len(differences)} "
+                              f"difference{'s' if len(differences) != 1 else ''}"
+                              f"{f', {len(broken)} broken signature' if broken else ''})"
+                              if bad else "every file matches its manifest"
+                              + (" and every signature is intact" if report["signatures"]
+                                 else "")))
     sys.exit(1 if bad else 0)
 
 

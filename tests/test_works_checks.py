@@ -102,10 +102,15 @@ def test_quick_set_halves_the_measure(demo):
     c = by(r)[("SITE-GAUGE", "M2")]
     g = r.quantities["M2"]["gauging"].value
     # M2 has no measured workable life: the natural-cement default of 10 min (common practice)
-    # at 8 L/h and γ = 1.5 allows 0.889 L, so the 1 L measure is halved to 0.25 L.
+    # at 8 L/h and γ = 1.5 allows 0.889 L, so the 0.25 L scoop of the site's real measures
+    # (content/data/site_measures.yaml, common practice) is used instead of the 1 L measure.
     assert c.status == "attention"
     assert (g["measure_L"], g["halved_from_L"], g["binder_measures"]) == (0.25, 1.0, 1)
-    assert "so the measure is halved to 0.25 L" in c.message
+    assert "so a 0.25 L scoop is used" in c.message
+    # Z1: 8 L/h × 6 h = 48 L in gaugings of 0.596 L: ⌈80.5⌉ = 81 gaugings a day, more than
+    # the 40 one mixer keeps up with (rule of common practice): the check says so
+    assert r.quantities["M2"]["gauging_by_zone"].value["Z1"]["per_day"] == 81
+    assert "zone Z1 needs 81 gaugings a day" in c.message
     assert r.quantities["M2"]["max_gauging_volume"].value["Z1"] == pytest.approx(0.889)
 
 
@@ -256,11 +261,15 @@ def test_works_page_and_cards_from_the_demo(demo):
     m1 = cards[0]
     # Water per gauging by hand: one 1 L measure of NC1 at 850 kg/m³ (demo materials.yaml)
     # = 0.85 kg of binder; × w/b 0.55 (demo mixes.yaml) = 0.4675 kg of water, / 998.2 kg/m³
-    # (content/data/mix_densities.yaml) = 0.4683 L, shown 0.47 L and 0.468 kg; retarder 0.2 %
-    # of 0.85 kg binder = 1.7 g.
-    assert "| 1 | Pour the gauging water into a marked jug | jug | 0.47 L | 0.468 kg |" in m1
+    # (content/data/mix_densities.yaml) = 0.4683 L, shown 0.47 L and, to the 10 g a site
+    # scale reads (common practice), 0.47 kg; retarder 0.2 % of 0.85 kg binder = 1.7 g.
+    assert "| 1 | Pour the gauging water into a marked jug | jug | 0.47 L | 0.47 kg |" in m1
     assert "| 2 | Dissolve the citric acid solution (retarder) in the water | scale | — | 1.7 g |" in m1
     assert "Workable life **30 min** (measured)" in m1
+    # Z2 may place 8.33 L in time: four card mixes of 1.696 L at once (6.785 L); its crew
+    # places 25 L/h × 6 h = 150 L a day → ⌈150 / 6.785⌉ = ⌈22.1⌉ = 23 gaugings (by hand)
+    assert "| Z2 | 4 × this card | 6.79 L | 23 | 8.33 L |" in m1
+    assert "one mixer cannot keep up" in cards[1] and "one mixer cannot keep up" not in m1
 
 
 def test_works_page_says_so_without_data(demo_copy):

@@ -14,7 +14,7 @@ from __future__ import annotations
 from specgen import refdata
 from specgen.checks import compatibility_common as cc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, Input, Quantity, Step, worst
+from specgen.checks.result import Basis, Input, Quantity, Step, tex_name, worst
 from specgen.science import grading as gr
 
 declare("fineness_modulus", "", "fineness modulus (ASTM C125) of the repair sand and of the "
@@ -236,7 +236,7 @@ def _blend_one(pair, ctx):
                     for s, v in prop.items())
     step = Step("Best blend by non-negative least squares",
                 r"\min_{x \ge 0,\ \sum x = 1} \sum_j \Big(\sum_i x_i P_{ij} - P_{\mathrm{hist},j}\Big)^2",
-                inputs, ", ".join(f"x_{{{s}}} = {v:.3f}" for s, v in best.items())
+                inputs, ", ".join(f"x_{{{tex_name(s)}}} = {v:.3f}" for s, v in best.items())
                 + rf",\ \Delta_\mathrm{{rms}} = {100 * fit.rms:.2f}\,\%", round(100 * fit.rms, 4),
                 "%", "Δ_rms")
     text = ", ".join(f"{s} {100 * v:.0f} %" for s, v in best.items())

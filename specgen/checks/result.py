@@ -7,6 +7,7 @@ they are shown in (``unit``); the science underneath works in SI.
 """
 from __future__ import annotations
 
+import unicodedata
 from dataclasses import asdict, dataclass, field
 from typing import Literal
 
@@ -16,6 +17,20 @@ STATUSES: tuple[str, ...] = ("fail", "needs_decision", "hold", "attention", "not
 STATUS_WORDS = {"pass": "pass", "fail": "fail", "needs_decision": "needs decision",
                 "attention": "attention", "hold": "hold", "not_assessed": "not assessed",
                 "info": "for information"}
+
+
+# Characters with a meaning in the math source, and how a name writes them literally.
+_TEX = {"\\": r"\backslash{}", "&": r"\&", "%": r"\%", "$": r"\$", "#": r"\#", "_": r"\_",
+        "{": r"\{", "}": r"\}", "~": r"\sim{}", "^": r"\wedge{}", " ": r"\ "}
+
+
+def tex_name(text: object) -> str:
+    r"""A name or id from the project, written literally in the math source (inside
+    ``\mathrm{…}`` or a subscript): every character with a meaning in LaTeX escaped,
+    spaces kept, control characters dropped.  The one way a project's words reach a
+    formula (an admixture named "lime & pozzolan retarder" must not break the markup)."""
+    return "".join(_TEX.get(c, c) for c in str(text).replace("\u00a0", " ")
+                   if unicodedata.category(c) != "Cc")
 
 
 @dataclass(frozen=True)

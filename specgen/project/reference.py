@@ -13,7 +13,7 @@ from specgen.project.tables import COLOUR_COLUMNS, SIEVE_COLUMNS, STRENGTH_COLUM
 UNIT_OF = {"Pressure": "pressure, e.g. '12 MPa'", "Length": "length, e.g. '10 mm'",
            "Area": "area, e.g. '240 m^2'", "Density": "density, e.g. '850 kg/m^3'",
            "Duration": "time, e.g. '28 d'", "Temperature": "temperature, e.g. '20 degC'",
-           "MassPercent": "mass %"}
+           "MassPercent": "mass %", "Number": "number"}
 
 
 def _unit_kind(metadata) -> str | None:
@@ -54,7 +54,8 @@ def _type_name(annotation, metadata=()) -> tuple[str, type[BaseModel] | None]:
         if typing.get_origin(args[1]) is dict:
             return "mapping of lumped key → {constituent: fraction}", None
         return "mapping of constituent → mass %", None
-    return getattr(annotation, "__name__", str(annotation)).replace("Annotated", "text"), None
+    name = getattr(annotation, "__name__", str(annotation)).replace("Annotated", "text")
+    return ("number" if name == "float" else name), None
 
 
 def _rows(model: type[BaseModel], prefix: str, out: list) -> None:

@@ -8,6 +8,7 @@ Unknown keys are refused (with a suggestion) so a typo never silently drops data
 from __future__ import annotations
 
 import datetime as dt
+import unicodedata
 from typing import Annotated, Literal
 
 from pydantic import (AfterValidator, BaseModel, BeforeValidator, ConfigDict, Field,
@@ -18,7 +19,16 @@ from specgen import units
 
 ID_PATTERN = r"^[A-Za-z0-9][A-Za-z0-9._-]{0,39}$"
 Id = Annotated[str, Field(pattern=ID_PATTERN, description="short identifier: letters, digits, . _ -")]
-Text = Annotated[str, Field(max_length=4000)]
+
+
+def _plain_text(value: str) -> str:
+    # a control character (NUL, escape codes …) written as a YAML escape is damage, not text
+    if any(unicodedata.category(c) == "Cc" and c not in "\n\t" for c in value):
+        raise ValueError("holds a control character (such as NUL); write plain text")
+    return value
+
+
+Text = Annotated[str, Field(max_length=4000), AfterValidator(_plain_text)]
 # an element id in the published site (what a review comment is anchored to)
 ANCHOR_PATTERN = r"^[A-Za-z][A-Za-z0-9_:.-]{0,119}$"
 
@@ -36,6 +46,9 @@ def _positive(value: float) -> float:
     return value
 
 
+# A plain number (parts, ratios, prices, factors): finite and of a plausible size, by the
+# same guard as every quantity (units.plausible), so NaN, infinity or 1e308 never load.
+Number = Annotated[float, AfterValidator(lambda v: units.plausible(v, "number"))]
 Pressure = Annotated[float, _quantity("pressure"), AfterValidator(_positive)]
 Length = Annotated[float, _quantity("length"), AfterValidator(_positive)]
 Area = Annotated[float, _quantity("area"), AfterValidator(_positive)]
@@ -135,7 +148,16 @@ def _known_constituent(name: str) -> str:
 class Model(BaseModel):
     """Base of every document model: unknown keys refused, values immutable."""
 
-    model_config = ConfigDict(extra="forbid", frozen=True, str_strip_whitespace=True)
+    model_config = ConfigDict(extra="forbid", frozen=True, str_strip_whitespace=True,
+                              allow_inf_nan=False)
+
+    @field_validator("*", mode="after")
+    @classmethod
+    def _required_text_given(cls, value, info):
+        """A required text field (a name, a title, a description) may not be left empty."""
+        if isinstance(value, str) and not value and cls.model_fields[info.field_name].is_required():
+            raise ValueError("is empty; this text is required")
+        return value
 
 
 # ---------------------------------------------------------------- dossier.yaml
@@ -244,7 +266,7 @@ class Requirements(Model):
 
 class RuleOverride(Model):
     rule: Text = Field(description="rule key from content/rules, e.g. analysis.closure_pass")
-    value: float = Field(description="new limit, in the rule's unit")
+    value: Number = Field(description="new limit, in the rule's unit")
     justification: Text = Field(min_length=10, description="why the project departs from the default")
 
 
@@ -376,7 +398,7 @@ class Analysis(Model):
                             BeforeValidator(_canonical_names)] = Field(
         description="constituents in mass %, e.g. CaO: 41.2, LOI: 30.5 (names: see "
         "'Constituents of an analysis' below; volatile ones count as loss)")
-    lumped_split: dict[str, dict[str, float]] = Field(
+    lumped_split: dict[str, dict[str, Number]] = Field(
         default_factory=dict, description="declared split of a lumped oxide, e.g. "
         "'Al2O3+Fe2O3': {Al2O3: 0.6, Fe2O3: 0.4} (fractions summing to 1)")
 
@@ -441,7 +463,7 @@ class Hygrothermal(Model):
     capillary_coefficient: Capillary | None = Field(
         None, description="capillary absorption coefficient (EN 1015-18 style), e.g. "
         "'0.4 kg/(m^2*min^0.5)'; or readings in lab/capillary.csv under the same id")
-    vapour_resistance_factor: float | None = Field(
+    vapour_resistance_factor: Number | None = Field(
         None, gt=0, description="water-vapour diffusion resistance factor μ (EN ISO 12572), e.g. 12")
     thermal_expansion: Expansion | None = Field(
         None, description="linear thermal expansion coefficient, e.g. '8e-6 1/K'")
@@ -528,12 +550,12 @@ class MaterialsFile(Model):
 # ----------------------------------------------------------------- mixes.yaml
 class BinderPart(Model):
     binder: Id = Field(description="binder id")
-    parts: float = Field(description="parts by volume")  # > 0: checked in works_inputs
+    parts: Number = Field(description="parts by volume")  # > 0: checked in works_inputs
 
 
 class SandPart(Model):
     sand: Id = Field(description="sand id")
-    parts: float = Field(description="parts by volume")  # > 0: checked in works_inputs
+    parts: Number = Field(description="parts by volume")  # > 0: checked in works_inputs
 
 
 class Admixture(Model):
@@ -547,7 +569,7 @@ class Mix(Model):
     name: Text = Field(description="descriptive name")
     binders: list[BinderPart] = Field(description="binder parts by volume")
     sands: list[SandPart] = Field(default_factory=list, description="sand parts by volume")
-    water_binder_ratio: float | None = Field(None, gt=0, lt=3, description="water/binder by mass")
+    water_binder_ratio: Number | None = Field(None, gt=0, lt=3, description="water/binder by mass")
     consistence: Length | None = Field(None, description="target flow value (EN 1015-3), e.g. "
                                        "'165 mm', where water is gauged to consistence")
     air_content: Fraction | None = Field(None, description="air content of the fresh mortar "
@@ -622,9 +644,9 @@ class SiteTests(Model):
                                       "e.g. '50 m^2' (default specification.area_per_set)")
     per_working_day: bool = Field(True, description="also at least one set per day's work "
                                   "(days from the zone's mortar volume and placing rate)")
-    min_sets: int | None = Field(None, ge=1, description="fewest sets per zone (default "
+    min_sets: int | None = Field(None, ge=1, le=1000, description="fewest sets per zone (default "
                                  "specification.min_sets)")
-    prisms_per_set: int | None = Field(None, ge=1, description="prisms in one set, per test "
+    prisms_per_set: int | None = Field(None, ge=1, le=1000, description="prisms in one set, per test "
                                        "age (default specification.prisms_per_set)")
     test_ages: list[Duration] = Field(default_factory=list, description="test ages, e.g. "
                                       "['28 d', '90 d'] (default: the ages of "
@@ -676,7 +698,7 @@ class UnitPrice(Model):
     """Price of a mortar for the options appraisal (cost per m² of wall)."""
 
     mix: Id = Field(description="mix id")
-    price: float = Field(gt=0, description="price of the quantity 'per', in the currency")
+    price: Number = Field(gt=0, description="price of the quantity 'per', in the currency")
     per: Volume = Field(1.0, description="quantity of placed mortar the price is for, e.g. "
                         "'1 m^3' (default) or '1 L'")
     source: Text = Field("", description="quotation or price book")

@@ -8,6 +8,7 @@ import shutil
 from pathlib import Path
 
 from specgen.errors import PublishError
+from specgen.killpoints import reached
 from specgen.publish.output import (move_into_place, refuse_if_issued, staging_dir,
                                     update_versions, write_manifest)
 
@@ -46,6 +47,7 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
     except BaseException:
         shutil.rmtree(staging, ignore_errors=True)
         raise
+    reached("versions")
     try:
         update_versions(out)
     except OSError as exc:
@@ -62,9 +64,10 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     rev = project.revision
     name = f"{project.dossier.project.title} — {rev.code}"
     progress("publish: site" + (" and PDF in parallel" if parallel else ""))
-    child = _fork(build_site, pages, staging, name) if parallel else None
+    extra = {"sg_report": _report_bar(project)}
+    child = _fork(build_site, pages, staging, name, extra) if parallel else None
     if child is None:
-        build_site(pages, staging, name)
+        build_site(pages, staging, name, extra)
     progress("publish: PDF")
     results_json = results.to_json().encode("utf-8")
     attachments = {"results.json": results_json}
@@ -80,6 +83,7 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
         if child is not None:
             _join(child)
             child = None
+        reached("site")
         os.replace(pdf_tmp, staging / pdf_name(project))
     finally:
         if child is not None:  # the PDF failed: stop the site before the staging is removed
@@ -99,6 +103,7 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
         "status": rev.status, "date": rev.date.isoformat(), "format": "specgen-manifest/1",
         "description": rev.description, "purpose": rev.purpose, "facts": results.facts,
         "findings": len(results.findings), **{k: v for k, v in control.items() if v}})
+    reached("staged")
 
 
 def _child(fn, args, conn) -> None:
@@ -146,6 +151,15 @@ def _stop(handle) -> None:
 def _stamp(date):
     import datetime as dt
     return dt.datetime(date.year, date.month, date.day, tzinfo=dt.timezone.utc)
+
+
+def _report_bar(project) -> dict:
+    """What the site's report bar shows on every page (escaped by the page frame)."""
+    from specgen.report.fmt import date_text
+    p, rev = project.dossier.project, project.revision
+    return {"project": p.title, "code": p.code, "revision": rev.code, "status": rev.status,
+            "state": STATE[rev.status], "purpose": PURPOSE[rev.purpose],
+            "date": date_text(rev.date)}
 
 
 def _print_context(project, marks: dict | None = None) -> dict:

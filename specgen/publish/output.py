@@ -109,14 +109,81 @@ def refuse_if_issued(target: Path, inputs, rebuilt: str | None = None) -> list[d
 
 
 def move_into_place(staging: Path, target: Path) -> None:
-    """Replace ``target`` by ``staging`` with renames only (old copy removed afterwards)."""
-    old = None
-    if target.exists():
-        old = target.with_name(f".old-{os.getpid()}-{target.name}")
-        os.replace(target, old)
+    """Put ``staging`` where ``target`` is, so that ``target`` never stops existing.
+
+    A new revision is one rename.  A revision rebuilt over an existing folder is swapped in
+    with one atomic exchange of the two folders (Linux ``renameat2(RENAME_EXCHANGE)``), after
+    which the old copy sits under the staging name and is removed; a build killed at any
+    moment leaves either the old or the new revision complete at ``target``.  Where the
+    filesystem cannot exchange, two renames are used and :func:`recover` puts the old copy
+    back if a build dies between them.
+    """
+    from specgen.killpoints import reached
+    reached("move")
+    if not target.exists():
+        os.replace(staging, target)
+        return
+    if _exchange(staging, target):  # target: the new revision; staging: the old one
+        reached("moved")
+        shutil.rmtree(staging, ignore_errors=True)
+        return
+    old = target.with_name(f".old-{os.getpid()}-{target.name}")
+    os.replace(target, old)
+    reached("between-renames")
     os.replace(staging, target)
-    if old is not None:
-        shutil.rmtree(old, ignore_errors=True)
+    shutil.rmtree(old, ignore_errors=True)
+
+
+RENAME_EXCHANGE = 2
+AT_FDCWD = -100
+
+
+def _exchange(a: Path, b: Path) -> bool:
+    """Swap two paths atomically; False where the system or filesystem cannot."""
+    import ctypes
+    import errno
+    if os.environ.get("SPECGEN_NO_EXCHANGE"):  # the two-rename path, for its own test
+        return False
+    try:
+        libc = ctypes.CDLL(None, use_errno=True)
+        fn = libc.renameat2
+    except (OSError, AttributeError):
+        return False
+    fn.argtypes = [ctypes.c_int, ctypes.c_char_p, ctypes.c_int, ctypes.c_char_p, ctypes.c_uint]
+    fn.restype = ctypes.c_int
+    if fn(AT_FDCWD, os.fsencode(a), AT_FDCWD, os.fsencode(b), RENAME_EXCHANGE) == 0:
+        return True
+    err = ctypes.get_errno()
+    if err in (errno.EINVAL, errno.ENOSYS, errno.EOPNOTSUPP, errno.EXDEV):
+        return False
+    raise OSError(err, os.strerror(err), str(b))
+
+
+def preflight(out: Path, *, floor: int = 50 * 2**20) -> None:
+    """Before anything is rendered: the output folder can be written and its disk has room
+    for a revision (the largest one already there, half again, or ``floor`` bytes)."""
+    try:
+        out.mkdir(parents=True, exist_ok=True)
+        probe = Path(tempfile.mkdtemp(prefix=f".probe-{os.getpid()}-", dir=out))
+        try:
+            (probe / "probe").write_bytes(b"specgen can write here\n")
+        finally:
+            shutil.rmtree(probe, ignore_errors=True)
+        stat = os.statvfs(out)
+    except OSError as exc:
+        raise PublishError(f"{out}: cannot write the output folder ({exc.strerror}). "
+                           "Fix: choose a writable folder with --out, or free disk space.") from exc
+    need = max(floor, int(1.5 * max((_size(d) for d in out.iterdir()
+                                     if d.is_dir() and (d / MANIFEST).is_file()), default=0)))
+    free = stat.f_bavail * stat.f_frsize
+    if free < need:
+        raise PublishError(f"{out}: the disk has {free / 2**20:.0f} MiB free; a revision needs "
+                           f"about {need / 2**20:.0f} MiB. Nothing was written. Fix: free disk "
+                           "space or choose another folder with --out.")
+
+
+def _size(folder: Path) -> int:
+    return sum(p.stat().st_size for p in folder.rglob("*") if p.is_file())
 
 
 def write_atomic(path: Path, text: str) -> None:
@@ -131,6 +198,7 @@ def update_versions(out: Path) -> list[dict]:
     and ``revisions.js`` (the marks every revision's pages show: superseded, draft beside).
 
     The root opens the latest issued revision (a draft only while nothing is issued)."""
+    from specgen.killpoints import reached
     revs = []
     for mf in sorted(out.glob(f"*/{MANIFEST}")):
         if mf.parent.name.startswith("."):
@@ -150,6 +218,7 @@ def update_versions(out: Path) -> list[dict]:
         if r["status"] != "issued" and r is not opens:
             r["aliases"] = ["draft"] if r is revs[0] else []
     write_atomic(out / VERSIONS, json.dumps(revs, indent=2) + "\n")
+    reached("index")
     draft = revs[0] if revs[0]["status"] != "issued" and revs[0] is not opens else None
     write_atomic(out / "index.html", REDIRECT.format(rev=opens["version"], draft=(
         f' A draft, <a href="{draft["version"]}/index.html">{draft["version"]}</a>, is in '

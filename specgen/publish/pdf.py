@@ -17,6 +17,7 @@ import jinja2
 import yaml
 
 from specgen.errors import PublishError
+from specgen.killpoints import reached
 from specgen.refdata import CONTENT_DIR
 
 PRINT_DIR = CONTENT_DIR / "print"
@@ -122,7 +123,8 @@ def pieces(pageset, size: int = PART_SIZE) -> list[Piece]:
 
 
 def _template(name: str):
-    env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(PRINT_DIR)), autoescape=True)
+    from specgen.templating import sandboxed
+    env = sandboxed(jinja2.FileSystemLoader(str(PRINT_DIR)))
     return env.get_template(name)
 
 
@@ -200,7 +202,10 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
         order = sorted(range(len(groups)), key=lambda i: -sum(len(p.html) for p in groups[i]))
         handles = {i: cached_or_submitted(printer, "pdf-part", document_html(
             context, groups[i], front=False), css, **PDF_OPTIONS) for i in order}
-        printed = [handles[i].result() for i in range(len(groups))]
+        printed = []
+        for i in range(len(groups)):
+            printed.append(handles[i].result())
+            reached(f"pdf-part-{i + 1}")
         sizes = [size for doc in printed for size in doc.pages]
         length = len(guess.result().pages)
         for _ in range(3):  # the contents' length does not depend on its numbers, but check
@@ -216,8 +221,10 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
             raise PublishError("the contents pages changed length with their page numbers "
                                "three times; nothing was changed in the output folder. Fix: "
                                "report this with the project.")
+        reached("pdf-front")
         stamps = [s.result() for s in stamps]
     assemble(done, printed, stamps, target)
+    reached("pdf-assembled")
 
 
 STAMP_SPLIT = 400  # pages per stamp document

@@ -93,6 +93,7 @@ def global_anchors(docs, start: int = 0) -> dict[str, tuple[int, float, float]]:
 
 
 def _links(writer, docs, offsets, anchors) -> None:
+    from specgen.publish.pdf import BASE
     from pypdf.generic import (ArrayObject, DictionaryObject, FloatObject, NameObject,
                                NumberObject, TextStringObject)
     pages = writer.pages
@@ -113,6 +114,11 @@ def _links(writer, docs, offsets, anchors) -> None:
                     pages[to_page].indirect_reference, NameObject("/XYZ"), FloatObject(x),
                     FloatObject(y), NumberObject(0)])
             else:
+                if target.startswith(BASE):
+                    # a file published beside the PDF (a download: the quantities schedule,
+                    # the exports), linked relative to the PDF's own folder instead of the
+                    # print engine's private address, which leads nowhere once printed
+                    target = target[len(BASE):]
                 annot[NameObject("/A")] = DictionaryObject({
                     NameObject("/Type"): NameObject("/Action"),
                     NameObject("/S"): NameObject("/URI"),

@@ -3,7 +3,9 @@
 Templates are Jinja2 files producing Markdown, looked up first in the project's
 ``templates/`` folder (the project's files win) and then in ``content/templates``.
 Autoescaping is on: every string from the project is HTML-escaped, so a name or
-note can never inject markup or script into the site or the PDF.
+note can never inject markup or script into the site or the PDF.  Every template runs
+in Jinja's sandbox (``specgen.templating.py``): a project's template is input and
+can reach only the context handed to it.
 """
 from __future__ import annotations
 
@@ -19,18 +21,18 @@ from specgen.report.fmt import as_given, num, qty, unit_symbol
 from specgen.report.mathsvg import MathAssets
 from specgen.report.pageset import PageSet
 from specgen.report.references import Citations
+from specgen.templating import project_template_errors, project_templates, sandboxed
 from specgen.report.wording import reader, rule_label, symbol
 
 
 def template_env(project_root) -> jinja2.Environment:
-    """Jinja environment: project templates first, then ours."""
+    """Sandboxed Jinja environment: project templates first, then ours."""
     loaders = []
-    if project_root is not None and (project_root / "templates").is_dir():
-        loaders.append(jinja2.FileSystemLoader(str(project_root / "templates")))
+    if (own := project_templates(project_root)) is not None:
+        loaders.append(jinja2.FileSystemLoader(str(own)))
     loaders.append(jinja2.FileSystemLoader(str(CONTENT_DIR / "templates")))
-    env = jinja2.Environment(loader=jinja2.ChoiceLoader(loaders), autoescape=True,
-                             undefined=jinja2.StrictUndefined, trim_blocks=True,
-                             lstrip_blocks=True, keep_trailing_newline=True)
+    env = sandboxed(jinja2.ChoiceLoader(loaders), undefined=jinja2.StrictUndefined,
+                    trim_blocks=True, lstrip_blocks=True, keep_trailing_newline=True)
     env.filters["num"] = num
     env.filters["cell"] = lambda v: Markup(str(escape(v)).replace("|", "&#124;").replace("\n", " "))
     env.filters["plain"] = plain
@@ -134,18 +136,20 @@ def render(project, results, history=None, superseded: str | None = None) -> Pag
     base = {"project": project.dossier.project, "revision": project.revision,
             "narrative": {}}
     numbers = chapter_numbers(chapters())
-    for spec in chapters():
-        env.number = numbers.get(spec.path, "")
-        made = _pages_of(spec, spec.fn(env))
-        for i, (path, title, ctx) in enumerate(made, start=1):
-            if env.number:  # a family of pages is numbered within its chapter: 6.1, 6.2 …
-                title = f"{env.number}.{i} {title}" if len(made) > 1 or path != spec.path \
-                    else f"{env.number} {title}"
-            ctx = dict(base, **ctx, title=title)
-            stem = path.rsplit(".", 1)[0]
-            ctx["narrative"] = _narrative_for(project, "introduction" if stem == "index" else stem)
-            text = jenv.get_template(spec.template).render(**ctx)
-            pageset.add_page(path, title, text, volume=spec.volume)
+    with project_template_errors(getattr(project, "root", None)):
+        for spec in chapters():
+            env.number = numbers.get(spec.path, "")
+            made = _pages_of(spec, spec.fn(env))
+            for i, (path, title, ctx) in enumerate(made, start=1):
+                if env.number:  # a family of pages is numbered within its chapter: 6.1, 6.2 …
+                    title = f"{env.number}.{i} {title}" if len(made) > 1 or path != spec.path \
+                        else f"{env.number} {title}"
+                ctx = dict(base, **ctx, title=title)
+                stem = path.rsplit(".", 1)[0]
+                ctx["narrative"] = _narrative_for(
+                    project, "introduction" if stem == "index" else stem)
+                text = jenv.get_template(spec.template).render(**ctx)
+                pageset.add_page(path, title, text, volume=spec.volume)
     _resolve_later(env, pageset)
     from specgen.report.review import CONTEXT_ASSET, review_context
     pageset.add_asset(CONTEXT_ASSET, review_context(project))

@@ -118,6 +118,11 @@ def cards(env) -> list[dict]:
     return pages
 
 
+def _rule(env, key: str) -> float:
+    from specgen.checks.rules import RuleBook
+    return RuleBook(env.project.dossier.rule_overrides)[key].value
+
+
 def _card(env, mix, g: dict) -> dict:
     p, r = env.project, env.results
     life = r.value(mix.id, "workable_life")
@@ -127,6 +132,8 @@ def _card(env, mix, g: dict) -> dict:
             "halved_from": as_given(g["halved_from_L"]) if g["halved_from_L"] else None,
             "volume": num(g["volume_L"], 3), "water": num(g["water_L"], 3),
             "life": as_given(life["value"]), "life_measured": life["measured"],
-            "steps": ws.card_steps(p, mix, g), "zones": ws.card_zones(r, mix.id),
+            "steps": ws.card_steps(p, mix, g),
+            "zones": ws.card_zones(r, mix.id, _rule(env, "works.max_gaugings_per_day")),
+            "most_per_day": as_given(_rule(env, "works.max_gaugings_per_day")),
             "weather": _weather(window, None), "cautions": cautions, "closing": closing,
             "check": _link(env.results.check("SITE-GAUGE", mix.id))}

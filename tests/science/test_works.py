@@ -89,10 +89,12 @@ def test_largest_gauging_and_measures_by_hand():
     # One litre of loose binder yields 1.7 L of mortar: ⌊2.667 / 1.7⌋ = 1 measure.
     assert bt.binder_measures(v, 1 * L, 1.7) == 1
     # 10 min at 8 L/h / 1.5 = 0.889 L; 1 L and 0.5 L measures are too big for a 2.4 L/L yield,
-    # a 0.25 L one fits once (0.25 × 2.4 = 0.6 L ≤ 0.889 L).
+    # a 0.25 L scoop fits once (0.25 × 2.4 = 0.6 L ≤ 0.889 L); the 2.5 L bucket is above the
+    # 1 L measure named, so never chosen.  Real measures: common practice.
     v10 = bt.max_gauging_volume(10 * 60, 8 * L / 3600, 1.5)
-    assert bt.fitting_measure(v10, 1 * L, 2.4, 0.25 * L) == (pytest.approx(0.25 * L), 1)
-    assert bt.fitting_measure(v10, 1 * L, 2.4, 0.5 * L) == (pytest.approx(0.5 * L), 0)
+    real = [m * L for m in (0.25, 0.5, 1.0, 2.5)]
+    assert bt.fitting_measure(v10, 1 * L, 2.4, real) == (pytest.approx(0.25 * L), 1)
+    assert bt.fitting_measure(v10, 1 * L, 2.4, real[1:]) == (pytest.approx(0.5 * L), 0)
     # 8 L/h for 6 h in gaugings of 1.7 L: ⌈48 / 1.7⌉ = 29 gaugings.
     assert bt.gaugings_per_day(8 * L / 3600, 6 * 3600, 1.7 * L) == 29
 
@@ -183,7 +185,7 @@ def test_works_boundaries_by_hand():
     (lambda: bt.binder_measures(1e-3, 0.0, 1.7), "measure must be greater than zero; found 0.0"),
     (lambda: bt.binder_measures(1e-3, 1e-3, 0.0),
      "fresh_per_loose_binder must be greater than zero; found 0.0"),
-    (lambda: bt.fitting_measure(1e-3, 1e-3, 1.7, 0.0), "smallest must be greater than zero; found 0.0"),
+    (lambda: bt.fitting_measure(1e-3, 1e-3, 1.7, [0.0]), "measure must be greater than zero; found 0.0"),
     (lambda: bt.gaugings_per_day(0.0, 3600.0, 1e-3), "placing_rate must be greater than zero; found 0.0"),
     (lambda: bt.gaugings_per_day(1e-6, 0.0, 1e-3), "working_day must be greater than zero; found 0.0"),
     (lambda: bt.gaugings_per_day(1e-6, 3600.0, 0.0),
@@ -209,10 +211,11 @@ def test_batching_boundaries_by_hand():
     assert bt.binder_measures(1.7 * L, 1 * L, 1.7) == 1
     assert bt.binder_measures(3.4 * L, 1 * L, 1.7) == 2
     assert bt.binder_measures(1.69 * L, 1 * L, 1.7) == 0
-    # a measure that already fits is not halved
-    assert bt.fitting_measure(2.0 * L, 1 * L, 1.7, 0.25 * L) == (1 * L, 1)
-    # halving stops at the smallest measure exactly: 1 -> 0.5 -> 0.25 L (0.25 x 2.4 = 0.6 L)
-    assert bt.fitting_measure(0.6 * L, 1 * L, 2.4, 0.25 * L) == (pytest.approx(0.25 * L), 1)
+    # a measure that already fits is kept (real measures 0.25, 0.5, 1 L: common practice)
+    real = [0.25 * L, 0.5 * L, 1 * L]
+    assert bt.fitting_measure(2.0 * L, 1 * L, 1.7, real) == (1 * L, 1)
+    # the smallest real measure fits exactly: 0.25 x 2.4 = 0.6 L
+    assert bt.fitting_measure(0.6 * L, 1 * L, 2.4, real) == (pytest.approx(0.25 * L), 1)
     # exactly one gauging's worth a day: 48 L in gaugings of 48 L -> 1; 48.1 L -> 2
     assert bt.gaugings_per_day(8 * L / 3600, 6 * 3600, 48 * L) == 1
     assert bt.gaugings_per_day(8.02 * L / 3600, 6 * 3600, 48 * L) == 2

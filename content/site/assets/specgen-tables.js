@@ -8,7 +8,7 @@
     return el.classList.contains("sg-eq") ? "equation" : "table";
   }
   function fit() {
-    var regions = document.querySelectorAll(".md-typeset__scrollwrap, .sg-eq");
+    var regions = document.querySelectorAll(".md-typeset__scrollwrap, .sg-eq, .md-typeset table.sg-signoff");
     Array.prototype.forEach.call(regions, function (el) {
       var scrolls = el.scrollWidth > el.clientWidth + 1;
       el.classList.toggle("sg-scrolls", scrolls);
