@@ -14,6 +14,7 @@ from __future__ import annotations
 import datetime as dt
 import os
 from collections.abc import Callable
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 from specgen.checks.run import Previous, Results, evaluate
@@ -56,7 +57,30 @@ def import_comments(project_dir: Path | str, review_file: Path | str,
     return take_in(project, Path(review_file), Path(out_dir))
 
 
-def _quiet(step: str) -> None:
+def missing(project_dir: Path | str):
+    """What the dossier still lacks to be complete for issue (``completeness.Missing`` items,
+    in the order a specifier works), with the project and results it was read from."""
+    from specgen.completeness import missing as lacking
+    project, results = check(project_dir)
+    return lacking(project, results), project
+
+
+def lab_workbook(project_dir: Path | str, path: Path | str | None = None, *,
+                 overwrite: bool = False) -> tuple[Path, dict[str, int]]:
+    """Write the laboratory workbook of the project (planned tests without results yet);
+    returns where and the rows per sheet.  Default file: ``<code>-<revision>-lab.xlsx``."""
+    from specgen.errors import UsageError
+    from specgen.labbook import write_workbook
+    project = _load(project_dir)
+    code = project.dossier.project.code
+    target = Path(path or f"{code}-{project.revision.code}-lab.xlsx")
+    if target.exists() and not overwrite:
+        raise UsageError(f"{target}: already exists. Fix: name another file with --out, or "
+                         "add --force to replace it.")
+    return target, write_workbook(project, target)
+
+
+def _quiet(step: str, done: int | None = None, total: int | None = None) -> None:
     pass
 
 
@@ -86,13 +110,15 @@ def refuse_if_findings(project: Project, results: Results) -> None:
 
 
 def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None = None,
-          progress: Callable[[str], None] = _quiet, rebuild: dict[str, str] | None = None) -> Path:
+          progress: Callable[..., None] = _quiet, rebuild: dict[str, str] | None = None) -> Path:
     """Build the project's revision (and missing archived ones) into ``out_dir/<revision>/``.
 
     ``rebuild`` maps an issued revision's code to the reason for rebuilding it from inputs
     that changed after it was issued (recorded in its manifest); without it such a change
     stops the build before anything is written.  ``page_size`` (``a4`` or ``letter``)
     overrides the paper of the practice each revision states (A4 when it states none).
+    ``progress(step, done=None, total=None)`` hears each stage as it starts and, where the
+    work is counted (the PDF's parts), how much of it is done.
     """
     progress("load: reading and validating the project folder")
     project = _load(project_dir)
@@ -213,6 +239,64 @@ def refuse_unconfirmed(project: Project, results: Results) -> None:
     log.raise_if_any()
 
 
+# --------------------------------------------------------------------- live preview
+TEXT_ONLY = ("narrative/", "templates/")  # inputs whose change leaves the check results as they are
+
+
+@dataclass
+class Prepared:
+    """A revision loaded, checked and rendered, ready to publish (the preview's unit of work)."""
+
+    project: Project
+    results: Results
+    pages: object
+    data_key: tuple   # hashes of the inputs the checks read (all but narrative and templates)
+
+
+def _data_key(project: Project) -> tuple:
+    return tuple((f.path, f.sha256) for f in project.inputs if not f.path.startswith(TEXT_ONLY))
+
+
+def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | None = None,
+            cache_dir: Path | str | None = None, progress: Callable[..., None] = _quiet
+            ) -> Prepared:
+    """Load, check and render; the checks are reused from ``reuse`` when only narrative or
+    templates changed, and figures and math come from the artefact cache."""
+    from specgen.publish.history import history_for
+    from specgen.report import cache
+    from specgen.report.render import render
+    progress("load: reading and validating the project folder")
+    project = _load(project_dir)
+    key = _data_key(project)
+    if reuse is not None and reuse.data_key == key:
+        results = reuse.results
+    else:
+        archived = _load_archive(Path(project_dir), project)
+        progress("check: running the checks and the consistency audit")
+        results = evaluate(project, previous=_previous(archived[-1] if archived else None))
+    progress("render: pages, figures and calculation sheets")
+    with cache.using(cache_dir or Path(out_dir) / cache.CACHE_DIR):
+        pages = render(project, results, history_for(Path(out_dir), project, results))
+    _fix_dates(project.revision.date)
+    return Prepared(project, results, pages, key)
+
+
+def preview_site(prepared: Prepared, out_dir: Path | str) -> Path:
+    """Publish the prepared revision's site (no PDF) into ``out_dir/<revision>/``."""
+    from specgen.publish.preview import site_only
+    return site_only(prepared.project, prepared.results, prepared.pages, Path(out_dir))
+
+
+def preview_pdf(prepared: Prepared, target: Path, *, cache_dir: Path | str | None = None,
+                progress: Callable[..., None] = _quiet) -> Path:
+    """Print the prepared revision's PDF into ``target`` (parts from the artefact cache)."""
+    from specgen.publish.preview import pdf_only
+    from specgen.report import cache
+    with cache.using(cache_dir or target.parent / cache.CACHE_DIR):
+        return pdf_only(prepared.project, prepared.results, prepared.pages, target,
+                        on_part=lambda done, total: progress("PDF parts", done, total))
+
+
 def _load_archive(root: Path, current: Project) -> list[Project]:
     """The archived issued revisions, validated, oldest first; the current revision must be
     dated on or after every one of them."""
@@ -233,8 +317,7 @@ def _load_archive(root: Path, current: Project) -> list[Project]:
         try:
             old = _load(sub)
         except InputErrors as exc:
-            problems += [Problem(prefix + p.file, p.message, p.line, p.row, p.field, p.fix)
-                         for p in exc.problems]
+            problems += [replace(p, file=prefix + p.file) for p in exc.problems]
             more.update({prefix + f: n for f, n in exc.more.items()})
             continue
         where = prefix + "dossier.yaml"

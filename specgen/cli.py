@@ -48,7 +48,9 @@ def new(directory: Path) -> None:
 @click.argument("directory", type=click.Path(path_type=Path))
 @click.option("--format", "fmt", type=click.Choice(["table", "json"]), default="table",
               show_default=True, help="table for people, json for tools (results.json content)")
-def check_cmd(directory: Path, fmt: str) -> None:
+@click.option("--wide", is_flag=True, help="one line per check, however long (the table "
+              "otherwise wraps findings to the terminal's width)")
+def check_cmd(directory: Path, fmt: str, wide: bool) -> None:
     """Run every check on the project in DIRECTORY and print the results."""
     from specgen.build import check
     try:
@@ -59,8 +61,45 @@ def check_cmd(directory: Path, fmt: str) -> None:
         click.echo(results.to_json(), nl=False)
     else:
         from specgen.textreport import table
-        click.echo(table(results))
+        click.echo(table(results, wide=wide))
     sys.exit(1 if results.counts().get("fail") else 0)
+
+
+@cli.command("missing")
+@click.argument("directory", type=click.Path(path_type=Path))
+def missing_cmd(directory: Path) -> None:
+    """List what the dossier still lacks to be complete for issue, in working order.
+
+    Exit status 0 when nothing is missing, 1 otherwise, 2 on invalid input.
+    """
+    from specgen.build import missing
+    from specgen.completeness import as_text
+    try:
+        items, project = missing(directory)
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(as_text(items, project.dossier.project.code, project.revision.code))
+    sys.exit(1 if items else 0)
+
+
+@cli.command("lab-workbook")
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.option("--out", "out", type=click.Path(dir_okay=False, path_type=Path), default=None,
+              help="workbook to write (default: <code>-<revision>-lab.xlsx here)")
+@click.option("--force", is_flag=True, help="replace the file if it exists")
+def lab_workbook(directory: Path, out: Path | None, force: bool) -> None:
+    """Write the laboratory's workbook: the planned tests, ready to fill in.
+
+    Put the filled-in workbook in DIRECTORY/lab/; it is read as the CSV files are.
+    """
+    from specgen.build import lab_workbook as write
+    try:
+        target, counts = write(directory, out, overwrite=force)
+    except SpecgenError as exc:
+        _fail(exc)
+    listed = ", ".join(f"{n} {sheet}" for sheet, n in counts.items())
+    click.echo(f"Wrote {target}: planned rows {listed}. "
+               f"Filled in, it goes in {directory}/lab/.")
 
 
 def _default_out(directory: Path) -> Path:
@@ -68,12 +107,10 @@ def _default_out(directory: Path) -> Path:
 
 
 def _progress(quiet: bool):
-    steps = iter(range(1, 100))
-
-    def progress(step: str) -> None:
-        if not quiet:
-            click.echo(f"[{next(steps)}] {step}", err=True)
-    return progress
+    """The progress display (specgen/console.py): rich on a terminal inside ``with``, plain
+    lines otherwise."""
+    from specgen.console import Progress
+    return Progress(sys.stderr, quiet=quiet)
 
 
 @cli.command()
@@ -96,8 +133,9 @@ def build(directory: Path, out: Path | None, page_size: str | None, quiet: bool,
         _fail(UsageError("--rebuild-issued needs --reason \"why\" (it is recorded in the "
                          "revision's manifest)."))
     try:
-        target = run_build(directory, out or _default_out(directory), page_size=page_size,
-                           progress=_progress(quiet), rebuild={r: reason for r in rebuild})
+        with _progress(quiet) as progress:
+            target = run_build(directory, out or _default_out(directory), page_size=page_size,
+                               progress=progress, rebuild={r: reason for r in rebuild})
     except SpecgenError as exc:
         _fail(exc)
     click.echo(f"Built {target} (open {target / 'index.html'})")
@@ -150,10 +188,17 @@ def status_cmd(directory: Path, fmt: str) -> None:
 @click.argument("directory", type=click.Path(path_type=Path))
 @click.option("--port", default=8000, show_default=True, help="port on 127.0.0.1")
 def serve(directory: Path, port: int) -> None:
-    """Live preview: rebuild the site when a project file changes and serve it locally."""
+    """Live preview on 127.0.0.1: the site first, the PDF in the background; rebuilt on change.
+
+    A bare page address (/strength.html) shows that page of the current revision; a page not
+    rebuilt after an edit (an input error, an issued revision) says so with the error.
+    """
+    from specgen.console import Progress
     from specgen.preview import serve as run_serve
     try:
-        run_serve(directory, port)
+        # plain lines: the server's own messages interleave with the stages
+        run_serve(directory, port, say=lambda text: click.echo(text, err=True),
+                  progress=Progress(sys.stderr, terminal=False))
     except SpecgenError as exc:
         _fail(exc)
 
@@ -279,10 +324,12 @@ def format_reference() -> None:
 @click.option("--runs", default=3, show_default=True, help="repetitions per measurement")
 @click.option("--large/--no-large", default=True, show_default=True,
               help="also build the 200-mix project once (time and peak memory; slow)")
-def bench(runs: int, large: bool) -> None:
+@click.option("--only", type=click.Choice(["all", "serve", "xlsx"]), default="all",
+              show_default=True, help="run only the preview or the workbook measurement")
+def bench(runs: int, large: bool, only: str) -> None:
     """Developers: time check, build, re-issue and the bare toolchain (ratios in one run)."""
     from specgen.bench import main as run_bench
-    run_bench(runs, large=large)
+    run_bench(runs, large=large, only=only)
 
 
 def main() -> None:

@@ -29,13 +29,19 @@ class Problem:
     row: int | None = None
     field: str | None = None
     fix: str | None = None
+    sheet: str | None = None   # a workbook's sheet (lab/*.xlsx)
+    cell: str | None = None    # a workbook's cell or range, e.g. 'E7' (then no row is shown)
 
     def __str__(self) -> str:
         # every part is bounded, whatever a caller put in it: a message never floods a terminal
         where = self.file
+        if self.sheet is not None:
+            where += f", sheet '{self.sheet}'"
         if self.line is not None:
             where += f", line {self.line}"
-        if self.row is not None:
+        if self.cell is not None:
+            where += f", {'cells' if ':' in self.cell else 'cell'} {self.cell}"
+        elif self.row is not None:
             where += f", row {self.row}"
         text = f"{where}: "
         if self.field:

@@ -31,11 +31,14 @@ def test_specification_page_and_exports_in_the_build(demo_build):
     assert "Chosen although it fails checks" in page            # Z2, justified
     manifest = json.loads((rev / "manifest.json").read_text())
     for zone in ZONES:
-        for ext in ("md", "html"):
+        for ext in ("md", "html", "docx"):
             rel = f"exports/WEP-2026-{REV}-{zone}-specification.{ext}"
             assert (rev / rel).is_file(), rel
             assert rel in manifest["outputs"], rel
             assert f'href="./{rel}"' in page, rel
+    chapter = f"exports/WEP-2026-{REV}-specification.docx"
+    assert (rev / chapter).is_file() and chapter in manifest["outputs"]
+    assert f'href="./{chapter}"' in page
     html = (rev / f"exports/WEP-2026-{REV}-Z1-specification.html").read_text(encoding="utf-8")
     assert "<script" not in html and "<style" not in html
     summary = (rev / "index.html").read_text(encoding="utf-8")

@@ -143,7 +143,8 @@ def as_text(changes: dict) -> str:
                 lines.append(f"  {label} {kind}: {', '.join(part[kind])}")
     for c in changes["checks"]:
         delta = f" (Δ {c['delta']:+g} {c['unit']})".rstrip() if c["delta"] is not None else ""
-        lines.append(f"  {c['key']}: {c['old_status'] or '—'} → {c['new_status'] or '—'}; "
+        # the words the site shows, not the status codes
+        lines.append(f"  {c['key']}: {_word(c['old_status'])} → {_word(c['new_status'])}; "
                      f"{_v(c['old_value'])} → {_v(c['new_value'])} {c['unit']}{delta}".rstrip())
     if changes["comments"]["new"]:
         lines.append(f"  review comments raised: {', '.join(changes['comments']['new'])}")

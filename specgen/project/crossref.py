@@ -25,6 +25,23 @@ def _ref(log, located, rel, path, value, known: dict, what: str) -> None:
                          else "define it first."))
 
 
+def _raw_ids(located: dict[str, Located], rel: str, key: str) -> dict:
+    """Ids of the list ``key`` as written in ``rel`` (parsed, not validated); SKIP when the
+    file could not be parsed, the list is missing or empty, or an entry's id is unreadable
+    (then the file's own problem is the one to fix, and no follow-on error is reported)."""
+    loc = located.get(rel)
+    items = loc.data.get(key) if loc is not None and isinstance(loc.data, dict) else None
+    if not isinstance(items, list) or not items:
+        return SKIP
+    ids = {}
+    for item in items:
+        ident = item.get("id") if isinstance(item, dict) else None
+        if not isinstance(ident, str):
+            return SKIP
+        ids[ident] = item
+    return ids
+
+
 def check_references(project, located: dict[str, Located], log: ProblemLog,
                      failed: set[str] = frozenset(), names=None) -> None:
     """Record a problem for every dangling id and every implausible analysis total.
@@ -36,12 +53,16 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
     d = project.dossier
     mat_ok, mix_ok = "materials.yaml" not in failed, "mixes.yaml" not in failed
     an_ok = "analyses.yaml" not in failed
-    units_ = project.masonry_units if mat_ok else SKIP
-    hist = project.historic_mortars if mat_ok else SKIP
-    binders = project.binders if mat_ok else SKIP
-    sands = project.sands if mat_ok else SKIP
-    mixes = project.mixes if mix_ok else SKIP
-    analyses = project.analyses if an_ok else SKIP
+    # a file that parsed but failed validation still tells which ids it defines, so the
+    # references into it are checked in the same run (no second round of errors)
+    units_ = project.masonry_units if mat_ok else _raw_ids(located, "materials.yaml",
+                                                            "masonry_units")
+    hist = project.historic_mortars if mat_ok else _raw_ids(located, "materials.yaml",
+                                                             "historic_mortars")
+    binders = project.binders if mat_ok else _raw_ids(located, "materials.yaml", "binders")
+    sands = project.sands if mat_ok else _raw_ids(located, "materials.yaml", "sands")
+    mixes = project.mixes if mix_ok else _raw_ids(located, "mixes.yaml", "mixes")
+    analyses = project.analyses if an_ok else _raw_ids(located, "analyses.yaml", "analyses")
     for i, z in enumerate(d.zones):
         _ref(log, located, "dossier.yaml", ("zones", i, "mix"), z.mix, mixes, "mix")
         _ref(log, located, "dossier.yaml", ("zones", i, "units"), z.units, units_,

@@ -66,6 +66,8 @@ class Project:
     firing: dict = field(default_factory=dict)  # binder id → FiringSeries (project/firing.py)
     site_temperature: object = None  # SiteTemperature (project/site_temperature.py) or None
     specification: object = None  # SpecificationData (project/specification.py) or None
+    # planned tests in lab workbooks without a result yet: (file, sheet, row, first cell)
+    lab_pending: list = field(default_factory=list)
 
     @property
     def revision(self) -> schema.Revision:
@@ -200,11 +202,13 @@ def load_project(root: Path | str, names=None) -> Project:
     for rel, (attr, reader) in TABLES.items():
         if (root / rel).is_file() and (table := read_csv(root / rel, rel, log)) is not None:
             tables[attr] = reader(table, rel, log)
+    pending = _workbooks(root, strength, tables, log)
     if docs.get(ROOT_FILE) is None:
         log.raise_if_any()
     project = _assemble(root, docs, located, strength, log)
     for attr, rows in tables.items():
         setattr(project, attr, rows)
+    project.lab_pending = pending
     from specgen.project.gradings import gradings
     project.gradings = gradings(project.sieves, log)
     from specgen.project.practice_inputs import practice_problems
@@ -227,6 +231,39 @@ def load_project(root: Path | str, names=None) -> Project:
     works_problems(project, located, log, failed)
     log.raise_if_any()
     return project
+
+
+def _workbooks(root: Path, strength: list, tables: dict, log: ProblemLog) -> list:
+    """Read lab/*.xlsx: each sheet through the reader of the CSV file of its name; rows are
+    added to those of the CSV files.  Returns the planned tests that have no result yet."""
+    from specgen.project.workbook import read_sheet, read_workbook, workbook_files
+    readers = {STRENGTH_FILE: ("strength", strength_results)} | TABLES
+    pending = []
+    for path in workbook_files(root):
+        rel = path.relative_to(root).as_posix()
+        for sheet in read_workbook(path, rel, log):
+            attr, reader = readers[f"lab/{sheet.sheet}.csv"]
+            rows = read_sheet(sheet, reader, rel, log)
+            if attr == "strength":
+                strength.extend(rows)
+            else:
+                tables[attr] = tables.get(attr, []) + rows
+            pending += [(rel, sheet.sheet, row, first) for row, first in sheet.pending]
+    _unique_specimens(strength, log)
+    return pending
+
+
+def _unique_specimens(strength: list, log: ProblemLog) -> None:
+    """A specimen reported in two files (a CSV and a workbook, or two workbooks) is refused."""
+    first: dict[str, StrengthResult] = {}
+    for r in strength:
+        seen = first.setdefault(r.specimen, r)
+        if seen is not r and seen.file != r.file:
+            # a workbook's strength rows are on its sheet 'strength', the id in column A
+            sheet = {"sheet": "strength", "cell": f"A{r.row}"} if r.file.endswith(".xlsx") else {}
+            log.add(r.file, f"specimen '{r.specimen}' is also reported in {seen.file}, row "
+                    f"{seen.row}.", row=r.row, field="specimen",
+                    fix="report each specimen once: remove one of the two rows.", **sheet)
 
 
 def _index(items, kind: str, rel: str, key, located: dict, log: ProblemLog,

@@ -8,7 +8,8 @@ from pydantic_core import PydanticUndefined
 
 from specgen.project import schema
 from specgen.project.load import DOCUMENTS
-from specgen.project.tables import COLOUR_COLUMNS, SIEVE_COLUMNS, STRENGTH_COLUMNS
+from specgen.project.tables import (CAPILLARY_COLUMNS, COLOUR_COLUMNS, SIEVE_COLUMNS,
+                                    STRENGTH_COLUMNS)
 
 UNIT_OF = {"Pressure": "pressure, e.g. '12 MPa'", "Length": "length, e.g. '10 mm'",
            "Area": "area, e.g. '240 m^2'", "Density": "density, e.g. '850 kg/m^3'",
@@ -85,14 +86,28 @@ def markdown() -> str:
         _rows(model, "", rows)
         lines += [f"| `{k}` | {t} | {d} | {m} |" for k, t, d, m in rows] + [""]
     lines += _constituents()
+    return "\n".join(lines + lab_lines() + _review_file() + ARCHIVE_NOTE)
+
+
+def lab_lines() -> list[str]:
+    """The laboratory files: CSV columns and the workbook rules, as Markdown lines."""
+    lines: list[str] = []
     for file, cols in (("lab/strength.csv", STRENGTH_COLUMNS), ("lab/sieves.csv", SIEVE_COLUMNS),
-                       ("lab/colour.csv", COLOUR_COLUMNS)):
+                       ("lab/colour.csv", COLOUR_COLUMNS),
+                       ("lab/capillary.csv", CAPILLARY_COLUMNS)):
         lines += [f"## `{file}`", "", "| column | kind (unit in the header) | required | meaning |",
                   "|---|---|---|---|"]
         lines += [f"| `{c.name}` | {c.kind or ('one of ' + ', '.join(c.choices) if c.choices else 'text')} "
                   f"| {'yes' if c.required else 'no'} | {c.description} |" for c in cols] + [""]
-    lines += _review_file()
-    return "\n".join(lines + ARCHIVE_NOTE)
+    from specgen.project.workbook import SHEETS
+    lines += ["## `lab/*.xlsx` (laboratory workbooks)", "",
+              "A workbook's sheets are read as the CSV files of the same names ("
+              + ", ".join(f"`{s}`" for s in SHEETS) + "): header in row 1 with the units, one "
+              "row per specimen or reading, values (not formulas), dates as dates, no merged "
+              "cells. A row whose result cells are empty is a planned test without a report. "
+              "`specgen lab-workbook` writes one pre-filled with the tests the project plans; "
+              "macro-enabled and old binary files are refused unopened.", ""]
+    return lines
 
 
 ARCHIVE_NOTE = [

@@ -5,6 +5,7 @@ in the header (``value [MPa]``, ``age [d]``) and is converted to SI here.
 """
 from __future__ import annotations
 
+import datetime as dt
 from dataclasses import dataclass
 
 from specgen import units
@@ -35,7 +36,12 @@ class StrengthResult:
     curing_temperature: float | None
     row: int
     file: str
+    cast_on: dt.date | None = None
+    curing: str = ""
+    notes: str = ""
 
+
+DATE = "date"  # a column kind: an ISO date (YYYY-MM-DD), no unit in the header
 
 STRENGTH_COLUMNS = (
     Column("specimen", description="specimen id, unique in the file"),
@@ -45,6 +51,10 @@ STRENGTH_COLUMNS = (
     Column("value", "pressure", description="strength, header with unit e.g. 'value [MPa]'"),
     Column("curing_temperature", "temperature", required=False,
            description="curing temperature, e.g. 'curing_temperature [degC]'"),
+    Column("cast_on", DATE, required=False, description="date the prism was cast, YYYY-MM-DD"),
+    Column("curing", required=False, description="curing regime, e.g. 'EN 1015-11: 2 d in "
+           "the mould, 5 d at 95 % RH, then 65 % RH'"),
+    Column("notes", required=False, description="the laboratory's remarks on the specimen"),
 )
 
 
@@ -68,6 +78,9 @@ def map_headers(table: CsvTable, columns, rel: str, log: ProblemLog) -> dict[str
                     fix=hint or f"use one of: {', '.join(known)}.")
             continue
         col = by_name[name]
+        if col.kind == DATE:
+            found[name] = (header, None)
+            continue
         if col.kind and unit is None:
             log.add(rel, f"column '{name}' has no unit.", row=1, field=header,
                     fix=f"write the unit in the header, e.g. '{name} [{_example_unit(col.kind)}]'.")
@@ -109,6 +122,13 @@ def cell(table_row: dict, col: Column, found, rel: str, row: int, log: ProblemLo
                     fix=hint or f"use one of: {', '.join(col.choices)}.")
             return None
         return raw
+    if col.kind == DATE:
+        try:
+            return dt.date.fromisoformat(raw)
+        except ValueError:
+            log.add(rel, f"expected a date written YYYY-MM-DD; found '{raw}'.", row=row,
+                    field=header, fix="write the date as year-month-day, e.g. 2026-03-02.")
+            return None
     try:
         number = float(raw.replace(",", ".")) if raw.count(",") == 1 and "." not in raw else float(raw)
     except ValueError:
@@ -145,7 +165,8 @@ def strength_results(table: CsvTable, rel: str, log: ProblemLog) -> list[Strengt
             continue
         seen[v["specimen"]] = row
         out.append(StrengthResult(v["specimen"], v["mix"], v["age"], v["test"], v["value"],
-                                  v["curing_temperature"], row, rel))
+                                  v["curing_temperature"], row, rel, v["cast_on"],
+                                  v["curing"] or "", v["notes"] or ""))
     return out
 
 

@@ -22,7 +22,7 @@ def pdf_name(project) -> str:
 
 
 def publish(project, results, pages, out: Path, *, page_size: str = "a4",
-            progress=lambda s: None, changes: dict | None = None, parallel: bool = True,
+            progress=lambda *a: None, changes: dict | None = None, parallel: bool = True,
             superseded: str | None = None, rebuilt: str | None = None) -> Path:
     """Write site + PDF + results.json into a staging folder, then move it into place.
 
@@ -79,7 +79,8 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     try:
         write_pdf(pages, _print_context(project, pages.marks), pdf_tmp,
                   attachments=attachments,
-                  page_size=page_size, identifier=ident, stamp=_stamp(rev.date))
+                  page_size=page_size, identifier=ident, stamp=_stamp(rev.date),
+                  on_part=lambda done, total: progress("publish: PDF parts", done, total))
         if child is not None:
             _join(child)
             child = None

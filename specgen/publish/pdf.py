@@ -179,14 +179,15 @@ PLACEHOLDER_PAGE = 8888  # the contents laid out once with numbers of this width
 
 def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
               page_size: str = "a4", identifier: bytes | None = None, stamp=None,
-              workers: int | None = None) -> None:
+              workers: int | None = None, on_part=None) -> None:
     """Print the page set as a tagged PDF/A-3a at ``target`` with ``attachments`` embedded.
 
     The chapters are printed in parts on every core (unchanged parts come from the
     artefact cache), the front matter once their page numbers are known, the running
     heads last; :mod:`specgen.publish.pdf_assembly` puts them together.  ``stamp`` (a
     datetime, the revision date) dates the attachments, so identical inputs give a
-    byte-identical PDF.
+    byte-identical PDF.  ``on_part(done, total)`` is called as the chapter parts come back
+    (for a progress display).
     """
     from specgen.publish.pdf_assembly import assemble, global_anchors
     from specgen.publish.pdf_parts import Printer, cached_or_submitted
@@ -206,6 +207,8 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
         for i in range(len(groups)):
             printed.append(handles[i].result())
             reached(f"pdf-part-{i + 1}")
+            if on_part is not None:
+                on_part(i + 1, len(groups))
         sizes = [size for doc in printed for size in doc.pages]
         length = len(guess.result().pages)
         for _ in range(3):  # the contents' length does not depend on its numbers, but check
