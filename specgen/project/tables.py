@@ -6,7 +6,6 @@ in the header (``value [MPa]``, ``age [d]``) and is converted to SI here.
 from __future__ import annotations
 
 import datetime as dt
-import math
 from dataclasses import dataclass
 
 from specgen import units
