@@ -72,14 +72,14 @@ def test_new_writes_a_starter_that_checks(cli, tmp_path):
     result = cli("new", target)
     assert result.exit_code == 0 and (target / "dossier.yaml").is_file()
     checked = cli("check", target)
-    # The starter's invented 28-d results 2.4 and 2.6 MPa against its 1.5 MPa minimum:
-    # mean 2.5, s = 0.14142, k_n = t(0.95, 1) sqrt(1 + 1/2) = 7.7327 (EN 1990 Annex D formula,
-    # scipy.stats.t) -> f_k = 2.5 - 1.0936 = 1.406 MPa < 1.5: exactly one failing check, so
-    # exit 1 (a failed check), not 0 and not 2 (bad input)
-    fk = 2.5 - stats.t.ppf(0.95, 1) * math.sqrt(1.5) * math.sqrt(0.02)
-    assert fk == pytest.approx(1.406, abs=1e-3)
+    # The starter's invented 28-d results for M2, 1.6, 1.8 and 1.7 MPa, against its 1.5 MPa
+    # minimum: mean 1.7, s = 0.1, k_n = t(0.95, 2) sqrt(1 + 1/3) = 3.3717 (EN 1990 Annex D
+    # formula, scipy.stats.t) -> f_k = 1.7 - 0.3372 = 1.363 MPa < 1.5: exactly one failing
+    # check, so exit 1 (a failed check), not 0 and not 2 (bad input)
+    fk = 1.7 - stats.t.ppf(0.95, 2) * math.sqrt(1 + 1 / 3) * 0.1
+    assert fk == pytest.approx(1.363, abs=1e-3)
     assert checked.exit_code == 1, checked.output
-    assert "measured f_k 1.41 MPa (n = 2)" in checked.output
+    assert "measured f_k 1.36 MPa (n = 3)" in checked.output
     assert "R1: 1 fail," in checked.output
     again = cli("new", target)
     assert again.exit_code == 2
