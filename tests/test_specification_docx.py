@@ -42,17 +42,22 @@ def test_zone_document_has_headings_clauses_and_marking(rendered):
     doc = _doc(pages, Z1)
     assert _styled(doc, "Title") == ["Specification of zone Z1: Inner face, repointing of brick "
                                      "courses"]
-    assert _styled(doc, "Heading 1") == [
-        "Z1.1 Materials", "Z1.2 Proportions and batching", "Z1.3 Joint preparation",
-        "Z1.4 Application and finishing", "Z1.5 Curing and protection", "Z1.6 Weather limits",
-        "Z1.7 Acceptance criteria", "Z1 site acceptance in brief", "Cautions", "Sources"]
+    headings = _styled(doc, "Heading 1")
+    # section numbers are the dossier's own (the chapter numbers its clauses); the titles are
+    # those of the clause template for a repointing zone
+    titles = ["Materials", "Proportions and batching", "Joint preparation",
+              "Application and finishing", "Curing and protection", "Weather limits",
+              "Acceptance criteria"]
+    assert [h.split(" ", 1)[1] for h in headings[:7]] == titles
+    assert headings[-2:] == ["Cautions", "Sources"]
+    numbers = [h.split(" ", 1)[0] for h in headings[:7]]
     clauses = _styled(doc, "Clause")
     # by the clause template for a repointing zone: 4 materials, 3 batching (the workable life
     # is known), 2 joint preparation, 2 application, 1 curing, 2 weather; acceptance: one per
     # required age (2 in dossier.yaml), the cap, sampling, appearance, loading, non-conformance
     assert len(clauses) == 4 + 3 + 2 + 2 + 1 + 2 + (2 + 5) == 21
-    assert clauses[0].startswith("Z1.1.1\tBinder.")
-    assert [c.split("\t")[0] for c in clauses[-7:]] == [f"Z1.7.{i}" for i in range(1, 8)]
+    assert clauses[0].startswith(f"{numbers[0]}.1\tBinder.")
+    assert [c.split("\t")[0] for c in clauses[-7:]] == [f"{numbers[6]}.{i}" for i in range(1, 8)]
     header = doc.sections[0].header.paragraphs[0].text
     assert header == "WEP-2026, revision R3 of 2026-11-30: DRAFT — not for construction"
     assert doc.core_properties.created == dt.datetime(2026, 11, 30, tzinfo=dt.timezone.utc)
@@ -101,7 +106,10 @@ def test_chapter_document_holds_every_zone_and_the_regime(rendered):
     for row, zone in zip(choice[1:], ("Z1", "Z2", "Z3")):
         assert row[2].startswith(results.value(zone, "selected_mix") + ":")
     clauses = _styled(doc, "Clause")
-    assert {c.split(".")[0] for c in clauses} == {"Z1", "Z2", "Z3"}
+    sections = {h.split(" ", 1)[0] for h in _styled(doc, "Heading 2")}
+    # every clause is numbered under its own section heading, and each zone has its sections
+    assert clauses and all(c.split("\t")[0].rsplit(".", 1)[0] in sections for c in clauses)
+    assert len(clauses) == len(set(c.split("\t")[0] for c in clauses))
     regime = next(t for t in doc.tables if t.rows[0].cells[0].text == "Zone"
                   and t.rows[0].cells[1].text == "Wall area")
     for row in regime.rows[1:]:
