@@ -47,17 +47,20 @@ def test_zone_document_has_headings_clauses_and_marking(rendered):
     # those of the clause template for a repointing zone
     titles = ["Materials", "Proportions and batching", "Joint preparation",
               "Application and finishing", "Curing and protection", "Weather limits",
-              "Acceptance criteria"]
-    assert [h.split(" ", 1)[1] for h in headings[:7]] == titles
+              "Acceptance criteria", "Exposure and durability tests"]
+    assert [h.split(" ", 1)[1] for h in headings[:8]] == titles
     assert headings[-2:] == ["Cautions", "Sources"]
     numbers = [h.split(" ", 1)[0] for h in headings[:7]]
     clauses = _styled(doc, "Clause")
     # by the clause template for a repointing zone: 4 materials, 3 batching (the workable life
     # is known), 2 joint preparation, 2 application, 1 curing, 2 weather; acceptance: one per
     # required age (2 in dossier.yaml), the cap, sampling, appearance, loading, non-conformance
-    assert len(clauses) == 4 + 3 + 2 + 2 + 1 + 2 + (2 + 5) == 21
+    # then exposure and durability: the class, and one hold point per test asked for
+    # (freeze–thaw, setting time, soundness in the demo's Z1)
+    assert len(clauses) == 4 + 3 + 2 + 2 + 1 + 2 + (2 + 5) + (1 + 3) == 25
     assert clauses[0].startswith(f"{numbers[0]}.1\tBinder.")
-    assert [c.split("\t")[0] for c in clauses[-7:]] == [f"{numbers[6]}.{i}" for i in range(1, 8)]
+    assert [c.split("\t")[0] for c in clauses[-11:-4]] == [f"{numbers[6]}.{i}" for i in range(1, 8)]
+    assert [c.split("\t")[0] for c in clauses[-4:]] == [f"{numbers[0].rsplit('.', 1)[0]}.8.{i}" for i in range(1, 5)]
     header = doc.sections[0].header.paragraphs[0].text
     assert header == "WEP-2026, revision R3 of 2026-11-30: DRAFT — not for construction"
     assert doc.core_properties.created == dt.datetime(2026, 11, 30, tzinfo=dt.timezone.utc)
