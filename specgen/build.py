@@ -124,8 +124,6 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None
     project = _load(project_dir)
     archived = _load_archive(Path(project_dir), project)
     out = Path(out_dir)
-    from specgen.publish.output import preflight
-    preflight(out)  # a read-only or full output folder is found before anything is drawn
     reached("load")
     stale = frozen_inputs(out, archived, rebuild or {})
     previous = [None] + archived
@@ -133,6 +131,10 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None
     results = evaluate(project, previous=_previous(previous[-1]))
     refuse_if_findings(project, results)
     refuse_unconfirmed(project, results)
+    from specgen.publish.output import preflight
+    # a read-only or full output folder is found before anything is drawn; after the
+    # refusals, so a refused revision leaves no output folder behind
+    preflight(out)
     reached("check")
     from specgen.report import cache
     # unchanged figures and math are reused from the output folder's artefact cache;
