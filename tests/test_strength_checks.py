@@ -240,7 +240,8 @@ def test_site_record_path_leaving_the_project(demo_copy):
     _edit(demo_copy / "dossier.yaml", "site_temperature: lab/site-temperature.csv",
           "site_temperature: ../elsewhere.csv")
     out = _problems(demo_copy)
-    assert "dossier.yaml: site_temperature: the path '../elsewhere.csv' leaves the project folder." \
+    assert ("dossier.yaml, line 95: site_temperature: the path '../elsewhere.csv' leaves the project "
+            "folder. Fix: give a path relative to the project folder, without '..'.") \
         in out
 
 
