@@ -40,7 +40,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from specgen.errors import InputErrors
-from specgen.project import load_project, schema
+from specgen.project import schema
 from specgen.project.files import read_yaml
 from specgen.project.load import DOCUMENTS
 
@@ -279,8 +279,8 @@ def _corrupt_csv(root: Path, kind: str, pick: int, rng: random.Random) -> dict:
 # ------------------------------------------------------------------ judging a case
 def load_like_check(root: Path):
     """What ``specgen check`` reads: the project and its archived issued revisions."""
-    from specgen.build import _load_archive
-    project = load_project(root)
+    from specgen.build import _load, _load_archive
+    project = _load(root)   # with the check codes and page names, as the pipeline loads
     _load_archive(root, project)
     return project
 

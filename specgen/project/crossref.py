@@ -193,8 +193,8 @@ def _sample_refs(project, log: ProblemLog, failed) -> None:
     """Every sample of a lab table is something the project defines: a reading of an unknown
     sample would otherwise be silently ignored.  One problem per unknown sample, with its rows;
     not checked when a file the ids come from failed (its own problems come first)."""
-    if {"materials.yaml", "mixes.yaml", "specification.yaml"} & set(failed):
-        return
+    if {"materials.yaml", "mixes.yaml", "specification.yaml"} & (set(failed) | log.files()):
+        return  # a reference problem found above in a defining file counts too
     for rel, (attr, kinds, words) in SAMPLE_KINDS.items():
         known = set().union(*(_sample_ids(project, k) for k in kinds))
         rows: dict[str, list[int]] = {}
@@ -257,7 +257,9 @@ SPEC = "specification.yaml"
 def specification_refs(project, located, log: ProblemLog, mixes, failed=frozenset()) -> None:
     """Selections, hold points, trial panels and prices name zones, mixes, roles that exist."""
     spec = project.specification.doc
-    zones = SKIP if "dossier.yaml" in failed else {z.id: z for z in project.dossier.zones}
+    # dossier.yaml's own reference problems (found above) count too: no follow-on about it
+    dossier_bad = "dossier.yaml" in failed or "dossier.yaml" in log.files()
+    zones = SKIP if dossier_bad else {z.id: z for z in project.dossier.zones}
     for i, s in enumerate(spec.selections):
         _ref(log, {SPEC: located}, SPEC, ("selections", i, "zone"), s.zone, zones, "zone")
         _ref(log, {SPEC: located}, SPEC, ("selections", i, "mix"), s.mix, mixes, "mix")
