@@ -6,8 +6,11 @@ closure check, which reports it with its calculation.
 """
 from __future__ import annotations
 
+import re
+
 from specgen.errors import ProblemLog, did_you_mean, quote
 from specgen.project.files import Located
+from specgen.project.schema import ID_PATTERN
 from specgen.science.oxides import ChemistryInputError, closure
 
 SKIP: dict = {}  # stands for the ids of a file that failed to load
@@ -27,8 +30,9 @@ def _ref(log, located, rel, path, value, known: dict, what: str) -> None:
 
 def _raw_ids(located: dict[str, Located], rel: str, key: str) -> dict:
     """Ids of the list ``key`` as written in ``rel`` (parsed, not validated); SKIP when the
-    file could not be parsed, the list is missing or empty, or an entry's id is unreadable
-    (then the file's own problem is the one to fix, and no follow-on error is reported)."""
+    file could not be parsed, the list is missing or empty, or an entry's id is unreadable,
+    not an id or repeated (then the file's own problem is the one to fix — a repeated id may stand for
+    another entry's lost one — and no follow-on error is reported)."""
     loc = located.get(rel)
     items = loc.data.get(key) if loc is not None and isinstance(loc.data, dict) else None
     if not isinstance(items, list) or not items:
@@ -36,7 +40,7 @@ def _raw_ids(located: dict[str, Located], rel: str, key: str) -> dict:
     ids = {}
     for item in items:
         ident = item.get("id") if isinstance(item, dict) else None
-        if not isinstance(ident, str):
+        if not isinstance(ident, str) or not re.fullmatch(ID_PATTERN, ident) or ident in ids:
             return SKIP
         ids[ident] = item
     return ids
