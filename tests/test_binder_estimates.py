@@ -9,15 +9,10 @@ import pytest
 from specgen import refdata
 from specgen.build import check
 from specgen.science import phases
+from tests.helpers import edit
 
 AW = refdata.load("atomic_weights").data
 M = lambda f: periodictable.formula(f).mass  # noqa: E731  reference library
-
-
-def _edit(path, old, new):
-    text = path.read_text(encoding="utf-8")
-    assert old in text, old
-    path.write_text(text.replace(old, new, 1), encoding="utf-8")
 
 
 # A prompt natural cement of the French type as quoted in conservation literature, mass %
@@ -50,7 +45,7 @@ def test_phase_range_is_judged_as_a_range(demo_copy):
 
 
 def test_straddling_range_holds_and_asks_for_xrd(demo_copy):
-    _edit(demo_copy / "dossier.yaml", "compatibility:\n",
+    edit(demo_copy / "dossier.yaml", "compatibility:\n",
           "rule_overrides:\n  - {rule: calcination.crystalline_share, value: 80, justification: "
           "\"trial firings of this marl gave about 80 % crystalline by XRD\"}\n\ncompatibility:\n")
     _, r = check(demo_copy)
@@ -89,7 +84,7 @@ def test_building_lime_against_its_declared_class(demo_copy):
     # NHL-A SO3 0.8 % (demo data) against NHL at most 2 % SO3 (EN 459-1, from memory)
     assert c.status == "pass" and c.value == 0.8 and c.limit.high == 2.0
     assert r.check("BIND-CLASS", "NC1") is None          # a natural cement has no NHL class
-    _edit(demo_copy / "analyses.yaml", "MgO: 1.5, SO3: 0.8, LOI: 17.0", "MgO: 1.5, SO3: 2.4, "
+    edit(demo_copy / "analyses.yaml", "MgO: 1.5, SO3: 0.8, LOI: 17.0", "MgO: 1.5, SO3: 2.4, "
           "LOI: 17.0")
     _, r = check(demo_copy)
     assert r.check("BIND-CLASS", "NH35").status == "fail"

@@ -7,26 +7,9 @@ import math
 import colour
 import numpy as np
 import pytest
-from scipy import stats
 
 from specgen.build import check
-from specgen.errors import InputErrors
-
-
-def _by(results):
-    return {(c.code, c.subject): c for c in results.checks}
-
-
-def _edit(path, old, new):
-    text = path.read_text(encoding="utf-8")
-    assert old in text, old
-    path.write_text(text.replace(old, new, 1), encoding="utf-8")
-
-
-def _problems(project) -> str:
-    with pytest.raises(InputErrors) as exc:
-        check(project)
-    return str(exc.value)
+from tests.helpers import by_check, edit, problems
 
 
 @pytest.fixture
@@ -46,7 +29,7 @@ def test_every_candidate_of_every_zone_is_checked(demo):
 
 def test_strength_ratio_to_historic_measured_fails(demo):
     _, r = demo
-    c = _by(r)[("COMP-STR-HIST", "Z2/M1")]
+    c = by_check(r)[("COMP-STR-HIST", "Z2/M1")]
     q = r.quantities["Z2/M1"]["strength_ratio_to_historic"].value
     # by hand: M1 90-d compressive (demo lab/strength.csv) 7.04, 7.77, 8.05 -> mean 7.62 MPa;
     # / 7.5 MPa (demo materials.yaml HM2) = 1.0160 > 1.0 (rule, common practice)
@@ -60,7 +43,7 @@ def test_strength_ratio_to_historic_measured_fails(demo):
 
 def test_predicted_band_above_limit_is_attention(demo):
     _, r = demo
-    c = _by(r)[("COMP-STR-HIST", "Z1/M1")]
+    c = by_check(r)[("COMP-STR-HIST", "Z1/M1")]
     q = r.quantities["Z1/M1"]["strength_ratio_to_historic"].value
     assert q["predicted"] <= 1.0 < q["predicted_upper"]       # 11 MPa, demo HM1
     assert c.status == "attention" and "upper edge" in c.message
@@ -75,7 +58,7 @@ def test_strength_ratio_to_unit_passes(demo):
     # M3 90-d compressive (demo lab/strength.csv) 4.04, 3.92, 3.68 -> 3.88 MPa; / 48 MPa
     # (demo EB1) = 0.08083, within 1.0 (rule, common practice)
     assert q["measured"] == pytest.approx(3.88 / 48, abs=1e-5)
-    assert _by(r)[("COMP-STR-UNIT", "Z1/M3")].status == "pass"
+    assert by_check(r)[("COMP-STR-UNIT", "Z1/M3")].status == "pass"
 
 
 def test_capillary_fitted_from_readings_and_side_by_side(demo):
@@ -86,7 +69,7 @@ def test_capillary_fitted_from_readings_and_side_by_side(demo):
     ref = (2.94 - 1.04) / (math.sqrt(90) - math.sqrt(10))
     q = r.quantities["Z2/M2"]["capillary_coefficient"].value
     assert q["repair"] == pytest.approx(ref, abs=1e-4) and q["units"] == pytest.approx(0.35)
-    c = _by(r)[("COMP-MOIST", "Z2/M2")]
+    c = by_check(r)[("COMP-MOIST", "Z2/M2")]
     assert c.status == "fail"                                   # 0.30 < 0.35 of gritstone GS1
     assert any(i.source == "lab/capillary.csv row 3" for s in c.steps for i in s.inputs)
     mu = r.quantities["Z2/M2"]["vapour_resistance_factor"].value
@@ -96,10 +79,10 @@ def test_capillary_fitted_from_readings_and_side_by_side(demo):
 
 def test_movement_tolerance(demo):
     _, r = demo
-    c = _by(r)[("COMP-MOVE", "Z1/M1")]
+    c = by_check(r)[("COMP-MOVE", "Z1/M1")]
     # by hand: |10 - 6| / 6 = 0.6667 > 0.5 (common practice)
     assert c.value == pytest.approx(4 / 6, abs=1e-4) and c.status == "attention"
-    c2 = _by(r)[("COMP-MOVE", "Z2/M2")]
+    c2 = by_check(r)[("COMP-MOVE", "Z2/M2")]
     # by hand: hygric |0.3 - 0.4| / 0.4 = 0.25 (demo materials.yaml values)
     assert len(c2.steps) == 2 and c2.steps[1].result == pytest.approx(0.25)
 
@@ -109,19 +92,19 @@ def test_salt_classes_by_the_chosen_table(demo):
     q = r.quantities["Z2/M1"]["salt_load_class"].value
     # WTA 2-9 edges (content/data/salt_load.yaml, from memory): sulfate 1.65 % >= 1.5 -> high
     assert q["table"] == "wta_2_9" and q["HM2"]["sulfate"] == "high"
-    c = _by(r)[("COMP-SALT", "Z2/M1")]
+    c = by_check(r)[("COMP-SALT", "Z2/M1")]
     # what the sulfate does to the binder is assessed by DUR-ETT and DUR-TSA (their own tests in
     # tests/test_durability_checks.py); COMP-SALT classes the load and points to them
     assert c.status == "attention" and c.message.startswith("high salt load (sulfate)")
     assert any("DUR-ETT/Z2/M1" in n and "DUR-TSA/Z2/M1" in n for n in c.notes)
-    ett = _by(r)[("DUR-ETT", "Z2/M1")]
+    ett = by_check(r)[("DUR-ETT", "Z2/M1")]
     assert ett.status == "fail" and any("Al2O3 8.1 % in analysis NC1-A" in i.name   # analyses.yaml
                                         for st in ett.steps for i in st.inputs)
     assert any("published salt-load tables disagree" in n for n in c.notes)
-    assert _by(r)[("COMP-SALT", "Z3/M3")].status == "pass"     # NHL: no aluminate-rich binder
+    assert by_check(r)[("COMP-SALT", "Z3/M3")].status == "pass"     # NHL: no aluminate-rich binder
     # the other table classes the same brick differently: 0.31 % sulfate is high by ÖNORM B 3355
     # (edges in content/data/salt_load.yaml, from memory)
-    _edit(project / "dossier.yaml", "salt_table: wta_2_9", "salt_table: onorm_b3355")
+    edit(project / "dossier.yaml", "salt_table: wta_2_9", "salt_table: onorm_b3355")
     # M2, chosen for Z1 in specification.yaml, then fails COMP-SALT: without a justification
     # that choice is an input error, so the choices are left out here
     (project / "specification.yaml").unlink()
@@ -139,7 +122,7 @@ def test_grading_fineness_modulus_and_envelope(demo):
     assert q["fineness_modulus"].value == {"repair": pytest.approx(2.52), "historic": pytest.approx(2.34)}
     # differences 0, -3, -5, -4, -4, -2 points -> RMS sqrt(70/6) = 3.4157 %
     assert q["grading_deviation"].value["rms"] == pytest.approx(math.sqrt(70 / 6), abs=1e-3)
-    c = _by(r)[("COMP-GRAD", "Z1/M3")]
+    c = by_check(r)[("COMP-GRAD", "Z1/M3")]
     # ASTM C144 natural sand, 2.36 mm: 95-100 % (from memory); S1 passes 92 %
     assert c.status == "attention"
     assert "outside the envelope at 2.36 mm (92 % passing, limits 95–100 %)" in c.message
@@ -166,19 +149,19 @@ def test_colour_difference_against_colour_science(demo):
     ref = float(colour.delta_E(panel, hist, method="CIE 2000"))               # colour-science
     q = r.quantities["Z1/M1"]["delta_e_2000"].value
     assert q["value"] == pytest.approx(ref, abs=1e-4)
-    c = _by(r)[("COMP-COLOUR", "Z1/M1")]
+    c = by_check(r)[("COMP-COLOUR", "Z1/M1")]
     # ΔE00 2.246 against the project threshold 2 (compatibility.colour_delta_e_max, a project
     # rule; no standard threshold exists)
     assert ref == pytest.approx(2.246, abs=1e-3) and c.status == "attention"
     assert any("no standard acceptance threshold exists" in n and "trial panels judged dry" in n
                for n in c.notes)
-    assert _by(r)[("COMP-COLOUR", "Z1/M3")].status == "pass"
+    assert by_check(r)[("COMP-COLOUR", "Z1/M3")].status == "pass"
 
 
 def test_colour_conditions_must_match(demo_copy):
-    _edit(demo_copy / "lab/colour.csv", "M3,62.3,3.8,14.0,D65,10", "M3,62.3,3.8,14.0,D50,2")
+    edit(demo_copy / "lab/colour.csv", "M3,62.3,3.8,14.0,D65,10", "M3,62.3,3.8,14.0,D50,2")
     _, r = check(demo_copy)
-    c = _by(r)[("COMP-COLOUR", "Z1/M3")]
+    c = by_check(r)[("COMP-COLOUR", "Z1/M3")]
     assert c.status == "not_assessed"
     assert c.message == ("not assessed: the readings use different illuminant/observer conditions "
                          "(D50/2°, D65/10°): measure panel and historic mortar under the same "
@@ -186,45 +169,45 @@ def test_colour_conditions_must_match(demo_copy):
 
 
 def test_missing_fabric_property_is_not_assessed(demo_copy):
-    _edit(demo_copy / "materials.yaml", ' vapour_resistance_factor: 60,', '')
-    _edit(demo_copy / "materials.yaml", ' thermal_expansion: "6e-6 1/K",', '')
+    edit(demo_copy / "materials.yaml", ' vapour_resistance_factor: 60,', '')
+    edit(demo_copy / "materials.yaml", ' thermal_expansion: "6e-6 1/K",', '')
     _, r = check(demo_copy)
-    m = _by(r)[("COMP-MOIST", "Z1/M1")]
+    m = by_check(r)[("COMP-MOIST", "Z1/M1")]
     assert m.status == "not_assessed"
     assert m.message == "not assessed: missing vapour_resistance_factor of masonry unit EB1"
-    assert _by(r)[("COMP-MOVE", "Z1/M3")].message == (
+    assert by_check(r)[("COMP-MOVE", "Z1/M3")].message == (
         "not assessed: missing thermal_expansion of masonry unit EB1")
 
 
 def test_missing_salts_not_assessed(demo_copy):
     for old in (', sulfate: "0.31 %", sample: "drilled powder 0-20 mm, inner face, NML-4502"}',
                 ', sulfate: "0.42 %", sample: "raked-out pointing, inner face, NML-4418"}'):
-        _edit(demo_copy / "materials.yaml", old, "}")
-    _edit(demo_copy / "materials.yaml", 'salts: {chloride: "0.12 %", nitrate: "0.02 %"}', "")
-    _edit(demo_copy / "materials.yaml", ',\n     salts: {chloride: "0.08 %", nitrate: "0.01 %"}', "")
+        edit(demo_copy / "materials.yaml", old, "}")
+    edit(demo_copy / "materials.yaml", 'salts: {chloride: "0.12 %", nitrate: "0.02 %"}', "")
+    edit(demo_copy / "materials.yaml", ',\n     salts: {chloride: "0.08 %", nitrate: "0.01 %"}', "")
     text = (demo_copy / "materials.yaml").read_text()
     (demo_copy / "materials.yaml").write_text(text.replace('NML-4502 (cores from course 14)",\n     }',
                                                            'NML-4502 (cores from course 14)"}'))
     _, r = check(demo_copy)
-    assert _by(r)[("COMP-SALT", "Z1/M1")].message == (
+    assert by_check(r)[("COMP-SALT", "Z1/M1")].message == (
         "not assessed: no salt contents for the fabric of zone Z1: add 'salts:' (chloride, "
         "nitrate, sulfate in mass %) to its masonry unit or historic mortar in materials.yaml")
 
 
 def test_rule_override_of_colour_threshold(demo_copy):
-    _edit(demo_copy / "dossier.yaml", "compatibility:\n",
+    edit(demo_copy / "dossier.yaml", "compatibility:\n",
           "rule_overrides:\n  - {rule: compatibility.colour_delta_e_max, value: 4.0, "
           "justification: \"heritage service accepts 4 for the weathered parapet render\"}\n\n"
           "compatibility:\n")
     _, r = check(demo_copy)
-    c = _by(r)[("COMP-COLOUR", "Z1/M2")]
+    c = by_check(r)[("COMP-COLOUR", "Z1/M2")]
     assert c.status == "pass" and c.limit.high == 4.0 and "heritage service" in c.limit.overridden
 
 
 def test_too_few_capillary_readings_are_said_not_ignored(demo_copy):
     (demo_copy / "lab/capillary.csv").write_text(
         "sample,time [min],uptake [kg/m^2]\nM2,5,0.78\nM2,10,1.04\n", encoding="utf-8")
-    c = _by(check(demo_copy)[1])[("COMP-MOIST", "Z1/M2")]
+    c = by_check(check(demo_copy)[1])[("COMP-MOIST", "Z1/M2")]
     assert c.status == "not_assessed"
     assert c.message == "not assessed: a capillary coefficient needs at least three readings"
 
@@ -233,16 +216,16 @@ def test_capillary_uptake_that_does_not_rise(demo_copy):
     (demo_copy / "lab/capillary.csv").write_text(
         "sample,time [min],uptake [kg/m^2]\nM2,5,2.9\nM2,30,1.7\nM2,90,0.8\n", encoding="utf-8")
     r = check(demo_copy)[1]   # the run goes on: every other pair is still assessed
-    c = _by(r)[("COMP-MOIST", "Z1/M2")]
+    c = by_check(r)[("COMP-MOIST", "Z1/M2")]
     assert c.status == "not_assessed" and "does not rise with √t" in c.message
-    assert _by(r)[("COMP-MOIST", "Z1/M1")].status == "pass"
+    assert by_check(r)[("COMP-MOIST", "Z1/M1")].status == "pass"
 
 
 def test_envelope_sieve_coarser_than_the_analysis(demo_copy):
     # S1 without its 4.75 mm row and only 92 % passing 2.36 mm: nothing is known at 4.75 mm,
     # so that envelope sieve is listed as not compared (and the FM not computed), not a crash
-    _edit(demo_copy / "lab/sieves.csv", "S1,4.75,100\n", "")
-    c = _by(check(demo_copy)[1])[("COMP-GRAD", "Z1/M3")]
+    edit(demo_copy / "lab/sieves.csv", "S1,4.75,100\n", "")
+    c = by_check(check(demo_copy)[1])[("COMP-GRAD", "Z1/M3")]
     assert c.status == "attention"
     assert "envelope sieves without a result, not compared: 4.75 mm, 0.075 mm" in c.notes
     assert ("fineness modulus of repair sand of M3 not computed: the fineness modulus needs the "
@@ -286,9 +269,9 @@ def test_colour_uses_the_sample_the_trial_panel_names(demo):
     rows = [(58.0, 2.0, 12.0), (58.6, 2.4, 12.6), (57.7, 1.9, 11.8)]
     with open(project / "lab" / "colour.csv", "a", encoding="utf-8") as f:
         f.writelines(f"TP2-DRY,{L},{a},{b},D65,10\n" for L, a, b in rows)
-    _edit(project / "specification.yaml", "    colour_sample: M2", "    colour_sample: TP2-DRY")
+    edit(project / "specification.yaml", "    colour_sample: M2", "    colour_sample: TP2-DRY")
     _, results = check(project)
-    c = _by(results)[("COMP-COLOUR", "Z1/M2")]
+    c = by_check(results)[("COMP-COLOUR", "Z1/M2")]
     q = results.value("Z1/M2", "delta_e_2000")
     mean = np.mean(rows, axis=0)
     assert q["panel_mean"] == pytest.approx(list(mean), abs=1e-3)
@@ -301,9 +284,9 @@ def test_grading_blend_uses_the_default_bulk_density_like_the_yield(demo):
     """A sand without a bulk density takes the same default the works checks use (the sheet
     names it), instead of leaving the grading not assessed."""
     project, _ = demo
-    _edit(project / "materials.yaml", 'bulk_density: "1450 kg/m^3"}', "}")  # S2 without one
+    edit(project / "materials.yaml", 'bulk_density: "1450 kg/m^3"}', "}")  # S2 without one
     _, results = check(project)
-    c = _by(results)[("COMP-GRAD", "Z1/M1")]
+    c = by_check(results)[("COMP-GRAD", "Z1/M1")]
     # assessed as on the demo (attention: S1's 92 % at 2.36 mm is outside ASTM C144's 95-100,
     # see test_grading_fineness_modulus_and_envelope), with S2 at the default 1281.5 kg/m³
     # (ASTM C270 damp loose sand, 80 lb/ft³, from memory: content/data/mix_densities.yaml):
@@ -312,7 +295,7 @@ def test_grading_blend_uses_the_default_bulk_density_like_the_yield(demo):
     assert "default" in c.steps[0].inputs[0].source
     assert results.value("Z1/M1", "blend_proportions")["proposed"]["S1"] == pytest.approx(
         1550 / (1550 + 0.5 * 1281.5), abs=1e-4)
-    yield_ = _by(results)[("MIX-YIELD", "M1")]
+    yield_ = by_check(results)[("MIX-YIELD", "M1")]
     assert yield_.status == "info"
 
 
@@ -374,5 +357,5 @@ BAD_DATA = [
 
 @pytest.mark.parametrize("path, old, new, message", BAD_DATA)
 def test_bad_data_is_refused_with_its_location(demo_copy, path, old, new, message):
-    _edit(demo_copy / path, old, new)
-    assert message in _problems(demo_copy)
+    edit(demo_copy / path, old, new)
+    assert message in problems(demo_copy)

@@ -5,20 +5,8 @@ from __future__ import annotations
 import pytest
 
 from specgen.build import check
-from specgen.errors import InputErrors
 from specgen.project.reference import markdown
-
-
-def _edit(path, old, new):
-    text = path.read_text(encoding="utf-8")
-    assert old in text, old
-    path.write_text(text.replace(old, new, 1), encoding="utf-8")
-
-
-def _problems(project) -> str:
-    with pytest.raises(InputErrors) as exc:
-        check(project)
-    return str(exc.value)
+from tests.helpers import edit, problems
 
 
 # An old report of the Blackscar marl printed water and organic matter apart, without a total
@@ -30,7 +18,7 @@ DEMO_BS1 = ("{SiO2: 14.8, Al2O3: 5.6, Fe2O3: 2.9, CaO: 40.1, MgO: 1.6, SO3: 0.6,
 
 
 def test_old_analysis_with_water_and_organic_matter_apart(demo_copy):
-    _edit(demo_copy / "analyses.yaml", DEMO_BS1, OLD_REPORT)
+    edit(demo_copy / "analyses.yaml", DEMO_BS1, OLD_REPORT)
     _, r = check(demo_copy)
     q = r.quantities["BS-1"]
     # by hand: loss = CO2 + H2O+ + H2O- + organic = 30.0 + 2.6 + 0.9 + 1.3 = 34.8 %
@@ -45,7 +33,7 @@ def test_old_analysis_with_water_and_organic_matter_apart(demo_copy):
 
 
 def test_synonyms_become_the_canonical_keys(demo_copy):
-    _edit(demo_copy / "analyses.yaml", "CO2: 30.0, LOI: 33.0}", "carbonic acid: 30.0, "
+    edit(demo_copy / "analyses.yaml", "CO2: 30.0, LOI: 33.0}", "carbonic acid: 30.0, "
           "loss on ignition: 33.0}")
     _, r = check(demo_copy)
     assert r.quantities["BS-1"]["loss_on_ignition"].value == pytest.approx(33.0)
@@ -73,12 +61,12 @@ BAD = [
 
 @pytest.mark.parametrize("path, old, new, message", BAD)
 def test_bad_constituent_input(demo_copy, path, old, new, message):
-    _edit(demo_copy / path, old, new)
-    assert message in _problems(demo_copy)
+    edit(demo_copy / path, old, new)
+    assert message in problems(demo_copy)
 
 
 def test_salt_content_in_ppm_is_converted(demo_copy):
-    _edit(demo_copy / "materials.yaml", 'chloride: "0.12 %"', 'chloride: "5000 ppm"')
+    edit(demo_copy / "materials.yaml", 'chloride: "0.12 %"', 'chloride: "5000 ppm"')
     _, r = check(demo_copy)
     # 5000 ppm = 0.5 % (1 % = 10 000 ppm, SI definition of ppm as 1e-6): the lower edge of
     # 'high' chloride in the project's WTA 2-9 table (0.5 %, from memory); 0.12 % was 'low'

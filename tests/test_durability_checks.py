@@ -7,16 +7,7 @@ from __future__ import annotations
 import pytest
 
 from specgen.build import check
-
-
-def _by(results):
-    return {(c.code, c.subject): c for c in results.checks}
-
-
-def _edit(path, old, new):
-    text = path.read_text(encoding="utf-8")
-    assert old in text, old
-    path.write_text(text.replace(old, new, 1), encoding="utf-8")
+from tests.helpers import by_check, edit
 
 
 def _run_bad(cli, project) -> str:
@@ -37,7 +28,7 @@ def demo(tmp_path_factory):
 
 # ---------------------------------------------------------------- exposure
 def test_exposure_class_of_each_demo_zone(demo):
-    r = _by(demo)
+    r = by_check(demo)
     # EN 1996-1-1 Annex A (from memory): sea spray/splash → MX4; moisture + frost → MX3.1,
     # severe wetting + frost → MX3.2 (demo: freezing site, -4 °C)
     assert {z: r[("DUR-EXPOSE", z)].value for z in ("Z1", "Z2", "Z3")} == {
@@ -56,32 +47,32 @@ def test_exposure_class_of_each_demo_zone(demo):
 
 
 def test_exposure_conditions_win_over_the_text(demo_copy):
-    _edit(demo_copy / "dossier.yaml", "    exposure: tidal splash zone\n",
+    edit(demo_copy / "dossier.yaml", "    exposure: tidal splash zone\n",
           "    exposure: tidal splash zone\n    exposure_conditions: [submerged]\n")
     _, r = check(demo_copy)
-    c = _by(r)[("DUR-EXPOSE", "Z3")]
+    c = by_check(r)[("DUR-EXPOSE", "Z3")]
     assert c.value == "MX4 with MX2.2"     # immersed: not cycled by frost (EN 1996-1-1, memory)
     assert c.steps[0].inputs[0].source == "dossier.yaml Z3.exposure_conditions: exposure_conditions"
-    assert _by(r)[("DUR-FROST", "Z3/M3")].status == "pass"
+    assert by_check(r)[("DUR-FROST", "Z3/M3")].status == "pass"
 
 
 def test_unrecognised_exposure_is_not_assessed(demo_copy):
-    _edit(demo_copy / "dossier.yaml", "    exposure: tidal splash zone\n",
+    edit(demo_copy / "dossier.yaml", "    exposure: tidal splash zone\n",
           "    exposure: moderate\n")
     _, r = check(demo_copy)
-    c = _by(r)[("DUR-EXPOSE", "Z3")]
+    c = by_check(r)[("DUR-EXPOSE", "Z3")]
     assert c.status == "not_assessed" and c.message.startswith(
         "not assessed: the exposure of zone Z3 ('moderate') names no condition the checks read; "
         "give 'exposure_conditions:' in dossier.yaml, from: internal, sheltered, exposed,")
-    assert _by(r)[("DUR-FROST", "Z3/M3")].message == (
+    assert by_check(r)[("DUR-FROST", "Z3/M3")].message == (
         "not assessed: no exposure class for zone Z3 (see DUR-EXPOSE)")
 
 
 def test_unknown_frost_holds_the_frost_check(demo_copy):
-    _edit(demo_copy / "dossier.yaml", "  freezing: true\n", "")
+    edit(demo_copy / "dossier.yaml", "  freezing: true\n", "")
     _, r = check(demo_copy)
-    assert _by(r)[("DUR-EXPOSE", "Z1")].status == "attention"
-    c = _by(r)[("DUR-FROST", "Z1/M1")]
+    assert by_check(r)[("DUR-EXPOSE", "Z1")].status == "attention"
+    c = by_check(r)[("DUR-FROST", "Z1/M1")]
     assert c.status == "hold" and c.message == (
         "the site's frost is not stated: give durability.freezing in dossier.yaml (true where "
         "winter air falls below 0 °C)")
@@ -89,7 +80,7 @@ def test_unknown_frost_holds_the_frost_check(demo_copy):
 
 # ---------------------------------------------------------------- frost
 def test_frost_requirement_against_the_mix(demo):
-    r = _by(demo)
+    r = by_check(demo)
     m1 = r[("DUR-FROST", "Z1/M1")]
     # MX4 → the severe regime: 50 cycles, mass loss ≤ 5 %, strength loss ≤ 20 % (common
     # practice); demo M1: 50 cycles, 1.8 %, 14 %
@@ -108,15 +99,15 @@ def test_frost_requirement_against_the_mix(demo):
 
 
 def test_frost_test_beyond_the_limit_fails(demo_copy):
-    _edit(demo_copy / "materials.yaml", 'mass_loss: "1.8 %"', 'mass_loss: "6.5 %"')
+    edit(demo_copy / "materials.yaml", 'mass_loss: "1.8 %"', 'mass_loss: "6.5 %"')
     _, r = check(demo_copy)
-    c = _by(r)[("DUR-FROST", "Z1/M1")]
+    c = by_check(r)[("DUR-FROST", "Z1/M1")]
     assert c.status == "fail" and "mass loss 6.5 % (limit 5 %)" in c.message
 
 
 # ---------------------------------------------------------------- sulfate
 def test_hydraulic_lime_in_the_tidal_zone_no_longer_passes(demo):
-    r = _by(demo)
+    r = by_check(demo)
     c = r[("DUR-TSA", "Z3/M3")]
     # Thaumasite Expert Group (1999), conditions (from memory): C-S-H + sulfate + water +
     # carbonate + cold (< 15 °C); NHL 3.5 has 2.5 % Al2O3, yet all conditions hold
@@ -132,43 +123,43 @@ def test_hydraulic_lime_in_the_tidal_zone_no_longer_passes(demo):
 
 
 def test_sea_spray_with_low_fabric_sulfate_is_attention(demo):
-    r = _by(demo)
+    r = by_check(demo)
     for code in ("DUR-TSA", "DUR-ETT"):
         assert r[(code, "Z1/M2")].status == "attention"
     assert any("chloride moderates" in n for n in r[("DUR-ETT", "Z1/M2")].notes)
 
 
 def test_air_lime_forms_no_csh(demo_copy):
-    _edit(demo_copy / "materials.yaml", "    type: nhl\n", "    type: air_lime\n")
-    _edit(demo_copy / "specification.yaml", "  - zone: Z3\n    mix: M3", "  - zone: Z3\n    mix: M2")
+    edit(demo_copy / "materials.yaml", "    type: nhl\n", "    type: air_lime\n")
+    edit(demo_copy / "specification.yaml", "  - zone: Z3\n    mix: M3", "  - zone: Z3\n    mix: M2")
     _, r = check(demo_copy)
-    c = _by(r)[("DUR-TSA", "Z1/M3")]
+    c = by_check(r)[("DUR-TSA", "Z1/M3")]
     assert c.status == "pass" and c.message.startswith(
         "no thaumasite risk: C-S-H absent (air lime only: no C-S-H)")
 
 
 def test_warm_site_clears_thaumasite_and_unknown_cold_holds(demo_copy):
-    _edit(demo_copy / "dossier.yaml", 'lowest_temperature: "-4 degC"', 'lowest_temperature: "17 degC"')
+    edit(demo_copy / "dossier.yaml", 'lowest_temperature: "-4 degC"', 'lowest_temperature: "17 degC"')
     _, r = check(demo_copy)
-    assert _by(r)[("DUR-TSA", "Z3/M3")].message.endswith("cold absent (17.0 °C ≥ 15 °C)")
-    _edit(demo_copy / "dossier.yaml", '  lowest_temperature: "17 degC"\n', "")
-    _edit(demo_copy / "dossier.yaml", "site_temperature: lab/site-temperature.csv", "")
-    _edit(demo_copy / "dossier.yaml", "  load_strength: \"1 MPa\"\n", "")
+    assert by_check(r)[("DUR-TSA", "Z3/M3")].message.endswith("cold absent (17.0 °C ≥ 15 °C)")
+    edit(demo_copy / "dossier.yaml", '  lowest_temperature: "17 degC"\n', "")
+    edit(demo_copy / "dossier.yaml", "site_temperature: lab/site-temperature.csv", "")
+    edit(demo_copy / "dossier.yaml", "  load_strength: \"1 MPa\"\n", "")
     _, r = check(demo_copy)
-    c = _by(r)[("DUR-TSA", "Z3/M3")]
+    c = by_check(r)[("DUR-TSA", "Z3/M3")]
     assert c.status == "hold" and c.message == (
         "thaumasite: cannot decide — cold unknown: give durability.lowest_temperature in "
         "dossier.yaml")
 
 
 def test_recalled_limit_holds_the_verdict_of_an_issued_revision(demo_copy):
-    _edit(demo_copy / "dossier.yaml", "  status: draft", "  status: issued")
+    edit(demo_copy / "dossier.yaml", "  status: draft", "  status: issued")
     _, r = check(demo_copy)
-    c = _by(r)[("DUR-TSA", "Z3/M3")]      # sulfate from the sea: the salt table does not decide
+    c = by_check(r)[("DUR-TSA", "Z3/M3")]      # sulfate from the sea: the salt table does not decide
     assert c.status == "hold" and c.notes[-1].startswith(
         "held: the verdict (fail) rests on durability.thaumasite_temperature_max, recalled "
         "from memory; confirm it against the printed source")
-    c = _by(r)[("DUR-ETT", "Z2/M2")]      # high sulfate class read from the recalled table
+    c = by_check(r)[("DUR-ETT", "Z2/M2")]      # high sulfate class read from the recalled table
     assert c.status == "hold" and c.notes[-1].startswith(
         "held: the verdict (fail) rests on the wta_2_9 salt-load edges "
         "(content/data/salt_load.yaml), recalled from memory")
@@ -176,7 +167,7 @@ def test_recalled_limit_holds_the_verdict_of_an_issued_revision(demo_copy):
 
 # ---------------------------------------------------------------- soundness
 def test_soundness_from_the_phase_range_when_nothing_is_measured(demo):
-    r = _by(demo)
+    r = by_check(demo)
     c = r[("DUR-SOUND", "NC1")]
     # free lime 0–14.7 % over the three aluminate assignments (tests/science/test_exposure.py
     # by hand) > 2 % (common practice); MgO 2.3 % > 2 % periclase (common practice)
@@ -205,17 +196,17 @@ def test_soundness_from_the_phase_range_when_nothing_is_measured(demo):
      "watch the trial panel for pop-outs"),
 ])
 def test_measured_soundness(demo_copy, soundness, status, message):
-    _edit(demo_copy / "materials.yaml", '    bag_mass: "25 kg"\n  - id: NH35',
+    edit(demo_copy / "materials.yaml", '    bag_mass: "25 kg"\n  - id: NH35',
           f'    bag_mass: "25 kg"\n    soundness: {soundness}\n  - id: NH35')
     if status == "fail":   # a failing binder needs the choices of M1/M2 justified: leave them out
         (demo_copy / "specification.yaml").unlink()
     _, r = check(demo_copy)
-    c = _by(r)[("DUR-SOUND", "NC1")]
+    c = by_check(r)[("DUR-SOUND", "NC1")]
     assert (c.status, c.message) == (status, message)
 
 
 def test_free_lime_above_the_cao_is_an_input_error(cli, demo_copy):
-    _edit(demo_copy / "materials.yaml", '    bag_mass: "25 kg"\n  - id: NH35',
+    edit(demo_copy / "materials.yaml", '    bag_mass: "25 kg"\n  - id: NH35',
           '    bag_mass: "25 kg"\n    soundness: {free_cao: 61.5}\n  - id: NH35')
     out = _run_bad(cli, demo_copy)
     assert ("materials.yaml, line 12: binders[0].soundness.free_cao: binder 'NC1': free CaO "
@@ -226,7 +217,7 @@ def test_free_lime_above_the_cao_is_an_input_error(cli, demo_copy):
 
 # ---------------------------------------------------------------- setting
 def test_setting_times_against_the_family(demo):
-    r = _by(demo)
+    r = by_check(demo)
     m3 = r[("SITE-SET", "M3")]
     # EN 459-1 (from memory): initial set > 1 h, final ≤ 40 h; demo M3: 4.5 h and 16 h
     assert m3.status == "pass" and m3.message.startswith(
@@ -241,11 +232,11 @@ def test_setting_times_against_the_family(demo):
 
 
 def test_initial_set_caps_the_workable_life(demo_copy):
-    _edit(demo_copy / "mixes.yaml", 'setting: {initial: "45 min", final: "110 min", '
+    edit(demo_copy / "mixes.yaml", 'setting: {initial: "45 min", final: "110 min", '
           'retarder_dose: "0.2 %"', 'setting: {initial: "20 min", final: "110 min", '
           'retarder_dose: "0.1 %"')
     _, r = check(demo_copy)
-    c = _by(r)[("SITE-SET", "M1")]
+    c = by_check(r)[("SITE-SET", "M1")]
     assert c.status == "attention"
     assert ("tested at 0.1 % retarder but the card doses 0.2 %: repeat the test at the card's "
             "dose") in c.message
@@ -257,7 +248,7 @@ def test_initial_set_caps_the_workable_life(demo_copy):
 
 
 def test_initial_set_after_final_set_is_an_input_error(cli, demo_copy):
-    _edit(demo_copy / "mixes.yaml", 'initial: "45 min", final: "110 min"',
+    edit(demo_copy / "mixes.yaml", 'initial: "45 min", final: "110 min"',
           'initial: "150 min", final: "110 min"')
     out = _run_bad(cli, demo_copy)
     assert ("mixes.yaml, line 7: mixes[0].setting.initial: mix 'M1': the initial set (150 min) "
@@ -267,7 +258,7 @@ def test_initial_set_after_final_set_is_an_input_error(cli, demo_copy):
 
 # ---------------------------------------------------------------- substrate
 def test_water_retention_against_suction(demo):
-    r = _by(demo)
+    r = by_check(demo)
     # GS1 initial rate of absorption 2.1 kg/(m²·min) > 1.55 (30 g/min/30 in², ASTM C216 note,
     # from memory): high suction, so ≥ 85 % (common practice); M2 holds 78 %
     z2 = r[("DUR-RETAIN", "Z2/M2")]
@@ -278,19 +269,19 @@ def test_water_retention_against_suction(demo):
 
 
 def test_missing_measurements_name_the_test(demo_copy):
-    _edit(demo_copy / "materials.yaml", 'water_retention: "78 %", bond_strength: "0.12 MPa", '
+    edit(demo_copy / "materials.yaml", 'water_retention: "78 %", bond_strength: "0.12 MPa", '
           'bond_failure: mortar', 'hygric_expansion: "0.3 mm/m"')
-    _edit(demo_copy / "materials.yaml", '     hygric_expansion: "0.3 mm/m", source: "NML-4460; '
+    edit(demo_copy / "materials.yaml", '     hygric_expansion: "0.3 mm/m", source: "NML-4460; '
           'capillary readings in lab/capillary.csv",\n     hygric_expansion: "0.3 mm/m"}',
           '     hygric_expansion: "0.3 mm/m", source: "NML-4460; capillary readings in '
           'lab/capillary.csv"}')
     _, r = check(demo_copy)
-    c = _by(r)[("DUR-RETAIN", "Z2/M2")]
+    c = by_check(r)[("DUR-RETAIN", "Z2/M2")]
     assert c.status == "hold" and c.message == (
         "units of high suction: the mortar must retain at least 85 % of its water; M2 has no "
         "water retention — commission the suction test of the fresh mortar (ASTM C1506 / "
         "EN 413-2 style)")
-    b = _by(r)[("DUR-BOND", "Z2/M2")]
+    b = by_check(r)[("DUR-BOND", "Z2/M2")]
     assert b.status == "hold" and b.message == (
         "render bond of M2 not measured: commission the EN 1015-12 pull-off on the trial panel "
         "at 28 d, at least five discs, recording where each broke")
@@ -299,14 +290,14 @@ def test_missing_measurements_name_the_test(demo_copy):
 
 
 def test_render_bond_only_where_render_is_specified(demo):
-    r = _by(demo)
+    r = by_check(demo)
     assert {s for (code, s) in r if code == "DUR-BOND"} == {"Z2/M1", "Z2/M2"}
     # 0.12 MPa ≥ 0.1 MPa (common practice), broke in the mortar
     assert r[("DUR-BOND", "Z2/M2")].message == "bond 0.12 MPa ≥ 0.1 MPa, broke in the mortar"
 
 
 def test_carbonation_front_of_the_lime_mix(demo):
-    r = _by(demo)
+    r = by_check(demo)
     c = r[("DUR-CARB", "Z1/M3")]
     # by hand (tests/science/test_exposure.py): K = 0.845 mm/√d; 20 mm joint depth → 560 d
     assert c.status == "info" and c.value == pytest.approx(560.2, abs=0.1)
@@ -315,7 +306,7 @@ def test_carbonation_front_of_the_lime_mix(demo):
 
 
 def test_tests_asked_gathered_per_zone(demo):
-    c = _by(demo)[("DUR-TESTS", "Z1")]
+    c = by_check(demo)[("DUR-TESTS", "Z1")]
     rows = demo.quantities["Z1"]["durability_tests"].value
     assert c.status == "hold"
     assert [(t["test"], t["check"]) for t in rows] == [
@@ -325,7 +316,7 @@ def test_tests_asked_gathered_per_zone(demo):
 
 
 def test_contradictory_exposure_is_an_input_error(cli, demo_copy):
-    _edit(demo_copy / "dossier.yaml", "    exposure: tidal splash zone\n",
+    edit(demo_copy / "dossier.yaml", "    exposure: tidal splash zone\n",
           "    exposure: sheltered tidal wall\n")
     out = _run_bad(cli, demo_copy)
     assert ("dossier.yaml, line 57: zones[2].exposure: zone 'Z3': the exposure is both sheltered "
@@ -371,12 +362,12 @@ def test_american_practice_names_the_c270_location(demo_copy, monkeypatch):
     monkeypatch.setattr(durability_common, "practice",
                         lambda project: ("american", "dossier.yaml practice: american"))
     _, r = check(demo_copy)
-    c = _by(r)[("DUR-EXPOSE", "Z3")]
+    c = by_check(r)[("DUR-EXPOSE", "Z3")]
     # ASTM C270 Table X1.1 (from memory): at or below grade → type S (alternatives M, N)
     assert c.message == (
         "exterior, at or below grade (foundation and retaining walls, manholes, sewers, "
         "pavements): type S recommended (alternatives M, N); weathering severe (EN 1996-1-1 "
         "equivalent MX4 with MX3.2)")
     assert c.basis[0].ref == "astmc270"
-    assert _by(r)[("DUR-EXPOSE", "Z2")].message.startswith(
+    assert by_check(r)[("DUR-EXPOSE", "Z2")].message.startswith(
         "exterior, above grade, parapet wall: type N recommended (alternatives S)")

@@ -10,24 +10,8 @@ import pytest
 
 from specgen import practice, refdata
 from specgen.build import check
-from specgen.errors import InputErrors
 from specgen.science import grading as gr
-
-
-def _by(results):
-    return {(c.code, c.subject): c for c in results.checks}
-
-
-def _edit(path, old, new):
-    text = path.read_text(encoding="utf-8")
-    assert old in text, old
-    path.write_text(text.replace(old, new, 1), encoding="utf-8")
-
-
-def _problems(project) -> str:
-    with pytest.raises(InputErrors) as exc:
-        check(project)
-    return str(exc.value)
+from tests.helpers import by_check, edit, problems
 
 
 def _follow(project, text: str) -> None:
@@ -102,10 +86,10 @@ def test_european_project_with_en_sieves(demo_copy):
         rows += [f"{sample},{s:g},{v}" for s, v in zip((4, 2, 1, 0.5, 0.25, 0.125, 0.063), values)]
     (demo_copy / "lab/sieves.csv").write_text("\n".join(rows) + "\n", encoding="utf-8")
     _follow(demo_copy, "practice:\n  follows: european\n")
-    _edit(demo_copy / "dossier.yaml", "grading_envelope: astm_c144_natural",
+    edit(demo_copy / "dossier.yaml", "grading_envelope: astm_c144_natural",
           "grading_envelope: en13139_0_2")
     _, r = check(demo_copy)
-    c = _by(r)[("COMP-GRAD", "Z1/M3")]          # M3: sand S1 alone
+    c = by_check(r)[("COMP-GRAD", "Z1/M3")]          # M3: sand S1 alone
     assert c.status != "not_assessed", c.message
     # S1 by hand on the envelope's sieves: 4 mm 100 (measured), 2.8 mm 95.883 (between 4 and
     # 2 mm, log-linear), 2 mm 92 (measured), 0.063 mm 1 (measured): all within 0/2 limits
@@ -118,10 +102,10 @@ def test_european_project_with_en_sieves(demo_copy):
 def test_astm_sieves_on_an_en_envelope_by_interpolation_when_said(demo_copy):
     _follow(demo_copy, "practice:\n  follows: european\n  mixing_reason: the laboratory sieved "
             "on its ASTM E11 sieves\n")
-    _edit(demo_copy / "dossier.yaml", "grading_envelope: astm_c144_natural",
+    edit(demo_copy / "dossier.yaml", "grading_envelope: astm_c144_natural",
           "grading_envelope: en13139_0_2")
     _, r = check(demo_copy)
-    c = _by(r)[("COMP-GRAD", "Z1/M3")]
+    c = by_check(r)[("COMP-GRAD", "Z1/M3")]
     step = next(s for s in c.steps if s.title.startswith("Passing on the envelope's sieves"))
     got = {i.symbol: i.value for i in step.inputs}
     # reference: numpy.interp on log(aperture) through demo S1 (lab/sieves.csv)
@@ -183,13 +167,13 @@ BAD_PRACTICE = [
 @pytest.mark.parametrize("text, message", BAD_PRACTICE)
 def test_bad_practice_is_refused_with_its_location(demo_copy, text, message):
     _follow(demo_copy, text)
-    assert message in _problems(demo_copy)
+    assert message in problems(demo_copy)
 
 
 def test_sieve_data_of_the_other_practice_without_saying_so(demo_copy):
     _follow(demo_copy, "practice:\n  follows: european\n")
-    _edit(demo_copy / "dossier.yaml", "  grading_envelope: astm_c144_natural\n", "")
+    edit(demo_copy / "dossier.yaml", "  grading_envelope: astm_c144_natural\n", "")
     assert ("dossier.yaml, line 74: practice.follows: the grading envelope 'en13139_0_4' is "
             "written on the EN 933-2 / ISO 565 basic set of test sieves, but "
             "lab/sieves.csv gives 'HM1-agg' (row 14), 'S1' (row 2), 'S2' (row 8) on the "
-            "ASTM E11 test sieves.") in _problems(demo_copy)
+            "ASTM E11 test sieves.") in problems(demo_copy)

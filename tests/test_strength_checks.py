@@ -8,13 +8,9 @@ import pytest
 from scipy import stats
 
 from specgen.build import check
-from specgen.errors import InputErrors
+from tests.helpers import by_check, problems
 
 HEADER = "specimen,mix,age [d],test,value [MPa],curing_temperature [degC]\n"
-
-
-def _by(results):
-    return {(c.code, c.subject): c for c in results.checks}
 
 
 def _write_strength(project, rows: list[str]) -> None:
@@ -27,15 +23,9 @@ def _edit(path, old, new):
     path.write_text(text.replace(old, new), encoding="utf-8")
 
 
-def _problems(project) -> str:
-    with pytest.raises(InputErrors) as exc:
-        check(project)
-    return str(exc.value)
-
-
 def test_aggregation_matches_en1990_and_scipy(demo_copy):
     _, r = check(demo_copy)
-    agg = _by(r)[("STR-AGG", "M1")]
+    agg = by_check(r)[("STR-AGG", "M1")]
     q = r.quantities["M1"]
     # demo lab/strength.csv M1 28 d compressive: 4.64, 4.76, 4.99 MPa
     x = [4.64, 4.76, 4.99]
@@ -67,7 +57,7 @@ def test_grubbs_tie_in_three_is_reported_not_dropped(demo_copy):
     assert g_crit(0.05) == pytest.approx(1.1531, abs=1e-4)       # one-sided 5 %
     assert 2 / math.sqrt(3) > g_crit(0.025)
     _, r = check(demo_copy)
-    agg = _by(r)[("STR-AGG", "M1")]
+    agg = by_check(r)[("STR-AGG", "M1")]
     assert r.quantities["M1"]["excluded_results"].value == []
     assert any("M1-01d-C2" in n and "kept" in n and "upper bound" in n for n in agg.notes)
     assert "no result excluded by Grubbs' test" in agg.message
@@ -79,7 +69,7 @@ def test_grubbs_outlier_in_larger_group_is_excluded_and_listed(demo_copy):
          (28, 4.6), (28, 4.7), (28, 4.8), (90, 7.1), (90, 7.3), (90, 7.2)])]
     _write_strength(demo_copy, rows)
     _, r = check(demo_copy)
-    agg = _by(r)[("STR-AGG", "M1")]
+    agg = by_check(r)[("STR-AGG", "M1")]
     assert agg.status == "attention"
     excluded = r.quantities["M1"]["excluded_results"].value
     assert len(excluded) == 1 and excluded[0].startswith("X5: G = ")
@@ -108,7 +98,7 @@ def test_fit_prediction_and_names_in_results(demo_copy):
     # measured 90 d mean 7.62 MPa (demo data) lies in the band for the mean
     assert p90["lower"] < 7.62 < p90["upper"]
     assert pred["365 d"]["extrapolated"] and not pred["365 d"]["widened"]  # last age 90 d >= 56 d
-    fit = _by(r)[("STR-FIT-C", "M1")]
+    fit = by_check(r)[("STR-FIT-C", "M1")]
     assert "Chosen: two-component model" in fit.notes[0] and "AICc" in fit.notes[0]
 
 
@@ -116,7 +106,7 @@ def test_short_record_band_widened_and_never_decides(demo_copy):
     # the issued R1 data end at 28 d: predictions at 90 d are > 2x the last age
     proj = demo_copy / "issued" / "R1"
     _, r = check(proj)
-    by = _by(r)
+    by = by_check(r)
     pred = r.quantities["M1"]["predicted_strength"].value["compressive"]["90 d"]
     assert pred["widened"] and pred["extrapolated"]
     assert by[("STR-PRED-C", "M1")].status == "attention"
@@ -128,7 +118,7 @@ def test_short_record_band_widened_and_never_decides(demo_copy):
 
 def test_acceptance_pass_fail_and_hold(demo_copy):
     _, r = check(demo_copy)
-    by = _by(r)
+    by = by_check(r)
     # M3 28 d: 2.80, 2.28, 2.37 -> mean 2.483, s 0.2779, f_k = 2.483 - 3.372*0.2779 = 1.546 < 2
     m3 = by[("STR-MIN", "M3")]
     assert m3.status == "fail" and m3.value == pytest.approx(1.546, abs=2e-3)
@@ -144,7 +134,7 @@ def test_hold_recommends_a_later_age(demo_copy):
     _edit(demo_copy / "dossier.yaml", '{age: "90 d", value: "3 MPa"}',
           '{age: "90 d", value: "3 MPa"}\n    - {age: "180 d", value: "6.4 MPa"}')
     _, r = check(demo_copy)
-    m2 = _by(r)[("STR-MIN", "M2")]
+    m2 = by_check(r)[("STR-MIN", "M2")]
     assert m2.status == "hold"
     assert "180 d (min 6.4 MPa): hold" in m2.message
     assert any(b.kind == "common practice" and "later test age" in b.note for b in m2.basis)
@@ -154,7 +144,7 @@ def test_site_temperature_and_load_strength(demo_copy):
     _edit(demo_copy / "dossier.yaml", "site_temperature: lab/site-temperature.csv",
           'site_temperature: "8 degC"')
     _, r = check(demo_copy)
-    site = _by(r)[("STR-SITE", "M2")]
+    site = by_check(r)[("STR-SITE", "M2")]
     te = r.quantities["M2"]["equivalent_age"].value
     # ASTM C1074: factor exp(-(E/R)(1/T - 1/Tr)), E = 33.5 kJ/mol, R = 8.314462618 (CODATA),
     # T = 281.15 K, Tr = 293.15 K -> exp(-4029.12 * 1.45597e-4) = exp(-0.58663) = 0.55620;
@@ -185,7 +175,7 @@ def test_not_assessed_with_fewer_than_two_ages(demo_copy):
     _write_strength(demo_copy, ["A1,M1,28,compressive,4.6,20", "A2,M1,28,compressive,4.7,20",
                                 "A3,M1,28,compressive,4.8,20"])
     _, r = check(demo_copy)
-    by = _by(r)
+    by = by_check(r)
     fit = by[("STR-FIT-C", "M1")]
     assert fit.status == "not_assessed"
     assert fit.message == "not assessed: a strength-age fit needs results at >= 2 distinct ages; got 1"
@@ -197,7 +187,7 @@ def test_all_equal_values_refused_by_the_fit(demo_copy):
     _write_strength(demo_copy, [f"A{i},M1,{a},compressive,2.0,20" for i, a in
                                 enumerate([1, 1, 7, 7, 28, 28])])
     _, r = check(demo_copy)
-    fit = _by(r)[("STR-FIT-C", "M1")]
+    fit = by_check(r)[("STR-FIT-C", "M1")]
     assert fit.status == "not_assessed"
     assert ("all results are equal (2 MPa at every age): there is no strength development to "
             "fit; check the data") in fit.message
@@ -208,7 +198,7 @@ def test_psi_under_mpa_heading_is_flagged_not_fitted(demo_copy):
     _write_strength(demo_copy, [f"P{i},M1,{a},compressive,{v},20" for i, (a, v) in enumerate(
         [(7, 330), (7, 340), (28, 680), (28, 700), (90, 1020), (90, 1050)])])
     _, r = check(demo_copy)
-    by = _by(r)
+    by = by_check(r)
     agg = by[("STR-AGG", "M1")]
     assert agg.status == "attention"
     assert "implausible magnitude (psi or kPa typed as MPa?)" in agg.message
@@ -221,7 +211,7 @@ def test_psi_under_mpa_heading_is_flagged_not_fitted(demo_copy):
 def test_curing_temperature_out_of_range_refused_at_load(demo_copy):
     _edit(demo_copy / "lab" / "strength.csv", "M1-01d-C1,M1,1,compressive,1.18,20",
           "M1-01d-C1,M1,1,compressive,1.18,68")
-    out = _problems(demo_copy)
+    out = problems(demo_copy)
     assert ("lab/strength.csv, row 2: curing_temperature: curing temperature 68.0 °C is above "
             "the range -10 to 60 °C in which the maturity method is applied.") in out
 
@@ -229,7 +219,7 @@ def test_curing_temperature_out_of_range_refused_at_load(demo_copy):
 def test_site_record_bad_rows(demo_copy):
     (demo_copy / "lab" / "site-temperature.csv").write_text(
         "day [d],temperature [degC]\n0,8\n1,9\n1,9.5\n3,-12\n")
-    out = _problems(demo_copy)
+    out = problems(demo_copy)
     assert ("lab/site-temperature.csv, row 4: day [d]: days must start at 0 or later and increase "
             "from row to row.") in out
     assert ("lab/site-temperature.csv, row 5: temperature [degC]: temperature -12.0 °C is below the "
@@ -239,7 +229,7 @@ def test_site_record_bad_rows(demo_copy):
 def test_site_record_path_leaving_the_project(demo_copy):
     _edit(demo_copy / "dossier.yaml", "site_temperature: lab/site-temperature.csv",
           "site_temperature: ../elsewhere.csv")
-    out = _problems(demo_copy)
+    out = problems(demo_copy)
     assert ("dossier.yaml, line 95: site_temperature: the path '../elsewhere.csv' leaves the project "
             "folder. Fix: give a path relative to the project folder, without '..'.") \
         in out
@@ -251,7 +241,7 @@ def test_lab_curing_converted_to_equivalent_age(demo_copy):
         "\n".join(line[:-2] + "30" if line.startswith("M2-") else line
                   for line in text.splitlines()) + "\n")
     _, r = check(demo_copy)
-    fit = _by(r)[("STR-FIT-C", "M2")]
+    fit = by_check(r)[("STR-FIT-C", "M2")]
     lab = fit.steps[0]
     # ASTM C1074 factor at 30 °C, E = 33.5 kJ/mol: exp(-(33500/8.314462618)(1/303.15 - 1/293.15))
     assert lab.symbol == "a_T"
@@ -262,7 +252,7 @@ def test_lab_curing_converted_to_equivalent_age(demo_copy):
 
 def test_classes_are_descriptive(demo_copy):
     _, r = check(demo_copy)
-    c = _by(r)[("STR-CLASS", "M2")]
+    c = by_check(r)[("STR-CLASS", "M2")]
     # M2 28-d mean (3.49 + 3.10 + 3.41)/3 = 3.333 MPa; the demo follows European practice:
     # EN 998-2 class Mx needs a mean of at least x N/mm2 at 28 d (from memory): M2.5, not M5
     assert c.status == "info" and c.value == pytest.approx(3.3333, abs=1e-4)

@@ -11,12 +11,7 @@ import pytest
 from specgen import refdata
 from specgen.build import build, check, refuse_unconfirmed
 from specgen.errors import InputErrors
-
-
-def _edit(path, old, new):
-    text = path.read_text(encoding="utf-8")
-    assert old in text, old
-    path.write_text(text.replace(old, new, 1), encoding="utf-8")
+from tests.helpers import edit
 
 
 def test_recording_notes_only_the_entries_read():
@@ -52,7 +47,7 @@ def test_sheets_carry_no_drafting_marks(demo_copy):
 
 def test_construction_revision_refused_while_values_unconfirmed(demo_copy, tmp_path):
     shutil.rmtree(demo_copy / "issued")      # no archived revisions to build first
-    _edit(demo_copy / "dossier.yaml", "purpose: for_approval", "purpose: for_construction")
+    edit(demo_copy / "dossier.yaml", "purpose: for_approval", "purpose: for_construction")
     out = tmp_path / "out"
     with pytest.raises(InputErrors) as exc:
         build(demo_copy, out)
