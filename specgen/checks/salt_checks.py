@@ -13,7 +13,7 @@ from __future__ import annotations
 from specgen import refdata
 from specgen.checks import compatibility_common as cc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, Input, Quantity, Step, worst
+from specgen.checks.result import Basis, Input, Quantity, Step
 
 declare("salt_load_class", "", "salt-load class of chloride, nitrate and sulfate in each fabric "
         "material by the project's table {material: {ion: class}}, with the table")

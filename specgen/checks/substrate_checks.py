@@ -49,7 +49,7 @@ def _suction(pair, ctx):
     if c is None:
         return None
     r = dc.rule(ctx, "capillary_high_suction")
-    return (c > r.value, [Input("C_u", f"capillary coefficient of the units", c,
+    return (c > r.value, [Input("C_u", "capillary coefficient of the units", c,
                                 "kg/(m²·min^0.5)", f"COMP-MOIST/{pair.subject}"),
                           dc.rule_input(ctx, "C_high", "capillary_high_suction")], [r])
 

@@ -35,14 +35,14 @@ def template_env(project_root) -> jinja2.Environment:
                     trim_blocks=True, lstrip_blocks=True, keep_trailing_newline=True)
     env.filters["num"] = num
     env.filters["cell"] = lambda v: Markup(str(escape(v)).replace("|", "&#124;").replace("\n", " "))
-    env.filters["plain"] = plain
+    env.filters["inert"] = inert
     return env
 
 
 _MARKDOWN_SIGNS = re.compile(r"([\\`*_{}\[\]()#+\-.!|~])")
 
 
-def plain(value) -> Markup:
+def inert(value) -> Markup:
     """Text from outside (a reviewer's comment) shown as text: neither HTML nor Markdown
     can take effect, line breaks become spaces."""
     text = " ".join(str(value).split())

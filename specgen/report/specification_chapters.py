@@ -13,7 +13,7 @@ from specgen.checks.specification_checks import applicable
 from specgen.report.chapters import badge, chapter
 from specgen.report.fmt import anchor, as_given, num, qty, unit_symbol
 from specgen.report.specification_clauses import clause_context
-from specgen.report.wording import plain, reader
+from specgen.report.wording import reader
 
 STATE_CLASS = {"open": "hold", "released": "pass"}
 
