@@ -15,7 +15,15 @@ from specgen import refdata
 from specgen.checks import compatibility_common as cc
 from specgen.checks import durability_common as dc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, CheckResult, Input, Limit, Quantity, Step, not_assessed
+from specgen.checks.result import (
+    Basis,
+    CheckResult,
+    Input,
+    Limit,
+    Quantity,
+    Step,
+    not_assessed,
+)
 from specgen.science import exposure as ex
 
 declare("exposure_class", "", "exposure class of a zone: {practice, designation, classes, base, "
@@ -71,8 +79,8 @@ def exposure_check(zone, ctx) -> CheckResult:
         text = (f"{loc['location']}: type {loc['recommended']} recommended (alternatives "
                 f"{', '.join(loc['alternatives'])}); weathering {q['american']['weathering']} "
                 f"(EN 1996-1-1 equivalent {ec.designation})")
-    notes = [said, f"class wording: {table.source} ({table.tag}) — recalled, to be confirmed "
-             "against the printed standard before issue"]
+    # a class wording still tagged memory is listed on the Values to confirm page, not here
+    notes = [said, f"class wording: {refdata.shown(table.source, table.tag)}"]
     status = "info"
     if dur.freezing is None and ec.wetting != "dry":
         status = "attention"
