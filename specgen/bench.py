@@ -10,6 +10,11 @@ to disk) and a plain WeasyPrint render of the same print HTML, in sequence, and
 log–log slope of time against results), and (f) once, the full build (site and PDF) of
 the 200-mix project in a fresh process, with its time and the peak resident memory of
 its largest process.  Medians of ``runs`` repetitions.
+
+Two more, which ``--only serve`` / ``--only xlsx`` run alone: (g) ``serve`` on the demo — the
+time to the first answer and to the first page of the current revision, with a cold and with
+a warm artefact cache; (h) reading the demo's strength results from a workbook against the
+same rows as CSV (the table alone, and the whole project load).
 """
 from __future__ import annotations
 
@@ -96,10 +101,100 @@ def _peak_build(project: Path, out: Path) -> tuple[float, float]:
     return float(seconds), int(kib) / 1024
 
 
-def main(runs: int = 3, large: bool = True) -> None:
+def _free_port() -> int:
+    import socket
+    with socket.socket() as sock:
+        sock.bind(("127.0.0.1", 0))
+        return sock.getsockname()[1]
+
+
+def _serve_once(project: Path) -> tuple[float, float]:
+    """(seconds to the first answer, seconds to the first page of the current revision)."""
+    import threading
+    import urllib.request
+    from specgen.preview import serve
+    port, stop = _free_port(), threading.Event()
+    t = time.perf_counter()
+    thread = threading.Thread(target=serve, args=(project, port), daemon=True,
+                              kwargs={"say": lambda text: None, "stop": stop})
+    thread.start()
+    first = page = None
+    while page is None:
+        try:
+            with urllib.request.urlopen(f"http://127.0.0.1:{port}/index.html", timeout=5) as r:
+                body = r.read()
+            first = first or time.perf_counter() - t
+            if b"Preview of revision" in body:
+                page = time.perf_counter() - t
+        except OSError:
+            pass
+        time.sleep(0.05)
+    stop.set()
+    thread.join()
+    return first, page
+
+
+def bench_serve(demo: Path, work: Path) -> None:
+    """(g) the preview's first answer and first page, cold then warm cache."""
+    import os
+    project = _project_copy(demo, work)
+    os.environ["XDG_CACHE_HOME"] = str(work / "serve-cache")
+    for label in ("cold cache", "warm cache"):
+        _cold()
+        first, page = _serve_once(project)
+        print(f"(g) serve, demo, {label}: first answer {first:6.2f} s, first page of the "
+              f"revision {page:7.2f} s")
+
+
+def bench_xlsx(demo: Path, work: Path, runs: int) -> None:
+    """(h) the same strength rows read from CSV and from a workbook sheet."""
+    import openpyxl
+    from specgen.errors import ProblemLog
+    from specgen.project import load_project
+    from specgen.project.files import read_csv
+    from specgen.project.tables import strength_results
+    from specgen.project.workbook import read_sheet, read_workbook
+    project = _project_copy(demo, work)
+    csv = project / "lab" / "strength.csv"
+    rows = [line.split(",") for line in csv.read_text().splitlines()]
+    wb = openpyxl.Workbook()
+    ws = wb.active
+    ws.title = "strength"
+    for i, row in enumerate(rows):
+        ws.append(row if i == 0 else [row[0], row[1], float(row[2]), row[3], float(row[4]),
+                                      float(row[5])])
+    book = work / "strength.xlsx"
+    wb.save(book)
+
+    def via_csv():
+        strength_results(read_csv(csv, "lab/strength.csv", ProblemLog()), "lab/strength.csv",
+                         ProblemLog())
+
+    def via_xlsx():
+        for sheet in read_workbook(book, "lab/strength.xlsx", ProblemLog()):
+            read_sheet(sheet, strength_results, "lab/strength.xlsx", ProblemLog())
+    a, b = _median(via_csv, runs * 5), _median(via_xlsx, runs * 5)
+    with_csv = _median(lambda: load_project(project), runs)
+    csv.unlink()
+    shutil.copyfile(book, project / "lab" / "strength.xlsx")
+    with_xlsx = _median(lambda: load_project(project), runs)
+    n = len(rows) - 1
+    print(f"(h) {n} strength rows: table from CSV {a * 1000:7.2f} ms, from xlsx "
+          f"{b * 1000:7.2f} ms (ratio {b / a:.1f}); whole project load with CSV "
+          f"{with_csv:6.3f} s, with xlsx {with_xlsx:6.3f} s (ratio {with_xlsx / with_csv:.2f})")
+
+
+def main(runs: int = 3, large: bool = True, only: str = "all") -> None:
     from specgen.build import build, check
     from specgen.synthetic import write_project
     demo = Path(__file__).resolve().parent.parent / "demo_project"
+    if only != "all":
+        with tempfile.TemporaryDirectory(prefix="specgen-bench-") as tmp:
+            if only == "serve":
+                bench_serve(demo, Path(tmp))
+            else:
+                bench_xlsx(demo, Path(tmp), runs)
+        return
     with tempfile.TemporaryDirectory(prefix="specgen-bench-") as tmp:
         work = Path(tmp)
         project = _project_copy(demo, work)
@@ -128,6 +223,10 @@ def main(runs: int = 3, large: bool = True) -> None:
             sizes.append(n * 8 * 3)
         slope = (math.log(times[-1]) - math.log(times[0])) / (math.log(sizes[-1]) - math.log(sizes[0]))
         f = _peak_build(syn, work / "syn-out") if large else None
+        (work / "g").mkdir()
+        (work / "h").mkdir()
+        bench_xlsx(demo, work / "h", runs)
+        bench_serve(demo, work / "g")
     print(f"(a) check, demo                      {a:7.3f} s")
     print(f"(b) full cold build, demo            {b:7.3f} s")
     print(f"(c) re-issue after one new result    {c:7.3f} s")

@@ -14,10 +14,12 @@ from __future__ import annotations
 import datetime as dt
 import os
 from collections.abc import Callable
+from dataclasses import dataclass, replace
 from pathlib import Path
 
-from specgen.checks.run import Results, evaluate
-from specgen.errors import InputErrors, Problem
+from specgen.checks.run import Previous, Results, evaluate
+from specgen.errors import AuditRefused, InputErrors, Problem, UsageError
+from specgen.killpoints import reached
 from specgen.project import Project, load_project
 from specgen.project.load import ARCHIVE_DIR
 
@@ -36,9 +38,11 @@ def _load(project_dir) -> Project:
 
 
 def check(project_dir: Path | str) -> tuple[Project, Results]:
-    """Load the project and run every check (no output written)."""
+    """Load the project (and its archived issued revisions, validated as a build would)
+    and run every check and the audit (no output written)."""
     project = _load(project_dir)
-    return project, evaluate(project)
+    archived = _load_archive(Path(project_dir), project)
+    return project, evaluate(project, previous=_previous(archived[-1] if archived else None))
 
 
 def import_comments(project_dir: Path | str, review_file: Path | str,
@@ -53,58 +57,272 @@ def import_comments(project_dir: Path | str, review_file: Path | str,
     return take_in(project, Path(review_file), Path(out_dir))
 
 
-def _quiet(step: str) -> None:
+def missing(project_dir: Path | str):
+    """What the dossier still lacks to be complete for issue (``completeness.Missing`` items,
+    in the order a specifier works), with the project and results it was read from."""
+    from specgen.completeness import missing as lacking
+    project, results = check(project_dir)
+    return lacking(project, results), project
+
+
+def lab_workbook(project_dir: Path | str, path: Path | str | None = None, *,
+                 overwrite: bool = False) -> tuple[Path, dict[str, int]]:
+    """Write the laboratory workbook of the project (planned tests without results yet);
+    returns where and the rows per sheet.  Default file: ``<code>-<revision>-lab.xlsx``."""
+    from specgen.errors import UsageError
+    from specgen.labbook import write_workbook
+    project = _load(project_dir)
+    code = project.dossier.project.code
+    target = Path(path or f"{code}-{project.revision.code}-lab.xlsx")
+    if target.exists() and not overwrite:
+        raise UsageError(f"{target}: already exists. Fix: name another file with --out, or "
+                         "add --force to replace it.")
+    return target, write_workbook(project, target)
+
+
+def _quiet(step: str, done: int | None = None, total: int | None = None) -> None:
     pass
 
 
-def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str = "a4",
-          progress: Callable[[str], None] = _quiet) -> Path:
-    """Build the project's revision (and missing archived ones) into ``out_dir/<revision>/``."""
+def _previous(old: Project | None) -> Previous | None:
+    """What the audit and the change report compare a revision with: the issued one before."""
+    if old is None:
+        return None
+    rev = old.revision
+    return Previous(rev.code, rev.date.isoformat(), rev.description,
+                    evaluate(old).to_dict(), {f.path: f.sha256 for f in old.inputs})
+
+
+def blocks(project: Project) -> bool:
+    """Whether open blocking findings stop this revision from being built: issued for
+    construction, or for approval when the project asks for that."""
+    rev = project.revision
+    strict = project.dossier.document_control.block_for_approval
+    return rev.status == "issued" and (rev.purpose == "for_construction"
+                                       or (strict and rev.purpose == "for_approval"))
+
+
+def refuse_if_findings(project: Project, results: Results) -> None:
+    """Stop (exit 1) with the list when an issued revision still has blocking findings."""
+    found = results.blocking()
+    if found and blocks(project):
+        raise AuditRefused(project.revision, found)
+
+
+def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None = None,
+          progress: Callable[..., None] = _quiet, rebuild: dict[str, str] | None = None) -> Path:
+    """Build the project's revision (and missing archived ones) into ``out_dir/<revision>/``.
+
+    ``rebuild`` maps an issued revision's code to the reason for rebuilding it from inputs
+    that changed after it was issued (recorded in its manifest); without it such a change
+    stops the build before anything is written.  ``page_size`` (``a4`` or ``letter``)
+    overrides the paper of the practice each revision states (A4 when it states none).
+    ``progress(step, done=None, total=None)`` hears each stage as it starts and, where the
+    work is counted (the PDF's parts), how much of it is done.
+    """
     progress("load: reading and validating the project folder")
     project = _load(project_dir)
     archived = _load_archive(Path(project_dir), project)
     out = Path(out_dir)
+    reached("load")
+    stale = frozen_inputs(out, archived, rebuild or {})
+    previous = [None] + archived
+    progress("check: running the checks and the consistency audit")
+    results = evaluate(project, previous=_previous(previous[-1]))
+    refuse_if_findings(project, results)
+    refuse_unconfirmed(project, results)
+    from specgen.publish.output import preflight
+    # a read-only or full output folder is found before anything is drawn; after the
+    # refusals, so a refused revision leaves no output folder behind
+    preflight(out)
+    reached("check")
     from specgen.report import cache
     # unchanged figures and math are reused from the output folder's artefact cache;
     # after a complete build it keeps only what this build used
     with cache.using(out / cache.CACHE_DIR) as used:
-        for old in archived:
-            if not (out / old.revision.code / "manifest.json").is_file():
+        for old, before in zip(archived, previous):
+            if old.revision.code in stale:
                 progress(f"revision {old.revision.code} (issued, from {ARCHIVE_DIR}/)")
-                _build_one(old, out, page_size, progress)
-        built = _build_one(project, out, page_size, progress)
+                old_results = evaluate(old, previous=_previous(before))
+                _build_one(old, old_results, out, page_size, progress,
+                           superseded=_next_issued(archived, old),
+                           rebuilt=(rebuild or {}).get(old.revision.code))
+        built = _build_one(project, results, out, page_size, progress)
     cache.prune(out / cache.CACHE_DIR, used)
     return built
 
 
-def _build_one(project: Project, out: Path, page_size: str, progress) -> Path:
+def _paper(project: Project, page_size: str | None) -> str:
+    """The paper of the PDF: asked for, else the stated practice's, else A4."""
+    from specgen import practice
+    if page_size:
+        return page_size
+    p = practice.resolve(project.dossier)
+    return p.paper.lower() if p.stated else "a4"
+
+
+def _next_issued(archived: list[Project], old: Project) -> str | None:
+    later = [p.revision.code for p in archived if (p.revision.date, p.revision.code)
+             > (old.revision.date, old.revision.code)]
+    return later[0] if later else None
+
+
+def frozen_inputs(out: Path, archived: list[Project], rebuild: dict[str, str]) -> set[str]:
+    """Codes of the archived revisions to build: those not built as issued into ``out``, and
+    those told to ``rebuild``.  An issued revision whose inputs changed after its manifest
+    was written stops the build (nothing written) unless it is told to rebuild."""
+    from specgen.publish.output import issued_manifest
+    todo, problems = set(), []
+    for old in archived:
+        code, now = old.revision.code, {f.path: f.sha256 for f in old.inputs}
+        manifest = issued_manifest(out / code)
+        if manifest is None or code in rebuild:
+            todo.add(code)
+            continue
+        then = manifest.get("inputs", {})
+        changed = sorted(k for k in set(then) | set(now) if then.get(k) != now.get(k))
+        for path in changed:
+            what = ("was added" if path not in then else "was removed" if path not in now
+                    else "was changed")
+            problems.append(Problem(
+                f"{ARCHIVE_DIR}/{code}/{path}", f"{what} after revision {code} was issued (its "
+                f"inputs are hashed in {out / code / 'manifest.json'}); an issued revision is "
+                "frozen.", fix=f"restore the file as issued (the PDF of {code} carries it as the "
+                f"attachment input/{path}), or rebuild {code} from the changed inputs with "
+                f"--rebuild-issued {code} --reason \"why\", which records the reason."))
+    if problems:
+        raise InputErrors(problems)
+    return todo
+
+
+def _build_one(project: Project, results: Results, out: Path, page_size: str | None, progress,
+               superseded: str | None = None, rebuilt: str | None = None) -> Path:
     from specgen.publish import publish
+    page_size = _paper(project, page_size)
     from specgen.publish.history import history_for
     from specgen.report.render import render
-    progress("check: running the checks")
-    results = evaluate(project)
     history = history_for(out, project, results)
     progress("render: pages, figures and calculation sheets")
-    pages = render(project, results, history)
+    pages = render(project, results, history, superseded=superseded)
+    reached("render")
     _fix_dates(project.revision.date)
     return publish(project, results, pages, out, page_size=page_size, progress=progress,
-                   changes=history.changes)
+                   changes=results.changes, superseded=superseded, rebuilt=rebuilt)
+
+
+def refuse_unconfirmed(project: Project, results: Results) -> None:
+    """A revision for construction may not rest on a value still tagged ``memory``.
+
+    Raises :class:`InputErrors` (exit 2, nothing written) naming the revision's purpose in
+    dossier.yaml and every such value with the checks that used it.
+    """
+    values = results.unconfirmed()
+    if project.revision.purpose != "for_construction" or not values:
+        return
+    from specgen.errors import ProblemLog
+    from specgen.project.files import read_yaml
+    log = ProblemLog()
+    located = read_yaml(Path(project.root) / "dossier.yaml", "dossier.yaml", ProblemLog())
+    log.add("dossier.yaml", f"revision {project.revision.code} is for construction but rests on "
+            f"{len(values)} value(s) still tagged memory (recalled, not read in their source).",
+            line=located.line_of(("revision", "purpose")) if located else None,
+            field="revision.purpose",
+            fix="confirm each value listed below against its source, or issue the revision "
+            "for approval until then (purpose: for_approval).")
+    for v in values:
+        users = v["used_by"]
+        log.add(f"content/data/{v['table']}.yaml", f"tagged memory (source named: {v['source']}); "
+                f"used by {', '.join(users[:3])}" + (f" and {len(users) - 3} more" if
+                                                     len(users) > 3 else "") + ".",
+                field=v["path"] or "(the whole table)",
+                fix="read the value in the source and cite its clause or table (then remove the "
+                "tag), or declare it common practice with its range and reason, or a project "
+                "requirement (rule_overrides with a justification).")
+    log.raise_if_any()
+
+
+# --------------------------------------------------------------------- live preview
+TEXT_ONLY = ("narrative/", "templates/")  # inputs whose change leaves the check results as they are
+
+
+@dataclass
+class Prepared:
+    """A revision loaded, checked and rendered, ready to publish (the preview's unit of work)."""
+
+    project: Project
+    results: Results
+    pages: object
+    data_key: tuple   # hashes of the inputs the checks read (all but narrative and templates)
+
+
+def _data_key(project: Project) -> tuple:
+    return tuple((f.path, f.sha256) for f in project.inputs if not f.path.startswith(TEXT_ONLY))
+
+
+def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | None = None,
+            cache_dir: Path | str | None = None, progress: Callable[..., None] = _quiet
+            ) -> Prepared:
+    """Load, check and render; the checks are reused from ``reuse`` when only narrative or
+    templates changed, and figures and math come from the artefact cache."""
+    from specgen.publish.history import history_for
+    from specgen.report import cache
+    from specgen.report.render import render
+    progress("load: reading and validating the project folder")
+    project = _load(project_dir)
+    key = _data_key(project)
+    if reuse is not None and reuse.data_key == key:
+        results = reuse.results
+    else:
+        archived = _load_archive(Path(project_dir), project)
+        progress("check: running the checks and the consistency audit")
+        results = evaluate(project, previous=_previous(archived[-1] if archived else None))
+    progress("render: pages, figures and calculation sheets")
+    with cache.using(cache_dir or Path(out_dir) / cache.CACHE_DIR):
+        pages = render(project, results, history_for(Path(out_dir), project, results))
+    _fix_dates(project.revision.date)
+    return Prepared(project, results, pages, key)
+
+
+def preview_site(prepared: Prepared, out_dir: Path | str) -> Path:
+    """Publish the prepared revision's site (no PDF) into ``out_dir/<revision>/``."""
+    from specgen.publish.preview import site_only
+    return site_only(prepared.project, prepared.results, prepared.pages, Path(out_dir))
+
+
+def preview_pdf(prepared: Prepared, target: Path, *, cache_dir: Path | str | None = None,
+                progress: Callable[..., None] = _quiet) -> Path:
+    """Print the prepared revision's PDF into ``target`` (parts from the artefact cache)."""
+    from specgen.publish.preview import pdf_only
+    from specgen.report import cache
+    with cache.using(cache_dir or target.parent / cache.CACHE_DIR):
+        return pdf_only(prepared.project, prepared.results, prepared.pages, target,
+                        on_part=lambda done, total: progress("PDF parts", done, total))
 
 
 def _load_archive(root: Path, current: Project) -> list[Project]:
-    """The archived issued revisions, validated, oldest first."""
+    """The archived issued revisions, validated, oldest first; the current revision must be
+    dated on or after every one of them."""
     folder = root / ARCHIVE_DIR
     if not folder.is_dir():
         return []
-    problems, found = [], []
-    for sub in sorted(p for p in folder.iterdir() if p.is_dir()):
+    problems, more, found = [], {}, []
+    # a dot-folder is an issue in progress (or one a crash left), not an issued revision
+    for sub in sorted(p for p in folder.iterdir() if p.is_dir() and not p.name.startswith(".")):
+        prefix = f"{ARCHIVE_DIR}/{sub.name}/"
+        if not (sub / "dossier.yaml").is_file():
+            problems.append(Problem(prefix + "dossier.yaml", "not found: an archived revision "
+                                    "folder holds the complete inputs of the revision it is "
+                                    "named after.", fix=f"restore the file (the PDF of revision "
+                                    f"{sub.name} carries it as the attachment input/dossier.yaml)"
+                                    ", or remove the folder if it is not an issued revision."))
+            continue
         try:
             old = _load(sub)
         except InputErrors as exc:
-            problems += [Problem(f"{ARCHIVE_DIR}/{sub.name}/{p.file}", p.message, p.line, p.row,
-                                 p.field, p.fix) for p in exc.problems]
+            problems += [replace(p, file=prefix + p.file) for p in exc.problems]
+            more.update({prefix + f: n for f, n in exc.more.items()})
             continue
-        where = f"{ARCHIVE_DIR}/{sub.name}/dossier.yaml"
+        where = prefix + "dossier.yaml"
         if old.revision.code != sub.name or old.revision.status != "issued":
             problems.append(Problem(where, f"holds revision '{old.revision.code}' "
                                     f"({old.revision.status}); an archive folder holds the issued "
@@ -114,13 +332,155 @@ def _load_archive(root: Path, current: Project) -> list[Project]:
             problems.append(Problem("dossier.yaml", f"revision '{current.revision.code}' is already "
                                     f"issued in {ARCHIVE_DIR}/{sub.name}/.", field="revision.code",
                                     fix="raise a new revision code for the current inputs."))
+        elif old.revision.date > current.revision.date:
+            problems.append(Problem("dossier.yaml", f"revision {current.revision.code} is dated "
+                                    f"{current.revision.date}, before revision {old.revision.code} "
+                                    f"was issued ({old.revision.date}).", field="revision.date",
+                                    fix="date the revision on or after the last issued one.",
+                                    line=_line_of_date(root)))
         found.append(old)
-    if problems:
-        raise InputErrors(problems)
+    if problems or more:
+        raise InputErrors(problems, more)
     return sorted(found, key=lambda p: (p.revision.date, p.revision.code))
+
+
+def _line_of_date(root: Path) -> int | None:
+    from specgen.errors import ProblemLog
+    from specgen.project.files import read_yaml
+    located = read_yaml(root / "dossier.yaml", "dossier.yaml", ProblemLog())
+    return located.line_of(("revision", "date")) if located else None
+
+
+def verify(path: Path | str, project_dir: Path | str | None = None,
+           trust: list[Path] = ()) -> dict:
+    """Built output against what it vouches for: ``{"differences": [...], "signatures":
+    [...]}``; no differences and every signature intact when all match.
+
+    ``path`` is a revision folder or an output folder (then every revision in it, and
+    versions.json and the root index against the revisions present).  With
+    ``project_dir``, the inputs kept for each revision (``issued/<revision>/``, or the
+    project folder for its current revision) are checked against the manifest too.
+    Signed revisions' signatures are checked against the ``trust`` roots.
+    """
+    from specgen.errors import PublishError
+    from specgen.publish import verify as v
+    from specgen.publish.signing import verify_signatures
+    path = Path(path)
+    if (path / "manifest.json").is_file():
+        folders, lines = [path], []
+    else:
+        folders = v.revisions_in(path) if path.is_dir() else []
+        if not folders:
+            raise PublishError(f"{path}: neither a revision folder nor an output folder written "
+                               "by specgen build. Fix: name OUT or OUT/<revision>.")
+        lines = v.folder_differences(path)
+    signatures = []
+    for folder in folders:
+        lines += [f"{folder.name}: {d}" for d in v.revision_differences(folder)]
+        if project_dir is not None:
+            lines += _kept_inputs(Path(project_dir), folder, v)
+        signatures += verify_signatures(folder, list(trust))
+    return {"differences": lines, "signatures": signatures}
+
+
+def _kept_inputs(project: Path, folder: Path, v) -> list[str]:
+    from specgen.project.load import input_files
+    code = folder.name
+    kept = project / ARCHIVE_DIR / code
+    if not kept.is_dir():
+        kept = project if _revision_code(project) == code else None
+    if kept is None:
+        if v.manifest_of(folder).get("status") == "issued":
+            return [f"{code}: the project keeps no inputs of this issued revision "
+                    f"({ARCHIVE_DIR}/{code}/)"]
+        return []
+    return v.input_differences(folder, {f.path: f.sha256 for f in input_files(kept)})
+
+
+def _revision_code(project: Path) -> str | None:
+    from specgen.errors import ProblemLog
+    from specgen.project.files import read_yaml
+    located = read_yaml(project / "dossier.yaml", "dossier.yaml", ProblemLog())
+    data = located.data if located else None
+    rev = data.get("revision") if isinstance(data, dict) else None
+    return str(rev.get("code")) if isinstance(rev, dict) else None
 
 
 def _fix_dates(date: dt.date) -> None:
     """Reproducible output: every date stamped by the toolchain is the revision date."""
     epoch = int(dt.datetime(date.year, date.month, date.day, tzinfo=dt.timezone.utc).timestamp())
     os.environ["SOURCE_DATE_EPOCH"] = str(epoch)
+
+
+# ---------------------------------------------------------------- the life of a revision
+def issue(project_dir: Path | str, out_dir: Path | str, *, date: dt.date | None = None,
+          purpose: str | None = None, next_code: str | None = None, page_size: str = "a4",
+          progress: Callable[[str], None] = _quiet) -> dict:
+    """Issue the current draft: freeze its inputs into ``issued/<code>/`` with the date and
+    purpose, build it (manifest stamped ``issued``), then open the next draft revision.
+
+    Refused (nothing changed) when the revision is already issued or, for construction, while
+    the audit has blocking findings."""
+    from specgen.publish import archive
+    root = Path(project_dir)
+    project = _load(root)
+    rev = project.revision
+    if rev.status == "issued":
+        raise UsageError(f"{root / 'dossier.yaml'}: revision {rev.code} is already issued. Fix: "
+                         "raise a new draft revision (revision.code, status: draft) first.")
+    archived = _load_archive(root, project)
+    new_code = next_code or archive.next_code(rev.code)
+    when = date or dt.datetime.now(dt.timezone.utc).date()
+    progress(f"issue: freezing the inputs of {rev.code} into {ARCHIVE_DIR}/{rev.code}/")
+    staging = archive.freeze(project, ARCHIVE_DIR, {
+        "status": "issued", "date": when.isoformat(), "purpose": purpose or rev.purpose})
+    try:
+        issued = _load(staging)
+        results = evaluate(issued, previous=_previous(archived[-1] if archived else None))
+        refuse_if_findings(issued, results)
+        built = _build_one(issued, results, Path(out_dir), page_size, progress)
+        archive.commit(staging, rev.code)
+    finally:
+        if staging.exists():
+            import shutil
+            shutil.rmtree(staging, ignore_errors=True)
+    archive.open_next(root, new_code, when, rev.code)
+    return {"issued": rev.code, "folder": built, "next": new_code,
+            "findings": len(results.findings)}
+
+
+def status(project_dir: Path | str) -> dict:
+    """Where the project stands: revision, last issue, open findings, hold points, comments,
+    and what changed since the last issue."""
+    project, results = check(project_dir)
+    rev, code = project.revision, project.dossier.project.code
+    holds = results.value(code, "hold_points") or {}
+    return {"project": code, "revision": rev.code, "status": rev.status,
+            "purpose": rev.purpose.replace("_", " "), "date": rev.date.isoformat(),
+            "last_issued": results.previous, "blocks": blocks(project),
+            "findings": [f.to_dict() for f in results.findings],
+            "hold_points": sorted(k for k, v in holds.items() if v["state"] == "open"),
+            "comments": sorted(c.id for c in project.comments if c.status == "open"),
+            "facts": results.facts, "counts": results.counts()}
+
+
+def diff(out_dir: Path | str, old: str, new: str) -> dict:
+    """The change report between two revisions built into ``out_dir``."""
+    from specgen.checks.revision_delta import compare
+    from specgen.publish.history import find
+    a, b = find(Path(out_dir), old), find(Path(out_dir), new)
+    return compare(a.results, a.manifest.get("inputs", {}), b.results,
+                   b.manifest.get("inputs", {}))
+
+
+def diff_text(changes: dict) -> str:
+    """The change report as text (what ``specgen diff`` prints)."""
+    from specgen.checks.revision_delta import as_text
+    return as_text(changes)
+
+
+def sign(revision_dir: Path | str, key: Path, cert: Path, *, passphrase: bytes | None = None,
+         chain: list[Path] = ()) -> dict:
+    """Sign an issued revision's PDF (PAdES) and its manifest with the specifier's key."""
+    from specgen.publish.signing import sign_revision
+    return sign_revision(Path(revision_dir), key, cert, passphrase=passphrase, chain=list(chain))

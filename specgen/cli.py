@@ -13,7 +13,7 @@ from pathlib import Path
 import click
 
 from specgen import __version__
-from specgen.errors import InputErrors, SpecgenError
+from specgen.errors import InputErrors, SpecgenError, UsageError
 
 
 def _fail(exc: SpecgenError) -> None:
@@ -48,7 +48,9 @@ def new(directory: Path) -> None:
 @click.argument("directory", type=click.Path(path_type=Path))
 @click.option("--format", "fmt", type=click.Choice(["table", "json"]), default="table",
               show_default=True, help="table for people, json for tools (results.json content)")
-def check_cmd(directory: Path, fmt: str) -> None:
+@click.option("--wide", is_flag=True, help="one line per check, however long (the table "
+              "otherwise wraps findings to the terminal's width)")
+def check_cmd(directory: Path, fmt: str, wide: bool) -> None:
     """Run every check on the project in DIRECTORY and print the results."""
     from specgen.build import check
     try:
@@ -59,40 +61,144 @@ def check_cmd(directory: Path, fmt: str) -> None:
         click.echo(results.to_json(), nl=False)
     else:
         from specgen.textreport import table
-        click.echo(table(results))
+        click.echo(table(results, wide=wide))
     sys.exit(1 if results.counts().get("fail") else 0)
+
+
+@cli.command("missing")
+@click.argument("directory", type=click.Path(path_type=Path))
+def missing_cmd(directory: Path) -> None:
+    """List what the dossier still lacks to be complete for issue, in working order.
+
+    Exit status 0 when nothing is missing, 1 otherwise, 2 on invalid input.
+    """
+    from specgen.build import missing
+    from specgen.completeness import as_text
+    try:
+        items, project = missing(directory)
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(as_text(items, project.dossier.project.code, project.revision.code))
+    sys.exit(1 if items else 0)
+
+
+@cli.command("lab-workbook")
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.option("--out", "out", type=click.Path(dir_okay=False, path_type=Path), default=None,
+              help="workbook to write (default: <code>-<revision>-lab.xlsx here)")
+@click.option("--force", is_flag=True, help="replace the file if it exists")
+def lab_workbook(directory: Path, out: Path | None, force: bool) -> None:
+    """Write the laboratory's workbook: the planned tests, ready to fill in.
+
+    Put the filled-in workbook in DIRECTORY/lab/; it is read as the CSV files are.
+    """
+    from specgen.build import lab_workbook as write
+    try:
+        target, counts = write(directory, out, overwrite=force)
+    except SpecgenError as exc:
+        _fail(exc)
+    listed = ", ".join(f"{n} {sheet}" for sheet, n in counts.items())
+    click.echo(f"Wrote {target}: planned rows {listed}. "
+               f"Filled in, it goes in {directory}/lab/.")
+
+
+def _default_out(directory: Path) -> Path:
+    return directory.resolve().parent / f"{directory.resolve().name}-site"
+
+
+def _progress(quiet: bool):
+    """The progress display (specgen/console.py): rich on a terminal inside ``with``, plain
+    lines otherwise."""
+    from specgen.console import Progress
+    return Progress(sys.stderr, quiet=quiet)
 
 
 @cli.command()
 @click.argument("directory", type=click.Path(path_type=Path))
 @click.option("--out", "out", type=click.Path(file_okay=False, path_type=Path), default=None,
               help="output folder (default: DIRECTORY/../<folder name>-site)")
-@click.option("--page-size", type=click.Choice(["a4", "letter"]), default="a4", show_default=True)
+@click.option("--page-size", type=click.Choice(["a4", "letter"]), default=None,
+              help="paper of the PDF (default: the paper of the practice the project states "
+              "in dossier.yaml, A4 when it states none)")
 @click.option("--quiet", is_flag=True, help="no progress display")
-def build(directory: Path, out: Path | None, page_size: str, quiet: bool) -> None:
+@click.option("--rebuild-issued", "rebuild", multiple=True, metavar="REV",
+              help="rebuild issued revision REV although its inputs changed (needs --reason)")
+@click.option("--reason", default=None, help="why the issued revision is rebuilt (recorded in "
+              "its manifest)")
+def build(directory: Path, out: Path | None, page_size: str | None, quiet: bool, rebuild: tuple,
+          reason: str | None) -> None:
     """Build the site and PDF of the project's revision into OUT/<revision>/."""
     from specgen.build import build as run_build
-    out = out or directory.resolve().parent / f"{directory.resolve().name}-site"
-    steps = iter(range(1, 100))
-
-    def progress(step: str) -> None:
-        if not quiet:
-            click.echo(f"[{next(steps)}] {step}", err=True)
+    if rebuild and not (reason or "").strip():
+        _fail(UsageError("--rebuild-issued needs --reason \"why\" (it is recorded in the "
+                         "revision's manifest)."))
     try:
-        target = run_build(directory, out, page_size=page_size, progress=progress)
+        with _progress(quiet) as progress:
+            target = run_build(directory, out or _default_out(directory), page_size=page_size,
+                               progress=progress, rebuild={r: reason for r in rebuild})
     except SpecgenError as exc:
         _fail(exc)
     click.echo(f"Built {target} (open {target / 'index.html'})")
+
+
+@cli.command("issue")
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.option("--out", "out", type=click.Path(file_okay=False, path_type=Path), default=None,
+              help="output folder (default: DIRECTORY/../<folder name>-site)")
+@click.option("--date", "date", type=click.DateTime(["%Y-%m-%d"]), default=None,
+              help="issue date (default: today, UTC)")
+@click.option("--purpose", type=click.Choice(["preliminary", "for_approval", "for_construction"]),
+              default=None, help="what it is issued for (default: revision.purpose)")
+@click.option("--next", "next_code", default=None, help="code of the next draft (default: the "
+              "number raised by one)")
+@click.option("--page-size", type=click.Choice(["a4", "letter"]), default="a4", show_default=True)
+@click.option("--quiet", is_flag=True, help="no progress display")
+def issue_cmd(directory: Path, out, date, purpose, next_code, page_size: str, quiet: bool) -> None:
+    """Issue the current draft: freeze its inputs under issued/, build it, open the next draft."""
+    from specgen.build import issue
+    try:
+        done = issue(directory, out or _default_out(directory), date=date.date() if date else None,
+                     purpose=purpose, next_code=next_code, page_size=page_size,
+                     progress=_progress(quiet))
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(f"Issued {done['issued']} into {done['folder']}; inputs frozen in "
+               f"{directory / 'issued' / done['issued']}; the project is now draft {done['next']}."
+               + (f" The audit lists {done['findings']} finding(s) on its Open findings page."
+                  if done["findings"] else ""))
+
+
+@cli.command("status")
+@click.argument("directory", type=click.Path(path_type=Path))
+@click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text",
+              show_default=True)
+def status_cmd(directory: Path, fmt: str) -> None:
+    """Where the project stands: revision, findings, hold points, comments, changes."""
+    from specgen.build import status
+    from specgen.textreport import status_text
+    try:
+        report = status(directory)
+    except SpecgenError as exc:
+        _fail(exc)
+    click.echo(json.dumps(report, indent=2, sort_keys=True) if fmt == "json"
+               else status_text(report))
 
 
 @cli.command()
 @click.argument("directory", type=click.Path(path_type=Path))
 @click.option("--port", default=8000, show_default=True, help="port on 127.0.0.1")
 def serve(directory: Path, port: int) -> None:
-    """Live preview: rebuild the site when a project file changes and serve it locally."""
+    """Live preview on 127.0.0.1: the site first, the PDF in the background; rebuilt on change.
+
+    A bare page address (/strength.html) shows that page of the current revision; a page not
+    rebuilt after an edit (an input error, an issued revision) says so with the error.
+    """
+    from specgen.console import Progress
     from specgen.preview import serve as run_serve
     try:
-        run_serve(directory, port)
+        # plain lines: the server's own messages interleave with the stages
+        run_serve(directory, port, say=lambda text: click.echo(text, err=True),
+                  progress=Progress(sys.stderr, terminal=False))
     except SpecgenError as exc:
         _fail(exc)
 
@@ -125,32 +231,69 @@ def import_comments(directory: Path, review_file: Path, out: Path | None) -> Non
 @click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text",
               show_default=True)
 def diff(out: Path, old: str, new: str, fmt: str) -> None:
-    """Print what changed between two revisions built into OUT."""
-    from specgen.publish.history import as_text, between
+    """Print what changed between two revisions built into OUT (the decision first)."""
+    from specgen.build import diff as run_diff, diff_text
     try:
-        changes = between(out, old, new)
+        changes = run_diff(out, old, new)
     except SpecgenError as exc:
         _fail(exc)
-    click.echo(json.dumps(changes, indent=2, sort_keys=True) if fmt == "json" else as_text(changes))
+    click.echo(json.dumps(changes, indent=2, sort_keys=True) if fmt == "json" else diff_text(changes))
+
+
+@cli.command()
+@click.argument("path", type=click.Path(file_okay=False, path_type=Path))
+@click.option("--project", "project", type=click.Path(file_okay=False, path_type=Path),
+              default=None, help="project folder: also check the inputs it keeps for each "
+              "revision (issued/<revision>/) against the manifest")
+@click.option("--trust", multiple=True, type=click.Path(dir_okay=False, path_type=Path),
+              help="certificate (PEM) to trust as a root when checking signatures")
+def verify(path: Path, project: Path | None, trust: tuple) -> None:
+    """Check built output against its manifests and signatures (exit 1 on any difference).
+
+    PATH is a revision folder (OUT/R1) or an output folder (OUT: every revision, and
+    versions.json and the root index against the revisions present).
+    """
+    from specgen.build import verify as run_verify
+    try:
+        report = run_verify(path, project, list(trust))
+    except SpecgenError as exc:
+        _fail(exc)
+    differences = report["differences"]
+    for line in differences:
+        click.echo(line)
+    broken = [s for s in report["signatures"] if not s["intact"]]
+    for s in report["signatures"]:
+        click.echo(f"signature of {s['file']}: {s['summary']}")
+    bad = bool(differences or broken)
+    click.echo(f"{path}: " + (f"does NOT match its manifest ({len(differences)} "
+                              f"difference{'s' if len(differences) != 1 else ''}"
+                              f"{f', {len(broken)} broken signature' if broken else ''})"
+                              if bad else "every file matches its manifest"
+                              + (" and every signature is intact" if report["signatures"]
+                                 else "")))
+    sys.exit(1 if bad else 0)
 
 
 @cli.command()
 @click.argument("revision_dir", type=click.Path(file_okay=False, path_type=Path))
-def verify(revision_dir: Path) -> None:
-    """Check a built revision against its manifest (exit 1 on any difference)."""
-    from specgen.publish.output import verify as run_verify
+@click.option("--key", required=True, type=click.Path(dir_okay=False, path_type=Path),
+              help="the specifier's private key (PEM); read, never copied")
+@click.option("--cert", required=True, type=click.Path(dir_okay=False, path_type=Path),
+              help="the specifier's certificate (PEM)")
+@click.option("--chain", multiple=True, type=click.Path(dir_okay=False, path_type=Path),
+              help="intermediate certificates (PEM)")
+@click.option("--passphrase-env", default=None, metavar="VAR",
+              help="environment variable holding the key's passphrase")
+def sign(revision_dir: Path, key: Path, cert: Path, chain: tuple, passphrase_env) -> None:
+    """Sign an issued revision's PDF (PAdES) and its manifest with the specifier's certificate."""
+    import os
+    from specgen.build import sign as run_sign
+    phrase = os.environ.get(passphrase_env, "").encode() if passphrase_env else None
     try:
-        report = run_verify(revision_dir)
+        done = run_sign(revision_dir, key, cert, passphrase=phrase, chain=list(chain))
     except SpecgenError as exc:
         _fail(exc)
-    bad = False
-    for kind in ("modified", "missing", "extra"):
-        for path in report[kind]:
-            bad = True
-            click.echo(f"{kind}: {path}")
-    click.echo(f"{revision_dir}: " + ("does NOT match its manifest" if bad
-                                      else "every file matches its manifest"))
-    sys.exit(1 if bad else 0)
+    click.echo(f"Signed {done['pdf']} and {done['manifest_signature']} as {done['signer']}.")
 
 
 @cli.command()
@@ -181,10 +324,12 @@ def format_reference() -> None:
 @click.option("--runs", default=3, show_default=True, help="repetitions per measurement")
 @click.option("--large/--no-large", default=True, show_default=True,
               help="also build the 200-mix project once (time and peak memory; slow)")
-def bench(runs: int, large: bool) -> None:
+@click.option("--only", type=click.Choice(["all", "serve", "xlsx"]), default="all",
+              show_default=True, help="run only the preview or the workbook measurement")
+def bench(runs: int, large: bool, only: str) -> None:
     """Developers: time check, build, re-issue and the bare toolchain (ratios in one run)."""
     from specgen.bench import main as run_bench
-    run_bench(runs, large=large)
+    run_bench(runs, large=large, only=only)
 
 
 @cli.command("validate-strength")

@@ -1,40 +1,289 @@
-"""``specgen serve``: rebuild on change and serve the current revision on 127.0.0.1."""
+"""``specgen serve``: a live preview that answers at once.
+
+- The server starts before anything is built: until the first site is ready every page says
+  so and reloads itself.  The site comes first (load, check, render, site); the PDF is printed
+  afterwards in the background, and the preview bar on every page shows it as building until
+  it is there.
+- The project folder is watched with watchdog (native file events, no polling).  A change
+  rebuilds only what it touches: narrative or templates re-render with the check results
+  kept; figures, math and PDF parts come from the artefact cache (kept between sessions).
+- ``/strength.html`` (any page without its revision folder) answers with that page of the
+  current revision.
+- A page that could not be rebuilt (input error, an issued revision edited) still shows the
+  last good build, under a notice that carries the error text.
+"""
 from __future__ import annotations
 
-import functools
+import hashlib
+import html
 import http.server
+import os
+import re
+import shutil
 import tempfile
 import threading
 import time
+from dataclasses import dataclass, field
 from pathlib import Path
+from urllib.parse import unquote, urlsplit
 
-from specgen.errors import SpecgenError
+from specgen.errors import InputErrors, SpecgenError, UsageError
+
+IGNORED = re.compile(r"(^|/)(\.[^/]*|[^/]*~|#[^/]*#|[^/]*\.sw[px]|__pycache__)(/|$)")
+DEBOUNCE_S = 0.4
+_BODY = re.compile(r"<body[^>]*>", re.I)
 
 
-def _snapshot(root: Path) -> dict:
-    return {p: p.stat().st_mtime_ns for p in root.rglob("*") if p.is_file()}
+@dataclass
+class State:
+    """What the server shows: the current revision, the PDF's state and any notice."""
+
+    revision: str | None = None
+    pdf: str = "waiting"          # waiting | building | ready | failed
+    pdf_name: str = ""
+    notice: str = ""              # why the pages shown are not the latest edit
+    generation: int = 0
+    lock: threading.Lock = field(default_factory=threading.Lock)
 
 
-def serve(directory: Path, port: int) -> None:
-    """Build into a temporary folder, serve it, rebuild when a project file changes."""
-    from specgen.build import build
-    out = Path(tempfile.mkdtemp(prefix="specgen-preview-"))
-    target = build(directory, out)
-    handler = functools.partial(http.server.SimpleHTTPRequestHandler, directory=str(out))
-    server = http.server.ThreadingHTTPServer(("127.0.0.1", port), handler)
-    threading.Thread(target=server.serve_forever, daemon=True).start()
-    print(f"Serving http://127.0.0.1:{port}/{target.name}/index.html — Ctrl+C to stop")
-    seen = _snapshot(Path(directory))
-    try:
+def cache_dir(project: Path) -> Path:
+    """Artefact cache kept between preview sessions of one project folder."""
+    base = Path(os.environ.get("XDG_CACHE_HOME") or Path.home() / ".cache")
+    key = hashlib.sha256(str(project.resolve()).encode()).hexdigest()[:16]
+    return base / "specgen" / f"preview-{key}"
+
+
+def bar(state: State) -> str:
+    """The preview bar put at the top of every page (escaped text only)."""
+    pdf = {"ready": f'<a href="/{state.revision}/{html.escape(state.pdf_name)}">PDF</a>',
+           "building": "PDF: building… (this link appears when it is done)",
+           "waiting": "PDF: waiting for the site", "failed": "PDF: could not be printed"}
+    parts = [f"Preview of revision {html.escape(state.revision or '—')}", pdf[state.pdf]]
+    out = ('<div role="status" style="position:sticky;top:0;z-index:1000;background:#1d3557;'
+           'color:#fff;padding:.4em 1em;font:14px/1.4 sans-serif">' + " · ".join(parts)
+           + "</div>")
+    if state.notice:
+        out += ('<div role="alert" style="background:#fff3cd;color:#3d2e00;border:2px solid '
+                '#b8860b;padding:.6em 1em;font:14px/1.4 sans-serif;white-space:pre-wrap">'
+                '<strong>This page was not rebuilt after the last edit.</strong>\n'
+                + html.escape(state.notice) + "</div>")
+    return out
+
+
+def waiting_page(state: State) -> bytes:
+    text = state.notice or "The first build of the site is running; this page reloads itself."
+    return ("<!doctype html><html lang=\"en\"><head><meta charset=\"utf-8\">"
+            "<meta http-equiv=\"refresh\" content=\"2\"><title>specgen preview</title></head>"
+            f"<body><h1>specgen preview</h1><p style=\"white-space:pre-wrap\">"
+            f"{html.escape(text)}</p></body></html>").encode("utf-8")
+
+
+def handler_for(out: Path, state: State):
+    """A request handler serving ``out``; bare page names go to the current revision."""
+
+    class Handler(http.server.SimpleHTTPRequestHandler):
+        def __init__(self, *args, **kwargs):
+            super().__init__(*args, directory=str(out), **kwargs)
+
+        def log_message(self, fmt, *args):  # quiet: the terminal shows the builds
+            pass
+
+        def do_GET(self):
+            path = unquote(urlsplit(self.path).path)
+            if state.revision is None:
+                return self._send(waiting_page(state), "text/html; charset=utf-8")
+            file = self._resolve(path)
+            if file is None:
+                return super().do_GET()
+            if file.suffix == ".pdf" and state.pdf != "ready":
+                return self._send(b"The PDF is still being printed; try again in a moment.",
+                                  "text/plain; charset=utf-8", status=503)
+            if file.suffix == ".html":
+                text = file.read_text(encoding="utf-8")
+                text = _BODY.sub(lambda m: m.group(0) + bar(state), text, count=1)
+                return self._send(text.encode("utf-8"), "text/html; charset=utf-8")
+            # served from the resolved file: a bare address's assets live in the revision
+            return self._send(file.read_bytes(), self.guess_type(str(file)))
+
+        def _resolve(self, path: str) -> Path | None:
+            rel = path.lstrip("/")
+            direct = (out / rel).resolve()
+            if not direct.is_relative_to(out.resolve()):
+                return None
+            if rel in ("", "index.html"):
+                return out / state.revision / "index.html"
+            if direct.is_file():
+                return direct
+            if direct.is_dir() and (direct / "index.html").is_file():
+                return direct / "index.html"
+            current = (out / state.revision / rel).resolve()
+            if current.is_relative_to(out.resolve()) and current.is_file():
+                return current
+            return None
+
+        def _send(self, body: bytes, kind: str, status: int = 200):
+            self.send_response(status)
+            self.send_header("Content-Type", kind)
+            self.send_header("Content-Length", str(len(body)))
+            self.send_header("Cache-Control", "no-store")
+            self.end_headers()
+            self.wfile.write(body)
+
+    return Handler
+
+
+class Previewer:
+    """Builds the site, then the PDF in the background; rebuilds on change."""
+
+    def __init__(self, project: Path, out: Path, state: State, say=print, progress=None):
+        self.project, self.out, self.state, self.say = project, out, state, say
+        self.progress = progress or (lambda *a, **k: None)
+        self.prepared = None
+        self.cache = cache_dir(project)
+        self._pdf_thread: threading.Thread | None = None
+        self._pdf_cv = threading.Condition()
+        self._pdf_want = None
+        self._pdf_busy = False
+
+    def rebuild(self, changed: set[str] | None = None) -> bool:
+        """One cycle: the site now, the PDF queued.  False (and a notice) on failure."""
+        from specgen.build import prepare, preview_site
+        if changed:
+            self.say("changed: " + ", ".join(sorted(changed)[:8])
+                     + (f" and {len(changed) - 8} more" if len(changed) > 8 else ""))
+        started = time.monotonic()
+        try:
+            prepared = prepare(self.project, self.out, reuse=self.prepared, cache_dir=self.cache,
+                               progress=self.progress)
+            target = preview_site(prepared, self.out)
+        except SpecgenError as exc:
+            text = exc.report() if isinstance(exc, InputErrors) else str(exc)
+            with self.state.lock:
+                self.state.notice = text
+            self.say(f"not rebuilt (the pages keep their notice until it is fixed):\n{text}")
+            return False
+        kept = self.prepared is not None and prepared.results is self.prepared.results
+        self.prepared = prepared
+        with self.state.lock:
+            self.state.generation += 1
+            self.state.revision, self.state.notice = target.name, ""
+            self.state.pdf, self.state.pdf_name = "building", ""
+        self.say(f"site of {target.name} ready in {time.monotonic() - started:.1f} s"
+                 + (" (check results kept: only narrative or templates changed)" if kept else ""))
+        self._start_pdf(prepared, target, self.state.generation)
+        return True
+
+    def wait(self) -> None:
+        """Return when no PDF is being printed or waiting to be."""
+        with self._pdf_cv:
+            while self._pdf_want is not None or self._pdf_busy:
+                self._pdf_cv.wait()
+
+    def _start_pdf(self, prepared, target: Path, generation: int) -> None:
+        """Ask for the PDF of this generation; the printer thread takes the newest request,
+        so a site rebuild never waits for a PDF (a superseded PDF is discarded)."""
+        with self._pdf_cv:
+            self._pdf_want = (prepared, target, generation)
+            self._pdf_cv.notify_all()
+            if self._pdf_thread is None:
+                self._pdf_thread = threading.Thread(target=self._printer, daemon=True)
+                self._pdf_thread.start()
+
+    def _printer(self) -> None:
+        from specgen.build import preview_pdf
         while True:
-            time.sleep(1.0)
-            now = _snapshot(Path(directory))
-            if now != seen:
-                seen = now
+            with self._pdf_cv:
+                while self._pdf_want is None:
+                    self._pdf_cv.wait()
+                (prepared, target, generation), self._pdf_want = self._pdf_want, None
+                self._pdf_busy = True
+            try:
+                pdf = preview_pdf(prepared, target, cache_dir=self.cache, progress=self.progress)
+                outcome, text = ("ready", pdf.name), f"PDF of {target.name} ready"
+            except Exception as exc:  # noqa: BLE001 - reported on the pages, never fatal
+                outcome, text = ("failed", ""), f"PDF not printed: {exc}"
+            with self.state.lock:
+                current = self.state.generation == generation
+                if current:
+                    self.state.pdf, self.state.pdf_name = outcome
+            self.say(text if current else f"{text} (superseded by a newer edit)")
+            with self._pdf_cv:
+                self._pdf_busy = False
+                self._pdf_cv.notify_all()
+
+
+def watch(project: Path, on_change, stop: threading.Event,
+          started: threading.Event | None = None) -> None:
+    """Call ``on_change(paths)`` after file events in ``project`` settle (watchdog);
+    ``started`` is set once the folder is being watched."""
+    from watchdog.events import FileSystemEventHandler
+    from watchdog.observers import Observer
+    pending: set[str] = set()
+    event = threading.Event()
+    root = project.resolve()
+
+    class Collect(FileSystemEventHandler):
+        def on_any_event(self, ev):
+            if ev.is_directory or ev.event_type in ("opened", "closed_no_write"):
+                return
+            for raw in (ev.src_path, getattr(ev, "dest_path", "")):
+                if not raw:
+                    continue
                 try:
-                    build(directory, out)
-                    print("rebuilt")
-                except SpecgenError as exc:
-                    print(f"not rebuilt:\n{exc}")
+                    rel = Path(raw).resolve().relative_to(root).as_posix()
+                except ValueError:
+                    continue
+                if rel != "." and not IGNORED.search(rel):
+                    pending.add(rel)
+                    event.set()
+
+    observer = Observer()
+    observer.schedule(Collect(), str(root), recursive=True)
+    observer.start()
+    if started is not None:
+        started.set()
+    try:
+        while not stop.is_set():
+            if not event.wait(0.2):
+                continue
+            time.sleep(DEBOUNCE_S)   # let an editor finish writing
+            event.clear()
+            changed = set(pending)
+            pending.clear()
+            if changed:
+                on_change(changed)
+    finally:
+        observer.stop()
+        observer.join()
+
+
+def serve(directory: Path, port: int, *, say=print, progress=None, ready=None,
+          stop: threading.Event | None = None) -> None:
+    """Serve at once, build the site, then the PDF; rebuild on change until stopped."""
+    directory = Path(directory)
+    if not directory.is_dir():
+        raise UsageError(f"{directory}: no such folder. Fix: give the project folder.")
+    out = Path(tempfile.mkdtemp(prefix="specgen-preview-"))
+    state = State()
+    try:
+        server = http.server.ThreadingHTTPServer(("127.0.0.1", port), handler_for(out, state))
+    except OSError as exc:
+        shutil.rmtree(out, ignore_errors=True)
+        raise UsageError(f"port {port}: cannot serve ({exc.strerror}). Fix: choose another "
+                         "port with --port.") from None
+    threading.Thread(target=server.serve_forever, daemon=True).start()
+    say(f"Serving http://127.0.0.1:{port}/ (pages answer at once; Ctrl+C to stop)")
+    previewer = Previewer(directory, out, state, say, progress)
+    previewer.rebuild()
+    if ready is not None:
+        ready(state)
+    stop = stop or threading.Event()
+    try:
+        watch(directory, lambda changed: previewer.rebuild(changed), stop)
     except KeyboardInterrupt:
+        pass
+    finally:
         server.shutdown()
+        server.server_close()
+        previewer.wait()
+        shutil.rmtree(out, ignore_errors=True)

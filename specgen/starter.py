@@ -71,4 +71,17 @@ def write_starter(directory: Path) -> list[Path]:
             else:
                 shutil.copyfile(src, dst)
             written.append(dst)
+    written.append(_lab_readme(directory))
     return written
+
+
+def _lab_readme(directory: Path) -> Path:
+    """``lab/README.md``: the columns of every laboratory file (a CSV carries no comments)."""
+    from specgen.project.reference import lab_lines
+    path = directory / "lab" / "README.md"
+    head = ["# Laboratory files", "", "Results from the laboratory, one file per kind of test "
+            "(or one workbook, `lab/*.xlsx`, with a sheet per kind). The unit of a column is "
+            "written in its header in brackets; the starter's files show the layout.", ""]
+    path.write_text("\n".join(head + lab_lines()),
+                    encoding="utf-8")
+    return path

@@ -20,29 +20,43 @@ ureg.define("percent_ = 0.01 = pct")
 
 @dataclass(frozen=True)
 class Kind:
-    """A physical kind of quantity: its SI unit and an example for messages."""
+    """A physical kind of quantity: its SI unit, an example for messages, and the range of
+    magnitudes (SI) any value of this kind in a masonry-repair project can have.
+
+    The range is deliberately wide (orders of magnitude beyond any real material or wall):
+    it refuses values that are typing or unit errors and would break the arithmetic (an
+    overflow to infinity, a division by almost nothing), not unusual ones.  A non-zero
+    magnitude below ``low`` or above ``high`` is refused; ``signed`` says whether a
+    negative value is possible at all (a temperature in K is not).
+    """
 
     name: str
     si: str
     example: str
+    low: float = 0.0
+    high: float = 1e9
+    signed: bool = True
 
 
 KINDS: dict[str, Kind] = {k.name: k for k in [
-    Kind("pressure", "Pa", "'12 MPa' or '1740 psi'"),
-    Kind("length", "m", "'10 mm' or '0.5 in'"),
-    Kind("area", "m**2", "'120 m^2' or '1300 ft^2'"),
-    Kind("volume", "m**3", "'0.02 m^3' or '20 L'"),
-    Kind("mass", "kg", "'25 kg' or '55 lb'"),
-    Kind("volume_rate", "m**3/s", "'12 L/h' or '0.2 L/min'"),
-    Kind("density", "kg/m**3", "'1500 kg/m^3'"),
-    Kind("time", "s", "'28 d', '90 min' or '4 h'"),
-    Kind("temperature", "K", "'20 degC' or '68 degF'"),
-    Kind("fraction", "dimensionless", "'25 %' or '0.25'"),
-    Kind("molar_energy", "J/mol", "'33.5 kJ/mol'"),
-    Kind("expansion", "1/K", "'8e-6 1/K'"),
-    Kind("capillary", "kg/m**2/s**0.5", "'0.05 kg/(m^2*s^0.5)' or '0.4 kg/(m^2*min^0.5)'"),
-    Kind("areal_mass", "kg/m**2", "'1.2 kg/m^2' or '0.12 g/cm^2'"),
-    Kind("dimensionless", "dimensionless", "'12'"),
+    Kind("pressure", "Pa", "'12 MPa' or '1740 psi'", 1e-3, 1e12),        # 1000 GPa
+    Kind("length", "m", "'10 mm' or '0.5 in'", 1e-9, 1e5),              # 100 km
+    Kind("area", "m**2", "'120 m^2' or '1300 ft^2'", 1e-9, 1e8),
+    Kind("volume", "m**3", "'0.02 m^3' or '20 L'", 1e-12, 1e7),
+    Kind("mass", "kg", "'25 kg' or '55 lb'", 1e-9, 1e9),
+    Kind("volume_rate", "m**3/s", "'12 L/h' or '0.2 L/min'", 1e-12, 1e3),
+    Kind("density", "kg/m**3", "'1500 kg/m^3'", 1e-3, 1e5),             # osmium: 2.3e4
+    Kind("time", "s", "'28 d', '90 min' or '4 h'", 0.0, 1e10),          # about 300 years
+    Kind("temperature", "K", "'20 degC' or '68 degF'", 0.0, 1e4, signed=False),
+    Kind("fraction", "dimensionless", "'25 %' or '0.25'", 1e-12, 1e3),
+    Kind("molar_energy", "J/mol", "'33.5 kJ/mol'", 1e-3, 1e7),
+    Kind("expansion", "1/K", "'8e-6 1/K'", 1e-12, 1.0),
+    Kind("capillary", "kg/m**2/s**0.5", "'0.05 kg/(m^2*s^0.5)' or '0.4 kg/(m^2*min^0.5)'",
+         1e-12, 1e3),
+    Kind("areal_mass", "kg/m**2", "'1.2 kg/m^2' or '0.12 g/cm^2'", 0.0, 1e5),
+    Kind("absorption_rate", "kg/m**2/s", "'1.5 kg/(m^2*min)' or '1 g/(min*in^2)'", 1e-9, 1e3),
+    Kind("dimensionless", "dimensionless", "'12'", 0.0, 1e6),
+    Kind("number", "dimensionless", "'2.5'", 1e-9, 1e9),
 ]}
 
 _NUMBER_UNIT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
@@ -115,7 +129,34 @@ def parse(text: object, kind: str, *, default_unit: str | None = None) -> float:
             unit_text = default_unit
     if not math.isfinite(value):
         raise UnitProblem(f"expected a finite number; found {text!r}")
-    return to_si(value, unit_text, kind)
+    return plausible(to_si(value, unit_text, kind), kind, text)
+
+
+def plausible(value: float, kind: str, given: object = None) -> float:
+    """``value`` (SI) if it is finite and within the range of its kind, else UnitProblem.
+
+    The one guard every number read from a project passes (YAML quantities and plain
+    numbers through the schema's field types, CSV cells through the table layer), so a
+    NaN, an infinity or an absurd magnitude never reaches the science.  ``given`` is the
+    value as the user wrote it, for the message.
+    """
+    k = KINDS[kind]
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        raise UnitProblem(f"expected a number; found {value!r}")
+    shown = given if given is not None else f"{value:g}"
+    what = "number" if kind == "number" else k.name.replace("_", " ")
+    if math.isnan(value):
+        raise UnitProblem(f"expected a {what}; found {shown!r}, which is not a number")
+    size = abs(value)
+    if value < 0 and not k.signed:
+        raise UnitProblem(f"{shown} is below absolute zero; check the value and its unit")
+    if size > k.high or (size and size < k.low):
+        unit = "" if k.si == "dimensionless" else " " + k.si.replace("**", "^")
+        bounds = (f"between {k.low:g} and {k.high:g}{unit}" if k.low
+                  else f"up to {k.high:g}{unit}")
+        raise UnitProblem(f"{shown} is not a plausible {what} (a size {bounds} is expected); "
+                          "check the value and its unit")
+    return float(value)
 
 
 def from_si(value: float, unit_text: str, kind: str) -> float:

@@ -46,7 +46,9 @@ def test_raw_stone_carbonate_co2_balance_and_clay(demo):
     assert q["carbonate_content"].value == pytest.approx(68.226, abs=5e-3)
     assert q["clay_fraction"].value == pytest.approx(26.3, abs=1e-6)
     checks = by(results)
-    assert checks[("CHEM-CLAY", "BS-1")].status == "pass"  # 20-30 % clay, common practice
+    # 26.3 % lies in the 20-30 % band (common practice) but the non-carbonate residue
+    # 100 - 68.226 - 0.6 = 31.17 % does not: the two methods straddle the band, so borderline
+    assert checks[("CHEM-CLAY", "BS-1")].status == "attention"
 
 
 def test_loss_free_factor(demo):

@@ -20,8 +20,12 @@ def test_revision_layout(demo_build):
         assert (rev / name).is_file(), name
     versions = json.loads((demo_build / "versions.json").read_text())
     assert [v["version"] for v in versions] == ["R3", "R2", "R1"]
-    assert versions[0]["aliases"] == ["current"]
-    assert 'url=R3/index.html' in (demo_build / "index.html").read_text()
+    # the root opens the latest issued revision (R2) and names the draft R3 beside it
+    assert versions[0]["aliases"] == ["draft"] and versions[1]["aliases"] == ["current"]
+    root = (demo_build / "index.html").read_text()
+    assert 'url=R2/index.html' in root and 'A draft, <a href="R3/index.html">R3</a>' in root
+    assert "R1 (issued, 2026-10-05)</a> — superseded by R2" in \
+        (demo_build / "revisions.html").read_text()
     assert 'href="R1/index.html"' in (demo_build / "revisions.html").read_text()
 
 
@@ -65,14 +69,19 @@ def test_pdf_text_and_structure(demo_build):
     from pypdf import PdfReader
     reader = PdfReader(str(demo_build / REV / f"WEP-2026-{REV}.pdf"))
     text = "\n".join(p.extract_text() for p in reader.pages)
-    for needle in ("CHEM-CLOSURE", "CHEM-CI", f"Revision {REV}", "Calculation sheets",
+    for needle in ("CHEM-CLOSURE", "CHEM-CI", f"Revision {REV}", "B Calculation sheets",
                    "does not replace", "Eckel", "page 2 of"):
         assert needle in text, needle
     assert reader.metadata.title.startswith("Repair of the East Pier masonry")
     top = [o.title for o in reader.outline if not isinstance(o, list)]
     assert top[0].startswith("Repair of the East Pier")  # the summary page carries the title
-    assert {"Scope and zones of work", "Binder composition", "Calculation sheets",
-            "Cautions", "References", "Input files"} <= set(top)
+    # the report's chapters numbered 1, 2 … after the summary, the appendices A, B, C
+    from specgen.report.chapters import chapters
+    from specgen.report.render import chapter_numbers
+    n = chapter_numbers(chapters())
+    assert {f"{n['scope.md']} Scope and zones of work", f"{n['composition.md']} Binder "
+            "composition", "B Calculation sheets", f"{n['cautions.md']} Cautions",
+            f"{n['references.md']} References", "C Input files"} <= set(top)
     names = set(reader.attachments)
     assert {"results.json", "input/dossier.yaml", "input/lab/strength.csv"} <= names
 
@@ -104,7 +113,7 @@ def test_pages_in_real_browser(demo_build):
         browser.close()
     assert not errors, errors
     assert not outside, outside
-    assert "Status of the checks" in body and "CHEM-CI" in body
+    assert "The mortar for each zone" in body and "check register" in body
     assert len(shot) > 20_000  # a blank page compresses to a few kB
 
 
@@ -153,3 +162,30 @@ def test_reference_titles_are_set_in_italics(demo_build):
     html = (demo_build / REV / "references.html").read_text()
     assert "<em>Cements, Limes and Plasters" in html and "*Cements" not in html
     assert 'id="ref-eckel1922"' in html
+
+
+def test_draft_marks_and_before_issue_page(demo_build):
+    from pypdf import PdfReader
+    rev = demo_build / REV
+    pages = [p for p in rev.glob("*.html") if p.name != "404.html"]
+    for page in pages:                                   # the draft mark on every page
+        assert "DRAFT — not for construction" in page.read_text(), page.name
+    before = (rev / "before-issue.html").read_text()
+    # demo data: M2 reads ΔE00 3.66 against the clause's ΔE00 ≤ 2 (COMP-COLOUR/Z1/M2), and C3's
+    # subject (the firing record) changed since R2; both are left for the audit to show
+    assert "clause 7 of zone Z1 (Acceptance criteria: appearance) states ΔE00 ≤ 2" in before
+    assert "comment C3 (composition) is open with no response" in before
+    summary = (rev / "index.html").read_text()
+    assert "sg-mark-findings" in summary and 'href="before-issue.html"' in summary
+    assert "Sign-off (draft: not signed)" in summary
+    assert "answered by new evidence?" in (rev / "comments.html").read_text()
+    changes = (rev / "changes.html").read_text()
+    assert changes.index("What changed for the decision") < changes.index("Every change")
+    reader = PdfReader(str(rev / f"WEP-2026-{REV}.pdf"))
+    for page in reader.pages:                             # and on every page of the PDF
+        assert "DRAFT — not for construction" in page.extract_text()
+    assert "Sign-off (draft: not signed)" in reader.pages[0].extract_text()
+    # R1 was superseded by R2 when the demo was built: its pages and PDF say so
+    assert "Superseded by R2" in (demo_build / "R1" / "scope.html").read_text()
+    r1 = PdfReader(str(demo_build / "R1" / "WEP-2026-R1.pdf"))
+    assert "Superseded by R2" in r1.pages[-1].extract_text()

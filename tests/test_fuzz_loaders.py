@@ -20,7 +20,7 @@ from specgen.refdata import CONTENT_DIR
 
 STARTER = CONTENT_DIR / "starter"
 FILES = ["dossier.yaml", "analyses.yaml", "materials.yaml", "mixes.yaml", "lab/strength.csv"]
-N_CASES = int(os.environ.get("SPECGEN_FUZZ", "500"))
+N_CASES = int(os.environ.get("SPECGEN_FUZZ", "200"))
 OUTCOMES = {"loaded": 0, "refused": 0}
 
 NASTY_VALUES = ["nan", ".inf", "-.inf", "1e308", "-5", "0", "''", "null", "[]", "{}", "true",
@@ -85,14 +85,11 @@ def apply(path: Path, kind: str, arg) -> None:
         path.write_text(text.replace("M1", arg.replace("\n", " "), 1), encoding="utf-8")
 
 
-@settings(max_examples=N_CASES, deadline=None, derandomize=True,
-          suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow])
-@given(target=st.sampled_from(FILES), change=mutation)
-def test_malformed_projects_end_in_located_messages(tmp_path_factory, target, change):
+def _one_case(tmp_path_factory, target, change):
     root = tmp_path_factory.mktemp("fuzz")
     shutil.copytree(STARTER, root, dirs_exist_ok=True)
     apply(root / target, *change)
-    start = time.monotonic()
+    start = time.process_time()  # CPU time: wall time on a shared machine says little
     try:
         load_project(root)
         OUTCOMES["loaded"] += 1
@@ -103,16 +100,25 @@ def test_malformed_projects_end_in_located_messages(tmp_path_factory, target, ch
             assert p.file, p
             assert p.message and "Traceback" not in p.message
             assert p.file.endswith(tuple(FILES) + ("dossier.yaml",)) or "/" in p.file, p
-    assert time.monotonic() - start < 5.0, f"{target} {change[0]} took too long"
+    assert time.process_time() - start < 5.0, f"{target} {change[0]} took too long"
     assert not any(p.name.startswith(".") for p in root.iterdir()), "nothing may be written"
 
 
-def test_zz_report_fuzz_outcomes():
-    """Print how many cases ran and how they ended (runs after the fuzz test)."""
+def test_malformed_projects_end_in_located_messages(tmp_path_factory):
+    """Every generated case loads or is refused with located messages; the tally is printed
+    and the number of cases that ran is checked here, in the same test."""
+    OUTCOMES.update(loaded=0, refused=0)
+
+    @settings(max_examples=N_CASES, deadline=None, derandomize=True, database=None,
+              suppress_health_check=list(HealthCheck))
+    @given(target=st.sampled_from(FILES), change=mutation)
+    def one(target, change):
+        _one_case(tmp_path_factory, target, change)
+    one()
     total = OUTCOMES["loaded"] + OUTCOMES["refused"]
     print(f"\nloader fuzz: {total} generated projects, {OUTCOMES['refused']} refused with "
           f"located messages, {OUTCOMES['loaded']} loaded")
-    assert total >= min(N_CASES, 500) or total == 0  # 0 when run alone with -k
+    assert total >= N_CASES * 0.9, f"only {total} of {N_CASES} cases ran"
 
 
 def test_oversized_file_is_cut_off(tmp_path):

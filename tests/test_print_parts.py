@@ -148,3 +148,41 @@ def test_parts_from_the_cache_give_the_same_pdf(starter_build, tmp_path):
     assert done.returncode == 0, done.stderr
     assert _pdf(again).read_bytes() == first
     assert {p for p in (again / ".cache" / "pdf-part").rglob("*") if p.is_file()} == parts_before
+
+
+def test_assembled_pdf_is_tagged(tmp_path):
+    """Parts printed apart make one structure tree: language set, every page tied in, the
+    figure with its alternative text, real table headers, ids unique across parts
+    (PDF/UA-1 requirements as checked by tests/pdf_structure.py, from memory)."""
+    from types import SimpleNamespace
+
+    from pypdf import PdfReader
+
+    from specgen.publish.pdf import write_pdf
+    from specgen.report.pageset import PageSet
+    from tests.pdf_structure import structure
+    svg = (b'<svg xmlns="http://www.w3.org/2000/svg" width="40" height="20">'
+           b'<rect width="40" height="20" fill="#a5662b"/></svg>')
+    pages = PageSet()
+    pages.add_asset("figures/box.svg", svg)
+    table = "| Oxide | Mass % |\n|---|---:|\n| CaO | 57.9 |\n"
+    pages.add_page("index.md", "Summary", f"# Summary\n\n{table}\n[Next](two.md)\n")
+    pages.add_page("two.md", "Two", '# Two\n\n<figure><img src="figures/box.svg" '
+                   f'alt="A brown box"><figcaption>Figure 1</figcaption></figure>\n\n{table}')
+    project = SimpleNamespace(title="Test pier", site="Nowhere", client="Nobody", code="T-1")
+    context = {"title": "Test pier — revision A", "author": "specgen tests", "subject": "s",
+               "keywords": "k", "date": "2026-01-01", "project": project,
+               "revision": SimpleNamespace(code="A"), "state": "draft", "purpose": "preliminary"}
+    target = tmp_path / "t.pdf"
+    from specgen.publish import pdf as pdfmod
+    write_pdf(pages, context, target, attachments={"a.txt": b"a"}, workers=1)
+    reader = PdfReader(str(target))
+    found = structure(reader)
+    assert found.tree and found.marked and found.lang == "en"
+    assert found.untied_pages == []
+    assert found.types["/Figure"] == 1 and found.figures_without_alt == 0
+    # two tables of two header cells, and the cover's table of four row headers
+    assert found.types["/TH"] == 8 and found.types["/Table"] == 3, found.types
+    assert found.duplicate_ids == []
+    assert set(reader.attachments) == {"a.txt"}
+    assert pdfmod.PDF_OPTIONS["pdf_variant"] == "pdf/a-3a"

@@ -1,11 +1,14 @@
 """The project's own promises: README commands, CI script, documented names, light imports."""
 from __future__ import annotations
 
+import math
 import re
 import subprocess
 import sys
-
 from pathlib import Path
+
+import pytest
+from scipy import stats
 
 REPO = Path(__file__).resolve().parent.parent
 
@@ -69,7 +72,15 @@ def test_new_writes_a_starter_that_checks(cli, tmp_path):
     result = cli("new", target)
     assert result.exit_code == 0 and (target / "dossier.yaml").is_file()
     checked = cli("check", target)
-    assert checked.exit_code in (0, 1), checked.output
+    # The starter's invented 28-d results for M2, 1.6, 1.8 and 1.7 MPa, against its 1.5 MPa
+    # minimum: mean 1.7, s = 0.1, k_n = t(0.95, 2) sqrt(1 + 1/3) = 3.3717 (EN 1990 Annex D
+    # formula, scipy.stats.t) -> f_k = 1.7 - 0.3372 = 1.363 MPa < 1.5: exactly one failing
+    # check, so exit 1 (a failed check), not 0 and not 2 (bad input)
+    fk = 1.7 - stats.t.ppf(0.95, 2) * math.sqrt(1 + 1 / 3) * 0.1
+    assert fk == pytest.approx(1.363, abs=1e-3)
+    assert checked.exit_code == 1, checked.output
+    assert "measured f_k 1.36 MPa (n = 3)" in checked.output
+    assert "R1: 1 fail," in checked.output
     again = cli("new", target)
     assert again.exit_code == 2
     assert "the folder is not empty. Fix: name a new folder" in again.output

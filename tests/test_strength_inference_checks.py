@@ -9,23 +9,16 @@ import pytest
 from scipy import stats
 
 from specgen.build import check
+from tests.helpers import by_check, edit
 from specgen.errors import InputErrors
 
 HEADER = "specimen,mix,age [d],test,value [MPa],curing_temperature [degC]\n"
 
 
-def _by(results):
-    return {(c.code, c.subject): c for c in results.checks}
-
 
 def _write(project, rows):
     (project / "lab" / "strength.csv").write_text(HEADER + "\n".join(rows) + "\n")
 
-
-def _edit(path, old, new):
-    text = path.read_text(encoding="utf-8")
-    assert old in text, old
-    path.write_text(text.replace(old, new), encoding="utf-8")
 
 
 def _rows(mix, ages_values):
@@ -40,7 +33,7 @@ def _no_nan(r):
 
 def test_prior_and_data_side_by_side_on_the_sheet(demo_copy):
     _, r = check(demo_copy)
-    inf = _by(r)[("STR-INF-C", "M1")]
+    inf = by_check(r)[("STR-INF-C", "M1")]
     step = inf.steps[0]
     names = [i.name for i in step.inputs]
     for term in ("fast-stage time constant", "slow-stage time constant",
@@ -71,7 +64,7 @@ def test_band_narrows_from_r1_to_r2(demo_copy):
 
 def test_characteristic_value_under_both_variance_assumptions(demo_copy):
     _, r = check(demo_copy)
-    m3 = _by(r)[("STR-MIN", "M3")]
+    m3 = by_check(r)[("STR-MIN", "M3")]
     step = next(s for s in m3.steps if s.title.startswith("measured at 28 d"))
     vals = {i.symbol: i for i in step.inputs}
     x = [2.80, 2.28, 2.37]                       # demo M3 28 d compressive (MPa)
@@ -98,7 +91,7 @@ def test_hold_age_is_in_the_site_regime(demo_copy):
 def test_fewer_than_three_ages_is_not_assessed(demo_copy):
     _write(demo_copy, _rows("M1", [(7, [2.1, 2.2, 2.3]), (28, [4.6, 4.7, 4.9])]))
     _, r = check(demo_copy)
-    by = _by(r)
+    by = by_check(r)
     inf = by[("STR-INF-C", "M1")]
     assert inf.status == "not_assessed"
     assert inf.message == ("not assessed: results at 2 age(s) (7 d, 28 d); the two-stage law is "
@@ -111,7 +104,7 @@ def test_later_age_weaker_is_held_with_the_reason(demo_copy):
     _write(demo_copy, _rows("M1", [(1, [1.2, 1.2, 1.3]), (7, [2.2, 2.3, 2.4]),
                                    (28, [4.6, 4.8, 4.9]), (90, [2.4, 2.5, 2.6])]))
     _, r = check(demo_copy)
-    by = _by(r)
+    by = by_check(r)
     inf = by[("STR-INF-C", "M1")]
     assert inf.status == "hold"
     assert "the mean falls from 28 d to 90 d" in inf.message
@@ -122,29 +115,31 @@ def test_later_age_weaker_is_held_with_the_reason(demo_copy):
 
 
 def test_family_without_prior_uses_the_widest(demo_copy):
-    _edit(demo_copy / "materials.yaml", "    type: natural_cement\n", "    type: portland\n")
+    edit(demo_copy / "materials.yaml", "    type: natural_cement\n", "    type: portland\n")
     _, r = check(demo_copy)
-    inf = _by(r)[("STR-INF-C", "M1")]
+    inf = by_check(r)[("STR-INF-C", "M1")]
     assert inf.status == "attention"
     assert "no prior for this binder family: the widest prior is used" in inf.notes
     assert r.quantities["M1"]["strength_inference"].value["compressive"]["widest"] is True
 
 
 def test_carbonating_binder_is_outside_the_maturity_method(demo_copy):
-    _edit(demo_copy / "materials.yaml", "    type: nhl\n    declared_class: NHL 3.5\n",
+    edit(demo_copy / "materials.yaml", "    type: nhl\n    declared_class: NHL 3.5\n",
           "    type: air_lime\n")
     _, r = check(demo_copy)
-    site = _by(r)[("STR-SITE", "M3")]
+    site = by_check(r)[("STR-SITE", "M3")]
     assert site.status == "not_assessed"
     assert "lies outside the maturity method (ASTM C1074)" in site.message
     assert "site-cured companions" in site.message
 
 
 def test_site_temperature_out_of_range_is_refused_with_its_place(demo_copy):
-    _edit(demo_copy / "dossier.yaml", "site_temperature: lab/site-temperature.csv",
+    edit(demo_copy / "dossier.yaml", "site_temperature: lab/site-temperature.csv",
           'site_temperature: "65 degC"')
     with pytest.raises(InputErrors) as exc:
         check(demo_copy)
-    assert str(exc.value) == ("dossier.yaml: site_temperature: temperature 65.0 °C is above the "
+    # line 95 of the demo dossier.yaml holds site_temperature
+    assert str(exc.value) == ("dossier.yaml, line 95: site_temperature: temperature 65.0 °C is "
+                              "above the "
                               "range -10 to 60 °C in which the maturity method is applied. Fix: "
                               "check the unit (°C, °F or K).")

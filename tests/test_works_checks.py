@@ -31,9 +31,26 @@ def test_quantities_are_assessed_for_every_zone(demo):
     p, r = demo
     for z in ("Z1", "Z2", "Z3"):
         assert by(r)[("WORKS-QTY", z)].status == "info", by(r)[("WORKS-QTY", z)].message
-    for m in ("M1", "M2", "M3"):
-        assert by(r)[("SITE-GAUGE", m)].status in ("info", "attention")
-        assert r.quantities[m]["gauging"].value["binder_measures"] >= 1
+    # Largest gauging = workable life x placing rate / 1.5 (rule gauging_safety_factor,
+    # common practice), zone Z1 at 8 L/h (demo dossier.yaml):
+    #   M1 measured 30 min -> 2.667 L; one 1 L measure of binder makes 1.696 L (yield by
+    #      hand in test_demo_repointing_volume_by_hand) -> 1 measure, info;
+    #   M2 default 10 min (natural cement, common practice) -> 0.889 L < 1 L measure's mortar
+    #      -> the measure is halved, attention (test_quick_set_halves_the_measure);
+    #   M3 default 120 min (NHL, common practice) -> 10.667 L; 1 L of NH35 makes 2.341 L
+    #      (below) -> floor(10.667 / 2.341) = 4 measures, info.
+    expected = {"M1": ("info", 1, 1.696), "M2": ("attention", 1, 0.596), "M3": ("info", 4, 9.364)}
+    for m, (status, measures, volume) in expected.items():
+        g = r.quantities[m]["gauging"].value
+        assert (by(r)[("SITE-GAUGE", m)].status, g["binder_measures"]) == (status, measures)
+        assert g["volume_L"] == pytest.approx(volume, abs=1e-3)
+    # M3 by hand, absolute volumes per 1 L of NH35 (700 kg/m³) + 2.5 L of S1 (1550 kg/m³),
+    # w/b 0.75, particle densities 2700 / 2650, water 998.2 (content/data/mix_densities.yaml),
+    # air 4 % (rule default_air_content, common practice):
+    #   0.7/2700 + 3.875/2650 + 0.525/998.2 = 0.259259 + 1.462264 + 0.525947 = 2.247470 L
+    #   / (1 - 0.04) = 2.341115 L per measure; x 4 = 9.364 L
+    assert (0.7 / 2700 + 3.875 / 2650 + 0.525 / 998.2) / 0.96 * 1000 == pytest.approx(2.341115,
+                                                                                   abs=1e-6)
 
 
 def test_results_json_names_for_the_demo(demo):
@@ -50,10 +67,27 @@ def test_demo_repointing_volume_by_hand(demo):
     assert q["joint_length_per_m2"].value == pytest.approx(15.4412, abs=1e-4)
     assert q["mortar_volume_net"].value == pytest.approx(0.74118, abs=1e-5)
     assert q["mortar_volume"].value == pytest.approx(0.85235, abs=1e-5)
-    # Bags: binder mass / 25 kg rounded up.
-    for mix, binders in q["binder_mass"].value.items():
-        for b, kg in binders.items():
-            assert q["bags"].value[mix][b] == -(-kg // 25)
+    # Binder per m³ of fresh mortar by hand (absolute volumes, mix_design module docstring;
+    # densities from demo materials.yaml and content/data/mix_densities.yaml):
+    #   M1: 850 kg NC1 + 1550 kg S1 + 725 kg S2 + 467.5 kg water per m³ of loose binder:
+    #       850/2900 + 1550/2650 + 725/2650 + 467.5/998.2 = 0.293103 + 0.584906 + 0.273585
+    #       + 0.468343 = 1.619937 m³, air 4.5 % -> 1.696269 m³ -> 501.10 kg NC1 per m³
+    #   M2: 850/2900 + 3100/2650 + 725/2650 + 552.5/998.2 = 2.289995 m³, air 4 % (rule
+    #       default_air_content) -> 2.385411 m³ -> 356.33 kg NC1 per m³
+    #   M3: 700/2700 + 3875/2650 + 525/998.2 = 2.247470 m³ per m³ of loose NH35, air 4 %
+    #       -> 2.341115 m³ -> 299.00 kg NH35 per m³
+    per_m3 = {"M1": 850 / (1.619937 / 0.955), "M2": 850 / (2.289995 / 0.96),
+              "M3": 700 / (2.247470 / 0.96)}
+    assert per_m3["M1"] == pytest.approx(501.10, abs=0.01)
+    assert per_m3["M2"] == pytest.approx(356.33, abs=0.01)
+    assert per_m3["M3"] == pytest.approx(299.00, abs=0.01)
+    # Z1: 0.85235 m³ x binder per m³, then whole 25 kg bags (demo bag_mass), rounded up:
+    #   M1 427.11 kg -> 17.08 -> 18 bags; M2 303.72 kg -> 12.15 -> 13; M3 254.85 kg -> 10.19 -> 11
+    masses = {"M1": ("NC1", 427.11, 18), "M2": ("NC1", 303.72, 13), "M3": ("NH35", 254.85, 11)}
+    for mix, (binder, kg, bags) in masses.items():
+        assert 0.85235 * per_m3[mix] == pytest.approx(kg, abs=0.01)
+        assert q["binder_mass"].value[mix][binder] == pytest.approx(kg, abs=0.01)
+        assert q["bags"].value[mix][binder] == bags
 
 
 def test_render_and_bedding_by_hand(demo):
@@ -68,10 +102,15 @@ def test_quick_set_halves_the_measure(demo):
     c = by(r)[("SITE-GAUGE", "M2")]
     g = r.quantities["M2"]["gauging"].value
     # M2 has no measured workable life: the natural-cement default of 10 min (common practice)
-    # at 8 L/h and γ = 1.5 allows 0.889 L, so the 1 L measure is halved to 0.25 L.
+    # at 8 L/h and γ = 1.5 allows 0.889 L, so the 0.25 L scoop of the site's real measures
+    # (content/data/site_measures.yaml, common practice) is used instead of the 1 L measure.
     assert c.status == "attention"
     assert (g["measure_L"], g["halved_from_L"], g["binder_measures"]) == (0.25, 1.0, 1)
-    assert "so the measure is halved to 0.25 L" in c.message
+    assert "so a 0.25 L scoop is used" in c.message
+    # Z1: 8 L/h × 6 h = 48 L in gaugings of 0.596 L: ⌈80.5⌉ = 81 gaugings a day, more than
+    # the 40 one mixer keeps up with (rule of common practice): the check says so
+    assert r.quantities["M2"]["gauging_by_zone"].value["Z1"]["per_day"] == 81
+    assert "zone Z1 needs 81 gaugings a day" in c.message
     assert r.quantities["M2"]["max_gauging_volume"].value["Z1"] == pytest.approx(0.889)
 
 
@@ -170,8 +209,9 @@ def test_schedule_csv_is_sorted_fixed_and_repeatable(demo):
     lines = a.decode("utf-8").split("\r\n")
     assert lines[0] == "zone,works,mix,kind,item,description,value,unit"
     assert "Z1,repointing,,volume,mortar_volume_net,mortar volume before wastage,0.7412,m3" in lines
-    # by hand: 0.85235 m³ (Z1 with wastage) × 501.1 kg NC1 per m³ of M1 (MIX-YIELD) = 427.1 kg;
-    # / 25 kg a bag (demo materials.yaml bag_mass) = 17.08 → 18 whole bags
+    # by hand: 0.85235 m³ (Z1 with wastage) × 501.10 kg NC1 per m³ of M1 (absolute volumes,
+    # test_demo_repointing_volume_by_hand) = 427.11 kg; / 25 kg a bag (demo materials.yaml
+    # bag_mass) = 17.08 → 18 whole bags
     assert "Z1,repointing,M1,bags,NC1,bags of 25 kg,18,bag" in lines
     assert [ln.split(",")[0] for ln in lines[1:-1]] == sorted(ln.split(",")[0] for ln in lines[1:-1])
 
@@ -186,7 +226,8 @@ def test_card_cautions_come_from_the_library(demo):
     from specgen.report.cautions import card_cautions
     p, _ = demo
     chosen, closing = card_cautions(p, p.mixes["M1"])
-    assert [c["id"] for c in chosen] == ["alkaline", "quick_set", "dust", "bags"]
+    # M1 serves Z2 (splash, demo dossier.yaml) on a site that freezes: tidal and frost cautions
+    assert [c["id"] for c in chosen] == ["alkaline", "quick_set", "dust", "bags", "tidal", "frost"]
     assert "safety data sheet" in closing and "competent person" in closing
     nhl, _ = card_cautions(p, p.mixes["M3"])
     assert "quick_set" not in [c["id"] for c in nhl]   # NHL: no natural cement in M3
@@ -211,17 +252,25 @@ def _render_works(project, results):
 
 def test_works_page_and_cards_from_the_demo(demo):
     text, cards, pages = _render_works(*demo)
-    assert '<a href="./WEP-2026-R3-quantities.csv">WEP-2026-R3-quantities.csv</a>' in text
+    assert '<a href="./WEP-2026-R3-quantities.csv">quantities schedule (spreadsheet, CSV)</a>' in text
+    # Z1 bags of NC1 for M1, M2, M3: 18 and 13 by hand (test_demo_repointing_volume_by_hand);
+    # M3 uses NH35, so no NC1 bags
     assert "| NC1: bags of 25 kg | bags | 18 | 13 | — |" in text
     assert "(calculations.md#calc-works-qty-z1)" in text
     assert list(pages.downloads) == ["WEP-2026-R3-quantities.csv"]
     assert len(cards) == 3
     m1 = cards[0]
-    # Water per gauging: 0.4675 kg (SITE-GAUGE) shown as 0.47 L; retarder 0.2 % of 0.85 kg
-    # binder = 1.7 g (by hand).
-    assert "| 1 | Pour the gauging water into a marked jug | jug | 0.47 L | 0.468 kg |" in m1
+    # Water per gauging by hand: one 1 L measure of NC1 at 850 kg/m³ (demo materials.yaml)
+    # = 0.85 kg of binder; × w/b 0.55 (demo mixes.yaml) = 0.4675 kg of water, / 998.2 kg/m³
+    # (content/data/mix_densities.yaml) = 0.4683 L, shown 0.47 L and, to the 10 g a site
+    # scale reads (common practice), 0.47 kg; retarder 0.2 % of 0.85 kg binder = 1.7 g.
+    assert "| 1 | Pour the gauging water into a marked jug | jug | 0.47 L | 0.47 kg |" in m1
     assert "| 2 | Dissolve the citric acid solution (retarder) in the water | scale | — | 1.7 g |" in m1
     assert "Workable life **30 min** (measured)" in m1
+    # Z2 may place 8.33 L in time: four card mixes of 1.696 L at once (6.785 L); its crew
+    # places 25 L/h × 6 h = 150 L a day → ⌈150 / 6.785⌉ = ⌈22.1⌉ = 23 gaugings (by hand)
+    assert "| Z2 | 4 × this card | 6.79 L | 23 | 8.33 L |" in m1
+    assert "one mixer cannot keep up" in cards[1] and "one mixer cannot keep up" not in m1
 
 
 def test_works_page_says_so_without_data(demo_copy):

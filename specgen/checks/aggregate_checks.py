@@ -14,7 +14,7 @@ from __future__ import annotations
 from specgen import refdata
 from specgen.checks import compatibility_common as cc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, Input, Quantity, Step, worst
+from specgen.checks.result import Basis, Input, Quantity, Step, tex_name, worst
 from specgen.science import grading as gr
 
 declare("fineness_modulus", "", "fineness modulus (ASTM C125) of the repair sand and of the "
@@ -22,18 +22,42 @@ declare("fineness_modulus", "", "fineness modulus (ASTM C125) of the repair sand
 declare("grading_deviation", "%", "RMS and largest difference of cumulative % passing, repair "
         "sand − historic aggregate, on their common sieves")
 declare("grading_curves", "%", "cumulative % passing against sieve size (mm) of the repair "
-        "sand (blended) and of the historic aggregate, as the grading figure draws them")
+        "sand (blended) and of the historic aggregate, and the envelope in force, as the "
+        "grading figure draws them")
 declare("blend_proportions", "", "mass proportions of the sands that best match the historic "
         "grading (NNLS, sum 1), with the proposed ones and the RMS difference in %")
 declare("binder_aggregate_ratio", "", "binder:aggregate of the historic mortar from acid "
-        "digestion (by mass, by volume) and of the mix (by volume)")
+        "digestion (by mass as found and net of the binder's loss on ignition, by volume) and "
+        "of the mix (by volume)")
 
 C125 = Basis("reference", "astmc125", "fineness modulus")
 
 
 def envelope(ctx) -> tuple[str, dict]:
-    key = ctx.project.dossier.compatibility.grading_envelope
+    """The grading envelope in force: the project's choice, else its practice's."""
+    from specgen import practice
+    key = practice.resolve(ctx.project.dossier).grading_envelope
     return key, refdata.load("grading_envelopes").data[key]
+
+
+def _series_name(key: str) -> str:
+    return refdata.load("sieve_series").data["series"][key]["title"].split(" (")[0] if key else "?"
+
+
+def _envelope_step(g: gr.Grading, cmp: gr.EnvelopeComparison, env: dict) -> Step:
+    """The passing on the envelope's own sieves, read between the analysis' sieves where the
+    two series differ (linear in the logarithm of the aperture)."""
+    inputs = tuple(Input(f"P({s * 1000:g})", f"passing {s * 1000:g} mm "
+                         + ("(read between sieves)" if i else "(measured)")
+                         + f", limits {100 * lo:g}–{100 * hi:g} %", round(100 * p, 2), "%",
+                         "interpolated" if i else "lab/sieves.csv")
+                   for s, p, lo, hi, i in zip(cmp.sieves, cmp.passing, cmp.low, cmp.high,
+                                              cmp.interpolated or (False,) * len(cmp.sieves)))
+    return Step(f"Passing on the envelope's sieves ({_series_name(env.get('series', ''))}), "
+                f"from the analysis on the {_series_name(g.series)} sieves",
+                r"P(s) = P_2 + (P_1 - P_2)\,rac{\ln(s/s_2)}{\ln(s_1/s_2)}", inputs,
+                r"s_2 \le s \le s_1\ 	ext{adjacent sieves of the analysis}",
+                round(100 * max(cmp.outside), 3), "%", "outside")
 
 
 def mix_sand(pair, project) -> tuple[gr.Grading | None, list[str], list[tuple[str, float, str]]]:
@@ -82,6 +106,12 @@ def _curve(g: gr.Grading) -> dict:
             "passing": [round(100 * v, 4) for v in g.passing]}
 
 
+def _envelope_curve(env: dict) -> dict:
+    lim = sorted(env["limits"], key=lambda e: e["sieve_mm"])
+    return {"title": env["title"], "sieves_mm": [e["sieve_mm"] for e in lim],
+            "low": [e["low"] for e in lim], "high": [e["high"] for e in lim]}
+
+
 def _grading_step(name: str, g: gr.Grading, fm: float, src: str) -> Step:
     inputs = tuple(Input(f"P({s * 1000:g})", f"passing {s * 1000:g} mm (retained {100 * r:.1f} %, "
                          f"cumulative retained {100 * c:.1f} %)", round(100 * p, 2), "%", src)
@@ -99,7 +129,7 @@ def grading_check(zone, ctx):
 
 def _grading_one(pair, ctx):
     code, title, p = "COMP-GRAD", "Aggregate grading against the historic aggregate", ctx.project
-    fm_sieves = refdata.load("sieve_series").data["fineness_modulus"]
+    fm_sieves = refdata.load("sieve_series").data["series"]["astm_e11"]["fineness_modulus"]
     g, missing, fractions = mix_sand(pair, p)
     hist, why = historic_aggregate(pair, p)
     if why:
@@ -134,12 +164,24 @@ def _grading_one(pair, ctx):
     msg.append(f"RMS difference from the historic aggregate {100 * dev.rms:.1f} % (at most "
                f"{rms_lim:g} %), largest {100 * dev.max_abs:.1f} %")
     limits = [(e["sieve_mm"] / 1000, e["low"] / 100, e["high"] / 100) for e in env["limits"]]
-    usable = [lim for lim in limits if gr.known_at(g, lim[0])]
+    across = bool(g.series) and g.series != env.get("series", g.series)
+    usable = [lim for lim in limits if gr.known_at(g, lim[0])
+              or (across and gr.interpolated_passing(g, lim[0]) is not None)]
     skipped = [lim[0] for lim in limits if lim not in usable]
     if skipped:
         notes.append("envelope sieves without a result, not compared: "
                      + ", ".join(f"{s * 1000:g} mm" for s in skipped))
-    cmp = gr.compare_envelope(g, usable)
+    cmp = gr.compare_envelope(g, usable, interpolate=across)
+    if across:
+        steps.append(_envelope_step(g, cmp, env))
+        notes.append(f"the envelope is written on the {_series_name(env['series'])} sieves and "
+                     f"the sand was sieved on the {_series_name(g.series)} sieves: the passing "
+                     "on each envelope sieve is read between the two nearest sieves of the "
+                     "analysis, linear in the logarithm of the aperture")
+    if hist.series and g.series and hist.series != g.series:
+        notes.append(f"the historic aggregate was sieved on the {_series_name(hist.series)} "
+                     "sieves: its passing is read on the repair sand's sieves by the same "
+                     "interpolation")
     out = [f"{s * 1000:g} mm ({100 * pp:.0f} % passing, limits {100 * lo:g}–{100 * hi:g} %)"
            for s, pp, lo, hi, d in zip(cmp.sieves, cmp.passing, cmp.low, cmp.high, cmp.outside)
            if d > 1e-9]
@@ -148,7 +190,7 @@ def _grading_one(pair, ctx):
                else "outside the envelope at " + "; ".join(out))
     if "repair" in fm and "historic" in fm:
         msg.insert(0, f"FM {fm['repair']:.2f} (historic {fm['historic']:.2f})")
-    notes.append(f"envelope: {env['title']} — {env['source']} ({env.get('tag', '')})")
+    notes.append(f"envelope: {env['title']} — {refdata.shown(env['source'], env.get('tag', ''))}")
     return cc.result(code, title, pair, worst(statuses), round(100 * dev.rms, 3), "%",
                      [C125, Basis("reference", env["ref"], env["source"]),
                       cc.rule_basis(ctx, "grading_rms_max")], "; ".join(msg), steps=steps,
@@ -156,7 +198,9 @@ def _grading_one(pair, ctx):
                      limit=cc.rule_limit(ctx, "grading_rms_max", "<=", f"Δ_rms ≤ {rms_lim:g} %"),
                      quantities=[Quantity("fineness_modulus", fm, "", "fineness modulus"),
                                  Quantity("grading_curves", {"repair": _curve(g),
-                                                             "historic": _curve(hist)}, "%",
+                                                             "historic": _curve(hist),
+                                                             "envelope": _envelope_curve(env)},
+                                          "%",
                                           "cumulative % passing by sieve (mm)"),
                                  Quantity("grading_deviation",
                                           {"rms": round(100 * dev.rms, 3),
@@ -192,7 +236,7 @@ def _blend_one(pair, ctx):
                     for s, v in prop.items())
     step = Step("Best blend by non-negative least squares",
                 r"\min_{x \ge 0,\ \sum x = 1} \sum_j \Big(\sum_i x_i P_{ij} - P_{\mathrm{hist},j}\Big)^2",
-                inputs, ", ".join(f"x_{{{s}}} = {v:.3f}" for s, v in best.items())
+                inputs, ", ".join(f"x_{{{tex_name(s)}}} = {v:.3f}" for s, v in best.items())
                 + rf",\ \Delta_\mathrm{{rms}} = {100 * fit.rms:.2f}\,\%", round(100 * fit.rms, 4),
                 "%", "Δ_rms")
     text = ", ".join(f"{s} {100 * v:.0f} %" for s, v in best.items())
@@ -221,16 +265,29 @@ def _ba_one(pair, ctx):
             cc.fabric_names(pair)[1] if h is None else
             f"historic mortar {h.id} has no acid_digestion results (materials.yaml)"])
     d = h.acid_digestion
+    loi, loi_src = _binder_loss(h, ctx.project)
     r = gr.binder_aggregate(d.sample_mass, d.residue_mass, d.binder_bulk_density,
-                            d.aggregate_bulk_density)
+                            d.aggregate_bulk_density,
+                            None if loi is None else loi / 100)
     src = f"materials.yaml {h.id}.acid_digestion"
     inputs = (Input("m_s", "dry mortar sample", round(d.sample_mass * 1000, 3), "g", src),
               Input("m_r", "acid-insoluble residue (aggregate)", round(d.residue_mass * 1000, 3), "g", src))
     steps = [Step("Binder:aggregate by mass", r"B{:}A_m = \frac{m_s - m_r}{m_r}", inputs,
                   rf"B{{:}}A_m = \frac{{{d.sample_mass * 1000:g} - {d.residue_mass * 1000:g}}}"
                   rf"{{{d.residue_mass * 1000:g}}} = {r.by_mass:.4f}", round(r.by_mass, 5), "", "B:A_m")]
-    notes = ["the acid-soluble loss is counted as binder as found (carbonated); fines dissolved "
-             "from a calcareous aggregate would be counted as binder"]
+    notes = ["fines dissolved from a calcareous aggregate would be counted as binder"]
+    if r.by_mass_loss_free is not None:
+        steps.append(Step("Binder:aggregate net of the binder's loss on ignition",
+                          r"B{:}A_{m,0} = \frac{(m_s - m_r)(1 - LOI/100)}{m_r}",
+                          inputs + (Input("LOI", "loss on ignition of the binder fraction "
+                                          "(its CO2 and bound water are not binder)", loi, "%",
+                                          loi_src),),
+                          rf"B{{:}}A_{{m,0}} = {r.by_mass:.4f} \times (1 - {loi:g}/100) = "
+                          rf"{r.by_mass_loss_free:.4f}", round(r.by_mass_loss_free, 5), "",
+                          "B:A_m0"))
+    else:
+        notes.append(f"not corrected for loss on ignition: {loi_src}; the acid-soluble loss is "
+                     "counted as binder as found (carbonated, with its CO2 and bound water)")
     if r.by_volume is not None:
         steps.append(Step("Binder:aggregate by loose volume",
                           r"B{:}A_V = \frac{(m_s - m_r)/\rho_b}{m_r/\rho_a}",
@@ -242,6 +299,8 @@ def _ba_one(pair, ctx):
     else:
         notes.append("by volume not computed: binder_bulk_density and aggregate_bulk_density not both given")
     q = {"historic_by_mass": round(r.by_mass, 4),
+         "historic_by_mass_loss_free": None if r.by_mass_loss_free is None
+         else round(r.by_mass_loss_free, 4),
          "historic_by_volume": None if r.by_volume is None else round(r.by_volume, 4)}
     mix_txt = ""
     if pair.mix is not None and pair.mix.sands:
@@ -249,12 +308,27 @@ def _ba_one(pair, ctx):
         q["mix_by_volume"] = round(b / s, 4)
         mix_txt = f"; mix {pair.mix_id} 1 : {s / b:.2g} by volume (B:A {b / s:.3f})"
     vol = f", 1 : {1 / r.by_volume:.2g} by volume" if r.by_volume else ""
+    if r.by_mass_loss_free is not None:
+        vol = (f" as found, 1 : {1 / r.by_mass_loss_free:.2g} net of its loss on ignition "
+               f"({loi:g} %)") + vol
     return cc.result(code, title, pair, "info", round(r.by_mass, 4), "",
                      [Basis("common practice", note="acid digestion of a lime or natural-cement "
                             "mortar with a siliceous aggregate")],
                      f"historic mortar {h.id}: 1 : {1 / r.by_mass:.2g} by mass{vol}{mix_txt}",
                      steps=steps, notes=notes,
                      quantities=[Quantity("binder_aggregate_ratio", q, "", "binder:aggregate")])
+
+
+def _binder_loss(h, project) -> tuple[float | None, str]:
+    """Loss on ignition (mass %) of the historic mortar's binder fraction, and its source."""
+    from specgen.science import oxides
+    a = project.analyses.get(h.binder_analysis) if h.binder_analysis else None
+    if a is None:
+        return None, f"historic mortar {h.id} names no binder_analysis with a loss on ignition"
+    loi = oxides.loss_on_ignition(a.mass_percent)
+    if loi <= 0:
+        return None, f"analysis {a.id} gives no loss on ignition"
+    return loi, f"analysis {a.id}" + (f" ({a.laboratory})" if a.laboratory else "")
 
 
 __all__ = ["grading_check", "blend_check", "binder_aggregate_check"]

@@ -225,12 +225,15 @@ def clay_check(analysis, ctx) -> CheckResult:
     clay = calcination.clay_fraction(ox, aw, "oxide_sum")
     residue = calcination.clay_fraction(ox, aw, "residue")
     rng = calcination.clay_range_check(clay.fraction, low.value, high.value)
-    water = ox.get("H2O", oxides.loss_on_ignition(ox) - ox["CO2"])
+    cross = calcination.clay_range_check(residue.fraction, low.value, high.value)
+    straddle = rng.inside != cross.inside     # the two estimates fall on both sides of an edge
+    water = oxides.combined_water(ox)
     g = lambda k: ox.get(k, 0.0)  # noqa: E731
     steps = (
         Step("Clay fraction (oxide sum)", r"w_{clay} = S + A + F + H_{comb}",
              oxide_inputs(analysis, ox, CSAFM[1:4]) + (
-                 Input("H_comb", "combined water = LOI − CO2", round(water, 4), "%",
+                 Input("H_comb", "combined water (H2O+)" if "H2O" in ox else
+                       "combined water = LOI − CO2 − moisture − organic matter", round(water, 4), "%",
                        source(analysis)),),
              rf"w_{{clay}} = {g('SiO2'):.2f} + {g('Al2O3'):.2f} + {g('Fe2O3'):.2f} + "
              rf"{water:.2f}", round(clay.fraction, 4), "%", "w_clay"),
@@ -239,10 +242,15 @@ def clay_check(analysis, ctx) -> CheckResult:
              rf"w_{{res}} = {residue.fraction:.2f}", round(residue.fraction, 4), "%", "w_res"))
     binder = binder_of(analysis, ctx.project)
     if binder is not None and binder.type == "natural_cement":
-        status = "pass" if rng.inside else "attention"
+        status = "pass" if rng.inside and not straddle else "attention"
         verdict = f" (binder {binder.id} is declared a natural cement)"
     else:
         status, verdict = "info", ""
+    if straddle:
+        verdict += (f"; borderline: the non-carbonate residue ({residue.fraction:.1f} %) "
+                    f"{'lies in' if cross.inside else 'falls outside'} the range, so the two "
+                    "estimates straddle it — a mineralogical analysis (XRD) of the raw stone "
+                    "decides")
     return CheckResult(
         code="CHEM-CLAY", title="Clay fraction of the raw stone", subject=analysis.id,
         subject_kind="analysis", status=status, value=round(clay.fraction, 4), unit="%",
@@ -250,6 +258,7 @@ def clay_check(analysis, ctx) -> CheckResult:
         limit=Limit("within", low.value, high.value, "%", f"{low.value:g}–{high.value:g} % "
                     "clay for a natural cement", rule=low.key,
                     overridden=low.justification or high.justification),
-        message=f"{rng.message}{verdict}; non-carbonate residue {residue.fraction:.1f} %",
+        message=f"{rng.message}{verdict}" + (
+            "" if straddle else f"; non-carbonate residue {residue.fraction:.1f} %"),
         notes=prep.assumptions + (clay.method, residue.method),
         quantities=(Quantity("clay_fraction", round(clay.fraction, 4), "%", "clay fraction"),))

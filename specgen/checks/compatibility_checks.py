@@ -30,28 +30,32 @@ declare("vapour_resistance_factor", "", "water-vapour diffusion resistance facto
 
 EN1015_18 = Basis("reference", "en1015_18", "capillary absorption coefficient, kg/(m²·min^0.5)")
 EN12572 = Basis("reference", "en12572", "water-vapour diffusion resistance factor μ, sd = μ·d")
+EN1015_19 = Basis("reference", "en1015_19", "water-vapour permeability of the hardened mortar")
 ROOT_MIN = math.sqrt(60.0)      # kg/(m²·s^0.5) → kg/(m²·min^0.5)
 
 
 # ---------------------------------------------------------------- strength hierarchy
-def mortar_strengths(ctx, mix_id: str) -> list[tuple[str, str, float, str]]:
-    """(key, label, MPa, source) of the mix's measured and predicted long-term strength."""
+def mortar_strengths(ctx, mix_id: str) -> list[tuple[str, str, float, str, bool]]:
+    """(key, label, MPa, source, indicative) of the mix's measured and predicted long-term
+    strength; ``indicative`` marks a prediction beyond the extrapolation limit, which never
+    decides (see the strength checks)."""
     out = []
     mean = ctx.quantity(mix_id, "mean_strength")
     comp = (mean.value or {}).get("compressive", {}) if mean else {}
     if comp:
         age = max(comp, key=lambda k: float(k[:-2]))
         out.append(("measured", f"measured mean at {age}", comp[age],
-                    f"STR-AGG/{mix_id} (lab/strength.csv)"))
+                    f"STR-AGG/{mix_id} (lab/strength.csv)", False))
     late = f"{ctx.rules['strength.late_age_2'].value:g} d"
     pred = ctx.quantity(mix_id, "predicted_strength")
     band = ((pred.value or {}).get("compressive", {}) if pred else {}).get(late)
     if band:
-        tag = ", extrapolated" if band["extrapolated"] else ""
+        far = bool(band.get("indicative"))
+        tag = ", indicative" if far else ", extrapolated" if band["extrapolated"] else ""
         out.append(("predicted", f"predicted at {late}{tag}", band["value"],
-                    f"STR-PRED-C/{mix_id}"))
+                    f"STR-PRED-C/{mix_id}", far))
         out.append(("predicted_upper", f"upper band edge at {late}{tag}", band["upper"],
-                    f"STR-PRED-C/{mix_id}, 95 % band"))
+                    f"STR-PRED-C/{mix_id}, 95 % band", far))
     return out
 
 
@@ -82,13 +86,16 @@ def _hierarchy_one(code, title, target, pair, fabric, ctx):
     f_fab = fabric.compressive_strength / cc.MPA
     src = f"materials.yaml {fabric.id}.compressive_strength"
     steps, ratios, statuses, words = [], {}, [], []
-    for key, label, f, fsrc in strengths:
+    held = False
+    for key, label, f, fsrc, far in strengths:
         st = cc.ratio_step(f"Strength ratio, {label}", "r_f", f"repair mortar, {label}", f, fsrc,
                            f"{what} {fabric.id}", f_fab, src, "MPa")
         steps.append(st)
         ratios[key] = st.result
         ok = st.result <= limit
-        statuses.append("pass" if ok else ("attention" if key == "predicted_upper" else "fail"))
+        held = held or (far and not ok and key == "predicted")
+        statuses.append("pass" if ok else ("attention" if key == "predicted_upper" else
+                                           "hold" if far else "fail"))
         words.append(f"{label} {f:.3g} MPa → {st.result:.3f}")
     notes = []
     props = pair.props
@@ -113,7 +120,10 @@ def _hierarchy_one(code, title, target, pair, fabric, ctx):
         code, title, pair, status, round(head, 4), "", [cc.rule_basis(ctx, s_key)],
         f"{'; '.join(words)} against {limit:g} × {f_fab:g} MPa of {what} {fabric.id}"
         + ("" if status != "attention" else "; the band's upper edge exceeds the limit: "
-           "confirm with the late-age tests"),
+           "confirm with the late-age tests")
+        + ("" if not held else "; the prediction beyond the last tested age exceeds the limit "
+           "but is indicative, so it cannot decide: held until results at later ages (the "
+           f"strength sheets of {pair.mix_id} name the test age that would decide)"),
         steps=steps, notes=notes,
         limit=cc.rule_limit(ctx, s_key, "<=", f"r_f ≤ {limit:g} (repair / {what})"),
         quantities=[Quantity(name, ratios, "", f"repair / {what} strength")])
@@ -136,6 +146,13 @@ def strength_historic_check(zone, ctx):
 def capillary(material, sample_id: str, project) -> tuple[float, str, Step | None] | None:
     """(coefficient kg/(m²·min^0.5), source, fit step) given or fitted to lab/capillary.csv."""
     rows = [r for r in project.capillary if r.sample == sample_id]
+    if rows and _two_point(project):
+        try:
+            return _two_point_step(sample_id, rows)
+        except moisture.MoistureInputError as exc:  # the regression is used, and said
+            note = f"; EN 1015-18 two-point coefficient not possible: {exc}"
+    else:
+        note = ""
     if rows:  # readings given are used, or the reason they cannot be is said (never ignored)
         fit = moisture.capillary_coefficient([r.time for r in rows], [r.uptake for r in rows])
         c = fit.slope * ROOT_MIN
@@ -147,10 +164,30 @@ def capillary(material, sample_id: str, project) -> tuple[float, str, Step | Non
                     r"{\sum(\sqrt{t_i}-\overline{\sqrt{t}})^2}", inputs,
                     rf"C = {fit.slope:.5f}\ \mathrm{{kg/(m^2 s^{{0.5}})}} \times \sqrt{{60}} = {c:.4f}",
                     round(c, 4), "kg/(m²·min^0.5)", "C")
-        return c, f"fitted to lab/capillary.csv ({len(rows)} readings)", step
+        return c, f"fitted to lab/capillary.csv ({len(rows)} readings){note}", step
     if material is not None and material.capillary_coefficient:
         return material.capillary_coefficient * ROOT_MIN, f"materials.yaml {sample_id}", None
     return None
+
+
+def _two_point(project) -> bool:
+    from specgen import practice
+    return practice.resolve(project.dossier).capillary_method == "two_point"
+
+
+def _two_point_step(sample_id: str, rows) -> tuple[float, str, Step]:
+    """EN 1015-18: the coefficient from the 10 and 90 min readings."""
+    c = moisture.two_point_coefficient([r.time for r in rows], [r.uptake for r in rows]) * ROOT_MIN
+    used = [r for r in rows if any(abs(r.time - t) <= moisture.SAME_TIME
+                                   for t in moisture.TWO_POINT_TIMES)]
+    inputs = tuple(Input(f"W_{r.time / 60:g}", f"uptake at {r.time / 60:g} min",
+                         round(r.uptake, 4), "kg/m²", f"{r.file} row {r.row}") for r in used)
+    w1, w2 = used[0].uptake, used[-1].uptake
+    step = Step(f"Capillary coefficient of {sample_id}: EN 1015-18, 10 and 90 min readings",
+                r"C = \frac{W_{90} - W_{10}}{\sqrt{90} - \sqrt{10}}", inputs,
+                rf"C = \frac{{{w2:.4g} - {w1:.4g}}}{{\sqrt{{90}} - \sqrt{{10}}}} = {c:.4f}",
+                round(c, 4), "kg/(m²·min^0.5)", "C")
+    return c, f"lab/capillary.csv, EN 1015-18 two-point ({len(rows)} readings given)", step
 
 
 @register("COMP-MOIST", "Repair at least as open as the units", "zone", order=520)
@@ -205,7 +242,8 @@ def _moisture_one(pair, ctx):
            f"{sc.result:.2f}, at least {c_min:g}); μ repair {mu_rep:g} vs units {mu_unit:g} "
            f"(ratio {sm.result:.2f}, at most {mu_max:g})")
     return cc.result(code, title, pair, status, round(sc.result, 4), "",
-                     [EN1015_18, EN12572, cc.rule_basis(ctx, "capillary_ratio_min"),
+                     [EN1015_18] + ([EN1015_19] if _two_point(p) else []) + [
+                         EN12572, cc.rule_basis(ctx, "capillary_ratio_min"),
                       cc.rule_basis(ctx, "vapour_ratio_max")],
                      msg, steps=steps,
                      limit=cc.rule_limit(ctx, "capillary_ratio_min", ">=",

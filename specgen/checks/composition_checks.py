@@ -107,8 +107,7 @@ def classify(ci: float, ctx) -> dict:
     table = refdata.load("hydraulicity_bands")
     margin = ctx.rules["analysis.band_margin"].value
     band = oxides.classify(ci, table.data, margin)
-    basis = Basis("reference", "boynton1980", "hydraulicity bands of the cementation index",
-                  note=table.tag)
+    basis = Basis("reference", "boynton1980", "hydraulicity bands of the cementation index")
     return {"name": band.name, "low": band.lower, "high": band.upper,
             "borderline": band.borderline, "neighbour": band.neighbour, "basis": basis}
 

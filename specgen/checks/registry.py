@@ -112,3 +112,34 @@ def quantity_names() -> list[QuantityName]:
 
 def is_declared(name: str) -> bool:
     return name in _NAMES
+
+
+# ---------------------------------------------------------------- consistency audit
+@dataclass(frozen=True)
+class AuditRule:
+    """A registered rule of the consistency audit: it reads the whole revision (project,
+    results, the previous issued revision) after every check has run, and returns findings."""
+
+    code: str
+    title: str
+    order: int
+    fn: Callable
+
+
+_AUDIT: dict[str, AuditRule] = {}
+
+
+def audit_rule(code: str, title: str, order: int = 500):
+    """Decorator: add an audit rule ``fn(ctx) -> list[Finding]`` under a unique ``code``."""
+    def deco(fn: Callable) -> Callable:
+        if code in _AUDIT or code in _REGISTRY:
+            raise DuplicateCheckCode(f"audit rule code '{code}' is already registered")
+        _AUDIT[code] = AuditRule(code, title, order, fn)
+        return fn
+    return deco
+
+
+def audit_rules() -> list[AuditRule]:
+    """Every audit rule in run order."""
+    load_builtin()
+    return sorted(_AUDIT.values(), key=lambda r: (r.order, r.code))

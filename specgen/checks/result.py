@@ -7,13 +7,30 @@ they are shown in (``unit``); the science underneath works in SI.
 """
 from __future__ import annotations
 
+import unicodedata
 from dataclasses import asdict, dataclass, field
 from typing import Literal
 
-Status = Literal["pass", "fail", "attention", "hold", "not_assessed", "info"]
-STATUSES: tuple[str, ...] = ("fail", "hold", "attention", "not_assessed", "pass", "info")
-STATUS_WORDS = {"pass": "pass", "fail": "fail", "attention": "attention", "hold": "hold",
-                "not_assessed": "not assessed", "info": "for information"}
+Status = Literal["pass", "fail", "needs_decision", "attention", "hold", "not_assessed", "info"]
+STATUSES: tuple[str, ...] = ("fail", "needs_decision", "hold", "attention", "not_assessed",
+                             "pass", "info")
+STATUS_WORDS = {"pass": "pass", "fail": "fail", "needs_decision": "needs decision",
+                "attention": "attention", "hold": "hold", "not_assessed": "not assessed",
+                "info": "for information"}
+
+
+# Characters with a meaning in the math source, and how a name writes them literally.
+_TEX = {"\\": r"\backslash{}", "&": r"\&", "%": r"\%", "$": r"\$", "#": r"\#", "_": r"\_",
+        "{": r"\{", "}": r"\}", "~": r"\sim{}", "^": r"\wedge{}", " ": r"\ "}
+
+
+def tex_name(text: object) -> str:
+    r"""A name or id from the project, written literally in the math source (inside
+    ``\mathrm{…}`` or a subscript): every character with a meaning in LaTeX escaped,
+    spaces kept, control characters dropped.  The one way a project's words reach a
+    formula (an admixture named "lime & pozzolan retarder" must not break the markup)."""
+    return "".join(_TEX.get(c, c) for c in str(text).replace("\u00a0", " ")
+                   if unicodedata.category(c) != "Cc")
 
 
 @dataclass(frozen=True)
@@ -123,3 +140,24 @@ def not_assessed(code: str, title: str, subject: str, kind: str, basis, reason: 
     return CheckResult(code=code, title=title, subject=subject, subject_kind=kind,
                        status="not_assessed", value=None, unit="", basis=tuple(basis),
                        steps=tuple(steps), message=f"not assessed: {reason}")
+
+
+@dataclass(frozen=True)
+class Finding:
+    """What the consistency audit found wrong with the dossier as a whole (not one check).
+
+    ``places`` are where a reader or the specifier finds it: a page and clause of the dossier
+    or an input file and field.  A ``blocking`` finding stops a revision for construction from
+    being built; the others are listed for the specifier to confirm.
+    """
+
+    code: str
+    title: str
+    message: str
+    places: tuple[str, ...] = ()
+    fix: str = ""
+    subject: str = ""
+    blocking: bool = True
+
+    def to_dict(self) -> dict:
+        return asdict(self)

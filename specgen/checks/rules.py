@@ -31,6 +31,12 @@ class Rule:
     basis: Basis
     default: float | None = None
     justification: str = ""
+    tag: str = ""  # 'memory': recalled from the source, to be confirmed before issue
+
+    @property
+    def unconfirmed(self) -> bool:
+        """A recalled value still in force (a project override with a justification is not)."""
+        return self.tag == "memory" and not self.justification
 
     def source(self) -> str:
         """Where the value comes from, as an input's source: the rule, its basis and, when
@@ -61,7 +67,8 @@ def builtin_rules() -> dict[str, Rule]:
         for name, raw in (doc.get("rules") or {}).items():
             key = f"{path.stem}.{name}"
             out[key] = Rule(key, float(raw["value"]), str(raw.get("unit", "")),
-                            str(raw.get("description", "")), _basis(raw.get("basis"), key))
+                            str(raw.get("description", "")), _basis(raw.get("basis"), key),
+                            tag=str(raw.get("tag", "")))
     return out
 
 

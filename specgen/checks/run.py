@@ -8,9 +8,9 @@ from __future__ import annotations
 import json
 from dataclasses import dataclass, field
 
-from specgen import __version__
-from specgen.checks.registry import as_list, checks, is_declared
-from specgen.checks.result import STATUSES, CheckResult, Quantity
+from specgen import __version__, refdata
+from specgen.checks.registry import as_list, audit_rules, checks, is_declared
+from specgen.checks.result import STATUSES, CheckResult, Finding, Quantity
 from specgen.checks.rules import RuleBook
 
 
@@ -42,6 +42,25 @@ class Results:
     subjects: dict[str, str]  # subject id → kind
     specimens: dict[str, dict] = field(default_factory=dict)  # lab results by specimen id
     comments: list[dict] = field(default_factory=list)        # review comments, as given
+    findings: list[Finding] = field(default_factory=list)     # the consistency audit's
+    previous: str | None = None   # the issued revision this one is compared with
+    changes: dict | None = None   # what changed since it (inputs, results, checks, decisions)
+    facts: list[str] = field(default_factory=list)  # the revision's description, from inputs
+
+    def blocking(self) -> list[Finding]:
+        """Findings that stop a revision for construction (or approval) from being built."""
+        return [f for f in self.findings if f.blocking]
+
+    # every tagged reference value the checks read: {where, table, path, tag, source, title,
+    # used_by: [CODE/subject, ...]}, sorted by where (refdata.recording)
+    values_used: list[dict] = field(default_factory=list)
+
+    def unconfirmed(self) -> list[dict]:
+        """The values this revision rested on that are still tagged ``memory`` (recalled,
+        not read in the source): listed on the *Values to confirm* page of a draft, and a
+        revision for construction is refused while any remains (specgen.build)."""
+        from specgen.refdata import UNCONFIRMED
+        return [v for v in self.values_used if v["tag"] == UNCONFIRMED]
 
     def check(self, code: str, subject: str) -> CheckResult | None:
         """The result of check ``code`` on ``subject`` (None when it did not run).
@@ -84,6 +103,10 @@ class Results:
             "subjects": dict(sorted(self.subjects.items())),
             "specimens": dict(sorted(self.specimens.items())),
             "comments": self.comments,
+            "findings": [f.to_dict() for f in self.findings],
+            "previous": self.previous,
+            "facts": self.facts,
+            "values_used": self.values_used,
         }
 
     def to_json(self) -> str:
@@ -103,15 +126,51 @@ def subjects_of(project, kind: str) -> list[tuple[str, object]]:
     return [(project.dossier.project.code, project)]
 
 
-def evaluate(project) -> Results:
-    """Run all checks in order; each may record quantities for later ones."""
+@dataclass(frozen=True)
+class Previous:
+    """The issued revision a revision is compared with: its results (results.json content)
+    and the SHA-256 of its input files."""
+
+    code: str
+    date: str
+    description: str
+    results: dict
+    inputs: dict[str, str]
+
+
+@dataclass
+class AuditContext:
+    """What an audit rule reads: the project, every result, the previous issued revision."""
+
+    project: object
+    results: Results
+    previous: Previous | None = None
+
+
+def evaluate(project, previous: Previous | None = None) -> Results:
+    """Run all checks in order (each may record quantities for later ones), then the
+    consistency audit over the whole revision."""
+    results = _run_checks(project)
+    ctx = AuditContext(project, results, previous)
+    results.previous = previous.code if previous else None
+    for rule in audit_rules():
+        results.findings.extend(rule.fn(ctx))
+    return results
+
+
+def _run_checks(project) -> Results:
     ctx = Context(project, RuleBook(project.dossier.rule_overrides))
     out: list[CheckResult] = ctx.results  # later checks (e.g. the selection) read earlier ones
     subjects: dict[str, str] = {}
+    used: dict = {}
     for spec in checks():
         for sid, subject in subjects_of(project, spec.subject_kind):
             subjects[sid] = spec.subject_kind
-            for res in as_list(spec.fn(subject, ctx)):
+            with refdata.recording() as uses:
+                returned = as_list(spec.fn(subject, ctx))
+            for u in uses:
+                used.setdefault(u, set()).update(r.key for r in returned)
+            for res in returned:
                 for q in res.quantities:
                     if not is_declared(q.name):
                         raise ValueError(f"check {spec.code} records undeclared quantity "
@@ -121,5 +180,9 @@ def evaluate(project) -> Results:
     specimens = {r.specimen: {"mix": r.mix, "test": r.test, "age_d": round(r.age / 86400, 6),
                               "value_MPa": round(r.value / 1e6, 6)} for r in project.strength}
     comments = [c.model_dump(mode="json") for c in project.comments]
+    values = [{"where": u.where, "table": u.table, "path": u.path, "tag": u.tag,
+               "source": u.source, "title": u.title, "used_by": sorted(keys)}
+              for u, keys in sorted(used.items(), key=lambda kv: (kv[0].table, kv[0].path))
+              if keys]
     return Results(project.dossier.project.code, project.revision.code, out, ctx.quantities,
-                   subjects, specimens, comments)
+                   subjects, specimens, comments, values_used=values)

@@ -3,17 +3,17 @@
 COMP-SALT classifies the chloride, nitrate and sulfate contents (mass %) of the units and the
 historic mortar of a zone with the published salt-load table the project selects
 (``dossier.yaml compatibility.salt_table``; the tables in content/data/salt_load.yaml
-disagree, so the dossier names the one used).  Sulfate-bearing fabric (sulfate in the
-medium class or above) with an aluminate-rich binder raises an expansion-risk item:
-sulfate ions reacting with the binder's aluminates form ettringite, and at low temperature
-in the presence of carbonate, thaumasite — both expansive.
+disagree, so the dossier names the one used).  What the sulfate does to each candidate
+binder is assessed by DUR-ETT (ettringite: aluminate + sulfate + water) and DUR-TSA
+(thaumasite: any C-S-H + sulfate + water + carbonate + cold), from the classes recorded here
+and the zone's exposure.  :func:`aluminate_rich` is shared with DUR-ETT.
 """
 from __future__ import annotations
 
 from specgen import refdata
 from specgen.checks import compatibility_common as cc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, Input, Quantity, Step, worst
+from specgen.checks.result import Basis, Input, Quantity, Step
 
 declare("salt_load_class", "", "salt-load class of chloride, nitrate and sulfate in each fabric "
         "material by the project's table {material: {ion: class}}, with the table")
@@ -61,14 +61,14 @@ def aluminate_rich(mix, project, ctx) -> tuple[bool, str]:
     return rich, "; ".join(reasons)
 
 
-@register("COMP-SALT", "Salt load of the fabric and sulfate expansion risk", "zone", order=540)
+@register("COMP-SALT", "Salt load of the fabric", "zone", order=540)
 def salt_check(zone, ctx):
-    """Salt-load classes of the fabric by the chosen table; ettringite/thaumasite risk."""
+    """Salt-load classes of the fabric by the chosen table."""
     return cc.each_pair("COMP-SALT", zone, ctx, _salt_one)
 
 
 def _salt_one(pair, ctx):
-    code, title = "COMP-SALT", "Salt load of the fabric and sulfate expansion risk"
+    code, title = "COMP-SALT", "Salt load of the fabric"
     key, tab = table(ctx)
     basis = Basis("reference", tab["ref"], tab["title"])
     fabric = _fabric_salts(pair)
@@ -104,19 +104,13 @@ def _salt_one(pair, ctx):
     if any(c == "high" for c in top.values()):
         status = "attention"
         msg.append("high salt load (" + ", ".join(i for i, c in top.items() if c == "high") + ")")
-    sulfate = top.get("sulfate")
-    if pair.mix is not None and sulfate in ("medium", "high"):
-        rich, why = aluminate_rich(pair.mix, ctx.project, ctx)
-        notes.append(f"binder of {pair.mix_id}: {why}")
-        if rich:
-            status = "fail" if sulfate == "high" else worst([status, "attention"])
-            msg.append(f"expansion risk: {sulfate} sulfate load in the fabric and an "
-                       f"aluminate-rich binder in {pair.mix_id} — sulfate reacts with the "
-                       "binder's aluminates to ettringite and, cold and wet with carbonate "
-                       "present, thaumasite; both expand and disrupt the joint")
+    if top.get("sulfate") in ("medium", "high"):
+        notes.append(f"{top['sulfate']} sulfate: its effect on the binder of {pair.mix_id} is "
+                     f"assessed by DUR-ETT/{pair.subject} (ettringite) and "
+                     f"DUR-TSA/{pair.subject} (thaumasite)")
     if not msg:
-        msg.append("no class above medium" + (" and no sulfate-aluminate risk" if sulfate else ""))
-    notes.append(f"table: {tab['title']} — {tab['source']} ({tab.get('tag', '')}); published "
+        msg.append("no class above medium")
+    notes.append(f"table: {tab['title']} — {refdata.shown(tab['source'], tab.get('tag', ''))}; published "
                  "salt-load tables disagree, this one is the project's choice")
     return cc.result(code, title, pair, status, max(top.values(), key=order.index) if top else None,
                      "", [basis], f"{'; '.join(msg)} (table {key})", steps=steps, notes=notes,

@@ -25,7 +25,8 @@ COST = Basis("project requirement", note="specification.yaml unit_prices; mortar
 
 declare("selected_mix", "", "mix chosen for a zone (specification.yaml), by zone")
 declare("selection_status", "", "status of a zone's selection: pass, attention (a failing check "
-        "justified, or a held one), hold (nothing selected) or not_assessed")
+        "justified, or a held one), needs_decision (a failing check the justification does not "
+        "name), hold (nothing selected) or not_assessed")
 declare("sample_sets", "", "sets of prisms for a zone's works: {sets, by_area, working_days, "
         "prisms, ages_d, per_set}")
 declare("site_acceptance", "MPa", "site acceptance criteria of a zone's chosen mortar by test "
@@ -119,8 +120,16 @@ def _select_one(zone, spec, ctx) -> tuple[CheckResult, Problem | None]:
     failed = [c for c in checks if c.status == "fail"]
     if failed and not sel.justification:
         return _judged(zone, sel, checks, "fail"), _unjustified(zone, i, sel, failed, spec, ctx)
+    open_ = [c for c in failed if not covered(c, sel.covers)]
+    if open_:
+        return _judged(zone, sel, checks, "needs_decision", open_), None
     held = [c for c in checks if c.status == "hold"]
     return _judged(zone, sel, checks, "attention" if failed or held else "pass"), None
+
+
+def covered(result, covers) -> bool:
+    """Whether a justification's ``covers`` list names ``result`` (by CODE or CODE/subject)."""
+    return any(ref == result.code or ref == result.key for ref in covers)
 
 
 def _unjustified(zone, i, sel, failed, spec, ctx) -> Problem:
@@ -140,7 +149,7 @@ def _and(items: list[str]) -> str:
     return items[0] if len(items) == 1 else ", ".join(items[:-1]) + " and " + items[-1]
 
 
-def _judged(zone, sel, checks, status: str) -> CheckResult:
+def _judged(zone, sel, checks, status: str, uncovered=()) -> CheckResult:
     counts = {s: [c for c in checks if c.status == s] for s in STATUS_WORDS}
     inputs = tuple(Input(c.code, c.title, STATUS_WORDS[c.status], "", c.key) for c in checks)
     inputs += (Input("J", "justification", "given" if sel.justification else "none", "",
@@ -152,7 +161,11 @@ def _judged(zone, sel, checks, status: str) -> CheckResult:
                 r"n_{\mathrm{hold}} > 0\ (\mathrm{then\ attention,\ a\ fail\ only\ with}\ J)",
                 inputs, sub or "-", len(counts["fail"]), "", "n_fail")
     msg = f"{sel.mix} selected"
-    if counts["fail"]:
+    if uncovered:
+        msg += (f"; it fails {_and([c.key for c in uncovered])}, which the justification does "
+                f"not name: the selection needs a decision (answer it in the justification and "
+                f"name it under covers, or choose again)")
+    elif counts["fail"]:
         msg += (f" although it fails {_and([c.code for c in counts['fail']])} — justification: "
                 f"{sel.justification}")
     elif counts["hold"]:

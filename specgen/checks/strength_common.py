@@ -102,7 +102,7 @@ def settings(project) -> Settings:
     s = project.dossier.strength
     e, ae = s.activation_energy, d["activation_energy"]
     src = "project input (dossier.yaml strength.activation_energy)" if e else (
-        f"default, temperature-dependent form: {ae['source']} ({ae['tag']})")
+        "default, temperature-dependent form: " + refdata.shown(ae["source"], ae.get("tag", "")))
     below = ae["below_reference"]
     datum = d["nurse_saul_datum"]
     return Settings(s.maturity_method, e or float(ae["value"]), src,

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from specgen.checks import works_common as wc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step, not_assessed
+from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step, not_assessed, tex_name
 from specgen.science import works as wk
 
 PRACTICE = Basis("common practice", note="absolute-volume method; defaults in "
@@ -92,7 +92,7 @@ def _mass_step(parts, y, binder) -> Step:
                          "mixes.yaml"),
                    Input(f"ρb_{c.name}", f"{q.label}: loose bulk density", c.bulk_density,
                          "kg/m³", q.bulk.source)]
-    sub = r",\ ".join(rf"m_{{\mathrm{{{q.constituent.name}}}}} = {q.constituent.parts:g} \times "
+    sub = r",\ ".join(rf"m_{{\mathrm{{{tex_name(q.constituent.name)}}}}} = {q.constituent.parts:g} \times "
                       rf"{q.constituent.bulk_density:g} = {y.masses[q.constituent.name]:.1f}"
                       for q in parts)
     return Step("Masses of one batch (1 part = 1 m³ loose) and proportions by mass",
@@ -209,10 +209,10 @@ def _totals_step(mix, v, per_m3: dict, t: wk.Totals, bags: dict) -> Step:
                      f"MIX-YIELD/{mix.id}") for k, c in per_m3.items()]
     inputs += [Input(f"m_bag,{b}", f"bag mass of {b}", m, "kg", f"materials.yaml {b}.bag_mass")
                for b, m in bags.items()]
-    sub = r",\ ".join(rf"m_{{\mathrm{{{k}}}}} = {c:g} \times {v.total:.4f} = {t.masses[k]:.2f}"
+    sub = r",\ ".join(rf"m_{{\mathrm{{{tex_name(k)}}}}} = {c:g} \times {v.total:.4f} = {t.masses[k]:.2f}"
                       for k, c in per_m3.items())
     if bags:
-        sub += r";\ " + r",\ ".join(rf"n_{{\mathrm{{{b}}}}} = \lceil {t.masses[b]:.2f} / {m:g}"
+        sub += r";\ " + r",\ ".join(rf"n_{{\mathrm{{{tex_name(b)}}}}} = \lceil {t.masses[b]:.2f} / {m:g}"
                                     rf"\rceil = {t.bags[b]}" for b, m in bags.items())
     return Step(f"Constituents for mix {mix.id}", r"m_i = c_i\,V"
                 + (r",\quad n = \lceil m_b / m_{bag} \rceil" if bags else ""),

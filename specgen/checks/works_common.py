@@ -33,13 +33,12 @@ def rule_si(rules, name: str, kind: str) -> Sourced:
 
 def _default(table: str, key: str) -> Sourced:
     d = refdata.load("mix_densities").data[table][key]
-    tag = f" ({d['tag']})" if d.get("tag") and d["tag"] not in d["source"] else ""
-    return Sourced(float(d["value"]), f"default: {d['source']}{tag}")
+    return Sourced(float(d["value"]), "default: " + refdata.shown(d["source"], d.get("tag", "")))
 
 
 def water_density() -> Sourced:
     d = refdata.load("mix_densities").data["water"]
-    return Sourced(float(d["value"]), f"{d['source']} ({d['tag']})" if d.get("tag") else d["source"])
+    return Sourced(float(d["value"]), refdata.shown(d["source"], d.get("tag", "")))
 
 
 def _given(value, file: str, field: str, table: str, key: str) -> Sourced:
@@ -111,14 +110,23 @@ def fresh_per_loose_binder(y: md.MixYield, mix) -> float:
 
 
 def workable_life(project, mix, rules) -> tuple[Sourced, bool]:
-    """(workable life in s with source, measured?): measured, else the shortest binder default."""
+    """(workable life in s with source, measured?): measured (EN 1015-9), else the shortest
+    binder default — either capped by the measured initial set of the paste as dosed, since
+    mortar that has begun to set is no longer workable."""
     if mix.workable_life is not None:
         src = mix.workable_life_source or "laboratory"
-        return Sourced(mix.workable_life, f"mixes.yaml {mix.id}.workable_life, EN 1015-9 "
-                       f"({src})"), True
-    found = [rule_si(rules, f"workable_life_{project.binders[b.binder].type}", "time")
-             for b in mix.binders]
-    return min(found, key=lambda s: s.value), False
+        life, measured = Sourced(mix.workable_life, f"mixes.yaml {mix.id}.workable_life, "
+                                 f"EN 1015-9 ({src})"), True
+    else:
+        found = [rule_si(rules, f"workable_life_{project.binders[b.binder].type}", "time")
+                 for b in mix.binders]
+        life, measured = min(found, key=lambda s: s.value), False
+    s = mix.setting
+    if s is not None and s.initial < life.value:
+        life = Sourced(s.initial, f"mixes.yaml {mix.id}.setting.initial (initial set "
+                       f"{s.initial / 60:g} min caps the {life.value / 60:g} min of "
+                       f"{life.source})")
+    return life, measured
 
 
 def mixes_of(zone, project) -> list:

@@ -6,8 +6,11 @@ closure check, which reports it with its calculation.
 """
 from __future__ import annotations
 
-from specgen.errors import ProblemLog, did_you_mean
+import re
+
+from specgen.errors import ProblemLog, did_you_mean, quote
 from specgen.project.files import Located
+from specgen.project.schema import ID_PATTERN
 from specgen.science.oxides import ChemistryInputError, closure
 
 SKIP: dict = {}  # stands for the ids of a file that failed to load
@@ -25,6 +28,24 @@ def _ref(log, located, rel, path, value, known: dict, what: str) -> None:
                          else "define it first."))
 
 
+def _raw_ids(located: dict[str, Located], rel: str, key: str) -> dict:
+    """Ids of the list ``key`` as written in ``rel`` (parsed, not validated); SKIP when the
+    file could not be parsed, the list is missing or empty, or an entry's id is unreadable,
+    not an id or repeated (then the file's own problem is the one to fix — a repeated id may stand for
+    another entry's lost one — and no follow-on error is reported)."""
+    loc = located.get(rel)
+    items = loc.data.get(key) if loc is not None and isinstance(loc.data, dict) else None
+    if not isinstance(items, list) or not items:
+        return SKIP
+    ids = {}
+    for item in items:
+        ident = item.get("id") if isinstance(item, dict) else None
+        if not isinstance(ident, str) or not re.fullmatch(ID_PATTERN, ident) or ident in ids:
+            return SKIP
+        ids[ident] = item
+    return ids
+
+
 def check_references(project, located: dict[str, Located], log: ProblemLog,
                      failed: set[str] = frozenset(), names=None) -> None:
     """Record a problem for every dangling id and every implausible analysis total.
@@ -36,13 +57,18 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
     d = project.dossier
     mat_ok, mix_ok = "materials.yaml" not in failed, "mixes.yaml" not in failed
     an_ok = "analyses.yaml" not in failed
-    units_ = project.masonry_units if mat_ok else SKIP
-    hist = project.historic_mortars if mat_ok else SKIP
-    binders = project.binders if mat_ok else SKIP
-    sands = project.sands if mat_ok else SKIP
-    mixes = project.mixes if mix_ok else SKIP
-    analyses = project.analyses if an_ok else SKIP
+    # a file that parsed but failed validation still tells which ids it defines, so the
+    # references into it are checked in the same run (no second round of errors)
+    units_ = project.masonry_units if mat_ok else _raw_ids(located, "materials.yaml",
+                                                            "masonry_units")
+    hist = project.historic_mortars if mat_ok else _raw_ids(located, "materials.yaml",
+                                                             "historic_mortars")
+    binders = project.binders if mat_ok else _raw_ids(located, "materials.yaml", "binders")
+    sands = project.sands if mat_ok else _raw_ids(located, "materials.yaml", "sands")
+    mixes = project.mixes if mix_ok else _raw_ids(located, "mixes.yaml", "mixes")
+    analyses = project.analyses if an_ok else _raw_ids(located, "analyses.yaml", "analyses")
     for i, z in enumerate(d.zones):
+        _ref(log, located, "dossier.yaml", ("zones", i, "mix"), z.mix, mixes, "mix")
         _ref(log, located, "dossier.yaml", ("zones", i, "units"), z.units, units_,
              "masonry unit")
         _ref(log, located, "dossier.yaml", ("zones", i, "historic_mortar"), z.historic_mortar,
@@ -55,7 +81,7 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
     for i, h in enumerate(project.historic_mortars.values()):
         _ref(log, located, "materials.yaml", ("historic_mortars", i, "binder_analysis"),
              h.binder_analysis, analyses, "analysis")
-    _compatibility_refs(project, located, log, mixes if mat_ok else SKIP)
+    _compatibility_refs(project, located, log, mixes if mat_ok else SKIP, failed)
     for i, m in enumerate(project.mixes.values()):
         for j, part in enumerate(m.binders):
             _ref(log, located, "mixes.yaml", ("mixes", i, "binders", j, "binder"), part.binder,
@@ -83,18 +109,42 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
                     fix="check for a mistyped value, a missing LOI, or values not in mass %.")
     if mixes is not SKIP:
         _strength_refs(project.strength, mixes, log)
-    _comment_refs(project, located.get("comments.yaml"), log, names)
+    _comment_refs(project, located.get("comments.yaml"), log, names, failed)
+    _sample_refs(project, log, failed)
     if project.specification is not None:
-        specification_refs(project, located.get("specification.yaml"), log, mixes)
+        specification_refs(project, located.get("specification.yaml"), log, mixes, failed)
 
 
-def _comment_refs(project, located, log: ProblemLog, names) -> None:
-    """A comment must name an existing check code (optionally /subject) or a page.
+def known_revisions(project) -> list[str]:
+    """This revision and the issued ones kept under ``issued/`` (for an archived revision,
+    its sibling folders): the revisions a comment or a release may name."""
+    from specgen.project.load import ARCHIVE_DIR
+    root = project.root
+    folder = root.parent if root.parent.name == ARCHIVE_DIR else root / ARCHIVE_DIR
+    found = sorted(d.name for d in folder.glob("*") if d.is_dir() and not d.name.startswith(".")) \
+        if folder.is_dir() else []
+    return [project.revision.code] + [r for r in found if r != project.revision.code]
+
+
+def _comment_refs(project, located, log: ProblemLog, names, failed=frozenset()) -> None:
+    """A comment must name an existing check code (optionally /subject) or a page, and
+    revisions that exist.
 
     ``names`` (check codes, page stems) comes from the pipeline, which knows the check and
     chapter registries; loading knows neither.  Without it only the revisions are checked.
     """
+    revisions = known_revisions(project)
+    # the archive (issued/) is the record of earlier revisions; a project that keeps none
+    # cannot say which exist, so its comments' revisions are taken as written
+    archived = len(revisions) > 1
     for i, c in enumerate(project.comments):
+        for key in ("raised_in", "closed_in"):
+            rev = getattr(c, key)
+            if archived and rev is not None and rev not in revisions:
+                log.add("comments.yaml", f"comment '{c.id}' was {key.replace('_in', '')} in "
+                        f"revision '{rev}', which is neither this revision nor an issued one.",
+                        line=located.line_of(("comments", i, key)) if located else None,
+                        field=f"comments[{i}].{key}", fix=f"use one of: {', '.join(revisions)}.")
         if c.status == "closed" and not c.closed_in:
             log.add("comments.yaml", f"comment '{c.id}' is closed but says not in which revision.",
                     line=located.line_of(("comments", i)) if located else None,
@@ -103,8 +153,9 @@ def _comment_refs(project, located, log: ProblemLog, names) -> None:
             continue
         codes, pages = names
         code, _, subject = c.about.partition("/")
-        if _is_page(c.about, pages) or (code in codes and (not subject or subject in _subjects(project))):
-            continue
+        if _is_page(c.about, pages) or (code in codes and (
+                not subject or subject in _subjects(project) or set(failed) & SUBJECT_FILES)):
+            continue  # subjects are not judged while a file defining them has problems
         hint = did_you_mean(c.about, sorted(codes) + sorted(pages))
         log.add("comments.yaml", f"comment '{c.id}' is about '{c.about}', which is neither a check "
                 "code nor a page of the dossier.",
@@ -119,19 +170,66 @@ def _is_page(about: str, pages) -> bool:
     return about in pages or about.partition("-")[0] in pages
 
 
+# lab table → (the Project fields whose ids its samples may be, in words)
+SAMPLE_KINDS = {
+    "lab/colour.csv": ("colours", ("historic_mortars", "mixes", "masonry_units", "trial panels",
+                                   "panel colour samples"),
+                       "a historic mortar, a mix, a masonry unit, a trial panel or a trial "
+                       "panel's colour_sample"),
+    "lab/sieves.csv": ("sieves", ("sands", "aggregate samples"),
+                       "a sand (materials.yaml) or a historic mortar's aggregate_sample"),
+    "lab/capillary.csv": ("capillary", ("masonry_units", "historic_mortars", "mixes"),
+                          "a masonry unit, a historic mortar or a mix"),
+}
+
+
+def _sample_ids(project, kind: str) -> set[str]:
+    if kind in ("trial panels", "panel colour samples"):
+        panels = project.specification.doc.trial_panels if project.specification else []
+        return {tp.id if kind == "trial panels" else tp.colour_sample for tp in panels} - {None}
+    if kind == "aggregate samples":
+        return {h.aggregate_sample for h in project.historic_mortars.values()
+                if h.aggregate_sample}
+    return set(getattr(project, kind))
+
+
+def _sample_refs(project, log: ProblemLog, failed) -> None:
+    """Every sample of a lab table is something the project defines: a reading of an unknown
+    sample would otherwise be silently ignored.  One problem per unknown sample, with its rows;
+    not checked when a file the ids come from failed (its own problems come first)."""
+    if {"materials.yaml", "mixes.yaml", "specification.yaml"} & (set(failed) | log.files()):
+        return  # a reference problem found above in a defining file counts too
+    for rel, (attr, kinds, words) in SAMPLE_KINDS.items():
+        known = set().union(*(_sample_ids(project, k) for k in kinds))
+        rows: dict[str, list[int]] = {}
+        for r in getattr(project, attr):
+            if r.sample not in known:
+                rows.setdefault(r.sample, []).append(r.row)
+        for sample, where in rows.items():
+            more = f" (also rows {', '.join(map(str, where[1:6]))}{' …' if len(where) > 6 else ''})" \
+                if len(where) > 1 else ""
+            log.add(rel, f"sample '{quote(sample)}' is not defined{more}; a sample here is {words}.",
+                    row=where[0], field="sample", fix=did_you_mean(sample, sorted(known))
+                    or "correct the id, or define the sample first.")
+
+
+SUBJECT_FILES = {"analyses.yaml", "materials.yaml", "mixes.yaml", "dossier.yaml"}
+
+
 def _subjects(project) -> set[str]:
     return (set(project.analyses) | set(project.binders) | set(project.mixes)
             | {z.id for z in project.dossier.zones} | {project.dossier.project.code}
             | {f"{z.id}/{m}" for z in project.dossier.zones for m in z.candidates})
 
 
-def _compatibility_refs(project, located, log: ProblemLog, mixes) -> None:
+def _compatibility_refs(project, located, log: ProblemLog, mixes, failed) -> None:
     """Mixes of measured mortar properties, and historic aggregate samples in lab/sieves.csv."""
     for i, props in enumerate(project.mortar_properties.values()):
         _ref(log, located, "materials.yaml", ("mortar_properties", i, "mix"), props.mix, mixes, "mix")
     samples = {r.sample for r in project.sieves}
     for i, h in enumerate(project.historic_mortars.values()):
-        if h.aggregate_sample and h.aggregate_sample not in samples:
+        if h.aggregate_sample and h.aggregate_sample not in samples \
+                and "lab/sieves.csv" not in failed:
             loc = located.get("materials.yaml")
             hint = did_you_mean(h.aggregate_sample, sorted(samples))
             log.add("materials.yaml", f"historic mortar '{h.id}' names aggregate sample "
@@ -160,16 +258,18 @@ def _strength_refs(results, mixes: dict, log: ProblemLog) -> None:
 SPEC = "specification.yaml"
 
 
-def specification_refs(project, located, log: ProblemLog, mixes) -> None:
+def specification_refs(project, located, log: ProblemLog, mixes, failed=frozenset()) -> None:
     """Selections, hold points, trial panels and prices name zones, mixes, roles that exist."""
     spec = project.specification.doc
-    zones = {z.id: z for z in project.dossier.zones}
+    # dossier.yaml's own reference problems (found above) count too: no follow-on about it
+    dossier_bad = "dossier.yaml" in failed or "dossier.yaml" in log.files()
+    zones = SKIP if dossier_bad else {z.id: z for z in project.dossier.zones}
     for i, s in enumerate(spec.selections):
         _ref(log, {SPEC: located}, SPEC, ("selections", i, "zone"), s.zone, zones, "zone")
         _ref(log, {SPEC: located}, SPEC, ("selections", i, "mix"), s.mix, mixes, "mix")
     _selection_refs(spec.selections, zones, located, log, mixes)
     _hold_point_refs(project, spec.hold_points, located, log)
-    _panel_refs(project, spec.trial_panels, located, log, mixes, zones)
+    _panel_refs(project, spec.trial_panels, located, log, mixes, zones, failed)
     for i, u in enumerate(spec.unit_prices):
         _ref(log, {SPEC: located}, SPEC, ("unit_prices", i, "mix"), u.mix, mixes, "mix")
 
@@ -215,9 +315,7 @@ def _role_ref(project, role, what: str, where: tuple, located, log: ProblemLog) 
 
 def _hold_point_refs(project, hold_points, located, log: ProblemLog) -> None:
     """Releasing role of each hold point; a release names its revision and its evidence."""
-    from specgen.project.load import ARCHIVE_DIR
-    revisions = [project.revision.code] + sorted(
-        d.name for d in (project.root / ARCHIVE_DIR).glob("*") if d.is_dir())
+    revisions = known_revisions(project)
     seen: set[str] = set()
     for i, h in enumerate(hold_points):
         if h.id in seen:
@@ -259,7 +357,7 @@ def _release_refs(h, i: int, revisions: list[str], located, log: ProblemLog) -> 
                 fix=f"use one of: {', '.join(revisions)}.")
 
 
-def _panel_refs(project, panels, located, log: ProblemLog, mixes, zones) -> None:
+def _panel_refs(project, panels, located, log: ProblemLog, mixes, zones, failed) -> None:
     """Trial panels: their mix, zone, reviewer role, photo file and colour sample exist."""
     from specgen.project.load import inside
     samples = {r.sample for r in project.colours}
@@ -269,7 +367,7 @@ def _panel_refs(project, panels, located, log: ProblemLog, mixes, zones) -> None
         if tp.reviewer not in _roles(project):
             _role_ref(project, tp.reviewer, f"trial panel '{tp.id}'",
                       ("trial_panels", i, "reviewer"), located, log)
-        if tp.colour_sample and tp.colour_sample not in samples:
+        if tp.colour_sample and tp.colour_sample not in samples and "lab/colour.csv" not in failed:
             log.add(SPEC, f"trial panel '{tp.id}' names colour sample '{tp.colour_sample}', "
                     "which is not in lab/colour.csv.", field=f"trial_panels[{i}].colour_sample",
                     line=_line(located, "trial_panels", i, "colour_sample"),

@@ -7,9 +7,9 @@ from pathlib import Path
 
 from pydantic import BaseModel, ValidationError
 
-from specgen.errors import ProblemLog, did_you_mean
+from specgen.errors import ProblemLog, did_you_mean, quote
 from specgen.project import schema
-from specgen.project.files import Located, read_csv, read_yaml
+from specgen.project.files import CONTROL, Located, read_csv, read_yaml
 from specgen.project.tables import (ColourReading, SieveRow, StrengthResult, capillary_rows,
                                     colour_rows, sieve_rows, strength_results)
 
@@ -66,6 +66,9 @@ class Project:
     firing: dict = field(default_factory=dict)  # binder id → FiringSeries (project/firing.py)
     site_temperature: object = None  # SiteTemperature (project/site_temperature.py) or None
     specification: object = None  # SpecificationData (project/specification.py) or None
+    exposure: dict = field(default_factory=dict)  # zone id → ZoneExposure (durability_inputs)
+    # planned tests in lab workbooks without a result yet: (file, sheet, row, first cell)
+    lab_pending: list = field(default_factory=list)
 
     @property
     def revision(self) -> schema.Revision:
@@ -73,6 +76,7 @@ class Project:
 
 
 def _field_path(loc: tuple) -> str:
+    loc = tuple(p for p in loc if p != "[key]")  # a dict key's own error: the key is the field
     return ".".join(str(p) if not isinstance(p, int) else f"[{p}]" for p in loc).replace(".[", "[")
 
 
@@ -109,20 +113,21 @@ def validate(located: Located, model: type[BaseModel], rel: str, log: ProblemLog
             fix = None
             if err["type"] == "extra_forbidden":
                 fix = did_you_mean(loc[-1], _model_fields(model, loc)) or "remove the key."
-                msg = f"unknown key '{loc[-1]}'."
+                msg = f"unknown key '{quote(loc[-1])}'."
             elif err["type"] == "missing":
                 msg = "this required field is missing."
                 fix = f"add '{loc[-1]}:'."
             else:
                 found = err.get("input")
+                msg = quote(msg, 300)
                 if isinstance(found, (dict, list)) or repr(found) in msg or str(found) in msg:
                     msg = msg.rstrip(".") + "."
                 else:
-                    shown = repr(found)   # an offending value is quoted, not echoed whole
-                    shown = shown if len(shown) <= 80 else shown[:79] + "…"
+                    shown = f"'{quote(found)}'" if isinstance(found, str) else quote(repr(found))
                     msg = f"{msg} (found {shown})."
                 if msg.startswith("must be greater than zero"):
                     fix = _give(model, loc)
+                fix = fix or (err.get("ctx") or {}).get("fix", "").strip() or None
             log.add(rel, msg, line=line, field=_field_path(loc), fix=fix)
         return None
 
@@ -132,21 +137,26 @@ def _hash(path: Path, rel: str) -> InputFile:
     return InputFile(rel, hashlib.sha256(data).hexdigest(), len(data))
 
 
-def inside(root: Path, rel: str, file: str, field: str, log: ProblemLog) -> Path | None:
+def inside(root: Path, rel: str, file: str, field: str, log: ProblemLog,
+           line: int | None = None) -> Path | None:
     """Resolve ``rel`` (a path written in a project file) and refuse it if it leaves the folder.
 
     Absolute paths, ``..`` and symbolic links that point outside the project are refused,
     so a project can never make specgen read (or publish) a file from elsewhere.
     """
     candidate = Path(rel)
+    if CONTROL.search(rel):
+        log.add(file, f"the path '{quote(rel)}' holds a control character.", field=field,
+                line=line, fix="write the file name plainly.")
+        return None
     if candidate.is_absolute() or ".." in candidate.parts:
-        log.add(file, f"the path '{rel}' leaves the project folder.", field=field,
+        log.add(file, f"the path '{quote(rel)}' leaves the project folder.", field=field, line=line,
                 fix="give a path relative to the project folder, without '..'.")
         return None
     resolved = (root / candidate).resolve()
     if not resolved.is_relative_to(root.resolve()):
-        log.add(file, f"the path '{rel}' points outside the project folder (through a link).",
-                field=field, fix="copy the file into the project folder instead of linking it.")
+        log.add(file, f"the path '{quote(rel)}' points outside the project folder (through a link).",
+                field=field, line=line, fix="copy the file into the project folder instead of linking it.")
         return None
     return resolved
 
@@ -193,45 +203,112 @@ def load_project(root: Path | str, names=None) -> Project:
     for rel, (attr, reader) in TABLES.items():
         if (root / rel).is_file() and (table := read_csv(root / rel, rel, log)) is not None:
             tables[attr] = reader(table, rel, log)
+    pending = _workbooks(root, strength, tables, log)
     if docs.get(ROOT_FILE) is None:
         log.raise_if_any()
     project = _assemble(root, docs, located, strength, log)
     for attr, rows in tables.items():
         setattr(project, attr, rows)
+    project.lab_pending = pending
     from specgen.project.gradings import gradings
     project.gradings = gradings(project.sieves, log)
+    from specgen.project.practice_inputs import practice_problems
+    practice_problems(project, located, log)
     from specgen.project.firing import firing_series
     project.firing = firing_series(root, project.binders, log)
     from specgen.project.site_temperature import curing_temperature_problems, site_temperature
-    project.site_temperature = site_temperature(root, project.dossier, log)
+    project.site_temperature = site_temperature(
+        root, project.dossier, log, located[ROOT_FILE].line_of(("site_temperature",)))
     curing_temperature_problems(project.strength, log)
     from specgen.project.specification import SPEC_FILE, specification_data
     project.specification = specification_data(root, docs.get(SPEC_FILE), located.get(SPEC_FILE),
                                                ARCHIVE_DIR, log)
     from specgen.project.crossref import check_references
+    # a file with problems of its own is not a reference for others: no follow-on errors
     failed = {name for name in DOCUMENTS if (root / name).is_file() and docs.get(name) is None}
+    failed |= log.files()
     check_references(project, located, log, failed, names)
     from specgen.project.works_inputs import works_problems
     works_problems(project, located, log, failed)
+    from specgen.project.durability_inputs import durability_problems
+    project.exposure = durability_problems(project, located, log, failed)
     log.raise_if_any()
     return project
 
 
-def _index(items, kind: str, rel: str, key: str, located: dict, log: ProblemLog,
-           id_field: str = "id") -> dict:
-    """``items`` of the list ``key`` in ``rel`` by their ``id_field``; a repeated id is a
-    problem located at its line."""
+def _workbooks(root: Path, strength: list, tables: dict, log: ProblemLog) -> list:
+    """Read lab/*.xlsx: each sheet through the reader of the CSV file of its name; rows are
+    added to those of the CSV files.  Returns the planned tests that have no result yet."""
+    from specgen.project.workbook import read_sheet, read_workbook, workbook_files
+    readers = {STRENGTH_FILE: ("strength", strength_results)} | TABLES
+    pending = []
+    for path in workbook_files(root):
+        rel = path.relative_to(root).as_posix()
+        for sheet in read_workbook(path, rel, log):
+            attr, reader = readers[f"lab/{sheet.sheet}.csv"]
+            rows = read_sheet(sheet, reader, rel, log)
+            if attr == "strength":
+                strength.extend(rows)
+            else:
+                tables[attr] = tables.get(attr, []) + rows
+            pending += [(rel, sheet.sheet, row, first) for row, first in sheet.pending]
+    _unique_specimens(strength, log)
+    return pending
+
+
+def _unique_specimens(strength: list, log: ProblemLog) -> None:
+    """A specimen reported in two files (a CSV and a workbook, or two workbooks) is refused."""
+    first: dict[str, StrengthResult] = {}
+    for r in strength:
+        seen = first.setdefault(r.specimen, r)
+        if seen is not r and seen.file != r.file:
+            # a workbook's strength rows are on its sheet 'strength', the id in column A
+            sheet = {"sheet": "strength", "cell": f"A{r.row}"} if r.file.endswith(".xlsx") else {}
+            log.add(r.file, f"specimen '{r.specimen}' is also reported in {seen.file}, row "
+                    f"{seen.row}.", row=r.row, field="specimen",
+                    fix="report each specimen once: remove one of the two rows.", **sheet)
+
+
+def _index(items, kind: str, rel: str, key, located: dict, log: ProblemLog,
+           id_field: str | None = "id") -> dict:
+    """``items`` of the list at ``key`` (a name, or a path such as ``("zones", 0,
+    "candidates")``) in ``rel`` by their ``id_field`` (``None``: the items themselves);
+    a repeated id is a problem located at its line."""
     out = {}
     where = located.get(rel)
+    path = key if isinstance(key, tuple) else (key,)
     for i, item in enumerate(items):
-        ident = getattr(item, id_field)
+        ident = getattr(item, id_field) if id_field else item
         if ident in out:
-            log.add(rel, f"{kind} '{ident}' is given twice.", field=f"{key}[{i}].{id_field}",
-                    line=where.line_of((key, i, id_field)) if where else None,
+            loc = path + (i, id_field) if id_field else path + (i,)
+            log.add(rel, f"{kind} '{quote(ident)}' is given twice.", field=_field_path(loc),
+                    line=where.line_of(loc) if where else None,
                     fix="give each one its own id." if id_field == "id"
                     else "merge the two entries into one.")
         out[ident] = item
     return out
+
+
+def _unique_within(p: Project, docs: dict, located: dict, log: ProblemLog) -> None:
+    """Ids and names that must not repeat but are not looked up by id (zones, trial panels,
+    a zone's candidates, a mix's constituents, rule overrides, unit prices): a second entry
+    would silently shadow or double the first."""
+    d = p.dossier
+    _index(d.zones, "zone id", ROOT_FILE, "zones", located, log)
+    _index(d.rule_overrides, "override of rule", ROOT_FILE, "rule_overrides", located, log,
+           id_field="rule")
+    for i, z in enumerate(d.zones):
+        _index(z.candidates, "candidate mix", ROOT_FILE, ("zones", i, "candidates"), located,
+               log, id_field=None)
+    for i, m in enumerate(docs["mixes.yaml"].mixes if docs.get("mixes.yaml") else ()):
+        for part, field_ in (("binders", "binder"), ("sands", "sand"), ("admixtures", "name")):
+            _index(getattr(m, part), field_, "mixes.yaml", ("mixes", i, part), located, log,
+                   id_field=field_)
+    if spec := docs.get("specification.yaml"):
+        _index(spec.trial_panels, "trial panel id", "specification.yaml", "trial_panels",
+               located, log)
+        _index(spec.unit_prices, "unit price of mix", "specification.yaml", "unit_prices",
+               located, log, id_field="mix")
 
 
 def _assemble(root: Path, docs: dict, located: dict, strength: list,
@@ -254,6 +331,7 @@ def _assemble(root: Path, docs: dict, located: dict, strength: list,
     if cm := docs.get("comments.yaml"):
         p.comments = list(_index(cm.comments, "comment id", "comments.yaml", "comments", located,
                                  log).values())
+    _unique_within(p, docs, located, log)
     narrative_dir = root / NARRATIVE_DIR
     if narrative_dir.is_dir():
         from specgen.project.files import read_text
@@ -261,8 +339,16 @@ def _assemble(root: Path, docs: dict, located: dict, strength: list,
             text = read_text(md, f"{NARRATIVE_DIR}/{md.name}", log)
             if text is not None:
                 p.narrative[md.stem] = text
+    p.inputs = input_files(root)
+    return p
+
+
+def input_files(root: Path) -> list[InputFile]:
+    """Every input file of a project folder with its SHA-256 (the archive under ``issued/``
+    and hidden files left out): what a revision's manifest records as its inputs."""
+    out = []
     for path in sorted(root.rglob("*")):
         parts = path.relative_to(root).parts
         if path.is_file() and parts[0] != ARCHIVE_DIR and not any(x.startswith(".") for x in parts):
-            p.inputs.append(_hash(path, path.relative_to(root).as_posix()))
-    return p
+            out.append(_hash(path, path.relative_to(root).as_posix()))
+    return out

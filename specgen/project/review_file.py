@@ -21,7 +21,7 @@ from typing import Annotated, Literal
 import yaml
 from pydantic import Field
 
-from specgen.errors import InputErrors, ProblemLog, did_you_mean
+from specgen.errors import InputErrors, ProblemLog, did_you_mean, quote
 from specgen.pagetext import page_facts, squeeze
 from specgen.project.files import read_yaml
 from specgen.project.schema import ANCHOR_PATTERN, CommentsFile, Model, RevisionCode
@@ -30,7 +30,6 @@ FORMAT = "specgen-review/1"
 COMMENTS_FILE = "comments.yaml"
 MAX_BYTES = 2 * 2**20            # a few hundred comments are far below this
 MAX_COMMENTS = 500
-QUOTE_SHOWN = 80                 # characters of an offending value quoted in a message
 
 Short = Annotated[str, Field(max_length=200)]
 
@@ -71,14 +70,14 @@ def take_in(project, path: Path, out: Path) -> list[str]:
     log = ProblemLog()
     code = project.dossier.project.code
     if review.project != code:
-        log.add(rel, f"is about project '{_short(review.project)}', not '{code}'.",
+        log.add(rel, f"is about project '{quote(review.project)}', not '{code}'.",
                 line=located.line_of(("project",)), field="project",
                 fix="take the file into the project it was written on.")
     rev_dir = out / review.revision
     if not (rev_dir / "manifest.json").is_file():
         log.add(rel, f"was written on revision {review.revision}, which is not published in {out}.",
                 line=located.line_of(("revision",)), field="revision",
-                fix=f"build the project into that folder first, or name the output folder with --out.")
+                fix="build the project into that folder first, or name the output folder with --out.")
     elif json.loads((rev_dir / "manifest.json").read_text("utf-8")).get("project") != code:
         log.add(rel, f"{out / review.revision} holds another project's dossier.",
                 line=located.line_of(("revision",)), field="revision", fix="pass the right --out.")
@@ -137,14 +136,9 @@ def _check_place(c: ReviewComment, i: int, rev_dir: Path, rel: str, located, log
                 fix=did_you_mean(c.anchor, ids) or "remove 'anchor' to comment on the whole page.")
     if c.quote and squeeze(c.quote) not in squeeze(text):
         log.add(rel, f"quotes text that page '{c.page}' of revision {rev_dir.name} does not "
-                f"contain: '{_short(c.quote)}'.", line=located.line_of(("comments", i, "quote")),
+                f"contain: '{quote(c.quote)}'.", line=located.line_of(("comments", i, "quote")),
                 field=f"comments[{i}].quote",
                 fix="quote the page's words exactly, or leave the quote empty.")
-
-
-def _short(value: str) -> str:
-    value = " ".join(value.split())
-    return value if len(value) <= QUOTE_SHOWN else value[:QUOTE_SHOWN - 1] + "…"
 
 
 def _next_ids(existing: list[str], n: int) -> list[str]:

@@ -8,16 +8,30 @@ Unknown keys are refused (with a suggestion) so a typo never silently drops data
 from __future__ import annotations
 
 import datetime as dt
+import unicodedata
 from typing import Annotated, Literal
 
 from pydantic import (AfterValidator, BaseModel, BeforeValidator, ConfigDict, Field,
                       field_validator, model_validator)
+from pydantic_core import PydanticCustomError
 
 from specgen import units
+from specgen.project.durability_schema import (AbsorptionRate, DurabilitySettings,
+                                               ExposureCondition, SettingTime, Soundness,
+                                               SubstrateProperties)
 
 ID_PATTERN = r"^[A-Za-z0-9][A-Za-z0-9._-]{0,39}$"
 Id = Annotated[str, Field(pattern=ID_PATTERN, description="short identifier: letters, digits, . _ -")]
-Text = Annotated[str, Field(max_length=4000)]
+
+
+def _plain_text(value: str) -> str:
+    # a control character (NUL, escape codes …) written as a YAML escape is damage, not text
+    if any(unicodedata.category(c) == "Cc" and c not in "\n\t" for c in value):
+        raise ValueError("holds a control character (such as NUL); write plain text")
+    return value
+
+
+Text = Annotated[str, Field(max_length=4000), AfterValidator(_plain_text)]
 # an element id in the published site (what a review comment is anchored to)
 ANCHOR_PATTERN = r"^[A-Za-z][A-Za-z0-9_:.-]{0,119}$"
 
@@ -25,6 +39,7 @@ ANCHOR_PATTERN = r"^[A-Za-z][A-Za-z0-9_:.-]{0,119}$"
 def _quantity(kind: str):
     def parse(value):
         return units.parse(value, kind)
+    parse.unit_kind = kind  # read by the format reference (project/reference.py)
     return BeforeValidator(parse)
 
 
@@ -34,6 +49,9 @@ def _positive(value: float) -> float:
     return value
 
 
+# A plain number (parts, ratios, prices, factors): finite and of a plausible size, by the
+# same guard as every quantity (units.plausible), so NaN, infinity or 1e308 never load.
+Number = Annotated[float, AfterValidator(lambda v: units.plausible(v, "number"))]
 Pressure = Annotated[float, _quantity("pressure"), AfterValidator(_positive)]
 Length = Annotated[float, _quantity("length"), AfterValidator(_positive)]
 Area = Annotated[float, _quantity("area"), AfterValidator(_positive)]
@@ -57,10 +75,92 @@ def _percent(value):
     return value
 
 
+def _percent_with_unit(value):
+    """A content that must carry its unit ('0.35 %', '3500 ppm'), as mass %."""
+    try:
+        return units.parse(value, "fraction") * 100.0
+    except units.UnitProblem:
+        if isinstance(value, (int, float)) and not isinstance(value, bool):
+            raise PydanticCustomError(
+                "no_unit", "the number {value} has no unit",
+                {"value": value, "fix": f"write it with its unit, e.g. '{value} %' (mass % of "
+                 "the dry material) or in ppm."}) from None
+        raise
+
+
+_percent_with_unit.unit_kind = "mass %, with its unit, e.g. '0.35 %'"
+
+
+#: A mass content written with its unit, e.g. '0.35 %' (a bare number is refused).
+PercentWithUnit = Annotated[float, BeforeValidator(_percent_with_unit), Field(ge=0, le=100)]
+
+
+def _constituents():
+    from specgen import refdata
+    return refdata.load("constituents").data
+
+
+def _synonyms() -> dict[str, str]:
+    """Every name an analysis may use (canonical keys and synonyms, case-folded) → key."""
+    out = {}
+    for key, c in _constituents().items():
+        for name in [key, *c.get("synonyms", [])]:
+            out[" ".join(str(name).split()).casefold()] = key
+    return out
+
+
+def _canonical(name: str) -> str | None:
+    if "+" in name and len(parts := [p.strip() for p in name.split("+")]) > 1 \
+            and all(p for p in parts):
+        keys = [_synonyms().get(" ".join(p.split()).casefold()) for p in parts]
+        return "+".join(keys) if all(keys) else None
+    return _synonyms().get(" ".join(name.split()).casefold())
+
+
+def _canonical_names(value):
+    """Synonyms of old reports become the canonical keys; two names of one constituent are
+    refused; unknown names pass on to :func:`_known_constituent` (located at their key)."""
+    if not isinstance(value, dict):
+        return value
+    out, seen = {}, {}
+    for name, v in value.items():
+        key = _canonical(str(name)) or str(name)
+        if key in seen:
+            raise PydanticCustomError(
+                "repeated_constituent", "'{a}' and '{b}' name the same constituent ({key})",
+                {"a": seen[key], "b": name, "key": key,
+                 "fix": "give it once (keep the value the report prints under its own name)."})
+        seen[key] = name
+        out[key] = v
+    return out
+
+
+def _known_constituent(name: str) -> str:
+    if _canonical(name) is None:
+        from specgen.errors import did_you_mean
+        names = [n for k, c in _constituents().items() for n in [k, *c.get("synonyms", [])]]
+        hint = did_you_mean(name, names)
+        raise PydanticCustomError(
+            "unknown_constituent", "unknown constituent '{name}'",
+            {"name": name, "fix": (hint + " " if hint else "") + "Use a name of the list in the "
+             "format reference (content/data/constituents.yaml): oxides such as CaO, SiO2; LOI, "
+             "CO2, H2O+ (combined water), H2O- (moisture), organic matter, insoluble residue."})
+    return name
+
+
 class Model(BaseModel):
     """Base of every document model: unknown keys refused, values immutable."""
 
-    model_config = ConfigDict(extra="forbid", frozen=True, str_strip_whitespace=True)
+    model_config = ConfigDict(extra="forbid", frozen=True, str_strip_whitespace=True,
+                              allow_inf_nan=False)
+
+    @field_validator("*", mode="after")
+    @classmethod
+    def _required_text_given(cls, value, info):
+        """A required text field (a name, a title, a description) may not be left empty."""
+        if isinstance(value, str) and not value and cls.model_fields[info.field_name].is_required():
+            raise ValueError("is empty; this text is required")
+        return value
 
 
 # ---------------------------------------------------------------- dossier.yaml
@@ -80,6 +180,40 @@ class Party(Model):
     organisation: Text = Field("", description="organisation")
 
 
+class Signatory(Model):
+    """One signature of the sign-off block: who, in what role, for whom, when."""
+
+    name: Text = Field(description="person who signs")
+    role: Text = Field("", description="their role, e.g. conservation architect")
+    organisation: Text = Field("", description="their organisation")
+    date: dt.date | None = Field(None, description="date of signature (YYYY-MM-DD)")
+
+
+class SignOff(Model):
+    """Who prepared, checked and approved a revision (shown empty on a draft)."""
+
+    prepared: Signatory | None = Field(None, description="prepared by")
+    checked: Signatory | None = Field(None, description="checked by")
+    approved: Signatory | None = Field(None, description="approved by")
+
+
+class Recipient(Model):
+    """One entry of the distribution list."""
+
+    name: Text = Field(description="person or office")
+    organisation: Text = Field("", description="organisation")
+    purpose: Text = Field("", description="why they receive it, e.g. for approval, for information")
+    receives: Text = Field("", description="what they receive, e.g. PDF, site link, printed copy")
+
+
+class DocumentControl(Model):
+    """How revisions are controlled."""
+
+    block_for_approval: bool = Field(False, description="a revision issued for approval also "
+                                     "refuses to build while the audit has blocking findings "
+                                     "(a revision for construction always does)")
+
+
 class Revision(Model):
     code: Annotated[str, Field(pattern=r"^[A-Za-z0-9][A-Za-z0-9._-]{0,19}$",
                                description="revision code, e.g. R1; becomes the output folder")]
@@ -88,6 +222,8 @@ class Revision(Model):
     purpose: Literal["preliminary", "for_approval", "for_construction"] = Field(
         "preliminary", description="what the revision is issued for")
     description: Text = Field(description="what changed in this revision and why")
+    sign_off: SignOff = Field(default_factory=lambda: SignOff(), description="prepared, "
+                              "checked and approved by (empty boxes on a draft)")
 
 
 class Zone(Model):
@@ -97,6 +233,9 @@ class Zone(Model):
     units: Id | None = Field(None, description="masonry unit id (materials.yaml) of the fabric")
     historic_mortar: Id | None = Field(None, description="historic mortar id (materials.yaml)")
     exposure: Text = Field("", description="exposure of the zone (splash, sheltered, ...)")
+    exposure_conditions: list[ExposureCondition] = Field(
+        default_factory=list, description="the zone's exposure in the words the durability "
+        "checks read (used instead of the words found in 'exposure')")
     area: Area | None = Field(None, description="wall area of the works, e.g. '120 m^2'")
     candidates: list[Id] = Field(default_factory=list, description="candidate mix ids")
     mix: Id | None = Field(None, description="mix the works quantities are worked out for "
@@ -133,7 +272,7 @@ class Requirements(Model):
 
 class RuleOverride(Model):
     rule: Text = Field(description="rule key from content/rules, e.g. analysis.closure_pass")
-    value: float = Field(description="new limit, in the rule's unit")
+    value: Number = Field(description="new limit, in the rule's unit")
     justification: Text = Field(min_length=10, description="why the project departs from the default")
 
 
@@ -165,14 +304,52 @@ class StrengthSettings(Model):
         "wall surface or the joint itself")
 
 
+def one_of(name: str, known, what: str, where: str) -> str:
+    """``name`` if it is in ``known``; else an error whose context carries the fix."""
+    from specgen.errors import did_you_mean
+    known = list(known)
+    if name not in known:
+        raise PydanticCustomError(
+            "unknown_name", "unknown {what} '{name}' ({where})",
+            {"what": what, "name": name, "where": where,
+             "fix": (did_you_mean(name, known) or "") + " Known: " + ", ".join(known) + "."})
+    return name
+
+
+def _practice_name(value: str) -> str:
+    from specgen import practice
+    return one_of(value, practice.sets(), "practice", "content/data/practice.yaml")
+
+
+def _mortar_classes_name(value: str) -> str:
+    from specgen import practice
+    return one_of(value, [s["mortar_classes"] for s in practice.sets().values()],
+                  "mortar classification", "content/data/strength_classes.yaml")
+
+
+class PracticeSettings(Model):
+    """The practice the project follows: which standards its dossier applies."""
+
+    follows: Annotated[str, AfterValidator(_practice_name)] | None = Field(
+        None, description="european or american (content/data/practice.yaml): sieve series, "
+        "grading envelope, mortar and binder classification and test methods; default american")
+    mortar_classes: Annotated[str, AfterValidator(_mortar_classes_name)] | None = Field(
+        None, description="mortar classification of the other practice, e.g. astm_c270 "
+        "(default: the one the practice names); needs mixing_reason")
+    mixing_reason: Text = Field("", description="why the project takes an item of another "
+                                "practice (an envelope, a classification, sieve data on "
+                                "the other series); shown on the scope page")
+
+
 class CompatibilitySettings(Model):
     """Choices of the compatibility checks, declared once for the project."""
 
     salt_table: Literal["wta_2_9", "onorm_b3355"] = Field(
         "wta_2_9", description="published salt-load table (content/data/salt_load.yaml)")
-    grading_envelope: Literal["astm_c144_natural", "astm_c144_manufactured"] = Field(
-        "astm_c144_natural", description="grading envelope of the repair sand "
-        "(content/data/grading_envelopes.yaml)")
+    grading_envelope: Literal["astm_c144_natural", "astm_c144_manufactured", "en13139_0_2",
+                              "en13139_0_4"] | None = Field(
+        None, description="grading envelope of the repair sand (content/data/"
+        "grading_envelopes.yaml); default: the one the practice names")
     repair_thickness: Length | None = Field(
         None, description="thickness of the repair layer (pointing depth or render), e.g. "
         "'20 mm', for sd = μ·d")
@@ -191,6 +368,8 @@ class Dossier(Model):
     """The root file ``dossier.yaml``."""
 
     project: ProjectInfo
+    practice: PracticeSettings = Field(default_factory=PracticeSettings,
+                                       description="the practice (set of standards) followed")
     parties: list[Party] = Field(default_factory=list, description="people and roles")
     revision: Revision
     zones: list[Zone] = Field(default_factory=list, description="zones of work")
@@ -206,9 +385,15 @@ class Dossier(Model):
         default_factory=CompatibilitySettings, description="choices of the compatibility checks")
     works: WorksSettings = Field(default_factory=lambda: WorksSettings(),
                                  description="settings of the works quantities and batching")
+    durability: DurabilitySettings = Field(default_factory=lambda: DurabilitySettings(),
+                                           description="the site's winter climate")
     site_temperature: Text | None = Field(
         None, description="curing temperature in the wall: a constant, e.g. '8 degC', or a CSV "
         "under lab/ with columns 'day [d]' and 'temperature [degC]' (daily means)")
+    distribution: list[Recipient] = Field(default_factory=list, description="who receives "
+                                          "the dossier (the distribution list)")
+    document_control: DocumentControl = Field(default_factory=lambda: DocumentControl(),
+                                              description="how revisions are controlled")
 
 
 # --------------------------------------------------------------- analyses.yaml
@@ -220,9 +405,11 @@ class Analysis(Model):
     description: Text = Field("", description="sample description")
     laboratory: Text = Field("", description="who analysed it, report reference")
     date: dt.date | None = Field(None, description="date of the analysis")
-    mass_percent: dict[str, MassPercent] = Field(
-        description="constituents in mass %, e.g. CaO: 41.2, LOI: 30.5")
-    lumped_split: dict[str, dict[str, float]] = Field(
+    mass_percent: Annotated[dict[Annotated[str, AfterValidator(_known_constituent)], MassPercent],
+                            BeforeValidator(_canonical_names)] = Field(
+        description="constituents in mass %, e.g. CaO: 41.2, LOI: 30.5 (names: see "
+        "'Constituents of an analysis' below; volatile ones count as loss)")
+    lumped_split: dict[str, dict[str, Number]] = Field(
         default_factory=dict, description="declared split of a lumped oxide, e.g. "
         "'Al2O3+Fe2O3': {Al2O3: 0.6, Fe2O3: 0.4} (fractions summing to 1)")
 
@@ -278,6 +465,8 @@ class Binder(Model):
     particle_density: Density | None = Field(None, description="particle density for the "
                                              "yield, e.g. '2900 kg/m^3'")
     bag_mass: Mass | None = Field(None, description="mass of one bag as supplied, e.g. '25 kg'")
+    soundness: Soundness | None = Field(None, description="free lime, free MgO and expansion "
+                                        "as measured")
 
 
 class Hygrothermal(Model):
@@ -287,7 +476,7 @@ class Hygrothermal(Model):
     capillary_coefficient: Capillary | None = Field(
         None, description="capillary absorption coefficient (EN 1015-18 style), e.g. "
         "'0.4 kg/(m^2*min^0.5)'; or readings in lab/capillary.csv under the same id")
-    vapour_resistance_factor: float | None = Field(
+    vapour_resistance_factor: Number | None = Field(
         None, gt=0, description="water-vapour diffusion resistance factor μ (EN ISO 12572), e.g. 12")
     thermal_expansion: Expansion | None = Field(
         None, description="linear thermal expansion coefficient, e.g. '8e-6 1/K'")
@@ -299,9 +488,12 @@ class Hygrothermal(Model):
 class SaltContent(Model):
     """Soluble salts of a fabric sample (mass % of the dry material)."""
 
-    chloride: MassPercent | None = Field(None, description="chloride Cl⁻, mass %")
-    nitrate: MassPercent | None = Field(None, description="nitrate NO3⁻, mass %")
-    sulfate: MassPercent | None = Field(None, description="sulfate SO4²⁻, mass %")
+    chloride: PercentWithUnit | None = Field(None, description="chloride Cl⁻, mass % of the dry "
+                                          "material with its unit, e.g. '0.35 %'")
+    nitrate: PercentWithUnit | None = Field(None, description="nitrate NO3⁻, mass % of the dry "
+                                          "material with its unit, e.g. '0.35 %'")
+    sulfate: PercentWithUnit | None = Field(None, description="sulfate SO4²⁻, mass % of the dry "
+                                          "material with its unit, e.g. '0.35 %'")
     sample: Text = Field("", description="where and how deep it was sampled, laboratory")
 
 
@@ -332,6 +524,9 @@ class MasonryUnit(Hygrothermal):
     length: Length | None = Field(None, description="unit length, e.g. '215 mm'")
     height: Length | None = Field(None, description="unit height, e.g. '65 mm'")
     salts: SaltContent | None = Field(None, description="soluble salts of the units")
+    initial_rate_of_absorption: AbsorptionRate | None = Field(
+        None, description="initial rate of absorption (suction) of the units (ASTM C67 style), "
+        "e.g. '1.8 kg/(m^2*min)'")
 
 
 class HistoricMortar(Hygrothermal):
@@ -345,7 +540,7 @@ class HistoricMortar(Hygrothermal):
     acid_digestion: AcidDigestion | None = Field(None, description="acid digestion results")
 
 
-class MortarProperties(Hygrothermal):
+class MortarProperties(SubstrateProperties, Hygrothermal):
     """Properties measured on a candidate repair mortar (strength comes from lab/strength.csv)."""
 
     mix: Id = Field(description="mix id (mixes.yaml)")
@@ -371,12 +566,12 @@ class MaterialsFile(Model):
 # ----------------------------------------------------------------- mixes.yaml
 class BinderPart(Model):
     binder: Id = Field(description="binder id")
-    parts: float = Field(description="parts by volume")  # > 0: checked in works_inputs
+    parts: Number = Field(description="parts by volume")  # > 0: checked in works_inputs
 
 
 class SandPart(Model):
     sand: Id = Field(description="sand id")
-    parts: float = Field(description="parts by volume")  # > 0: checked in works_inputs
+    parts: Number = Field(description="parts by volume")  # > 0: checked in works_inputs
 
 
 class Admixture(Model):
@@ -390,7 +585,7 @@ class Mix(Model):
     name: Text = Field(description="descriptive name")
     binders: list[BinderPart] = Field(description="binder parts by volume")
     sands: list[SandPart] = Field(default_factory=list, description="sand parts by volume")
-    water_binder_ratio: float | None = Field(None, gt=0, lt=3, description="water/binder by mass")
+    water_binder_ratio: Number | None = Field(None, gt=0, lt=3, description="water/binder by mass")
     consistence: Length | None = Field(None, description="target flow value (EN 1015-3), e.g. "
                                        "'165 mm', where water is gauged to consistence")
     air_content: Fraction | None = Field(None, description="air content of the fresh mortar "
@@ -400,6 +595,8 @@ class Mix(Model):
     workable_life: Duration | None = Field(None, description="workable life measured in the "
                                            "laboratory (EN 1015-9), e.g. '25 min'")
     workable_life_source: Text = Field("", description="laboratory report of the workable life")
+    setting: SettingTime | None = Field(None, description="initial and final setting time "
+                                        "measured on the binder paste as dosed")
     notes: Text = Field("", description="free text")
 
 
@@ -453,6 +650,9 @@ class Selection(Model):
     rationale: Text = Field(min_length=10, description="why this mortar was chosen for the zone")
     justification: Text = Field("", description="why the choice stands although a check on it "
                                 "fails; required when one does, shown prominently")
+    covers: list[Text] = Field(default_factory=list, description="the failing checks the "
+                               "justification answers, as CODE or CODE/subject; a check that "
+                               "fails and is not named here makes the selection need a decision")
 
 
 class SiteTests(Model):
@@ -462,9 +662,9 @@ class SiteTests(Model):
                                       "e.g. '50 m^2' (default specification.area_per_set)")
     per_working_day: bool = Field(True, description="also at least one set per day's work "
                                   "(days from the zone's mortar volume and placing rate)")
-    min_sets: int | None = Field(None, ge=1, description="fewest sets per zone (default "
+    min_sets: int | None = Field(None, ge=1, le=1000, description="fewest sets per zone (default "
                                  "specification.min_sets)")
-    prisms_per_set: int | None = Field(None, ge=1, description="prisms in one set, per test "
+    prisms_per_set: int | None = Field(None, ge=1, le=1000, description="prisms in one set, per test "
                                        "age (default specification.prisms_per_set)")
     test_ages: list[Duration] = Field(default_factory=list, description="test ages, e.g. "
                                       "['28 d', '90 d'] (default: the ages of "
@@ -516,7 +716,7 @@ class UnitPrice(Model):
     """Price of a mortar for the options appraisal (cost per m² of wall)."""
 
     mix: Id = Field(description="mix id")
-    price: float = Field(gt=0, description="price of the quantity 'per', in the currency")
+    price: Number = Field(gt=0, description="price of the quantity 'per', in the currency")
     per: Volume = Field(1.0, description="quantity of placed mortar the price is for, e.g. "
                         "'1 m^3' (default) or '1 L'")
     source: Text = Field("", description="quotation or price book")

@@ -50,8 +50,10 @@ def out_of_range(kelvin: float) -> str | None:
             f"{hi - ZERO_C:g} °C in which the maturity method is applied.")
 
 
-def site_temperature(root, dossier, log: ProblemLog) -> SiteTemperature | None:
-    """Read ``dossier.site_temperature`` (constant or CSV); None when not given or invalid."""
+def site_temperature(root, dossier, log: ProblemLog, line: int | None = None
+                     ) -> SiteTemperature | None:
+    """Read ``dossier.site_temperature`` (constant or CSV; ``line`` is where dossier.yaml
+    gives it); None when not given or invalid."""
     text = dossier.site_temperature
     if not text:
         return None
@@ -60,20 +62,21 @@ def site_temperature(root, dossier, log: ProblemLog) -> SiteTemperature | None:
         try:
             kelvin = units.parse(text, "temperature")
         except units.UnitProblem as exc:
-            log.add("dossier.yaml", f"{exc}.", field=field,
+            log.add("dossier.yaml", f"{exc}.", field=field, line=line,
                     fix="give a constant such as '8 degC' or a CSV path under lab/ ending in .csv.")
             return None
         if msg := out_of_range(kelvin):
-            log.add("dossier.yaml", msg, field=field, fix="check the unit (°C, °F or K).")
+            log.add("dossier.yaml", msg, field=field, line=line,
+                    fix="check the unit (°C, °F or K).")
             return None
         return SiteTemperature(text, constant=kelvin)
     from specgen.project.load import inside
-    path = inside(root, text, "dossier.yaml", field, log)
+    path = inside(root, text, "dossier.yaml", field, log, line)
     if path is None:
         return None
     if not path.is_file():
         log.add("dossier.yaml", f"the site temperature record '{text}' does not exist.",
-                field=field, fix="put the CSV in the project folder (e.g. lab/) or correct the path.")
+                field=field, line=line, fix="put the CSV in the project folder (e.g. lab/) or correct the path.")
         return None
     table = read_csv(path, text, log)
     points = _points(table, text, log) if table is not None else ()
@@ -99,7 +102,8 @@ def _points(table, rel: str, log: ProblemLog) -> tuple[tuple[float, float], ...]
             continue
         points.append((t, k))
     if len(points) == 1:
-        log.add(rel, "needs at least two daily readings.", fix="add the following days.")
+        log.add(rel, "needs at least two daily readings.", row=table.rows[0][0],
+                fix="add the following days.")
     return tuple(points)
 
 

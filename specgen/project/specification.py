@@ -59,7 +59,7 @@ def earlier_states(root: Path, archive_dir: str, log: ProblemLog) -> list[Earlie
     if not folder.is_dir():
         return []
     found = []
-    for sub in sorted(p for p in folder.iterdir() if p.is_dir()):
+    for sub in sorted(p for p in folder.iterdir() if p.is_dir() and not p.name.startswith(".")):
         path = sub / SPEC_FILE
         if not path.is_file():
             continue

@@ -5,11 +5,11 @@ in the header (``value [MPa]``, ``age [d]``) and is converted to SI here.
 """
 from __future__ import annotations
 
-import math
+import datetime as dt
 from dataclasses import dataclass
 
 from specgen import units
-from specgen.errors import ProblemLog, did_you_mean
+from specgen.errors import ProblemLog, did_you_mean, quote
 from specgen.project.files import CsvTable
 
 
@@ -36,7 +36,12 @@ class StrengthResult:
     curing_temperature: float | None
     row: int
     file: str
+    cast_on: dt.date | None = None
+    curing: str = ""
+    notes: str = ""
 
+
+DATE = "date"  # a column kind: an ISO date (YYYY-MM-DD), no unit in the header
 
 STRENGTH_COLUMNS = (
     Column("specimen", description="specimen id, unique in the file"),
@@ -46,6 +51,10 @@ STRENGTH_COLUMNS = (
     Column("value", "pressure", description="strength, header with unit e.g. 'value [MPa]'"),
     Column("curing_temperature", "temperature", required=False,
            description="curing temperature, e.g. 'curing_temperature [degC]'"),
+    Column("cast_on", DATE, required=False, description="date the prism was cast, YYYY-MM-DD"),
+    Column("curing", required=False, description="curing regime, e.g. 'EN 1015-11: 2 d in "
+           "the mould, 5 d at 95 % RH, then 65 % RH'"),
+    Column("notes", required=False, description="the laboratory's remarks on the specimen"),
 )
 
 
@@ -54,14 +63,24 @@ def map_headers(table: CsvTable, columns, rel: str, log: ProblemLog) -> dict[str
     found: dict[str, tuple[str, str | None]] = {}
     known = [c.name for c in columns]
     by_name = {c.name: c for c in columns}
-    for header in table.headers:
+    seen: dict[str, int] = {}
+    for number, header in enumerate(table.headers, 1):
         name, unit = units.split_header(header)
+        if name in seen:  # which of the two would count is a guess: refuse, never pick one
+            log.add(rel, f"column '{quote(name)}' appears twice (columns {seen[name]} and "
+                    f"{number}).", row=1, field=quote(header), fix="keep one of the two columns.")
+            found.pop(name, None)
+            continue
+        seen[name] = number
         if name not in by_name:
             hint = did_you_mean(name, known)
-            log.add(rel, f"unknown column '{name}'.", row=1, field=header,
+            log.add(rel, f"unknown column '{quote(name)}'.", row=1, field=quote(header),
                     fix=hint or f"use one of: {', '.join(known)}.")
             continue
         col = by_name[name]
+        if col.kind == DATE:
+            found[name] = (header, None)
+            continue
         if col.kind and unit is None:
             log.add(rel, f"column '{name}' has no unit.", row=1, field=header,
                     fix=f"write the unit in the header, e.g. '{name} [{_example_unit(col.kind)}]'.")
@@ -99,19 +118,27 @@ def cell(table_row: dict, col: Column, found, rel: str, row: int, log: ProblemLo
     if col.kind is None:
         if col.choices and raw not in col.choices:
             hint = did_you_mean(raw, col.choices)
-            log.add(rel, f"'{raw}' is not allowed here.", row=row, field=header,
+            log.add(rel, f"'{quote(raw)}' is not allowed here.", row=row, field=header,
                     fix=hint or f"use one of: {', '.join(col.choices)}.")
             return None
         return raw
+    if col.kind == DATE:
+        try:
+            return dt.date.fromisoformat(raw)
+        except ValueError:
+            log.add(rel, f"expected a date written YYYY-MM-DD; found '{raw}'.", row=row,
+                    field=header, fix="write the date as year-month-day, e.g. 2026-03-02.")
+            return None
     try:
         number = float(raw.replace(",", ".")) if raw.count(",") == 1 and "." not in raw else float(raw)
     except ValueError:
-        log.add(rel, f"expected a number; found '{raw}'.", row=row, field=header)
+        log.add(rel, f"expected a number; found '{quote(raw)}'.", row=row, field=header)
         return None
-    if not math.isfinite(number):
-        log.add(rel, f"expected a finite number; found '{raw}'.", row=row, field=header)
+    try:  # the one guard on every number read (units.plausible): finite, of a sane size
+        return units.plausible(units.to_si(number, unit, col.kind), col.kind, f"{raw} {unit}")
+    except units.UnitProblem as exc:
+        log.add(rel, f"{exc}.", row=row, field=header)
         return None
-    return units.to_si(number, unit, col.kind)
 
 
 def strength_results(table: CsvTable, rel: str, log: ProblemLog) -> list[StrengthResult]:
@@ -138,7 +165,8 @@ def strength_results(table: CsvTable, rel: str, log: ProblemLog) -> list[Strengt
             continue
         seen[v["specimen"]] = row
         out.append(StrengthResult(v["specimen"], v["mix"], v["age"], v["test"], v["value"],
-                                  v["curing_temperature"], row, rel))
+                                  v["curing_temperature"], row, rel, v["cast_on"],
+                                  v["curing"] or "", v["notes"] or ""))
     return out
 
 
@@ -196,6 +224,22 @@ def typed_rows(table: CsvTable, columns, rel: str, log: ProblemLog) -> list[tupl
     return out
 
 
+def first_of_each(rows: list, key, rel: str, what: str, field: str, log: ProblemLog) -> list:
+    """``rows`` without repeats of ``key(row)``; each repeat is a problem at its row (a row
+    given twice would silently count twice in a grading or a fit)."""
+    seen: dict = {}
+    out = []
+    for r in rows:
+        k = key(r)
+        if k in seen:
+            log.add(rel, f"{what} already appears in row {seen[k]}.", row=r.row, field=field,
+                    fix="keep one row per " + what.split(" ", 1)[0] + " (remove the repeat).")
+            continue
+        seen[k] = r.row
+        out.append(r)
+    return out
+
+
 def sieve_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[SieveRow]:
     """Sieve analyses; each row gives a mass retained or a percentage passing (0–100 %)."""
     names = {units.split_header(h)[0] for h in table.headers}
@@ -214,7 +258,8 @@ def sieve_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[SieveRow]:
             log.add(rel, "mass retained cannot be negative.", row=row, field="retained")
         else:
             out.append(SieveRow(v["sample"], v["sieve"], v["retained"], v["passing"], row, rel))
-    return out
+    return first_of_each(out, lambda r: (r.sample, r.sieve), rel, "sieve of this sample", "sieve",
+                         log)
 
 
 def colour_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[ColourReading]:
@@ -263,4 +308,5 @@ def capillary_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[Capillary
                     fix="give the mass gained per area of the wetted face.")
         else:
             out.append(CapillaryReading(v["sample"], v["time"], v["uptake"], row, rel))
-    return out
+    return first_of_each(out, lambda r: (r.sample, r.time), rel, "time of this sample", "time",
+                         log)

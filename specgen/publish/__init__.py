@@ -8,6 +8,7 @@ import shutil
 from pathlib import Path
 
 from specgen.errors import PublishError
+from specgen.killpoints import reached
 from specgen.publish.output import (move_into_place, refuse_if_issued, staging_dir,
                                     update_versions, write_manifest)
 
@@ -21,7 +22,8 @@ def pdf_name(project) -> str:
 
 
 def publish(project, results, pages, out: Path, *, page_size: str = "a4",
-            progress=lambda s: None, changes: dict | None = None, parallel: bool = True) -> Path:
+            progress=lambda *a: None, changes: dict | None = None, parallel: bool = True,
+            superseded: str | None = None, rebuilt: str | None = None) -> Path:
     """Write site + PDF + results.json into a staging folder, then move it into place.
 
     With ``parallel`` the site is built in a forked process while this one renders the
@@ -29,10 +31,12 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
     """
     rev = project.revision
     target = out / rev.code
-    refuse_if_issued(target, project.inputs)
+    rebuilds = refuse_if_issued(target, project.inputs, rebuilt)
     staging = staging_dir(out, rev.code)
+    control = {"rebuilds": rebuilds, "superseded_by": superseded}
     try:
-        _publish_into(staging, project, results, pages, page_size, progress, changes, parallel)
+        _publish_into(staging, project, results, pages, page_size, progress, changes, parallel,
+                      control)
         progress("publish: moving the revision into place")
         move_into_place(staging, target)
     except OSError as exc:
@@ -43,6 +47,7 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
     except BaseException:
         shutil.rmtree(staging, ignore_errors=True)
         raise
+    reached("versions")
     try:
         update_versions(out)
     except OSError as exc:
@@ -52,15 +57,17 @@ def publish(project, results, pages, out: Path, *, page_size: str = "a4",
     return target
 
 
-def _publish_into(staging, project, results, pages, page_size, progress, changes, parallel):
+def _publish_into(staging, project, results, pages, page_size, progress, changes, parallel,
+                  control):
     from specgen.publish.pdf import write_pdf
     from specgen.publish.site import build_site
     rev = project.revision
     name = f"{project.dossier.project.title} — {rev.code}"
     progress("publish: site" + (" and PDF in parallel" if parallel else ""))
-    child = _fork(build_site, pages, staging, name) if parallel else None
+    extra = {"sg_report": _report_bar(project)}
+    child = _fork(build_site, pages, staging, name, extra) if parallel else None
     if child is None:
-        build_site(pages, staging, name)
+        build_site(pages, staging, name, extra)
     progress("publish: PDF")
     results_json = results.to_json().encode("utf-8")
     attachments = {"results.json": results_json}
@@ -70,11 +77,14 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     ident = hashlib.sha256(f"{project.dossier.project.code}/{rev.code}".encode()).digest()[:16]
     pdf_tmp = staging.with_name(staging.name + ".pdf")  # beside the site: MkDocs empties its folder
     try:
-        write_pdf(pages, _print_context(project), pdf_tmp, attachments=attachments,
-                  page_size=page_size, identifier=ident, stamp=_stamp(rev.date))
+        write_pdf(pages, _print_context(project, pages.marks), pdf_tmp,
+                  attachments=attachments,
+                  page_size=page_size, identifier=ident, stamp=_stamp(rev.date),
+                  on_part=lambda done, total: progress("publish: PDF parts", done, total))
         if child is not None:
             _join(child)
             child = None
+        reached("site")
         os.replace(pdf_tmp, staging / pdf_name(project))
     finally:
         if child is not None:  # the PDF failed: stop the site before the staging is removed
@@ -92,7 +102,9 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     write_manifest(staging, project.inputs, {
         "project": project.dossier.project.code, "revision": rev.code,
         "status": rev.status, "date": rev.date.isoformat(), "format": "specgen-manifest/1",
-        "description": rev.description})
+        "description": rev.description, "purpose": rev.purpose, "facts": results.facts,
+        "findings": len(results.findings), **{k: v for k, v in control.items() if v}})
+    reached("staged")
 
 
 def _child(fn, args, conn) -> None:
@@ -142,7 +154,16 @@ def _stamp(date):
     return dt.datetime(date.year, date.month, date.day, tzinfo=dt.timezone.utc)
 
 
-def _print_context(project) -> dict:
+def _report_bar(project) -> dict:
+    """What the site's report bar shows on every page (escaped by the page frame)."""
+    from specgen.report.fmt import date_text
+    p, rev = project.dossier.project, project.revision
+    return {"project": p.title, "code": p.code, "revision": rev.code, "status": rev.status,
+            "state": STATE[rev.status], "purpose": PURPOSE[rev.purpose],
+            "date": date_text(rev.date)}
+
+
+def _print_context(project, marks: dict | None = None) -> dict:
     p, rev = project.dossier.project, project.revision
     specifier = next((x for x in project.dossier.parties if x.role == "specifier"), None)
     author = (specifier.organisation or specifier.name) if specifier else p.client
@@ -150,4 +171,5 @@ def _print_context(project) -> dict:
             "subject": f"Binder specification dossier, {p.site}",
             "keywords": f"{p.code}, revision {rev.code}, repair mortar, binder specification",
             "date": rev.date.isoformat(), "project": p, "revision": rev,
-            "state": STATE[rev.status], "purpose": PURPOSE[rev.purpose]}
+            "state": STATE[rev.status], "purpose": PURPOSE[rev.purpose],
+            "mark": (marks or {}).get("mark", ""), "sign_off": (marks or {}).get("sign_off", [])}

@@ -17,6 +17,7 @@ import jinja2
 import yaml
 
 from specgen.errors import PublishError
+from specgen.killpoints import reached
 from specgen.refdata import CONTENT_DIR
 
 PRINT_DIR = CONTENT_DIR / "print"
@@ -122,7 +123,8 @@ def pieces(pageset, size: int = PART_SIZE) -> list[Piece]:
 
 
 def _template(name: str):
-    env = jinja2.Environment(loader=jinja2.FileSystemLoader(str(PRINT_DIR)), autoescape=True)
+    from specgen.templating import sandboxed
+    env = sandboxed(jinja2.FileSystemLoader(str(PRINT_DIR)))
     return env.get_template(name)
 
 
@@ -168,25 +170,29 @@ def parts(every: list[Piece], size: int = PART_SIZE) -> list[list[Piece]]:
     return out
 
 
-PDF_OPTIONS = {"pdf_variant": "pdf/a-3b", "custom_metadata": True}
+# PDF/A-3a: archival, with the inputs attached, and tagged (structure tree, alternative
+# texts, language).  WeasyPrint takes one variant per document: its PDF/UA-1 variant
+# tags the same way but is not PDF/A, so it could not carry the attachments as PDF/A-3.
+PDF_OPTIONS = {"pdf_variant": "pdf/a-3a", "custom_metadata": True}
 PLACEHOLDER_PAGE = 8888  # the contents laid out once with numbers of this width
 
 
 def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
               page_size: str = "a4", identifier: bytes | None = None, stamp=None,
-              workers: int | None = None) -> None:
-    """Print the page set as a PDF/A-3b at ``target`` with ``attachments`` embedded.
+              workers: int | None = None, on_part=None) -> None:
+    """Print the page set as a tagged PDF/A-3a at ``target`` with ``attachments`` embedded.
 
     The chapters are printed in parts on every core (unchanged parts come from the
     artefact cache), the front matter once their page numbers are known, the running
     heads last; :mod:`specgen.publish.pdf_assembly` puts them together.  ``stamp`` (a
     datetime, the revision date) dates the attachments, so identical inputs give a
-    byte-identical PDF.
+    byte-identical PDF.  ``on_part(done, total)`` is called as the chapter parts come back
+    (for a progress display).
     """
     from specgen.publish.pdf_assembly import assemble, global_anchors
     from specgen.publish.pdf_parts import Printer, cached_or_submitted
     every = pieces(pageset)
-    css = stylesheet(page_size, "parts.css")
+    css = stylesheet(page_size, "parts.css", "control.css")
     files = [(name, data, stamp) for name, data in sorted(attachments.items())]
     with Printer(pageset, workers) as printer:
         def front(numbers, **extra):
@@ -197,7 +203,12 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
         order = sorted(range(len(groups)), key=lambda i: -sum(len(p.html) for p in groups[i]))
         handles = {i: cached_or_submitted(printer, "pdf-part", document_html(
             context, groups[i], front=False), css, **PDF_OPTIONS) for i in order}
-        printed = [handles[i].result() for i in range(len(groups))]
+        printed = []
+        for i in range(len(groups)):
+            printed.append(handles[i].result())
+            reached(f"pdf-part-{i + 1}")
+            if on_part is not None:
+                on_part(i + 1, len(groups))
         sizes = [size for doc in printed for size in doc.pages]
         length = len(guess.result().pages)
         for _ in range(3):  # the contents' length does not depend on its numbers, but check
@@ -213,8 +224,10 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
             raise PublishError("the contents pages changed length with their page numbers "
                                "three times; nothing was changed in the output folder. Fix: "
                                "report this with the project.")
+        reached("pdf-front")
         stamps = [s.result() for s in stamps]
     assemble(done, printed, stamps, target)
+    reached("pdf-assembled")
 
 
 STAMP_SPLIT = 400  # pages per stamp document
@@ -225,10 +238,11 @@ def _stamps(printer, context, page_size: str, front_pages: int, sizes: list) -> 
     total = front_pages + len(sizes)
     kinds = ["cover"] + [None] * (front_pages - 1) + ["wide" if w > h else None for w, h in sizes]
     pages = [{"number": i + 1, "kind": k} for i, k in enumerate(kinds)]
-    css = stylesheet(page_size, "stamp.css")
+    css = stylesheet(page_size, "stamp.css", "control.css")
     tpl = _template("stamp.html.j2")
     project, revision = context["project"].title, context["revision"].code
     return [printer.submit(tpl.render(pages=pages[i:i + STAMP_SPLIT], total=total,
                                       title=context["title"], project=project,
-                                      revision=revision), css, **PDF_OPTIONS)
+                                      revision=revision, mark=context.get("mark", "")), css,
+                           **PDF_OPTIONS)
             for i in range(0, total, STAMP_SPLIT)]

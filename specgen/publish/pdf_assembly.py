@@ -1,6 +1,6 @@
-"""Putting the printed parts together into the one PDF/A-3b dossier (pypdf).
+"""Putting the printed parts together into the one tagged PDF/A-3a dossier (pypdf).
 
-The front matter (cover and contents) is the host: WeasyPrint wrote it as PDF/A-3b with
+The front matter (cover and contents) is the host: WeasyPrint wrote it as PDF/A-3a with
 the document's metadata, identifier, output intent and attachments, and every other
 part's pages are appended to it.  Then, over the whole document:
 
@@ -26,10 +26,14 @@ def assemble(front, parts: list, stamps: list, target) -> None:
     writer = PdfWriter(clone_from=PdfReader(io.BytesIO(front.pdf)))
     for page in writer.pages:
         page.pop(NameObject("/Annots"), None)
-    for part in parts:
-        for page in PdfReader(io.BytesIO(part.pdf)).pages:
+    tree = StructureMerge(writer)
+    for n, part in enumerate(parts, start=1):
+        reader = PdfReader(io.BytesIO(part.pdf))
+        added = []
+        for page in reader.pages:
             page.pop(NameObject("/Annots"), None)  # made again below, across parts
-            writer.add_page(page)
+            added.append(writer.add_page(page))
+        tree.append(reader, added, f"p{n}-")
     offsets, n = [], 0
     for doc in docs:
         offsets.append(n)
@@ -40,6 +44,7 @@ def assemble(front, parts: list, stamps: list, target) -> None:
                            f"{n} expected")
     for page, stamp in zip(writer.pages, stamp_pages):
         _lay_over(writer, page, stamp)
+    tree.finish()
     anchors = global_anchors(docs)
     _links(writer, docs, offsets, anchors)
     _outline(writer, docs, offsets)
@@ -69,7 +74,8 @@ def _lay_over(writer, page, stamp) -> None:
     contents = list(contents) if isinstance(contents, ArrayObject) else [page.raw_get("/Contents")]
     before, after = DecodedStreamObject(), DecodedStreamObject()
     before.set_data(b"q\n")
-    after.set_data(b"\nQ\nq /SgStamp Do Q\n")
+    # the running head is a pagination artifact, outside the structure tree (PDF/UA)
+    after.set_data(b"\nQ\nq /Artifact BMC /SgStamp Do EMC Q\n")
     page[NameObject("/Contents")] = ArrayObject(
         [writer._add_object(before), *contents, writer._add_object(after)])
 
@@ -87,6 +93,7 @@ def global_anchors(docs, start: int = 0) -> dict[str, tuple[int, float, float]]:
 
 
 def _links(writer, docs, offsets, anchors) -> None:
+    from specgen.publish.pdf import BASE
     from pypdf.generic import (ArrayObject, DictionaryObject, FloatObject, NameObject,
                                NumberObject, TextStringObject)
     pages = writer.pages
@@ -107,6 +114,11 @@ def _links(writer, docs, offsets, anchors) -> None:
                     pages[to_page].indirect_reference, NameObject("/XYZ"), FloatObject(x),
                     FloatObject(y), NumberObject(0)])
             else:
+                if target.startswith(BASE):
+                    # a file published beside the PDF (a download: the quantities schedule,
+                    # the exports), linked relative to the PDF's own folder instead of the
+                    # print engine's private address, which leads nowhere once printed
+                    target = target[len(BASE):]
                 annot[NameObject("/A")] = DictionaryObject({
                     NameObject("/Type"): NameObject("/Action"),
                     NameObject("/S"): NameObject("/URI"),
@@ -128,3 +140,111 @@ def _outline(writer, docs, offsets) -> None:
             item = writer.add_outline_item(title=label, page_number=offset + page, parent=parent,
                                            fit=Fit.xyz(left=x, top=y, zoom=0))
             stack.append((level, item))
+
+
+class StructureMerge:
+    """The tagged parts' structure trees made one (the front matter's tree is the host).
+
+    The elements under each part's document element move under the host's; the parent
+    tree entries (one per page, keyed by the page's ``/StructParents``) are renumbered
+    after the host's; structure ids get the part's prefix, so table headers stay unique.
+    The link annotations are made again across parts (:func:`_links`), so their object
+    references are left out of the tree: the links' text stays tagged as links.
+    """
+
+    def __init__(self, writer):
+        from pypdf.generic import NameObject
+        self.writer = writer
+        root = writer._root_object
+        self.root = root["/StructTreeRoot"].get_object() if "/StructTreeRoot" in root else None
+        self.nums: list = []
+        self.next = 0
+        if self.root is None:
+            return
+        self.document = _kids(self.root["/K"])[0].get_object()
+        _strip_annotations(self.document, "p0-")
+        nums = self.root["/ParentTree"].get_object().get("/Nums", [])
+        for key, value in zip(nums[::2], nums[1::2]):
+            if not _is_annotation_entry(value):
+                self.nums += [key, value]
+                self.next = max(self.next, int(key) + 1)
+        for page in writer.pages:
+            page.pop(NameObject("/StructParent"), None)
+
+    def append(self, reader, pages, prefix: str) -> None:
+        """Join the tree of ``reader`` (a part) whose ``pages`` were added to the writer."""
+        from pypdf.generic import NameObject, NumberObject
+        tagged = reader.trailer["/Root"].get("/StructTreeRoot")
+        if self.root is None or tagged is None:
+            return
+        tagged = tagged.get_object()
+        shift = {}
+        for page, new in zip(reader.pages, pages):
+            if page.get("/StructParents") is not None:
+                shift[int(page["/StructParents"])] = self.next
+                new[NameObject("/StructParents")] = NumberObject(self.next)
+                self.next += 1
+        kids = [kid for doc in _kids(tagged["/K"]) for kid in _kids(doc.get_object().get("/K", []))]
+        for kid in kids:  # all before any is copied: a copy follows its parent to the rest
+            _strip_annotations(kid.get_object(), prefix)
+        for kid in kids:
+            kid = kid.clone(self.writer)  # its pages map to those added above
+            kid.get_object()[NameObject("/P")] = self.document.indirect_reference
+            _append_kid(self.document, kid)
+        old = tagged["/ParentTree"].get_object().get("/Nums", [])
+        for key, value in zip(old[::2], old[1::2]):
+            if int(key) in shift:
+                self.nums += [NumberObject(shift[int(key)]), value.clone(self.writer)]
+
+    def finish(self) -> None:
+        from pypdf.generic import ArrayObject, DictionaryObject, NameObject, NumberObject
+        if self.root is None:
+            return
+        self.root[NameObject("/K")] = ArrayObject([self.document.indirect_reference])
+        self.root[NameObject("/ParentTree")] = self.writer._add_object(DictionaryObject(
+            {NameObject("/Nums"): ArrayObject(self.nums)}))
+        self.root[NameObject("/ParentTreeNextKey")] = NumberObject(self.next)
+        for page in self.writer.pages:
+            page[NameObject("/Tabs")] = NameObject("/S")  # tab order follows the structure
+
+
+def _kids(k) -> list:
+    from pypdf.generic import ArrayObject
+    k = k.get_object() if hasattr(k, "get_object") else k
+    return list(k) if isinstance(k, (list, ArrayObject)) else [k]
+
+
+def _append_kid(parent, kid) -> None:
+    from pypdf.generic import ArrayObject, NameObject
+    current = parent.get("/K")
+    items = _kids(current) if current is not None else []
+    parent[NameObject("/K")] = ArrayObject([*items, kid])
+
+
+def _is_annotation_entry(value) -> bool:
+    value = value.get_object()
+    return not isinstance(value, list)  # a page's entry is an array of elements
+
+
+def _strip_annotations(elem, prefix: str) -> None:
+    """Drop object references to annotations (made again later) and prefix ids."""
+    from pypdf.generic import ArrayObject, DictionaryObject, NameObject, TextStringObject
+    if not isinstance(elem, DictionaryObject):
+        return
+    if "/ID" in elem:
+        elem[NameObject("/ID")] = TextStringObject(prefix + str(elem["/ID"]))
+    attrs = elem.get("/A")
+    if isinstance(attrs, DictionaryObject) and "/Headers" in attrs:
+        attrs[NameObject("/Headers")] = ArrayObject(
+            TextStringObject(prefix + str(h)) for h in attrs["/Headers"])
+    k = elem.get("/K")
+    if k is None:
+        return
+    kept = []
+    for kid in _kids(k):
+        obj = kid.get_object() if hasattr(kid, "get_object") else kid
+        if isinstance(obj, DictionaryObject) and obj.get("/Type") == "/OBJR":
+            continue
+        _strip_annotations(obj, prefix)
+        kept.append(kid)
+    elem[NameObject("/K")] = ArrayObject(kept)

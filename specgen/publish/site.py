@@ -48,7 +48,10 @@ def build_site(pageset, site_dir: Path, site_name: str, extra: dict | None = Non
     from mkdocs.config import load_config
 
     logging.getLogger("mkdocs").setLevel(logging.WARNING)
-    nav = [{item.title: item.path} for item in pageset.nav]
+    nav = [{"Report": [{i.title: i.path} for i in pageset.nav if i.volume != "appendix"]}]
+    appendix = [{i.title: i.path} for i in pageset.nav if i.volume == "appendix"]
+    if appendix:
+        nav.append({"Appendices": appendix})
     # The static list of every revision sits one level above each revision folder.
     nav.append({"All revisions": "../revisions.html"})
     with tempfile.TemporaryDirectory(prefix="specgen-docs-") as empty_docs:

@@ -2,33 +2,8 @@
 from __future__ import annotations
 
 from specgen.report.cautions import cautions_for
-from specgen.report.chapters import badge, chapter, check_rows
+from specgen.report.chapters import chapter
 from specgen.report.fmt import num, qty
-from specgen.report.review import open_by_category
-from specgen.report.specification_chapters import specification_summary
-
-PURPOSE_WORDS = {"preliminary": "preliminary", "for_approval": "for approval",
-                 "for_construction": "for construction"}
-STATE_WORDS = {"draft": "draft", "issued": "issued"}
-#: Statuses listed with their finding at the top of the summary, most severe first.
-DECIDING = ("fail", "hold", "attention")
-
-
-@chapter("index.md", "Summary", 10, "summary.md.j2")
-def summary(env) -> dict:
-    p, r = env.project, env.results
-    counts = [{"status": s, "badge": badge(s), "n": n} for s, n in r.counts().items() if n]
-    rows = check_rows(r)
-    flagged = sorted((row for row in rows if row["status"] in DECIDING),
-                     key=lambda row: DECIDING.index(row["status"]))
-    return {"counts": counts, "rows": rows, "flagged": flagged,
-            "purpose": PURPOSE_WORDS[p.revision.purpose], "state": STATE_WORDS[p.revision.status],
-            "parties": p.dossier.parties, "overrides": env.rules_overridden,
-            "open_comments": sum(1 for c in p.comments if c.status == "open"),
-            "open_by_category": open_by_category(p.comments),
-            "previous": env.history.previous if env.history else None,
-            **specification_summary(env)}
-
 
 @chapter("scope.md", "Scope and zones of work", 20, "scope.md.j2")
 def scope(env) -> dict:
@@ -47,10 +22,27 @@ def scope(env) -> dict:
     if req.max_compressive_long_term:
         reqs.append(f"long-term compressive strength at most "
                     f"{qty(req.max_compressive_long_term / 1e6, 'MPa', 3)}")
-    return {"zones": rows, "requirements": reqs}
+    return {"zones": rows, "requirements": reqs, "practice": _practice(env)}
 
 
-@chapter("calculations.md", "Calculation sheets", 80, "calculations.md.j2")
+def _practice(env) -> dict:
+    """The set of standards the dossier follows, each test method cited."""
+    from specgen import practice, refdata
+    from specgen.checks.result import Basis
+    pr = practice.resolve(env.project.dossier)
+    with refdata.unrecorded():
+        envelope = refdata.load("grading_envelopes").data[pr.grading_envelope]
+    with refdata.unrecorded():
+        classes = refdata.load("strength_classes").data[pr.mortar_classes]["title"]
+    return {"title": pr.title, "stated": pr.stated, "mixed": list(pr.mixed),
+            "reason": pr.mixing_reason, "series": practice.series_title(pr.sieve_series),
+            "envelope": envelope["title"], "mortar_classes": classes,
+            "methods": [{"what": m["what"], "clause": m.get("clause", ""),
+                         "cite": env.cite(Basis("reference", m["ref"], m.get("clause", "")))}
+                        for m in pr.test_methods]}
+
+
+@chapter("calculations.md", "Calculation sheets", 80, "calculations.md.j2", volume="appendix")
 def calculations(env) -> dict:
     return {"sheets": [env.sheet(c) for c in env.results.checks]}
 
@@ -61,7 +53,7 @@ def cautions(env) -> dict:
     return {"cautions": chosen, "closing": closing}
 
 
-@chapter("inputs.md", "Input files", 95, "inputs.md.j2")
+@chapter("inputs.md", "Input files", 95, "inputs.md.j2", volume="appendix")
 def inputs(env) -> dict:
     return {"files": [{"path": f.path, "sha256": f.sha256, "size": f.size}
                       for f in env.project.inputs]}
@@ -69,5 +61,10 @@ def inputs(env) -> dict:
 
 @chapter("references.md", "References", 90, "references.md.j2")
 def references(env) -> dict:
-    # Rendered last so that every citation made by earlier chapters is numbered.
+    # Rendered last so that every citation made by earlier chapters is numbered; a standard
+    # named in the text of a page (e.g. "EN 1015-11" in a clause) is cited too, so the list
+    # holds every standard the dossier names that the bibliography knows.
+    from specgen.report.references import named_in
+    for key in named_in(env.pageset.pages.values()):
+        env.citations.cite(key)
     return {"entries": env.citations.listing()}

@@ -4,7 +4,9 @@ re-issue after one new lab result redraws only what changed.
 The key of an entry is the SHA-256 of the code version (every source file of the
 ``specgen`` package and the versions of matplotlib and ziamath), the artefact kind and
 its inputs; any change to any of them misses.  Rendering is deterministic, so a hit
-returns exactly the bytes a fresh render would give.  The cache lives in
+returns exactly the bytes a fresh render would give.  Each entry carries the SHA-256 of
+its data and is checked on every use: an entry edited after it was written is discarded
+and drawn again, never published.  The cache lives in
 ``OUT/.cache/`` (one per output folder, set by :func:`using`); without it nothing is
 cached.  Entries are written to a temporary file and renamed, so a killed build never
 leaves a half-written entry.
@@ -97,26 +99,43 @@ def _entry(kind: str, inputs) -> Path | None:
     return path
 
 
+HEADER = b"specgen-cache/1 sha256="  # each entry: this, the hex digest of the data, "\n", data
+
+
 def lookup(kind: str, inputs) -> bytes | None:
-    """The cached bytes for ``inputs``, or None (a miss, or no cache in use)."""
+    """The cached bytes for ``inputs``, or None (a miss, or no cache in use).
+
+    An entry is checked on use: its data must hash to the digest stored with it.  An entry
+    that does not (edited, truncated, poisoned) is deleted and counts as a miss, so the
+    artefact is drawn again rather than published.
+    """
     path = _entry(kind, inputs)
     if path is None:
         return None
     try:
-        return path.read_bytes()
+        raw = path.read_bytes()
     except OSError:
         return None
+    head, sep, data = raw.partition(b"\n")
+    if sep and head.startswith(HEADER) and \
+            head[len(HEADER):] == hashlib.sha256(data).hexdigest().encode("ascii"):
+        return data
+    try:
+        path.unlink()
+    except OSError:
+        pass
+    return None
 
 
 def store(kind: str, inputs, data: bytes) -> None:
-    """Keep ``data`` for ``inputs`` (written to a temporary file and renamed)."""
+    """Keep ``data`` for ``inputs`` with its digest (written to a temporary file and renamed)."""
     path = _entry(kind, inputs)
     if path is None:
         return
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
         tmp = path.with_name(f".{path.name}.{os.getpid()}.tmp")
-        tmp.write_bytes(data)
+        tmp.write_bytes(HEADER + hashlib.sha256(data).hexdigest().encode("ascii") + b"\n" + data)
         os.replace(tmp, path)
     except OSError:
         pass  # a cache that cannot be written only costs time

@@ -21,6 +21,7 @@ class Scope:
     binders: frozenset
     works: frozenset
     project: object
+    exposure: frozenset = frozenset()  # exposure conditions of the zones, and 'freezing'
 
 
 @functools.lru_cache(maxsize=1)
@@ -40,12 +41,25 @@ def _applies(trigger: str, scope: Scope) -> bool:
         return bool(wanted & scope.works)
     if kind == "project":
         return any(getattr(scope.project, flag, False) for flag in wanted)
+    if kind == "exposure":
+        return bool(wanted & scope.exposure)
     raise ValueError(f"content/cautions.yaml: unknown trigger '{trigger}'")
 
 
+def _exposure(project, zones) -> frozenset:
+    """The exposure conditions of ``zones`` (as the loader read them), and 'freezing' when
+    the site freezes."""
+    found = {c for z in zones for c in getattr(project.exposure.get(z.id), "conditions", ())}
+    if project.dossier.durability.freezing:
+        found.add("freezing")
+    return frozenset(found)
+
+
 def project_scope(project) -> Scope:
+    zones = project.dossier.zones
     return Scope(frozenset(b.type for b in project.binders.values()),
-                 frozenset(z.works for z in project.dossier.zones), project.dossier.project)
+                 frozenset(z.works for z in zones), project.dossier.project,
+                 _exposure(project, zones))
 
 
 def mix_scope(project, mix) -> Scope:
@@ -53,7 +67,8 @@ def mix_scope(project, mix) -> Scope:
     zones = [z for z in project.dossier.zones if mix.id in z.candidates or z.mix == mix.id]
     return Scope(frozenset(project.binders[b.binder].type for b in mix.binders
                            if b.binder in project.binders),
-                 frozenset(z.works for z in zones), project.dossier.project)
+                 frozenset(z.works for z in zones), project.dossier.project,
+                 _exposure(project, zones))
 
 
 def cautions_for(project) -> tuple[list[dict], str]:

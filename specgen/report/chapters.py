@@ -21,17 +21,28 @@ class ChapterSpec:
     template: str
     fn: Callable
     in_print: bool = True
+    volume: str = "main"  # "main" (the report) or "appendix" (register, sheets, listings)
 
 
 _CHAPTERS: dict[str, ChapterSpec] = {}
 
 
-def chapter(path: str, title: str, order: int, template: str, in_print: bool = True):
-    """Decorator registering a chapter; two chapters may not claim one path."""
+VOLUMES = ("main", "appendix")
+
+
+def chapter(path: str, title: str, order: int, template: str, in_print: bool = True,
+            volume: str = "main"):
+    """Decorator registering a chapter; two chapters may not claim one path.
+
+    ``volume`` places it in the report (``main``) or in the appendices (``appendix``):
+    the site's navigation and the PDF's two volumes follow it."""
+    if volume not in VOLUMES:
+        raise ValueError(f"chapter '{path}': volume must be one of {VOLUMES}")
+
     def deco(fn):
         if path in _CHAPTERS:
             raise ValueError(f"chapter path '{path}' is already registered")
-        _CHAPTERS[path] = ChapterSpec(path, title, order, template, fn, in_print)
+        _CHAPTERS[path] = ChapterSpec(path, title, order, template, fn, in_print, volume)
         return fn
     return deco
 
@@ -64,8 +75,10 @@ def sheet_anchor_of(code: str, subject: str) -> str:
 
 def check_rows(results, page_of_sheets: str = "calculations.md") -> list[dict]:
     """One row per check result, linking to its calculation sheet."""
+    from specgen.report.wording import reader
     return [{"code": c.code, "title": c.title, "subject": c.subject, "badge": badge(c.status),
-             "status": c.status, "value": qty(c.value, c.unit), "message": c.message,
+             "status": c.status, "value": reader(c.value) if isinstance(c.value, str) else qty(c.value, c.unit),
+             "message": reader(c.message),
              "href": f"{page_of_sheets}#{sheet_anchor(c)}"} for c in results.checks]
 
 

@@ -8,18 +8,23 @@ formulas written here.
 """
 from __future__ import annotations
 
-from specgen import refdata
 from specgen.checks import compatibility_checks as cmp
 from specgen.checks import compatibility_common as cc
 from specgen.report.chapters import badge, chapter, sheet_anchor
 from specgen.report.fmt import as_given, num, qty
+from specgen.report.wording import reader
 from specgen.science import colour
 
 #: The matrix columns: check code → short heading (the order of the columns).
 CRITERIA = {"COMP-STR-UNIT": "weaker than units", "COMP-STR-HIST": "not above historic",
             "COMP-MOIST": "moisture openness", "COMP-MOVE": "movement",
             "COMP-SALT": "salts", "COMP-GRAD": "grading", "COMP-COLOUR": "colour ΔE00"}
-FINDINGS = tuple(CRITERIA) + ("COMP-BLEND", "COMP-BA")
+#: The durability matrix: check code → short heading; SITE-SET runs per mix and DUR-SOUND per
+#: binder (the worst of the mix's binders is shown).
+DURABILITY = {"DUR-FROST": "frost", "DUR-TSA": "thaumasite", "DUR-ETT": "ettringite",
+              "DUR-SOUND": "binder soundness", "SITE-SET": "setting", "DUR-RETAIN":
+              "water retention", "DUR-BOND": "render bond", "DUR-CARB": "carbonation"}
+FINDINGS = tuple(CRITERIA) + ("COMP-BLEND", "COMP-BA") + tuple(DURABILITY)
 PROPERTIES = (("compressive_strength", "compressive strength", 1e-6, "MPa"),
               ("elastic_modulus", "elastic modulus", 1e-9, "GPa"),
               ("capillary_coefficient", "capillary coefficient", cmp.ROOT_MIN, "kg/(m²·min^0.5)"),
@@ -68,7 +73,8 @@ def _material(kind: str, m) -> dict:
 def compatibility(env) -> dict:
     p = env.project
     zones = [_zone(env, z) for z in p.dossier.zones if z.candidates]
-    return {"zones": zones, "criteria": list(CRITERIA.values()), "decides": DECIDES_TEXT}
+    return {"zones": zones, "criteria": list(CRITERIA.values()),
+            "durability": list(DURABILITY.values()), "decides": DECIDES_TEXT}
 
 
 DECIDES_TEXT = ("No standard acceptance threshold exists for the colour of repointing: a CIEDE2000 "
@@ -83,37 +89,47 @@ def _zone(env, z) -> dict:
     matrix = [{"mix": pr.mix_id, "name": pr.mix.name if pr.mix else "unknown mix",
                "cells": [_cell(env.results.check(code, pr.subject)) for code in CRITERIA]}
               for pr in pairs]
+    durability = [{"mix": pr.mix_id, "cells": [_cell(_durability_result(env, code, pr))
+                                               for code in DURABILITY]} for pr in pairs]
     findings = [{"code": c.code, "title": c.title, "subject": c.subject, "badge": badge(c.status),
-                 "message": c.message, "href": f"calculations.md#{sheet_anchor(c)}"}
+                 "message": reader(c.message), "href": f"calculations.md#{sheet_anchor(c)}"}
                 for code in FINDINGS for pr in pairs if (c := env.results.check(code, pr.subject))]
+    expose = env.results.check("DUR-EXPOSE", z.id)
     unit = pairs[0].unit if pairs else None
     hist = pairs[0].historic if pairs else None
     return {"id": z.id, "name": z.name, "works": z.works,
             "unit": f"{unit.id} — {unit.name}" if unit else "none named",
             "historic": f"{hist.id} — {hist.name}" if hist else "none named",
-            "matrix": matrix, "findings": findings,
+            "matrix": matrix, "findings": findings, "durability": durability,
+            "exposure": _cell(expose) | {"text": expose.message if expose else ""},
             # figures are numbered as they are made: make them in the order they are shown
             "figures": [f for f in (_grading_figure(env, z, pairs), _moisture_figure(env, z, pairs),
                                     _colour_figure(env, z, pairs)) if f],
             "has_colour": any(env.results.check("COMP-COLOUR", pr.subject) for pr in pairs)}
 
 
+def _durability_result(env, code: str, pr):
+    """The result shown in the durability matrix: per pair, per mix (SITE-SET) or the most
+    severe over the mix's binders (DUR-SOUND)."""
+    from specgen.checks.result import STATUSES
+    r = env.results
+    if code == "SITE-SET":
+        return r.check(code, pr.mix_id)
+    if code == "DUR-SOUND":
+        found = [c for b in (pr.mix.binders if pr.mix else []) if (c := r.check(code, b.binder))]
+        return min(found, key=lambda c: STATUSES.index(c.status)) if found else None
+    return r.check(code, pr.subject)
+
+
 def _grading_figure(env, z, pairs) -> dict | None:
     """Curves from what COMP-GRAD recorded per pair (the figure computes nothing)."""
-    p = env.project
     recorded = [(pr, env.results.value(pr.subject, "grading_curves")) for pr in pairs]
     recorded = [(pr, v) for pr, v in recorded if v]
     if not recorded:
         return None
     curves = [dict(v["repair"], label=f"{pr.mix_id} sand") for pr, v in recorded]
     first, hist = recorded[0][0], recorded[0][1]["historic"]
-    key = p.dossier.compatibility.grading_envelope
-    env_data = refdata.load("grading_envelopes").data.get(key) if key else None
-    envelope = None
-    if env_data:
-        lim = sorted(env_data["limits"], key=lambda e: e["sieve_mm"])
-        envelope = {"title": env_data["title"], "sieves_mm": [e["sieve_mm"] for e in lim],
-                    "low": [e["low"] for e in lim], "high": [e["high"] for e in lim]}
+    envelope = recorded[0][1].get("envelope")
     from specgen.report.compatibility_figures import grading_curves
     svg = grading_curves(curves, envelope, dict(
         hist, label=f"historic aggregate {first.historic.aggregate_sample}"))

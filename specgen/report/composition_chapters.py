@@ -9,6 +9,7 @@ from __future__ import annotations
 from specgen.checks.composition_checks import oxide_order
 from specgen.report.chapters import badge, chapter, sheet_anchor
 from specgen.report.fmt import BINDER_WORDS, as_given, num
+from specgen.report.wording import plain, reader
 
 MAJOR = ("SiO2", "Al2O3", "Fe2O3", "CaO", "MgO", "SO3")
 INDEX_COLUMNS = (("cementation_index", "CI"), ("hydraulic_index", "HI"),
@@ -17,7 +18,7 @@ INDEX_COLUMNS = (("cementation_index", "CI"), ("hydraulic_index", "HI"),
 
 
 def _findings(env, subject: str) -> list[dict]:
-    return [{"code": c.code, "title": c.title, "badge": badge(c.status), "message": c.message,
+    return [{"code": c.code, "title": c.title, "badge": badge(c.status), "message": reader(c.message),
              "href": f"calculations.md#{sheet_anchor(c)}"}
             for c in env.results.checks if c.subject == subject and c.code.startswith("CHEM-")]
 
@@ -94,7 +95,7 @@ def _hydration(env, p) -> dict | None:
     sets = []
     for k in (name, other):
         v = volumes[k]["volumes"]
-        sets.append({"name": k, "chosen": k == name, "h": num(v["H"], 3),
+        sets.append({"name": plain(k), "chosen": k == name, "h": num(v["H"], 3),
                      "csh": num(v["C1.7SH4"], 3), "ch": num(v["CH"], 3),
                      "shrinkage": num(volumes[k]["chemical_shrinkage"], 3),
                      "increase": num(volumes[k]["solid_volume_increase"], 3)})

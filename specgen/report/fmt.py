@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 
 #: How the dossier names each binder type of materials.yaml (one table for every page).
@@ -10,8 +11,54 @@ BINDER_WORDS = {"natural_cement": "natural cement", "nhl": "natural hydraulic li
                 "portland": "Portland cement", "pozzolan": "pozzolan"}
 
 
+#: between a value and its unit: a narrow no-break space (the unit never wraps away)
+UNIT_SPACE = "\u202f"
+MINUS = "\u2212"
+
+
+@dataclass(frozen=True)
+class Precision:
+    """How a kind of quantity is rounded for reading: ``decimals`` fixed decimals, or
+    ``significant`` figures when set; ``integer`` for counts."""
+
+    decimals: int = 2
+    significant: int = 0
+    integer: bool = False
+
+
+#: the rule per quantity kind, by the unit the kind is shown in (what the measurement
+#: supports, common practice: strengths to 0.1 MPa as lab reports give them, temperatures
+#: to 0.1 °C, densities to 1 kg/m³, site volumes to three figures, ages in whole days)
+PRECISION = {
+    "MPa": Precision(decimals=1), "GPa": Precision(decimals=1), "%": Precision(decimals=1),
+    "°C": Precision(decimals=1), "kg/m³": Precision(decimals=0), "d": Precision(integer=True),
+    "min": Precision(integer=True), "h": Precision(decimals=1), "L": Precision(significant=3),
+    "m³": Precision(significant=3), "m²": Precision(significant=3), "m": Precision(significant=3),
+    "kg": Precision(significant=3), "g": Precision(significant=3), "mm": Precision(decimals=1),
+    "m/m²": Precision(significant=3), "kJ/mol": Precision(decimals=1),
+    "kg/(m²·min^½)": Precision(significant=2), "": Precision(significant=3),
+    "count": Precision(integer=True),
+}
+#: ASCII spellings of units (as checks and data files write them) and their symbols
+UNIT_SYMBOLS = {"degC": "°C", "deg C": "°C", "m^2": "m²", "m2": "m²", "m^3": "m³", "m3": "m³",
+                "kg/m^3": "kg/m³", "kg/m3": "kg/m³", "cm^3": "cm³", "m/m^2": "m/m²",
+                "kg/(m^2·min^0.5)": "kg/(m²·min^½)", "kg/(m2·min0.5)": "kg/(m²·min^½)",
+                "currency/m^2": "currency/m²"}
+
+
+def unit_symbol(unit: str) -> str:
+    """The unit as a reader sees it: ``degC`` → ``°C``, ``m^2`` → ``m²``; ``min^½`` is set
+    as a superscript by the Markdown extension :mod:`specgen.report.mdtypo`."""
+    return UNIT_SYMBOLS.get(unit, unit) if unit else ""
+
+
+def _signed(text: str) -> str:
+    return MINUS + text[1:] if text.startswith("-") else text
+
+
 def num(value, digits: int = 4) -> str:
-    """``value`` with ``digits`` significant figures (plain text); text passes through."""
+    """``value`` with ``digits`` significant figures (plain text, a true minus sign);
+    text passes through."""
     if value is None:
         return "—"
     if isinstance(value, str):
@@ -24,21 +71,53 @@ def num(value, digits: int = 4) -> str:
         return "0"
     mag = math.floor(math.log10(abs(value)))
     decimals = max(0, digits - 1 - mag)
-    text = f"{value:.{decimals}f}"
-    return text
+    return _signed(f"{value:.{decimals}f}")
+
+
+def rounded(value, unit_or_kind: str) -> str:
+    """``value`` rounded by the rule of its quantity kind (:data:`PRECISION`), no unit."""
+    if value is None or isinstance(value, (str, bool)) or not math.isfinite(value):
+        return num(value)
+    rule = PRECISION.get(unit_symbol(unit_or_kind), Precision(significant=3))
+    if rule.integer:
+        return _signed(f"{round(value):d}")
+    if rule.significant:
+        return num(value, rule.significant)
+    text = f"{value:.{rule.decimals}f}"
+    return _signed("0" if float(text) == 0 else text)
 
 
 def as_given(value) -> str:
     """An input value as the source gave it (no padding zeros), e.g. ``5.6``, ``0.2``."""
     if isinstance(value, (int, float)) and not isinstance(value, bool):
-        return f"{value:.6g}"
+        return _signed(f"{value:.6g}")
     return num(value)
 
 
-def qty(value, unit: str, digits: int = 4) -> str:
-    """Value and unit, e.g. ``4.85 MPa``; percentages written ``12.3 %``."""
-    text = num(value, digits)
-    return f"{text} {unit}".strip() if unit else text
+def qty(value, unit: str, digits: int | None = None) -> str:
+    """Value and unit, e.g. ``4.9 MPa``, ``12.3 %`` (narrow no-break space between).
+
+    Without ``digits`` the value is rounded by the rule of its kind (:data:`PRECISION`:
+    what a reader needs); with ``digits`` it keeps that many significant figures (what a
+    calculation sheet needs to be recomputed by hand).
+    """
+    if isinstance(value, str):  # a named result (a model, a class): its words
+        from specgen.report.wording import plain
+        return plain(value)
+    symbol = unit_symbol(unit)
+    text = rounded(value, symbol) if digits is None else num(value, digits)
+    return f"{text}{UNIT_SPACE}{symbol}" if symbol and text != "—" else text
+
+
+def count(n, word: str, many: str | None = None) -> str:
+    """A count as an integer with its noun: ``1 measure``, ``2 coats``, ``0 days``."""
+    n = int(round(n))
+    return f"{n} {word if n == 1 else (many or word + 's')}"
+
+
+def date_text(day) -> str:
+    """A date as readers write it: ``27 August 2026``."""
+    return f"{day.day} {day:%B %Y}"
 
 
 def anchor(*parts: str) -> str:

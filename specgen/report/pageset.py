@@ -10,6 +10,7 @@ class NavItem:
 
     title: str
     path: str
+    volume: str = "main"  # "main" (the report) or "appendix"
 
 
 @dataclass
@@ -29,13 +30,16 @@ class PageSet:
     # site engine: a Markdown export fed to MkDocs would become a page), listed in the
     # manifest and attached to the PDF; path → bytes
     downloads: dict[str, bytes] = field(default_factory=dict)
+    # document-control marks for the print: the mark on every page ("DRAFT — not for
+    # construction", "Superseded by R4") and the cover's sign-off rows
+    marks: dict = field(default_factory=dict)
 
-    def add_page(self, path: str, title: str, text: str) -> None:
+    def add_page(self, path: str, title: str, text: str, volume: str = "main") -> None:
         if path in self.pages:
             raise ValueError(f"page '{path}' is produced twice")
         self.pages[path] = text
         self.titles[path] = title
-        self.nav.append(NavItem(title, path))
+        self.nav.append(NavItem(title, path, volume))
 
     def add_asset(self, path: str, data: bytes) -> str:
         """Store an asset once; returns its path (identical content may be added again)."""

@@ -25,6 +25,12 @@ def _names(entry: dict) -> str:
     return "; ".join(out)
 
 
+def unconfirmed(entry: dict) -> bool:
+    """Bibliographic details recalled, not yet checked: listed on the *Values to confirm*
+    page, not printed inside the entry."""
+    return "from memory" in entry.get("note", "")
+
+
 def format_entry(entry: dict) -> str:
     """One entry as plain text in a compact author–year style."""
     year = (entry.get("issued", {}).get("date-parts") or [[""]])[0][0]
@@ -41,9 +47,34 @@ def format_entry(entry: dict) -> str:
         parts.append(f"{ed}{entry.get('publisher-place', '')}: {entry['publisher']}.".lstrip(": "))
     if entry.get("DOI"):
         parts.append(f"doi:{entry['DOI']}")
-    if entry.get("note"):
+    if entry.get("note") and not unconfirmed(entry):
         parts.append(f"({entry['note']})")
     return " ".join(parts)
+
+
+def _designations() -> dict[str, str]:
+    """Bibliography key of each standard by its designation ('EN 1015-11', 'ASTM C270'),
+    the edition suffix ('/C150M') dropped."""
+    out = {}
+    for key, e in library().items():
+        if e.get("type") == "standard" and e.get("number"):
+            out[e["number"].split("/")[0].strip()] = key
+    return out
+
+
+def named_in(texts) -> list[str]:
+    """Keys of the standards whose designation appears in ``texts``, in order of first
+    appearance (a designation followed by a further part number, 'EN 1015-1' in
+    'EN 1015-11', is not taken for it)."""
+    import re
+    found: dict[str, int] = {}
+    designations = _designations()
+    for n, text in enumerate(texts):
+        for number, key in designations.items():
+            m = re.search(re.escape(number) + r"(?![\w-]*\d)", text)
+            if m and key not in found:
+                found[key] = n * 10**7 + m.start()
+    return sorted(found, key=found.get)
 
 
 class Citations:
@@ -59,6 +90,12 @@ class Citations:
         if key not in self.order:
             self.order.append(key)
         return self.order.index(key) + 1
+
+    def unconfirmed(self) -> list[dict]:
+        """Cited entries whose bibliographic details are still from memory."""
+        return [{"n": i + 1, "key": k, "text": format_entry(library()[k]),
+                 "note": library()[k]["note"]}
+                for i, k in enumerate(self.order) if unconfirmed(library()[k])]
 
     def listing(self) -> list[dict]:
         return [{"n": i + 1, "key": k, "text": format_entry(library()[k])}

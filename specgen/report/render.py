@@ -3,7 +3,9 @@
 Templates are Jinja2 files producing Markdown, looked up first in the project's
 ``templates/`` folder (the project's files win) and then in ``content/templates``.
 Autoescaping is on: every string from the project is HTML-escaped, so a name or
-note can never inject markup or script into the site or the PDF.
+note can never inject markup or script into the site or the PDF.  Every template runs
+in Jinja's sandbox (``specgen.templating.py``): a project's template is input and
+can reach only the context handed to it.
 """
 from __future__ import annotations
 
@@ -15,31 +17,32 @@ from markupsafe import Markup, escape
 
 from specgen.refdata import CONTENT_DIR
 from specgen.report.chapters import badge, chapters, sheet_anchor
-from specgen.report.fmt import as_given, num, qty
+from specgen.report.fmt import as_given, num, qty, unit_symbol
 from specgen.report.mathsvg import MathAssets
 from specgen.report.pageset import PageSet
 from specgen.report.references import Citations
+from specgen.templating import project_template_errors, project_templates, sandboxed
+from specgen.report.wording import reader, rule_label, symbol
 
 
 def template_env(project_root) -> jinja2.Environment:
-    """Jinja environment: project templates first, then ours."""
+    """Sandboxed Jinja environment: project templates first, then ours."""
     loaders = []
-    if project_root is not None and (project_root / "templates").is_dir():
-        loaders.append(jinja2.FileSystemLoader(str(project_root / "templates")))
+    if (own := project_templates(project_root)) is not None:
+        loaders.append(jinja2.FileSystemLoader(str(own)))
     loaders.append(jinja2.FileSystemLoader(str(CONTENT_DIR / "templates")))
-    env = jinja2.Environment(loader=jinja2.ChoiceLoader(loaders), autoescape=True,
-                             undefined=jinja2.StrictUndefined, trim_blocks=True,
-                             lstrip_blocks=True, keep_trailing_newline=True)
+    env = sandboxed(jinja2.ChoiceLoader(loaders), undefined=jinja2.StrictUndefined,
+                    trim_blocks=True, lstrip_blocks=True, keep_trailing_newline=True)
     env.filters["num"] = num
     env.filters["cell"] = lambda v: Markup(str(escape(v)).replace("|", "&#124;").replace("\n", " "))
-    env.filters["plain"] = plain
+    env.filters["inert"] = inert
     return env
 
 
 _MARKDOWN_SIGNS = re.compile(r"([\\`*_{}\[\]()#+\-.!|~])")
 
 
-def plain(value) -> Markup:
+def inert(value) -> Markup:
     """Text from outside (a reviewer's comment) shown as text: neither HTML nor Markdown
     can take effect, line breaks become spaces."""
     text = " ".join(str(value).split())
@@ -58,6 +61,7 @@ class RenderEnv:
     citations: Citations = field(default_factory=Citations)
     figures: list = field(default_factory=list)
     tables: int = 0
+    number: str = ""  # the number of the chapter being prepared ("7"; "B" in the appendix)
     deferred: list = field(default_factory=list)
 
     def later(self, fn) -> Markup:
@@ -97,26 +101,33 @@ class RenderEnv:
 
     def sheet(self, c) -> dict:
         """Context of one calculation sheet, straight from the check result."""
-        steps = [{"title": s.title, "formula": self.math.img(s.formula),
+        # the sheet keeps four significant figures: enough to recompute by hand
+        steps = [{"title": reader(s.title), "formula": self.math.img(s.formula),
                   "substituted": self.math.img(s.substituted),
-                  "result": qty(s.result, s.unit), "symbol": s.symbol,
-                  "inputs": [{"symbol": i.symbol, "name": i.name, "value": as_given(i.value),
-                              "unit": i.unit or "—", "source": i.source} for i in s.inputs]}
+                  "result": qty(s.result, s.unit, 4), "symbol": symbol(s.symbol),
+                  "inputs": [{"symbol": symbol(i.symbol), "name": reader(i.name),
+                              "value": as_given(i.value) if not isinstance(i.value, str)
+                              else reader(i.value), "unit": unit_symbol(i.unit) or "—",
+                              "source": reader(i.source)} for i in s.inputs]}
                  for s in c.steps]
-        bases = [{"text": b.text(), "cite": self.cite(b), "kind": b.kind} for b in c.basis]
+        bases = [{"text": reader(b.text()), "cite": self.cite(b), "kind": b.kind}
+                 for b in c.basis]
         limit = None
         if c.limit:
-            limit = {"text": c.limit.text, "rule": c.limit.rule, "overridden": c.limit.overridden}
+            limit = {"text": reader(c.limit.text), "rule": rule_label(c.limit.rule),
+                     "overridden": c.limit.overridden}
         return {"anchor": sheet_anchor(c), "code": c.code, "title": c.title, "subject": c.subject,
-                "badge": badge(c.status), "message": c.message, "steps": steps, "bases": bases,
-                "limit": limit, "value": qty(c.value, c.unit), "notes": list(c.notes)}
+                "badge": badge(c.status), "message": reader(c.message), "steps": steps,
+                "bases": bases, "limit": limit, "value": qty(c.value, c.unit, 4),
+                "notes": [reader(n) for n in c.notes]}
 
 
-def render(project, results, history=None) -> PageSet:
+def render(project, results, history=None, superseded: str | None = None) -> PageSet:
     """Render every registered chapter into a page set (narrative placed by file name).
 
     ``history`` (:class:`specgen.publish.history.History`) gives earlier revisions and
     the change report; without it the dossier is rendered as a first revision.
+    ``superseded`` names the issued revision that superseded this one (its pages say so).
     """
     pageset = PageSet()
     env = RenderEnv(project, results, pageset, MathAssets(pageset), history)
@@ -124,17 +135,43 @@ def render(project, results, history=None) -> PageSet:
     jenv.globals["table"] = env.table
     base = {"project": project.dossier.project, "revision": project.revision,
             "narrative": {}}
-    for spec in chapters():
-        for path, title, made in _pages_of(spec, spec.fn(env)):
-            ctx = dict(base, **made, title=title)
-            stem = path.rsplit(".", 1)[0]
-            ctx["narrative"] = _narrative_for(project, "introduction" if stem == "index" else stem)
-            text = jenv.get_template(spec.template).render(**ctx)
-            pageset.add_page(path, title, text)
+    numbers = chapter_numbers(chapters())
+    with project_template_errors(getattr(project, "root", None)):
+        for spec in chapters():
+            env.number = numbers.get(spec.path, "")
+            made = _pages_of(spec, spec.fn(env))
+            for i, (path, title, ctx) in enumerate(made, start=1):
+                if env.number:  # a family of pages is numbered within its chapter: 6.1, 6.2 …
+                    title = f"{env.number}.{i} {title}" if len(made) > 1 or path != spec.path \
+                        else f"{env.number} {title}"
+                ctx = dict(base, **ctx, title=title)
+                stem = path.rsplit(".", 1)[0]
+                ctx["narrative"] = _narrative_for(
+                    project, "introduction" if stem == "index" else stem)
+                text = jenv.get_template(spec.template).render(**ctx)
+                pageset.add_page(path, title, text, volume=spec.volume)
     _resolve_later(env, pageset)
     from specgen.report.review import CONTEXT_ASSET, review_context
     pageset.add_asset(CONTEXT_ASSET, review_context(project))
+    from specgen.report.marks import apply_marks
+    apply_marks(pageset, project, results, superseded)
     return pageset
+
+
+def chapter_numbers(specs) -> dict[str, str]:
+    """The dossier's own section numbers: the report's chapters 1, 2, 3 … after the
+    summary (which stands before them unnumbered), the appendices A, B, C …"""
+    out, main, appendix = {}, 0, 0
+    for spec in specs:
+        if spec.path == "index.md":
+            continue
+        if spec.volume == "appendix":
+            out[spec.path] = chr(ord("A") + appendix)
+            appendix += 1
+        else:
+            main += 1
+            out[spec.path] = str(main)
+    return out
 
 
 def _resolve_later(env: RenderEnv, pageset: PageSet) -> None:

@@ -9,8 +9,7 @@ from specgen.report.review import open_by_category, place_markdown, place_of
 
 @chapter("changes.md", "Changes in this revision", 12, "changes.md.j2")
 def changes(env) -> dict:
-    h = env.history
-    ch = h.changes if h else None
+    ch = env.results.changes
     if not ch:
         return {"previous": None}
     rows = []
@@ -23,7 +22,8 @@ def changes(env) -> dict:
                      "delta": qty(c["delta"], c["unit"]) if c["delta"] is not None else "—",
                      "href": f"calculations.md#{sheet_anchor_of(c['code'], c['subject'])}"
                      if c["new_status"] else None})
-    return {"previous": h.previous, "inputs": ch["inputs"], "specimens": ch["specimens"],
+    return {"previous": ch["from"], "decision": ch.get("decision_lines", []),
+            "inputs": ch["inputs"], "specimens": ch["specimens"],
             "checks": rows, "comments": ch["comments"], "answered": _answered(env),
             "status_changes": sum(1 for c in ch["checks"] if c["old_status"] != c["new_status"])}
 
@@ -50,13 +50,15 @@ def history(env) -> dict:
     rows = env.history.revisions if env.history else [
         {"code": env.project.revision.code, "date": env.project.revision.date.isoformat(),
          "status": env.project.revision.status, "description": env.project.revision.description,
-         "current": True}]
+         "facts": env.results.facts, "current": True}]
     return {"revisions": list(reversed(rows))}
 
 
 @chapter("comments.md", "Review comments", 88, "comments.md.j2")
 def comments(env) -> dict:
     checks = {f"{c.code}/{c.subject}": c for c in env.results.checks}
+    # open comments whose subject changed in this revision: put to the specifier by the audit
+    asked = {f.subject for f in env.results.findings if f.code == "AUD-COMMENT"}
     rows = []
     for c in env.project.comments:
         rows.append({"id": c.id, "slug": c.id.lower(), "raised": c.raised_in, "about": c.about,
@@ -66,7 +68,7 @@ def comments(env) -> dict:
                      "date": c.date.isoformat() if c.date else "", "quote": c.quote,
                      "place": env.later(lambda pages, c=c: place_markdown(c, pages)),
                      "text": c.text, "status": c.status, "response": c.response or "—",
-                     "closed": c.closed_in or ""})
+                     "closed": c.closed_in or "", "answered": c.id in asked})
     return {"rows": rows, "open": sum(1 for r in rows if r["status"] == "open"),
             "by_category": open_by_category(env.project.comments)}
 

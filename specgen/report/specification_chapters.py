@@ -11,8 +11,9 @@ from markupsafe import Markup, escape
 from specgen.checks.result import STATUS_WORDS
 from specgen.checks.specification_checks import applicable
 from specgen.report.chapters import badge, chapter
-from specgen.report.fmt import anchor, as_given, num, qty
+from specgen.report.fmt import anchor, as_given, num, qty, unit_symbol
 from specgen.report.specification_clauses import clause_context
+from specgen.report.wording import reader
 
 STATE_CLASS = {"open": "hold", "released": "pass"}
 
@@ -25,7 +26,7 @@ def _href(key: str) -> str:
 def _cell(c) -> dict:
     if c is None:
         return {"badge": Markup("—"), "value": "", "href": ""}
-    value = "" if c.status == "not_assessed" or c.value is None else qty(c.value, c.unit, 3)
+    value = "" if c.status == "not_assessed" or c.value is None else qty(c.value, c.unit)
     return {"badge": Markup(badge(c.status)), "value": value, "href": _href(c.key)}
 
 
@@ -45,11 +46,17 @@ def specification(env) -> dict:
         if r.value(z.id, "selected_mix"):
             chosen[z.id] = p.mixes[r.value(z.id, "selected_mix")]
             clauses[z.id] = clause_context(p, r, z, chosen[z.id])
+            # clauses numbered within the dossier's sections: chapter.zone.clause (9.2.3)
+            clauses[z.id]["number"] = f"{env.number}.{len(clauses)}" if env.number \
+                else str(len(clauses))
     zones = [_zone(env, z, jenv, clauses.get(z.id)) for z in p.dossier.zones]
     exports = _exports(env, jenv, chosen, clauses) if spec else []
+    regime, holds, panels = _regime(r, p), _hold_points(p, r), _panels(env)
+    if spec:
+        _chapter_document(env, jenv, zones, clauses, regime, holds)
     return {"has_spec": spec is not None, "zones": zones, "exports": exports,
-            "regime": _regime(r, p), "hold_points": _hold_points(p, r),
-            "panels": _panels(env), "currency": spec.doc.currency if spec else ""}
+            "regime": regime, "hold_points": holds, "tests": _tests_asked(p, r),
+            "chapter_docx": _chapter_path(p) if spec else "", "panels": panels, "currency": spec.doc.currency if spec else ""}
 
 
 def _zone(env, zone, jenv, clause_ctx) -> dict:
@@ -62,16 +69,18 @@ def _zone(env, zone, jenv, clause_ctx) -> dict:
     return {"id": zone.id, "name": zone.name, "works": zone.works, "matrix": _matrix(env, zone),
             "selected": chosen, "mix_name": p.mixes[chosen].name if chosen else "",
             "badge": Markup(badge(sel.status)) if sel else "", "status": sel.status if sel else "",
-            "message": sel.message if sel else "", "href": _href(sel.key) if sel else "",
+            "status_word": STATUS_WORDS[sel.status] if sel else "not assessed",
+            "message": reader(sel.message) if sel else "", "href": _href(sel.key) if sel else "",
             "rationale": s.rationale if s else "", "justification": s.justification if s else "",
-            "notes": list(sel.notes) if sel else [], "clauses": clauses,
+            "notes": [reader(n) for n in sel.notes] if sel else [], "clauses": clauses,
+            "clause_number": clause_ctx["number"] if clause_ctx else "",
             "n_failed": len(failed), "failed_links": Markup("; ").join(
                 Markup('<a href="{}">{}</a> {}').format(f["href"], f["key"], f["title"])
                 for f in failed)}
 
 
 def _failed(results, project, zone_id: str, mix_id: str) -> list[dict]:
-    return [{"key": c.key, "title": c.title, "href": _href(c.key), "message": c.message}
+    return [{"key": c.key, "title": c.title, "href": _href(c.key), "message": reader(c.message)}
             for c in applicable(results.checks, project, zone_id, mix_id) if c.status == "fail"]
 
 
@@ -103,22 +112,93 @@ def _clauses(jenv, c) -> Markup:
                                                                           ref=_ref_link))
 
 
+class _Cited:
+    """``ref`` for the plain exports: writes ``[CODE/subject]`` and remembers what it cited,
+    so the document can end with the list of its sources."""
+
+    def __init__(self, results) -> None:
+        self.results, self.keys = results, []
+
+    def __call__(self, key: str) -> Markup:
+        if key and key not in self.keys:
+            self.keys.append(key)
+        return _ref_plain(key)
+
+    def sources(self) -> list[dict]:
+        out = []
+        for key in self.keys:
+            code, _, subject = key.partition("/")
+            c = self.results.check(code, subject)
+            if c is not None:
+                out.append({"key": key, "title": c.title,
+                            "basis": "; ".join(_basis_words(b) for b in c.basis)
+                            or "see its calculation sheet"})
+        return out
+
+
+def _basis_words(basis) -> str:
+    """A basis as a reader reads it: the work cited in full (with the clause), or its kind."""
+    from specgen.report.references import format_entry, library
+    entry = library().get(basis.ref) if basis.kind == "reference" else None
+    if entry is None:
+        return basis.text()
+    return format_entry(entry).rstrip(".") + (f", {basis.clause}" if basis.clause else "")
+
+
+def _plain_document(env, jenv, template: str, stem: str, title: str, **ctx) -> str:
+    """Render one plain document (Markdown) and publish it as .md, .html (for the zone
+    exports) and .docx, from the same text."""
+    from specgen.report.specification_docx import docx_bytes, marking
+    from specgen.report.specification_export import html_fragment
+    p = env.project
+    cited = _Cited(env.results)
+    md = jenv.get_template(template).render(
+        ref=cited, sources=cited.sources, project=p.dossier.project, revision=p.revision,
+        marking=marking(p.revision), **ctx)
+    md = md.replace("&#39;", "'").replace("&#34;", '"')  # quotes are plain text here
+    fragment = html_fragment(md)
+    env.pageset.add_download(f"{stem}.docx", docx_bytes(
+        fragment, title=title, mark=f"{p.dossier.project.code}, {marking(p.revision)}",
+        date=p.revision.date))
+    return md
+
+
 def _exports(env, jenv, chosen, clauses) -> list[dict]:
-    """Per zone with a choice: the clauses as Markdown and as a clean HTML fragment."""
+    """Per zone with a choice: the clauses as Markdown, a clean HTML fragment and DOCX."""
     from specgen.report.specification_export import html_fragment
     p = env.project
     out = []
     for z in (z for z in p.dossier.zones if z.id in chosen):
         mix, c = chosen[z.id], clauses[z.id]
-        md = jenv.get_template("specification_export.md.j2").render(
-            c=c, h="##", ref=_ref_plain, project=p.dossier.project, revision=p.revision,
-            cautions=_card_cautions(p, mix))
         stem = f"exports/{p.dossier.project.code}-{p.revision.code}-{z.id}-specification"
-        md = md.replace("&#39;", "'").replace("&#34;", '"')  # quotes are plain text here
+        md = _plain_document(env, jenv, "specification_export.md.j2", stem,
+                             f"Specification of zone {z.id}: {z.name}", c=c, h="##",
+                             cautions=_card_cautions(p, mix))
         env.pageset.add_download(f"{stem}.md", md.encode("utf-8"))
         env.pageset.add_download(f"{stem}.html", html_fragment(md).encode("utf-8"))
-        out.append({"zone": z.id, "md": f"{stem}.md", "html": f"{stem}.html"})
+        out.append({"zone": z.id, "md": f"{stem}.md", "html": f"{stem}.html",
+                    "docx": f"{stem}.docx"})
     return out
+
+
+def _chapter_path(project) -> str:
+    return f"exports/{project.dossier.project.code}-{project.revision.code}-specification.docx"
+
+
+def _chapter_document(env, jenv, zones, clauses, regime, holds) -> None:
+    """The whole chapter as one DOCX: the choices, each zone's clauses, regime, hold points."""
+    p = env.project
+    everything, closing = _all_cautions(p)
+    _plain_document(env, jenv, "specification_document.md.j2",
+                    _chapter_path(p).removesuffix(".docx"), f"Specification: {p.dossier.project.title}",
+                    zones=zones, clauses=clauses, regime=regime, hold_points=holds,
+                    cautions={"items": everything, "closing": closing})
+
+
+def _all_cautions(project):
+    from specgen.report.cautions import cautions_for
+    everything, closing = cautions_for(project)
+    return [{"title": c["title"], "text": c["text"]} for c in everything], closing
 
 
 def _card_cautions(project, mix) -> dict:
@@ -140,7 +220,7 @@ def _regime(results, project) -> dict:
         if res is None:
             continue
         if not settings and res.steps:
-            settings = [{"name": i.name, "value": as_given(i.value), "unit": i.unit, "source": i.source}
+            settings = [{"name": i.name, "value": as_given(i.value), "unit": unit_symbol(i.unit), "source": reader(i.source)}
                         for i in res.steps[0].inputs if i.symbol in ("n_min", "a", "p", "k")]
         rows.append({"zone": z.id, "badge": Markup(badge(res.status)), "href": _href(res.key),
                      "area": qty(z.area, "m²", 3) if z.area else "—",
@@ -148,7 +228,7 @@ def _regime(results, project) -> dict:
                      "days": as_given(q["working_days"]) if q and q["working_days"] else "—",
                      "sets": as_given(q["sets"]) if q else "—",
                      "prisms": as_given(q["prisms"]) if q else "—",
-                     "message": res.message})
+                     "message": reader(res.message)})
     return {"rows": rows, "settings": settings, "acceptance": _acceptance_rows(results, project)}
 
 
@@ -178,10 +258,23 @@ def _hold_points(project, results) -> list[dict]:
         out.append({"id": hid, "what": spec.what, "stage": h["stage"], "role": h["released_by"],
                     "party": names.get(h["released_by"], ""), "state": state_badge(h["state"]),
                     "released_in": h["released_in"] or "", "evidence": h["evidence"],
+                    "state_word": h["state"],
                     "history": " → ".join(f"{rev}: {s}" for rev, s in h["history"].items()),
                     "check": h["check"] or "", "check_badge": Markup(badge(chk.status))
                     if chk else "", "check_href": _href(chk.key) if chk else ""})
     return out
+
+
+def _tests_asked(project, results) -> list[dict]:
+    """The tests the durability checks ask for, per zone (DUR-TESTS): each holds the zone."""
+    rows = []
+    for z in project.dossier.zones:
+        c = results.check("DUR-TESTS", z.id)
+        for t in results.value(z.id, "durability_tests") or []:
+            rows.append({"zone": z.id, "test": t["test"], "method": t["method"], "why": t["why"],
+                         "check": t["check"], "href": _href(t["check"]),
+                         "badge": Markup(badge(c.status)) if c else ""})
+    return rows
 
 
 def _check_of(results, ref: str):

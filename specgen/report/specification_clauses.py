@@ -18,7 +18,8 @@ def clause_context(project, results, zone, mix) -> dict:
             "weather": _weather(project, results), "acceptance": _acceptance(results, zone, mix),
             "sampling": _sampling(results.value(zone.id, "sample_sets")),
             "non_conformance": _non_conformance(project),
-            "colour": _colour(project, results, zone, mix)}
+            "colour": _colour(project, results, zone, mix),
+            "durability": _durability(results, zone, mix)}
 
 
 def _materials(project, results, zone, mix) -> dict:
@@ -55,6 +56,7 @@ def _proportions(results, zone, mix) -> dict:
     life = results.value(mix.id, "workable_life")
     vmax = (results.value(mix.id, "max_gauging_volume") or {}).get(zone.id)
     gauge = results.check("SITE-GAUGE", mix.id)
+    setting = results.check("SITE-SET", mix.id)
     return {"names": " : ".join(names), "volume": volume,
             "mass": " : ".join(num(by_mass[n], 3) for n in names) if by_mass else "",
             "wb": as_given(mix.water_binder_ratio) if mix.water_binder_ratio else "",
@@ -63,6 +65,9 @@ def _proportions(results, zone, mix) -> dict:
             "life": as_given(life["value"]) if life else "",
             "life_measured": bool(life and life["measured"]),
             "gauge_message": gauge.message if gauge is not None and not gauging else "",
+            "setting": {"initial": as_given(round(mix.setting.initial / 60, 2)),
+                        "final": as_given(round(mix.setting.final / 60, 2)),
+                        "source": setting.key if setting else ""} if mix.setting else None,
             "sources": {"mass": f"MIX-YIELD/{mix.id}", "gauging": f"SITE-GAUGE/{mix.id}"}}
 
 
@@ -118,8 +123,26 @@ def _colour(project, results, zone, mix) -> dict | None:
               and tp.zone in (None, zone.id) and tp.judgement == "accepted" and tp.judged_dry]
     if c is None and not panels:
         return None
-    return {"limit": c.limit.text if c is not None and c.limit else "",
-            "source": c.key if c is not None else "", "panels": ", ".join(panels)}
+    lim = c.limit if c is not None else None
+    # a reading outside the limit is said in the clause itself, never left for the reader to find
+    outside = (lim is not None and lim.compare == "<=" and lim.high is not None
+               and isinstance(c.value, (int, float)) and c.value > lim.high)
+    sel = project.specification.selection_for(zone.id) if project.specification else None
+    justified = bool(sel and any(ref in (c.code, c.key) for ref in sel[1].covers)) if c else False
+    return {"limit": lim.text if lim else "", "source": c.key if c is not None else "",
+            "panels": ", ".join(panels), "measured": num(c.value, 3) if outside else "",
+            "justified": justified}
+
+
+def _durability(results, zone, mix) -> dict | None:
+    """The zone's exposure class and the durability tests asked for (DUR-EXPOSE, DUR-TESTS)."""
+    ex = results.check("DUR-EXPOSE", zone.id)
+    tests = results.value(zone.id, "durability_tests") or []
+    if ex is None and not tests:
+        return None
+    return {"designation": ex.value if ex is not None and ex.status != "not_assessed" else "",
+            "exposure_source": ex.key if ex is not None else "",
+            "tests": [dict(t) for t in tests], "tests_source": f"DUR-TESTS/{zone.id}"}
 
 
 def _sampling(q: dict | None) -> dict | None:

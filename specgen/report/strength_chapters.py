@@ -11,6 +11,7 @@ from __future__ import annotations
 from specgen.checks.rules import RuleBook
 from specgen.report.chapters import badge, chapter, sheet_anchor
 from specgen.report.fmt import num
+from specgen.report.wording import plain, reader
 
 TERMS = {"early_fraction": ("early (fast-stage) fraction", ""),
          "tau_fast_d": ("fast-stage time constant", "d"),
@@ -29,17 +30,17 @@ def strength(env) -> dict:
     return {"mixes": mixes, "has_data": bool(mixes),
             "warning": next((n for n in (site.notes if site else ()) if "must be measured" in n),
                             ""),
-            "energy": f"{energy.value} ({energy.source})" if energy else "",
+            "energy": f"{energy.value} ({plain(energy.source)})" if energy else "",
             "method": (r.value(site.subject, "equivalent_age") or {}).get("method", "").replace(
                 "_", "-") if site else "",
-            "site": p.site_temperature.source if p.site_temperature else "",
+            "site": plain(p.site_temperature.source) if p.site_temperature else "",
             "limit": f"{rules['strength.extrapolation_limit'].value:g}",
             "level": f"{100 * rules['strength.confidence_level'].value:g} %"}
 
 
 def _mix(env, mix, rules) -> dict:
     r = env.results
-    results = [{"code": c.code, "title": c.title, "badge": badge(c.status), "message": c.message,
+    results = [{"code": c.code, "title": c.title, "badge": badge(c.status), "message": reader(c.message),
                 "href": f"calculations.md#{sheet_anchor(c)}"}
                for c in r.checks if c.subject == mix.id and c.code.startswith("STR-")]
     means = r.value(mix.id, "mean_strength") or {}

@@ -11,6 +11,7 @@ from specgen.report import works_schedule as ws
 from specgen.report.cautions import card_cautions
 from specgen.report.chapters import badge, chapter, sheet_anchor
 from specgen.report.fmt import as_given, num
+from specgen.report.wording import reader
 
 CALC = "calculations.md"
 
@@ -18,7 +19,7 @@ CALC = "calculations.md"
 def _link(c) -> dict | None:
     if c is None:
         return None
-    return {"href": f"{CALC}#{sheet_anchor(c)}", "badge": badge(c.status), "message": c.message}
+    return {"href": f"{CALC}#{sheet_anchor(c)}", "badge": badge(c.status), "message": reader(c.message)}
 
 
 @chapter("works.md", "Mixes, quantities and batching", 60, "works.md.j2")
@@ -65,7 +66,7 @@ def _zone(env, z: ws.ZoneSchedule) -> dict:
             "wastage": as_given(z.wastage) if z.wastage is not None else None,
             "joint_length": num(z.joint_length, 4) if z.joint_length else None,
             "heads": [m.mix_id for m in z.mixes], "rows": _zone_rows(z), "check": _link(c),
-            "reason": c.message if c is not None and c.status == "not_assessed" else ""}
+            "reason": reader(c.message) if c is not None and c.status == "not_assessed" else ""}
 
 
 def _zone_rows(z: ws.ZoneSchedule) -> list[dict]:
@@ -117,6 +118,11 @@ def cards(env) -> list[dict]:
     return pages
 
 
+def _rule(env, key: str) -> float:
+    from specgen.checks.rules import RuleBook
+    return RuleBook(env.project.dossier.rule_overrides)[key].value
+
+
 def _card(env, mix, g: dict) -> dict:
     p, r = env.project, env.results
     life = r.value(mix.id, "workable_life")
@@ -126,6 +132,8 @@ def _card(env, mix, g: dict) -> dict:
             "halved_from": as_given(g["halved_from_L"]) if g["halved_from_L"] else None,
             "volume": num(g["volume_L"], 3), "water": num(g["water_L"], 3),
             "life": as_given(life["value"]), "life_measured": life["measured"],
-            "steps": ws.card_steps(p, mix, g), "zones": ws.card_zones(r, mix.id),
+            "steps": ws.card_steps(p, mix, g),
+            "zones": ws.card_zones(r, mix.id, _rule(env, "works.max_gaugings_per_day")),
+            "most_per_day": as_given(_rule(env, "works.max_gaugings_per_day")),
             "weather": _weather(window, None), "cautions": cautions, "closing": closing,
             "check": _link(env.results.check("SITE-GAUGE", mix.id))}

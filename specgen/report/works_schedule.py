@@ -129,20 +129,37 @@ def to_csv(zones: list[ZoneSchedule]) -> bytes:
 def card_steps(project, mix, g: dict) -> list[dict]:
     """The card's steps in the order of mixing: water (and admixtures), sands, binders, mixing."""
     steps = [{"kind": "water", "litres": f"{g['water_L']:.2f}",
-              "kg": f"{g['mass_kg'][wc.WATER]:.3f}"}]
+              "kg": f"{g['mass_kg'][wc.WATER]:.2f}"}]
     steps += [{"kind": "admixture", "name": a.name, "purpose": a.purpose,
                "grams": f"{g['admixture_g'][a.name]:.1f}"} for a in mix.admixtures]
     for kind, parts in (("sand", [s.sand for s in mix.sands]),
                         ("binder", [b.binder for b in mix.binders])):
         steps += [{"kind": kind, "name": label(project, mix, k),
-                   "measures": f"{g['measures'][k]:g}", "litres": f"{g['loose_L'][k]:g}",
-                   "kg": f"{g['mass_kg'][k]:.3f}"} for k in parts]
+                   "measures": site_count(g["measures"][k]), "litres": f"{g['loose_L'][k]:g}",
+                   "kg": f"{g['mass_kg'][k]:.2f}"} for k in parts]
     steps += [{"kind": "dry"}, {"kind": "wet"}, {"kind": "place"}]
     return [dict(s, n=i + 1) for i, s in enumerate(steps)]
 
 
-def card_zones(results, mix_id: str) -> list[dict]:
+FRACTIONS = {0.25: "¼", 0.5: "½", 0.75: "¾"}
+
+
+def site_count(n: float) -> str:
+    """A number of measures as a site team says it: ``2``, ``1½``, ``¾``."""
+    whole, rest = int(n + 1e-9), round(n - int(n + 1e-9), 3)
+    part = FRACTIONS.get(rest)
+    if part is None:
+        return f"{n:g}"
+    return f"{whole}{part}" if whole else part
+
+
+def card_zones(results, mix_id: str, most_per_day: float) -> list[dict]:
+    """Per zone: the largest gauging placed in time, the card mixes made at once, and the
+    gaugings a day (with a warning above ``most_per_day``, the rule of common practice)."""
     vmax = results.value(mix_id, "max_gauging_volume") or {}
-    per_day = results.value(mix_id, "gaugings_per_day") or {}
-    return [{"zone": z, "vmax": f"{v:.3g}", "per_day": per_day.get(z, "—")}
+    by_zone = results.value(mix_id, "gauging_by_zone") or {}
+    return [{"zone": z, "vmax": f"{v:.3g}", "times": by_zone.get(z, {}).get("times", 1),
+             "volume": f"{by_zone.get(z, {}).get('volume_L', 0):.3g}",
+             "per_day": by_zone.get(z, {}).get("per_day", "—"),
+             "busy": by_zone.get(z, {}).get("per_day", 0) > most_per_day}
             for z, v in vmax.items()]

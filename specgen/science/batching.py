@@ -13,8 +13,8 @@ tool of volume V_m the binder is gauged in; sands are gauged in the same measure
 the mix's proportions), so that the card can be followed without arithmetic:
 
     Y_b = V_fresh / V_binder,loose       (fresh mortar per m³ of loose binder, from the yield)
-    N   = ⌊V_max / (V_m · Y_b)⌋          binder measures per gauging (V_m halved while N = 0,
-                                         down to the smallest measure the site keeps)
+    N   = ⌊V_max / (V_m · Y_b)⌋          binder measures per gauging (V_m the largest of the
+                                         site's real measures, up to the one named, with N ≥ 1)
     V_g = N · V_m · Y_b                  fresh volume of the gauging
     n   = ⌈q · T / V_g⌉                  gaugings per working day of length T
 
@@ -52,19 +52,21 @@ def binder_measures(v_max: float, measure: float, fresh_per_loose_binder: float)
 
 
 def fitting_measure(v_max: float, measure: float, fresh_per_loose_binder: float,
-                    smallest: float) -> tuple[float, int]:
-    """(V_m, N): the measure halved until one binder measure fits in V_max, not below ``smallest``.
+                    measures) -> tuple[float, int]:
+    """(V_m, N): the largest of the site's real ``measures`` (m³), not above ``measure``,
+    of which one binder measure fits in V_max.
 
-    A crew gauging a quick-setting binder reaches for a smaller scoop rather than
-    a fraction of a measure; halving keeps the card free of fractions.  N is 0 when
-    even the smallest measure makes too much mortar.
+    A crew gauging a quick-setting binder reaches for a smaller scoop rather than a
+    fraction of a measure.  N is 0 when even the smallest measure makes too much mortar
+    (V_m is then the smallest).
     """
-    _positive(smallest=smallest)
-    n = binder_measures(v_max, measure, fresh_per_loose_binder)
-    while n < 1 and measure / 2 >= smallest * (1 - 1e-9):
-        measure /= 2
-        n = binder_measures(v_max, measure, fresh_per_loose_binder)
-    return measure, n
+    kept = sorted((m for m in measures if m <= measure * (1 + 1e-9)), reverse=True) or [measure]
+    for m in kept:
+        _positive(measure=m)
+        n = binder_measures(v_max, m, fresh_per_loose_binder)
+        if n >= 1:
+            return m, n
+    return kept[-1], 0
 
 
 def gaugings_per_day(placing_rate: float, working_day: float, gauging_volume: float) -> int:

@@ -11,7 +11,8 @@ import re
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
-from specgen.science.oxides import ChemistryInputError, loss_free, loss_on_ignition, validate
+from specgen.science.oxides import (ChemistryInputError, combined_water, loss_free,
+                                    loss_on_ignition, validate)
 
 _TOKEN = re.compile(r"([A-Z][a-z]?)|(\d+(?:\.\d+)?)|([()])|([·*])")
 
@@ -217,11 +218,14 @@ def clay_fraction(ox: Mapping[str, float], atomic_weights: Mapping[str, float],
     """
     validate(ox, required=("SiO2", "CO2"))
     if method == "oxide_sum":
-        water = ox.get("H2O", loss_on_ignition(ox) - ox["CO2"])
+        water = combined_water(ox)
         if water < 0:
-            raise ChemistryInputError("CO2 exceeds LOI: combined water would be negative")
+            raise ChemistryInputError("CO2 (with the moisture and organic matter reported) "
+                                      "exceeds LOI: combined water would be negative")
         value = ox["SiO2"] + ox.get("Al2O3", 0.0) + ox.get("Fe2O3", 0.0) + water
-        text = "SiO2 + Al2O3 + Fe2O3 + combined water (LOI - CO2)"
+        text = ("SiO2 + Al2O3 + Fe2O3 + combined water ("
+                + ("H2O+ as reported" if "H2O" in ox else "LOI - CO2 - moisture - organic matter")
+                + ")")
     elif method == "residue":
         carb = carbonate_content(ox, atomic_weights)
         value = 100.0 - carb.caco3 - carb.mgco3 - ox.get("SO3", 0.0)

@@ -38,6 +38,7 @@ class Grading:
     cumulative: tuple[float, ...]      # cumulative fraction retained
     passing: tuple[float, ...]         # cumulative fraction passing
     pan: float                         # fraction passing the finest sieve
+    series: str = ""                   # key of the sieve series it was graded on ('' unknown)
 
 
 def match_sieve(size: float, series: Sequence[float]) -> float | None:
@@ -144,6 +145,26 @@ def passing_at(g: Grading, sieves: Sequence[float]) -> np.ndarray:
     return np.array(out)
 
 
+def interpolated_passing(g: Grading, size: float) -> float | None:
+    """Passing of ``g`` at ``size`` read between its sieves, linear in log(aperture).
+
+    On a sieve of ``g`` the value is the measured one; above the top sieve it is 1 when all
+    passed there; below the finest sieve it is 0 only when nothing passed it.  Otherwise
+    (outside the tested range) ``None``: no extrapolation.
+    """
+    m = match_sieve(size, g.sieves)
+    if m is not None:
+        return g.passing[g.sieves.index(m)]
+    if size > g.sieves[0]:
+        return 1.0 if g.passing[0] >= 1.0 - 1e-9 else None
+    if size < g.sieves[-1]:
+        return 0.0 if g.passing[-1] <= 1e-9 else None
+    for (s1, p1), (s2, p2) in zip(zip(g.sieves, g.passing), zip(g.sieves[1:], g.passing[1:])):
+        if s2 <= size <= s1:
+            return p2 + (p1 - p2) * float(np.log(size / s2) / np.log(s1 / s2))
+    return None
+
+
 @dataclass(frozen=True)
 class EnvelopeComparison:
     """Passing against an envelope on each of its sieves (fractions); ``outside`` > 0 if out."""
@@ -153,19 +174,36 @@ class EnvelopeComparison:
     low: tuple[float, ...]
     high: tuple[float, ...]
     outside: tuple[float, ...]          # distance outside the band (0 inside)
+    interpolated: tuple[bool, ...] = ()  # True where the passing was read between sieves
 
     @property
     def within(self) -> bool:
         return all(d <= 1e-9 for d in self.outside)
 
 
-def compare_envelope(g: Grading, envelope: Sequence[tuple[float, float, float]]) -> EnvelopeComparison:
-    """Compare with an envelope given as (sieve m, low, high) fractions passing."""
-    sv = [e[0] for e in envelope]
-    p = passing_at(g, sv)
-    lo, hi = np.array([e[1] for e in envelope]), np.array([e[2] for e in envelope])
-    out = np.maximum(lo - p, 0.0) + np.maximum(p - hi, 0.0)
-    return EnvelopeComparison(tuple(sv), tuple(p), tuple(lo), tuple(hi), tuple(out))
+def compare_envelope(g: Grading, envelope: Sequence[tuple[float, float, float]],
+                     interpolate: bool = False) -> EnvelopeComparison:
+    """Compare with an envelope given as (sieve m, low, high) fractions passing.
+
+    With ``interpolate`` the passing on an envelope sieve that the analysis lacks is read
+    between its sieves (:func:`interpolated_passing`); sieves it cannot reach are left out
+    (the caller lists them).
+    """
+    rows = []
+    for s, lo, hi in envelope:
+        exact = known_at(g, s)
+        if exact:
+            rows.append((s, float(passing_at(g, [s])[0]), lo, hi, False))
+        elif interpolate and (v := interpolated_passing(g, s)) is not None:
+            rows.append((s, v, lo, hi, True))
+        elif not interpolate:
+            raise GradingInputError(f"no result on the {s * 1000:g} mm sieve")
+    if not rows:
+        raise GradingInputError("the analysis reaches none of the envelope's sieves")
+    sv, p, lo, hi, interp = (tuple(col) for col in zip(*rows))
+    pa, loa, hia = np.array(p), np.array(lo), np.array(hi)
+    out = np.maximum(loa - pa, 0.0) + np.maximum(pa - hia, 0.0)
+    return EnvelopeComparison(sv, tuple(float(v) for v in pa), lo, hi, tuple(out), interp)
 
 
 @dataclass(frozen=True)
@@ -188,9 +226,21 @@ def common_sieves(*gradings: Grading) -> list[float]:
 
 
 def deviation(a: Grading, b: Grading) -> Deviation:
-    """Root-mean-square and largest difference of passing between two gradings."""
-    sv = common_sieves(a, b)
-    d = passing_at(a, sv) - passing_at(b, sv)
+    """Root-mean-square and largest difference of passing between two gradings.
+
+    On their common sieves; gradings on two different series share none, so ``b`` is then
+    read on the sieves of ``a`` by :func:`interpolated_passing` (within its tested range).
+    """
+    if a.series and b.series and a.series != b.series:
+        sv = [s for s in a.sieves if interpolated_passing(b, s) is not None]
+        if len(sv) < 2:
+            raise GradingInputError("the gradings share fewer than two sieves, even read "
+                                    "between the sieves of the other series")
+        pb = np.array([interpolated_passing(b, s) for s in sv])
+    else:
+        sv = common_sieves(a, b)
+        pb = passing_at(b, sv)
+    d = passing_at(a, sv) - pb
     return Deviation(tuple(sv), tuple(d), float(np.sqrt(np.mean(d ** 2))), float(np.max(np.abs(d))))
 
 
@@ -201,8 +251,9 @@ def blend(gradings: Sequence[Grading], fractions: Sequence[float]) -> Grading:
         raise GradingInputError("blend fractions must be non-negative and sum to 1")
     sv = common_sieves(*gradings)
     p = sum(fi * passing_at(g, sv) for fi, g in zip(f, gradings))
+    series = {g.series for g in gradings}
     return Grading(tuple(sv), tuple(np.concatenate([[1 - p[0]], -np.diff(p)])),
-                   tuple(1 - p), tuple(p), float(p[-1]))
+                   tuple(1 - p), tuple(p), float(p[-1]), series.pop() if len(series) == 1 else "")
 
 
 @dataclass(frozen=True)
@@ -241,22 +292,34 @@ def volume_to_mass_fractions(parts: Sequence[float], bulk_densities: Sequence[fl
 class BinderAggregate:
     """Binder:aggregate of a historic mortar from acid digestion (aggregate = 1)."""
 
-    binder_mass: float                  # kg
+    binder_mass: float                  # kg, as found (acid-soluble loss)
     aggregate_mass: float               # kg
-    by_mass: float                      # binder / aggregate, by mass
+    by_mass: float                      # binder / aggregate, by mass (binder as found)
     by_volume: float | None             # binder / aggregate, by loose volume
+    binder_loss: float = 0.0            # fraction of the binder as found lost on ignition
+    by_mass_loss_free: float | None = None  # binder net of its CO2 and bound water
 
 
 def binder_aggregate(sample_mass: float, residue_mass: float,
                      binder_bulk_density: float | None = None,
-                     aggregate_bulk_density: float | None = None) -> BinderAggregate:
-    """Acid digestion: residue = aggregate, loss = binder; ratio by mass and by volume."""
+                     aggregate_bulk_density: float | None = None,
+                     binder_loss: float | None = None) -> BinderAggregate:
+    """Acid digestion: residue = aggregate, loss = binder; ratio by mass and by volume.
+
+    ``binder_loss`` (0–1, the loss on ignition of the binder fraction's analysis) removes the
+    CO2 taken up in carbonation and the bound water, which are not binder as batched:
+    binder = (m_s − m_r)·(1 − LOI).  The ratio by volume then uses that binder mass.
+    """
     if sample_mass <= 0 or residue_mass <= 0:
         raise GradingInputError("sample and residue masses must be greater than zero")
     if residue_mass >= sample_mass:
         raise GradingInputError("the insoluble residue must be lighter than the sample")
+    if binder_loss is not None and not 0 <= binder_loss < 1:
+        raise GradingInputError("the binder's loss on ignition must lie in 0–100 %")
     binder = sample_mass - residue_mass
+    net = binder * (1 - binder_loss) if binder_loss is not None else binder
     vol = None
     if binder_bulk_density and aggregate_bulk_density:
-        vol = (binder / binder_bulk_density) / (residue_mass / aggregate_bulk_density)
-    return BinderAggregate(binder, residue_mass, binder / residue_mass, vol)
+        vol = (net / binder_bulk_density) / (residue_mass / aggregate_bulk_density)
+    return BinderAggregate(binder, residue_mass, binder / residue_mass, vol, binder_loss or 0.0,
+                           net / residue_mass if binder_loss is not None else None)

@@ -75,8 +75,8 @@ def _history(times_s, temps_k, valid_range) -> tuple[np.ndarray, np.ndarray]:
 def arrhenius_factor(temp_k, activation_energy, t_ref_k: float):
     """Age conversion factor ``exp[-(E/R)(1/T - 1/Tref)]`` (ASTM C1074); T, Tref in K.
 
-    ``activation_energy`` (J/mol) is a number, or a function of temperature (K) giving it,
-    e.g. :func:`fhp_energy` for the temperature-dependent form."""
+    ``activation_energy`` (J/mol) is one value, one per temperature, or a function of
+    temperature (K) giving it, e.g. :func:`fhp_energy` for the temperature-dependent form."""
     if callable(activation_energy):
         activation_energy = np.asarray(activation_energy(np.asarray(temp_k, float)), float)
     e = np.asarray(activation_energy, float)
@@ -89,9 +89,14 @@ def arrhenius_factor(temp_k, activation_energy, t_ref_k: float):
 
 def equivalent_age_arrhenius(times_s: Sequence[float], temps_k, *, activation_energy,
                              t_ref_k: float, valid_range=VALID_RANGE_K) -> np.ndarray:
-    """Cumulative Arrhenius equivalent age (s at Tref) at each time of the history."""
+    """Cumulative Arrhenius equivalent age (s at Tref) at each time of the history.
+
+    ``activation_energy`` is a constant (J/mol) or a function of the temperature (K), e.g.
+    :func:`activation_energy_fhp`, applied to each interval's average temperature."""
     t, temp = _history(times_s, temps_k, valid_range)
     ta = 0.5 * (temp[1:] + temp[:-1])           # ASTM C1074: average temperature of interval
+    if callable(activation_energy):
+        activation_energy = np.array([activation_energy(float(x)) for x in ta])
     rate = arrhenius_factor(ta, activation_energy, t_ref_k)
     return np.concatenate([[0.0], np.cumsum(rate * np.diff(t))])
 

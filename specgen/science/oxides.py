@@ -17,9 +17,11 @@ class ChemistryInputError(ValueError):
     """An analysis (or a reference table) the chemistry functions cannot use."""
 
 
-#: Constituents that leave on ignition.  ``LOI`` is the measured total; ``CO2`` and
-#: ``H2O`` are its parts when reported, never added to it a second time.
-LOSS_KEYS = ("LOI", "CO2", "H2O")
+#: Constituents that leave on ignition (content/data/constituents.yaml, kind 'loss').
+#: ``LOI`` is the measured total; ``CO2``, ``H2O`` (combined water, H2O+), ``H2O-``
+#: (moisture) and ``organic`` (organic matter) are its parts when reported, never added to
+#: it a second time.
+LOSS_KEYS = ("LOI", "CO2", "H2O", "H2O-", "organic")
 
 #: Scheme behind :func:`hydraulic_index` (say it whenever the index is shown).
 HYDRAULIC_INDEX_SCHEME = "Vicat hydraulic index HI = (S + A + F) / (C + M)"
@@ -74,10 +76,19 @@ def validate(ox: Mapping[str, float], required: Sequence[str] = ("CaO", "SiO2"),
 
 
 def loss_on_ignition(ox: Mapping[str, float]) -> float:
-    """LOI in mass %: the reported ``LOI``, else ``CO2 + H2O`` where given, else 0."""
+    """LOI in mass %: the reported ``LOI``, else the sum of its reported parts (CO2,
+    combined water, moisture, organic matter), else 0."""
     if "LOI" in ox:
         return float(ox["LOI"])
-    return float(ox.get("CO2", 0.0) + ox.get("H2O", 0.0))
+    return float(sum(ox.get(k, 0.0) for k in LOSS_KEYS[1:]))
+
+
+def combined_water(ox: Mapping[str, float]) -> float:
+    """Combined water (H2O+) in mass %: as reported, else LOI less the other losses
+    reported (CO2, moisture, organic matter)."""
+    if "H2O" in ox:
+        return float(ox["H2O"])
+    return loss_on_ignition(ox) - sum(float(ox.get(k, 0.0)) for k in ("CO2", "H2O-", "organic"))
 
 
 @dataclass(frozen=True)
@@ -130,7 +141,7 @@ def _checked_split(key: str, value: float,
 def loss_free(ox: Mapping[str, float]) -> dict[str, float]:
     """Renormalise to the loss-free (ignited) basis: oxide × 100 / (100 − LOI), mass %.
 
-    The loss constituents (``LOI``, ``CO2``, ``H2O``) are dropped.
+    The loss constituents (``LOSS_KEYS``) are dropped.
     """
     validate(ox, required=())
     factor = 100.0 / (100.0 - loss_on_ignition(ox))

@@ -11,7 +11,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 
 from specgen.science.calcination import molar_mass
-from specgen.science.oxides import ChemistryInputError, validate
+from specgen.science.oxides import LOSS_KEYS, ChemistryInputError, validate
 
 #: Phase formulas written as oxide sums, for their molar masses.
 FORMULAS = {
@@ -29,7 +29,7 @@ ASSIGNMENTS = {
 
 #: Oxides the calculation consumes; the rest of the analysis is "other".  Losses other
 #: than CO2 (LOI, combined water) are not assigned to any phase.
-CONSUMED_OXIDES = frozenset({"CaO", "SiO2", "Al2O3", "Fe2O3", "MgO", "SO3", "CO2", "LOI", "H2O"})
+CONSUMED_OXIDES = frozenset({"CaO", "SiO2", "Al2O3", "Fe2O3", "MgO", "SO3"}) | frozenset(LOSS_KEYS)
 
 #: Phases counted as crystalline in the crystalline/amorphous split.
 CRYSTALLINE = frozenset({"C2S", "C3A", "C4AF", "C2F", "C2AS", "free lime", "periclase",

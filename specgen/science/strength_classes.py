@@ -12,8 +12,8 @@ Both comparisons are descriptive: the binder is not tested to those standards' m
 unless the laboratory says so.
 
 Acceptance: a prediction band either clears a limit (``pass``), lies wholly on the wrong
-side (``fail``) or straddles it (``hold``).  For a hold, :func:`recommend_test_age`
-names the later test age expected to decide, by the rule stated in ``SHRINK_RULE``.
+side (``fail``) or straddles it (``hold``).  For a hold, the later test age that would
+decide is named by the strength checks (``checks/strength_prior_common.hold_age``).
 """
 from __future__ import annotations
 
@@ -22,19 +22,12 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import stats
 
 from specgen.science.strength_models import (
-    DAY, MAX_EXTRAPOLATION, FitResult, StrengthExtrapolationError, predict)
+    DAY,
+)
 
 _MPA = 1e6
-
-SHRINK_RULE = ("testing n specimens at age a is expected to replace the model's band at a by "
-               "the confidence interval of their mean, half-width "
-               "h(a) = t(1-α/2, n-1)·CV·f(a)/√n with CV the replicate coefficient of "
-               "variation so far; the earliest candidate age after the last test at "
-               "which |f(a) - limit| > h(a) is expected to decide")
-
 
 class ClassInputError(ValueError):
     """A class table, limit or prediction the comparison cannot use."""
@@ -60,18 +53,6 @@ class ClassComparison:
     matches: tuple[str, ...]
     lines: tuple[str, ...]
     source: str
-
-
-@dataclass(frozen=True)
-class Recommendation:
-    """Later test age expected to decide a hold (``age`` None: none of the candidates)."""
-
-    age: float | None
-    expected_value: float | None     # Pa, model's central estimate at that age
-    half_width: float | None         # Pa, expected half-width after testing there
-    expected_status: str | None      # 'pass' or 'fail' as then expected
-    rule: str
-    reason: str
 
 
 def classes_from_table(table: Mapping) -> tuple[StrengthClass, ...]:
@@ -157,40 +138,6 @@ def accept(value: float, lower: float, upper: float, limit: float, kind: str) ->
     if kind == "max":
         return "pass" if upper <= limit else "fail" if lower > limit else "hold"
     raise ClassInputError(f"limit kind must be 'min' or 'max'; got {kind!r}")
-
-
-def recommend_test_age(fit: FitResult, limit_pa: float, kind: str,
-                       candidates_s: Sequence[float], *, cv: float, n_specimens: int = 3,
-                       level: float = 0.95,
-                       max_factor: float = MAX_EXTRAPOLATION) -> Recommendation:
-    """Later test age expected to decide a held limit, by ``SHRINK_RULE``.
-
-    ``candidates_s`` (s) e.g. 56, 90, 180, 365 d; ``cv`` the replicate CV (ratio);
-    candidates at or before the last tested age, or beyond ``max_factor`` of it, are skipped.
-    """
-    _positive(limit_pa, "limit")
-    if kind not in ("min", "max"):
-        raise ClassInputError(f"limit kind must be 'min' or 'max'; got {kind!r}")
-    if not math.isfinite(cv) or cv < 0 or int(n_specimens) != n_specimens or n_specimens < 2:
-        raise ClassInputError("cv must be >= 0 and n_specimens a whole number >= 2")
-    tq = float(stats.t.ppf(0.5 + level / 2.0, n_specimens - 1))
-    later = sorted(a for a in candidates_s if a > fit.age_max)
-    for a in later:
-        try:
-            p = predict(fit, a, level, max_factor)
-        except StrengthExtrapolationError:
-            break
-        h = tq * cv * p.value / math.sqrt(n_specimens)
-        if abs(p.value - limit_pa) > h:
-            above = p.value > limit_pa
-            status = "pass" if above == (kind == "min") else "fail"
-            return Recommendation(a, p.value, h, status, SHRINK_RULE,
-                                  f"test {n_specimens} specimens at {a / DAY:g} d: expected "
-                                  f"{_mpa(p.value)} ± {_mpa(h)} against {kind} {_mpa(limit_pa)}")
-    tried = ", ".join(f"{a / DAY:g} d" for a in later) or "none after the last test"
-    return Recommendation(None, None, None, None, SHRINK_RULE,
-                          f"no candidate age is expected to decide (tried {tried}); the "
-                          "predicted strength stays within test scatter of the limit")
 
 
 def pooled_cv(cvs: Sequence[float], ns: Sequence[int]) -> float:

@@ -9,7 +9,7 @@ from hypothesis import strategies as st
 from specgen import refdata
 from specgen.science.calcination import (
     ChemistryInputError, carbonate_content, check_firing, clay_fraction, clay_range_check,
-    co2_balance, compare_fired, expected_fired, loss_fraction, molar_mass, oxides_from_minerals,
+    co2_balance, co2_per_oxide, compare_fired, expected_fired, loss_fraction, molar_mass, oxides_from_minerals,
     parse_formula, residual_carbonate, stages_to_kelvin)
 from specgen.science.oxides import loss_on_ignition
 
@@ -183,3 +183,25 @@ def test_mass_balance_closes(masses):
 def test_non_oxide_mineral_refused():
     with pytest.raises(ChemistryInputError, match="oxygen does not balance"):
         oxides_from_minerals({"FeS2": 5.0}, AW)
+
+
+@pytest.mark.parametrize("oxide, carbonate, loss", [
+    # DOMAIN primer sec. 2 (computed from atomic weights): CaCO3 loses 43.97 % of its mass as
+    # CO2, MgCO3 52.20 %; so one gram of the oxide carries loss/(100 - loss) g of CO2:
+    ("CaO", "CaCO3", 43.97),    # 43.97/56.03 = 0.78476
+    ("MgO", "MgCO3", 52.20),    # 52.20/47.80 = 1.09205
+])
+def test_co2_per_oxide(oxide, carbonate, loss):
+    got = co2_per_oxide(oxide, AW)
+    assert got == pytest.approx(loss / (100 - loss), abs=3e-4)
+    # reference library: periodictable molar masses
+    ref = periodictable.formula("CO2").mass / periodictable.formula(oxide).mass
+    assert got == pytest.approx(ref, rel=1e-4)
+
+
+@pytest.mark.parametrize("element", sorted(refdata.load("atomic_weights").data))
+def test_every_atomic_weight_matches_periodictable(element):
+    # Reference library: periodictable (IUPAC standard atomic weights); content/data/
+    # atomic_weights.yaml is confirmed by this comparison, so it carries no 'memory' tag.
+    assert refdata.load("atomic_weights").data[element] == pytest.approx(
+        getattr(periodictable, element).mass, rel=1e-4)

@@ -133,3 +133,67 @@ def test_binder_aggregate_from_acid_digestion():
     assert r.by_volume == pytest.approx(0.640074, abs=1e-6)
     with pytest.raises(GradingInputError, match="lighter than the sample"):
         binder_aggregate(0.05, 0.06)
+
+
+# The sieve matching helpers, on a series written out here (ASTM E11 / C136 apertures, mm,
+# from memory) so that a change of the shipped series table does not move these checks.
+ASTM_MM = [9.5, 4.75, 2.36, 1.18, 0.6, 0.3, 0.15, 0.075]
+ASTM = [s * MM for s in ASTM_MM]
+
+
+@pytest.mark.parametrize("size_mm, expected_mm", [
+    (0.6, 0.6), (0.600, 0.6), (4.75, 4.75),
+    (1.2, 1.18),          # 1.7 % off the 1.18 mm aperture: within 2 % (SAME_SIEVE), same sieve
+    (0.15 * 1.019, 0.15),  # 1.9 % above: same sieve
+    (0.15 * 1.021, None),  # 2.1 % above: another sieve
+    (0.15 * 0.981, 0.15), (0.15 * 0.979, None),
+    (1.0, None), (0.5, None), (2.0, None),   # ISO 565 R20 sizes are not on the 2:1 series
+])
+def test_match_sieve_within_two_percent(size_mm, expected_mm):
+    from specgen.science.grading import match_sieve
+    got = match_sieve(size_mm * MM, ASTM)
+    if expected_mm is None:
+        assert got is None
+    else:
+        assert got == pytest.approx(expected_mm * MM, rel=1e-12)
+        assert got in ASTM          # the standard aperture itself, not the typed size
+
+
+def test_known_at_and_passing_at_coarser_than_the_top_sieve():
+    from specgen.science.grading import known_at, passing_at
+    all_through = from_passing([4.75 * MM, 2.36 * MM, 1.18 * MM], [1.0, 0.9, 0.6], ASTM)
+    short = from_passing([4.75 * MM, 2.36 * MM, 1.18 * MM], [0.97, 0.9, 0.6], ASTM)
+    # all passed 4.75 mm, so 9.5 mm passes 100 % too; with 3 % retained on 4.75 mm nothing is
+    # known of 9.5 mm; a sieve finer than the finest sieve of the analysis is never known
+    assert known_at(all_through, 9.5 * MM) and not known_at(short, 9.5 * MM)
+    assert not known_at(all_through, 0.6 * MM)
+    assert known_at(all_through, 1.2 * MM)                # 1.2 typed for 1.18
+    assert list(passing_at(all_through, [9.5 * MM, 2.36 * MM, 1.2 * MM])) == [1.0, 0.9, 0.6]
+    with pytest.raises(GradingInputError, match="no result on the 9.5 mm sieve"):
+        passing_at(short, [9.5 * MM])
+
+
+def test_common_sieves_coarsest_first_and_refused_below_two():
+    from specgen.science.grading import common_sieves
+    a = from_passing([4.75 * MM, 2.36 * MM, 1.18 * MM, 0.6 * MM], [1.0, 0.9, 0.6, 0.3], ASTM)
+    b = from_passing([2.36 * MM, 1.18 * MM, 0.6 * MM, 0.3 * MM], [0.95, 0.7, 0.4, 0.1], ASTM)
+    c = from_passing([0.6 * MM, 0.3 * MM, 0.15 * MM], [0.5, 0.2, 0.05], ASTM)
+    assert common_sieves(a, b) == [2.36 * MM, 1.18 * MM, 0.6 * MM]
+    assert common_sieves(b, a) == [2.36 * MM, 1.18 * MM, 0.6 * MM]
+    assert common_sieves(b, c) == [0.6 * MM, 0.3 * MM]
+    with pytest.raises(GradingInputError, match="the gradings share fewer than two sieves"):
+        common_sieves(a, c)                    # only 0.6 mm in common
+    # deviation on the common sieves, by hand: a - b = -0.05, -0.10, -0.10;
+    # RMS = sqrt((0.0025 + 0.01 + 0.01)/3) = 0.086603, largest 0.10
+    d = deviation(a, b)
+    assert d.difference == pytest.approx((-0.05, -0.10, -0.10), abs=1e-12)
+    assert d.rms == pytest.approx(0.086603, abs=1e-6) and d.max_abs == pytest.approx(0.10)
+
+
+def test_sieve_off_the_series_and_repeated_sieve_are_refused():
+    with pytest.raises(GradingInputError, match=r"sieve 1 mm is not in the standard series "
+                                                r"\(0.075, 0.15, 0.3, 0.6, 1.18, 2.36, 4.75, "
+                                                r"9.5 mm\)"):
+        from_passing([2.36 * MM, 1.0 * MM], [0.9, 0.6], ASTM)
+    with pytest.raises(GradingInputError, match="a sieve appears twice in the analysis"):
+        from_passing([1.18 * MM, 1.2 * MM], [0.9, 0.6], ASTM)

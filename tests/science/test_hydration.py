@@ -109,7 +109,18 @@ def test_powers_with_belite_bookkeeping():
     assert bal.product_volume_per_kg * 1e3 == pytest.approx(0.6835, abs=2e-4)
     low, high = (powers(wb, 1.0, BENTZ["C2S"], bal.product_volume_per_kg, BENTZ["H"])
                  for wb in (0.45, 0.8))
-    assert 0 < low.capillary_porosity < high.capillary_porosity
+    # Powers' volumes per kg of binder written out (alpha = 1): V0 = 1/rho_b + (w/b)/rho_w,
+    # p = (V0 - v_p)/V0 with v_p = 6.8354e-4 m3/kg (above), Bentz C2S 3280, water 997.1:
+    #   w/b 0.45: V0 = 3.04878e-4 + 4.51309e-4 = 7.56187e-4 -> p = 0.72647/7.56187 = 0.0961
+    #   w/b 0.80: V0 = 3.04878e-4 + 8.02327e-4 = 11.07205e-4 -> p = 4.23665/11.07205 = 0.3826
+    for state, wb, by_hand in ((low, 0.45, 0.0961), (high, 0.8, 0.3826)):
+        v0 = 1 / BENTZ["C2S"] + wb / BENTZ["H"]
+        p = (v0 - bal.product_volume_per_kg) / v0
+        assert state.capillary_porosity == pytest.approx(p, rel=1e-9)
+        assert p == pytest.approx(by_hand, abs=2e-4)
+        # gel-space ratio: product volume / (product volume + capillary space)
+        x = bal.product_volume_per_kg / (bal.product_volume_per_kg + p * v0)
+        assert state.gel_space_ratio == pytest.approx(x, rel=1e-9)
 
 
 @pytest.mark.parametrize("args, message", [

@@ -74,6 +74,33 @@ def test_fhp_activation_energy_below_twenty_degrees():
     assert activation_energy_fhp(K + 25, E, b["slope"], b["split_temperature"]) == E
 
 
+def test_equivalent_age_below_twenty_degrees_with_the_fhp_activation_energy():
+    # Freiesleben Hansen & Pedersen (from memory): E(T) = 33.5 + 1.47 (20 - T) kJ/mol below
+    # 20 °C, 33.5 above; ASTM C1074 factor per interval at its average temperature.  By hand
+    # (R = 8.314462618 J/(mol K), CODATA via scipy.constants):
+    #   5 °C: E = 55.55 kJ/mol, E/R = 6681.13 K, 1/278.15 - 1/293.15 = 1.83960e-4
+    #         -> exp(-1.22907) = 0.29257  (constant 33.5 kJ/mol would give 0.47654)
+    #   15 °C: E = 40.85 kJ/mol, E/R = 4913.13 K, 1/288.15 - 1/293.15 = 5.91918e-5
+    #         -> exp(-0.290817) = 0.74765
+    #   an interval averaging 20 °C (10 and 30 °C readings) takes E = 33.5 kJ/mol: factor 1.
+    b = DEF["activation_energy"]["below_reference"]
+    e_of_t = lambda tk: activation_energy_fhp(tk, E, b["slope"], b["split_temperature"])  # noqa: E731
+    times = np.array([0, 1, 2, 3, 4]) * DAY
+    temps = K + np.array([5, 5, 15, 10, 30.0])   # interval averages 5, 10, 12.5, 20 °C
+    te = equivalent_age_arrhenius(times, temps, activation_energy=e_of_t, t_ref_k=TREF)
+    f = [math.exp(-((E + b["slope"] * (20 - c)) / constants.R)
+                  * (1 / (K + c) - 1 / TREF)) for c in (5, 10, 12.5)]
+    assert f[0] == pytest.approx(0.29257, abs=1e-5)
+    assert f[1] == pytest.approx(0.49738, abs=1e-5)       # 10 °C: E = 48.2 kJ/mol
+    assert te / DAY == pytest.approx(np.cumsum([0, f[0], f[1], f[2], 1.0]), rel=1e-12)
+    seven = equivalent_age_arrhenius([0, 7 * DAY], K + 15, activation_energy=e_of_t,
+                                     t_ref_k=TREF)
+    assert seven[-1] / DAY == pytest.approx(7 * 0.74765, abs=1e-4)     # 5.2336 d
+    # the constant default gives a visibly older mortar in the cold: 7 x 0.78782 = 5.5147 d
+    const = equivalent_age_arrhenius([0, 7 * DAY], K + 15, activation_energy=E, t_ref_k=TREF)
+    assert const[-1] / DAY == pytest.approx(5.5147, abs=1e-4)
+
+
 @pytest.mark.parametrize("times, temps, words", [
     ([0, DAY, 2 * DAY], [K + 20, K - 15, K + 20], "-15.0 °C at reading 2 is below the range"),
     ([0, DAY], [K + 20, K + 70], "70.0 °C at reading 2 is above the range"),

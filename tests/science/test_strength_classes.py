@@ -1,16 +1,18 @@
 """EN 459-1 / ASTM C270 descriptive classes, pass/fail/hold and the later test age."""
 import math
 
-import numpy as np
 import pytest
-from scipy import stats
 
 from specgen import refdata
-from specgen.science import strength_models as sm
 from specgen.science.strength_classes import (
-    SHRINK_RULE, ClassInputError, accept, classes_from_table, compare_ranges, pooled_cv,
-    recommend_test_age, strongest_minimum)
-from specgen.science.strength_models import DAY, fit_model, predict
+    ClassInputError,
+    accept,
+    classes_from_table,
+    compare_ranges,
+    pooled_cv,
+    strongest_minimum,
+)
+from specgen.science.strength_models import DAY
 
 MPA = 1e6
 TABLES = refdata.load("strength_classes").data
@@ -88,49 +90,78 @@ def test_accept_bad_input(args, words):
         accept(*args)
 
 
-def _fit_to_28_days():
-    # Invented natural-cement-like results to 28 d (two-component truth, CV 5 %)
-    t = np.repeat([1.0, 3, 7, 14, 28], 3)
-    rng = np.random.default_rng(11)
-    y = sm.MODELS["two_component"].f(np.array([1.5, 1 / 24, 10.0, 90.0, 1.2]), t)
-    return fit_model("two_component", t * DAY, y * (1 + 0.05 * rng.standard_normal(t.size)) * MPA)
-
-
-def test_hold_recommends_first_deciding_age_by_the_stated_rule():
-    fit = _fit_to_28_days()
-    p28 = predict(fit, 28 * DAY)
-    limit = p28.value                          # band at 28 d straddles it: hold
-    assert accept(p28.value, p28.lower, p28.upper, limit, "min") == "hold"
-    rec = recommend_test_age(fit, limit, "min", CANDIDATES, cv=0.05, n_specimens=3)
-    assert rec.age == 56 * DAY and rec.expected_status == "pass"
-    # The rule by hand: h = t(0.975, 2) * CV * f(56 d) / sqrt(3), t from scipy.stats
-    f56 = predict(fit, 56 * DAY).value
-    assert rec.half_width == pytest.approx(stats.t.ppf(0.975, 2) * 0.05 * f56 / math.sqrt(3))
-    assert rec.expected_value - limit > rec.half_width and rec.rule == SHRINK_RULE
-    # A limit half a test half-width below the 56-d estimate is not decided at 56 d; the
-    # next candidate (90 d) decides if its margin exceeds its own half-width.
-    h56 = rec.half_width
-    limit2 = f56 - 0.5 * h56
-    f90 = predict(fit, 90 * DAY).value
-    h90 = stats.t.ppf(0.975, 2) * 0.05 * f90 / math.sqrt(3)
-    assert f90 - limit2 > h90
-    later = recommend_test_age(fit, limit2, "min", CANDIDATES, cv=0.05, n_specimens=3)
-    assert later.age == 90 * DAY and later.half_width == pytest.approx(h90)
-
-
-def test_hold_on_a_maximum_and_no_candidate_deciding():
-    fit = _fit_to_28_days()
-    f90 = predict(fit, 90 * DAY).value
-    rec = recommend_test_age(fit, 2 * f90, "max", CANDIDATES, cv=0.05)
-    assert rec.expected_status == "pass" and rec.age == 56 * DAY
-    none = recommend_test_age(fit, f90, "min", [90 * DAY], cv=0.05)
-    assert none.age is None and "no candidate age is expected to decide" in none.reason
-    with pytest.raises(ClassInputError, match="n_specimens"):
-        recommend_test_age(fit, f90, "min", CANDIDATES, cv=0.05, n_specimens=1)
-
-
 def test_pooled_cv():
     # By hand: sqrt((2*0.04² + 2*0.06²) / 4) = sqrt(0.0026) = 0.05099
     assert pooled_cv([0.04, 0.06, 0.0], [3, 3, 1]) == pytest.approx(0.050990, abs=1e-6)
     with pytest.raises(ClassInputError):
         pooled_cv([0.0], [1])
+
+
+def test_comparison_lines_word_for_word():
+    # EN 459-1 ranges (from memory) at 4 MPa: NHL 2 (2-7) within, NHL 3.5 (3.5-10) within,
+    # NHL 5 (5-15, and >= 2 MPa at 7 d) outside
+    cmp_ = compare_ranges(4e6, EN459, standard="EN 459-1", source="table")
+    assert (cmp_.standard, cmp_.source) == ("EN 459-1", "table")
+    assert cmp_.lines[:2] == ("NHL 2: 2 MPa to 7 MPa at 28 d -> within",
+                              "NHL 3.5: 3.5 MPa to 10 MPa at 28 d -> within")
+    assert "NHL 5: 5 MPa to 15 MPa at 28 d -> outside" in cmp_.lines
+    # at 6 MPa with a 7-d result of 1.5 MPa: NHL 5 is in range but its 7-d minimum is not met
+    early = compare_ranges(6e6, EN459, standard="EN 459-1", source="t", early_pa=1.5e6)
+    assert "NHL 5: 5 MPa to 15 MPa at 28 d -> within; 7-d 1.5 MPa is below 2 MPa" in early.lines
+    assert "NHL 5" not in early.matches
+    met = compare_ranges(6e6, EN459, standard="EN 459-1", source="t", early_pa=2.0e6)
+    assert "NHL 5: 5 MPa to 15 MPa at 28 d -> within; 7-d 2 MPa meets 2 MPa" in met.lines
+    assert "NHL 5" in met.matches                       # the 7-d minimum is inclusive
+    none = compare_ranges(6e6, EN459, standard="EN 459-1", source="t")
+    assert ("NHL 5: 5 MPa to 15 MPa at 28 d -> within; the 7-d minimum 2 MPa is not checked "
+            "(no result at that age)") in none.lines
+    # ASTM C270 (property specification, as quoted in the DOMAIN primer: N 5.2 MPa, S 12.4):
+    # 5.2 MPa meets N exactly (the minimum is inclusive), not S
+    c270 = strongest_minimum(5.2e6, C270, standard="ASTM C270", source="s")
+    assert c270.matches == ("N",)
+    assert "S: min 12.4 MPa at 28 d -> not met" in c270.lines
+    assert "N: min 5.2 MPa at 28 d -> met" in c270.lines
+    assert strongest_minimum(0.4e6, C270, standard="ASTM C270", source="s").matches == ()
+
+
+@pytest.mark.parametrize("value, lower, upper, limit, kind, status", [
+    # band edges exactly on the limit (rule in the docstring): min passes at lower == limit,
+    # max passes at upper == limit; fails only strictly beyond
+    (3.0, 2.0, 4.0, 2.0, "min", "pass"),
+    (3.0, 2.0, 4.0, 4.0, "min", "hold"),
+    (3.0, 2.0, 4.0, 4.0000001, "min", "fail"),
+    (3.0, 2.0, 4.0, 4.0, "max", "pass"),
+    (3.0, 2.0, 4.0, 2.0, "max", "hold"),
+    (3.0, 2.0, 4.0, 1.9999999, "max", "fail"),
+    (3.0, 3.0, 3.0, 3.0, "min", "pass"),      # a zero-width band on the limit
+])
+def test_accept_at_the_edges(value, lower, upper, limit, kind, status):
+    assert accept(value, lower, upper, limit, kind) == status
+
+
+@pytest.mark.parametrize("call, message", [
+    (lambda: accept(3.0, 3.5, 4.0, 2.0, "min"),
+     "the band [3.5, 4] Pa must contain the value 3"),
+    (lambda: accept(3.0, 2.0, 4.0, 2.0, "mean"), "limit kind must be 'min' or 'max'; got 'mean'"),
+    (lambda: accept(float("nan"), 2.0, 4.0, 2.0, "min"),
+     "value, band and limit must be finite numbers; got (nan, 2.0, 4.0, 2.0)"),
+    (lambda: compare_ranges(0.0, EN459, standard="x", source="y"),
+     "strength must be a positive number of Pa; got 0.0"),
+    (lambda: strongest_minimum(-1.0, C270, standard="x", source="y"),
+     "strength must be a positive number of Pa; got -1.0"),
+    (lambda: pooled_cv([0.05], [1]), "pooled CV needs at least one group with two or more results"),
+    (lambda: pooled_cv([0.05, 0.04], [3]),
+     "pooled CV needs at least one group with two or more results"),
+])
+def test_class_refusals_word_for_word(call, message):
+    with pytest.raises(ClassInputError) as exc:
+        call()
+    assert str(exc.value) == message
+
+
+def test_pooled_cv_by_hand():
+    # sqrt(((3-1) 0.05² + (4-1) 0.08² + (1-1) 0.5²) / (2 + 3)) = sqrt((0.005 + 0.0192)/5)
+    # = sqrt(0.00484) = 0.069570; the single-result group (n = 1) carries no weight
+    assert pooled_cv([0.05, 0.08, 0.5], [3, 4, 1]) == pytest.approx(0.069570, abs=1e-6)
+    assert pooled_cv([0.05, 0.08], [2, 2]) == pytest.approx(math.sqrt((0.0025 + 0.0064) / 2),
+                                                            rel=1e-12)

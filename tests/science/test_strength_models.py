@@ -14,11 +14,34 @@ MPA = 1e6
 EARLY = [1, 3, 7, 14, 28]                # d, the usual test ages up to 28 d
 
 
+# The three model formulas written out again here, independently of the module (MPa, d), so
+# that a wrong formula in the module cannot also make the data it is tested on.
+def _en1992(x, t):
+    f28, s = x                      # EN 1992-1-1 eq. 3.2: f28 * exp{s [1 - (28/t)^0.5]}
+    return f28 * np.exp(s * (1.0 - (28.0 / np.asarray(t, float)) ** 0.5))
+
+
+def _hyperbolic(x, t):
+    f_inf, k = x                    # f_inf * t / (k + t): half of f_inf at t = k
+    t = np.asarray(t, float)
+    return f_inf * t / (k + t)
+
+
+def _two_component(x, t):
+    f_a, tau_a, f_s, tau_s, b = x   # fA (1 - e^(-t/tauA)) + fS (1 - e^(-(t/tauS)^b))
+    t = np.asarray(t, float)
+    return f_a * (1.0 - np.exp(-t / tau_a)) + f_s * (1.0 - np.exp(-((t / tau_s) ** b)))
+
+
+TRUTH = {"en1992_age": _en1992, "hyperbolic": _hyperbolic, "two_component": _two_component}
+
+
 def _data(model, x, ages_d, cv=0.05, seed=0, reps=3):
-    """Synthetic results (invented data) from known internal parameters (MPa, d)."""
+    """Synthetic results (invented data) from known internal parameters (MPa, d), made with
+    the formulas above (not the module's)."""
     t = np.repeat(np.asarray(ages_d, float), reps)
     rng = np.random.default_rng(seed)
-    y = sm.MODELS[model].f(np.asarray(x, float), t) * (1 + cv * rng.standard_normal(t.size))
+    y = TRUTH[model](x, t) * (1 + cv * rng.standard_normal(t.size))
     return t * DAY, y * MPA
 
 
@@ -79,7 +102,7 @@ def test_confidence_band_coverage_over_200_seeds(model, x, ages):
     # inside it about 95 % of the time.  200 seeds: binomial SE 1.5 points; the delta
     # method is approximate, so the window is 0.85-0.99 at 28 d and up to 4x the last age.
     at = np.array([28.0, 2 * ages[-1], 4 * ages[-1]])
-    truth = sm.MODELS[model].f(np.asarray(x, float), at) * MPA
+    truth = TRUTH[model](x, at) * MPA
     hits = np.zeros(at.size)
     for seed in range(200):
         fit = fit_model(model, *_data(model, x, ages, cv=0.06, seed=seed))
@@ -164,7 +187,7 @@ def test_aicc_differences_match_scipy_normal_log_likelihood():
     td, ym = t / DAY, y / MPA
     w = 1 / np.array([ym[td == a].mean() for a in td])
     for fit in sel.fits:
-        r = (sm.MODELS[fit.model].f(np.array(fit.x), td) - ym) * w
+        r = (TRUTH[fit.model](fit.x, td) - ym) * w
         n, k = r.size, len(fit.params) + 1
         lnl = stats.norm.logpdf(r, scale=math.sqrt(np.mean(r ** 2))).sum()
         ref[fit.model] = -2 * lnl + 2 * k + 2 * k * (k + 1) / (n - k - 1)
@@ -186,7 +209,21 @@ def test_prediction_flags_and_limits_extrapolation():
     fit = fit_model("en1992_age", t, y)
     inside, year = predict(fit, 14 * DAY), predict(fit, 365 * DAY)
     assert not inside.extrapolated and year.extrapolated
-    assert inside.lower < inside.value < inside.upper
+    # Reference band at 14 d: the delta method written out here, value +/- t(0.975, n - 2)
+    # * sqrt(g' C g), with the gradient g of eq. 3.2 by hand and the covariance C from
+    # scipy.optimize.curve_fit (same relative weights, absolute_sigma=False).
+    td, ym = t / DAY, y / MPA
+    sig = np.array([ym[td == a].mean() for a in td])
+    p, pcov = optimize.curve_fit(lambda tt, f28, s: _en1992([f28, s], tt), td, ym, p0=[4, 0.2],
+                                 sigma=sig, absolute_sigma=False)
+    gfac = 1 - math.sqrt(28 / 14)
+    g = np.array([math.exp(p[1] * gfac), p[0] * math.exp(p[1] * gfac) * gfac])
+    half = stats.t.ppf(0.975, td.size - 2) * math.sqrt(g @ pcov @ g)
+    centre = p[0] * math.exp(p[1] * gfac)
+    assert inside.value / MPA == pytest.approx(centre, rel=1e-5)
+    assert inside.lower / MPA == pytest.approx(centre - half, rel=1e-3)
+    assert inside.upper / MPA == pytest.approx(centre + half, rel=1e-3)
+    assert inside.level == 0.95
     assert "delta method" in year.method
     assert all(math.isfinite(v) for v in (year.value, year.lower, year.upper))
     with pytest.raises(StrengthExtrapolationError, match=r"limited to .*-420 d"):
@@ -220,7 +257,7 @@ def test_lower_edge_never_falls_with_age_and_is_the_delta_band_where_that_rises(
     ages = np.geomspace(1, 4 * 28, 80)
     value, lo, hi = curve(fit, ages * DAY)
     x, cov = np.array(fit.x), np.array(fit.cov)
-    f = lambda xx: sm.MODELS[fit.model].f(xx, ages)  # noqa: E731
+    f = lambda xx: TRUTH[fit.model](xx, ages)  # noqa: E731
     cols = []
     for j in np.flatnonzero(fit.free):
         h = 1e-6 * max(1.0, abs(x[j]))
@@ -238,3 +275,92 @@ def test_lower_edge_never_falls_with_age_and_is_the_delta_band_where_that_rises(
     # where the plain edge rises the two agree (to the grid's step at a turning point)
     assert np.all(np.abs(lo[rising] / plain_lo[rising] - 1) <= 1e-3)
     assert np.all(lo >= np.maximum.accumulate(plain_lo) * (1 - 1e-9))
+
+
+# Points (MPa, d) at which the module's formulas are compared with the ones written above.
+X_TWO = [1.5, 1 / 24, 10.0, 90.0, 1.2]
+AGES_D = np.array([0.05, 0.5, 1, 3, 7, 28, 90, 365])
+
+
+def test_model_formulas_against_the_independent_expressions():
+    # Module formulas (internal units MPa, d) against the expressions written out above.
+    for model, x in (("en1992_age", [5.0, 0.25]), ("hyperbolic", [8.0, 20.0]),
+                     ("two_component", X_TWO)):
+        got = sm.MODELS[model].f(np.asarray(x, float), AGES_D)
+        assert got == pytest.approx(TRUTH[model](x, AGES_D), rel=1e-12), model
+    # Values by hand: hyperbolic at t = k is half of f_inf (8 MPa, k = 20 d -> 4 MPa);
+    # two-component at 90 d: 1.5 (1 - e^-2160) + 10 (1 - e^-1) = 1.5 + 6.3212 = 7.8212 MPa.
+    assert sm.MODELS["hyperbolic"].f(np.array([8.0, 20.0]), np.array([20.0]))[0] == 4.0
+    assert sm.MODELS["two_component"].f(np.array(X_TWO), np.array([90.0]))[0] == \
+        pytest.approx(1.5 + 10 * (1 - math.exp(-1)), rel=1e-12)
+
+
+@pytest.mark.parametrize("model, x", [
+    ("en1992_age", [5.0, 0.25]), ("hyperbolic", [8.0, 20.0]), ("two_component", X_TWO)])
+def test_analytic_jacobians_against_finite_differences(model, x):
+    # Reference: central finite differences of the independent formulas above (numpy), step
+    # 1e-6 relative; the analytic Jacobian must agree to about 1e-6 of the largest column.
+    x = np.asarray(x, float)
+    jac = sm.MODELS[model].jac(x, AGES_D)
+    cols = []
+    for j in range(x.size):
+        h = 1e-6 * abs(x[j])
+        e = np.zeros_like(x)
+        e[j] = h
+        cols.append((TRUTH[model](x + e, AGES_D) - TRUTH[model](x - e, AGES_D)) / (2 * h))
+    ref = np.column_stack(cols)
+    assert jac.shape == ref.shape
+    for j in range(x.size):
+        scale = max(np.max(np.abs(ref[:, j])), 1e-12)
+        assert np.max(np.abs(jac[:, j] - ref[:, j])) <= 1e-6 * scale, (model, j)
+
+
+def test_hyperbolic_fit_of_noise_free_data_against_the_linearised_form():
+    # Noise-free data from f = f_inf t / (k + t): 1/f = 1/f_inf + (k/f_inf)(1/t) is a straight
+    # line in 1/t (the double-reciprocal form), so numpy's polyfit gives f_inf and k exactly.
+    ages = np.array([1, 3, 7, 14, 28, 56, 90], float)
+    f = 6.5 * ages / (12.0 + ages)                          # f_inf 6.5 MPa, k 12 d (invented)
+    slope, icept = np.polyfit(1 / ages, 1 / f, 1)
+    f_inf, k = 1 / icept, slope / icept
+    fit = fit_model("hyperbolic", np.repeat(ages, 3) * DAY, np.repeat(f, 3) * MPA)
+    assert fit.params["f_inf"] / MPA == pytest.approx(f_inf, rel=1e-6)
+    assert fit.params["k"] / DAY == pytest.approx(k, rel=1e-6)
+    assert (f_inf, k) == (pytest.approx(6.5, rel=1e-9), pytest.approx(12.0, rel=1e-9))
+
+
+def test_hyperbolic_fit_and_errors_match_scipy_curve_fit():
+    # Reference: scipy.optimize.curve_fit on the independent formula, the module's relative
+    # weights (sigma = mean at that age), covariance s^2 (J'WJ)^-1 (absolute_sigma=False).
+    t, y = _data("hyperbolic", [8.0, 20.0], EARLY + [56, 90], cv=0.04, seed=7)
+    fit = fit_model("hyperbolic", t, y)
+    td, ym = t / DAY, y / MPA
+    sig = np.array([ym[td == a].mean() for a in td])
+    p, pcov = optimize.curve_fit(lambda tt, fi, k: _hyperbolic([fi, k], tt), td, ym, p0=[7, 15],
+                                 sigma=sig,
+                                 absolute_sigma=False)
+    assert fit.params["f_inf"] / MPA == pytest.approx(p[0], rel=1e-4)
+    assert fit.params["k"] / DAY == pytest.approx(p[1], rel=1e-4)
+    assert fit.std_errors["f_inf"] / MPA == pytest.approx(math.sqrt(pcov[0, 0]), rel=1e-3)
+    assert fit.std_errors["k"] / DAY == pytest.approx(math.sqrt(pcov[1, 1]), rel=1e-3)
+
+
+def test_two_component_fit_with_held_tau_a_matches_scipy_curve_fit():
+    # Without ages under half a day tauA is held at 1 h (module default, common practice);
+    # reference: scipy.optimize.curve_fit of the independent formula with tauA = 1/24 d fixed,
+    # same relative weights, started at the truth (invented data).
+    x = [1.5, 1 / 24, 10.0, 90.0, 1.2]
+    t, y = _data("two_component", x, EARLY + [56, 90, 180], cv=0.03, seed=12)
+    fit = fit_model("two_component", t, y)
+    assert fit.fixed == {"tau_A": 3600.0}
+    td, ym = t / DAY, y / MPA
+    sig = np.array([ym[td == a].mean() for a in td])
+    p, pcov = optimize.curve_fit(lambda tt, fa, fs, ts, b: _two_component([fa, 1 / 24, fs, ts, b],
+                                                                          tt),
+                                 td, ym, p0=[1.5, 10.0, 90.0, 1.2], sigma=sig,
+                                 absolute_sigma=False)
+    got = [fit.params["f_A"] / MPA, fit.params["f_S"] / MPA, fit.params["tau_S"] / DAY,
+           fit.params["b"]]
+    assert got == pytest.approx(list(p), rel=1e-3)
+    se = [fit.std_errors["f_A"] / MPA, fit.std_errors["f_S"] / MPA,
+          fit.std_errors["tau_S"] / DAY, fit.std_errors["b"]]
+    assert se == pytest.approx(list(np.sqrt(np.diag(pcov))), rel=1e-2)

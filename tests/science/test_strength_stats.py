@@ -96,8 +96,10 @@ def test_characteristic_value_needs_two_results_for_unknown_variance():
         4.0e6 - stats.norm.ppf(0.95) * math.sqrt(2) * 0.2e6)
 
 
-# Grubbs two-sided critical values at alpha = 0.05, ASTM E178 table (upper 2.5 % one-sided
-# column), from memory.
+# Grubbs two-sided critical values at alpha = 0.05, ASTM E178 Table 1 (upper 2.5 % one-sided
+# column), from memory.  n = 3: printed 1.155; the closed form (exact for n = 3) gives
+# 1.1543.  The 1.153 of the 5 % column belongs to a one-sided test (see
+# test_strength_checks.test_grubbs_tie_in_three_is_reported_not_dropped).
 @pytest.mark.parametrize("n, g", [(3, 1.155), (4, 1.481), (5, 1.715), (6, 1.887),
                                   (7, 2.020), (8, 2.126), (10, 2.290)])
 def test_grubbs_critical_values(n, g):
@@ -154,3 +156,73 @@ def test_psi_entered_as_mpa_is_flagged():
     msgs = check_plausible([5.0e6, 725e6], rng["low_mpa"] * MPA, rng["high_mpa"] * MPA)
     assert len(msgs) == 1 and "psi" in msgs[0] and msgs[0].startswith("result 2")
     assert check_plausible([0.3e6, 25e6], rng["low_mpa"] * MPA, rng["high_mpa"] * MPA) == []
+
+
+def _g_crit(n, alpha=0.05):
+    """Two-sided Grubbs critical value written out (ASTM E178 / Grubbs 1969 closed form):
+    (n-1)/sqrt(n) sqrt(t^2/(n-2+t^2)), t the upper alpha/(2n) point of Student's t, n-2 dof
+    (scipy.stats.t)."""
+    t = stats.t.isf(alpha / (2 * n), n - 2)
+    return (n - 1) / math.sqrt(n) * math.sqrt(t * t / (n - 2 + t * t))
+
+
+def _g(values):
+    """Largest |x - mean| / s (sample SD, n - 1), by numpy."""
+    x = np.asarray(values, float)
+    return float(np.max(np.abs(x - x.mean())) / x.std(ddof=1))
+
+
+def test_grubbs_screen_whole_result_once_and_repeated():
+    from specgen.science.strength_stats import Flag
+    vals = [10.0e6, 10.2e6, 9.9e6, 10.1e6, 13.0e6]
+    g5, c5 = _g(vals), _g_crit(5)
+    assert (round(g5, 3), round(c5, 3)) == (1.782, 1.715)        # by hand, above
+    once = grubbs_screen(vals)
+    assert once.method == "Grubbs two-sided test, alpha = 0.05"
+    assert (once.alpha, once.n, once.assessed, once.message) == (0.05, 5, True,
+                                                                 "1 value(s) flagged")
+    assert once.statistic == pytest.approx(g5, rel=1e-12)
+    assert once.critical == pytest.approx(c5, rel=1e-9)
+    assert once.kept == tuple(Flag(i, v, "within the Grubbs limit")
+                              for i, v in enumerate(vals[:4]))
+    assert once.flagged == (Flag(4, 13.0e6, "G = 1.782 > G_crit = 1.715 (n = 5, alpha = 0.05)"),)
+    # Repeated: the second round on the four left, 10.0 10.2 9.9 10.1 (mean 10.05, s = 0.1291):
+    # G = 0.15/0.1291 = 1.162 <= G_crit(4) = 1.481, so it stops with the one flag
+    again = grubbs_screen(vals, iterate=True)
+    assert again.method == "Grubbs two-sided test, alpha = 0.05 (repeated)"
+    assert again.flagged == once.flagged and again.kept == once.kept
+    assert again.statistic == pytest.approx(_g(vals[:4]), rel=1e-12)
+    assert again.critical == pytest.approx(_g_crit(4), rel=1e-9)
+    assert (round(again.statistic, 3), round(again.critical, 3)) == (1.162, 1.481)
+
+
+def test_grubbs_screen_at_three_values_and_other_alpha():
+    from specgen.science.strength_stats import Flag
+    # n = 3, the demo's 1.18, 1.24, 1.18 MPa: G = 2/sqrt(3) = 1.1547 > 1.1543 (two-sided 5 %,
+    # closed form above): the test runs at n = 3 and flags the 1.24
+    scr = grubbs_screen([1.18e6, 1.24e6, 1.18e6])
+    assert scr.assessed and scr.statistic == pytest.approx(2 / math.sqrt(3), rel=1e-9)
+    assert scr.flagged == (Flag(1, 1.24e6, "G = 1.155 > G_crit = 1.154 (n = 3, alpha = 0.05)"),)
+    # alpha = 0.01 (two-sided; the upper 0.5 % column of ASTM E178 Table 1, from memory)
+    strict = grubbs_screen([10.0e6, 10.2e6, 9.9e6, 10.1e6, 13.0e6], alpha=0.01)
+    assert strict.method == "Grubbs two-sided test, alpha = 0.01"
+    assert strict.critical == pytest.approx(_g_crit(5, 0.01), rel=1e-9)      # 1.7645
+    assert round(strict.critical, 3) == 1.764                    # ASTM E178 0.5 % column: 1.764
+    assert strict.flagged[0].reason == "G = 1.782 > G_crit = 1.764 (n = 5, alpha = 0.01)"
+
+
+def test_grubbs_screen_no_outlier_too_few_and_all_equal_whole_results():
+    from specgen.science.strength_stats import Flag
+    calm = [4.0e6, 4.2e6, 4.1e6, 4.3e6]       # mean 4.15, s = 0.1291, G = 1.162 < 1.481
+    scr = grubbs_screen(calm)
+    assert scr.message == "no outlier: G = 1.162 <= G_crit = 1.481"
+    assert scr.flagged == () and scr.assessed
+    assert scr.kept == tuple(Flag(i, v, "within the Grubbs limit") for i, v in enumerate(calm))
+    small = grubbs_screen([4.0e6, 9.0e6])
+    assert (small.assessed, small.statistic, small.critical, small.n) == (False, 0.0, 0.0, 2)
+    assert small.message == "not assessed: Grubbs' test needs at least 3 values; got 2"
+    assert small.method == "Grubbs two-sided test, alpha = 0.05"
+    assert small.kept == (Flag(0, 4.0e6, "not tested"), Flag(1, 9.0e6, "not tested"))
+    equal = grubbs_screen([4.0e6] * 4)
+    assert (equal.statistic, equal.message) == (0.0, "no outlier: G = 0.000 <= G_crit = 1.481")
+    assert equal.critical == pytest.approx(_g_crit(4), rel=1e-9)

@@ -1,0 +1,103 @@
+"""Shared pieces of the durability checks: the practice the project follows, a zone's
+exposure as DUR-EXPOSE recorded it, rules recalled from memory, and the tests a check asks for.
+
+A rule tagged ``memory`` (content/rules/durability.yaml) is shown with its source; in an
+issued revision a verdict resting on it is held until the value is confirmed against the
+printed text (or overridden in dossier.yaml with a justification).  Every durability check
+that cannot decide without a laboratory result records the test in ``tests_asked``; the
+clauses and the hold point of DUR-TESTS name them.
+"""
+from __future__ import annotations
+
+from specgen.checks.registry import declare
+from specgen.checks.result import Basis, Input, Quantity
+
+declare("tests_asked", "", "tests a check asks the project to commission: [{test, method, "
+        "why, check}]")
+
+PRACTICE_NOTE = ("practice not stated in dossier.yaml: European practice assumed "
+                 "(EN 1996-1-1, EN 998-2)")
+
+
+def practice(project) -> tuple[str, str]:
+    """('european' | 'american', where that came from)."""
+    raw = getattr(project.dossier, "practice", None)
+    raw = getattr(raw, "follows", raw)          # dossier.yaml practice.follows
+    raw = getattr(raw, "value", raw)
+    if raw is None:
+        return "european", PRACTICE_NOTE
+    word = str(raw).lower()
+    kind = "american" if word.startswith(("am", "astm", "us")) else "european"
+    return kind, f"dossier.yaml practice: {word}"
+
+
+def rule(ctx, name: str):
+    return ctx.rules[f"durability.{name}"]
+
+
+def rule_input(ctx, symbol: str, name: str, kind: str | None = None, shown=None) -> Input:
+    """An Input for the rule ``durability.<name>`` with its source (memory flagged)."""
+    r = rule(ctx, name)
+    value = r.value if shown is None else shown
+    src = r.source() + ("; from memory, to be confirmed against the printed source"
+                        if r.unconfirmed else "")
+    return Input(symbol, r.description, value, r.unit, src)
+
+
+def memory_gate(ctx, status: str, rules, tables=()) -> tuple[str, list[str]]:
+    """Hold a pass/fail/attention that rests on an unconfirmed (memory) rule, or on a
+    reference table tagged memory (``tables``: their names), in an issued revision; in a
+    draft the verdict stands with a note."""
+    recalled = [r.key for r in rules if r.unconfirmed] + list(tables)
+    if not recalled or status in ("not_assessed", "info", "hold"):
+        return status, []
+    keys = ", ".join(recalled)
+    if ctx.project.revision.status == "issued":
+        return "hold", [f"held: the verdict ({status}) rests on {keys}, recalled from memory; "
+                        "confirm it against the printed source (or override it with a "
+                        "justification) before this revision is issued"]
+    return status, [f"{keys}: value recalled from memory — to be confirmed against the printed "
+                    "source before the dossier is issued"]
+
+
+def asked(test: str, method: str, why: str, code: str) -> dict:
+    return {"test": test, "method": method, "why": why, "check": code}
+
+
+def tests_quantity(ctx, subject: str, tests: list[dict]) -> list[Quantity]:
+    """``tests_asked`` of ``subject``: the tests asked by earlier checks on the same subject
+    kept (a quantity is recorded once per subject), these added."""
+    if not tests:
+        return []
+    prior = ctx.quantity(subject, "tests_asked")
+    merged = list(prior.value) if prior else []
+    merged += [t for t in tests if t not in merged]
+    return [Quantity("tests_asked", merged, "", "tests to commission")]
+
+
+def exposure(ctx, zone_id: str) -> dict | None:
+    """The exposure DUR-EXPOSE recorded for a zone (None when not assessed)."""
+    q = ctx.quantity(zone_id, "exposure_class")
+    return q.value if q is not None else None
+
+
+def tex(text: str) -> str:
+    """Plain words for a LaTeX \\text{}: the math renderer copies the characters into MathML
+    as they stand, so the XML specials are escaped and braces and backslashes kept out."""
+    for a, b in (("\\", " "), ("&", "&amp;"), ("<", "&lt;"), (">", "&gt;"), ("{", "("),
+                 ("}", ")")):
+        text = text.replace(a, b)
+    return text
+
+
+BINDER_CSH = {"natural_cement", "nhl", "hl", "fl", "portland"}
+LIME_RICH = {"air_lime", "nhl", "fl"}
+
+
+def binder_types(mix, project) -> list[tuple[str, str]]:
+    """(binder id, family) of each binder of the mix."""
+    return [(b.binder, project.binders[b.binder].type) for b in mix.binders
+            if b.binder in project.binders]
+
+
+PRACTICE_BASIS = Basis("reference", "en1996", "Annex A, Table A.1")

@@ -1,0 +1,119 @@
+"""What ``specgen verify`` vouches for, each difference named.
+
+- a revision folder against its manifest: every output file (modified, missing, extra),
+  and the inputs the PDF carries as attachments (``input/<path>``) against the input
+  hashes the manifest records;
+- the inputs kept for a revision (``issued/<revision>/`` of the project folder, or the
+  project folder itself for its current revision) against the same hashes — whoever
+  wrote them into the manifest;
+- an output folder: every revision in it, ``versions.json`` against the revisions
+  present (listed but absent, present but unlisted, the current one), and the root
+  ``index.html`` pointing at a revision that exists.
+"""
+from __future__ import annotations
+
+import hashlib
+import json
+import re
+from pathlib import Path
+
+from specgen.errors import PublishError
+from specgen.publish.output import MANIFEST, VERSIONS, verify as outputs_of
+
+INPUT_PREFIX = "input/"
+
+
+def manifest_of(folder: Path) -> dict:
+    mf = folder / MANIFEST
+    try:
+        return json.loads(mf.read_text(encoding="utf-8"))
+    except (OSError, ValueError) as exc:
+        raise PublishError(f"{mf}: no readable manifest ({exc}). Fix: name a revision folder "
+                           "written by specgen build, e.g. OUT/R1, or an output folder.") from exc
+
+
+def compare(expected: dict[str, str], present: dict[str, str], kind: str) -> list[str]:
+    """Differences between two {path: sha256} maps, each a line '<kind> modified: path'."""
+    out = [f"{kind} modified: {p}" for p in sorted(expected) if p in present
+           and present[p] != expected[p]]
+    out += [f"{kind} missing: {p}" for p in sorted(expected) if p not in present]
+    out += [f"{kind} extra: {p}" for p in sorted(present) if p not in expected]
+    return out
+
+
+def revision_differences(folder: Path) -> list[str]:
+    """Every difference between a revision folder and its manifest (outputs and the inputs
+    its PDF carries)."""
+    report = outputs_of(folder)
+    lines = [f"{kind}: {p}" for kind in ("modified", "missing", "extra") for p in report[kind]]
+    manifest = manifest_of(folder)
+    inputs = manifest.get("inputs")
+    pdfs = sorted(p for p in manifest.get("outputs", {}) if p.endswith(".pdf") and "/" not in p)
+    if inputs is not None and pdfs and (folder / pdfs[0]).is_file():
+        lines += compare(inputs, _pdf_inputs(folder / pdfs[0]), "input in the PDF")
+    return lines
+
+
+def _pdf_inputs(pdf: Path) -> dict[str, str]:
+    from pypdf import PdfReader
+    try:
+        attachments = PdfReader(str(pdf)).attachments
+    except Exception as exc:  # noqa: BLE001 - a damaged PDF is a difference, not a crash
+        return {f"(the PDF cannot be read: {type(exc).__name__})": ""}
+    return {name[len(INPUT_PREFIX):]: hashlib.sha256(data[0]).hexdigest()
+            for name, data in attachments.items() if name.startswith(INPUT_PREFIX) and data}
+
+
+def input_differences(folder: Path, files: dict[str, str]) -> list[str]:
+    """The inputs kept for the revision in ``folder`` ({path: sha256}) against its manifest."""
+    inputs = manifest_of(folder).get("inputs")
+    if inputs is None:
+        return [f"{folder.name}: the manifest records no inputs"]
+    return compare(inputs, files, f"{folder.name} input")
+
+
+def revisions_in(out: Path) -> list[Path]:
+    return sorted(d for d in out.iterdir() if d.is_dir() and not d.name.startswith(".")
+                  and (d / MANIFEST).is_file())
+
+
+def folder_differences(out: Path) -> list[str]:
+    """versions.json and the root index against the revisions present."""
+    present = {d.name for d in revisions_in(out)}
+    lines = []
+    try:
+        listed = json.loads((out / VERSIONS).read_text(encoding="utf-8"))
+        names = [v["version"] for v in listed]
+    except (OSError, ValueError, KeyError, TypeError) as exc:
+        return [f"{VERSIONS}: cannot be read ({type(exc).__name__})"]
+    lines += [f"{VERSIONS} lists {v}, which is not in the folder" for v in names
+              if v not in present]
+    lines += [f"{VERSIONS} does not list {v}" for v in sorted(present - set(names))]
+    current = [v["version"] for v in listed if "current" in v.get("aliases", [])]
+    opens = _opens(out, present)
+    if current != [opens] and opens is not None:
+        lines.append(f"{VERSIONS} marks {', '.join(current) or 'no revision'} as current; "
+                     f"the latest issued revision present (else the newest) is {opens}")
+    target = _index_target(out)
+    if target is None or not (out / target / "index.html").is_file():
+        lines.append(f"index.html points at {target or 'nothing'}, which is not a revision "
+                     "in the folder")
+    return lines
+
+
+def _opens(out: Path, present: set[str]) -> str | None:
+    """The revision the root should open: the latest issued, else the newest."""
+    dated = [(m.get("status") == "issued", m.get("date", ""), name)
+             for name in present for m in [manifest_of(out / name)]]
+    issued = [d for d in dated if d[0]]
+    pool = issued or dated
+    return max(pool, key=lambda d: (d[1], d[2]))[2] if pool else None
+
+
+def _index_target(out: Path) -> str | None:
+    try:
+        text = (out / "index.html").read_text(encoding="utf-8")
+    except OSError:
+        return None
+    m = re.search(r'url=([^"/]+)/index\.html', text)
+    return m.group(1) if m else None

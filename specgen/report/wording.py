@@ -1,0 +1,150 @@
+"""Reader's wording: the check layer's plain text turned into what a reader should see.
+
+Check results name their sources as the program knows them (``materials.yaml
+EB1.compressive_strength``, ``rule works.placing_rate``, ``lab/strength.csv row 2``,
+a density set ``'bentz_nist'``) and write units in ASCII (``degC``, ``m^2``).  Readers
+see labels instead: every file gets a label (the input listing pairs label and file),
+every rule its description, every other key its words; symbols get their subscripts
+and units their symbols.  This is the one place where that translation is made, for
+every page and the PDF alike.
+"""
+from __future__ import annotations
+
+import re
+from functools import lru_cache
+
+from markupsafe import Markup, escape
+
+#: what each project file or reference table is called in reader text
+FILE_LABELS = {
+    "dossier.yaml": "dossier data",
+    "analyses.yaml": "analyses",
+    "materials.yaml": "materials data",
+    "mixes.yaml": "mix designs",
+    "specification.yaml": "specification data",
+    "comments.yaml": "review comments",
+    "lab/strength.csv": "lab strength results",
+    "lab/sieves.csv": "lab sieve analyses",
+    "lab/colour.csv": "lab colour readings",
+    "lab/capillary.csv": "lab capillary absorption results",
+    "lab/site-temperature.csv": "site temperature record",
+    "results.json": "results file",
+}
+#: the program's own reference tables and rule sets (content/...)
+CONTENT_LABELS = {
+    "atomic_weights": "standard atomic weights table",
+    "cement_densities": "phase density sets",
+    "mix_densities": "default densities of mix constituents",
+    "en1990_kn": "EN 1990 factors table",
+    "hydraulicity_bands": "hydraulicity bands table",
+    "kiln_stages": "kiln stages table",
+    "maturity_defaults": "maturity defaults table",
+    "salt_load": "salt-load tables",
+    "sieve_series": "sieve series table",
+    "strength_classes": "strength classes table",
+    "grading_envelopes": "grading envelopes table",
+}
+#: named choices that reach text as keys (models, density sets, tables …)
+KEY_LABELS = {
+    "two_component": "two-component model (aluminate + silicate)",
+    "en1992_age": "EN 1992-1-1 age function",
+    "hyperbolic": "hyperbolic law",
+    "bentz_nist": "NIST phase densities (Bentz)",
+    "rounded_practice": "rounded densities of practice",
+    "wta_2_9": "salt-load table of practice (WTA 2-9)",
+}
+#: ASCII units and signs as the checks write them → typographic symbols
+UNIT_TEXT = [
+    (re.compile(r"kg/\(m\^2·min\^0\.5\)|kg/\(m2·min0\.5\)"), "kg/(m²·min^½)"),
+    (re.compile(r"\bdeg ?C\b"), "°C"),
+    (re.compile(r"\bm\^2\b|\bm2\b(?=[\s/·),.;]|$)"), "m²"),
+    (re.compile(r"\bm\^3\b|\bm3\b(?=[\s/·),.;]|$)"), "m³"),
+    (re.compile(r"\bcm\^3\b|\bcm3\b"), "cm³"),
+    (re.compile(r"min\^0\.5"), "min^½"),
+    (re.compile(r"\s->\s"), " → "),
+    (re.compile(r"(?<=\d) ?x ?(?=\d)"), " × "),
+]
+PLURALS = re.compile(r"\b(\d+(?:\.\d+)?) ([a-z]+)\(s\)")
+MINUS = re.compile(r"(?<![\w.])-(?=\d)")
+SUBSCRIPT = re.compile(r"(?<![\w/.-])([A-Za-zα-ωΔ])_\{?([A-Za-z0-9,]{1,12})\}?(?![\w/])")
+
+_FILE = re.compile(r"\b(?:content/(?:data|rules)/)?([\w/-]+)\.(ya?ml|csv|json)\b")
+_FIELD_AFTER_FILE = re.compile(
+    r"(?P<label>⟦[^⟧]+⟧),? (?:(?P<id>[A-Z][\w-]*)\.)?(?P<field>[a-z][a-z0-9]*(?:[_.][a-z0-9]+)+)\b")
+_RULE = re.compile(r"\brule `?([a-z]+)\.([a-z0-9_]+)`?")
+_QUOTED_KEY = re.compile(r"(?:set )?'([a-z0-9]+(?:_[a-z0-9]+)+)'")
+_SNAKE = re.compile(r"\b[a-z][a-z0-9]*(?:_[a-z0-9]+)+\b")
+
+
+@lru_cache(maxsize=None)
+def _rule_words() -> dict[str, str]:
+    from specgen.checks.rules import builtin_rules
+    return {key: rule.description for key, rule in builtin_rules().items()}
+
+
+def rule_label(key: str) -> str:
+    """A rule as readers see it: its description (``works.placing_rate`` → “mortar placed
+    by the crew …”); empty for no rule."""
+    if not key:
+        return ""
+    return _rule_words().get(key) or key.rsplit(".", 1)[-1].replace("_", " ")
+
+
+def _rule(m: re.Match) -> str:
+    return f"⟦rule “{rule_label(f'{m.group(1)}.{m.group(2)}')}”⟧"
+
+
+def _file(m: re.Match) -> str:
+    path = f"{m.group(1)}.{m.group(2)}"
+    label = FILE_LABELS.get(path)
+    if label is None and path.startswith(("data/", "rules/")) or m.group(0).startswith("content/"):
+        stem = m.group(1).rsplit("/", 1)[-1]
+        if m.group(0).startswith("content/rules/") or m.group(1).startswith("rules/"):
+            label = f"default rules of {stem.replace('_', ' ')}"
+        else:
+            label = CONTENT_LABELS.get(stem, stem.replace("_", " ") + " table")
+    return f"⟦{label or m.group(1).rsplit('/', 1)[-1].replace('_', ' ').replace('-', ' ')}⟧"
+
+
+def _field(m: re.Match) -> str:
+    what = m.group("field").replace(".", " ").replace("_", " ")
+    ident = f"{m.group('id')} " if m.group("id") else ""
+    return f"{m.group('label')[:-1]}, {ident}{what}⟧"
+
+
+def plain(text: str) -> str:
+    """``text`` with labels for files, rules and keys, symbols for units (plain text)."""
+    if not text:
+        return text
+    text = _RULE.sub(_rule, text)
+    text = _FILE.sub(_file, text)
+    text = _FIELD_AFTER_FILE.sub(_field, text)
+    text = _QUOTED_KEY.sub(lambda m: KEY_LABELS.get(m.group(1), m.group(1).replace("_", " ")),
+                           text)
+    for key, label in KEY_LABELS.items():
+        text = re.sub(rf"\b{key}\b", label, text)
+    for pat, sym in UNIT_TEXT:
+        text = pat.sub(sym, text)
+    text = PLURALS.sub(lambda m: f"{m.group(1)} {m.group(2)}" +
+                       ("" if m.group(1) in ("1", "1.0") else "s"), text)
+    text = MINUS.sub("−", text)
+    text = text.replace("⟦", "").replace("⟧", "")
+    return _SNAKE.sub(lambda m: m.group(0).replace("_", " ") if not SUBSCRIPT.fullmatch(
+        m.group(0)) else m.group(0), text)
+
+
+def reader(text) -> Markup:
+    """``text`` for a page: :func:`plain`, escaped, with symbols' subscripts and
+    ``^½`` set as superscripts (markup)."""
+    if text is None:
+        return Markup("")
+    out = str(escape(plain(str(text))))
+    out = SUBSCRIPT.sub(lambda m: f"{m.group(1)}<sub>{m.group(2)}</sub>", out)
+    return Markup(out.replace("^½", "<sup>½</sup>"))
+
+
+def symbol(text: str) -> Markup:
+    """A symbol of a calculation (``f_k``, ``V_m,min``, ``x_repair``) with its subscript."""
+    out = str(escape(text or ""))
+    m = re.fullmatch(r"([^_]+)_\{?(.+?)\}?", out)
+    return Markup(f"{m.group(1)}<sub>{m.group(2)}</sub>" if m else out)

@@ -1,0 +1,110 @@
+"""End-to-end, read as its readers would: no internal names, accessible pages, screenshots.
+
+All on the one shared demo build (``demo_build``).  The screenshots are kept as test
+artefacts in ``test-artefacts/screenshots/`` (or ``$SPECGEN_ARTEFACTS``) to be looked at.
+"""
+from __future__ import annotations
+
+import os
+import re
+import shutil
+from pathlib import Path
+
+import pytest
+
+from tests.conftest import REPO
+from tests.reader_text import internal_names, reader_text
+
+pytestmark = pytest.mark.e2e
+
+REV = "R3"
+#: pages whose subject is the input as it is written: the input listing, and the list of
+#: what to correct in the inputs before issue (it names the file and key to change)
+LISTINGS = {"inputs.html", "before-issue.html", "404.html"}
+
+
+def _pages(demo_build) -> list[Path]:
+    return [p for p in sorted((demo_build / REV).glob("*.html")) if p.name not in LISTINGS]
+
+
+def test_no_internal_name_reaches_a_reader(demo_build):
+    found = {}
+    for page in _pages(demo_build):
+        names = internal_names(reader_text(page.read_text(encoding="utf-8")))
+        if names:
+            found[page.name] = sorted(set(names))[:8]
+    assert found == {}
+
+
+def test_units_and_signs_are_typeset(demo_build):
+    """Symbols, not ASCII spellings (SI Brochure, 9th ed., 5.4: unit symbols, a space
+    between value and unit, from memory); ½ as a superscript, not ``^0.5``."""
+    for page in _pages(demo_build):
+        text = re.sub(r"\s+", " ", reader_text(page.read_text(encoding="utf-8")))
+        for ascii_form in ("degC", "m^2", "m^3", "min^0.5", " -> ", "(s)", "^½"):
+            assert ascii_form not in text, (page.name, ascii_form)
+    sheets = (demo_build / REV / "calculations.html").read_text(encoding="utf-8")
+    assert "min<sup>½</sup>" in sheets
+    assert "\u202f°C" in sheets or "\u202fMPa" in sheets
+
+
+def _browser_or_skip():
+    pytest.importorskip("playwright.sync_api")
+    pytest.importorskip("axe_playwright_python")
+    if not shutil.which("chromium"):
+        pytest.skip("Debian chromium is not installed")
+
+
+def test_axe_finds_no_wcag_violation_on_any_page(demo_build):
+    """axe-core (WCAG 2.0/2.1 A and AA rule sets) in Debian's Chromium, every page, at the
+    desktop and the phone width."""
+    _browser_or_skip()
+    from tests.browser import axe_script, axe_violations, open_browser
+    script, found = axe_script(), {}
+    for width in (1400, 390):
+        with open_browser(width=width) as page:
+            for html in [*_pages(demo_build), demo_build / REV / "inputs.html",
+                         demo_build / "revisions.html"]:
+                for v in axe_violations(page, html, script):
+                    found.setdefault(f"{html.name}@{width}", []).append(
+                        (v["id"], [n["target"] for n in v["nodes"][:3]]))
+    assert found == {}
+
+
+SHOTS = {"home": "index.html", "chapter": "composition.html",
+         "calculation-sheet": "calculations.html#calc-chem-ci-nc1-a", "batching-card": "card-M1.html"}
+
+
+def test_screenshots_of_the_key_pages(demo_build):
+    """Home, a chapter, a calculation sheet and a batching card at 1400 and 390 px, kept
+    for a person to look at; each must show more than a blank page."""
+    _browser_or_skip()
+    from tests.browser import open_browser
+    folder = Path(os.environ.get("SPECGEN_ARTEFACTS", REPO / "test-artefacts")) / "screenshots"
+    folder.mkdir(parents=True, exist_ok=True)
+    for width in (1400, 390):
+        with open_browser(width=width, height=1000 if width > 500 else 844) as page:
+            for name, target in SHOTS.items():
+                path, _, frag = target.partition("#")
+                page.goto((demo_build / REV / path).as_uri() + (f"#{frag}" if frag else ""))
+                page.wait_for_load_state("load")
+                shot = folder / f"{name}-{width}.png"
+                page.screenshot(path=str(shot), full_page=not frag)
+                assert shot.stat().st_size > 20_000, shot  # a blank page is a few kB
+                # nothing wider than the screen except inside a scrolling region
+                overflow = page.evaluate("document.documentElement.scrollWidth")
+                assert overflow <= width + 1, (name, width, overflow)
+
+
+def test_pdf_is_tagged_for_a_screen_reader(demo_build):
+    """One structure tree over the parts printed apart, language set, every page tied in,
+    every figure with an alternative text, tables with header cells (tests/pdf_structure.py)."""
+    from pypdf import PdfReader
+
+    from tests.pdf_structure import structure
+    found = structure(PdfReader(str(demo_build / REV / f"WEP-2026-{REV}.pdf")))
+    assert found.tree and found.marked and found.lang == "en"
+    assert found.untied_pages == []
+    assert found.types["/Figure"] >= 5 and found.figures_without_alt == 0
+    assert found.types["/TH"] > 100 and found.types["/H1"] >= 15
+    assert found.duplicate_ids == []

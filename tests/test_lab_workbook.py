@@ -1,0 +1,195 @@
+"""The laboratory workbook: written from the project, filled in, read back as the CSVs are.
+
+Unit conversions are checked against the SI definitions (1 MPa = 10^6 Pa, 1 d = 86 400 s,
+0 °C = 273.15 K: BIPM, The International System of Units, 9th ed., 2019).
+"""
+from __future__ import annotations
+
+import datetime as dt
+import shutil
+import zipfile
+
+import openpyxl
+import pytest
+
+from specgen.errors import InputErrors
+from specgen.labbook import HEADERS, write_workbook
+from specgen.project import load_project
+
+
+@pytest.fixture
+def workbook(demo_copy, tmp_path):
+    """The demo's workbook as written (outside the project) and the project copy."""
+    path = tmp_path / "written.xlsx"
+    counts = write_workbook(load_project(demo_copy), path)
+    return demo_copy, path, counts
+
+
+def _strength_rows(ws) -> dict[str, int]:
+    return {ws.cell(r, 1).value: r for r in range(2, ws.max_row + 1) if ws.cell(r, 1).value}
+
+
+def test_workbook_holds_the_planned_tests_with_units_validation_and_instructions(workbook):
+    project_dir, path, counts = workbook
+    wb = openpyxl.load_workbook(path)
+    assert wb.sheetnames == ["instructions", "strength", "capillary", "colour", "sieves"]
+    for name, headers in HEADERS.items():
+        assert [c.value for c in wb[name][1]] == headers
+    ws = wb["strength"]
+    rows = _strength_rows(ws)
+    # the demo has results of every mix to 90 d; the strength rules add 365 d (late_age_2), and
+    # each age gets strength.specimens_per_age = 3 prisms flexural and 3 compressive
+    assert counts["strength"] == len(rows) == 3 * 1 * 6
+    assert {ws.cell(r, 3).value for r in rows.values()} == {365}
+    assert {ws.cell(r, 2).value for r in rows.values()} == {"M1", "M2", "M3"}
+    assert all(ws.cell(r, 5).value is None for r in rows.values())  # results left to fill in
+    kinds = {dv.type for dv in ws.data_validations.dataValidation}
+    assert {"list", "whole", "decimal", "date"} <= kinds
+    test_list = next(dv for dv in ws.data_validations.dataValidation if "D2" in str(dv.sqref))
+    assert test_list.formula1 == '"compressive,flexural"'
+    text = " ".join(str(c.value) for c in wb["instructions"]["A"] if c.value)
+    assert "never formulas" in text and "do not merge cells" in text and "Safety" in text
+
+
+def test_round_trip_filled_workbook_reads_as_the_same_rows_in_csv(workbook, tmp_path):
+    project_dir, path, _ = workbook
+    wb = openpyxl.load_workbook(path)
+    ws = wb["strength"]
+    rows = _strength_rows(ws)
+    filled = {"M1-365d-C1": 7.21, "M1-365d-C2": 7.05, "M1-365d-C3": 7.4}
+    for specimen, value in filled.items():
+        ws.cell(rows[specimen], 5, value)
+        ws.cell(rows[specimen], 7, dt.date(2025, 11, 20))
+    wb.save(project_dir / "lab" / "northstead-results.xlsx")
+    project = load_project(project_dir)
+    new = {r.specimen: r for r in project.strength if r.file == "lab/northstead-results.xlsx"}
+    assert set(new) == set(filled)
+    r = new["M1-365d-C2"]
+    assert r.value == pytest.approx(7.05e6)          # 1 MPa = 1e6 Pa (SI)
+    assert r.age == pytest.approx(365 * 86400)       # 1 d = 86 400 s (SI)
+    assert r.curing_temperature == pytest.approx(293.15)  # 20 °C = 293.15 K (SI)
+    assert r.cast_on == dt.date(2025, 11, 20) and r.test == "compressive"
+    assert len([p for p in project.lab_pending if p[1] == "strength"]) == 18 - 3
+    # the same three specimens typed into the CSV file give the same typed results
+    other = tmp_path / "csv-project"
+    shutil.copytree(project_dir, other)
+    (other / "lab" / "northstead-results.xlsx").unlink()
+    with open(other / "lab" / "strength.csv", "a", encoding="utf-8") as f:
+        for specimen, value in filled.items():
+            f.write(f"{specimen},M1,365,compressive,{value},20\n")
+    via_csv = {r.specimen: r for r in load_project(other).strength}
+
+    def key(x):
+        return (x.specimen, x.mix, x.age, x.test, x.value, x.curing_temperature)
+    assert {key(new[s]) for s in filled} == {key(via_csv[s]) for s in filled}
+
+
+def _problems(project_dir) -> list[str]:
+    with pytest.raises(InputErrors) as exc:
+        load_project(project_dir)
+    return [str(p) for p in exc.value.problems]
+
+
+def _edit(workbook, change) -> list[str]:
+    project_dir, path, _ = workbook
+    wb = openpyxl.load_workbook(path)
+    change(wb)
+    wb.save(project_dir / "lab" / "results.xlsx")
+    return _problems(project_dir)
+
+
+W = "lab/results.xlsx, sheet 'strength'"
+
+
+def _fill(wb, row: int, value) -> None:
+    wb["strength"].cell(row, 5, value)
+
+
+BAD = [
+    ("merged", lambda wb: (_fill(wb, 2, 1.0), _fill(wb, 3, 1.1),
+                           wb["strength"].merge_cells("B2:B3")),
+     f"{W}, cells B2:B3: these cells are merged. Fix: unmerge them and write the value in every "
+     "row it belongs to."),
+    ("formula", lambda wb: _fill(wb, 4, "=E2*2"),
+     f"{W}, cell E4: value [MPa]: holds a formula (=E2*2) instead of a value. Fix: replace it "
+     "by the measured value (copy, then paste as values only)."),
+    ("renamed sheet", lambda wb: setattr(wb["capillary"], "title", "capilary"),
+     "lab/results.xlsx, sheet 'capilary': is not a sheet specgen knows. Fix: did you mean "
+     "'capillary'? Otherwise name each sheet after its test (strength, capillary, colour, "
+     "sieves) or delete it."),
+    ("missing sheet", lambda wb: wb.remove(wb["colour"]),
+     "lab/results.xlsx: the sheet 'colour' is missing (it was in the workbook as written). "
+     "Fix: restore the sheet or its name 'colour'; sheet names are how specgen knows which "
+     "test a row records."),
+    ("unit changed", lambda wb: setattr(wb["strength"]["E1"], "value", "value [psi]"),
+     f"{W}, cell E1: value [MPa]: the unit in the header was changed from 'MPa' to 'psi'. "
+     "Fix: restore the header 'value [MPa]' and enter the values in MPa: the entry checks and "
+     "the instructions are set for that unit."),
+    ("date as text", lambda wb: (_fill(wb, 2, 1.2), setattr(wb["strength"]["G2"], "value",
+                                                              "20/11/2025")),
+     f"{W}, cell G2: cast_on: holds the date as text ('20/11/2025'). Fix: enter it as a date "
+     "(a cell formatted as a date, e.g. 2026-03-02), not as text."),
+    # the table layer's own message, the one a CSV gets, located by sheet and cell
+    ("not a number", lambda wb: _fill(wb, 5, "7,2,1"),
+     f"{W}, cell E5: value [MPa]: expected a number; found '7,2,1'."),
+    ("unknown choice", lambda wb: (_fill(wb, 6, 3.0), setattr(wb["strength"]["D6"], "value",
+                                                                "compresive")),
+     f"{W}, cell D6: test: 'compresive' is not allowed here. Fix: did you mean 'compressive'?"),
+]
+
+
+@pytest.mark.parametrize("case,change,message", BAD, ids=[b[0] for b in BAD])
+def test_bad_workbook_gives_a_located_message_with_the_fix(workbook, case, change, message):
+    assert message in _edit(workbook, change)
+
+
+def test_same_message_as_the_csv_for_the_same_bad_value(workbook):
+    project_dir, _, _ = workbook
+    csv_dir = project_dir.parent / "csv"
+    shutil.copytree(project_dir, csv_dir)
+    with open(csv_dir / "lab" / "strength.csv", "a", encoding="utf-8") as f:
+        f.write("M1-365d-C1,M1,365,compressive,-1,20\n")
+    from_csv = [p for p in _problems(csv_dir) if "greater than zero" in p]
+    from_wb = [p for p in _edit(workbook, lambda wb: _fill(wb, 2, -1)) if "greater than" in p]
+    assert len(from_csv) == len(from_wb) == 1
+    assert from_csv[0].split(": ", 1)[1] == from_wb[0].split(": ", 1)[1]
+
+
+def test_macro_workbooks_are_never_opened(workbook):
+    project_dir, path, _ = workbook
+    shutil.copyfile(path, project_dir / "lab" / "results.xlsm")
+    inside = project_dir / "lab" / "renamed.xlsx"
+    with zipfile.ZipFile(path) as src, zipfile.ZipFile(inside, "w") as dst:
+        for item in src.infolist():
+            dst.writestr(item, src.read(item))
+        dst.writestr("xl/vbaProject.bin", b"\x00macro")
+    problems = _problems(project_dir)
+    assert ("lab/results.xlsm: is a macro-enabled workbook; specgen does not open it, so no "
+            "macro runs. Fix: save it from the spreadsheet as 'Excel Workbook (.xlsx)' (macros "
+            "are dropped), then delete this file.") in problems
+    assert ("lab/renamed.xlsx: holds macros (a macro project inside an .xlsx); specgen does not "
+            "open it, so no macro runs. Fix: save it from the spreadsheet as 'Excel Workbook "
+            "(.xlsx)' without macros.") in problems
+
+
+def test_cli_lab_workbook_refuses_to_overwrite(cli, demo_copy, tmp_path):
+    target = tmp_path / "lab.xlsx"
+    first = cli("lab-workbook", demo_copy, "--out", target)
+    assert first.exit_code == 0, first.output
+    assert "planned rows 18 strength" in first.output
+    before = target.read_bytes()
+    again = cli("lab-workbook", demo_copy, "--out", target)
+    assert again.exit_code == 2 and "Traceback" not in again.output
+    assert f"{target}: already exists. Fix: name another file with --out" in again.output
+    assert target.read_bytes() == before
+
+
+def test_a_specimen_in_both_the_csv_and_a_workbook_is_refused(workbook):
+    project_dir, path, _ = workbook
+    wb = openpyxl.load_workbook(path)
+    wb["strength"]["A2"] = "M1-28d-C1"            # already in lab/strength.csv, row 20
+    wb["strength"]["E2"] = 4.7
+    wb.save(project_dir / "lab" / "results.xlsx")
+    assert ("lab/results.xlsx, sheet 'strength', cell A2: specimen: specimen 'M1-28d-C1' is "
+            "also reported in lab/strength.csv, row 20. Fix: report each specimen once: remove "
+            "one of the two rows.") in _problems(project_dir)
