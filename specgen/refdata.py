@@ -51,10 +51,11 @@ class Use:
     tag: str
     source: str
     title: str = ""
+    folder: str = "data"       # 'rules' for a rule of content/rules/
 
     @property
     def where(self) -> str:
-        return f"content/data/{self.table}.yaml" + (f": {self.path}" if self.path else "")
+        return f"content/{self.folder}/{self.table}.yaml" + (f": {self.path}" if self.path else "")
 
 
 _RECORDER: contextvars.ContextVar[set | None] = contextvars.ContextVar("refdata_uses",
@@ -87,6 +88,13 @@ def _note(use: Use) -> None:
     uses = _RECORDER.get()
     if uses is not None:
         uses.add(use)
+
+
+def note_rule(key: str, tag: str, source: str, title: str) -> None:
+    """A check read rule ``key`` (``<file stem>.<name>``) tagged ``tag``: noted like a
+    tagged table entry, so a value still to be confirmed is listed and refused alike."""
+    table, _, name = key.partition(".")
+    _note(Use(table, name, tag, source, title, folder="rules"))
 
 
 class Tracked(dict):
@@ -137,7 +145,7 @@ def load(name: str) -> RefTable:
     While a :func:`recording` is open, a table tagged as a whole is noted when loaded."""
     table = _load(name)
     if table.tag:
-        _note(Use(name, "", table.tag, table.source))
+        _note(Use(name, "", table.tag, table.source, str(table.extra.get("title", ""))))
     return table
 
 
@@ -153,3 +161,26 @@ def shown(source: str, tag: str) -> str:
     if tag and tag != UNCONFIRMED and tag not in source:
         return f"{source} ({tag})"
     return source
+
+
+@lru_cache(maxsize=None)
+def _bibliography() -> dict[str, dict]:
+    import json
+    entries = json.loads((CONTENT_DIR / "references.json").read_text(encoding="utf-8"))
+    return {e["id"]: e for e in entries}
+
+
+def reference_label(key: str) -> str:
+    """How a text names the work ``key`` of content/references.json: a standard by its number
+    (EN 459-1), another work by its first author and year (Eckel 1922); an unknown key as
+    written (the reference checks report it)."""
+    entry = _bibliography().get(key)
+    if entry is None:
+        return key
+    if entry.get("number"):
+        return str(entry["number"])
+    author = (entry.get("author") or [{}])[0]
+    name = author.get("family") or author.get("literal") or entry.get("title", key)
+    year = (entry.get("issued", {}).get("date-parts") or [[""]])[0][0]
+    return f"{name} {year}".strip()
+

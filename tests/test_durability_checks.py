@@ -116,7 +116,11 @@ def test_hydraulic_lime_in_the_tidal_zone_no_longer_passes(demo):
     assert words == {"C-S-H": "yes", "sulfate": "yes", "water": "yes", "carbonate": "yes",
                      "cold": "yes"}
     assert "cold: -4.0 °C < 15 °C" in c.message
-    assert any("recalled from memory" in n for n in c.notes)    # draft: the verdict stands
+    # draft: the verdict stands; the recalled limit is listed on the Values to confirm page,
+    # not marked on the sheet
+    assert not any("memory" in n for n in c.notes)
+    listed = {v["where"]: v["used_by"] for v in demo.unconfirmed()}
+    assert "DUR-TSA/Z3/M3" in listed["content/rules/durability.yaml: thaumasite_temperature_max"]
     ett = r[("DUR-ETT", "Z3/M3")]
     assert ett.status == "pass" and ett.message.startswith(
         "no ettringite risk: aluminate absent (NH35: Al2O3 2.5 % in analysis NHL-A < 5 %")
@@ -157,12 +161,14 @@ def test_recalled_limit_holds_the_verdict_of_an_issued_revision(demo_copy):
     _, r = check(demo_copy)
     c = by_check(r)[("DUR-TSA", "Z3/M3")]      # sulfate from the sea: the salt table does not decide
     assert c.status == "hold" and c.notes[-1].startswith(
-        "held: the verdict (fail) rests on durability.thaumasite_temperature_max, recalled "
-        "from memory; confirm it against the printed source")
+        "held: the verdict (fail) rests on “air temperature below which thaumasite forms "
+        "readily") and c.notes[-1].endswith("still to be confirmed against the printed source (or "
+                                   "overridden with a justification) before this revision is "
+                                   "issued")
     c = by_check(r)[("DUR-ETT", "Z2/M2")]      # high sulfate class read from the recalled table
     assert c.status == "hold" and c.notes[-1].startswith(
-        "held: the verdict (fail) rests on the wta_2_9 salt-load edges "
-        "(content/data/salt_load.yaml), recalled from memory")
+        "held: the verdict (fail) rests on the salt-load class edges of WTA Merkblatt 2-9 "
+        "(renovation mortar systems): salt load, still to be confirmed")
 
 
 # ---------------------------------------------------------------- soundness

@@ -46,7 +46,7 @@ def test_issue_new_results_build_issue(tmp_path, cli):
     assert "url=R1/index.html" in root and 'A draft, <a href="R2/index.html">R2</a>' in root
     status = cli("status", proj)
     assert "revision R2: draft" in status.output and "last issued revision: R1" in status.output
-    assert "Lab results (by specimen): 3 added, 0 changed, 0 removed." in status.output
+    assert "Strength results (by specimen): 3 added, 0 changed, 0 removed." in status.output
 
     second = cli("issue", proj, "--out", out, "--date", "2026-02-03", "--quiet")
     assert second.exit_code == 0, second.output
@@ -55,7 +55,7 @@ def test_issue_new_results_build_issue(tmp_path, cli):
     assert "superseded by R2" in (out / "revisions.html").read_text()
     text = cli("diff", out, "--from", "R1", "--to", "R2").output
     assert text.startswith("Changes from R1 to R2\nWhat changed for the decision:\n")
-    assert "lab results (by specimen) added: M1-90-1, M1-90-2, M1-90-3" in text
+    assert "strength results (by specimen) added: M1-90-1, M1-90-2, M1-90-3" in text
 
     # an input of an issued revision edited afterwards stops the build until told why
     old = proj / "issued" / "R1" / "lab" / "strength.csv"

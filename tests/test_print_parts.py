@@ -181,8 +181,9 @@ def test_assembled_pdf_is_tagged(tmp_path):
     assert found.tree and found.marked and found.lang == "en"
     assert found.untied_pages == []
     assert found.types["/Figure"] == 1 and found.figures_without_alt == 0
-    # two tables of two header cells, and the cover's table of four row headers
-    assert found.types["/TH"] == 8 and found.types["/Table"] == 3, found.types
+    # two tables of two header cells, the cover's table of four row headers and its sign-off
+    # table of six column headers (no rows: the context names no signatories)
+    assert found.types["/TH"] == 14 and found.types["/Table"] == 4, found.types
     assert found.duplicate_ids == []
     assert set(reader.attachments) == {"a.txt"}
     assert pdfmod.PDF_OPTIONS["pdf_variant"] == "pdf/a-3a"

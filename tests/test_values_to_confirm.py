@@ -85,6 +85,26 @@ def test_every_data_table_declares_its_values():
             assert m.group(1).strip().strip('"') in allowed, (path.name, m.group(0))
 
 
+def test_every_value_to_confirm_has_a_title_for_its_reader():
+    """A table or entry tagged 'memory' carries a title in words: the Values to confirm page
+    names it by that title, never by its key in the data file."""
+    import yaml
+
+    def untitled(node, path):
+        if isinstance(node, dict):
+            if node.get("tag") == "memory" and not node.get("title"):
+                yield path or "(the table)"
+            for k, v in node.items():
+                yield from untitled(v, f"{path}.{k}" if path else str(k))
+        elif isinstance(node, list):
+            for i, v in enumerate(node):
+                yield from untitled(v, f"{path}[{i}]")
+
+    found = {p.name: list(untitled(yaml.safe_load(p.read_text(encoding="utf-8")), ""))
+             for p in sorted(refdata.DATA_DIR.glob("*.yaml"))}
+    assert {k: v for k, v in found.items() if v} == {}
+
+
 def test_every_rule_declares_its_basis():
     """A rule is a published value (bibliography key and clause), a rule of thumb with its
     reason (and range where the trade gives one), or a project requirement."""

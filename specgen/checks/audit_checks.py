@@ -60,12 +60,17 @@ CLAIMS = (
 )
 
 
+def _count(n: int, noun: str) -> str:
+    return f"{n} {noun}{'' if n == 1 else 's'}"
+
+
 def _lab_changes(ch: dict) -> list[str]:
     files = [f for k in ("added", "changed") for f in ch["inputs"][k] if f.startswith("lab/")]
     sp = ch["specimens"]
     out = [f"lab files added or changed: {', '.join(files)}"] if files else []
     if sp["added"] or sp["changed"]:
-        out.append(f"{len(sp['added'])} lab result(s) added and {len(sp['changed'])} changed")
+        out.append(f"{_count(len(sp['added']), 'lab result')} added and "
+                   f"{len(sp['changed'])} changed")
     return out
 
 
@@ -76,10 +81,10 @@ def facts_of(ch: dict, previous) -> list[str]:
                       if inp[k]) or "none"
     moved = [c for c in checks if c["old_status"] != c["new_status"]]
     facts = [f"Compared with {previous.code} (issued {previous.date}). Input files {files}.",
-             f"Lab results (by specimen): {len(sp['added'])} added, {len(sp['changed'])} changed,"
+             f"Strength results (by specimen): {len(sp['added'])} added, {len(sp['changed'])} changed,"
              f" {len(sp['removed'])} removed.",
-             f"Checks: {len(moved)} status change(s), {len(checks) - len(moved)} value change(s) "
-             "with the same status."]
+             f"Checks: {_count(len(moved), 'status change')}, "
+             f"{_count(len(checks) - len(moved), 'value change')} with the same status."]
     decisions = decision_lines(ch)
     facts.append("For the decision: " + ("; ".join(decisions) if decisions else
                                          "no selection, failure, hold or prediction changed") + ".")

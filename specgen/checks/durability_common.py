@@ -36,28 +36,26 @@ def rule(ctx, name: str):
 
 
 def rule_input(ctx, symbol: str, name: str, kind: str | None = None, shown=None) -> Input:
-    """An Input for the rule ``durability.<name>`` with its source (memory flagged)."""
+    """An Input for the rule ``durability.<name>`` with its source (a value still to be
+    confirmed is listed on the Values to confirm page, not marked inline)."""
     r = rule(ctx, name)
     value = r.value if shown is None else shown
-    src = r.source() + ("; from memory, to be confirmed against the printed source"
-                        if r.unconfirmed else "")
-    return Input(symbol, r.description, value, r.unit, src)
+    return Input(symbol, r.description, value, r.unit, r.source())
 
 
 def memory_gate(ctx, status: str, rules, tables=()) -> tuple[str, list[str]]:
     """Hold a pass/fail/attention that rests on an unconfirmed (memory) rule, or on a
     reference table tagged memory (``tables``: their names), in an issued revision; in a
     draft the verdict stands with a note."""
-    recalled = [r.key for r in rules if r.unconfirmed] + list(tables)
+    recalled = ([f"“{r.description}”" for r in rules if r.unconfirmed]
+                + list(tables))
     if not recalled or status in ("not_assessed", "info", "hold"):
         return status, []
-    keys = ", ".join(recalled)
     if ctx.project.revision.status == "issued":
-        return "hold", [f"held: the verdict ({status}) rests on {keys}, recalled from memory; "
-                        "confirm it against the printed source (or override it with a "
+        return "hold", [f"held: the verdict ({status}) rests on {', '.join(recalled)}, still to "
+                        "be confirmed against the printed source (or overridden with a "
                         "justification) before this revision is issued"]
-    return status, [f"{keys}: value recalled from memory — to be confirmed against the printed "
-                    "source before the dossier is issued"]
+    return status, []     # a draft: the Values to confirm page lists the value
 
 
 def asked(test: str, method: str, why: str, code: str) -> dict:

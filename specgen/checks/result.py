@@ -49,7 +49,8 @@ class Basis:
     def text(self) -> str:
         if self.kind != "reference":
             return self.kind + (f" — {self.note}" if self.note else "")
-        return self.ref + (f", {self.clause}" if self.clause else "")
+        from specgen.refdata import reference_label
+        return reference_label(self.ref) + (f", {self.clause}" if self.clause else "")
 
 
 @dataclass(frozen=True)

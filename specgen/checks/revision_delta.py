@@ -136,7 +136,7 @@ def as_text(changes: dict) -> str:
              "What changed for the decision:"]
     lines += [f"  {x}" for x in decision_lines(changes)] or ["  nothing"]
     lines.append("Every change:")
-    for what, label in (("inputs", "input files"), ("specimens", "lab results (by specimen)")):
+    for what, label in (("inputs", "input files"), ("specimens", "strength results (by specimen)")):
         part = changes[what]
         for kind in ("added", "changed", "removed"):
             if part[kind]:

@@ -83,7 +83,11 @@ class RuleBook:
                                            justification=ov.justification)
 
     def __getitem__(self, key: str) -> Rule:
-        return self._rules[key]
+        rule = self._rules[key]
+        if rule.unconfirmed:
+            from specgen.refdata import note_rule
+            note_rule(key, rule.tag, rule.basis.text(), rule.description)
+        return rule
 
     def keys(self):
         return self._rules.keys()

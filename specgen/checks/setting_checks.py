@@ -54,7 +54,8 @@ def setting_check(mix, ctx) -> CheckResult:
         verdicts += v
         words += w
         used += r
-        inputs += [dc.rule_input(ctx, x.key.split(".")[1], x.key.split(".")[1]) for x in r]
+        inputs += [dc.rule_input(ctx, SYMBOL[x.key.split(".")[1]], x.key.split(".")[1])
+                   for x in r]
     if fams & {"natural_cement"}:
         words.append("natural cement: no current standard limit; the set governs the gaugings")
     verdicts += _retarder(mix, s, words)
@@ -66,7 +67,7 @@ def setting_check(mix, ctx) -> CheckResult:
     inputs.append(Input("t_w,0", "workable life measured (EN 1015-9), else the binder default",
                         round(_life0(mix, ctx) / 60, 2), "min",
                         f"mixes.yaml {mix.id}.workable_life" if measured
-                        else "content/rules/works.yaml (default of the binder family)"))
+                        else "default workable life of the binder family (common practice)"))
     inputs.append(Input("t_w", "workable life used for the gaugings", round(life.value / 60, 2),
                         "min", life.source))
     step = Step("Setting times and the workable life the gaugings use",
@@ -81,6 +82,11 @@ def setting_check(mix, ctx) -> CheckResult:
                      f"{life.source}")
     return _result(mix, status, round(s.initial / 60, 2), "; ".join(words), [step], notes,
                    basis=[BASIS] + [r.basis for r in used])
+
+
+#: the symbol each setting-time limit has on the sheet
+SYMBOL = {"setting_initial_min_lime": "t_i,min", "setting_final_max_lime": "t_f,max",
+          "setting_initial_min_portland": "t_i,min"}
 
 
 def _life0(mix, ctx) -> float:

@@ -146,7 +146,7 @@ def _salt_table(ctx, level: str) -> list[str]:
     from specgen.checks.salt_checks import table
     key, tab = table(ctx)
     if level in ("medium", "high") and tab.get("tag") == "memory":
-        return [f"the {key} salt-load edges (content/data/salt_load.yaml)"]
+        return [f"the salt-load class edges of {tab.get('title') or 'the salt-load table'}"]
     return []
 
 

@@ -9,6 +9,8 @@ from __future__ import annotations
 
 from markupsafe import Markup, escape
 
+from specgen.report.wording import plain
+
 DRAFT = "DRAFT — not for construction"
 SIGNATURES = (("prepared", "Prepared"), ("checked", "Checked"), ("approved", "Approved"))
 
@@ -36,7 +38,7 @@ def control_context(project, results) -> dict:
     """What the summary shows of document control: banner, facts, sign-off, distribution."""
     blocking = results.blocking()
     return {"draft": project.revision.status != "issued", "findings": len(results.findings),
-            "blocking": len(blocking), "facts": results.facts,
+            "blocking": len(blocking), "facts": [plain(f) for f in results.facts],
             "sign_off": sign_off_rows(project),
             "distribution": [r.model_dump() for r in project.dossier.distribution]}
 

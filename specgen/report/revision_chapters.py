@@ -5,6 +5,7 @@ from specgen.checks.result import STATUS_WORDS
 from specgen.report.chapters import badge, chapter, sheet_anchor, sheet_anchor_of
 from specgen.report.fmt import qty
 from specgen.report.review import open_by_category, place_markdown, place_of
+from specgen.report.wording import plain
 
 
 @chapter("changes.md", "Changes in this revision", 12, "changes.md.j2")
@@ -51,6 +52,7 @@ def history(env) -> dict:
         {"code": env.project.revision.code, "date": env.project.revision.date.isoformat(),
          "status": env.project.revision.status, "description": env.project.revision.description,
          "facts": env.results.facts, "current": True}]
+    rows = [{**r, "facts": [plain(f) for f in r.get("facts") or []]} for r in rows]
     return {"revisions": list(reversed(rows))}
 
 

@@ -97,6 +97,8 @@ def _rule(m: re.Match) -> str:
 def _file(m: re.Match) -> str:
     path = f"{m.group(1)}.{m.group(2)}"
     label = FILE_LABELS.get(path)
+    if label is None and path.startswith("lab/firing-"):
+        label = f"kiln firing record of {m.group(1)[len('lab/firing-'):]}"
     if label is None and path.startswith(("data/", "rules/")) or m.group(0).startswith("content/"):
         stem = m.group(1).rsplit("/", 1)[-1]
         if m.group(0).startswith("content/rules/") or m.group(1).startswith("rules/"):
