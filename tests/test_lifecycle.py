@@ -10,6 +10,7 @@ import json
 import pytest
 
 from specgen.publish.output import sha256_file
+from tests.helpers import edit
 
 pytestmark = pytest.mark.e2e
 
@@ -59,7 +60,7 @@ def test_issue_new_results_build_issue(tmp_path, cli):
 
     # an input of an issued revision edited afterwards stops the build until told why
     old = proj / "issued" / "R1" / "lab" / "strength.csv"
-    old.write_text(old.read_text().replace("2.4,20", "2.5,20", 1))
+    edit(old, "M1-28d-C1,M1,28,compressive,3.4,20", "M1-28d-C1,M1,28,compressive,3.5,20")
     stopped = cli("build", proj, "--out", out, "--quiet")
     assert stopped.exit_code == 2
     assert "issued/R1/lab/strength.csv: was changed after revision R1 was issued" in stopped.output

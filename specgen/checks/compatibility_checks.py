@@ -121,7 +121,7 @@ def _hierarchy_one(code, title, target, pair, fabric, ctx):
         f"{'; '.join(words)} against {limit:g} × {f_fab:g} MPa of {what} {fabric.id}"
         + ("" if status != "attention" else "; the band's upper edge exceeds the limit: "
            "confirm with the late-age tests")
-        + ("" if not held else "; the prediction beyond the last tested age exceeds the limit "
+        + ("" if not (held and status == "hold") else "; the prediction beyond the last tested age exceeds the limit "
            "but is indicative, so it cannot decide: held until results at later ages (the "
            f"strength sheets of {pair.mix_id} name the test age that would decide)"),
         steps=steps, notes=notes,

@@ -219,7 +219,7 @@ def _fit_result(code, title, mix, s: sc.Series, ctx) -> CheckResult:
                 "", "AICc of each model"))
     return CheckResult(
         code=code, title=title, subject=mix, subject_kind="mix", status="info",
-        value=best.model, unit="", basis=(AICC, EN1992), steps=steps,
+        value=best.title, unit="", basis=(AICC, EN1992), steps=steps,
         message=f"{best.title} chosen by AICc from {len(sel.fits)} model(s) fitted to "
                 f"{best.n_obs} results at {best.n_ages} ages",
         notes=tuple(notes), quantities=q)
