@@ -159,7 +159,7 @@ def test_import_appends_once_and_keeps_the_file_layout(demo_build, demo_copy, cl
      "the quote empty."),
     # a huge value is quoted, not echoed: 80 characters of its repr at most
     ({"comment": {"text": "x" * 5000}}, 12,
-     "comments[0].text: String should have at most 4000 characters (found '" + "x" * 78 + "…).\n"),
+     "comments[0].text: String should have at most 4000 characters (found '" + "x" * 80 + "… (5000 characters)').\n"),
     ({"comment": {"category": "demand"}}, 16,
      "comments[0].category: Input should be 'question', 'required change' or 'advisory' "
      "(found 'demand')."),

@@ -49,7 +49,12 @@ UNIT_SYMBOLS = {"degC": "°C", "deg C": "°C", "m^2": "m²", "m2": "m²", "m^3":
 def unit_symbol(unit: str) -> str:
     """The unit as a reader sees it: ``degC`` → ``°C``, ``m^2`` → ``m²``; ``min^½`` is set
     as a superscript by the Markdown extension :mod:`specgen.report.mdtypo`."""
-    return UNIT_SYMBOLS.get(unit, unit) if unit else ""
+    if not unit:
+        return ""
+    if unit in UNIT_SYMBOLS:
+        return UNIT_SYMBOLS[unit]
+    out = unit.replace("degC", "°C").replace("^0.5", "^½").replace("*", "·")
+    return out.replace("^2", "²").replace("^3", "³")
 
 
 def _signed(text: str) -> str:

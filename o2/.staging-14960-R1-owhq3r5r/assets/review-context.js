@@ -1,0 +1,1 @@
+window.specgenReview = {"project": "NEW-001", "revision": "R1"};
