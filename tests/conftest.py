@@ -1,5 +1,14 @@
-"""Shared fixtures: copies of the demo project, the CLI runner, one shared demo build."""
+"""Shared fixtures: copies of the demo project, the CLI runner, one shared demo build; the
+``--full`` switch (or SPECGEN_FULL_TESTS=1) for the long sweeps.
+
+The default suite runs a bounded form of every sweep (a sample of the kill points, the
+accessibility check of every page at the desktop width and of the key pages at the phone
+width); ``--full`` runs them whole, and the tests marked ``full`` (a second demo build for
+determinism, the demo's issued revision rebuilt) that repeat what the bounded tests show at
+several times the cost."""
 from __future__ import annotations
+
+import os
 
 import shutil
 from pathlib import Path
@@ -9,6 +18,35 @@ from click.testing import CliRunner
 
 REPO = Path(__file__).resolve().parent.parent
 DEMO = REPO / "demo_project"
+
+
+def pytest_addoption(parser):
+    parser.addoption("--full", action="store_true", default=False,
+                     help="run the long sweeps whole and the tests marked 'full'")
+
+
+def pytest_configure(config):
+    config.addinivalue_line("markers", "full: long test run only with --full "
+                            "(or SPECGEN_FULL_TESTS=1)")
+
+
+def full_run(config) -> bool:
+    return bool(config.getoption("--full") or os.environ.get("SPECGEN_FULL_TESTS"))
+
+
+def pytest_collection_modifyitems(config, items):
+    if full_run(config):
+        return
+    skip = pytest.mark.skip(reason="long run: pytest --full (or SPECGEN_FULL_TESTS=1) runs it")
+    for item in items:
+        if "full" in item.keywords:
+            item.add_marker(skip)
+
+
+@pytest.fixture
+def full(request) -> bool:
+    """True when the long sweeps run whole (``--full``)."""
+    return full_run(request.config)
 
 
 @pytest.fixture

@@ -134,6 +134,10 @@ def test_search_finds_a_known_term_offline(demo_build):
     assert "matching document" in meta
 
 
+# a second demo build from a cold cache (--full); the default run shows determinism on
+# the starter (test_print_parts: a rebuild gives the same PDF bytes) and on the render
+# (test_render_cache: a cached render equals a fresh one, byte for byte)
+@pytest.mark.full
 def test_two_builds_are_byte_identical(demo_build, tmp_path):
     from specgen.build import build
     from tests.conftest import DEMO
