@@ -50,12 +50,12 @@ def state(out: Path) -> dict:
             "index": target, "differences": verify(out)["differences"]}
 
 
-@pytest.mark.e2e
 #: the kill points of the default run, one per stage and both sides of the exchange of the
 #: folders (--full: every point the traced build passes)
 SAMPLE = ("check", "render", "pdf-part-1", "pdf-assembled", "move", "moved", "index")
 
 
+@pytest.mark.e2e
 def test_kill_at_every_point_leaves_every_revision_reachable(built, tmp_path, full):
     root, out = built
     before = state(out)
