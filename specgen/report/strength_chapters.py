@@ -19,6 +19,9 @@ TERMS = {"early_fraction": ("early (fast-stage) fraction", ""),
          "shape_b": ("slow-stage shape b", ""),
          "gain_365_28": ("one-year / 28-day strength", "")}
 
+#: the equivalent-age methods by their names (ASTM C1074)
+METHOD_NAMES = {"arrhenius": "Arrhenius", "nurse_saul": "Nurse–Saul"}
+
 
 @chapter("strength.md", "Strength development", 40, "strength.md.j2")
 def strength(env) -> dict:
@@ -31,8 +34,8 @@ def strength(env) -> dict:
             "warning": next((n for n in (site.notes if site else ()) if "must be measured" in n),
                             ""),
             "energy": f"{energy.value} ({plain(energy.source)})" if energy else "",
-            "method": (r.value(site.subject, "equivalent_age") or {}).get("method", "").replace(
-                "_", "-") if site else "",
+            "method": METHOD_NAMES.get((r.value(site.subject, "equivalent_age") or {}).get(
+                "method", ""), "") if site else "",
             "site": plain(p.site_temperature.source) if p.site_temperature else "",
             "limit": f"{rules['strength.extrapolation_limit'].value:g}",
             "level": f"{100 * rules['strength.confidence_level'].value:g} %"}
