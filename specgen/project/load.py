@@ -8,7 +8,7 @@ from pathlib import Path
 from pydantic import BaseModel, ValidationError
 
 from specgen.errors import ProblemLog, did_you_mean, quote
-from specgen.project import schema
+from specgen.project import schema, schema_evidence
 from specgen.project.files import CONTROL, Located, read_csv, read_yaml
 from specgen.project.tables import (ColourReading, SieveRow, StrengthResult, capillary_rows,
                                     colour_rows, sieve_rows, strength_results)
@@ -22,6 +22,7 @@ DOCUMENTS: dict[str, tuple[type[BaseModel], bool]] = {
     "mixes.yaml": (schema.MixesFile, False),
     "comments.yaml": (schema.CommentsFile, False),
     "specification.yaml": (schema.SpecificationFile, False),
+    "samples.yaml": (schema_evidence.SamplesFile, False),
 }
 ARCHIVE_DIR = "issued"  # issued/<revision>/: the inputs of earlier issued revisions
 STRENGTH_FILE = "lab/strength.csv"
@@ -69,6 +70,8 @@ class Project:
     exposure: dict = field(default_factory=dict)  # zone id → ZoneExposure (durability_inputs)
     # planned tests in lab workbooks without a result yet: (file, sheet, row, first cell)
     lab_pending: list = field(default_factory=list)
+    samples: dict = field(default_factory=dict)   # id → Sample of samples.yaml (the register)
+    drawings: dict = field(default_factory=dict)  # id → Drawing of samples.yaml
 
     @property
     def revision(self) -> schema.Revision:
@@ -232,6 +235,9 @@ def load_project(root: Path | str, names=None) -> Project:
     works_problems(project, located, log, failed)
     from specgen.project.durability_inputs import durability_problems
     project.exposure = durability_problems(project, located, log, failed)
+    from specgen.project.evidence import evidence
+    ev = evidence(project, docs.get("samples.yaml"), located, log, failed)
+    project.samples, project.drawings = ev.samples, ev.drawings
     log.raise_if_any()
     return project
 

@@ -394,6 +394,8 @@ class Dossier(Model):
                                           "the dossier (the distribution list)")
     document_control: DocumentControl = Field(default_factory=lambda: DocumentControl(),
                                               description="how revisions are controlled")
+    heritage: HeritageContext | None = Field(None, description="designation, consent, "
+                                             "significance, approach and impact of the works")
 
 
 # --------------------------------------------------------------- analyses.yaml
@@ -405,6 +407,7 @@ class Analysis(Model):
     description: Text = Field("", description="sample description")
     laboratory: Text = Field("", description="who analysed it, report reference")
     date: dt.date | None = Field(None, description="date of the analysis")
+    lab_sample: Id | None = Field(None, description="the sample it was made on (samples.yaml)")
     mass_percent: Annotated[dict[Annotated[str, AfterValidator(_known_constituent)], MassPercent],
                             BeforeValidator(_canonical_names)] = Field(
         description="constituents in mass %, e.g. CaO: 41.2, LOI: 30.5 (names: see "
@@ -483,6 +486,8 @@ class Hygrothermal(Model):
     hygric_expansion: Fraction | None = Field(
         None, description="hygric (wetting) expansion, dry to saturated, e.g. '0.2 mm/m'")
     source: Text = Field("", description="laboratory and report of these properties")
+    lab_samples: list[Id] = Field(default_factory=list, description="the samples they were "
+                                  "measured on (samples.yaml)")
 
 
 class SaltContent(Model):
@@ -759,3 +764,7 @@ def model_at(model: type[BaseModel], path: tuple) -> type[BaseModel] | None:
             return None
     return current
 
+
+from specgen.project.schema_evidence import HeritageContext  # noqa: E402  (it builds on Model)
+
+Dossier.model_rebuild()

@@ -22,7 +22,28 @@ def scope(env) -> dict:
     if req.max_compressive_long_term:
         reqs.append(f"long-term compressive strength at most "
                     f"{qty(req.max_compressive_long_term / 1e6, 'MPa', 3)}")
-    return {"zones": rows, "requirements": reqs, "practice": _practice(env)}
+    return {"zones": rows, "requirements": reqs, "practice": _practice(env),
+            "heritage": heritage_context(p)}
+
+
+def _sentence(text: str) -> str:
+    text = text[:1].upper() + text[1:]
+    return text if text.endswith((".", "!", "?")) else text + "."
+
+
+def heritage_context(p) -> dict:
+    """The heritage context as the scope page shows it and the selection rationale cites it;
+    what a protected building leaves unstated is named, not hidden."""
+    h, info = p.dossier.heritage, p.dossier.project
+    significance = (h.significance if h and h.significance else "") or info.significance
+    rows = [("Designation", h.designation if h else ""), ("Consent", h.consent if h else ""),
+            ("Conservation approach", "; ".join(h.approach) if h else ""),
+            ("How the approach applies", h.approach_note if h else ""),
+            ("Heritage impact", h.impact if h else "")]
+    missing = [k for k, v in rows[:3] + rows[4:] if not v] if info.protected_building else []
+    return {"given": h is not None or bool(significance), "significance": significance,
+            "rows": [{"what": k, "text": _sentence(v)} for k, v in rows if v], "missing": missing,
+            "approach": list(h.approach) if h else [], "href": "scope.md#heritage-context"}
 
 
 def _practice(env) -> dict:

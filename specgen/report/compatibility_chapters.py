@@ -64,6 +64,10 @@ def _material(kind: str, m) -> dict:
         extra.append(f"binder analysis {m.binder_analysis} (see Binder composition)")
     if getattr(m, "aggregate_sample", None):
         extra.append(f"aggregate recovered by acid digestion: sample {m.aggregate_sample}")
+    if m.lab_samples:
+        from specgen.report.evidence_chapters import sample_links
+        extra.append(f"measured on sample{'s' if len(m.lab_samples) > 1 else ''} "
+                     + sample_links(m.lab_samples) + " (see the sample register)")
     return {"kind": kind, "id": m.id, "name": m.name, "rows": rows, "extra": extra,
             "source": m.source or "—",
             "salt_sample": salts.sample if salts is not None and salts.sample else ""}

@@ -43,7 +43,10 @@ def composition(env) -> dict:
     indices = [{"id": a.id, "class": env.results.value(a.id, "hydraulicity_class") or "—",
                 "cells": [num(v, 3) if (v := env.results.value(a.id, k)) is not None else "—"
                           for k, _ in INDEX_COLUMNS]} for a in p.analyses.values()]
+    from specgen.report.evidence_chapters import sample_links
     analyses = [{"id": a.id, "kind": a.kind.replace("_", " "), "description": a.description,
+                 "sample": sample_links([a.lab_sample]) if a.lab_sample else "",
+                 "laboratory": a.laboratory,
                  "findings": _findings(env, a.id)} for a in p.analyses.values()]
     binders = [_binder(env, b) for b in p.binders.values()]
     return {"oxides": oxides, "rows": rows, "figure": figure, "indices": indices,
