@@ -20,7 +20,7 @@ BASIS = (Basis("reference", "en1015_11", "storage of the prisms before test, by 
          Basis("common practice", note="carbonating binders need air, hydraulic binders need "
                "moisture while they harden"))
 
-declare("curing_regimes", "", "curing regimes of a mix's strength prisms: {regime: {specimens, "
+declare("prism_curing", "", "curing regimes of a mix's strength prisms: {regime: {specimens, "
         "suits, title}}, with the binder families of the mix")
 
 
@@ -43,7 +43,7 @@ def curing_check(mix, ctx):
     wrong = {k: [f for f in families if f not in v["suits"]] for k, v in used.items()}
     wrong = {k: fs for k, fs in wrong.items() if fs}
     status = "fail" if wrong else "attention" if unstated else "pass"
-    status, notes = dc.memory_gate(ctx, status, (), [f"curing_regimes.yaml: {k}" for k, v
+    status, notes = dc.memory_gate(ctx, status, (), [f"content/data/curing_regimes.yaml: {k}" for k, v
                                                      in used.items() if v.get("tag") == "memory"])
     steps = tuple(_step(mix, k, v, families, rows) for k, v in used.items())
     if wrong:
@@ -60,7 +60,7 @@ def curing_check(mix, ctx):
     return CheckResult(code="EVD-CURE", title=TITLE, subject=mix.id, subject_kind="mix",
                        status=status, value=None, unit="", basis=BASIS, steps=steps,
                        message=message, notes=tuple(notes),
-                       quantities=(Quantity("curing_regimes", {"families": families,
+                       quantities=(Quantity("prism_curing", {"families": families,
                                                                "regimes": value}, "",
                                             "curing regimes of the strength prisms"),))
 

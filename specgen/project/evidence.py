@@ -44,7 +44,7 @@ def evidence(project, doc, located: dict, log: ProblemLog, failed) -> Evidence:
 
 
 def _register_refs(project, ev: Evidence, located: dict, log: ProblemLog, failed) -> None:
-    zones = {z.id: z for z in project.dossier.zones}
+    zones = SKIP if "dossier.yaml" in failed else {z.id: z for z in project.dossier.zones}
     materials = SKIP if {"materials.yaml", "mixes.yaml"} & set(failed) else {
         **project.masonry_units, **project.historic_mortars, **project.binders,
         **project.sands, **project.mixes}
