@@ -40,7 +40,19 @@ def evidence(project, doc, located: dict, log: ProblemLog, failed) -> Evidence:
     _yaml_refs(project, known, located, log)
     _table_refs(project, known, log)
     _strength_dates(project.strength, log)
+    if (method := project_doc(located, "method.yaml")) is not None and "dossier.yaml" not in failed:
+        zones = {z.id: z for z in project.dossier.zones}
+        for i, item in enumerate(method.get("zones") or []):
+            if isinstance(item, dict) and isinstance(item.get("zone"), str):
+                _ref(log, located, "method.yaml", ("zones", i, "zone"), item["zone"], zones,
+                     "zone")
     return ev
+
+
+def project_doc(located: dict, name: str) -> dict | None:
+    """The parsed mapping of a project file (before validation), or None."""
+    loc = located.get(name)
+    return loc.data if loc is not None and isinstance(loc.data, dict) else None
 
 
 def _register_refs(project, ev: Evidence, located: dict, log: ProblemLog, failed) -> None:

@@ -23,6 +23,7 @@ DOCUMENTS: dict[str, tuple[type[BaseModel], bool]] = {
     "comments.yaml": (schema.CommentsFile, False),
     "specification.yaml": (schema.SpecificationFile, False),
     "samples.yaml": (schema_evidence.SamplesFile, False),
+    "method.yaml": (schema_evidence.MethodFile, False),
 }
 ARCHIVE_DIR = "issued"  # issued/<revision>/: the inputs of earlier issued revisions
 STRENGTH_FILE = "lab/strength.csv"
@@ -72,6 +73,7 @@ class Project:
     lab_pending: list = field(default_factory=list)
     samples: dict = field(default_factory=dict)   # id → Sample of samples.yaml (the register)
     drawings: dict = field(default_factory=dict)  # id → Drawing of samples.yaml
+    method: object = None  # schema_evidence.MethodFile of method.yaml, or None
 
     @property
     def revision(self) -> schema.Revision:
@@ -238,6 +240,7 @@ def load_project(root: Path | str, names=None) -> Project:
     from specgen.project.evidence import evidence
     ev = evidence(project, docs.get("samples.yaml"), located, log, failed)
     project.samples, project.drawings = ev.samples, ev.drawings
+    project.method = docs.get("method.yaml")
     log.raise_if_any()
     return project
 

@@ -109,3 +109,38 @@ class HeritageContext(Model):
     approach_note: Text = Field("", description="how the principles apply to these works")
     impact: Text = Field("", description="heritage impact statement: what the works change "
                          "in the significant fabric, and how harm is avoided or mitigated")
+
+
+METHOD_PARTS = ("preparation", "sequencing", "protection", "placing", "finishing", "curing",
+                "weather")
+
+
+class ZoneMethod(Model):
+    """The project's own wording for parts of one zone's method statement (each replaces the
+    wording specgen derives from the zone's works and the chosen mortar)."""
+
+    zone: Id = Field(description="zone id (dossier.yaml)")
+    preparation: Text = Field("", description="preparation: raking out, cutting back, cleaning")
+    sequencing: Text = Field("", description="sequence of the work and bay sizes")
+    protection: Text = Field("", description="protection of adjacent fabric and the public")
+    placing: Text = Field("", description="placing the mortar (pointing, render coats, bedding)")
+    finishing: Text = Field("", description="finishing of joints or render")
+    curing: Text = Field("", description="curing and protection of the new work")
+    weather: Text = Field("", description="weather limits")
+
+
+class Responsibility(Model):
+    """Who does one task of the works: a role of the parties in dossier.yaml."""
+
+    task: Text = Field(description="what is done, e.g. tests the prisms and reports the results")
+    role: Text = Field(description="the role that does it, e.g. laboratory (a party's role)")
+
+
+class MethodFile(Model):
+    """The file ``method.yaml``: the project's overrides of the method statement."""
+
+    zones: list[ZoneMethod] = Field(default_factory=list, description="wording per zone")
+    responsibilities: list[Responsibility] = Field(
+        default_factory=list, description="who supplies, mixes, tests, inspects and approves "
+        "(replaces the default split when given)")
+    competence: Text = Field("", description="the competence the contractor must show")
