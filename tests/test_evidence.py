@@ -177,3 +177,72 @@ def test_memory_regime_holds_in_an_issued_revision(demo_copy):
     assert c.status == "hold"
     assert c.notes[0].startswith("held: the verdict (pass) rests on content/data/"
                                  "curing_regimes.yaml: en1015_11_hydraulic, recalled from memory")
+
+
+def test_image_that_is_not_an_image(demo_copy):
+    (demo_copy / "images" / "P2-coping-band.png").write_text("not a picture", encoding="utf-8")
+    assert ("samples.yaml, line 118: images[1].file: the file 'images/P2-coping-band.png' is not "
+            "an image (it cannot be read as JPEG or PNG). Fix: give a JPEG or PNG photograph, "
+            "or an SVG drawing (a drawing in a PDF: export the page as PNG or SVG)."
+            ) in problems(demo_copy)
+
+
+def test_image_over_the_size_limit_and_missing(demo_copy):
+    # 20 MB limit (specgen.project.evidence.IMAGE_MAX_BYTES): one byte over is refused unread
+    with open(demo_copy / "images" / "P1-inner-face-bay3.jpg", "ab") as f:
+        f.truncate(20_000_001)
+    (demo_copy / "images" / "P2-coping-band.png").unlink()
+    text = problems(demo_copy)
+    assert ("samples.yaml, line 115: images[0].file: the file 'images/P1-inner-face-bay3.jpg' is "
+            "20.0 MB; the limit is 20 MB. Fix: save a smaller copy (an image of about 2000 px on "
+            "its long side is enough for print), or split the report.") in text
+    assert ("samples.yaml, line 118: images[1].file: the file 'images/P2-coping-band.png' is "
+            "not in the project folder. Fix: copy the file there, or correct the path.") in text
+
+
+def test_report_that_is_not_a_pdf(demo_copy):
+    (demo_copy / "reports" / "NML-4502.pdf").write_bytes(b"PK\x03\x04 a zip, not a report")
+    assert ("samples.yaml, line 123: reports[1].file: the file 'reports/NML-4502.pdf' is not a "
+            "PDF. Fix: give the laboratory's report as a PDF file.") in problems(demo_copy)
+
+
+def test_image_outside_the_folder_is_refused(demo_copy):
+    edit(demo_copy / "samples.yaml", "file: images/P2-coping-band.png", "file: ../P2.png")
+    assert ("samples.yaml, line 118: images[1].file: the path '../P2.png' leaves the project "
+            "folder. Fix: give a path relative to the project folder, without '..'."
+            ) in problems(demo_copy)
+
+
+def _photo(orientation: int, gps: bool):
+    import io
+
+    from PIL import Image
+    im = Image.new("RGB", (40, 20), (200, 10, 10))
+    im.paste((10, 10, 200), (0, 0, 10, 20))          # a blue left edge, to see the turn
+    exif = Image.Exif()
+    exif[0x0112] = orientation
+    exif[0x010F] = "maker"
+    if gps:
+        exif[0x8825] = {1: "N", 2: (50.0, 30.0, 0.0)}
+    buf = io.BytesIO()
+    im.save(buf, "PNG", exif=exif.tobytes())
+    return buf.getvalue()
+
+
+def test_normalise_turns_upright_scales_and_strips_metadata():
+    import io
+
+    from PIL import Image
+
+    from specgen.report.evidence_images import normalise
+    # EXIF orientation 6 = the stored image is to be turned 90° clockwise to view (EXIF 2.3,
+    # tag 0x0112): a 40 x 20 stored image displays 20 x 40, its left edge on top
+    data, ext, size = normalise(_photo(6, gps=True), "p.png")
+    assert (ext, size) == ("png", (20, 40))
+    with Image.open(io.BytesIO(data)) as im:
+        assert dict(im.getexif()) == {}                       # nothing kept by default
+        assert im.getpixel((10, 2)) == (10, 10, 200)          # the blue edge is now the top
+    data, _, size = normalise(_photo(1, gps=True), "p.png", long_side=10, keep_metadata=True)
+    assert size == (10, 5)                                    # long side 10 px, aspect kept
+    with Image.open(io.BytesIO(data)) as im:
+        assert dict(im.getexif()) == {0x010F: "maker"}        # the GPS block never survives

@@ -19,12 +19,21 @@ DAY = 86400.0
 DATE_SLACK_D = 0.5
 
 
+# the largest image and report a project may place: a phone photograph is a few MB; a
+# larger file is a scan at the wrong resolution, and would swell every revision
+IMAGE_MAX_BYTES = 20_000_000
+IMAGE_MAX_PIXELS = 50_000_000
+REPORT_MAX_BYTES = 40_000_000
+
+
 @dataclass
 class Evidence:
-    """The register as loaded: samples and drawings by id."""
+    """The register as loaded: samples, drawings, images and reports."""
 
     samples: dict = field(default_factory=dict)    # id → schema_evidence.Sample
     drawings: dict = field(default_factory=dict)   # id → schema_evidence.Drawing
+    images: dict = field(default_factory=dict)     # id → (schema_evidence.Picture, bytes)
+    reports: dict = field(default_factory=dict)    # reference → (LabReport, bytes)
 
 
 def evidence(project, doc, located: dict, log: ProblemLog, failed) -> Evidence:
@@ -36,6 +45,8 @@ def evidence(project, doc, located: dict, log: ProblemLog, failed) -> Evidence:
         ev.samples = _index(doc.samples, "sample id", SAMPLES_FILE, "samples", located, log)
         ev.drawings = _index(doc.drawings, "drawing id", SAMPLES_FILE, "drawings", located, log)
         _register_refs(project, ev, located, log, failed)
+        ev.images = _images(project, doc, located, log, failed)
+        ev.reports = _reports(project, doc, located, log)
     known = SKIP if SAMPLES_FILE in failed else ev.samples
     _yaml_refs(project, known, located, log)
     _table_refs(project, known, log)
@@ -141,3 +152,90 @@ def _strength_dates(strength: list, log: ProblemLog) -> None:
                         f"{r.cast_on.isoformat()} is {days} d, but the age at test is "
                         f"{r.age / DAY:g} d.", row=r.row, field="tested_on",
                         fix="check the two dates and the age against the laboratory report.")
+
+
+def _file(project, rel: str, key: tuple, located: dict, log: ProblemLog, limit: int):
+    """The bytes of a file a register entry names (inside the folder, present, not too big)."""
+    from specgen.project.load import inside
+    where = located.get(SAMPLES_FILE)
+    line = where.line_of(key) if where else None
+    field_ = ".".join(str(k) if not isinstance(k, int) else f"[{k}]" for k in key) \
+        .replace(".[", "[")
+    path = inside(project.root, rel, SAMPLES_FILE, field_, log, line)
+    if path is None:
+        return None
+    if not path.is_file():
+        log.add(SAMPLES_FILE, f"the file '{quote(rel)}' is not in the project folder.",
+                line=line, field=field_, fix="copy the file there, or correct the path.")
+        return None
+    if (size := path.stat().st_size) > limit:
+        log.add(SAMPLES_FILE, f"the file '{quote(rel)}' is {size / 1e6:.1f} MB; the limit is "
+                f"{limit / 1e6:g} MB.", line=line, field=field_,
+                fix="save a smaller copy (an image of about 2000 px on its long side is "
+                "enough for print), or split the report.")
+        return None
+    return path.read_bytes(), line, field_
+
+
+def _images(project, doc, located: dict, log: ProblemLog, failed) -> dict:
+    """Images of the register that Pillow can read (JPEG, PNG) or that are SVG drawings."""
+    from specgen.project.load import _index
+    zones = SKIP if "dossier.yaml" in failed else {z.id: z for z in project.dossier.zones}
+    out = {}
+    for i, img in enumerate(_index(doc.images, "image id", SAMPLES_FILE, "images", located,
+                                   log).values()):
+        _ref(log, located, SAMPLES_FILE, ("images", i, "zone"), img.zone, zones, "zone")
+        got = _file(project, img.file, ("images", i, "file"), located, log, IMAGE_MAX_BYTES)
+        if got is None:
+            continue
+        data, line, field_ = got
+        problem = image_problem(data, img.file)
+        if problem:
+            log.add(SAMPLES_FILE, f"the file '{quote(img.file)}' {problem}.", line=line,
+                    field=field_, fix="give a JPEG or PNG photograph, or an SVG drawing (a "
+                    "drawing in a PDF: export the page as PNG or SVG).")
+            continue
+        out[img.id] = (img, data)
+    return out
+
+
+def image_problem(data: bytes, name: str) -> str | None:
+    """Why ``data`` is not an image specgen can place, or None."""
+    if name.lower().endswith(".svg"):
+        head = data[:2000].lstrip()
+        return None if b"<svg" in head and head[:1] == b"<" else "is not an SVG drawing"
+    import io
+    import warnings
+    from PIL import Image
+    try:
+        with warnings.catch_warnings():
+            warnings.simplefilter("error", Image.DecompressionBombWarning)
+            with Image.open(io.BytesIO(data)) as im:
+                fmt, pixels = im.format, im.size[0] * im.size[1]
+                im.verify()
+    except Exception:       # Pillow raises many kinds for a file that is not an image
+        return "is not an image (it cannot be read as JPEG or PNG)"
+    if fmt not in ("JPEG", "PNG"):
+        return f"is a {fmt} image; only JPEG and PNG are placed"
+    if pixels > IMAGE_MAX_PIXELS:
+        return f"has {pixels / 1e6:.0f} million pixels; the limit is {IMAGE_MAX_PIXELS / 1e6:g}"
+    return None
+
+
+def _reports(project, doc, located: dict, log: ProblemLog) -> dict:
+    """Laboratory reports: PDF files, each under its reference."""
+    from specgen.project.load import _index
+    out = {}
+    refs = _index(doc.reports, "report", SAMPLES_FILE, "reports", located, log,
+                  id_field="reference")
+    for i, rep in enumerate(refs.values()):
+        got = _file(project, rep.file, ("reports", i, "file"), located, log, REPORT_MAX_BYTES)
+        if got is None:
+            continue
+        data, line, field_ = got
+        if not data.startswith(b"%PDF-"):
+            log.add(SAMPLES_FILE, f"the file '{quote(rep.file)}' is not a PDF.", line=line,
+                    field=field_, fix="give the laboratory's report as a PDF file.")
+            continue
+        out[rep.reference] = (rep, data)
+    return out

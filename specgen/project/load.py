@@ -74,6 +74,8 @@ class Project:
     samples: dict = field(default_factory=dict)   # id → Sample of samples.yaml (the register)
     drawings: dict = field(default_factory=dict)  # id → Drawing of samples.yaml
     method: object = None  # schema_evidence.MethodFile of method.yaml, or None
+    images: dict = field(default_factory=dict)    # id → (Picture, bytes) of samples.yaml
+    reports: dict = field(default_factory=dict)   # reference → (LabReport, bytes)
 
     @property
     def revision(self) -> schema.Revision:
@@ -240,6 +242,7 @@ def load_project(root: Path | str, names=None) -> Project:
     from specgen.project.evidence import evidence
     ev = evidence(project, docs.get("samples.yaml"), located, log, failed)
     project.samples, project.drawings = ev.samples, ev.drawings
+    project.images, project.reports = ev.images, ev.reports
     project.method = docs.get("method.yaml")
     log.raise_if_any()
     return project

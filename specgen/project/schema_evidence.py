@@ -84,12 +84,40 @@ class Sample(Model):
         return self
 
 
+class Picture(Model):
+    """A photograph or a drawing sheet placed in the dossier (JPEG, PNG or SVG)."""
+
+    id: Id = Field(description="image identifier, e.g. P1")
+    file: Text = Field(description="the file inside the project folder, e.g. images/P1.jpg")
+    caption: Text = Field(description="what the image shows, as its caption")
+    kind: Literal["photograph", "drawing"] = Field("photograph", description="photograph or "
+                                                   "drawing")
+    taken_on: dt.date | None = Field(None, description="date taken or drawn (YYYY-MM-DD)")
+    by: Text = Field("", description="who took or drew it")
+    zone: Id | None = Field(None, description="zone of work it shows (dossier.yaml)")
+    keep_metadata: bool = Field(False, description="keep the camera's metadata (never the GPS "
+                                "position); by default every metadata block is stripped")
+
+
+class LabReport(Model):
+    """A laboratory report (PDF) attached to the dossier and linked from the samples."""
+
+    reference: Text = Field(description="the report reference the samples name, e.g. NML-4402 "
+                            "rev. A")
+    file: Text = Field(description="the PDF inside the project folder, e.g. reports/NML-4402.pdf")
+    title: Text = Field("", description="title of the report")
+
+
 class SamplesFile(Model):
     """The file ``samples.yaml``: the sample register and the drawings it points on."""
 
     drawings: list[Drawing] = Field(default_factory=list, description="drawings sample points "
                                     "are given on")
     samples: list[Sample] = Field(default_factory=list, description="the sample register")
+    images: list[Picture] = Field(default_factory=list, description="photographs and drawings "
+                                  "placed in the dossier")
+    reports: list[LabReport] = Field(default_factory=list, description="laboratory reports "
+                                     "(PDF) attached to the dossier")
 
 
 class HeritageContext(Model):

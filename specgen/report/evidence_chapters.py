@@ -27,13 +27,43 @@ def sample_links(ids) -> str:
 def evidence(env) -> dict:
     p = env.project
     named = _named(p)
-    register = [_entry(p, s, named.get(s.id, [])) for s in p.samples.values()]
+    reports = _reports(env)
+    register = [_entry(p, s, named.get(s.id, []), reports) for s in p.samples.values()]
     return {"register": register, "drawings": [_drawing(env, d) for d in p.drawings.values()],
-            "unnamed": _unnamed(p), "series": _series(env),
-            "has_register": bool(p.samples)}
+            "unnamed": _unnamed(p), "series": _series(env), "images": _images(env),
+            "reports": list(reports.values()), "has_register": bool(p.samples)}
 
 
-def _entry(p, s, results: list[str]) -> dict:
+def _reports(env) -> dict:
+    """Each laboratory report published beside the PDF (attached to it, hashed in the
+    manifest): reference → {href, title, file}."""
+    out = {}
+    for ref, (rep, data) in env.project.reports.items():
+        name = rep.file.rsplit("/", 1)[-1]
+        path = env.pageset.add_download(f"reports/{name}", data)
+        out[ref] = {"reference": ref, "title": rep.title or ref, "href": f"./{path}",
+                    "file": name, "kib": max(1, round(len(data) / 1024))}
+    return out
+
+
+def _images(env) -> list[dict]:
+    """Photographs and drawings: print-size image (numbered figure) and a site thumbnail."""
+    from specgen.report.evidence_images import THUMB_PX, normalise
+    out = []
+    for iid, (img, data) in env.project.images.items():
+        full, ext, size = normalise(data, img.file, keep_metadata=img.keep_metadata)
+        thumb, _, _ = normalise(data, img.file, THUMB_PX, img.keep_metadata)
+        words = [img.kind] + ([img.taken_on.isoformat()] if img.taken_on else []) + \
+            ([f"by {img.by}"] if img.by else []) + ([f"zone {img.zone}"] if img.zone else [])
+        caption = f"{img.caption} ({', '.join(words)})"
+        fig = env.figure(f"images/{anchor(iid)}.{ext}", full, caption)
+        thumb_src = f"images/{anchor(iid)}-thumb.{ext}"
+        env.pageset.add_asset(thumb_src, thumb)
+        out.append({"id": iid, "figure": fig, "thumb": thumb_src, "anchor": f"image-{anchor(iid)}"})
+    return out
+
+
+def _entry(p, s, results: list[str], reports: dict) -> dict:
     if s.location is not None:
         d = p.drawings.get(s.location.drawing)
         where = (f"drawing {s.location.drawing}, x {num(s.location.x, 3)}, y "
@@ -45,6 +75,7 @@ def _entry(p, s, results: list[str]) -> dict:
             "of": s.of or "—", "zone": s.zone or "—", "where": where,
             "description": s.description, "taken": s.taken_on.isoformat() if s.taken_on else "—",
             "by": s.taken_by or "—", "laboratory": s.laboratory or "—", "report": s.report or "—",
+            "report_href": reports[s.report]["href"] if s.report in reports else "",
             "accreditation": s.accreditation or "not accredited (none stated)",
             "results": [reader(r) for r in results]}
 
