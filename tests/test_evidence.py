@@ -246,3 +246,9 @@ def test_normalise_turns_upright_scales_and_strips_metadata():
     assert size == (10, 5)                                    # long side 10 px, aspect kept
     with Image.open(io.BytesIO(data)) as im:
         assert dict(im.getexif()) == {0x010F: "maker"}        # the GPS block never survives
+
+
+def test_drawing_sheet_must_be_a_placed_raster_image(demo_copy):
+    edit(demo_copy / "samples.yaml", "image: D1-sheet}", "image: D1-shet}")
+    assert ("samples.yaml, line 7: drawings[0].image: names JPEG or PNG image 'D1-shet', which "
+            "is not defined. Fix: did you mean 'D1-sheet'?") in problems(demo_copy)

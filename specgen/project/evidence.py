@@ -46,6 +46,10 @@ def evidence(project, doc, located: dict, log: ProblemLog, failed) -> Evidence:
         ev.drawings = _index(doc.drawings, "drawing id", SAMPLES_FILE, "drawings", located, log)
         _register_refs(project, ev, located, log, failed)
         ev.images = _images(project, doc, located, log, failed)
+        for i, d in enumerate(ev.drawings.values()):
+            known = {k: v for k, v in ev.images.items() if not v[0].file.lower().endswith(".svg")}
+            _ref(log, located, SAMPLES_FILE, ("drawings", i, "image"), d.image,
+                 known if ev.images or not doc.images else SKIP, "JPEG or PNG image")
         ev.reports = _reports(project, doc, located, log)
     known = SKIP if SAMPLES_FILE in failed else ev.samples
     _yaml_refs(project, known, located, log)

@@ -52,6 +52,9 @@ class Drawing(Model):
     north: Text = Field("", description="orientation note printed with the drawing, e.g. "
                         "'elevation faces north-west'")
     zones: list[ZoneArea] = Field(default_factory=list, description="zones of work drawn on it")
+    image: Id | None = Field(None, description="image id (images:) of the drawing sheet, a JPEG "
+                             "or PNG whose edges are the drawing's extent: drawn under the "
+                             "zones and sample points")
 
 
 class Sample(Model):

@@ -151,7 +151,12 @@ def _drawing(env, d) -> dict:
     points = [(s.id, s.location.x, s.location.y) for s in p.samples.values()
               if s.location is not None and s.location.drawing == d.id]
     zones = [(a.zone, a.x, a.y, a.width, a.height) for a in d.zones]
-    svg = overlay(d.width, d.height, d.units, zones, points, d.north)
+    sheet = None
+    if d.image in p.images:
+        from specgen.report.evidence_images import normalise
+        img, data = p.images[d.image]
+        sheet = normalise(data, img.file)[0]
+    svg = overlay(d.width, d.height, d.units, zones, points, d.north, sheet)
     caption = f"Drawing {d.id}: {d.title} — zones of work and sample points"
     if d.reference:
         caption += f" (from {d.reference})"
