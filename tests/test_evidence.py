@@ -29,13 +29,13 @@ def test_demo_register_every_result_names_a_registered_sample():
         ("Z1", "D1", "Northstead Materials Laboratory", "NML-4402 rev. A")
 
 
-def test_strength_rows_carry_their_dates_regime_and_series():
+def test_strength_rows_take_their_series_from_the_register():
+    # demo lab/strength.csv names no series: each row belongs to the one prism series of its
+    # mix in samples.yaml and takes its casting date and curing regime from it
     p = load_project("demo_project")
     r = next(r for r in p.strength if r.specimen == "M3-90d-F2")
-    assert (r.cast_on.isoformat(), r.tested_on.isoformat(), r.curing_regime, r.lab_sample) == \
-        ("2026-08-26", "2026-11-24", "en1015_11_hydraulic", "M3-P1")
-    # 2026-08-26 + 90 d = 2026-11-24 (calendar arithmetic: 5 + 30 + 31 + 24 days)
-    assert (r.tested_on - r.cast_on).days == 90 == r.age / 86400
+    assert (r.cast_on.isoformat(), r.curing_regime, r.lab_sample, r.tested_on) == \
+        ("2026-08-26", "en1015_11_hydraulic", "M3-P1", None)
 
 
 def test_analysis_naming_an_unregistered_sample(demo_copy):
@@ -93,12 +93,21 @@ def test_fabric_sample_without_a_place(demo_copy):
             "(drawing, x, y) or 'grid:' (where it was taken).") in problems(demo_copy)
 
 
+def _dated(project, rows: dict) -> None:
+    """Give lab/strength.csv the columns cast_on, tested_on, curing_regime (test setup):
+    ``rows`` maps a specimen to its three cells; the others leave them empty."""
+    path = project / "lab/strength.csv"
+    lines = path.read_text(encoding="utf-8").splitlines()
+    out = [lines[0] + ",cast_on,tested_on,curing_regime"]
+    out += [line + "," + ",".join(rows.get(line.split(",")[0], ("", "", ""))) for line in lines[1:]]
+    path.write_text("\n".join(out) + "\n", encoding="utf-8")
+
+
 def test_unknown_curing_regime_and_dates_that_disagree_with_the_age(demo_copy):
-    edit(demo_copy / "lab/strength.csv", "M1-01d-C2,M1,1,compressive,1.24,20,2026-08-24,2026-08-25,"
-         "en1015_11_hydraulic", "M1-01d-C2,M1,1,compressive,1.24,20,2026-08-24,2026-08-25,"
-         "en1015_11_hydraulik")
-    edit(demo_copy / "lab/strength.csv", "M1-01d-C3,M1,1,compressive,1.18,20,2026-08-24,2026-08-25",
-         "M1-01d-C3,M1,1,compressive,1.18,20,2026-08-24,2026-08-28")
+    _dated(demo_copy, {"M1-01d-C2": ("2026-08-24", "2026-08-25", "en1015_11_hydraulik"),
+                       "M1-01d-C3": ("2026-08-24", "2026-08-28", "")})
+    edit(demo_copy / "samples.yaml", "curing_regime: en1015_11_hydraulic,",
+         "curing_regime: water20,")
     text = problems(demo_copy)
     assert ("lab/strength.csv, row 3: curing_regime: unknown curing regime "
             "'en1015_11_hydraulik'. Fix: did you mean 'en1015_11_hydraulic'? Known: "
@@ -107,6 +116,18 @@ def test_unknown_curing_regime_and_dates_that_disagree_with_the_age(demo_copy):
     assert ("lab/strength.csv, row 4: tested_on: tested 2026-08-28 and cast 2026-08-24 is 4 d, "
             "but the age at test is 1 d. Fix: check the two dates and the age against the "
             "laboratory report.") in text
+    assert ("samples.yaml, line 95: samples[9].curing_regime: unknown curing regime 'water20' "
+            "of sample 'M1-P1'. Fix: did you mean 'water_20'? Known: en1015_11_lime, "
+            "en1015_11_hydraulic, water_20, sealed_20, air_65 (content/data/curing_regimes.yaml)."
+            ) in text
+
+
+def test_dates_that_agree_with_the_age_load(demo_copy):
+    # 2026-08-24 + 1 d = 2026-08-25: the row's own dates and regime win over the series'
+    _dated(demo_copy, {"M1-01d-C2": ("2026-08-24", "2026-08-25", "water_20")})
+    r = next(r for r in load_project(demo_copy).strength if r.specimen == "M1-01d-C2")
+    assert (r.cast_on.isoformat(), r.tested_on.isoformat(), r.curing_regime, r.lab_sample) == \
+        ("2026-08-24", "2026-08-25", "water_20", "M1-P1")
 
 
 def test_bad_register_writes_nothing(cli, demo_copy, tmp_path):
@@ -119,11 +140,11 @@ def test_bad_register_writes_nothing(cli, demo_copy, tmp_path):
 
 
 def _regime(project, mix: str, regime: str) -> None:
-    path = project / "lab/strength.csv"
-    lines = path.read_text(encoding="utf-8").splitlines(keepends=True)
-    path.write_text("".join(line.replace("en1015_11_hydraulic", regime)
-                            if line.split(",")[1] == mix else line for line in lines),
-                    encoding="utf-8")
+    """The curing regime of the prism series of ``mix`` in samples.yaml (test setup)."""
+    edit(project / "samples.yaml", f'prisms of mix {mix}, one batch, cast in the laboratory",\n'
+         "     curing_regime: en1015_11_hydraulic,",
+         f'prisms of mix {mix}, one batch, cast in the laboratory",\n     curing_regime: '
+         f'"{regime}",')
 
 
 def test_curing_regime_suits_the_binder_family():
@@ -154,14 +175,17 @@ def test_hydraulic_lime_prisms_dried_in_air_fail(demo_copy):
 
 
 def test_unstated_regime_is_attention_and_none_stated_not_assessed(demo_copy):
-    edit(demo_copy / "lab/strength.csv", "2026-08-26,en1015_11_hydraulic,M2-P1",
-         "2026-08-26,,M2-P1")
+    # M2: the series states no regime, every row but M2-01d-C1 states its own; M1: none at all
+    m2 = [line.split(",")[0] for line in (demo_copy / "lab/strength.csv").read_text(
+        encoding="utf-8").splitlines() if line.startswith("M2-")]
+    _dated(demo_copy, {s: ("", "", "en1015_11_hydraulic") for s in m2 if s != "M2-01d-C1"})
+    _regime(demo_copy, "M2", "")
     _regime(demo_copy, "M1", "")
     got = by_check(check(demo_copy)[1])
     assert got[("EVD-CURE", "M1")].status == "not_assessed"
     assert got[("EVD-CURE", "M1")].message == ("not assessed: no curing regime is stated for "
-                                               "the 30 prisms of M1 (lab/strength.csv, column "
-                                               "curing_regime)")
+                                               "the 30 prisms of M1 (the prism series in "
+                                               "samples.yaml, or lab/strength.csv)")
     m2 = got[("EVD-CURE", "M2")]
     assert (m2.status, m2.message) == ("attention", "1 of 30 prisms state no curing regime "
                                        "(first: M2-01d-C1); the others suit natural_cement")
@@ -181,7 +205,7 @@ def test_memory_regime_holds_in_an_issued_revision(demo_copy):
 
 def test_image_that_is_not_an_image(demo_copy):
     (demo_copy / "images" / "P2-coping-band.png").write_text("not a picture", encoding="utf-8")
-    assert ("samples.yaml, line 118: images[1].file: the file 'images/P2-coping-band.png' is not "
+    assert ("samples.yaml, line 121: images[1].file: the file 'images/P2-coping-band.png' is not "
             "an image (it cannot be read as JPEG or PNG). Fix: give a JPEG or PNG photograph, "
             "or an SVG drawing (a drawing in a PDF: export the page as PNG or SVG)."
             ) in problems(demo_copy)
@@ -193,22 +217,22 @@ def test_image_over_the_size_limit_and_missing(demo_copy):
         f.truncate(20_000_001)
     (demo_copy / "images" / "P2-coping-band.png").unlink()
     text = problems(demo_copy)
-    assert ("samples.yaml, line 115: images[0].file: the file 'images/P1-inner-face-bay3.jpg' is "
+    assert ("samples.yaml, line 118: images[0].file: the file 'images/P1-inner-face-bay3.jpg' is "
             "20.0 MB; the limit is 20 MB. Fix: save a smaller copy (an image of about 2000 px on "
             "its long side is enough for print), or split the report.") in text
-    assert ("samples.yaml, line 118: images[1].file: the file 'images/P2-coping-band.png' is "
+    assert ("samples.yaml, line 121: images[1].file: the file 'images/P2-coping-band.png' is "
             "not in the project folder. Fix: copy the file there, or correct the path.") in text
 
 
 def test_report_that_is_not_a_pdf(demo_copy):
     (demo_copy / "reports" / "NML-4502.pdf").write_bytes(b"PK\x03\x04 a zip, not a report")
-    assert ("samples.yaml, line 123: reports[1].file: the file 'reports/NML-4502.pdf' is not a "
+    assert ("samples.yaml, line 128: reports[1].file: the file 'reports/NML-4502.pdf' is not a "
             "PDF. Fix: give the laboratory's report as a PDF file.") in problems(demo_copy)
 
 
 def test_image_outside_the_folder_is_refused(demo_copy):
     edit(demo_copy / "samples.yaml", "file: images/P2-coping-band.png", "file: ../P2.png")
-    assert ("samples.yaml, line 118: images[1].file: the path '../P2.png' leaves the project "
+    assert ("samples.yaml, line 121: images[1].file: the path '../P2.png' leaves the project "
             "folder. Fix: give a path relative to the project folder, without '..'."
             ) in problems(demo_copy)
 

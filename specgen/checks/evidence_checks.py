@@ -38,7 +38,7 @@ def curing_check(mix, ctx):
     if not stated:
         return not_assessed("EVD-CURE", TITLE, mix.id, "mix", BASIS,
                             f"no curing regime is stated for the {len(rows)} prisms of {mix.id} "
-                            "(lab/strength.csv, column curing_regime)")
+                            "(the prism series in samples.yaml, or lab/strength.csv)")
     used = {k: regimes[k] for k in stated}
     wrong = {k: [f for f in families if f not in v["suits"]] for k, v in used.items()}
     wrong = {k: fs for k, fs in wrong.items() if fs}
@@ -75,8 +75,8 @@ def _step(mix, key: str, regime: dict, families: list[str], rows) -> Step:
     words = dc.tex(fam.replace("_", " "))
     return Step(
         f"Regime {key} of {n} prisms of {mix.id}", r"f \in S(r)",
-        (Input("r", "curing regime", key, "", f"lab/strength.csv, column curing_regime "
-               f"({n} prisms): {regime['title']}"),
+        (Input("r", "curing regime", key, "", f"lab/strength.csv or the prism series of "
+               f"samples.yaml ({n} prisms): {regime['title']}"),
          Input("f", "binder families of the mix", fam, "", "materials.yaml binder type, "
                "through mixes.yaml"),
          Input("S(r)", "binder families the regime suits", ", ".join(suits), "",

@@ -54,7 +54,9 @@ def evidence(project, doc, located: dict, log: ProblemLog, failed) -> Evidence:
     known = SKIP if SAMPLES_FILE in failed else ev.samples
     _yaml_refs(project, known, located, log)
     _table_refs(project, known, log)
-    _strength_dates(project.strength, log)
+    if doc is not None:
+        project.strength = _series_of(project.strength, ev.samples)
+    _strength_dates(project.strength, log, ev.samples, located.get(SAMPLES_FILE))
     if (method := project_doc(located, "method.yaml")) is not None and "dossier.yaml" not in failed:
         zones = {z.id: z for z in project.dossier.zones}
         for i, item in enumerate(method.get("zones") or []):
@@ -139,11 +141,38 @@ def _table_refs(project, known, log: ProblemLog) -> None:
                 "and when it was taken, laboratory and report), or correct the id.")
 
 
-def _strength_dates(strength: list, log: ProblemLog) -> None:
+def _series_of(strength: list, samples: dict) -> list:
+    """Strength rows with their prism series: a row that names none belongs to the one prism
+    series of its mix (none or two: it stays unlinked, listed as naming no sample); from the
+    series it takes the casting date and the curing regime it does not give itself."""
+    from dataclasses import replace
+    series: dict[str, list] = {}
+    for s in samples.values():
+        if s.kind == "prisms" and s.of:
+            series.setdefault(s.of, []).append(s)
+    out = []
+    for r in strength:
+        s = samples.get(r.lab_sample) if r.lab_sample else (
+            series[r.mix][0] if len(series.get(r.mix, [])) == 1 else None)
+        if s is not None and s.kind == "prisms":
+            r = replace(r, lab_sample=s.id, cast_on=r.cast_on or s.taken_on,
+                        curing_regime=r.curing_regime or s.curing_regime)
+        out.append(r)
+    return out
+
+
+def _strength_dates(strength: list, log: ProblemLog, samples: dict, where=None) -> None:
     """A known curing regime, and test date − casting date = age at test."""
     from specgen import refdata
     with refdata.unrecorded():
         regimes = list(refdata.load("curing_regimes").data["regimes"])
+    for i, s in enumerate(samples.values()):
+        if s.curing_regime and s.curing_regime not in regimes:
+            log.add(SAMPLES_FILE, f"unknown curing regime '{quote(s.curing_regime)}' of sample "
+                    f"'{s.id}'.", field=f"samples[{i}].curing_regime",
+                    line=where.line_of(("samples", i, "curing_regime")) if where else None,
+                    fix=(did_you_mean(s.curing_regime, regimes) or "")
+                    + f" Known: {', '.join(regimes)} (content/data/curing_regimes.yaml).")
     for r in strength:
         if r.curing_regime and r.curing_regime not in regimes:
             log.add(r.file, f"unknown curing regime '{quote(r.curing_regime)}'.", row=r.row,

@@ -76,6 +76,9 @@ class Sample(Model):
     report: Text = Field("", description="the laboratory's report reference")
     accreditation: Text = Field("", description="the laboratory's accreditation for the tests, "
                                 "e.g. ISO/IEC 17025 schedule reference; empty: not accredited")
+    curing_regime: Text = Field("", description="prism series: how the prisms were cured, by "
+                                "the key of content/data/curing_regimes.yaml (rows of the mix in "
+                                "lab/strength.csv without their own take it)")
 
     @model_validator(mode="after")
     def _located(self):

@@ -3,7 +3,7 @@ drawn on them, and for each sample the results that name it (and those that name
 from __future__ import annotations
 
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import anchor, num
+from specgen.report.fmt import anchor, as_given, num
 from specgen.report.wording import reader
 
 PAGE = "evidence.md"
@@ -138,7 +138,9 @@ def _series(env) -> list[dict]:
                     "series": sample_links(sorted({r.lab_sample for r in rows
                                                    if r.lab_sample})) or "—",
                     "cast": ", ".join(cast) or "—",
-                    "tested": f"{tested[0]} to {tested[-1]}" if tested else "—",
+                    "tested": f"{tested[0]} to {tested[-1]}" if tested else
+                    "at " + ", ".join(as_given(a) for a in sorted({round(r.age / 86400, 3)
+                                                                    for r in rows})) + " d",
                     "regime": reader(", ".join(regimes)) if regimes else "not stated",
                     "badge": badge(check.status) if check else "",
                     "href": f"calculations.md#{sheet_anchor(check)}" if check else ""})
