@@ -15,7 +15,7 @@ from tests.helpers import by_check, edit, problems
 
 def test_demo_register_every_result_names_a_registered_sample():
     p = load_project("demo_project")
-    assert len(p.samples) == 15 and set(p.drawings) == {"D1", "D2", "D3"}
+    assert len(p.samples) == 16 and set(p.drawings) == {"D1", "D2", "D3"}
     named = [a.lab_sample for a in p.analyses.values()]
     named += [r.lab_sample for attr in ("strength", "sieves", "colours", "capillary")
               for r in getattr(p, attr)]
@@ -45,20 +45,42 @@ def test_analysis_naming_an_unregistered_sample(demo_copy):
             ) in problems(demo_copy)
 
 
+def _named_rows(project, rel: str, names: dict) -> None:
+    """Give a lab table the column lab_sample (test setup): ``names`` maps a row number (2 is
+    the first data row) to the sample it names; the others leave it empty."""
+    path = project / rel
+    lines = path.read_text(encoding="utf-8").splitlines()
+    out = [lines[0] + ",lab_sample"] + [line + "," + names.get(i, "")
+                                         for i, line in enumerate(lines[1:], start=2)]
+    path.write_text("\n".join(out) + "\n", encoding="utf-8")
+
+
 def test_lab_row_naming_an_unregistered_sample(demo_copy):
-    edit(demo_copy / "lab/colour.csv", "HM2,58.9,4.6,15.8,D65,10,HM2-S1",
-         "HM2,58.9,4.6,15.8,D65,10,HM2-S9")
+    _named_rows(demo_copy, "lab/colour.csv", {12: "HM2-S9", 13: "HM2-S9", 14: "HM2-S1"})
     assert ("lab/colour.csv, row 12: lab_sample: names sample 'HM2-S9', which is not in the "
-            "sample register. Fix: did you mean 'HM2-S1'?") in problems(demo_copy)
+            "sample register (also rows 13). Fix: did you mean 'HM2-S1'?") in problems(demo_copy)
+
+
+def test_rows_naming_no_sample_belong_to_the_one_sample_of_their_subject():
+    # demo: colour rows of HM1 -> HM1-S1 (the one historic mortar sample of HM1; HM1-agg is an
+    # aggregate, not read for colour); sieve rows of HM1-agg -> the sample of that id; M2's
+    # capillary rows -> its prism series M2-P1
+    p = load_project("demo_project")
+    assert {r.sample: r.lab_sample for r in p.colours} == {
+        "HM1": "HM1-S1", "HM2": "HM2-S1", "M1": "TP1-C", "M2": "TP2-C", "M3": "TP3-C"}
+    assert {r.sample: r.lab_sample for r in p.sieves} == {
+        "S1": "S1-D1", "S2": "S2-D1", "HM1-agg": "HM1-agg"}
+    assert {r.lab_sample for r in p.capillary} == {"M2-P1"}
 
 
 def test_result_naming_a_sample_without_any_register(demo_copy):
     (demo_copy / "samples.yaml").unlink()
+    _named_rows(demo_copy, "lab/capillary.csv", {2: "M2-P1", 3: "M2-P1"})
     text = problems(demo_copy)
     assert ("lab/capillary.csv, row 2: lab_sample: names sample 'M2-P1', which is not in the "
-            "sample register (also rows 3, 4, 5, 6, 7). Fix: add the sample to samples.yaml (id, "
-            "kind, description, where and when it was taken, laboratory and report), or "
-            "correct the id.") in text
+            "sample register (also rows 3). Fix: add the sample to samples.yaml (id, kind, "
+            "description, where and when it was taken, laboratory and report), or correct the "
+            "id.") in text
     assert ("analyses.yaml, line 10: analyses[0].lab_sample: names sample of the register "
             "(samples.yaml) 'BS-3', which is not defined. Fix: define it first.") in text
 
@@ -81,7 +103,7 @@ def test_zone_drawn_outside_its_drawing_and_unknown_names(demo_copy):
     assert ("samples.yaml, line 13: drawings[2].zones[0]: zone 'Z3' reaches outside drawing "
             "'D3' (0–6 by 0–4 m). Fix: give x, y, width and height in the drawing's units, from "
             "its bottom-left corner.") in text
-    assert ("samples.yaml, line 32: samples[1].location.drawing: names drawing 'D4', which is "
+    assert ("samples.yaml, line 43: samples[2].location.drawing: names drawing 'D4', which is "
             "not defined. Fix: define it, or use one of: D1, D2, D3.") in text
     assert ("samples.yaml, line 20: samples[0].zone: names zone 'Z7', which is not defined. "
             "Fix: define it, or use one of: Z1, Z2, Z3.") in text
@@ -116,7 +138,7 @@ def test_unknown_curing_regime_and_dates_that_disagree_with_the_age(demo_copy):
     assert ("lab/strength.csv, row 4: tested_on: tested 2026-08-28 and cast 2026-08-24 is 4 d, "
             "but the age at test is 1 d. Fix: check the two dates and the age against the "
             "laboratory report.") in text
-    assert ("samples.yaml, line 95: samples[9].curing_regime: unknown curing regime 'water20' "
+    assert ("samples.yaml, line 106: samples[10].curing_regime: unknown curing regime 'water20' "
             "of sample 'M1-P1'. Fix: did you mean 'water_20'? Known: en1015_11_lime, "
             "en1015_11_hydraulic, water_20, sealed_20, air_65 (content/data/curing_regimes.yaml)."
             ) in text
@@ -205,7 +227,7 @@ def test_memory_regime_holds_in_an_issued_revision(demo_copy):
 
 def test_image_that_is_not_an_image(demo_copy):
     (demo_copy / "images" / "P2-coping-band.png").write_text("not a picture", encoding="utf-8")
-    assert ("samples.yaml, line 121: images[1].file: the file 'images/P2-coping-band.png' is not "
+    assert ("samples.yaml, line 132: images[1].file: the file 'images/P2-coping-band.png' is not "
             "an image (it cannot be read as JPEG or PNG). Fix: give a JPEG or PNG photograph, "
             "or an SVG drawing (a drawing in a PDF: export the page as PNG or SVG)."
             ) in problems(demo_copy)
@@ -217,22 +239,22 @@ def test_image_over_the_size_limit_and_missing(demo_copy):
         f.truncate(20_000_001)
     (demo_copy / "images" / "P2-coping-band.png").unlink()
     text = problems(demo_copy)
-    assert ("samples.yaml, line 118: images[0].file: the file 'images/P1-inner-face-bay3.jpg' is "
+    assert ("samples.yaml, line 129: images[0].file: the file 'images/P1-inner-face-bay3.jpg' is "
             "20.0 MB; the limit is 20 MB. Fix: save a smaller copy (an image of about 2000 px on "
             "its long side is enough for print), or split the report.") in text
-    assert ("samples.yaml, line 121: images[1].file: the file 'images/P2-coping-band.png' is "
+    assert ("samples.yaml, line 132: images[1].file: the file 'images/P2-coping-band.png' is "
             "not in the project folder. Fix: copy the file there, or correct the path.") in text
 
 
 def test_report_that_is_not_a_pdf(demo_copy):
     (demo_copy / "reports" / "NML-4502.pdf").write_bytes(b"PK\x03\x04 a zip, not a report")
-    assert ("samples.yaml, line 128: reports[1].file: the file 'reports/NML-4502.pdf' is not a "
+    assert ("samples.yaml, line 139: reports[1].file: the file 'reports/NML-4502.pdf' is not a "
             "PDF. Fix: give the laboratory's report as a PDF file.") in problems(demo_copy)
 
 
 def test_image_outside_the_folder_is_refused(demo_copy):
     edit(demo_copy / "samples.yaml", "file: images/P2-coping-band.png", "file: ../P2.png")
-    assert ("samples.yaml, line 121: images[1].file: the path '../P2.png' leaves the project "
+    assert ("samples.yaml, line 132: images[1].file: the path '../P2.png' leaves the project "
             "folder. Fix: give a path relative to the project folder, without '..'."
             ) in problems(demo_copy)
 

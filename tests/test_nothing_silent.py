@@ -27,7 +27,7 @@ def problems(root, archive=False) -> list[str]:
 
 
 CASES = [
-    ("NUL before a sieve row", "lab/sieves.csv", "S1,2.36,92,S1-D1", "\x00S1,2.36,92,S1-D1",
+    ("NUL before a sieve row", "lab/sieves.csv", "S1,2.36,92", "\x00S1,2.36,92",
      "lab/sieves.csv, line 3: holds the control character U+0000 at column 1. Fix: remove it "
      "(re-export the file as plain UTF-8 text)."),
     ("NUL before a strength row", "lab/strength.csv", "M1-01d-C2,M1", "\x00M1-01d-C2,M1",
@@ -63,8 +63,7 @@ CASES = [
      "specimen,mix,age [d],test,value [MPa],value [MPa]",
      "lab/strength.csv, row 1: value [MPa]: column 'value' appears twice (columns 5 and 6). "
      "Fix: keep one of the two columns."),
-    ("a sieve given twice", "lab/sieves.csv", "S1,2.36,92,S1-D1\n",
-     "S1,2.36,92,S1-D1\nS1,2.36,92,S1-D1\n",
+    ("a sieve given twice", "lab/sieves.csv", "S1,2.36,92\n", "S1,2.36,92\nS1,2.36,92\n",
      "lab/sieves.csv, row 4: sieve: sieve of this sample already appears in row 3."),
     ("empty required text", "dossier.yaml", "name: Inner face, repointing of brick courses",
      "name: ''", "dossier.yaml, line 32: zones[0].name: is empty; this text is required."),

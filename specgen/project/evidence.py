@@ -55,7 +55,8 @@ def evidence(project, doc, located: dict, log: ProblemLog, failed) -> Evidence:
     _yaml_refs(project, known, located, log)
     _table_refs(project, known, log)
     if doc is not None:
-        project.strength = _series_of(project.strength, ev.samples)
+        for attr in ROW_KINDS:
+            setattr(project, attr, _linked(getattr(project, attr), attr, ev.samples))
     _strength_dates(project.strength, log, ev.samples, located.get(SAMPLES_FILE))
     if (method := project_doc(located, "method.yaml")) is not None and "dossier.yaml" not in failed:
         zones = {z.id: z for z in project.dossier.zones}
@@ -141,22 +142,33 @@ def _table_refs(project, known, log: ProblemLog) -> None:
                 "and when it was taken, laboratory and report), or correct the id.")
 
 
-def _series_of(strength: list, samples: dict) -> list:
-    """Strength rows with their prism series: a row that names none belongs to the one prism
-    series of its mix (none or two: it stays unlinked, listed as naming no sample); from the
-    series it takes the casting date and the curing regime it does not give itself."""
+# the kinds of register sample each lab table's rows may be measured on
+ROW_KINDS = {"strength": ("prisms",),
+             "sieves": ("sand", "historic_aggregate", "historic_mortar", "render"),
+             "colours": ("historic_mortar", "render", "masonry_unit", "core", "other"),
+             "capillary": ("prisms", "core", "historic_mortar", "render", "masonry_unit")}
+
+
+def _linked(rows: list, attr: str, samples: dict) -> list:
+    """Rows of a lab table with their register sample: a row that names none belongs to the
+    sample whose id is the row's sample, else to the one sample of a fitting kind that is *of*
+    it (a mix, a material); none or two: it stays unlinked and is listed as naming no sample.
+    A strength row takes its series' casting date and curing regime unless it gives its own."""
     from dataclasses import replace
-    series: dict[str, list] = {}
-    for s in samples.values():
-        if s.kind == "prisms" and s.of:
-            series.setdefault(s.of, []).append(s)
+    kinds = ROW_KINDS[attr]
     out = []
-    for r in strength:
-        s = samples.get(r.lab_sample) if r.lab_sample else (
-            series[r.mix][0] if len(series.get(r.mix, [])) == 1 else None)
-        if s is not None and s.kind == "prisms":
-            r = replace(r, lab_sample=s.id, cast_on=r.cast_on or s.taken_on,
-                        curing_regime=r.curing_regime or s.curing_regime)
+    for r in rows:
+        key = r.mix if attr == "strength" else r.sample
+        found = [samples[r.lab_sample]] if r.lab_sample in samples else \
+            [samples[key]] if key in samples and not r.lab_sample else \
+            [s for s in samples.values() if s.of == key and s.kind in kinds] \
+            if not r.lab_sample else []
+        if len(found) == 1:
+            s = found[0]
+            r = replace(r, lab_sample=s.id)
+            if attr == "strength" and s.kind == "prisms":
+                r = replace(r, cast_on=r.cast_on or s.taken_on,
+                            curing_regime=r.curing_regime or s.curing_regime)
         out.append(r)
     return out
 
