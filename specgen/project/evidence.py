@@ -74,8 +74,11 @@ def project_doc(located: dict, name: str) -> dict | None:
 
 
 def _register_refs(project, ev: Evidence, located: dict, log: ProblemLog, failed) -> None:
-    zones = SKIP if "dossier.yaml" in failed else {z.id: z for z in project.dossier.zones}
-    materials = SKIP if {"materials.yaml", "mixes.yaml"} & set(failed) else {
+    # a problem already found in a defining file (its own, or a reference of it) comes first:
+    # no follow-on errors here
+    seen = set(failed) | log.files()
+    zones = SKIP if "dossier.yaml" in seen else {z.id: z for z in project.dossier.zones}
+    materials = SKIP if {"materials.yaml", "mixes.yaml", "dossier.yaml"} & seen else {
         **project.masonry_units, **project.historic_mortars, **project.binders,
         **project.sands, **project.mixes}
     where = located.get(SAMPLES_FILE)
@@ -225,7 +228,8 @@ def _file(project, rel: str, key: tuple, located: dict, log: ProblemLog, limit: 
 def _images(project, doc, located: dict, log: ProblemLog, failed) -> dict:
     """Images of the register that Pillow can read (JPEG, PNG) or that are SVG drawings."""
     from specgen.project.load import _index
-    zones = SKIP if "dossier.yaml" in failed else {z.id: z for z in project.dossier.zones}
+    zones = SKIP if "dossier.yaml" in set(failed) | log.files() else {
+        z.id: z for z in project.dossier.zones}
     out = {}
     for i, img in enumerate(_index(doc.images, "image id", SAMPLES_FILE, "images", located,
                                    log).values()):
