@@ -33,6 +33,25 @@ def reference_names() -> tuple[set[str], set[str]]:
             {c.path.rsplit(".", 1)[0] for c in chapters()} | {"summary"})
 
 
+def names_text(markdown: bool = False) -> str:
+    """Every results.json quantity name with its unit and meaning: a table for a terminal, or
+    Markdown (the contributor guide's list)."""
+    from specgen.checks.registry import quantity_names
+    rows = quantity_names()
+    if markdown:
+        return "\n".join(["| name | unit | meaning |\n|---|---|---|"] + [
+            f"| `{q.name}` | {q.unit or '—'} | {q.description} |" for q in rows])
+    width = max(len(q.name) for q in rows)
+    return "\n".join(f"{q.name.ljust(width)}  {(q.unit or '-').ljust(8)}  {q.description}"
+                     for q in rows)
+
+
+def format_reference() -> str:
+    """The project folder format reference (every key, type, unit, default, meaning)."""
+    from specgen.project.reference import markdown
+    return markdown()
+
+
 def _load(project_dir) -> Project:
     return load_project(project_dir, names=reference_names())
 
@@ -136,7 +155,7 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None
     # refusals, so a refused revision leaves no output folder behind
     preflight(out)
     reached("check")
-    from specgen.report import cache
+    from specgen import cache
     # unchanged figures and math are reused from the output folder's artefact cache;
     # after a complete build it keeps only what this build used
     with cache.using(out / cache.CACHE_DIR) as used:
@@ -265,7 +284,7 @@ def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | N
     """Load, check and render; the checks are reused from ``reuse`` when only narrative or
     templates changed, and figures and math come from the artefact cache."""
     from specgen.publish.history import history_for
-    from specgen.report import cache
+    from specgen import cache
     from specgen.report.render import render
     progress("load: reading and validating the project folder")
     project = _load(project_dir)
@@ -293,7 +312,7 @@ def preview_pdf(prepared: Prepared, target: Path, *, cache_dir: Path | str | Non
                 progress: Callable[..., None] = _quiet) -> Path:
     """Print the prepared revision's PDF into ``target`` (parts from the artefact cache)."""
     from specgen.publish.preview import pdf_only
-    from specgen.report import cache
+    from specgen import cache
     with cache.using(cache_dir or target.parent / cache.CACHE_DIR):
         return pdf_only(prepared.project, prepared.results, prepared.pages, target,
                         on_part=lambda done, total: progress("PDF parts", done, total))

@@ -44,13 +44,15 @@ from functools import lru_cache
 import numpy as np
 from scipy import optimize, stats
 
+from specgen.errors import ScienceInputError
+
 PRIOR_DOF = 4.0          # weight of the prior's variances, as degrees of freedom (common practice)
 GAIN_AGES_D = (28.0, 365.0)
 PRIOR_KEYS = ("early_fraction", "tau_fast_d", "tau_slow_d", "shape_b", "gain_365_28")
 _Z95 = float(stats.norm.ppf(0.975))
 
 
-class InferenceError(ValueError):
+class InferenceError(ScienceInputError):
     """The record cannot be assessed; the message says why and what to test."""
 
 

@@ -36,6 +36,8 @@ from dataclasses import dataclass
 import numpy as np
 from scipy import optimize, stats
 
+from specgen.errors import ScienceInputError
+
 DAY = 86400.0                 # s
 _MPA = 1e6                    # Pa per MPa (internal working unit)
 TAU_A_DEFAULT_S = 3600.0      # common practice: aluminate strength in place within hours
@@ -45,7 +47,7 @@ MAX_EXTRAPOLATION = 15.0      # refused beyond 15x the last (or below 1/15 the f
 _COND_LIMIT = 1e12            # JᵀJ condition number above which parameters are not separable
 
 
-class StrengthFitError(ValueError):
+class StrengthFitError(ScienceInputError):
     """The data cannot support the fit; the message says what is needed."""
 
 

@@ -1,0 +1,98 @@
+"""The rules of the house as tests: the arrows allowed between the pipeline's stages
+(DEVELOPERS.md, "The pipeline") are import contracts in ``.importlinter``, checked by
+import-linter (a maintained tool: https://import-linter.readthedocs.io), so an arrow against
+the design fails the suite with the contract's name."""
+from __future__ import annotations
+
+import configparser
+from pathlib import Path
+
+from importlinter.cli import lint_imports
+
+ROOT = Path(__file__).resolve().parent.parent
+CONFIG = ROOT / ".importlinter"
+# the checks' contract: what the render stage, the exports and the tests may read
+CONTRACT = {"__init__", "result", "run", "registry", "rules"}
+
+
+def _contracts() -> configparser.ConfigParser:
+    parser = configparser.ConfigParser()
+    parser.read(CONFIG, encoding="utf-8")
+    return parser
+
+
+def test_import_contracts_are_kept(capsys):
+    code = lint_imports(config_filename=str(CONFIG), no_cache=True)
+    out = capsys.readouterr().out
+    assert code == 0, out
+    assert "0 broken" in out
+
+
+def test_every_check_module_is_contract_or_internal():
+    """A new module of specgen/checks is either the contract or an internal the render stage
+    may not import: the forbidden contracts name every internal one."""
+    section = _contracts()["importlinter:contract:render-not-checks"]
+    internals = {m.strip().removeprefix("specgen.checks.")
+                 for m in section["forbidden_modules"].split() if m.strip()}
+    modules = {p.stem for p in (ROOT / "specgen" / "checks").glob("*.py")}
+    assert modules - CONTRACT == internals
+    checks_not_load = _contracts()["importlinter:contract:checks-not-load"]
+    assert {m.removeprefix("specgen.checks.")
+            for m in checks_not_load["source_modules"].split()} == internals
+
+
+def test_the_stages_of_the_design_have_their_contracts():
+    names = {s.split(":", 2)[2] for s in _contracts().sections() if s.count(":") == 2}
+    assert names == {"layers", "no-cycles", "render-not-checks", "render-not-science",
+                     "load-not-checks", "load-not-science", "checks-not-load",
+                     "publish-not-render", "face"}
+
+
+def test_one_reading_order_for_site_pdf_and_page_names():
+    """The chapters come in the order of the one list (chapters.READING_ORDER), every
+    chapter of ours has its place in it, and the page names a comment may be about are
+    those chapters' (build.reference_names)."""
+    from specgen.build import reference_names
+    from specgen.report.chapters import READING_ORDER, chapters
+    paths = [c.path for c in chapters()]
+    assert paths == list(READING_ORDER)
+    assert reference_names()[1] == {p.removesuffix(".md") for p in READING_ORDER} | {"summary"}
+
+
+def test_every_science_error_has_the_one_base():
+    import importlib
+    import inspect
+    import pkgutil
+
+    import specgen.science as science
+    from specgen.errors import ScienceInputError, SpecgenError
+    found = []
+    for info in pkgutil.iter_modules(science.__path__):
+        module = importlib.import_module(f"specgen.science.{info.name}")
+        found += [cls for _, cls in inspect.getmembers(module, inspect.isclass)
+                  if issubclass(cls, Exception) and cls.__module__ == module.__name__]
+    assert len(found) == 13  # twelve modules' errors and the extrapolation refusal
+    assert all(issubclass(cls, ScienceInputError) for cls in found), found
+    assert issubclass(ScienceInputError, SpecgenError) and issubclass(ScienceInputError, ValueError)
+
+
+def test_a_refused_science_input_is_not_assessed_with_its_reason():
+    """Any check whose science refuses its input gives *not assessed* with the method's
+    message, through the one mechanism of the check run (no crash, no special case)."""
+    from specgen.build import _load
+    from specgen.checks.registry import register, unregister
+    from specgen.checks.run import evaluate
+    from specgen.science.grading import GradingInputError
+
+    @register("TEST-REFUSED", "A check whose method refuses its input", "project", order=999)
+    def refused(subject, ctx):
+        raise GradingInputError("the sieve series has fewer than three sieves")
+
+    try:
+        results = evaluate(_load(ROOT / "demo_project"))
+    finally:
+        unregister("TEST-REFUSED")
+    found = [c for c in results.checks if c.code == "TEST-REFUSED"]
+    assert [(c.status, c.message, c.subject) for c in found] == [
+        ("not_assessed", "not assessed: the sieve series has fewer than three sieves",
+         "WEP-2026")]
