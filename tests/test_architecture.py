@@ -96,3 +96,22 @@ def test_a_refused_science_input_is_not_assessed_with_its_reason():
     assert [(c.status, c.message, c.subject) for c in found] == [
         ("not_assessed", "not assessed: the sieve series has fewer than three sieves",
          "WEP-2026")]
+
+
+def test_sizes_modules_and_functions():
+    """No module over 400 lines; no function over 60 lines without a reason in a comment
+    (a line ``# long: <why>`` in its body)."""
+    import ast
+    too_big, too_long = [], []
+    for path in sorted((ROOT / "specgen").rglob("*.py")):
+        text = path.read_text(encoding="utf-8")
+        lines = text.splitlines()
+        if len(lines) > 400:
+            too_big.append(f"{path.relative_to(ROOT)}: {len(lines)} lines")
+        for node in ast.walk(ast.parse(text)):
+            if isinstance(node, (ast.FunctionDef, ast.AsyncFunctionDef)):
+                body = lines[node.lineno - 1:node.end_lineno]
+                if len(body) > 60 and not any(ln.strip().startswith("# long:") for ln in body):
+                    too_long.append(f"{path.relative_to(ROOT)}:{node.lineno} {node.name}: "
+                                    f"{len(body)} lines")
+    assert too_big == [] and too_long == [], too_big + too_long

@@ -129,6 +129,8 @@ def grading_check(zone, ctx):
 
 
 def _grading_one(pair, ctx):
+    # long: one calculation sheet built in reading order (inputs, fineness moduli, deviation,
+    # envelope, result); cut up, its steps would be read out of order
     code, title, p = "COMP-GRAD", "Aggregate grading against the historic aggregate", ctx.project
     fm_sieves = refdata.load("sieve_series").data["series"]["astm_e11"]["fineness_modulus"]
     g, missing, fractions = mix_sand(pair, p)

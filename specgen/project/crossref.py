@@ -53,6 +53,7 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
     References into a file that itself failed to load are not checked: its own
     problems are already reported and would only be repeated here.
     """
+    # long: one pass over the files in the order their problems are reported (file by file)
     from specgen.project.layout import TOTAL_WINDOW
     d = project.dossier
     mat_ok, mix_ok = "materials.yaml" not in failed, "mixes.yaml" not in failed

@@ -92,6 +92,8 @@ def load_project(root: Path | str, names=None) -> Project:
     ``names`` — (check codes, page stems) that review comments may be about — is handed in by
     the pipeline, which knows the registries; without it comments' subjects are not checked.
     """
+    # long: it reads as the loading sequence (files, tables, workbooks, derived inputs, cross
+    # references), each step one call; every problem is collected before one raise
     root = Path(root)
     log = ProblemLog()
     if not (root / ROOT_FILE).is_file():
