@@ -17,6 +17,7 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
 
+from specgen.checks import fits
 from specgen.checks.registry import names_text  # noqa: F401  (the face's `names`)
 from specgen.checks.run import Previous, Results, evaluate
 from specgen.errors import AuditRefused, InputErrors, Problem, UsageError
@@ -39,6 +40,7 @@ def _load(project_dir) -> Project:
     return load_project(project_dir, names=reference_names())
 
 
+@fits.kept()  # each strength fit once per call (checks/fits.py)
 def check(project_dir: Path | str) -> tuple[Project, Results]:
     """Load the project (and its archived issued revisions, validated as a build would)
     and run every check and the audit (no output written)."""
@@ -111,6 +113,7 @@ def refuse_if_findings(project: Project, results: Results) -> None:
         raise AuditRefused(project.revision, found)
 
 
+@fits.kept()  # each strength fit once per call (checks/fits.py)
 def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None = None,
           progress: Callable[..., None] = _quiet, rebuild: dict[str, str] | None = None) -> Path:
     """Build the project's revision (and missing archived ones) into ``out_dir/<revision>/``.
@@ -261,6 +264,7 @@ def _data_key(project: Project) -> tuple:
     return tuple((f.path, f.sha256) for f in project.inputs if not f.path.startswith(TEXT_ONLY))
 
 
+@fits.kept()  # each strength fit once per call (checks/fits.py)
 def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | None = None,
             cache_dir: Path | str | None = None, progress: Callable[..., None] = _quiet
             ) -> Prepared:
