@@ -204,7 +204,7 @@ def _strength_dates(strength: list, log: ProblemLog, samples: dict, where=None) 
 
 def _file(project, rel: str, key: tuple, located: dict, log: ProblemLog, limit: int):
     """The bytes of a file a register entry names (inside the folder, present, not too big)."""
-    from specgen.project.load import inside
+    from specgen.project.layout import inside
     where = located.get(SAMPLES_FILE)
     line = where.line_of(key) if where else None
     field_ = ".".join(str(k) if not isinstance(k, int) else f"[{k}]" for k in key) \

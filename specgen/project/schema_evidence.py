@@ -14,7 +14,7 @@ from typing import Literal
 
 from pydantic import Field, model_validator
 
-from specgen.project.schema import Id, Model, Number, Text
+from specgen.project.schema_types import Id, Model, Number, Text
 
 SAMPLE_KINDS = ("historic_mortar", "historic_aggregate", "masonry_unit", "render", "raw_stone",
                 "binder", "sand", "prisms", "salt_powder", "core", "other")

@@ -5,7 +5,7 @@ from specgen.report.cautions import cautions_for
 from specgen.report.chapters import chapter
 from specgen.report.fmt import num, qty
 
-@chapter("scope.md", "Scope and zones of work", 20, "scope.md.j2")
+@chapter("scope.md", "Scope and zones of work", "scope.md.j2")
 def scope(env) -> dict:
     p = env.project
     rows = []
@@ -63,24 +63,24 @@ def _practice(env) -> dict:
                         for m in pr.test_methods]}
 
 
-@chapter("calculations.md", "Calculation sheets", 80, "calculations.md.j2", volume="appendix")
+@chapter("calculations.md", "Calculation sheets", "calculations.md.j2", volume="appendix")
 def calculations(env) -> dict:
     return {"sheets": [env.sheet(c) for c in env.results.checks]}
 
 
-@chapter("cautions.md", "Cautions", 85, "cautions.md.j2")
+@chapter("cautions.md", "Cautions", "cautions.md.j2")
 def cautions(env) -> dict:
     chosen, closing = cautions_for(env.project)
     return {"cautions": chosen, "closing": closing}
 
 
-@chapter("inputs.md", "Input files", 95, "inputs.md.j2", volume="appendix")
+@chapter("inputs.md", "Input files", "inputs.md.j2", volume="appendix")
 def inputs(env) -> dict:
     return {"files": [{"path": f.path, "sha256": f.sha256, "size": f.size}
                       for f in env.project.inputs]}
 
 
-@chapter("references.md", "References", 90, "references.md.j2")
+@chapter("references.md", "References", "references.md.j2")
 def references(env) -> dict:
     # Rendered last so that every citation made by earlier chapters is numbered; a standard
     # named in the text of a page (e.g. "EN 1015-11" in a clause) is cited too, so the list

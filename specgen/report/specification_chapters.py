@@ -9,11 +9,11 @@ from __future__ import annotations
 from markupsafe import Markup, escape
 
 from specgen.checks.result import STATUS_WORDS
-from specgen.checks.specification_checks import applicable
 from specgen.report.chapters import badge, chapter
 from specgen.report.fmt import anchor, as_given, num, qty, unit_symbol
 from specgen.report.specification_clauses import clause_context
 from specgen.report.wording import reader
+from specgen.views import applicable
 
 STATE_CLASS = {"open": "hold", "released": "pass"}
 
@@ -34,7 +34,7 @@ def state_badge(state: str) -> Markup:
     return Markup(f'<span class="sg-badge sg-{STATE_CLASS[state]}">{escape(state)}</span>')
 
 
-@chapter("specification.md", "Specification", 70, "specification.md.j2")
+@chapter("specification.md", "Specification", "specification.md.j2")
 def specification(env) -> dict:
     p, r = env.project, env.results
     spec = p.specification

@@ -31,8 +31,10 @@ import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
+from specgen.errors import ScienceInputError
 
-class WorksInputError(ValueError):
+
+class WorksInputError(ScienceInputError):
     """Dimensions or amounts the works calculation cannot use."""
 
 
