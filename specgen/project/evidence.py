@@ -39,7 +39,7 @@ class Evidence:
 def evidence(project, doc, located: dict, log: ProblemLog, failed) -> Evidence:
     """The register of ``samples.yaml`` (``doc``: the validated file or None) with every
     reference to it checked; problems go to ``log``."""
-    from specgen.project.load import _index
+    from specgen.project.layout import index_of as _index
     ev = Evidence()
     if doc is not None:
         ev.samples = _index(doc.samples, "sample id", SAMPLES_FILE, "samples", located, log)
@@ -227,7 +227,7 @@ def _file(project, rel: str, key: tuple, located: dict, log: ProblemLog, limit: 
 
 def _images(project, doc, located: dict, log: ProblemLog, failed) -> dict:
     """Images of the register that Pillow can read (JPEG, PNG) or that are SVG drawings."""
-    from specgen.project.load import _index
+    from specgen.project.layout import index_of as _index
     zones = SKIP if "dossier.yaml" in set(failed) | log.files() else {
         z.id: z for z in project.dossier.zones}
     out = {}
@@ -273,7 +273,7 @@ def image_problem(data: bytes, name: str) -> str | None:
 
 def _reports(project, doc, located: dict, log: ProblemLog) -> dict:
     """Laboratory reports: PDF files, each under its reference."""
-    from specgen.project.load import _index
+    from specgen.project.layout import index_of as _index
     out = {}
     refs = _index(doc.reports, "report", SAMPLES_FILE, "reports", located, log,
                   id_field="reference")

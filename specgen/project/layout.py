@@ -100,3 +100,23 @@ def inside(root: Path, rel: str, file: str, field: str, log: ProblemLog,
                 field=field, line=line, fix="copy the file into the project folder instead of linking it.")
         return None
     return resolved
+
+
+def index_of(items, kind: str, rel: str, key, located: dict, log: ProblemLog,
+           id_field: str | None = "id") -> dict:
+    """``items`` of the list at ``key`` (a name, or a path such as ``("zones", 0,
+    "candidates")``) in ``rel`` by their ``id_field`` (``None``: the items themselves);
+    a repeated id is a problem located at its line."""
+    out = {}
+    where = located.get(rel)
+    path = key if isinstance(key, tuple) else (key,)
+    for i, item in enumerate(items):
+        ident = getattr(item, id_field) if id_field else item
+        if ident in out:
+            loc = path + (i, id_field) if id_field else path + (i,)
+            log.add(rel, f"{kind} '{quote(ident)}' is given twice.", field=field_path(loc),
+                    line=where.line_of(loc) if where else None,
+                    fix="give each one its own id." if id_field == "id"
+                    else "merge the two entries into one.")
+        out[ident] = item
+    return out

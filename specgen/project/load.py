@@ -12,7 +12,8 @@ from specgen.project import schema, schema_evidence
 from specgen.project.files import read_csv, read_yaml
 # the folder layout and the helpers every reader shares (below the loader: no cycles)
 from specgen.project.layout import (ARCHIVE_DIR, NARRATIVE_DIR, STRENGTH_FILE,  # noqa: F401
-                                    TOTAL_WINDOW, field_path, inside, validate)
+                                    TOTAL_WINDOW, field_path, index_of as _index, inside,
+                                    validate)
 from specgen.project.tables import (ColourReading, SieveRow, StrengthResult, capillary_rows,
                                     colour_rows, sieve_rows, strength_results)
 
@@ -198,26 +199,6 @@ def _unique_specimens(strength: list, log: ProblemLog) -> None:
             log.add(r.file, f"specimen '{r.specimen}' is also reported in {seen.file}, row "
                     f"{seen.row}.", row=r.row, field="specimen",
                     fix="report each specimen once: remove one of the two rows.", **sheet)
-
-
-def _index(items, kind: str, rel: str, key, located: dict, log: ProblemLog,
-           id_field: str | None = "id") -> dict:
-    """``items`` of the list at ``key`` (a name, or a path such as ``("zones", 0,
-    "candidates")``) in ``rel`` by their ``id_field`` (``None``: the items themselves);
-    a repeated id is a problem located at its line."""
-    out = {}
-    where = located.get(rel)
-    path = key if isinstance(key, tuple) else (key,)
-    for i, item in enumerate(items):
-        ident = getattr(item, id_field) if id_field else item
-        if ident in out:
-            loc = path + (i, id_field) if id_field else path + (i,)
-            log.add(rel, f"{kind} '{quote(ident)}' is given twice.", field=field_path(loc),
-                    line=where.line_of(loc) if where else None,
-                    fix="give each one its own id." if id_field == "id"
-                    else "merge the two entries into one.")
-        out[ident] = item
-    return out
 
 
 def _unique_within(p: Project, docs: dict, located: dict, log: ProblemLog) -> None:

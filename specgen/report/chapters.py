@@ -34,6 +34,7 @@ READING_ORDER = (
     "before-issue.md",     # what stops the revision from being issued
     "changes.md",          # changes in this revision
     "scope.md",
+    "evidence.md",         # samples, drawings, photographs, laboratory reports
     "fabric.md",
     "composition.md",
     "strength.md",
@@ -41,6 +42,7 @@ READING_ORDER = (
     "works.md",
     "card.md",             # the batching cards, one page per mix
     "specification.md",
+    "method.md",           # method statement, responsibilities, aftercare
     "checks.md",           # appendix: check register
     "calculations.md",     # appendix: calculation sheets
     "cautions.md",
@@ -49,6 +51,7 @@ READING_ORDER = (
     "confirm.md",          # values to confirm
     "history.md",
     "inputs.md",           # appendix: input files
+    "glossary.md",         # appendix: the abbreviations and symbols printed
 )
 
 

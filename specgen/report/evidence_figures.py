@@ -2,7 +2,7 @@
 their coordinates (the drawing's own units, origin at its bottom-left corner)."""
 from __future__ import annotations
 
-from specgen.report.cache import figure
+from specgen.cache import figure
 from specgen.report.figures import _pyplot, to_svg
 
 ZONE_COLOURS = ["#1f3a5f", "#8a3b12", "#2e6b3a", "#6b2e6b", "#7a6a12"]

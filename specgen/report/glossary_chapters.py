@@ -23,7 +23,7 @@ def printed(entries: list, pages: dict) -> list:
     return out
 
 
-@chapter(PAGE, "Glossary", 94, "glossary.md.j2", volume="appendix")
+@chapter(PAGE, "Glossary", "glossary.md.j2", volume="appendix")
 def glossary(env) -> dict:
     from specgen import refdata
     entries = [dict(e) for e in refdata.load("glossary").data]

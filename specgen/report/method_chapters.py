@@ -18,7 +18,7 @@ def _words():
     return refdata.load("method_statement").data
 
 
-@chapter("method.md", "Method statement", 72, "method.md.j2")
+@chapter("method.md", "Method statement", "method.md.j2")
 def method(env) -> dict:
     p, words = env.project, _words()
     window = env.results.value(p.dossier.project.code, "weather_window") or {}
