@@ -14,14 +14,17 @@ from __future__ import annotations
 import datetime as dt
 import os
 from collections.abc import Callable
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from pathlib import Path
 
+from specgen.checks import fits
+from specgen.checks.registry import names_text  # noqa: F401  (the face's `names`)
 from specgen.checks.run import Previous, Results, evaluate
 from specgen.errors import AuditRefused, InputErrors, Problem, UsageError
 from specgen.killpoints import reached
 from specgen.project import Project, load_project
 from specgen.project.load import ARCHIVE_DIR
+from specgen.project.reference import markdown as format_reference  # noqa: F401  (`format`)
 
 
 def reference_names() -> tuple[set[str], set[str]]:
@@ -37,6 +40,7 @@ def _load(project_dir) -> Project:
     return load_project(project_dir, names=reference_names())
 
 
+@fits.kept()  # each strength fit once per call (checks/fits.py)
 def check(project_dir: Path | str) -> tuple[Project, Results]:
     """Load the project (and its archived issued revisions, validated as a build would)
     and run every check and the audit (no output written)."""
@@ -109,6 +113,7 @@ def refuse_if_findings(project: Project, results: Results) -> None:
         raise AuditRefused(project.revision, found)
 
 
+@fits.kept()  # each strength fit once per call (checks/fits.py)
 def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None = None,
           progress: Callable[..., None] = _quiet, rebuild: dict[str, str] | None = None) -> Path:
     """Build the project's revision (and missing archived ones) into ``out_dir/<revision>/``.
@@ -136,7 +141,7 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None
     # refusals, so a refused revision leaves no output folder behind
     preflight(out)
     reached("check")
-    from specgen.report import cache
+    from specgen import cache
     # unchanged figures and math are reused from the output folder's artefact cache;
     # after a complete build it keeps only what this build used
     with cache.using(out / cache.CACHE_DIR) as used:
@@ -259,13 +264,14 @@ def _data_key(project: Project) -> tuple:
     return tuple((f.path, f.sha256) for f in project.inputs if not f.path.startswith(TEXT_ONLY))
 
 
+@fits.kept()  # each strength fit once per call (checks/fits.py)
 def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | None = None,
             cache_dir: Path | str | None = None, progress: Callable[..., None] = _quiet
             ) -> Prepared:
     """Load, check and render; the checks are reused from ``reuse`` when only narrative or
     templates changed, and figures and math come from the artefact cache."""
     from specgen.publish.history import history_for
-    from specgen.report import cache
+    from specgen import cache
     from specgen.report.render import render
     progress("load: reading and validating the project folder")
     project = _load(project_dir)
@@ -293,117 +299,23 @@ def preview_pdf(prepared: Prepared, target: Path, *, cache_dir: Path | str | Non
                 progress: Callable[..., None] = _quiet) -> Path:
     """Print the prepared revision's PDF into ``target`` (parts from the artefact cache)."""
     from specgen.publish.preview import pdf_only
-    from specgen.report import cache
+    from specgen import cache
     with cache.using(cache_dir or target.parent / cache.CACHE_DIR):
         return pdf_only(prepared.project, prepared.results, prepared.pages, target,
                         on_part=lambda done, total: progress("PDF parts", done, total))
 
 
 def _load_archive(root: Path, current: Project) -> list[Project]:
-    """The archived issued revisions, validated, oldest first; the current revision must be
-    dated on or after every one of them."""
-    folder = root / ARCHIVE_DIR
-    if not folder.is_dir():
-        return []
-    problems, more, found = [], {}, []
-    # a dot-folder is an issue in progress (or one a crash left), not an issued revision
-    for sub in sorted(p for p in folder.iterdir() if p.is_dir() and not p.name.startswith(".")):
-        prefix = f"{ARCHIVE_DIR}/{sub.name}/"
-        if not (sub / "dossier.yaml").is_file():
-            problems.append(Problem(prefix + "dossier.yaml", "not found: an archived revision "
-                                    "folder holds the complete inputs of the revision it is "
-                                    "named after.", fix=f"restore the file (the PDF of revision "
-                                    f"{sub.name} carries it as the attachment input/dossier.yaml)"
-                                    ", or remove the folder if it is not an issued revision."))
-            continue
-        try:
-            old = _load(sub)
-        except InputErrors as exc:
-            problems += [replace(p, file=prefix + p.file) for p in exc.problems]
-            more.update({prefix + f: n for f, n in exc.more.items()})
-            continue
-        where = prefix + "dossier.yaml"
-        if old.revision.code != sub.name or old.revision.status != "issued":
-            problems.append(Problem(where, f"holds revision '{old.revision.code}' "
-                                    f"({old.revision.status}); an archive folder holds the issued "
-                                    "revision it is named after.", field="revision",
-                                    fix=f"set code: {sub.name} and status: issued, or rename the folder."))
-        if old.revision.code.lower() == current.revision.code.lower():
-            problems.append(Problem("dossier.yaml", f"revision '{current.revision.code}' is already "
-                                    f"issued in {ARCHIVE_DIR}/{sub.name}/.", field="revision.code",
-                                    fix="raise a new revision code for the current inputs."))
-        elif old.revision.date > current.revision.date:
-            problems.append(Problem("dossier.yaml", f"revision {current.revision.code} is dated "
-                                    f"{current.revision.date}, before revision {old.revision.code} "
-                                    f"was issued ({old.revision.date}).", field="revision.date",
-                                    fix="date the revision on or after the last issued one.",
-                                    line=_line_of_date(root)))
-        found.append(old)
-    if problems or more:
-        raise InputErrors(problems, more)
-    return sorted(found, key=lambda p: (p.revision.date, p.revision.code))
-
-
-def _line_of_date(root: Path) -> int | None:
-    from specgen.errors import ProblemLog
-    from specgen.project.files import read_yaml
-    located = read_yaml(root / "dossier.yaml", "dossier.yaml", ProblemLog())
-    return located.line_of(("revision", "date")) if located else None
+    """The archived issued revisions, validated, oldest first (project/archive.py)."""
+    from specgen.project.archive import load_archive
+    return load_archive(root, current, _load)
 
 
 def verify(path: Path | str, project_dir: Path | str | None = None,
            trust: list[Path] = ()) -> dict:
-    """Built output against what it vouches for: ``{"differences": [...], "signatures":
-    [...]}``; no differences and every signature intact when all match.
-
-    ``path`` is a revision folder or an output folder (then every revision in it, and
-    versions.json and the root index against the revisions present).  With
-    ``project_dir``, the inputs kept for each revision (``issued/<revision>/``, or the
-    project folder for its current revision) are checked against the manifest too.
-    Signed revisions' signatures are checked against the ``trust`` roots.
-    """
-    from specgen.errors import PublishError
-    from specgen.publish import verify as v
-    from specgen.publish.signing import verify_signatures
-    path = Path(path)
-    if (path / "manifest.json").is_file():
-        folders, lines = [path], []
-    else:
-        folders = v.revisions_in(path) if path.is_dir() else []
-        if not folders:
-            raise PublishError(f"{path}: neither a revision folder nor an output folder written "
-                               "by specgen build. Fix: name OUT or OUT/<revision>.")
-        lines = v.folder_differences(path)
-    signatures = []
-    for folder in folders:
-        lines += [f"{folder.name}: {d}" for d in v.revision_differences(folder)]
-        if project_dir is not None:
-            lines += _kept_inputs(Path(project_dir), folder, v)
-        signatures += verify_signatures(folder, list(trust))
-    return {"differences": lines, "signatures": signatures}
-
-
-def _kept_inputs(project: Path, folder: Path, v) -> list[str]:
-    from specgen.project.load import input_files
-    code = folder.name
-    kept = project / ARCHIVE_DIR / code
-    if not kept.is_dir():
-        kept = project if _revision_code(project) == code else None
-    if kept is None:
-        if v.manifest_of(folder).get("status") == "issued":
-            return [f"{code}: the project keeps no inputs of this issued revision "
-                    f"({ARCHIVE_DIR}/{code}/)"]
-        return []
-    return v.input_differences(folder, {f.path: f.sha256 for f in input_files(kept)})
-
-
-def _revision_code(project: Path) -> str | None:
-    from specgen.errors import ProblemLog
-    from specgen.project.files import read_yaml
-    located = read_yaml(project / "dossier.yaml", "dossier.yaml", ProblemLog())
-    data = located.data if located else None
-    rev = data.get("revision") if isinstance(data, dict) else None
-    return str(rev.get("code")) if isinstance(rev, dict) else None
+    """Built output against what it vouches for (publish/verify.py, ``verify_output``)."""
+    from specgen.publish.verify import verify_output
+    return verify_output(path, project_dir, trust)
 
 
 def _fix_dates(date: dt.date) -> None:

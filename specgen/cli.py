@@ -301,23 +301,15 @@ def sign(revision_dir: Path, key: Path, cert: Path, chain: tuple, passphrase_env
               show_default=True)
 def names(fmt: str) -> None:
     """List every results.json quantity name with its unit and meaning."""
-    from specgen.checks.registry import quantity_names
-    rows = quantity_names()
-    if fmt == "markdown":
-        click.echo("| name | unit | meaning |\n|---|---|---|")
-        for q in rows:
-            click.echo(f"| `{q.name}` | {q.unit or '—'} | {q.description} |")
-        return
-    width = max(len(q.name) for q in rows)
-    for q in rows:
-        click.echo(f"{q.name.ljust(width)}  {(q.unit or '-').ljust(8)}  {q.description}")
+    from specgen.build import names_text
+    click.echo(names_text(markdown=fmt == "markdown"))
 
 
 @cli.command("format")
 def format_reference() -> None:
     """Print the project folder format reference (every key, type, unit, default, meaning)."""
-    from specgen.project.reference import markdown
-    click.echo(markdown(), nl=False)
+    from specgen.build import format_reference as reference
+    click.echo(reference(), nl=False)
 
 
 @cli.command(hidden=True)

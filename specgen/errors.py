@@ -19,6 +19,13 @@ class SpecgenError(Exception):
     exit_code = 1
 
 
+class ScienceInputError(SpecgenError, ValueError):
+    """Inputs a method of ``specgen.science`` refuses (too few points, a value outside the
+    method's range, an inconsistent analysis).  Base of every science module's error; a
+    check that meets one is *not assessed*, with this message as the reason
+    (``checks.run``: one mechanism for every check)."""
+
+
 @dataclass(frozen=True)
 class Problem:
     """One thing wrong with the input, located as precisely as we can."""

@@ -17,6 +17,10 @@ import pint
 ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
 ureg.define("percent_ = 0.01 = pct")
 
+# a capillary coefficient in kg/(m²·s^0.5) times this is in kg/(m²·min^0.5), the unit of
+# EN 1015-18 (the checks record and the dossier shows it so)
+ROOT_MIN = math.sqrt(60.0)
+
 
 @dataclass(frozen=True)
 class Kind:

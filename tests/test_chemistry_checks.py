@@ -98,7 +98,7 @@ def test_loss_on_ignition_above_50_percent(demo_copy, cli):
                                              "CaO: 5.9, MgO: 2.3, SO3: 0.9, K2O: 1.1, Na2O: 0.3, LOI: 55.2}", 1))
     result = cli("check", demo_copy)
     assert result.exit_code == 2 and "Traceback" not in result.output
-    assert ("analyses.yaml, line 16: analyses[1].mass_percent: analysis 'NC1-A': loss on ignition "
+    assert ("analyses.yaml, line 17: analyses[1].mass_percent: analysis 'NC1-A': loss on ignition "
             "55.20 % exceeds 50 %") in result.output
 
 

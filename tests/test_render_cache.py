@@ -7,7 +7,7 @@ import shutil
 import pytest
 
 from specgen.build import check
-from specgen.report import cache
+from specgen import cache
 from specgen.report.mathsvg import svg_of
 from specgen.report.render import render
 

@@ -10,7 +10,7 @@ import shutil
 import pytest
 
 from specgen.build import verify
-from specgen.report import cache
+from specgen import cache
 
 
 def test_poisoned_cache_entry_is_discarded_and_drawn_again(tmp_path):

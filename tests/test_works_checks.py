@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 import json
+import re
 
 import pytest
 
@@ -283,6 +284,13 @@ def test_works_page_says_so_without_data(demo_copy):
     (demo_copy / "mixes.yaml").write_text("mixes: []\n", encoding="utf-8")
     (demo_copy / "lab" / "strength.csv").unlink()
     (demo_copy / "specification.yaml").unlink(missing_ok=True)
+    # the sample register names the zones: without zones, without register (and results that
+    # name no sample)
+    (demo_copy / "samples.yaml").unlink()
+    for name, pattern in (("analyses.yaml", r"    lab_sample: \S+\n"),
+                          ("materials.yaml", r" lab_samples: \[[^\]]*\],")):
+        path = demo_copy / name
+        path.write_text(re.sub(pattern, "", path.read_text(encoding="utf-8")), encoding="utf-8")
     for name in ("capillary.csv", "colour.csv"):
         (demo_copy / "lab" / name).unlink()
     (demo_copy / "materials.yaml").write_text(

@@ -22,8 +22,8 @@ declare("fineness_modulus", "", "fineness modulus (ASTM C125) of the repair sand
 declare("grading_deviation", "%", "RMS and largest difference of cumulative % passing, repair "
         "sand − historic aggregate, on their common sieves")
 declare("grading_curves", "%", "cumulative % passing against sieve size (mm) of the repair "
-        "sand (blended) and of the historic aggregate, and the envelope in force, as the "
-        "grading figure draws them")
+        "sand (blended) and of the historic aggregate, and the envelope in force {title, "
+        "source, sieves_mm, low, high}, as the grading figure and the clauses show them")
 declare("blend_proportions", "", "mass proportions of the sands that best match the historic "
         "grading (NNLS, sum 1), with the proposed ones and the RMS difference in %")
 declare("binder_aggregate_ratio", "", "binder:aggregate of the historic mortar from acid "
@@ -108,7 +108,8 @@ def _curve(g: gr.Grading) -> dict:
 
 def _envelope_curve(env: dict) -> dict:
     lim = sorted(env["limits"], key=lambda e: e["sieve_mm"])
-    return {"title": env["title"], "sieves_mm": [e["sieve_mm"] for e in lim],
+    return {"title": env["title"], "source": refdata.shown(env["source"], env.get("tag", "")),
+            "sieves_mm": [e["sieve_mm"] for e in lim],
             "low": [e["low"] for e in lim], "high": [e["high"] for e in lim]}
 
 
@@ -128,6 +129,8 @@ def grading_check(zone, ctx):
 
 
 def _grading_one(pair, ctx):
+    # long: one calculation sheet built in reading order (inputs, fineness moduli, deviation,
+    # envelope, result); cut up, its steps would be read out of order
     code, title, p = "COMP-GRAD", "Aggregate grading against the historic aggregate", ctx.project
     fm_sieves = refdata.load("sieve_series").data["series"]["astm_e11"]["fineness_modulus"]
     g, missing, fractions = mix_sand(pair, p)
@@ -190,7 +193,8 @@ def _grading_one(pair, ctx):
                else "outside the envelope at " + "; ".join(out))
     if "repair" in fm and "historic" in fm:
         msg.insert(0, f"FM {fm['repair']:.2f} (historic {fm['historic']:.2f})")
-    notes.append(f"envelope: {env['title']} — {refdata.shown(env['source'], env.get('tag', ''))}")
+    drawn = _envelope_curve(env)
+    notes.append(f"envelope: {drawn['title']} — {drawn['source']}")
     return cc.result(code, title, pair, worst(statuses), round(100 * dev.rms, 3), "%",
                      [C125, Basis("reference", env["ref"], env["source"]),
                       cc.rule_basis(ctx, "grading_rms_max")], "; ".join(msg), steps=steps,
@@ -199,7 +203,7 @@ def _grading_one(pair, ctx):
                      quantities=[Quantity("fineness_modulus", fm, "", "fineness modulus"),
                                  Quantity("grading_curves", {"repair": _curve(g),
                                                              "historic": _curve(hist),
-                                                             "envelope": _envelope_curve(env)},
+                                                             "envelope": drawn},
                                           "%",
                                           "cumulative % passing by sieve (mm)"),
                                  Quantity("grading_deviation",

@@ -6,9 +6,9 @@ all it takes to add a family of checks; extensions use the same decorator.
 """
 import importlib
 import pkgutil
+from pathlib import Path
 
-import specgen.checks as _pkg
-
-for _info in sorted(pkgutil.iter_modules(_pkg.__path__), key=lambda m: m.name):
+# the package's folder, found from this file (importing the package here would be a cycle)
+for _info in sorted(pkgutil.iter_modules([str(Path(__file__).parent)]), key=lambda m: m.name):
     if _info.name.endswith("_checks"):
         importlib.import_module(f"specgen.checks.{_info.name}")

@@ -10,7 +10,7 @@ from __future__ import annotations
 from specgen.checks.chemistry_common import (ATOMIC, atomic_weights, binder_analysis, finite,
                                              guarded, not_assessed, prepared, raw_analyses,
                                              source, table)
-from specgen.checks.composition_checks import oxide_order
+from specgen.views import oxide_order
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Limit, Quantity, Step
 from specgen.science import calcination, oxides

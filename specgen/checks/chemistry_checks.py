@@ -8,7 +8,7 @@ from __future__ import annotations
 from specgen.checks.chemistry_common import (ATOMIC, TAYLOR, VICAT, atomic_weights, binder_of,
                                              finite, guarded, is_clinker, not_assessed,
                                              oxide_inputs, prepared, source)
-from specgen.checks.composition_checks import oxide_order
+from specgen.views import oxide_order
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Limit, Quantity, Step
 from specgen.science import calcination, oxides

@@ -13,6 +13,7 @@ from dataclasses import dataclass
 
 from specgen.checks.result import Basis, Input, not_assessed
 from specgen.science.oxides import ChemistryInputError, split_lumped
+from specgen.views import binder_analysis, raw_analyses  # noqa: F401  (the checks read them here)
 
 TAYLOR = Basis("reference", "taylor1997", "lime saturation factor, silica and alumina ratios")
 VICAT = Basis("common practice", note="hydraulic index in Vicat's form (S + A + F)/(C + M), "
@@ -92,20 +93,6 @@ def binder_of(analysis, project):
 def is_clinker(binder) -> bool:
     """Sintered clinker present: Portland binders or a declared ``contains_clinker``."""
     return binder is not None and (binder.type == "portland" or binder.contains_clinker)
-
-
-def binder_analysis(binder, project):
-    """The analysis of a fired binder: ``analysis:`` of the binder, else one of kind binder."""
-    if binder.analysis and binder.analysis in project.analyses:
-        return project.analyses[binder.analysis]
-    return next((a for a in project.analyses.values()
-                 if a.kind == "binder" and a.material == binder.id), None)
-
-
-def raw_analyses(binder, project) -> list:
-    """Raw-stone analyses linked to a binder by ``material:``."""
-    return [a for a in project.analyses.values()
-            if a.kind == "raw_stone" and a.material == binder.id]
 
 
 def table(name: str):

@@ -17,7 +17,8 @@ from specgen.checks.result import Basis, Input, Quantity, Step
 from specgen.science import colour
 
 declare("delta_e_2000", "", "CIEDE2000 difference between the mean colours of the trial panel "
-        "and the historic mortar, with both means, spreads and the illuminant/observer")
+        "and the historic mortar, with both means, spreads and the illuminant/observer, and "
+        "the display swatch of each mean {hex, clipped} (sRGB, D65)")
 
 SHARMA = Basis("reference", "sharma2005", "CIEDE2000, eqs. 1–22")
 DECIDES = ("no standard acceptance threshold exists for repointing; ΔE00 ≈ 1 is just noticeable "
@@ -111,6 +112,10 @@ def _colour_one(pair, ctx):
     q = {"value": round(de.value, 4), "panel_mean": [round(v, 3) for v in sp.mean],
          "panel_spread": round(sp.spread, 4), "historic_mean": [round(v, 3) for v in sh.mean],
          "historic_spread": round(sh.spread, 4), "illuminant": ill, "observer": obs}
+    # display swatches of the recorded means (the figure draws these; it converts nothing)
+    for side in ("panel", "historic"):
+        sw = colour.lab_to_srgb(q[f"{side}_mean"])
+        q[f"{side}_swatch"] = {"hex": sw.hex, "clipped": sw.clipped}
     return cc.result(code, title, pair, status, round(de.value, 3), "",
                      [SHARMA, cc.rule_basis(ctx, "colour_delta_e_max")],
                      f"ΔE00 {de.value:.2f} between the mean of {sp.n} panel reading(s) and {sh.n} of "

@@ -12,12 +12,11 @@ strength and stiffness hierarchy, moisture transport, movement.
 """
 from __future__ import annotations
 
-import math
-
 from specgen.checks import compatibility_common as cc
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, Input, Quantity, Step, worst
 from specgen.science import moisture
+from specgen.units import ROOT_MIN
 
 declare("strength_ratio_to_unit", "", "repair mortar compressive strength / masonry unit "
         "strength: {measured, predicted, predicted_upper} (and elastic modulus ratio)")
@@ -31,7 +30,6 @@ declare("vapour_resistance_factor", "", "water-vapour diffusion resistance facto
 EN1015_18 = Basis("reference", "en1015_18", "capillary absorption coefficient, kg/(m²·min^0.5)")
 EN12572 = Basis("reference", "en12572", "water-vapour diffusion resistance factor μ, sd = μ·d")
 EN1015_19 = Basis("reference", "en1015_19", "water-vapour permeability of the hardened mortar")
-ROOT_MIN = math.sqrt(60.0)      # kg/(m²·s^0.5) → kg/(m²·min^0.5)
 
 
 # ---------------------------------------------------------------- strength hierarchy

@@ -6,52 +6,25 @@ subject ``<zone>/<mix>`` (so results.json keeps one set of quantities per pair).
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 from specgen.checks.result import Basis, CheckResult, Limit, Step
 from specgen.checks.result import not_assessed as _not_assessed
+from specgen.errors import ScienceInputError
+from specgen.views import Pair, pairs  # noqa: F401  (the subjects of every check here)
 
 MPA, GPA = 1e6, 1e9
 PRACTICE = Basis("common practice", note="content/rules/compatibility.yaml")
 
 
-@dataclass(frozen=True)
-class Pair:
-    """One candidate mix against the fabric of one zone."""
-
-    zone: object
-    mix: object              # schema.Mix, or None when the id is unknown
-    mix_id: str
-    unit: object             # schema.MasonryUnit or None
-    historic: object         # schema.HistoricMortar or None
-    props: object            # schema.MortarProperties or None
-
-    @property
-    def subject(self) -> str:
-        return f"{self.zone.id}/{self.mix_id}"
-
-
-def pairs(zone, project) -> list[Pair]:
-    """Every candidate of ``zone`` with the zone's fabric and the mix's measured properties."""
-    unit = project.masonry_units.get(zone.units) if zone.units else None
-    hist = project.historic_mortars.get(zone.historic_mortar) if zone.historic_mortar else None
-    return [Pair(zone, project.mixes.get(m), m, unit, hist, project.mortar_properties.get(m))
-            for m in zone.candidates]
-
-
 def each_pair(code: str, zone, ctx, fn) -> list[CheckResult]:
     """``fn(pair, ctx)`` for every candidate of ``zone``; readings the science refuses
-    (a grading, capillary or colour input error) give that pair an explicit *not assessed*
-    with the reason, never a crash of the whole run."""
+    (any :class:`~specgen.errors.ScienceInputError`) give that pair an explicit *not
+    assessed* with the reason, and the zone's other pairs are still judged."""
     from specgen.checks.registry import title_of
-    from specgen.science.colour import ColourInputError
-    from specgen.science.grading import GradingInputError
-    from specgen.science.moisture import MoistureInputError
     out = []
     for pair in pairs(zone, ctx.project):
         try:
             out.append(fn(pair, ctx))
-        except (GradingInputError, MoistureInputError, ColourInputError) as exc:
+        except ScienceInputError as exc:
             out.append(not_assessed(code, title_of(code), pair, [str(exc)]))
     return out
 

@@ -5,6 +5,7 @@ from specgen.checks.chemistry_common import guarded, prepared, source
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Limit, Quantity, Step
 from specgen.science import oxides
+from specgen.views import oxide_order
 
 declare("analysis_total", "%", "sum of the reported constituents of an analysis, LOI included "
         "(CO2 and H2O reported beside LOI counted once, as parts of it)")
@@ -15,14 +16,6 @@ declare("hydraulicity_class", "", "band of the cementation index (Eckel's bands 
 
 ECKEL = Basis("reference", "eckel1922", "cementation index, as reproduced in Boynton (1980)")
 CI_TERMS = (("S", "SiO2", 2.8), ("A", "Al2O3", 1.1), ("F", "Fe2O3", 0.7))
-
-
-# Conventional order of an analysis report: silicate-forming oxides, bases, volatiles.
-ORDER = ["SiO2", "Al2O3", "Fe2O3", "CaO", "MgO", "SO3", "K2O", "Na2O", "CO2", "LOI"]
-
-
-def oxide_order(name: str):
-    return (ORDER.index(name) if name in ORDER else len(ORDER), name)
 
 
 CLOSURE_BASIS = (Basis("common practice", note="an analysis with LOI closes near 100 %"),)

@@ -76,6 +76,7 @@ def _volume_steps(bal, name: str, aw) -> list[Step]:
 @guarded("CHEM-HYDR", TITLE, "binder", (BENTZ,))
 def hydration_check(binder, ctx) -> CheckResult:
     """Water demand, CH produced, chemical shrinkage and solid-volume increase, both density sets."""
+    # long: the steps of one calculation sheet, in the order the sheet shows them
     name, other = chosen(ctx.project)
     sets = density_sets()
     q = ctx.quantity(binder.id, "c2s_potential")

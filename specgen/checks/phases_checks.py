@@ -51,6 +51,8 @@ def phases_check(binder, ctx) -> CheckResult:
 
 
 def _unsintered(binder, analysis, ox, ctx) -> CheckResult:
+    # long: one calculation sheet (belite, aluminate assignments, free lime, crystalline share)
+    # built in the order the sheet shows it
     share, tol = ctx.rules["calcination.crystalline_share"], ctx.rules["calcination.crystalline_tolerance"]
     assignment = ctx.project.dossier.chemistry.aluminate_assignment
     aw = atomic_weights()

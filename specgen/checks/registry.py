@@ -143,3 +143,15 @@ def audit_rules() -> list[AuditRule]:
     """Every audit rule in run order."""
     load_builtin()
     return sorted(_AUDIT.values(), key=lambda r: (r.order, r.code))
+
+
+def names_text(markdown: bool = False) -> str:
+    """Every results.json quantity name with its unit and meaning: a table for a terminal, or
+    Markdown (the contributor guide's list)."""
+    rows = quantity_names()
+    if markdown:
+        return "\n".join(["| name | unit | meaning |\n|---|---|---|"] + [
+            f"| `{q.name}` | {q.unit or '—'} | {q.description} |" for q in rows])
+    width = max(len(q.name) for q in rows)
+    return "\n".join(f"{q.name.ljust(width)}  {(q.unit or '-').ljust(8)}  {q.description}"
+                     for q in rows)

@@ -8,7 +8,7 @@ dossier shows beside every check that used the rule.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+from dataclasses import asdict, dataclass, replace
 from functools import lru_cache
 from pathlib import Path
 
@@ -43,6 +43,13 @@ class Rule:
         the project overrides it, the written justification."""
         text = f"rule {self.key} ({self.basis.text()})"
         return text + (f"; project override: {self.justification}" if self.justification else "")
+
+    def to_dict(self) -> dict:
+        """The rule as results.json records it (``default``: the built-in value an override
+        replaced)."""
+        return {"value": self.value, "unit": self.unit, "description": self.description,
+                "basis": asdict(self.basis), "default": self.default,
+                "justification": self.justification, "tag": self.tag}
 
     def si(self, kind: str) -> float:
         """The value in SI (``kind`` as in specgen.units); a unitless rule as it stands."""

@@ -10,8 +10,9 @@ from dataclasses import dataclass, field
 
 from specgen import __version__, refdata
 from specgen.checks.registry import as_list, audit_rules, checks, is_declared
-from specgen.checks.result import STATUSES, CheckResult, Finding, Quantity
-from specgen.checks.rules import RuleBook
+from specgen.checks.result import STATUSES, CheckResult, Finding, Quantity, not_assessed
+from specgen.checks.rules import Rule, RuleBook
+from specgen.errors import ScienceInputError
 
 
 @dataclass
@@ -46,6 +47,8 @@ class Results:
     previous: str | None = None   # the issued revision this one is compared with
     changes: dict | None = None   # what changed since it (inputs, results, checks, decisions)
     facts: list[str] = field(default_factory=list)  # the revision's description, from inputs
+    # the rules in force (content/rules with the project's overrides), by key, in file order
+    rules: dict[str, Rule] = field(default_factory=dict)
 
     def blocking(self) -> list[Finding]:
         """Findings that stop a revision for construction (or approval) from being built."""
@@ -61,6 +64,14 @@ class Results:
         revision for construction is refused while any remains (specgen.build)."""
         from specgen.refdata import UNCONFIRMED
         return [v for v in self.values_used if v["tag"] == UNCONFIRMED]
+
+    def rule(self, key: str) -> Rule:
+        """The rule ``key`` as it was in force for the checks (the project's override applied)."""
+        return self.rules[key]
+
+    def rules_overridden(self) -> list[Rule]:
+        """Rules the project changed, for the dossier's list of departures."""
+        return [r for r in self.rules.values() if r.justification]
 
     def check(self, code: str, subject: str) -> CheckResult | None:
         """The result of check ``code`` on ``subject`` (None when it did not run).
@@ -107,6 +118,7 @@ class Results:
             "previous": self.previous,
             "facts": self.facts,
             "values_used": self.values_used,
+            "rules": {k: r.to_dict() for k, r in self.rules.items()},
         }
 
     def to_json(self) -> str:
@@ -158,6 +170,16 @@ def evaluate(project, previous: Previous | None = None) -> Results:
     return results
 
 
+def _run_one(spec, sid: str, subject, ctx: Context) -> list[CheckResult]:
+    """One check on one subject.  A science input the method refuses becomes *not assessed*
+    with the method's message as the reason: the one way a refusal reaches the dossier (a
+    check may catch it earlier to keep its basis or to judge other subjects)."""
+    try:
+        return as_list(spec.fn(subject, ctx))
+    except ScienceInputError as exc:
+        return [not_assessed(spec.code, spec.title, sid, spec.subject_kind, (), str(exc))]
+
+
 def _run_checks(project) -> Results:
     ctx = Context(project, RuleBook(project.dossier.rule_overrides))
     out: list[CheckResult] = ctx.results  # later checks (e.g. the selection) read earlier ones
@@ -167,7 +189,7 @@ def _run_checks(project) -> Results:
         for sid, subject in subjects_of(project, spec.subject_kind):
             subjects[sid] = spec.subject_kind
             with refdata.recording() as uses:
-                returned = as_list(spec.fn(subject, ctx))
+                returned = _run_one(spec, sid, subject, ctx)
             for u in uses:
                 used.setdefault(u, set()).update(r.key for r in returned)
             for res in returned:
@@ -185,4 +207,5 @@ def _run_checks(project) -> Results:
               for u, keys in sorted(used.items(), key=lambda kv: (kv[0].table, kv[0].path))
               if keys]
     return Results(project.dossier.project.code, project.revision.code, out, ctx.quantities,
-                   subjects, specimens, comments, values_used=values)
+                   subjects, specimens, comments, values_used=values,
+                   rules={k: ctx.rules[k] for k in ctx.rules.keys()})

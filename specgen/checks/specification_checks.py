@@ -13,8 +13,8 @@ from specgen.checks.registry import declare, register
 from specgen.checks.result import STATUS_WORDS, Basis, CheckResult, Input, Quantity, Step
 from specgen.checks.strength_checks import DAY, age_key
 from specgen.errors import InputErrors, Problem
-from specgen.project.specification import SPEC_FILE
 from specgen.science import site_tests as st
+from specgen.views import SPEC_FILE, applicable
 
 CHOICE = Basis("project requirement", note="specification.yaml selections: a chosen mortar that "
                "fails a check stands only with a written justification")
@@ -38,14 +38,6 @@ declare("cost_per_m2", "currency/m²", "cost of a candidate mortar per m² of th
 def spec_of(ctx):
     """The loaded specification.yaml (project/specification.py), or None."""
     return getattr(ctx.project, "specification", None)
-
-
-def applicable(results, project, zone_id: str, mix_id: str) -> list[CheckResult]:
-    """Results of every check that applies to ``mix_id`` in ``zone_id`` (SPEC-* excepted)."""
-    mix = project.mixes.get(mix_id)
-    binders = {b.binder for b in mix.binders} if mix else set()
-    subjects = {mix_id, f"{zone_id}/{mix_id}"} | binders
-    return [r for r in results if r.subject in subjects and not r.code.startswith("SPEC-")]
 
 
 def _result(code, title, subject, status, value, unit, basis, message, **kw) -> CheckResult:

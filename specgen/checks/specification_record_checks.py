@@ -6,7 +6,7 @@ from __future__ import annotations
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step
 from specgen.checks.specification_checks import _and, _result, spec_of
-from specgen.project.specification import SPEC_FILE
+from specgen.views import SPEC_FILE
 
 PANELS = Basis("common practice", note="trial panels are judged by eye, dry, in daylight, before "
                "the works proceed")

@@ -1,13 +1,11 @@
-"""Acceptance of strength against the dossier's requirements; strength in the wall; classes.
+"""Acceptance of strength against the dossier's requirements; strength in the wall.
 
 * STR-MIN: minimum compressive strength at each stated age — the measured characteristic
   value where that age was tested, otherwise the prediction band (pass / fail / hold);
 * STR-MAX: the long-term cap (compatibility), judged on the prediction at the late age;
 * STR-SITE: equivalent age in the wall from the site temperature (ASTM C1074), in-wall
   strength and the earliest day the load strength is reached;
-* STR-CLASS: descriptive mortar class of the 28-d mean by the practice's classification
-  (EN 998-2 M-classes or ASTM C270 types); EN 459-1 classes belong to the *binder* (tested in
-  the standard mortar of EN 196-1), so a mix is never placed in them.
+* STR-CLASS (``strength_class_checks.py``): the descriptive mortar class of the 28-d mean.
 
 Decisions use the interval for the next set of site prisms; a prediction beyond the
 extrapolation limit never decides: its verdict is ``hold``, with the test age that would.
@@ -31,11 +29,6 @@ REQ = Basis("project requirement", note="dossier.yaml requirements")
 RECOMMEND = Basis("common practice", note="later test age: the one named for a hold is the "
                   "earliest candidate age (content/data/strength_classes.yaml) that brings the "
                   "requirement's age within the extrapolation limit, else that age itself")
-C270 = Basis("reference", "astmc270", "property specification, minimum 28-d compressive strength")
-EN998 = Basis("reference", "en998_2", "compressive strength classes M1 … M20 on the mean at 28 d "
-              "(tested to EN 1015-11)")
-MORTAR_CLASSES = {"astm_c270": ("ASTM C270", "type", C270),
-                  "en998_2": ("EN 998-2", "class", EN998)}
 
 declare("acceptance", "", "verdict per requirement: {age or cap: {status, basis, value, limit}}")
 declare("equivalent_age", "d", "equivalent age at 20 °C in the wall at each wall age "
@@ -46,8 +39,6 @@ declare("in_wall_curve", "MPa", "strength in the wall along the site record: {da
         "lower} (interval for one batch), as the strength figure draws it")
 declare("load_strength_day", "d", "earliest day after placement at which the lower band edge "
         "reaches the load strength")
-declare("strength_classes", "", "mortar class met by the 28-d mean by the practice's "
-        "classification (EN 998-2 or ASTM C270), descriptive: {standard, table, classes}")
 
 
 def _comp(ctx, mix) -> sc.Series | None:
@@ -389,49 +380,3 @@ def _te_step(p, st: sc.Settings, t, te, te2) -> Step:
     return Step(f"Equivalent age in the wall ({st.method.replace('_', '-')}, ASTM C1074)",
                 formula, inputs, rf"t_e({t[-1] / DAY:g}\,\mathrm{{d}}) = {te[-1] / DAY:.2f}\,"
                 r"\mathrm{d}", round(te[-1] / DAY, 4), "d", "t_e")
-
-
-# ---------------------------------------------------------------- classes
-@register("STR-CLASS", "Strength class (descriptive)", "mix", order=450)
-def class_check(mix, ctx):
-    """The 28-d mean compressive strength placed in the mortar classes of the practice."""
-    from specgen import practice
-    s, title = _comp(ctx, mix.id), "Strength class (descriptive)"
-    key = practice.resolve(ctx.project.dossier).mortar_classes
-    standard, word, basis = MORTAR_CLASSES[key]
-    g28 = _group_at(s, 28 * DAY)
-    if g28 is None:
-        return not_assessed("STR-CLASS", title, mix.id, "no compressive results at 28 d, the "
-                            "age at which the classes are defined", (basis,))
-    table = refdata.load("strength_classes").data[key]
-    m = g28.summary.mean
-    cmp = scl.strongest_minimum(m, scl.classes_from_table(table), standard=standard,
-                                source=table["source"])
-    text = (f"28-d mean {m / MPA:.3g} MPa: {standard} {word} "
-            f"{', '.join(cmp.matches) or 'below the lowest ' + word} (descriptive: the mean of "
-            "the laboratory prisms, not a declared or characteristic value)")
-    step = Step(f"28-d mean against the {standard} {word}s", r"\bar{f}_{28} \ge f_{min}",
-                (Input("f̄28", "28-d mean compressive strength", round(m / MPA, 4), "MPa",
-                       "STR-AGG"),),
-                r"\bar{f}_{28} = " + f"{m / MPA:.3f}", round(m / MPA, 4), "MPa", "f̄28")
-    return CheckResult(
-        code="STR-CLASS", title=title, subject=mix.id, subject_kind="mix", status="info",
-        value=round(m / MPA, 4), unit="MPa", basis=(basis,), steps=(step,), message=text,
-        notes=tuple(cmp.lines) + (f"{standard} table: "
-                                  + refdata.shown(cmp.source, table.get("tag", "")),
-                                  _binder_class_note(mix, ctx.project)),
-        quantities=(Quantity("strength_classes", {"standard": standard, "table": key,
-                                                  "classes": list(cmp.matches)}, "",
-                             "mortar class met (descriptive)"),))
-
-
-def _binder_class_note(mix, project) -> str:
-    """EN 459-1 classes are the binder's: say which the binders declare, never infer one."""
-    declared = []
-    for part in mix.binders:
-        b = project.binders.get(part.binder)
-        if b is not None:
-            declared.append(f"{b.id} {b.declared_class or 'no class declared'}")
-    return ("EN 459-1 strength classes (NHL 2, 3.5, 5 …) belong to the binder, tested in the "
-            "standard mortar of EN 196-1 (EN 459-2), not to this mix; declared: "
-            + ("; ".join(declared) or "—"))

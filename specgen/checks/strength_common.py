@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from specgen import refdata
+from specgen.checks import fits
 from specgen.checks import strength_prior_common as spc
 from specgen.science import maturity, strength_models as sm, strength_stats as ss
 
@@ -169,7 +170,7 @@ def _series(key, rows, st, rules, plaus, project) -> Series:
                        "correct the unit or the values before fitting")
         return s
     try:
-        s.selection = sm.fit_all(s.t_fit, s.y_fit)
+        s.selection = fits.selection(s.t_fit, s.y_fit)
         if s.selection.best is None:
             s.fit_error = s.selection.reasoning
     except sm.StrengthFitError as exc:

@@ -12,6 +12,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from specgen import refdata
+from specgen.checks import fits
 from specgen.science import strength_inference as si
 
 DAY, MPA = 86400.0, 1e6
@@ -123,7 +124,7 @@ def _infer(series, fam: Family) -> InferenceRun:
                      "the unit or the values before the strength can be inferred")
         return run
     try:
-        run.inference = inf = si.fit(t, y, fam.prior)
+        run.inference = inf = fits.inference(t, y, fam.prior)
     except si.InferenceError as exc:
         run.error = str(exc)
         return run

@@ -13,8 +13,8 @@ from dataclasses import dataclass
 from specgen import refdata
 from specgen.science import mix_design as md
 from specgen.science import works as wk
+from specgen.views import WATER, mixes_of  # noqa: F401  (the works checks read them here)
 
-WATER = "water"
 
 
 @dataclass(frozen=True)
@@ -127,12 +127,6 @@ def workable_life(project, mix, rules) -> tuple[Sourced, bool]:
                        f"{s.initial / 60:g} min caps the {life.value / 60:g} min of "
                        f"{life.source})")
     return life, measured
-
-
-def mixes_of(zone, project) -> list:
-    """Mixes a zone's quantities are worked out for: its ``mix``, else every candidate."""
-    ids = [zone.mix] if zone.mix else list(zone.candidates)
-    return [project.mixes[m] for m in ids if m in project.mixes]
 
 
 @dataclass(frozen=True)

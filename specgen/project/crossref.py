@@ -53,7 +53,8 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
     References into a file that itself failed to load are not checked: its own
     problems are already reported and would only be repeated here.
     """
-    from specgen.project.load import TOTAL_WINDOW
+    # long: one pass over the files in the order their problems are reported (file by file)
+    from specgen.project.layout import TOTAL_WINDOW
     d = project.dossier
     mat_ok, mix_ok = "materials.yaml" not in failed, "mixes.yaml" not in failed
     an_ok = "analyses.yaml" not in failed
@@ -112,13 +113,14 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
     _comment_refs(project, located.get("comments.yaml"), log, names, failed)
     _sample_refs(project, log, failed)
     if project.specification is not None:
-        specification_refs(project, located.get("specification.yaml"), log, mixes, failed)
+        specification_refs(project, located.get("specification.yaml"), log, mixes, failed,
+                           codes=names[0] if names is not None else None)
 
 
 def known_revisions(project) -> list[str]:
     """This revision and the issued ones kept under ``issued/`` (for an archived revision,
     its sibling folders): the revisions a comment or a release may name."""
-    from specgen.project.load import ARCHIVE_DIR
+    from specgen.project.layout import ARCHIVE_DIR
     root = project.root
     folder = root.parent if root.parent.name == ARCHIVE_DIR else root / ARCHIVE_DIR
     found = sorted(d.name for d in folder.glob("*") if d.is_dir() and not d.name.startswith(".")) \
@@ -258,8 +260,12 @@ def _strength_refs(results, mixes: dict, log: ProblemLog) -> None:
 SPEC = "specification.yaml"
 
 
-def specification_refs(project, located, log: ProblemLog, mixes, failed=frozenset()) -> None:
-    """Selections, hold points, trial panels and prices name zones, mixes, roles that exist."""
+def specification_refs(project, located, log: ProblemLog, mixes, failed=frozenset(),
+                       codes=None) -> None:
+    """Selections, hold points, trial panels and prices name zones, mixes, roles that exist.
+
+    ``codes`` (the check codes a hold point may rest on) comes from the pipeline, which knows
+    the check registry; without it the hold points' checks are not judged."""
     spec = project.specification.doc
     # dossier.yaml's own reference problems (found above) count too: no follow-on about it
     dossier_bad = "dossier.yaml" in failed or "dossier.yaml" in log.files()
@@ -268,7 +274,7 @@ def specification_refs(project, located, log: ProblemLog, mixes, failed=frozense
         _ref(log, {SPEC: located}, SPEC, ("selections", i, "zone"), s.zone, zones, "zone")
         _ref(log, {SPEC: located}, SPEC, ("selections", i, "mix"), s.mix, mixes, "mix")
     _selection_refs(spec.selections, zones, located, log, mixes)
-    _hold_point_refs(project, spec.hold_points, located, log)
+    _hold_point_refs(project, spec.hold_points, located, log, codes)
     _panel_refs(project, spec.trial_panels, located, log, mixes, zones, failed)
     for i, u in enumerate(spec.unit_prices):
         _ref(log, {SPEC: located}, SPEC, ("unit_prices", i, "mix"), u.mix, mixes, "mix")
@@ -313,7 +319,7 @@ def _role_ref(project, role, what: str, where: tuple, located, log: ProblemLog) 
                 "party to dossier.yaml.")
 
 
-def _hold_point_refs(project, hold_points, located, log: ProblemLog) -> None:
+def _hold_point_refs(project, hold_points, located, log: ProblemLog, codes=None) -> None:
     """Releasing role of each hold point; a release names its revision and its evidence."""
     revisions = known_revisions(project)
     seen: set[str] = set()
@@ -325,16 +331,11 @@ def _hold_point_refs(project, hold_points, located, log: ProblemLog) -> None:
         _role_ref(project, h.released_by, f"hold point '{h.id}'", ("hold_points", i,
                   "released_by"), located, log)
         _release_refs(h, i, revisions, located, log)
-        if h.check and h.check.partition("/")[0] not in _codes():
+        if codes is not None and h.check and h.check.partition("/")[0] not in codes:
             log.add(SPEC, f"hold point '{h.id}' rests on check '{h.check}', which is not a "
                     "check code.", line=_line(located, "hold_points", i, "check"),
                     field=f"hold_points[{i}].check", fix=did_you_mean(h.check.partition("/")[0],
-                    _codes()) or "give a check code, e.g. STR-MIN or STR-MIN/M2.")
-
-
-def _codes() -> list[str]:
-    from specgen.checks.registry import checks
-    return sorted(s.code for s in checks())
+                    sorted(codes)) or "give a check code, e.g. STR-MIN or STR-MIN/M2.")
 
 
 def _release_refs(h, i: int, revisions: list[str], located, log: ProblemLog) -> None:
@@ -359,7 +360,7 @@ def _release_refs(h, i: int, revisions: list[str], located, log: ProblemLog) -> 
 
 def _panel_refs(project, panels, located, log: ProblemLog, mixes, zones, failed) -> None:
     """Trial panels: their mix, zone, reviewer role, photo file and colour sample exist."""
-    from specgen.project.load import inside
+    from specgen.project.layout import inside
     samples = {r.sample for r in project.colours}
     for i, tp in enumerate(panels):
         _ref(log, {SPEC: located}, SPEC, ("trial_panels", i, "mix"), tp.mix, mixes, "mix")

@@ -29,7 +29,7 @@ class FiringSeries:
 
 def firing_series(root, binders: dict, log: ProblemLog) -> dict[str, FiringSeries]:
     """Read the firing CSV of every binder that names one; binder id → series."""
-    from specgen.project.load import inside
+    from specgen.project.layout import inside
     out: dict[str, FiringSeries] = {}
     for i, b in enumerate(binders.values()):
         rel = b.firing.record if b.firing else None

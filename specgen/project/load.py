@@ -5,11 +5,15 @@ import hashlib
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from pydantic import BaseModel, ValidationError
+from pydantic import BaseModel
 
-from specgen.errors import ProblemLog, did_you_mean, quote
-from specgen.project import schema
-from specgen.project.files import CONTROL, Located, read_csv, read_yaml
+from specgen.errors import ProblemLog, quote
+from specgen.project import schema, schema_evidence
+from specgen.project.files import read_csv, read_yaml
+# the folder layout and the helpers every reader shares (below the loader: no cycles)
+from specgen.project.layout import (ARCHIVE_DIR, NARRATIVE_DIR, STRENGTH_FILE,  # noqa: F401
+                                    TOTAL_WINDOW, field_path, index_of as _index, inside,
+                                    validate)
 from specgen.project.tables import (ColourReading, SieveRow, StrengthResult, capillary_rows,
                                     colour_rows, sieve_rows, strength_results)
 
@@ -22,15 +26,12 @@ DOCUMENTS: dict[str, tuple[type[BaseModel], bool]] = {
     "mixes.yaml": (schema.MixesFile, False),
     "comments.yaml": (schema.CommentsFile, False),
     "specification.yaml": (schema.SpecificationFile, False),
+    "samples.yaml": (schema_evidence.SamplesFile, False),
+    "method.yaml": (schema_evidence.MethodFile, False),
 }
-ARCHIVE_DIR = "issued"  # issued/<revision>/: the inputs of earlier issued revisions
-STRENGTH_FILE = "lab/strength.csv"
 # tabular lab data: file → reader of typed rows (and the Project field it fills)
 TABLES = {"lab/sieves.csv": ("sieves", sieve_rows), "lab/colour.csv": ("colours", colour_rows),
           "lab/capillary.csv": ("capillary", capillary_rows)}
-NARRATIVE_DIR = "narrative"
-# An analysis whose total is this far from 100 % is a transcription or unit error, not chemistry.
-TOTAL_WINDOW = (85.0, 115.0)
 
 
 @dataclass(frozen=True)
@@ -69,96 +70,20 @@ class Project:
     exposure: dict = field(default_factory=dict)  # zone id → ZoneExposure (durability_inputs)
     # planned tests in lab workbooks without a result yet: (file, sheet, row, first cell)
     lab_pending: list = field(default_factory=list)
+    samples: dict = field(default_factory=dict)   # id → Sample of samples.yaml (the register)
+    drawings: dict = field(default_factory=dict)  # id → Drawing of samples.yaml
+    method: object = None  # schema_evidence.MethodFile of method.yaml, or None
+    images: dict = field(default_factory=dict)    # id → (Picture, bytes) of samples.yaml
+    reports: dict = field(default_factory=dict)   # reference → (LabReport, bytes)
 
     @property
     def revision(self) -> schema.Revision:
         return self.dossier.revision
 
 
-def _field_path(loc: tuple) -> str:
-    loc = tuple(p for p in loc if p != "[key]")  # a dict key's own error: the key is the field
-    return ".".join(str(p) if not isinstance(p, int) else f"[{p}]" for p in loc).replace(".[", "[")
-
-
-def _model_fields(model: type[BaseModel], loc: tuple) -> list[str]:
-    """Valid keys at ``loc`` inside ``model`` (for 'did you mean')."""
-    holder = schema.model_at(model, loc[:-1])
-    return list(holder.model_fields) if holder is not None else []
-
-
-def _give(model: type[BaseModel], loc: tuple) -> str | None:
-    """A fix for a zero or negative amount, from the field's own description."""
-    keys = [i for i, part in enumerate(loc) if isinstance(part, str)]
-    info = _field_info(model, loc[:keys[-1] + 1]) if keys else None
-    if info is None or not info.description:
-        return None
-    return f"give an amount greater than zero, with its unit ({info.description})."
-
-
-def _field_info(model: type[BaseModel], loc: tuple):
-    """The pydantic FieldInfo of the field at ``loc`` (its last string part) in ``model``."""
-    holder = schema.model_at(model, loc[:-1])
-    return holder.model_fields.get(loc[-1]) if holder is not None else None
-
-
-def validate(located: Located, model: type[BaseModel], rel: str, log: ProblemLog):
-    """Validate a parsed document; translate pydantic errors into located problems."""
-    try:
-        return model.model_validate(located.data)
-    except ValidationError as exc:
-        for err in exc.errors():
-            loc = tuple(err["loc"])
-            line = located.line_of(loc)
-            msg = err["msg"].removeprefix("Value error, ")
-            fix = None
-            if err["type"] == "extra_forbidden":
-                fix = did_you_mean(loc[-1], _model_fields(model, loc)) or "remove the key."
-                msg = f"unknown key '{quote(loc[-1])}'."
-            elif err["type"] == "missing":
-                msg = "this required field is missing."
-                fix = f"add '{loc[-1]}:'."
-            else:
-                found = err.get("input")
-                msg = quote(msg, 300)
-                if isinstance(found, (dict, list)) or repr(found) in msg or str(found) in msg:
-                    msg = msg.rstrip(".") + "."
-                else:
-                    shown = f"'{quote(found)}'" if isinstance(found, str) else quote(repr(found))
-                    msg = f"{msg} (found {shown})."
-                if msg.startswith("must be greater than zero"):
-                    fix = _give(model, loc)
-                fix = fix or (err.get("ctx") or {}).get("fix", "").strip() or None
-            log.add(rel, msg, line=line, field=_field_path(loc), fix=fix)
-        return None
-
-
 def _hash(path: Path, rel: str) -> InputFile:
     data = path.read_bytes()
     return InputFile(rel, hashlib.sha256(data).hexdigest(), len(data))
-
-
-def inside(root: Path, rel: str, file: str, field: str, log: ProblemLog,
-           line: int | None = None) -> Path | None:
-    """Resolve ``rel`` (a path written in a project file) and refuse it if it leaves the folder.
-
-    Absolute paths, ``..`` and symbolic links that point outside the project are refused,
-    so a project can never make specgen read (or publish) a file from elsewhere.
-    """
-    candidate = Path(rel)
-    if CONTROL.search(rel):
-        log.add(file, f"the path '{quote(rel)}' holds a control character.", field=field,
-                line=line, fix="write the file name plainly.")
-        return None
-    if candidate.is_absolute() or ".." in candidate.parts:
-        log.add(file, f"the path '{quote(rel)}' leaves the project folder.", field=field, line=line,
-                fix="give a path relative to the project folder, without '..'.")
-        return None
-    resolved = (root / candidate).resolve()
-    if not resolved.is_relative_to(root.resolve()):
-        log.add(file, f"the path '{quote(rel)}' points outside the project folder (through a link).",
-                field=field, line=line, fix="copy the file into the project folder instead of linking it.")
-        return None
-    return resolved
 
 
 def _escaping_links(root: Path, log: ProblemLog) -> None:
@@ -175,6 +100,8 @@ def load_project(root: Path | str, names=None) -> Project:
     ``names`` — (check codes, page stems) that review comments may be about — is handed in by
     the pipeline, which knows the registries; without it comments' subjects are not checked.
     """
+    # long: it reads as the loading sequence (files, tables, workbooks, derived inputs, cross
+    # references), each step one call; every problem is collected before one raise
     root = Path(root)
     log = ProblemLog()
     if not (root / ROOT_FILE).is_file():
@@ -232,6 +159,11 @@ def load_project(root: Path | str, names=None) -> Project:
     works_problems(project, located, log, failed)
     from specgen.project.durability_inputs import durability_problems
     project.exposure = durability_problems(project, located, log, failed)
+    from specgen.project.evidence import evidence
+    ev = evidence(project, docs.get("samples.yaml"), located, log, failed)
+    project.samples, project.drawings = ev.samples, ev.drawings
+    project.images, project.reports = ev.images, ev.reports
+    project.method = docs.get("method.yaml")
     log.raise_if_any()
     return project
 
@@ -267,26 +199,6 @@ def _unique_specimens(strength: list, log: ProblemLog) -> None:
             log.add(r.file, f"specimen '{r.specimen}' is also reported in {seen.file}, row "
                     f"{seen.row}.", row=r.row, field="specimen",
                     fix="report each specimen once: remove one of the two rows.", **sheet)
-
-
-def _index(items, kind: str, rel: str, key, located: dict, log: ProblemLog,
-           id_field: str | None = "id") -> dict:
-    """``items`` of the list at ``key`` (a name, or a path such as ``("zones", 0,
-    "candidates")``) in ``rel`` by their ``id_field`` (``None``: the items themselves);
-    a repeated id is a problem located at its line."""
-    out = {}
-    where = located.get(rel)
-    path = key if isinstance(key, tuple) else (key,)
-    for i, item in enumerate(items):
-        ident = getattr(item, id_field) if id_field else item
-        if ident in out:
-            loc = path + (i, id_field) if id_field else path + (i,)
-            log.add(rel, f"{kind} '{quote(ident)}' is given twice.", field=_field_path(loc),
-                    line=where.line_of(loc) if where else None,
-                    fix="give each one its own id." if id_field == "id"
-                    else "merge the two entries into one.")
-        out[ident] = item
-    return out
 
 
 def _unique_within(p: Project, docs: dict, located: dict, log: ProblemLog) -> None:

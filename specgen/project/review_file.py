@@ -113,7 +113,7 @@ def _read(path: Path, rel: str):
         log.raise_if_any()
     located = read_yaml(path, rel, log)
     log.raise_if_any()
-    from specgen.project.load import validate
+    from specgen.project.layout import validate
     review = validate(located, ReviewFile, rel, log)
     log.raise_if_any()
     return review, located
@@ -212,7 +212,7 @@ def _confirm(text: str, expected: int) -> None:
         probe.write_text(text, encoding="utf-8")
         log = ProblemLog()
         located = read_yaml(probe, COMMENTS_FILE, log)
-        from specgen.project.load import validate
+        from specgen.project.layout import validate
         doc = validate(located, CommentsFile, COMMENTS_FILE, log) if located else None
     if doc is None or len(doc.comments) != expected:
         raise InputErrors([_layout_problem()])

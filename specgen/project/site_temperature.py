@@ -70,7 +70,7 @@ def site_temperature(root, dossier, log: ProblemLog, line: int | None = None
                     fix="check the unit (°C, °F or K).")
             return None
         return SiteTemperature(text, constant=kelvin)
-    from specgen.project.load import inside
+    from specgen.project.layout import inside
     path = inside(root, text, "dossier.yaml", field, log, line)
     if path is None:
         return None

@@ -12,8 +12,7 @@ from pathlib import Path
 from specgen.errors import ProblemLog
 from specgen.project import schema
 from specgen.project.files import Located, read_yaml
-
-SPEC_FILE = "specification.yaml"
+from specgen.views import SPEC_FILE  # noqa: F401  (one name for the loader and the checks)
 
 
 @dataclass(frozen=True)
@@ -54,7 +53,7 @@ def specification_data(root: Path, doc, located: Located | None, archive_dir: st
 
 def earlier_states(root: Path, archive_dir: str, log: ProblemLog) -> list[EarlierState]:
     """Hold-point states of each archived revision that had a specification, oldest first."""
-    from specgen.project.load import validate
+    from specgen.project.layout import validate
     folder = root / archive_dir
     if not folder.is_dir():
         return []

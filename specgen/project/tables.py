@@ -39,9 +39,14 @@ class StrengthResult:
     cast_on: dt.date | None = None
     curing: str = ""
     notes: str = ""
+    tested_on: dt.date | None = None
+    curing_regime: str = ""   # a regime of content/data/curing_regimes.yaml
+    lab_sample: str = ""      # the specimen series of the register (samples.yaml)
 
 
 DATE = "date"  # a column kind: an ISO date (YYYY-MM-DD), no unit in the header
+LAB_SAMPLE = Column("lab_sample", required=False, description="the sample or specimen "
+                    "series of the register (samples.yaml) it was measured on")
 
 STRENGTH_COLUMNS = (
     Column("specimen", description="specimen id, unique in the file"),
@@ -55,6 +60,12 @@ STRENGTH_COLUMNS = (
     Column("curing", required=False, description="curing regime, e.g. 'EN 1015-11: 2 d in "
            "the mould, 5 d at 95 % RH, then 65 % RH'"),
     Column("notes", required=False, description="the laboratory's remarks on the specimen"),
+    Column("tested_on", DATE, required=False, description="date the prism was tested, "
+           "YYYY-MM-DD (with cast_on: their difference must be the age)"),
+    Column("curing_regime", required=False, description="curing regime by its key in "
+           "content/data/curing_regimes.yaml, e.g. en1015_11_hydraulic (checked against the "
+           "binder family)"),
+    LAB_SAMPLE,
 )
 
 
@@ -166,7 +177,8 @@ def strength_results(table: CsvTable, rel: str, log: ProblemLog) -> list[Strengt
         seen[v["specimen"]] = row
         out.append(StrengthResult(v["specimen"], v["mix"], v["age"], v["test"], v["value"],
                                   v["curing_temperature"], row, rel, v["cast_on"],
-                                  v["curing"] or "", v["notes"] or ""))
+                                  v["curing"] or "", v["notes"] or "", v["tested_on"],
+                                  v["curing_regime"] or "", v["lab_sample"] or ""))
     return out
 
 
@@ -180,6 +192,7 @@ class SieveRow:
     passing: float | None
     row: int
     file: str
+    lab_sample: str = ""      # the register sample (samples.yaml) it was made on
 
 
 @dataclass(frozen=True)
@@ -194,6 +207,7 @@ class ColourReading:
     observer: str
     row: int
     file: str
+    lab_sample: str = ""      # the register sample (samples.yaml) it was made on
 
 
 SIEVE_COLUMNS = (
@@ -201,6 +215,7 @@ SIEVE_COLUMNS = (
     Column("sieve", "length", description="sieve aperture, e.g. 'sieve [mm]'"),
     Column("retained", "mass", required=False, description="mass retained on the sieve, e.g. 'retained [g]'"),
     Column("passing", "fraction", required=False, description="cumulative passing, e.g. 'passing [%]'"),
+    LAB_SAMPLE,
 )
 COLOUR_COLUMNS = (
     Column("sample", description="sample id: a trial panel, a mix or a historic mortar"),
@@ -210,6 +225,7 @@ COLOUR_COLUMNS = (
     Column("illuminant", required=False, choices=("D65", "D50", "C", "A", "F2", "F11"),
            description="illuminant of the reading (default D65)"),
     Column("observer", required=False, choices=("2", "10"), description="standard observer, degrees"),
+    LAB_SAMPLE,
 )
 
 
@@ -257,7 +273,8 @@ def sieve_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[SieveRow]:
         elif v["retained"] is not None and v["retained"] < 0:
             log.add(rel, "mass retained cannot be negative.", row=row, field="retained")
         else:
-            out.append(SieveRow(v["sample"], v["sieve"], v["retained"], v["passing"], row, rel))
+            out.append(SieveRow(v["sample"], v["sieve"], v["retained"], v["passing"], row, rel,
+                                v["lab_sample"] or ""))
     return first_of_each(out, lambda r: (r.sample, r.sieve), rel, "sieve of this sample", "sieve",
                          log)
 
@@ -273,7 +290,8 @@ def colour_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[ColourReadin
             log.add(rel, "a* and b* must lie within ±128.", row=row, field="a/b")
         else:
             out.append(ColourReading(v["sample"], v["L"], v["a"], v["b"],
-                                     v["illuminant"] or "D65", v["observer"] or "2", row, rel))
+                                     v["illuminant"] or "D65", v["observer"] or "2", row, rel,
+                                     v["lab_sample"] or ""))
     return out
 
 
@@ -286,6 +304,7 @@ class CapillaryReading:
     uptake: float
     row: int
     file: str
+    lab_sample: str = ""      # the register sample (samples.yaml) it was made on
 
 
 CAPILLARY_COLUMNS = (
@@ -293,6 +312,7 @@ CAPILLARY_COLUMNS = (
     Column("time", "time", description="time since the face touched water, e.g. 'time [min]'"),
     Column("uptake", "areal_mass", description="water taken up per area of the wetted face, "
            "e.g. 'uptake [kg/m^2]'"),
+    LAB_SAMPLE,
 )
 
 
@@ -307,6 +327,7 @@ def capillary_rows(table: CsvTable, rel: str, log: ProblemLog) -> list[Capillary
             log.add(rel, "uptake cannot be negative.", row=row, field="uptake",
                     fix="give the mass gained per area of the wetted face.")
         else:
-            out.append(CapillaryReading(v["sample"], v["time"], v["uptake"], row, rel))
+            out.append(CapillaryReading(v["sample"], v["time"], v["uptake"], row, rel,
+                                        v["lab_sample"] or ""))
     return first_of_each(out, lambda r: (r.sample, r.time), rel, "time of this sample", "time",
                          log)

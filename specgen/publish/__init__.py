@@ -156,7 +156,7 @@ def _stamp(date):
 
 def _report_bar(project) -> dict:
     """What the site's report bar shows on every page (escaped by the page frame)."""
-    from specgen.report.fmt import date_text
+    from specgen.dates import date_text
     p, rev = project.dossier.project, project.revision
     return {"project": p.title, "code": p.code, "revision": rev.code, "status": rev.status,
             "state": STATE[rev.status], "purpose": PURPOSE[rev.purpose],

@@ -21,7 +21,6 @@ from specgen.killpoints import reached
 from specgen.refdata import CONTENT_DIR
 
 PRINT_DIR = CONTENT_DIR / "print"
-BASE = "file:///specgen-pageset/"
 PAGE_SIZES = {"a4": "A4", "letter": "letter"}
 
 
@@ -109,7 +108,7 @@ def pieces(pageset, size: int = PART_SIZE) -> list[Piece]:
     alike, so the cut points are the same page breaks either way.
     """
     import markdown
-    from specgen.report.safety import neutralise_links
+    from specgen.publish.safety import neutralise_links
     names, configs = _extensions()
     out = []
     for item in pageset.nav:

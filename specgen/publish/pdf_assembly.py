@@ -93,7 +93,7 @@ def global_anchors(docs, start: int = 0) -> dict[str, tuple[int, float, float]]:
 
 
 def _links(writer, docs, offsets, anchors) -> None:
-    from specgen.publish.pdf import BASE
+    from specgen.publish.pdf_parts import BASE
     from pypdf.generic import (ArrayObject, DictionaryObject, FloatObject, NameObject,
                                NumberObject, TextStringObject)
     pages = writer.pages

@@ -19,7 +19,9 @@ from concurrent.futures import ProcessPoolExecutor
 from dataclasses import dataclass, field
 
 from specgen.errors import PublishError
-from specgen.publish.pdf import BASE
+
+# where the print HTML of the page set lives for the printer (its URL fetcher serves it)
+BASE = "file:///specgen-pageset/"
 
 PT_PER_PX = 0.75  # 72 PDF points per inch / 96 CSS pixels per inch
 
@@ -206,7 +208,7 @@ def cached_or_submitted(printer: Printer, kind: str, html: str, css: str, **opti
     The key covers the HTML, the CSS, the options, our code, WeasyPrint's version and the
     SHA-256 of every asset the HTML uses.
     """
-    from specgen.report import cache
+    from specgen import cache
     inputs = [html, css, sorted(options.items()), _engine_version(),
               _asset_digests(html, printer.pageset)]
     found = cache.lookup(kind, inputs)

@@ -33,7 +33,7 @@ class _FeedPages:
         return files
 
     def on_page_content(self, html, page, config, files):
-        from specgen.report.safety import neutralise_links
+        from specgen.publish.safety import neutralise_links
         return neutralise_links(html)
 
 

@@ -18,6 +18,7 @@ import re
 from pathlib import Path
 
 from specgen.errors import PublishError
+from specgen.project.layout import ARCHIVE_DIR
 from specgen.publish.output import MANIFEST, VERSIONS, verify as outputs_of
 
 INPUT_PREFIX = "input/"
@@ -117,3 +118,57 @@ def _index_target(out: Path) -> str | None:
         return None
     m = re.search(r'url=([^"/]+)/index\.html', text)
     return m.group(1) if m else None
+
+
+# ---------------------------------------------------------------- `specgen verify`
+def verify_output(path: Path | str, project_dir: Path | str | None = None,
+                  trust: list[Path] = ()) -> dict:
+    """Built output against what it vouches for: ``{"differences": [...], "signatures":
+    [...]}``; no differences and every signature intact when all match.
+
+    ``path`` is a revision folder or an output folder (then every revision in it, and
+    versions.json and the root index against the revisions present).  With
+    ``project_dir``, the inputs kept for each revision (``issued/<revision>/``, or the
+    project folder for its current revision) are checked against the manifest too.
+    Signed revisions' signatures are checked against the ``trust`` roots.
+    """
+    from specgen.publish.signing import verify_signatures
+    path = Path(path)
+    if (path / "manifest.json").is_file():
+        folders, lines = [path], []
+    else:
+        folders = revisions_in(path) if path.is_dir() else []
+        if not folders:
+            raise PublishError(f"{path}: neither a revision folder nor an output folder written "
+                               "by specgen build. Fix: name OUT or OUT/<revision>.")
+        lines = folder_differences(path)
+    signatures = []
+    for folder in folders:
+        lines += [f"{folder.name}: {d}" for d in revision_differences(folder)]
+        if project_dir is not None:
+            lines += _kept_inputs(Path(project_dir), folder)
+        signatures += verify_signatures(folder, list(trust))
+    return {"differences": lines, "signatures": signatures}
+
+
+def _kept_inputs(project: Path, folder: Path) -> list[str]:
+    from specgen.project.load import input_files
+    code = folder.name
+    kept = project / ARCHIVE_DIR / code
+    if not kept.is_dir():
+        kept = project if _revision_code(project) == code else None
+    if kept is None:
+        if manifest_of(folder).get("status") == "issued":
+            return [f"{code}: the project keeps no inputs of this issued revision "
+                    f"({ARCHIVE_DIR}/{code}/)"]
+        return []
+    return input_differences(folder, {f.path: f.sha256 for f in input_files(kept)})
+
+
+def _revision_code(project: Path) -> str | None:
+    from specgen.errors import ProblemLog
+    from specgen.project.files import read_yaml
+    located = read_yaml(project / "dossier.yaml", "dossier.yaml", ProblemLog())
+    data = located.data if located else None
+    rev = data.get("revision") if isinstance(data, dict) else None
+    return str(rev.get("code")) if isinstance(rev, dict) else None

@@ -5,7 +5,7 @@ from specgen.report.cautions import cautions_for
 from specgen.report.chapters import chapter
 from specgen.report.fmt import num, qty
 
-@chapter("scope.md", "Scope and zones of work", 20, "scope.md.j2")
+@chapter("scope.md", "Scope and zones of work", "scope.md.j2")
 def scope(env) -> dict:
     p = env.project
     rows = []
@@ -22,7 +22,28 @@ def scope(env) -> dict:
     if req.max_compressive_long_term:
         reqs.append(f"long-term compressive strength at most "
                     f"{qty(req.max_compressive_long_term / 1e6, 'MPa', 3)}")
-    return {"zones": rows, "requirements": reqs, "practice": _practice(env)}
+    return {"zones": rows, "requirements": reqs, "practice": _practice(env),
+            "heritage": heritage_context(p)}
+
+
+def _sentence(text: str) -> str:
+    text = text[:1].upper() + text[1:]
+    return text if text.endswith((".", "!", "?")) else text + "."
+
+
+def heritage_context(p) -> dict:
+    """The heritage context as the scope page shows it and the selection rationale cites it;
+    what a protected building leaves unstated is named, not hidden."""
+    h, info = p.dossier.heritage, p.dossier.project
+    significance = (h.significance if h and h.significance else "") or info.significance
+    rows = [("Designation", h.designation if h else ""), ("Consent", h.consent if h else ""),
+            ("Conservation approach", "; ".join(h.approach) if h else ""),
+            ("How the approach applies", h.approach_note if h else ""),
+            ("Heritage impact", h.impact if h else "")]
+    missing = [k for k, v in rows[:3] + rows[4:] if not v] if info.protected_building else []
+    return {"given": h is not None or bool(significance), "significance": significance,
+            "rows": [{"what": k, "text": _sentence(v)} for k, v in rows if v], "missing": missing,
+            "approach": list(h.approach) if h else [], "href": "scope.md#heritage-context"}
 
 
 def _practice(env) -> dict:
@@ -42,24 +63,24 @@ def _practice(env) -> dict:
                         for m in pr.test_methods]}
 
 
-@chapter("calculations.md", "Calculation sheets", 80, "calculations.md.j2", volume="appendix")
+@chapter("calculations.md", "Calculation sheets", "calculations.md.j2", volume="appendix")
 def calculations(env) -> dict:
     return {"sheets": [env.sheet(c) for c in env.results.checks]}
 
 
-@chapter("cautions.md", "Cautions", 85, "cautions.md.j2")
+@chapter("cautions.md", "Cautions", "cautions.md.j2")
 def cautions(env) -> dict:
     chosen, closing = cautions_for(env.project)
     return {"cautions": chosen, "closing": closing}
 
 
-@chapter("inputs.md", "Input files", 95, "inputs.md.j2", volume="appendix")
+@chapter("inputs.md", "Input files", "inputs.md.j2", volume="appendix")
 def inputs(env) -> dict:
     return {"files": [{"path": f.path, "sha256": f.sha256, "size": f.size}
                       for f in env.project.inputs]}
 
 
-@chapter("references.md", "References", 90, "references.md.j2")
+@chapter("references.md", "References", "references.md.j2")
 def references(env) -> dict:
     # Rendered last so that every citation made by earlier chapters is numbered; a standard
     # named in the text of a page (e.g. "EN 1015-11" in a clause) is cited too, so the list

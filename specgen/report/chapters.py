@@ -1,8 +1,8 @@
 """Page builders: each chapter registers a template and a function preparing its context.
 
 Templates never compute: everything they show is prepared here (numbers formatted,
-rows built).  Chapters run in ``order``; a chapter with no data still renders and
-says so.  Extensions register chapters with the same decorator.
+rows built).  Chapters run in reading order (:data:`READING_ORDER`, the one list of the
+dossier's chapters); a chapter with no data still renders and says so.  Extensions register chapters with the same decorator.
 """
 from __future__ import annotations
 
@@ -17,7 +17,7 @@ from specgen.report.fmt import anchor, num, qty
 class ChapterSpec:
     path: str
     title: str
-    order: int
+    order: int  # position in READING_ORDER
     template: str
     fn: Callable
     in_print: bool = True
@@ -26,13 +26,42 @@ class ChapterSpec:
 
 _CHAPTERS: dict[str, ChapterSpec] = {}
 
+#: The dossier in reading order, the one list of its chapters: the site's navigation, the
+#: PDF and the page names a review comment may be about all follow it.  A chapter an
+#: extension registers without a place here comes after these, by path.
+READING_ORDER = (
+    "index.md",            # summary
+    "before-issue.md",     # what stops the revision from being issued
+    "changes.md",          # changes in this revision
+    "scope.md",
+    "evidence.md",         # samples, drawings, photographs, laboratory reports
+    "fabric.md",
+    "composition.md",
+    "strength.md",
+    "compatibility.md",
+    "works.md",
+    "card.md",             # the batching cards, one page per mix
+    "specification.md",
+    "method.md",           # method statement, responsibilities, aftercare
+    "checks.md",           # appendix: check register
+    "calculations.md",     # appendix: calculation sheets
+    "cautions.md",
+    "comments.md",
+    "references.md",
+    "confirm.md",          # values to confirm
+    "history.md",
+    "inputs.md",           # appendix: input files
+    "glossary.md",         # appendix: the abbreviations and symbols printed
+)
+
 
 VOLUMES = ("main", "appendix")
 
 
-def chapter(path: str, title: str, order: int, template: str, in_print: bool = True,
+def chapter(path: str, title: str, template: str, in_print: bool = True,
             volume: str = "main"):
-    """Decorator registering a chapter; two chapters may not claim one path.
+    """Decorator registering a chapter; two chapters may not claim one path.  Its place is
+    its position in :data:`READING_ORDER`.
 
     ``volume`` places it in the report (``main``) or in the appendices (``appendix``):
     the site's navigation and the PDF's two volumes follow it."""
@@ -42,6 +71,7 @@ def chapter(path: str, title: str, order: int, template: str, in_print: bool = T
     def deco(fn):
         if path in _CHAPTERS:
             raise ValueError(f"chapter path '{path}' is already registered")
+        order = READING_ORDER.index(path) if path in READING_ORDER else len(READING_ORDER)
         _CHAPTERS[path] = ChapterSpec(path, title, order, template, fn, in_print, volume)
         return fn
     return deco

@@ -2,18 +2,18 @@
 candidate mortars × criteria with statuses, the grading curves with the envelope, colour
 swatches beside ΔE00, the moisture bar chart and the findings linked to their sheets.
 
-Numbers come from the check results (``results.quantities`` and ``checks``); curves and
-swatch colours are evaluated with the checks' and the science's own functions, never with
-formulas written here.
+Numbers come from the check results (``results.quantities`` and ``checks``): the grading
+curves, moisture bars and colour swatches are drawn from what the checks recorded; nothing is
+computed here.
 """
 from __future__ import annotations
 
-from specgen.checks import compatibility_checks as cmp
-from specgen.checks import compatibility_common as cc
+from specgen.checks.result import STATUSES
 from specgen.report.chapters import badge, chapter, sheet_anchor
 from specgen.report.fmt import as_given, num, qty
 from specgen.report.wording import reader
-from specgen.science import colour
+from specgen.units import ROOT_MIN
+from specgen.views import pairs as zone_pairs
 
 #: The matrix columns: check code → short heading (the order of the columns).
 CRITERIA = {"COMP-STR-UNIT": "weaker than units", "COMP-STR-HIST": "not above historic",
@@ -27,7 +27,7 @@ DURABILITY = {"DUR-FROST": "frost", "DUR-TSA": "thaumasite", "DUR-ETT": "ettring
 FINDINGS = tuple(CRITERIA) + ("COMP-BLEND", "COMP-BA") + tuple(DURABILITY)
 PROPERTIES = (("compressive_strength", "compressive strength", 1e-6, "MPa"),
               ("elastic_modulus", "elastic modulus", 1e-9, "GPa"),
-              ("capillary_coefficient", "capillary coefficient", cmp.ROOT_MIN, "kg/(m²·min^0.5)"),
+              ("capillary_coefficient", "capillary coefficient", ROOT_MIN, "kg/(m²·min^0.5)"),
               ("vapour_resistance_factor", "vapour resistance factor μ", 1.0, ""),
               ("thermal_expansion", "thermal expansion", 1e6, "× 10⁻⁶/K"),
               ("hygric_expansion", "hygric expansion", 1e3, "mm/m"))
@@ -41,7 +41,7 @@ def _cell(c) -> dict:
             "href": f"calculations.md#{sheet_anchor(c)}"}
 
 
-@chapter("fabric.md", "The historic fabric", 25, "fabric.md.j2")
+@chapter("fabric.md", "The historic fabric", "fabric.md.j2")
 def fabric(env) -> dict:
     """Masonry units and historic mortars with their measured properties, salts and sources."""
     p = env.project
@@ -64,12 +64,16 @@ def _material(kind: str, m) -> dict:
         extra.append(f"binder analysis {m.binder_analysis} (see Binder composition)")
     if getattr(m, "aggregate_sample", None):
         extra.append(f"aggregate recovered by acid digestion: sample {m.aggregate_sample}")
+    if m.lab_samples:
+        from specgen.report.evidence_chapters import sample_links
+        extra.append(f"measured on sample{'s' if len(m.lab_samples) > 1 else ''} "
+                     + sample_links(m.lab_samples) + " (see the sample register)")
     return {"kind": kind, "id": m.id, "name": m.name, "rows": rows, "extra": extra,
             "source": m.source or "—",
             "salt_sample": salts.sample if salts is not None and salts.sample else ""}
 
 
-@chapter("compatibility.md", "Compatibility with the fabric", 50, "compatibility.md.j2")
+@chapter("compatibility.md", "Compatibility with the fabric", "compatibility.md.j2")
 def compatibility(env) -> dict:
     p = env.project
     zones = [_zone(env, z) for z in p.dossier.zones if z.candidates]
@@ -85,7 +89,7 @@ DECIDES_TEXT = ("No standard acceptance threshold exists for the colour of repoi
 
 def _zone(env, z) -> dict:
     p = env.project
-    pairs = cc.pairs(z, p)
+    pairs = zone_pairs(z, p)
     matrix = [{"mix": pr.mix_id, "name": pr.mix.name if pr.mix else "unknown mix",
                "cells": [_cell(env.results.check(code, pr.subject)) for code in CRITERIA]}
               for pr in pairs]
@@ -111,7 +115,6 @@ def _zone(env, z) -> dict:
 def _durability_result(env, code: str, pr):
     """The result shown in the durability matrix: per pair, per mix (SITE-SET) or the most
     severe over the mix's binders (DUR-SOUND)."""
-    from specgen.checks.result import STATUSES
     r = env.results
     if code == "SITE-SET":
         return r.check(code, pr.mix_id)
@@ -145,10 +148,10 @@ def _colour_figure(env, z, pairs) -> dict | None:
         v = env.results.value(pr.subject, "delta_e_2000")
         if v is None:
             continue
-        hist, panel = colour.lab_to_srgb(v["historic_mean"]), colour.lab_to_srgb(v["panel_mean"])
+        hist, panel = v["historic_swatch"], v["panel_swatch"]
         rows.append({"label": f"{pr.mix_id} panel", "historic_label": pr.historic.id,
-                     "historic_hex": hist.hex, "panel_hex": panel.hex,
-                     "delta_e": num(v["value"], 3), "clipped": hist.clipped or panel.clipped})
+                     "historic_hex": hist["hex"], "panel_hex": panel["hex"],
+                     "delta_e": num(v["value"], 3), "clipped": hist["clipped"] or panel["clipped"]})
     if not rows:
         return None
     from specgen.report.compatibility_figures import colour_swatches

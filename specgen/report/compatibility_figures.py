@@ -7,7 +7,7 @@ inside :func:`specgen.report.figures._pyplot`, so ``specgen check`` never loads 
 """
 from __future__ import annotations
 
-from specgen.report.cache import figure
+from specgen.cache import figure
 from specgen.report.figures import _pyplot, to_svg
 
 INK, ENVELOPE, HISTORIC = "#1f3a5f", "#e7dcc7", "#8a4f7d"

@@ -6,10 +6,10 @@ chapter formats and arranges, it does not compute.
 """
 from __future__ import annotations
 
-from specgen.checks.composition_checks import oxide_order
 from specgen.report.chapters import badge, chapter, sheet_anchor
 from specgen.report.fmt import BINDER_WORDS, as_given, num
 from specgen.report.wording import plain, reader
+from specgen.views import binder_analysis, oxide_order, raw_analyses
 
 MAJOR = ("SiO2", "Al2O3", "Fe2O3", "CaO", "MgO", "SO3")
 INDEX_COLUMNS = (("cementation_index", "CI"), ("hydraulic_index", "HI"),
@@ -23,7 +23,7 @@ def _findings(env, subject: str) -> list[dict]:
             for c in env.results.checks if c.subject == subject and c.code.startswith("CHEM-")]
 
 
-@chapter("composition.md", "Binder composition", 30, "composition.md.j2")
+@chapter("composition.md", "Binder composition", "composition.md.j2")
 def composition(env) -> dict:
     p, r = env.project, env.results
     oxides = sorted({k for a in p.analyses.values() for k in a.mass_percent}, key=oxide_order)
@@ -43,7 +43,10 @@ def composition(env) -> dict:
     indices = [{"id": a.id, "class": env.results.value(a.id, "hydraulicity_class") or "—",
                 "cells": [num(v, 3) if (v := env.results.value(a.id, k)) is not None else "—"
                           for k, _ in INDEX_COLUMNS]} for a in p.analyses.values()]
+    from specgen.report.evidence_chapters import sample_links
     analyses = [{"id": a.id, "kind": a.kind.replace("_", " "), "description": a.description,
+                 "sample": sample_links([a.lab_sample]) if a.lab_sample else "",
+                 "laboratory": a.laboratory,
                  "findings": _findings(env, a.id)} for a in p.analyses.values()]
     binders = [_binder(env, b) for b in p.binders.values()]
     return {"oxides": oxides, "rows": rows, "figure": figure, "indices": indices,
@@ -57,7 +60,6 @@ def _binder(env, b) -> dict:
     expected = env.results.value(b.id, "expected_fired_composition")
     balance = []
     if expected:
-        from specgen.checks.chemistry_common import binder_analysis, raw_analyses
         raw = raw_analyses(b, p)[0]
         measured = binder_analysis(b, p)
         lf = env.results.value(measured.id, "loss_free_composition") or {}
@@ -86,9 +88,10 @@ def _hydration(env, p) -> dict | None:
                     if (v := env.results.value(b.id, "hydration_volumes"))), None)
     if volumes is None:
         return None
-    from specgen.checks.hydration_checks import chosen
     from specgen.report.composition_figures import hydration_bars
-    name, other = chosen(p)
+    # the project's density set and the other one the check computed beside it
+    name = p.dossier.chemistry.density_set
+    other = next(k for k in volumes if k != name)
     fig = env.figure("figures/hydration-volumes.svg",
                      hydration_bars([(k, volumes[k]["volumes"]) for k in (name, other)]),
                      "Belite hydration by volume, before and after, with each density set")

@@ -5,7 +5,7 @@ matplotlib is imported inside :func:`specgen.report.figures._pyplot`.
 """
 from __future__ import annotations
 
-from specgen.report.cache import figure
+from specgen.cache import figure
 from specgen.report.figures import _pyplot, to_svg
 
 PHASE_COLOURS = {

@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import io
 
-from specgen.report.cache import figure
+from specgen.cache import figure
 
 
 def _pyplot():

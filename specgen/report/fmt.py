@@ -4,6 +4,8 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from specgen.dates import date_text  # noqa: F401  (one place; the render stage formats with it)
+
 
 #: How the dossier names each binder type of materials.yaml (one table for every page).
 BINDER_WORDS = {"natural_cement": "natural cement", "nhl": "natural hydraulic lime (NHL)",
@@ -118,11 +120,6 @@ def count(n, word: str, many: str | None = None) -> str:
     """A count as an integer with its noun: ``1 measure``, ``2 coats``, ``0 days``."""
     n = int(round(n))
     return f"{n} {word if n == 1 else (many or word + 's')}"
-
-
-def date_text(day) -> str:
-    """A date as readers write it: ``27 August 2026``."""
-    return f"{day.day} {day:%B %Y}"
 
 
 def anchor(*parts: str) -> str:

@@ -13,8 +13,8 @@ from markupsafe import Markup, escape
 @lru_cache(maxsize=4096)
 def svg_of(latex: str) -> str:
     """SVG text of a LaTeX expression (ziamath, STIX Two Math font shipped in the package);
-    kept in the output folder's artefact cache (specgen/report/cache.py)."""
-    from specgen.report.cache import cached
+    kept in the output folder's artefact cache (specgen/cache.py)."""
+    from specgen.cache import cached
 
     def draw() -> bytes:
         import ziamath

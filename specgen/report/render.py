@@ -73,8 +73,7 @@ class RenderEnv:
 
     @property
     def rules_overridden(self) -> list:
-        from specgen.checks.rules import RuleBook
-        return RuleBook(self.project.dossier.rule_overrides).overridden()
+        return self.results.rules_overridden()
 
     def pageset_paths(self) -> set[str]:
         """Stems of every chapter of the dossier (for links to pages)."""

@@ -8,7 +8,7 @@ from specgen.report.review import open_by_category, place_markdown, place_of
 from specgen.report.wording import plain
 
 
-@chapter("changes.md", "Changes in this revision", 12, "changes.md.j2")
+@chapter("changes.md", "Changes in this revision", "changes.md.j2")
 def changes(env) -> dict:
     ch = env.results.changes
     if not ch:
@@ -46,7 +46,7 @@ def _change_words(c, pages) -> str:
                 state, f"about {c.about}")
 
 
-@chapter("history.md", "Revision history", 92, "history.md.j2")
+@chapter("history.md", "Revision history", "history.md.j2")
 def history(env) -> dict:
     rows = env.history.revisions if env.history else [
         {"code": env.project.revision.code, "date": env.project.revision.date.isoformat(),
@@ -56,7 +56,7 @@ def history(env) -> dict:
     return {"revisions": list(reversed(rows))}
 
 
-@chapter("comments.md", "Review comments", 88, "comments.md.j2")
+@chapter("comments.md", "Review comments", "comments.md.j2")
 def comments(env) -> dict:
     checks = {f"{c.code}/{c.subject}": c for c in env.results.checks}
     # open comments whose subject changed in this revision: put to the specifier by the audit

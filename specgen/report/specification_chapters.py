@@ -9,11 +9,11 @@ from __future__ import annotations
 from markupsafe import Markup, escape
 
 from specgen.checks.result import STATUS_WORDS
-from specgen.checks.specification_checks import applicable
 from specgen.report.chapters import badge, chapter
 from specgen.report.fmt import anchor, as_given, num, qty, unit_symbol
 from specgen.report.specification_clauses import clause_context
 from specgen.report.wording import reader
+from specgen.views import applicable
 
 STATE_CLASS = {"open": "hold", "released": "pass"}
 
@@ -34,7 +34,7 @@ def state_badge(state: str) -> Markup:
     return Markup(f'<span class="sg-badge sg-{STATE_CLASS[state]}">{escape(state)}</span>')
 
 
-@chapter("specification.md", "Specification", 70, "specification.md.j2")
+@chapter("specification.md", "Specification", "specification.md.j2")
 def specification(env) -> dict:
     p, r = env.project, env.results
     spec = p.specification
@@ -59,6 +59,13 @@ def specification(env) -> dict:
             "chapter_docx": _chapter_path(p) if spec else "", "panels": panels, "currency": spec.doc.currency if spec else ""}
 
 
+def _approach(p) -> dict | None:
+    """The conservation approach the rationale is read against (scope page)."""
+    from specgen.report.builtin_chapters import heritage_context
+    h = heritage_context(p)
+    return {"words": ", ".join(h["approach"]), "href": h["href"]} if h["approach"] else None
+
+
 def _zone(env, zone, jenv, clause_ctx) -> dict:
     p, r = env.project, env.results
     sel = r.check("SPEC-SELECT", zone.id)
@@ -72,6 +79,7 @@ def _zone(env, zone, jenv, clause_ctx) -> dict:
             "status_word": STATUS_WORDS[sel.status] if sel else "not assessed",
             "message": reader(sel.message) if sel else "", "href": _href(sel.key) if sel else "",
             "rationale": s.rationale if s else "", "justification": s.justification if s else "",
+            "approach": _approach(p),
             "notes": [reader(n) for n in sel.notes] if sel else [], "clauses": clauses,
             "clause_number": clause_ctx["number"] if clause_ctx else "",
             "n_failed": len(failed), "failed_links": Markup("; ").join(

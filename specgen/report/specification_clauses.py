@@ -14,7 +14,7 @@ from specgen.report.fmt import BINDER_WORDS, as_given, num
 def clause_context(project, results, zone, mix) -> dict:
     """Everything the clause template shows for ``mix`` chosen in ``zone``."""
     return {"zone": zone, "mix": mix, "materials": _materials(project, results, zone, mix),
-            "proportions": _proportions(results, zone, mix), "joints": _joints(project, zone),
+            "proportions": _proportions(results, zone, mix), "joints": _joints(results, zone),
             "weather": _weather(project, results), "acceptance": _acceptance(results, zone, mix),
             "sampling": _sampling(results.value(zone.id, "sample_sets")),
             "non_conformance": _non_conformance(project),
@@ -39,8 +39,9 @@ def _materials(project, results, zone, mix) -> dict:
     grad = results.check("COMP-GRAD", f"{zone.id}/{mix.id}")
     grading = None
     if grad is not None and grad.limit is not None:
-        envelope = next((n.removeprefix("envelope: ") for n in grad.notes
-                         if n.startswith("envelope: ")), "")
+        curves = results.value(f"{zone.id}/{mix.id}", "grading_curves") or {}
+        env = curves.get("envelope")
+        envelope = f"{env['title']} — {env['source']}" if env else ""
         grading = {"limit": grad.limit.text, "envelope": envelope, "source": grad.key,
                    "historic": zone.historic_mortar}
     admixtures = [{"name": a.name, "dose": as_given(round(100 * a.dose, 4)), "purpose": a.purpose}
@@ -79,18 +80,14 @@ def _gauging(g: dict | None) -> dict | None:
             "water_L": as_given(g["water_L"]), "volume_L": as_given(g["volume_L"])}
 
 
-def _joints(project, zone) -> dict:
-    """Joint preparation and application numbers as written in dossier.yaml (or the rule)."""
-    ratio = project_rule(project, "works.joint_depth_ratio")
+def _joints(results, zone) -> dict:
+    """Joint preparation and application numbers as written in dossier.yaml (or the rule in
+    force for the checks)."""
+    ratio = results.rule("works.joint_depth_ratio").value
     width = as_given(round(zone.joint_width * 1000, 6)) if zone.joint_width else ""
     depth = as_given(round(zone.joint_depth * 1000, 6)) if zone.joint_depth else ""
     return {"width": width, "depth": depth, "ratio": as_given(ratio),
             "coats": [as_given(round(t * 1000, 6)) for t in zone.coats]}
-
-
-def project_rule(project, key: str) -> float:
-    from specgen.checks.rules import RuleBook
-    return RuleBook(project.dossier.rule_overrides)[key].value
 
 
 def _weather(project, results) -> dict | None:

@@ -8,7 +8,6 @@ Nothing is refitted or recomputed here.
 """
 from __future__ import annotations
 
-from specgen.checks.rules import RuleBook
 from specgen.report.chapters import badge, chapter, sheet_anchor
 from specgen.report.fmt import num
 from specgen.report.wording import plain, reader
@@ -23,10 +22,10 @@ TERMS = {"early_fraction": ("early (fast-stage) fraction", ""),
 METHOD_NAMES = {"arrhenius": "Arrhenius", "nurse_saul": "Nurse–Saul"}
 
 
-@chapter("strength.md", "Strength development", 40, "strength.md.j2")
+@chapter("strength.md", "Strength development", "strength.md.j2")
 def strength(env) -> dict:
     p, r = env.project, env.results
-    rules = RuleBook(p.dossier.rule_overrides)
+    rules = r.rules  # the rules in force for the checks
     mixes = [_mix(env, m, rules) for m in p.mixes.values() if r.value(m.id, "mean_strength")]
     site = next((c for c in r.checks if c.code == "STR-SITE" and c.steps), None)
     energy = next((i for i in site.steps[0].inputs if i.symbol == "E"), None) if site else None

@@ -6,7 +6,7 @@ matplotlib is imported inside the functions so that ``specgen check`` never load
 """
 from __future__ import annotations
 
-from specgen.report.cache import figure
+from specgen.cache import figure
 from specgen.report.figures import _pyplot, to_svg
 
 INK, BAND, WIDE = "#1f3a5f", "#c9d6e6", "#eadfcb"

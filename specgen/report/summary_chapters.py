@@ -23,7 +23,7 @@ STATE_WORDS = {"draft": "draft", "issued": "issued"}
 DECIDING = ("fail", "hold", "attention")
 
 
-@chapter("index.md", "Summary", 10, "summary.md.j2")
+@chapter("index.md", "Summary", "summary.md.j2")
 def summary(env) -> dict:
     p, r = env.project, env.results
     counts = [{"status": s, "badge": badge(s), "n": n} for s, n in r.counts().items() if n]
@@ -78,7 +78,7 @@ def _zone(env, zone, holds: dict) -> dict:
     return out
 
 
-@chapter("checks.md", "Check register", 78, "checks.md.j2", volume="appendix")
+@chapter("checks.md", "Check register", "checks.md.j2", volume="appendix")
 def register(env) -> dict:
     r = env.results
     counts = [{"status": s, "badge": badge(s), "n": n, "word": STATUS_WORDS[s]}

@@ -23,6 +23,7 @@ FILE_LABELS = {
     "mixes.yaml": "mix designs",
     "specification.yaml": "specification data",
     "comments.yaml": "review comments",
+    "samples.yaml": "sample register",
     "lab/strength.csv": "lab strength results",
     "lab/sieves.csv": "lab sieve analyses",
     "lab/colour.csv": "lab colour readings",
@@ -43,6 +44,7 @@ CONTENT_LABELS = {
     "sieve_series": "sieve series table",
     "strength_classes": "strength classes table",
     "grading_envelopes": "grading envelopes table",
+    "curing_regimes": "curing regimes table",
 }
 #: named choices that reach text as keys (models, density sets, tables …)
 KEY_LABELS = {
@@ -52,6 +54,11 @@ KEY_LABELS = {
     "bentz_nist": "NIST phase densities (Bentz)",
     "rounded_practice": "rounded densities of practice",
     "wta_2_9": "salt-load table of practice (WTA 2-9)",
+    "en1015_11_lime": "EN 1015-11 regime for lime-rich mortars",
+    "en1015_11_hydraulic": "EN 1015-11 regime for hydraulic mortars",
+    "water_20": "water curing at 20 °C",
+    "sealed_20": "sealed curing at 20 °C",
+    "air_65": "air curing at 65 % RH",
 }
 #: ASCII units and signs as the checks write them → typographic symbols
 UNIT_TEXT = [

@@ -22,7 +22,7 @@ def _link(c) -> dict | None:
     return {"href": f"{CALC}#{sheet_anchor(c)}", "badge": badge(c.status), "message": reader(c.message)}
 
 
-@chapter("works.md", "Mixes, quantities and batching", 60, "works.md.j2")
+@chapter("works.md", "Mixes, quantities and batching", "works.md.j2")
 def works(env) -> dict:
     p, r = env.project, env.results
     zones = ws.schedule(p, r)
@@ -106,7 +106,7 @@ def _weather(window, outside) -> dict | None:
             "recorded": outside is not None}
 
 
-@chapter("card.md", "Batching cards", 61, "card.md.j2")
+@chapter("card.md", "Batching cards", "card.md.j2")
 def cards(env) -> list[dict]:
     """One page per mix that has a gauging (SITE-GAUGE): the printable batching card."""
     pages = []
@@ -119,8 +119,7 @@ def cards(env) -> list[dict]:
 
 
 def _rule(env, key: str) -> float:
-    from specgen.checks.rules import RuleBook
-    return RuleBook(env.project.dossier.rule_overrides)[key].value
+    return env.results.rule(key).value
 
 
 def _card(env, mix, g: dict) -> dict:

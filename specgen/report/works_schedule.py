@@ -12,7 +12,7 @@ import csv
 import io
 from dataclasses import dataclass
 
-from specgen.checks import works_common as wc
+from specgen import views as wc
 
 KIND_ORDER = ("volume", "binder", "bags", "sand", "water", "admixture")
 MASS_NAMES = (("binder", "binder_mass"), ("sand", "sand_mass"), ("admixture", "admixture_mass"))

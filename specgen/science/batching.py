@@ -26,8 +26,10 @@ import math
 from collections.abc import Mapping
 from dataclasses import dataclass
 
+from specgen.errors import ScienceInputError
 
-class BatchingInputError(ValueError):
+
+class BatchingInputError(ScienceInputError):
     """Site rates or times the batching calculation cannot use."""
 
 

@@ -17,8 +17,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from specgen.errors import ScienceInputError
 
-class ColourInputError(ValueError):
+
+class ColourInputError(ScienceInputError):
     """Lab values the colour functions cannot use."""
 
 

@@ -21,11 +21,13 @@ from dataclasses import dataclass
 import numpy as np
 from scipy import optimize
 
+from specgen.errors import ScienceInputError
+
 # Two apertures closer than this (relative) are the same sieve: files write 0.6 or 0.600 mm.
 SAME_SIEVE = 0.02
 
 
-class GradingInputError(ValueError):
+class GradingInputError(ScienceInputError):
     """A sieve analysis or grading input that cannot be used."""
 
 

@@ -23,6 +23,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy import constants, optimize
 
+from specgen.errors import ScienceInputError
 from specgen.science.strength_models import DAY, MAX_EXTRAPOLATION, FitResult, curve
 
 R = constants.R                       # J/(mol·K), CODATA via scipy
@@ -30,7 +31,7 @@ _ZERO_C = constants.zero_Celsius      # 273.15 K
 VALID_RANGE_K = (_ZERO_C - 10.0, _ZERO_C + 60.0)
 
 
-class MaturityInputError(ValueError):
+class MaturityInputError(ScienceInputError):
     """A temperature history or parameter the maturity method cannot use."""
 
 

@@ -21,8 +21,10 @@ from __future__ import annotations
 from collections.abc import Mapping
 from dataclasses import dataclass
 
+from specgen.errors import ScienceInputError
 
-class MixDesignError(ValueError):
+
+class MixDesignError(ScienceInputError):
     """Proportions the mix-design calculation cannot use."""
 
 

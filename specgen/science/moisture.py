@@ -21,8 +21,10 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from specgen.errors import ScienceInputError
 
-class MoistureInputError(ValueError):
+
+class MoistureInputError(ScienceInputError):
     """Readings the moisture functions cannot use."""
 
 

@@ -12,8 +12,10 @@ import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
+from specgen.errors import ScienceInputError
 
-class ChemistryInputError(ValueError):
+
+class ChemistryInputError(ScienceInputError):
     """An analysis (or a reference table) the chemistry functions cannot use."""
 
 

@@ -27,9 +27,11 @@ from specgen.science.strength_models import (
     DAY,
 )
 
+from specgen.errors import ScienceInputError
+
 _MPA = 1e6
 
-class ClassInputError(ValueError):
+class ClassInputError(ScienceInputError):
     """A class table, limit or prediction the comparison cannot use."""
 
 

@@ -42,7 +42,12 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
-from scipy import optimize, stats
+from scipy import stats
+
+from specgen.errors import ScienceInputError
+# the generic tools of the fit, importable from here as before
+from specgen.science.inference_tools import (Laplace, LackOfFit,  # noqa: F401
+                                             lack_of_fit, laplace_fit)
 
 PRIOR_DOF = 4.0          # weight of the prior's variances, as degrees of freedom (common practice)
 GAIN_AGES_D = (28.0, 365.0)
@@ -50,40 +55,8 @@ PRIOR_KEYS = ("early_fraction", "tau_fast_d", "tau_slow_d", "shape_b", "gain_365
 _Z95 = float(stats.norm.ppf(0.975))
 
 
-class InferenceError(ValueError):
+class InferenceError(ScienceInputError):
     """The record cannot be assessed; the message says why and what to test."""
-
-
-# ---------------------------------------------------------------- generic Laplace fit
-@dataclass(frozen=True)
-class Laplace:
-    """Posterior mode and its Laplace covariance; ``p_eff`` data-determined parameters."""
-
-    mode: np.ndarray
-    cov: np.ndarray
-    p_eff: float
-    cost: float
-
-
-def laplace_fit(residuals: Callable[[np.ndarray], np.ndarray], z0: Sequence[float],
-                n_data: int, jac: Callable[[np.ndarray], np.ndarray] | None = None) -> Laplace:
-    """Minimise ``½·|r(z)|²`` where ``r`` stacks data residuals (first ``n_data``) and prior
-    residuals, each already divided by its standard deviation; return the mode and
-    ``(JᵀJ)⁻¹`` (Gauss-Newton Hessian of ``-ln p`` inverted: the Laplace approximation).
-    ``jac`` gives ∂r/∂z (by finite differences when None).
-
-    For a model linear in ``z`` with a Gaussian prior this is the exact posterior.
-    ``p_eff = tr((JᵀJ)⁻¹·J_dᵀJ_d)``: the effective number of parameters the data fix.
-    """
-    res = optimize.least_squares(residuals, np.asarray(z0, float), method="trf",
-                                 x_scale="jac", diff_step=1e-6,
-                                 jac=jac if jac is not None else "2-point")
-    j = jac(res.x) if jac is not None else res.jac
-    h = j.T @ j
-    cov = np.linalg.pinv(h)
-    jd = j[:n_data]
-    p_eff = float(np.trace(cov @ (jd.T @ jd)))
-    return Laplace(res.x, cov, p_eff, float(res.cost))
 
 
 # ---------------------------------------------------------------- the law
@@ -177,40 +150,6 @@ def prior_from_table(family: str, row: Mapping) -> Prior:
 
 def _central_cv(term: PriorTerm) -> float:
     return math.sqrt(term.low * term.high)          # geometric middle of the range
-
-
-# ---------------------------------------------------------------- lack of fit
-@dataclass(frozen=True)
-class LackOfFit:
-    """Pure-error lack-of-fit F test of fitted values against replicate groups."""
-
-    ss_pure: float
-    dof_pure: float
-    ss_lof: float
-    dof_lof: float
-    f: float | None
-    p_value: float | None
-
-
-def lack_of_fit(values: Sequence[float], groups: Sequence, fitted: Sequence[float],
-                n_params: float) -> LackOfFit:
-    """Lack-of-fit F test (pure error from replicates): ``F = (SS_lof/(k - p))/(SS_pe/(N - k))``.
-
-    ``values`` and ``fitted`` per observation, ``groups`` the replicate label of each;
-    ``n_params`` may be fractional (effective parameters of a penalised fit).  ``f`` and
-    ``p_value`` are None when either side has no degrees of freedom.
-    """
-    y, fv = np.asarray(values, float), np.asarray(fitted, float)
-    _, inv = np.unique(np.asarray(groups), return_inverse=True)
-    k, n = int(inv.max()) + 1, y.size
-    means = np.bincount(inv, y) / np.bincount(inv)
-    ss_pe = float(np.sum((y - means[inv]) ** 2))
-    ss_lof = float(np.sum((means[inv] - fv) ** 2))
-    d_pe, d_lof = float(n - k), float(k - n_params)
-    if d_pe <= 0 or d_lof <= 1e-9 or ss_pe <= 0:
-        return LackOfFit(ss_pe, d_pe, ss_lof, d_lof, None, None)
-    f = (ss_lof / d_lof) / (ss_pe / d_pe)
-    return LackOfFit(ss_pe, d_pe, ss_lof, d_lof, f, float(stats.f.sf(f, d_lof, d_pe)))
 
 
 # ---------------------------------------------------------------- the fit

@@ -23,8 +23,10 @@ from dataclasses import dataclass
 import numpy as np
 from scipy import stats
 
+from specgen.errors import ScienceInputError
 
-class StrengthInputError(ValueError):
+
+class StrengthInputError(ScienceInputError):
     """Strength results the statistics cannot handle (empty, non-positive, non-finite)."""
 
 

@@ -31,8 +31,10 @@ import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 
+from specgen.errors import ScienceInputError
 
-class WorksInputError(ValueError):
+
+class WorksInputError(ScienceInputError):
     """Dimensions or amounts the works calculation cannot use."""
 
 
@@ -110,3 +112,10 @@ def bags_needed(mass: float, bag_mass: float) -> int:
     """Whole bags: ⌈m / m_bag⌉ (a rounding guard keeps 50.0000001 from becoming 51)."""
     _positive(bag_mass=bag_mass)
     return max(0, math.ceil(mass / bag_mass - 1e-9))
+
+
+def rake_out_depth(joint_width: float, ratio: float, minimum: float) -> float:
+    """Depth to rake a joint out to (m): ``max(ratio · j, d_min)`` — a multiple of the joint
+    width, never shallower than the least depth that keys a repair (common practice)."""
+    _positive(joint_width=joint_width, ratio=ratio, minimum=minimum)
+    return max(ratio * joint_width, minimum)

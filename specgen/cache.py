@@ -30,7 +30,7 @@ CACHE_DIR = ".cache"
 def code_version() -> str:
     """Hash of the package's source files and of the drawing libraries' versions."""
     h = hashlib.sha256()
-    root = Path(__file__).resolve().parent.parent
+    root = Path(__file__).resolve().parent  # the specgen package
     for path in sorted(root.rglob("*.py")):
         h.update(str(path.relative_to(root)).encode())
         h.update(path.read_bytes())

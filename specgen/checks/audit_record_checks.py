@@ -1,0 +1,48 @@
+"""Audit rules on the record of the revision itself: values still to confirm against their
+source, and the sign-off of an issued revision (the consistency audit: ``audit_checks.py``).
+"""
+from __future__ import annotations
+
+import re
+
+from specgen.checks.registry import audit_rule
+from specgen.checks.result import Finding
+
+
+# ---------------------------------------------------------------- unverified values
+MEMORY = re.compile(r"\bmemory\b", re.I)
+
+
+@audit_rule("AUD-UNVERIFIED", "Values still to confirm against their source", order=80)
+def unverified_rule(ctx) -> list[Finding]:
+    """Every value still tagged as recalled (not yet checked against its printed source)."""
+    seen: dict[str, list[str]] = {}
+    for c in ctx.results.checks:
+        for s in c.steps:
+            for i in s.inputs:
+                if MEMORY.search(i.source or ""):
+                    seen.setdefault(f"{i.name} ({i.source})", []).append(c.key)
+    return [Finding("AUD-UNVERIFIED", "Values still to confirm against their source",
+                    f"{what} is used by {', '.join(sorted(set(keys))[:4])}"
+                    f"{' …' if len(set(keys)) > 4 else ''} and is still tagged as recalled.",
+                    tuple(f"calculation sheet {k}" for k in sorted(set(keys))[:4]),
+                    "confirm the value against the printed source and cite its clause or table.",
+                    subject=what, blocking=False) for what, keys in sorted(seen.items())]
+
+
+# ---------------------------------------------------------------- sign-off
+@audit_rule("AUD-SIGNOFF", "Issued revision without its sign-off", order=90)
+def signoff_rule(ctx) -> list[Finding]:
+    """A revision issued for construction names who prepared, checked and approved it."""
+    rev = ctx.project.revision
+    if rev.status != "issued" or rev.purpose != "for_construction":
+        return []
+    missing = [k for k in ("prepared", "checked", "approved")
+               if getattr(rev.sign_off, k) is None]
+    if not missing:
+        return []
+    return [Finding("AUD-SIGNOFF", "Issued revision without its sign-off",
+                    f"revision {rev.code} is issued but names no one who {' or '.join(missing)} "
+                    "it.", ("dossier.yaml: revision.sign_off", "cover: sign-off"),
+                    "give name, role, organisation and date under revision.sign_off for "
+                    f"{', '.join(missing)}.", subject=rev.code)]

@@ -1,0 +1,54 @@
+"""Each strength fit once per build.
+
+A build evaluates the current revision, the issued revision it is compared with, and any
+archived revision it publishes; their strength records are mostly the same series.  The fits
+are pure functions of their inputs, so inside one pipeline call (:func:`kept`, opened by
+``specgen.build``) a fit made for a series is kept by its exact inputs and given to every
+evaluation that asks for the same series.  Outside one, every fit is made afresh.  The
+render stage fits nothing: it draws the curves the checks recorded (``strength_curve``).
+"""
+from __future__ import annotations
+
+import contextlib
+import contextvars
+
+import numpy as np
+
+from specgen.science import strength_inference as si
+from specgen.science import strength_models as sm
+
+_KEPT: contextvars.ContextVar[dict | None] = contextvars.ContextVar("specgen_fits", default=None)
+
+
+@contextlib.contextmanager
+def kept():
+    """Keep the fits made inside (one build or check); a nested call shares the outer one's."""
+    if _KEPT.get() is not None:
+        yield
+        return
+    token = _KEPT.set({})
+    try:
+        yield
+    finally:
+        _KEPT.reset(token)
+
+
+def _once(key: tuple, make):
+    store = _KEPT.get()
+    if store is None:
+        return make()
+    if key not in store:
+        store[key] = make()  # a refusal (an exception) is not kept: it is cheap
+    return store[key]
+
+
+def selection(ages_s, values_pa) -> sm.Selection:
+    """:func:`~specgen.science.strength_models.fit_all` of a series (SI), made once."""
+    t, y = tuple(map(float, ages_s)), tuple(map(float, values_pa))
+    return _once(("models", t, y), lambda: sm.fit_all(np.array(t), np.array(y)))
+
+
+def inference(ages_d, values_mpa, prior: si.Prior) -> si.Inference:
+    """:func:`~specgen.science.strength_inference.fit` of a series with a prior, made once."""
+    t, y = tuple(map(float, ages_d)), tuple(map(float, values_mpa))
+    return _once(("inference", t, y, repr(prior)), lambda: si.fit(list(t), list(y), prior))

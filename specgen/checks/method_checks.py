@@ -1,0 +1,72 @@
+"""MTH-RAKE (zone): the depth a repointing zone's joints are raked out to, by the stated rule.
+
+The method statement's preparation clause quotes this depth: ``d = max(r · j, d_min)``, the
+joint width ``j`` times the ratio of practice (``works.joint_depth_ratio``, the same rule the
+quantities use), never shallower than ``method.rake_out_min``.  A depth the project gives is
+compared with the rule and with the deepest sensible rake-out (``method.rake_out_max_ratio``).
+"""
+from __future__ import annotations
+
+from specgen.checks.registry import declare, register
+from specgen.checks.result import Basis, CheckResult, Input, Limit, Quantity, Step
+from specgen.science import works as wk
+
+TITLE = "Rake-out depth of the joints"
+BASIS = (Basis("common practice", note="joints are raked out to about twice their width, to "
+               "sound mortar, and never less than about 15 mm"),)
+MM = 1e-3
+
+declare("rake_out_depth", "mm", "depth the joints of a repointing zone are raked out to: "
+        "{depth, rule, given, deepest} in mm (given: the project's depth or null)")
+
+
+@register("MTH-RAKE", TITLE, "zone", order=640)
+def rake_out_check(zone, ctx):
+    """The rule's depth from the joint width; the project's depth (if given) against it."""
+    if zone.works != "repointing" or zone.joint_width is None:
+        return []                    # only repointing rakes joints out to a depth
+    rules = ctx.rules
+    ratio, dmin, rmax = (rules["works.joint_depth_ratio"], rules["method.rake_out_min"],
+                         rules["method.rake_out_max_ratio"])
+    w = zone.joint_width
+    rule = wk.rake_out_depth(w, ratio.value, dmin.si("length"))
+    deepest = rmax.value * w
+    given = zone.joint_depth
+    inputs = (Input("j", "joint width", round(w / MM, 3), "mm", f"dossier.yaml {zone.id}.joint_width"),
+              Input("r", "depth as a multiple of the width", ratio.value, "", ratio.source()),
+              Input("d_min", "shallowest rake-out", dmin.value, "mm", dmin.source()))
+    steps = [Step("Rake-out depth by the rule", r"d = \max(r \cdot j,\ d_{\min})", inputs,
+                  rf"d = \max({ratio.value:g} \cdot {w / MM:g},\ {dmin.value:g})",
+                  round(rule / MM, 3), "mm", "d")]
+    status, message = "pass", f"rake out to {rule / MM:g} mm (the rule)"
+    limit = None
+    if given is not None:
+        ok = rule - 1e-9 <= given <= deepest + 1e-9
+        lo_rel = r"\le" if given >= rule else ">"
+        hi_rel = r"\le" if given <= deepest else ">"
+        status = "pass" if ok else "attention"
+        steps.append(Step("The project's depth against the rule",
+                          r"d \le d_{given} \le r_{\max} \cdot j",
+                          (Input("d_given", "depth given for the zone", round(given / MM, 3), "mm",
+                                 f"dossier.yaml {zone.id}.joint_depth"),
+                           Input("r_max", "deepest rake-out as a multiple of the width",
+                                 rmax.value, "", rmax.source())),
+                          rf"{rule / MM:g} {lo_rel} {given / MM:g} {hi_rel} {deepest / MM:g}",
+                          round(given / MM, 3), "mm", "d_given"))
+        limit = Limit("within", low=round(rule / MM, 3), high=round(deepest / MM, 3), unit="mm",
+                      text=f"{rule / MM:g}–{deepest / MM:g} mm")
+        message = (f"rake out to {given / MM:g} mm as given: within the rule's "
+                   f"{rule / MM:g}–{deepest / MM:g} mm" if ok else
+                   f"the depth given, {given / MM:g} mm, is "
+                   + ("shallower than the rule's " f"{rule / MM:g} mm: the repair may not key"
+                      if given < rule else f"deeper than {deepest / MM:g} mm: it takes more "
+                      "original mortar than the repair needs")
+                   + "; confirm it on the trial bay or change it")
+    depth = given if given is not None else rule
+    q = Quantity("rake_out_depth", {"depth": round(depth / MM, 3), "rule": round(rule / MM, 3),
+                                    "given": round(given / MM, 3) if given else None,
+                                    "deepest": round(deepest / MM, 3)}, "mm",
+                 "rake-out depth of the joints")
+    return CheckResult(code="MTH-RAKE", title=TITLE, subject=zone.id, subject_kind="zone",
+                       status=status, value=round(depth / MM, 3), unit="mm", basis=BASIS,
+                       steps=tuple(steps), limit=limit, message=message, quantities=(q,))

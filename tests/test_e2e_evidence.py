@@ -1,0 +1,59 @@
+"""End to end: the evidence chapter, the placed photographs and laboratory reports, the method
+statement and the glossary in the demo build."""
+from __future__ import annotations
+
+import hashlib
+import io
+import json
+from pathlib import Path
+
+import pytest
+
+pytestmark = pytest.mark.e2e
+
+REPORT = "reports/NML-4502.pdf"
+REPO = Path(__file__).resolve().parent.parent
+
+
+def test_register_and_links_from_the_results(demo_build):
+    r3 = demo_build / "R3"
+    evidence = (r3 / "evidence.html").read_text(encoding="utf-8")
+    assert "Sample register" in evidence and 'id="sample-hm1-s1"' in evidence
+    assert f'href="./{REPORT}"' in evidence
+    assert 'href="evidence.html#sample-hm1-s1"' in (r3 / "fabric.html").read_text(encoding="utf-8")
+    assert 'href="evidence.html#sample-bs-3"' in (r3 / "composition.html").read_text(
+        encoding="utf-8")
+    # the chosen rationale cites the conservation approach on the scope page
+    spec = (r3 / "specification.html").read_text(encoding="utf-8")
+    assert 'href="scope.html#heritage-context"' in spec
+    assert "Heritage impact" in (r3 / "scope.html").read_text(encoding="utf-8")
+
+
+def test_report_is_published_hashed_and_attached(demo_build):
+    from pypdf import PdfReader
+    r3 = demo_build / "R3"
+    data = (r3 / REPORT).read_bytes()
+    assert data == (REPO / "demo_project" / REPORT).read_bytes()     # published as given
+    manifest = json.loads((r3 / "manifest.json").read_text(encoding="utf-8"))
+    assert manifest["outputs"][REPORT] == hashlib.sha256(data).hexdigest()
+    attached = PdfReader(io.BytesIO((r3 / "WEP-2026-R3.pdf").read_bytes())).attachments
+    assert any(name.endswith("NML-4502.pdf") for name in attached)
+
+
+def test_photograph_is_upright_and_carries_no_metadata(demo_build):
+    from PIL import Image
+    site = demo_build / "R3"
+    # demo P1: stored 600 x 900 with EXIF orientation 6 and a GPS block
+    with Image.open(site / "images" / "p1.jpg") as im:
+        assert im.size == (900, 600) and dict(im.getexif()) == {}
+    with Image.open(site / "images" / "p1-thumb.jpg") as im:
+        assert im.size == (360, 240)
+
+
+def test_method_statement_and_glossary(demo_build):
+    r3 = demo_build / "R3"
+    method = (r3 / "method.html").read_text(encoding="utf-8")
+    assert "Rake out the joints by hand" in method and "Who does what" in method
+    assert "Throw or firmly lay on each coat" in method     # render in its own words
+    glossary = (r3 / "glossary.html").read_text(encoding="utf-8")
+    assert "cementation index (Eckel)" in glossary and "characteristic strength" in glossary

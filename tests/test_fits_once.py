@@ -1,0 +1,63 @@
+"""Each expensive computation runs once per build: the strength fits are made by the checks,
+once per distinct series, and the render stage draws what they recorded.
+
+The render stage cannot fit: it may not import ``specgen.science`` (the import contract
+"Render never imports the science", tests/test_architecture.py).  Here the fits the check
+stage makes are counted while the demo is checked — the current revision and the issued one
+it is compared with, whose strength records are the same series."""
+from __future__ import annotations
+
+from collections import Counter
+from pathlib import Path
+
+import pytest
+
+from specgen import build
+from specgen.checks import fits as kept_fits
+from specgen.science import strength_inference as si
+from specgen.science import strength_models as sm
+
+DEMO = Path(__file__).resolve().parent.parent / "demo_project"
+
+
+@pytest.fixture
+def made(monkeypatch) -> Counter:
+    """Counter of the fits made, by (kind, ages, values); starts with no fit kept."""
+    counter: Counter = Counter()
+
+    def counting(kind, fn):
+        def wrapper(t, y, *args, **kwargs):
+            counter[(kind, tuple(map(float, t)), tuple(map(float, y)))] += 1
+            return fn(t, y, *args, **kwargs)
+        return wrapper
+
+    monkeypatch.setattr(sm, "fit_all", counting("models", sm.fit_all))
+    monkeypatch.setattr(si, "fit", counting("inference", si.fit))
+    yield counter
+
+
+def test_each_strength_fit_runs_once_per_check(made):
+    project, results = build.check(DEMO)
+    # the demo's series: (mix, test kind) with results, each fitted by the model selection
+    # and by the inference with its family's prior
+    series = {(r.mix, r.test) for r in project.strength}
+    assert len(series) == 6
+    assert sorted(Counter(kind for kind, _, _ in made).items()) == [
+        ("inference", 6), ("models", 6)]
+    assert [k for k, n in made.items() if n > 1] == []
+    # and what they gave is in the results the render stage reads
+    curves = [q for by in results.quantities.values() for name, q in by.items()
+              if name == "strength_curve"]
+    assert curves, "no strength curve recorded for the render stage"
+
+
+def test_fits_are_kept_within_one_call_only(made):
+    # inside one pipeline call a second evaluation fits nothing again ...
+    with kept_fits.kept():
+        build.check(DEMO)
+        first = sum(made.values())
+        build.check(DEMO)
+        assert sum(made.values()) == first == 12
+    # ... and a later call starts afresh (nothing kept between builds or tests)
+    build.check(DEMO)
+    assert sum(made.values()) == 2 * first
