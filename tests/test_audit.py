@@ -132,6 +132,11 @@ def test_values_to_confirm_are_listed_not_blocking(demo_copy):
     # a rule still tagged from memory (issue-19 durability limits; the water density is now
     # checked against its source, so it no longer appears)
     assert any("water retention" in f.message for f in found)
+    # one finding per value the checks recorded as still to confirm (tables, entries, rules)
+    assert sorted(f.subject for f in found) == sorted(
+        v["title"] or v["where"] for v in results.unconfirmed())
+    assert any(v["where"] == "content/rules/durability.yaml: water_retention_min"
+               for v in results.unconfirmed())
     assert all(f.blocking for f in results.blocking())
 
 

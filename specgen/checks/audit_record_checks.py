@@ -3,31 +3,28 @@ source, and the sign-off of an issued revision (the consistency audit: ``audit_c
 """
 from __future__ import annotations
 
-import re
-
 from specgen.checks.registry import audit_rule
 from specgen.checks.result import Finding
 
 
 # ---------------------------------------------------------------- unverified values
-MEMORY = re.compile(r"\bmemory\b", re.I)
-
-
 @audit_rule("AUD-UNVERIFIED", "Values still to confirm against their source", order=80)
 def unverified_rule(ctx) -> list[Finding]:
-    """Every value still tagged as recalled (not yet checked against its printed source)."""
-    seen: dict[str, list[str]] = {}
-    for c in ctx.results.checks:
-        for s in c.steps:
-            for i in s.inputs:
-                if MEMORY.search(i.source or ""):
-                    seen.setdefault(f"{i.name} ({i.source})", []).append(c.key)
-    return [Finding("AUD-UNVERIFIED", "Values still to confirm against their source",
-                    f"{what} is used by {', '.join(sorted(set(keys))[:4])}"
-                    f"{' …' if len(set(keys)) > 4 else ''} and is still tagged as recalled.",
-                    tuple(f"calculation sheet {k}" for k in sorted(set(keys))[:4]),
-                    "confirm the value against the printed source and cite its clause or table.",
-                    subject=what, blocking=False) for what, keys in sorted(seen.items())]
+    """Every value the checks read that is still tagged as recalled (not yet checked against
+    its printed source): a reference table or entry, or a rule (``Results.unconfirmed``, as
+    the checks recorded them)."""
+    out = []
+    for v in ctx.results.unconfirmed():
+        keys = sorted(v["used_by"])
+        what = v["title"] or v["where"]
+        out.append(Finding(
+            "AUD-UNVERIFIED", "Values still to confirm against their source",
+            f"{what} ({v['source']}) is used by {', '.join(keys[:4])}"
+            f"{' …' if len(keys) > 4 else ''} and is still to be confirmed against its source.",
+            ("page Values to confirm",) + tuple(f"calculation sheet {k}" for k in keys[:4]),
+            "confirm the value against the printed source and cite its clause or table, or "
+            "override it in dossier.yaml with a justification.", subject=what, blocking=False))
+    return out
 
 
 # ---------------------------------------------------------------- sign-off
