@@ -172,16 +172,18 @@ def _regime(project, mix: str, regime: str) -> None:
 def test_curing_regime_suits_the_binder_family():
     # EN 1015-11 keeps cement and hydraulic mortars damp for their first 7 days (from memory,
     # tagged memory in content/data/curing_regimes.yaml): it suits natural cement (M1, M2) and
-    # natural hydraulic lime (M3); in a draft the verdict stands with the note to confirm it
+    # natural hydraulic lime (M3); in a draft the verdict stands and the regime is listed on
+    # the Values to confirm page (no mark on the sheet)
     _, results = check("demo_project")
     got = by_check(results)
     for mix, family in (("M1", "natural_cement"), ("M2", "natural_cement"), ("M3", "nhl")):
         c = got[("EVD-CURE", mix)]
         assert c.status == "pass", c.message
-        assert c.message == f"en1015_11_hydraulic suits {family}"
-        assert c.notes == ("content/data/curing_regimes.yaml: en1015_11_hydraulic: value "
-                           "recalled from memory — to be confirmed against the printed source "
-                           "before the dossier is issued",)
+        assert c.message == f"EN 1015-11, cement and hydraulic mortars suits {family}"
+        assert c.notes == ()
+    listed = {v["where"]: v["used_by"] for v in results.unconfirmed()}
+    assert set(listed["content/data/curing_regimes.yaml: regimes.en1015_11_hydraulic"]) >= {
+        "EVD-CURE/M1", "EVD-CURE/M2", "EVD-CURE/M3"}
 
 
 def test_hydraulic_lime_prisms_dried_in_air_fail(demo_copy):
@@ -190,7 +192,8 @@ def test_hydraulic_lime_prisms_dried_in_air_fail(demo_copy):
     _regime(demo_copy, "M3", "air_65")
     c = by_check(check(demo_copy)[1])[("EVD-CURE", "M3")]
     assert c.status == "fail"
-    assert c.message.startswith("air_65 does not suit nhl: the prisms' strength is not that "
+    assert c.message.startswith("in air at 65 % RH and 20 °C from demoulding does not suit nhl: "
+                                "the prisms' strength is not that "
                                 "of the mortar in the wall")
     assert c.notes == ()   # the regime is a rule of the trade, not a recalled value
     assert c.steps[0].substituted == r"\text{nhl} \notin \{\text{air lime}\}"
@@ -221,8 +224,10 @@ def test_memory_regime_holds_in_an_issued_revision(demo_copy):
         pytest.fail(str(exc))
     c = by_check(results)[("EVD-CURE", "M3")]
     assert c.status == "hold"
-    assert c.notes[0].startswith("held: the verdict (pass) rests on content/data/"
-                                 "curing_regimes.yaml: en1015_11_hydraulic, recalled from memory")
+    assert c.notes[0] == ("held: the verdict (pass) rests on the curing regime “EN 1015-11, "
+                          "cement and hydraulic mortars”, still to be confirmed against the "
+                          "printed source (or overridden with a justification) before this "
+                          "revision is issued")
 
 
 def test_image_that_is_not_an_image(demo_copy):

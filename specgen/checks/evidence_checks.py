@@ -43,18 +43,19 @@ def curing_check(mix, ctx):
     wrong = {k: [f for f in families if f not in v["suits"]] for k, v in used.items()}
     wrong = {k: fs for k, fs in wrong.items() if fs}
     status = "fail" if wrong else "attention" if unstated else "pass"
-    status, notes = dc.memory_gate(ctx, status, (), [f"content/data/curing_regimes.yaml: {k}" for k, v
-                                                     in used.items() if v.get("tag") == "memory"])
+    status, notes = dc.memory_gate(ctx, status, (), [f"the curing regime “{_name(v)}”" for v
+                                                     in used.values() if v.get("tag") == "memory"])
     steps = tuple(_step(mix, k, v, families, rows) for k, v in used.items())
     if wrong:
-        message = "; ".join(f"{k} does not suit {', '.join(fs)}" for k, fs in wrong.items()) + \
+        message = "; ".join(f"{_name(used[k])} does not suit {', '.join(fs)}"
+                            for k, fs in wrong.items()) + \
             ": the prisms' strength is not that of the mortar in the wall — recast and cure " \
             "them in a regime for the binder"
     elif unstated:
         message = (f"{len(unstated)} of {len(rows)} prisms state no curing regime "
                    f"(first: {unstated[0]}); the others suit {', '.join(families)}")
     else:
-        message = f"{', '.join(stated)} suits {', '.join(families)}"
+        message = f"{', '.join(_name(used[k]) for k in stated)} suits {', '.join(families)}"
     value = {k: {"specimens": sum(r.curing_regime == k for r in rows),
                  "suits": list(v["suits"]), "title": v["title"]} for k, v in used.items()}
     return CheckResult(code="EVD-CURE", title=TITLE, subject=mix.id, subject_kind="mix",
@@ -82,3 +83,9 @@ def _step(mix, key: str, regime: dict, families: list[str], rows) -> Step:
          Input("S(r)", "binder families the regime suits", ", ".join(suits), "",
                refdata.shown(str(regime.get("source", "")), str(regime.get("tag", ""))))),
         rf"\text{{{words}}} {rel} \{{\text{{{members}}}\}}", 1.0 if ok else 0.0, "", "")
+
+
+def _name(regime: dict) -> str:
+    """A regime as a message names it: its title up to the colon (the standard and kind)."""
+    return str(regime.get("title", "")).split(":", 1)[0]
+

@@ -46,7 +46,10 @@ def evidence(project, doc, located: dict, log: ProblemLog, failed) -> Evidence:
         ev.drawings = _index(doc.drawings, "drawing id", SAMPLES_FILE, "drawings", located, log)
         _register_refs(project, ev, located, log, failed)
         ev.images = _images(project, doc, located, log, failed)
+        registered = {img.id for img in doc.images}
         for i, d in enumerate(ev.drawings.values()):
+            if d.image in registered and d.image not in ev.images:
+                continue     # an image that could not be read: its own problem is reported
             known = {k: v for k, v in ev.images.items() if not v[0].file.lower().endswith(".svg")}
             _ref(log, located, SAMPLES_FILE, ("drawings", i, "image"), d.image,
                  known if ev.images or not doc.images else SKIP, "JPEG or PNG image")
