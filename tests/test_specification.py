@@ -104,7 +104,7 @@ def test_clean_choice_passes_and_missing_choice_is_flagged(demo_copy):
     z1, z3 = by(r)[("SPEC-SELECT", "Z1")], by(r)[("SPEC-SELECT", "Z3")]
     # M2's cap at 365 d is held (365 d is beyond 3x its last tested age, 90 d)
     assert z1.status == "attention" and z1.message == \
-        "M2 selected; decision rests on held check(s) STR-MAX"
+        "M2 selected; decision rests on held check STR-MAX"
     assert z3.status == "hold"
     assert z3.message == ("no mortar selected for zone Z3: add a selection to specification.yaml "
                           "(candidates: M2, M3)")

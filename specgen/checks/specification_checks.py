@@ -161,7 +161,9 @@ def _judged(zone, sel, checks, status: str, uncovered=()) -> CheckResult:
         msg += (f" although it fails {_and([c.code for c in counts['fail']])} — justification: "
                 f"{sel.justification}")
     elif counts["hold"]:
-        msg += f"; decision rests on held check(s) {_and([c.code for c in counts['hold']])}"
+        held = counts['hold']
+        msg += (f"; decision rests on held check{'s' if len(held) != 1 else ''} "
+                f"{_and([c.code for c in held])}")
     else:
         msg += "; it fails no check"
     notes = tuple(f"{c.key}: {STATUS_WORDS[c.status]} — {c.message}"

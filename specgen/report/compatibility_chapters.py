@@ -27,7 +27,7 @@ DURABILITY = {"DUR-FROST": "frost", "DUR-TSA": "thaumasite", "DUR-ETT": "ettring
 FINDINGS = tuple(CRITERIA) + ("COMP-BLEND", "COMP-BA") + tuple(DURABILITY)
 PROPERTIES = (("compressive_strength", "compressive strength", 1e-6, "MPa"),
               ("elastic_modulus", "elastic modulus", 1e-9, "GPa"),
-              ("capillary_coefficient", "capillary coefficient", ROOT_MIN, "kg/(m²·min^0.5)"),
+              ("capillary_coefficient", "capillary coefficient", ROOT_MIN, "kg/(m²·min^½)"),
               ("vapour_resistance_factor", "vapour resistance factor μ", 1.0, ""),
               ("thermal_expansion", "thermal expansion", 1e6, "× 10⁻⁶/K"),
               ("hygric_expansion", "hygric expansion", 1e3, "mm/m"))

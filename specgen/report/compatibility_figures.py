@@ -81,7 +81,7 @@ def moisture_bars(bars: list[dict]) -> bytes:
     labels = [b["label"] for b in bars]
     colours = [{"unit": UNIT_C, "historic": HIST_C}.get(b["role"], REPAIR_C) for b in bars]
     ys = list(range(len(bars)))[::-1]
-    for ax, key, title in ((a1, "capillary", "capillary coefficient\nkg/(m²·min^0.5) — higher is more open"),
+    for ax, key, title in ((a1, "capillary", "capillary coefficient\nkg/(m²·min$^{1/2}$) — higher is more open"),
                            (a2, "mu", "vapour resistance factor μ\n— lower is more open")):
         vals = [b[key] if b[key] is not None else 0.0 for b in bars]
         ax.barh(ys, vals, color=colours, height=0.6)

@@ -7,6 +7,7 @@ construction dossier never carries it and no clause carries a drafting mark.
 from __future__ import annotations
 
 from specgen.report.chapters import chapter, sheet_anchor_of
+from specgen.report.wording import plain
 
 
 def _link(key: str) -> dict:
@@ -18,7 +19,7 @@ def _link(key: str) -> dict:
 @chapter("confirm.md", "Values to confirm", "confirm.md.j2")
 def values_to_confirm(env) -> list[dict]:
     rows = [{"where": v["where"], "title": v["title"] or v["path"] or v["table"],
-             "source": v["source"], "used_by": [_link(k) for k in v["used_by"]]}
+             "source": plain(v["source"]), "used_by": [_link(k) for k in v["used_by"]]}
             for v in env.results.unconfirmed()]
     books = env.citations.unconfirmed()
     if not rows and not books:

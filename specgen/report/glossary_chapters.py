@@ -4,9 +4,8 @@ from __future__ import annotations
 
 import re
 
-from markupsafe import escape
-
 from specgen.report.chapters import chapter
+from specgen.report.wording import reader, symbol
 
 PAGE = "glossary.md"
 
@@ -33,5 +32,5 @@ def glossary(env) -> dict:
         if not rows:
             return "No abbreviations or symbols are printed in this revision."
         return "\n".join(["| Term | Meaning |", "|---|---|"] + [
-            f"| {escape(e['term'])} | {escape(e['meaning'])} |" for e in rows])
+            f"| {symbol(e['term'])} | {reader(e['meaning'])} |" for e in rows])
     return {"listing": env.later(listing)}

@@ -98,6 +98,6 @@ def _responsibilities(p, words: dict) -> list[dict]:
     for task, role in tasks:
         party = roles.get(role)
         who = (f"{party.name}, {party.organisation}" if party and party.organisation
-               else party.name if party else "not yet named among the parties (dossier.yaml)")
+               else party.name if party else "not yet named among the parties of the dossier data")
         out.append({"task": task, "role": role, "who": who, "named": party is not None})
     return out

@@ -96,7 +96,7 @@ class RenderEnv:
         if basis.kind != "reference":
             return None
         n = self.citations.cite(basis.ref)
-        return {"n": n, "href": f"references.md#ref-{basis.ref}", "clause": basis.clause}
+        return {"n": n, "href": f"references.md#ref-{basis.ref}", "clause": reader(basis.clause)}
 
     def sheet(self, c) -> dict:
         """Context of one calculation sheet, straight from the check result."""

@@ -71,7 +71,7 @@ UNIT_TEXT = [
     (re.compile(r"\s->\s"), " → "),
     (re.compile(r"(?<=\d) ?x ?(?=\d)"), " × "),
 ]
-PLURALS = re.compile(r"\b(\d+(?:\.\d+)?) ([a-z]+)\(s\)")
+PLURALS = re.compile(r"\b(\d+(?:\.\d+)?) ((?:[a-z-]+ ){0,2}[a-z]+)\(s\)")
 MINUS = re.compile(r"(?<![\w.])-(?=\d)")
 SUBSCRIPT = re.compile(r"(?<![\w/.-])([A-Za-zα-ωΔ])_\{?([A-Za-z0-9,]{1,12})\}?(?![\w/])")
 
