@@ -7,7 +7,7 @@ from pathlib import Path
 
 from pydantic import BaseModel
 
-from specgen.errors import ProblemLog, quote
+from specgen.errors import ProblemLog
 from specgen.project import schema, schema_evidence
 from specgen.project.files import read_csv, read_yaml
 # the folder layout and the helpers every reader shares (below the loader: no cycles)
