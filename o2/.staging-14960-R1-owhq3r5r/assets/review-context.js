@@ -1,1 +1,0 @@
-window.specgenReview = {"project": "NEW-001", "revision": "R1"};
