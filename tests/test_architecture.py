@@ -58,6 +58,17 @@ def test_one_reading_order_for_site_pdf_and_page_names():
     assert reference_names()[1] == {p.removesuffix(".md") for p in READING_ORDER} | {"summary"}
 
 
+def test_the_appendices_come_after_every_chapter_of_the_report():
+    """A reader turns from the report to its appendices once: no chapter of the main volume
+    is printed after an appendix (the PDF's two volumes and the site's navigation)."""
+    from specgen.report.chapters import chapters
+    volumes = [c.volume for c in chapters()]
+    assert "appendix" in volumes
+    first = volumes.index("appendix")
+    assert volumes[first:] == ["appendix"] * (len(volumes) - first), \
+        [c.path for c in chapters()]
+
+
 def test_every_science_error_has_the_one_base():
     import importlib
     import inspect

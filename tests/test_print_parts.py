@@ -187,3 +187,49 @@ def test_assembled_pdf_is_tagged(tmp_path):
     assert found.duplicate_ids == []
     assert set(reader.attachments) == {"a.txt"}
     assert pdfmod.PDF_OPTIONS["pdf_variant"] == "pdf/a-3a"
+
+
+def test_report_and_appendices_print_as_two_cross_linked_volumes(tmp_path):
+    """The appendices print as a volume of their own: each with its cover, its contents
+    (naming the other volume's chapters) and its own folios; a link from one volume to the
+    other opens the other file at the place linked (a remote go-to to a named destination,
+    read back with pypdf); the main volume alone carries the attachments."""
+    from types import SimpleNamespace
+
+    from pypdf import PdfReader
+
+    from specgen.publish.pdf import write_pdf
+    from specgen.report.pageset import PageSet
+    pages = PageSet()
+    pages.add_page("index.md", "Summary", "# Summary\n\nSee [the sheet](calc.md#sheet-1).\n")
+    pages.add_page("calc.md", "B Calculation sheets", "# B Calculation sheets\n\n"
+                   '<h2 id="sheet-1">Sheet one</h2>\n\nBack to [the summary](index.md).\n',
+                   volume="appendix")
+    project = SimpleNamespace(title="Test pier", site="Nowhere", client="Nobody", code="T-1")
+    context = {"title": "Test pier — revision A", "author": "specgen tests", "subject": "s",
+               "keywords": "k", "date": "2026-01-01", "project": project,
+               "revision": SimpleNamespace(code="A"), "state": "draft", "purpose": "preliminary"}
+    main, app = tmp_path / "T-1-A.pdf", tmp_path / "T-1-A-appendices.pdf"
+    write_pdf(pages, context, main, attachments={"a.txt": b"a"}, workers=1,
+              appendix=(app, app.name, main.name))
+    one, two = PdfReader(str(main)), PdfReader(str(app))
+    text_one = "\n".join(p.extract_text() for p in one.pages)
+    text_two = "\n".join(p.extract_text() for p in two.pages)
+    assert "Sheet one" not in text_one and "Sheet one" in text_two
+    assert "See the sheet" in text_one and "See the sheet" not in text_two
+    assert f"In the appendix volume ({app.name})" in one.pages[1].extract_text()
+    assert f"In the main volume ({main.name})" in two.pages[1].extract_text()
+    assert f"Appendices, page 1 of {len(two.pages)}" in two.pages[0].extract_text()
+    assert f"page 1 of {len(one.pages)}" in one.pages[0].extract_text()
+
+    def remote(reader):
+        return [a["/A"] for p in reader.pages for a in (p.get("/Annots") or [])
+                if a.get_object().get("/A", {}).get("/S") == "/GoToR"]
+    out_one, out_two = remote(one), remote(two)
+    assert {str(a["/F"]) for a in out_one} == {app.name}
+    assert {str(a["/F"]) for a in out_two} == {main.name}
+    named_two = set(two.named_destinations)
+    assert {str(a["/D"]) for a in out_one} <= named_two and "p-calc-sheet-1" in named_two
+    assert {str(a["/D"]) for a in out_one} >= {"p-calc-sheet-1", "page-calc"}
+    assert {str(a["/D"]) for a in out_two} <= set(one.named_destinations)
+    assert set(one.attachments) == {"a.txt"} and not two.attachments

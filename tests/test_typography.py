@@ -74,3 +74,22 @@ def test_symbols_get_subscripts_and_markup_is_escaped():
     assert symbol("V_m,min") == "V<sub>m,min</sub>"
     assert reader("f_k 4.2 MPa <b>") == "f<sub>k</sub> 4.2 MPa &lt;b&gt;"
     assert reader("kg/(m^2·min^0.5)") == "kg/(m²·min<sup>½</sup>)"
+
+
+@pytest.mark.parametrize("ages, expected", [
+    # a 1-3-7-28-day record with its curve drawn to a year: the test ages of EN 1015-11 and
+    # the later ages a natural cement needs (DOMAIN.md §1), as plain numbers of days
+    ((1, 3, 7, 28, 365), ["1", "3", "7", "28", "90", "365"]),
+    ((7, 28, 90), ["7", "14", "28", "56", "90"]),
+])
+def test_age_axes_read_in_days_not_powers_of_ten(ages, expected):
+    from specgen.report.figures import _pyplot, age_axis
+    plt = _pyplot()
+    fig, ax = plt.subplots()
+    ax.plot(ages, [1.0] * len(ages))
+    age_axis(ax, ages)
+    fig.canvas.draw()
+    labels = [t.get_text() for t in ax.get_xticklabels() if t.get_text()]
+    plt.close(fig)
+    assert labels == expected
+    assert not any("^" in t or "10" in t and t != "10" for t in labels)  # no mathtext 10^n

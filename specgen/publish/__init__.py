@@ -9,8 +9,8 @@ from pathlib import Path
 
 from specgen.errors import PublishError
 from specgen.killpoints import reached
-from specgen.publish.output import (move_into_place, refuse_if_issued, staging_dir,
-                                    update_versions, write_manifest)
+from specgen.publish.output import (APPENDIX_SUFFIX, move_into_place, refuse_if_issued,
+                                    staging_dir, update_versions, write_manifest)
 
 STATE = {"draft": "draft", "issued": "issued"}
 PURPOSE = {"preliminary": "preliminary", "for_approval": "for approval",
@@ -18,7 +18,13 @@ PURPOSE = {"preliminary": "preliminary", "for_approval": "for approval",
 
 
 def pdf_name(project) -> str:
+    """The main volume (the report; it carries the inputs as attachments)."""
     return f"{project.dossier.project.code}-{project.revision.code}.pdf"
+
+
+def appendix_pdf_name(project) -> str:
+    """The appendix volume (check register, calculation sheets, input listing, glossary)."""
+    return f"{project.dossier.project.code}-{project.revision.code}{APPENDIX_SUFFIX}"
 
 
 def publish(project, results, pages, out: Path, *, page_size: str = "a4",
@@ -76,21 +82,26 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
         attachments[f"input/{f.path}"] = (project.root / f.path).read_bytes()
     ident = hashlib.sha256(f"{project.dossier.project.code}/{rev.code}".encode()).digest()[:16]
     pdf_tmp = staging.with_name(staging.name + ".pdf")  # beside the site: MkDocs empties its folder
+    app_tmp = staging.with_name(staging.name + APPENDIX_SUFFIX)
     try:
         write_pdf(pages, _print_context(project, pages.marks), pdf_tmp,
                   attachments=attachments,
                   page_size=page_size, identifier=ident, stamp=_stamp(rev.date),
-                  on_part=lambda done, total: progress("publish: PDF parts", done, total))
+                  on_part=lambda done, total: progress("publish: PDF parts", done, total),
+                  appendix=(app_tmp, appendix_pdf_name(project), pdf_name(project)))
         if child is not None:
             _join(child)
             child = None
         reached("site")
         os.replace(pdf_tmp, staging / pdf_name(project))
+        if app_tmp.exists():
+            os.replace(app_tmp, staging / appendix_pdf_name(project))
     finally:
         if child is not None:  # the PDF failed: stop the site before the staging is removed
             _stop(child)
-        if pdf_tmp.exists():
-            pdf_tmp.unlink()
+        for tmp in (pdf_tmp, app_tmp):
+            if tmp.exists():
+                tmp.unlink()
     (staging / "results.json").write_bytes(results_json)
     for rel, data in sorted(pages.downloads.items()):  # after the site: MkDocs empties its folder
         (staging / rel).parent.mkdir(parents=True, exist_ok=True)
@@ -172,4 +183,5 @@ def _print_context(project, marks: dict | None = None) -> dict:
             "keywords": f"{p.code}, revision {rev.code}, repair mortar, binder specification",
             "date": rev.date.isoformat(), "project": p, "revision": rev,
             "state": STATE[rev.status], "purpose": PURPOSE[rev.purpose],
-            "mark": (marks or {}).get("mark", ""), "sign_off": (marks or {}).get("sign_off", [])}
+            "mark": (marks or {}).get("mark", ""), "sign_off": (marks or {}).get("sign_off", []),
+            "distribution": (marks or {}).get("distribution", [])}

@@ -16,6 +16,7 @@ from pathlib import Path
 from specgen.errors import PublishError, RevisionRefused
 
 MANIFEST = "manifest.json"
+APPENDIX_SUFFIX = "-appendices.pdf"  # the PDF's appendix volume: <code>-<revision>-appendices.pdf
 VERSIONS = "versions.json"
 
 

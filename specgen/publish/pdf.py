@@ -10,6 +10,7 @@ the network) and put together by :mod:`specgen.publish.pdf_assembly` (pypdf).
 """
 from __future__ import annotations
 
+import hashlib
 import re
 from dataclasses import dataclass
 
@@ -85,6 +86,7 @@ class Piece:
     title: str
     html: str
     cont: bool = False
+    volume: str = "main"  # the volume it prints in: "main" or "appendix"
 
 
 def _cut_points(html: str, size: int) -> list[int]:
@@ -117,7 +119,8 @@ def pieces(pageset, size: int = PART_SIZE) -> list[Piece]:
         body = _landscape_wide_tables(body)
         bounds = [0, *_cut_points(body, size), len(body)]
         for i, (a, b) in enumerate(zip(bounds, bounds[1:])):
-            out.append(Piece(_page_id(item.path), item.title, body[a:b], cont=i > 0))
+            out.append(Piece(_page_id(item.path), item.title, body[a:b], cont=i > 0,
+                             volume=item.volume))
     return out
 
 
@@ -128,11 +131,13 @@ def _template(name: str):
 
 
 def document_html(context: dict, sections: list[Piece], *, front: bool,
-                  toc_pages: dict[str, int] | None = None, toc: list[Piece] = ()) -> str:
+                  toc_pages: dict[str, int] | None = None, toc: list[Piece] = (),
+                  elsewhere: list[Piece] = ()) -> str:
     """One print document: the cover and contents (``front``) and/or chapter pieces.
 
     ``toc_pages`` (chapter id → page number) writes the contents' numbers as text, for a
     front matter printed on its own; without it the contents use the engine's counters.
+    ``elsewhere``: the chapters of the other volume, listed (and linked) after this one's.
     """
     Markup = jinja2.utils.markupsafe.Markup
     entries = [{"id": p.id, "title": p.title,
@@ -140,6 +145,7 @@ def document_html(context: dict, sections: list[Piece], *, front: bool,
                for p in toc if not p.cont]
     return _template("print.html.j2").render(
         front=front, toc=entries,
+        elsewhere=[{"id": p.id, "title": p.title} for p in elsewhere if not p.cont],
         sections=[{"id": p.id, "cont": p.cont, "html": Markup(p.html)} for p in sections],
         **context)
 
@@ -170,78 +176,148 @@ def parts(every: list[Piece], size: int = PART_SIZE) -> list[list[Piece]]:
 
 
 # PDF/A-3a: archival, with the inputs attached, and tagged (structure tree, alternative
-# texts, language).  WeasyPrint takes one variant per document: its PDF/UA-1 variant
-# tags the same way but is not PDF/A, so it could not carry the attachments as PDF/A-3.
+# texts, language).  WeasyPrint takes one variant per document (``pdf_variant``): its
+# PDF/UA-1 and PDF/UA-2 variants tag the same way but are not PDF/A, so they could not carry
+# the attachments as PDF/A-3.  See PDF_UA_IDENTIFICATION for what we add to the PDF/A-3a.
 PDF_OPTIONS = {"pdf_variant": "pdf/a-3a", "custom_metadata": True}
 PLACEHOLDER_PAGE = 8888  # the contents laid out once with numbers of this width
+#: the words a volume's cover, contents and running heads carry
+VOLUME_WORDS = {"main": {"kicker": "Binder specification dossier", "folio": "",
+                         "elsewhere": "In the appendix volume"},
+                "appendix": {"kicker": "Binder specification dossier — appendices",
+                             "folio": "Appendices, ", "elsewhere": "In the main volume"}}
+
+
+@dataclass
+class Volume:
+    """One PDF of the dossier: its chapter pieces, where it is written and the file name the
+    other volume links to it by, and the print of its parts once done."""
+
+    key: str
+    target: object
+    name: str
+    pieces: list
+    other: list = ()          # the other volume's pieces (listed in the contents)
+    other_name: str = ""      # the other volume's file name
+    printed: list = None
+    front: object = None
+    stamps: list = None
+
+
+def volumes(every: list[Piece], target, appendix) -> list[Volume]:
+    """The volumes to print: one with every piece, or (``appendix`` = (path, its file name,
+    the main volume's file name)) the report and its appendices apart."""
+    if appendix is None or not any(p.volume == "appendix" for p in every):
+        return [Volume("main", target, "", every)]
+    path, name, main_name = appendix
+    main = [p for p in every if p.volume != "appendix"]
+    rest = [p for p in every if p.volume == "appendix"]
+    return [Volume("main", target, main_name, main, rest, name),
+            Volume("appendix", path, name, rest, main, main_name)]
 
 
 def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
               page_size: str = "a4", identifier: bytes | None = None, stamp=None,
-              workers: int | None = None, on_part=None) -> None:
+              workers: int | None = None, on_part=None, appendix=None) -> None:
     """Print the page set as a tagged PDF/A-3a at ``target`` with ``attachments`` embedded.
 
-    The chapters are printed in parts on every core (unchanged parts come from the
-    artefact cache), the front matter once their page numbers are known, the running
-    heads last; :mod:`specgen.publish.pdf_assembly` puts them together.  ``stamp`` (a
-    datetime, the revision date) dates the attachments, so identical inputs give a
+    With ``appendix`` ((path, file name, the main volume's file name)) the appendices print
+    as a second PDF of their own, with its own cover and contents; links between the two
+    volumes open the other file at the place linked (the main volume carries the
+    attachments).  The chapters are printed in parts on every core (unchanged parts come
+    from the artefact cache), the front matter once their page numbers are known, the
+    running heads last; :mod:`specgen.publish.pdf_assembly` puts them together.  ``stamp``
+    (a datetime, the revision date) dates the attachments, so identical inputs give a
     byte-identical PDF.  ``on_part(done, total)`` is called as the chapter parts come back
     (for a progress display).
     """
     from specgen.publish.pdf_assembly import assemble, global_anchors
-    from specgen.publish.pdf_parts import Printer, cached_or_submitted
-    every = pieces(pageset)
-    css = stylesheet(page_size, "parts.css", "control.css")
+    from specgen.publish.pdf_parts import Printer
+    vols = volumes(pieces(pageset), target, appendix)
     files = [(name, data, stamp) for name, data in sorted(attachments.items())]
     with Printer(pageset, workers) as printer:
-        def front(numbers, **extra):
-            return printer.submit(document_html(context, [], front=True, toc=every,
-                                                toc_pages=numbers), css, **PDF_OPTIONS, **extra)
-        guess = front({p.id: PLACEHOLDER_PAGE for p in every})
-        groups = parts(every)
-        order = sorted(range(len(groups)), key=lambda i: -sum(len(p.html) for p in groups[i]))
-        handles = {i: cached_or_submitted(printer, "pdf-part", document_html(
-            context, groups[i], front=False), css, **PDF_OPTIONS) for i in order}
-        printed = []
-        for i in range(len(groups)):
-            printed.append(handles[i].result())
-            reached(f"pdf-part-{i + 1}")
-            if on_part is not None:
-                on_part(i + 1, len(groups))
-        sizes = [size for doc in printed for size in doc.pages]
-        length = len(guess.result().pages)
-        for _ in range(3):  # the contents' length does not depend on its numbers, but check
-            anchors = global_anchors(printed, start=length)
-            numbers = {p.id: anchors[p.id][0] + 1 for p in every if p.id in anchors}
-            final = front(numbers, attachments=files, pdf_identifier=identifier)
-            stamps = _stamps(printer, context, page_size, length, sizes)
-            done = final.result()
-            if len(done.pages) == length:
-                break
-            length = len(done.pages)
-        else:
-            raise PublishError("the contents pages changed length with their page numbers "
-                               "three times; nothing was changed in the output folder. Fix: "
-                               "report this with the project.")
+        _print_parts(printer, vols, context, page_size, on_part)
+        for v in vols:
+            extra = {"attachments": files} if v.key == "main" else {}
+            ident = identifier if v.key == "main" or identifier is None else \
+                hashlib.sha256(identifier + b"/appendix").digest()[:16]
+            _front_and_stamps(printer, v, context, page_size, pdf_identifier=ident, **extra)
         reached("pdf-front")
-        stamps = [s.result() for s in stamps]
-    assemble(done, printed, stamps, target)
+        for v in vols:
+            v.stamps = [s.result() for s in v.stamps]
+    anchors = {v.key: global_anchors([v.front, *v.printed]) for v in vols}
+    for v in vols:
+        other = [o for o in vols if o is not v]
+        foreign = (other[0].name, anchors[other[0].key]) if other else None
+        assemble(v.front, v.printed, v.stamps, v.target, foreign=foreign,
+                 exported=_linked_from(other[0], anchors[v.key]) if other else set())
     reached("pdf-assembled")
+
+
+def _linked_from(vol: Volume, anchors: dict) -> set[str]:
+    """The anchors of this volume (``anchors``) that the other volume ``vol`` links to."""
+    return {target for doc in [vol.front, *vol.printed] for _p, kind, target, _r in doc.links
+            if kind == "internal" and target in anchors}
+
+
+def _print_parts(printer, vols: list[Volume], context: dict, page_size: str, on_part) -> None:
+    """Every volume's chapter parts, largest first on the workers, gathered in order."""
+    from specgen.publish.pdf_parts import cached_or_submitted
+    css = stylesheet(page_size, "parts.css", "control.css")
+    jobs = [(v, g) for v in vols for g in parts(v.pieces)]
+    order = sorted(range(len(jobs)), key=lambda i: -sum(len(p.html) for p in jobs[i][1]))
+    handles = {i: cached_or_submitted(printer, "pdf-part", document_html(
+        context, jobs[i][1], front=False), css, **PDF_OPTIONS) for i in order}
+    for v in vols:
+        v.printed = []
+    for i, (v, _group) in enumerate(jobs):
+        v.printed.append(handles[i].result())
+        reached(f"pdf-part-{i + 1}")
+        if on_part is not None:
+            on_part(i + 1, len(jobs))
+
+
+def _front_and_stamps(printer, v: Volume, context: dict, page_size: str, **extra) -> None:
+    """The volume's cover and contents, numbered once its parts' pages are known, and the
+    running-head stamps of its every page."""
+    from specgen.publish.pdf_assembly import global_anchors
+    css = stylesheet(page_size, "parts.css", "control.css")
+    ctx = dict(context, volume=VOLUME_WORDS[v.key], other_name=v.other_name)
+
+    def front(numbers, **more):
+        return printer.submit(document_html(ctx, [], front=True, toc=v.pieces,
+                                            toc_pages=numbers, elsewhere=v.other), css,
+                              **PDF_OPTIONS, **more)
+    length = len(front({p.id: PLACEHOLDER_PAGE for p in v.pieces}).result().pages)
+    sizes = [size for doc in v.printed for size in doc.pages]
+    for _ in range(3):  # the contents' length does not depend on its numbers, but check
+        anchors = global_anchors(v.printed, start=length)
+        numbers = {p.id: anchors[p.id][0] + 1 for p in v.pieces if p.id in anchors}
+        final = front(numbers, **extra)
+        v.stamps = _stamps(printer, ctx, page_size, length, sizes)
+        v.front = final.result()
+        if len(v.front.pages) == length:
+            return
+        length = len(v.front.pages)
+    raise PublishError("the contents pages changed length with their page numbers "
+                       "three times; nothing was changed in the output folder. Fix: "
+                       "report this with the project.")
 
 
 STAMP_SPLIT = 400  # pages per stamp document
 
 
 def _stamps(printer, context, page_size: str, front_pages: int, sizes: list) -> list:
-    """Submit the running-head stamps: one page per page of the dossier."""
+    """Submit the running-head stamps: one page per page of the volume."""
     total = front_pages + len(sizes)
     kinds = ["cover"] + [None] * (front_pages - 1) + ["wide" if w > h else None for w, h in sizes]
     pages = [{"number": i + 1, "kind": k} for i, k in enumerate(kinds)]
     css = stylesheet(page_size, "stamp.css", "control.css")
     tpl = _template("stamp.html.j2")
     project, revision = context["project"].title, context["revision"].code
+    folio = context.get("volume", VOLUME_WORDS["main"])["folio"]
     return [printer.submit(tpl.render(pages=pages[i:i + STAMP_SPLIT], total=total,
-                                      title=context["title"], project=project,
+                                      title=context["title"], project=project, folio=folio,
                                       revision=revision, mark=context.get("mark", "")), css,
                            **PDF_OPTIONS)
             for i in range(0, total, STAMP_SPLIT)]

@@ -17,9 +17,14 @@ from __future__ import annotations
 import io
 
 
-def assemble(front, parts: list, stamps: list, target) -> None:
+def assemble(front, parts: list, stamps: list, target, *, foreign=None,
+             exported=frozenset()) -> None:
     """Write ``front`` + ``parts`` (:class:`~specgen.publish.pdf_parts.Printed`) to
-    ``target`` with the ``stamps``' pages laid over the pages in order."""
+    ``target`` with the ``stamps``' pages laid over the pages in order.
+
+    ``foreign`` ((file name, anchors)) is the other volume of the dossier: a link to one of
+    its anchors opens that file at the anchor's named destination; ``exported`` are this
+    volume's anchors the other volume links to, each made a named destination."""
     from pypdf import PdfReader, PdfWriter
     from pypdf.generic import NameObject
     docs = [front, *parts]
@@ -46,7 +51,8 @@ def assemble(front, parts: list, stamps: list, target) -> None:
         _lay_over(writer, page, stamp)
     tree.finish()
     anchors = global_anchors(docs)
-    _links(writer, docs, offsets, anchors)
+    _links(writer, docs, offsets, anchors, foreign)
+    _named(writer, anchors, exported)
     _outline(writer, docs, offsets)
     writer.write(target)
 
@@ -92,7 +98,31 @@ def global_anchors(docs, start: int = 0) -> dict[str, tuple[int, float, float]]:
     return found
 
 
-def _links(writer, docs, offsets, anchors) -> None:
+def _named(writer, anchors: dict, names) -> None:
+    """A named destination for each of ``names`` (the other volume's links land there)."""
+    from pypdf.generic import ArrayObject, FloatObject, NameObject, NumberObject, TextStringObject
+    for name in sorted(names):
+        if name in anchors:
+            page, x, y = anchors[name]
+            writer.add_named_destination_array(TextStringObject(name), ArrayObject([
+                writer.pages[page].indirect_reference, NameObject("/XYZ"), FloatObject(x),
+                FloatObject(y), NumberObject(0)]))
+
+
+def _to_other_volume(foreign, target: str):
+    """The action opening the other volume at ``target`` (a remote go-to, allowed in
+    PDF/A), or None when ``target`` is not one of its anchors."""
+    from pypdf.generic import BooleanObject, DictionaryObject, NameObject, TextStringObject
+    if foreign is None or target not in foreign[1]:
+        return None
+    return DictionaryObject({NameObject("/Type"): NameObject("/Action"),
+                             NameObject("/S"): NameObject("/GoToR"),
+                             NameObject("/F"): TextStringObject(foreign[0]),
+                             NameObject("/D"): TextStringObject(target),
+                             NameObject("/NewWindow"): BooleanObject(False)})
+
+
+def _links(writer, docs, offsets, anchors, foreign=None) -> None:
     from specgen.publish.pdf_parts import BASE
     from pypdf.generic import (ArrayObject, DictionaryObject, FloatObject, NameObject,
                                NumberObject, TextStringObject)
@@ -106,9 +136,12 @@ def _links(writer, docs, offsets, anchors) -> None:
                 NameObject("/BS"): DictionaryObject({NameObject("/W"): NumberObject(0)}),
                 NameObject("/F"): NumberObject(4),  # printable, as PDF/A asks
             })
-            if kind == "internal":
-                if target not in anchors:
+            if kind == "internal" and target not in anchors:
+                remote = _to_other_volume(foreign, target)
+                if remote is None:
                     continue  # a link to nothing stays plain text, as in a browser
+                annot[NameObject("/A")] = remote
+            elif kind == "internal":
                 to_page, x, y = anchors[target]
                 annot[NameObject("/Dest")] = ArrayObject([
                     pages[to_page].indirect_reference, NameObject("/XYZ"), FloatObject(x),

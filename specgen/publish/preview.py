@@ -12,7 +12,7 @@ import shutil
 from pathlib import Path
 
 from specgen.errors import PublishError
-from specgen.publish import _print_context, _stamp, pdf_name
+from specgen.publish import _print_context, _stamp, appendix_pdf_name, pdf_name
 from specgen.publish.output import (move_into_place, refuse_if_issued, staging_dir,
                                     update_versions, write_manifest)
 
@@ -51,12 +51,17 @@ def pdf_only(project, results, pages, target: Path, *, page_size: str = "a4",
     attachments = {"results.json": results.to_json().encode("utf-8")}
     attachments.update(pages.downloads)
     tmp = target.with_name(f".{target.name}-preview.pdf")
+    app_tmp = target.with_name(f".{target.name}-preview-appendices.pdf")
     try:
         write_pdf(pages, _print_context(project, pages.marks), tmp, attachments=attachments,
-                  page_size=page_size, stamp=_stamp(project.revision.date), on_part=on_part)
+                  page_size=page_size, stamp=_stamp(project.revision.date), on_part=on_part,
+                  appendix=(app_tmp, appendix_pdf_name(project), pdf_name(project)))
         final = target / pdf_name(project)
         os.replace(tmp, final)
+        if app_tmp.exists():
+            os.replace(app_tmp, target / appendix_pdf_name(project))
         return final
     finally:
-        if tmp.exists():
-            tmp.unlink()
+        for t in (tmp, app_tmp):
+            if t.exists():
+                t.unlink()

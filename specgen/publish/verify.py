@@ -19,7 +19,7 @@ from pathlib import Path
 
 from specgen.errors import PublishError
 from specgen.project.layout import ARCHIVE_DIR
-from specgen.publish.output import MANIFEST, VERSIONS, verify as outputs_of
+from specgen.publish.output import APPENDIX_SUFFIX, MANIFEST, VERSIONS, verify as outputs_of
 
 INPUT_PREFIX = "input/"
 
@@ -49,7 +49,10 @@ def revision_differences(folder: Path) -> list[str]:
     lines = [f"{kind}: {p}" for kind in ("modified", "missing", "extra") for p in report[kind]]
     manifest = manifest_of(folder)
     inputs = manifest.get("inputs")
-    pdfs = sorted(p for p in manifest.get("outputs", {}) if p.endswith(".pdf") and "/" not in p)
+    # the main volume carries the inputs; the appendix volume (…-appendices.pdf) is checked
+    # with every other output against its hash in the manifest
+    pdfs = sorted(p for p in manifest.get("outputs", {}) if p.endswith(".pdf") and "/" not in p
+                  and not p.endswith(APPENDIX_SUFFIX))
     if inputs is not None and pdfs and (folder / pdfs[0]).is_file():
         lines += compare(inputs, _pdf_inputs(folder / pdfs[0]), "input in the PDF")
     return lines

@@ -43,13 +43,14 @@ READING_ORDER = (
     "card.md",             # the batching cards, one page per mix
     "specification.md",
     "method.md",           # method statement, responsibilities, aftercare
-    "checks.md",           # appendix: check register
-    "calculations.md",     # appendix: calculation sheets
     "cautions.md",
     "comments.md",
     "references.md",
     "confirm.md",          # values to confirm
     "history.md",
+    # the appendices, after every chapter of the report (the PDF's appendix volume)
+    "checks.md",           # appendix: check register
+    "calculations.md",     # appendix: calculation sheets
     "inputs.md",           # appendix: input files
     "glossary.md",         # appendix: the abbreviations and symbols printed
 )

@@ -29,6 +29,26 @@ def to_svg(fig) -> bytes:
     return buf.getvalue()
 
 
+#: the ages a strength record is read at (test ages of EN 1015-11 and the later ages a
+#: natural cement needs, DOMAIN.md §1), used as the ticks of every age axis
+AGE_TICKS_D = (1, 3, 7, 14, 28, 56, 90, 180, 365, 730, 1825, 3650)
+
+
+def age_axis(ax, ages) -> None:
+    """A log axis of age in days ticked at the test ages (1, 3, 7, 28, 90, 365 …) written
+    as plain numbers of days, never as powers of ten."""
+    from matplotlib.ticker import FixedLocator, FuncFormatter, NullLocator
+    ax.set_xscale("log")
+    ages = [float(a) for a in ages if a and float(a) > 0]
+    lo, hi = (min(ages), max(ages)) if ages else (1.0, 365.0)
+    ticks = [t for t in AGE_TICKS_D if lo / 1.5 <= t <= hi * 1.5]
+    if len(ticks) > 7:  # keep the axis legible: drop the in-between ages first
+        ticks = [t for t in ticks if t not in (14, 56, 180, 730)]
+    ax.xaxis.set_major_locator(FixedLocator(ticks or [lo, hi]))
+    ax.xaxis.set_major_formatter(FuncFormatter(lambda v, _: f"{v:g}"))
+    ax.xaxis.set_minor_locator(NullLocator())
+
+
 BAND_COLOURS = ["#f3ede2", "#e7dcc7", "#d9c8a7", "#c8b087", "#a98f64", "#8a7250"]
 
 

@@ -58,7 +58,8 @@ def apply_marks(pageset, project, results, superseded: str | None) -> None:
             head += findings_banner(project, results)
         if head:
             pageset.pages[path] = _after_title(page, head)
-    pageset.marks = {"mark": text, "sign_off": sign_off_rows(project)}
+    pageset.marks = {"mark": text, "sign_off": sign_off_rows(project),
+                     "distribution": [r.model_dump() for r in project.dossier.distribution]}
 
 
 def findings_banner(project, results) -> str:

@@ -7,7 +7,7 @@ matplotlib is imported inside the functions so that ``specgen check`` never load
 from __future__ import annotations
 
 from specgen.cache import figure
-from specgen.report.figures import _pyplot, to_svg
+from specgen.report.figures import _pyplot, age_axis, to_svg
 
 INK, BAND, WIDE = "#1f3a5f", "#c9d6e6", "#eadfcb"
 ALUMINATE, SILICATE, WALL, LIMIT = "#e3c48f", "#a9c5a0", "#8a4f7d", "#a23b2a"
@@ -42,8 +42,10 @@ def strength_age(data: dict) -> bytes:
                 label="mean ± SD")
     for age, value, label, kind in data.get("limits", []):
         _limit(ax, age, value, label, kind)
-    ax.set_xscale("log")
-    ax.set_xlabel("age (d, log scale; equivalent age at 20 °C for the fit)")
+    drawn = [*xs, *ages, *(c["ages_d"] if c else ()),
+             *((data["wall"] or {}).get("ages", ()) if data.get("wall") else ())]
+    age_axis(ax, drawn)
+    ax.set_xlabel("age (days, log scale; equivalent age at 20 °C for the fit)")
     ax.set_ylabel(f"{data['test']} strength (MPa)")
     ax.set_ylim(bottom=0)
     ax.set_title(data["title"], fontsize=9.5, loc="left")
@@ -100,8 +102,8 @@ def residuals(panels: list[dict]) -> bytes:
     for ax, p in zip(axes[0], panels):
         ax.axhline(0, color="#777777", lw=0.8)
         ax.plot(p["ages"], p["residuals"], "o", ms=3.5, color=INK, mfc="white")
-        ax.set_xscale("log")
-        ax.set_xlabel("equivalent age (d)")
+        age_axis(ax, p["ages"])
+        ax.set_xlabel("equivalent age (days)")
         ax.set_ylabel("residual (%)")
         ax.set_title(f"{p['test']}: {p['model']}", fontsize=8.5, loc="left")
         ax.grid(True, color="#eeeeee", lw=0.6)
