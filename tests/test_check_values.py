@@ -121,14 +121,24 @@ def test_window_boundaries(demo_copy):
     _, r = check(demo_copy)
     c = by(r)[("SITE-WEATHER", "WEP-2026")]
     assert (c.status, c.value) == ("attention", 3)
+    # the demo's record starts on 2027-04-05 (dossier.yaml site_temperature_from): days 0, 3
+    # and 5 are 5, 8 and 10 April 2027 (by hand)
     assert r.quantities["WEP-2026"]["days_outside_window"].value == [
-        {"day": 0.0, "temperature": 5.0, "side": "cold"},
-        {"day": 3.0, "temperature": 30.1, "side": "hot"},
-        {"day": 5.0, "temperature": 4.9, "side": "cold"}]
+        {"day": 0.0, "temperature": 5.0, "side": "cold", "date": "2027-04-05"},
+        {"day": 3.0, "temperature": 30.1, "side": "hot", "date": "2027-04-08"},
+        {"day": 5.0, "temperature": 4.9, "side": "cold", "date": "2027-04-10"}]
     assert c.message == ("place mortar only between 5 and 30 °C; keep damp 5 d and protect 7 d; "
-                         "3 of 6 day(s) of lab/site-temperature.csv fall outside (days 0, 3, 5): "
-                         "plan protection or no work")
+                         "3 of 6 days of lab/site-temperature.csv fall outside (5 April 2027, "
+                         "8 April 2027, 10 April 2027): plan protection or no work")
     assert c.steps[0].substituted == r"2\ \text{cold} + 1\ \text{hot}\ \text{of}\ 6"
+    # a record that does not say which day is day 0 keeps its day numbers, and says so
+    edit(demo_copy / "dossier.yaml", "site_temperature_from: 2027-04-05\n", "")
+    _, r = check(demo_copy)
+    c = by(r)[("SITE-WEATHER", "WEP-2026")]
+    assert [o["date"] for o in r.quantities["WEP-2026"]["days_outside_window"].value] == \
+        [None, None, None]
+    assert c.message.endswith("(days 0, 3, 5 after placement; the record is not dated): "
+                              "plan protection or no work")
 
 
 def test_constant_site_temperature_inside_and_outside(demo_copy):

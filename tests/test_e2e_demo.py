@@ -68,22 +68,48 @@ def test_site_makes_no_outside_request(demo_build):
 def test_pdf_text_and_structure(demo_build):
     from pypdf import PdfReader
     reader = PdfReader(str(demo_build / REV / f"WEP-2026-{REV}.pdf"))
+    appendix = PdfReader(str(demo_build / REV / f"WEP-2026-{REV}-appendices.pdf"))
     text = "\n".join(p.extract_text() for p in reader.pages)
-    for needle in ("CHEM-CLOSURE", "CHEM-CI", f"Revision {REV}", "B Calculation sheets",
-                   "does not replace", "Eckel", "page 2 of"):
+    sheets = "\n".join(p.extract_text() for p in appendix.pages)
+    for needle in (f"Revision {REV}", "does not replace", "Eckel", "page 2 of"):
         assert needle in text, needle
+    for needle in ("CHEM-CLOSURE", "CHEM-CI", f"Revision {REV}", "B Calculation sheets",
+                   "Appendices, page 2 of"):
+        assert needle in sheets, needle
     assert reader.metadata.title.startswith("Repair of the East Pier masonry")
     top = [o.title for o in reader.outline if not isinstance(o, list)]
     assert top[0].startswith("Repair of the East Pier")  # the summary page carries the title
-    # the report's chapters numbered 1, 2 … after the summary, the appendices A, B, C
+    # the report's chapters numbered 1, 2 … after the summary, the appendices A, B, C, each
+    # in its volume
     from specgen.report.chapters import chapters
     from specgen.report.render import chapter_numbers
     n = chapter_numbers(chapters())
     assert {f"{n['scope.md']} Scope and zones of work", f"{n['composition.md']} Binder "
-            "composition", "B Calculation sheets", f"{n['cautions.md']} Cautions",
-            f"{n['references.md']} References", "C Input files"} <= set(top)
+            "composition", f"{n['cautions.md']} Cautions",
+            f"{n['references.md']} References"} <= set(top)
+    in_appendix = [o.title for o in appendix.outline if not isinstance(o, list)]
+    assert {"A Check register", "B Calculation sheets", "C Input files"} <= set(in_appendix)
+    assert not {t for t in top if t[:2] in ("A ", "B ", "C ", "D ")}
     names = set(reader.attachments)
     assert {"results.json", "input/dossier.yaml", "input/lab/strength.csv"} <= names
+
+
+def test_summary_fits_two_pages_and_the_main_volume_is_short(demo_build):
+    """Two reading depths: the client's summary on at most two pages, the report (main
+    volume) about 60 pages, the calculation sheets in the appendix volume."""
+    from pypdf import PdfReader
+    reader = PdfReader(str(demo_build / REV / f"WEP-2026-{REV}.pdf"))
+    top = [(o.title, reader.get_destination_page_number(o)) for o in reader.outline
+           if not isinstance(o, list)]
+    (first, start), (_next, after) = top[0], top[1]
+    assert first.startswith("Repair of the East Pier")            # the summary
+    assert 1 <= after - start <= 2, (start, after)
+    summary = "\n".join(reader.pages[i].extract_text() for i in range(start, after))
+    for zone in ("Z1", "Z2", "Z3"):
+        assert f"{zone} —" in summary
+    for words in ("Mortar chosen:", "Why:", "Still open:", "Cost of the mortar:"):
+        assert summary.count(words) == 3, words
+    assert len(reader.pages) <= 66, len(reader.pages)   # "about 60" (issue 21)
 
 
 def test_pages_in_real_browser(demo_build):

@@ -65,7 +65,8 @@ def starter_build(tmp_path_factory):
 
 
 def _pdf(out):
-    (pdf,) = (out / "R1").glob("*.pdf")
+    """The main volume (the appendix volume beside it is <name>-appendices.pdf)."""
+    (pdf,) = (p for p in (out / "R1").glob("*.pdf") if not p.name.endswith("-appendices.pdf"))
     return pdf
 
 

@@ -45,7 +45,8 @@ def credentials(tmp_path):
 
 
 def _revision(folder, status="issued"):
-    """A small revision folder as specgen writes it: a PDF and a manifest of its hashes."""
+    """A small revision folder as specgen writes it: the PDF's two volumes (the main one is
+    signed) and a manifest of their hashes."""
     from pypdf import PdfWriter
     from specgen.publish.output import sha256_file
     folder.mkdir(parents=True)
@@ -54,9 +55,11 @@ def _revision(folder, status="issued"):
     buf = io.BytesIO()
     w.write(buf)
     (folder / "T-R1.pdf").write_bytes(buf.getvalue())
+    (folder / "T-R1-appendices.pdf").write_bytes(buf.getvalue())
     (folder / "results.json").write_text("{}\n")
     manifest = {"revision": "R1", "status": status, "inputs": {},
-                "outputs": {p: sha256_file(folder / p) for p in ("T-R1.pdf", "results.json")}}
+                "outputs": {p: sha256_file(folder / p) for p in (
+                    "T-R1.pdf", "T-R1-appendices.pdf", "results.json")}}
     (folder / "manifest.json").write_text(json.dumps(manifest))
     return folder
 

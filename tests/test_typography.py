@@ -32,6 +32,12 @@ def test_qty_rounds_by_the_kind_of_quantity(value, unit, expected):
 
 def test_sheets_keep_digits_to_recompute():
     assert qty(4.7967, "MPa", 4) == f"4.797{S}MPa"
+    assert qty(1.178834, "", 4) == "1.179"
+    # but not beyond what the quantity supports: a count is an integer, a site volume
+    # three figures (common practice), ages whole days
+    assert qty(18.0, "", 4) == "18"
+    assert qty(0.40324, "m^3", 4) == f"0.403{S}m³"
+    assert qty(4.32, "d", 4) == f"4{S}d"
 
 
 def test_counts_are_integers_with_their_plural():

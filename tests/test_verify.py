@@ -80,7 +80,7 @@ def test_verify_checks_the_inputs_the_pdf_carries(out_copy, tmp_path):
     from pypdf import PdfReader, PdfWriter
     rev = tmp_path / "R2"
     shutil.copytree(out_copy / "R2", rev)
-    pdf = next(rev.glob("*.pdf"))
+    pdf = rev / "WEP-2026-R2.pdf"   # the main volume carries the inputs
     reader = PdfReader(str(pdf))
     writer = PdfWriter(clone_from=reader)
     name = next(n for n in reader.attachments if n.startswith("input/"))
@@ -94,35 +94,59 @@ def test_verify_checks_the_inputs_the_pdf_carries(out_copy, tmp_path):
 
 
 @pytest.mark.e2e
+def test_verify_covers_both_volumes_of_the_pdf(out_copy, tmp_path):
+    """The appendix volume is an output of the revision like any other: listed in the
+    manifest, and a changed or missing appendix volume is named."""
+    rev = tmp_path / "R3"
+    shutil.copytree(out_copy / "R3", rev)
+    manifest = json.loads((rev / "manifest.json").read_text())
+    assert {"WEP-2026-R3.pdf", "WEP-2026-R3-appendices.pdf"} <= set(manifest["outputs"])
+    assert verify(rev)["differences"] == []
+    appendix = rev / "WEP-2026-R3-appendices.pdf"
+    appendix.write_bytes(appendix.read_bytes() + b"\n%tampered\n")
+    assert verify(rev)["differences"] == ["R3: modified: WEP-2026-R3-appendices.pdf"]
+    appendix.unlink()
+    assert verify(rev)["differences"] == ["R3: missing: WEP-2026-R3-appendices.pdf"]
+
+
+@pytest.mark.e2e
 def test_pdf_has_no_dead_links(demo_build):
     """Walk every link annotation: an internal link lands on a page of the document; a link
     to a file names one published beside the PDF; none points into the print engine's
     private address space (file:///specgen-pageset/…)."""
     from pypdf import PdfReader
     rev = demo_build / "R3"
-    pdf = next(rev.glob("*.pdf"))
-    reader = PdfReader(str(pdf))
-    pages = {p.indirect_reference.idnum for p in reader.pages}
-    counts = {"internal": 0, "file": 0, "web": 0}
+    readers = {pdf.name: PdfReader(str(pdf)) for pdf in sorted(rev.glob("*.pdf"))}
+    assert set(readers) == {"WEP-2026-R3.pdf", "WEP-2026-R3-appendices.pdf"}
+    counts = {"internal": 0, "other volume": 0, "file": 0, "web": 0}
     dead = []
-    for number, page in enumerate(reader.pages, 1):
-        for ref in page.get("/Annots", []) or []:
-            annot = ref.get_object()
-            if annot.get("/Subtype") != "/Link":
-                continue
-            if "/Dest" in annot:
-                dest = annot["/Dest"]
-                if dest[0].idnum not in pages:
-                    dead.append((number, "internal", str(dest)))
-                counts["internal"] += 1
-                continue
-            uri = str(annot["/A"]["/URI"])
-            if uri.startswith(("http://", "https://", "mailto:")):
-                counts["web"] += 1
-            elif ":" in uri.split("/", 1)[0] or not (rev / uri.split("#")[0]).is_file():
-                dead.append((number, "uri", uri))
-            else:
-                counts["file"] += 1
+    for name, reader in readers.items():
+        pages = {p.indirect_reference.idnum for p in reader.pages}
+        for number, page in enumerate(reader.pages, 1):
+            for ref in page.get("/Annots", []) or []:
+                annot = ref.get_object()
+                if annot.get("/Subtype") != "/Link":
+                    continue
+                if "/Dest" in annot:
+                    dest = annot["/Dest"]
+                    if dest[0].idnum not in pages:
+                        dead.append((name, number, "internal", str(dest)))
+                    counts["internal"] += 1
+                    continue
+                action = annot["/A"]
+                if action["/S"] == "/GoToR":   # into the other volume, at a named destination
+                    other = readers.get(str(action["/F"]))
+                    if other is None or str(action["/D"]) not in other.named_destinations:
+                        dead.append((name, number, "other volume", str(action)))
+                    counts["other volume"] += 1
+                    continue
+                uri = str(action["/URI"])
+                if uri.startswith(("http://", "https://", "mailto:")):
+                    counts["web"] += 1
+                elif ":" in uri.split("/", 1)[0] or not (rev / uri.split("#")[0]).is_file():
+                    dead.append((name, number, "uri", uri))
+                else:
+                    counts["file"] += 1
     print(f"\nPDF links: {counts}")
-    assert counts["internal"] > 100
+    assert counts["internal"] > 100 and counts["other volume"] > 10
     assert dead == []

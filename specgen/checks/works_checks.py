@@ -7,9 +7,12 @@ Codes: ``MIX-YIELD`` (mix), ``WORKS-QTY`` (zone), ``SITE-WEATHER`` (project);
 """
 from __future__ import annotations
 
+import datetime as dt
+
 from specgen.checks import works_common as wc
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step, not_assessed, tex_name
+from specgen.dates import date_text
 from specgen.science import works as wk
 
 PRACTICE = Basis("common practice", note="absolute-volume method; defaults in "
@@ -36,7 +39,8 @@ declare("admixture_mass", "kg", "mass of each admixture for a zone, by mix")
 declare("bags", "", "whole bags of each binder for a zone, by mix")
 declare("weather_window", "°C", "working-temperature window {low, high} and curing/protection days")
 declare("days_outside_window", "", "days of the site temperature record outside the working "
-        "window, each {day, temperature in °C, side}")
+        "window, each {day, temperature in °C, side, date (ISO, or null when the record is "
+        "not dated by site_temperature_from)}")
 
 
 def _r(x: float, n: int = 4) -> float:
@@ -221,6 +225,11 @@ def _totals_step(mix, v, per_m3: dict, t: wk.Totals, bags: dict) -> Step:
 
 
 # ---------------------------------------------------------------- weather
+def _on(start, seconds: float) -> str | None:
+    """The calendar date (ISO) ``seconds`` after day 0 of the record, or None undated."""
+    return None if start is None else (start + dt.timedelta(days=seconds / 86400)).isoformat()
+
+
 @register("SITE-WEATHER", "Working temperature and curing", "project", order=630)
 def weather_check(project, ctx) -> CheckResult:
     """Working-temperature window, curing/protection durations, days outside the window."""
@@ -247,10 +256,12 @@ def weather_check(project, ctx) -> CheckResult:
                            message=base + "; no site temperature record is given",
                            quantities=tuple(q))
     points = [(0.0, sub.constant)] if sub.constant is not None else list(sub.points)
+    start = project.dossier.site_temperature_from
     outside = [{"day": round(t / 86400, 3), "temperature": round(k - 273.15, 2),
-                "side": "cold" if k <= lo.value else "hot"}
+                "side": "cold" if k <= lo.value else "hot",
+                "date": _on(start, t)}
                for t, k in points if k <= lo.value or k > hi.value]
-    inputs.append(Input("T_d", "daily mean temperatures", f"{len(points)} reading(s)", "°C",
+    inputs.append(Input("T_d", "daily mean temperatures", f"{len(points)} reading{'s' if len(points) != 1 else ''}", "°C",
                         sub.source))
     q.append(Quantity("days_outside_window", outside, "", "days outside the working window"))
     cold = sum(1 for o in outside if o["side"] == "cold")
@@ -258,10 +269,17 @@ def weather_check(project, ctx) -> CheckResult:
                 r"\text{outside} \iff T_d \le T_{\min}\ \text{or}\ T_d > T_{\max}", tuple(inputs),
                 rf"{cold}\ \text{{cold}} + {len(outside) - cold}\ \text{{hot}}\ \text{{of}}\ "
                 rf"{len(points)}", len(outside), "d", "n")
-    msg = base + f"; {len(outside)} of {len(points)} day(s) of {sub.source} fall outside"
+    days = "day" if len(points) == 1 else "days"
+    msg = base + f"; {len(outside)} of {len(points)} {days} of {sub.source} fall outside"
     if outside:
-        first = ", ".join(f"{o['day']:g}" for o in outside[:8])
-        msg += f" (days {first}{' …' if len(outside) > 8 else ''}): plan protection or no work"
+        more = " …" if len(outside) > 8 else ""
+        if start is not None:  # dates, when the record says which day is day 0
+            first = ", ".join(date_text(dt.date.fromisoformat(o["date"])) for o in outside[:8])
+            msg += f" ({first}{more}): plan protection or no work"
+        else:
+            first = ", ".join(f"{o['day']:g}" for o in outside[:8])
+            msg += (f" (days {first}{more} after placement; the record is not dated): plan "
+                    "protection or no work")
     return CheckResult(code="SITE-WEATHER", title=title, subject=code, subject_kind="project",
                        status="attention" if outside else "pass", value=len(outside), unit="d",
                        basis=(WEATHER,), steps=(step,), message=msg, quantities=tuple(q))

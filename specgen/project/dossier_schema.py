@@ -244,6 +244,9 @@ class Dossier(Model):
     site_temperature: Text | None = Field(
         None, description="curing temperature in the wall: a constant, e.g. '8 degC', or a CSV "
         "under lab/ with columns 'day [d]' and 'temperature [degC]' (daily means)")
+    site_temperature_from: dt.date | None = Field(
+        None, description="calendar date of day 0 of the site temperature record (the day the "
+        "mortar is placed, YYYY-MM-DD): its days are then read as dates")
     distribution: list[Recipient] = Field(default_factory=list, description="who receives "
                                           "the dossier (the distribution list)")
     document_control: DocumentControl = Field(default_factory=lambda: DocumentControl(),

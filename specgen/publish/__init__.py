@@ -171,7 +171,8 @@ def _report_bar(project) -> dict:
     p, rev = project.dossier.project, project.revision
     return {"project": p.title, "code": p.code, "revision": rev.code, "status": rev.status,
             "state": STATE[rev.status], "purpose": PURPOSE[rev.purpose],
-            "date": date_text(rev.date)}
+            "date": date_text(rev.date), "pdf": pdf_name(project),
+            "pdf_appendices": appendix_pdf_name(project)}
 
 
 def _print_context(project, marks: dict | None = None) -> dict:

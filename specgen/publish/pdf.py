@@ -176,9 +176,12 @@ def parts(every: list[Piece], size: int = PART_SIZE) -> list[list[Piece]]:
 
 
 # PDF/A-3a: archival, with the inputs attached, and tagged (structure tree, alternative
-# texts, language).  WeasyPrint takes one variant per document (``pdf_variant``): its
-# PDF/UA-1 and PDF/UA-2 variants tag the same way but are not PDF/A, so they could not carry
-# the attachments as PDF/A-3.  See PDF_UA_IDENTIFICATION for what we add to the PDF/A-3a.
+# texts, language).  WeasyPrint (70) takes one variant per document (``pdf_variant``): of
+# pdf/a-1b … pdf/a-4f, pdf/ua-1, pdf/ua-2, pdf/x-*; its pdf/ua-1 and pdf/ua-2 tag with the
+# same code as pdf/a-3a (``pdf_tags``) but are not PDF/A, so they cannot carry the inputs as
+# PDF/A-3 attachments, and no variant is both.  We keep PDF/A-3a and do not claim PDF/UA:
+# the assembly makes the links again across parts outside the structure tree, which PDF/UA
+# forbids.  What a screen reader needs is checked by tests/pdf_structure.py.
 PDF_OPTIONS = {"pdf_variant": "pdf/a-3a", "custom_metadata": True}
 PLACEHOLDER_PAGE = 8888  # the contents laid out once with numbers of this width
 #: the words a volume's cover, contents and running heads carry

@@ -50,11 +50,21 @@ def assemble(front, parts: list, stamps: list, target, *, foreign=None,
     for page, stamp in zip(writer.pages, stamp_pages):
         _lay_over(writer, page, stamp)
     tree.finish()
+    _show_title(writer)
     anchors = global_anchors(docs)
     _links(writer, docs, offsets, anchors, foreign)
     _named(writer, anchors, exported)
     _outline(writer, docs, offsets)
     writer.write(target)
+
+
+def _show_title(writer) -> None:
+    """A reader's window shows the document's title, not its file name (as PDF/UA asks)."""
+    from pypdf.generic import BooleanObject, DictionaryObject, NameObject
+    prefs = writer._root_object.get("/ViewerPreferences")
+    prefs = DictionaryObject(prefs.get_object()) if prefs is not None else DictionaryObject()
+    prefs[NameObject("/DisplayDocTitle")] = BooleanObject(True)
+    writer._root_object[NameObject("/ViewerPreferences")] = prefs
 
 
 def _lay_over(writer, page, stamp) -> None:

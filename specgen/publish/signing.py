@@ -15,7 +15,7 @@ import json
 from pathlib import Path
 
 from specgen.errors import PublishError, UsageError
-from specgen.publish.output import MANIFEST, sha256_file, write_atomic
+from specgen.publish.output import APPENDIX_SUFFIX, MANIFEST, sha256_file, write_atomic
 
 MANIFEST_SIGNATURE = MANIFEST + ".p7s"
 
@@ -47,7 +47,10 @@ def sign_revision(folder: Path, key: Path, cert: Path, *, passphrase: bytes | No
     if manifest.get("status") != "issued":
         raise UsageError(f"{folder}: revision {manifest.get('revision')} is a draft; only an "
                          "issued revision is signed. Fix: issue it first (specgen issue).")
-    pdfs = [p for p in manifest.get("outputs", {}) if p.endswith(".pdf") and "/" not in p]
+    # the main volume is signed; the appendix volume is vouched for by its hash in the
+    # manifest, which is signed next
+    pdfs = [p for p in manifest.get("outputs", {}) if p.endswith(".pdf") and "/" not in p
+            and not p.endswith(APPENDIX_SUFFIX)]
     if len(pdfs) != 1:
         raise PublishError(f"{folder}: expected one dossier PDF in the manifest, found "
                            f"{len(pdfs)}.")

@@ -112,8 +112,22 @@ def qty(value, unit: str, digits: int | None = None) -> str:
         from specgen.report.wording import plain
         return plain(value)
     symbol = unit_symbol(unit)
-    text = rounded(value, symbol) if digits is None else num(value, digits)
+    text = rounded(value, symbol) if digits is None else _to_recompute(value, symbol, digits)
     return f"{text}{UNIT_SPACE}{symbol}" if symbol and text != "—" else text
+
+
+def _to_recompute(value, symbol: str, digits: int) -> str:
+    """A calculation sheet's number: ``digits`` significant figures, but a count stays an
+    integer (``n = 18``, not ``18.00``) and a site quantity keeps the figures its kind
+    supports (``0.403 m³``, not ``0.4032 m³``)."""
+    if value is None or isinstance(value, (str, bool)) or not math.isfinite(value):
+        return num(value)
+    rule = PRECISION.get(symbol, Precision(significant=3))
+    if rule.integer or (not symbol and float(value).is_integer()):
+        return _signed(f"{round(value):d}")
+    if symbol and rule.significant:
+        return num(value, min(digits, rule.significant))
+    return num(value, digits)
 
 
 def count(n, word: str, many: str | None = None) -> str:

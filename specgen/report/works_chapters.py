@@ -7,10 +7,12 @@ schedule as a CSV beside the PDF (``specgen.report.works_schedule``).
 """
 from __future__ import annotations
 
+import datetime as dt
+
 from specgen.report import works_schedule as ws
 from specgen.report.cautions import card_cautions
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import as_given, num
+from specgen.report.fmt import as_given, date_text, num, rounded
 from specgen.report.wording import reader
 
 CALC = "calculations.md"
@@ -50,7 +52,8 @@ def _mix(env, mix) -> dict:
     parts = {b.binder: b.parts for b in mix.binders} | {s.sand: s.parts for s in mix.sands}
     rows = [{"name": ws.label(env.project, mix, k), "kind": ws.kind_of(mix, k),
              "parts": as_given(parts[k]) if k in parts else "—",
-             "mass": num(props[k], 3) if k in props else "—", "per_m3": num(v, 4)}
+             "mass": num(props[k], 3) if k in props else "—",
+             "per_m3": rounded(v, "kg/m³")}
             for k, v in per_m3.items()]
     return {"id": mix.id, "name": mix.name, "rows": rows,
             "wb": as_given(mix.water_binder_ratio) if mix.water_binder_ratio else "—",
@@ -61,10 +64,10 @@ def _mix(env, mix) -> dict:
 def _zone(env, z: ws.ZoneSchedule) -> dict:
     c = env.results.check("WORKS-QTY", z.zone.id)
     return {"id": z.zone.id, "name": z.zone.name, "works": z.zone.works,
-            "net": num(z.net, 4) if z.net is not None else None,
-            "total": num(z.total, 4) if z.total is not None else None,
+            "net": rounded(z.net, "m³") if z.net is not None else None,
+            "total": rounded(z.total, "m³") if z.total is not None else None,
             "wastage": as_given(z.wastage) if z.wastage is not None else None,
-            "joint_length": num(z.joint_length, 4) if z.joint_length else None,
+            "joint_length": rounded(z.joint_length, "m/m²") if z.joint_length else None,
             "heads": [m.mix_id for m in z.mixes], "rows": _zone_rows(z), "check": _link(c),
             "reason": reader(c.message) if c is not None and c.status == "not_assessed" else ""}
 
@@ -86,17 +89,24 @@ def _zone_rows(z: ws.ZoneSchedule) -> list[dict]:
             hit = next((x for x in m.items if x.kind == i.kind and x.id == key), None)
             cells.append("—" if hit is None else
                          str(hit.bags) if kind == "bags" and hit.bags is not None else
-                         "—" if kind == "bags" else num(hit.mass, 4))
+                         "—" if kind == "bags" else rounded(hit.mass, "kg"))
         what = (f"{i.id}: bags of {as_given(i.bag_mass)} kg" if kind == "bags"
                 else f"{i.label} (kg)")
         rows.append({"what": what, "kind": "bags" if kind == "bags" else kind, "cells": cells})
     return rows
 
 
+def _when(o: dict) -> str:
+    """A day of the site record: its date when the record is dated, else its day number."""
+    if o.get("date"):
+        return date_text(dt.date.fromisoformat(o["date"]))
+    return f"day {as_given(o['day'])}"
+
+
 def _weather(window, outside) -> dict | None:
     if not window:
         return None
-    sides = {side: ", ".join(f"{as_given(o['day'])} ({as_given(o['temperature'])} °C)"
+    sides = {side: ", ".join(f"{_when(o)} ({as_given(o['temperature'])} °C)"
                              for o in (outside or []) if o["side"] == side)
              for side in ("cold", "hot")}
     return {"low": as_given(window["low"]), "high": as_given(window["high"]),
