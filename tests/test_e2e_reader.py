@@ -107,9 +107,21 @@ def test_pdf_is_tagged_for_a_screen_reader(demo_build):
     from pypdf import PdfReader
 
     from tests.pdf_structure import structure
-    found = structure(PdfReader(str(demo_build / REV / f"WEP-2026-{REV}.pdf")))
+    main = PdfReader(str(demo_build / REV / f"WEP-2026-{REV}.pdf"))
+    found = structure(main)
     assert found.tree and found.marked and found.lang == "en"
     assert found.untied_pages == []
     assert found.types["/Figure"] >= 5 and found.figures_without_alt == 0
     assert found.types["/TH"] > 100 and found.types["/H1"] >= 15
     assert found.duplicate_ids == []
+    # the appendix volume the same way (its sheets' formulas are figures with their text)
+    appendix = PdfReader(str(demo_build / REV / f"WEP-2026-{REV}-appendices.pdf"))
+    found = structure(appendix)
+    assert found.tree and found.marked and found.lang == "en"
+    assert found.untied_pages == [] and found.duplicate_ids == []
+    assert found.figures_without_alt == 0 and found.types["/TH"] > 100
+    # a reader's window shows each volume's title (PDF/UA-1 7.1, from memory); the variant
+    # is PDF/A-3a (WeasyPrint has no variant both PDF/A-3 and PDF/UA: specgen/publish/pdf.py)
+    for reader in (main, appendix):
+        assert reader.trailer["/Root"]["/ViewerPreferences"]["/DisplayDocTitle"] == True  # noqa: E712
+        assert b"pdfaid:part=\"3\"" in reader.trailer["/Root"]["/Metadata"].get_object().get_data()

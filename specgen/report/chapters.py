@@ -31,10 +31,7 @@ _CHAPTERS: dict[str, ChapterSpec] = {}
 #: extension registers without a place here comes after these, by path.
 READING_ORDER = (
     "index.md",            # summary
-    "before-issue.md",     # what stops the revision from being issued
-    "changes.md",          # changes in this revision
     "scope.md",
-    "evidence.md",         # samples, drawings, photographs, laboratory reports
     "fabric.md",
     "composition.md",
     "strength.md",
@@ -46,12 +43,16 @@ READING_ORDER = (
     "cautions.md",
     "comments.md",
     "references.md",
-    "confirm.md",          # values to confirm
-    "history.md",
     # the appendices, after every chapter of the report (the PDF's appendix volume)
     "checks.md",           # appendix: check register
     "calculations.md",     # appendix: calculation sheets
     "inputs.md",           # appendix: input files
+    "strength-detail.md",  # appendix: the strength record behind the strength chapter
+    "evidence.md",         # appendix: samples, drawings, photographs, laboratory reports
+    "before-issue.md",     # appendix: what stops the revision from being issued
+    "changes.md",          # appendix: changes in this revision
+    "confirm.md",          # appendix: values to confirm
+    "history.md",          # appendix: revision history
     "glossary.md",         # appendix: the abbreviations and symbols printed
 )
 

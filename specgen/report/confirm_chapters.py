@@ -16,7 +16,7 @@ def _link(key: str) -> dict:
 
 
 # after the reference list (90): every citation is known by then
-@chapter("confirm.md", "Values to confirm", "confirm.md.j2")
+@chapter("confirm.md", "Values to confirm", "confirm.md.j2", volume="appendix")
 def values_to_confirm(env) -> list[dict]:
     rows = [{"where": v["where"], "title": v["title"] or v["path"] or v["table"],
              "source": plain(v["source"]), "used_by": [_link(k) for k in v["used_by"]]}

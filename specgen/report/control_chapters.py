@@ -4,7 +4,7 @@ from __future__ import annotations
 from specgen.report.chapters import chapter
 
 
-@chapter("before-issue.md", "Before issue", "before_issue.md.j2")
+@chapter("before-issue.md", "Before issue", "before_issue.md.j2", volume="appendix")
 def before_issue(env) -> list[dict]:
     """One page when the audit found anything (no page otherwise)."""
     r, rev = env.results, env.project.revision

@@ -23,7 +23,7 @@ def sample_links(ids) -> str:
     return ", ".join(f"[{i}]({sample_href(i)})" for i in ids)
 
 
-@chapter(PAGE, "Evidence: samples and drawings", "evidence.md.j2")
+@chapter(PAGE, "Evidence: samples and drawings", "evidence.md.j2", volume="appendix")
 def evidence(env) -> dict:
     p = env.project
     named = _named(p)

@@ -8,7 +8,7 @@ from specgen.report.review import open_by_category, place_markdown, place_of
 from specgen.report.wording import plain
 
 
-@chapter("changes.md", "Changes in this revision", "changes.md.j2")
+@chapter("changes.md", "Changes in this revision", "changes.md.j2", volume="appendix")
 def changes(env) -> dict:
     ch = env.results.changes
     if not ch:
@@ -46,7 +46,7 @@ def _change_words(c, pages) -> str:
                 state, f"about {c.about}")
 
 
-@chapter("history.md", "Revision history", "history.md.j2")
+@chapter("history.md", "Revision history", "history.md.j2", volume="appendix")
 def history(env) -> dict:
     rows = env.history.revisions if env.history else [
         {"code": env.project.revision.code, "date": env.project.revision.date.isoformat(),

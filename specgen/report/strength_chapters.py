@@ -1,6 +1,7 @@
-"""The strength-development chapter: per mix, aggregates, prior and data, model comparison,
-predictions with both intervals, how the intervals narrowed over the revisions, acceptance
-(linked to the calculation sheets) and figures.
+"""The strength-development chapter: per mix, the figures, predictions with both intervals,
+how the intervals narrowed over the revisions and the findings (linked to the calculation
+sheets); and its appendix, the record in detail: aggregates, prior and data, model
+comparison and residuals.
 
 Everything shown is read from Results (``results.json`` names, see DEVELOPERS.md): the
 fitted curves and interval arrays are recorded by STR-INF, the in-wall curve by STR-SITE.
@@ -9,7 +10,7 @@ Nothing is refitted or recomputed here.
 from __future__ import annotations
 
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import num
+from specgen.report.fmt import anchor, num
 from specgen.report.wording import plain, reader
 
 TERMS = {"early_fraction": ("early (fast-stage) fraction", ""),
@@ -53,6 +54,24 @@ def _mix(env, mix, rules) -> dict:
                           + (" — two-stage law with the family's prior, band for the mean and "
                              "interval for the next set" if test in curves else ""))
                for test in means]
+    return {"id": mix.id, "name": mix.name, "anchor": anchor(mix.id),
+            "predictions": _predictions(r.value(mix.id, "predicted_strength") or {}),
+            "narrowing": _narrowing(env, mix.id), "results": results, "figures": figures}
+
+
+@chapter("strength-detail.md", "Strength records in detail", "strength_detail.md.j2",
+         volume="appendix")
+def strength_detail(env) -> dict:
+    """The record behind the strength chapter, per mix: results per age, the prior and the
+    data together, the least-squares models compared, and the residuals."""
+    p, r = env.project, env.results
+    return {"mixes": [_detail(env, m) for m in p.mixes.values()
+                      if r.value(m.id, "mean_strength")]}
+
+
+def _detail(env, mix) -> dict:
+    r = env.results
+    curves = r.value(mix.id, "strength_curve") or {}
     resid = None
     if curves:
         from specgen.report.strength_figures import residuals
@@ -61,14 +80,13 @@ def _mix(env, mix, rules) -> dict:
               "ages": [a for a, _ in c["residuals_pct"]],
               "residuals": [v for _, v in c["residuals_pct"]]} for t, c in curves.items()]),
             f"{mix.id}: relative residuals of the specimens about the fitted law")
-    return {"id": mix.id, "name": mix.name, "aggregates": _aggregates(r, mix.id),
+    return {"id": mix.id, "name": mix.name, "anchor": anchor(mix.id),
+            "aggregates": _aggregates(r, mix.id),
             "excluded": r.value(mix.id, "excluded_results") or [],
             "has_known": bool(r.value(mix.id, "characteristic_strength_known_cv")),
             "priors": _priors(r.value(mix.id, "strength_inference") or {}),
             "models": _models(r, mix.id), "reasoning": _reasoning(r, mix.id),
-            "predictions": _predictions(r.value(mix.id, "predicted_strength") or {}),
-            "narrowing": _narrowing(env, mix.id), "results": results,
-            "figures": figures, "residuals": resid}
+            "residuals": resid}
 
 
 def _aggregates(r, mix: str) -> list[dict]:
