@@ -150,7 +150,7 @@ def bench_xlsx(demo: Path, work: Path, runs: int) -> None:
     """(h) the same strength rows read from CSV and from a workbook sheet."""
     import openpyxl
     from specgen.errors import ProblemLog
-    from specgen.project import load_project
+    from specgen.build import load as load_project  # as every command reads a project
     from specgen.project.files import read_csv
     from specgen.project.tables import strength_results
     from specgen.project.workbook import read_sheet, read_workbook

@@ -1,13 +1,11 @@
 """The pipeline in one place: load → compute/check → render → publish.
 
-``build()`` is what ``specgen build`` runs; ``check()`` stops after the checks.
-Only ``build()`` imports the rendering and publishing stages (and with them
-matplotlib, MkDocs and WeasyPrint), so ``specgen check`` stays light.
+``build()`` is what ``specgen build`` runs; ``check()`` stops after the checks.  Only
+``build()`` imports the rendering and publishing stages (matplotlib, MkDocs, WeasyPrint).
 
-A project folder may keep the inputs of its earlier issued revisions under
-``issued/<revision>/`` (each a complete project folder as it was issued); a build
-first builds any of those missing from the output folder, oldest first, so the
-full revision history can be published anywhere from the project alone.
+A project keeps the inputs of its issued revisions under ``issued/<revision>/`` (each a
+complete project folder as issued); a build first builds any of those missing from the
+output folder, oldest first, so the whole history can be published from the project alone.
 """
 from __future__ import annotations
 
@@ -36,15 +34,18 @@ def reference_names() -> tuple[set[str], set[str]]:
             {c.path.rsplit(".", 1)[0] for c in chapters()} | {"summary"})
 
 
-def _load(project_dir) -> Project:
-    return load_project(project_dir, names=reference_names())
+def load(project_dir) -> Project:
+    """The project as every command reads it: validated, with what the check stage derives
+    before any check runs (``checks/intake.py``); every input problem in one raise."""
+    from specgen.checks.intake import derive
+    return load_project(project_dir, names=reference_names(), derive=derive)
 
 
 @fits.kept()  # each strength fit once per call (checks/fits.py)
 def check(project_dir: Path | str) -> tuple[Project, Results]:
     """Load the project (and its archived issued revisions, validated as a build would)
     and run every check and the audit (no output written)."""
-    project = _load(project_dir)
+    project = load(project_dir)
     archived = _load_archive(Path(project_dir), project)
     return project, evaluate(project, previous=_previous(archived[-1] if archived else None))
 
@@ -57,7 +58,7 @@ def import_comments(project_dir: Path | str, review_file: Path | str,
     ``out_dir``; those already taken in are skipped.  Returns the ids given to new comments.
     """
     from specgen.project.review_file import take_in
-    project = _load(project_dir)
+    project = load(project_dir)
     return take_in(project, Path(review_file), Path(out_dir))
 
 
@@ -75,7 +76,7 @@ def lab_workbook(project_dir: Path | str, path: Path | str | None = None, *,
     returns where and the rows per sheet.  Default file: ``<code>-<revision>-lab.xlsx``."""
     from specgen.errors import UsageError
     from specgen.labbook import write_workbook
-    project = _load(project_dir)
+    project = load(project_dir)
     code = project.dossier.project.code
     target = Path(path or f"{code}-{project.revision.code}-lab.xlsx")
     if target.exists() and not overwrite:
@@ -126,7 +127,7 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None
     work is counted (the PDF's parts), how much of it is done.
     """
     progress("load: reading and validating the project folder")
-    project = _load(project_dir)
+    project = load(project_dir)
     archived = _load_archive(Path(project_dir), project)
     out = Path(out_dir)
     reached("load")
@@ -274,7 +275,7 @@ def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | N
     from specgen import cache
     from specgen.report.render import render
     progress("load: reading and validating the project folder")
-    project = _load(project_dir)
+    project = load(project_dir)
     key = _data_key(project)
     if reuse is not None and reuse.data_key == key:
         results = reuse.results
@@ -308,7 +309,7 @@ def preview_pdf(prepared: Prepared, target: Path, *, cache_dir: Path | str | Non
 def _load_archive(root: Path, current: Project) -> list[Project]:
     """The archived issued revisions, validated, oldest first (project/archive.py)."""
     from specgen.project.archive import load_archive
-    return load_archive(root, current, _load)
+    return load_archive(root, current, load)
 
 
 def verify(path: Path | str, project_dir: Path | str | None = None,
@@ -335,7 +336,7 @@ def issue(project_dir: Path | str, out_dir: Path | str, *, date: dt.date | None 
     the audit has blocking findings."""
     from specgen.publish import archive
     root = Path(project_dir)
-    project = _load(root)
+    project = load(root)
     rev = project.revision
     if rev.status == "issued":
         raise UsageError(f"{root / 'dossier.yaml'}: revision {rev.code} is already issued. Fix: "
@@ -347,7 +348,7 @@ def issue(project_dir: Path | str, out_dir: Path | str, *, date: dt.date | None 
     staging = archive.freeze(project, ARCHIVE_DIR, {
         "status": "issued", "date": when.isoformat(), "purpose": purpose or rev.purpose})
     try:
-        issued = _load(staging)
+        issued = load(staging)
         results = evaluate(issued, previous=_previous(archived[-1] if archived else None))
         refuse_if_findings(issued, results)
         built = _build_one(issued, results, Path(out_dir), page_size, progress)

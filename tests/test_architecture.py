@@ -78,7 +78,7 @@ def test_every_science_error_has_the_one_base():
 def test_a_refused_science_input_is_not_assessed_with_its_reason():
     """Any check whose science refuses its input gives *not assessed* with the method's
     message, through the one mechanism of the check run (no crash, no special case)."""
-    from specgen.build import _load
+    from specgen.build import load as _load
     from specgen.checks.registry import register, unregister
     from specgen.checks.run import evaluate
     from specgen.science.grading import GradingInputError
