@@ -110,6 +110,15 @@ def test_summary_fits_two_pages_and_the_main_volume_is_short(demo_build):
     for words in ("Mortar chosen:", "Why:", "Still open:", "Cost of the mortar:"):
         assert summary.count(words) == 3, words
     assert len(reader.pages) <= 66, len(reader.pages)   # "about 60" (issue 21)
+    # the site mirrors the split: the appendix chapters in a section of their own, and both
+    # volumes linked from the report bar of every page
+    page = (demo_build / REV / "index.html").read_text(encoding="utf-8")
+    nav = page[page.index("Appendices"):]
+    for name in ("checks.html", "calculations.html", "strength-detail.html", "options.html"):
+        assert f'href="{name}"' in nav, name
+    assert page.index('href="scope.html"') < page.index("Appendices")
+    assert f'href="./WEP-2026-{REV}.pdf"' in page
+    assert f'href="./WEP-2026-{REV}-appendices.pdf"' in page
 
 
 def test_pages_in_real_browser(demo_build):

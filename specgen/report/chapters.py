@@ -47,6 +47,7 @@ READING_ORDER = (
     "checks.md",           # appendix: check register
     "calculations.md",     # appendix: calculation sheets
     "inputs.md",           # appendix: input files
+    "options.md",          # appendix: every candidate against every check, per zone
     "strength-detail.md",  # appendix: the strength record behind the strength chapter
     "evidence.md",         # appendix: samples, drawings, photographs, laboratory reports
     "before-issue.md",     # appendix: what stops the revision from being issued

@@ -73,7 +73,7 @@ def _zone(env, zone, jenv, clause_ctx) -> dict:
     s = p.specification.selection_for(zone.id)[1] if chosen and p.specification else None
     clauses = _clauses(jenv, clause_ctx) if clause_ctx else None
     failed = _failed(r, p, zone.id, chosen) if chosen else []
-    return {"id": zone.id, "name": zone.name, "works": zone.works, "matrix": _matrix(env, zone),
+    return {"id": zone.id, "name": zone.name, "works": zone.works, "candidates": list(zone.candidates),
             "selected": chosen, "mix_name": p.mixes[chosen].name if chosen else "",
             "badge": Markup(badge(sel.status)) if sel else "", "status": sel.status if sel else "",
             "status_word": STATUS_WORDS[sel.status] if sel else "not assessed",
@@ -90,6 +90,15 @@ def _zone(env, zone, jenv, clause_ctx) -> dict:
 def _failed(results, project, zone_id: str, mix_id: str) -> list[dict]:
     return [{"key": c.key, "title": c.title, "href": _href(c.key), "message": reader(c.message)}
             for c in applicable(results.checks, project, zone_id, mix_id) if c.status == "fail"]
+
+
+@chapter("options.md", "Options appraised, check by check", "options.md.j2", volume="appendix")
+def options(env) -> dict:
+    """Every candidate of each zone against every check that applies to it (the
+    specification chapter gives the choice and its reason; this is the full table)."""
+    r = env.results
+    return {"zones": [{"id": z.id, "name": z.name, "selected": r.value(z.id, "selected_mix"),
+                       "matrix": _matrix(env, z)} for z in env.project.dossier.zones]}
 
 
 def _matrix(env, zone) -> dict:
