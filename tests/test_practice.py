@@ -189,9 +189,9 @@ def test_sieve_data_of_the_other_practice_without_saying_so(demo_copy):
     ("", None, "a4"),                 # no practice stated: A4, as build() documents
 ])
 def test_paper_follows_the_practice_unless_overridden(demo_copy, block, override, paper):
-    from specgen.build import _load, _paper
+    from specgen.build import _paper, load
     _follow(demo_copy, block)
-    assert _paper(_load(demo_copy), override) == paper
+    assert _paper(load(demo_copy), override) == paper
 
 
 @pytest.mark.parametrize("paper, points", [
