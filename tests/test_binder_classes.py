@@ -12,7 +12,14 @@ from tests.helpers import edit, problems
 NH35 = '''    declared_class: NHL 3.5
     analysis: NHL-A
 '''
-TESTS = ('class_tests: {available_lime: "31 %", free_water: "0.6 %", strength_28d: "4.1 MPa",')
+LAB = "Northstead Materials Laboratory, report NML-4419"
+
+
+def _class_tests(project, text: str = 'available_lime: "31 %", free_water: "0.6 %", '
+                 'strength_28d: "4.1 MPa"') -> None:
+    """Give the demo lime NH35 (NHL 3.5) the class tests ``text`` (one line, line 17)."""
+    edit(project / "materials.yaml", '    bulk_density: "700 kg/m^3"\n',
+         f'    class_tests: {{{text}, laboratory: "{LAB}"}}\n    bulk_density: "700 kg/m^3"\n')
 
 
 # EN 459-1, Annex A, Table A.4 "Limit values for single results", read in a public transcript
@@ -59,7 +66,12 @@ def test_natural_cement_designations_of_astm_c10():
 def test_demo_lime_within_its_class(demo_copy):
     _, r = check(demo_copy)
     c = r.check("BIND-CLASS", "NH35")
-    # demo NH35 (NHL 3.5): SO3 0.8 % (analysis NHL-A) <= 2.5; available lime 31 % >= 22;
+    # the demo gives SO3 only (analysis NHL-A 0.8 %): at most 2,5 for NHL (Table A.4)
+    assert (c.status, [s.substituted for s in c.steps]) == ("pass", [r"0.8 \le 2.5"])
+    _class_tests(demo_copy)
+    _, r = check(demo_copy)
+    c = r.check("BIND-CLASS", "NH35")
+    # NH35 (NHL 3.5): SO3 0.8 % (analysis NHL-A) <= 2.5; available lime 31 % >= 22;
     # free water 0.6 % <= 2.5; 28-d strength 4.1 MPa within 2.7-14 (Table A.4)
     assert c.status == "pass"
     assert c.message == ("declared NHL 3.5: SO3 0.8 %, available lime 31 %, free water 0.6 %, "
@@ -79,6 +91,7 @@ def test_so3_at_and_beyond_the_single_result_limit(demo_copy, so3, status):
 
 
 def test_formulated_lime_by_its_available_lime_category(demo_copy):
+    _class_tests(demo_copy)
     edit(demo_copy / "materials.yaml", "    type: nhl\n    declared_class: NHL 3.5\n",
          "    type: fl\n    declared_class: FL B 3.5\n")
     edit(demo_copy / "materials.yaml", 'available_lime: "31 %"', 'available_lime: "21.9 %"')
@@ -93,6 +106,7 @@ def test_formulated_lime_by_its_available_lime_category(demo_copy):
 @pytest.mark.parametrize("cls, s7, status", [("HL 5", "1.5 MPa", "pass"),
                                              ("HL 5", "1.4 MPa", "fail")])
 def test_class_5_early_strength(demo_copy, cls, s7, status):
+    _class_tests(demo_copy)
     edit(demo_copy / "materials.yaml", "    type: nhl\n    declared_class: NHL 3.5\n",
          f"    type: hl\n    declared_class: {cls}\n")
     edit(demo_copy / "materials.yaml", 'strength_28d: "4.1 MPa"',
@@ -133,6 +147,6 @@ def test_natural_cement_named_by_its_designation(demo_copy, declared, status, me
 
 
 def test_class_test_without_its_unit_is_refused(demo_copy):
-    edit(demo_copy / "materials.yaml", 'available_lime: "31 %"', "available_lime: 31")
+    _class_tests(demo_copy, "available_lime: 31")
     text = problems(demo_copy)
-    assert "materials.yaml, line 19: binders[1].class_tests.available_lime:" in text, text
+    assert "materials.yaml, line 17: binders[1].class_tests.available_lime:" in text, text
