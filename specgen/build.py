@@ -124,10 +124,7 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None
     stops the build before anything is written.  ``page_size`` (``a4`` or ``letter``)
     overrides the paper of the practice each revision states (A4 when it states none).
     ``progress(step, done=None, total=None)`` hears each stage as it starts and, where the
-    work is counted (the PDF's parts), how much of it is done.  ``shared_cache`` (default
-    ``$SPECGEN_SHARED_CACHE``) is an artefact cache shared by every output folder, behind
-    the output folder's own (``cache.py``).
-    """
+    work is counted (the PDF's parts), how much of it is done.  ``shared_cache``: cache.py."""
     progress("load: reading and validating the project folder")
     project = _load(project_dir)
     archived = _load_archive(Path(project_dir), project)
@@ -330,14 +327,12 @@ def _fix_dates(date: dt.date) -> None:
 # ---------------------------------------------------------------- the life of a revision
 def issue(project_dir: Path | str, out_dir: Path | str, *, date: dt.date | None = None,
           purpose: str | None = None, next_code: str | None = None, page_size: str = "a4",
-          progress: Callable[[str], None] = _quiet,
-          shared_cache: Path | str | None = None) -> dict:
+          progress: Callable[[str], None] = _quiet, shared_cache: Path | None = None) -> dict:
     """Issue the current draft: freeze its inputs into ``issued/<code>/`` with the date and
     purpose, build it (manifest stamped ``issued``), then open the next draft revision.
 
     Refused (nothing changed) when the revision is already issued or, for construction, while
-    the audit has blocking findings.  What the draft's last build drew (pages, figures, PDF
-    parts) comes from the output folder's artefact cache."""
+    the audit has blocking findings.  What the draft's build drew comes from the cache."""
     from specgen import cache
     from specgen.publish import archive
     root = Path(project_dir)
