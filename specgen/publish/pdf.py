@@ -190,8 +190,9 @@ PLACEHOLDER_PAGE = 8888  # the contents laid out once with numbers of this width
 
 def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
               page_size: str = "a4", identifier: bytes | None = None, stamp=None,
-              workers: int | None = None, on_part=None) -> None:
-    """Print the page set as a tagged PDF/A-3a at ``target`` with ``attachments`` embedded.
+              workers: int | None = None, on_part=None) -> tuple[int, int]:
+    """Print the page set as a tagged PDF/A-3a at ``target`` with ``attachments`` embedded;
+    returns (chapter parts taken unchanged from the cache, chapter parts).
 
     The chapters are printed in parts on every core, the costliest first (the CPU time each
     part took last time, kept in the artefact cache; its HTML size when new), the front
@@ -231,6 +232,7 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
                                          dict(attachments=files, pdf_identifier=identifier))
     _assembled(done, printed, stamps, target)
     reached("pdf-assembled")
+    return sum(1 for p in printed if not p.seconds), len(printed)
 
 
 def _part_name(group: list[Piece], every: list[Piece]) -> str:
