@@ -207,6 +207,7 @@ def test_hydraulic_lime_in_the_tidal_zone_no_longer_passes(demo):
     listed = {v["where"]: v["used_by"] for v in demo.unconfirmed()}
     assert "DUR-TSA/Z3/M3" in listed["content/rules/durability.yaml: thaumasite_temperature_max"]
     ett = r[("DUR-ETT", "Z3/M3")]
+    assert c.value == "all 5 conditions met" and ett.value == "aluminate absent"
     assert ett.status == "pass" and ett.message.startswith(
         "no ettringite risk: aluminate absent (NH35: Al2O3 2.5 % in analysis NHL-A < 5 %")
 

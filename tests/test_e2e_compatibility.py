@@ -46,3 +46,14 @@ def test_fabric_chapter_lists_units_and_historic_mortars(demo_build):
     assert "<td>compressive strength</td>\n<td style=\"text-align: right;\">48 MPa</td>" in html
     assert "HM2 — Parapet render, weathered" in html
     assert "Northstead Materials Laboratory, report NML-4502" in html
+
+
+def test_durability_matrix_cells_read_in_words(demo_build):
+    """The durability table names what the sulfate checks found (no bare condition counts):
+    thaumasite needs C-S-H, sulfate, water, carbonate and cold together, ettringite aluminate,
+    sulfate and water (Thaumasite Expert Group 1999, from memory)."""
+    html = (demo_build / REV / "compatibility.html").read_text()
+    text = re.sub(r"\s+", " ", re.sub(r"<[^>]+>", " ", html))
+    assert "all 5 conditions met" in text and "aluminate absent" in text
+    assert not re.search(r"attention \d\.\d\d ", text)
+

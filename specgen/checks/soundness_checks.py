@@ -173,7 +173,8 @@ def _phase_risk(binder, ctx):
     if so3 is not None:
         so3_r = dc.rule(ctx, "so3_max_natural_cement")
         rel = ">" if so3[0] > so3_r.value else r"\le"
-        step = replace(step, inputs=step.inputs + (
+        step = replace(step, title="Free lime, periclase and SO3 the analysis allows (no "
+                       "measurement of soundness)", inputs=step.inputs + (
             Input("SO3", "SO3", so3[0], "%", f"analysis {so3[1]}"),
             dc.rule_input(ctx, "SO3,max", "so3_max_natural_cement")),
             formula=step.formula + r",\quad SO_3 \le SO_{3,max}",
