@@ -1,4 +1,4 @@
-"""``specgen bench``: one run on this machine, ratios against the bare toolchain.
+"""``python3 -m specgen.bench`` (developers): one run on this machine, ratios against the bare toolchain.
 
 Measures (a) ``check`` on the demo, (b) a full cold build of the demo's current
 revision (no artefact cache, in-process memos cleared), (c) a re-issue after one new
@@ -150,7 +150,7 @@ def bench_xlsx(demo: Path, work: Path, runs: int) -> None:
     """(h) the same strength rows read from CSV and from a workbook sheet."""
     import openpyxl
     from specgen.errors import ProblemLog
-    from specgen.project import load_project
+    from specgen.build import load as load_project  # as every command reads a project
     from specgen.project.files import read_csv
     from specgen.project.tables import strength_results
     from specgen.project.workbook import read_sheet, read_workbook
@@ -237,3 +237,19 @@ def main(runs: int = 3, large: bool = True, only: str = "all") -> None:
         print(f"(f) build, 200 mixes (site + PDF)   {f[0]:7.1f} s, peak memory {f[1]:6.0f} MiB")
     print(f"ratio (b)/(d) = {b / d:.2f}   ratio (c)/(b) = {c / b:.2f}   "
           f"growth exponent of (e) = {slope:.2f}")
+
+
+if __name__ == "__main__":
+    import click
+
+    @click.command()
+    @click.option("--runs", default=3, show_default=True, help="repetitions per measurement")
+    @click.option("--large/--no-large", default=True, show_default=True,
+                  help="also build the 200-mix project once (time and peak memory; slow)")
+    @click.option("--only", type=click.Choice(["all", "serve", "xlsx"]), default="all",
+                  show_default=True, help="run only the preview or the workbook measurement")
+    def _bench(runs: int, large: bool, only: str) -> None:
+        """Time check, build, re-issue and the bare toolchain (ratios in one run)."""
+        main(runs, large=large, only=only)
+
+    _bench()

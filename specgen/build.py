@@ -1,13 +1,11 @@
 """The pipeline in one place: load → compute/check → render → publish.
 
-``build()`` is what ``specgen build`` runs; ``check()`` stops after the checks.
-Only ``build()`` imports the rendering and publishing stages (and with them
-matplotlib, MkDocs and WeasyPrint), so ``specgen check`` stays light.
+``build()`` is what ``specgen build`` runs; ``check()`` stops after the checks.  Only
+``build()`` imports the rendering and publishing stages (matplotlib, MkDocs, WeasyPrint).
 
-A project folder may keep the inputs of its earlier issued revisions under
-``issued/<revision>/`` (each a complete project folder as it was issued); a build
-first builds any of those missing from the output folder, oldest first, so the
-full revision history can be published anywhere from the project alone.
+A project keeps the inputs of its issued revisions under ``issued/<revision>/`` (each a
+complete project folder as issued); a build first builds any of those missing from the
+output folder, oldest first, so the whole history can be published from the project alone.
 """
 from __future__ import annotations
 
@@ -20,11 +18,16 @@ from pathlib import Path
 from specgen.checks import fits
 from specgen.checks.registry import names_text  # noqa: F401  (the face's `names`)
 from specgen.checks.run import Previous, Results, evaluate
-from specgen.errors import AuditRefused, InputErrors, Problem, UsageError
+from specgen.errors import UsageError
+from specgen.guards import blocks, frozen_inputs, refuse_if_findings, refuse_unconfirmed
 from specgen.killpoints import reached
 from specgen.project import Project, load_project
 from specgen.project.load import ARCHIVE_DIR
 from specgen.project.reference import markdown as format_reference  # noqa: F401  (`format`)
+# what the face prints, beside the functions that produce it (the face imports only this module)
+from specgen.completeness import as_text as missing_text  # noqa: F401  (`missing`)
+from specgen.starter import write_starter as new  # noqa: F401  (`new`)
+from specgen.textreport import status_text, table as check_table  # noqa: F401  (`status`, `check`)
 
 
 def reference_names() -> tuple[set[str], set[str]]:
@@ -36,15 +39,18 @@ def reference_names() -> tuple[set[str], set[str]]:
             {c.path.rsplit(".", 1)[0] for c in chapters()} | {"summary"})
 
 
-def _load(project_dir) -> Project:
-    return load_project(project_dir, names=reference_names())
+def load(project_dir) -> Project:
+    """The project as every command reads it: validated, with what the check stage derives
+    before any check runs (``checks/intake.py``); every input problem in one raise."""
+    from specgen.checks.intake import derive
+    return load_project(project_dir, names=reference_names(), derive=derive)
 
 
 @fits.kept()  # each strength fit once per call (checks/fits.py)
 def check(project_dir: Path | str) -> tuple[Project, Results]:
     """Load the project (and its archived issued revisions, validated as a build would)
     and run every check and the audit (no output written)."""
-    project = _load(project_dir)
+    project = load(project_dir)
     archived = _load_archive(Path(project_dir), project)
     return project, evaluate(project, previous=_previous(archived[-1] if archived else None))
 
@@ -57,7 +63,7 @@ def import_comments(project_dir: Path | str, review_file: Path | str,
     ``out_dir``; those already taken in are skipped.  Returns the ids given to new comments.
     """
     from specgen.project.review_file import take_in
-    project = _load(project_dir)
+    project = load(project_dir)
     return take_in(project, Path(review_file), Path(out_dir))
 
 
@@ -75,7 +81,7 @@ def lab_workbook(project_dir: Path | str, path: Path | str | None = None, *,
     returns where and the rows per sheet.  Default file: ``<code>-<revision>-lab.xlsx``."""
     from specgen.errors import UsageError
     from specgen.labbook import write_workbook
-    project = _load(project_dir)
+    project = load(project_dir)
     code = project.dossier.project.code
     target = Path(path or f"{code}-{project.revision.code}-lab.xlsx")
     if target.exists() and not overwrite:
@@ -97,22 +103,6 @@ def _previous(old: Project | None) -> Previous | None:
                     evaluate(old).to_dict(), {f.path: f.sha256 for f in old.inputs})
 
 
-def blocks(project: Project) -> bool:
-    """Whether open blocking findings stop this revision from being built: issued for
-    construction, or for approval when the project asks for that."""
-    rev = project.revision
-    strict = project.dossier.document_control.block_for_approval
-    return rev.status == "issued" and (rev.purpose == "for_construction"
-                                       or (strict and rev.purpose == "for_approval"))
-
-
-def refuse_if_findings(project: Project, results: Results) -> None:
-    """Stop (exit 1) with the list when an issued revision still has blocking findings."""
-    found = results.blocking()
-    if found and blocks(project):
-        raise AuditRefused(project.revision, found)
-
-
 @fits.kept()  # each strength fit once per call (checks/fits.py)
 def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None = None,
           progress: Callable[..., None] = _quiet, rebuild: dict[str, str] | None = None) -> Path:
@@ -126,7 +116,7 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None
     work is counted (the PDF's parts), how much of it is done.
     """
     progress("load: reading and validating the project folder")
-    project = _load(project_dir)
+    project = load(project_dir)
     archived = _load_archive(Path(project_dir), project)
     out = Path(out_dir)
     reached("load")
@@ -172,34 +162,6 @@ def _next_issued(archived: list[Project], old: Project) -> str | None:
     return later[0] if later else None
 
 
-def frozen_inputs(out: Path, archived: list[Project], rebuild: dict[str, str]) -> set[str]:
-    """Codes of the archived revisions to build: those not built as issued into ``out``, and
-    those told to ``rebuild``.  An issued revision whose inputs changed after its manifest
-    was written stops the build (nothing written) unless it is told to rebuild."""
-    from specgen.publish.output import issued_manifest
-    todo, problems = set(), []
-    for old in archived:
-        code, now = old.revision.code, {f.path: f.sha256 for f in old.inputs}
-        manifest = issued_manifest(out / code)
-        if manifest is None or code in rebuild:
-            todo.add(code)
-            continue
-        then = manifest.get("inputs", {})
-        changed = sorted(k for k in set(then) | set(now) if then.get(k) != now.get(k))
-        for path in changed:
-            what = ("was added" if path not in then else "was removed" if path not in now
-                    else "was changed")
-            problems.append(Problem(
-                f"{ARCHIVE_DIR}/{code}/{path}", f"{what} after revision {code} was issued (its "
-                f"inputs are hashed in {out / code / 'manifest.json'}); an issued revision is "
-                "frozen.", fix=f"restore the file as issued (the PDF of {code} carries it as the "
-                f"attachment input/{path}), or rebuild {code} from the changed inputs with "
-                f"--rebuild-issued {code} --reason \"why\", which records the reason."))
-    if problems:
-        raise InputErrors(problems)
-    return todo
-
-
 def _build_one(project: Project, results: Results, out: Path, page_size: str | None, progress,
                superseded: str | None = None, rebuilt: str | None = None) -> Path:
     from specgen.publish import publish
@@ -213,37 +175,6 @@ def _build_one(project: Project, results: Results, out: Path, page_size: str | N
     _fix_dates(project.revision.date)
     return publish(project, results, pages, out, page_size=page_size, progress=progress,
                    changes=results.changes, superseded=superseded, rebuilt=rebuilt)
-
-
-def refuse_unconfirmed(project: Project, results: Results) -> None:
-    """A revision for construction may not rest on a value still tagged ``memory``.
-
-    Raises :class:`InputErrors` (exit 2, nothing written) naming the revision's purpose in
-    dossier.yaml and every such value with the checks that used it.
-    """
-    values = results.unconfirmed()
-    if project.revision.purpose != "for_construction" or not values:
-        return
-    from specgen.errors import ProblemLog
-    from specgen.project.files import read_yaml
-    log = ProblemLog()
-    located = read_yaml(Path(project.root) / "dossier.yaml", "dossier.yaml", ProblemLog())
-    log.add("dossier.yaml", f"revision {project.revision.code} is for construction but rests on "
-            f"{len(values)} value(s) still tagged memory (recalled, not read in their source).",
-            line=located.line_of(("revision", "purpose")) if located else None,
-            field="revision.purpose",
-            fix="confirm each value listed below against its source, or issue the revision "
-            "for approval until then (purpose: for_approval).")
-    for v in values:
-        users = v["used_by"]
-        log.add(f"content/data/{v['table']}.yaml", f"tagged memory (source named: {v['source']}); "
-                f"used by {', '.join(users[:3])}" + (f" and {len(users) - 3} more" if
-                                                     len(users) > 3 else "") + ".",
-                field=v["path"] or "(the whole table)",
-                fix="read the value in the source and cite its clause or table (then remove the "
-                "tag), or declare it common practice with its range and reason, or a project "
-                "requirement (rule_overrides with a justification).")
-    log.raise_if_any()
 
 
 # --------------------------------------------------------------------- live preview
@@ -274,7 +205,7 @@ def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | N
     from specgen import cache
     from specgen.report.render import render
     progress("load: reading and validating the project folder")
-    project = _load(project_dir)
+    project = load(project_dir)
     key = _data_key(project)
     if reuse is not None and reuse.data_key == key:
         results = reuse.results
@@ -308,7 +239,7 @@ def preview_pdf(prepared: Prepared, target: Path, *, cache_dir: Path | str | Non
 def _load_archive(root: Path, current: Project) -> list[Project]:
     """The archived issued revisions, validated, oldest first (project/archive.py)."""
     from specgen.project.archive import load_archive
-    return load_archive(root, current, _load)
+    return load_archive(root, current, load)
 
 
 def verify(path: Path | str, project_dir: Path | str | None = None,
@@ -335,7 +266,7 @@ def issue(project_dir: Path | str, out_dir: Path | str, *, date: dt.date | None 
     the audit has blocking findings."""
     from specgen.publish import archive
     root = Path(project_dir)
-    project = _load(root)
+    project = load(root)
     rev = project.revision
     if rev.status == "issued":
         raise UsageError(f"{root / 'dossier.yaml'}: revision {rev.code} is already issued. Fix: "
@@ -347,7 +278,7 @@ def issue(project_dir: Path | str, out_dir: Path | str, *, date: dt.date | None 
     staging = archive.freeze(project, ARCHIVE_DIR, {
         "status": "issued", "date": when.isoformat(), "purpose": purpose or rev.purpose})
     try:
-        issued = _load(staging)
+        issued = load(staging)
         results = evaluate(issued, previous=_previous(archived[-1] if archived else None))
         refuse_if_findings(issued, results)
         built = _build_one(issued, results, Path(out_dir), page_size, progress)

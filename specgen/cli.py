@@ -35,7 +35,7 @@ def cli() -> None:
 @click.argument("directory", type=click.Path(file_okay=False, path_type=Path))
 def new(directory: Path) -> None:
     """Write a commented starter project into DIRECTORY."""
-    from specgen.starter import write_starter
+    from specgen.build import new as write_starter
     try:
         written = write_starter(directory)
     except SpecgenError as exc:
@@ -60,8 +60,8 @@ def check_cmd(directory: Path, fmt: str, wide: bool) -> None:
     if fmt == "json":
         click.echo(results.to_json(), nl=False)
     else:
-        from specgen.textreport import table
-        click.echo(table(results, wide=wide))
+        from specgen.build import check_table
+        click.echo(check_table(results, wide=wide))
     sys.exit(1 if results.counts().get("fail") else 0)
 
 
@@ -72,8 +72,7 @@ def missing_cmd(directory: Path) -> None:
 
     Exit status 0 when nothing is missing, 1 otherwise, 2 on invalid input.
     """
-    from specgen.build import missing
-    from specgen.completeness import as_text
+    from specgen.build import missing, missing_text as as_text
     try:
         items, project = missing(directory)
     except SpecgenError as exc:
@@ -174,8 +173,7 @@ def issue_cmd(directory: Path, out, date, purpose, next_code, page_size: str, qu
               show_default=True)
 def status_cmd(directory: Path, fmt: str) -> None:
     """Where the project stands: revision, findings, hold points, comments, changes."""
-    from specgen.build import status
-    from specgen.textreport import status_text
+    from specgen.build import status, status_text
     try:
         report = status(directory)
     except SpecgenError as exc:
@@ -310,27 +308,6 @@ def format_reference() -> None:
     """Print the project folder format reference (every key, type, unit, default, meaning)."""
     from specgen.build import format_reference as reference
     click.echo(reference(), nl=False)
-
-
-@cli.command(hidden=True)
-@click.option("--runs", default=3, show_default=True, help="repetitions per measurement")
-@click.option("--large/--no-large", default=True, show_default=True,
-              help="also build the 200-mix project once (time and peak memory; slow)")
-@click.option("--only", type=click.Choice(["all", "serve", "xlsx"]), default="all",
-              show_default=True, help="run only the preview or the workbook measurement")
-def bench(runs: int, large: bool, only: str) -> None:
-    """Developers: time check, build, re-issue and the bare toolchain (ratios in one run)."""
-    from specgen.bench import main as run_bench
-    run_bench(runs, large=large, only=only)
-
-
-@cli.command("validate-strength")
-@click.option("--series", default=200, show_default=True, help="simulated series per law")
-@click.option("--seed", default=7, show_default=True, help="random seed")
-def validate_strength(series: int, seed: int) -> None:
-    """Developers: coverage and interval score of the strength inference on simulated series."""
-    from specgen.validation import main as run_validation
-    run_validation(series, seed)
 
 
 def main() -> None:

@@ -1,4 +1,4 @@
-"""Validation study of the strength inference (``specgen validate-strength``).
+"""Validation study of the strength inference (``python3 -m specgen.validation``).
 
 Series are simulated from four generating laws (invented parameters, drawn per series):
 
@@ -121,3 +121,16 @@ def table(rows: list[Row]) -> str:
 
 def main(series: int = 200, seed: int = 7) -> None:
     print(table(study(series, seed)))
+
+
+if __name__ == "__main__":
+    import click
+
+    @click.command()
+    @click.option("--series", default=200, show_default=True, help="simulated series per law")
+    @click.option("--seed", default=7, show_default=True, help="random seed")
+    def _validate(series: int, seed: int) -> None:
+        """Coverage and interval score of the strength inference on simulated series."""
+        main(series, seed)
+
+    _validate()

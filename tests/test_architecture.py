@@ -78,7 +78,7 @@ def test_every_science_error_has_the_one_base():
 def test_a_refused_science_input_is_not_assessed_with_its_reason():
     """Any check whose science refuses its input gives *not assessed* with the method's
     message, through the one mechanism of the check run (no crash, no special case)."""
-    from specgen.build import _load
+    from specgen.build import load as _load
     from specgen.checks.registry import register, unregister
     from specgen.checks.run import evaluate
     from specgen.science.grading import GradingInputError
@@ -114,3 +114,21 @@ def test_sizes_modules_and_functions():
                     too_long.append(f"{path.relative_to(ROOT)}:{node.lineno} {node.name}: "
                                     f"{len(body)} lines")
     assert too_big == [] and too_long == [], too_big + too_long
+
+
+def test_the_face_reaches_the_stages_only_through_the_pipeline():
+    """Every specgen module the face (cli.py) imports is the pipeline's public module or a
+    module that reaches no stage by itself (errors, the progress display, the live preview,
+    which calls back into the pipeline); so no path from the face to the loader, the checks or
+    publishing runs beside the pipeline (the whiteboard's "the face calls the pipeline's API
+    only", read through modules that belong to no stage)."""
+    import grimp
+    graph = grimp.build_graph("specgen", include_external_packages=False)
+    direct = graph.find_modules_directly_imported_by("specgen.cli")
+    assert direct <= {"specgen", "specgen.errors", "specgen.build", "specgen.console",
+                      "specgen.preview"}, direct
+    stages = ("specgen.project", "specgen.checks", "specgen.publish", "specgen.report",
+              "specgen.science")
+    for helper in ("specgen.console", "specgen.preview", "specgen.errors"):
+        for module in graph.find_modules_directly_imported_by(helper):
+            assert not module.startswith(stages), (helper, module)

@@ -164,7 +164,7 @@ def test_issued_for_approval_refuses_only_when_the_project_says_so(demo_copy, cl
 
 
 def test_changed_issued_input_stops_the_build(demo_copy, cli, tmp_path):
-    from specgen.project import load_project
+    from specgen.build import load as load_project  # as every command reads a project
     r1 = load_project(demo_copy / "issued" / "R1")
     out = tmp_path / "out"
     (out / "R1").mkdir(parents=True)

@@ -359,3 +359,25 @@ BAD_DATA = [
 def test_bad_data_is_refused_with_its_location(demo_copy, path, old, new, message):
     edit(demo_copy / path, old, new)
     assert message in problems(demo_copy)
+
+
+def test_a_check_declares_its_matrix_column_where_it_is_registered():
+    """The compatibility chapter's tables take their columns from the registry: a check
+    registered with a matrix and a column heading appears there, in run order, with no edit of
+    the chapter (and is listed under the zone's findings)."""
+    from specgen.checks import registry
+    from specgen.report import compatibility_chapters as chapter
+    before = chapter._columns("compatibility")
+    # the seven compatibility criteria of the chapter, in run order (orders 510 … 560)
+    assert list(before) == ["COMP-STR-UNIT", "COMP-STR-HIST", "COMP-MOIST", "COMP-MOVE",
+                            "COMP-SALT", "COMP-GRAD", "COMP-COLOUR"]
+    registry.register("COMP-TEST-X", "A further criterion", "zone", order=555,
+                      matrix="compatibility", column="further")(lambda zone, ctx: None)
+    try:
+        after = chapter._columns("compatibility")
+        assert list(after)[list(after).index("COMP-GRAD") + 1] == "COMP-TEST-X"
+        assert after["COMP-TEST-X"] == "further"
+        assert "COMP-TEST-X" in chapter._findings()
+    finally:
+        registry.unregister("COMP-TEST-X")
+    assert chapter._columns("compatibility") == before

@@ -522,7 +522,7 @@ def test_contradictory_exposure_is_an_input_error(cli, demo_copy):
 
 
 def test_cautions_follow_the_exposure():
-    from specgen.project.load import load_project
+    from specgen.build import load as load_project  # as every command reads a project
     from specgen.report.cautions import cautions_for
     from tests.conftest import DEMO
     ids = [c["id"] for c in cautions_for(load_project(DEMO))[0]]

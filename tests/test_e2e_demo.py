@@ -193,3 +193,23 @@ def test_draft_marks_and_before_issue_page(demo_build):
     assert "Superseded by R2" in (demo_build / "R1" / "scope.html").read_text()
     r1 = PdfReader(str(demo_build / "R1" / "WEP-2026-R1.pdf"))
     assert "Superseded by R2" in r1.pages[-1].extract_text()
+
+
+def test_distribution_list_is_printed_as_the_project_states_it(demo_build):
+    """Every recipient of the demo's distribution list (demo_project/dossier.yaml, read here
+    independently with PyYAML) appears on the summary, in the site and in the PDF, in order."""
+    import yaml
+    from pypdf import PdfReader
+    from tests.conftest import DEMO
+    recipients = yaml.safe_load((DEMO / "dossier.yaml").read_text())["distribution"]
+    assert len(recipients) == 3
+    summary = (demo_build / REV / "index.html").read_text()
+    assert "Distribution" in summary
+    rows = [summary.index(f"<td>{r['organisation']}</td>") for r in recipients]
+    assert rows == sorted(rows)
+    for r in recipients:
+        assert f"<td>{r['name']}</td>" in summary and f"<td>{r['purpose']}</td>" in summary
+    reader = PdfReader(str(demo_build / REV / f"WEP-2026-{REV}.pdf"))
+    text = " ".join(" ".join(p.extract_text().split()) for p in reader.pages[:6])
+    for r in recipients:
+        assert r["organisation"] in text, r

@@ -9,7 +9,7 @@ import pytest
 
 from specgen.build import check
 from specgen.errors import InputErrors
-from specgen.project.load import load_project
+from specgen.build import load as load_project  # as every command reads a project
 from tests.helpers import by_check, edit, problems
 
 

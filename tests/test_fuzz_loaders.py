@@ -14,7 +14,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from specgen.errors import InputErrors
-from specgen.project import load_project
+from specgen.build import load as load_project  # as every command reads a project
 from specgen.refdata import CONTENT_DIR
 
 STARTER = CONTENT_DIR / "starter"

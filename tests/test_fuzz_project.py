@@ -284,7 +284,7 @@ def _corrupt_csv(root: Path, kind: str, pick: int, rng: random.Random) -> dict:
 # ------------------------------------------------------------------ judging a case
 def load_like_check(root: Path):
     """What ``specgen check`` reads: the project and its archived issued revisions."""
-    from specgen.build import _load, _load_archive
+    from specgen.build import _load_archive, load as _load
     project = _load(root)   # with the check codes and page names, as the pipeline loads
     _load_archive(root, project)
     return project

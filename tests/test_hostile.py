@@ -7,7 +7,7 @@ import shutil
 import pytest
 
 from specgen.errors import InputErrors
-from specgen.project import load_project
+from specgen.build import load as load_project  # as every command reads a project
 
 SCRIPT = "<script>window.__pwned=1;alert(1)</script>"
 IMG = "<img src=x onerror=\"window.__pwned=2;alert(2)\">"

@@ -14,7 +14,7 @@ import pytest
 
 from specgen.errors import InputErrors
 from specgen.labbook import HEADERS, write_workbook
-from specgen.project import load_project
+from specgen.build import load as load_project  # as every command reads a project
 
 
 @pytest.fixture

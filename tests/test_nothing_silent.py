@@ -7,7 +7,7 @@ from __future__ import annotations
 import pytest
 
 from specgen.errors import InputErrors, MAX_PER_FILE
-from specgen.project import load_project
+from specgen.build import load as load_project  # as every command reads a project
 
 
 def edit(path, old, new):

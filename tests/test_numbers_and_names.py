@@ -13,7 +13,7 @@ import pytest
 from specgen import units
 from specgen.checks.result import tex_name
 from specgen.errors import InputErrors
-from specgen.project import load_project
+from specgen.build import load as load_project  # as every command reads a project
 
 
 def edit(path, old, new):

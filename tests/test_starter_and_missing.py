@@ -101,7 +101,7 @@ def test_missing_names_untested_ages_unchosen_zones_and_unreported_samples(cli, 
     spec.write_text(text[:text.index("  - zone: Z3")] + text[text.index("\nsite_tests:"):],
                     encoding="utf-8")
     from specgen.labbook import write_workbook
-    from specgen.project import load_project
+    from specgen.build import load as load_project  # as every command reads a project
     book = tmp_path / "book.xlsx"
     write_workbook(load_project(demo_copy), book)
     wb = openpyxl.load_workbook(book)

@@ -120,7 +120,7 @@ def test_build_render_stage_reports_a_project_template_attack(demo_copy, monkeyp
     to keep the test fast)."""
     import specgen.report.render as render_mod
     from specgen.checks.run import evaluate
-    from specgen.project import load_project
+    from specgen.build import load as load_project  # as every command reads a project
     marker = tmp_path / "pwned"
     (demo_copy / "templates").mkdir()
     (demo_copy / "templates" / "scope.md.j2").write_text(

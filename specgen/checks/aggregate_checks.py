@@ -122,7 +122,8 @@ def _grading_step(name: str, g: gr.Grading, fm: float, src: str) -> Step:
                 inputs, rf"FM = \frac{{{cum}}}{{100}} = {fm:.3f}", round(fm, 4), "", "FM")
 
 
-@register("COMP-GRAD", "Aggregate grading against the historic aggregate", "zone", order=550)
+@register("COMP-GRAD", "Aggregate grading against the historic aggregate", "zone", order=550,
+          matrix="compatibility", column="grading")
 def grading_check(zone, ctx):
     """Fineness modulus, RMS difference from the historic aggregate, envelope."""
     return cc.each_pair("COMP-GRAD", zone, ctx, _grading_one)
@@ -212,7 +213,8 @@ def _grading_one(pair, ctx):
                                           "difference of % passing from the historic aggregate")])
 
 
-@register("COMP-BLEND", "Sand blend that best matches the historic aggregate", "zone", order=551)
+@register("COMP-BLEND", "Sand blend that best matches the historic aggregate", "zone", order=551,
+          matrix="compatibility")
 def blend_check(zone, ctx):
     """Non-negative least-squares blend of the sands against the historic grading."""
     return cc.each_pair("COMP-BLEND", zone, ctx, _blend_one)
@@ -255,7 +257,8 @@ def _blend_one(pair, ctx):
                                           "", "sand blend proportions by mass")])
 
 
-@register("COMP-BA", "Binder:aggregate of the historic mortar", "zone", order=552)
+@register("COMP-BA", "Binder:aggregate of the historic mortar", "zone", order=552,
+          matrix="compatibility")
 def binder_aggregate_check(zone, ctx):
     """Binder:aggregate from acid digestion, by mass and volume, beside the mix's proportions."""
     return cc.each_pair("COMP-BA", zone, ctx, _ba_one)

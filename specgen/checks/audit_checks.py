@@ -231,10 +231,10 @@ def ages_rule(ctx) -> list[Finding]:
         tested = _ages_tested(ctx, zone.id)
         verdicts = ctx.results.value(sel.mix, "acceptance") or {}
         for key, v in verdicts.items():
-            age = v.get("age_d") or _age_of(key)
-            if age is None or any(abs(age - t) < 0.5 for t in tested):
+            age = v["age_d"]
+            if any(abs(age - t) < 0.5 for t in tested):
                 continue
-            what = "cap" if key.startswith("max") else ("hold" if v.get("status") == "hold"
+            what = "cap" if v["kind"] == "max" else ("hold" if v.get("status") == "hold"
                                                          else "minimum")
             regime = ", ".join(f"{t:g}" for t in tested) or "no"
             out.append(Finding(
@@ -246,11 +246,6 @@ def ages_rule(ctx) -> list[Finding]:
                 f"add '{age:g} d' to site_tests.test_ages (the regime is then extended), or "
                 "change the requirement's age.", subject=zone.id))
     return out
-
-
-def _age_of(key: str) -> float | None:
-    m = re.search(r"([\d.]+)\s*d\b", key)
-    return float(m.group(1)) if m else None
 
 
 # ---------------------------------------------------------------- references and words

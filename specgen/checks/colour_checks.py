@@ -46,7 +46,8 @@ def panel_sample(pair, project) -> tuple[str, str]:
     return pair.mix_id, f"sample {pair.mix_id} (no trial panel of {pair.mix_id} names a colour sample)"
 
 
-@register("COMP-COLOUR", "Colour of the trial panel against the historic mortar", "zone", order=560)
+@register("COMP-COLOUR", "Colour of the trial panel against the historic mortar", "zone", order=560,
+          matrix="compatibility", column="colour ΔE00")
 def colour_check(zone, ctx):
     """Mean CIELAB of panel and historic mortar, spread, CIEDE2000 against the threshold."""
     return cc.each_pair("COMP-COLOUR", zone, ctx, _colour_one)

@@ -127,13 +127,15 @@ def _hierarchy_one(code, title, target, pair, fabric, ctx):
         quantities=[Quantity(name, ratios, "", f"repair / {what} strength")])
 
 
-@register("COMP-STR-UNIT", "Repair weaker than the masonry units", "zone", order=510)
+@register("COMP-STR-UNIT", "Repair weaker than the masonry units", "zone", order=510,
+          matrix="compatibility", column="weaker than units")
 def strength_unit_check(zone, ctx):
     """Compressive strength (measured and predicted long-term) and stiffness against the units."""
     return _hierarchy("COMP-STR-UNIT", "Repair weaker than the masonry units", "unit", zone, ctx)
 
 
-@register("COMP-STR-HIST", "Repair not stronger than the historic mortar", "zone", order=511)
+@register("COMP-STR-HIST", "Repair not stronger than the historic mortar", "zone", order=511,
+          matrix="compatibility", column="not above historic")
 def strength_historic_check(zone, ctx):
     """Compressive strength and stiffness against the sound historic mortar."""
     return _hierarchy("COMP-STR-HIST", "Repair not stronger than the historic mortar",
@@ -188,7 +190,8 @@ def _two_point_step(sample_id: str, rows) -> tuple[float, str, Step]:
     return c, f"lab/capillary.csv, EN 1015-18 two-point ({len(rows)} readings given)", step
 
 
-@register("COMP-MOIST", "Repair at least as open as the units", "zone", order=520)
+@register("COMP-MOIST", "Repair at least as open as the units", "zone", order=520,
+          matrix="compatibility", column="moisture openness")
 def moisture_check(zone, ctx):
     """Capillary absorption and vapour resistance factor of repair and units, side by side."""
     return cc.each_pair("COMP-MOIST", zone, ctx, _moisture_one)
@@ -253,7 +256,8 @@ def _moisture_one(pair, ctx):
 
 
 # ---------------------------------------------------------------- movement
-@register("COMP-MOVE", "Similar thermal and moisture movement", "zone", order=530)
+@register("COMP-MOVE", "Similar thermal and moisture movement", "zone", order=530,
+          matrix="compatibility", column="movement")
 def movement_check(zone, ctx):
     """Thermal (and hygric) expansion of repair against the units, within a relative tolerance."""
     return cc.each_pair("COMP-MOVE", zone, ctx, _movement_one)

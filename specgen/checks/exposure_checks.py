@@ -101,7 +101,7 @@ def exposure_check(zone, ctx) -> CheckResult:
 
 
 # ---------------------------------------------------------------- frost
-@register("DUR-FROST", FROST, "zone", order=545)
+@register("DUR-FROST", FROST, "zone", order=545, matrix="durability", column="frost")
 def frost_check(zone, ctx):
     """Freeze–thaw requirement of the zone's class against the mortar's test and indicators."""
     return cc.each_pair("DUR-FROST", zone, ctx, _frost_one)

@@ -23,6 +23,8 @@ class CheckSpec:
     order: int
     fn: Callable
     description: str = ""
+    matrix: str = ""   # the compatibility chapter's table it belongs to ("compatibility", "durability")
+    column: str = ""   # its short column heading there ("" = listed under the findings only)
 
 
 _REGISTRY: dict[str, CheckSpec] = {}
@@ -32,8 +34,12 @@ class DuplicateCheckCode(ValueError):
     """Two checks claimed the same code."""
 
 
-def register(code: str, title: str, subject_kind: str, order: int = 500, description: str = ""):
-    """Decorator: add a check under ``code``; a second check with the same code is refused."""
+def register(code: str, title: str, subject_kind: str, order: int = 500, description: str = "",
+             matrix: str = "", column: str = ""):
+    """Decorator: add a check under ``code``; a second check with the same code is refused.
+
+    ``matrix`` and ``column`` place the check in a table of the compatibility chapter (its
+    column heading there, in run order); the chapter reads them from :func:`in_matrix`."""
     if subject_kind not in SUBJECT_KINDS:
         raise ValueError(f"subject kind must be one of {SUBJECT_KINDS}; got {subject_kind!r}")
 
@@ -42,7 +48,8 @@ def register(code: str, title: str, subject_kind: str, order: int = 500, descrip
             raise DuplicateCheckCode(f"check code '{code}' is already registered by "
                                      f"{_REGISTRY[code].fn.__module__}.{_REGISTRY[code].fn.__name__}")
         _REGISTRY[code] = CheckSpec(code, title, subject_kind, order, fn,
-                                    description or (fn.__doc__ or "").strip().split("\n")[0])
+                                    description or (fn.__doc__ or "").strip().split("\n")[0],
+                                    matrix, column)
         return fn
     return deco
 
@@ -61,6 +68,11 @@ def checks() -> list[CheckSpec]:
     """All registered checks in run order."""
     load_builtin()
     return sorted(_REGISTRY.values(), key=lambda s: (s.order, s.code))
+
+
+def in_matrix(matrix: str) -> list[CheckSpec]:
+    """The checks of one table of the compatibility chapter, in run order."""
+    return [s for s in checks() if s.matrix == matrix]
 
 
 def load_builtin() -> None:

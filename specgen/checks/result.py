@@ -18,6 +18,22 @@ STATUS_WORDS = {"pass": "pass", "fail": "fail", "needs_decision": "needs decisio
                 "attention": "attention", "hold": "hold", "not_assessed": "not assessed",
                 "info": "for information"}
 
+_DAY = 86400.0  # s
+
+
+def age_key(age_s: float) -> str:
+    """Key of a tested or predicted age in recorded quantities (``'28 d'``); read it back with
+    :func:`key_days`, never by cutting the text."""
+    return f"{age_s / _DAY:g} d"
+
+
+def key_days(key: str) -> float:
+    """The age in days of a key written by :func:`age_key`."""
+    number, _, unit = key.partition(" ")
+    if unit != "d":
+        raise ValueError(f"not an age key: {key!r}")
+    return float(number)
+
 
 # Characters with a meaning in the math source, and how a name writes them literally.
 _TEX = {"\\": r"\backslash{}", "&": r"\&", "%": r"\%", "$": r"\$", "#": r"\#", "_": r"\_",

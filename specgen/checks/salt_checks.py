@@ -61,7 +61,8 @@ def aluminate_rich(mix, project, ctx) -> tuple[bool, str]:
     return rich, "; ".join(reasons)
 
 
-@register("COMP-SALT", "Salt load of the fabric", "zone", order=540)
+@register("COMP-SALT", "Salt load of the fabric", "zone", order=540,
+          matrix="compatibility", column="salts")
 def salt_check(zone, ctx):
     """Salt-load classes of the fabric by the chosen table."""
     return cc.each_pair("COMP-SALT", zone, ctx, _salt_one)

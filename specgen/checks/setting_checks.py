@@ -29,7 +29,7 @@ def _result(mix, status, value, msg, steps=(), notes=(), q=(), basis=(BASIS,)) -
                        quantities=tuple(q))
 
 
-@register("SITE-SET", TITLE, "mix", order=615)
+@register("SITE-SET", TITLE, "mix", order=615, matrix="durability", column="setting")
 def setting_check(mix, ctx) -> CheckResult:
     """Setting times against the family's limits, the retarder dose and the workable life."""
     fams = {f for _, f in dc.binder_types(mix, ctx.project)}

@@ -31,7 +31,7 @@ EXPANSION_TEST = dc.asked(
     "late slaking of free lime or periclase bursts joints", "DUR-SOUND")
 
 
-@register("DUR-SOUND", TITLE, "binder", order=158)
+@register("DUR-SOUND", TITLE, "binder", order=158, matrix="durability", column="binder soundness")
 def soundness_check(binder, ctx) -> CheckResult:
     """Measured expansion and free oxides against limits; else the risk and the test asked for."""
     s = binder.soundness

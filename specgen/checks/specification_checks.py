@@ -207,7 +207,7 @@ def strength_holds(ctx, zone_id: str) -> list[tuple[float, str]]:
     out = []
     for key, v in sorted((acc.value if acc else {}).items()):
         if v.get("hold_age_d"):
-            code = "STR-MIN" if key.startswith("min") else "STR-MAX"
+            code = "STR-MIN" if v["kind"] == "min" else "STR-MAX"
             out.append((v["hold_age_d"] * DAY, f"{code}/{chosen.value} hold ({key}): the age "
                         "that would decide"))
     return out
@@ -316,7 +316,7 @@ def _acceptance_rows(ages, mix: str, r: float, verdicts: dict) -> tuple[dict, li
         inputs.append(Input(f"f_req,{d}", f"required minimum at {d} d", req, "MPa",
                             f"STR-MIN/{mix} (dossier.yaml requirements)"))
         subs.append(rf"{d}\,\mathrm{{d}}: {r:g} \times {req:g} = {r * req:.3g}")
-    cap = next(((k, v) for k, v in verdicts.items() if k.startswith("max ")), None)
+    cap = next(((k, v) for k, v in verdicts.items() if v["kind"] == "max"), None)
     if cap:
         age = cap[1]["age_d"]
         table["cap"] = {"age_d": age, "max": cap[1]["limit"], "source": f"STR-MAX/{mix}"}

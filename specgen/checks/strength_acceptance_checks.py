@@ -117,6 +117,7 @@ def minimum_check(mix, ctx):
             rule="requirements.min_compressive"),
         message=text, quantities=(Quantity("acceptance", {
             **_prev(ctx, mix.id), **{f"min {age_key(m.age)}": {
+                "kind": "min", "age_d": round(m.age / DAY, 6),
                 "status": i["status"], "value": i.get("value"), "limit": m.value / MPA,
                 "hold_age_d": i.get("hold_age_d")}
                 for m, i in zip(sorted(reqs, key=lambda m: m.age), items)}}, "",
@@ -221,7 +222,7 @@ def maximum_check(mix, ctx):
                     rule="requirements.max_compressive_long_term"),
         message=f"{item['text']} against the cap {cap / MPA:g} MPa",
         quantities=(Quantity("acceptance", {**_prev(ctx, mix.id), f"max {age_key(age)}": {
-            "status": item["status"], "value": item.get("value"), "limit": cap / MPA,
+            "kind": "max", "status": item["status"], "value": item.get("value"), "limit": cap / MPA,
             "age_d": round(age / DAY, 6), "hold_age_d": item.get("hold_age_d")}}, "",
             "verdict per requirement"),))
 

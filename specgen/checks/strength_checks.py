@@ -10,7 +10,7 @@ from __future__ import annotations
 from specgen.checks import strength_common as sc
 from specgen.checks import strength_prior_common as spc
 from specgen.checks.registry import declare, register
-from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step
+from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step, age_key  # noqa: F401
 from specgen.checks.result import not_assessed as _not_assessed
 from specgen.science import maturity, strength_inference as si, strength_models as sm
 
@@ -43,11 +43,6 @@ LATEX = {
 # Display of fitted parameters: SI unit -> (shown unit, divisor)
 SHOWN = {"Pa": ("MPa", MPA), "s": ("d", DAY), "1": ("", 1.0)}
 CODE_OF = {"compressive": "C", "flexural": "F"}
-
-
-def age_key(age_s: float) -> str:
-    """Key of an age in recorded quantities, e.g. ``'28 d'``."""
-    return f"{age_s / DAY:g} d"
 
 
 def mpa(v: float | None) -> float | None:

@@ -29,7 +29,7 @@ DAY = 86400.0
 GE = r"\ge"
 
 
-@register("DUR-RETAIN", RETAIN, "zone", order=548)
+@register("DUR-RETAIN", RETAIN, "zone", order=548, matrix="durability", column="water retention")
 def retention_check(zone, ctx):
     """Water retention of each candidate against the units' suction."""
     return cc.each_pair("DUR-RETAIN", zone, ctx, _retain_one)
@@ -94,7 +94,7 @@ def _retain_one(pair, ctx) -> CheckResult:
                                  rule=need.key))
 
 
-@register("DUR-BOND", BOND, "zone", order=549)
+@register("DUR-BOND", BOND, "zone", order=549, matrix="durability", column="render bond")
 def bond_check(zone, ctx):
     """Pull-off bond of each candidate render on the zone's background."""
     if zone.works != "render":
@@ -140,7 +140,7 @@ def _bond_one(pair, ctx) -> CheckResult:
                                                    text=f"≥ {need.value:g} MPa", rule=need.key))
 
 
-@register("DUR-CARB", CARB, "zone", order=550)
+@register("DUR-CARB", CARB, "zone", order=550, matrix="durability", column="carbonation")
 def carbonation_check(zone, ctx):
     """Depth of carbonation with time for each lime-rich candidate in the zone's depth."""
     return [r for r in cc.each_pair("DUR-CARB", zone, ctx, _carb_one) if r is not None]

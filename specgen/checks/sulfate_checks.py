@@ -151,7 +151,7 @@ def _salt_table(ctx, level: str) -> list[str]:
     return []
 
 
-@register("DUR-TSA", TSA, "zone", order=546)
+@register("DUR-TSA", TSA, "zone", order=546, matrix="durability", column="thaumasite")
 def thaumasite_check(zone, ctx) -> list[CheckResult]:
     """Thaumasite: C-S-H, sulfate, water, carbonate and cold, each with its source."""
     return cc.each_pair("DUR-TSA", zone, ctx, _tsa_one)
@@ -170,7 +170,7 @@ def _tsa_one(pair, ctx) -> CheckResult:
                     _salt_table(ctx, level))
 
 
-@register("DUR-ETT", ETT, "zone", order=547)
+@register("DUR-ETT", ETT, "zone", order=547, matrix="durability", column="ettringite")
 def ettringite_check(zone, ctx) -> list[CheckResult]:
     """Ettringite: reactive aluminate, sulfate and water, each with its source."""
     return cc.each_pair("DUR-ETT", zone, ctx, _ett_one)

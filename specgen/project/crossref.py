@@ -1,8 +1,7 @@
 """Cross-references between project files: every id named must exist.
 
-Also the sanity window on analysis totals: a total far from 100 % is a
-transcription or unit error and stops the run; a modest gap is left to the
-closure check, which reports it with its calculation.
+(The sanity window on analysis totals is derived in the check stage:
+:mod:`specgen.checks.intake`.)
 """
 from __future__ import annotations
 
@@ -11,7 +10,6 @@ import re
 from specgen.errors import ProblemLog, did_you_mean, quote
 from specgen.project.files import Located
 from specgen.project.schema import ID_PATTERN
-from specgen.science.oxides import ChemistryInputError, closure
 
 SKIP: dict = {}  # stands for the ids of a file that failed to load
 
@@ -48,13 +46,12 @@ def _raw_ids(located: dict[str, Located], rel: str, key: str) -> dict:
 
 def check_references(project, located: dict[str, Located], log: ProblemLog,
                      failed: set[str] = frozenset(), names=None) -> None:
-    """Record a problem for every dangling id and every implausible analysis total.
+    """Record a problem for every dangling id.
 
     References into a file that itself failed to load are not checked: its own
     problems are already reported and would only be repeated here.
     """
     # long: one pass over the files in the order their problems are reported (file by file)
-    from specgen.project.layout import TOTAL_WINDOW
     d = project.dossier
     mat_ok, mix_ok = "materials.yaml" not in failed, "mixes.yaml" not in failed
     an_ok = "analyses.yaml" not in failed
@@ -93,21 +90,6 @@ def check_references(project, located: dict[str, Located], log: ProblemLog,
     for i, a in enumerate(project.analyses.values()):
         _ref(log, located, "analyses.yaml", ("analyses", i, "material"), a.material,
              binders, "binder")
-        loc = located.get("analyses.yaml")
-        try:
-            total = closure(a.mass_percent).total  # CO2 and H2O inside the LOI count once
-        except ChemistryInputError as exc:
-            log.add("analyses.yaml", f"analysis '{a.id}': {exc}.",
-                    line=loc.line_of(("analyses", i, "mass_percent")) if loc else None,
-                    field=f"analyses[{i}].mass_percent",
-                    fix="check the value against the laboratory report.")
-            continue
-        if not TOTAL_WINDOW[0] <= total <= TOTAL_WINDOW[1]:
-            log.add("analyses.yaml", f"constituents of analysis '{a.id}' add up to {total:.1f} %; "
-                    f"expected close to 100 % (accepted {TOTAL_WINDOW[0]:g}–{TOTAL_WINDOW[1]:g} %).",
-                    line=loc.line_of(("analyses", i, "mass_percent")) if loc else None,
-                    field=f"analyses[{i}].mass_percent",
-                    fix="check for a mistyped value, a missing LOI, or values not in mass %.")
     if mixes is not SKIP:
         _strength_refs(project.strength, mixes, log)
     _comment_refs(project, located.get("comments.yaml"), log, names, failed)

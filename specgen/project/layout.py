@@ -17,8 +17,6 @@ from specgen.project.files import CONTROL, Located
 ARCHIVE_DIR = "issued"  # issued/<revision>/: the inputs of earlier issued revisions
 STRENGTH_FILE = "lab/strength.csv"
 NARRATIVE_DIR = "narrative"
-# An analysis whose total is this far from 100 % is a transcription or unit error, not chemistry.
-TOTAL_WINDOW = (85.0, 115.0)
 
 
 def field_path(loc: tuple) -> str:

@@ -12,7 +12,7 @@ from specgen.project import schema, schema_evidence
 from specgen.project.files import read_csv, read_yaml
 # the folder layout and the helpers every reader shares (below the loader: no cycles)
 from specgen.project.layout import (ARCHIVE_DIR, NARRATIVE_DIR, STRENGTH_FILE,  # noqa: F401
-                                    TOTAL_WINDOW, field_path, index_of as _index, inside,
+                                    field_path, index_of as _index, inside,
                                     validate)
 from specgen.project.tables import (ColourReading, SieveRow, StrengthResult, capillary_rows,
                                     colour_rows, sieve_rows, strength_results)
@@ -62,7 +62,7 @@ class Project:
     sieves: list[SieveRow] = field(default_factory=list)
     colours: list[ColourReading] = field(default_factory=list)
     capillary: list = field(default_factory=list)  # CapillaryReading rows (project/tables.py)
-    gradings: dict = field(default_factory=dict)   # sample id → Grading (project/gradings.py)
+    gradings: dict = field(default_factory=dict)   # sample id → Grading (derived by checks/intake.py)
     inputs: list[InputFile] = field(default_factory=list)
     firing: dict = field(default_factory=dict)  # binder id → FiringSeries (project/firing.py)
     site_temperature: object = None  # SiteTemperature (project/site_temperature.py) or None
@@ -94,11 +94,15 @@ def _escaping_links(root: Path, log: ProblemLog) -> None:
                     fix="copy the file into the project folder instead of linking it.")
 
 
-def load_project(root: Path | str, names=None) -> Project:
+def load_project(root: Path | str, names=None, derive=None) -> Project:
     """Read and validate a project folder; raise :class:`~specgen.errors.InputErrors` on problems.
 
-    ``names`` — (check codes, page stems) that review comments may be about — is handed in by
-    the pipeline, which knows the registries; without it comments' subjects are not checked.
+    The pipeline hands in what loading must not know (``specgen.build.load``):
+    ``names`` — (check codes, page stems) that review comments may be about, from the
+    registries; without it comments' subjects are not checked.  ``derive(project, located,
+    log)`` — what the check stage derives from the inputs before any check runs (gradings from
+    sieve readings, analysis totals: :mod:`specgen.checks.intake`); its problems join the
+    loader's in the one raise.  Without it nothing is derived (``project.gradings`` stays empty).
     """
     # long: it reads as the loading sequence (files, tables, workbooks, derived inputs, cross
     # references), each step one call; every problem is collected before one raise
@@ -137,8 +141,6 @@ def load_project(root: Path | str, names=None) -> Project:
     for attr, rows in tables.items():
         setattr(project, attr, rows)
     project.lab_pending = pending
-    from specgen.project.gradings import gradings
-    project.gradings = gradings(project.sieves, log)
     from specgen.project.practice_inputs import practice_problems
     practice_problems(project, located, log)
     from specgen.project.firing import firing_series
@@ -164,6 +166,8 @@ def load_project(root: Path | str, names=None) -> Project:
     project.samples, project.drawings = ev.samples, ev.drawings
     project.images, project.reports = ev.images, ev.reports
     project.method = docs.get("method.yaml")
+    if derive is not None:
+        derive(project, located, log)
     log.raise_if_any()
     return project
 

@@ -50,26 +50,4 @@ def practice_problems(project, located: dict, log: ProblemLog) -> None:
                 field="practice.mortar_classes",
                 fix="remove the key (the practice names its own), or say why the project mixes "
                 "the two in practice.mixing_reason.")
-    _sieves_on_envelope_series(project, p, env, env_key, located, log)
 
-
-def _sieves_on_envelope_series(project, p, env: dict, env_key: tuple, located: dict,
-                               log: ProblemLog) -> None:
-    """Sieve analyses on another series than the envelope's, without a stated reason."""
-    series = env.get("series", "")
-    rows: dict[str, int] = {}
-    for r in project.sieves:
-        rows.setdefault(r.sample, r.row)
-    off = {s: g.series for s, g in project.gradings.items() if g.series and g.series != series}
-    if not off or not series:
-        return
-    names = ", ".join(f"'{s}' (row {rows.get(s, '?')})" for s in sorted(off))
-    other = next(iter(off.values()))
-    log.add(ROOT, f"the grading envelope '{p.grading_envelope}' is written on the "
-            f"{pr.series_title(series).split(' (')[0]}, but lab/sieves.csv gives "
-            f"{names} on the {pr.series_title(other).split(' (')[0]}.",
-            line=_line(located, env_key), field=".".join(env_key),
-            fix="give the sieve analyses on the envelope's series, choose an envelope written "
-            "on the series the laboratory used, or say why the project mixes the two in "
-            "practice.mixing_reason (the envelope is then read by interpolation, stated on "
-            "the sheet).")

@@ -8,6 +8,7 @@ computed here.
 """
 from __future__ import annotations
 
+from specgen.checks.registry import in_matrix
 from specgen.checks.result import STATUSES
 from specgen.report.chapters import badge, chapter, sheet_anchor
 from specgen.report.fmt import as_given, num, qty
@@ -15,16 +16,19 @@ from specgen.report.wording import reader
 from specgen.units import ROOT_MIN
 from specgen.views import pairs as zone_pairs
 
-#: The matrix columns: check code → short heading (the order of the columns).
-CRITERIA = {"COMP-STR-UNIT": "weaker than units", "COMP-STR-HIST": "not above historic",
-            "COMP-MOIST": "moisture openness", "COMP-MOVE": "movement",
-            "COMP-SALT": "salts", "COMP-GRAD": "grading", "COMP-COLOUR": "colour ΔE00"}
-#: The durability matrix: check code → short heading; SITE-SET runs per mix and DUR-SOUND per
-#: binder (the worst of the mix's binders is shown).
-DURABILITY = {"DUR-FROST": "frost", "DUR-TSA": "thaumasite", "DUR-ETT": "ettringite",
-              "DUR-SOUND": "binder soundness", "SITE-SET": "setting", "DUR-RETAIN":
-              "water retention", "DUR-BOND": "render bond", "DUR-CARB": "carbonation"}
-FINDINGS = tuple(CRITERIA) + ("COMP-BLEND", "COMP-BA") + tuple(DURABILITY)
+
+def _columns(matrix: str) -> dict[str, str]:
+    """A matrix's columns, check code → short heading, as the checks declare them
+    (``@register(..., matrix=, column=)``), in run order."""
+    return {s.code: s.column for s in in_matrix(matrix) if s.column}
+
+
+def _findings() -> tuple[str, ...]:
+    """The checks listed under a zone's findings: the compatibility checks, then the durability
+    ones (SITE-SET runs per mix and DUR-SOUND per binder: see :func:`_durability_result`)."""
+    return tuple(s.code for m in ("compatibility", "durability") for s in in_matrix(m))
+
+
 PROPERTIES = (("compressive_strength", "compressive strength", 1e-6, "MPa"),
               ("elastic_modulus", "elastic modulus", 1e-9, "GPa"),
               ("capillary_coefficient", "capillary coefficient", ROOT_MIN, "kg/(m²·min^½)"),
@@ -77,8 +81,8 @@ def _material(kind: str, m) -> dict:
 def compatibility(env) -> dict:
     p = env.project
     zones = [_zone(env, z) for z in p.dossier.zones if z.candidates]
-    return {"zones": zones, "criteria": list(CRITERIA.values()),
-            "durability": list(DURABILITY.values()), "decides": DECIDES_TEXT}
+    return {"zones": zones, "criteria": list(_columns("compatibility").values()),
+            "durability": list(_columns("durability").values()), "decides": DECIDES_TEXT}
 
 
 DECIDES_TEXT = ("No standard acceptance threshold exists for the colour of repointing: a CIEDE2000 "
@@ -91,13 +95,13 @@ def _zone(env, z) -> dict:
     p = env.project
     pairs = zone_pairs(z, p)
     matrix = [{"mix": pr.mix_id, "name": pr.mix.name if pr.mix else "unknown mix",
-               "cells": [_cell(env.results.check(code, pr.subject)) for code in CRITERIA]}
+               "cells": [_cell(env.results.check(code, pr.subject)) for code in _columns("compatibility")]}
               for pr in pairs]
     durability = [{"mix": pr.mix_id, "cells": [_cell(_durability_result(env, code, pr))
-                                               for code in DURABILITY]} for pr in pairs]
+                                               for code in _columns("durability")]} for pr in pairs]
     findings = [{"code": c.code, "title": c.title, "subject": c.subject, "badge": badge(c.status),
                  "message": reader(c.message), "href": f"calculations.md#{sheet_anchor(c)}"}
-                for code in FINDINGS for pr in pairs if (c := env.results.check(code, pr.subject))]
+                for code in _findings() for pr in pairs if (c := env.results.check(code, pr.subject))]
     expose = env.results.check("DUR-EXPOSE", z.id)
     unit = pairs[0].unit if pairs else None
     hist = pairs[0].historic if pairs else None

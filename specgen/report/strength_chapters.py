@@ -8,6 +8,7 @@ Nothing is refitted or recomputed here.
 """
 from __future__ import annotations
 
+from specgen.checks.result import key_days
 from specgen.report.chapters import badge, chapter, sheet_anchor
 from specgen.report.fmt import num
 from specgen.report.wording import plain, reader
@@ -79,13 +80,13 @@ def _aggregates(r, mix: str) -> list[dict]:
     rows = []
     for test, ages in means.items():
         counts = {f"{m[0]:g}": m[3] for m in curves.get(test, {}).get("means", [])}
-        for age, m in sorted(ages.items(), key=lambda kv: float(kv[0][:-2])):
+        for age, m in sorted(ages.items(), key=lambda kv: key_days(kv[0])):
             cv = cvs.get(test, {}).get(age)
             fk, fkk = fks.get(test, {}).get(age), known.get(test, {}).get(age)
-            rows.append({"test": test, "age": age[:-2], "mean": num(m, 3),
+            rows.append({"test": test, "age": f"{key_days(age):g}", "mean": num(m, 3),
                          "sd": num(m * cv / 100, 2) if cv is not None else "—",
                          "cv": num(cv, 2) if cv is not None else "—",
-                         "n": counts.get(age[:-2], "—"),
+                         "n": counts.get(f"{key_days(age):g}", "—"),
                          "fk": num(fk, 3) if fk is not None else "—",
                          "fk_known": num(fkk, 3) if fkk is not None else "—"})
     return rows
@@ -128,7 +129,7 @@ def _reasoning(r, mix: str) -> list[dict]:
 def _predictions(pred: dict) -> list[dict]:
     rows = []
     for test, ages in pred.items():
-        for age, v in sorted(ages.items(), key=lambda kv: float(kv[0][:-2])):
+        for age, v in sorted(ages.items(), key=lambda kv: key_days(kv[0])):
             flags = [w for w, on in (("extrapolated", v["extrapolated"]),
                                      ("indicative: never decides", v["indicative"])) if on]
             rows.append({"test": test, "age": age, "value": num(v["value"], 3),
@@ -166,7 +167,7 @@ def _figure(env, mix, test: str, c: dict | None, rules) -> bytes:
             "curve": None, "limits": _limits(env, rules) if test == "compressive" else []}
     if c is None:
         means = (r.value(mix.id, "mean_strength") or {}).get(test, {})
-        data["means"] = [(float(a[:-2]), m, 0.0) for a, m in means.items()]
+        data["means"] = [(key_days(a), m, 0.0) for a, m in means.items()]
     elif c.get("usable", True):
         data.update(model="two-stage law with the family's prior", curve=c,
                     components={"aluminate": c["aluminate"], "silicate": c["silicate"]})

@@ -1,5 +1,5 @@
 """Bounded run of the strength-inference validation study (the full study:
-``specgen validate-strength``).  Targets from the issue: nominal 95 % intervals cover the true
+``python3 -m specgen.validation``).  Targets from the issue: nominal 95 % intervals cover the true
 90-day and 365-day strength, and score better than the prior alone (interval score, Gneiting &
 Raftery 2007, eq. 43)."""
 from __future__ import annotations
