@@ -22,6 +22,7 @@ from dataclasses import dataclass
 from specgen import refdata
 from specgen.checks import compatibility_common as cc
 from specgen.checks import durability_common as dc
+from specgen.checks import strength_common as sc
 from specgen.checks.registry import declare, register
 from specgen.checks.result import (
     Basis,
@@ -30,6 +31,7 @@ from specgen.checks.result import (
     Limit,
     Quantity,
     Step,
+    age_key,
     not_assessed,
 )
 from specgen.science import exposure as ex
@@ -284,7 +286,7 @@ def _strength_indicator(pair, ctx, regime):
     key = f"frost_strength_min_{regime}"
     lim = dc.rule(ctx, key)
     mean = ctx.quantity(pair.mix_id, "mean_strength")
-    f28 = ((mean.value or {}).get("compressive", {}) if mean else {}).get("28 d")
+    f28 = ((mean.value or {}).get("compressive", {}) if mean else {}).get(age_key(28 * sc.DAY))
     inputs = [dc.rule_input(ctx, "f_min", key)]
     if f28 is None:
         return inputs, r"f_{c,28}:\ \text{not tested}", \
