@@ -132,6 +132,23 @@ def handler_for(out: Path, state: State):
     return Handler
 
 
+def _snapshot(folder: Path) -> dict[str, str]:
+    """Every file under ``folder`` (the issued revisions' inputs): path from the project → hash."""
+    if not folder.is_dir():
+        return {}
+    return {f"{folder.name}/{p.relative_to(folder).as_posix()}":
+            hashlib.sha256(p.read_bytes()).hexdigest()
+            for p in sorted(folder.rglob("*")) if p.is_file()}
+
+
+def _frozen_text(paths: list[str], archive: str) -> str:
+    revs = sorted({p.split("/")[1] for p in paths if p.count("/") >= 2})
+    return (f"{', '.join(paths[:3])}{' …' if len(paths) > 3 else ''}: the inputs of issued "
+            f"revision{'s' if len(revs) > 1 else ''} {', '.join(revs)} are frozen, so the pages "
+            f"were not rebuilt. Fix: restore the file as issued (each issued PDF carries its "
+            f"inputs as attachments); a change belongs in the current draft, outside {archive}/.")
+
+
 class Previewer:
     """Builds the site, then the PDF in the background; rebuilds on change."""
 
@@ -139,6 +156,7 @@ class Previewer:
         self.project, self.out, self.state, self.say = project, out, state, say
         self.progress = progress or (lambda *a, **k: None)
         self.prepared = None
+        self._issued: dict[str, str] = {}   # issued inputs as last built: path → sha-256
         self.cache = cache_dir(project)
         self._pdf_thread: threading.Thread | None = None
         self._pdf_cv = threading.Condition()
@@ -147,14 +165,24 @@ class Previewer:
 
     def rebuild(self, changed: set[str] | None = None) -> bool:
         """One cycle: the site now, the PDF queued.  False (and a notice) on failure."""
-        from specgen.build import prepare, preview_site
+        from specgen.build import ARCHIVE_DIR, prepare, preview_site
         if changed:
             self.say("changed: " + ", ".join(sorted(changed)[:8])
                      + (f" and {len(changed) - 8} more" if len(changed) > 8 else ""))
         started = time.monotonic()
         try:
+            frozen = self._frozen_edits(changed or (), ARCHIVE_DIR)
+            if frozen:   # the inputs of an issued revision: never previewed as edited
+                raise UsageError(_frozen_text(frozen, ARCHIVE_DIR))
             prepared = prepare(self.project, self.out, reuse=self.prepared, cache_dir=self.cache,
                                progress=self.progress)
+            rev = prepared.project.revision
+            if changed and rev.status == "issued":
+                raise UsageError(
+                    f"{', '.join(sorted(changed)[:3])}: revision {rev.code} is issued, so its "
+                    "pages are not rebuilt from edited inputs. Fix: undo the edit, or open the "
+                    f"next draft (specgen issue, or set revision.code and status: draft in "
+                    "dossier.yaml) and make the change there.")
             target = preview_site(prepared, self.out)
         except SpecgenError as exc:
             text = exc.report() if isinstance(exc, InputErrors) else str(exc)
@@ -164,6 +192,7 @@ class Previewer:
             return False
         kept = self.prepared is not None and prepared.results is self.prepared.results
         self.prepared = prepared
+        self._issued = _snapshot(self.project / ARCHIVE_DIR)
         with self.state.lock:
             self.state.generation += 1
             self.state.revision, self.state.notice = target.name, ""
@@ -172,6 +201,17 @@ class Previewer:
                  + (" (check results kept: only narrative or templates changed)" if kept else ""))
         self._start_pdf(prepared, target, self.state.generation)
         return True
+
+    def _frozen_edits(self, changed, archive: str) -> list[str]:
+        """Changed paths inside an issued revision already built here (a revision issued since,
+        by ``specgen issue``, is new, not edited)."""
+        inside = [p for p in changed if p.startswith(archive + "/")]
+        if not inside:
+            return []
+        built = {p.split("/")[1] for p in self._issued}
+        now = _snapshot(self.project / archive)
+        return sorted(p for p in inside if p.count("/") >= 2 and p.split("/")[1] in built
+                      and now.get(p) != self._issued.get(p))
 
     def wait(self) -> None:
         """Return when no PDF is being printed or waiting to be."""

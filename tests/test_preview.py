@@ -121,3 +121,61 @@ def test_previewer_site_first_then_pdf_and_partial_rebuilds(tmp_path, monkeypatc
     assert "Edited introduction." in (out / "R1" / "index.html").read_text()
     pv.wait()
     assert state.pdf == "ready" and (out / "R1" / state.pdf_name).is_file()
+
+
+class _Rev:
+    def __init__(self, code, status):
+        self.code, self.status = code, status
+
+
+class _Prepared:
+    def __init__(self, status="draft"):
+        self.project = type("P", (), {"revision": _Rev("R2", status)})()
+        self.results = object()
+
+
+def _previewer(tmp_path, monkeypatch, status="draft"):
+    """A previewer whose prepare and site steps are stand-ins (what is tested here is what it
+    does with a change before and after them, not the build)."""
+    import specgen.build
+    from specgen.preview import Previewer
+    built = []
+    monkeypatch.setattr(specgen.build, "prepare", lambda *a, **k: _Prepared(status))
+
+    def site(prepared, out):
+        built.append(prepared)
+        (out / "R2").mkdir(parents=True, exist_ok=True)
+        return out / "R2"
+    monkeypatch.setattr(specgen.build, "preview_site", site)
+    project = tmp_path / "p"
+    (project / "issued" / "R1").mkdir(parents=True)
+    (project / "issued" / "R1" / "mixes.yaml").write_text("mixes: []\n")
+    state = State()
+    pv = Previewer(project, tmp_path / "out", state, say=lambda text: None)
+    pv._start_pdf = lambda *a: None     # no PDF in these tests
+    return pv, state, project, built
+
+
+def test_an_edit_to_an_issued_revision_is_not_previewed_and_says_why(tmp_path, monkeypatch):
+    pv, state, project, built = _previewer(tmp_path, monkeypatch)
+    assert pv.rebuild() and len(built) == 1 and state.notice == ""
+    (project / "issued" / "R1" / "mixes.yaml").write_text("mixes: [edited]\n")
+    assert not pv.rebuild({"issued/R1/mixes.yaml"})
+    assert len(built) == 1                                  # nothing rebuilt
+    assert "issued/R1/mixes.yaml: the inputs of issued revision R1 are frozen" in state.notice
+    assert "Fix: restore the file as issued" in state.notice
+    # (the server shows state.notice on every page: test_a_page_not_rebuilt_carries_the_error_text)
+    # a revision issued since (a new folder, as `specgen issue` writes it) is not an edit
+    (project / "issued" / "R1" / "mixes.yaml").write_text("mixes: []\n")
+    (project / "issued" / "R2").mkdir()
+    (project / "issued" / "R2" / "mixes.yaml").write_text("mixes: []\n")
+    assert pv.rebuild({"issued/R2/mixes.yaml", "issued/R1/mixes.yaml"})
+    assert len(built) == 2 and state.notice == ""
+
+
+def test_an_edit_while_the_current_revision_is_issued_is_not_previewed(tmp_path, monkeypatch):
+    pv, state, project, built = _previewer(tmp_path, monkeypatch, status="issued")
+    assert pv.rebuild()                                     # the first build shows it
+    assert not pv.rebuild({"mixes.yaml"})
+    assert len(built) == 1
+    assert "mixes.yaml: revision R2 is issued, so its pages are not rebuilt" in state.notice

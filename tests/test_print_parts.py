@@ -187,3 +187,44 @@ def test_assembled_pdf_is_tagged(tmp_path):
     assert found.duplicate_ids == []
     assert set(reader.attachments) == {"a.txt"}
     assert pdfmod.PDF_OPTIONS["pdf_variant"] == "pdf/a-3a"
+
+
+def test_a_raster_inside_a_figure_reaches_the_pdf_and_nothing_else_inline_does(tmp_path):
+    """matplotlib writes the raster under a drawing's overlay into the SVG as a base64 data
+    URL (its SVG backend's behaviour); the PDF shows it. Inline content of other types, and
+    every other URL, stay refused."""
+    import io
+    from types import SimpleNamespace
+
+    import matplotlib
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+    import numpy as np
+    from pypdf import PdfReader
+
+    from specgen.publish.pdf import write_pdf
+    from specgen.publish.pdf_parts import _inline_image
+    from specgen.report.pageset import PageSet
+    fig, ax = plt.subplots(figsize=(2, 1))
+    ax.imshow(np.arange(64, dtype=float).reshape(8, 8))
+    buf = io.BytesIO()
+    fig.savefig(buf, format="svg")
+    plt.close(fig)
+    svg = buf.getvalue()
+    assert b"data:image/png;base64," in svg          # what matplotlib's SVG holds
+    pages = PageSet()
+    name = pages.add_asset("figures/sheet.svg", svg)
+    pages.add_page("index.md", "Summary", f"# Summary\n\n![A drawing sheet]({name})\n")
+    project = SimpleNamespace(title="Test pier", site="Nowhere", client="Nobody", code="T-1")
+    context = {"title": "Test pier — revision A", "author": "specgen tests", "subject": "s",
+               "keywords": "k", "date": "2026-01-01", "project": project,
+               "revision": SimpleNamespace(code="A"), "state": "draft", "purpose": "preliminary"}
+    target = tmp_path / "t.pdf"
+    write_pdf(pages, context, target, attachments={}, workers=1)
+    assert any(len(p.images) for p in PdfReader(str(target)).pages)
+    # only PNG and JPEG rasters, base64, within the size limit
+    assert _inline_image("https://example.org/x.png") is None
+    for bad in ("data:text/html;base64,PHNjcmlwdD4=", "data:image/svg+xml;base64,PHN2Zy8+",
+                "data:image/png,raw", "data:image/png;base64,@@@"):
+        with pytest.raises(ValueError):
+            _inline_image(bad)

@@ -101,6 +101,28 @@ def _quietly(write, **options) -> bytes:
         log.removeFilter(only)
 
 
+INLINE_TYPES = ("image/png", "image/jpeg")
+INLINE_LIMIT = 16 * 2**20   # bytes of one inline image (a drawing sheet under its overlay)
+
+
+def _inline_image(url: str):
+    """(type, bytes) of a base64 ``data:`` URL of a PNG or JPEG image (matplotlib writes the
+    raster under a drawing's overlay so), None for any other URL; an inline image of another
+    type, too large or not decodable is refused like any other outside resource."""
+    if not url.startswith("data:"):
+        return None
+    import base64
+    import binascii
+    head, _, body = url[5:].partition(",")
+    kind, _, enc = head.partition(";")
+    if kind not in INLINE_TYPES or enc != "base64" or len(body) > INLINE_LIMIT * 4 // 3 + 4:
+        raise ValueError(f"the PDF may only use the dossier's own assets, not {url[:60]}…")
+    try:
+        return kind, base64.b64decode("".join(body.split()), validate=True)
+    except (binascii.Error, ValueError):
+        raise ValueError("an inline image of a figure is not valid base64") from None
+
+
 def _fetcher(pageset):
     import mimetypes
 
@@ -110,6 +132,9 @@ def _fetcher(pageset):
         """Serves the page set's assets; refuses every other URL (no network, no disk)."""
 
         def fetch(self, url, headers=None):
+            inline = _inline_image(url)
+            if inline is not None:     # a raster inside a figure of ours: no fetch at all
+                return URLFetcherResponse(url[:40], inline[1], {"Content-Type": inline[0]})
             path = url[len(BASE):] if url.startswith(BASE) else None
             if path is None or path not in pageset.assets:
                 raise ValueError(f"the PDF may only use the dossier's own assets, not {url}")
