@@ -84,11 +84,12 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     pdf_tmp = staging.with_name(staging.name + ".pdf")  # beside the site: MkDocs empties its folder
     app_tmp = staging.with_name(staging.name + APPENDIX_SUFFIX)
     try:
-        write_pdf(pages, _print_context(project, pages.marks), pdf_tmp,
-                  attachments=attachments,
-                  page_size=page_size, identifier=ident, stamp=_stamp(rev.date),
-                  on_part=lambda done, total: progress("publish: PDF parts", done, total),
-                  appendix=(app_tmp, appendix_pdf_name(project), pdf_name(project)))
+        reused, total = write_pdf(
+            pages, _print_context(project, pages.marks), pdf_tmp, attachments=attachments,
+            page_size=page_size, identifier=ident, stamp=_stamp(rev.date),
+            on_part=lambda done, total: progress("publish: PDF parts", done, total),
+            appendix=(app_tmp, appendix_pdf_name(project), pdf_name(project)))
+        progress("publish: PDF parts taken unchanged from the cache", reused, total)
         if child is not None:
             _join(child)
             child = None

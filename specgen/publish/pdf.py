@@ -19,6 +19,7 @@ import yaml
 
 from specgen.errors import PublishError
 from specgen.killpoints import reached
+from specgen.publish.pdf_assembly import global_anchors
 from specgen.refdata import CONTENT_DIR
 
 PRINT_DIR = CONTENT_DIR / "print"
@@ -221,97 +222,127 @@ def volumes(every: list[Piece], target, appendix) -> list[Volume]:
 
 def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
               page_size: str = "a4", identifier: bytes | None = None, stamp=None,
-              workers: int | None = None, on_part=None, appendix=None) -> None:
-    """Print the page set as a tagged PDF/A-3a at ``target`` with ``attachments`` embedded.
+              workers: int | None = None, on_part=None, appendix=None) -> tuple[int, int]:
+    """Print the page set as a tagged PDF/A-3a at ``target`` with ``attachments`` embedded;
+    returns (chapter parts taken unchanged from the cache, chapter parts).
 
-    With ``appendix`` ((path, file name, the main volume's file name)) the appendices print
-    as a second PDF of their own, with its own cover and contents; links between the two
-    volumes open the other file at the place linked (the main volume carries the
-    attachments).  The chapters are printed in parts on every core (unchanged parts come
-    from the artefact cache), the front matter once their page numbers are known, the
-    running heads last; :mod:`specgen.publish.pdf_assembly` puts them together.  ``stamp``
-    (a datetime, the revision date) dates the attachments, so identical inputs give a
-    byte-identical PDF.  ``on_part(done, total)`` is called as the chapter parts come back
-    (for a progress display).
+    The chapters are printed in parts on every core, the costliest first (the CPU time each
+    part took last time, kept in the artefact cache; its HTML size when new), the front
+    matter once their page numbers are known, the running heads last;
+    :mod:`specgen.publish.pdf_assembly` puts them together.  Whatever has not changed — a
+    part, the front matter, the running heads, the assembled whole — comes from the
+    artefact cache, byte for byte as it was drawn.  ``stamp`` (a datetime, the revision
+    date) dates the attachments, so identical inputs give a byte-identical PDF.
+    ``on_part(done, total)`` is called as the chapter parts come back (for a progress
+    display).
     """
-    from specgen.publish.pdf_assembly import assemble, global_anchors
     from specgen.publish.pdf_parts import Printer
     vols = volumes(pieces(pageset), target, appendix)
     files = [(name, data, stamp) for name, data in sorted(attachments.items())]
+    reused = total = 0
+    done = {}
     with Printer(pageset, workers) as printer:
-        _print_parts(printer, vols, context, page_size, on_part)
-        for v in vols:
-            extra = {"attachments": files} if v.key == "main" else {}
+        for v in vols:  # with ``appendix``: the report, then its appendices (own contents)
             ident = identifier if v.key == "main" or identifier is None else \
                 hashlib.sha256(identifier + b"/appendix").digest()[:16]
-            _front_and_stamps(printer, v, context, page_size, pdf_identifier=ident, **extra)
-        reached("pdf-front")
-        for v in vols:
-            v.stamps = [s.result() for s in v.stamps]
-    anchors = {v.key: global_anchors([v.front, *v.printed]) for v in vols}
+            final = dict(attachments=files, pdf_identifier=ident) if v.key == "main" else \
+                dict(pdf_identifier=ident)
+            done[v.key] = _print_volume(printer, v, context, page_size, on_part, final)
+            reused += sum(1 for p in done[v.key][1] if not p.seconds)
+            total += len(done[v.key][1])
+    anchors = {k: global_anchors([d[0], *d[1]]) for k, d in done.items()}
     for v in vols:
         other = [o for o in vols if o is not v]
         foreign = (other[0].name, anchors[other[0].key]) if other else None
-        assemble(v.front, v.printed, v.stamps, v.target, foreign=foreign,
-                 exported=_linked_from(other[0], anchors[v.key]) if other else set())
+        linked = {t for doc in ([done[other[0].key][0], *done[other[0].key][1]] if other else [])
+                  for _p, kind, t, _r in doc.links if kind == "internal" and t in anchors[v.key]}
+        _assembled(*done[v.key], v.target, foreign, linked)
     reached("pdf-assembled")
+    return reused, total
 
 
-def _linked_from(vol: Volume, anchors: dict) -> set[str]:
-    """The anchors of this volume (``anchors``) that the other volume ``vol`` links to."""
-    return {target for doc in [vol.front, *vol.printed] for _p, kind, target, _r in doc.links
-            if kind == "internal" and target in anchors}
-
-
-def _print_parts(printer, vols: list[Volume], context: dict, page_size: str, on_part) -> None:
-    """Every volume's chapter parts, largest first on the workers, gathered in order."""
-    from specgen.publish.pdf_parts import cached_or_submitted
-    css = stylesheet(page_size, "parts.css", "control.css")
-    jobs = [(v, g) for v in vols for g in parts(v.pieces)]
-    order = sorted(range(len(jobs)), key=lambda i: -sum(len(p.html) for p in jobs[i][1]))
-    handles = {i: cached_or_submitted(printer, "pdf-part", document_html(
-        context, jobs[i][1], front=False), css, **PDF_OPTIONS) for i in order}
-    for v in vols:
-        v.printed = []
-    for i, (v, _group) in enumerate(jobs):
-        v.printed.append(handles[i].result())
-        reached(f"pdf-part-{i + 1}")
-        if on_part is not None:
-            on_part(i + 1, len(jobs))
-
-
-def _front_and_stamps(printer, v: Volume, context: dict, page_size: str, **extra) -> None:
-    """The volume's cover and contents, numbered once its parts' pages are known, and the
-    running-head stamps of its every page."""
-    from specgen.publish.pdf_assembly import global_anchors
+def _print_volume(printer, v, context: dict, page_size: str, on_part, final: dict):
+    """One volume's parts, front matter and stamps: (front, printed parts, stamps)."""
+    from specgen.publish.pdf_parts import Timings, cached_or_submitted
+    every = v.pieces
     css = stylesheet(page_size, "parts.css", "control.css")
     ctx = dict(context, volume=VOLUME_WORDS[v.key], other_name=v.other_name)
+    groups = parts(every)
+    timings = Timings.load([_part_name(g, every) for g in groups],
+                           getattr(context.get("project"), "code", "") + v.name)
 
-    def front(numbers, **more):
-        return printer.submit(document_html(ctx, [], front=True, toc=v.pieces,
-                                            toc_pages=numbers, elsewhere=v.other), css,
-                              **PDF_OPTIONS, **more)
-    length = len(front({p.id: PLACEHOLDER_PAGE for p in v.pieces}).result().pages)
-    sizes = [size for doc in v.printed for size in doc.pages]
+    def front(numbers, **extra):
+        return cached_or_submitted(printer, "pdf-front", document_html(
+            ctx, [], front=True, toc=every, toc_pages=numbers, elsewhere=v.other), css,
+            **PDF_OPTIONS, **extra)
+    guess = front({p.id: PLACEHOLDER_PAGE for p in every})
+    handles = {i: cached_or_submitted(printer, "pdf-part", document_html(
+        ctx, groups[i], front=False), css, **PDF_OPTIONS)
+        for i in timings.order([sum(len(p.html) for p in g) for g in groups])}
+    printed = []
+    for i in range(len(groups)):
+        printed.append(handles[i].result())
+        reached(f"pdf-part-{i + 1}")
+        if on_part is not None:
+            on_part(i + 1, len(groups))
+    timings.keep([p.seconds for p in printed])
+    front_doc, stamps = _front_and_stamps(front, printer, ctx, page_size, every, printed,
+                                          len(guess.result().pages), final)
+    return front_doc, printed, stamps
+
+
+def _part_name(group: list[Piece], every: list[Piece]) -> str:
+    """A part's name from one build to the next: its first piece's chapter and place in it."""
+    first = group[0]
+    return f"{first.id}#{sum(1 for p in every[:every.index(first)] if p.id == first.id)}"
+
+
+def _front_and_stamps(front, printer, context, page_size, every, printed, length, final):
+    """The front matter with the chapters' page numbers, and the running-head stamps."""
+    sizes = [size for doc in printed for size in doc.pages]
     for _ in range(3):  # the contents' length does not depend on its numbers, but check
-        anchors = global_anchors(v.printed, start=length)
-        numbers = {p.id: anchors[p.id][0] + 1 for p in v.pieces if p.id in anchors}
-        final = front(numbers, **extra)
-        v.stamps = _stamps(printer, ctx, page_size, length, sizes)
-        v.front = final.result()
-        if len(v.front.pages) == length:
-            return
-        length = len(v.front.pages)
-    raise PublishError("the contents pages changed length with their page numbers "
-                       "three times; nothing was changed in the output folder. Fix: "
-                       "report this with the project.")
+        anchors = global_anchors(printed, start=length)
+        numbers = {p.id: anchors[p.id][0] + 1 for p in every if p.id in anchors}
+        handle = front(numbers, **final)
+        stamps = _stamps(printer, context, page_size, length, sizes)
+        done = handle.result()
+        if len(done.pages) == length:
+            break
+        length = len(done.pages)
+    else:
+        raise PublishError("the contents pages changed length with their page numbers "
+                           "three times; nothing was changed in the output folder. Fix: "
+                           "report this with the project.")
+    reached("pdf-front")
+    return done, [s.result() for s in stamps]
+
+
+def _assembled(front, printed, stamps, target, foreign=None, exported=frozenset()) -> None:
+    """The parts put together (:func:`pdf_assembly.assemble`), from the artefact cache when
+    the same front matter, parts and stamps were put together before."""
+    import hashlib
+    import io
+    from pathlib import Path
+
+    from specgen import cache
+    from specgen.publish.pdf_assembly import assemble
+
+    def produce() -> bytes:
+        buffer = io.BytesIO()
+        assemble(front, printed, stamps, buffer, foreign=foreign, exported=exported)
+        return buffer.getvalue()
+    key = [hashlib.sha256(doc.to_bytes()).hexdigest() for doc in (front, *printed, *stamps)]
+    key += [foreign[0] if foreign else "", sorted(exported),
+            sorted(foreign[1]) if foreign else []]
+    Path(target).write_bytes(cache.cached("pdf-whole", key, produce))
 
 
 STAMP_SPLIT = 400  # pages per stamp document
 
 
 def _stamps(printer, context, page_size: str, front_pages: int, sizes: list) -> list:
-    """Submit the running-head stamps: one page per page of the volume."""
+    """Submit the running-head stamps: one page per page of the dossier."""
+    from specgen.publish.pdf_parts import cached_or_submitted
     total = front_pages + len(sizes)
     kinds = ["cover"] + [None] * (front_pages - 1) + ["wide" if w > h else None for w, h in sizes]
     pages = [{"number": i + 1, "kind": k} for i, k in enumerate(kinds)]
@@ -319,8 +350,7 @@ def _stamps(printer, context, page_size: str, front_pages: int, sizes: list) -> 
     tpl = _template("stamp.html.j2")
     project, revision = context["project"].title, context["revision"].code
     folio = context.get("volume", VOLUME_WORDS["main"])["folio"]
-    return [printer.submit(tpl.render(pages=pages[i:i + STAMP_SPLIT], total=total,
-                                      title=context["title"], project=project, folio=folio,
-                                      revision=revision, mark=context.get("mark", "")), css,
-                           **PDF_OPTIONS)
-            for i in range(0, total, STAMP_SPLIT)]
+    return [cached_or_submitted(printer, "pdf-stamp", tpl.render(
+        pages=pages[i:i + STAMP_SPLIT], total=total, title=context["title"], project=project,
+        folio=folio, revision=revision, mark=context.get("mark", "")), css, **PDF_OPTIONS)
+        for i in range(0, total, STAMP_SPLIT)]
