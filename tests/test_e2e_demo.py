@@ -204,11 +204,11 @@ def test_distribution_list_is_printed_as_the_project_states_it(demo_build):
     recipients = yaml.safe_load((DEMO / "dossier.yaml").read_text())["distribution"]
     assert len(recipients) == 3
     summary = (demo_build / REV / "index.html").read_text()
-    assert "Distribution" in summary
-    rows = [summary.index(f"<td>{r['organisation']}</td>") for r in recipients]
+    table = summary[summary.index("Distribution</"):]      # the table under its caption
+    rows = [table.index(f"<td>{r['organisation']}</td>") for r in recipients]
     assert rows == sorted(rows)
     for r in recipients:
-        assert f"<td>{r['name']}</td>" in summary and f"<td>{r['purpose']}</td>" in summary
+        assert f"<td>{r['name']}</td>" in table and f"<td>{r['purpose']}</td>" in table
     reader = PdfReader(str(demo_build / REV / f"WEP-2026-{REV}.pdf"))
     text = " ".join(" ".join(p.extract_text().split()) for p in reader.pages[:6])
     for r in recipients:
