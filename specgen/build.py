@@ -105,7 +105,8 @@ def _previous(old: Project | None) -> Previous | None:
 
 @fits.kept()  # each strength fit once per call (checks/fits.py)
 def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None = None,
-          progress: Callable[..., None] = _quiet, rebuild: dict[str, str] | None = None) -> Path:
+          progress: Callable[..., None] = _quiet, rebuild: dict[str, str] | None = None,
+          shared_cache: Path | str | None = None) -> Path:
     """Build the project's revision (and missing archived ones) into ``out_dir/<revision>/``.
 
     ``rebuild`` maps an issued revision's code to the reason for rebuilding it from inputs
@@ -113,8 +114,7 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None
     stops the build before anything is written.  ``page_size`` (``a4`` or ``letter``)
     overrides the paper of the practice each revision states (A4 when it states none).
     ``progress(step, done=None, total=None)`` hears each stage as it starts and, where the
-    work is counted (the PDF's parts), how much of it is done.
-    """
+    work is counted (the PDF's parts), how much of it is done.  ``shared_cache``: cache.py."""
     progress("load: reading and validating the project folder")
     project = load(project_dir)
     archived = _load_archive(Path(project_dir), project)
@@ -134,7 +134,7 @@ def build(project_dir: Path | str, out_dir: Path | str, *, page_size: str | None
     from specgen import cache
     # unchanged figures and math are reused from the output folder's artefact cache;
     # after a complete build it keeps only what this build used
-    with cache.using(out / cache.CACHE_DIR) as used:
+    with cache.using(out / cache.CACHE_DIR, cache.shared_folder(shared_cache)) as used:
         for old, before in zip(archived, previous):
             if old.revision.code in stale:
                 progress(f"revision {old.revision.code} (issued, from {ARCHIVE_DIR}/)")
@@ -214,7 +214,7 @@ def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | N
         progress("check: running the checks and the consistency audit")
         results = evaluate(project, previous=_previous(archived[-1] if archived else None))
     progress("render: pages, figures and calculation sheets")
-    with cache.using(cache_dir or Path(out_dir) / cache.CACHE_DIR):
+    with cache.using(cache_dir or Path(out_dir) / cache.CACHE_DIR, cache.shared_folder()):
         pages = render(project, results, history_for(Path(out_dir), project, results))
     _fix_dates(project.revision.date)
     return Prepared(project, results, pages, key)
@@ -231,7 +231,7 @@ def preview_pdf(prepared: Prepared, target: Path, *, cache_dir: Path | str | Non
     """Print the prepared revision's PDF into ``target`` (parts from the artefact cache)."""
     from specgen.publish.preview import pdf_only
     from specgen import cache
-    with cache.using(cache_dir or target.parent / cache.CACHE_DIR):
+    with cache.using(cache_dir or target.parent / cache.CACHE_DIR, cache.shared_folder()):
         return pdf_only(prepared.project, prepared.results, prepared.pages, target,
                         on_part=lambda done, total: progress("PDF parts", done, total))
 
@@ -258,12 +258,13 @@ def _fix_dates(date: dt.date) -> None:
 # ---------------------------------------------------------------- the life of a revision
 def issue(project_dir: Path | str, out_dir: Path | str, *, date: dt.date | None = None,
           purpose: str | None = None, next_code: str | None = None, page_size: str = "a4",
-          progress: Callable[[str], None] = _quiet) -> dict:
+          progress: Callable[[str], None] = _quiet, shared_cache: Path | None = None) -> dict:
     """Issue the current draft: freeze its inputs into ``issued/<code>/`` with the date and
     purpose, build it (manifest stamped ``issued``), then open the next draft revision.
 
     Refused (nothing changed) when the revision is already issued or, for construction, while
-    the audit has blocking findings."""
+    the audit has blocking findings.  What the draft's build drew comes from the cache."""
+    from specgen import cache
     from specgen.publish import archive
     root = Path(project_dir)
     project = load(root)
@@ -281,7 +282,8 @@ def issue(project_dir: Path | str, out_dir: Path | str, *, date: dt.date | None 
         issued = load(staging)
         results = evaluate(issued, previous=_previous(archived[-1] if archived else None))
         refuse_if_findings(issued, results)
-        built = _build_one(issued, results, Path(out_dir), page_size, progress)
+        with cache.using(Path(out_dir) / cache.CACHE_DIR, cache.shared_folder(shared_cache)):
+            built = _build_one(issued, results, Path(out_dir), page_size, progress)
         archive.commit(staging, rev.code)
     finally:
         if staging.exists():

@@ -10,6 +10,13 @@ and drawn again, never published.  The cache lives in
 ``OUT/.cache/`` (one per output folder, set by :func:`using`); without it nothing is
 cached.  Entries are written to a temporary file and renamed, so a killed build never
 leaves a half-written entry.
+
+A *shared* cache (``specgen build --shared-cache DIR``, or ``SPECGEN_SHARED_CACHE``) is a
+second level behind the output folder's: a miss there is looked up in the shared folder
+(and copied into the output folder's cache when found), and every new entry is kept in
+both.  One shared folder serves every output folder and checkout of a machine (a review
+copy, a letter-paper copy, a CI cache); it is never pruned by a build (delete it at will),
+and its entries are checked on use like the others.
 """
 from __future__ import annotations
 
@@ -19,11 +26,21 @@ import functools
 import hashlib
 import json
 import os
+import threading
 from pathlib import Path
 
 _DIR: contextvars.ContextVar[Path | None] = contextvars.ContextVar("specgen_cache", default=None)
 _USED: contextvars.ContextVar[set | None] = contextvars.ContextVar("specgen_cache_used", default=None)
+_SHARED: contextvars.ContextVar[Path | None] = contextvars.ContextVar("specgen_cache_shared",
+                                                                     default=None)
 CACHE_DIR = ".cache"
+SHARED_ENV = "SPECGEN_SHARED_CACHE"
+
+
+def shared_folder(asked: Path | str | None = None) -> Path | None:
+    """The shared cache folder: ``asked``, else ``$SPECGEN_SHARED_CACHE``, else none."""
+    chosen = asked or os.environ.get(SHARED_ENV)
+    return Path(chosen) if chosen else None
 
 
 @functools.lru_cache(maxsize=1)
@@ -44,19 +61,24 @@ def code_version() -> str:
 
 
 @contextlib.contextmanager
-def using(folder: Path | str | None):
-    """Cache artefacts under ``folder`` for the duration of the block (None: no cache).
+def using(folder: Path | str | None, shared: Path | str | None = None):
+    """Cache artefacts under ``folder`` for the duration of the block (None: no cache), with
+    ``shared`` as the second level behind it (None: none).
 
-    Yields the set of entry paths read or written in the block (for :func:`prune`).
+    Yields the set of entry paths of ``folder`` read or written in the block (for
+    :func:`prune`).
     """
     used: set[Path] = set()
     token = _DIR.set(Path(folder) if folder is not None else None)
     token_used = _USED.set(used)
+    token_shared = _SHARED.set(Path(shared) if shared is not None and folder is not None
+                               else None)
     try:
         yield used
     finally:
         _DIR.reset(token)
         _USED.reset(token_used)
+        _SHARED.reset(token_shared)
 
 
 def prune(folder: Path | str, used: set[Path]) -> int:
@@ -91,12 +113,16 @@ def _entry(kind: str, inputs) -> Path | None:
     folder = _DIR.get()
     if folder is None:
         return None
-    key = key_of(kind, inputs)
-    path = folder / kind / key[:2] / key
+    path = folder / _relative(kind, inputs)
     used = _USED.get()
     if used is not None:
         used.add(path)
     return path
+
+
+def _relative(kind: str, inputs) -> Path:
+    key = key_of(kind, inputs)
+    return Path(kind) / key[:2] / key
 
 
 HEADER = b"specgen-cache/1 sha256="  # each entry: this, the hex digest of the data, "\n", data
@@ -112,6 +138,17 @@ def lookup(kind: str, inputs) -> bytes | None:
     path = _entry(kind, inputs)
     if path is None:
         return None
+    data = _read_checked(path)
+    shared = _SHARED.get()
+    if data is None and shared is not None:
+        data = _read_checked(shared / path.relative_to(_DIR.get()))
+        if data is not None:
+            _write(path, data)  # the output folder's cache holds what its build used
+    return data
+
+
+def _read_checked(path: Path) -> bytes | None:
+    """The data of the entry at ``path`` if it matches its digest; a bad entry is deleted."""
     try:
         raw = path.read_bytes()
     except OSError:
@@ -132,9 +169,16 @@ def store(kind: str, inputs, data: bytes) -> None:
     path = _entry(kind, inputs)
     if path is None:
         return
+    _write(path, data)
+    shared = _SHARED.get()
+    if shared is not None:
+        _write(shared / path.relative_to(_DIR.get()), data)
+
+
+def _write(path: Path, data: bytes) -> None:
     try:
         path.parent.mkdir(parents=True, exist_ok=True)
-        tmp = path.with_name(f".{path.name}.{os.getpid()}.tmp")
+        tmp = path.with_name(f".{path.name}.{os.getpid()}.{threading.get_ident()}.tmp")
         tmp.write_bytes(HEADER + hashlib.sha256(data).hexdigest().encode("ascii") + b"\n" + data)
         os.replace(tmp, path)
     except OSError:

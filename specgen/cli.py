@@ -124,8 +124,12 @@ def _progress(quiet: bool):
               help="rebuild issued revision REV although its inputs changed (needs --reason)")
 @click.option("--reason", default=None, help="why the issued revision is rebuilt (recorded in "
               "its manifest)")
+@click.option("--shared-cache", "shared_cache", type=click.Path(file_okay=False, path_type=Path),
+              default=None, envvar="SPECGEN_SHARED_CACHE",
+              help="an artefact cache shared by every output folder (figures, math, PDF parts), "
+              "behind OUT/.cache (default: $SPECGEN_SHARED_CACHE)")
 def build(directory: Path, out: Path | None, page_size: str | None, quiet: bool, rebuild: tuple,
-          reason: str | None) -> None:
+          reason: str | None, shared_cache: Path | None) -> None:
     """Build the site and PDF of the project's revision into OUT/<revision>/."""
     from specgen.build import build as run_build
     if rebuild and not (reason or "").strip():
@@ -134,7 +138,8 @@ def build(directory: Path, out: Path | None, page_size: str | None, quiet: bool,
     try:
         with _progress(quiet) as progress:
             target = run_build(directory, out or _default_out(directory), page_size=page_size,
-                               progress=progress, rebuild={r: reason for r in rebuild})
+                               progress=progress, rebuild={r: reason for r in rebuild},
+                               shared_cache=shared_cache)
     except SpecgenError as exc:
         _fail(exc)
     click.echo(f"Built {target} (open {target / 'index.html'})")
@@ -152,13 +157,18 @@ def build(directory: Path, out: Path | None, page_size: str | None, quiet: bool,
               "number raised by one)")
 @click.option("--page-size", type=click.Choice(["a4", "letter"]), default="a4", show_default=True)
 @click.option("--quiet", is_flag=True, help="no progress display")
-def issue_cmd(directory: Path, out, date, purpose, next_code, page_size: str, quiet: bool) -> None:
+@click.option("--shared-cache", "shared_cache", type=click.Path(file_okay=False, path_type=Path),
+              default=None, envvar="SPECGEN_SHARED_CACHE",
+              help="an artefact cache shared by every output folder (figures, math, PDF parts), "
+              "behind OUT/.cache (default: $SPECGEN_SHARED_CACHE)")
+def issue_cmd(directory: Path, out, date, purpose, next_code, page_size: str, quiet: bool,
+              shared_cache: Path | None) -> None:
     """Issue the current draft: freeze its inputs under issued/, build it, open the next draft."""
     from specgen.build import issue
     try:
         done = issue(directory, out or _default_out(directory), date=date.date() if date else None,
                      purpose=purpose, next_code=next_code, page_size=page_size,
-                     progress=_progress(quiet))
+                     progress=_progress(quiet), shared_cache=shared_cache)
     except SpecgenError as exc:
         _fail(exc)
     click.echo(f"Issued {done['issued']} into {done['folder']}; inputs frozen in "

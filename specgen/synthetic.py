@@ -40,4 +40,10 @@ def write_project(root: Path, mixes: int, specimens: int = 3, ages=AGES_D, seed:
     (root / "dossier.yaml").write_text(dossier.replace("candidates: [M1]", "candidates: [M1, M2]"
                                                        if mixes > 1 else "candidates: [M1]"),
                                        encoding="utf-8")
+    # the synthetic strengths may fail a check of the starter's chosen mix: say why it stands
+    spec = root / "specification.yaml"
+    spec.write_text(spec.read_text(encoding="utf-8").replace(
+        "  - zone: Z1\n    mix: M1\n", "  - zone: Z1\n    mix: M1\n    justification: >-\n"
+        "      A synthetic project for benchmarks: the choice is no design decision.\n", 1),
+        encoding="utf-8")
     return root

@@ -67,6 +67,22 @@ def cli():
     return run
 
 
+@pytest.fixture(scope="session", autouse=True)
+def shared_cache(tmp_path_factory):
+    """One artefact cache shared by every build of the session (``SPECGEN_SHARED_CACHE``,
+    inherited by the builds run as subprocesses): a figure, formula or PDF part drawn once
+    is not drawn again for another output folder.  A test about a cold build removes it
+    (``monkeypatch.delenv``)."""
+    folder = tmp_path_factory.mktemp("shared-cache")
+    before = os.environ.get("SPECGEN_SHARED_CACHE")
+    os.environ["SPECGEN_SHARED_CACHE"] = str(folder)
+    yield folder
+    if before is None:
+        os.environ.pop("SPECGEN_SHARED_CACHE", None)
+    else:
+        os.environ["SPECGEN_SHARED_CACHE"] = before
+
+
 @pytest.fixture(scope="session")
 def demo_build(tmp_path_factory) -> Path:
     """One build of demo_project shared by every end-to-end test (returns OUT)."""

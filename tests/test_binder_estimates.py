@@ -76,15 +76,3 @@ def test_clay_borderline_when_the_two_methods_straddle(demo_copy):
     assert c.value == pytest.approx(26.3, abs=1e-6)
     assert c.status == "attention"
     assert "borderline: the non-carbonate residue (31.2 %) falls outside the range" in c.message
-
-
-def test_building_lime_against_its_declared_class(demo_copy):
-    _, r = check(demo_copy)
-    c = r.check("BIND-CLASS", "NH35")
-    # NHL-A SO3 0.8 % (demo data) against NHL at most 2 % SO3 (EN 459-1, from memory)
-    assert c.status == "pass" and c.value == 0.8 and c.limit.high == 2.0
-    assert r.check("BIND-CLASS", "NC1") is None          # a natural cement has no NHL class
-    edit(demo_copy / "analyses.yaml", "MgO: 1.5, SO3: 0.8, LOI: 17.0", "MgO: 1.5, SO3: 2.4, "
-          "LOI: 17.0")
-    _, r = check(demo_copy)
-    assert r.check("BIND-CLASS", "NH35").status == "fail"

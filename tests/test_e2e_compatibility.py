@@ -46,3 +46,18 @@ def test_fabric_chapter_lists_units_and_historic_mortars(demo_build):
     assert "<td>compressive strength</td>\n<td style=\"text-align: right;\">48 MPa</td>" in html
     assert "HM2 — Parapet render, weathered" in html
     assert "Northstead Materials Laboratory, report NML-4502" in html
+
+
+def test_durability_matrix_cells_read_in_words(demo_build):
+    """The durability table names what the sulfate checks found (no bare condition counts):
+    thaumasite needs C-S-H, sulfate, water, carbonate and cold together, ettringite aluminate,
+    sulfate and water (Thaumasite Expert Group 1999, from memory)."""
+    html = (demo_build / REV / "compatibility.html").read_text()
+    text = re.sub(r"\s+", " ", re.sub(r"<[^>]+>", " ", html))
+    tables = re.findall(r"Durability of the candidates in the exposure of zone Z\d(.*?)Figure",
+                        text)
+    assert len(tables) == 3
+    assert "all 5 conditions met" in tables[0] and "aluminate absent" in tables[0]
+    assert not any(re.search(r"(attention|pass|fail) \d+(\.\d+)? (attention|pass|fail|hold)",
+                             t) for t in tables)
+

@@ -138,9 +138,10 @@ def test_search_finds_a_known_term_offline(demo_build):
 # the starter (test_print_parts: a rebuild gives the same PDF bytes) and on the render
 # (test_render_cache: a cached render equals a fresh one, byte for byte)
 @pytest.mark.full
-def test_two_builds_are_byte_identical(demo_build, tmp_path):
+def test_two_builds_are_byte_identical(demo_build, tmp_path, monkeypatch):
     from specgen.build import build
     from tests.conftest import DEMO
+    monkeypatch.delenv("SPECGEN_SHARED_CACHE")  # cold: nothing drawn before is reused
     # the issued revisions as published (built only once); R3 drawn again from a cold cache
     for rev in ("R1", "R2"):
         shutil.copytree(demo_build / rev, tmp_path / rev)

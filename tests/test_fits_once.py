@@ -61,3 +61,28 @@ def test_fits_are_kept_within_one_call_only(made):
     # ... and a later call starts afresh (nothing kept between builds or tests)
     build.check(DEMO)
     assert sum(made.values()) == 2 * first
+
+
+def test_capillary_fits_and_colour_summaries_once_per_sample(monkeypatch, demo_copy):
+    """M2's capillary readings and each sample's colour readings serve every zone that has
+    the mix as a candidate (demo: M2 in all three zones, HM1/HM2 beside several candidates):
+    each distinct set of readings is fitted or summarised once per check.  (American practice
+    here: it fits the regression line; European practice takes EN 1015-18's two points.)"""
+    from specgen.science import colour, moisture
+    from tests.helpers import edit
+    edit(demo_copy / "dossier.yaml", "  follows: european", "  follows: american")
+    made: Counter = Counter()
+
+    def counting(kind, fn):
+        def wrapper(*args):
+            made[(kind, repr(args))] += 1
+            return fn(*args)
+        return wrapper
+    monkeypatch.setattr(moisture, "capillary_coefficient",
+                        counting("capillary", moisture.capillary_coefficient))
+    monkeypatch.setattr(colour, "summarise", counting("colour", colour.summarise))
+    build.check(demo_copy)
+    kinds = Counter(kind for kind, _ in made)
+    # demo lab/capillary.csv: one sample (M2); lab/colour.csv: HM1, HM2, M1, M2, M3
+    assert kinds["capillary"] == 1 and kinds["colour"] == 5, kinds
+    assert [k for k, n in made.items() if n > 1] == []

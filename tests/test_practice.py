@@ -177,3 +177,35 @@ def test_sieve_data_of_the_other_practice_without_saying_so(demo_copy):
             "written on the EN 933-2 / ISO 565 basic set of test sieves, but "
             "lab/sieves.csv gives 'HM1-agg' (row 14), 'S1' (row 2), 'S2' (row 8) on the "
             "ASTM E11 test sieves.") in problems(demo_copy)
+
+
+@pytest.mark.parametrize("block, override, paper", [
+    ("practice:\n  follows: european\n  mixing_reason: the laboratory sieves on ASTM E11\n",
+     None, "a4"),
+    ("practice:\n  follows: american\n", None, "letter"),
+    ("practice:\n  follows: american\n", "a4", "a4"),          # --page-size wins
+    ("practice:\n  follows: european\n  mixing_reason: the laboratory sieves on ASTM E11\n",
+     "letter", "letter"),
+    ("", None, "a4"),                 # no practice stated: A4, as build() documents
+])
+def test_paper_follows_the_practice_unless_overridden(demo_copy, block, override, paper):
+    from specgen.build import _paper, load
+    _follow(demo_copy, block)
+    assert _paper(load(demo_copy), override) == paper
+
+
+@pytest.mark.parametrize("paper, points", [
+    # ISO 216 A4 = 210 mm x 297 mm = 595.28 pt x 841.89 pt (1 pt = 1/72 in = 25.4/72 mm);
+    # ANSI/ASME Y14.1 Letter = 8.5 in x 11 in = 612 pt x 792 pt
+    ("a4", (210 / 25.4 * 72, 297 / 25.4 * 72)), ("letter", (612.0, 792.0)),
+])
+def test_the_print_stylesheet_prints_on_that_paper(paper, points):
+    import io
+
+    from pypdf import PdfReader
+    from weasyprint import CSS, HTML
+
+    from specgen.publish.pdf import stylesheet
+    pdf = HTML(string="<p>paper</p>").write_pdf(stylesheets=[CSS(string=stylesheet(paper))])
+    box = PdfReader(io.BytesIO(pdf)).pages[0].mediabox
+    assert (float(box.width), float(box.height)) == pytest.approx(points, abs=0.01)

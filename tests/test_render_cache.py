@@ -89,3 +89,45 @@ def test_prune_keeps_only_what_a_build_used(tmp_path):
     with cache.using(folder):
         assert cache.cached("figure-a", [1], lambda: b"never drawn") == b"a"
     assert sorted(p.parent.parent.name for p in folder.rglob("*") if p.is_file()) == ["figure-a"]
+
+
+def test_shared_cache_serves_every_output_folder(tmp_path):
+    """Behind each output folder's cache: a miss there is served from the shared folder (and
+    copied in, so the folder's cache holds what its build used); new entries go to both."""
+    shared, a, b = tmp_path / "shared", tmp_path / "a", tmp_path / "b"
+    calls = []
+
+    def draw():
+        calls.append(1)
+        return b"<svg>drawn once</svg>"
+    with cache.using(a, shared):
+        assert cache.cached("figure-x", [1], draw) == b"<svg>drawn once</svg>"
+    with cache.using(b, shared) as used:
+        assert cache.cached("figure-x", [1], draw) == b"<svg>drawn once</svg>"
+    assert len(calls) == 1                                   # drawn for a, served to b
+    assert _entries(a) == _entries(b) == _entries(shared) == {p.relative_to(b).as_posix()
+                                                             for p in used}
+    # an altered shared entry is discarded and drawn again, never served
+    (entry,) = [p for p in shared.rglob("*") if p.is_file()]
+    entry.write_bytes(entry.read_bytes().replace(b"once", b"twice"))
+    with cache.using(tmp_path / "c", shared):
+        assert cache.cached("figure-x", [1], draw) == b"<svg>drawn once</svg>"
+    assert len(calls) == 2
+    with cache.using(None, shared):                          # no folder: nothing cached
+        assert cache.lookup("figure-x", [1]) is None
+
+
+def test_parts_start_costliest_first_from_the_last_timings(tmp_path):
+    from specgen.publish.pdf_parts import Timings
+    names = ["page-a#0", "page-b#0", "page-b#1", "page-c#0"]
+    sizes = [1000, 4000, 2000, 3000]
+    with cache.using(tmp_path / "c"):
+        first = Timings.load(names, "P-1")
+        assert first.order(sizes) == [1, 3, 2, 0]            # nothing timed: by HTML size
+        first.keep([9.0, 1.0, 2.0, 0.0])                     # page-c came from the cache
+        again = Timings.load(names, "P-1")
+        # a took longest though smallest; c, untimed, is costed at the median seconds per
+        # character of the others (2 s / 2000): 3000 × 0.001 = 3 s, after a and before b
+        assert again.known == {"page-a#0": 9.0, "page-b#0": 1.0, "page-b#1": 2.0}
+        assert again.order(sizes) == [0, 3, 2, 1]
+        assert Timings.load(names, "P-2").known == {}         # another project's parts

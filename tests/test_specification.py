@@ -184,6 +184,20 @@ def test_clauses_follow_a_changed_requirement_and_rule(demo_copy):
                                  "season") for i in inputs)
 
 
+def test_clauses_name_the_exposure_and_the_durability_tests_as_hold_points(demo_copy):
+    """Each zone's clauses carry its exposure class and, as hold points, the tests the
+    durability checks asked for its chosen mix (EN 1996-1-1 Annex A classes, memory)."""
+    text, _, r = render_spec(demo_copy)
+    flat = " ".join(text.split())
+    assert "The work is in exposure class MX4 with MX3.2" in flat
+    for t in r.quantities["Z3"]["durability_tests"].value:
+        assert (f"**{t['test'][0].upper() + t['test'][1:]}.** Hold point: no work in this zone "
+                f"until the result is given to the specifier — {t['method']}") in flat
+    # Z3's chosen M3 (NHL 3.5) has no freeze–thaw test and no soundness result
+    assert {t["check"] for t in r.quantities["Z3"]["durability_tests"].value} == {
+        "DUR-FROST/Z3/M3", "DUR-SOUND/NH35"}
+
+
 def test_project_template_overrides_the_clause_wording(demo_copy):
     (demo_copy / "templates").mkdir()
     (demo_copy / "templates" / "specification_clauses.md.j2").write_text(

@@ -12,6 +12,7 @@ dossier says so, and says that trial panels judged dry by eye decide.
 from __future__ import annotations
 
 from specgen.checks import compatibility_common as cc
+from specgen.checks import fits
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, Input, Quantity, Step
 from specgen.science import colour
@@ -86,8 +87,8 @@ def _colour_one(pair, ctx):
             "the readings use different illuminant/observer conditions ("
             + ", ".join(f"{i}/{o}°" for i, o in sorted(conds)) + "): measure panel and historic "
             "mortar under the same conditions"], basis=(SHARMA,))
-    sp = colour.summarise([(r.L, r.a, r.b) for r in panel])
-    sh = colour.summarise([(r.L, r.a, r.b) for r in hist])
+    sp = fits.colour_summary([(r.L, r.a, r.b) for r in panel])
+    sh = fits.colour_summary([(r.L, r.a, r.b) for r in hist])
     de = colour.ciede2000(sp.mean, sh.mean)
     limit = ctx.rules["compatibility.colour_delta_e_max"].value
     ill, obs = conds.pop()

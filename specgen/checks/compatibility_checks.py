@@ -13,6 +13,7 @@ strength and stiffness hierarchy, moisture transport, movement.
 from __future__ import annotations
 
 from specgen.checks import compatibility_common as cc
+from specgen.checks import fits
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, Input, Quantity, Step, worst
 from specgen.science import moisture
@@ -154,7 +155,7 @@ def capillary(material, sample_id: str, project) -> tuple[float, str, Step | Non
     else:
         note = ""
     if rows:  # readings given are used, or the reason they cannot be is said (never ignored)
-        fit = moisture.capillary_coefficient([r.time for r in rows], [r.uptake for r in rows])
+        fit = fits.capillary([r.time for r in rows], [r.uptake for r in rows])
         c = fit.slope * ROOT_MIN
         inputs = tuple(Input("W_i", f"uptake at {r.time / 60:g} min", round(r.uptake, 4),
                              "kg/m²", f"{r.file} row {r.row}") for r in rows)

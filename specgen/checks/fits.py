@@ -1,10 +1,11 @@
-"""Each strength fit once per build.
+"""Each strength fit (and each capillary fit and colour summary) once per build.
 
 A build evaluates the current revision, the issued revision it is compared with, and any
 archived revision it publishes; their strength records are mostly the same series.  The fits
 are pure functions of their inputs, so inside one pipeline call (:func:`kept`, opened by
 ``specgen.build``) a fit made for a series is kept by its exact inputs and given to every
-evaluation that asks for the same series.  Outside one, every fit is made afresh.  The
+evaluation that asks for the same series.  The capillary fits and colour summaries of a
+sample are asked for once per zone and candidate: they are kept the same way.  Outside one, every fit is made afresh.  The
 render stage fits nothing: it draws the curves the checks recorded (``strength_curve``).
 """
 from __future__ import annotations
@@ -14,6 +15,7 @@ import contextvars
 
 import numpy as np
 
+from specgen.science import colour, moisture
 from specgen.science import strength_inference as si
 from specgen.science import strength_models as sm
 
@@ -52,3 +54,15 @@ def inference(ages_d, values_mpa, prior: si.Prior) -> si.Inference:
     """:func:`~specgen.science.strength_inference.fit` of a series with a prior, made once."""
     t, y = tuple(map(float, ages_d)), tuple(map(float, values_mpa))
     return _once(("inference", t, y, repr(prior)), lambda: si.fit(list(t), list(y), prior))
+
+
+def capillary(times_s, uptakes) -> moisture.CapillaryFit:
+    """:func:`~specgen.science.moisture.capillary_coefficient` of a sample's readings, made once."""
+    t, w = tuple(map(float, times_s)), tuple(map(float, uptakes))
+    return _once(("capillary", t, w), lambda: moisture.capillary_coefficient(list(t), list(w)))
+
+
+def colour_summary(readings) -> colour.LabSummary:
+    """:func:`~specgen.science.colour.summarise` of a sample's L*, a*, b* readings, made once."""
+    lab = tuple(tuple(map(float, r)) for r in readings)
+    return _once(("colour", lab), lambda: colour.summarise([list(r) for r in lab]))

@@ -10,6 +10,8 @@ soundness and only the test (behind a declared EN 459-1 class, or run for the pr
 """
 from __future__ import annotations
 
+from dataclasses import replace
+
 from specgen import refdata
 from specgen.checks import durability_common as dc
 from specgen.checks.chemistry_common import atomic_weights, binder_analysis, prepared
@@ -40,39 +42,57 @@ def soundness_check(binder, ctx) -> CheckResult:
 
 
 def _limits(binder, ctx):
+    """The rules of the binder's family: a building lime's (EN 459-1), a natural cement's
+    (ASTM C10/C10M where it gives one, else EN 197-1's cement limit), a portland cement's."""
     lime = binder.type in SLAKED
+    auto = ("autoclave_expansion_max_natural_cement" if binder.type == "natural_cement"
+            else "autoclave_expansion_max")
     return (dc.rule(ctx, "expansion_max_lime" if lime else "expansion_max_cement"),
             dc.rule(ctx, "free_cao_max_lime" if lime else "free_cao_max_cement"),
-            dc.rule(ctx, "free_mgo_max"), dc.rule(ctx, "autoclave_expansion_max"))
+            dc.rule(ctx, "free_mgo_max"), dc.rule(ctx, auto))
+
+
+def _so3(binder, ctx):
+    """(SO3 %, analysis id) of a natural cement, whose standard limits it; else None."""
+    if binder.type != "natural_cement":
+        return None
+    an = binder_analysis(binder, ctx.project)
+    if an is None or "SO3" not in an.mass_percent:
+        return None
+    return an.mass_percent["SO3"], an.id
 
 
 def _measured(binder, s, ctx) -> CheckResult:
     exp_r, cao_r, mgo_r, auto_r = _limits(binder, ctx)
     src = f"materials.yaml {binder.id}.soundness ({s.laboratory or 'laboratory not named'})"
     rows = [("E", "Le Chatelier expansion", None if s.expansion is None else s.expansion * 1e3,
-             "mm", exp_r, "expansion_max_lime" if binder.type in SLAKED else
-             "expansion_max_cement"),
+             "mm", exp_r, src),
             ("E_a", "autoclave expansion", None if s.autoclave_expansion is None
-             else 100 * s.autoclave_expansion, "%", auto_r, "autoclave_expansion_max"),
-            ("CaO_f", "free CaO", s.free_cao, "%", cao_r, cao_r.key.split(".")[1]),
-            ("MgO_f", "free MgO", s.free_mgo, "%", mgo_r, "free_mgo_max")]
+             else 100 * s.autoclave_expansion, "%", auto_r, src),
+            ("CaO_f", "free CaO", s.free_cao, "%", cao_r, src),
+            ("MgO_f", "free MgO", s.free_mgo, "%", mgo_r, src)]
+    so3 = _so3(binder, ctx)
+    if so3 is not None:
+        rows.append(("SO3", "SO3", so3[0], "%", dc.rule(ctx, "so3_max_natural_cement"),
+                     f"analysis {so3[1]}"))
     inputs, words, verdicts, used = [], [], {}, []
-    for sym, name, val, unit, r, key in rows:
+    for sym, name, val, unit, r, where in rows:
         if val is None:
             continue
-        inputs += [Input(sym, name, round(val, 4), unit, src), dc.rule_input(ctx, sym + ",max", key)]
+        inputs += [Input(sym, name, round(val, 4), unit, where),
+                   dc.rule_input(ctx, sym + ",max", r.key.split(".")[1])]
         ok = val <= r.value
         verdicts[sym] = "pass" if ok else "fail"
         used.append(r)
         words.append(f"{name} {val:g} {unit} {'≤' if ok else '>'} {r.value:g} {unit}")
     expansion = [verdicts[k] for k in ("E", "E_a") if k in verdicts]
-    oxides = [verdicts[k] for k in ("CaO_f", "MgO_f") if k in verdicts]
+    oxides = [verdicts[k] for k in ("CaO_f", "MgO_f", "SO3") if k in verdicts]
     tests = []
     if expansion:
         status = worst(expansion)
         if "fail" in oxides and status == "pass":
             status = "attention"
-            words.append("free oxides above the limit although the expansion is within it: "
+            words.append("oxides above the limit although the expansion is within it: "
                          "watch the trial panel for pop-outs")
     else:
         status = "fail" if "fail" in oxides else "attention"
@@ -81,7 +101,7 @@ def _measured(binder, s, ctx) -> CheckResult:
     status, notes = dc.memory_gate(ctx, status, used)
     step = Step("Measured soundness against the limits of the binder's family",
                 r"E \le E_{max},\ CaO_f \le CaO_{f,max},\ MgO_f \le MgO_{f,max}", tuple(inputs),
-                r",\ ".join(rf"\text{{{dc.tex(w)}}}" for w in words[:4]), float(len(verdicts)),
+                r",\ ".join(rf"\text{{{dc.tex(w)}}}" for w in words[:5]), float(len(verdicts)),
                 "", "n")
     head = next((i for i in inputs if i.symbol in ("E", "E_a")), inputs[0])
     return CheckResult(code="DUR-SOUND", title=TITLE, subject=binder.id, subject_kind="binder",
@@ -149,6 +169,19 @@ def _phase_risk(binder, ctx):
                      f"% over the aluminate assignments) > {cao_r.value:g} %")
     if rng.periclase > mgo_r.value:
         risks.append(f"periclase could reach {rng.periclase:.1f} % > {mgo_r.value:g} %")
+    so3 = _so3(binder, ctx)
+    if so3 is not None:
+        so3_r = dc.rule(ctx, "so3_max_natural_cement")
+        rel = ">" if so3[0] > so3_r.value else r"\le"
+        step = replace(step, title="Free lime, periclase and SO3 the analysis allows (no "
+                       "measurement of soundness)", inputs=step.inputs + (
+            Input("SO3", "SO3", so3[0], "%", f"analysis {so3[1]}"),
+            dc.rule_input(ctx, "SO3,max", "so3_max_natural_cement")),
+            formula=step.formula + r",\quad SO_3 \le SO_{3,max}",
+            substituted=step.substituted
+            + rf",\ SO_3 = {so3[0]:g} {rel} {so3_r.value:g}\,\%")
+        if so3[0] > so3_r.value:
+            risks.append(f"SO3 {so3[0]:g} % > {so3_r.value:g} % (ASTM C10/C10M)")
     q = {"free_lime": {k: round(v, 3) for k, v in rng.free_lime.items()},
          "periclase_max": round(rng.periclase, 3)}
     return [step], risks, q

@@ -58,8 +58,10 @@ def _retain_one(pair, ctx) -> CheckResult:
     suction = _suction(pair, ctx)
     if suction is None:
         return cc.not_assessed("DUR-RETAIN", RETAIN, pair, [
-            "the suction of the units is unknown: give initial_rate_of_absorption (or a "
-            "capillary coefficient) for the units in materials.yaml"])
+            "the suction of the units is unknown: commission their initial rate of "
+            "absorption (EN 772-11; ASTM C67) or capillary coefficient (EN 1925) and give "
+            "initial_rate_of_absorption (or capillary_coefficient) for the units in "
+            "materials.yaml"])
     high, inputs, used = suction
     need = dc.rule(ctx, "water_retention_min_high_suction" if high else "water_retention_min")
     wr = pair.props.water_retention if pair.props else None

@@ -123,7 +123,8 @@ def _verdict(code, title, pair, ctx, conds, severe: bool, basis, rules, what: st
     unknown = [c for c in conds if c.met is None]
     steps = [_step(f"Conditions of {what}", conds)]
     if absent:
-        return cc.result(code, title, pair, "pass", 0.0, "", basis,
+        return cc.result(code, title, pair, "pass",
+                         ", ".join(c.name for c in absent) + " absent", "", basis,
                          f"no {what} risk: " + "; ".join(f"{c.name} absent ({c.why})"
                                                          for c in absent), steps=steps)
     if unknown:
@@ -135,7 +136,7 @@ def _verdict(code, title, pair, ctx, conds, severe: bool, basis, rules, what: st
                          quantities=dc.tests_quantity(ctx, pair.subject, tests))
     status = "fail" if severe else "attention"
     status, notes = dc.memory_gate(ctx, status, rules, tables)
-    return cc.result(code, title, pair, status, float(len(conds)), "", basis,
+    return cc.result(code, title, pair, status, f"all {len(conds)} conditions met", "", basis,
                      f"{what} risk: every condition met — " + "; ".join(
                          f"{c.name}: {c.why}" for c in conds), steps=steps, notes=notes)
 

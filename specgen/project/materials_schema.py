@@ -75,6 +75,21 @@ class Firing(Model):
         return self
 
 
+class BinderClassTests(Model):
+    """Tests of a delivered building lime made to judge its declared EN 459-1 class (each one
+    result, tested to EN 459-2)."""
+
+    available_lime: PercentWithUnit | None = Field(
+        None, description="available lime as Ca(OH)2, mass % with its unit, e.g. '41 %'")
+    free_water: PercentWithUnit | None = Field(
+        None, description="free water, mass % with its unit, e.g. '0.8 %'")
+    strength_7d: Pressure | None = Field(
+        None, description="7-d compressive strength in the standard mortar, e.g. '2.1 MPa'")
+    strength_28d: Pressure | None = Field(
+        None, description="28-d compressive strength in the standard mortar, e.g. '4.6 MPa'")
+    laboratory: Text = Field("", description="laboratory and report reference")
+
+
 class Binder(Model):
     id: Id = Field(description="binder identifier")
     name: Text = Field(description="descriptive name (no trade names)")
@@ -90,6 +105,8 @@ class Binder(Model):
     bag_mass: Mass | None = Field(None, description="mass of one bag as supplied, e.g. '25 kg'")
     soundness: Soundness | None = Field(None, description="free lime, free MgO and expansion "
                                         "as measured")
+    class_tests: BinderClassTests | None = Field(
+        None, description="tests of the delivered lime against its declared EN 459-1 class")
 
 
 class Hygrothermal(Model):

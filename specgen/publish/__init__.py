@@ -77,10 +77,11 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
     ident = hashlib.sha256(f"{project.dossier.project.code}/{rev.code}".encode()).digest()[:16]
     pdf_tmp = staging.with_name(staging.name + ".pdf")  # beside the site: MkDocs empties its folder
     try:
-        write_pdf(pages, _print_context(project, pages.marks), pdf_tmp,
-                  attachments=attachments,
-                  page_size=page_size, identifier=ident, stamp=_stamp(rev.date),
-                  on_part=lambda done, total: progress("publish: PDF parts", done, total))
+        reused, total = write_pdf(
+            pages, _print_context(project, pages.marks), pdf_tmp, attachments=attachments,
+            page_size=page_size, identifier=ident, stamp=_stamp(rev.date),
+            on_part=lambda done, total: progress("publish: PDF parts", done, total))
+        progress("publish: PDF parts taken unchanged from the cache", reused, total)
         if child is not None:
             _join(child)
             child = None

@@ -18,6 +18,7 @@ import yaml
 
 from specgen.errors import PublishError
 from specgen.killpoints import reached
+from specgen.publish.pdf_assembly import global_anchors
 from specgen.refdata import CONTENT_DIR
 
 PRINT_DIR = CONTENT_DIR / "print"
@@ -113,12 +114,23 @@ def pieces(pageset, size: int = PART_SIZE) -> list[Piece]:
     out = []
     for item in pageset.nav:
         md = markdown.Markdown(extensions=names, extension_configs=configs)
-        body = _relink(neutralise_links(md.convert(pageset.pages[item.path])), _stem(item.path))
+        body = _relink(neutralise_links(_unmarked(md.convert(pageset.pages[item.path]))),
+                       _stem(item.path))
         body = _landscape_wide_tables(body)
         bounds = [0, *_cut_points(body, size), len(body)]
         for i, (a, b) in enumerate(zip(bounds, bounds[1:])):
             out.append(Piece(_page_id(item.path), item.title, body[a:b], cont=i > 0))
     return out
+
+
+# the site's per-page banners (draft, superseded, findings: report/marks.py), which print
+# hides (control.css: the running head carries the mark); left out of the print HTML, so a
+# chapter prints the same, and comes from the cache, whatever the revision's state
+_SCREEN_MARK = re.compile(r'<div class="sg-mark sg-mark-\w+" role="note">.*?</div>\n*', re.S)
+
+
+def _unmarked(html: str) -> str:
+    return _SCREEN_MARK.sub("", html)
 
 
 def _template(name: str):
@@ -178,55 +190,93 @@ PLACEHOLDER_PAGE = 8888  # the contents laid out once with numbers of this width
 
 def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
               page_size: str = "a4", identifier: bytes | None = None, stamp=None,
-              workers: int | None = None, on_part=None) -> None:
-    """Print the page set as a tagged PDF/A-3a at ``target`` with ``attachments`` embedded.
+              workers: int | None = None, on_part=None) -> tuple[int, int]:
+    """Print the page set as a tagged PDF/A-3a at ``target`` with ``attachments`` embedded;
+    returns (chapter parts taken unchanged from the cache, chapter parts).
 
-    The chapters are printed in parts on every core (unchanged parts come from the
-    artefact cache), the front matter once their page numbers are known, the running
-    heads last; :mod:`specgen.publish.pdf_assembly` puts them together.  ``stamp`` (a
-    datetime, the revision date) dates the attachments, so identical inputs give a
-    byte-identical PDF.  ``on_part(done, total)`` is called as the chapter parts come back
-    (for a progress display).
+    The chapters are printed in parts on every core, the costliest first (the CPU time each
+    part took last time, kept in the artefact cache; its HTML size when new), the front
+    matter once their page numbers are known, the running heads last;
+    :mod:`specgen.publish.pdf_assembly` puts them together.  Whatever has not changed — a
+    part, the front matter, the running heads, the assembled whole — comes from the
+    artefact cache, byte for byte as it was drawn.  ``stamp`` (a datetime, the revision
+    date) dates the attachments, so identical inputs give a byte-identical PDF.
+    ``on_part(done, total)`` is called as the chapter parts come back (for a progress
+    display).
     """
-    from specgen.publish.pdf_assembly import assemble, global_anchors
-    from specgen.publish.pdf_parts import Printer, cached_or_submitted
+    from specgen.publish.pdf_parts import Printer, Timings, cached_or_submitted
     every = pieces(pageset)
     css = stylesheet(page_size, "parts.css", "control.css")
     files = [(name, data, stamp) for name, data in sorted(attachments.items())]
+    groups = parts(every)
+    timings = Timings.load([_part_name(g, every) for g in groups],
+                           getattr(context.get("project"), "code", ""))
     with Printer(pageset, workers) as printer:
         def front(numbers, **extra):
-            return printer.submit(document_html(context, [], front=True, toc=every,
-                                                toc_pages=numbers), css, **PDF_OPTIONS, **extra)
+            return cached_or_submitted(printer, "pdf-front", document_html(
+                context, [], front=True, toc=every, toc_pages=numbers), css, **PDF_OPTIONS,
+                **extra)
         guess = front({p.id: PLACEHOLDER_PAGE for p in every})
-        groups = parts(every)
-        order = sorted(range(len(groups)), key=lambda i: -sum(len(p.html) for p in groups[i]))
         handles = {i: cached_or_submitted(printer, "pdf-part", document_html(
-            context, groups[i], front=False), css, **PDF_OPTIONS) for i in order}
+            context, groups[i], front=False), css, **PDF_OPTIONS)
+            for i in timings.order([sum(len(p.html) for p in g) for g in groups])}
         printed = []
         for i in range(len(groups)):
             printed.append(handles[i].result())
             reached(f"pdf-part-{i + 1}")
             if on_part is not None:
                 on_part(i + 1, len(groups))
-        sizes = [size for doc in printed for size in doc.pages]
-        length = len(guess.result().pages)
-        for _ in range(3):  # the contents' length does not depend on its numbers, but check
-            anchors = global_anchors(printed, start=length)
-            numbers = {p.id: anchors[p.id][0] + 1 for p in every if p.id in anchors}
-            final = front(numbers, attachments=files, pdf_identifier=identifier)
-            stamps = _stamps(printer, context, page_size, length, sizes)
-            done = final.result()
-            if len(done.pages) == length:
-                break
-            length = len(done.pages)
-        else:
-            raise PublishError("the contents pages changed length with their page numbers "
-                               "three times; nothing was changed in the output folder. Fix: "
-                               "report this with the project.")
-        reached("pdf-front")
-        stamps = [s.result() for s in stamps]
-    assemble(done, printed, stamps, target)
+        timings.keep([p.seconds for p in printed])
+        done, stamps = _front_and_stamps(front, printer, context, page_size, every, printed,
+                                         len(guess.result().pages),
+                                         dict(attachments=files, pdf_identifier=identifier))
+    _assembled(done, printed, stamps, target)
     reached("pdf-assembled")
+    return sum(1 for p in printed if not p.seconds), len(printed)
+
+
+def _part_name(group: list[Piece], every: list[Piece]) -> str:
+    """A part's name from one build to the next: its first piece's chapter and place in it."""
+    first = group[0]
+    return f"{first.id}#{sum(1 for p in every[:every.index(first)] if p.id == first.id)}"
+
+
+def _front_and_stamps(front, printer, context, page_size, every, printed, length, final):
+    """The front matter with the chapters' page numbers, and the running-head stamps."""
+    sizes = [size for doc in printed for size in doc.pages]
+    for _ in range(3):  # the contents' length does not depend on its numbers, but check
+        anchors = global_anchors(printed, start=length)
+        numbers = {p.id: anchors[p.id][0] + 1 for p in every if p.id in anchors}
+        handle = front(numbers, **final)
+        stamps = _stamps(printer, context, page_size, length, sizes)
+        done = handle.result()
+        if len(done.pages) == length:
+            break
+        length = len(done.pages)
+    else:
+        raise PublishError("the contents pages changed length with their page numbers "
+                           "three times; nothing was changed in the output folder. Fix: "
+                           "report this with the project.")
+    reached("pdf-front")
+    return done, [s.result() for s in stamps]
+
+
+def _assembled(front, printed, stamps, target) -> None:
+    """The parts put together (:func:`pdf_assembly.assemble`), from the artefact cache when
+    the same front matter, parts and stamps were put together before."""
+    import hashlib
+    import io
+    from pathlib import Path
+
+    from specgen import cache
+    from specgen.publish.pdf_assembly import assemble
+
+    def produce() -> bytes:
+        buffer = io.BytesIO()
+        assemble(front, printed, stamps, buffer)
+        return buffer.getvalue()
+    key = [hashlib.sha256(doc.to_bytes()).hexdigest() for doc in (front, *printed, *stamps)]
+    Path(target).write_bytes(cache.cached("pdf-whole", key, produce))
 
 
 STAMP_SPLIT = 400  # pages per stamp document
@@ -234,14 +284,14 @@ STAMP_SPLIT = 400  # pages per stamp document
 
 def _stamps(printer, context, page_size: str, front_pages: int, sizes: list) -> list:
     """Submit the running-head stamps: one page per page of the dossier."""
+    from specgen.publish.pdf_parts import cached_or_submitted
     total = front_pages + len(sizes)
     kinds = ["cover"] + [None] * (front_pages - 1) + ["wide" if w > h else None for w, h in sizes]
     pages = [{"number": i + 1, "kind": k} for i, k in enumerate(kinds)]
     css = stylesheet(page_size, "stamp.css", "control.css")
     tpl = _template("stamp.html.j2")
     project, revision = context["project"].title, context["revision"].code
-    return [printer.submit(tpl.render(pages=pages[i:i + STAMP_SPLIT], total=total,
-                                      title=context["title"], project=project,
-                                      revision=revision, mark=context.get("mark", "")), css,
-                           **PDF_OPTIONS)
-            for i in range(0, total, STAMP_SPLIT)]
+    return [cached_or_submitted(printer, "pdf-stamp", tpl.render(
+        pages=pages[i:i + STAMP_SPLIT], total=total, title=context["title"], project=project,
+        revision=revision, mark=context.get("mark", "")), css, **PDF_OPTIONS)
+        for i in range(0, total, STAMP_SPLIT)]

@@ -33,7 +33,8 @@ class Printed:
     ``pages``: (width, height) of each page; ``anchors``: id → (page, x, y);
     ``links``: (page, kind, target, (x1, y1, x2, y2)) with kind ``internal`` (target an
     anchor id) or ``external`` (a URL); ``bookmarks``: (page, level, label, x, y).
-    Page numbers count from 0 within the part.
+    Page numbers count from 0 within the part.  ``seconds``: the CPU time its printing
+    took (0 when it came from the cache; not part of its bytes).
     """
 
     pdf: bytes
@@ -41,6 +42,7 @@ class Printed:
     anchors: dict = field(default_factory=dict)
     links: list = field(default_factory=list)
     bookmarks: list = field(default_factory=list)
+    seconds: float = 0.0
 
     def to_bytes(self) -> bytes:
         facts = json.dumps({"pages": self.pages, "anchors": self.anchors, "links": self.links,
@@ -58,7 +60,10 @@ class Printed:
 
 def print_document(html: str, css: str, pageset, **options) -> Printed:
     """Lay out and draw one document; ``options`` go to WeasyPrint (as its ``write_pdf``)."""
+    import time
+
     import weasyprint
+    started = time.process_time()
 
     if "attachments" in options:  # (name, bytes, datetime) triples: plain data for the workers
         options = dict(options, attachments=[
@@ -81,6 +86,7 @@ def print_document(html: str, css: str, pageset, **options) -> Printed:
         for level, label, (x, y), _state in page.bookmarks:
             out.bookmarks.append([number, level, label, *pt(x, y)])
     out.pdf = _quietly(doc.write_pdf, **options)
+    out.seconds = time.process_time() - started
     return out
 
 
@@ -160,9 +166,10 @@ def die_with_parent() -> None:
         pass
 
 
-def _work(job: tuple[str, str, dict]) -> bytes:
+def _work(job: tuple[str, str, dict]) -> tuple[bytes, float]:
     html, css, options = job
-    return print_document(html, css, _PAGESET, **options).to_bytes()
+    printed = print_document(html, css, _PAGESET, **options)
+    return printed.to_bytes(), printed.seconds
 
 
 class Printer:
@@ -219,22 +226,25 @@ class _Handle:
 def _unpack(future) -> Printed:
     from concurrent.futures.process import BrokenProcessPool
     try:
-        return Printed.from_bytes(future.result())
+        data, seconds = future.result()
     except BrokenProcessPool as exc:
         raise PublishError("a PDF worker process ended unexpectedly (out of memory?); "
                            "nothing was changed in the output folder. Fix: build again, "
                            "or free memory.") from exc
+    printed = Printed.from_bytes(data)
+    printed.seconds = seconds
+    return printed
 
 
 def cached_or_submitted(printer: Printer, kind: str, html: str, css: str, **options):
     """A handle for the part: from the artefact cache when drawn before, else submitted
     (and kept in the cache once printed).
 
-    The key covers the HTML, the CSS, the options, our code, WeasyPrint's version and the
-    SHA-256 of every asset the HTML uses.
+    The key covers the HTML, the CSS, the options (attachments and identifier by their
+    SHA-256), our code, WeasyPrint's version and the SHA-256 of every asset the HTML uses.
     """
     from specgen import cache
-    inputs = [html, css, sorted(options.items()), _engine_version(),
+    inputs = [html, css, _option_key(options), _engine_version(),
               _asset_digests(html, printer.pageset)]
     found = cache.lookup(kind, inputs)
     if found is not None:
@@ -247,6 +257,21 @@ def cached_or_submitted(printer: Printer, kind: str, html: str, css: str, **opti
         cache.store(kind, inputs, printed.to_bytes())
         return printed
     return _Handle(printed_and_kept)
+
+
+def _option_key(options: dict) -> list:
+    """The options as plain data for a cache key: bytes by their SHA-256."""
+    import hashlib
+
+    def plain(value):
+        if isinstance(value, (bytes, bytearray)):
+            return "sha256:" + hashlib.sha256(value).hexdigest()
+        if isinstance(value, (list, tuple)):
+            return [plain(v) for v in value]
+        if hasattr(value, "isoformat"):
+            return value.isoformat()
+        return value
+    return [[name, plain(value)] for name, value in sorted(options.items())]
 
 
 def _asset_digests(html: str, pageset) -> list:
@@ -267,3 +292,42 @@ def _engine_version() -> str:
         return f"weasyprint={version('weasyprint')}"
     except Exception:  # noqa: BLE001 - an unknown version still keys consistently
         return "weasyprint=?"
+
+
+class Timings:
+    """The CPU time each chapter part took to print, kept in the artefact cache from one
+    build to the next, so the costliest parts start first and both cores stay busy to the
+    end (a long part started last would leave one core idle while it finishes)."""
+
+    KIND = "pdf-timings"
+
+    def __init__(self, names: list[str], known: dict[str, float], key: list):
+        self.names, self.known, self.key = names, known, key
+
+    @classmethod
+    def load(cls, names: list[str], project: str = "") -> Timings:
+        """The timings of the last build of ``project`` for the parts ``names``."""
+        from specgen import cache
+        key = ["part seconds", project]
+        try:
+            known = json.loads(cache.lookup(cls.KIND, key) or b"{}")
+        except ValueError:
+            known = {}
+        return cls(names, known if isinstance(known, dict) else {}, key)
+
+    def order(self, sizes: list[int]) -> list[int]:
+        """Indices of the parts, costliest first: a part printed before by its time, a new one
+        by its HTML size at the seconds per character of the parts timed before."""
+        timed = [(self.known[n], sizes[i]) for i, n in enumerate(self.names)
+                 if isinstance(self.known.get(n), (int, float)) and sizes[i]]
+        rate = sorted(t / s for t, s in timed)[len(timed) // 2] if timed else 1.0
+        cost = [self.known[n] if isinstance(self.known.get(n), (int, float)) else sizes[i] * rate
+                for i, n in enumerate(self.names)]
+        return sorted(range(len(self.names)), key=lambda i: (-cost[i], i))
+
+    def keep(self, seconds: list[float]) -> None:
+        """Record this build's times (a part from the cache keeps the time it took before)."""
+        from specgen import cache
+        now = {n: round(s, 3) if s > 0 else self.known.get(n) for n, s in zip(self.names, seconds)}
+        now = {n: s for n, s in now.items() if isinstance(s, (int, float))}
+        cache.store(self.KIND, self.key, json.dumps(now, sort_keys=True).encode("utf-8"))

@@ -58,6 +58,7 @@ def _practice(env) -> dict:
     return {"title": pr.title, "stated": pr.stated, "mixed": list(pr.mixed),
             "reason": pr.mixing_reason, "series": practice.series_title(pr.sieve_series),
             "envelope": envelope["title"], "mortar_classes": classes,
+            "us_beside": pr.unit_display == "US customary beside SI",
             "methods": [{"what": m["what"], "clause": m.get("clause", ""),
                          "cite": env.cite(Basis("reference", m["ref"], m.get("clause", "")))}
                         for m in pr.test_methods]}

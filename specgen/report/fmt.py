@@ -1,6 +1,8 @@
 """Number formatting for the dossier: enough digits to recompute, no false precision."""
 from __future__ import annotations
 
+import contextlib
+import contextvars
 import math
 from dataclasses import dataclass
 
@@ -105,15 +107,72 @@ def qty(value, unit: str, digits: int | None = None) -> str:
     """Value and unit, e.g. ``4.9 MPa``, ``12.3 %`` (narrow no-break space between).
 
     Without ``digits`` the value is rounded by the rule of its kind (:data:`PRECISION`:
-    what a reader needs); with ``digits`` it keeps that many significant figures (what a
-    calculation sheet needs to be recomputed by hand).
+    what a reader needs), with its US customary value beside it when the practice shows
+    units that way (:func:`unit_display`); with ``digits`` it keeps that many significant
+    figures in SI (what a calculation sheet needs to be recomputed by hand).
     """
     if isinstance(value, str):  # a named result (a model, a class): its words
         from specgen.report.wording import plain
         return plain(value)
     symbol = unit_symbol(unit)
     text = rounded(value, symbol) if digits is None else num(value, digits)
-    return f"{text}{UNIT_SPACE}{symbol}" if symbol and text != "—" else text
+    shown = f"{text}{UNIT_SPACE}{symbol}" if symbol and text != "—" else text
+    beside = us_customary(value, symbol) if digits is None and _DISPLAY.get() == US_BESIDE \
+        else ""
+    # the reading in the text carries the US customary value beside it; a calculation sheet
+    # (digits given) stays in SI, the units its formulas are written in
+    return f"{shown} ({beside})" if beside else shown
+
+
+#: the ways a practice may show units (content/data/practice.yaml ``unit_display``)
+SI_ONLY, US_BESIDE = "SI", "US customary beside SI"
+#: SI symbol → (pint unit, US customary pint unit, symbol shown, rule): the unit a reader of
+#: American practice reads beside the SI value (NIST SP 811 / Handbook 44 definitions, as pint
+#: carries them); kinds not listed (%, d, min, ratios) read the same in both systems
+US_CUSTOMARY = {
+    "MPa": ("MPa", "psi", "psi", Precision(significant=3)),
+    "GPa": ("GPa", "ksi", "ksi", Precision(significant=3)),
+    "°C": ("degC", "degF", "°F", Precision(decimals=0)),
+    "mm": ("mm", "inch", "in", Precision(significant=2)),
+    "m": ("m", "foot", "ft", Precision(significant=3)),
+    "m²": ("m**2", "foot**2", "ft²", Precision(significant=3)),
+    "m³": ("m**3", "yard**3", "yd³", Precision(significant=3)),
+    "L": ("L", "gallon", "US gal", Precision(significant=3)),
+    "kg": ("kg", "pound", "lb", Precision(significant=3)),
+    "kg/m³": ("kg/m**3", "pound/foot**3", "lb/ft³", Precision(significant=3)),
+}
+_DISPLAY: contextvars.ContextVar[str] = contextvars.ContextVar("unit_display", default=SI_ONLY)
+
+
+@contextlib.contextmanager
+def unit_display(mode: str):
+    """Show quantities the practice's way inside the block (``SI`` or ``US customary beside
+    SI``); one render sets it once, from the practice the project follows."""
+    if mode not in (SI_ONLY, US_BESIDE):
+        raise ValueError(f"unknown unit display {mode!r}: expected {SI_ONLY!r} or {US_BESIDE!r}")
+    token = _DISPLAY.set(mode)
+    try:
+        yield
+    finally:
+        _DISPLAY.reset(token)
+
+
+def us_customary(value: float, symbol: str) -> str:
+    """``value`` (in the SI ``symbol``) in its US customary unit, e.g. ``595 psi``; '' when
+    the kind reads the same in both systems."""
+    if symbol not in US_CUSTOMARY or not isinstance(value, (int, float)) \
+            or isinstance(value, bool) or not math.isfinite(value):
+        return ""
+    from specgen.units import ureg
+    si, us, shown, rule = US_CUSTOMARY[symbol]
+    converted = float(ureg.Quantity(value, si).to(us).magnitude)
+    if rule.significant and converted:
+        # no more figures than the SI reading carries: 7.6 MPa reads 1100 psi, not 1102
+        mag = math.floor(math.log10(abs(converted)))
+        converted = round(converted, rule.significant - 1 - mag)
+    text = num(converted, rule.significant) if rule.significant else \
+        _signed(f"{converted:.{rule.decimals}f}")
+    return f"{text}{UNIT_SPACE}{shown}"
 
 
 def count(n, word: str, many: str | None = None) -> str:

@@ -135,7 +135,11 @@ def render(project, results, history=None, superseded: str | None = None) -> Pag
     base = {"project": project.dossier.project, "revision": project.revision,
             "narrative": {}}
     numbers = chapter_numbers(chapters())
-    with project_template_errors(getattr(project, "root", None)):
+    from specgen import practice
+    from specgen.report.fmt import unit_display
+    # every page shows units the way the practice the project follows does
+    with unit_display(practice.resolve(project.dossier).unit_display), \
+            project_template_errors(getattr(project, "root", None)):
         for spec in chapters():
             env.number = numbers.get(spec.path, "")
             made = _pages_of(spec, spec.fn(env))
@@ -149,7 +153,7 @@ def render(project, results, history=None, superseded: str | None = None) -> Pag
                     project, "introduction" if stem == "index" else stem)
                 text = jenv.get_template(spec.template).render(**ctx)
                 pageset.add_page(path, title, text, volume=spec.volume)
-    _resolve_later(env, pageset)
+        _resolve_later(env, pageset)
     from specgen.report.review import CONTEXT_ASSET, review_context
     pageset.add_asset(CONTEXT_ASSET, review_context(project))
     from specgen.report.marks import apply_marks
