@@ -84,7 +84,8 @@ def test_fit_prediction_and_names_in_results(demo_copy):
     p90 = pred["90 d"]
     # the centre follows the two-stage law at the posterior mode reported beside it (the law
     # written out here: f(t) = F·[φ(1 − e^(−t/τA)) + (1 − φ)(1 − e^(−(t/τS)^b))]; F cancels in
-    # a ratio of ages), and the band is symmetric on the log scale, exp(ln f ± z·se)
+    # a ratio of ages); the band is the central 95 % of the importance-weighted posterior, so
+    # on the log scale it need not be symmetric about the mode, but it holds the mode's value
     post = {k: v[0] for k, v in
             q["strength_inference"].value["compressive"]["posterior"].items()}
 
@@ -95,8 +96,7 @@ def test_fit_prediction_and_names_in_results(demo_copy):
 
     assert p90["value"] / pred["28 d"]["value"] == pytest.approx(shape(90) / shape(28), rel=2e-3)
     assert shape(365) / shape(28) == pytest.approx(post["gain_365_28"], rel=2e-3)
-    assert math.log(p90["upper"] / p90["value"]) == pytest.approx(
-        math.log(p90["value"] / p90["lower"]), rel=2e-3)
+    assert p90["lower"] < p90["value"] < p90["upper"]
     assert not p90["extrapolated"]
     # measured 90 d mean 7.62 MPa (demo data) lies in the band for the mean
     assert p90["lower"] < 7.62 < p90["upper"]

@@ -21,7 +21,8 @@ from specgen.science import strength_inference as si
 DAY, MPA = sc.DAY, sc.MPA
 PRIOR = Basis("common practice", note="prior ranges of the binder family "
               "(content/data/strength_priors.yaml); ranges stated on the sheet")
-LAPLACE = Basis("reference", "mackay2003", "Laplace approximation of a posterior, ch. 27")
+LAPLACE = Basis("reference", "mackay2003", "Laplace approximation of a posterior, ch. 27; "
+                "importance sampling, ch. 29")
 LOF = Basis("reference", "draper1998", "lack-of-fit F test with pure error from replicates, "
             "sec. 2.1")
 
@@ -116,8 +117,7 @@ def _prior_step(run: spc.InferenceRun, post: dict) -> Step:
         inputs.append(Input(sym, f"{name}: prior", f"{_fmt(t.low)} to {_fmt(t.high)}", unit,
                             t.source))
         inputs.append(Input(sym, f"{name}: prior and data", f"{_fmt(m)} [{_fmt(lo)}, "
-                            f"{_fmt(hi)}]", unit, "posterior mode [central 95 %], Laplace "
-                            "approximation"))
+                            f"{_fmt(hi)}]", unit, _posterior_source(inf)))
     p = inf.params
     inputs.append(Input("F", "long-term strength", round(p["F"], 4), "MPa",
                         "fitted (flat prior on ln F)"))
@@ -129,6 +129,15 @@ def _prior_step(run: spc.InferenceRun, post: dict) -> Step:
     return Step(f"Prior ({prior.label}) and data side by side; posterior mode by penalised "
                 "likelihood", LAW, tuple(inputs), sub, round(post["gain_365_28"][0], 4), "",
                 "f365/f28")
+
+
+def _posterior_source(inf: si.Inference) -> str:
+    if inf.sampled:
+        return (f"posterior mode [central 95 %]; the range from {si.DRAWS} importance-weighted "
+                f"draws about the Laplace approximation (effective sample {inf.ess:.0f}), "
+                f"resampled to {si.KEPT}")
+    return (f"posterior mode [central 95 %], Laplace approximation (importance weights "
+            f"degenerate: effective sample {inf.ess:.0f} < {si.MIN_ESS:g})")
 
 
 def _scatter_step(inf: si.Inference) -> Step:

@@ -1,5 +1,6 @@
 """Generic tools of the strength inference: the Laplace approximation of a penalised
-least-squares posterior, and the pure-error lack-of-fit F test against replicate groups.
+least-squares posterior, its correction by importance sampling, and the pure-error
+lack-of-fit F test against replicate groups.
 Pure functions on arrays; :mod:`specgen.science.strength_inference` uses them.
 """
 from __future__ import annotations
@@ -41,6 +42,44 @@ def laplace_fit(residuals: Callable[[np.ndarray], np.ndarray], z0: Sequence[floa
     jd = j[:n_data]
     p_eff = float(np.trace(cov @ (jd.T @ jd)))
     return Laplace(res.x, cov, p_eff, float(res.cost))
+
+
+def importance_sample(neg_log_post: Callable[[np.ndarray], np.ndarray], mode: Sequence[float],
+                      cov: np.ndarray, draws: int, dof: float, scale: float, seed: int):
+    """Self-normalised importance sampling of ``p ∝ exp(-neg_log_post)`` (MacKay 2003, ch. 29):
+    ``draws`` from a multivariate Student-t (``dof``) centred on ``mode`` with covariance
+    ``scale² · cov`` (a Laplace approximation widened, heavier-tailed, so ``p/q`` stays
+    bounded), each weighted by ``p/q``.  ``neg_log_post`` takes the draws (rows) and returns
+    ``-ln p`` up to a constant.  Returns (draws, normalised weights, effective sample size
+    ``1/Σw²``), or (None, None, 0) when no draw has a finite weight.  Deterministic (``seed``).
+    """
+    mode = np.asarray(mode, float)
+    k = mode.size
+    try:
+        chol = np.linalg.cholesky(scale ** 2 * np.asarray(cov, float) + 1e-12 * np.eye(k))
+    except np.linalg.LinAlgError:
+        return None, None, 0.0
+    rng = np.random.default_rng(seed)
+    x = rng.standard_normal((draws, k)) / np.sqrt(rng.chisquare(dof, draws) / dof)[:, None]
+    z = mode + x @ chol.T
+    log_q = -0.5 * (dof + k) * np.log1p(np.sum(x ** 2, axis=1) / dof)
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        log_w = -np.asarray(neg_log_post(z), float) - log_q
+    ok = np.isfinite(log_w)
+    if not ok.any():
+        return None, None, 0.0
+    w = np.exp(log_w[ok] - np.max(log_w[ok]))
+    w /= w.sum()
+    return z[ok], w, float(1.0 / np.sum(w ** 2))
+
+
+def resample(draws: np.ndarray, weights: np.ndarray, n: int, seed: int) -> np.ndarray:
+    """``n`` equally weighted draws from weighted ones by systematic resampling (one uniform
+    offset, then a grid of step 1/n through the cumulative weights; Kitagawa 1996): the
+    weighted set's quantiles become plain sample quantiles, cheap at any number of ages."""
+    u = (np.arange(n) + np.random.default_rng(seed).uniform()) / n
+    idx = np.searchsorted(np.cumsum(weights), u)
+    return np.asarray(draws)[np.minimum(idx, len(weights) - 1)]
 
 
 # ---------------------------------------------------------------- lack of fit

@@ -21,18 +21,27 @@ information about the curve, each with variance ``σb² + σw²/n_i``.
 * the curve: the mode of the posterior ``-ln p = ½Σ(ȳ_i - ln f_i)²/v_i + ½Σ((h_k - μ_k)/s_k)²``
   (prior on logit φ, ln τA, ln τS, ln b and ln f(365)/f(28); flat on ln F), found by
   ``scipy.optimize.least_squares``; its covariance by the Laplace approximation, the inverse
-  of the Gauss-Newton Hessian at the mode (:func:`laplace_fit`).
+  of the Gauss-Newton Hessian at the mode (:func:`laplace_fit`);
+* the posterior itself, not its linearisation: from a short record the law is far from linear
+  in its parameters over the range the prior allows (a 28-day record hardly sees the slow
+  stage), so the normal approximation misplaces the band at 90 and 365 days.  The intervals
+  are therefore read from ``DRAWS`` draws of a Student-t (``PROPOSAL_DOF`` dof, covariance
+  ``PROPOSAL_SCALE``² × the Laplace one) about the mode, each weighted by the exact posterior
+  over the proposal density (self-normalised importance sampling, MacKay 2003 ch. 29), then
+  resampled to ``KEPT`` equally weighted draws, with a fixed seed so a build is repeatable.  Should the weights degenerate (effective sample size
+  below ``MIN_ESS``) the Laplace approximation is used and :attr:`Inference.sampled` says so.
 
 Intervals (never clipped; exponentiated, so always positive and finite):
 
-* band for the mean curve: ``exp(ln f ± z·sqrt(gᵀΣg))``;
+* band for the mean curve: the central quantiles of ``ln f(t)`` over the kept draws,
+  ``[exp(l), exp(h)]`` (Laplace fallback: ``exp(ln f ± z·sqrt(gᵀΣg))``);
 * prediction interval for the mean of the next set of ``n`` prisms (one new batch):
-  ``exp(ln f ± q·sqrt(gᵀΣg + σb² + σw²/n))``; ``n = inf`` gives one batch's own strength
-  (mortar in the wall);
+  ``exp(c ± q·sqrt(s² + σb² + σw²/n))`` with ``c = (l + h)/2`` and ``s = (h - l)/(2z)`` the
+  band's centre and standard deviation on the log scale; ``n = inf`` gives one batch's own
+  strength (mortar in the wall);
 
-The band for the mean uses the normal quantile (the Laplace posterior is normal); the
-prediction interval Student's t at ``ν_w + ν0`` degrees of freedom (it rests on the estimated
-variances).
+The band for the mean is the posterior's own quantiles; the prediction interval uses
+Student's t at ``ν_w + ν0`` degrees of freedom (it rests on the estimated variances).
 """
 from __future__ import annotations
 
@@ -47,9 +56,16 @@ from scipy import stats
 from specgen.errors import ScienceInputError
 # the generic tools of the fit, importable from here as before
 from specgen.science.inference_tools import (Laplace, LackOfFit,  # noqa: F401
-                                             lack_of_fit, laplace_fit)
+                                             importance_sample, lack_of_fit, laplace_fit,
+                                             resample)
 
 PRIOR_DOF = 4.0          # weight of the prior's variances, as degrees of freedom (common practice)
+# importance sampling of the posterior (common practice for a Laplace proposal: heavier tails
+# and a wider scale than the approximation, so the weights stay bounded; MacKay 2003 ch. 29)
+DRAWS, PROPOSAL_DOF, PROPOSAL_SCALE, MIN_ESS, SEED = 4000, 5.0, 1.5, 100.0, 20260
+KEPT = 1000    # equally weighted draws kept after resampling (about the effective sample size)
+NODES = 48     # a longer list of ages (a curve) takes the band's offsets from ln f at this many
+               # log-spaced ages, interpolated in ln t (the offsets vary slowly with age)
 GAIN_AGES_D = (28.0, 365.0)
 PRIOR_KEYS = ("early_fraction", "tau_fast_d", "tau_slow_d", "shape_b", "gain_365_28")
 _Z95 = float(stats.norm.ppf(0.975))
@@ -172,6 +188,13 @@ class Inference:
     lof: LackOfFit
     lof_batch_p: float | None  # p of the lack-of-fit test allowing the prior's upper batch CV
     last_age: float            # d
+    draws: np.ndarray | None = None     # equally weighted posterior draws of z
+    ess: float = 0.0                    # effective sample size of the importance weights
+
+    @property
+    def sampled(self) -> bool:
+        """True when the intervals come from the posterior draws, not the Laplace normal."""
+        return self.draws is not None
 
     @property
     def params(self) -> dict[str, float]:
@@ -241,9 +264,30 @@ def fit(ages_d: Sequence[float], values_mpa: Sequence[float], prior: Prior) -> I
     if lof.f is not None:
         denom = lof.ss_pure / lof.dof_pure + counts.mean() * prior.batch_cv.high ** 2
         lof_b = float(stats.f.sf((lof.ss_lof / lof.dof_lof) / denom, lof.dof_lof, lof.dof_pure))
+    draws, ess = _sample(ages, means, counts, sb2, sw2, prior, lap)
     return Inference(prior, ages, means, counts, lap.mode, lap.cov, lap.p_eff, math.sqrt(sw2),
                      math.sqrt(sb2), w_src, b_src, d_w + PRIOR_DOF, lof, lof_b,
-                     float(ages.max()))
+                     float(ages.max()), draws, ess)
+
+
+def _neg_log_post(z, ages, means, sd, prior: Prior) -> np.ndarray:
+    """``-ln p`` (up to a constant) of the rows of ``z`` (draws x 5)."""
+    zt = z.T[:, :, None]
+    data = np.sum(((means - _log_f(zt, ages[None, :])) / sd) ** 2, axis=1)
+    gain = _log_f(zt, np.array(GAIN_AGES_D)[None, :])
+    h = (z[:, 1], z[:, 2], z[:, 3], z[:, 4], gain[:, 1] - gain[:, 0])
+    pri = sum(((v - prior.terms[k].mu) / prior.terms[k].sd) ** 2 for v, k in zip(h, PRIOR_KEYS))
+    return 0.5 * (data + pri)
+
+
+def _sample(ages, means, counts, sb2, sw2, prior: Prior, lap: Laplace):
+    """The posterior by importance sampling about the Laplace mode, resampled: (``KEPT``
+    draws, effective sample size), or (None, ess) when the weights degenerate (the Laplace
+    normal is used instead)."""
+    sd = np.sqrt(sb2 + sw2 / counts)
+    z, w, ess = importance_sample(lambda zz: _neg_log_post(zz, ages, means, sd, prior),
+                                  lap.mode, lap.cov, DRAWS, PROPOSAL_DOF, PROPOSAL_SCALE, SEED)
+    return (None, ess) if z is None or ess < MIN_ESS else (resample(z, w, KEPT, SEED), ess)
 
 
 def _prior_residuals(z, prior: Prior) -> np.ndarray:
@@ -285,24 +329,38 @@ class Interval:
     indicative: bool
 
 
-def _sd_curve(inf: Inference, t_d) -> tuple[np.ndarray, np.ndarray]:
+def _log_band(inf: Inference, t_d, level: float):
+    """At ages ``t_d`` (d): ln f at the mode and the central ``level`` band for the mean curve
+    on the log scale (lower, upper): the posterior's weighted quantiles, or the Laplace normal."""
     t = np.atleast_1d(np.asarray(t_d, float))
     if np.any(t <= 0) or not np.all(np.isfinite(t)):
         raise InferenceError("prediction ages must be positive finite numbers of days")
+    m = _log_f(inf.mode, t)
+    if inf.sampled:
+        a = (1.0 - level) / 2.0
+        nodes = t if t.size <= NODES else np.geomspace(t.min(), t.max(), NODES)
+        with np.errstate(over="ignore", invalid="ignore"):
+            lf = _log_f(inf.draws.T[:, :, None], nodes[None, :])
+        lo, hi = np.quantile(lf, [a, 1.0 - a], axis=0, method="inverted_cdf")
+        if nodes is t:
+            return m, lo, hi
+        mn, x = _log_f(inf.mode, nodes), np.log(nodes)
+        return (m, m + np.interp(np.log(t), x, lo - mn), m + np.interp(np.log(t), x, hi - mn))
     g = _log_f_grad(inf.mode, t)
-    var = np.einsum("ij,jk,ik->i", g, inf.cov, g)
-    return _log_f(inf.mode, t), np.sqrt(np.clip(var, 0.0, None))
+    s = _z_quantile(level) * np.sqrt(np.clip(np.einsum("ij,jk,ik->i", g, inf.cov, g), 0, None))
+    return m, m - s, m + s
 
 
 def bands(inf: Inference, t_d, level: float = 0.95, n: float = 3.0) -> dict[str, np.ndarray]:
     """Arrays (MPa) at ages ``t_d`` (d): ``value``, mean band ``mean_lo``/``mean_hi`` and the
     prediction interval for the mean of ``n`` prisms of a new batch ``pred_lo``/``pred_hi``
     (``n = inf``: the batch's own strength; ``n`` may be an array, one per age)."""
-    m, s = _sd_curve(inf, t_d)
-    z, q = _z_quantile(level), inf.quantile(level)
+    m, lo, hi = _log_band(inf, t_d, level)
+    c, s = (lo + hi) / 2.0, (hi - lo) / (2.0 * _z_quantile(level))
     sp = np.sqrt(s ** 2 + inf.sigma_b ** 2 + inf.sigma_w ** 2 / np.asarray(n, float))
-    return {"value": np.exp(m), "mean_lo": np.exp(m - z * s), "mean_hi": np.exp(m + z * s),
-            "pred_lo": np.exp(m - q * sp), "pred_hi": np.exp(m + q * sp)}
+    q = inf.quantile(level)
+    return {"value": np.exp(m), "mean_lo": np.exp(lo), "mean_hi": np.exp(hi),
+            "pred_lo": np.exp(c - q * sp), "pred_hi": np.exp(c + q * sp)}
 
 
 def interval(inf: Inference, age_d: float, kind: str, level: float = 0.95, n: float = 3.0,
@@ -327,20 +385,28 @@ def components(inf: Inference, t_d) -> dict[str, np.ndarray]:
 
 
 def posterior_summary(inf: Inference) -> dict[str, tuple[float, float, float]]:
-    """Per prior term: (posterior mode, lower, upper) of the central 95 % (Laplace), in the
-    units the prior is written in; ``gain_365_28`` included."""
+    """Per prior term: (posterior mode, lower, upper) of the central 95 % (the posterior draws,
+    or the Laplace normal when :attr:`Inference.sampled` is false), in the units the prior is
+    written in; ``gain_365_28`` included."""
     z, cov = inf.mode, inf.cov
-    out = {}
-    tf = {"early_fraction": (1, lambda v: 1 / (1 + math.exp(-v))), "tau_fast_d": (2, math.exp),
-          "tau_slow_d": (3, math.exp), "shape_b": (4, math.exp)}
-    for k, (i, back) in tf.items():
-        s = math.sqrt(max(cov[i, i], 0.0))
-        out[k] = (back(z[i]), back(z[i] - _Z95 * s), back(z[i] + _Z95 * s))
+    back = {"early_fraction": lambda v: 1 / (1 + np.exp(-v)), "tau_fast_d": np.exp,
+            "tau_slow_d": np.exp, "shape_b": np.exp}
     g = _log_f_grad(z, np.array(GAIN_AGES_D))
     d = g[1] - g[0]
     lg = float(np.diff(_log_f(z, np.array(GAIN_AGES_D)))[0])
-    s = math.sqrt(max(float(d @ cov @ d), 0.0))
-    out["gain_365_28"] = (math.exp(lg), math.exp(lg - _Z95 * s), math.exp(lg + _Z95 * s))
+    if inf.sampled:
+        with np.errstate(over="ignore", invalid="ignore"):
+            gl = _log_f(inf.draws.T[:, :, None], np.array(GAIN_AGES_D)[None, :])
+        cols = np.column_stack([inf.draws[:, 1:5], gl[:, 1] - gl[:, 0]])
+        q = np.quantile(cols, [0.025, 0.975], axis=0, method="inverted_cdf")
+    else:
+        sds = [math.sqrt(max(cov[i, i], 0.0)) for i in range(1, 5)]
+        sds.append(math.sqrt(max(float(d @ cov @ d), 0.0)))
+        centre = np.array([*z[1:5], lg])
+        q = np.vstack([centre - _Z95 * np.array(sds), centre + _Z95 * np.array(sds)])
+    out = {k: (float(f(z[i + 1])), float(f(q[0, i])), float(f(q[1, i])))
+           for i, (k, f) in enumerate(back.items())}
+    out["gain_365_28"] = (math.exp(lg), math.exp(q[0, 4]), math.exp(q[1, 4]))
     return out
 
 
