@@ -57,3 +57,20 @@ def test_method_statement_and_glossary(demo_build):
     assert "Throw or firmly lay on each coat" in method     # render in its own words
     glossary = (r3 / "glossary.html").read_text(encoding="utf-8")
     assert "cementation index (Eckel)" in glossary and "characteristic strength" in glossary
+
+
+def test_pdf_drawing_sheet_and_trial_panel_photograph(demo_build):
+    from PIL import Image
+    r3 = demo_build / "R3"
+    # demo D3 is drawn over sheet 2 of images/WH-EP-210-stair-head.pdf: the figure carries it
+    svg = (r3 / "figures" / "drawing-d3.svg").read_text(encoding="utf-8")
+    assert "data:image/png;base64," in svg
+    # the register places the PDF page itself as a 1600 px PNG (print size)
+    with Image.open(r3 / "images" / "d3-sheet.png") as im:
+        assert im.size == (1600, 1067)          # sheet 2 is 9 x 6 in: 1600 x 1066.7 px
+    # TP2's photograph on the trial-panel section, with its register caption and date
+    spec = (r3 / "specification.html").read_text(encoding="utf-8")
+    assert "Trial panel TP2 (mix M2), inner face bay 3" in spec
+    assert "photographed 2026-10-20, by specifier (Calder Vane Conservation)" in spec
+    with Image.open(r3 / "panels" / "tp2.jpg") as im:
+        assert dict(im.getexif()) == {} and max(im.size) <= 1600

@@ -234,7 +234,7 @@ def test_image_that_is_not_an_image(demo_copy):
     (demo_copy / "images" / "P2-coping-band.png").write_text("not a picture", encoding="utf-8")
     assert ("samples.yaml, line 132: images[1].file: the file 'images/P2-coping-band.png' is not "
             "an image (it cannot be read as JPEG or PNG). Fix: give a JPEG or PNG photograph, "
-            "or an SVG drawing (a drawing in a PDF: export the page as PNG or SVG)."
+            "or a drawing as SVG, JPEG, PNG or a page of a PDF (file ending .pdf, with its page)."
             ) in problems(demo_copy)
 
 
@@ -253,7 +253,7 @@ def test_image_over_the_size_limit_and_missing(demo_copy):
 
 def test_report_that_is_not_a_pdf(demo_copy):
     (demo_copy / "reports" / "NML-4502.pdf").write_bytes(b"PK\x03\x04 a zip, not a report")
-    assert ("samples.yaml, line 139: reports[1].file: the file 'reports/NML-4502.pdf' is not a "
+    assert ("samples.yaml, line 144: reports[1].file: the file 'reports/NML-4502.pdf' is not a "
             "PDF. Fix: give the laboratory's report as a PDF file.") in problems(demo_copy)
 
 
@@ -301,5 +301,142 @@ def test_normalise_turns_upright_scales_and_strips_metadata():
 
 def test_drawing_sheet_must_be_a_placed_raster_image(demo_copy):
     edit(demo_copy / "samples.yaml", "image: D1-sheet}", "image: D1-shet}")
-    assert ("samples.yaml, line 7: drawings[0].image: names JPEG or PNG image 'D1-shet', which "
+    assert ("samples.yaml, line 7: drawings[0].image: names JPEG, PNG or PDF drawing 'D1-shet', which "
             "is not defined. Fix: did you mean 'D1-sheet'?") in problems(demo_copy)
+
+
+# --- drawings given as a page of a PDF (demo D3: sheet 2 of images/WH-EP-210-stair-head.pdf) ---
+D3_PDF = "images/WH-EP-210-stair-head.pdf"
+
+
+def _pdf(pages: int, password: str | None = None) -> bytes:
+    """A PDF of ``pages`` blank A4 pages written by pypdf (a reference library, not ours)."""
+    import io
+
+    from pypdf import PdfWriter
+    w = PdfWriter()
+    for _ in range(pages):
+        w.add_blank_page(595, 842)
+    if password is not None:
+        w.encrypt(user_password=password, owner_password="owner")
+    buf = io.BytesIO()
+    w.write(buf)
+    return buf.getvalue()
+
+
+def test_demo_drawing_on_a_pdf_page_loads():
+    from specgen.build import load as load_
+    img, data = load_("demo_project").images["D3-sheet"]
+    assert img.page == 2 and data.startswith(b"%PDF-")
+
+
+@pytest.mark.parametrize("content, page, message, fix", [
+    (b"GIF89a not a drawing", 2, "is not a PDF (it does not begin with %PDF-)",
+     "give the drawing as a PDF, or as an SVG, PNG or JPEG file."),
+    (_pdf(2), 3, "has 2 pages; page 3 is not in it", "give a page from 1 to 2."),
+    (_pdf(3), None, "has 3 pages and no page is named",
+     "give 'page:' (1 to 3) for the sheet of the drawing."),
+    (_pdf(2, password="secret"), 2, "is encrypted (it asks for a password)",
+     "save an unencrypted copy of the drawing (print it to a new PDF, or export the page as "
+     "SVG or PNG) and place that."),
+    (_pdf(2, password=""), 2, "is encrypted (it carries a security handler)",
+     "save an unencrypted copy of the drawing (print it to a new PDF, or export the page as "
+     "SVG or PNG) and place that."),
+    (b"%PDF-1.7 truncated", 2, "cannot be read as a PDF (it is damaged or incomplete)",
+     "export the drawing again as a PDF, or as SVG or PNG."),
+], ids=["not-a-pdf", "page-out-of-range", "no-page", "password", "owner-only", "damaged"])
+def test_bad_pdf_drawing_is_a_located_error(demo_copy, content, page, message, fix):
+    (demo_copy / D3_PDF).write_bytes(content)
+    edit(demo_copy / "samples.yaml", "page: 2, ", f"page: {page}, " if page else "")
+    at = "line 137: images[3].page" if "page" in message or "pages" in message \
+        else "line 137: images[3].file"
+    assert (f"samples.yaml, {at}: the file '{D3_PDF}' {message}. Fix: {fix}"
+            ) in problems(demo_copy)
+
+
+def test_page_given_for_an_image_that_is_not_a_pdf(demo_copy):
+    edit(demo_copy / "samples.yaml", "file: images/P2-coping-band.png,",
+         "file: images/P2-coping-band.png, page: 1,")
+    assert ("samples.yaml, line 132: images[1].file: the file 'images/P2-coping-band.png' is not "
+            "a PDF, so it has no page to choose.") in problems(demo_copy)
+
+
+def test_pdf_page_rendered_as_poppler_renders_it(tmp_path):
+    """Our page (PDFium through pypdfium2) against poppler's pdftoppm, an independent renderer
+    of the same page at the same size: the same drawing to within anti-aliasing."""
+    import io
+    import shutil
+    import subprocess
+
+    import numpy as np
+    from PIL import Image
+
+    from specgen.report.evidence_images import normalise
+    if shutil.which("pdftoppm") is None:
+        pytest.skip("poppler-utils (.ci/apt-packages.txt) is not installed")
+    from tests.conftest import DEMO
+    data = (DEMO / D3_PDF).read_bytes()
+    png, ext, size = normalise(data, D3_PDF, long_side=600, page=2)
+    assert (ext, size) == ("png", (600, 400))     # sheet 2 is 9 x 6 in: long side 600 px
+    subprocess.run(["pdftoppm", "-png", "-f", "2", "-l", "2", "-scale-to-x", "600", "-scale-to-y", "400",
+                    str(DEMO / D3_PDF), str(tmp_path / "ref")], check=True)
+    ref = Image.open(next(tmp_path.glob("ref*.png")))
+    ours = Image.open(io.BytesIO(png))
+    assert ours.size == ref.size == (600, 400)
+
+    def grey(im):       # 4 x 4 px blocks averaged: the two renderers anti-alias lines apiece
+        return np.asarray(im.convert("L").resize((150, 100), Image.Resampling.BOX)).ravel()
+    same = np.corrcoef(grey(ours), grey(ref))[0, 1]
+    cover = np.corrcoef(grey(Image.open(io.BytesIO(normalise(data, D3_PDF, 600, page=1)[0]))),
+                        grey(ref))[0, 1]
+    # measured: 0.86 for sheet 2 by both renderers, about 0.00 for the cover against sheet 2
+    assert same > 0.8 and cover < 0.2
+
+
+# --- the overlay keeps its labels apart (boxes measured by matplotlib's own renderer) ---
+def _boxes_apart(fig, n_points: int) -> None:
+    from matplotlib.text import Text
+
+    from specgen.report.evidence_figures import _overlap
+    ax = fig.axes[0]
+    r = fig.canvas.get_renderer()
+    fig.canvas.draw()
+    labels = [t for t in ax.texts if t.get_text()]     # sample labels and zone labels
+    assert len([t for t in labels if not t.get_text().startswith("zone ")]) == n_points
+    others = [ax.xaxis.label, ax.yaxis.label, ax.title, *ax.get_xticklabels(),
+              *ax.get_yticklabels()]
+    # the words of each label (an annotation's own extent also spans its leader line)
+    boxes = [(t.get_text(), Text.get_window_extent(t, r)) for t in labels]
+    legend = fig.legends[0].get_window_extent(r)
+    for i, (a, box) in enumerate(boxes):
+        for b, other in boxes[i + 1:]:
+            assert _overlap(box, other) == 0, (a, b)
+        for t in others:
+            if t.get_text():
+                assert _overlap(box, t.get_window_extent(r)) == 0, (a, t.get_text())
+        assert _overlap(box, legend) == 0, a
+        assert ax.get_window_extent(r).contains(box.x0, box.y0) and \
+            ax.get_window_extent(r).contains(box.x1, box.y1), a
+    assert legend.y1 <= ax.xaxis.label.get_window_extent(r).y0      # legend below the x label
+
+
+def test_drawing_d1_labels_and_legend_do_not_overlap():
+    from specgen.build import load as load_
+    from specgen.report.evidence_figures import overlay_figure
+    # demo D1 (samples.yaml): 64 x 7 m, zone Z1, five sample points, TP1-C and TP2-C 1.2 m
+    # apart at the same height (the labels used to collide, and the legend sat on the x label)
+    p = load_("demo_project")
+    d = p.drawings["D1"]
+    points = [(s.id, s.location.x, s.location.y) for s in p.samples.values()
+              if s.location is not None and s.location.drawing == "D1"]
+    fig = overlay_figure(d.width, d.height, d.units, [(a.zone, a.x, a.y, a.width, a.height)
+                                                      for a in d.zones], points, d.north)
+    _boxes_apart(fig, len(points))
+
+
+def test_clustered_points_keep_their_labels_apart():
+    from specgen.report.evidence_figures import overlay_figure
+    # six points within 1.5 m of each other on a 20 x 3 m elevation (invented)
+    points = [(f"S{i}-long", 8 + 0.3 * i, 1.0 + 0.2 * (i % 2)) for i in range(6)]
+    fig = overlay_figure(20, 3, "m", [("Z9", 1, 0.3, 18, 2.4)], points, "faces north")
+    _boxes_apart(fig, 6)

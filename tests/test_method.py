@@ -62,12 +62,17 @@ def test_method_wording_per_zone_and_the_projects_override(demo_copy):
         "from the joint width gives 20 mm), square at the back")
     # M2 in Z1: 81 gaugings a day (works check of the demo, gauging_by_zone)
     assert "(81 gaugings a day by the batching card)" in parts["Sequence and bays"]["text"]
+    # MTH-BAY: 48 L a day at 3.09 L per m² of face (test_bay_area_of_a_day_s_work_by_hand)
+    assert ("in bays that one crew fills in a day: about 16 m² of face (the day's 48 L of mortar "
+            "at 3.09 L per m² of face)") in parts["Sequence and bays"]["text"]
     assert "keep the work damp by misting and wet hessian for at least 5 d" in \
         parts["Curing and protection"]["text"]
     assert parts["Weather limits"]["text"].startswith("Mix and place only between 5 and 30 °C")
     render = {p["title"]: p["text"] for p in z2["parts"]}
     assert "joint" not in render["Placing"].replace("joints", "")   # render coats, own words
     assert "coat 1 12 mm, coat 2 8 mm" in render["Sequence and bays"]
+    assert ("each panel no larger than a day's work: about 7.5 m² of face (the day's 150 L of "
+            "mortar at 20 L per m² of face)") in render["Sequence and bays"]
     own = {p["title"]: p for p in z3["parts"]}["Sequence and bays"]
     assert own == {"title": "Sequence and bays", "own": True, "text": "Rebed the four loose "
                    "blocks of the landward return first, then the seaward ones."}
@@ -95,3 +100,26 @@ def test_glossary_lists_only_what_the_pages_print():
              "b.md": "CIELAB readings", "glossary.md": "LSF"}
     # 'CI' inside 'CIELAB' is not the term; the glossary page itself is not searched
     assert [e["term"] for e in printed(entries, pages)] == ["f_k", "HP"]
+
+
+def test_bay_area_of_a_day_s_work_by_hand():
+    """Bay area A_bay = min(q·T·A/V, A), the rule stated on the calculation sheet."""
+    c = by_check(check("demo_project")[1])
+    # demo Z2, render by area: q = 25 L/h (dossier.yaml Z2.placing_rate), T = 6 h (works rule
+    # working_day, common practice), coats 12 + 8 mm (dossier.yaml), so 20 L per m² of face;
+    # by hand: 25 x 6 = 150 L a day / 20 L/m² = 7.5 m² (less than the zone's 85 m²)
+    z2 = c[("MTH-BAY", "Z2")]
+    assert (z2.status, z2.value, z2.unit) == ("info", 7.5, "m²")
+    assert z2.steps[0].formula == r"A_{bay} = \min(q\,T\,A / V,\ A)"
+    # demo Z1, repointing: q = 8 L/h (dossier.yaml), 48 L a day; the net joint volume of the
+    # zone (WORKS-QTY) is 741.2 L over 240 m²: 48 x 240 / 741.2 = 15.54 m² by hand
+    assert c[("MTH-BAY", "Z1")].value == pytest.approx(48 * 240 / 741.18, abs=0.01)
+    assert ("MTH-BAY", "Z3") not in c          # bedding: block by block, no bay by area
+
+
+def test_bay_never_larger_than_the_zone():
+    from specgen.science.works import bay_area
+    # 10 L/h for 6 h = 0.06 m³ a day at 0.018 m³/m² (a 10 + 8 mm render) = 3.33 m² by hand;
+    # a 2 m² zone is one bay
+    assert bay_area(10 / 3.6e6, 6 * 3600, 0.018 * 50, 50) == pytest.approx(60 / 18, rel=1e-12)
+    assert bay_area(10 / 3.6e6, 6 * 3600, 0.018 * 2, 2) == 2

@@ -70,3 +70,45 @@ def rake_out_check(zone, ctx):
     return CheckResult(code="MTH-RAKE", title=TITLE, subject=zone.id, subject_kind="zone",
                        status=status, value=round(depth / MM, 3), unit="mm", basis=BASIS,
                        steps=tuple(steps), limit=limit, message=message, quantities=(q,))
+
+
+BAY_TITLE = "Bay size of a day's work"
+BAY_BASIS = (Basis("common practice", note="work by area is done in bays that one crew "
+                   "finishes in a day, so no bay is left raked out, part-pointed or with an "
+                   "open render coat overnight"),)
+declare("bay_area", "m²", "face area of a bay, the work of one crew for a day, in a zone worked "
+        "by area: {area, per_m2_l, per_day_l, zone_area} (m², L/m², L, m²)")
+
+
+@register("MTH-BAY", BAY_TITLE, "zone", order=641)
+def bay_check(zone, ctx):
+    """Bay area ``min(q · T · A / V, A)`` of a repointing or render zone, from the mortar a
+    crew places in a day and the mortar a square metre of the face takes."""
+    from specgen.checks.works_common import rule_si
+    vol = ctx.quantity(zone.id, "mortar_volume_net")
+    if zone.works not in ("repointing", "render") or vol is None or not zone.area:
+        return []                    # bedding goes block by block; no quantities, no bay
+    default = rule_si(ctx.rules, "placing_rate", "volume_rate")
+    rate = ((zone.placing_rate, f"dossier.yaml {zone.id}.placing_rate") if zone.placing_rate
+            else (default.value, default.source))
+    day = rule_si(ctx.rules, "working_day", "time")
+    bay = wk.bay_area(rate[0], day.value, vol.value, zone.area)
+    per_m2 = vol.value / zone.area * 1e3          # L of mortar per m² of face
+    per_day = rate[0] * day.value * 1e3            # L placed in a day
+    inputs = (Input("q", "placing rate", round(rate[0] * 3.6e6, 4), "L/h", rate[1]),
+              Input("T", "placing hours per day", day.value / 3600, "h", day.source),
+              Input("V", "mortar volume before wastage", vol.value, "m³",
+                    f"WORKS-QTY/{zone.id}"),
+              Input("A", "face area of the zone", zone.area, "m²", f"dossier.yaml {zone.id}.area"))
+    step = Step("Face area one crew fills in a day", r"A_{bay} = \min(q\,T\,A / V,\ A)", inputs,
+                rf"A_{{bay}} = \min({per_day:.4g}\ \mathrm{{L}} \times {zone.area:g} / "
+                rf"{vol.value * 1e3:.4g}\ \mathrm{{L}},\ {zone.area:g}) = {bay:.3g}",
+                round(bay, 2), "m²", "A_bay")
+    q = Quantity("bay_area", {"area": round(bay, 2), "per_m2_l": round(per_m2, 3),
+                              "per_day_l": round(per_day, 3), "zone_area": zone.area}, "m²",
+                 "bay area of a day's work")
+    return CheckResult(code="MTH-BAY", title=BAY_TITLE, subject=zone.id, subject_kind="zone",
+                       status="info", value=round(bay, 2), unit="m²", basis=BAY_BASIS,
+                       steps=(step,), message=f"bays of about {bay:.3g} m² a crew-day "
+                       f"({per_day:.3g} L a day at {per_m2:.3g} L per m² of face)",
+                       quantities=(q,))

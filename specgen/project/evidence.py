@@ -52,7 +52,7 @@ def evidence(project, doc, located: dict, log: ProblemLog, failed) -> Evidence:
                 continue     # an image that could not be read: its own problem is reported
             known = {k: v for k, v in ev.images.items() if not v[0].file.lower().endswith(".svg")}
             _ref(log, located, SAMPLES_FILE, ("drawings", i, "image"), d.image,
-                 known if ev.images or not doc.images else SKIP, "JPEG or PNG image")
+                 known if ev.images or not doc.images else SKIP, "JPEG, PNG or PDF drawing")
         ev.reports = _reports(project, doc, located, log)
     known = SKIP if SAMPLES_FILE in failed else ev.samples
     _yaml_refs(project, known, located, log)
@@ -229,7 +229,7 @@ def _file(project, rel: str, key: tuple, located: dict, log: ProblemLog, limit: 
 
 
 def _images(project, doc, located: dict, log: ProblemLog, failed) -> dict:
-    """Images of the register that Pillow can read (JPEG, PNG) or that are SVG drawings."""
+    """Images of the register that Pillow can read (JPEG, PNG), SVG drawings and PDF pages."""
     from specgen.project.layout import index_of as _index
     zones = SKIP if "dossier.yaml" in set(failed) | log.files() else {
         z.id: z for z in project.dossier.zones}
@@ -241,14 +241,59 @@ def _images(project, doc, located: dict, log: ProblemLog, failed) -> dict:
         if got is None:
             continue
         data, line, field_ = got
-        problem = image_problem(data, img.file)
-        if problem:
-            log.add(SAMPLES_FILE, f"the file '{quote(img.file)}' {problem}.", line=line,
-                    field=field_, fix="give a JPEG or PNG photograph, or an SVG drawing (a "
-                    "drawing in a PDF: export the page as PNG or SVG).")
+        if img.file.lower().endswith(".pdf"):
+            found = pdf_page_problem(data, img.page)
+            if found:
+                problem, fix, on_page = found
+                where = located.get(SAMPLES_FILE)
+                log.add(SAMPLES_FILE, f"the file '{quote(img.file)}' {problem}.", fix=fix,
+                        field=f"images[{i}].page" if on_page else field_,
+                        line=(where.line_of(("images", i, "page")) if on_page and where
+                              else line))
+                continue
+        elif (problem := image_problem(data, img.file)) or img.page is not None:
+            log.add(SAMPLES_FILE, f"the file '{quote(img.file)}' "
+                    f"{problem or 'is not a PDF, so it has no page to choose'}.", line=line,
+                    field=field_, fix="give a JPEG or PNG photograph, or a drawing as SVG, "
+                    "JPEG, PNG or a page of a PDF (file ending .pdf, with its page).")
             continue
         out[img.id] = (img, data)
     return out
+
+
+def pdf_page_problem(data: bytes, page: int | None) -> tuple[str, str, bool] | None:
+    """Why page ``page`` of the PDF ``data`` cannot be placed as a drawing, the fix, and whether
+    the page number is at fault; None when it can (pypdfium2 reads it; rendering is the render
+    stage's)."""
+    if not data.startswith(b"%PDF-"):
+        return ("is not a PDF (it does not begin with %PDF-)",
+                "give the drawing as a PDF, or as an SVG, PNG or JPEG file.", False)
+    import pypdfium2 as pdfium
+    import pypdfium2.raw as pdfium_c
+    try:
+        pdf = pdfium.PdfDocument(data)
+    except pdfium.PdfiumError as exc:
+        if "password" in str(exc).lower():
+            return ("is encrypted (it asks for a password)", _UNLOCK, False)
+        return ("cannot be read as a PDF (it is damaged or incomplete)",
+                "export the drawing again as a PDF, or as SVG or PNG.", False)
+    try:
+        if pdfium_c.FPDF_GetSecurityHandlerRevision(pdf.raw) != -1:
+            return ("is encrypted (it carries a security handler)", _UNLOCK, False)
+        pages = len(pdf)
+    finally:
+        pdf.close()
+    if page is None and pages > 1:
+        return (f"has {pages} pages and no page is named",
+                f"give 'page:' (1 to {pages}) for the sheet of the drawing.", True)
+    if page is not None and page > pages:
+        return (f"has {pages} page{'s' if pages > 1 else ''}; page {page} is not in it",
+                f"give a page from 1 to {pages}.", True)
+    return None
+
+
+_UNLOCK = "save an unencrypted copy of the drawing (print it to a new PDF, or export the page " \
+    "as SVG or PNG) and place that."
 
 
 def image_problem(data: bytes, name: str) -> str | None:

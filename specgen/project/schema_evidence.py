@@ -91,10 +91,12 @@ class Sample(Model):
 
 
 class Picture(Model):
-    """A photograph or a drawing sheet placed in the dossier (JPEG, PNG or SVG)."""
+    """A photograph or a drawing sheet placed in the dossier (JPEG, PNG, SVG or a PDF page)."""
 
     id: Id = Field(description="image identifier, e.g. P1")
     file: Text = Field(description="the file inside the project folder, e.g. images/P1.jpg")
+    page: int | None = Field(None, ge=1, description="the page of a PDF drawing, from 1 (a "
+                             "one-page PDF needs none)")
     caption: Text = Field(description="what the image shows, as its caption")
     kind: Literal["photograph", "drawing"] = Field("photograph", description="photograph or "
                                                    "drawing")

@@ -51,8 +51,9 @@ def _images(env) -> list[dict]:
     from specgen.report.evidence_images import THUMB_PX, normalise
     out = []
     for iid, (img, data) in env.project.images.items():
-        full, ext, size = normalise(data, img.file, keep_metadata=img.keep_metadata)
-        thumb, _, _ = normalise(data, img.file, THUMB_PX, img.keep_metadata)
+        full, ext, size = normalise(data, img.file, keep_metadata=img.keep_metadata,
+                                    page=img.page)
+        thumb, _, _ = normalise(data, img.file, THUMB_PX, img.keep_metadata, img.page)
         words = [img.kind] + ([img.taken_on.isoformat()] if img.taken_on else []) + \
             ([f"by {img.by}"] if img.by else []) + ([f"zone {img.zone}"] if img.zone else [])
         caption = f"{img.caption} ({', '.join(words)})"
@@ -157,7 +158,7 @@ def _drawing(env, d) -> dict:
     if d.image in p.images:
         from specgen.report.evidence_images import normalise
         img, data = p.images[d.image]
-        sheet = normalise(data, img.file)[0]
+        sheet = normalise(data, img.file, page=img.page)[0]
     svg = overlay(d.width, d.height, d.units, zones, points, d.north, sheet)
     caption = f"Drawing {d.id}: {d.title} — zones of work and sample points"
     if d.reference:

@@ -37,14 +37,24 @@ def _values(env, zone, window: dict) -> dict:
     layer = RuleBook(env.project.dossier.rule_overrides)["method.pointing_layer"]
     by_zone = (r.value(mix, "gauging_by_zone") or {}).get(zone.id, {}) if mix else {}
     coats = [f"coat {i} {as_given(round(t * 1e3, 6))} mm" for i, t in enumerate(zone.coats, 1)]
+    bay = r.value(zone.id, "bay_area")
     return {"depth": f"{as_given(rake['depth'])} mm (the rule from the joint width gives "
                      f"{as_given(rake['rule'])} mm)" if rake else "sound mortar",
+            "bay": (f"about {_sig(bay['area'], 2)} m² of face (the day's "
+                    f"{_sig(bay['per_day_l'], 3)} L of mortar at {_sig(bay['per_m2_l'], 3)} L per "
+                    "m² of face)" if bay else
+                    "a bay of the size the trial panel shows one crew finishes in a day"),
             "layer": f"{as_given(layer.value)} mm", "coats": ", ".join(coats) or "as specified",
             "gaugings": str(by_zone.get("per_day", "the")),
             "low": as_given(window.get("low")) if window else "the lower limit",
             "high": as_given(window.get("high")) if window else "the upper limit",
             "curing": as_given(window.get("curing_days")) if window else "the specified",
             "protection": as_given(window.get("protection_days")) if window else "the specified"}
+
+
+def _sig(value: float, digits: int) -> str:
+    """``value`` to ``digits`` significant figures, without trailing zeros (48, 3.09, 7.5)."""
+    return as_given(float(f"{value:.{digits}g}"))
 
 
 def _zone(env, zone, words: dict, window: dict) -> dict:

@@ -119,3 +119,12 @@ def rake_out_depth(joint_width: float, ratio: float, minimum: float) -> float:
     width, never shallower than the least depth that keys a repair (common practice)."""
     _positive(joint_width=joint_width, ratio=ratio, minimum=minimum)
     return max(ratio * joint_width, minimum)
+
+
+def bay_area(rate: float, day: float, volume_net: float, area: float) -> float:
+    """Face area (m²) one crew fills in a working day: ``min(q · T · A / V, A)`` — the mortar
+    it places in a day (rate ``q`` m³/s for ``T`` s) over the mortar a square metre of the face
+    takes (net volume ``V`` m³ over the zone's area ``A`` m²), never more than the zone
+    (common practice: a bay is a day's work, so no day joint is left open)."""
+    _positive(rate=rate, day=day, volume_net=volume_net, area=area)
+    return min(rate * day * area / volume_net, area)
