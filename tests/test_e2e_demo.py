@@ -107,8 +107,11 @@ def test_summary_fits_two_pages_and_the_main_volume_is_short(demo_build):
     summary = "\n".join(reader.pages[i].extract_text() for i in range(start, after))
     for zone in ("Z1", "Z2", "Z3"):
         assert f"{zone} —" in summary
-    for words in ("Mortar chosen:", "Why:", "Still open:", "Cost of the mortar:"):
+    for words in ("Mortar chosen:", "Why:", "Still open:"):
         assert summary.count(words) == 3, words
+    # the cost where the zone gives its wall area: Z1 and Z2 (demo dossier.yaml); Z3, the
+    # rebedding of blocks, gives none
+    assert summary.count("Cost of the mortar:") == 2
     assert len(reader.pages) <= 66, len(reader.pages)   # "about 60" (issue 21)
     # the site mirrors the split: the appendix chapters in a section of their own, and both
     # volumes linked from the report bar of every page
