@@ -62,7 +62,9 @@ def test_the_appendices_come_after_every_chapter_of_the_report():
     """A reader turns from the report to its appendices once: no chapter of the main volume
     is printed after an appendix (the PDF's two volumes and the site's navigation)."""
     from specgen.report.chapters import chapters
-    volumes = [c.volume for c in chapters()]
+    # the reference list is rendered last (every citation numbered) but read as the
+    # report's last chapter: each volume keeps its own chapters in order
+    volumes = [c.volume for c in chapters() if c.path != "references.md"]
     assert "appendix" in volumes
     first = volumes.index("appendix")
     assert volumes[first:] == ["appendix"] * (len(volumes) - first), \

@@ -42,7 +42,6 @@ READING_ORDER = (
     "method.md",           # method statement, responsibilities, aftercare
     "cautions.md",
     "comments.md",
-    "references.md",
     # the appendices, after every chapter of the report (the PDF's appendix volume)
     "checks.md",           # appendix: check register
     "calculations.md",     # appendix: calculation sheets
@@ -55,6 +54,9 @@ READING_ORDER = (
     "confirm.md",          # appendix: values to confirm
     "history.md",          # appendix: revision history
     "glossary.md",         # appendix: the abbreviations and symbols printed
+    # rendered last so that every citation, the appendices' included, is numbered; it is
+    # the report's last chapter (each volume keeps the chapters of its own in this order)
+    "references.md",
 )
 
 
