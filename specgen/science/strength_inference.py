@@ -46,14 +46,16 @@ Student's t at ``ν_w + ν0`` degrees of freedom (it rests on the estimated vari
 from __future__ import annotations
 
 import math
-from collections.abc import Callable, Mapping, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
 from scipy import stats
 
-from specgen.errors import ScienceInputError
+# the priors and the generic tools of the fit, importable from here as before
+from specgen.science.strength_priors import (PRIOR_KEYS, _Z95, InferenceError,  # noqa: F401
+                                             Prior, PriorTerm, _central_cv, prior_from_table)
 # the generic tools of the fit, importable from here as before
 from specgen.science.inference_tools import (Laplace, LackOfFit,  # noqa: F401
                                              importance_sample, lack_of_fit, laplace_fit,
@@ -67,12 +69,6 @@ KEPT = 1000    # equally weighted draws kept after resampling (about the effecti
 NODES = 48     # a longer list of ages (a curve) takes the band's offsets from ln f at this many
                # log-spaced ages, interpolated in ln t (the offsets vary slowly with age)
 GAIN_AGES_D = (28.0, 365.0)
-PRIOR_KEYS = ("early_fraction", "tau_fast_d", "tau_slow_d", "shape_b", "gain_365_28")
-_Z95 = float(stats.norm.ppf(0.975))
-
-
-class InferenceError(ScienceInputError):
-    """The record cannot be assessed; the message says why and what to test."""
 
 
 # ---------------------------------------------------------------- the law
@@ -112,60 +108,6 @@ def _log_f_grad(z, t_d) -> np.ndarray:
         np.ones_like(t), (a_ - b_) * phi * (1 - phi) / shape,
         -phi * (t / ta) * ea / shape, -(1 - phi) * b * u * eb / shape,
         (1 - phi) * eb * b * u * np.log(t / ts) / shape])
-
-
-# ---------------------------------------------------------------- priors
-@dataclass(frozen=True)
-class PriorTerm:
-    """A log-normal (logit-normal for a fraction) prior read from a central 95 % range."""
-
-    name: str
-    low: float
-    high: float
-    source: str
-
-    @property
-    def transform(self) -> Callable[[float], float]:
-        return _logit if self.name == "early_fraction" else math.log
-
-    @property
-    def mu(self) -> float:
-        return 0.5 * (self.transform(self.low) + self.transform(self.high))
-
-    @property
-    def sd(self) -> float:
-        return (self.transform(self.high) - self.transform(self.low)) / (2 * _Z95)
-
-
-def _logit(p: float) -> float:
-    return math.log(p / (1.0 - p))
-
-
-@dataclass(frozen=True)
-class Prior:
-    """One binder family's prior (``terms`` by key of ``PRIOR_KEYS``) and scatter ranges."""
-
-    family: str
-    label: str
-    terms: dict[str, PriorTerm]
-    batch_cv: PriorTerm
-    within_cv: PriorTerm
-    carbonating: bool
-
-
-def prior_from_table(family: str, row: Mapping) -> Prior:
-    """A :class:`Prior` from one family row of ``strength_priors.yaml`` (ranges as printed)."""
-    def term(k):
-        lo, hi = (float(v) for v in row[k]["range"])
-        if not 0 < lo < hi or (k == "early_fraction" and hi >= 1):
-            raise InferenceError(f"prior '{family}.{k}': range must satisfy 0 < low < high")
-        return PriorTerm(k, lo, hi, str(row[k]["source"]))
-    return Prior(family, str(row.get("label", family)), {k: term(k) for k in PRIOR_KEYS},
-                 term("batch_cv"), term("within_cv"), bool(row.get("carbonating", False)))
-
-
-def _central_cv(term: PriorTerm) -> float:
-    return math.sqrt(term.low * term.high)          # geometric middle of the range
 
 
 # ---------------------------------------------------------------- the fit
