@@ -542,15 +542,20 @@ def test_every_durability_sheet_formula_renders(demo):
         assert svg_of(latex).startswith("<svg"), latex
 
 
-def test_practice_key_read_when_present():
-    from types import SimpleNamespace as NS
-
-    from specgen.checks.durability_common import PRACTICE_NOTE, practice
-    assert practice(NS(dossier=NS())) == ("european", PRACTICE_NOTE)
-    assert practice(NS(dossier=NS(practice="american"))) == ("american",
-                                                            "dossier.yaml practice: american")
-    assert practice(NS(dossier=NS(practice=NS(follows="european")))) == (
-        "european", "dossier.yaml practice: european")
+def test_practice_key_read_when_present(demo_copy):
+    """The exposure classes follow the practice the whole dossier follows (specgen.practice):
+    the stated one, or, when dossier.yaml states none, the same default as the gradings, the
+    mortar classes and the scope page — never a second default of its own."""
+    from specgen import practice as pr
+    from specgen.build import load
+    from specgen.checks.durability_common import practice
+    project = load(demo_copy)                 # the demo states "follows: european"
+    assert practice(project) == ("european", "dossier.yaml practice: european")
+    edit(demo_copy / "dossier.yaml", "  follows: european\n", "")
+    project = load(demo_copy)
+    key, said = practice(project)
+    assert key == pr.resolve(project.dossier).key == pr.DEFAULT
+    assert said.startswith("practice not stated in dossier.yaml:")
 
 
 def test_american_practice_names_the_c270_location(demo_copy, monkeypatch):

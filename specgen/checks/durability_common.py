@@ -15,20 +15,14 @@ from specgen.checks.result import Basis, Input, Quantity
 declare("tests_asked", "", "tests a check asks the project to commission: [{test, method, "
         "why, check}]")
 
-PRACTICE_NOTE = ("practice not stated in dossier.yaml: European practice assumed "
-                 "(EN 1996-1-1, EN 998-2)")
-
-
 def practice(project) -> tuple[str, str]:
-    """('european' | 'american', where that came from)."""
-    raw = getattr(project.dossier, "practice", None)
-    raw = getattr(raw, "follows", raw)          # dossier.yaml practice.follows
-    raw = getattr(raw, "value", raw)
-    if raw is None:
-        return "european", PRACTICE_NOTE
-    word = str(raw).lower()
-    kind = "american" if word.startswith(("am", "astm", "us")) else "european"
-    return kind, f"dossier.yaml practice: {word}"
+    """('european' | 'american', where that came from): the set :func:`specgen.practice.resolve`
+    gives for the whole dossier (one default for every check when dossier.yaml states none)."""
+    from specgen import practice as pr
+    p = pr.resolve(project.dossier)
+    if not p.stated:
+        return p.key, f"practice not stated in dossier.yaml: {p.title} assumed"
+    return p.key, f"dossier.yaml practice: {p.key}"
 
 
 def rule(ctx, name: str):
