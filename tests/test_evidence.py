@@ -440,3 +440,16 @@ def test_clustered_points_keep_their_labels_apart():
     points = [(f"S{i}-long", 8 + 0.3 * i, 1.0 + 0.2 * (i % 2)) for i in range(6)]
     fig = overlay_figure(20, 3, "m", [("Z9", 1, 0.3, 18, 2.4)], points, "faces north")
     _boxes_apart(fig, 6)
+
+
+def test_a_sample_id_given_twice_is_its_register_problem_only(demo_copy):
+    """Found by the long project fuzz (id_twice #831): NH35-D1 renamed to NC1-F2 in the
+    register is reported there, at its line; the analysis that names NH35-D1 gets no follow-on
+    error (the register, with a problem of its own, is not a reference for other files)."""
+    edit(demo_copy / "samples.yaml", "  - id: NH35-D1", "  - id: NC1-F2")
+    text = problems(demo_copy)
+    # the renamed entry's line in the demo register, found by reading it
+    line = (demo_copy / "samples.yaml").read_text(encoding="utf-8").splitlines().index(
+        "  - id: NC1-F2", 85) + 1
+    assert f"samples.yaml, line {line}: samples[7].id: sample id 'NC1-F2' is given twice" in text
+    assert "analyses.yaml" not in text, text

@@ -54,7 +54,9 @@ def evidence(project, doc, located: dict, log: ProblemLog, failed) -> Evidence:
             _ref(log, located, SAMPLES_FILE, ("drawings", i, "image"), d.image,
                  known if ev.images or not doc.images else SKIP, "JPEG, PNG or PDF drawing")
         ev.reports = _reports(project, doc, located, log)
-    known = SKIP if SAMPLES_FILE in failed else ev.samples
+    # a register with problems of its own (an id given twice may stand for another entry's
+    # lost one) is not a reference for the other files: no follow-on errors
+    known = SKIP if SAMPLES_FILE in set(failed) | log.files() else ev.samples
     _yaml_refs(project, known, located, log)
     _table_refs(project, known, log)
     if doc is not None:
