@@ -334,7 +334,7 @@ def test_hold_point_released_earlier_cannot_silently_reopen(demo_copy):
      "specification.yaml, line 48: hold_points[0].released_in: hold point 'HP1' was released in "
      "'R7', which is neither this revision nor an issued one. Fix: use one of: R3, R1, R2."),
     ("    colour_sample: M3\n", "    colour_sample: M33\n",
-     "specification.yaml, line 103: trial_panels[2].colour_sample: trial panel 'TP3' names colour "
+     "specification.yaml, line 104: trial_panels[2].colour_sample: trial panel 'TP3' names colour "
      "sample 'M33', which is not in lab/colour.csv. Fix: did you mean 'M3'?"),
     ("    judgement: pending\n\ncurrency", "    judgement: pending\n    photo: ../TP4.jpg\n\n"
      "currency", "specification.yaml: trial_panels[3].photo: the path '../TP4.jpg' leaves the "

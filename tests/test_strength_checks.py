@@ -251,7 +251,9 @@ def test_site_record_path_leaving_the_project(demo_copy):
     edit(demo_copy / "dossier.yaml", "site_temperature: lab/site-temperature.csv",
           "site_temperature: ../elsewhere.csv")
     out = problems(demo_copy)
-    assert ("dossier.yaml, line 95: site_temperature: the path '../elsewhere.csv' leaves the project "
+    line = next(i for i, text in enumerate((demo_copy / "dossier.yaml").read_text(
+        encoding="utf-8").splitlines(), 1) if text.startswith("site_temperature:"))
+    assert (f"dossier.yaml, line {line}: site_temperature: the path '../elsewhere.csv' leaves the project "
             "folder. Fix: give a path relative to the project folder, without '..'.") \
         in out
 

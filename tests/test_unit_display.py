@@ -49,10 +49,11 @@ def test_each_practice_names_a_display_the_render_knows():
 
 
 def _render(project_dir, monkeypatch):
-    """Render the scope and specification pages only (the wiring, not every figure)."""
+    """Render the scope, specification and options pages only (the wiring, not every figure)."""
     from specgen.build import check
     from specgen.report import render as rnd
-    wanted = [s for s in rnd.chapters() if s.path in ("scope.md", "specification.md")]
+    wanted = [s for s in rnd.chapters() if s.path in ("scope.md", "specification.md",
+                                                      "options.md")]
     monkeypatch.setattr(rnd, "chapters", lambda: wanted)
     project, results = check(project_dir)
     return rnd.render(project, results).pages
@@ -67,8 +68,8 @@ def test_american_project_reads_us_customary_beside_si(demo_copy, monkeypatch):
     pages = _render(demo_copy, monkeypatch)
     assert ("Quantities are given in SI units, with the US customary value beside each "
             "reading in the text (the calculation sheets stay in SI") in pages["scope.md"]
-    # demo NC1 firing peak 930 °C = 1706 °F (x 9/5 + 32), beside it on the specification
-    assert f"930.0{NB}°C (1706{NB}°F)" in pages["specification.md"]
+    # demo NC1 firing peak 930 °C = 1706 °F (x 9/5 + 32), beside it in the options appraisal
+    assert f"930.0{NB}°C (1706{NB}°F)" in pages["options.md"]
     # the display is set for the render only: afterwards SI alone again
     assert fmt.qty(930.0, "degC") == f"930.0{NB}°C"
 
@@ -76,5 +77,5 @@ def test_american_project_reads_us_customary_beside_si(demo_copy, monkeypatch):
 def test_european_project_reads_si_only(demo_copy, monkeypatch):
     pages = _render(demo_copy, monkeypatch)        # the demo follows European practice
     assert "Quantities are given in SI units." in pages["scope.md"]
-    assert not US.search(pages["specification.md"])
-    assert f"930.0{NB}°C" in pages["specification.md"]
+    assert not US.search(pages["specification.md"]) and not US.search(pages["options.md"])
+    assert f"930.0{NB}°C" in pages["options.md"]
