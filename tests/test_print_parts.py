@@ -103,9 +103,16 @@ def test_assembled_pdf_reads_as_one_document(starter_build):
     assert contents_targets == set(toc.values())
 
 
-def test_wide_tables_print_landscape_with_the_running_heads(tmp_path):
+def _context() -> dict:
+    """The print context of a small invented document (what write_pdf needs of a project)."""
     from types import SimpleNamespace
+    project = SimpleNamespace(title="Test pier", site="Nowhere", client="Nobody", code="T-1")
+    return {"title": "Test pier — revision A", "author": "specgen tests", "subject": "s",
+            "keywords": "k", "date": "2026-01-01", "project": project,
+            "revision": SimpleNamespace(code="A"), "state": "draft", "purpose": "preliminary"}
 
+
+def test_wide_tables_print_landscape_with_the_running_heads(tmp_path):
     from pypdf import PdfReader
 
     from specgen.publish.pdf import WIDE_COLUMNS, write_pdf
@@ -118,10 +125,7 @@ def test_wide_tables_print_landscape_with_the_running_heads(tmp_path):
     pages = PageSet()
     pages.add_page("index.md", "Summary", "# Summary\n\nNarrow text.\n")
     pages.add_page("wide.md", "Wide", f"# Wide\n\n{table}\nAfter the table.\n")
-    project = SimpleNamespace(title="Test pier", site="Nowhere", client="Nobody", code="T-1")
-    context = {"title": "Test pier — revision A", "author": "specgen tests", "subject": "s",
-               "keywords": "k", "date": "2026-01-01", "project": project,
-               "revision": SimpleNamespace(code="A"), "state": "draft", "purpose": "preliminary"}
+    context = _context()
     target = tmp_path / "t.pdf"
     write_pdf(pages, context, target, attachments={"a.txt": b"a"}, workers=1)
     reader = PdfReader(str(target))
@@ -161,8 +165,6 @@ def test_assembled_pdf_is_tagged(tmp_path):
     """Parts printed apart make one structure tree: language set, every page tied in, the
     figure with its alternative text, real table headers, ids unique across parts
     (PDF/UA-1 requirements as checked by tests/pdf_structure.py, from memory)."""
-    from types import SimpleNamespace
-
     from pypdf import PdfReader
 
     from specgen.publish.pdf import write_pdf
@@ -176,10 +178,7 @@ def test_assembled_pdf_is_tagged(tmp_path):
     pages.add_page("index.md", "Summary", f"# Summary\n\n{table}\n[Next](two.md)\n")
     pages.add_page("two.md", "Two", '# Two\n\n<figure><img src="figures/box.svg" '
                    f'alt="A brown box"><figcaption>Figure 1</figcaption></figure>\n\n{table}')
-    project = SimpleNamespace(title="Test pier", site="Nowhere", client="Nobody", code="T-1")
-    context = {"title": "Test pier — revision A", "author": "specgen tests", "subject": "s",
-               "keywords": "k", "date": "2026-01-01", "project": project,
-               "revision": SimpleNamespace(code="A"), "state": "draft", "purpose": "preliminary"}
+    context = _context()
     target = tmp_path / "t.pdf"
     from specgen.publish import pdf as pdfmod
     write_pdf(pages, context, target, attachments={"a.txt": b"a"}, workers=1)
@@ -201,8 +200,6 @@ def test_a_raster_inside_a_figure_reaches_the_pdf_and_nothing_else_inline_does(t
     URL (its SVG backend's behaviour); the PDF shows it. Inline content of other types, and
     every other URL, stay refused."""
     import io
-    from types import SimpleNamespace
-
     import matplotlib
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
@@ -222,10 +219,7 @@ def test_a_raster_inside_a_figure_reaches_the_pdf_and_nothing_else_inline_does(t
     pages = PageSet()
     name = pages.add_asset("figures/sheet.svg", svg)
     pages.add_page("index.md", "Summary", f"# Summary\n\n![A drawing sheet]({name})\n")
-    project = SimpleNamespace(title="Test pier", site="Nowhere", client="Nobody", code="T-1")
-    context = {"title": "Test pier — revision A", "author": "specgen tests", "subject": "s",
-               "keywords": "k", "date": "2026-01-01", "project": project,
-               "revision": SimpleNamespace(code="A"), "state": "draft", "purpose": "preliminary"}
+    context = _context()
     target = tmp_path / "t.pdf"
     write_pdf(pages, context, target, attachments={}, workers=1)
     assert any(len(p.images) for p in PdfReader(str(target)).pages)
@@ -242,8 +236,6 @@ def test_report_and_appendices_print_as_two_cross_linked_volumes(tmp_path):
     (naming the other volume's chapters) and its own folios; a link from one volume to the
     other opens the other file at the place linked (a remote go-to to a named destination,
     read back with pypdf); the main volume alone carries the attachments."""
-    from types import SimpleNamespace
-
     from pypdf import PdfReader
 
     from specgen.publish.pdf import write_pdf
@@ -253,10 +245,7 @@ def test_report_and_appendices_print_as_two_cross_linked_volumes(tmp_path):
     pages.add_page("calc.md", "B Calculation sheets", "# B Calculation sheets\n\n"
                    '<h2 id="sheet-1">Sheet one</h2>\n\nBack to [the summary](index.md).\n',
                    volume="appendix")
-    project = SimpleNamespace(title="Test pier", site="Nowhere", client="Nobody", code="T-1")
-    context = {"title": "Test pier — revision A", "author": "specgen tests", "subject": "s",
-               "keywords": "k", "date": "2026-01-01", "project": project,
-               "revision": SimpleNamespace(code="A"), "state": "draft", "purpose": "preliminary"}
+    context = _context()
     main, app = tmp_path / "T-1-A.pdf", tmp_path / "T-1-A-appendices.pdf"
     write_pdf(pages, context, main, attachments={"a.txt": b"a"}, workers=1,
               appendix=(app, app.name, main.name))
