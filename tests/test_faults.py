@@ -13,6 +13,8 @@ from pathlib import Path
 
 import pytest
 
+from tests.conftest import copy_build
+
 pytestmark = pytest.mark.e2e
 
 
@@ -70,16 +72,10 @@ def _running(pid: str) -> bool:
 
 
 @pytest.fixture(scope="module")
-def single_revision(tmp_path_factory):
-    """A built starter project (one revision): the faults are the same as on the demo, and
-    its small PDF keeps the repeated builds cheap."""
-    from specgen.starter import write_starter
-    root = tmp_path_factory.mktemp("faults") / "project"
-    write_starter(root)
-    out = root.parent / "out"
-    assert subprocess.run([sys.executable, "-m", "specgen", "build", str(root), "--out",
-                           str(out), "--quiet"], capture_output=True).returncode == 0
-    return root, out
+def single_revision(starter_build, tmp_path_factory):
+    """A copy of the built starter project (one revision): the faults are the same as on the
+    demo, and its small PDF keeps the repeated builds cheap."""
+    return copy_build(starter_build, tmp_path_factory.mktemp("faults"))
 
 
 @pytest.mark.parametrize("marker, delay", [
