@@ -188,8 +188,7 @@ def _means_step(run: spc.InferenceRun, level: float) -> Step:
                     rf"{b['pred_hi'][i]:.3f}]_{{set}}")
     return Step(f"Measured means against the {level:.0%} band for the mean curve and the "
                 "interval for a set of the same size",
-                r"e^{\ln\hat f \pm z\sqrt{g^{\mathsf T}\Sigma g}},\quad e^{\ln\hat f \pm "
-                r"q\sqrt{g^{\mathsf T}\Sigma g + \sigma_b^2 + \sigma_w^2/n}}",
+                r",\quad ".join(si.interval_formulas(inf)),
                 tuple(inputs), r";\ ".join(subs), len(run.outside), "", "misses")
 
 

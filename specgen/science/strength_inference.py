@@ -35,13 +35,15 @@ Intervals (never clipped; exponentiated, so always positive and finite):
 
 * band for the mean curve: the central quantiles of ``ln f(t)`` over the kept draws,
   ``[exp(l), exp(h)]`` (Laplace fallback: ``exp(ln f ± z·sqrt(gᵀΣg))``);
-* prediction interval for the mean of the next set of ``n`` prisms (one new batch):
+* prediction interval for the mean of the next set of ``n`` prisms (one new batch): the
+  central quantiles of the posterior predictive mixture ``ln f(t; z_i) + T_ij·sqrt(σb² +
+  σw²/n)`` over the kept draws ``z_i``, each with ``PREDICTIVE_REPEATS`` Student-t variates
+  ``T_ij`` at ``ν_w + ν0`` degrees of freedom (the new batch's own scatter, resting on the
+  estimated variances; Gelman et al. 2013, Bayesian Data Analysis, sec. 1.3, the posterior
+  predictive as a mixture over the posterior), so a skewed posterior keeps its skew;
+  ``n = inf`` gives one batch's own strength (mortar in the wall).  Laplace fallback:
   ``exp(c ± q·sqrt(s² + σb² + σw²/n))`` with ``c = (l + h)/2`` and ``s = (h - l)/(2z)`` the
-  band's centre and standard deviation on the log scale; ``n = inf`` gives one batch's own
-  strength (mortar in the wall);
-
-The band for the mean is the posterior's own quantiles; the prediction interval uses
-Student's t at ``ν_w + ν0`` degrees of freedom (it rests on the estimated variances).
+  band's centre and standard deviation on the log scale, ``q`` Student's t.
 """
 from __future__ import annotations
 
@@ -69,6 +71,7 @@ KEPT = 1000    # equally weighted draws kept after resampling (about the effecti
 NODES = 48     # a longer list of ages (a curve) takes the band's offsets from ln f at this many
                # log-spaced ages, interpolated in ln t (the offsets vary slowly with age)
 GAIN_AGES_D = (28.0, 365.0)
+PREDICTIVE_REPEATS = 4   # Student-t variates per kept draw in the predictive mixture
 
 
 # ---------------------------------------------------------------- the law
@@ -271,38 +274,78 @@ class Interval:
     indicative: bool
 
 
-def _log_band(inf: Inference, t_d, level: float):
+def _log_bands(inf: Inference, t_d, level: float, extra_sd=None):
     """At ages ``t_d`` (d): ln f at the mode and the central ``level`` band for the mean curve
-    on the log scale (lower, upper): the posterior's weighted quantiles, or the Laplace normal."""
+    on the log scale (lower, upper) -- the posterior's quantiles, or the Laplace normal -- and,
+    when ``extra_sd`` (the SD of a new batch's mean on the log scale, one per age or one for
+    all) is given, the prediction interval (lower, upper) on the log scale: the quantiles of
+    the posterior predictive mixture, or the Laplace fallback (module docstring)."""
     t = np.atleast_1d(np.asarray(t_d, float))
     if np.any(t <= 0) or not np.all(np.isfinite(t)):
         raise InferenceError("prediction ages must be positive finite numbers of days")
     m = _log_f(inf.mode, t)
+    if not inf.sampled:
+        g = _log_f_grad(inf.mode, t)
+        var = np.clip(np.einsum("ij,jk,ik->i", g, inf.cov, g), 0, None)
+        s = _z_quantile(level) * np.sqrt(var)
+        if extra_sd is None:
+            return m, m - s, m + s, None, None
+        sp = inf.quantile(level) * np.sqrt(var + np.asarray(extra_sd, float) ** 2)
+        return m, m - s, m + s, m - sp, m + sp
+    a = (1.0 - level) / 2.0
+    nodes = t if t.size <= NODES else np.geomspace(t.min(), t.max(), NODES)
+    with np.errstate(over="ignore", invalid="ignore"):
+        lf = _log_f(inf.draws.T[:, :, None], nodes[None, :])
+    lo, hi = np.quantile(lf, [a, 1.0 - a], axis=0, method="inverted_cdf")
+    plo = phi = None
+    if extra_sd is not None:
+        e = np.broadcast_to(np.asarray(extra_sd, float), t.shape)
+        if nodes is not t:
+            order = np.argsort(t)
+            e = np.interp(np.log(nodes), np.log(t[order]), e[order])
+        mix = lf[None, :, :] + _predictive_noise(inf.dof)[:, :, None] * e[None, None, :]
+        plo, phi = np.quantile(mix.reshape(-1, nodes.size), [a, 1.0 - a], axis=0,
+                               method="inverted_cdf")
+    if nodes is t:
+        return m, lo, hi, plo, phi
+    mn, x, lt = _log_f(inf.mode, nodes), np.log(nodes), np.log(t)
+
+    def at(edge):
+        return None if edge is None else m + np.interp(lt, x, edge - mn)
+    return m, at(lo), at(hi), at(plo), at(phi)
+
+
+@lru_cache(maxsize=64)
+def _predictive_noise(dof: float) -> np.ndarray:
+    """``PREDICTIVE_REPEATS`` x ``KEPT`` Student-t variates (``dof``), fixed seed: the new
+    batch's standardised scatter in the predictive mixture (repeatable builds)."""
+    out = np.random.default_rng(SEED + 1).standard_t(dof, (PREDICTIVE_REPEATS, KEPT))
+    out.flags.writeable = False
+    return out
+
+
+def interval_formulas(inf: Inference) -> tuple[str, str]:
+    """LaTeX of how the band for the mean curve and the interval for a set are computed for
+    this fit (posterior draws, or the Laplace fallback), for the calculation sheet."""
     if inf.sampled:
-        a = (1.0 - level) / 2.0
-        nodes = t if t.size <= NODES else np.geomspace(t.min(), t.max(), NODES)
-        with np.errstate(over="ignore", invalid="ignore"):
-            lf = _log_f(inf.draws.T[:, :, None], nodes[None, :])
-        lo, hi = np.quantile(lf, [a, 1.0 - a], axis=0, method="inverted_cdf")
-        if nodes is t:
-            return m, lo, hi
-        mn, x = _log_f(inf.mode, nodes), np.log(nodes)
-        return (m, m + np.interp(np.log(t), x, lo - mn), m + np.interp(np.log(t), x, hi - mn))
-    g = _log_f_grad(inf.mode, t)
-    s = _z_quantile(level) * np.sqrt(np.clip(np.einsum("ij,jk,ik->i", g, inf.cov, g), 0, None))
-    return m, m - s, m + s
+        return (r"\left[e^{Q_{\alpha/2}},\ e^{Q_{1-\alpha/2}}\right]\ \text{of}\ "
+                r"\ln f(t; z_i),\ z_i\ \text{posterior draws}",
+                r"\left[e^{Q_{\alpha/2}},\ e^{Q_{1-\alpha/2}}\right]\ \text{of}\ "
+                r"\ln f(t; z_i) + T_{ij}\sqrt{\sigma_b^2 + \sigma_w^2/n},\ "
+                r"T_{ij} \sim t_{\nu}")
+    return (r"e^{\ln\hat f \pm z\sqrt{g^{\mathsf T}\Sigma g}},\ "
+            r"g = \partial \ln f/\partial\theta",
+            r"e^{\ln\hat f \pm q\sqrt{g^{\mathsf T}\Sigma g + \sigma_b^2 + \sigma_w^2/n}}")
 
 
 def bands(inf: Inference, t_d, level: float = 0.95, n: float = 3.0) -> dict[str, np.ndarray]:
     """Arrays (MPa) at ages ``t_d`` (d): ``value``, mean band ``mean_lo``/``mean_hi`` and the
     prediction interval for the mean of ``n`` prisms of a new batch ``pred_lo``/``pred_hi``
     (``n = inf``: the batch's own strength; ``n`` may be an array, one per age)."""
-    m, lo, hi = _log_band(inf, t_d, level)
-    c, s = (lo + hi) / 2.0, (hi - lo) / (2.0 * _z_quantile(level))
-    sp = np.sqrt(s ** 2 + inf.sigma_b ** 2 + inf.sigma_w ** 2 / np.asarray(n, float))
-    q = inf.quantile(level)
+    e = np.sqrt(inf.sigma_b ** 2 + inf.sigma_w ** 2 / np.asarray(n, float))
+    m, lo, hi, plo, phi = _log_bands(inf, t_d, level, e)
     return {"value": np.exp(m), "mean_lo": np.exp(lo), "mean_hi": np.exp(hi),
-            "pred_lo": np.exp(c - q * sp), "pred_hi": np.exp(c + q * sp)}
+            "pred_lo": np.exp(plo), "pred_hi": np.exp(phi)}
 
 
 def interval(inf: Inference, age_d: float, kind: str, level: float = 0.95, n: float = 3.0,
