@@ -113,11 +113,13 @@ def test_predictive_mixture_equals_the_normal_closed_form():
     # Posterior of ln F normal, N(0, s²), the shape held, and the new batch normal (dof -> inf):
     # the predictive of ln f(t) is N(ln f̂(t), s² + σb² + σw²/n) (closed form; Gelman et al.,
     # Bayesian Data Analysis, sec. 2.5); its 95 % edges from scipy.stats.norm.  The mixture of
-    # 4 x 1000 draws agrees within 2 % of the half-width (Monte Carlo error about 1 %).
+    # the 1000 draws, each with one new batch, agrees within 5 % of the half-width: the Monte
+    # Carlo standard error of a 2.5 % quantile from 1000 draws is sqrt(p(1 - p)/N)/φ(z) =
+    # 0.085 σ, 4.3 % of the half-width 1.96 σ (Owen 2013, ch. 10).
     import dataclasses
     inf = si.fit(*_record(28), NC)
     s = 0.05
-    lnf = np.random.default_rng(3).normal(0.0, s, si.KEPT)
+    lnf = stats.norm.ppf((np.arange(si.KEPT) + 0.5) / si.KEPT, 0.0, s)   # a normal, stratified
     draws = np.tile(inf.mode, (si.KEPT, 1))
     draws[:, 0] += lnf - lnf.mean()
     normal = dataclasses.replace(inf, draws=draws, dof=1e9)
@@ -125,8 +127,8 @@ def test_predictive_mixture_equals_the_normal_closed_form():
     m = np.log(b["value"])
     half = stats.norm.ppf(0.975) * math.sqrt(
         np.var(lnf) + inf.sigma_b ** 2 + inf.sigma_w ** 2 / 3.0)
-    assert np.log(b["pred_hi"]) - m == pytest.approx(np.full(2, half), rel=0.02)
-    assert m - np.log(b["pred_lo"]) == pytest.approx(np.full(2, half), rel=0.02)
+    assert np.log(b["pred_hi"]) - m == pytest.approx(np.full(2, half), rel=0.05)
+    assert m - np.log(b["pred_lo"]) == pytest.approx(np.full(2, half), rel=0.05)
 
 
 def test_predictive_mixture_of_a_skewed_posterior_equals_the_convolution():
