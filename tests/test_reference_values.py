@@ -148,3 +148,23 @@ def test_a_value_said_to_be_recalled_is_tagged_memory():
             if places:
                 found[p.name] = places
     assert found == {}
+
+
+DESIGNATION = re.compile(r"\b(?:EN ISO|EN|ISO|ASTM) [A-Z]?\d{2,}(?:-\d+)*")
+
+
+def test_every_standard_the_dossier_names_is_in_the_bibliography():
+    """A standard named in the dossier's words (sheets, clauses, cautions, tables, templates)
+    is in content/references.json, so the reference list carries it (cited where named)."""
+    from specgen.refdata import CONTENT_DIR
+    from specgen.report.references import _designations
+    from specgen.build import check
+    from tests.conftest import DEMO
+    texts = [check(DEMO)[1].to_json()]
+    for folder in ("templates", "rules", "data"):
+        texts += [p.read_text(encoding="utf-8") for p in sorted((CONTENT_DIR / folder).rglob("*"))
+                  if p.is_file()]
+    texts.append((CONTENT_DIR / "cautions.yaml").read_text(encoding="utf-8"))
+    named = {m.group(0) for t in texts for m in DESIGNATION.finditer(t)}
+    known = set(_designations())
+    assert sorted(named - known) == []
