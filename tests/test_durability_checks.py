@@ -247,7 +247,12 @@ def test_warm_site_clears_thaumasite_and_unknown_cold_holds(demo_copy):
         "dossier.yaml")
 
 
-def test_recalled_limit_holds_the_verdict_of_an_issued_revision(demo_copy):
+def test_recalled_limit_holds_the_verdict_of_an_issued_revision(demo_copy, monkeypatch):
+    from specgen import refdata
+    # the salt-load table's edges are read (salt_summary_wta); mark the table recalled here
+    # to see a verdict that rests on a recalled table held too
+    raw = dict.__getitem__(refdata.load("salt_load").data, "wta_2_9")
+    monkeypatch.setitem(raw, "tag", "memory")
     edit(demo_copy / "dossier.yaml", "  status: draft", "  status: issued")
     _, r = check(demo_copy)
     c = by_check(r)[("DUR-RETAIN", "Z1/M2")]   # ASTM C270 water retention 75 %, recalled
@@ -262,8 +267,11 @@ def test_recalled_limit_holds_the_verdict_of_an_issued_revision(demo_copy):
     assert c.status == "fail" and not any(n.startswith("held:") for n in c.notes)
     c = by_check(r)[("DUR-ETT", "Z2/M2")]      # high sulfate class read from the recalled table
     assert c.status == "hold" and c.notes[-1].startswith(
-        "held: the verdict (fail) rests on the salt-load class edges of WTA Merkblatt 2-9 "
-        "(renovation mortar systems): salt load, still to be confirmed")
+        "held: the verdict (fail) rests on the salt-load class edges of WTA salt-load table "
+        "for assessing masonry (low / medium / high), still to be confirmed")
+    monkeypatch.delitem(raw, "tag")          # as shipped: the table read, the verdict stands
+    _, r = check(demo_copy)
+    assert by_check(r)[("DUR-ETT", "Z2/M2")].status == "fail"
 
 
 # ---------------------------------------------------------------- soundness
