@@ -57,7 +57,9 @@ def test_envelope_limits(key, sieve, low, high):
 
 
 @pytest.mark.parametrize("mean_mpa, expected", [
-    # EN 998-2: Mx for a mean of at least x N/mm2 at 28 d (from memory)
+    # EN 998-2 classes M 1, M 2,5, M 5, M 10, M 15, M 20 (M d above 25 N/mm²), a mortar named by
+    # the class above which its strength lies: ÖNORM EN 998-2 Table 1 as ziegel.at's page
+    # 'Mörtel' gives it (references.json ziegel_moertel)
     (0.9, ()), (1.0, ("M1",)), (2.49, ("M1",)), (2.5, ("M2.5",)), (9.99, ("M5",)),
     (10.0, ("M10",)), (21.0, ("M20",)),
 ])

@@ -168,3 +168,24 @@ def test_every_standard_the_dossier_names_is_in_the_bibliography():
     named = {m.group(0) for t in texts for m in DESIGNATION.finditer(t)}
     known = set(_designations())
     assert sorted(named - known) == []
+
+
+def test_mortar_and_lime_strength_classes_as_published():
+    with refdata.unrecorded():
+        tables = refdata.load("strength_classes").data
+    # EN 998-2 (ÖNORM EN 998-2 Table 1 as ziegel.at gives it, references.json ziegel_moertel):
+    # M 1, M 2,5, M 5, M 10, M 15, M 20 at 1, 2,5, 5, 10, 15, 20 N/mm²
+    en998 = tables["en998_2"]
+    assert sorted((c["name"], c["lower_mpa"]) for c in en998["classes"]) == sorted(
+        [("M1", 1.0), ("M2.5", 2.5), ("M5", 5.0), ("M10", 10.0), ("M15", 15.0), ("M20", 20.0)])
+    # EN 459-1 (DIN EN 459 as nurkalk.de's glossary gives it, nurkalk_hl): NHL 2 2-7, NHL 3,5
+    # 3,5-10, NHL 5 5-15 N/mm² at 28 d; NHL 5 at least 2,0 MPa at 7 d (a producer's data sheet
+    # published online, nhl_data_sheet)
+    en459 = {c["name"]: c for c in tables["en459_1"]["classes"]}
+    assert {k: (c["lower_mpa"], c["upper_mpa"]) for k, c in en459.items()} == {
+        "NHL 2": (2.0, 7.0), "NHL 3.5": (3.5, 10.0), "NHL 5": (5.0, 15.0)}
+    assert en459["NHL 5"]["early"] == {"age_days": 7, "lower_mpa": 2.0}
+    for key, read in (("en998_2", "ziegel_moertel"), ("en459_1", "nurkalk_hl")):
+        assert "tag" not in tables[key] and tables[key]["read_in"] == read
+    from specgen.checks.strength_class_checks import EN998
+    assert EN998.read_in == "ziegel_moertel"

@@ -28,7 +28,7 @@ def test_demo_draft_lists_what_it_rests_on(demo_copy):
     where = {v["where"]: v for v in r.unconfirmed()}
     env = where["content/data/grading_envelopes.yaml: astm_c144_natural"]
     assert "COMP-GRAD/Z1/M1" in env["used_by"]
-    assert "content/data/strength_classes.yaml: en998_2" in where
+    assert "content/data/hydraulicity_bands.yaml" in where
     # the EN 13139 envelopes are not the project's choice: not read, so not listed
     assert not [w for w in where if "en13139" in w]
     # a rule of thumb is recorded as such, and is not a value to confirm
