@@ -90,7 +90,8 @@ def test_movement_tolerance(demo):
 def test_salt_classes_by_the_chosen_table(demo):
     project, r = demo
     q = r.quantities["Z2/M1"]["salt_load_class"].value
-    # WTA 2-9 edges (content/data/salt_load.yaml, from memory): sulfate 1.65 % >= 1.5 -> high
+    # WTA salt-load table as 'Salzbelastung von Mauerwerk' (references.json salt_summary_wta)
+    # gives it: sulfate < 0,5 low, 0,5-1,5 medium, > 1,5 M.-% high; 1.65 % -> high
     assert q["table"] == "wta_2_9" and q["HM2"]["sulfate"] == "high"
     c = by_check(r)[("COMP-SALT", "Z2/M1")]
     # what the sulfate does to the binder is assessed by DUR-ETT and DUR-TSA (their own tests in
@@ -102,8 +103,9 @@ def test_salt_classes_by_the_chosen_table(demo):
                                         for st in ett.steps for i in st.inputs)
     assert any("published salt-load tables disagree" in n for n in c.notes)
     assert by_check(r)[("COMP-SALT", "Z3/M3")].status == "pass"     # NHL: no aluminate-rich binder
-    # the other table classes the same brick differently: 0.31 % sulfate is high by ÖNORM B 3355
-    # (edges in content/data/salt_load.yaml, from memory)
+    # the other table classes the same brick differently: 0.31 % sulfate is high after
+    # WTA-Merkblatt 3-13-01/D as Salzwiki's Table 1 gives it (sulfate over 0,25 % of the mass;
+    # references.json salzwiki_measures)
     edit(project / "dossier.yaml", "salt_table: wta_2_9", "salt_table: onorm_b3355")
     # M2, chosen for Z1 in specification.yaml, then fails COMP-SALT: without a justification
     # that choice is an input error, so the choices are left out here

@@ -108,7 +108,10 @@ def _curve(g: gr.Grading) -> dict:
 
 def _envelope_curve(env: dict) -> dict:
     lim = sorted(env["limits"], key=lambda e: e["sieve_mm"])
-    return {"title": env["title"], "source": refdata.shown(env["source"], env.get("tag", "")),
+    source = refdata.shown(env["source"], env.get("tag", ""))
+    if env.get("read_in"):      # read in a published summary, not in the standard itself
+        source += f" (as stated in {refdata.reference_label(env['read_in'])})"
+    return {"title": env["title"], "source": source,
             "sieves_mm": [e["sieve_mm"] for e in lim],
             "low": [e["low"] for e in lim], "high": [e["high"] for e in lim]}
 
@@ -197,7 +200,8 @@ def _grading_one(pair, ctx):
     drawn = _envelope_curve(env)
     notes.append(f"envelope: {drawn['title']} — {drawn['source']}")
     return cc.result(code, title, pair, worst(statuses), round(100 * dev.rms, 3), "%",
-                     [C125, Basis("reference", env["ref"], env["source"]),
+                     [C125, Basis("reference", env["ref"], env["source"],
+                                  read_in=env.get("read_in", "")),
                       cc.rule_basis(ctx, "grading_rms_max")], "; ".join(msg), steps=steps,
                      notes=notes,
                      limit=cc.rule_limit(ctx, "grading_rms_max", "<=", f"Δ_rms ≤ {rms_lim:g} %"),
