@@ -4,7 +4,7 @@ Units: the public API takes ages in days and strengths in MPa (the trade's worki
 as ``strength_models`` uses internally); every function says so.  Priors are passed in as
 plain dicts (``content/data/strength_priors.yaml`` is read by the caller).
 
-Law (two stages, ``F`` long-term strength, ``φ`` early fraction):
+Law (:mod:`specgen.science.two_stage_law`; ``F`` long-term strength, ``φ`` early fraction):
 ``f(t) = F·[φ·(1 - exp(-t/τA)) + (1 - φ)·(1 - exp(-(t/τS)^b))]``.
 
 Data model, on the log scale (scatter proportional to strength): the ``j``-th prism of
@@ -28,22 +28,20 @@ information about the curve, each with variance ``σb² + σw²/n_i``.
   are therefore read from ``DRAWS`` draws of a Student-t (``PROPOSAL_DOF`` dof, covariance
   ``PROPOSAL_SCALE``² × the Laplace one) about the mode, each weighted by the exact posterior
   over the proposal density (self-normalised importance sampling, MacKay 2003 ch. 29), then
-  resampled to ``KEPT`` equally weighted draws, with a fixed seed so a build is repeatable.  Should the weights degenerate (effective sample size
-  below ``MIN_ESS``) the Laplace approximation is used and :attr:`Inference.sampled` says so.
+  resampled to ``KEPT`` equally weighted draws, with a fixed seed so a build is repeatable.
+  Should the weights degenerate (effective sample size below ``MIN_ESS``) the Laplace
+  approximation is used and :attr:`Inference.sampled` says so.
 
 Intervals (never clipped; exponentiated, so always positive and finite):
 
 * band for the mean curve: the central quantiles of ``ln f(t)`` over the kept draws,
   ``[exp(l), exp(h)]`` (Laplace fallback: ``exp(ln f ± z·sqrt(gᵀΣg))``);
 * prediction interval for the mean of the next set of ``n`` prisms (one new batch): the
-  central quantiles of the posterior predictive mixture ``ln f(t; z_i) + T_ij·sqrt(σb² +
-  σw²/n)`` over the kept draws ``z_i``, each with ``PREDICTIVE_REPEATS`` Student-t variates
-  ``T_ij`` (stratified) at ``ν_w + ν0`` degrees of freedom (the new batch's own scatter, resting on the
-  estimated variances; Gelman et al. 2013, Bayesian Data Analysis, sec. 1.3, the posterior
-  predictive as a mixture over the posterior), so a skewed posterior keeps its skew;
-  ``n = inf`` gives one batch's own strength (mortar in the wall).  Laplace fallback:
-  ``exp(c ± q·sqrt(s² + σb² + σw²/n))`` with ``c = (l + h)/2`` and ``s = (h - l)/(2z)`` the
-  band's centre and standard deviation on the log scale, ``q`` Student's t.
+  central quantiles of the posterior predictive mixture ``ln f(t; z_i) + T_i·sqrt(σb² +
+  σw²/n)`` over the kept draws ``z_i``, ``T_i`` stratified Student-t variates at ``ν_w + ν0``
+  dof (Gelman et al. 2013, Bayesian Data Analysis, sec. 1.3), so a skewed posterior keeps
+  its skew; ``n = inf``: one batch's own strength (mortar in the wall).  Laplace fallback:
+  ``exp(ln f ± q·sqrt(gᵀΣg + σb² + σw²/n))``, ``q`` Student's t.
 """
 from __future__ import annotations
 
@@ -55,13 +53,16 @@ from functools import lru_cache
 import numpy as np
 from scipy import stats
 
-# the priors and the generic tools of the fit, importable from here as before
+# the priors, the generic tools of the fit and the law, importable from here as before
 from specgen.science.strength_priors import (PRIOR_KEYS, _Z95, InferenceError,  # noqa: F401
                                              Prior, PriorTerm, _central_cv, prior_from_table)
-# the generic tools of the fit, importable from here as before
-from specgen.science.inference_tools import (Laplace, LackOfFit,  # noqa: F401
-                                             importance_sample, lack_of_fit, laplace_fit,
-                                             resample)
+from specgen.science.inference_tools import (Laplace, LackOfFit, falls,  # noqa: F401
+                                             importance_sample, interval_score, lack_of_fit,
+                                             laplace_fit, resample)
+from specgen.science.two_stage_law import log_f as _log_f  # noqa: F401
+from specgen.science.two_stage_law import log_f_grad as _log_f_grad
+from specgen.science.two_stage_law import two_stage  # noqa: F401
+from specgen.science.two_stage_law import unpack as _unpack
 
 PRIOR_DOF = 4.0          # weight of the prior's variances, as degrees of freedom (common practice)
 # importance sampling of the posterior (common practice for a Laplace proposal: heavier tails
@@ -72,46 +73,6 @@ NODES = 48     # a longer list of ages (a curve) takes the band's offsets from l
                # log-spaced ages, interpolated in ln t (the offsets vary slowly with age)
 GAIN_AGES_D = (28.0, 365.0)
 PREDICTIVE_REPEATS = 1   # Student-t variates per kept draw in the predictive mixture (stratified)
-
-
-# ---------------------------------------------------------------- the law
-def two_stage(t_d, big_f: float, phi: float, tau_a: float, tau_s: float, b: float):
-    """Two-stage law (MPa) at ages ``t_d`` (d)."""
-    t = np.asarray(t_d, float)
-    return big_f * (phi * -np.expm1(-t / tau_a) + (1 - phi) * -np.expm1(-(t / tau_s) ** b))
-
-
-def _unpack(z) -> tuple[float, float, float, float, float]:
-    ln_f, lg_phi, ln_ta, ln_ts, ln_b = z
-    return (math.exp(ln_f), 1.0 / (1.0 + math.exp(-lg_phi)), math.exp(ln_ta),
-            math.exp(ln_ts), math.exp(ln_b))
-
-
-def _log_f(z, t_d) -> np.ndarray:
-    ln_f, lg_phi, ln_ta, ln_ts, ln_b = z
-    phi = 1.0 / (1.0 + np.exp(-lg_phi))
-    t = np.asarray(t_d, float)
-    # (t/τS)^b as exp(b·(ln t - ln τS)): the same number, cheaper over many draws and ages
-    shape = phi * -np.expm1(-t * np.exp(-ln_ta)) + (1 - phi) * -np.expm1(
-        -np.exp(np.exp(ln_b) * (np.log(t) - ln_ts)))
-    return ln_f + np.log(np.maximum(shape, 1e-300))
-
-
-def _log_f_grad(z, t_d) -> np.ndarray:
-    """∂ ln f/∂z, analytic (rows: ages; columns: ln F, logit φ, ln τA, ln τS, ln b)."""
-    _, lg_phi, ln_ta, ln_ts, ln_b = (float(v) for v in z)
-    phi, ta, ts, b = 1.0 / (1.0 + math.exp(-lg_phi)), math.exp(ln_ta), math.exp(ln_ts), \
-        math.exp(ln_b)
-    t = np.atleast_1d(np.asarray(t_d, float))
-    ea = np.exp(-t / ta)
-    u = (t / ts) ** b
-    eb = np.exp(-u)
-    a_, b_ = -np.expm1(-t / ta), -np.expm1(-u)
-    shape = np.maximum(phi * a_ + (1 - phi) * b_, 1e-300)
-    return np.column_stack([
-        np.ones_like(t), (a_ - b_) * phi * (1 - phi) / shape,
-        -phi * (t / ta) * ea / shape, -(1 - phi) * b * u * eb / shape,
-        (1 - phi) * eb * b * u * np.log(t / ts) / shape])
 
 
 # ---------------------------------------------------------------- the fit
@@ -436,23 +397,3 @@ def prior_gain_interval(prior: Prior, age_d: float, level: float = 0.95, draws: 
     a = (1 - level) / 2
     return (float(ratio[order][np.searchsorted(cw, a)]),
             float(ratio[order][min(np.searchsorted(cw, 1 - a), draws - 1)]))
-
-
-def interval_score(lower, upper, truth, alpha: float = 0.05):
-    """Interval score (Gneiting & Raftery 2007, eq. 43) of central (1 - alpha) intervals:
-    ``(u - l) + (2/alpha)(l - x)·1{x < l} + (2/alpha)(x - u)·1{x > u}``; lower is better."""
-    lo, hi, x = (np.asarray(v, float) for v in (lower, upper, truth))
-    return (hi - lo) + (2 / alpha) * (lo - x) * (x < lo) + (2 / alpha) * (x - hi) * (x > hi)
-
-
-def falls(inf_ages: Sequence[float], means_log: Sequence[float], counts: Sequence[float],
-          sigma_w: float, sigma_b: float, q: float = _Z95) -> list[tuple[float, float, float]]:
-    """Pairs of consecutive ages (a, b, drop ratio) whose mean falls by more than the
-    scatter explains: ``ȳ_a - ȳ_b > q·sqrt(2σb² + σw²(1/n_a + 1/n_b))`` on the log scale."""
-    out = []
-    for i in range(len(inf_ages) - 1):
-        d = means_log[i] - means_log[i + 1]
-        s = math.sqrt(2 * sigma_b ** 2 + sigma_w ** 2 * (1 / counts[i] + 1 / counts[i + 1]))
-        if d > q * s:
-            out.append((float(inf_ages[i]), float(inf_ages[i + 1]), math.exp(-d)))
-    return out
