@@ -25,7 +25,9 @@ def _follow(project, text: str) -> None:
 
 # EN 933-2 / ISO 565 basic set (R 20/3 principal sizes), mm (from memory)
 EN_SERIES = [0.063, 0.125, 0.25, 0.5, 1, 2, 4, 8, 16, 31.5, 63, 125]
-# ASTM E11 sieves of the ASTM C125 fineness modulus plus No. 200, mm (from memory)
+# ASTM E11 sieves of the ASTM C125 fineness modulus plus No. 200, mm: No. 100 (150 µm) … 3 in.
+# (75 mm), 6 in. (150 mm) as dictionaryofconstruction.com lists them (fm_dictionary), 1 1/2 in.
+# as 37.5 mm (Wikipedia 'Fineness modulus'), No. 200 as 75 µm (the C33 table on civilengineer.co.in)
 ASTM_SERIES = [0.075, 0.15, 0.3, 0.6, 1.18, 2.36, 4.75, 9.5, 19, 37.5, 75, 150]
 
 

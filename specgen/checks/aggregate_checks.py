@@ -30,7 +30,8 @@ declare("binder_aggregate_ratio", "", "binder:aggregate of the historic mortar f
         "digestion (by mass as found and net of the binder's loss on ignition, by volume) and "
         "of the mix (by volume)")
 
-C125 = Basis("reference", "astmc125", "fineness modulus")
+C125 = Basis("reference", "astmc125", "fineness modulus: cumulative % retained on 150 µm … "
+             "150 mm, a 2:1 series, / 100", read_in="fm_dictionary")
 
 
 def envelope(ctx) -> tuple[str, dict]:
