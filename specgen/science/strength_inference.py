@@ -308,8 +308,8 @@ def interval_formulas(inf: Inference) -> tuple[str, str]:
         return (r"\left[e^{Q_{\alpha/2}},\ e^{Q_{1-\alpha/2}}\right]\ \text{of}\ "
                 r"\ln f(t; z_i),\ z_i\ \text{posterior draws}",
                 r"\left[e^{Q_{\alpha/2}},\ e^{Q_{1-\alpha/2}}\right]\ \text{of}\ "
-                r"\ln f(t; z_i) + T_{ij}\sqrt{\sigma_b^2 + \sigma_w^2/n},\ "
-                r"T_{ij} \sim t_{\nu}")
+                r"\ln f(t; z_i) + T_i\sqrt{\sigma_b^2 + \sigma_w^2/n},\ "
+                r"T_i \sim t_{\nu}")
     return (r"e^{\ln\hat f \pm z\sqrt{g^{\mathsf T}\Sigma g}},\ "
             r"g = \partial \ln f/\partial\theta",
             r"e^{\ln\hat f \pm q\sqrt{g^{\mathsf T}\Sigma g + \sigma_b^2 + \sigma_w^2/n}}")
