@@ -7,7 +7,10 @@ same figures drawn with matplotlib and the same math drawn with ziamath (our ren
 pass with every cache off), then plain ``mkdocs build`` of the same Markdown (written
 to disk) and a plain WeasyPrint render of the same print HTML, in sequence, and
 (e) ``check`` on synthetic projects of 10, 50 and 200 mixes (the growth exponent is the
-log–log slope of time against results), and (f) once, the full build (site and PDF) of
+log–log slope of time against results), with the share of the 200-mix ``check`` spent in the
+strength inference (the prior-informed fit, its bands and posterior summaries: CPU seconds
+inside ``specgen.science.strength_inference``) and the ratio of ``check`` to ``check`` without
+it (the target: within 2×), and (f) once, the full build (site and PDF) of
 the 200-mix project in a fresh process, with its time and the peak resident memory of
 its largest process.  Medians of ``runs`` repetitions.
 
@@ -242,6 +245,39 @@ def bench_xlsx(demo: Path, work: Path, runs: int) -> None:
           "process (time.process_time), medians, so other jobs on the machine count less")
 
 
+_INFERENCE_ENTRIES = ("fit", "bands", "interval", "components", "posterior_summary", "falls")
+
+
+def _inference_share(project: Path) -> tuple[float, float]:
+    """(CPU s of one ``check`` of ``project``, CPU s of it inside the strength inference): the
+    inference's public entry points are timed while one check runs (nested calls counted once)."""
+    from specgen.build import check
+    from specgen.science import strength_inference as si
+    spent, depth, saved = [0.0], [0], {k: getattr(si, k) for k in _INFERENCE_ENTRIES}
+
+    def timed(fn):
+        def run(*a, **kw):
+            depth[0] += 1
+            t = time.process_time()
+            try:
+                return fn(*a, **kw)
+            finally:
+                depth[0] -= 1
+                if depth[0] == 0:
+                    spent[0] += time.process_time() - t
+        return run
+    try:
+        for k, fn in saved.items():
+            setattr(si, k, timed(fn))
+        t0 = time.process_time()
+        check(project)
+        total = time.process_time() - t0
+    finally:
+        for k, fn in saved.items():
+            setattr(si, k, fn)
+    return total, spent[0]
+
+
 def _reuse_heard():
     """(what was heard, a progress function that hears how many PDF parts were reused)."""
     reuse = {}
@@ -291,6 +327,7 @@ def main(runs: int = 3, large: bool = True, only: str = "all") -> None:
             syn = write_project(work / f"syn{n}", n)
             times.append(_median(lambda: check(syn), runs))
             sizes.append(n * 8 * 3)
+        share = _inference_share(syn)
         slope = (math.log(times[-1]) - math.log(times[0])) / (math.log(sizes[-1]) - math.log(sizes[0]))
         f = _peak_build(syn, work / "syn-out") if large else None
         (work / "g").mkdir()
@@ -305,6 +342,8 @@ def main(runs: int = 3, large: bool = True, only: str = "all") -> None:
     print(f"(d) bare toolchain floor (figures + math, mkdocs, WeasyPrint; sequential) {d:7.3f} s")
     for n, s, t in zip((10, 50, 200), sizes, times):
         print(f"(e) check, {n:3d} mixes / {s:5d} results  {t:7.3f} s")
+    print(f"(e) of which strength inference      {share[1]:7.3f} CPU s of {share[0]:.3f} CPU s; check"
+          f" / check without it = {share[0] / max(share[0] - share[1], 1e-9):.2f} (target: <= 2)")
     if f:
         print(f"(f) build, 200 mixes (site + PDF)   {f[0]:7.1f} s, peak memory {f[1]:6.0f} MiB")
     print(f"ratio (b)/(d) = {b / d:.2f}   ratio (c)/(b) = {c / b:.2f}   "

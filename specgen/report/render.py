@@ -96,6 +96,8 @@ class RenderEnv:
         if basis.kind != "reference":
             return None
         n = self.citations.cite(basis.ref)
+        if basis.read_in:          # the summary the value was read in is listed too
+            self.citations.cite(basis.read_in)
         return {"n": n, "href": f"references.md#ref-{basis.ref}", "clause": reader(basis.clause)}
 
     def sheet(self, c) -> dict:
