@@ -17,6 +17,8 @@ from pathlib import Path
 import pytest
 from click.testing import CliRunner
 
+import specgen.checks.builtin  # noqa: F401  (registers every built-in check, as the pipeline does)
+
 REPO = Path(__file__).resolve().parent.parent
 DEMO = REPO / "demo_project"
 
