@@ -206,7 +206,9 @@ def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | N
         results = evaluate(project, previous=_previous(archived[-1] if archived else None))
     progress("render: pages, figures and calculation sheets")
     with cache.using(cache_dir or Path(out_dir) / cache.CACHE_DIR, cache.shared_folder()):
-        pages = render(project, results, history_for(Path(out_dir), project, results))
+        # the DOCX exports are made with the PDF, after the site (preview_pdf)
+        pages = render(project, results, history_for(Path(out_dir), project, results),
+                       later_downloads=True)
     _fix_dates(project.revision.date)
     return Prepared(project, results, pages, key)
 
@@ -219,9 +221,11 @@ def preview_site(prepared: Prepared, out_dir: Path | str) -> Path:
 
 def preview_pdf(prepared: Prepared, target: Path, *, cache_dir: Path | str | None = None,
                 progress: Callable[..., None] = _quiet) -> Path:
-    """Print the prepared revision's PDF into ``target`` (parts from the artefact cache)."""
-    from specgen.publish.preview import pdf_only
+    """Make the downloads left for later (the DOCX exports) and print the prepared revision's
+    PDF into ``target`` (parts from the artefact cache)."""
+    from specgen.publish.preview import later_downloads, pdf_only
     from specgen import cache
+    later_downloads(prepared.pages, target)
     with cache.using(cache_dir or target.parent / cache.CACHE_DIR, cache.shared_folder()):
         return pdf_only(prepared.project, prepared.results, prepared.pages, target,
                         on_part=lambda done, total: progress("PDF parts", done, total))

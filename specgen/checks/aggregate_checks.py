@@ -57,7 +57,7 @@ def _envelope_step(g: gr.Grading, cmp: gr.EnvelopeComparison, env: dict) -> Step
     return Step(f"Passing on the envelope's sieves ({_series_name(env.get('series', ''))}), "
                 f"from the analysis on the {_series_name(g.series)} sieves",
                 r"P(s) = P_2 + (P_1 - P_2)\,rac{\ln(s/s_2)}{\ln(s_1/s_2)}", inputs,
-                r"s_2 \le s \le s_1\ 	ext{adjacent sieves of the analysis}",
+                r"s_2 \le s \le s_1\ \text{adjacent sieves of the analysis}",
                 round(100 * max(cmp.outside), 3), "%", "outside")
 
 
