@@ -227,8 +227,9 @@ def preview_site(prepared: Prepared, out_dir: Path | str) -> Path:
 
 
 def preview_pdf(prepared: Prepared, target: Path, *, cache_dir: Path | str | None = None,
-                progress: Callable[..., None] = _quiet) -> Path:
-    """Print the prepared revision's PDF into ``target`` (parts from the artefact cache)."""
+                progress: Callable[..., None] = _quiet) -> list[Path]:
+    """Print the prepared revision's PDF into ``target`` (parts from the artefact cache): the
+    files written, the report first, then its appendix volume when it has one."""
     from specgen.publish.preview import pdf_only
     from specgen import cache
     with cache.using(cache_dir or target.parent / cache.CACHE_DIR, cache.shared_folder()):
