@@ -44,7 +44,7 @@ def test_no_internal_name_reaches_a_reader(demo_build):
             if names := internal_names(text):
                 found[f"{pdf.name} p. {n}"] = sorted(set(names))[:8]
     assert found == {}
-    assert len(pages) > 30
+    assert len(pages) >= 25  # the demo: 27 pages of R3 and the two of the root
 
 
 def test_the_scan_finds_what_it_is_for():

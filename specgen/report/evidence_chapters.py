@@ -3,7 +3,7 @@ drawn on them, and for each sample the results that name it (and those that name
 from __future__ import annotations
 
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import anchor, as_given, num
+from specgen.report.fmt import anchor, as_given, date_text, num
 from specgen.report.wording import reader
 
 PAGE = "evidence.md"
@@ -50,7 +50,7 @@ def _images(env) -> list[dict]:
     """Photographs and drawings of the register, each a numbered figure."""
     out = []
     for iid, (img, data) in env.project.images.items():
-        words = [img.kind] + ([img.taken_on.isoformat()] if img.taken_on else []) + \
+        words = [img.kind] + ([date_text(img.taken_on)] if img.taken_on else []) + \
             ([f"by {img.by}"] if img.by else []) + ([f"zone {img.zone}"] if img.zone else [])
         out.append(picture(env, img, data, f"{img.caption} ({', '.join(words)})",
                            anchor_id=f"image-{anchor(iid)}"))
@@ -185,14 +185,15 @@ def _drawing(env, d) -> dict:
 def _drawing_alt(d, zones, points, sheet: bool) -> str:
     """What the overlay shows, in words: the zones' extents and each point's place."""
     u = d.units
-    out = (f"{'The survey sheet of d' if sheet else 'D'}rawing {d.id}, {num(d.width, 3)} by "
-           f"{num(d.height, 3)} {u}")
+    out = (f"{'The survey sheet of d' if sheet else 'D'}rawing {d.id}, {as_given(d.width)} by "
+           f"{as_given(d.height)} {u}")
     if zones:
         out += ", with " + "; ".join(
-            f"zone {z} outlined by a dashed rectangle from x {num(x, 3)} to {num(x + w, 3)} {u}"
-            for z, x, _y, w, _h in zones)
+            f"zone {z} outlined by a dashed rectangle from x {as_given(x)} to "
+            f"{as_given(round(x + w, 6))} {u}" for z, x, _y, w, _h in zones)
     if points:
         out += (f"; {len(points)} sample point{'s' if len(points) != 1 else ''} marked by red "
                 "dots with their labels: " + ", ".join(
-                    f"{label} at x {num(x, 3)} {u}, y {num(y, 3)} {u}" for label, x, y in points))
+                    f"{label} at x {as_given(x)} {u}, y {as_given(y)} {u}"
+                    for label, x, y in points))
     return out + "."

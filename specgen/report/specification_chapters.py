@@ -10,7 +10,7 @@ from markupsafe import Markup, escape
 
 from specgen.checks.result import STATUS_WORDS
 from specgen.report.chapters import badge, chapter
-from specgen.report.fmt import anchor, as_given, num, qty, unit_symbol
+from specgen.report.fmt import anchor, as_given, date_text, num, qty, unit_symbol
 from specgen.report.specification_clauses import clause_context
 from specgen.report.wording import reader
 from specgen.views import applicable
@@ -341,7 +341,7 @@ def _photo(env, tp) -> dict | None:
                            f"{tp.date}",
                 "alt": f"Photograph of trial panel {tp.id} of mix {tp.mix}"}
     from specgen.report.evidence_chapters import picture
-    words = [w for w in (img.taken_on and f"photographed {img.taken_on}",
+    words = [w for w in (img.taken_on and f"photographed {date_text(img.taken_on)}",
                          img.by and f"by {img.by}") if w]
     return picture(env, img, data, f"{img.caption} ({', '.join(words)})" if words
                    else img.caption, numbered=False)

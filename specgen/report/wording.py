@@ -132,6 +132,15 @@ def _field(m: re.Match) -> str:
     return f"{m.group('label')[:-1]}, {ident}{what}⟧"
 
 
+def typeset(text: str) -> str:
+    """Units by their symbols, plurals right, true minus signs (no names changed)."""
+    for pat, sym in UNIT_TEXT:
+        text = pat.sub(sym, text)
+    text = PLURALS.sub(lambda m: f"{m.group(1)} {m.group(2)}" +
+                       ("" if m.group(1) in ("1", "1.0") else "s"), text)
+    return MINUS.sub("−", text)
+
+
 def plain(text: str) -> str:
     """``text`` with labels for files, rules and keys, symbols for units (plain text)."""
     if not text:
@@ -145,11 +154,7 @@ def plain(text: str) -> str:
         text = re.sub(rf"\b{key}\b", label, text)
     for pat, label in FAMILY_LABELS:
         text = pat.sub(label, text)
-    for pat, sym in UNIT_TEXT:
-        text = pat.sub(sym, text)
-    text = PLURALS.sub(lambda m: f"{m.group(1)} {m.group(2)}" +
-                       ("" if m.group(1) in ("1", "1.0") else "s"), text)
-    text = MINUS.sub("−", text)
+    text = typeset(text)
     text = text.replace("⟦", "").replace("⟧", "")
     return _SNAKE.sub(lambda m: m.group(0).replace("_", " ") if not SUBSCRIPT.fullmatch(
         m.group(0)) else m.group(0), text)
@@ -176,14 +181,16 @@ _INPUT_TERM = re.compile(
 def input_terms(text) -> Markup:
     """``text`` that tells the person editing the project what to change (the audit's
     findings, their places and fixes): escaped, each file, key or rule it names set as code,
-    as written in the input, so that it reads as a name to type and not as prose."""
+    as written in the input, so that it reads as a name to type and not as prose; the prose
+    between them typeset as :func:`plain` typesets it."""
     if not text:
         return Markup("")
     out, last = [], 0
     for m in _INPUT_TERM.finditer(str(text)):
-        out += [str(escape(text[last:m.start()])), f"<code>{escape(m.group(0))}</code>"]
+        out += [str(escape(typeset(text[last:m.start()]))),
+                f"<code>{escape(m.group(0))}</code>"]
         last = m.end()
-    return Markup("".join(out) + str(escape(text[last:])))
+    return Markup("".join(out) + str(escape(typeset(text[last:]))))
 
 
 _TEX_TEXT = re.compile(r"\\text\{([^{}]*)\}")

@@ -12,7 +12,8 @@
      named by its column's header (data-label), so no column is hidden off the screen.
      The roles keep a screen reader's table navigation when the rows are shown as blocks. */
   function reflow() {
-    var tables = document.querySelectorAll(".sg-card table:not(.sg-reflow)");
+    /* marked by an attribute, not a class: the theme styles only tables without a class */
+    var tables = document.querySelectorAll(".sg-card table:not([data-reflow])");
     Array.prototype.forEach.call(tables, function (table) {
       var heads = Array.prototype.map.call(table.querySelectorAll("thead th"), function (th) {
         th.setAttribute("role", "columnheader");
@@ -27,7 +28,7 @@
           if (td.textContent.trim() === "\u2014") td.classList.add("sg-empty");
         });
       });
-      table.classList.add("sg-reflow");
+      table.setAttribute("data-reflow", "");
     });
   }
   function fit() {
