@@ -54,7 +54,7 @@ def test_bare_page_address_answers_the_current_revision_with_the_bar(served):
     state.revision, state.pdf = "R1", "building"
     status, body = get(base + "/strength.html")
     assert status == 200 and "<h1>Strength</h1>" in body
-    assert "Preview of revision R1" in body and "PDF: building…" in body
+    assert "Preview of revision R1" in body and "PDF and Word exports: being made…" in body
     assert get(base + "/")[1].count("<h1>Summary</h1>") == 1
     # the PDF is not handed out half-printed
     assert get(base + "/R1/P-R1.pdf")[0] == 503
@@ -127,6 +127,10 @@ def test_previewer_site_first_then_pdf_and_partial_rebuilds(tmp_path, monkeypatc
     assert state.pdf == "ready" and len(state.pdf_names) == 2
     assert state.pdf_names[1].endswith("-appendices.pdf")
     assert all((out / "R1" / name).is_file() for name in state.pdf_names)
+    # the Word exports, made after the site with the PDF, are there beside it
+    import docx
+    made = sorted((out / "R1" / "exports").glob("*.docx"))
+    assert made and all(docx.Document(str(f)).paragraphs for f in made)
 
 
 class _Rev:
