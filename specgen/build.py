@@ -16,8 +16,8 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from specgen.checks import fits
-from specgen.checks.registry import names_text  # noqa: F401  (the face's `names`)
-from specgen.checks.run import Previous, Results, evaluate
+from specgen.checks.builtin import Results, evaluate, previous_of as _previous
+from specgen.checks.builtin import names_text  # noqa: F401  (the face's `names`)
 from specgen.errors import UsageError
 from specgen.guards import blocks, frozen_inputs, refuse_if_findings, refuse_unconfirmed
 from specgen.killpoints import reached
@@ -33,7 +33,7 @@ from specgen.textreport import status_text, table as check_table  # noqa: F401  
 def reference_names() -> tuple[set[str], set[str]]:
     """What a review comment may be about: every check code and every page of the dossier
     (the check and chapter registries; loading knows neither)."""
-    from specgen.checks.registry import checks
+    from specgen.checks.builtin import checks
     from specgen.report.chapters import chapters
     return ({s.code for s in checks()},
             {c.path.rsplit(".", 1)[0] for c in chapters()} | {"summary"})
@@ -92,15 +92,6 @@ def lab_workbook(project_dir: Path | str, path: Path | str | None = None, *,
 
 def _quiet(step: str, done: int | None = None, total: int | None = None) -> None:
     pass
-
-
-def _previous(old: Project | None) -> Previous | None:
-    """What the audit and the change report compare a revision with: the issued one before."""
-    if old is None:
-        return None
-    rev = old.revision
-    return Previous(rev.code, rev.date.isoformat(), rev.description,
-                    evaluate(old).to_dict(), {f.path: f.sha256 for f in old.inputs})
 
 
 @fits.kept()  # each strength fit once per call (checks/fits.py)
@@ -215,7 +206,9 @@ def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | N
         results = evaluate(project, previous=_previous(archived[-1] if archived else None))
     progress("render: pages, figures and calculation sheets")
     with cache.using(cache_dir or Path(out_dir) / cache.CACHE_DIR, cache.shared_folder()):
-        pages = render(project, results, history_for(Path(out_dir), project, results))
+        # the DOCX exports are made with the PDF, after the site (preview_pdf)
+        pages = render(project, results, history_for(Path(out_dir), project, results),
+                       later_downloads=True)
     _fix_dates(project.revision.date)
     return Prepared(project, results, pages, key)
 
@@ -228,9 +221,11 @@ def preview_site(prepared: Prepared, out_dir: Path | str) -> Path:
 
 def preview_pdf(prepared: Prepared, target: Path, *, cache_dir: Path | str | None = None,
                 progress: Callable[..., None] = _quiet) -> Path:
-    """Print the prepared revision's PDF into ``target`` (parts from the artefact cache)."""
-    from specgen.publish.preview import pdf_only
+    """Make the downloads left for later (the DOCX exports) and print the prepared revision's
+    PDF into ``target`` (parts from the artefact cache)."""
+    from specgen.publish.preview import later_downloads, pdf_only
     from specgen import cache
+    later_downloads(prepared.pages, target)
     with cache.using(cache_dir or target.parent / cache.CACHE_DIR, cache.shared_folder()):
         return pdf_only(prepared.project, prepared.results, prepared.pages, target,
                         on_part=lambda done, total: progress("PDF parts", done, total))
@@ -244,9 +239,31 @@ def _load_archive(root: Path, current: Project) -> list[Project]:
 
 def verify(path: Path | str, project_dir: Path | str | None = None,
            trust: list[Path] = ()) -> dict:
-    """Built output against what it vouches for (publish/verify.py, ``verify_output``)."""
+    """Built output against what it vouches for (publish/verify.py, ``verify_output``); with
+    ``project_dir``, the inputs the project keeps for each revision too."""
+    from functools import partial
+
     from specgen.publish.verify import verify_output
-    return verify_output(path, project_dir, trust)
+    kept = None if project_dir is None else partial(_kept_inputs, Path(project_dir))
+    return verify_output(path, kept, trust)
+
+
+def _kept_inputs(project: Path, code: str) -> tuple[str, dict[str, str] | None]:
+    """Where ``project`` keeps the inputs of revision ``code`` (``issued/<code>/``, or the
+    folder itself for its current revision) and their hashes; None when it keeps none."""
+    from specgen.errors import ProblemLog
+    from specgen.project.files import read_yaml
+    from specgen.project.load import input_files
+    kept = project / ARCHIVE_DIR / code
+    if not kept.is_dir():
+        located = read_yaml(project / "dossier.yaml", "dossier.yaml", ProblemLog())
+        data = located.data if located else None
+        rev = data.get("revision") if isinstance(data, dict) else None
+        current = str(rev.get("code")) if isinstance(rev, dict) else None
+        kept = project if current == code else None
+    if kept is None:
+        return f"{ARCHIVE_DIR}/{code}/", None
+    return f"{ARCHIVE_DIR}/{code}/", {f.path: f.sha256 for f in input_files(kept)}
 
 
 def _fix_dates(date: dt.date) -> None:

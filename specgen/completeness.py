@@ -12,12 +12,19 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 DAY = 86400.0
-# (stage title, check-code prefixes it gathers), in the order the work is done
+# (stage title, check-code prefixes it gathers), in the order the work is done; a code goes
+# to the first stage with a prefix it starts with, so a named check (DUR-SOUND, a test of the
+# binder) is placed before the family it belongs to; other codes (the verdicts on a mix in a
+# zone: DUR-TSA, DUR-ETT, DUR-CARB) go with the choice of mortar
 STAGES = (
-    ("Fabric and compatibility data", ("COMP-",)),
-    ("Binder analyses and firing", ("CHEM-",)),
-    ("Laboratory tests of the candidate mixes", ("STR-",)),
-    ("Proportions, batching and works quantities", ("MIX-", "WORKS-", "SITE-")),
+    ("Fabric and compatibility data", ("COMP-", "DUR-EXPOSE")),
+    # the binder's own tests: soundness (Le Chatelier) and setting time (Vicat) on the paste
+    ("Binder analyses and firing", ("CHEM-", "BIND-", "DUR-SOUND", "SITE-SET")),
+    # the prisms of the candidate mixes: strength, freeze-thaw, water retention, render bond,
+    # the curing evidence, and the durability tests a zone holds for
+    ("Laboratory tests of the candidate mixes", ("STR-", "DUR-FROST", "DUR-RETAIN", "DUR-BOND",
+                                                 "DUR-TESTS", "EVD-")),
+    ("Proportions, batching and works quantities", ("MIX-", "WORKS-", "SITE-", "MTH-")),
     ("Choice of mortar, trial panels and costs", ("SPEC-",)),
     ("Review comments", ()),
     ("Issue", ()),

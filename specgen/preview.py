@@ -56,7 +56,8 @@ def cache_dir(project: Path) -> Path:
 def bar(state: State) -> str:
     """The preview bar put at the top of every page (escaped text only)."""
     pdf = {"ready": f'<a href="/{state.revision}/{html.escape(state.pdf_name)}">PDF</a>',
-           "building": "PDF: building… (this link appears when it is done)",
+           "building": "PDF and Word exports: being made… (the PDF link appears when "
+                       "they are done)",
            "waiting": "PDF: waiting for the site", "failed": "PDF: could not be printed"}
     parts = [f"Preview of revision {html.escape(state.revision or '—')}", pdf[state.pdf]]
     out = ('<div role="status" style="position:sticky;top:0;z-index:1000;background:#1d3557;'

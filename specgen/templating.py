@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import contextlib
 import operator
+import threading
 from pathlib import Path
 
 import jinja2
@@ -57,9 +58,35 @@ def _number(x) -> bool:
     return isinstance(x, (int, float)) and not isinstance(x, bool)
 
 
+class CompiledTemplates(jinja2.BytecodeCache):
+    """Templates compiled once per process and kept in memory (never on disk, so no file can
+    hand the process code to run), reused while a template's source is unchanged (Jinja checks
+    its checksum).  One instance serves environments of identical settings only: the code
+    compiled for one set of options is not valid for another."""
+
+    def __init__(self):
+        self._code: dict[str, tuple[str, object]] = {}
+        self._lock = threading.Lock()
+
+    def load_bytecode(self, bucket) -> None:
+        with self._lock:
+            entry = self._code.get(bucket.key)
+        if entry is not None and entry[0] == bucket.checksum:
+            bucket.code = entry[1]
+
+    def dump_bytecode(self, bucket) -> None:
+        with self._lock:
+            self._code[bucket.key] = (bucket.checksum, bucket.code)
+
+
+_COMPILED: dict[str, CompiledTemplates] = {}   # by the options of the environments they serve
+
+
 def sandboxed(loader: jinja2.BaseLoader, **options) -> jinja2.Environment:
-    """A sandboxed environment whose globals are only ``namespace`` (for counters)."""
-    env = _Sandbox(loader=loader, autoescape=True, **options)
+    """A sandboxed environment whose globals are only ``namespace`` (for counters); its
+    templates are compiled once per process (:class:`CompiledTemplates`)."""
+    code = _COMPILED.setdefault(repr(sorted(options.items())), CompiledTemplates())
+    env = _Sandbox(loader=loader, autoescape=True, bytecode_cache=code, **options)
     env.globals.clear()
     env.globals["namespace"] = Namespace
     return env

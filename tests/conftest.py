@@ -9,12 +9,15 @@ several times the cost."""
 from __future__ import annotations
 
 import os
-
 import shutil
+import subprocess
+import sys
 from pathlib import Path
 
 import pytest
 from click.testing import CliRunner
+
+import specgen.checks.builtin  # noqa: F401  (registers every built-in check, as the pipeline does)
 
 REPO = Path(__file__).resolve().parent.parent
 DEMO = REPO / "demo_project"
@@ -90,3 +93,28 @@ def demo_build(tmp_path_factory) -> Path:
     out = tmp_path_factory.mktemp("demo-out")
     build(DEMO, out)
     return out
+
+
+@pytest.fixture(scope="session")
+def starter_build(tmp_path_factory, shared_cache) -> tuple[Path, Path]:
+    """One build of the starter project (``specgen new``), run as the command line runs it,
+    shared by the tests that need a small built project: (PROJECT, OUT).  Read it only; a
+    test that changes the project or the output takes a copy (``copy_build``)."""
+    from specgen.starter import write_starter
+    root = tmp_path_factory.mktemp("starter") / "project"
+    write_starter(root)
+    out = root.parent / "out"
+    done = subprocess.run([sys.executable, "-m", "specgen", "build", str(root), "--out",
+                           str(out), "--quiet"], capture_output=True, text=True,
+                          env={**os.environ, "PYTHONPATH": str(REPO)})
+    assert done.returncode == 0, done.stderr
+    return root, out
+
+
+def copy_build(build: tuple[Path, Path], dest: Path) -> tuple[Path, Path]:
+    """A private copy of a built project and its output folder (cache included), as if built
+    there: (PROJECT, OUT) under ``dest``."""
+    root, out = build
+    shutil.copytree(root, dest / "project", symlinks=True)
+    shutil.copytree(out, dest / "out", symlinks=True)
+    return dest / "project", dest / "out"

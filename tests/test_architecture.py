@@ -44,7 +44,8 @@ def test_the_stages_of_the_design_have_their_contracts():
     names = {s.split(":", 2)[2] for s in _contracts().sections() if s.count(":") == 2}
     assert names == {"layers", "no-cycles", "render-not-checks", "render-not-science",
                      "load-not-checks", "load-not-science", "checks-not-load",
-                     "publish-not-render", "face"}
+                     "publish-not-render", "face", "publish-not-load",
+                     "pipeline-through-checks"}
 
 
 def test_one_reading_order_for_site_pdf_and_page_names():
@@ -145,3 +146,16 @@ def test_the_face_reaches_the_stages_only_through_the_pipeline():
     for helper in ("specgen.console", "specgen.preview", "specgen.errors"):
         for module in graph.find_modules_directly_imported_by(helper):
             assert not module.startswith(stages), (helper, module)
+
+
+def test_the_checks_contract_imports_no_check_module():
+    """The whiteboard draws CheckImpl -> Contract, never the other way: the registry, the
+    runner, the result types and the rules import nothing of specgen.checks but each other
+    (the pipeline registers the built-in checks by importing specgen.checks.builtin)."""
+    import grimp
+    graph = grimp.build_graph("specgen", include_external_packages=False)
+    contract = {"specgen.checks"} | {f"specgen.checks.{m}" for m in CONTRACT - {"__init__"}}
+    for module in contract:
+        inside = {m for m in graph.find_modules_directly_imported_by(module)
+                  if m.startswith("specgen.checks")}
+        assert inside <= contract, (module, inside - contract)

@@ -90,7 +90,8 @@ def test_movement_tolerance(demo):
 def test_salt_classes_by_the_chosen_table(demo):
     project, r = demo
     q = r.quantities["Z2/M1"]["salt_load_class"].value
-    # WTA 2-9 edges (content/data/salt_load.yaml, from memory): sulfate 1.65 % >= 1.5 -> high
+    # WTA salt-load table as 'Salzbelastung von Mauerwerk' (references.json salt_summary_wta)
+    # gives it: sulfate < 0,5 low, 0,5-1,5 medium, > 1,5 M.-% high; 1.65 % -> high
     assert q["table"] == "wta_2_9" and q["HM2"]["sulfate"] == "high"
     c = by_check(r)[("COMP-SALT", "Z2/M1")]
     # what the sulfate does to the binder is assessed by DUR-ETT and DUR-TSA (their own tests in
@@ -102,8 +103,9 @@ def test_salt_classes_by_the_chosen_table(demo):
                                         for st in ett.steps for i in st.inputs)
     assert any("published salt-load tables disagree" in n for n in c.notes)
     assert by_check(r)[("COMP-SALT", "Z3/M3")].status == "pass"     # NHL: no aluminate-rich binder
-    # the other table classes the same brick differently: 0.31 % sulfate is high by ÖNORM B 3355
-    # (edges in content/data/salt_load.yaml, from memory)
+    # the other table classes the same brick differently: 0.31 % sulfate is high after
+    # WTA-Merkblatt 3-13-01/D as Salzwiki's Table 1 gives it (sulfate over 0,25 % of the mass;
+    # references.json salzwiki_measures)
     edit(project / "dossier.yaml", "salt_table: wta_2_9", "salt_table: onorm_b3355")
     # M2, chosen for Z1 in specification.yaml, then fails COMP-SALT: without a justification
     # that choice is an input error, so the choices are left out here
@@ -244,7 +246,8 @@ def test_recorded_grading_curves_are_the_sieve_analyses(demo):
     analyses: S1 alone for M3, and for M1 the proposed blend of S1 and S2 by mass (1.0 and
     0.5 parts by loose volume at 1550 and 1450 kg/m³ -> 1550/2275 and 725/2275), against
     HM1-agg; their fineness modulus is Σ cumulative % retained on 0.15 ... 4.75 mm / 100
-    (ASTM C125, from memory), by hand from the same rows."""
+    (ASTM C125 as a public construction dictionary gives it, references.json fm_dictionary),
+    by hand from the same rows."""
     _, results = demo
     x = 1550 / 2275
     blend = [x * a + (1 - x) * b for a, b in zip(S1, S2)]   # e.g. 2.36 mm: 94.2308 %
@@ -313,8 +316,9 @@ BAD_DATA = [
                  'series has gaps: no result for 1.18 mm. Fix: add the missing sieves (every '
                  'sieve of the series between the coarsest and finest used).',
                  id='bad_sieve_analysis_gap'),
-    # a size on neither series: EN 933-2 / ISO 565 basic set and ASTM E11 apertures (from
-    # memory, both tagged so in content/data/sieve_series.yaml)
+    # a size on neither series: EN 933-2 / ISO 565 basic set (recalled, tagged memory in
+    # content/data/sieve_series.yaml) and the ASTM E11 fineness-modulus sieves plus No. 200
+    # (as fm_dictionary lists them); 2.5 mm is on neither
     pytest.param('lab/sieves.csv', 'S2,2.36,99', 'S2,2.5,99',
                  "lab/sieves.csv, row 8: sieve: sample 'S2' (rows 8, 9, 10, 11, 12, 13): sieve 2.5 "
                  'mm is on none of the standard series (ASTM E11 test sieves: 0.075, 0.15, 0.3, '

@@ -69,7 +69,8 @@ def test_salt_content_in_ppm_is_converted(demo_copy):
     edit(demo_copy / "materials.yaml", 'chloride: "0.12 %"', 'chloride: "5000 ppm"')
     _, r = check(demo_copy)
     # 5000 ppm = 0.5 % (1 % = 10 000 ppm, SI definition of ppm as 1e-6): the lower edge of
-    # 'high' chloride in the project's WTA 2-9 table (0.5 %, from memory); 0.12 % was 'low'
+    # 'high' chloride in the project's WTA table (over 0,5 M.-%, as salt_summary_wta gives it;
+    # a content at the edge falls in the upper class); 0.12 % was 'low'
     assert r.quantities["Z1/M1"]["salt_load_class"].value["EB1"]["chloride"] == "high"
 
 

@@ -13,6 +13,8 @@ from pathlib import Path
 
 import pytest
 
+from tests.conftest import copy_build
+
 pytestmark = pytest.mark.e2e
 
 
@@ -70,23 +72,19 @@ def _running(pid: str) -> bool:
 
 
 @pytest.fixture(scope="module")
-def single_revision(tmp_path_factory):
-    """A built starter project (one revision): the faults are the same as on the demo, and
-    its small PDF keeps the repeated builds cheap."""
-    from specgen.starter import write_starter
-    root = tmp_path_factory.mktemp("faults") / "project"
-    write_starter(root)
-    out = root.parent / "out"
-    assert subprocess.run([sys.executable, "-m", "specgen", "build", str(root), "--out",
-                           str(out), "--quiet"], capture_output=True).returncode == 0
-    return root, out
+def single_revision(starter_build, tmp_path_factory):
+    """A copy of the built starter project (one revision): the faults are the same as on the
+    demo, and its small PDF keeps the repeated builds cheap."""
+    return copy_build(starter_build, tmp_path_factory.mktemp("faults"))
 
 
+# render and the final move are killed in the default run by the kill-point test
+# (test_kill_points: "render", "move", "moved"); here with --full
 @pytest.mark.parametrize("marker, delay", [
-    ("render:", 0.3),             # while figures and math are drawn
+    pytest.param("render:", 0.3, marks=pytest.mark.full),   # while figures and math are drawn
     ("publish: site", 0.5),       # while MkDocs writes the site
-    ("publish: PDF", 1.0),        # while WeasyPrint renders
-    ("publish: moving", 0.0),     # at the final move
+    ("publish: PDF", 1.0),        # while WeasyPrint renders (and no worker outlives the build)
+    pytest.param("publish: moving", 0.0, marks=pytest.mark.full),   # at the final move
 ])
 def test_kill_leaves_previous_output_intact(single_revision, marker, delay):
     root, out = single_revision

@@ -20,13 +20,24 @@ def edit(path, old, new):
 
 
 @pytest.fixture(scope="module")
-def hostile_build(tmp_path_factory):
+def hostile_build(tmp_path_factory, request):
+    """Hostile strings in the title, a zone's name and the narrative, built.  The default run
+    builds them into the starter project (every kind of page, a small PDF); ``--full`` into
+    the demo (every chapter the demo has, a second demo-sized build)."""
     from specgen.build import build
+    from tests.conftest import full_run
     root = tmp_path_factory.mktemp("hostile") / "project"
-    shutil.copytree("demo_project", root, ignore=shutil.ignore_patterns("issued"))
-    edit(root / "dossier.yaml", "title: Repair of the East Pier masonry, Wrenmouth Harbour",
-         f"title: 'Pier {SCRIPT}'")
-    edit(root / "dossier.yaml", "name: Inner face, repointing of brick courses", f"name: '{IMG}'")
+    if full_run(request.config):
+        shutil.copytree("demo_project", root, ignore=shutil.ignore_patterns("issued"))
+        title = "title: Repair of the East Pier masonry, Wrenmouth Harbour"
+        zone = "name: Inner face, repointing of brick courses"
+    else:
+        from specgen.starter import write_starter
+        write_starter(root)
+        title = "title: Title of the works"
+        zone = "name: Main elevation, repointing"
+    edit(root / "dossier.yaml", title, f"title: 'Pier {SCRIPT}'")
+    edit(root / "dossier.yaml", zone, f"name: '{IMG}'")
     (root / "narrative" / "introduction.md").write_text(
         f"Raw HTML {SCRIPT} and {IMG}.\n\n[click me](javascript:window.__pwned=3)\n\n"
         "[also](JaVaScRiPt:alert(4)) <a href=\"javascript:alert(5)\">x</a>\n", encoding="utf-8")

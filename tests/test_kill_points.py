@@ -20,6 +20,7 @@ from pathlib import Path
 import pytest
 
 from specgen.build import verify
+from tests.conftest import copy_build
 from tests.helpers import edit
 
 REPO = Path(__file__).resolve().parent.parent
@@ -32,13 +33,9 @@ def run_build(root, out, **env):
 
 
 @pytest.fixture(scope="module")
-def built(tmp_path_factory):
-    from specgen.starter import write_starter
-    root = tmp_path_factory.mktemp("kill") / "project"
-    write_starter(root)
-    out = root.parent / "out"
-    assert run_build(root, out).returncode == 0
-    return root, out
+def built(starter_build, tmp_path_factory):
+    """A copy of the built starter project (the kill tests change it and build again)."""
+    return copy_build(starter_build, tmp_path_factory.mktemp("kill"))
 
 
 def state(out: Path) -> dict:

@@ -6,6 +6,7 @@ Unit conversions are checked against the SI definitions (1 MPa = 10^6 Pa, 1 d = 
 from __future__ import annotations
 
 import datetime as dt
+import re
 import shutil
 import zipfile
 
@@ -129,6 +130,9 @@ BAD = [
                                                               "20/11/2025")),
      f"{W}, cell G2: cast_on: holds the date as text ('20/11/2025'). Fix: enter it as a date "
      "(a cell formatted as a date, e.g. 2026-03-02), not as text."),
+    ("error value", lambda wb: _fill(wb, 3, "#DIV/0!"),
+     f"{W}, cell E3: value [MPa]: holds the error value #DIV/0!. Fix: enter the measured "
+     "value."),
     # the table layer's own message, the one a CSV gets, located by sheet and cell
     ("not a number", lambda wb: _fill(wb, 5, "7,2,1"),
      f"{W}, cell E5: value [MPa]: expected a number; found '7,2,1'."),
@@ -193,3 +197,57 @@ def test_a_specimen_in_both_the_csv_and_a_workbook_is_refused(workbook):
     assert ("lab/results.xlsx, sheet 'strength', cell A2: specimen: specimen 'M1-28d-C1' is "
             "also reported in lab/strength.csv, row 20. Fix: report each specimen once: remove "
             "one of the two rows.") in _problems(project_dir)
+
+
+def test_a_formula_saved_with_its_computed_value_is_still_refused(workbook):
+    """A spreadsheet program saves each formula with its last computed value (<f> then <v>);
+    the value must not be read as a measurement."""
+    project_dir, path, _ = workbook
+    wb = openpyxl.load_workbook(path)
+    _fill(wb, 2, 7.2)
+    _fill(wb, 4, "=E2*2")
+    plain = project_dir.parent / "plain.xlsx"
+    wb.save(plain)
+    target = project_dir / "lab" / "results.xlsx"
+    with zipfile.ZipFile(plain) as src, zipfile.ZipFile(target, "w") as dst:
+        for item in src.infolist():
+            data = src.read(item)
+            if item.filename.startswith("xl/worksheets/"):
+                data, n = re.subn(rb"<f>E2\*2</f><v\s*/?>(?:</v>)?", b"<f>E2*2</f><v>14.4</v>",
+                                  data)
+                assert n in (0, 1)
+            dst.writestr(item, data)
+    with zipfile.ZipFile(target) as z:
+        assert any(b"<f>E2*2</f><v>14.4</v>" in z.read(n) for n in z.namelist())
+    assert (f"{W}, cell E4: value [MPa]: holds a formula (=E2*2) instead of a value. Fix: "
+            "replace it by the measured value (copy, then paste as values only).") in \
+        _problems(project_dir)
+
+
+FAST_READ = [b for b in BAD if b[0] not in ("formula", "error value")]
+
+
+@pytest.mark.parametrize("case,change", [("filled", lambda wb: [
+    (_fill(wb, r, 6.5 + r / 10), wb["strength"].cell(r, 7, dt.date(2025, 11, 20)))
+    for r in range(2, 8)])] + [b[:2] for b in FAST_READ], ids=["filled"] + [b[0] for b in
+                                                                          FAST_READ])
+def test_calamine_and_openpyxl_read_the_same(workbook, monkeypatch, case, change):
+    """The fast reader (calamine) and openpyxl, the reference, give the same rows, the same
+    planned tests and the same located messages for the same workbook."""
+    from specgen.project import workbook as wbmod
+    from specgen.errors import ProblemLog
+    project_dir, path, _ = workbook
+    wb = openpyxl.load_workbook(path)
+    change(wb)
+    target = project_dir / "lab" / "results.xlsx"
+    wb.save(target)
+    seen = []
+    for reader in (wbmod._grids_calamine, wbmod._grids_openpyxl):
+        monkeypatch.setattr(wbmod, "_grids_calamine", reader)
+        log = ProblemLog()
+        sheets = wbmod.read_workbook(target, "lab/results.xlsx", log)
+        seen.append(([(s.sheet, s.table, s.letters, s.pending) for s in sheets],
+                     [str(p) for p in log.problems]))
+    assert seen[0] == seen[1]
+    tables, problems = seen[0]
+    assert tables[0][3] or tables[0][1]   # something was read from the strength sheet

@@ -25,7 +25,9 @@ def _follow(project, text: str) -> None:
 
 # EN 933-2 / ISO 565 basic set (R 20/3 principal sizes), mm (from memory)
 EN_SERIES = [0.063, 0.125, 0.25, 0.5, 1, 2, 4, 8, 16, 31.5, 63, 125]
-# ASTM E11 sieves of the ASTM C125 fineness modulus plus No. 200, mm (from memory)
+# ASTM E11 sieves of the ASTM C125 fineness modulus plus No. 200, mm: No. 100 (150 µm) … 3 in.
+# (75 mm), 6 in. (150 mm) as dictionaryofconstruction.com lists them (fm_dictionary), 1 1/2 in.
+# as 37.5 mm (Wikipedia 'Fineness modulus'), No. 200 as 75 µm (the C33 table on civilengineer.co.in)
 ASTM_SERIES = [0.075, 0.15, 0.3, 0.6, 1.18, 2.36, 4.75, 9.5, 19, 37.5, 75, 150]
 
 
@@ -46,7 +48,8 @@ def test_the_two_series_are_the_published_apertures():
     ("en13139_0_2", 4.0, 100, 100), ("en13139_0_2", 2.8, 95, 100), ("en13139_0_2", 2.0, 85, 99),
     ("en13139_0_2", 0.063, 0, 3), ("en13139_0_4", 8.0, 100, 100), ("en13139_0_4", 5.6, 95, 100),
     ("en13139_0_4", 4.0, 85, 99),
-    # ASTM C144 natural sand (from memory)
+    # ASTM C144 natural sand: Table 1 of the Portland Cement Association's "Trowel Tips: Mortar
+    # Sand" (Masonry Magazine, August 1993, p. 17) gives No. 30 40-75 and No. 100 2-15
     ("astm_c144_natural", 0.6, 40, 75), ("astm_c144_natural", 0.15, 2, 15),
 ])
 def test_envelope_limits(key, sieve, low, high):
@@ -56,7 +59,9 @@ def test_envelope_limits(key, sieve, low, high):
 
 
 @pytest.mark.parametrize("mean_mpa, expected", [
-    # EN 998-2: Mx for a mean of at least x N/mm2 at 28 d (from memory)
+    # EN 998-2 classes M 1, M 2,5, M 5, M 10, M 15, M 20 (M d above 25 N/mm²), a mortar named by
+    # the class above which its strength lies: ÖNORM EN 998-2 Table 1 as ziegel.at's page
+    # 'Mörtel' gives it (references.json ziegel_moertel)
     (0.9, ()), (1.0, ("M1",)), (2.49, ("M1",)), (2.5, ("M2.5",)), (9.99, ("M5",)),
     (10.0, ("M10",)), (21.0, ("M20",)),
 ])

@@ -53,7 +53,7 @@ def test_bare_page_address_answers_the_current_revision_with_the_bar(served):
     state.revision, state.pdf = "R1", "building"
     status, body = get(base + "/strength.html")
     assert status == 200 and "<h1>Strength</h1>" in body
-    assert "Preview of revision R1" in body and "PDF: building…" in body
+    assert "Preview of revision R1" in body and "PDF and Word exports: being made…" in body
     assert get(base + "/")[1].count("<h1>Summary</h1>") == 1
     # the PDF is not handed out half-printed
     assert get(base + "/R1/P-R1.pdf")[0] == 503
@@ -121,6 +121,10 @@ def test_previewer_site_first_then_pdf_and_partial_rebuilds(tmp_path, monkeypatc
     assert "Edited introduction." in (out / "R1" / "index.html").read_text()
     pv.wait()
     assert state.pdf == "ready" and (out / "R1" / state.pdf_name).is_file()
+    # the Word exports, made after the site with the PDF, are there beside it
+    import docx
+    made = sorted((out / "R1" / "exports").glob("*.docx"))
+    assert made and all(docx.Document(str(f)).paragraphs for f in made)
 
 
 class _Rev:

@@ -74,18 +74,6 @@ def test_a_section_that_changes_moves_no_cut(grow, by):
     assert f'id="calc-x-{grow}"' in changed[0]
 
 
-@pytest.fixture(scope="module")
-def starter_build(tmp_path_factory):
-    from specgen.starter import write_starter
-    root = tmp_path_factory.mktemp("parts") / "project"
-    write_starter(root)
-    out = root.parent / "out"
-    done = subprocess.run([sys.executable, "-m", "specgen", "build", str(root), "--out", str(out),
-                           "--quiet"], capture_output=True, text=True)
-    assert done.returncode == 0, done.stderr
-    return root, out
-
-
 def _pdf(out):
     """The main volume (the appendix volume beside it is <name>-appendices.pdf)."""
     (pdf,) = (p for p in (out / "R1").glob("*.pdf") if not p.name.endswith("-appendices.pdf"))

@@ -41,6 +41,7 @@ def render_spec(project_dir):
     pages = PageSet()
     env = RenderEnv(project, results, pages, MathAssets(pages))
     ctx = specification(env)
+    pages.make_downloads()   # as render does (the DOCX exports are made on demand)
     text = template_env(project.root).get_template("specification.md.j2").render(
         title="Specification", narrative="", **ctx)
     return text, pages, results

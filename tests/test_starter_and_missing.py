@@ -90,6 +90,17 @@ def test_missing_lists_what_the_demo_lacks_in_working_order(cli, demo_copy):
     assert "R3: the revision is a draft" in out
     # a justified failing choice (Z2, Z3) is a decision, not something missing
     assert "SPEC-SELECT Z2" not in out
+    # each item under the stage whose work it asks for: the binder's soundness and setting
+    # time (EN 196-3 tests of the paste) with the binder, freeze-thaw of the prisms with the
+    # laboratory tests of the mixes, before the choice of mortar
+    at = {s: out.index(s) for s in stages}
+    binder, lab, choice = (at["Binder analyses and firing:"],
+                           at["Laboratory tests of the candidate mixes:"],
+                           at["Choice of mortar, trial panels and costs:"])
+    assert binder < out.index("DUR-SOUND NC1") < lab
+    assert binder < out.index("SITE-SET M2") < lab
+    assert lab < out.index("DUR-FROST Z1/M2") < choice
+    assert lab < out.index("DUR-TESTS Z1") < choice
 
 
 def test_missing_names_untested_ages_unchosen_zones_and_unreported_samples(cli, demo_copy,

@@ -16,8 +16,9 @@ from tests.helpers import edit
 
 def test_recording_notes_only_the_entries_read():
     with refdata.recording() as uses:
-        refdata.load("salt_load").data["onorm_b3355"]["edges"]
-    assert {(u.table, u.path, u.tag) for u in uses} == {("salt_load", "onorm_b3355", "memory")}
+        refdata.load("grading_envelopes").data["en13139_0_2"]["limits"]
+    assert {(u.table, u.path, u.tag) for u in uses} == {
+        ("grading_envelopes", "en13139_0_2", "memory")}
     # outside a recording nothing is noted, and the data reads as a plain mapping
     assert refdata.load("salt_load").data["wta_2_9"]["edges"]["chloride"] == [0.2, 0.5]
 
@@ -27,9 +28,9 @@ def test_demo_draft_lists_what_it_rests_on(demo_copy):
     where = {v["where"]: v for v in r.unconfirmed()}
     env = where["content/data/grading_envelopes.yaml: astm_c144_natural"]
     assert "COMP-GRAD/Z1/M1" in env["used_by"]
-    assert "content/data/salt_load.yaml: wta_2_9" in where
-    # the ÖNORM table is not the project's choice: not read, so not listed
-    assert "content/data/salt_load.yaml: onorm_b3355" not in where
+    assert "content/data/hydraulicity_bands.yaml" in where
+    # the EN 13139 envelopes are not the project's choice: not read, so not listed
+    assert not [w for w in where if "en13139" in w]
     # a rule of thumb is recorded as such, and is not a value to confirm
     tags = {v["where"]: v["tag"] for v in r.values_used}
     assert tags["content/data/kiln_stages.yaml"] == "common practice"

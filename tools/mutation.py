@@ -54,8 +54,9 @@ def _toml_list(items):
     return "[" + ", ".join(json.dumps(i) for i in items) + "]"
 
 
-def prepare(scope: str, workdir: Path) -> None:
-    """Fresh scratch copy of the repository with a mutmut section for ``scope``."""
+def prepare(scope: str, workdir: Path, modules: list[str] = ()) -> None:
+    """Fresh scratch copy of the repository with a mutmut section for ``scope`` (mutants
+    made only of ``modules`` when some are named: the others are not generated at all)."""
     spec = SCOPES[scope]
     if workdir.exists():
         shutil.rmtree(workdir)
@@ -67,8 +68,12 @@ def prepare(scope: str, workdir: Path) -> None:
                             ignore=shutil.ignore_patterns("__pycache__", "*.pyc"))
         else:
             shutil.copy2(src, workdir / name)
-    only = [f"{spec['package']}/*_checks.py", f"{spec['package']}/*_common.py"] \
-        if scope == "checks" else [f"{spec['package']}/*"]
+    if modules:
+        only = [f"{spec['package']}/{m}.py" for m in modules]
+    elif scope == "checks":
+        only = [f"{spec['package']}/*_checks.py", f"{spec['package']}/*_common.py"]
+    else:
+        only = [f"{spec['package']}/*"]
     args = ["-m", "not e2e", "-p", "no:cacheprovider"]
     for d in spec["deselect"]:
         args += ["--deselect", d]
@@ -86,7 +91,7 @@ def prepare(scope: str, workdir: Path) -> None:
 
 def run(scope: str, modules: list[str], workdir: Path, jobs: int) -> int:
     """Prepare the scratch copy and run mutmut on the named modules (all when none)."""
-    prepare(scope, workdir)
+    prepare(scope, workdir, modules)
     pkg = SCOPES[scope]["package"].replace("/", ".")
     names = [f"{pkg}.{m}.*" for m in modules]
     env = {k: v for k, v in os.environ.items() if k != "PYTHONPATH"}

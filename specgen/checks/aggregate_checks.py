@@ -30,7 +30,8 @@ declare("binder_aggregate_ratio", "", "binder:aggregate of the historic mortar f
         "digestion (by mass as found and net of the binder's loss on ignition, by volume) and "
         "of the mix (by volume)")
 
-C125 = Basis("reference", "astmc125", "fineness modulus")
+C125 = Basis("reference", "astmc125", "fineness modulus: cumulative % retained on 150 µm … "
+             "150 mm, a 2:1 series, / 100", read_in="fm_dictionary")
 
 
 def envelope(ctx) -> tuple[str, dict]:
@@ -56,7 +57,7 @@ def _envelope_step(g: gr.Grading, cmp: gr.EnvelopeComparison, env: dict) -> Step
     return Step(f"Passing on the envelope's sieves ({_series_name(env.get('series', ''))}), "
                 f"from the analysis on the {_series_name(g.series)} sieves",
                 r"P(s) = P_2 + (P_1 - P_2)\,rac{\ln(s/s_2)}{\ln(s_1/s_2)}", inputs,
-                r"s_2 \le s \le s_1\ 	ext{adjacent sieves of the analysis}",
+                r"s_2 \le s \le s_1\ \text{adjacent sieves of the analysis}",
                 round(100 * max(cmp.outside), 3), "%", "outside")
 
 
@@ -108,7 +109,10 @@ def _curve(g: gr.Grading) -> dict:
 
 def _envelope_curve(env: dict) -> dict:
     lim = sorted(env["limits"], key=lambda e: e["sieve_mm"])
-    return {"title": env["title"], "source": refdata.shown(env["source"], env.get("tag", "")),
+    source = refdata.shown(env["source"], env.get("tag", ""))
+    if env.get("read_in"):      # read in a published summary, not in the standard itself
+        source += f" (as stated in {refdata.reference_label(env['read_in'])})"
+    return {"title": env["title"], "source": source,
             "sieves_mm": [e["sieve_mm"] for e in lim],
             "low": [e["low"] for e in lim], "high": [e["high"] for e in lim]}
 
@@ -197,7 +201,8 @@ def _grading_one(pair, ctx):
     drawn = _envelope_curve(env)
     notes.append(f"envelope: {drawn['title']} — {drawn['source']}")
     return cc.result(code, title, pair, worst(statuses), round(100 * dev.rms, 3), "%",
-                     [C125, Basis("reference", env["ref"], env["source"]),
+                     [C125, Basis("reference", env["ref"], env["source"],
+                                  read_in=env.get("read_in", "")),
                       cc.rule_basis(ctx, "grading_rms_max")], "; ".join(msg), steps=steps,
                      notes=notes,
                      limit=cc.rule_limit(ctx, "grading_rms_max", "<=", f"Δ_rms ≤ {rms_lim:g} %"),

@@ -260,8 +260,9 @@ def citation_rule(ctx) -> list[Finding]:
     known, missing = _library(), {}
     for c in ctx.results.checks:
         for b in c.basis:
-            if b.kind == "reference" and b.ref not in known:
-                missing.setdefault(b.ref, []).append(c.key)
+            for ref in (b.ref, b.read_in) if b.kind == "reference" else ():
+                if ref and ref not in known:
+                    missing.setdefault(ref, []).append(c.key)
     return [Finding("AUD-CITE", "Cited works missing from the reference list",
                     f"'{ref}' is cited by {', '.join(keys[:5])}{' …' if len(keys) > 5 else ''} "
                     "but is not in the reference list.", tuple(f"calculation sheet {k}"

@@ -66,18 +66,12 @@ def unregister(code: str) -> None:
 
 def checks() -> list[CheckSpec]:
     """All registered checks in run order."""
-    load_builtin()
     return sorted(_REGISTRY.values(), key=lambda s: (s.order, s.code))
 
 
 def in_matrix(matrix: str) -> list[CheckSpec]:
     """The checks of one table of the compatibility chapter, in run order."""
     return [s for s in checks() if s.matrix == matrix]
-
-
-def load_builtin() -> None:
-    """Import the built-in check modules (each registers itself on import)."""
-    import specgen.checks.builtin  # noqa: F401
 
 
 def as_list(out) -> list:
@@ -118,7 +112,6 @@ def declare(name: str, unit: str, description: str) -> None:
 
 def quantity_names() -> list[QuantityName]:
     """Every declared results.json name, sorted."""
-    load_builtin()
     return sorted(_NAMES.values(), key=lambda q: q.name)
 
 
@@ -153,7 +146,6 @@ def audit_rule(code: str, title: str, order: int = 500):
 
 def audit_rules() -> list[AuditRule]:
     """Every audit rule in run order."""
-    load_builtin()
     return sorted(_AUDIT.values(), key=lambda r: (r.order, r.code))
 
 

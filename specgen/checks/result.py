@@ -54,19 +54,24 @@ class Basis:
     """Why a limit or formula applies: a reference key + clause, or a kind of basis.
 
     ``kind`` is ``reference`` (then ``ref`` names an entry of the bibliography),
-    ``common practice`` or ``project requirement``.
+    ``common practice`` or ``project requirement``.  ``read_in`` names the bibliography
+    entry the value was actually read in when that is not ``ref`` itself (a published
+    summary of a standard not read in full): the text says so, and both are cited.
     """
 
     kind: Literal["reference", "common practice", "project requirement"]
     ref: str = ""
     clause: str = ""
     note: str = ""
+    read_in: str = ""
 
     def text(self) -> str:
         if self.kind != "reference":
             return self.kind + (f" — {self.note}" if self.note else "")
         from specgen.refdata import reference_label
-        return reference_label(self.ref) + (f", {self.clause}" if self.clause else "")
+        text = reference_label(self.ref) + (f", {self.clause}" if self.clause else "")
+        return text + (f" (as stated in {reference_label(self.read_in)})" if self.read_in
+                       else "")
 
 
 @dataclass(frozen=True)

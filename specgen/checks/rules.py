@@ -62,7 +62,7 @@ def _basis(raw: dict, where: str) -> Basis:
                                                               "project requirement"}:
         raise ValueError(f"{where}: basis needs kind: reference | common practice | project requirement")
     return Basis(raw["kind"], str(raw.get("ref", "")), str(raw.get("clause", "")),
-                 str(raw.get("note", "")))
+                 str(raw.get("note", "")), str(raw.get("read_in", "")))
 
 
 @lru_cache(maxsize=None)

@@ -201,6 +201,9 @@ def _fit_result(code, title, mix, s: sc.Series, ctx) -> CheckResult:
     steps = (lab,) if lab else ()
     steps += tuple(_model_step(f) for f in sel.fits)
     notes = [sel.reasoning] + [f"{f.title}: {n}" for f in sel.fits for n in f.notes]
+    notes.append(f"for reference only: these curves are fitted without a prior and decide nothing; "
+                 f"predictions and decisions rest on the two-stage law with the binder family's "
+                 f"prior (STR-INF-{CODE_OF[s.test]}, STR-PRED-{CODE_OF[s.test]})")
     st = sc.settings(ctx.project)
     if steps and steps[0].symbol == "a_T" and st.warning:
         notes.append(st.warning)
@@ -356,16 +359,15 @@ def pred_step(s: sc.Series, iv, ctx, prefix: str = "", mean=None) -> Step:
                     inf.sigma_w_source),
               Input("q", f"Student t, {inf.dof:g} dof, {level:.0%} two-sided",
                     round(inf.quantile(level), 4), "", "scipy.stats")]
-    sub = rf"\hat f = {iv.value:.3f};\ 	ext{{{iv.kind}}}: [{iv.lower:.3f},\ {iv.upper:.3f}]"
+    sub = rf"\hat f = {iv.value:.3f};\ \text{{{iv.kind}}}: [{iv.lower:.3f},\ {iv.upper:.3f}]"
     if mean is not None:
-        sub += rf";\ 	ext{{mean curve}}: [{mean.lower:.3f},\ {mean.upper:.3f}]"
+        sub += rf";\ \text{{mean curve}}: [{mean.lower:.3f},\ {mean.upper:.3f}]"
     where = ("indicative: beyond the extrapolation limit" if iv.indicative else
              "extrapolated" if iv.age > inf.last_age * (1 + 1e-9) else "within the tested ages")
     title = (f"{prefix}: t_e = {iv.age:.4g} d ({where}); interval for the {iv.kind}" if prefix
              else f"{s.test} at {iv.age:g} d ({where}); interval for the {iv.kind}")
     return Step(title,
-                r"e^{\ln\hat f(t) \pm q\sqrt{g^{\mathsf T}\Sigma g + \sigma_b^2 + "
-                r"\sigma_w^2/n}},\quad g = \partial \ln f/\partial	heta",
+                si.interval_formulas(inf)[1 if iv.kind != "mean curve" else 0],
                 tuple(inputs), sub, round(iv.value, 4), "MPa", "f̂")
 
 

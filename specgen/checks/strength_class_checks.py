@@ -13,7 +13,7 @@ from specgen.science import strength_classes as scl
 
 C270 = Basis("reference", "astmc270", "property specification, minimum 28-d compressive strength")
 EN998 = Basis("reference", "en998_2", "compressive strength classes M1 … M20 on the mean at 28 d "
-              "(tested to EN 1015-11)")
+              "(tested to EN 1015-11)", read_in="ziegel_moertel")
 MORTAR_CLASSES = {"astm_c270": ("ASTM C270", "type", C270),
                   "en998_2": ("EN 998-2", "class", EN998)}
 declare("strength_classes", "", "mortar class met by the 28-d mean by the practice's "

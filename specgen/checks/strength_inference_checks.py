@@ -188,8 +188,7 @@ def _means_step(run: spc.InferenceRun, level: float) -> Step:
                     rf"{b['pred_hi'][i]:.3f}]_{{set}}")
     return Step(f"Measured means against the {level:.0%} band for the mean curve and the "
                 "interval for a set of the same size",
-                r"e^{\ln\hat f \pm z\sqrt{g^{\mathsf T}\Sigma g}},\quad e^{\ln\hat f \pm "
-                r"q\sqrt{g^{\mathsf T}\Sigma g + \sigma_b^2 + \sigma_w^2/n}}",
+                r",\quad ".join(si.interval_formulas(inf)),
                 tuple(inputs), r";\ ".join(subs), len(run.outside), "", "misses")
 
 
@@ -217,7 +216,7 @@ def _curve(s: sc.Series, level: float, n: int, ctx) -> dict:
     comp = si.components(inf, ages)
     r4 = lambda a: [round(float(v), 4) for v in a]  # noqa: E731
     pts = [(g.te / DAY, r.value / MPA) for g in s.groups for r in g.specimens]
-    fitted = si.bands(inf, [p[0] for p in pts], level, n)["value"]
+    fitted = si.value(inf, [p[0] for p in pts])
     return {"ages_d": r4(ages), **{k: r4(v) for k, v in b.items()},
             **{k: r4(v) for k, v in comp.items()}, "n": n, "level": level,
             "specimens": [[round(a, 4), round(v, 4)] for a, v in pts],

@@ -24,7 +24,8 @@ from specgen.checks.salt_checks import aluminate_rich
 
 TSA = "Thaumasite sulfate attack"
 ETT = "Ettringite sulfate expansion"
-TEG = Basis("reference", "teg1999", "conditions for the thaumasite form of sulfate attack")
+TEG = Basis("reference", "teg1999", "primary risk factors: a sulfate source, mobile water, "
+            "carbonate and low temperatures, generally below 15 °C", read_in="teg_summary")
 ZERO_C = 273.15
 
 

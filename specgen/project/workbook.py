@@ -16,8 +16,11 @@ yet reported: it is counted in :attr:`SheetTable.pending`, not read as a result.
 from __future__ import annotations
 
 import datetime as dt
+import io
 import json
+import re
 import zipfile
+import zlib
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 
@@ -40,6 +43,7 @@ LAYOUT_PROPERTY = "specgen-layout"
 MACRO_SUFFIXES = {".xlsm", ".xltm", ".xlsb", ".xlam"}
 OLD_SUFFIXES = {".xls", ".xlt"}
 MAX_UNZIPPED_BYTES = 200 * 1024 * 1024   # a workbook that inflates beyond this is refused
+CUSTOM_PART = "docProps/custom.xml"   # the document's custom properties
 SAVE_AS = "save it from the spreadsheet as 'Excel Workbook (.xlsx)'"
 
 
@@ -63,74 +67,184 @@ def workbook_files(root: Path) -> list[Path]:
 
 
 def read_workbook(path: Path, rel: str, log: ProblemLog) -> list[SheetTable]:
-    """The test sheets of the workbook at ``path``; problems recorded in ``log``."""
-    if not _safe_to_open(path, rel, log):
+    """The test sheets of the workbook at ``path``; problems recorded in ``log``.
+
+    A workbook without formulas or error values — every workbook a laboratory returns as asked —
+    is read by calamine (a compiled reader, about as fast as the CSV reader on the same rows);
+    one that holds any is read by openpyxl, which gives each formula's text and each error
+    value for the message.  Both readers hand :func:`_sheet` the same grid, so the checks,
+    messages and locations are the same whichever read the file.
+    """
+    inside = _inspect(path, rel, log)
+    if inside is None:
         return []
-    from openpyxl import load_workbook
+    data, layout, formulas = inside
     try:
-        wb = load_workbook(path, data_only=False, keep_vba=False, keep_links=False)
-    except Exception as exc:  # openpyxl raises many kinds for a damaged file
+        names, grids = (_grids_openpyxl if formulas else _grids_calamine)(io.BytesIO(data))
+    except Exception as exc:  # either reader raises many kinds for a damaged file
         log.add(rel, f"cannot be read as an xlsx workbook ({type(exc).__name__}: "
                 f"{str(exc)[:80]}).", fix=SAVE_AS + ", or export each sheet as 'CSV UTF-8'.")
         return []
-    layout = _layout(wb)
     out = []
-    for ws in wb.worksheets:
-        if ws.title == INSTRUCTIONS:
+    for title, grid in grids:
+        if title == INSTRUCTIONS:
             continue
-        if ws.title not in SHEETS:
-            hint = did_you_mean(ws.title, list(SHEETS) + [INSTRUCTIONS])
-            log.add(rel, "is not a sheet specgen knows.", sheet=ws.title,
+        if title not in SHEETS:
+            hint = did_you_mean(title, list(SHEETS) + [INSTRUCTIONS])
+            log.add(rel, "is not a sheet specgen knows.", sheet=title,
                     fix=(f"{hint} Otherwise n" if hint else "N") + "ame each sheet after its "
                     "test (" + ", ".join(SHEETS) + ") or delete it.")
             continue
-        out.append(_sheet(ws, rel, layout.get(ws.title), log))
+        out.append(_sheet(grid, rel, layout.get(title), log))
     for name in layout:
-        if name in SHEETS and name not in wb.sheetnames:
+        if name in SHEETS and name not in names:
             log.add(rel, f"the sheet '{name}' is missing (it was in the workbook as written).",
                     fix=f"restore the sheet or its name '{name}'; sheet names are how specgen "
                     "knows which test a row records.")
     return out
 
 
-def _safe_to_open(path: Path, rel: str, log: ProblemLog) -> bool:
+@dataclass
+class _Grid:
+    """One worksheet as a reader gives it: cell values by row (row 1 first, every row as wide
+    as the sheet), the cells holding a formula or an error value, and the merged ranges."""
+
+    title: str
+    rows: list[list]
+    flagged: dict[tuple[int, int], tuple[str, str]] = field(default_factory=dict)  # (row, col)
+    merged: list[tuple[str, int, int]] = field(default_factory=list)  # (A1:B2, first, last row)
+
+
+def _grids_calamine(file: io.BytesIO) -> tuple[list[str], list[tuple[str, _Grid | None]]]:
+    """All sheet names, and each worksheet (a test sheet's grid read, other sheets by title)."""
+    from openpyxl.utils import get_column_letter as letter
+    from python_calamine import CalamineWorkbook, SheetTypeEnum
+    with CalamineWorkbook.from_filelike(file) as wb:
+        out = []
+        for meta in wb.sheets_metadata:
+            if meta.typ != SheetTypeEnum.WorkSheet:
+                continue
+            if meta.name not in SHEETS:
+                out.append((meta.name, None))
+                continue
+            ws = wb.get_sheet_by_name(meta.name)
+            merged = [(f"{letter(c0 + 1)}{r0 + 1}:{letter(c1 + 1)}{r1 + 1}", r0 + 1, r1 + 1)
+                      for (r0, c0), (r1, c1) in ws.merged_cell_ranges or []]
+            out.append((meta.name, _Grid(meta.name, ws.to_python(skip_empty_area=False),
+                                         merged=merged)))
+        return list(wb.sheet_names), out
+
+
+def _grids_openpyxl(file: io.BytesIO) -> tuple[list[str], list[tuple[str, _Grid | None]]]:
+    """As :func:`_grids_calamine`, with each formula's text and each error value flagged."""
+    from openpyxl import load_workbook
+    wb = load_workbook(file, data_only=False, keep_vba=False, keep_links=False)
+    out = []
+    for ws in wb.worksheets:
+        if ws.title not in SHEETS:
+            out.append((ws.title, None))
+            continue
+        rows, flagged = [], {}
+        for cells in ws.iter_rows():
+            values = []
+            for c in cells:
+                v = c.value
+                if c.data_type == "f":
+                    flagged[c.row, c.column] = ("f", v if isinstance(v, str)
+                                                else getattr(v, "text", "a formula"))
+                    v = None
+                elif c.data_type == "e":
+                    flagged[c.row, c.column] = ("e", str(v))
+                    v = None
+                values.append(v)
+            rows.append(values)
+        merged = [(r.coord, r.min_row, r.max_row) for r in ws.merged_cells.ranges]
+        out.append((ws.title, _Grid(ws.title, rows, flagged, merged)))
+    return list(wb.sheetnames), out
+
+
+# parts of the package that never hold cells (themes, styles, the shared strings, properties,
+# the sheet list, the content types)
+_NO_CELLS = re.compile(r"(docProps/|xl/theme/|xl/(styles|sharedStrings|workbook)\.xml$|"
+                       r"\[Content_Types\]\.xml$)")
+
+
+_AFTER_NAME = frozenset(b" \t\r\n>/")
+
+
+def _formula_or_error(part: bytes) -> bool:
+    """Whether a part may hold a formula (an element ``f``, with any namespace prefix) or an
+    error value (a cell of type ``"e"``).  A false alarm (``<f`` or ``:f`` in a text, ``"e"`` in
+    an attribute) only sends the file to openpyxl; a formula missed would be read as its last
+    computed value.  Plain searches: a regular expression costs as much as calamine's read."""
+    for lead in (b"<f", b":f"):
+        i = part.find(lead)
+        while i >= 0:
+            if i + 2 < len(part) and part[i + 2] in _AFTER_NAME:
+                return True
+            i = part.find(lead, i + 2)
+    return b'"e"' in part or b"'e'" in part
+
+
+def _inspect(path: Path, rel: str, log: ProblemLog
+             ) -> tuple[bytes, dict[str, list[str]], bool] | None:
+    """(the file's bytes, the layout specgen wrote, whether any part holds a formula or an
+    error value), or ``None`` when the file is not to be opened (the reason in ``log``)."""
     suffix = path.suffix.lower()
     if suffix in MACRO_SUFFIXES:
         log.add(rel, "is a macro-enabled workbook; specgen does not open it, so no macro runs.",
                 fix=SAVE_AS + " (macros are dropped), then delete this file.")
-        return False
+        return None
     if suffix in OLD_SUFFIXES:
         log.add(rel, "is in the old binary spreadsheet format, which specgen does not read.",
                 fix=SAVE_AS + ".")
-        return False
+        return None
     if path.stat().st_size > MAX_FILE_BYTES:
         log.add(rel, f"is larger than {MAX_FILE_BYTES // 2**20} MiB.",
                 fix="keep only the project's results in the workbook.")
-        return False
-    if not zipfile.is_zipfile(path):
+        return None
+    data = path.read_bytes()   # read once: both the checks and the reader work from memory
+    if not zipfile.is_zipfile(io.BytesIO(data)):
         log.add(rel, "is not an xlsx workbook (an xlsx file is a zip archive).",
                 fix=SAVE_AS + ", or export each sheet as 'CSV UTF-8'.")
-        return False
-    with zipfile.ZipFile(path) as z:
-        names = z.namelist()
-        inflated = sum(i.file_size for i in z.infolist())
-    if any(n.lower().endswith("vbaproject.bin") for n in names):
-        log.add(rel, "holds macros (a macro project inside an .xlsx); specgen does not open it, "
-                "so no macro runs.", fix=SAVE_AS + " without macros.")
-        return False
-    if inflated > MAX_UNZIPPED_BYTES:
-        log.add(rel, f"inflates to {inflated / 1e6:.0f} MB; the limit is "
-                f"{MAX_UNZIPPED_BYTES // 2**20} MiB.", fix="keep only the project's results.")
-        return False
-    return True
+        return None
+    try:
+        with zipfile.ZipFile(io.BytesIO(data)) as z:
+            items = z.infolist()
+            names = [i.filename for i in items]
+            if any(n.lower().endswith("vbaproject.bin") for n in names):
+                log.add(rel, "holds macros (a macro project inside an .xlsx); specgen does not "
+                        "open it, so no macro runs.", fix=SAVE_AS + " without macros.")
+                return None
+            inflated = sum(i.file_size for i in items)
+            if inflated > MAX_UNZIPPED_BYTES:
+                log.add(rel, f"inflates to {inflated / 1e6:.0f} MB; the limit is "
+                        f"{MAX_UNZIPPED_BYTES // 2**20} MiB.", fix="keep only the project's results.")
+                return None
+            # every part that may hold cells, not only xl/worksheets/
+            formulas = any(_formula_or_error(z.read(n)) for n in names
+                           if n.lower().endswith(".xml") and not _NO_CELLS.match(n))
+            custom = z.read(CUSTOM_PART) if CUSTOM_PART in names else None
+    except (zipfile.BadZipFile, zlib.error, OSError, EOFError, RuntimeError, ValueError) as exc:
+        log.add(rel, f"cannot be read as an xlsx workbook ({type(exc).__name__}: "
+                f"{str(exc)[:80]}).", fix=SAVE_AS + ", or export each sheet as 'CSV UTF-8'.")
+        return None
+    return data, _layout(custom), formulas
 
 
-def _layout(wb) -> dict[str, list[str]]:
+def _layout(custom: bytes | None) -> dict[str, list[str]]:
     """Sheets and headers as specgen wrote them (empty for a workbook made elsewhere)."""
-    for prop in getattr(wb, "custom_doc_props", None) or []:
-        if prop.name == LAYOUT_PROPERTY:
+    if not custom:
+        return {}
+    from xml.etree import ElementTree as ET
+    try:
+        root = ET.fromstring(custom)
+    except ET.ParseError:
+        return {}
+    for prop in root:
+        if prop.get("name") == LAYOUT_PROPERTY and len(prop):
             try:
-                data = json.loads(prop.value)
+                data = json.loads(prop[0].text or "")
             except (TypeError, ValueError):
                 return {}
             return {k: [str(h) for h in v] for k, v in data.items()
@@ -138,43 +252,56 @@ def _layout(wb) -> dict[str, list[str]]:
     return {}
 
 
-def _sheet(ws, rel: str, written: list[str] | None, log: ProblemLog) -> SheetTable:
-    from openpyxl.utils import get_column_letter
-    name = ws.title
+def _sheet(grid: _Grid, rel: str, written: list[str] | None, log: ProblemLog) -> SheetTable:
+    from openpyxl.utils import get_column_letter as letter
+    name = grid.title
     columns, result_cols = SHEETS[name]
     by_name = {c.name: c for c in columns}
-    merged = _merged_rows(ws, rel, log)
-    header_cells = list(ws.iter_rows(min_row=1, max_row=1))[0] if ws.max_row >= 1 else ()
+    merged = _merged_rows(grid, rel, log)
+    heads = ["" if v is None else str(v).strip() for v in (grid.rows[0] if grid.rows else [])]
     headers, letters = [], {}
-    for c in header_cells:
-        text = "" if c.value is None else str(c.value).strip()
+    for i, text in enumerate(heads):
         if text:
             headers.append(text)
-            letters[text] = letters[split_header(text)[0]] = get_column_letter(c.column)
+            letters[text] = letters[split_header(text)[0]] = letter(i + 1)
     headers_ok = written is None or _same_headers(headers, written, letters, name, rel, log)
-    width = len(header_cells)
-    rows, pending = [], []
-    for cells in ws.iter_rows(min_row=2, max_col=width):
-        r = cells[0].row
+    kinds = [by_name.get(split_header(h)[0]) if h else None for h in heads]
+    results = [h for h in headers if split_header(h)[0] in result_cols]
+    first = next((h for h in heads if h), None)
+    rows, pending, flagged = [], [], grid.flagged
+    # (column number, header, whether plain text or numbers, column), for each column
+    columns_at = [(i, h, bool(h) and k is not None and k.kind != DATE, k)
+                  for i, (h, k) in enumerate(zip(heads, kinds), start=1)]
+    for r, cells in enumerate(grid.rows[1:], start=2):
         values, bad = {}, False
-        for c in cells:
-            header = "" if header_cells[c.column - 1].value is None else \
-                str(header_cells[c.column - 1].value).strip()
-            text, problem = _text(c, by_name.get(split_header(header)[0]))
+        for (i, header, plain, kind), v in zip(columns_at, cells):
+            flag = flagged.get((r, i)) if flagged else None
+            if flag is None:                 # the common cells here, the rest in _text
+                if v is None or v == "":
+                    if header:
+                        values[header] = ""
+                    continue
+                if plain and type(v) is float:
+                    values[header] = _number(v)
+                    continue
+                if plain and type(v) is str and v[0] != "=":
+                    values[header] = v.strip()
+                    continue
+            text, problem = _text(v, flag, kind)
             if problem:
-                log.add(rel, problem[0], sheet=name, cell=c.coordinate, field=header or None,
-                        fix=problem[1])
+                log.add(rel, problem[0], sheet=name, cell=f"{letter(i)}{r}",
+                        field=header or None, fix=problem[1])
                 bad = True
             elif text and not header:
                 log.add(rel, f"holds '{text[:40]}' in a column without a header.", sheet=name,
-                        cell=c.coordinate, fix="give the column its header, or clear it.")
+                        cell=f"{letter(i)}{r}", fix="give the column its header, or clear it.")
                 bad = True
             if header:
                 values[header] = text
         if not any(values.values()) or r in merged or bad:
             continue
-        if not any(values.get(h) for h in headers if split_header(h)[0] in result_cols):
-            pending.append((r, next(iter(values.values()), "")))
+        if not any(values.get(h) for h in results):
+            pending.append((r, values.get(first, "") if first else ""))
             continue
         rows.append((r, values))
     # a changed header leaves the sheet unread (its cells were still checked above)
@@ -182,12 +309,12 @@ def _sheet(ws, rel: str, written: list[str] | None, log: ProblemLog) -> SheetTab
     return SheetTable(name, table, letters, pending)
 
 
-def _merged_rows(ws, rel: str, log: ProblemLog) -> set[int]:
+def _merged_rows(grid: _Grid, rel: str, log: ProblemLog) -> set[int]:
     rows: set[int] = set()
-    for rng in sorted(ws.merged_cells.ranges, key=str):
-        log.add(rel, "these cells are merged.", sheet=ws.title, cell=rng.coord,
+    for coord, first, last in sorted(grid.merged):
+        log.add(rel, "these cells are merged.", sheet=grid.title, cell=coord,
                 fix="unmerge them and write the value in every row it belongs to.")
-        rows.update(range(rng.min_row, rng.max_row + 1))
+        rows.update(range(first, last + 1))
     return rows
 
 
@@ -212,18 +339,17 @@ def _same_headers(headers: list[str], written: list[str], letters: dict, sheet: 
     return ok
 
 
-def _text(cell, column) -> tuple[str, tuple[str, str] | None]:
-    """The cell as CSV text, or a problem (message, fix) a workbook alone can have."""
-    v = cell.value
-    if v is None:
-        return "", None
-    if cell.data_type == "f" or (isinstance(v, str) and v.startswith("=")):
-        formula = v if isinstance(v, str) else getattr(v, "text", "a formula")
+def _text(v, flag: tuple[str, str] | None, column) -> tuple[str, tuple[str, str] | None]:
+    """A cell's value as CSV text, or a problem (message, fix) a workbook alone can have."""
+    is_date = column is not None and column.kind == DATE
+    if flag is not None and flag[0] == "e":
+        return "", (f"holds the error value {flag[1]}.", "enter the measured value.")
+    if flag is not None or (isinstance(v, str) and v.startswith("=")):
+        formula = flag[1] if flag is not None else v
         return "", (f"holds a formula ({str(formula)[:60]}) instead of a value.",
                     "replace it by the measured value (copy, then paste as values only).")
-    if cell.data_type == "e":
-        return "", (f"holds the error value {v}.", "enter the measured value.")
-    is_date = column is not None and column.kind == DATE
+    if v is None:
+        return "", None
     if isinstance(v, (dt.datetime, dt.date)):
         if not is_date:
             return "", (f"holds a date ({v:%Y-%m-%d}) where a "
@@ -241,8 +367,13 @@ def _text(cell, column) -> tuple[str, tuple[str, str] | None]:
     if isinstance(v, bool):
         return str(v).lower(), None
     if isinstance(v, float):
-        return (str(int(v)) if v.is_integer() and abs(v) < 1e15 else repr(v)), None
+        return _number(v), None
     return str(v).strip(), None
+
+
+def _number(v: float) -> str:
+    """A number as the CSV would hold it: whole numbers without a decimal point."""
+    return str(int(v)) if v.is_integer() and abs(v) < 1e15 else repr(v)
 
 
 def located(problems: list[Problem], sheet: SheetTable) -> list[Problem]:

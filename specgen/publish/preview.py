@@ -44,6 +44,19 @@ def site_only(project, results, pages, out: Path) -> Path:
     return target
 
 
+def later_downloads(pages, target: Path) -> list[str]:
+    """Make the downloads :func:`site_only` went without (``PageSet.later``) and write them
+    into ``target``, each beside its final name and then renamed; returns their paths."""
+    made = pages.make_downloads()
+    for rel in made:
+        final = Path(target) / rel
+        final.parent.mkdir(parents=True, exist_ok=True)
+        tmp = final.with_name(f".{final.name}.part")
+        tmp.write_bytes(pages.downloads[rel])
+        os.replace(tmp, final)
+    return made
+
+
 def pdf_only(project, results, pages, target: Path, *, page_size: str = "a4",
              on_part=None) -> Path:
     """Print the PDF of ``pages`` into ``target`` (the folder :func:`site_only` wrote)."""

@@ -32,9 +32,23 @@ class _FeedPages:
             files.append(File.generated(config, path, content=data))
         return files
 
+    def on_env(self, env, config, files):
+        # the theme's templates compiled once per process (the live preview builds again and
+        # again); Jinja recompiles a template whose source changed
+        env.bytecode_cache = _THEME_CODE
+        return env
+
     def on_page_content(self, html, page, config, files):
         from specgen.publish.safety import neutralise_links
         return neutralise_links(html)
+
+
+def _theme_code():
+    from specgen.templating import CompiledTemplates
+    return CompiledTemplates()
+
+
+_THEME_CODE = _theme_code()
 
 
 def _site_assets() -> dict[str, bytes]:

@@ -5,7 +5,8 @@
   hashes the manifest records;
 - the inputs kept for a revision (``issued/<revision>/`` of the project folder, or the
   project folder itself for its current revision) against the same hashes — whoever
-  wrote them into the manifest;
+  wrote them into the manifest (the pipeline finds and hashes them; publishing reads no
+  project);
 - an output folder: every revision in it, ``versions.json`` against the revisions
   present (listed but absent, present but unlisted, the current one), and the root
   ``index.html`` pointing at a revision that exists.
@@ -17,8 +18,9 @@ import json
 import re
 from pathlib import Path
 
+from collections.abc import Callable
+
 from specgen.errors import PublishError
-from specgen.project.layout import ARCHIVE_DIR
 from specgen.publish.output import APPENDIX_SUFFIX, MANIFEST, VERSIONS, verify as outputs_of
 
 INPUT_PREFIX = "input/"
@@ -124,7 +126,12 @@ def _index_target(out: Path) -> str | None:
 
 
 # ---------------------------------------------------------------- `specgen verify`
-def verify_output(path: Path | str, project_dir: Path | str | None = None,
+# a revision code -> where the project keeps that revision's inputs (as a reader names it)
+# and their {path: sha256}, or None for the hashes when it keeps none
+KeptInputs = Callable[[str], tuple[str, "dict[str, str] | None"]]
+
+
+def verify_output(path: Path | str, kept_inputs: KeptInputs | None = None,
                   trust: list[Path] = ()) -> dict:
     """Built output against what it vouches for: ``{"differences": [...], "signatures":
     [...]}``; no differences and every signature intact when all match.
@@ -132,7 +139,8 @@ def verify_output(path: Path | str, project_dir: Path | str | None = None,
     ``path`` is a revision folder or an output folder (then every revision in it, and
     versions.json and the root index against the revisions present).  With
     ``project_dir``, the inputs kept for each revision (``issued/<revision>/``, or the
-    project folder for its current revision) are checked against the manifest too.
+    project folder for its current revision) are checked against the manifest too: with
+    ``kept_inputs``, which finds them for a revision code.
     Signed revisions' signatures are checked against the ``trust`` roots.
     """
     from specgen.publish.signing import verify_signatures
@@ -148,30 +156,17 @@ def verify_output(path: Path | str, project_dir: Path | str | None = None,
     signatures = []
     for folder in folders:
         lines += [f"{folder.name}: {d}" for d in revision_differences(folder)]
-        if project_dir is not None:
-            lines += _kept_inputs(Path(project_dir), folder)
+        if kept_inputs is not None:
+            lines += _kept_inputs(kept_inputs, folder)
         signatures += verify_signatures(folder, list(trust))
     return {"differences": lines, "signatures": signatures}
 
 
-def _kept_inputs(project: Path, folder: Path) -> list[str]:
-    from specgen.project.load import input_files
+def _kept_inputs(kept_inputs: KeptInputs, folder: Path) -> list[str]:
     code = folder.name
-    kept = project / ARCHIVE_DIR / code
-    if not kept.is_dir():
-        kept = project if _revision_code(project) == code else None
-    if kept is None:
+    where, hashes = kept_inputs(code)
+    if hashes is None:
         if manifest_of(folder).get("status") == "issued":
-            return [f"{code}: the project keeps no inputs of this issued revision "
-                    f"({ARCHIVE_DIR}/{code}/)"]
+            return [f"{code}: the project keeps no inputs of this issued revision ({where})"]
         return []
-    return input_differences(folder, {f.path: f.sha256 for f in input_files(kept)})
-
-
-def _revision_code(project: Path) -> str | None:
-    from specgen.errors import ProblemLog
-    from specgen.project.files import read_yaml
-    located = read_yaml(project / "dossier.yaml", "dossier.yaml", ProblemLog())
-    data = located.data if located else None
-    rev = data.get("revision") if isinstance(data, dict) else None
-    return str(rev.get("code")) if isinstance(rev, dict) else None
+    return input_differences(folder, hashes)

@@ -1,6 +1,7 @@
 """The engine-neutral page set: what render produces and publish consumes."""
 from __future__ import annotations
 
+from collections.abc import Callable
 from dataclasses import dataclass, field
 
 
@@ -30,6 +31,9 @@ class PageSet:
     # site engine: a Markdown export fed to MkDocs would become a page), listed in the
     # manifest and attached to the PDF; path → bytes
     downloads: dict[str, bytes] = field(default_factory=dict)
+    # downloads whose bytes are made only when asked for (the DOCX exports, slow to make): the
+    # live preview shows its pages first and makes these afterwards; path → maker
+    later: dict[str, Callable[[], bytes]] = field(default_factory=dict)
     # document-control marks for the print: the mark on every page ("DRAFT — not for
     # construction", "Superseded by R4") and the cover's sign-off rows
     marks: dict = field(default_factory=dict)
@@ -48,12 +52,27 @@ class PageSet:
         self.assets[path] = data
         return path
 
-    def add_download(self, path: str, data: bytes) -> str:
-        """A file for the reader beside the PDF (see ``downloads``); returns its path."""
-        if path in self.assets or self.downloads.get(path, data) != data:
+    def add_download(self, path: str, data: bytes | Callable[[], bytes]) -> str:
+        """A file for the reader beside the PDF (see ``downloads``), or a function that makes
+        its bytes when :meth:`make_downloads` is called (see ``later``); returns its path."""
+        if callable(data):
+            if path in self.assets or path in self.downloads or path in self.later:
+                raise ValueError(f"download '{path}' is produced twice")
+            self.later[path] = data
+            return path
+        if path in self.assets or path in self.later or self.downloads.get(path, data) != data:
             raise ValueError(f"download '{path}' is produced twice with different content")
         self.downloads[path] = data
         return path
+
+    def make_downloads(self) -> list[str]:
+        """Make the downloads left for later into ``downloads``; returns their paths."""
+        made = []
+        for path, make in list(self.later.items()):
+            self.downloads[path] = make()
+            del self.later[path]
+            made.append(path)
+        return made
 
     def write_to(self, folder) -> None:
         """Debug aid: write the page set to disk as plain files."""

@@ -34,7 +34,7 @@ def unconfirmed(entry: dict) -> bool:
 def format_entry(entry: dict) -> str:
     """One entry as plain text in a compact author–year style."""
     year = (entry.get("issued", {}).get("date-parts") or [[""]])[0][0]
-    parts = [f"{_names(entry)} ({year}).", f"*{entry.get('title', '')}*."]
+    parts = [f"{_names(entry)} ({year or 'n.d.'}).", f"*{entry.get('title', '')}*."]
     if entry.get("number"):
         parts.insert(1, f"{entry['number']}.")
     if entry.get("container-title"):
@@ -47,6 +47,10 @@ def format_entry(entry: dict) -> str:
         parts.append(f"{ed}{entry.get('publisher-place', '')}: {entry['publisher']}.".lstrip(": "))
     if entry.get("DOI"):
         parts.append(f"doi:{entry['DOI']}")
+    if entry.get("URL"):        # a web page: its address and the day it was read
+        read = "-".join(f"{n:02d}" for n in (entry.get("accessed", {}).get("date-parts")
+                                             or [[]])[0])
+        parts.append(f"<{entry['URL']}>" + (f" (read {read})" if read else "") + ".")
     if entry.get("note") and not unconfirmed(entry):
         parts.append(f"({entry['note']})")
     return " ".join(parts)

@@ -96,6 +96,8 @@ class RenderEnv:
         if basis.kind != "reference":
             return None
         n = self.citations.cite(basis.ref)
+        if basis.read_in:          # the summary the value was read in is listed too
+            self.citations.cite(basis.read_in)
         return {"n": n, "href": f"references.md#ref-{basis.ref}", "clause": reader(basis.clause)}
 
     def sheet(self, c) -> dict:
@@ -121,8 +123,12 @@ class RenderEnv:
                 "notes": [reader(n) for n in c.notes]}
 
 
-def render(project, results, history=None, superseded: str | None = None) -> PageSet:
+def render(project, results, history=None, superseded: str | None = None, *,
+           later_downloads: bool = False) -> PageSet:
     """Render every registered chapter into a page set (narrative placed by file name).
+
+    With ``later_downloads`` the slow downloads (the DOCX exports) are left in
+    ``PageSet.later`` for :meth:`PageSet.make_downloads` (the live preview's pages come first).
 
     ``history`` (:class:`specgen.publish.history.History`) gives earlier revisions and
     the change report; without it the dossier is rendered as a first revision.
@@ -158,6 +164,8 @@ def render(project, results, history=None, superseded: str | None = None) -> Pag
     pageset.add_asset(CONTEXT_ASSET, review_context(project))
     from specgen.report.marks import apply_marks
     apply_marks(pageset, project, results, superseded)
+    if not later_downloads:
+        pageset.make_downloads()
     return pageset
 
 

@@ -174,9 +174,9 @@ def _plain_document(env, jenv, template: str, stem: str, title: str, **ctx) -> s
         marking=marking(p.revision), **ctx)
     md = md.replace("&#39;", "'").replace("&#34;", '"')  # quotes are plain text here
     fragment = html_fragment(md)
-    env.pageset.add_download(f"{stem}.docx", docx_bytes(
-        fragment, title=title, mark=f"{p.dossier.project.code}, {marking(p.revision)}",
-        date=p.revision.date))
+    mark, date = f"{p.dossier.project.code}, {marking(p.revision)}", p.revision.date
+    env.pageset.add_download(f"{stem}.docx", lambda: docx_bytes(fragment, title=title, mark=mark,
+                                                                date=date))
     return md
 
 

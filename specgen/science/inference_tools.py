@@ -5,11 +5,14 @@ Pure functions on arrays; :mod:`specgen.science.strength_inference` uses them.
 """
 from __future__ import annotations
 
+import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
 import numpy as np
 from scipy import optimize, stats
+
+_Z95 = float(stats.norm.ppf(0.975))
 
 
 # ---------------------------------------------------------------- generic Laplace fit
@@ -114,3 +117,24 @@ def lack_of_fit(values: Sequence[float], groups: Sequence, fitted: Sequence[floa
         return LackOfFit(ss_pe, d_pe, ss_lof, d_lof, None, None)
     f = (ss_lof / d_lof) / (ss_pe / d_pe)
     return LackOfFit(ss_pe, d_pe, ss_lof, d_lof, f, float(stats.f.sf(f, d_lof, d_pe)))
+
+
+# ---------------------------------------------------------------- scores and record checks
+def interval_score(lower, upper, truth, alpha: float = 0.05):
+    """Interval score (Gneiting & Raftery 2007, eq. 43) of central (1 - alpha) intervals:
+    ``(u - l) + (2/alpha)(l - x)·1{x < l} + (2/alpha)(x - u)·1{x > u}``; lower is better."""
+    lo, hi, x = (np.asarray(v, float) for v in (lower, upper, truth))
+    return (hi - lo) + (2 / alpha) * (lo - x) * (x < lo) + (2 / alpha) * (x - hi) * (x > hi)
+
+
+def falls(inf_ages: Sequence[float], means_log: Sequence[float], counts: Sequence[float],
+          sigma_w: float, sigma_b: float, q: float = _Z95) -> list[tuple[float, float, float]]:
+    """Pairs of consecutive ages (a, b, drop ratio) whose mean falls by more than the
+    scatter explains: ``ȳ_a - ȳ_b > q·sqrt(2σb² + σw²(1/n_a + 1/n_b))`` on the log scale."""
+    out = []
+    for i in range(len(inf_ages) - 1):
+        d = means_log[i] - means_log[i + 1]
+        s = math.sqrt(2 * sigma_b ** 2 + sigma_w ** 2 * (1 / counts[i] + 1 / counts[i + 1]))
+        if d > q * s:
+            out.append((float(inf_ages[i]), float(inf_ages[i + 1]), math.exp(-d)))
+    return out

@@ -4,7 +4,7 @@ Units: the public API takes ages in days and strengths in MPa (the trade's worki
 as ``strength_models`` uses internally); every function says so.  Priors are passed in as
 plain dicts (``content/data/strength_priors.yaml`` is read by the caller).
 
-Law (two stages, ``F`` long-term strength, ``φ`` early fraction):
+Law (:mod:`specgen.science.two_stage_law`; ``F`` long-term strength, ``φ`` early fraction):
 ``f(t) = F·[φ·(1 - exp(-t/τA)) + (1 - φ)·(1 - exp(-(t/τS)^b))]``.
 
 Data model, on the log scale (scatter proportional to strength): the ``j``-th prism of
@@ -28,20 +28,20 @@ information about the curve, each with variance ``σb² + σw²/n_i``.
   are therefore read from ``DRAWS`` draws of a Student-t (``PROPOSAL_DOF`` dof, covariance
   ``PROPOSAL_SCALE``² × the Laplace one) about the mode, each weighted by the exact posterior
   over the proposal density (self-normalised importance sampling, MacKay 2003 ch. 29), then
-  resampled to ``KEPT`` equally weighted draws, with a fixed seed so a build is repeatable.  Should the weights degenerate (effective sample size
-  below ``MIN_ESS``) the Laplace approximation is used and :attr:`Inference.sampled` says so.
+  resampled to ``KEPT`` equally weighted draws, with a fixed seed so a build is repeatable.
+  Should the weights degenerate (effective sample size below ``MIN_ESS``) the Laplace
+  approximation is used and :attr:`Inference.sampled` says so.
 
 Intervals (never clipped; exponentiated, so always positive and finite):
 
 * band for the mean curve: the central quantiles of ``ln f(t)`` over the kept draws,
   ``[exp(l), exp(h)]`` (Laplace fallback: ``exp(ln f ± z·sqrt(gᵀΣg))``);
-* prediction interval for the mean of the next set of ``n`` prisms (one new batch):
-  ``exp(c ± q·sqrt(s² + σb² + σw²/n))`` with ``c = (l + h)/2`` and ``s = (h - l)/(2z)`` the
-  band's centre and standard deviation on the log scale; ``n = inf`` gives one batch's own
-  strength (mortar in the wall);
-
-The band for the mean is the posterior's own quantiles; the prediction interval uses
-Student's t at ``ν_w + ν0`` degrees of freedom (it rests on the estimated variances).
+* prediction interval for the mean of the next set of ``n`` prisms (one new batch): the
+  central quantiles of the posterior predictive mixture ``ln f(t; z_i) + T_i·sqrt(σb² +
+  σw²/n)`` over the kept draws ``z_i``, ``T_i`` stratified Student-t variates at ``ν_w + ν0``
+  dof (Gelman et al. 2013, Bayesian Data Analysis, sec. 1.3), so a skewed posterior keeps
+  its skew; ``n = inf``: one batch's own strength (mortar in the wall).  Laplace fallback:
+  ``exp(ln f ± q·sqrt(gᵀΣg + σb² + σw²/n))``, ``q`` Student's t.
 """
 from __future__ import annotations
 
@@ -53,13 +53,16 @@ from functools import lru_cache
 import numpy as np
 from scipy import stats
 
-# the priors and the generic tools of the fit, importable from here as before
+# the priors, the generic tools of the fit and the law, importable from here as before
 from specgen.science.strength_priors import (PRIOR_KEYS, _Z95, InferenceError,  # noqa: F401
                                              Prior, PriorTerm, _central_cv, prior_from_table)
-# the generic tools of the fit, importable from here as before
-from specgen.science.inference_tools import (Laplace, LackOfFit,  # noqa: F401
-                                             importance_sample, lack_of_fit, laplace_fit,
-                                             resample)
+from specgen.science.inference_tools import (Laplace, LackOfFit, falls,  # noqa: F401
+                                             importance_sample, interval_score, lack_of_fit,
+                                             laplace_fit, resample)
+from specgen.science.two_stage_law import log_f as _log_f  # noqa: F401
+from specgen.science.two_stage_law import log_f_grad as _log_f_grad
+from specgen.science.two_stage_law import two_stage  # noqa: F401
+from specgen.science.two_stage_law import unpack as _unpack
 
 PRIOR_DOF = 4.0          # weight of the prior's variances, as degrees of freedom (common practice)
 # importance sampling of the posterior (common practice for a Laplace proposal: heavier tails
@@ -69,45 +72,7 @@ KEPT = 1000    # equally weighted draws kept after resampling (about the effecti
 NODES = 48     # a longer list of ages (a curve) takes the band's offsets from ln f at this many
                # log-spaced ages, interpolated in ln t (the offsets vary slowly with age)
 GAIN_AGES_D = (28.0, 365.0)
-
-
-# ---------------------------------------------------------------- the law
-def two_stage(t_d, big_f: float, phi: float, tau_a: float, tau_s: float, b: float):
-    """Two-stage law (MPa) at ages ``t_d`` (d)."""
-    t = np.asarray(t_d, float)
-    return big_f * (phi * -np.expm1(-t / tau_a) + (1 - phi) * -np.expm1(-(t / tau_s) ** b))
-
-
-def _unpack(z) -> tuple[float, float, float, float, float]:
-    ln_f, lg_phi, ln_ta, ln_ts, ln_b = z
-    return (math.exp(ln_f), 1.0 / (1.0 + math.exp(-lg_phi)), math.exp(ln_ta),
-            math.exp(ln_ts), math.exp(ln_b))
-
-
-def _log_f(z, t_d) -> np.ndarray:
-    ln_f, lg_phi, ln_ta, ln_ts, ln_b = z
-    phi = 1.0 / (1.0 + np.exp(-lg_phi))
-    t = np.asarray(t_d, float)
-    shape = phi * -np.expm1(-t / np.exp(ln_ta)) + (1 - phi) * -np.expm1(
-        -(t / np.exp(ln_ts)) ** np.exp(ln_b))
-    return ln_f + np.log(np.maximum(shape, 1e-300))
-
-
-def _log_f_grad(z, t_d) -> np.ndarray:
-    """∂ ln f/∂z, analytic (rows: ages; columns: ln F, logit φ, ln τA, ln τS, ln b)."""
-    _, lg_phi, ln_ta, ln_ts, ln_b = (float(v) for v in z)
-    phi, ta, ts, b = 1.0 / (1.0 + math.exp(-lg_phi)), math.exp(ln_ta), math.exp(ln_ts), \
-        math.exp(ln_b)
-    t = np.atleast_1d(np.asarray(t_d, float))
-    ea = np.exp(-t / ta)
-    u = (t / ts) ** b
-    eb = np.exp(-u)
-    a_, b_ = -np.expm1(-t / ta), -np.expm1(-u)
-    shape = np.maximum(phi * a_ + (1 - phi) * b_, 1e-300)
-    return np.column_stack([
-        np.ones_like(t), (a_ - b_) * phi * (1 - phi) / shape,
-        -phi * (t / ta) * ea / shape, -(1 - phi) * b * u * eb / shape,
-        (1 - phi) * eb * b * u * np.log(t / ts) / shape])
+PREDICTIVE_REPEATS = 1   # Student-t variates per kept draw in the predictive mixture (stratified)
 
 
 # ---------------------------------------------------------------- the fit
@@ -271,38 +236,102 @@ class Interval:
     indicative: bool
 
 
-def _log_band(inf: Inference, t_d, level: float):
+def _log_bands(inf: Inference, t_d, level: float, extra_sd=None):
     """At ages ``t_d`` (d): ln f at the mode and the central ``level`` band for the mean curve
-    on the log scale (lower, upper): the posterior's weighted quantiles, or the Laplace normal."""
+    on the log scale (lower, upper) -- the posterior's quantiles, or the Laplace normal -- and,
+    when ``extra_sd`` (the SD of a new batch's mean on the log scale, one per age or one for
+    all) is given, the prediction interval (lower, upper) on the log scale: the quantiles of
+    the posterior predictive mixture, or the Laplace fallback (module docstring)."""
     t = np.atleast_1d(np.asarray(t_d, float))
     if np.any(t <= 0) or not np.all(np.isfinite(t)):
         raise InferenceError("prediction ages must be positive finite numbers of days")
     m = _log_f(inf.mode, t)
+    if not inf.sampled:
+        g = _log_f_grad(inf.mode, t)
+        var = np.clip(np.einsum("ij,jk,ik->i", g, inf.cov, g), 0, None)
+        s = _z_quantile(level) * np.sqrt(var)
+        if extra_sd is None:
+            return m, m - s, m + s, None, None
+        sp = inf.quantile(level) * np.sqrt(var + np.asarray(extra_sd, float) ** 2)
+        return m, m - s, m + s, m - sp, m + sp
+    a = (1.0 - level) / 2.0
+    nodes = t if t.size <= NODES else np.geomspace(t.min(), t.max(), NODES)
+    with np.errstate(over="ignore", invalid="ignore"):
+        lf = _log_f(inf.draws.T[:, :, None], nodes[None, :])
+    lo, hi = np.quantile(lf, [a, 1.0 - a], axis=0, method="inverted_cdf")
+    plo = phi = None
+    if extra_sd is not None:
+        e = np.broadcast_to(np.asarray(extra_sd, float), t.shape)
+        if nodes is not t:
+            order = np.argsort(t)
+            e = np.interp(np.log(nodes), np.log(t[order]), e[order])
+        mix = lf[None, :, :] + _predictive_noise(inf.dof)[:, :, None] * e[None, None, :]
+        plo, phi = np.quantile(mix.reshape(-1, nodes.size), [a, 1.0 - a], axis=0,
+                               method="inverted_cdf")
+    if nodes is t:
+        return m, lo, hi, plo, phi
+    mn, x, lt = _log_f(inf.mode, nodes), np.log(nodes), np.log(t)
+
+    def at(edge):
+        return None if edge is None else m + np.interp(lt, x, edge - mn)
+    return m, at(lo), at(hi), at(plo), at(phi)
+
+
+@lru_cache(maxsize=64)
+def _predictive_noise(dof: float) -> np.ndarray:
+    """``PREDICTIVE_REPEATS`` x ``KEPT`` Student-t variates (``dof``): the new batch's
+    standardised scatter in the predictive mixture.  Stratified (one variate at each of the
+    probabilities ``(i + ½)/N``, in an order shuffled with a fixed seed, so builds repeat):
+    the variates follow the t distribution exactly in aggregate, and the mixture's quantiles
+    carry only the posterior draws' Monte Carlo error (stratified sampling, Owen 2013, Monte
+    Carlo theory, methods and examples, ch. 10)."""
+    size = PREDICTIVE_REPEATS * KEPT
+    u = (np.arange(size) + 0.5) / size
+    out = stats.t.ppf(np.random.default_rng(SEED + 1).permutation(u), dof)
+    out = out.reshape(PREDICTIVE_REPEATS, KEPT)
+    out.flags.writeable = False
+    return out
+
+
+def value(inf: Inference, t_d) -> np.ndarray:
+    """The fitted curve (MPa, posterior mode) at ages ``t_d`` (d), without its intervals."""
+    t = np.atleast_1d(np.asarray(t_d, float))
+    if np.any(t <= 0) or not np.all(np.isfinite(t)):
+        raise InferenceError("prediction ages must be positive finite numbers of days")
+    return np.exp(_log_f(inf.mode, t))
+
+
+def interval_formulas(inf: Inference) -> tuple[str, str]:
+    """LaTeX of how the band for the mean curve and the interval for a set are computed for
+    this fit (posterior draws, or the Laplace fallback), for the calculation sheet."""
     if inf.sampled:
-        a = (1.0 - level) / 2.0
-        nodes = t if t.size <= NODES else np.geomspace(t.min(), t.max(), NODES)
-        with np.errstate(over="ignore", invalid="ignore"):
-            lf = _log_f(inf.draws.T[:, :, None], nodes[None, :])
-        lo, hi = np.quantile(lf, [a, 1.0 - a], axis=0, method="inverted_cdf")
-        if nodes is t:
-            return m, lo, hi
-        mn, x = _log_f(inf.mode, nodes), np.log(nodes)
-        return (m, m + np.interp(np.log(t), x, lo - mn), m + np.interp(np.log(t), x, hi - mn))
-    g = _log_f_grad(inf.mode, t)
-    s = _z_quantile(level) * np.sqrt(np.clip(np.einsum("ij,jk,ik->i", g, inf.cov, g), 0, None))
-    return m, m - s, m + s
+        return (r"\left[e^{Q_{\alpha/2}},\ e^{Q_{1-\alpha/2}}\right]\ \text{of}\ "
+                r"\ln f(t; z_i),\ z_i\ \text{posterior draws}",
+                r"\left[e^{Q_{\alpha/2}},\ e^{Q_{1-\alpha/2}}\right]\ \text{of}\ "
+                r"\ln f(t; z_i) + T_i\sqrt{\sigma_b^2 + \sigma_w^2/n},\ "
+                r"T_i \sim t_{\nu}")
+    return (r"e^{\ln\hat f \pm z\sqrt{g^{\mathsf T}\Sigma g}},\ "
+            r"g = \partial \ln f/\partial\theta",
+            r"e^{\ln\hat f \pm q\sqrt{g^{\mathsf T}\Sigma g + \sigma_b^2 + \sigma_w^2/n}}")
 
 
 def bands(inf: Inference, t_d, level: float = 0.95, n: float = 3.0) -> dict[str, np.ndarray]:
     """Arrays (MPa) at ages ``t_d`` (d): ``value``, mean band ``mean_lo``/``mean_hi`` and the
     prediction interval for the mean of ``n`` prisms of a new batch ``pred_lo``/``pred_hi``
     (``n = inf``: the batch's own strength; ``n`` may be an array, one per age)."""
-    m, lo, hi = _log_band(inf, t_d, level)
-    c, s = (lo + hi) / 2.0, (hi - lo) / (2.0 * _z_quantile(level))
-    sp = np.sqrt(s ** 2 + inf.sigma_b ** 2 + inf.sigma_w ** 2 / np.asarray(n, float))
-    q = inf.quantile(level)
+    t = np.atleast_1d(np.asarray(t_d, float))
+    n_key = tuple(np.broadcast_to(np.asarray(n, float), t.shape).tolist())
+    return {k: v.copy() for k, v in _bands(inf, tuple(t.tolist()), float(level), n_key).items()}
+
+
+@lru_cache(maxsize=256)
+def _bands(inf: Inference, t: tuple, level: float, n: tuple) -> dict[str, np.ndarray]:
+    # kept by the fit's identity and the exact ages: the checks ask for the same intervals
+    # several times (the band and the set interval at one age, the sheet and the decision)
+    e = np.sqrt(inf.sigma_b ** 2 + inf.sigma_w ** 2 / np.asarray(n, float))
+    m, lo, hi, plo, phi = _log_bands(inf, np.asarray(t, float), level, e)
     return {"value": np.exp(m), "mean_lo": np.exp(lo), "mean_hi": np.exp(hi),
-            "pred_lo": np.exp(c - q * sp), "pred_hi": np.exp(c + q * sp)}
+            "pred_lo": np.exp(plo), "pred_hi": np.exp(phi)}
 
 
 def interval(inf: Inference, age_d: float, kind: str, level: float = 0.95, n: float = 3.0,
@@ -368,23 +397,3 @@ def prior_gain_interval(prior: Prior, age_d: float, level: float = 0.95, draws: 
     a = (1 - level) / 2
     return (float(ratio[order][np.searchsorted(cw, a)]),
             float(ratio[order][min(np.searchsorted(cw, 1 - a), draws - 1)]))
-
-
-def interval_score(lower, upper, truth, alpha: float = 0.05):
-    """Interval score (Gneiting & Raftery 2007, eq. 43) of central (1 - alpha) intervals:
-    ``(u - l) + (2/alpha)(l - x)·1{x < l} + (2/alpha)(x - u)·1{x > u}``; lower is better."""
-    lo, hi, x = (np.asarray(v, float) for v in (lower, upper, truth))
-    return (hi - lo) + (2 / alpha) * (lo - x) * (x < lo) + (2 / alpha) * (x - hi) * (x > hi)
-
-
-def falls(inf_ages: Sequence[float], means_log: Sequence[float], counts: Sequence[float],
-          sigma_w: float, sigma_b: float, q: float = _Z95) -> list[tuple[float, float, float]]:
-    """Pairs of consecutive ages (a, b, drop ratio) whose mean falls by more than the
-    scatter explains: ``ȳ_a - ȳ_b > q·sqrt(2σb² + σw²(1/n_a + 1/n_b))`` on the log scale."""
-    out = []
-    for i in range(len(inf_ages) - 1):
-        d = means_log[i] - means_log[i + 1]
-        s = math.sqrt(2 * sigma_b ** 2 + sigma_w ** 2 * (1 / counts[i] + 1 / counts[i + 1]))
-        if d > q * s:
-            out.append((float(inf_ages[i]), float(inf_ages[i + 1]), math.exp(-d)))
-    return out

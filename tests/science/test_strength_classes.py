@@ -22,18 +22,42 @@ CANDIDATES = [a * DAY for a in TABLES["candidate_test_ages"]["age_days"]]   # co
 
 
 def test_tables_convert_to_si():
-    # EN 459-1 (from memory): NHL 3.5 is 3.5-10 MPa at 28 d; NHL 5 also >= 2 MPa at 7 d
-    nhl35 = next(c for c in EN459 if c.name == "NHL 3.5")
-    assert (nhl35.lower, nhl35.upper, nhl35.age) == (3.5e6, 10e6, 28 * DAY)
-    nhl5 = next(c for c in EN459 if c.name == "NHL 5")
-    assert (nhl5.early_age, nhl5.early_lower) == (7 * DAY, 2e6)
-    # ASTM C270: M 2500 psi = 17.2 MPa ... K 75 psi = 0.5 MPa (1 psi = 6894.757 Pa, scipy)
+    # converted inside the test (a table converted at import would not show a wrong
+    # conversion to a test); 1 d = 86 400 s, 1 MPa = 1e6 Pa (SI definitions)
+    day = 86400.0
+    en459 = classes_from_table(TABLES["en459_1"])
+    # EN 459-1 (from memory): class 2: 2-7, 3.5: 3.5-10, 5: 5-15 MPa at 28 d; class 5 also
+    # at least 2 MPa at 7 d
+    assert [(c.name, c.lower, c.upper, c.age, c.early_age, c.early_lower) for c in en459] == [
+        ("NHL 2", 2e6, 7e6, 28 * day, None, None),
+        ("NHL 3.5", 3.5e6, 10e6, 28 * day, None, None),
+        ("NHL 5", 5e6, 15e6, 28 * day, 7 * day, 2e6)]
+    # ASTM C270 property specification: M 2500, S 1800, N 750, O 350, K 75 psi at 28 d, no
+    # upper limit (1 psi = 6894.757 Pa, NIST SP 811); the table rounds to 0.1 MPa
     psi = 6894.757
-    mins = {c.name: c.lower for c in C270}
-    for name, p in {"M": 2500, "S": 1800, "N": 750, "O": 350, "K": 75}.items():
-        assert mins[name] == pytest.approx(p * psi, abs=0.06e6)
+    c270 = classes_from_table(TABLES["astm_c270"])
+    assert [c.name for c in c270] == ["M", "S", "N", "O", "K"]
+    for c, p in zip(c270, (2500, 1800, 750, 350, 75)):
+        assert c.lower == pytest.approx(p * psi, abs=0.06e6)
+        assert (c.upper, c.age, c.early_age, c.early_lower) == (None, 28 * day, None, None)
     with pytest.raises(ClassInputError, match="malformed"):
         classes_from_table({"age_days": 28, "classes": [{"name": "X"}]})
+
+
+@pytest.mark.parametrize("table, message", [
+    ({"age_days": 28, "classes": [{"name": "X"}]},
+     "strength class table is malformed: KeyError('lower_mpa')"),
+    ({"classes": []}, "strength class table is malformed: KeyError('age_days')"),
+    ({"age_days": "a month", "classes": []},
+     "strength class table is malformed: ValueError(\"could not convert string to float: "
+     "'a month'\")"),
+    ({"age_days": 28, "classes": [{"name": "X", "lower_mpa": 1, "early": {"age_days": 7}}]},
+     "strength class table is malformed: KeyError('lower_mpa')"),
+])
+def test_malformed_class_table_word_for_word(table, message):
+    with pytest.raises(ClassInputError) as exc:
+        classes_from_table(table)
+    assert str(exc.value) == message
 
 
 @pytest.mark.parametrize("f28, f7, expected", [
@@ -44,6 +68,8 @@ def test_tables_convert_to_si():
     (6.0, 1.5, ("NHL 2", "NHL 3.5")),            # 7-d 1.5 MPa < 2 MPa: not NHL 5
     (6.0, 2.5, ("NHL 2", "NHL 3.5", "NHL 5")),
     (12.0, 3.0, ("NHL 5",)),
+    (7.0, None, ("NHL 2", "NHL 3.5")),           # upper edge included (both edges, EN 459-1)
+    (15.0, 2.0, ("NHL 5",)),                     # upper edge of class 5, 7-d minimum met
     (16.0, 5.0, ()),
 ])
 def test_en459_ranges(f28, f7, expected):
@@ -122,6 +148,25 @@ def test_comparison_lines_word_for_word():
     assert "S: min 12.4 MPa at 28 d -> not met" in c270.lines
     assert "N: min 5.2 MPa at 28 d -> met" in c270.lines
     assert strongest_minimum(0.4e6, C270, standard="ASTM C270", source="s").matches == ()
+    assert (c270.standard, c270.source) == ("ASTM C270", "s")
+
+
+def test_open_ended_class_reads_as_a_minimum():
+    # a class with no upper bound (EN 998-2 style, the number is the least mean strength)
+    from specgen.science.strength_classes import StrengthClass
+    m5 = StrengthClass("M5", 5e6, None, 28 * 86400.0)
+    cmp_ = compare_ranges(6e6, (m5,), standard="EN 998-2", source="t")
+    assert cmp_.matches == ("M5",)
+    assert cmp_.lines == ("M5: >= 5 MPa at 28 d -> within",)
+
+
+def test_small_positive_strength_accepted_infinite_refused():
+    # 1 Pa is a positive strength (no class met); infinity is not a number of Pa
+    assert compare_ranges(1.0, EN459, standard="x", source="y").matches == ()
+    assert strongest_minimum(1.0, C270, standard="x", source="y").matches == ()
+    with pytest.raises(ClassInputError) as exc:
+        compare_ranges(float("inf"), EN459, standard="x", source="y")
+    assert str(exc.value) == "strength must be a positive number of Pa; got inf"
 
 
 @pytest.mark.parametrize("value, lower, upper, limit, kind, status", [

@@ -1,0 +1,49 @@
+"""The two-stage strength law of the strength inference, on the log scale, with its analytic
+gradient (ages in days, strengths in MPa, parameters ``z = (ln F, logit φ, ln τA, ln τS, ln b)``):
+``f(t) = F·[φ·(1 - exp(-t/τA)) + (1 - φ)·(1 - exp(-(t/τS)^b))]``.
+:mod:`specgen.science.strength_inference` fits it.
+"""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+
+def two_stage(t_d, big_f: float, phi: float, tau_a: float, tau_s: float, b: float):
+    """Two-stage law (MPa) at ages ``t_d`` (d)."""
+    t = np.asarray(t_d, float)
+    return big_f * (phi * -np.expm1(-t / tau_a) + (1 - phi) * -np.expm1(-(t / tau_s) ** b))
+
+
+def unpack(z) -> tuple[float, float, float, float, float]:
+    ln_f, lg_phi, ln_ta, ln_ts, ln_b = z
+    return (math.exp(ln_f), 1.0 / (1.0 + math.exp(-lg_phi)), math.exp(ln_ta),
+            math.exp(ln_ts), math.exp(ln_b))
+
+
+def log_f(z, t_d) -> np.ndarray:
+    ln_f, lg_phi, ln_ta, ln_ts, ln_b = z
+    phi = 1.0 / (1.0 + np.exp(-lg_phi))
+    t = np.asarray(t_d, float)
+    # (t/τS)^b as exp(b·(ln t - ln τS)): the same number, cheaper over many draws and ages
+    shape = phi * -np.expm1(-t * np.exp(-ln_ta)) + (1 - phi) * -np.expm1(
+        -np.exp(np.exp(ln_b) * (np.log(t) - ln_ts)))
+    return ln_f + np.log(np.maximum(shape, 1e-300))
+
+
+def log_f_grad(z, t_d) -> np.ndarray:
+    """∂ ln f/∂z, analytic (rows: ages; columns: ln F, logit φ, ln τA, ln τS, ln b)."""
+    _, lg_phi, ln_ta, ln_ts, ln_b = (float(v) for v in z)
+    phi, ta, ts, b = 1.0 / (1.0 + math.exp(-lg_phi)), math.exp(ln_ta), math.exp(ln_ts), \
+        math.exp(ln_b)
+    t = np.atleast_1d(np.asarray(t_d, float))
+    ea = np.exp(-t / ta)
+    u = (t / ts) ** b
+    eb = np.exp(-u)
+    a_, b_ = -np.expm1(-t / ta), -np.expm1(-u)
+    shape = np.maximum(phi * a_ + (1 - phi) * b_, 1e-300)
+    return np.column_stack([
+        np.ones_like(t), (a_ - b_) * phi * (1 - phi) / shape,
+        -phi * (t / ta) * ea / shape, -(1 - phi) * b * u * eb / shape,
+        (1 - phi) * eb * b * u * np.log(t / ts) / shape])

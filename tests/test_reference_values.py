@@ -1,0 +1,191 @@
+"""Values that decide verdicts, checked against the public text they were read in (named beside
+each value), and the bookkeeping that keeps a recalled value from passing as a read one."""
+from __future__ import annotations
+
+import json
+import re
+
+import yaml
+
+from specgen import refdata
+from specgen.checks.rules import RULES_DIR, builtin_rules
+from specgen.report.references import format_entry, library
+
+
+def _rule(name: str):
+    return builtin_rules()[f"durability.{name}"]
+
+
+def test_cement_setting_and_soundness_limits_as_published():
+    # EN 197-1 as summarised in 'Cement Terminology' (references.json cement_terms_tr): "The
+    # minimum initial setting time is 75 minutes for the strength class of 32.5, 60 minutes for
+    # 42.5, and 45 minutes for 52.5"; expansion "must not be more than 10 mm for each strength
+    # class".  A second public summary (an Estonian producer's table of the EVS-EN 197-1:2011
+    # requirements) gives the same: ≥ 75, ≥ 60, ≥ 45 min and ≤ 10 mm for every class.
+    initial = _rule("setting_initial_min_portland")
+    assert (initial.value, initial.unit) == (min(75, 60, 45), "min")
+    expansion = _rule("expansion_max_cement")
+    assert (expansion.value, expansion.unit) == (10, "mm")
+    for r in (initial, expansion):
+        assert not r.tag and r.basis.ref == "en197" and r.basis.read_in == "cement_terms_tr"
+        assert r.basis.text().endswith("(as stated in Baticim)")
+
+
+def test_thaumasite_cold_condition_as_published():
+    # The Thaumasite Expert Group report (1999) as summarised in teg_summary: primary risk
+    # factors "a sulfate source", "mobile water", "carbonate" and "Low temperatures, generally
+    # below 15 °C".
+    cold = _rule("thaumasite_temperature_max")
+    assert (cold.value, cold.unit, cold.tag) == (15, "degC", "")
+    assert cold.basis.read_in == "teg_summary" and "15 °C" in cold.basis.clause
+    from specgen.checks.sulfate_checks import TEG
+    assert TEG.read_in == "teg_summary" and "generally below 15 °C" in TEG.clause
+
+
+def test_c144_gradation_as_printed_in_1993():
+    # ASTM C144 gradation, Table 1 of 'Trowel Tips: Mortar Sand' (Portland Cement Association,
+    # Masonry Magazine, August 1993, p. 17; references.json pca1993), % passing:
+    #   sieve       natural    manufactured
+    #   No. 4       100        100
+    #   No. 8       95-100     95-100
+    #   No. 16      70-100     70-100
+    #   No. 30      40-75      40-75
+    #   No. 50      10-35      20-40
+    #   No. 100     2-15       10-25
+    #   No. 200     (none)     0-10
+    sieve_mm = {"No. 4": 4.75, "No. 8": 2.36, "No. 16": 1.18, "No. 30": 0.6, "No. 50": 0.3,
+                "No. 100": 0.15, "No. 200": 0.075}
+    natural = {"No. 4": (100, 100), "No. 8": (95, 100), "No. 16": (70, 100),
+               "No. 30": (40, 75), "No. 50": (10, 35), "No. 100": (2, 15)}
+    manufactured = {"No. 4": (100, 100), "No. 8": (95, 100), "No. 16": (70, 100),
+                    "No. 30": (40, 75), "No. 50": (20, 40), "No. 100": (10, 25),
+                    "No. 200": (0, 10)}
+    with refdata.unrecorded():
+        envs = refdata.load("grading_envelopes").data
+
+    def rows(key):
+        return {e["sieve_mm"]: (e["low"], e["high"]) for e in envs[key]["limits"]}
+
+    assert rows("astm_c144_manufactured") == {sieve_mm[k]: v for k, v in manufactured.items()}
+    got = rows("astm_c144_natural")
+    assert {s: got[s] for s in got if s != 0.075} == {sieve_mm[k]: v for k, v in natural.items()}
+    # every manufactured row was read: no longer recalled; the natural envelope's 75 µm row
+    # is not in the 1993 table, so that envelope stays to be confirmed
+    assert "tag" not in envs["astm_c144_manufactured"]
+    assert envs["astm_c144_manufactured"]["read_in"] == "pca1993"
+    assert envs["astm_c144_natural"]["tag"] == "memory"
+
+
+def test_density_of_water_is_the_iapws95_value():
+    # reference: the iapws package (a reference implementation of IAPWS-95), liquid water at
+    # 293.15 K and 0.101325 MPa: 998.207 kg/m³
+    from iapws import IAPWS95
+    rho = IAPWS95(T=293.15, P=0.101325).rho
+    with refdata.unrecorded():
+        water = refdata.load("mix_densities").data["water"]
+    assert abs(water["value"] - rho) < 0.05 and "tag" not in water
+    assert "IAPWS-95" in water["source"]
+
+
+def test_every_summary_a_value_was_read_in_is_in_the_bibliography():
+    for key, rule in builtin_rules().items():
+        if rule.basis.read_in:
+            assert rule.basis.read_in in library(), key
+            assert rule.basis.kind == "reference", key
+    with refdata.unrecorded():
+        for key, env in refdata.load("grading_envelopes").data.items():
+            if env.get("read_in"):
+                assert env["read_in"] in library(), key
+
+
+def test_a_web_page_shows_its_address_and_the_day_it_was_read():
+    text = format_entry(library()["teg_summary"])
+    assert "<https://civilengineeringx.com/dccc/the-thaumasite-expert-group-report-and-its-" \
+           "ramifications> (read 2026-12-04)." in text
+    assert "(a public summary of the Thaumasite Expert Group report of 1999; the report " \
+           "itself was not read)" in text
+    assert text.startswith("civilengineeringx.com (n.d.). *The Thaumasite Expert Group report")
+
+
+def test_bibliography_keys_are_unique():
+    from specgen.refdata import CONTENT_DIR
+    ids = [e["id"] for e in json.loads((CONTENT_DIR / "references.json").read_text("utf-8"))]
+    assert sorted({i for i in ids if ids.count(i) > 1}) == []
+
+
+RECALLED = re.compile(r"\bfrom memory\b|\brecalled\b", re.I)
+
+
+def _untagged_recollections(node, path, tagged):
+    """Places whose own words say the value was recalled while neither they nor a table
+    above them carries tag: memory."""
+    if isinstance(node, dict):
+        here = tagged or node.get("tag") == "memory"
+        for key in ("notes", "note", "source"):     # a table's own notes speak of its entries
+            if path and isinstance(node.get(key), str) and RECALLED.search(node[key]) \
+                    and not here:
+                yield f"{path}.{key}".lstrip(".")
+        for k, v in node.items():
+            yield from _untagged_recollections(v, f"{path}.{k}", here)
+    elif isinstance(node, list):
+        for i, v in enumerate(node):
+            yield from _untagged_recollections(v, f"{path}[{i}]", tagged)
+
+
+def test_a_value_said_to_be_recalled_is_tagged_memory():
+    """A value the data calls recalled is tagged memory, so the Values to confirm page lists it
+    and a revision for construction refuses it; none is recalled in words only."""
+    found = {}
+    for folder in (refdata.DATA_DIR, RULES_DIR):
+        for p in sorted(folder.glob("*.yaml")):
+            doc = yaml.safe_load(p.read_text(encoding="utf-8"))
+            if folder == RULES_DIR:   # a rule's tag sits beside its basis
+                places = [f"{name}.basis" for name, raw in (doc.get("rules") or {}).items()
+                          if raw.get("tag") != "memory" and RECALLED.search(
+                              str(raw.get("basis", {}).get("note", "")))]
+            else:
+                places = list(_untagged_recollections(doc, "", doc.get("tag") == "memory"))
+            if places:
+                found[p.name] = places
+    assert found == {}
+
+
+DESIGNATION = re.compile(r"\b(?:EN ISO|EN|ISO|ASTM) [A-Z]?\d{2,}(?:-\d+)*")
+
+
+def test_every_standard_the_dossier_names_is_in_the_bibliography():
+    """A standard named in the dossier's words (sheets, clauses, cautions, tables, templates)
+    is in content/references.json, so the reference list carries it (cited where named)."""
+    from specgen.refdata import CONTENT_DIR
+    from specgen.report.references import _designations
+    from specgen.build import check
+    from tests.conftest import DEMO
+    texts = [check(DEMO)[1].to_json()]
+    for folder in ("templates", "rules", "data"):
+        texts += [p.read_text(encoding="utf-8") for p in sorted((CONTENT_DIR / folder).rglob("*"))
+                  if p.is_file()]
+    texts.append((CONTENT_DIR / "cautions.yaml").read_text(encoding="utf-8"))
+    named = {m.group(0) for t in texts for m in DESIGNATION.finditer(t)}
+    known = set(_designations())
+    assert sorted(named - known) == []
+
+
+def test_mortar_and_lime_strength_classes_as_published():
+    with refdata.unrecorded():
+        tables = refdata.load("strength_classes").data
+    # EN 998-2 (ÖNORM EN 998-2 Table 1 as ziegel.at gives it, references.json ziegel_moertel):
+    # M 1, M 2,5, M 5, M 10, M 15, M 20 at 1, 2,5, 5, 10, 15, 20 N/mm²
+    en998 = tables["en998_2"]
+    assert sorted((c["name"], c["lower_mpa"]) for c in en998["classes"]) == sorted(
+        [("M1", 1.0), ("M2.5", 2.5), ("M5", 5.0), ("M10", 10.0), ("M15", 15.0), ("M20", 20.0)])
+    # EN 459-1 (DIN EN 459 as nurkalk.de's glossary gives it, nurkalk_hl): NHL 2 2-7, NHL 3,5
+    # 3,5-10, NHL 5 5-15 N/mm² at 28 d; NHL 5 at least 2,0 MPa at 7 d (a producer's data sheet
+    # published online, nhl_data_sheet)
+    en459 = {c["name"]: c for c in tables["en459_1"]["classes"]}
+    assert {k: (c["lower_mpa"], c["upper_mpa"]) for k, c in en459.items()} == {
+        "NHL 2": (2.0, 7.0), "NHL 3.5": (3.5, 10.0), "NHL 5": (5.0, 15.0)}
+    assert en459["NHL 5"]["early"] == {"age_days": 7, "lower_mpa": 2.0}
+    for key, read in (("en998_2", "ziegel_moertel"), ("en459_1", "nurkalk_hl")):
+        assert "tag" not in tables[key] and tables[key]["read_in"] == read
+    from specgen.checks.strength_class_checks import EN998
+    assert EN998.read_in == "ziegel_moertel"
