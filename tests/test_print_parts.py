@@ -35,7 +35,7 @@ def _chapter(blocks: list[tuple[str, int]]) -> str:
        st.integers(50, 2000))
 def test_cuts_only_before_top_level_headings(blocks, size):
     html = _chapter(blocks)
-    cuts = _cut_points(html, size)
+    cuts = _cut_points(html, size, whole=0)
     assert cuts == sorted(set(cuts))
     for cut in cuts:
         assert html.startswith("<h2 id=", cut)            # never inside a div or a table
@@ -72,6 +72,13 @@ def test_a_section_that_changes_moves_no_cut(grow, by):
     changed = [p for p in after if p not in before]
     assert len(after) == len(before) and len(changed) == 1
     assert f'id="calc-x-{grow}"' in changed[0]
+
+
+def test_a_chapter_shorter_than_whole_is_not_cut():
+    from specgen.publish.pdf import CHAPTER_WHOLE
+    html = _sheets(60)
+    assert _cut_points(html, 6000, whole=len(html) + 1) == []
+    assert len(_sheets(30)) < CHAPTER_WHOLE and _cut_points(_sheets(30), 6000) == []
 
 
 def _pdf(out):

@@ -79,6 +79,7 @@ def _landscape_wide_tables(html: str) -> str:
 PART_SIZE = 6_000  # characters of HTML: the least a piece of a cut chapter holds
 CUT_SPREAD = 3     # about one top-level heading in this many past PART_SIZE starts a piece
 CUT_MOST = 12      # … and a piece is cut at the first heading past this many PART_SIZE
+CHAPTER_WHOLE = 60_000  # characters: a chapter shorter than this prints whole (no page breaks added)
 
 
 @dataclass(frozen=True)
@@ -92,7 +93,7 @@ class Piece:
     volume: str = "main"  # the volume it prints in: "main" or "appendix"
 
 
-def _cut_points(html: str, size: int) -> list[int]:
+def _cut_points(html: str, size: int, whole: int = CHAPTER_WHOLE) -> list[int]:
     """Offsets of top-level ``<h2`` at which a chapter is cut into pieces (each starts a page).
 
     A cut falls before a top-level heading chosen by the heading itself (a hash of its
@@ -100,9 +101,13 @@ def _cut_points(html: str, size: int) -> list[int]:
     how long the text before it is: a section whose text changes moves no cut, so on a
     re-issue only the piece holding it is laid out again (the others are reused byte for
     byte).  A run with no chosen heading is cut at the first heading past
-    ``CUT_MOST × size``.
+    ``CUT_MOST × size``.  A chapter shorter than ``whole`` is not cut: the report's chapters
+    keep their flow, and only the long appendices (the calculation sheets, the check
+    register) gain page breaks.
     """
     cuts, depth, last = [], 0, 0
+    if len(html) < whole:
+        return cuts
     for m in re.finditer(r"<(/?)(div|details|table|blockquote|figure|ul|ol|h2)\b", html):
         tag = m.group(2)
         if tag == "h2":
