@@ -34,24 +34,29 @@ def _page_texts(pdf):
     return [page.extract_text() for page in PdfReader(str(pdf)).pages]
 
 
-@pytest.fixture
-def reissued(demo_build, demo_copy, tmp_path, monkeypatch):
+@pytest.fixture(scope="module")
+def reissued(demo_build, tmp_path_factory):
     """The demo re-issued after one new M1 result into a copy of the session's demo build
-    (its artefact cache warm, no shared cache): (units before, units after, parts heard)."""
+    (its artefact cache warm, no shared cache), once for the tests below:
+    (units before, units after, parts heard, OUT)."""
     from specgen.build import build
-    monkeypatch.delenv("SPECGEN_SHARED_CACHE", raising=False)
-    out = tmp_path / "out"
+    from tests.conftest import DEMO
+    where = tmp_path_factory.mktemp("reissue")
+    project, out = where / "project", where / "out"
+    shutil.copytree(DEMO, project)
     shutil.copytree(demo_build, out)
-    before = _print_units(demo_copy, out)
-    csv = demo_copy / "lab" / "strength.csv"
-    csv.write_text(csv.read_text() + NEW_RESULT)
-    after = _print_units(demo_copy, out)
-    heard = {}
+    with pytest.MonkeyPatch.context() as env:
+        env.delenv("SPECGEN_SHARED_CACHE", raising=False)
+        before = _print_units(project, out)
+        csv = project / "lab" / "strength.csv"
+        csv.write_text(csv.read_text() + NEW_RESULT)
+        after = _print_units(project, out)
+        heard = {}
 
-    def progress(step, done=None, total=None):
-        if step.endswith("from the cache"):
-            heard["parts"] = (done, total)
-    build(demo_copy, out, progress=progress)
+        def progress(step, done=None, total=None):
+            if step.endswith("from the cache"):
+                heard["parts"] = (done, total)
+        build(project, out, progress=progress)
     return before, after, heard["parts"], out
 
 
