@@ -39,6 +39,7 @@ import tempfile
 import time
 from pathlib import Path
 
+from specgen.bench_cores import cpu_seconds, idle_during, measured, targets
 from specgen.cache import SHARED_ENV
 
 
@@ -49,47 +50,6 @@ def _median(fn, runs: int) -> float:
         fn()
         times.append(time.perf_counter() - t)
     return statistics.median(times)
-
-
-def _cpu() -> float:
-    """CPU seconds (user + system) of this process and of its children that have ended."""
-    import resource
-    own, kids = resource.getrusage(resource.RUSAGE_SELF), resource.getrusage(resource.RUSAGE_CHILDREN)
-    return own.ru_utime + own.ru_stime + kids.ru_utime + kids.ru_stime
-
-
-def _measured(fn, runs: int) -> tuple[float, float]:
-    """(median wall seconds, median CPU seconds) of ``runs`` calls of ``fn``."""
-    walls, cpus = [], []
-    for _ in range(runs):
-        t, c = time.perf_counter(), _cpu()
-        fn()
-        walls.append(time.perf_counter() - t)
-        cpus.append(_cpu() - c)
-    return statistics.median(walls), statistics.median(cpus)
-
-
-def _core_ticks() -> list[tuple[int, int]] | None:
-    """(idle, total) clock ticks of each core so far (``/proc/stat``), None where unknown."""
-    try:
-        lines = Path("/proc/stat").read_text().splitlines()
-    except OSError:
-        return None
-    out = []
-    for line in lines:
-        name, *fields = line.split()
-        if name.startswith("cpu") and name != "cpu":
-            ticks = [int(f) for f in fields]
-            out.append((ticks[3] + (ticks[4] if len(ticks) > 4 else 0), sum(ticks[:8])))
-    return out or None
-
-
-def idle_shares(before, after) -> list[float] | None:
-    """The idle share of each core between two :func:`_core_ticks` readings."""
-    if not before or not after or len(before) != len(after):
-        return None
-    return [(i1 - i0) / (t1 - t0) if t1 > t0 else 1.0
-            for (i0, t0), (i1, t1) in zip(before, after)]
 
 
 def _cold() -> None:
@@ -354,12 +314,9 @@ def main(runs: int = 3, large: bool = True, only: str = "all") -> None:
         project = _project_copy(demo, work)
         a = _median(lambda: check(project), runs)
         outs = iter(range(1000))
-        b, b_cpu = _measured(lambda: (_cold(), build(project, work / f"out{next(outs)}")), runs)
+        b, b_cpu = measured(lambda: (_cold(), build(project, work / f"out{next(outs)}")), runs)
         _cold()
-        ticks, t, c = _core_ticks(), time.perf_counter(), _cpu()
-        build(project, work / "out-idle")   # once more, for the cores' idle shares
-        idle = idle_shares(ticks, _core_ticks())
-        own = (_cpu() - c) / ((time.perf_counter() - t) * (os.cpu_count() or 1))
+        idle = idle_during(lambda: build(project, work / "out-idle"))  # once more, for the cores
         csv = project / "lab" / "strength.csv"
         base = csv.read_text()
 
@@ -369,10 +326,10 @@ def main(runs: int = 3, large: bool = True, only: str = "all") -> None:
             build(project, out)
             _cold()  # only the output folder's artefact cache may help
             csv.write_text(base + "M1-90d-C9,M1,90,compressive,7.9,20\n")
-            t, c = time.perf_counter(), _cpu()
+            t, c = time.perf_counter(), cpu_seconds()
             build(project, out, progress=heard)
             csv.write_text(base)
-            return time.perf_counter() - t, _cpu() - c
+            return time.perf_counter() - t, cpu_seconds() - c
         reuse, heard = _reuse_heard()
         again = [reissue() for _ in range(runs)]
         c_wall = statistics.median(w for w, _ in again)
@@ -390,17 +347,24 @@ def main(runs: int = 3, large: bool = True, only: str = "all") -> None:
         (work / "h").mkdir()
         bench_xlsx(demo, work / "h", runs)
         bench_serve(demo, work / "g")
+    _print_figures(locals())
+
+
+def _print_figures(fig: dict) -> None:
+    """The figures of one run, then the targets, each said met or not."""
+    a, b, b_cpu, c_wall, c_cpu, reuse, d, idle, sizes, times, share, f, slope = (
+        fig[k] for k in ("a", "b", "b_cpu", "c_wall", "c_cpu", "reuse", "d", "idle", "sizes",
+                         "times", "share", "f", "slope"))
     print(f"(a) check, demo                      {a:7.3f} s")
     print(f"(b) full cold build, demo            {b:7.3f} s   CPU {b_cpu:7.1f} s")
     print(f"(c) re-issue after one new result    {c_wall:7.3f} s   CPU {c_cpu:7.1f} s"
-          + (" (PDF parts: {} of {} reused unchanged, {} laid out again)".format(
-              reuse["parts"][0], reuse["parts"][1], reuse["parts"][1] - reuse["parts"][0])
-             if "parts" in reuse else ""))
+          + (" (PDF parts: {0} of {1} reused unchanged, the rest laid out again)".format(
+              *reuse["parts"]) if "parts" in reuse else ""))
     print(f"(d) bare toolchain floor (figures + math, mkdocs, WeasyPrint; sequential) {d:7.3f} s")
-    if idle:
+    if idle[0]:
         print("    idle share of each core during a cold build (whole machine): "
-              + ", ".join(f"core {i} {s:.0%}" for i, s in enumerate(idle))
-              + f"; the build's own use of the cores {own:.0%}")
+              + ", ".join(f"core {i} {s:.0%}" for i, s in enumerate(idle[0]))
+              + f"; the build's own use of the cores {idle[1]:.0%}")
     for n, s, t in zip((10, 50, 200), sizes, times):
         print(f"(e) check, {n:3d} mixes / {s:5d} results  {t:7.3f} s")
     print(f"(e) of which strength inference      {share[1]:7.3f} CPU s of {share[0]:.3f} CPU s; check"
@@ -409,21 +373,7 @@ def main(runs: int = 3, large: bool = True, only: str = "all") -> None:
         print(f"(f) build, 200 mixes (site + PDF)   {f[0]:7.1f} s, peak memory {f[1]:6.0f} MiB")
     print(f"ratio (b)/(d) = {b / d:.2f}   ratio (c)/(b) = {c_wall / b:.2f} "
           f"(CPU {c_cpu / b_cpu:.2f})   growth exponent of (e) = {slope:.2f}")
-    _targets(b / d, (c_wall / b, c_cpu / b_cpu), times[-1], f)
-
-
-def _targets(cold: float, reissue: tuple[float, float], check200: float, large) -> None:
-    """The targets the project set itself, each said met or not (the re-issue by wall time;
-    its CPU-time ratio beside it)."""
-    rows = [("re-issue <= 0.25 x cold build", reissue[0] <= 0.25,
-             f"{reissue[0]:.2f}; CPU time {reissue[1]:.2f}"),
-            ("cold build <= 0.6 x sequential floor", cold <= 0.6, f"{cold:.2f}"),
-            ("check, 200 mixes <= 1.5 s", check200 <= 1.5, f"{check200:.2f} s")]
-    if large:
-        rows.append(("build, 200 mixes <= 200 s, peak < 1 GiB",
-                     large[0] <= 200 and large[1] < 1024, f"{large[0]:.0f} s, {large[1]:.0f} MiB"))
-    for label, met, seen in rows:
-        print(f"target: {label:42s} {'met' if met else 'NOT met'} ({seen})")
+    targets(b / d, (c_wall / b, c_cpu / b_cpu), times[-1], f)
 
 
 if __name__ == "__main__":
