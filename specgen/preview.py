@@ -99,6 +99,12 @@ def handler_for(out: Path, state: State):
         def log_message(self, fmt, *args):  # quiet: the terminal shows the builds
             pass
 
+        def handle(self):
+            try:
+                super().handle()
+            except (BrokenPipeError, ConnectionResetError):
+                pass   # the browser left (a reload, a closed tab) before the answer was sent
+
         def do_GET(self):
             path = unquote(urlsplit(self.path).path)
             if state.revision is None:

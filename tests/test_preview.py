@@ -189,3 +189,19 @@ def test_an_edit_while_the_current_revision_is_issued_is_not_previewed(tmp_path,
     assert not pv.rebuild({"mixes.yaml"})
     assert len(built) == 1
     assert "mixes.yaml: revision R2 is issued, so its pages are not rebuilt" in state.notice
+
+
+def test_a_browser_that_leaves_before_the_answer_is_no_error(tmp_path, monkeypatch):
+    """A reload or a closed tab breaks the connection mid-answer: the server says nothing
+    (before, socketserver printed a traceback on the terminal)."""
+    import http.server
+    handler = handler_for(tmp_path, State())
+
+    def gone(self):
+        raise BrokenPipeError(32, "Broken pipe")
+    monkeypatch.setattr(http.server.BaseHTTPRequestHandler, "handle", gone)
+    assert handler.handle(handler.__new__(handler)) is None
+    monkeypatch.setattr(http.server.BaseHTTPRequestHandler, "handle",
+                        lambda self: (_ for _ in ()).throw(ValueError("a real bug")))
+    with pytest.raises(ValueError):
+        handler.handle(handler.__new__(handler))
