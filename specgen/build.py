@@ -220,9 +220,10 @@ def preview_site(prepared: Prepared, out_dir: Path | str) -> Path:
 
 
 def preview_pdf(prepared: Prepared, target: Path, *, cache_dir: Path | str | None = None,
-                progress: Callable[..., None] = _quiet) -> Path:
+                progress: Callable[..., None] = _quiet) -> list[Path]:
     """Make the downloads left for later (the DOCX exports) and print the prepared revision's
-    PDF into ``target`` (parts from the artefact cache)."""
+    PDF into ``target`` (parts from the artefact cache): the PDF files written, the report
+    first, then its appendix volume when it has one."""
     from specgen.publish.preview import later_downloads, pdf_only
     from specgen import cache
     later_downloads(prepared.pages, target)

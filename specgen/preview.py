@@ -40,7 +40,7 @@ class State:
 
     revision: str | None = None
     pdf: str = "waiting"          # waiting | building | ready | failed
-    pdf_name: str = ""
+    pdf_names: tuple[str, ...] = ()   # the volumes printed: the report, then its appendices
     notice: str = ""              # why the pages shown are not the latest edit
     generation: int = 0
     lock: threading.Lock = field(default_factory=threading.Lock)
@@ -55,8 +55,8 @@ def cache_dir(project: Path) -> Path:
 
 def bar(state: State) -> str:
     """The preview bar put at the top of every page (escaped text only)."""
-    pdf = {"ready": f'<a href="/{state.revision}/{html.escape(state.pdf_name)}">PDF</a>',
-           "building": "PDF and Word exports: being made… (the PDF link appears when "
+    pdf = {"ready": _volume_links(state),
+           "building": "PDF and Word exports: being made… (the PDF links appear when "
                        "they are done)",
            "waiting": "PDF: waiting for the site", "failed": "PDF: could not be printed"}
     parts = [f"Preview of revision {html.escape(state.revision or '—')}", pdf[state.pdf]]
@@ -69,6 +69,16 @@ def bar(state: State) -> str:
                 '<strong>This page was not rebuilt after the last edit.</strong>\n'
                 + html.escape(state.notice) + "</div>")
     return out
+
+
+#: how the preview bar names each volume of the PDF, in the order they are printed
+VOLUME_WORDS = ("PDF: report", "appendices")
+
+
+def _volume_links(state: State) -> str:
+    """A link to each volume of the printed PDF (the report and its appendix volume)."""
+    return " · ".join(f'<a href="/{state.revision}/{html.escape(name)}">{words}</a>'
+                      for name, words in zip(state.pdf_names, VOLUME_WORDS))
 
 
 def waiting_page(state: State) -> bytes:
@@ -88,6 +98,12 @@ def handler_for(out: Path, state: State):
 
         def log_message(self, fmt, *args):  # quiet: the terminal shows the builds
             pass
+
+        def handle(self):
+            try:
+                super().handle()
+            except (BrokenPipeError, ConnectionResetError):
+                pass   # the browser left (a reload, a closed tab) before the answer was sent
 
         def do_GET(self):
             path = unquote(urlsplit(self.path).path)
@@ -197,7 +213,7 @@ class Previewer:
         with self.state.lock:
             self.state.generation += 1
             self.state.revision, self.state.notice = target.name, ""
-            self.state.pdf, self.state.pdf_name = "building", ""
+            self.state.pdf, self.state.pdf_names = "building", ()
         self.say(f"site of {target.name} ready in {time.monotonic() - started:.1f} s"
                  + (" (check results kept: only narrative or templates changed)" if kept else ""))
         self._start_pdf(prepared, target, self.state.generation)
@@ -239,14 +255,16 @@ class Previewer:
                 (prepared, target, generation), self._pdf_want = self._pdf_want, None
                 self._pdf_busy = True
             try:
-                pdf = preview_pdf(prepared, target, cache_dir=self.cache, progress=self.progress)
-                outcome, text = ("ready", pdf.name), f"PDF of {target.name} ready"
+                pdfs = preview_pdf(prepared, target, cache_dir=self.cache,
+                                   progress=self.progress)
+                outcome = ("ready", tuple(p.name for p in pdfs))
+                text = f"PDF of {target.name} ready ({len(pdfs)} volumes)"
             except Exception as exc:  # noqa: BLE001 - reported on the pages, never fatal
-                outcome, text = ("failed", ""), f"PDF not printed: {exc}"
+                outcome, text = ("failed", ()), f"PDF not printed: {exc}"
             with self.state.lock:
                 current = self.state.generation == generation
                 if current:
-                    self.state.pdf, self.state.pdf_name = outcome
+                    self.state.pdf, self.state.pdf_names = outcome
             self.say(text if current else f"{text} (superseded by a newer edit)")
             with self._pdf_cv:
                 self._pdf_busy = False

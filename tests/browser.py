@@ -29,7 +29,11 @@ def open_browser(width: int = 1400, height: int = 900):
     with sync_playwright() as pw:
         browser = pw.chromium.launch(executable_path=CHROMIUM, args=ARGS)
         try:
-            yield browser.new_page(viewport={"width": width, "height": height})
+            page = browser.new_page(viewport={"width": width, "height": height})
+            # the calculation sheets are one long page (about 290 000 px at 1400 px wide): on
+            # a shared 2-core machine its load outlasts Playwright's default 30 s
+            page.set_default_timeout(180_000)
+            yield page
         finally:
             browser.close()
 

@@ -24,3 +24,12 @@ def problems(project) -> str:
     with pytest.raises(InputErrors) as exc:
         check(project)
     return str(exc.value)
+
+
+def line_of(path, needle: str) -> int:
+    """The line (from 1) of the first line of ``path`` that contains ``needle`` (a test names
+    a line of the demo by what is on it, not by a number that moves when the file grows)."""
+    for n, text in enumerate(path.read_text(encoding="utf-8").splitlines(), 1):
+        if needle in text:
+            return n
+    raise AssertionError(f"{needle!r} not in {path}")

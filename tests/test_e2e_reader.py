@@ -18,9 +18,10 @@ from tests.reader_text import internal_names, reader_text
 pytestmark = pytest.mark.e2e
 
 REV = "R3"
-#: pages whose subject is the input as it is written: the input listing, and the list of
-#: what to correct in the inputs before issue (it names the file and key to change)
-LISTINGS = {"inputs.html", "before-issue.html", "404.html"}
+#: the page whose subject is the input as it is written: the input listing; and the web
+#: server's "not found" page, which is no page of the dossier (its addresses are the
+#: server's, so opened as a file it finds none of its assets)
+LISTINGS = {"inputs.html", "404.html"}
 
 
 def _pages(demo_build) -> list[Path]:
@@ -28,12 +29,48 @@ def _pages(demo_build) -> list[Path]:
 
 
 def test_no_internal_name_reaches_a_reader(demo_build):
+    """Every page of the site (what a screen reader says of it too: alternative texts,
+    labels) and every page of both PDF volumes, but the input listing and code (a file or
+    key named as written, for the person editing the project, is set as code)."""
+    from pypdf import PdfReader
+
+    from tests.reader_text import pdf_reader_pages
     found = {}
-    for page in _pages(demo_build):
+    pages = [*_pages(demo_build), demo_build / "index.html", demo_build / "revisions.html"]
+    for page in pages:
         names = internal_names(reader_text(page.read_text(encoding="utf-8")))
         if names:
             found[page.name] = sorted(set(names))[:8]
+    for pdf in sorted((demo_build / REV).glob("*.pdf")):
+        for n, text in pdf_reader_pages(PdfReader(str(pdf))):
+            if names := internal_names(text):
+                found[f"{pdf.name} p. {n}"] = sorted(set(names))[:8]
     assert found == {}
+    assert len(pages) >= 25  # the demo: 27 pages of R3 and the two of the root
+
+
+def test_the_scan_finds_what_it_is_for():
+    """The scan itself, on text made for it: each kind of name found in running text and in
+    an alternative text, none inside code or the input listing."""
+    html = ('<article><p>Give the joint_width<br /> in dossier.yaml (rule works.placing_rate).</p>'
+            '</span><img alt="natural_cement binder"><p><code>joint_depth</code> NH35 (nhl), NHL 3.5 '
+            '<img class="sg-math" alt="f_k = 2"></p>'
+            '&lt;http://example.org/baustoffe_moertel&gt; '
+            '<div class="sg-input-listing">mixes.yaml</div></article>'
+            '<nav>outside_article</nav>')
+    assert sorted(internal_names(reader_text(html))) == [
+        ("choice key", "nhl"), ("file name", "dossier.yaml"),
+        ("rule key", "rule works.placing_rate"), ("snake_case", "joint_width"),
+        ("snake_case", "natural_cement"), ("snake_case", "placing_rate")]
+
+
+def test_no_list_is_run_into_a_paragraph(demo_build):
+    """A Markdown list written without the blank line before it reads as one run-on
+    paragraph of "- item - item" (it did under each analysis of the composition chapter)."""
+    run_on = re.compile(r"<p>(?:(?!</p>).)*?\n[-*] \S", re.S)
+    found = {p.name: len(run_on.findall(p.read_text(encoding="utf-8")))
+             for p in (demo_build / REV).glob("*.html")}
+    assert {k: v for k, v in found.items() if v} == {}
 
 
 def test_units_and_signs_are_typeset(demo_build):

@@ -10,7 +10,14 @@ import pytest
 from specgen.build import check
 from specgen.errors import InputErrors
 from specgen.build import load as load_project  # as every command reads a project
-from tests.helpers import by_check, edit, problems
+from tests.conftest import DEMO
+from tests.helpers import by_check, edit, line_of, problems
+
+# where the demo's register entries start (samples.yaml, found by their ids)
+P1_LINE = line_of(DEMO / "samples.yaml", "{id: P1,")
+P2_LINE = line_of(DEMO / "samples.yaml", "{id: P2,")
+D3_LINE = line_of(DEMO / "samples.yaml", "{id: D3-sheet,")
+NML4502_LINE = line_of(DEMO / "samples.yaml", "{reference: NML-4502,")
 
 
 def test_demo_register_every_result_names_a_registered_sample():
@@ -232,7 +239,7 @@ def test_memory_regime_holds_in_an_issued_revision(demo_copy):
 
 def test_image_that_is_not_an_image(demo_copy):
     (demo_copy / "images" / "P2-coping-band.png").write_text("not a picture", encoding="utf-8")
-    assert ("samples.yaml, line 132: images[1].file: the file 'images/P2-coping-band.png' is not "
+    assert (f"samples.yaml, line {P2_LINE}: images[1].file: the file 'images/P2-coping-band.png' is not "
             "an image (it cannot be read as JPEG or PNG). Fix: give a JPEG or PNG photograph, "
             "or a drawing as SVG, JPEG, PNG or a page of a PDF (file ending .pdf, with its page)."
             ) in problems(demo_copy)
@@ -244,22 +251,22 @@ def test_image_over_the_size_limit_and_missing(demo_copy):
         f.truncate(20_000_001)
     (demo_copy / "images" / "P2-coping-band.png").unlink()
     text = problems(demo_copy)
-    assert ("samples.yaml, line 129: images[0].file: the file 'images/P1-inner-face-bay3.jpg' is "
+    assert (f"samples.yaml, line {P1_LINE}: images[0].file: the file 'images/P1-inner-face-bay3.jpg' is "
             "20.0 MB; the limit is 20 MB. Fix: save a smaller copy (an image of about 2000 px on "
             "its long side is enough for print), or split the report.") in text
-    assert ("samples.yaml, line 132: images[1].file: the file 'images/P2-coping-band.png' is "
+    assert (f"samples.yaml, line {P2_LINE}: images[1].file: the file 'images/P2-coping-band.png' is "
             "not in the project folder. Fix: copy the file there, or correct the path.") in text
 
 
 def test_report_that_is_not_a_pdf(demo_copy):
     (demo_copy / "reports" / "NML-4502.pdf").write_bytes(b"PK\x03\x04 a zip, not a report")
-    assert ("samples.yaml, line 144: reports[1].file: the file 'reports/NML-4502.pdf' is not a "
+    assert (f"samples.yaml, line {NML4502_LINE}: reports[1].file: the file 'reports/NML-4502.pdf' is not a "
             "PDF. Fix: give the laboratory's report as a PDF file.") in problems(demo_copy)
 
 
 def test_image_outside_the_folder_is_refused(demo_copy):
     edit(demo_copy / "samples.yaml", "file: images/P2-coping-band.png", "file: ../P2.png")
-    assert ("samples.yaml, line 132: images[1].file: the path '../P2.png' leaves the project "
+    assert (f"samples.yaml, line {P2_LINE}: images[1].file: the path '../P2.png' leaves the project "
             "folder. Fix: give a path relative to the project folder, without '..'."
             ) in problems(demo_copy)
 
@@ -348,8 +355,8 @@ def test_demo_drawing_on_a_pdf_page_loads():
 def test_bad_pdf_drawing_is_a_located_error(demo_copy, content, page, message, fix):
     (demo_copy / D3_PDF).write_bytes(content)
     edit(demo_copy / "samples.yaml", "page: 2, ", f"page: {page}, " if page else "")
-    at = "line 137: images[3].page" if "page" in message or "pages" in message \
-        else "line 137: images[3].file"
+    at = f"line {D3_LINE}: images[3].page" if "page" in message or "pages" in message \
+        else f"line {D3_LINE}: images[3].file"
     assert (f"samples.yaml, {at}: the file '{D3_PDF}' {message}. Fix: {fix}"
             ) in problems(demo_copy)
 
@@ -357,7 +364,7 @@ def test_bad_pdf_drawing_is_a_located_error(demo_copy, content, page, message, f
 def test_page_given_for_an_image_that_is_not_a_pdf(demo_copy):
     edit(demo_copy / "samples.yaml", "file: images/P2-coping-band.png,",
          "file: images/P2-coping-band.png, page: 1,")
-    assert ("samples.yaml, line 132: images[1].file: the file 'images/P2-coping-band.png' is not "
+    assert (f"samples.yaml, line {P2_LINE}: images[1].file: the file 'images/P2-coping-band.png' is not "
             "a PDF, so it has no page to choose.") in problems(demo_copy)
 
 

@@ -20,6 +20,7 @@ def served(tmp_path):
     (out / "R1" / "index.html").write_text("<html><body><h1>Summary</h1></body></html>")
     (out / "R1" / "strength.html").write_text("<html><body class=x><h1>Strength</h1></body></html>")
     (out / "R1" / "P-R1.pdf").write_bytes(b"%PDF-1.7")
+    (out / "R1" / "P-R1-appendices.pdf").write_bytes(b"%PDF-1.7")
     (out / "R1" / "assets").mkdir()
     (out / "R1" / "assets" / "site.css").write_text("body{color:#111}")
     state = State()
@@ -57,9 +58,12 @@ def test_bare_page_address_answers_the_current_revision_with_the_bar(served):
     assert get(base + "/")[1].count("<h1>Summary</h1>") == 1
     # the PDF is not handed out half-printed
     assert get(base + "/R1/P-R1.pdf")[0] == 503
-    state.pdf, state.pdf_name = "ready", "P-R1.pdf"
-    assert '<a href="/R1/P-R1.pdf">PDF</a>' in get(base + "/R1/strength.html")[1]
+    state.pdf, state.pdf_names = "ready", ("P-R1.pdf", "P-R1-appendices.pdf")
+    # both volumes linked: the report and its appendix volume of calculation sheets
+    assert ('<a href="/R1/P-R1.pdf">PDF: report</a> · <a href="/R1/P-R1-appendices.pdf">'
+            'appendices</a>') in get(base + "/R1/strength.html")[1]
     assert get(base + "/R1/P-R1.pdf")[0] == 200
+    assert get(base + "/R1/P-R1-appendices.pdf")[0] == 200
     # the page's own relative links (assets/…) resolve from a bare address too
     assert get(base + "/assets/site.css") == (200, "body{color:#111}")
     assert get(base + "/nothing.html")[0] == 404
@@ -120,7 +124,9 @@ def test_previewer_site_first_then_pdf_and_partial_rebuilds(tmp_path, monkeypatc
     assert "water_binder_ration" in state.notice and "did you mean" in state.notice
     assert "Edited introduction." in (out / "R1" / "index.html").read_text()
     pv.wait()
-    assert state.pdf == "ready" and (out / "R1" / state.pdf_name).is_file()
+    assert state.pdf == "ready" and len(state.pdf_names) == 2
+    assert state.pdf_names[1].endswith("-appendices.pdf")
+    assert all((out / "R1" / name).is_file() for name in state.pdf_names)
     # the Word exports, made after the site with the PDF, are there beside it
     import docx
     made = sorted((out / "R1" / "exports").glob("*.docx"))
@@ -183,3 +189,19 @@ def test_an_edit_while_the_current_revision_is_issued_is_not_previewed(tmp_path,
     assert not pv.rebuild({"mixes.yaml"})
     assert len(built) == 1
     assert "mixes.yaml: revision R2 is issued, so its pages are not rebuilt" in state.notice
+
+
+def test_a_browser_that_leaves_before_the_answer_is_no_error(tmp_path, monkeypatch):
+    """A reload or a closed tab breaks the connection mid-answer: the server says nothing
+    (before, socketserver printed a traceback on the terminal)."""
+    import http.server
+    handler = handler_for(tmp_path, State())
+
+    def gone(self):
+        raise BrokenPipeError(32, "Broken pipe")
+    monkeypatch.setattr(http.server.BaseHTTPRequestHandler, "handle", gone)
+    assert handler.handle(handler.__new__(handler)) is None
+    monkeypatch.setattr(http.server.BaseHTTPRequestHandler, "handle",
+                        lambda self: (_ for _ in ()).throw(ValueError("a real bug")))
+    with pytest.raises(ValueError):
+        handler.handle(handler.__new__(handler))

@@ -355,8 +355,9 @@ def test_bad_input_stops_before_any_check(demo_copy):
 
 
 # ------------------------------------------------------------------ fuzzing
-def test_malformed_specification_ends_in_located_messages(tmp_path_factory):
-    """The loader fuzz of test_fuzz_loaders, on the demo's specification.yaml (60 cases)."""
+def test_malformed_specification_ends_in_located_messages(tmp_path_factory, full):
+    """The loader fuzz of test_fuzz_loaders, on the demo's specification.yaml (20 cases, each
+    a whole check when the file still loads; --full: 60)."""
     import shutil
 
     from hypothesis import HealthCheck, given, settings
@@ -364,7 +365,7 @@ def test_malformed_specification_ends_in_located_messages(tmp_path_factory):
     from tests.conftest import DEMO
     from tests.test_fuzz_loaders import apply, mutation
 
-    @settings(max_examples=60, deadline=None, derandomize=True,
+    @settings(max_examples=60 if full else 20, deadline=None, derandomize=True,
               suppress_health_check=[HealthCheck.function_scoped_fixture, HealthCheck.too_slow])
     @given(change=mutation)
     def case(change):

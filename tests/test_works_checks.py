@@ -267,6 +267,8 @@ def test_works_page_and_cards_from_the_demo(demo):
     # = 0.85 kg of binder; × w/b 0.55 (demo mixes.yaml) = 0.4675 kg of water, / 998.2 kg/m³
     # (content/data/mix_densities.yaml) = 0.4683 L, shown 0.47 L and, to the 10 g a site
     # scale reads (common practice), 0.47 kg; retarder 0.2 % of 0.85 kg binder = 1.7 g.
+    # value and unit joined by a narrow no-break space (U+202F), as everywhere in the dossier
+    m1 = m1.replace("\u202f", " ")
     assert "| 1 | Pour the gauging water into a marked jug | jug | 0.47 L | 0.47 kg |" in m1
     assert "| 2 | Dissolve the citric acid solution (retarder) in the water | scale | — | 1.7 g |" in m1
     assert "Workable life **30 min** (measured)" in m1

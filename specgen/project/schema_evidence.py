@@ -98,6 +98,10 @@ class Picture(Model):
     page: int | None = Field(None, ge=1, description="the page of a PDF drawing, from 1 (a "
                              "one-page PDF needs none)")
     caption: Text = Field(description="what the image shows, as its caption")
+    alt: Text = Field("", description="what is seen in the image, for a reader who cannot see "
+                      "it (its alternative text in the site and the tagged PDF): what the "
+                      "caption does not already say, e.g. 'Close view of three courses of "
+                      "brick with joints eroded 10-15 mm behind the face'")
     kind: Literal["photograph", "drawing"] = Field("photograph", description="photograph or "
                                                    "drawing")
     taken_on: dt.date | None = Field(None, description="date taken or drawn (YYYY-MM-DD)")

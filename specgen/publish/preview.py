@@ -58,8 +58,9 @@ def later_downloads(pages, target: Path) -> list[str]:
 
 
 def pdf_only(project, results, pages, target: Path, *, page_size: str = "a4",
-             on_part=None) -> Path:
-    """Print the PDF of ``pages`` into ``target`` (the folder :func:`site_only` wrote)."""
+             on_part=None) -> list[Path]:
+    """Print the PDF of ``pages`` into ``target`` (the folder :func:`site_only` wrote); the
+    files written: the report, then the appendix volume when the dossier has one."""
     from specgen.publish.pdf import write_pdf
     attachments = {"results.json": results.to_json().encode("utf-8")}
     attachments.update(pages.downloads)
@@ -69,11 +70,12 @@ def pdf_only(project, results, pages, target: Path, *, page_size: str = "a4",
         write_pdf(pages, _print_context(project, pages.marks), tmp, attachments=attachments,
                   page_size=page_size, stamp=_stamp(project.revision.date), on_part=on_part,
                   appendix=(app_tmp, appendix_pdf_name(project), pdf_name(project)))
-        final = target / pdf_name(project)
-        os.replace(tmp, final)
+        written = [target / pdf_name(project)]
+        os.replace(tmp, written[0])
         if app_tmp.exists():
-            os.replace(app_tmp, target / appendix_pdf_name(project))
-        return final
+            written.append(target / appendix_pdf_name(project))
+            os.replace(app_tmp, written[1])
+        return written
     finally:
         for t in (tmp, app_tmp):
             if t.exists():

@@ -143,7 +143,12 @@ def _grading_figure(env, z, pairs) -> dict | None:
     return env.figure(f"figures/grading-{z.id}.svg", svg,
                       f"Zone {z.id}: grading of each candidate's sand"
                       + " against the historic aggregate"
-                      + (f" and the envelope {envelope['title']}" if envelope else ""))
+                      + (f" and the envelope {envelope['title']}" if envelope else ""),
+                      "Cumulative per cent passing against sieve aperture in mm on a "
+                      "logarithmic axis: a dashed line for the historic aggregate "
+                      f"{first.historic.aggregate_sample}, a solid line for the sand of "
+                      + ", ".join(pr.mix_id for pr, _ in recorded)
+                      + (", over the shaded envelope" if envelope else "") + ".")
 
 
 def _colour_figure(env, z, pairs) -> dict | None:
@@ -161,7 +166,11 @@ def _colour_figure(env, z, pairs) -> dict | None:
     from specgen.report.compatibility_figures import colour_swatches
     return env.figure(f"figures/colour-{z.id}.svg", colour_swatches(rows),
                       f"Zone {z.id}: mean colours of the historic mortar and of each trial panel "
-                      "(display approximation of the CIELAB means, D65) with ΔE00")
+                      "(display approximation of the CIELAB means, D65) with ΔE00",
+                      "Pairs of colour squares, the historic mortar on the left and the trial "
+                      "panel on the right: " + "; ".join(
+                          f"{r['historic_label']} beside the {r['label']}, colour difference "
+                          f"ΔE00 {r['delta_e']}" for r in rows) + ".")
 
 
 def _moisture_figure(env, z, pairs) -> dict | None:
@@ -186,4 +195,15 @@ def _moisture_figure(env, z, pairs) -> dict | None:
     from specgen.report.compatibility_figures import moisture_bars
     return env.figure(f"figures/moisture-{z.id}.svg", moisture_bars(bars),
                       f"Zone {z.id}: capillary absorption and vapour resistance of the fabric "
-                      "and each candidate")
+                      "and each candidate", _moisture_alt(bars))
+
+
+def _moisture_alt(bars: list[dict]) -> str:
+    """The two bar panels in words, value by value."""
+    def values(key):
+        return "; ".join(f"{b['label']} {num(b[key], 3) if b[key] is not None else 'not given'}"
+                         for b in bars)
+    return ("Two panels of horizontal bars, one bar per material. Left, the capillary "
+            "absorption coefficient in kg/(m²·√min), higher is more open: " + values("capillary")
+            + ". Right, the vapour resistance factor μ, lower is more open: " + values("mu")
+            + ".")

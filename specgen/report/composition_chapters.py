@@ -38,8 +38,12 @@ def composition(env) -> dict:
         bands = [{"name": b["name"], "low": b["lower"], "high": b["upper"]}
                  for b in refdata.load("hydraulicity_bands").data]
         svg = band_chart([(c.subject, c.value) for c in ci], bands, "cementation index (Eckel)")
-        figure = env.figure("figures/cementation-index.svg", svg,
-                            "Cementation index of each analysis on the hydraulicity bands")
+        figure = env.figure(
+            "figures/cementation-index.svg", svg,
+            "Cementation index of each analysis on the hydraulicity bands",
+            "Scale of the cementation index shaded in bands from "
+            f"{bands[0]['name']} to {bands[-1]['name']}, with a diamond for each analysis: "
+            + "; ".join(f"{c.subject} at {num(c.value, 3)}" for c in ci) + ".")
     indices = [{"id": a.id, "class": env.results.value(a.id, "hydraulicity_class") or "—",
                 "cells": [num(v, 3) if (v := env.results.value(a.id, k)) is not None else "—"
                           for k, _ in INDEX_COLUMNS]} for a in p.analyses.values()]
@@ -80,7 +84,12 @@ def _phase_figure(env, p):
         return None
     from specgen.report.composition_figures import phase_bars
     return env.figure("figures/potential-phases.svg", phase_bars(rows),
-                      "Potential phases of each binder (mass %); assignment as declared")
+                      "Potential phases of each binder (mass %); assignment as declared",
+                      "Horizontal stacked bars, one per binder, each divided into its "
+                      "potential phases in mass %: " + "; ".join(
+                          f"{bid}: " + ", ".join(f"{k} {num(v, 2)} %" for k, v in ph.items()
+                                                 if v and v >= 1)
+                          for bid, ph in rows) + ".")
 
 
 def _hydration(env, p) -> dict | None:
@@ -94,7 +103,13 @@ def _hydration(env, p) -> dict | None:
     other = next(k for k in volumes if k != name)
     fig = env.figure("figures/hydration-volumes.svg",
                      hydration_bars([(k, volumes[k]["volumes"]) for k in (name, other)]),
-                     "Belite hydration by volume, before and after, with each density set")
+                     "Belite hydration by volume, before and after, with each density set",
+                     "Pairs of stacked bars, one pair per density set ("
+                     + " and ".join(plain(k) for k in (name, other)) + "): before, one volume "
+                     "of belite with its water; after, the calcium silicate hydrate and "
+                     "portlandite formed, lower by the hatched chemical shrinkage ("
+                     + " and ".join(num(volumes[k]["chemical_shrinkage"], 3)
+                                    for k in (name, other)) + " of the belite's volume).")
     sets = []
     for k in (name, other):
         v = volumes[k]["volumes"]

@@ -3,7 +3,7 @@ drawn on them, and for each sample the results that name it (and those that name
 from __future__ import annotations
 
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import anchor, as_given, num
+from specgen.report.fmt import anchor, as_given, date_text, num
 from specgen.report.wording import reader
 
 PAGE = "evidence.md"
@@ -47,21 +47,34 @@ def _reports(env) -> dict:
 
 
 def _images(env) -> list[dict]:
-    """Photographs and drawings: print-size image (numbered figure) and a site thumbnail."""
-    from specgen.report.evidence_images import THUMB_PX, normalise
+    """Photographs and drawings of the register, each a numbered figure."""
     out = []
     for iid, (img, data) in env.project.images.items():
-        full, ext, size = normalise(data, img.file, keep_metadata=img.keep_metadata,
-                                    page=img.page)
-        thumb, _, _ = normalise(data, img.file, THUMB_PX, img.keep_metadata, img.page)
-        words = [img.kind] + ([img.taken_on.isoformat()] if img.taken_on else []) + \
+        words = [img.kind] + ([date_text(img.taken_on)] if img.taken_on else []) + \
             ([f"by {img.by}"] if img.by else []) + ([f"zone {img.zone}"] if img.zone else [])
-        caption = f"{img.caption} ({', '.join(words)})"
-        fig = env.figure(f"images/{anchor(iid)}.{ext}", full, caption)
-        thumb_src = f"images/{anchor(iid)}-thumb.{ext}"
-        env.pageset.add_asset(thumb_src, thumb)
-        out.append({"id": iid, "figure": fig, "thumb": thumb_src, "anchor": f"image-{anchor(iid)}"})
+        out.append(picture(env, img, data, f"{img.caption} ({', '.join(words)})",
+                           anchor_id=f"image-{anchor(iid)}"))
     return out
+
+
+def picture(env, img, data: bytes, caption: str, anchor_id: str = "",
+            numbered: bool = True) -> dict:
+    """A photograph or drawing sheet placed in the dossier (the ``picture.md.j2`` context):
+    the print-size image (``src``, for the PDF and the full view), the site's thumbnail
+    (``thumb``, with its size), caption and alternative text; a numbered figure unless
+    ``numbered`` is false.  The image is normalised once per size (Pillow); a drawing given
+    as SVG has no raster sizes, so the site shows the drawing itself."""
+    from specgen.report.evidence_images import THUMB_PX, normalise
+    full, ext, _ = normalise(data, img.file, keep_metadata=img.keep_metadata, page=img.page)
+    alt = img.alt or f"{img.kind.capitalize()} {img.id}, as the caption below describes"
+    src = f"images/{anchor(img.id)}.{ext}"
+    fig = (env.figure(src, full, caption, alt) if numbered else
+           {"src": env.pageset.add_asset(src, full), "caption": caption, "alt": alt, "n": 0})
+    thumb, _, size = normalise(data, img.file, THUMB_PX, img.keep_metadata, img.page)
+    if ext == "svg":
+        return {**fig, "thumb": src, "thumb_size": None, "anchor": anchor_id}
+    thumb_src = env.pageset.add_asset(f"images/{anchor(img.id)}-thumb.{ext}", thumb)
+    return {**fig, "thumb": thumb_src, "thumb_size": size, "anchor": anchor_id}
 
 
 def _entry(p, s, results: list[str], reports: dict) -> dict:
@@ -164,5 +177,23 @@ def _drawing(env, d) -> dict:
     if d.reference:
         caption += f" (from {d.reference})"
     return {"id": d.id, "title": d.title, "reference": d.reference or "—",
-            "figure": env.figure(f"figures/drawing-{anchor(d.id)}.svg", svg, caption),
+            "figure": env.figure(f"figures/drawing-{anchor(d.id)}.svg", svg, caption,
+                                 _drawing_alt(d, zones, points, sheet is not None)),
             "points": len(points)}
+
+
+def _drawing_alt(d, zones, points, sheet: bool) -> str:
+    """What the overlay shows, in words: the zones' extents and each point's place."""
+    u = d.units
+    out = (f"{'The survey sheet of d' if sheet else 'D'}rawing {d.id}, {as_given(d.width)} by "
+           f"{as_given(d.height)} {u}")
+    if zones:
+        out += ", with " + "; ".join(
+            f"zone {z} outlined by a dashed rectangle from x {as_given(x)} to "
+            f"{as_given(round(x + w, 6))} {u}" for z, x, _y, w, _h in zones)
+    if points:
+        out += (f"; {len(points)} sample point{'s' if len(points) != 1 else ''} marked by red "
+                "dots with their labels: " + ", ".join(
+                    f"{label} at x {as_given(x)} {u}, y {as_given(y)} {u}"
+                    for label, x, y in points))
+    return out + "."

@@ -22,7 +22,7 @@ from specgen.report.mathsvg import MathAssets
 from specgen.report.pageset import PageSet
 from specgen.report.references import Citations
 from specgen.templating import project_template_errors, project_templates, sandboxed
-from specgen.report.wording import reader, rule_label, symbol
+from specgen.report.wording import reader, rule_label, symbol, tex_words
 
 
 def template_env(project_root) -> jinja2.Environment:
@@ -79,11 +79,17 @@ class RenderEnv:
         """Stems of every chapter of the dossier (for links to pages)."""
         return {c.path.rsplit(".", 1)[0] for c in chapters()}
 
-    def figure(self, path: str, svg: bytes, caption: str) -> dict:
-        """Add a figure asset; figures are numbered in order of appearance."""
+    def figure(self, path: str, svg: bytes, caption: str, alt: str) -> dict:
+        """Add a figure asset; figures are numbered in order of appearance.
+
+        ``caption`` says what the figure is about (printed under it); ``alt`` describes
+        what it shows for a reader who cannot see it (the image's alternative text in the
+        site and the tagged PDF) and so must not merely repeat the caption."""
+        if " ".join(alt.split()).casefold() == " ".join(caption.split()).casefold():
+            raise ValueError(f"{path}: the alternative text repeats the caption")
         self.pageset.add_asset(path, svg)
         self.figures.append(path)
-        return {"src": path, "caption": caption, "n": len(self.figures)}
+        return {"src": path, "caption": caption, "alt": alt, "n": len(self.figures)}
 
     def table(self, caption: str) -> Markup:
         """A numbered table caption, placed just above a table in a template:
@@ -103,8 +109,8 @@ class RenderEnv:
     def sheet(self, c) -> dict:
         """Context of one calculation sheet, straight from the check result."""
         # the sheet keeps four significant figures: enough to recompute by hand
-        steps = [{"title": reader(s.title), "formula": self.math.img(s.formula),
-                  "substituted": self.math.img(s.substituted),
+        steps = [{"title": reader(s.title), "formula": self.math.img(tex_words(s.formula)),
+                  "substituted": self.math.img(tex_words(s.substituted)),
                   "result": qty(s.result, s.unit, 4), "symbol": symbol(s.symbol),
                   "inputs": [{"symbol": symbol(i.symbol), "name": reader(i.name),
                               "value": as_given(i.value) if not isinstance(i.value, str)

@@ -10,7 +10,7 @@ from markupsafe import Markup, escape
 
 from specgen.checks.result import STATUS_WORDS
 from specgen.report.chapters import badge, chapter
-from specgen.report.fmt import anchor, as_given, num, qty, unit_symbol
+from specgen.report.fmt import anchor, as_given, date_text, num, qty, unit_symbol
 from specgen.report.specification_clauses import clause_context
 from specgen.report.wording import reader
 from specgen.views import applicable
@@ -326,25 +326,25 @@ def _photo(env, tp) -> dict | None:
     """The panel's photo as a page asset (the path was checked to lie inside the project).
 
     A photo that is also in the register (samples.yaml ``images:``) is placed as the register
-    places it — upright, at print size, without metadata — with its caption, date and author;
-    one that is not is placed as given, dated by the panel."""
+    places it — upright, at print size, without metadata, a thumbnail on the site — with its
+    caption, date and author; one that is not is placed as given, dated by the panel."""
     if not tp.photo:
         return None
-    from specgen.report.evidence_images import normalise
     img, data = next(((i, d) for i, d in env.project.images.values() if i.file == tp.photo),
                      (None, None))
     if img is None:
         suffix = tp.photo.rsplit(".", 1)[-1].lower()
         data = (env.project.root / tp.photo).read_bytes()
-        caption = f"Trial panel {tp.id} ({tp.mix}), {tp.location}; panel built {tp.date}"
-    else:
-        data, suffix, _ = normalise(data, img.file, keep_metadata=img.keep_metadata,
-                                    page=img.page)
-        words = [w for w in (img.taken_on and f"photographed {img.taken_on}",
-                             img.by and f"by {img.by}") if w]
-        caption = f"{img.caption} ({', '.join(words)})" if words else img.caption
-    path = env.pageset.add_asset(f"panels/{anchor(tp.id)}.{suffix}", data)
-    return {"src": path, "caption": caption}
+        path = env.pageset.add_asset(f"panels/{anchor(tp.id)}.{suffix}", data)
+        return {"src": path, "thumb": path, "thumb_size": None, "anchor": "", "n": 0,
+                "caption": f"Trial panel {tp.id} ({tp.mix}), {tp.location}; panel built "
+                           f"{tp.date}",
+                "alt": f"Photograph of trial panel {tp.id} of mix {tp.mix}"}
+    from specgen.report.evidence_chapters import picture
+    words = [w for w in (img.taken_on and f"photographed {date_text(img.taken_on)}",
+                         img.by and f"by {img.by}") if w]
+    return picture(env, img, data, f"{img.caption} ({', '.join(words)})" if words
+                   else img.caption, numbered=False)
 
 
 def specification_summary(env) -> dict:

@@ -49,11 +49,11 @@ def _mix(env, mix, rules) -> dict:
                for c in r.checks if c.subject == mix.id and c.code.startswith("STR-")]
     means = r.value(mix.id, "mean_strength") or {}
     curves = r.value(mix.id, "strength_curve") or {}
-    figures = [env.figure(f"figures/strength-{mix.id}-{test}.svg",
-                          _figure(env, mix, test, curves.get(test), rules),
+    figures = [env.figure(f"figures/strength-{mix.id}-{test}.svg", *_figure(
+                          env, mix, test, curves.get(test), rules,
                           f"{mix.id}: {test} strength against age"
                           + (" — two-stage law with the family's prior, band for the mean and "
-                             "interval for the next set" if test in curves else ""))
+                             "interval for the next set" if test in curves else "")))
                for test in means]
     return {"id": mix.id, "name": mix.name, "anchor": anchor(mix.id),
             "predictions": _predictions(r.value(mix.id, "predicted_strength") or {}),
@@ -80,7 +80,13 @@ def _detail(env, mix) -> dict:
             [{"test": t, "model": "two-stage law with prior",
               "ages": [a for a, _ in c["residuals_pct"]],
               "residuals": [v for _, v in c["residuals_pct"]]} for t, c in curves.items()]),
-            f"{mix.id}: relative residuals of the specimens about the fitted law")
+            f"{mix.id}: relative residuals of the specimens about the fitted law",
+            "One panel per test (" + " and ".join(curves) + "): each specimen's residual "
+            "in per cent of the fitted value, plotted against age in days around a zero "
+            "line; the largest in size is " + num(max((abs(v) for c in curves.values()
+                                                        for _, v in c["residuals_pct"]),
+                                                       default=0.0), 2)
+            + " %.")
     return {"id": mix.id, "name": mix.name, "anchor": anchor(mix.id),
             "aggregates": _aggregates(r, mix.id),
             "excluded": r.value(mix.id, "excluded_results") or [],
@@ -176,7 +182,9 @@ def _narrowing(env, mix: str) -> list[dict]:
     return rows if len({r["rev"] for r in rows}) > 1 else []
 
 
-def _figure(env, mix, test: str, c: dict | None, rules) -> bytes:
+def _figure(env, mix, test: str, c: dict | None, rules, caption: str
+            ) -> tuple[bytes, str, str]:
+    """(figure, caption, alternative text) of one strength chart."""
     from specgen.report.strength_figures import strength_age
     r = env.results
     data = {"title": f"{mix.id} — {mix.name}", "test": test, "model": "",
@@ -192,7 +200,26 @@ def _figure(env, mix, test: str, c: dict | None, rules) -> bytes:
         wall = r.value(mix.id, "in_wall_curve")
         if test == "compressive" and wall:
             data["wall"] = {"ages": wall["days"], "value": wall["value"]}
-    return strength_age(data)
+    return strength_age(data), caption, _strength_alt(data)
+
+
+def _strength_alt(data: dict) -> str:
+    """What a strength chart shows, in words: the points, the means, the curve, the limits."""
+    test = data["test"]
+    ages = sorted({round(a, 3) for a, *_ in data["means"]})
+    out = (f"Chart of {test} strength in MPa against age in days on a logarithmic axis. "
+           f"{len(data['specimens'])} specimen results as circles at "
+           + ", ".join(num(a, 3) for a in ages) + " days; their means: "
+           + ", ".join(f"{num(m, 3)} MPa at {num(a, 3)} d" for a, m, _ in data["means"]) + ".")
+    if data["curve"]:
+        c = data["curve"]
+        out += (f" A line for the fitted {data['model']}, reaching {num(c['value'][-1], 3)} "
+                f"MPa at {num(c['ages_d'][-1], 3)} days, with its shaded band.")
+    if data.get("wall"):
+        out += " A dash-dotted line for the strength in the wall at the site temperature."
+    for _, value, label, _kind in data["limits"]:
+        out += f" A horizontal line marks the {plain(label)}."
+    return out
 
 
 def _limits(env, rules) -> list:

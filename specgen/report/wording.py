@@ -61,6 +61,17 @@ KEY_LABELS = {
     "sealed_20": "sealed curing at 20 °C",
     "air_65": "air curing at 65 % RH",
 }
+#: binder families (materials.yaml ``type``) as the checks write them → the trade's names
+#: (EN 459-1 for the limes); "portland" stands for the cement unless the word follows
+FAMILY_LABELS = [
+    (re.compile(r"\bnatural_cement\b"), "natural cement"),
+    (re.compile(r"\bair_lime\b"), "air lime"),
+    (re.compile(r"\bnhl\b"), "NHL"),
+    (re.compile(r"\bfl\b"), "FL"),
+    (re.compile(r"\bhl\b"), "HL"),
+    (re.compile(r"\bportland(?= cement\b)"), "Portland"),
+    (re.compile(r"\bportland\b"), "Portland cement"),
+]
 #: ASCII units and signs as the checks write them → typographic symbols
 UNIT_TEXT = [
     (re.compile(r"kg/\(m\^2·min\^0\.5\)|kg/\(m2·min0\.5\)"), "kg/(m²·min^½)"),
@@ -122,6 +133,15 @@ def _field(m: re.Match) -> str:
     return f"{m.group('label')[:-1]}, {ident}{what}⟧"
 
 
+def typeset(text: str) -> str:
+    """Units by their symbols, plurals right, true minus signs (no names changed)."""
+    for pat, sym in UNIT_TEXT:
+        text = pat.sub(sym, text)
+    text = PLURALS.sub(lambda m: f"{m.group(1)} {m.group(2)}" +
+                       ("" if m.group(1) in ("1", "1.0") else "s"), text)
+    return MINUS.sub("−", text)
+
+
 def plain(text: str) -> str:
     """``text`` with labels for files, rules and keys, symbols for units (plain text)."""
     if not text:
@@ -133,11 +153,9 @@ def plain(text: str) -> str:
                            text)
     for key, label in KEY_LABELS.items():
         text = re.sub(rf"\b{key}\b", label, text)
-    for pat, sym in UNIT_TEXT:
-        text = pat.sub(sym, text)
-    text = PLURALS.sub(lambda m: f"{m.group(1)} {m.group(2)}" +
-                       ("" if m.group(1) in ("1", "1.0") else "s"), text)
-    text = MINUS.sub("−", text)
+    for pat, label in FAMILY_LABELS:
+        text = pat.sub(label, text)
+    text = typeset(text)
     text = text.replace("⟦", "").replace("⟧", "")
     return _SNAKE.sub(lambda m: m.group(0).replace("_", " ") if not SUBSCRIPT.fullmatch(
         m.group(0)) else m.group(0), text)
@@ -151,6 +169,43 @@ def reader(text) -> Markup:
     out = str(escape(plain(str(text))))
     out = SUBSCRIPT.sub(lambda m: f"{m.group(1)}<sub>{m.group(2)}</sub>", out)
     return Markup(out.replace("^½", "<sup>½</sup>"))
+
+
+#: what names an input as it is written: a file inside the project or the program (with its
+#: line), a key path (``selections[0].covers``), a snake_case key or a rule key
+_INPUT_TERM = re.compile(
+    r"(?:content/)?[\w./-]*\w\.(?:ya?ml|csv|json|md|j2)\b(?:,? line \d+)?"
+    r"|\b[a-z]\w*\[\d+\](?:\.[a-z]\w*(?:\[\d+\])?)*"
+    r"|\b(?:[a-z]+\.)?[a-z][a-z0-9]*(?:_[a-z0-9]+)+(?:\[\d+\])?(?:\.[a-z]\w*(?:\[\d+\])?)*")
+
+
+def input_terms(text) -> Markup:
+    """``text`` that tells the person editing the project what to change (the audit's
+    findings, their places and fixes): escaped, each file, key or rule it names set as code,
+    as written in the input, so that it reads as a name to type and not as prose; the prose
+    between them typeset as :func:`plain` typesets it."""
+    if not text:
+        return Markup("")
+    out, last = [], 0
+    for m in _INPUT_TERM.finditer(str(text)):
+        out += [str(escape(typeset(text[last:m.start()]))),
+                f"<code>{escape(m.group(0))}</code>"]
+        last = m.end()
+    return Markup("".join(out) + str(escape(typeset(text[last:]))))
+
+
+_TEX_TEXT = re.compile(r"\\text\{([^{}]*)\}")
+
+
+def tex_words(latex: str) -> str:
+    """A formula's words (its ``\\text{…}`` groups) in the reader's terms: the binder families
+    and keys as :func:`plain` names them (a formula image shows its words as they stand)."""
+    def words(m: re.Match) -> str:
+        text = m.group(1)
+        for pat, label in FAMILY_LABELS:
+            text = pat.sub(label, text)
+        return "\\text{" + text + "}"
+    return _TEX_TEXT.sub(words, latex)
 
 
 def symbol(text: str) -> Markup:

@@ -139,7 +139,7 @@ def _card(env, mix, g: dict) -> dict:
     window = r.value(p.dossier.project.code, "weather_window")
     return {"mix": {"id": mix.id, "name": mix.name}, "measure": as_given(g["measure_L"]),
             "halved_from": as_given(g["halved_from_L"]) if g["halved_from_L"] else None,
-            "volume": num(g["volume_L"], 3), "water": num(g["water_L"], 3),
+            "volume": rounded(g["volume_L"], "L"), "water": rounded(g["water_L"], "L"),
             "life": as_given(life["value"]), "life_measured": life["measured"],
             "steps": ws.card_steps(p, mix, g),
             "zones": ws.card_zones(r, mix.id, _rule(env, "works.max_gaugings_per_day")),

@@ -13,6 +13,7 @@ import io
 from dataclasses import dataclass
 
 from specgen import views as wc
+from specgen.report.fmt import rounded
 
 KIND_ORDER = ("volume", "binder", "bags", "sand", "water", "admixture")
 MASS_NAMES = (("binder", "binder_mass"), ("sand", "sand_mass"), ("admixture", "admixture_mass"))
@@ -158,8 +159,9 @@ def card_zones(results, mix_id: str, most_per_day: float) -> list[dict]:
     gaugings a day (with a warning above ``most_per_day``, the rule of common practice)."""
     vmax = results.value(mix_id, "max_gauging_volume") or {}
     by_zone = results.value(mix_id, "gauging_by_zone") or {}
-    return [{"zone": z, "vmax": f"{v:.3g}", "times": by_zone.get(z, {}).get("times", 1),
-             "volume": f"{by_zone.get(z, {}).get('volume_L', 0):.3g}",
+    # volumes by the dossier's one rule for litres (fmt.rounded), as the card's own line
+    return [{"zone": z, "vmax": rounded(v, "L"), "times": by_zone.get(z, {}).get("times", 1),
+             "volume": rounded(by_zone.get(z, {}).get("volume_L", 0), "L"),
              "per_day": by_zone.get(z, {}).get("per_day", "—"),
              "busy": by_zone.get(z, {}).get("per_day", 0) > most_per_day}
             for z, v in vmax.items()]

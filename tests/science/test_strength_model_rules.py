@@ -1,0 +1,272 @@
+"""Strength-age models, the rules around the fit: weightings against scipy curve_fit, AICc and
+its support bands by hand, the extrapolation limits at their edges, the components, and every
+refusal word for word.  Data are invented, made with the formulas written out in the test."""
+import math
+
+import numpy as np
+import pytest
+from scipy import optimize
+
+from specgen.science import strength_models as sm
+from specgen.science.strength_models import (
+    DAY, StrengthExtrapolationError, StrengthFitError, components, curve, fit_all, fit_model,
+    predict)
+
+MPA = 1e6
+AGES = [1, 3, 7, 14, 28]              # d
+
+
+def _en1992(t, f28, s):
+    # EN 1992-1-1 eq. 3.2 written out (MPa, d): f28 exp{s [1 - (28/t)^0.5]}
+    return f28 * np.exp(s * (1.0 - np.sqrt(28.0 / np.asarray(t, float))))
+
+
+def _hyperbolic(t, f_inf, k):
+    t = np.asarray(t, float)
+    return f_inf * t / (k + t)
+
+
+def _data(seed=4, cv=0.06, f28=5.0, s=0.3):
+    rng = np.random.default_rng(seed)
+    t = np.repeat(np.asarray(AGES, float), 3)
+    y = _en1992(t, f28, s) * (1 + cv * rng.standard_normal(t.size))
+    return t, y                        # d, MPa
+
+
+# ------------------------------------------------------------------ weightings
+def test_given_standard_deviations_weight_as_scipy_curve_fit_sigma():
+    # reference: scipy.optimize.curve_fit with sigma = the given SDs (absolute_sigma=False:
+    # Cov = s² (JᵀWJ)⁻¹, the module's rule); the SDs grow with age (invented)
+    t, y = _data()
+    sd = 0.1 + 0.02 * t                                   # MPa
+    fit = fit_model("en1992_age", t * DAY, y * MPA, sigma_pa=sd * MPA)
+    p, pcov = optimize.curve_fit(_en1992, t, y, p0=[4, 0.2], sigma=sd, absolute_sigma=False)
+    assert fit.params["f28"] / MPA == pytest.approx(p[0], rel=1e-5)
+    assert fit.params["s"] == pytest.approx(p[1], rel=1e-5)
+    assert fit.std_errors["f28"] / MPA == pytest.approx(math.sqrt(pcov[0, 0]), rel=1e-3)
+    assert fit.std_errors["s"] == pytest.approx(math.sqrt(pcov[1, 1]), rel=1e-3)
+    # residual SD in weighted units: sqrt(Σ((f - y)/sd)² / (n - 2)), by hand from scipy's fit
+    r = (_en1992(t, *p) - y) / sd
+    assert fit.sigma_hat == pytest.approx(math.sqrt(np.sum(r ** 2) / (t.size - 2)), rel=1e-4)
+    assert fit.weighting == "weights 1/sigma² from the given standard deviations"
+    # one SD for every result: the same as equal weights (the scale cancels in s²(JᵀJ)⁻¹)
+    one = fit_model("en1992_age", t * DAY, y * MPA, sigma_pa=0.25 * MPA)
+    q, qcov = optimize.curve_fit(_en1992, t, y, p0=[4, 0.2])
+    assert one.params["f28"] / MPA == pytest.approx(q[0], rel=1e-5)
+    assert one.std_errors["s"] == pytest.approx(math.sqrt(qcov[1, 1]), rel=1e-3)
+
+
+def test_equal_weights_as_unweighted_curve_fit():
+    t, y = _data(seed=8)
+    fit = fit_model("en1992_age", t * DAY, y * MPA, weighting="equal")
+    p, pcov = optimize.curve_fit(_en1992, t, y, p0=[4, 0.2])    # unweighted reference
+    assert fit.params["f28"] / MPA == pytest.approx(p[0], rel=1e-5)
+    assert fit.std_errors["f28"] / MPA == pytest.approx(math.sqrt(pcov[0, 0]), rel=1e-3)
+    # residual SD relative to the mean result: sqrt(Σ(f - y)² / (n - 2)) / ȳ
+    rss = float(np.sum((_en1992(t, *p) - y) ** 2))
+    assert fit.sigma_hat == pytest.approx(math.sqrt(rss / (t.size - 2)) / y.mean(), rel=1e-4)
+    assert fit.weighting == "equal weights"
+    rel = fit_model("en1992_age", t * DAY, y * MPA)
+    assert rel.weighting == "relative: weights 1/(mean at age)², constant CV assumed"
+    # relative weights: residual SD as a CV, sqrt(Σ((f - y)/mean at age)² / (n - 2)), with
+    # the parameters of curve_fit(sigma = mean at age)
+    means = np.array([y[t == a].mean() for a in t])
+    q, _ = optimize.curve_fit(_en1992, t, y, p0=[4, 0.2], sigma=means)
+    cv = math.sqrt(np.sum(((_en1992(t, *q) - y) / means) ** 2) / (t.size - 2))
+    assert rel.sigma_hat == pytest.approx(cv, rel=1e-4)
+
+
+@pytest.mark.parametrize("kw, message", [
+    ({"sigma_pa": [0.0] * 15}, "given standard deviations must be finite and > 0"),
+    ({"sigma_pa": [float("nan")] * 15}, "given standard deviations must be finite and > 0"),
+    ({"weighting": "robust"}, "unknown weighting 'robust'; use 'relative' or 'equal'"),
+])
+def test_weighting_refusals_word_for_word(kw, message):
+    t, y = _data()
+    with pytest.raises(StrengthFitError) as exc:
+        fit_model("en1992_age", t * DAY, y * MPA, **kw)
+    assert str(exc.value) == message
+
+
+def test_a_standard_deviation_below_one_mpa_is_accepted():
+    # 0.5 MPa is a plausible SD for a prism series (it is > 0; the unit is not a threshold)
+    t, y = _data()
+    fit = fit_model("en1992_age", t * DAY, y * MPA, sigma_pa=0.5 * MPA)
+    assert fit.weighting == "weights 1/sigma² from the given standard deviations"
+
+
+# ------------------------------------------------------------------ data and model refusals
+@pytest.mark.parametrize("ages, values, message", [
+    ([1, 2], [1e6], "2 ages but 1 strength results; give one age per result"),
+    ([1, float("inf")], [1e6, 2e6],
+     "ages and strengths must be finite numbers (found NaN or inf)"),
+    ([0, 86400], [1e6, 2e6], "ages must be greater than zero"),
+    ([86400, 2 * 86400], [0.0, 2e6], "strength results must be greater than zero; a zero result "
+     "is not a test result (check the specimen record)"),
+    ([86400, 86400], [1e6, 2e6],
+     "a strength-age fit needs results at >= 2 distinct ages; got 1"),
+    ([86400, 2 * 86400, 3 * 86400], [2.5e6, 2.5e6, 2.5e6],
+     "all results are equal (2.5 MPa at every age): there is no strength development to "
+     "fit; check the data"),
+])
+def test_data_refusals_word_for_word(ages, values, message):
+    with pytest.raises(StrengthFitError) as exc:
+        sm.validate_data(ages, values)
+    assert str(exc.value) == message
+
+
+def test_small_positive_ages_and_strengths_are_data():
+    # half a second and half a pascal are positive (no unit threshold hides in the check)
+    t, y = sm.validate_data([0.5, 86400], [0.5, 2e6])
+    assert t.tolist() == [0.5, 86400.0] and y.tolist() == [0.5, 2e6]
+    # integers are read as numbers (ages and results typed without decimals)
+    t, y = sm.validate_data([86400, 172800], [1000000, 2000000])
+    assert t.dtype == np.float64 and y.dtype == np.float64
+
+
+def test_model_refusals_word_for_word():
+    t, y = _data()
+    with pytest.raises(StrengthFitError) as exc:
+        fit_model("logistic", t * DAY, y * MPA)
+    assert str(exc.value) == ("unknown model 'logistic'; choose from "
+                              + ", ".join(sm.MODELS))
+    for tau in (59.0, 12 * 3600.0 + 1):          # the bounds are 1 min and 12 h, inclusive
+        with pytest.raises(StrengthFitError) as exc:
+            fit_model("two_component", t * DAY, y * MPA, tau_a_s=tau)
+        assert str(exc.value) == "tau_A must lie between 1 min and 12 h"
+
+
+def test_tau_a_on_its_bounds_is_held_and_said_in_minutes():
+    # no age under half a day: tau_A is held where it is given; 60 s = 1 min, 43 200 s = 720 min
+    t, y = _data()
+    for tau, words in ((60.0, "tau_A held at 1 min"), (12 * 3600.0, "tau_A held at 720 min")):
+        fit = fit_model("two_component", t * DAY, y * MPA, tau_a_s=tau)
+        assert fit.fixed == {"tau_A": tau}
+        assert fit.notes[0] == (f"{words}: fewer than two ages under half a day, so the "
+                                "aluminate time constant cannot be fitted")
+
+
+# ------------------------------------------------------------------ AICc and support
+@pytest.mark.parametrize("rss, n, p, expected", [
+    # AICc = n ln(RSS/n) + 2k + 2k(k+1)/(n-k-1), k = p + 1 (Burnham & Anderson 2002, eq. 2.14,
+    # from memory; the residual variance counts as a parameter).  By hand:
+    (0.5, 5, 2, 5 * math.log(0.1) + 6 + 24 / 1),         # = -11.5129 + 30 = 18.4871
+    (2.0, 15, 2, 15 * math.log(2 / 15) + 6 + 24 / 11),   # = -30.224 + 8.182 = -22.042
+    (1.0, 4, 2, None),                                    # n - k - 1 = 0: undefined
+    (1.0, 3, 2, None),                                    # negative: undefined
+])
+def test_aicc_by_hand(rss, n, p, expected):
+    got = sm._aicc(rss, n, p)
+    assert got is None if expected is None else got == pytest.approx(expected, rel=1e-12)
+
+
+@pytest.mark.parametrize("delta, words", [
+    # Burnham & Anderson (2002) sec. 2.6 (from memory): Δ <= 2 substantial, 4-7 considerably
+    # less, > 10 essentially none; the gaps (2-4, 7-10) go to the nearer weaker band
+    (0.0, "substantial support"), (2.0, "substantial support"),
+    (2.0001, "considerably less support"), (7.0, "considerably less support"),
+    (7.0001, "little support"), (10.0, "little support"),
+    (10.0001, "essentially no support"),
+])
+def test_support_bands_at_their_edges(delta, words):
+    assert sm._support(delta) == words
+
+
+def test_fit_all_passes_the_weighting_and_lists_models_too_few_for_aicc():
+    t, y = _data()
+    sel = fit_all(t * DAY, y * MPA, models=("en1992_age", "hyperbolic"), weighting="equal")
+    assert {f.weighting for f in sel.fits} == {"equal weights"}
+    # 3 ages, one result each: a 2-parameter fit has n - k - 1 = 3 - 3 - 1 < 0 (no AICc)
+    few = fit_all(np.array([1, 7, 28]) * DAY, np.array([1.2, 3.1, 4.4]) * MPA,
+                  models=("en1992_age",))
+    assert few.best is None and few.fits == ()
+    assert few.not_assessed == {"en1992_age": "3 results are too few for AICc with 2 "
+                                              "parameters"}
+    title = sm.MODELS["en1992_age"].title
+    assert few.reasoning == f"not assessed: {title}: 3 results are too few for AICc with 2 " \
+                            "parameters"
+
+
+# ------------------------------------------------------------------ ages and the band
+def _fit():
+    t, y = _data()
+    return fit_model("en1992_age", t * DAY, y * MPA)
+
+
+def test_extrapolation_limits_at_their_edges_word_for_word():
+    fit = _fit()                                          # ages 1-28 d, limit 15x
+    assert not predict(fit, 28 * DAY).extrapolated         # the last age is not beyond it
+    assert not predict(fit, 1 * DAY).extrapolated          # nor the first
+    assert predict(fit, 28 * DAY * 1.001).extrapolated
+    assert predict(fit, 1 * DAY * 0.999).extrapolated
+    assert predict(fit, 420 * DAY).extrapolated            # 15 x 28 d: allowed, on the limit
+    assert predict(fit, DAY / 15).extrapolated             # 1 d / 15: allowed, on the limit
+    with pytest.raises(StrengthExtrapolationError) as exc:
+        predict(fit, 421 * DAY)
+    assert str(exc.value) == ("421 d lies outside 15x the tested ages (1-28 d); predictions "
+                              "are limited to 0.0667-420 d")
+    with pytest.raises(StrengthExtrapolationError) as exc:
+        predict(fit, 0.5)                                  # half a second: positive, too early
+    assert str(exc.value).startswith("5.78704e-06 d lies outside 15x the tested ages (1-28 d)")
+    with pytest.raises(StrengthFitError) as exc:
+        predict(fit, 0.0)
+    assert str(exc.value) == "prediction age must be a positive number of seconds; got 0.0"
+    # a wider limit given to predict is the one used (30 x 28 d = 840 d)
+    assert predict(fit, 600 * DAY, max_factor=30).extrapolated
+
+
+def test_prediction_record_word_for_word():
+    fit = _fit()
+    p = predict(fit, 14 * DAY, level=0.9)
+    assert (p.age, p.level, p.extrapolated) == (14 * DAY, 0.9, False)
+    assert p.method == (f"delta method, t(dof = {fit.dof}) pointwise confidence band for the "
+                        "mean, lower edge clipped at 0 and not falling with age")
+    assert fit.dof == 15 - 2 and fit.n_obs == 15 and fit.n_ages == 5
+
+
+@pytest.mark.parametrize("level", [0.0, 1.0, 1.5])
+def test_band_level_refused_outside_zero_one(level):
+    with pytest.raises(StrengthFitError) as exc:
+        curve(_fit(), [7 * DAY], level=level)
+    assert str(exc.value) == f"confidence level must lie between 0 and 1; got {level}"
+
+
+def test_lower_edge_clipped_at_zero_never_negative():
+    # three ages, one result each, scattered (invented): the band at 1/15 of the first age
+    # is wider than the mean, so its lower edge is 0, not below (strength is not negative)
+    fit = fit_model("hyperbolic", np.array([1.0, 3.0, 28.0]) * DAY,
+                    np.array([0.4, 2.9, 3.0]) * MPA, weighting="equal")
+    v, lo, hi = curve(fit, [DAY / 15])
+    assert lo[0] == 0.0 and v[0] > 0 and hi[0] > v[0]
+
+
+# ------------------------------------------------------------------ components
+def test_components_of_a_one_term_model_are_its_formula():
+    fit = _fit()
+    f28, s = fit.params["f28"] / MPA, fit.params["s"]
+    got = components(fit, [7 * DAY, 90 * DAY])
+    assert list(got) == ["en1992_age"]
+    assert got["en1992_age"] == pytest.approx(_en1992([7, 90], f28, s) * MPA, rel=1e-9)
+
+
+def test_two_component_parts_are_the_written_out_terms():
+    t = np.repeat(np.asarray([1, 3, 7, 14, 28, 56, 90], float), 3)
+    rng = np.random.default_rng(2)
+    # fA (1 - e^(-t/tauA)) + fS (1 - e^(-(t/tauS)^b)), tauA = 1 h held (no early ages)
+    y = (1.0 * (1 - np.exp(-t * 24)) + 4.0 * (1 - np.exp(-(t / 20) ** 0.8))) \
+        * (1 + 0.03 * rng.standard_normal(t.size))
+    fit = fit_model("two_component", t * DAY, y * MPA)
+    pa = fit.params
+    at = np.array([2.0, 60.0])                            # d
+    got = components(fit, at * DAY)
+    ta = fit.fixed["tau_A"] / DAY
+    assert got["aluminate"] == pytest.approx(pa["f_A"] * (1 - np.exp(-at / ta)), rel=1e-9)
+    assert got["silicate"] == pytest.approx(
+        pa["f_S"] * (1 - np.exp(-(at / (pa["tau_S"] / DAY)) ** pa["b"])), rel=1e-9)
+
+
+@pytest.mark.parametrize("ages", [[0.0], [-DAY], [float("inf")], [DAY, float("nan")]])
+def test_components_refuse_ages_word_for_word(ages):
+    with pytest.raises(StrengthFitError) as exc:
+        components(_fit(), ages)
+    assert str(exc.value) == "ages must be positive finite numbers of seconds"
