@@ -85,8 +85,13 @@ def reader_text(html: str) -> str:
     return "".join(parser.chunks)
 
 
+#: a web address (a reference's URL): an address, not a name of ours
+URL = re.compile(r"\bhttps?://[^\s<>]+")
+
+
 def internal_names(text: str) -> list[tuple[str, str]]:
-    """(kind, token) of every internal name found in ``text``."""
+    """(kind, token) of every internal name found in ``text`` (web addresses left out)."""
+    text = URL.sub(" ", text)
     return [(kind, m.group(0)) for kind, pat in PATTERNS.items() for m in pat.finditer(text)]
 
 

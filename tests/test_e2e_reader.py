@@ -18,8 +18,10 @@ from tests.reader_text import internal_names, reader_text
 pytestmark = pytest.mark.e2e
 
 REV = "R3"
-#: the page whose subject is the input as it is written: the input listing
-LISTINGS = {"inputs.html"}
+#: the page whose subject is the input as it is written: the input listing; and the web
+#: server's "not found" page, which is no page of the dossier (its addresses are the
+#: server's, so opened as a file it finds none of its assets)
+LISTINGS = {"inputs.html", "404.html"}
 
 
 def _pages(demo_build) -> list[Path]:
@@ -53,6 +55,7 @@ def test_the_scan_finds_what_it_is_for():
     html = ('<article><p>Give the joint_width<br /> in dossier.yaml (rule works.placing_rate).</p>'
             '</span><img alt="natural_cement binder"><p><code>joint_depth</code> NH35 (nhl), NHL 3.5 '
             '<img class="sg-math" alt="f_k = 2"></p>'
+            '&lt;http://example.org/baustoffe_moertel&gt; '
             '<div class="sg-input-listing">mixes.yaml</div></article>'
             '<nav>outside_article</nav>')
     assert sorted(internal_names(reader_text(html))) == [

@@ -35,7 +35,7 @@ def _chapter(blocks: list[tuple[str, int]]) -> str:
        st.integers(50, 2000))
 def test_cuts_only_before_top_level_headings(blocks, size):
     html = _chapter(blocks)
-    cuts = _cut_points(html, size)
+    cuts = _cut_points(html, size, whole=0)
     assert cuts == sorted(set(cuts))
     for cut in cuts:
         assert html.startswith("<h2 id=", cut)            # never inside a div or a table
@@ -44,12 +44,41 @@ def test_cuts_only_before_top_level_headings(blocks, size):
     assert all(b - a >= size for a, b in zip(bounds, bounds[1:-1]))  # not cut finer than asked
 
 
-def test_parts_keep_order_and_size():
+def test_each_piece_prints_as_a_part_of_its_own():
     pieces = [Piece(f"page-{i}", f"T{i}", "y" * n) for i, n in enumerate([10, 20, 70, 5, 5, 90])]
-    groups = parts(pieces, size=40)
-    assert [p for g in groups for p in g] == pieces
-    assert [[p.id for p in g] for g in groups] == [["page-0", "page-1"], ["page-2"],
-                                                  ["page-3", "page-4"], ["page-5"]]
+    groups = parts(pieces)
+    assert [p for g in groups for p in g] == pieces and all(len(g) == 1 for g in groups)
+
+
+def _sheets(n: int, grow: int | None = None, by: int = 0) -> str:
+    """A chapter of ``n`` calculation-sheet-like sections; section ``grow`` has ``by`` more
+    characters (a result that moved, a longer note)."""
+    return "".join(f'<h2 id="calc-x-{i}">Sheet {i}</h2>\n<p>{"v" * (900 + 37 * (i % 11) + (by if i == grow else 0))}'
+                   f"</p>\n<table><tr><td><h2>inside</h2></td></tr></table>\n" for i in range(n))
+
+
+def _split(html: str, size: int) -> list[str]:
+    bounds = [0, *_cut_points(html, size), len(html)]
+    return [html[a:b] for a, b in zip(bounds, bounds[1:])]
+
+
+@pytest.mark.parametrize("grow,by", [(3, 40), (17, -300), (40, 2500), (58, 9)])
+def test_a_section_that_changes_moves_no_cut(grow, by):
+    """Cuts are chosen by the heading they fall before, not by the length of the text before
+    it: after one section changes, every piece but the one holding it is the same string,
+    so on a re-issue only that piece is laid out again."""
+    before, after = _split(_sheets(60), 6000), _split(_sheets(60, grow, by), 6000)
+    assert len(before) >= 4                                    # the chapter was cut
+    changed = [p for p in after if p not in before]
+    assert len(after) == len(before) and len(changed) == 1
+    assert f'id="calc-x-{grow}"' in changed[0]
+
+
+def test_a_chapter_shorter_than_whole_is_not_cut():
+    from specgen.publish.pdf import CHAPTER_WHOLE
+    html = _sheets(60)
+    assert _cut_points(html, 6000, whole=len(html) + 1) == []
+    assert len(_sheets(30)) < CHAPTER_WHOLE and _cut_points(_sheets(30), 6000) == []
 
 
 def _pdf(out):

@@ -100,8 +100,8 @@ def test_every_summary_a_value_was_read_in_is_in_the_bibliography():
 
 def test_a_web_page_shows_its_address_and_the_day_it_was_read():
     text = format_entry(library()["teg_summary"])
-    assert "<https://civilengineeringx.com/dccc/the-thaumasite-expert-group-report-and-its-" \
-           "ramifications> (read 2026-12-04)." in text
+    url = "https://civilengineeringx.com/dccc/the-thaumasite-expert-group-report-and-its-ramifications"
+    assert f"[`{url}`]({url}) (read 2026-12-04)." in text
     assert "(a public summary of the Thaumasite Expert Group report of 1999; the report " \
            "itself was not read)" in text
     assert text.startswith("civilengineeringx.com (n.d.). *The Thaumasite Expert Group report")

@@ -76,7 +76,10 @@ def _landscape_wide_tables(html: str) -> str:
     return re.sub(r"<table>.*?</table>", wrap, html, flags=re.S)
 
 
-PART_SIZE = 80_000  # characters of HTML: a chapter longer than this prints in parts
+PART_SIZE = 6_000  # characters of HTML: the least a piece of a cut chapter holds
+CUT_SPREAD = 3     # about one top-level heading in this many past PART_SIZE starts a piece
+CUT_MOST = 12      # … and a piece is cut at the first heading past this many PART_SIZE
+CHAPTER_WHOLE = 60_000  # characters: a chapter shorter than this prints whole (no page breaks added)
 
 
 @dataclass(frozen=True)
@@ -90,18 +93,37 @@ class Piece:
     volume: str = "main"  # the volume it prints in: "main" or "appendix"
 
 
-def _cut_points(html: str, size: int) -> list[int]:
-    """Offsets of top-level ``<h2`` at which a long chapter is cut, about every ``size``."""
+def _cut_points(html: str, size: int, whole: int = CHAPTER_WHOLE) -> list[int]:
+    """Offsets of top-level ``<h2`` at which a chapter is cut into pieces (each starts a page).
+
+    A cut falls before a top-level heading chosen by the heading itself (a hash of its
+    tag, which carries its id), at least ``size`` characters after the last cut, not by
+    how long the text before it is: a section whose text changes moves no cut, so on a
+    re-issue only the piece holding it is laid out again (the others are reused byte for
+    byte).  A run with no chosen heading is cut at the first heading past
+    ``CUT_MOST × size``.  A chapter shorter than ``whole`` is not cut: the report's chapters
+    keep their flow, and only the long appendices (the calculation sheets, the check
+    register) gain page breaks.
+    """
     cuts, depth, last = [], 0, 0
+    if len(html) < whole:
+        return cuts
     for m in re.finditer(r"<(/?)(div|details|table|blockquote|figure|ul|ol|h2)\b", html):
         tag = m.group(2)
         if tag == "h2":
-            if not m.group(1) and depth == 0 and m.start() - last >= size:
+            if not m.group(1) and depth == 0 and m.start() - last >= size and (
+                    _chosen(html[m.start():html.find(">", m.start()) + 1])
+                    or m.start() - last >= CUT_MOST * size):
                 cuts.append(m.start())
                 last = m.start()
             continue
         depth += -1 if m.group(1) else 1
     return cuts
+
+
+def _chosen(heading_tag: str) -> bool:
+    """Whether a piece may start at this heading (about one in ``CUT_SPREAD``, stably)."""
+    return hashlib.sha256(heading_tag.encode("utf-8")).digest()[0] % CUT_SPREAD == 0
 
 
 def pieces(pageset, size: int = PART_SIZE) -> list[Piece]:
@@ -165,15 +187,11 @@ def stylesheet(page_size: str, *extra: str) -> str:
     return css.replace("size: A4 landscape;", f"size: {PAGE_SIZES[page_size]} landscape;")
 
 
-def parts(every: list[Piece], size: int = PART_SIZE) -> list[list[Piece]]:
-    """Consecutive pieces grouped into parts of about ``size`` characters each."""
-    out: list[list[Piece]] = []
-    for piece in every:
-        if out and sum(len(p.html) for p in out[-1]) + len(piece.html) <= size:
-            out[-1].append(piece)
-        else:
-            out.append([piece])
-    return out
+def parts(every: list[Piece]) -> list[list[Piece]]:
+    """The pieces as printed: each piece a part of its own (a WeasyPrint document costs
+    about 0.05 CPU-s beyond its content), so a part is laid out again only when its own
+    HTML changed, never because a neighbour grew and the grouping moved."""
+    return [[piece] for piece in every]
 
 
 # PDF/A-3a: archival, with the inputs attached, and tagged (structure tree, alternative

@@ -50,7 +50,10 @@ def format_entry(entry: dict) -> str:
     if entry.get("URL"):        # a web page: its address and the day it was read
         read = "-".join(f"{n:02d}" for n in (entry.get("accessed", {}).get("date-parts")
                                              or [[]])[0])
-        parts.append(f"<{entry['URL']}>" + (f" (read {read})" if read else "") + ".")
+        # as code inside the link: an address is quoted as written (not reader text), and
+        # the stylesheets let it break anywhere so a long address never widens the page
+        parts.append(f"[`{entry['URL']}`]({entry['URL']})" + (f" (read {read})" if read else "")
+                     + ".")
     if entry.get("note") and not unconfirmed(entry):
         parts.append(f"({entry['note']})")
     return " ".join(parts)
