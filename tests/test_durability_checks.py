@@ -292,8 +292,8 @@ def test_soundness_from_the_phase_range_when_nothing_is_measured(demo):
 
 
 @pytest.mark.parametrize("soundness, status, message", [
-    # EN 197-1 expansion ≤ 10 mm for every class (read in a producer's public summary,
-    # references.json cement_terms_tr; applied to natural cement); free CaO ≤ 2 %,
+    # EN 197-1 expansion ≤ 10 mm for every class (makers' public summaries agree, but
+    # from memory; applied to natural cement); free CaO ≤ 2 %,
     # free MgO ≤ 2 % (common practice); SO3 ≤ 3 % (ASTM C10/C10M, as ASTM WK90140 quotes it),
     # demo NC1-A SO3 0.9 %
     ('{free_cao: 0.9, free_mgo: 0.5, expansion: "1.5 mm"}', "pass",
@@ -355,7 +355,7 @@ def test_lime_soundness_limit_recalled_holds_an_issued_verdict(demo_copy):
 def test_natural_cement_so3_against_astm_c10(demo_copy):
     # ASTM C10/C10M limits a natural cement's SO3 to 3.0 % (the limit ASTM's work item WK90140
     # quotes); demo NC1-A: 0.9 % passes, 3.6 % is a risk without a test and, with a sound
-    # Le Chatelier result (EN 197-1 cement limit 10 mm, as cement_terms_tr states it), an
+    # Le Chatelier result (EN 197-1 cement limit 10 mm, from memory), an
     # attention
     _, r = check(demo_copy)
     c = by_check(r)[("DUR-SOUND", "NC1")]
