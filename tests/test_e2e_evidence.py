@@ -55,6 +55,11 @@ def test_method_statement_and_glossary(demo_build):
     method = (r3 / "method.html").read_text(encoding="utf-8")
     assert "Rake out the joints by hand" in method and "Who does what" in method
     assert "Throw or firmly lay on each coat" in method     # render in its own words
+    # aftercare: inspection intervals, what to look for, when to call the specifier, and the
+    # record of the works for deposit with the local heritage record
+    assert "Inspections after the works" in method and "after the first winter" in method
+    assert "When to call the specifier." in method
+    assert "Deposit with the local heritage record" in method
     glossary = (r3 / "glossary.html").read_text(encoding="utf-8")
     assert "cementation index (Eckel)" in glossary and "characteristic strength" in glossary
 
