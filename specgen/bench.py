@@ -31,6 +31,7 @@ from __future__ import annotations
 
 import math
 import os
+import re
 import shutil
 import statistics
 import subprocess
@@ -81,7 +82,10 @@ def _floor(project: Path, work: Path):
         (docs / path).write_bytes(data)
     cfg = work / "mkdocs.yml"
     nav = "\n".join(f"  - '{n.title}': {n.path}" for n in pages.nav)
-    cfg.write_text(BASE_CONFIG.read_text().replace("site_name: specgen dossier", "site_name: floor")
+    # the theme's custom_dir is relative to the config file: point it at the repository's
+    base = re.sub(r"custom_dir: (\S+)",
+                  lambda m: f"custom_dir: {BASE_CONFIG.parent / m.group(1)}", BASE_CONFIG.read_text())
+    cfg.write_text(base.replace("site_name: specgen dossier", "site_name: floor")
                    + f"docs_dir: {docs}\nsite_dir: {work / 'floor-site'}\nnav:\n{nav}\n")
     html = to_html(pages, _print_context(proj))
 
