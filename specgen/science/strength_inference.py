@@ -55,13 +55,12 @@ from scipy import stats
 
 # the priors, the generic tools of the fit and the law, importable from here as before
 from specgen.science.strength_priors import (PRIOR_KEYS, _Z95, InferenceError,  # noqa: F401
-                                             Prior, PriorTerm, _central_cv, prior_from_table)
+                                             Prior, _central_cv, prior_from_table)
 from specgen.science.inference_tools import (Laplace, LackOfFit, falls,  # noqa: F401
                                              importance_sample, interval_score, lack_of_fit,
                                              laplace_fit, resample)
 from specgen.science.two_stage_law import log_f as _log_f  # noqa: F401
 from specgen.science.two_stage_law import log_f_grad as _log_f_grad
-from specgen.science.two_stage_law import two_stage  # noqa: F401
 from specgen.science.two_stage_law import unpack as _unpack
 
 PRIOR_DOF = 4.0          # weight of the prior's variances, as degrees of freedom (common practice)
