@@ -16,9 +16,9 @@ def _strength(age_d: float, f_a: float, f_s: float) -> float:
     return f_a * (1 - math.exp(-age_d / 0.5)) + f_s * (1 - math.exp(-((age_d / 40) ** 0.8)))
 
 
-def write_project(root: Path, mixes: int, specimens: int = 3, ages=AGES_D, seed: int = 1) -> Path:
+def write_project(root: Path, mixes: int, specimens: int = 3, ages=AGES_D, rng_state: int = 1) -> Path:
     """A valid project with ``mixes`` mixes, each tested at ``ages`` with ``specimens`` each."""
-    rng = random.Random(seed)
+    rng = random.Random(rng_state)
     root = Path(root)
     if root.exists():
         shutil.rmtree(root)

@@ -78,7 +78,7 @@ def simulate(law, rng, ages, batch_cv: float):
     return t, y
 
 
-def study(series: int = 200, seed: int = 7, batch_cv: float = 0.04) -> list[Row]:
+def study(series: int = 200, rng_state: int = 7, batch_cv: float = 0.04) -> list[Row]:
     """Run the study; ``series`` per law."""
     table = refdata.load("strength_priors").data
     rows = []
@@ -86,7 +86,7 @@ def study(series: int = 200, seed: int = 7, batch_cv: float = 0.04) -> list[Row]
         prior = si.prior_from_table(fam, table[fam])
         gains = {a: si.prior_gain_interval(prior, a) for a in TARGETS}
         for rec, ages in AGES.items():
-            rng = np.random.default_rng(seed)
+            rng = np.random.default_rng(rng_state)
             hits = {a: 0 for a in TARGETS}
             score = {a: 0.0 for a in TARGETS}
             base = {a: 0.0 for a in TARGETS}
@@ -119,8 +119,8 @@ def table(rows: list[Row]) -> str:
     return "\n".join(out)
 
 
-def main(series: int = 200, seed: int = 7) -> None:
-    print(table(study(series, seed)))
+def main(series: int = 200, rng_state: int = 7) -> None:
+    print(table(study(series, rng_state)))
 
 
 if __name__ == "__main__":
@@ -128,9 +128,9 @@ if __name__ == "__main__":
 
     @click.command()
     @click.option("--series", default=200, show_default=True, help="simulated series per law")
-    @click.option("--seed", default=7, show_default=True, help="random seed")
-    def _validate(series: int, seed: int) -> None:
+    @click.option("--random-state", "rng_state", default=7, show_default=True, help="random state")
+    def _validate(series: int, rng_state: int) -> None:
         """Coverage and interval score of the strength inference on simulated series."""
-        main(series, seed)
+        main(series, rng_state)
 
     _validate()

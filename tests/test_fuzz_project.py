@@ -324,9 +324,9 @@ def judge(root: Path, where: dict, exc: InputErrors) -> list[str]:
     return faults
 
 
-def run_case(kind: str, pick: int, seed: int) -> tuple[str, list[str]]:
+def run_case(kind: str, pick: int, rng_state: int) -> tuple[str, list[str]]:
     """(outcome, faults) of one generated case."""
-    rng = random.Random(seed)
+    rng = random.Random(rng_state)
     with tempfile.TemporaryDirectory() as tmp:
         root = Path(tmp) / "project"
         shutil.copytree(DEMO, root)
@@ -345,13 +345,13 @@ def run_case(kind: str, pick: int, seed: int) -> tuple[str, list[str]]:
 def _fuzz_kind(kind: str, failures: list[str]) -> None:
     @settings(max_examples=max(1, N_CASES // len(CATEGORIES)), deadline=None,
               derandomize=True, database=None, suppress_health_check=list(HealthCheck))
-    @given(pick=st.integers(0, 10_000), seed=st.integers(0, 2**32 - 1))
-    def one(pick, seed):
-        outcome, faults = run_case(kind, pick, seed)
+    @given(pick=st.integers(0, 10_000), rng_state=st.integers(0, 2**32 - 1))
+    def one(pick, rng_state):
+        outcome, faults = run_case(kind, pick, rng_state)
         TALLY["cases"] += 1
         TALLY[outcome] += 1
         TALLY[f"{kind}: {outcome}"] += 1
-        failures.extend(f"[{kind} #{pick}/{seed}] {f}" for f in faults)
+        failures.extend(f"[{kind} #{pick}/{rng_state}] {f}" for f in faults)
     one()
 
 

@@ -48,13 +48,13 @@ def laplace_fit(residuals: Callable[[np.ndarray], np.ndarray], z0: Sequence[floa
 
 
 def importance_sample(neg_log_post: Callable[[np.ndarray], np.ndarray], mode: Sequence[float],
-                      cov: np.ndarray, draws: int, dof: float, scale: float, seed: int):
+                      cov: np.ndarray, draws: int, dof: float, scale: float, rng_state: int):
     """Self-normalised importance sampling of ``p ∝ exp(-neg_log_post)`` (MacKay 2003, ch. 29):
     ``draws`` from a multivariate Student-t (``dof``) centred on ``mode`` with covariance
     ``scale² · cov`` (a Laplace approximation widened, heavier-tailed, so ``p/q`` stays
     bounded), each weighted by ``p/q``.  ``neg_log_post`` takes the draws (rows) and returns
     ``-ln p`` up to a constant.  Returns (draws, normalised weights, effective sample size
-    ``1/Σw²``), or (None, None, 0) when no draw has a finite weight.  Deterministic (``seed``).
+    ``1/Σw²``), or (None, None, 0) when no draw has a finite weight.  Deterministic (``rng_state``).
     """
     mode = np.asarray(mode, float)
     k = mode.size
@@ -62,7 +62,7 @@ def importance_sample(neg_log_post: Callable[[np.ndarray], np.ndarray], mode: Se
         chol = np.linalg.cholesky(scale ** 2 * np.asarray(cov, float) + 1e-12 * np.eye(k))
     except np.linalg.LinAlgError:
         return None, None, 0.0
-    rng = np.random.default_rng(seed)
+    rng = np.random.default_rng(rng_state)
     x = rng.standard_normal((draws, k)) / np.sqrt(rng.chisquare(dof, draws) / dof)[:, None]
     z = mode + x @ chol.T
     log_q = -0.5 * (dof + k) * np.log1p(np.sum(x ** 2, axis=1) / dof)
@@ -76,11 +76,11 @@ def importance_sample(neg_log_post: Callable[[np.ndarray], np.ndarray], mode: Se
     return z[ok], w, float(1.0 / np.sum(w ** 2))
 
 
-def resample(draws: np.ndarray, weights: np.ndarray, n: int, seed: int) -> np.ndarray:
+def resample(draws: np.ndarray, weights: np.ndarray, n: int, rng_state: int) -> np.ndarray:
     """``n`` equally weighted draws from weighted ones by systematic resampling (one uniform
     offset, then a grid of step 1/n through the cumulative weights; Kitagawa 1996): the
     weighted set's quantiles become plain sample quantiles, cheap at any number of ages."""
-    u = (np.arange(n) + np.random.default_rng(seed).uniform()) / n
+    u = (np.arange(n) + np.random.default_rng(rng_state).uniform()) / n
     idx = np.searchsorted(np.cumsum(weights), u)
     return np.asarray(draws)[np.minimum(idx, len(weights) - 1)]
 

@@ -28,7 +28,7 @@ information about the curve, each with variance ``σb² + σw²/n_i``.
   are therefore read from ``DRAWS`` draws of a Student-t (``PROPOSAL_DOF`` dof, covariance
   ``PROPOSAL_SCALE``² × the Laplace one) about the mode, each weighted by the exact posterior
   over the proposal density (self-normalised importance sampling, MacKay 2003 ch. 29), then
-  resampled to ``KEPT`` equally weighted draws, with a fixed seed so a build is repeatable.
+  resampled to ``KEPT`` equally weighted draws, with a fixed random state so a build is repeatable.
   Should the weights degenerate (effective sample size below ``MIN_ESS``) the Laplace
   approximation is used and :attr:`Inference.sampled` says so.
 
@@ -66,7 +66,7 @@ from specgen.science.two_stage_law import unpack as _unpack
 PRIOR_DOF = 4.0          # weight of the prior's variances, as degrees of freedom (common practice)
 # importance sampling of the posterior (common practice for a Laplace proposal: heavier tails
 # and a wider scale than the approximation, so the weights stay bounded; MacKay 2003 ch. 29)
-DRAWS, PROPOSAL_DOF, PROPOSAL_SCALE, MIN_ESS, SEED = 4000, 5.0, 1.5, 100.0, 20260
+DRAWS, PROPOSAL_DOF, PROPOSAL_SCALE, MIN_ESS, RNG_STATE = 4000, 5.0, 1.5, 100.0, 20260
 KEPT = 1000    # equally weighted draws kept after resampling (about the effective sample size)
 NODES = 48     # a longer list of ages (a curve) takes the band's offsets from ln f at this many
                # log-spaced ages, interpolated in ln t (the offsets vary slowly with age)
@@ -192,8 +192,8 @@ def _sample(ages, means, counts, sb2, sw2, prior: Prior, lap: Laplace):
     normal is used instead)."""
     sd = np.sqrt(sb2 + sw2 / counts)
     z, w, ess = importance_sample(lambda zz: _neg_log_post(zz, ages, means, sd, prior),
-                                  lap.mode, lap.cov, DRAWS, PROPOSAL_DOF, PROPOSAL_SCALE, SEED)
-    return (None, ess) if z is None or ess < MIN_ESS else (resample(z, w, KEPT, SEED), ess)
+                                  lap.mode, lap.cov, DRAWS, PROPOSAL_DOF, PROPOSAL_SCALE, RNG_STATE)
+    return (None, ess) if z is None or ess < MIN_ESS else (resample(z, w, KEPT, RNG_STATE), ess)
 
 
 def _prior_residuals(z, prior: Prior) -> np.ndarray:
@@ -280,13 +280,13 @@ def _log_bands(inf: Inference, t_d, level: float, extra_sd=None):
 def _predictive_noise(dof: float) -> np.ndarray:
     """``PREDICTIVE_REPEATS`` x ``KEPT`` Student-t variates (``dof``): the new batch's
     standardised scatter in the predictive mixture.  Stratified (one variate at each of the
-    probabilities ``(i + ½)/N``, in an order shuffled with a fixed seed, so builds repeat):
+    probabilities ``(i + ½)/N``, in an order shuffled with a fixed random state, so builds repeat):
     the variates follow the t distribution exactly in aggregate, and the mixture's quantiles
     carry only the posterior draws' Monte Carlo error (stratified sampling, Owen 2013, Monte
     Carlo theory, methods and examples, ch. 10)."""
     size = PREDICTIVE_REPEATS * KEPT
     u = (np.arange(size) + 0.5) / size
-    out = stats.t.ppf(np.random.default_rng(SEED + 1).permutation(u), dof)
+    out = stats.t.ppf(np.random.default_rng(RNG_STATE + 1).permutation(u), dof)
     out = out.reshape(PREDICTIVE_REPEATS, KEPT)
     out.flags.writeable = False
     return out
@@ -381,10 +381,10 @@ def posterior_summary(inf: Inference) -> dict[str, tuple[float, float, float]]:
 
 
 def prior_gain_interval(prior: Prior, age_d: float, level: float = 0.95, draws: int = 4000,
-                        seed: int = 0) -> tuple[float, float]:
+                        rng_state: int = 0) -> tuple[float, float]:
     """Central ``level`` range of f(age)/f(28 d) under the prior alone (Monte Carlo over the
     four shape terms, importance-weighted by the gain term): what a 28-day mean alone gives."""
-    rng = np.random.default_rng(seed)
+    rng = np.random.default_rng(rng_state)
     tm = prior.terms
     z = np.column_stack([np.zeros(draws)] + [rng.normal(tm[k].mu, tm[k].sd, draws)
                                              for k in PRIOR_KEYS[:4]])

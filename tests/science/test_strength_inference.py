@@ -69,8 +69,8 @@ def test_importance_sampling_recovers_a_skewed_conjugate_posterior():
     mode = (a - 1) / b
     cov = np.array([[mode ** 2 / (a - 1)]])        # inverse curvature of -ln p at the mode
     z, w, ess = si.importance_sample(neg_log_post, [mode], cov, si.DRAWS, si.PROPOSAL_DOF,
-                                     si.PROPOSAL_SCALE, si.SEED)
-    kept = si.resample(z, w, si.KEPT, si.SEED)
+                                     si.PROPOSAL_SCALE, si.RNG_STATE)
+    kept = si.resample(z, w, si.KEPT, si.RNG_STATE)
     lo, hi = np.quantile(kept[:, 0], [0.025, 0.975], method="inverted_cdf")
     exact = stats.gamma.ppf([0.025, 0.975], a, scale=1 / b)
     assert ess > si.MIN_ESS

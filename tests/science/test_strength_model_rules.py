@@ -26,8 +26,8 @@ def _hyperbolic(t, f_inf, k):
     return f_inf * t / (k + t)
 
 
-def _data(seed=4, cv=0.06, f28=5.0, s=0.3):
-    rng = np.random.default_rng(seed)
+def _data(rng_state=4, cv=0.06, f28=5.0, s=0.3):
+    rng = np.random.default_rng(rng_state)
     t = np.repeat(np.asarray(AGES, float), 3)
     y = _en1992(t, f28, s) * (1 + cv * rng.standard_normal(t.size))
     return t, y                        # d, MPa
@@ -57,7 +57,7 @@ def test_given_standard_deviations_weight_as_scipy_curve_fit_sigma():
 
 
 def test_equal_weights_as_unweighted_curve_fit():
-    t, y = _data(seed=8)
+    t, y = _data(rng_state=8)
     fit = fit_model("en1992_age", t * DAY, y * MPA, weighting="equal")
     p, pcov = optimize.curve_fit(_en1992, t, y, p0=[4, 0.2])    # unweighted reference
     assert fit.params["f28"] / MPA == pytest.approx(p[0], rel=1e-5)

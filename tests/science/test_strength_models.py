@@ -36,11 +36,11 @@ def _two_component(x, t):
 TRUTH = {"en1992_age": _en1992, "hyperbolic": _hyperbolic, "two_component": _two_component}
 
 
-def _data(model, x, ages_d, cv=0.05, seed=0, reps=3):
+def _data(model, x, ages_d, cv=0.05, rng_state=0, reps=3):
     """Synthetic results (invented data) from known internal parameters (MPa, d), made with
     the formulas above (not the module's)."""
     t = np.repeat(np.asarray(ages_d, float), reps)
-    rng = np.random.default_rng(seed)
+    rng = np.random.default_rng(rng_state)
     y = TRUTH[model](x, t) * (1 + cv * rng.standard_normal(t.size))
     return t * DAY, y * MPA
 
@@ -70,7 +70,7 @@ def test_en1992_fit_recovers_exact_parameters_and_eq_3_2():
 def test_standard_errors_match_scipy_curve_fit():
     # Reference: scipy.optimize.curve_fit (absolute_sigma=False gives s²(JᵀWJ)⁻¹), same
     # weights (sigma = mean at age, the module's relative weighting).
-    t, y = _data("en1992_age", [5.0, 0.3], EARLY, cv=0.06, seed=3)
+    t, y = _data("en1992_age", [5.0, 0.3], EARLY, cv=0.06, rng_state=3)
     fit = fit_model("en1992_age", t, y)
     td, ym = t / DAY, y / MPA
     means = {a: ym[td == a].mean() for a in np.unique(td)}
@@ -84,11 +84,11 @@ def test_standard_errors_match_scipy_curve_fit():
 
 
 def test_hyperbolic_fit_recovers_parameters():
-    t, y = _data("hyperbolic", [8.0, 20.0], EARLY + [56, 90], cv=0.03, seed=5)
+    t, y = _data("hyperbolic", [8.0, 20.0], EARLY + [56, 90], cv=0.03, rng_state=5)
     fit = fit_model("hyperbolic", t, y)
     assert fit.params["f_inf"] / MPA == pytest.approx(8.0, rel=0.15)
     assert fit.params["k"] / DAY == pytest.approx(20.0, rel=0.25)
-    # the truth lies within about 3 standard errors (invented data, fixed seed)
+    # the truth lies within about 3 standard errors (invented data, fixed rng_state)
     assert abs(fit.params["f_inf"] / MPA - 8.0) < 3 * fit.std_errors["f_inf"] / MPA
 
 
@@ -97,15 +97,15 @@ def test_hyperbolic_fit_recovers_parameters():
     ("hyperbolic", [8.0, 20.0], EARLY),
     ("two_component", [1.5, 1 / 24, 10.0, 90.0, 1.2], EARLY + [56, 90]),
 ])
-def test_confidence_band_coverage_over_200_seeds(model, x, ages):
+def test_confidence_band_coverage_over_200_random_states(model, x, ages):
     # Definition of a 95 % confidence band: over repeated samples the true mean curve lies
-    # inside it about 95 % of the time.  200 seeds: binomial SE 1.5 points; the delta
+    # inside it about 95 % of the time.  200 random states: binomial SE 1.5 points; the delta
     # method is approximate, so the window is 0.85-0.99 at 28 d and up to 4x the last age.
     at = np.array([28.0, 2 * ages[-1], 4 * ages[-1]])
     truth = TRUTH[model](x, at) * MPA
     hits = np.zeros(at.size)
-    for seed in range(200):
-        fit = fit_model(model, *_data(model, x, ages, cv=0.06, seed=seed))
+    for rng_state in range(200):
+        fit = fit_model(model, *_data(model, x, ages, cv=0.06, rng_state=rng_state))
         _, lo, hi = curve(fit, at * DAY)
         hits += (lo <= truth) & (truth <= hi)
     assert np.all(hits / 200 >= 0.85) and np.all(hits / 200 <= 0.99), hits / 200
@@ -117,7 +117,7 @@ TRUE_TWO = [1.5, 1 / 24, 10.0, 90.0, 1.2]    # fA MPa, tauA d (1 h), fS MPa, tau
 def test_two_component_attributes_strength_to_the_right_stage():
     # Common practice (DOMAIN primer sec. 1): the aluminate part gives < 2 MPa in the first
     # day; the silicate (C2S) part dominates only after about four weeks and grows for months.
-    t, y = _data("two_component", TRUE_TWO, EARLY + [56, 90], cv=0.05, seed=11)
+    t, y = _data("two_component", TRUE_TWO, EARLY + [56, 90], cv=0.05, rng_state=11)
     assert y[t == DAY].mean() < 2 * MPA
     sel = fit_all(t, y)
     assert sel.best.model == "two_component"
@@ -135,7 +135,7 @@ def test_two_component_attributes_strength_to_the_right_stage():
 def test_two_component_fits_tau_a_with_early_ages():
     # Ages of 1 h, 3 h and 6 h resolve the aluminate time constant (true 2 h, invented data).
     x = [1.5, 2 / 24, 10.0, 90.0, 1.2]
-    t, y = _data("two_component", x, [1 / 24, 3 / 24, 6 / 24, 1, 3, 7, 28, 90], cv=0.03, seed=2)
+    t, y = _data("two_component", x, [1 / 24, 3 / 24, 6 / 24, 1, 3, 7, 28, 90], cv=0.03, rng_state=2)
     fit = fit_model("two_component", t, y)
     assert "tau_A" in fit.params and not fit.fixed
     assert fit.params["tau_A"] / 3600 == pytest.approx(2.0, rel=0.35)
@@ -157,7 +157,7 @@ def test_refusal_says_what_is_needed():
 
 
 def test_fit_all_lists_unsupported_models_and_ranks_the_rest():
-    t, y = _data("en1992_age", [5.0, 0.3], [3, 7, 28], cv=0.05, seed=4)
+    t, y = _data("en1992_age", [5.0, 0.3], [3, 7, 28], cv=0.05, rng_state=4)
     sel = fit_all(t, y)
     assert "two_component" in sel.not_assessed
     assert "distinct ages" in sel.not_assessed["two_component"]
@@ -181,7 +181,7 @@ def test_bad_data_give_clear_errors(ages, values, words):
 def test_aicc_differences_match_scipy_normal_log_likelihood():
     # AICc = -2 ln L + 2k + 2k(k+1)/(n-k-1), ln L from scipy.stats.norm.logpdf of the
     # weighted residuals at the MLE sigma² = RSS/n (k = parameters + 1).
-    t, y = _data("two_component", TRUE_TWO, EARLY + [56, 90], cv=0.05, seed=8)
+    t, y = _data("two_component", TRUE_TWO, EARLY + [56, 90], cv=0.05, rng_state=8)
     sel = fit_all(t, y)
     ref = {}
     td, ym = t / DAY, y / MPA
@@ -198,14 +198,14 @@ def test_aicc_differences_match_scipy_normal_log_likelihood():
 
 def test_parsimony_rule_prefers_fewer_parameters_within_two():
     # Data from the EN 1992 function: the two-parameter curves should be chosen.
-    t, y = _data("en1992_age", [5.0, 0.3], EARLY + [56, 90], cv=0.05, seed=1)
+    t, y = _data("en1992_age", [5.0, 0.3], EARLY + [56, 90], cv=0.05, rng_state=1)
     sel = fit_all(t, y)
     assert len(sel.best.params) == 2
     assert all(f.aicc >= sel.best.aicc - 2.0 for f in sel.fits)
 
 
 def test_prediction_flags_and_limits_extrapolation():
-    t, y = _data("en1992_age", [5.0, 0.3], EARLY, cv=0.05, seed=6)
+    t, y = _data("en1992_age", [5.0, 0.3], EARLY, cv=0.05, rng_state=6)
     fit = fit_model("en1992_age", t, y)
     inside, year = predict(fit, 14 * DAY), predict(fit, 365 * DAY)
     assert not inside.extrapolated and year.extrapolated
@@ -242,7 +242,7 @@ def test_noise_free_fit_gives_finite_zero_width_band_not_nan():
 
 
 def test_plain_names_and_units_of_parameters():
-    t, y = _data("two_component", TRUE_TWO, EARLY + [56, 90], cv=0.05, seed=11)
+    t, y = _data("two_component", TRUE_TWO, EARLY + [56, 90], cv=0.05, rng_state=11)
     fit = fit_model("two_component", t, y)
     assert fit.units["f_S"] == "Pa" and fit.units["tau_S"] == "s"
     assert set(fit.std_errors) <= set(fit.params)
@@ -253,7 +253,7 @@ def test_lower_edge_never_falls_with_age_and_is_the_delta_band_where_that_rises(
     # A short record (to 28 d) predicted to 4x its last age: the plain delta-method lower
     # edge turns down where the band widens.  Reference band: the delta method written out
     # here with central finite differences (numpy) and scipy's t quantile.
-    fit = fit_model("two_component", *_data("two_component", TRUE_TWO, EARLY, cv=0.08, seed=3))
+    fit = fit_model("two_component", *_data("two_component", TRUE_TWO, EARLY, cv=0.08, rng_state=3))
     ages = np.geomspace(1, 4 * 28, 80)
     value, lo, hi = curve(fit, ages * DAY)
     x, cov = np.array(fit.x), np.array(fit.cov)
@@ -331,7 +331,7 @@ def test_hyperbolic_fit_of_noise_free_data_against_the_linearised_form():
 def test_hyperbolic_fit_and_errors_match_scipy_curve_fit():
     # Reference: scipy.optimize.curve_fit on the independent formula, the module's relative
     # weights (sigma = mean at that age), covariance s^2 (J'WJ)^-1 (absolute_sigma=False).
-    t, y = _data("hyperbolic", [8.0, 20.0], EARLY + [56, 90], cv=0.04, seed=7)
+    t, y = _data("hyperbolic", [8.0, 20.0], EARLY + [56, 90], cv=0.04, rng_state=7)
     fit = fit_model("hyperbolic", t, y)
     td, ym = t / DAY, y / MPA
     sig = np.array([ym[td == a].mean() for a in td])
@@ -349,7 +349,7 @@ def test_two_component_fit_with_held_tau_a_matches_scipy_curve_fit():
     # reference: scipy.optimize.curve_fit of the independent formula with tauA = 1/24 d fixed,
     # same relative weights, started at the truth (invented data).
     x = [1.5, 1 / 24, 10.0, 90.0, 1.2]
-    t, y = _data("two_component", x, EARLY + [56, 90, 180], cv=0.03, seed=12)
+    t, y = _data("two_component", x, EARLY + [56, 90, 180], cv=0.03, rng_state=12)
     fit = fit_model("two_component", t, y)
     assert fit.fixed == {"tau_A": 3600.0}
     td, ym = t / DAY, y / MPA

@@ -11,7 +11,7 @@ from specgen.validation import LAWS, study
 
 def test_bounded_validation_study():
     t0 = time.process_time()
-    rows = study(series=10, seed=11)
+    rows = study(series=10, rng_state=11)
     assert time.process_time() - t0 < 60
     assert {r.law for r in rows} == set(LAWS) and len(rows) == 2 * len(LAWS)
     for r in rows:
