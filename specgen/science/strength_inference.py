@@ -19,10 +19,9 @@ information about the curve, each with variance ``σb² + σw²/n_i``.
   ``(MS_lof - σw²)/n̄``, combined with the prior the same way; from the prior alone when
   the ages leave no degrees of freedom for it;
 * the curve: the mode of the posterior ``-ln p = ½Σ(ȳ_i - ln f_i)²/v_i + ½Σ((h_k - μ_k)/s_k)²``
-  (prior on logit φ, ln τA, ln τS, ln b and, melded in, ln f(365)/f(28): see
-  :mod:`~specgen.science.strength_priors`; flat on ln F), found by
-  ``scipy.optimize.least_squares``; its covariance by the Laplace approximation, the inverse
-  of the Gauss-Newton Hessian at the mode (:func:`laplace_fit`);
+  (prior on logit φ, ln τA, ln τS, ln b and, melded in (``strength_priors``), ln f(365)/f(28);
+  flat on ln F), found by ``scipy.optimize.least_squares``; its covariance by the Laplace
+  approximation, the inverse of the Gauss-Newton Hessian at the mode (:func:`laplace_fit`);
 * the posterior itself, not its linearisation: from a short record the law is far from linear
   in its parameters over the range the prior allows (a 28-day record hardly sees the slow
   stage), so the normal approximation misplaces the band at 90 and 365 days.  The intervals
@@ -72,10 +71,7 @@ KEPT = 1000    # equally weighted draws kept after resampling (about the effecti
 NODES = 48     # a longer list of ages (a curve) takes the band's offsets from ln f at this many
                # log-spaced ages, interpolated in ln t (the offsets vary slowly with age)
 GAIN_AGES_D = (28.0, 365.0)
-PREDICTIVE_REPEATS = 4   # Student-t variates per kept draw in the predictive mixture (stratified);
-                         # with one, the Monte Carlo error of the mixture's 97.5 % quantile (about
-                         # 2 % at 1000 draws) could put it below the mean band's where a wide
-                         # posterior dwarfs the new batch's scatter (a 28-day natural-cement record)
+PREDICTIVE_REPEATS = 4   # t variates per draw (stratified); one let MC error cross the mean band
 
 
 # ---------------------------------------------------------------- the fit
