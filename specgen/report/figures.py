@@ -29,6 +29,47 @@ def to_svg(fig) -> bytes:
     return buf.getvalue()
 
 
+#: what a placeholder says while its figure is drawn, and once the drawing failed
+BEING_DRAWN = ("is being drawn", "It takes its place here when it is ready.")
+NOT_DRAWN = ("could not be drawn", "The notice at the top of the page says why.")
+
+
+def not_drawn(placeholder_svg: bytes) -> bytes:
+    """The placeholder of a figure whose drawing failed: it says so instead."""
+    text = placeholder_svg.decode("utf-8")
+    for now, then in zip(BEING_DRAWN, NOT_DRAWN):
+        text = text.replace(now, then)
+    return text.encode("utf-8")
+
+
+def formula_placeholder() -> bytes:
+    """What stands for a formula until it is drawn: a line of text in a dashed frame."""
+    return ('<svg xmlns="http://www.w3.org/2000/svg" width="230" height="26" '
+            f'viewBox="0 0 230 26"><title>This formula {BEING_DRAWN[0]}</title>'
+            '<rect x="1" y="1" width="228" height="24" fill="#f4f1ea" stroke="#8a7250" '
+            'stroke-dasharray="5 4"/><text x="10" y="18" font-family="DejaVu Sans, sans-serif" '
+            f'font-size="12" fill="#3b2f22">This formula {BEING_DRAWN[0]}</text></svg>'
+            ).encode("utf-8")
+
+
+def placeholder(n: int, caption: str) -> bytes:
+    """What stands in a page for figure ``n`` until it is drawn (the live preview shows its
+    pages first): a framed box saying so, with the caption; plain SVG, no matplotlib."""
+    import html
+    import textwrap
+    lines = [f"Figure {n} {BEING_DRAWN[0]}", *textwrap.wrap(caption, 84)[:3], BEING_DRAWN[1]]
+    height = 36 + 22 * len(lines)
+    bold = ' font-size="15" font-weight="bold"'
+    texts = "".join(f'<text x="24" y="{40 + 22 * i}"{bold if i == 0 else ""}>'
+                    f'{html.escape(line)}</text>' for i, line in enumerate(lines))
+    return (f'<svg xmlns="http://www.w3.org/2000/svg" width="720" height="{height}" '
+            f'viewBox="0 0 720 {height}"><title>{html.escape(lines[0])}</title>'
+            f'<rect x="1" y="1" width="718" height="{height - 2}" fill="#f4f1ea" '
+            f'stroke="#8a7250" stroke-width="2" stroke-dasharray="8 6"/>'
+            f'<g font-family="DejaVu Sans, sans-serif" font-size="13" fill="#3b2f22">{texts}</g></svg>'
+            ).encode("utf-8")
+
+
 #: the ages a strength record is read at (test ages of EN 1015-11 and the later ages a
 #: natural cement needs, DOMAIN.md §1), used as the ticks of every age axis
 AGE_TICKS_D = (1, 3, 7, 14, 28, 56, 90, 180, 365, 730, 1825, 3650)
