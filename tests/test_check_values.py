@@ -24,9 +24,8 @@ def by(results):
 
 
 @pytest.fixture(scope="module")
-def demo():
-    from tests.conftest import DEMO
-    return check(DEMO)
+def demo(demo_checked):
+    return demo_checked
 
 
 # ---------------------------------------------------------------- SPEC-COST

@@ -31,13 +31,14 @@ def run_check(cli, project) -> str:
     return result.output
 
 
-def render_spec(project_dir):
-    """The specification page and its exports, rendered alone (no figures, no build)."""
+def render_spec(project_dir=None, checked=None):
+    """The specification page and its exports, rendered alone (no figures, no build), of
+    ``project_dir`` checked here or of an already ``checked`` (project, results)."""
     from specgen.report.mathsvg import MathAssets
     from specgen.report.pageset import PageSet
     from specgen.report.render import RenderEnv, template_env
     from specgen.report.specification_chapters import specification
-    project, results = check(project_dir)
+    project, results = checked if checked is not None else check(project_dir)
     pages = PageSet()
     env = RenderEnv(project, results, pages, MathAssets(pages))
     ctx = specification(env)
@@ -113,8 +114,8 @@ def test_clean_choice_passes_and_missing_choice_is_flagged(demo_copy):
     assert "selected_mix" not in r.quantities["Z3"]
 
 
-def test_results_names_selection_and_hold_points(demo_copy):
-    _, r = check(demo_copy)
+def test_results_names_selection_and_hold_points(demo_checked):
+    _, r = demo_checked
     d = r.to_dict()["quantities"]
     assert {z: d[z]["selected_mix"]["value"] for z in ("Z1", "Z2", "Z3")} == \
         {"Z1": "M2", "Z2": "M2", "Z3": "M3"}
@@ -138,8 +139,8 @@ def test_without_specification_file_nothing_is_selected(demo_copy):
 
 
 # ------------------------------------------------------------------ clauses
-def test_clause_numbers_are_the_check_limits(demo_copy):
-    text, pages, r = render_spec(demo_copy)
+def test_clause_numbers_are_the_check_limits(demo_checked):
+    text, pages, r = render_spec(checked=demo_checked)
     c = by(r)
     md = pages.downloads["exports/WEP-2026-R3-Z1-specification.md"].decode()
     acc = r.quantities["M2"]["acceptance"].value
@@ -185,10 +186,10 @@ def test_clauses_follow_a_changed_requirement_and_rule(demo_copy):
                                  "season") for i in inputs)
 
 
-def test_clauses_name_the_exposure_and_the_durability_tests_as_hold_points(demo_copy):
+def test_clauses_name_the_exposure_and_the_durability_tests_as_hold_points(demo_checked):
     """Each zone's clauses carry its exposure class and, as hold points, the tests the
-    durability checks asked for its chosen mix (EN 1996-1-1 Annex A classes, memory)."""
-    text, _, r = render_spec(demo_copy)
+    durability checks asked for its chosen mix (EN 1996-2 Annex A classes, memory)."""
+    text, _, r = render_spec(checked=demo_checked)
     flat = " ".join(text.split())
     assert "The work is in exposure class MX4 with MX3.2" in flat
     for t in r.quantities["Z3"]["durability_tests"].value:
