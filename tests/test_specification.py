@@ -305,6 +305,33 @@ def test_hold_point_released_earlier_cannot_silently_reopen(demo_copy):
         {"R2": "released", "R3": "open"}
 
 
+def test_hold_points_counted_from_the_demo_file(demo_checked):
+    # demo specification.yaml, read by hand: HP1 to HP5; HP1 released in R3, the other four
+    # open (no state given: open); no earlier revision has a specification.yaml, so no
+    # carry-over notes and the result is for information
+    _, r = demo_checked
+    res = by(r)[("SPEC-HOLD", "WEP-2026")]
+    assert (res.status, res.value, res.notes) == ("info", 4, ())
+    assert res.message == "5 hold point(s): 1 released (HP1 in R3), 4 open (HP2, HP3, HP4, HP5)"
+    assert res.steps[0].substituted == r"\mathrm{released}: 1,\ \mathrm{open}: 4"
+    assert [i.value for i in res.steps[0].inputs] == \
+        ["R3 released", "R3 open", "R3 open", "R3 open", "R3 open"]
+
+
+def test_hold_point_released_in_another_revision_is_noted(demo_copy):
+    # R2's file says HP1 was released in R2; the current file says R3: both cannot be true
+    _archive_spec(demo_copy, "R2", EARLIER.replace(
+        "released_by: reviewer}", "released_by: reviewer, state: released, released_in: R2, "
+        "evidence: panel TP2 accepted}"))
+    _, r = check(demo_copy)
+    res = by(r)[("SPEC-HOLD", "WEP-2026")]
+    assert res.status == "attention"
+    assert res.notes == ("HP1 was released in R2 according to R2, but in R3 according to R3",
+                         "HP9 of R2 is no longer listed: say why it was withdrawn")
+    assert r.quantities["WEP-2026"]["hold_points"].value["HP1"]["history"] == \
+        {"R2": "released", "R3": "released"}
+
+
 # ------------------------------------------------------------------ bad input
 @pytest.mark.parametrize("old, new, message", [
     ("  - zone: Z3\n    mix: M3", "  - zone: Z3\n    mix: M9",

@@ -6,6 +6,7 @@ Usage (from the repository root; mutmut is in the ``test`` extra)::
     python3 tools/mutation.py science --modules grading oxides
     python3 tools/mutation.py checks --modules works_checks works_common
     python3 tools/mutation.py report science             # the figures of the last run
+    python3 tools/mutation.py recheck checks --workdir W  # survivors against today's tests
 
 Each scope runs in its own scratch copy of the repository (``--workdir``, default
 ``/tmp/specgen-mutation/<scope>``) so that mutmut's ``mutants/`` folder never lands in the
@@ -199,11 +200,44 @@ def survivors(scope: str, workdir: Path) -> list[str]:
     return out
 
 
+def recheck(scope: str, workdir: Path, tests: list[str] = ()) -> int:
+    """Run each surviving mutant of a finished run again against the tests as they are now
+    (the working tree's ``tests/`` copied into the scratch copy first): a mutant that a test
+    added since the run kills is recorded as killed (exit code 1) in mutmut's meta file.
+    ``tests`` narrows what runs (default: the run's selection); returns how many were killed.
+    """
+    mutants = workdir / "mutants"
+    for dst in (workdir / "tests", mutants / "tests"):
+        shutil.rmtree(dst, ignore_errors=True)
+        shutil.copytree(REPO / "tests", dst, ignore=shutil.ignore_patterns("__pycache__", "*.pyc"))
+    root = mutants / SCOPES[scope]["package"]
+    env = {k: v for k, v in os.environ.items() if k != "PYTHONPATH"}
+    killed = 0
+    for meta in sorted(root.glob("*.py.meta")):
+        data = json.loads(meta.read_text("utf-8"))
+        module = meta.name[:-len(".py.meta")]
+        selection = tests_for(scope, [module], tests)
+        for name, code in sorted(data["exit_code_by_key"].items()):
+            if code != 0:
+                continue
+            done = subprocess.run(
+                [sys.executable, "-m", "pytest", "-x", "-q", "-p", "no:cacheprovider",
+                 "-p", "no:randomly", "-m", "not e2e", *selection],
+                cwd=mutants, env={**env, "MUTANT_UNDER_TEST": name},
+                stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+            print(f"{name}: {'killed' if done.returncode == 1 else 'survived'}", flush=True)
+            if done.returncode == 1:
+                data["exit_code_by_key"][name] = 1
+                killed += 1
+                meta.write_text(json.dumps(data), "utf-8")
+    return killed
+
+
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.split("\n")[0])
-    ap.add_argument("scope", choices=[*SCOPES, "report", "survivors"])
+    ap.add_argument("scope", choices=[*SCOPES, "report", "survivors", "recheck"])
     ap.add_argument("target", nargs="?", choices=list(SCOPES),
-                    help="for report/survivors: which scope")
+                    help="for report/survivors/recheck: which scope")
     ap.add_argument("--modules", nargs="*", default=[],
                     help="module names (e.g. grading works_checks); default all")
     ap.add_argument("--tests", nargs="*", default=[],
@@ -212,11 +246,15 @@ def main(argv=None) -> int:
     ap.add_argument("--jobs", type=int, default=1)
     ap.add_argument("--workdir", type=Path, default=None)
     a = ap.parse_args(argv)
-    scope = a.target if a.scope in ("report", "survivors") else a.scope
+    scope = a.target if a.scope in ("report", "survivors", "recheck") else a.scope
     if scope is None:
         ap.error("say which scope: science or checks")
     workdir = a.workdir or Path("/tmp/specgen-mutation") / scope
     if a.scope == "report":
+        report(scope, workdir)
+        return 0
+    if a.scope == "recheck":
+        print(f"killed on recheck: {recheck(scope, workdir, a.tests)}")
         report(scope, workdir)
         return 0
     if a.scope == "survivors":
