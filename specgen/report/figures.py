@@ -52,22 +52,18 @@ def formula_placeholder() -> bytes:
             ).encode("utf-8")
 
 
-def placeholder(n: int, caption: str) -> bytes:
+def placeholder(n: int) -> bytes:
     """What stands in a page for figure ``n`` until it is drawn (the live preview shows its
-    pages first): a framed box saying so, with the caption; plain SVG, no matplotlib."""
-    import html
-    import textwrap
-    lines = [f"Figure {n} {BEING_DRAWN[0]}", *textwrap.wrap(caption, 84)[:3], BEING_DRAWN[1]]
-    height = 36 + 22 * len(lines)
-    bold = ' font-size="15" font-weight="bold"'
-    texts = "".join(f'<text x="24" y="{40 + 22 * i}"{bold if i == 0 else ""}>'
-                    f'{html.escape(line)}</text>' for i, line in enumerate(lines))
-    return (f'<svg xmlns="http://www.w3.org/2000/svg" width="720" height="{height}" '
-            f'viewBox="0 0 720 {height}"><title>{html.escape(lines[0])}</title>'
-            f'<rect x="1" y="1" width="718" height="{height - 2}" fill="#f4f1ea" '
-            f'stroke="#8a7250" stroke-width="2" stroke-dasharray="8 6"/>'
-            f'<g font-family="DejaVu Sans, sans-serif" font-size="13" fill="#3b2f22">{texts}</g></svg>'
-            ).encode("utf-8")
+    pages first): a framed box saying so (the caption stands under it already); plain SVG,
+    no matplotlib; small, so that its words stay legible on a phone's width."""
+    lines = [f"Figure {n} {BEING_DRAWN[0]}", BEING_DRAWN[1]]
+    return ('<svg xmlns="http://www.w3.org/2000/svg" width="420" height="84" '
+            f'viewBox="0 0 420 84"><title>{lines[0]}</title>'
+            '<rect x="1" y="1" width="418" height="82" fill="#f4f1ea" stroke="#8a7250" '
+            'stroke-width="2" stroke-dasharray="8 6"/>'
+            '<g font-family="DejaVu Sans, sans-serif" fill="#3b2f22">'
+            f'<text x="20" y="36" font-size="16" font-weight="bold">{lines[0]}</text>'
+            f'<text x="20" y="60" font-size="13">{lines[1]}</text></g></svg>').encode("utf-8")
 
 
 #: the ages a strength record is read at (test ages of EN 1015-11 and the later ages a

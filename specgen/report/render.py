@@ -95,7 +95,7 @@ class RenderEnv:
         if isinstance(svg, Later):   # not drawn yet (cache.drawing_later): a placeholder
             from specgen.report.figures import placeholder
             if path not in self.pageset.drawing:
-                self.pageset.add_placeholder(path, placeholder(n, caption), svg.draw)
+                self.pageset.add_placeholder(path, placeholder(n), svg.draw)
         else:
             self.pageset.add_asset(path, svg)
         return {"src": path, "caption": caption, "alt": alt, "n": n}
