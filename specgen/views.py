@@ -67,6 +67,21 @@ def applicable(results, project, zone_id: str, mix_id: str) -> list:
     return [r for r in results if r.subject in subjects and not r.code.startswith("SPEC-")]
 
 
+#: How the dossier names each binder family (materials.yaml ``type``): the trade's names, the
+#: limes by their EN 459-1 notation.  The one table: a check writing a family into its text
+#: and a chapter showing one both read it here, so no key ("nhl", "air_lime") reaches a reader.
+FAMILY_WORDS = {"natural_cement": "natural cement", "nhl": "natural hydraulic lime (NHL)",
+                "fl": "formulated lime (FL)", "hl": "hydraulic lime (HL)", "air_lime": "air lime",
+                "portland": "Portland cement", "pozzolan": "pozzolan"}
+
+
+def family_words(*families: str) -> str:
+    """The binder ``families`` (materials.yaml ``type`` keys) as a reader reads them, joined
+    with commas: ``family_words("nhl", "portland")`` → "natural hydraulic lime (NHL),
+    Portland cement".  A key the table lacks reads with spaces for its underscores."""
+    return ", ".join(FAMILY_WORDS.get(f, str(f).replace("_", " ")) for f in families)
+
+
 # the key of the gauging water among a mix's constituents (quantities and schedules)
 WATER = "water"
 
