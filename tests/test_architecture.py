@@ -84,7 +84,7 @@ def test_every_science_error_has_the_one_base():
         module = importlib.import_module(f"specgen.science.{info.name}")
         found += [cls for _, cls in inspect.getmembers(module, inspect.isclass)
                   if issubclass(cls, Exception) and cls.__module__ == module.__name__]
-    assert len(found) == 13  # twelve modules' errors and the extrapolation refusal
+    assert len(found) == 12  # twelve modules' errors
     assert all(issubclass(cls, ScienceInputError) for cls in found), found
     assert issubclass(ScienceInputError, SpecgenError) and issubclass(ScienceInputError, ValueError)
 

@@ -29,8 +29,12 @@ def demo(tmp_path_factory):
 # ---------------------------------------------------------------- exposure
 def test_exposure_class_of_each_demo_zone(demo):
     r = by_check(demo)
-    # EN 1996-1-1 Annex A (from memory): sea spray/splash → MX4; moisture + frost → MX3.1,
-    # severe wetting + frost → MX3.2 (demo: freezing site, -4 °C)
+    # EN 1996-2:2006, 2.1.2.1 (3): MX4 "exposed to saturated salt air or seawater", MX3
+    # "moisture or wetting plus freeze/thaw cycling" (read in a copy not cited, so still
+    # memory); the sub-classes of its Annex A from memory: moisture + frost → MX3.1, severe
+    # wetting + frost → MX3.2 (demo: freezing site, -4 °C)
+    assert (r[("DUR-EXPOSE", "Z1")].basis[0].ref, r[("DUR-EXPOSE", "Z1")].basis[0].clause) == (
+        "en1996_2", "2.1.2.1 (3) and Annex A, Table A.1")
     assert {z: r[("DUR-EXPOSE", z)].value for z in ("Z1", "Z2", "Z3")} == {
         "Z1": "MX4 with MX3.1", "Z2": "MX4 with MX3.2", "Z3": "MX4 with MX3.2"}
     z3 = r[("DUR-EXPOSE", "Z3")]
@@ -51,7 +55,7 @@ def test_exposure_conditions_win_over_the_text(demo_copy):
           "    exposure: tidal splash zone\n    exposure_conditions: [submerged]\n")
     _, r = check(demo_copy)
     c = by_check(r)[("DUR-EXPOSE", "Z3")]
-    assert c.value == "MX4 with MX2.2"     # immersed: not cycled by frost (EN 1996-1-1, memory)
+    assert c.value == "MX4 with MX2.2"     # immersed: not cycled by frost (EN 1996-2 Annex A, memory)
     assert c.steps[0].inputs[0].source == "dossier.yaml Z3.exposure_conditions: exposure_conditions"
     assert by_check(r)[("DUR-FROST", "Z3/M3")].status == "pass"
 
@@ -157,7 +161,7 @@ def test_passed_frost_test_with_too_little_air_is_attention(demo_copy):
 
 
 def test_moderate_frost_deemed_to_satisfy_only_on_measured_indicators(demo_copy):
-    # sheltered, no salt: MX3.1 with frost, the moderate regime (EN 1996-1-1 Annex A, memory)
+    # sheltered, no salt: MX3.1 with frost, the moderate regime (EN 1996-2 Annex A, memory)
     edit(demo_copy / "dossier.yaml", "    exposure: sheltered harbour side, occasional spray\n",
           "    exposure: sheltered harbour side, occasional spray\n"
           "    exposure_conditions: [sheltered]\n")
@@ -588,7 +592,7 @@ def test_american_practice_names_the_c270_location(demo_copy, monkeypatch):
     # ASTM C270 Table X1.1 (from memory): at or below grade → type S (alternatives M, N)
     assert c.message == (
         "exterior, at or below grade (foundation and retaining walls, manholes, sewers, "
-        "pavements): type S recommended (alternatives M, N); weathering severe (EN 1996-1-1 "
+        "pavements): type S recommended (alternatives M, N); weathering severe (EN 1996-2 "
         "equivalent MX4 with MX3.2)")
     assert c.basis[0].ref == "astmc270"
     assert by_check(r)[("DUR-EXPOSE", "Z2")].message.startswith(

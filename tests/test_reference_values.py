@@ -75,6 +75,38 @@ def test_c144_gradation_as_printed_in_1993():
     assert envs["astm_c144_natural"]["tag"] == "memory"
 
 
+def test_en1990_table_d1_as_an_open_library_gives_it():
+    # EN 1990 Table D1, 'Values of k_n for the 5% characteristic value', as the open-source
+    # library pamd_eurocodes (version 0.3.0, eurocode_0.Tables,
+    # values_of_kn_for_the_5p_characteristic_value; references.json pamd_eurocodes) gives it:
+    #   n            1     2     3     4     5     6     8     10    20    30    inf
+    #   Vx known     2.31  2.01  1.89  1.83  1.80  1.77  1.74  1.72  1.68  1.67  1.64
+    #   Vx unknown   -     -     3.37  2.63  2.33  2.18  2.00  1.92  1.76  1.73  1.64
+    n = [1, 2, 3, 4, 5, 6, 8, 10, 20, 30, float("inf")]
+    known = [2.31, 2.01, 1.89, 1.83, 1.80, 1.77, 1.74, 1.72, 1.68, 1.67, 1.64]
+    unknown = [None, None, 3.37, 2.63, 2.33, 2.18, 2.00, 1.92, 1.76, 1.73, 1.64]
+    with refdata.unrecorded():
+        table = refdata.load("en1990_kn")
+    assert (table.data["n"], table.data["vx_known"], table.data["vx_unknown"]) == (
+        n, known, unknown)
+    # read in a public library, so no longer tagged memory
+    assert table.tag == "" and table.extra["read_in"] == "pamd_eurocodes"
+    assert "pamd_eurocodes" in library() and "from memory" not in table.notes
+
+
+def test_exposure_classes_are_located_in_eurocode_6_part_2():
+    # EN 1996-2:2006, 2.1.2.1 (3), lists MX1 ... MX5 and refers to its Annex A for the
+    # sub-classes (read only in a copy that is not cited): the table names that part, not
+    # EN 1996-1-1, and stays tagged memory until the sub-class wording is read.
+    with refdata.unrecorded():
+        table = refdata.load("exposure_classes")
+    assert table.source.startswith("EN 1996-2:2006, 2.1.2.1 (3)") and table.tag == "memory"
+    assert "1996-1-1" not in table.source
+    assert library()["en1996_2"]["number"] == "EN 1996-2"
+    assert set(table.data["european"]) == {"MX1", "MX2.1", "MX2.2", "MX3.1", "MX3.2", "MX4",
+                                           "MX5"}
+
+
 def test_density_of_water_is_the_iapws95_value():
     # reference: the iapws package (a reference implementation of IAPWS-95), liquid water at
     # 293.15 K and 0.101325 MPa: 998.207 kg/m³
@@ -95,6 +127,10 @@ def test_every_summary_a_value_was_read_in_is_in_the_bibliography():
         for key, env in refdata.load("grading_envelopes").data.items():
             if env.get("read_in"):
                 assert env["read_in"] in library(), key
+        for p in sorted(refdata.DATA_DIR.glob("*.yaml")):     # a table read as a whole
+            read_in = refdata.load(p.stem).extra.get("read_in")
+            if read_in:
+                assert read_in in library(), p.name
 
 
 def test_a_web_page_shows_its_address_and_the_day_it_was_read():

@@ -187,7 +187,7 @@ def test_clauses_follow_a_changed_requirement_and_rule(demo_copy):
 
 def test_clauses_name_the_exposure_and_the_durability_tests_as_hold_points(demo_copy):
     """Each zone's clauses carry its exposure class and, as hold points, the tests the
-    durability checks asked for its chosen mix (EN 1996-1-1 Annex A classes, memory)."""
+    durability checks asked for its chosen mix (EN 1996-2 Annex A classes, memory)."""
     text, _, r = render_spec(demo_copy)
     flat = " ".join(text.split())
     assert "The work is in exposure class MX4 with MX3.2" in flat

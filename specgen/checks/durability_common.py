@@ -92,4 +92,4 @@ def binder_types(mix, project) -> list[tuple[str, str]]:
             if b.binder in project.binders]
 
 
-PRACTICE_BASIS = Basis("reference", "en1996", "Annex A, Table A.1")
+PRACTICE_BASIS = Basis("reference", "en1996_2", "2.1.2.1 (3) and Annex A, Table A.1")

@@ -2,7 +2,7 @@
 
 * DUR-EXPOSE (zone): the zone's conditions (``exposure_conditions``, else the words of its
   ``exposure`` text) with their wetting and salt sources, the site's frost, and the class:
-  EN 1996-1-1 Annex A micro conditions in European practice (MX4 with MX3.2 …), the
+  EN 1996-2 micro conditions (2.1.2.1, Annex A) in European practice (MX4 with MX3.2 …), the
   ASTM C270 Table X1.1 location and a weathering severity in American practice.
 * DUR-FROST (zone × candidate): where the class carries freeze–thaw, the mortar must show
   a freeze–thaw test of the regime the class asks for (cycles, mass and strength loss, rules
@@ -89,7 +89,7 @@ def exposure_check(zone, ctx) -> CheckResult:
         basis = [Basis("reference", "astmc270", "Appendix X1, Table X1.1")]
         text = (f"{loc['location']}: type {loc['recommended']} recommended (alternatives "
                 f"{', '.join(loc['alternatives'])}); weathering {q['american']['weathering']} "
-                f"(EN 1996-1-1 equivalent {ec.designation})")
+                f"(EN 1996-2 equivalent {ec.designation})")
     # a class wording still tagged memory is listed on the Values to confirm page, not here
     notes = [said, f"class wording: {refdata.shown(table.source, table.tag)}"]
     status = "info"

@@ -1,6 +1,6 @@
 """Exposure of masonry: from a zone's conditions to its class, with the reasoning.
 
-European practice: the micro conditions of EN 1996-1-1 Annex A (MX1 dry; MX2 wetting,
+European practice: the micro conditions of EN 1996-2, 2.1.2.1 and Annex A (MX1 dry; MX2 wetting,
 MX2.1 moisture / MX2.2 severe wetting; MX3 the same plus freeze–thaw, MX3.1 / MX3.2;
 MX4 salt air, sea water or de-icing salts; MX5 aggressive chemicals).  MX4 and MX5 name
 the salt or chemical source; the wetting and freeze–thaw sub-class is kept beside them
@@ -36,7 +36,7 @@ class ExposureClass:
 
 
 def classify(conditions, vocabulary: dict, freezing: bool | None) -> ExposureClass:
-    """The EN 1996-1-1 micro condition of a zone from its conditions and the site's frost."""
+    """The EN 1996-2 micro condition of a zone from its conditions and the site's frost."""
     if not conditions:
         raise ValueError("no exposure condition given")
     reasons, wet, sea, aggressive, cycled = [], 0, [], False, True

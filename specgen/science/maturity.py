@@ -1,7 +1,8 @@
-"""Maturity: equivalent age from a temperature history, and strength in the wall.
+"""Maturity: equivalent age from a temperature history (the strength in the wall at that
+age is read from the strength inference, :mod:`specgen.science.strength_inference`).
 
 SI units: times in s, temperatures in K, activation energy in J/mol, the Nurse-Saul
-temperature-time factor in K·s, strengths in Pa.
+temperature-time factor in K·s.
 
 * Arrhenius equivalent age [ASTM C1074]: ``te = Σ exp[-(E/R)(1/Ta - 1/Tref)]·Δt`` with Ta
   the average temperature of each interval (mean of its two end readings).
@@ -18,13 +19,11 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
 
 import numpy as np
-from scipy import constants, optimize
+from scipy import constants
 
 from specgen.errors import ScienceInputError
-from specgen.science.strength_models import DAY, MAX_EXTRAPOLATION, FitResult, curve
 
 R = constants.R                       # J/(mol·K), CODATA via scipy
 _ZERO_C = constants.zero_Celsius      # 273.15 K
@@ -33,17 +32,6 @@ VALID_RANGE_K = (_ZERO_C - 10.0, _ZERO_C + 60.0)
 
 class MaturityInputError(ScienceInputError):
     """A temperature history or parameter the maturity method cannot use."""
-
-
-@dataclass(frozen=True)
-class EarliestTime:
-    """When a target strength is first reached in the wall (None: not reached)."""
-
-    time: float | None               # s, on the axis of the given history
-    equivalent_age: float | None     # s at the reference temperature
-    reached: bool
-    reason: str
-    basis: str
 
 
 def _history(times_s, temps_k, valid_range) -> tuple[np.ndarray, np.ndarray]:
@@ -135,75 +123,6 @@ def equivalent_age(times_s, temps_k, *, method: str, activation_energy=None,
     if method == "nurse_saul":
         raise MaturityInputError("the Nurse-Saul method needs a datum temperature (K)")
     raise MaturityInputError(f"unknown method '{method}'; use 'arrhenius' or 'nurse_saul'")
-
-
-def in_wall_strength(fit: FitResult, te_s: np.ndarray, level: float = 0.95,
-                     max_factor: float = MAX_EXTRAPOLATION):
-    """(value, lower, upper, assessed) arrays in Pa at equivalent ages ``te_s`` (s).
-
-    The fit's ages are read as equivalent ages at Tref (lab curing at Tref).  Points the
-    model cannot speak for (te = 0 or outside ``max_factor`` of the tested ages) are not
-    assessed: their values are 0 and ``assessed`` is False there.
-    """
-    te = np.asarray(te_s, float).ravel()
-    ok = (te >= fit.age_min / max_factor) & (te <= fit.age_max * max_factor)
-    out = [np.zeros(te.size) for _ in range(3)]
-    if ok.any():
-        for arr, part in zip(out, curve(fit, te[ok], level, max_factor)):
-            arr[ok] = part
-    return out[0], out[1], out[2], ok
-
-
-def earliest_time(fit: FitResult, target_pa: float, times_s: Sequence[float],
-                  te_s: Sequence[float], *, conservative: bool = True, level: float = 0.95,
-                  max_factor: float = MAX_EXTRAPOLATION) -> EarliestTime:
-    """First time on the history at which ``target_pa`` is reached in the wall.
-
-    ``te_s`` is the equivalent age at each of ``times_s`` (from :func:`equivalent_age`).
-    Conservative (default): the lower edge of the ``level`` band must reach the target;
-    otherwise the central estimate.  Solved by scanning equivalent age for the first sign
-    change and refining with Brent's method; time follows by linear interpolation, exact
-    because the rate is constant within each interval.
-    """
-    t, te = np.asarray(times_s, float).ravel(), np.asarray(te_s, float).ravel()
-    if t.size != te.size or t.size < 2 or np.any(np.diff(te) < 0):
-        raise MaturityInputError("times and equivalent ages must pair up and not decrease")
-    if not math.isfinite(target_pa) or target_pa <= 0:
-        raise MaturityInputError(f"target strength must be > 0 Pa; got {target_pa}")
-    which = "lower band edge" if conservative else "central estimate"
-    basis = (f"{fit.title}; {which} ({level:.0%} delta-method band) at the equivalent age")
-    lo_te, hi_te = fit.age_min / max_factor, min(te[-1], fit.age_max * max_factor)
-    if hi_te <= lo_te:
-        return EarliestTime(None, None, False, "the history is too short for the model to "
-                            "speak for (equivalent age below the allowed range)", basis)
-
-    def gap(a: float) -> float:
-        v, lo, _ = curve(fit, [a], level, max_factor)
-        return float((lo if conservative else v)[0]) - target_pa
-
-    grid = np.geomspace(lo_te, hi_te, 120)
-    v, lo, _ = curve(fit, grid, level, max_factor)      # one vectorised scan
-    g = (lo if conservative else v) - target_pa
-    if g[0] >= 0:
-        return _at(t, te, grid[0], basis, "reached at or before the earliest age the model "
-                   f"speaks for ({grid[0] / DAY:.3g} d equivalent)")
-    up = np.flatnonzero(g >= 0)
-    if up.size == 0:
-        lim = "end of the history" if hi_te == te[-1] else f"{max_factor:g}x the last test age"
-        return EarliestTime(None, None, False, f"not reached by the {lim} (equivalent age "
-                            f"{hi_te / DAY:.3g} d, {which} {(g[-1] + target_pa) / 1e6:.3g} MPa)",
-                            basis)
-    k = int(up[0])
-    root = optimize.brentq(gap, grid[k - 1], grid[k], xtol=1.0)
-    return _at(t, te, root, basis, "reached")
-
-
-def _at(t, te, a, basis, reason) -> EarliestTime:
-    i = int(np.searchsorted(te, a, side="left"))
-    i = min(max(i, 1), te.size - 1)
-    frac = (a - te[i - 1]) / (te[i] - te[i - 1]) if te[i] > te[i - 1] else 0.0
-    time = float(t[i - 1] + frac * (t[i] - t[i - 1]))
-    return EarliestTime(time, float(a), True, reason, basis)
 
 
 def activation_energy_fhp(temp_k: float, e_ref: float, slope: float, t_split_k: float) -> float:

@@ -31,16 +31,11 @@ _MPA = 1e6                    # Pa per MPa (internal working unit)
 TAU_A_DEFAULT_S = 3600.0      # common practice: aluminate strength in place within hours
 TAU_A_BOUNDS_S = (60.0, 12 * 3600.0)   # "minutes to hours"
 EARLY_AGE_S = 0.5 * DAY       # ages below this resolve the aluminate time constant
-MAX_EXTRAPOLATION = 15.0      # refused beyond 15x the last (or below 1/15 the first) age
 _COND_LIMIT = 1e12            # JᵀJ condition number above which parameters are not separable
 
 
 class StrengthFitError(ScienceInputError):
     """The data cannot support the fit; the message says what is needed."""
-
-
-class StrengthExtrapolationError(StrengthFitError):
-    """A prediction was asked for too far outside the tested ages."""
 
 
 @dataclass(frozen=True)

@@ -1,4 +1,5 @@
-"""Strength-versus-age models: fit, compare, predict with a confidence band.
+"""Strength-versus-age models: fit and compare by AICc (the model comparison on the
+calculation sheet).
 
 API units are SI: ages in seconds (``DAY`` = 86400 s), strengths in Pa; parameter
 estimates and standard errors are reported in SI (Pa, s, dimensionless).  Internally the
@@ -12,10 +13,8 @@ amplitudes are solved exactly.  Default weights are relative (1 / mean at that a
 scatter taken proportional to strength, i.e. a constant CV); ``equal`` weights or given
 per-result standard deviations are also accepted.  Standard errors come from the Jacobian
 at the optimum, ``Cov = s²·(JᵀJ)⁻¹``.  Models are compared by AICc (Burnham & Anderson).
-The prediction band is a pointwise confidence band for the mean strength by the delta
-method, ``f ± t(1-α/2, dof)·sqrt(gᵀ·Cov·g)`` with ``g = ∂f/∂θ``, its lower edge
-clipped at zero and never falling with age (every model grows with age, so the mean at an
-age is at least the lower edge at any earlier one).
+Predictions, their intervals and the extrapolation limit are the strength inference's
+(:mod:`specgen.science.strength_inference`), not this module's.
 """
 from __future__ import annotations
 
@@ -24,13 +23,12 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import optimize, stats
+from scipy import optimize
 
 # the laws and their constants, importable from here as before
 from specgen.science.strength_laws import (  # noqa: F401
-    _COND_LIMIT, _MPA, DAY, EARLY_AGE_S, MAX_EXTRAPOLATION, MODELS, TAU_A_BOUNDS_S,
-    TAU_A_DEFAULT_S, StrengthExtrapolationError, StrengthFitError, age_function_en1992,
-    n_parameters)
+    _COND_LIMIT, _MPA, DAY, EARLY_AGE_S, MODELS, TAU_A_BOUNDS_S, TAU_A_DEFAULT_S,
+    StrengthFitError, age_function_en1992, n_parameters)
 
 
 @dataclass(frozen=True, eq=False)
@@ -57,19 +55,6 @@ class FitResult:
     x: tuple[float, ...]      # internal full parameter vector (MPa, d)
     free: tuple[bool, ...]    # parameters the covariance is estimated for
     cov: tuple[tuple[float, ...], ...]   # internal covariance of the free parameters
-
-
-@dataclass(frozen=True)
-class Prediction:
-    """Predicted mean strength (Pa) at ``age`` (s) with its confidence band."""
-
-    age: float                # s
-    value: float              # Pa (also lower, upper)
-    lower: float
-    upper: float
-    level: float              # e.g. 0.95
-    extrapolated: bool
-    method: str
 
 
 def validate_data(ages_s: Sequence[float], values_pa: Sequence[float]):
@@ -233,61 +218,6 @@ def _aicc(rss: float, n: int, p: int) -> float | None:
     return n * math.log(rss / n) + 2 * k + 2 * k * (k + 1) / (n - k - 1)
 
 
-def _check_age(fit: FitResult, age: float, max_factor: float) -> bool:
-    """True when ``age`` (s) is an extrapolation; raises beyond the allowed factor."""
-    if not math.isfinite(age) or age <= 0.0:
-        raise StrengthFitError(f"prediction age must be a positive number of seconds; got {age}")
-    if age > fit.age_max * max_factor or age < fit.age_min / max_factor:
-        raise StrengthExtrapolationError(
-            f"{age / DAY:g} d lies outside {max_factor:g}x the tested ages "
-            f"({fit.age_min / DAY:g}-{fit.age_max / DAY:g} d); predictions are limited to "
-            f"{fit.age_min / DAY / max_factor:.3g}-{fit.age_max / DAY * max_factor:g} d")
-    return age > fit.age_max * (1 + 1e-9) or age < fit.age_min * (1 - 1e-9)
-
-
-def curve(fit: FitResult, ages_s: Sequence[float], level: float = 0.95,
-          max_factor: float = MAX_EXTRAPOLATION):
-    """Arrays (value, lower, upper) in Pa at ages (s); delta-method confidence band."""
-    if not 0.0 < level < 1.0:
-        raise StrengthFitError(f"confidence level must lie between 0 and 1; got {level}")
-    a = np.atleast_1d(np.asarray(ages_s, float))
-    for age in a:
-        _check_age(fit, float(age), max_factor)
-    f, lo, hi = _band(fit, a / DAY, level)
-    # Every model here grows with age, so the mean at t is at least the mean at any earlier
-    # age: the lower edge at t is the highest lower edge at or before t (it would otherwise
-    # fall where the band widens beyond the tested ages, which no reader could believe).
-    grid = np.geomspace(min(fit.age_min / DAY, t_min := float(a.min()) / DAY),
-                        max(float(a.max()) / DAY, t_min), 256)
-    _, lo_grid, _ = _band(fit, grid, level)
-    for i, ti in enumerate(a / DAY):
-        earlier = lo_grid[grid <= ti * (1 + 1e-12)]
-        if earlier.size:
-            lo[i] = max(lo[i], float(earlier.max()))
-    return f * _MPA, lo * _MPA, hi * _MPA
-
-
-def _band(fit: FitResult, t_d: np.ndarray, level: float):
-    """(mean, lower, upper) in MPa at ages ``t_d`` (d): the pointwise delta-method band."""
-    spec, x, free = MODELS[fit.model], np.array(fit.x), np.array(fit.free)
-    f = spec.f(x, t_d)
-    g = spec.jac(x, t_d)[:, free]
-    var = np.einsum("ij,jk,ik->i", g, np.array(fit.cov), g)
-    half = stats.t.ppf(0.5 + level / 2.0, fit.dof) * np.sqrt(np.clip(var, 0.0, None))
-    return f, np.clip(f - half, 0.0, None), f + half
-
-
-def predict(fit: FitResult, age_s: float, level: float = 0.95,
-            max_factor: float = MAX_EXTRAPOLATION) -> Prediction:
-    """Mean strength (Pa) at ``age_s`` with a ``level`` confidence band (delta method)."""
-    extrap = _check_age(fit, float(age_s), max_factor)
-    v, lo, hi = curve(fit, [age_s], level, max_factor)
-    return Prediction(age=float(age_s), value=float(v[0]), lower=float(lo[0]),
-                      upper=float(hi[0]), level=level, extrapolated=extrap,
-                      method=f"delta method, t(dof = {fit.dof}) pointwise confidence band "
-                             "for the mean, lower edge clipped at 0 and not falling with age")
-
-
 def components(fit: FitResult, ages_s: Sequence[float]) -> dict[str, np.ndarray]:
     """Contributions (Pa) at ages (s): aluminate and silicate for the two-component model."""
     t = np.atleast_1d(np.asarray(ages_s, float)) / DAY
@@ -335,8 +265,6 @@ def fit_all(ages_s: Sequence[float], values_pa: Sequence[float],
     for m in models:
         try:
             fits.append(fit_model(m, ages_s, values_pa, **kw))
-        except StrengthExtrapolationError:
-            raise
         except StrengthFitError as exc:
             skipped[m] = str(exc)
     ranked = [f for f in fits if f.aicc is not None]

@@ -1,4 +1,5 @@
-"""Maturity (ASTM C1074): Arrhenius and Nurse-Saul equivalent ages, strength in the wall."""
+"""Maturity (ASTM C1074): Arrhenius and Nurse-Saul equivalent ages (the strength in the wall
+at those ages: the STR-SITE tests in tests/test_strength_checks.py)."""
 import math
 
 import numpy as np
@@ -7,10 +8,9 @@ from scipy import constants
 
 from specgen import refdata
 from specgen.science.maturity import (
-    VALID_RANGE_K, MaturityInputError, activation_energy_fhp, arrhenius_factor, earliest_time,
-    equivalent_age, equivalent_age_arrhenius, equivalent_age_nurse_saul, in_wall_strength,
-    temperature_time_factor)
-from specgen.science.strength_models import DAY, fit_model
+    VALID_RANGE_K, MaturityInputError, activation_energy_fhp, arrhenius_factor, equivalent_age,
+    equivalent_age_arrhenius, equivalent_age_nurse_saul, temperature_time_factor)
+from specgen.science.strength_laws import DAY
 
 DEF = refdata.load("maturity_defaults").data
 # 33.5 kJ/mol, Freiesleben Hansen & Pedersen (from memory)
@@ -121,38 +121,3 @@ def test_bad_method_and_energy():
         equivalent_age([0, DAY], K + 20, method="guess", t_ref_k=TREF)
     with pytest.raises(MaturityInputError, match="activation energy must be > 0"):
         arrhenius_factor(K + 20, 0.0, TREF)
-
-
-def _en1992_fit():
-    # Noise-free invented results from the EN 1992-1-1 age function, f28 = 5 MPa, s = 0.25
-    ages = np.repeat([1, 3, 7, 14, 28], 3).astype(float)
-    vals = 5.0 * np.exp(0.25 * (1 - np.sqrt(28 / ages)))
-    return fit_model("en1992_age", ages * DAY, vals * MPA)
-
-
-def test_earliest_time_at_reference_and_warm_wall():
-    fit = _en1992_fit()
-    target = 5.0 * math.exp(-0.25) * MPA      # EN 1992-1-1 eq. 3.2: 0.7788 f28 at 7 d
-    times = np.linspace(0, 60, 61) * DAY
-    te20 = equivalent_age_arrhenius(times, K + 20, activation_energy=E, t_ref_k=TREF)
-    r = earliest_time(fit, target, times, te20, conservative=False)
-    assert r.reached and r.time / DAY == pytest.approx(7.0, abs=0.01)
-    # At 30 °C the same equivalent age comes 1.57362x sooner: 7 / 1.57362 = 4.448 d
-    te30 = equivalent_age_arrhenius(times, K + 30, activation_energy=E, t_ref_k=TREF)
-    r30 = earliest_time(fit, target, times, te30, conservative=False)
-    assert r30.time / DAY == pytest.approx(4.448, abs=0.01)
-    assert r30.equivalent_age / DAY == pytest.approx(7.0, abs=0.01)
-
-
-def test_earliest_time_not_reached_and_in_wall_strength():
-    fit = _en1992_fit()
-    times = np.linspace(0, 10, 11) * DAY
-    te = equivalent_age_arrhenius(times, K + 5, activation_energy=E, t_ref_k=TREF)
-    r = earliest_time(fit, 5.0 * MPA, times, te)      # f28 not reached in 10 cold days
-    assert not r.reached and r.time is None and "not reached by the end of the history" in r.reason
-    v, lo, hi, ok = in_wall_strength(fit, te)
-    assert not ok[0] and v[0] == 0.0                  # te = 0: not assessed, no NaN
-    assert np.all(ok[1:]) and np.all(np.diff(v[1:]) > 0)
-    assert np.all(np.isfinite(np.concatenate([v, lo, hi])))
-    with pytest.raises(MaturityInputError, match="target strength must be > 0"):
-        earliest_time(fit, 0.0, times, te)

@@ -1,5 +1,5 @@
 """Strength-age models, the rules around the fit: weightings against scipy curve_fit, AICc and
-its support bands by hand, the extrapolation limits at their edges, the components, and every
+its support bands by hand, the components, and every
 refusal word for word.  Data are invented, made with the formulas written out in the test."""
 import math
 
@@ -9,8 +9,7 @@ from scipy import optimize
 
 from specgen.science import strength_models as sm
 from specgen.science.strength_models import (
-    DAY, StrengthExtrapolationError, StrengthFitError, components, curve, fit_all, fit_model,
-    predict)
+    DAY, StrengthFitError, components, fit_all, fit_model)
 
 MPA = 1e6
 AGES = [1, 3, 7, 14, 28]              # d
@@ -187,60 +186,12 @@ def test_fit_all_passes_the_weighting_and_lists_models_too_few_for_aicc():
                             "parameters"
 
 
-# ------------------------------------------------------------------ ages and the band
+# ------------------------------------------------------------------ components
 def _fit():
     t, y = _data()
     return fit_model("en1992_age", t * DAY, y * MPA)
 
 
-def test_extrapolation_limits_at_their_edges_word_for_word():
-    fit = _fit()                                          # ages 1-28 d, limit 15x
-    assert not predict(fit, 28 * DAY).extrapolated         # the last age is not beyond it
-    assert not predict(fit, 1 * DAY).extrapolated          # nor the first
-    assert predict(fit, 28 * DAY * 1.001).extrapolated
-    assert predict(fit, 1 * DAY * 0.999).extrapolated
-    assert predict(fit, 420 * DAY).extrapolated            # 15 x 28 d: allowed, on the limit
-    assert predict(fit, DAY / 15).extrapolated             # 1 d / 15: allowed, on the limit
-    with pytest.raises(StrengthExtrapolationError) as exc:
-        predict(fit, 421 * DAY)
-    assert str(exc.value) == ("421 d lies outside 15x the tested ages (1-28 d); predictions "
-                              "are limited to 0.0667-420 d")
-    with pytest.raises(StrengthExtrapolationError) as exc:
-        predict(fit, 0.5)                                  # half a second: positive, too early
-    assert str(exc.value).startswith("5.78704e-06 d lies outside 15x the tested ages (1-28 d)")
-    with pytest.raises(StrengthFitError) as exc:
-        predict(fit, 0.0)
-    assert str(exc.value) == "prediction age must be a positive number of seconds; got 0.0"
-    # a wider limit given to predict is the one used (30 x 28 d = 840 d)
-    assert predict(fit, 600 * DAY, max_factor=30).extrapolated
-
-
-def test_prediction_record_word_for_word():
-    fit = _fit()
-    p = predict(fit, 14 * DAY, level=0.9)
-    assert (p.age, p.level, p.extrapolated) == (14 * DAY, 0.9, False)
-    assert p.method == (f"delta method, t(dof = {fit.dof}) pointwise confidence band for the "
-                        "mean, lower edge clipped at 0 and not falling with age")
-    assert fit.dof == 15 - 2 and fit.n_obs == 15 and fit.n_ages == 5
-
-
-@pytest.mark.parametrize("level", [0.0, 1.0, 1.5])
-def test_band_level_refused_outside_zero_one(level):
-    with pytest.raises(StrengthFitError) as exc:
-        curve(_fit(), [7 * DAY], level=level)
-    assert str(exc.value) == f"confidence level must lie between 0 and 1; got {level}"
-
-
-def test_lower_edge_clipped_at_zero_never_negative():
-    # three ages, one result each, scattered (invented): the band at 1/15 of the first age
-    # is wider than the mean, so its lower edge is 0, not below (strength is not negative)
-    fit = fit_model("hyperbolic", np.array([1.0, 3.0, 28.0]) * DAY,
-                    np.array([0.4, 2.9, 3.0]) * MPA, weighting="equal")
-    v, lo, hi = curve(fit, [DAY / 15])
-    assert lo[0] == 0.0 and v[0] > 0 and hi[0] > v[0]
-
-
-# ------------------------------------------------------------------ components
 def test_components_of_a_one_term_model_are_its_formula():
     fit = _fit()
     f28, s = fit.params["f28"] / MPA, fit.params["s"]

@@ -1,4 +1,4 @@
-"""Strength-age models: EN 1992-1-1 age function, WLS fits, bands, AICc, refusals."""
+"""Strength-age models: EN 1992-1-1 age function, WLS fits, standard errors, AICc, refusals."""
 import math
 
 import numpy as np
@@ -7,8 +7,7 @@ from scipy import optimize, stats
 
 from specgen.science import strength_models as sm
 from specgen.science.strength_models import (
-    DAY, StrengthExtrapolationError, StrengthFitError, age_function_en1992, components, curve,
-    fit_all, fit_model, predict)
+    DAY, StrengthFitError, age_function_en1992, components, fit_all, fit_model)
 
 MPA = 1e6
 EARLY = [1, 3, 7, 14, 28]                # d, the usual test ages up to 28 d
@@ -58,13 +57,14 @@ def test_en1992_age_function(s, t_d, beta):
 
 
 def test_en1992_fit_recovers_exact_parameters_and_eq_3_2():
-    # Noise-free data from f28 = 5 MPa, s = 0.25: the fit returns them, and the prediction
+    # Noise-free data from f28 = 5 MPa, s = 0.25: the fit returns them, and the fitted curve
     # at 7 d is 0.7788 * 5 = 3.894 MPa (EN 1992-1-1 eq. 3.2, by hand above).
     t, y = _data("en1992_age", [5.0, 0.25], EARLY, cv=0.0)
     fit = fit_model("en1992_age", t, y)
     assert fit.params["f28"] / MPA == pytest.approx(5.0, rel=1e-4)
     assert fit.params["s"] == pytest.approx(0.25, rel=1e-4)
-    assert predict(fit, 7 * DAY).value / MPA == pytest.approx(3.894, abs=1e-3)
+    assert sm.MODELS["en1992_age"].f(np.array(fit.x), np.array([7.0]))[0] == \
+        pytest.approx(3.894, abs=1e-3)
 
 
 def test_standard_errors_match_scipy_curve_fit():
@@ -92,25 +92,6 @@ def test_hyperbolic_fit_recovers_parameters():
     assert abs(fit.params["f_inf"] / MPA - 8.0) < 3 * fit.std_errors["f_inf"] / MPA
 
 
-@pytest.mark.parametrize("model, x, ages", [
-    ("en1992_age", [5.0, 0.3], EARLY),
-    ("hyperbolic", [8.0, 20.0], EARLY),
-    ("two_component", [1.5, 1 / 24, 10.0, 90.0, 1.2], EARLY + [56, 90]),
-])
-def test_confidence_band_coverage_over_200_random_states(model, x, ages):
-    # Definition of a 95 % confidence band: over repeated samples the true mean curve lies
-    # inside it about 95 % of the time.  200 random states: binomial SE 1.5 points; the delta
-    # method is approximate, so the window is 0.85-0.99 at 28 d and up to 4x the last age.
-    at = np.array([28.0, 2 * ages[-1], 4 * ages[-1]])
-    truth = TRUTH[model](x, at) * MPA
-    hits = np.zeros(at.size)
-    for rng_state in range(200):
-        fit = fit_model(model, *_data(model, x, ages, cv=0.06, rng_state=rng_state))
-        _, lo, hi = curve(fit, at * DAY)
-        hits += (lo <= truth) & (truth <= hi)
-    assert np.all(hits / 200 >= 0.85) and np.all(hits / 200 <= 0.99), hits / 200
-
-
 TRUE_TWO = [1.5, 1 / 24, 10.0, 90.0, 1.2]    # fA MPa, tauA d (1 h), fS MPa, tauS d, b
 
 
@@ -128,7 +109,7 @@ def test_two_component_attributes_strength_to_the_right_stage():
     al, si = parts["aluminate"], parts["silicate"]
     assert al[0] > si[0] and al[1] > si[1]              # early strength is aluminate
     assert np.all(si[2:] > al[2:]) and si[-1] > 3 * al[-1]   # later strength is silicate
-    total = predict(fit, 90 * DAY).value
+    total = _two_component(fit.x, [90.0])[0] * MPA     # the formula written out above
     assert al[3] + si[3] == pytest.approx(total, rel=1e-9)
 
 
@@ -204,40 +185,11 @@ def test_parsimony_rule_prefers_fewer_parameters_within_two():
     assert all(f.aicc >= sel.best.aicc - 2.0 for f in sel.fits)
 
 
-def test_prediction_flags_and_limits_extrapolation():
-    t, y = _data("en1992_age", [5.0, 0.3], EARLY, cv=0.05, rng_state=6)
-    fit = fit_model("en1992_age", t, y)
-    inside, year = predict(fit, 14 * DAY), predict(fit, 365 * DAY)
-    assert not inside.extrapolated and year.extrapolated
-    # Reference band at 14 d: the delta method written out here, value +/- t(0.975, n - 2)
-    # * sqrt(g' C g), with the gradient g of eq. 3.2 by hand and the covariance C from
-    # scipy.optimize.curve_fit (same relative weights, absolute_sigma=False).
-    td, ym = t / DAY, y / MPA
-    sig = np.array([ym[td == a].mean() for a in td])
-    p, pcov = optimize.curve_fit(lambda tt, f28, s: _en1992([f28, s], tt), td, ym, p0=[4, 0.2],
-                                 sigma=sig, absolute_sigma=False)
-    gfac = 1 - math.sqrt(28 / 14)
-    g = np.array([math.exp(p[1] * gfac), p[0] * math.exp(p[1] * gfac) * gfac])
-    half = stats.t.ppf(0.975, td.size - 2) * math.sqrt(g @ pcov @ g)
-    centre = p[0] * math.exp(p[1] * gfac)
-    assert inside.value / MPA == pytest.approx(centre, rel=1e-5)
-    assert inside.lower / MPA == pytest.approx(centre - half, rel=1e-3)
-    assert inside.upper / MPA == pytest.approx(centre + half, rel=1e-3)
-    assert inside.level == 0.95
-    assert "delta method" in year.method
-    assert all(math.isfinite(v) for v in (year.value, year.lower, year.upper))
-    with pytest.raises(StrengthExtrapolationError, match=r"limited to .*-420 d"):
-        predict(fit, 450 * DAY)          # 16x the last age (28 d); limit 15x = 420 d
-    with pytest.raises(StrengthFitError, match="positive"):
-        predict(fit, -DAY)
-
-
-def test_noise_free_fit_gives_finite_zero_width_band_not_nan():
+def test_noise_free_fit_gives_finite_zero_standard_errors_not_nan():
     t, y = _data("hyperbolic", [8.0, 20.0], EARLY, cv=0.0)
     fit = fit_model("hyperbolic", t, y)
-    v, lo, hi = curve(fit, np.array([1, 28, 365]) * DAY)
-    assert np.all(np.isfinite(np.concatenate([v, lo, hi])))
-    assert np.allclose(hi - lo, 0, atol=1e3)      # < 0.001 MPa
+    se = np.array([fit.std_errors["f_inf"], fit.std_errors["k"] / DAY])
+    assert np.all(np.isfinite(se)) and np.all(se < 1e-6 * np.array([8 * MPA, 20.0]))
     assert fit.aicc is not None and math.isfinite(fit.aicc)
 
 
@@ -247,34 +199,6 @@ def test_plain_names_and_units_of_parameters():
     assert fit.units["f_S"] == "Pa" and fit.units["tau_S"] == "s"
     assert set(fit.std_errors) <= set(fit.params)
     assert all(math.isfinite(v) and v >= 0 for v in fit.std_errors.values())
-
-
-def test_lower_edge_never_falls_with_age_and_is_the_delta_band_where_that_rises():
-    # A short record (to 28 d) predicted to 4x its last age: the plain delta-method lower
-    # edge turns down where the band widens.  Reference band: the delta method written out
-    # here with central finite differences (numpy) and scipy's t quantile.
-    fit = fit_model("two_component", *_data("two_component", TRUE_TWO, EARLY, cv=0.08, rng_state=3))
-    ages = np.geomspace(1, 4 * 28, 80)
-    value, lo, hi = curve(fit, ages * DAY)
-    x, cov = np.array(fit.x), np.array(fit.cov)
-    f = lambda xx: TRUTH[fit.model](xx, ages)  # noqa: E731
-    cols = []
-    for j in np.flatnonzero(fit.free):
-        h = 1e-6 * max(1.0, abs(x[j]))
-        e = np.zeros_like(x)
-        e[j] = h
-        cols.append((f(x + e) - f(x - e)) / (2 * h))
-    jac = np.column_stack(cols)
-    half = stats.t.ppf(0.975, fit.dof) * np.sqrt(np.einsum("ij,jk,ik->i", jac, cov, jac))
-    plain_lo = np.clip(f(x) - half, 0, None) * MPA
-    assert np.any(np.diff(plain_lo) < 0)                      # the case the rule is for
-    assert np.all(np.diff(lo) >= -1e-6 * MPA)                  # never falls with age
-    assert hi == pytest.approx((f(x) + half) * MPA, rel=1e-4)  # upper edge untouched
-    assert value == pytest.approx(f(x) * MPA, rel=1e-9)
-    rising = plain_lo >= np.maximum.accumulate(plain_lo) * (1 - 1e-12)
-    # where the plain edge rises the two agree (to the grid's step at a turning point)
-    assert np.all(np.abs(lo[rising] / plain_lo[rising] - 1) <= 1e-3)
-    assert np.all(lo >= np.maximum.accumulate(plain_lo) * (1 - 1e-9))
 
 
 # Points (MPa, d) at which the module's formulas are compared with the ones written above.

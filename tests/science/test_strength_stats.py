@@ -12,7 +12,7 @@ from specgen.science.strength_stats import (
     kn_factor, kn_from_table, summarise)
 
 MPA = 1e6
-KN = refdata.load("en1990_kn").data    # EN 1990 Annex D Table D1 (from memory)
+KN = refdata.load("en1990_kn").data    # EN 1990 Annex D Table D1 (read in pamd_eurocodes)
 
 
 def test_summary_matches_statistics_module():
@@ -42,7 +42,8 @@ def test_bad_results_are_refused(bad, words):
         summarise(bad)
 
 
-# EN 1990 Annex D Table D1 (from memory); the table rounds u(0.95) to 1.64 and to two
+# EN 1990 Annex D Table D1 (as the pamd_eurocodes library, 0.3.0, gives it); the table
+# rounds u(0.95) to 1.64 and to two
 # decimals, and its n = 20 'unknown' entry (1.76) sits 0.012 below the formula (1.772).
 @pytest.mark.parametrize("i", range(len(KN["n"])))
 def test_kn_formula_against_table_d1(i):
@@ -58,7 +59,7 @@ def test_kn_formula_against_table_d1(i):
 
 
 def test_kn_n3_unknown_variance_against_scipy_t():
-    # EN 1990 Table D1 (from memory): n = 3, Vx unknown -> 3.37;
+    # EN 1990 Table D1 (pamd_eurocodes 0.3.0): n = 3, Vx unknown -> 3.37;
     # scipy.stats.t: t(0.95, 2) = 2.920 -> 2.920 * sqrt(4/3) = 3.372
     k = kn_factor(3, False)
     assert k == pytest.approx(stats.t.ppf(0.95, 2) * math.sqrt(1 + 1 / 3), rel=1e-12)
