@@ -61,9 +61,9 @@ def test_many_short_columns_stay_portrait_few_long_ones_turn():
 
 @pytest.mark.skipif(not FONT_FILE.exists(), reason="DejaVu Sans not installed")
 def test_a_register_of_dates_and_ids_is_not_set_cramped():
-    """Ten columns of ids, dates and places (a sample register): each column keeps its widest
-    entry on one line, so their sum decides — it exceeds the portrait text width here,
-    although only ten columns (the count the page turned at before was thirteen)."""
+    """Ten columns of ids, dates, names and places (a sample register): the short ones on one
+    line and the others wrapped to two words a line still need more than a portrait page, so
+    it turns, although only ten columns (the count the page turned at before was thirteen)."""
     head = ["Sample", "Kind", "Zone", "Taken on", "Taken by", "Location", "Drawing",
             "Point", "Used for", "Laboratory"]
     row = ["S-014", "historic mortar", "Z2", "27 August 2026", "site engineer",
@@ -72,6 +72,18 @@ def test_a_register_of_dates_and_ids_is_not_set_cramped():
     least_sum = sum(lo for lo, _ in widths.column_widths(table))
     assert least_sum < widths.PORTRAIT_MM < widths.needed_mm(table)
     assert widths.needs_landscape(table)
+
+
+@pytest.mark.skipif(not FONT_FILE.exists(), reason="DejaVu Sans not installed")
+def test_prose_columns_wrap_rather_than_turn_the_page():
+    """Eight columns of verdicts with a sentence each (a compatibility matrix) are set
+    upright, the sentences wrapped: turning would leave the page before it part empty."""
+    head = ["Mix", "weaker than units", "not above historic", "moisture openness",
+            "movement", "salts", "grading", "colour"]
+    row = ["M1"] + ["pass (0.53, measured against the units of the pier)"] * 7
+    table = _table(head, [row] * 3)
+    assert widths.needed_mm(table) < widths.PORTRAIT_MM
+    assert not widths.needs_landscape(table)
 
 
 def test_a_spanning_cell_is_not_read_as_a_column():

@@ -5,10 +5,12 @@ portrait page, whatever their number: ten short columns fit, four with long unbr
 words may not.  Each column is measured with the font the print style sets tables in
 (``content/print/print.css``: DejaVu Sans 8.5 pt, header cells bold; Pillow reads the
 glyphs' advance widths from the font file): its *least* width is its widest word, its
-*whole* width its widest cell on one line.  A column is given its whole width up to
-:data:`WRAP_AT` (a column of prose may wrap, a column of numbers, dates or ids should not),
-never less than its least width, plus the cells' padding; a table whose columns need more
-than the portrait text width is printed on a landscape page.
+*whole* width its widest cell on one line.  A short column (whole width up to
+:data:`ONE_LINE_MM`: numbers, dates, ids, a verdict) keeps each cell on one line; a column
+of prose wraps, but not narrower than :data:`WRAP_MIN_MM` nor than its widest word.  A table
+whose columns so need more than the portrait text width is printed on a landscape page;
+any other stays upright (a landscape page breaks the flow: a turn it does not need leaves a
+part-empty page before it).
 """
 from __future__ import annotations
 
@@ -19,7 +21,8 @@ from functools import lru_cache
 PT_PER_MM = 72 / 25.4
 FONT_PT = 8.5            # print.css: table { font-size: 8.5pt }
 PADDING_MM = 3.0         # print.css: th, td { padding: 1.2mm 1.5mm } — left and right
-WRAP_AT_MM = 28.0        # a column wider than this on one line may wrap (about 16 characters)
+ONE_LINE_MM = 20.0       # a column this wide on one line (about 12 characters) never wraps
+WRAP_MIN_MM = 15.0       # a column of prose is cramped below this (two short words a line)
 #: the text width of a portrait page (A4 210 mm less print.css's 18 mm margins; the US
 #: letter page is 6 mm wider, so a table that fits A4 fits it)
 PORTRAIT_MM = 210 - 2 * 18
@@ -74,9 +77,10 @@ def column_widths(table_html: str) -> list[tuple[float, float]]:
 
 
 def needed_mm(table_html: str) -> float:
-    """The width a table needs to be set legibly (mm): each column its whole width up to
-    :data:`WRAP_AT_MM`, never less than its widest word."""
-    return sum(max(lo, min(whole, WRAP_AT_MM + PADDING_MM))
+    """The width a table needs to be set legibly (mm): a short column its cells on one line,
+    a column of prose at least :data:`WRAP_MIN_MM` and its widest word (padding included)."""
+    short, least = ONE_LINE_MM + PADDING_MM, WRAP_MIN_MM + PADDING_MM
+    return sum(whole if whole <= short else max(lo, least)
                for lo, whole in column_widths(table_html))
 
 
