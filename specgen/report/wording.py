@@ -142,6 +142,7 @@ def typeset(text: str) -> str:
     return MINUS.sub("−", text)
 
 
+@lru_cache(maxsize=16384)   # pure; the same sources recur on page after page
 def plain(text: str) -> str:
     """``text`` with labels for files, rules and keys, symbols for units (plain text)."""
     if not text:

@@ -56,8 +56,8 @@ from scipy import stats
 # the priors, the generic tools of the fit and the law, importable from here as before
 from specgen.science.strength_priors import (PRIOR_KEYS, _Z95, InferenceError,  # noqa: F401
                                              Prior, _central_cv, prior_from_table)
-from specgen.science.inference_tools import (Laplace, LackOfFit, falls,  # noqa: F401
-                                             importance_sample, interval_score, lack_of_fit,
+from specgen.science.inference_tools import (Laplace, LackOfFit, draw_quantiles,  # noqa: F401
+                                             falls, importance_sample, interval_score, lack_of_fit,
                                              laplace_fit, resample)
 from specgen.science.two_stage_law import log_f as _log_f  # noqa: F401
 from specgen.science.two_stage_law import log_f_grad as _log_f_grad
@@ -257,7 +257,7 @@ def _log_bands(inf: Inference, t_d, level: float, extra_sd=None):
     nodes = t if t.size <= NODES else np.geomspace(t.min(), t.max(), NODES)
     with np.errstate(over="ignore", invalid="ignore"):
         lf = _log_f(inf.draws.T[:, :, None], nodes[None, :])
-    lo, hi = np.quantile(lf, [a, 1.0 - a], axis=0, method="inverted_cdf")
+    lo, hi = draw_quantiles(lf, [a, 1.0 - a])
     plo = phi = None
     if extra_sd is not None:
         e = np.broadcast_to(np.asarray(extra_sd, float), t.shape)
@@ -265,8 +265,7 @@ def _log_bands(inf: Inference, t_d, level: float, extra_sd=None):
             order = np.argsort(t)
             e = np.interp(np.log(nodes), np.log(t[order]), e[order])
         mix = lf[None, :, :] + _predictive_noise(inf.dof)[:, :, None] * e[None, None, :]
-        plo, phi = np.quantile(mix.reshape(-1, nodes.size), [a, 1.0 - a], axis=0,
-                               method="inverted_cdf")
+        plo, phi = draw_quantiles(mix.reshape(-1, nodes.size), [a, 1.0 - a])
     if nodes is t:
         return m, lo, hi, plo, phi
     mn, x, lt = _log_f(inf.mode, nodes), np.log(nodes), np.log(t)
@@ -368,7 +367,7 @@ def posterior_summary(inf: Inference) -> dict[str, tuple[float, float, float]]:
         with np.errstate(over="ignore", invalid="ignore"):
             gl = _log_f(inf.draws.T[:, :, None], np.array(GAIN_AGES_D)[None, :])
         cols = np.column_stack([inf.draws[:, 1:5], gl[:, 1] - gl[:, 0]])
-        q = np.quantile(cols, [0.025, 0.975], axis=0, method="inverted_cdf")
+        q = draw_quantiles(cols, [0.025, 0.975])
     else:
         sds = [math.sqrt(max(cov[i, i], 0.0)) for i in range(1, 5)]
         sds.append(math.sqrt(max(float(d @ cov @ d), 0.0)))

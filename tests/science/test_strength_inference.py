@@ -249,6 +249,21 @@ def test_analytic_gradient_matches_central_differences():
     assert si._log_f_grad(z, t) == pytest.approx(num, rel=1e-5, abs=1e-8)
 
 
+@pytest.mark.parametrize("shape", [(1000, 48), (1000, 1), (999, 3), (4000, 5), (7, 2)])
+def test_draw_quantiles_are_numpys_inverted_cdf(shape):
+    """The bands' quantiles of the posterior draws, taken by one sort, are exactly what
+    numpy's ``quantile(..., method="inverted_cdf")`` gives (reference: numpy), a column with a
+    NaN (an overflowing draw) included."""
+    from specgen.science.inference_tools import draw_quantiles
+    rng = np.random.default_rng(7)
+    x = rng.standard_t(3.0, size=shape)
+    x[0, 0] = np.inf
+    x[rng.integers(0, shape[0], 2), rng.integers(0, shape[1], 2)] = np.nan
+    for probs in ([(1 - 0.95) / 2, 1 - (1 - 0.95) / 2], [0.025, 0.975], [0.1, 0.5, 0.9]):
+        expected = np.quantile(x, probs, axis=0, method="inverted_cdf")
+        np.testing.assert_array_equal(draw_quantiles(x, probs), expected)
+
+
 def _two_stage_log_gain(phi, tau_a, tau_s, b):
     # ln f(365 d)/f(28 d) of f = φ(1 - e^(-t/τA)) + (1 - φ)(1 - e^(-(t/τS)^b)), written out
     def f(t):
