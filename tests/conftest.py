@@ -60,6 +60,14 @@ def demo_copy(tmp_path) -> Path:
     return dst
 
 
+@pytest.fixture(scope="session")
+def demo_checked():
+    """The demo project checked once per session, (project, results), for the tests that only
+    read the results (a test that edits the demo takes ``demo_copy`` and checks that)."""
+    from specgen.build import check
+    return check(DEMO)
+
+
 @pytest.fixture
 def cli():
     """Run the specgen CLI in-process; returns click's Result."""

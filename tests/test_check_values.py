@@ -24,9 +24,8 @@ def by(results):
 
 
 @pytest.fixture(scope="module")
-def demo():
-    from tests.conftest import DEMO
-    return check(DEMO)
+def demo(demo_checked):
+    return demo_checked
 
 
 # ---------------------------------------------------------------- SPEC-COST
@@ -82,6 +81,37 @@ def test_trial_panel_verdicts(demo_copy, new, status, value, message):
     _, r = check(demo_copy)
     c = by(r)[("SPEC-PANEL", "Z1")]
     assert (c.status, c.value, c.message) == (status, value, message)
+
+
+TP4 = "    mix: M2\n    zone: Z2\n    date: 2026-11-10\n"
+TP4_NOZONE = "    mix: M2\n    date: 2026-11-10\n"
+
+
+@pytest.mark.parametrize("tp2, tp4, status, value, message", [
+    # Two panels of M2 for Z1 (TP4's zone left out: a panel for no zone counts in every zone
+    # that chose its mix).  The verdict table (common practice): any panel accepted when dry
+    # passes, naming every such panel; every panel rejected fails; otherwise attention, naming
+    # each panel with its state, in the order of specification.yaml.
+    (TP2, "judgement: pending", "pass", 1, "TP2 of M2 accepted, judged dry"),
+    (TP2, "judgement: accepted\n    judged_dry: true", "pass", 2,
+     "TP2 and TP4 of M2 accepted, judged dry"),
+    (TP2.replace("accepted", "rejected"), "judgement: pending", "attention", 0,
+     "no panel of M2 accepted when dry yet (TP2 rejected, judged dry; TP4 pending)"),
+    (TP2.replace("accepted", "rejected"), "judgement: rejected\n    judged_dry: false",
+     "fail", 0, "every trial panel of M2 was rejected: choose again or build a new panel"),
+])
+def test_trial_panel_verdicts_over_two_panels(demo_copy, tp2, tp4, status, value, message):
+    spec = demo_copy / "specification.yaml"
+    edit(spec, TP2, tp2)
+    edit(spec, TP4, TP4_NOZONE)
+    edit(spec, "location: parapet, coping band beside the lamp standard\n    reviewer: reviewer\n"
+         "    judgement: pending", "location: parapet, coping band beside the lamp standard\n"
+         "    reviewer: reviewer\n    " + tp4)
+    _, r = check(demo_copy)
+    c = by(r)[("SPEC-PANEL", "Z1")]
+    assert (c.status, c.value, c.message) == (status, value, message)
+    assert set(r.quantities["Z1"]["trial_panel"].value) == {"TP2", "TP4"}
+    # TP1 (M1) is of another mix: never counted for Z1's M2
 
 
 def test_trial_panel_missing_for_the_zone(demo, demo_copy):

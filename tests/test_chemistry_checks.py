@@ -13,9 +13,8 @@ def by(results):
 
 
 @pytest.fixture(scope="module")
-def demo():
-    from tests.conftest import DEMO
-    return check(DEMO)
+def demo(demo_checked):
+    return demo_checked
 
 
 def test_indices_of_the_trial_natural_cement(demo):

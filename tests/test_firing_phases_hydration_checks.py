@@ -22,9 +22,8 @@ def M(formula: str) -> float:
 
 
 @pytest.fixture(scope="module")
-def demo():
-    from tests.conftest import DEMO
-    return check(DEMO)[1]
+def demo(demo_checked):
+    return demo_checked[1]
 
 
 def _edit(path, old, new):

@@ -86,3 +86,45 @@ def test_capillary_fits_and_colour_summaries_once_per_sample(monkeypatch, demo_c
     # demo lab/capillary.csv: one sample (M2); lab/colour.csv: HM1, HM2, M1, M2, M3
     assert kinds["capillary"] == 1 and kinds["colour"] == 5, kinds
     assert [k for k, n in made.items() if n > 1] == []
+
+
+def test_site_equivalent_age_once_per_method_and_record(monkeypatch, demo_copy):
+    """The wall's equivalent age along the site record is the same for every mix: it is worked
+    out once per maturity method in a check (demo: Arrhenius, compared with Nurse-Saul), and a
+    changed record is worked out again, never taken from the old one."""
+    from specgen.science import maturity
+    from tests.helpers import edit
+    calls: Counter = Counter()
+
+    def counting(t, temp, **kw):
+        calls[(kw["method"], tuple(map(float, temp)))] += 1
+        return maturity_equivalent_age(t, temp, **kw)
+    maturity_equivalent_age = maturity.equivalent_age
+    monkeypatch.setattr(maturity, "equivalent_age", counting)
+    _, before = build.check(demo_copy)
+    assert sorted(m for m, _ in calls) == ["arrhenius", "nurse_saul"], calls
+    assert set(calls.values()) == {1}
+    # a warmer first day: a new record, so new equivalent ages (the key is the record itself)
+    csv = demo_copy / "lab" / "site-temperature.csv"
+    edit(csv, "\n0,10.4\n", "\n0,14.4\n")
+    calls.clear()
+    _, after = build.check(demo_copy)
+    assert len(calls) == 2 and set(calls.values()) == {1}
+    te = [res.quantities["M2"]["equivalent_age"].value["wall"] for res in (before, after)]
+    assert te[0] != te[1] and all(b >= a for a, b in zip(te[0].values(), te[1].values()))
+
+
+def test_kept_results_follow_their_key():
+    """:func:`fits.once` keeps a result by every input in its key: the same key gives the kept
+    result, another key is computed, and outside a pipeline call nothing is kept."""
+    made = []
+
+    def make(v):
+        made.append(v)
+        return v * 2
+    with kept_fits.kept():
+        assert kept_fits.once(("x", 1.0), lambda: make(1.0)) == 2.0
+        assert kept_fits.once(("x", 1.0), lambda: make(99.0)) == 2.0   # kept: not made again
+        assert kept_fits.once(("x", 1.5), lambda: make(1.5)) == 3.0    # another input: made
+    assert kept_fits.once(("x", 1.0), lambda: make(4.0)) == 8.0        # outside: afresh
+    assert made == [1.0, 1.5, 4.0]

@@ -23,7 +23,8 @@ def _follow(project, text: str) -> None:
     path.write_text(doc[:start] + text + doc[end:], encoding="utf-8")
 
 
-# EN 933-2 / ISO 565 basic set (R 20/3 principal sizes), mm (from memory)
+# EN 933-2 / ISO 565 basic set, mm: the ends 0.063 and 125 mm as DIN's public page of
+# DIN EN 933-2:2020 states them (references.json din_en933_2), the sizes between from memory
 EN_SERIES = [0.063, 0.125, 0.25, 0.5, 1, 2, 4, 8, 16, 31.5, 63, 125]
 # ASTM E11 sieves of the ASTM C125 fineness modulus plus No. 200, mm: No. 100 (150 µm) … 3 in.
 # (75 mm), 6 in. (150 mm) as dictionaryofconstruction.com lists them (fm_dictionary), 1 1/2 in.
@@ -35,6 +36,13 @@ def test_the_two_series_are_the_published_apertures():
     series = refdata.load("sieve_series").data["series"]
     assert [round(a * 1000, 6) for a in series["en933_2"]["apertures"]] == EN_SERIES
     assert [round(a * 1000, 6) for a in series["astm_e11"]["apertures"]] == ASTM_SERIES
+    # a 2:1 series: each EN size doubles the one below, within the rounding of the R 20
+    # numbers (31.5 for 10^1.5 = 31.6, 63 for 63.1, 125 for 125.9), so it is R 20/6, not
+    # R 20/3, whose step is 10^(3/20) = 1.41 (the derived-series notation Rr/p: every p-th term)
+    steps = [b / a for a, b in zip(EN_SERIES, EN_SERIES[1:])]
+    assert all(1.96 <= s <= 2.02 for s in steps), steps
+    assert all(abs(s - 10 ** (6 / 20)) < 0.03 for s in steps)
+    assert "R 20/3" not in series["en933_2"]["title"] + series["en933_2"]["source"]
     # each practice names a series, an envelope on that series and a mortar classification
     for key, s in practice.sets().items():
         env = refdata.load("grading_envelopes").data[s["grading_envelope"]]

@@ -73,6 +73,12 @@ def test_c144_gradation_as_printed_in_1993():
     assert "tag" not in envs["astm_c144_manufactured"]
     assert envs["astm_c144_manufactured"]["read_in"] == "pca1993"
     assert envs["astm_c144_natural"]["tag"] == "memory"
+    # ASTM's public page of work item WK97666 (references.json astm_wk97666): "the allowable
+    # sand gradations in C144 are listed in the text under 5.1" of C144-25, not in a table
+    for key in ("astm_c144_natural", "astm_c144_manufactured"):
+        assert envs[key]["source"].startswith("ASTM C144, 5.1 (grading requirements")
+    assert library()["astmc144"]["issued"]["date-parts"] == [[2025]]
+    assert "astm_wk97666" in library()
 
 
 def test_en1990_table_d1_as_an_open_library_gives_it():

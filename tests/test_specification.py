@@ -31,13 +31,14 @@ def run_check(cli, project) -> str:
     return result.output
 
 
-def render_spec(project_dir):
-    """The specification page and its exports, rendered alone (no figures, no build)."""
+def render_spec(project_dir=None, checked=None):
+    """The specification page and its exports, rendered alone (no figures, no build), of
+    ``project_dir`` checked here or of an already ``checked`` (project, results)."""
     from specgen.report.mathsvg import MathAssets
     from specgen.report.pageset import PageSet
     from specgen.report.render import RenderEnv, template_env
     from specgen.report.specification_chapters import specification
-    project, results = check(project_dir)
+    project, results = checked if checked is not None else check(project_dir)
     pages = PageSet()
     env = RenderEnv(project, results, pages, MathAssets(pages))
     ctx = specification(env)
@@ -113,8 +114,8 @@ def test_clean_choice_passes_and_missing_choice_is_flagged(demo_copy):
     assert "selected_mix" not in r.quantities["Z3"]
 
 
-def test_results_names_selection_and_hold_points(demo_copy):
-    _, r = check(demo_copy)
+def test_results_names_selection_and_hold_points(demo_checked):
+    _, r = demo_checked
     d = r.to_dict()["quantities"]
     assert {z: d[z]["selected_mix"]["value"] for z in ("Z1", "Z2", "Z3")} == \
         {"Z1": "M2", "Z2": "M2", "Z3": "M3"}
@@ -138,8 +139,8 @@ def test_without_specification_file_nothing_is_selected(demo_copy):
 
 
 # ------------------------------------------------------------------ clauses
-def test_clause_numbers_are_the_check_limits(demo_copy):
-    text, pages, r = render_spec(demo_copy)
+def test_clause_numbers_are_the_check_limits(demo_checked):
+    text, pages, r = render_spec(checked=demo_checked)
     c = by(r)
     md = pages.downloads["exports/WEP-2026-R3-Z1-specification.md"].decode()
     acc = r.quantities["M2"]["acceptance"].value
@@ -185,10 +186,10 @@ def test_clauses_follow_a_changed_requirement_and_rule(demo_copy):
                                  "season") for i in inputs)
 
 
-def test_clauses_name_the_exposure_and_the_durability_tests_as_hold_points(demo_copy):
+def test_clauses_name_the_exposure_and_the_durability_tests_as_hold_points(demo_checked):
     """Each zone's clauses carry its exposure class and, as hold points, the tests the
     durability checks asked for its chosen mix (EN 1996-2 Annex A classes, memory)."""
-    text, _, r = render_spec(demo_copy)
+    text, _, r = render_spec(checked=demo_checked)
     flat = " ".join(text.split())
     assert "The work is in exposure class MX4 with MX3.2" in flat
     for t in r.quantities["Z3"]["durability_tests"].value:
@@ -302,6 +303,41 @@ def test_hold_point_released_earlier_cannot_silently_reopen(demo_copy):
         in res.notes
     assert r.quantities["WEP-2026"]["hold_points"].value["HP2"]["history"] == \
         {"R2": "released", "R3": "open"}
+
+
+def test_hold_points_counted_from_the_demo_file(demo_checked):
+    # demo specification.yaml, read by hand: HP1 to HP5; HP1 released in R3, the other four
+    # open (no state given: open); no earlier revision has a specification.yaml, so no
+    # carry-over notes and the result is for information
+    _, r = demo_checked
+    res = by(r)[("SPEC-HOLD", "WEP-2026")]
+    assert (res.status, res.value, res.notes) == ("info", 4, ())
+    assert res.message == "5 hold point(s): 1 released (HP1 in R3), 4 open (HP2, HP3, HP4, HP5)"
+    assert res.steps[0].substituted == r"\mathrm{released}: 1,\ \mathrm{open}: 4"
+    assert [i.value for i in res.steps[0].inputs] == \
+        ["R3 released", "R3 open", "R3 open", "R3 open", "R3 open"]
+
+
+def test_hold_point_released_in_another_revision_is_noted(demo_copy):
+    # R2's file says HP1 was released in R2; the current file says R3: both cannot be true
+    _archive_spec(demo_copy, "R2", EARLIER.replace(
+        "released_by: reviewer}", "released_by: reviewer, state: released, released_in: R2, "
+        "evidence: panel TP2 accepted}"))
+    _, r = check(demo_copy)
+    res = by(r)[("SPEC-HOLD", "WEP-2026")]
+    assert res.status == "attention"
+    assert res.notes == ("HP1 was released in R2 according to R2, but in R3 according to R3",
+                         "HP9 of R2 is no longer listed: say why it was withdrawn")
+    assert r.quantities["WEP-2026"]["hold_points"].value["HP1"]["history"] == \
+        {"R2": "released", "R3": "released"}
+    # a point withdrawn before R2 (listed in R1 only) was answered in R2: only the points of
+    # the latest earlier revision missing now are noted
+    _archive_spec(demo_copy, "R1", EARLIER.replace("HP9, what: scaffold survey",
+                                                   "HP8, what: scaffold survey"))
+    _, r = check(demo_copy)
+    assert by(r)[("SPEC-HOLD", "WEP-2026")].notes[-1:] == (
+        "HP9 of R2 is no longer listed: say why it was withdrawn",)
+    assert not any("HP8" in n for n in by(r)[("SPEC-HOLD", "WEP-2026")].notes)
 
 
 # ------------------------------------------------------------------ bad input

@@ -60,7 +60,7 @@ def test_construction_revision_refused_while_values_unconfirmed(demo_copy, tmp_p
         "each value listed below against its source, or issue the revision for approval until "
         "then (purpose: for_approval).")
     assert ("content/data/grading_envelopes.yaml: astm_c144_natural: tagged memory (source "
-            "named: ASTM C144, Table 1 (grading requirements, natural sand)); used by "
+            "named: ASTM C144, 5.1 (grading requirements, natural sand)); used by "
             "COMP-GRAD/Z1/M1, COMP-GRAD/Z1/M2, COMP-GRAD/Z1/M3 and 2 more. Fix: read the value "
             "in the source and cite its clause or table (then remove the tag), or declare it "
             "common practice with its range and reason, or a project requirement "

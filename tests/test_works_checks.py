@@ -19,9 +19,8 @@ def edit(path, old: str, new: str) -> None:
 
 
 @pytest.fixture(scope="module")
-def demo():
-    from tests.conftest import DEMO
-    return check(DEMO)
+def demo(demo_checked):
+    return demo_checked
 
 
 def by(results):

@@ -6,6 +6,7 @@ Usage (from the repository root; mutmut is in the ``test`` extra)::
     python3 tools/mutation.py science --modules grading oxides
     python3 tools/mutation.py checks --modules works_checks works_common
     python3 tools/mutation.py report science             # the figures of the last run
+    python3 tools/mutation.py recheck checks --workdir W  # survivors against today's tests
 
 Each scope runs in its own scratch copy of the repository (``--workdir``, default
 ``/tmp/specgen-mutation/<scope>``) so that mutmut's ``mutants/`` folder never lands in the
@@ -37,6 +38,49 @@ CHECK_TESTS = [
     "tests/test_strength_checks.py", "tests/test_works_checks.py",
     "tests/test_specification.py", "tests/test_check_values.py", "tests/test_revisions.py",
 ]
+# Each check module against the scenario tests that read its checks (found by the check codes
+# each module registers), so that a check mutant runs a few files instead of all of them:
+# every check is reached by every `check()` of the demo, so mutmut's per-function selection
+# alone would pick nearly the whole list above for each mutant.
+T = "tests/test_"
+CHECK_TESTS_BY_MODULE = {
+    "aggregate_checks": [T + "compatibility_checks.py"],
+    "audit_checks": [T + "audit.py"], "audit_record_checks": [T + "audit.py"],
+    "binder_class_checks": [T + "binder_classes.py"],
+    "calcination_checks": [T + "firing_phases_hydration_checks.py"],
+    "chemistry_checks": [T + "chemistry_checks.py", T + "check_values.py",
+                         T + "cementation_index_check.py"],
+    "chemistry_common": [T + "chemistry_checks.py", T + "check_values.py",
+                         T + "cementation_index_check.py"],
+    "colour_checks": [T + "compatibility_checks.py"],
+    "compatibility_checks": [T + "compatibility_checks.py"],
+    "compatibility_common": [T + "compatibility_checks.py"],
+    "composition_checks": [T + "cementation_index_check.py", T + "chemistry_checks.py",
+                           T + "revisions.py"],
+    "durability_common": [T + "durability_checks.py"],
+    "durability_tests_checks": [T + "durability_checks.py"],
+    "evidence_checks": [T + "evidence.py"],
+    "exposure_checks": [T + "durability_checks.py"],
+    "hydration_checks": [T + "firing_phases_hydration_checks.py", T + "check_values.py"],
+    "method_checks": [T + "method.py"],
+    "phases_checks": [T + "firing_phases_hydration_checks.py", T + "binder_estimates.py"],
+    "salt_checks": [T + "compatibility_checks.py"],
+    "setting_checks": [T + "durability_checks.py"],
+    "soundness_checks": [T + "durability_checks.py"],
+    "specification_checks": [T + "specification.py", T + "check_values.py"],
+    "specification_record_checks": [T + "specification.py", T + "check_values.py"],
+    "strength_acceptance_checks": [T + "strength_checks.py", T + "strength_inference_checks.py"],
+    "strength_checks": [T + "strength_checks.py"],
+    "strength_class_checks": [T + "strength_checks.py"],
+    "strength_common": [T + "strength_checks.py", T + "strength_inference_checks.py"],
+    "strength_inference_checks": [T + "strength_inference_checks.py"],
+    "strength_prior_common": [T + "strength_inference_checks.py"],
+    "substrate_checks": [T + "durability_checks.py"],
+    "sulfate_checks": [T + "durability_checks.py", T + "compatibility_checks.py"],
+    "works_checks": [T + "works_checks.py", T + "check_values.py"],
+    "works_common": [T + "works_checks.py", T + "check_values.py"],
+    "works_gauging_checks": [T + "works_checks.py"],
+}
 SCOPES = {
     "science": {"package": "specgen/science", "tests": ["tests/science"], "deselect": []},
     "checks": {"package": "specgen/checks", "tests": CHECK_TESTS,
@@ -52,10 +96,21 @@ def _toml_list(items):
     return "[" + ", ".join(json.dumps(i) for i in items) + "]"
 
 
-def prepare(scope: str, workdir: Path, modules: list[str] = ()) -> None:
+def tests_for(scope: str, modules: list[str] = (), tests: list[str] = ()) -> list[str]:
+    """The tests a run selects: ``tests`` when given; for check modules that are all mapped,
+    the union of their files in CHECK_TESTS_BY_MODULE; otherwise the scope's whole list."""
+    if tests:
+        return list(tests)
+    if scope == "checks" and modules and all(m in CHECK_TESTS_BY_MODULE for m in modules):
+        return sorted({t for m in modules for t in CHECK_TESTS_BY_MODULE[m]})
+    return list(SCOPES[scope]["tests"])
+
+
+def prepare(scope: str, workdir: Path, modules: list[str] = (), tests: list[str] = ()) -> None:
     """Fresh scratch copy of the repository with a mutmut section for ``scope`` (mutants
     made only of ``modules`` when some are named: the others are not generated at all)."""
     spec = SCOPES[scope]
+    selection = tests_for(scope, modules, tests)
     if workdir.exists():
         shutil.rmtree(workdir)
     workdir.mkdir(parents=True)
@@ -81,15 +136,17 @@ def prepare(scope: str, workdir: Path, modules: list[str] = ()) -> None:
         f"only_mutate = {_toml_list(only)}\n"
         f'also_copy = ["content/", "demo_project/", "README.md", "DEVELOPERS.md"]\n'
         f"pytest_add_cli_args = {_toml_list(args)}\n"
-        f"pytest_add_cli_args_test_selection = {_toml_list(spec['tests'])}\n"
+        f"pytest_add_cli_args_test_selection = {_toml_list(selection)}\n"
     )
     text = (REPO / "pyproject.toml").read_text("utf-8")
     (workdir / "pyproject.toml").write_text(text + section, "utf-8")
 
 
-def run(scope: str, modules: list[str], workdir: Path, jobs: int) -> int:
+def run(scope: str, modules: list[str], workdir: Path, jobs: int,
+        tests: list[str] = ()) -> int:
     """Prepare the scratch copy and run mutmut on the named modules (all when none)."""
-    prepare(scope, workdir, modules)
+    prepare(scope, workdir, modules, tests)
+    print("tests:", " ".join(tests_for(scope, modules, tests)), flush=True)
     pkg = SCOPES[scope]["package"].replace("/", ".")
     names = [f"{pkg}.{m}.*" for m in modules]
     env = {k: v for k, v in os.environ.items() if k != "PYTHONPATH"}
@@ -143,27 +200,67 @@ def survivors(scope: str, workdir: Path) -> list[str]:
     return out
 
 
+def recheck(scope: str, workdir: Path, tests: list[str] = ()) -> int:
+    """Run each surviving mutant of a finished run again against the tests as they are now
+    (the working tree's ``tests/`` copied into the scratch copy first): a mutant that a test
+    added since the run kills is recorded as killed (exit code 1) in mutmut's meta file.
+    ``tests`` narrows what runs (default: the run's selection); returns how many were killed.
+    """
+    mutants = workdir / "mutants"
+    for dst in (workdir / "tests", mutants / "tests"):
+        shutil.rmtree(dst, ignore_errors=True)
+        shutil.copytree(REPO / "tests", dst, ignore=shutil.ignore_patterns("__pycache__", "*.pyc"))
+    root = mutants / SCOPES[scope]["package"]
+    env = {k: v for k, v in os.environ.items() if k != "PYTHONPATH"}
+    killed = 0
+    for meta in sorted(root.glob("*.py.meta")):
+        data = json.loads(meta.read_text("utf-8"))
+        module = meta.name[:-len(".py.meta")]
+        selection = tests_for(scope, [module], tests)
+        for name, code in sorted(data["exit_code_by_key"].items()):
+            if code != 0:
+                continue
+            done = subprocess.run(
+                [sys.executable, "-m", "pytest", "-x", "-q", "-p", "no:cacheprovider",
+                 "-p", "no:randomly", "-m", "not e2e", *selection],
+                cwd=mutants, env={**env, "MUTANT_UNDER_TEST": name},
+                stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+            print(f"{name}: {'killed' if done.returncode == 1 else 'survived'}", flush=True)
+            if done.returncode == 1:
+                data["exit_code_by_key"][name] = 1
+                killed += 1
+                meta.write_text(json.dumps(data), "utf-8")
+    return killed
+
+
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.split("\n")[0])
-    ap.add_argument("scope", choices=[*SCOPES, "report", "survivors"])
+    ap.add_argument("scope", choices=[*SCOPES, "report", "survivors", "recheck"])
     ap.add_argument("target", nargs="?", choices=list(SCOPES),
-                    help="for report/survivors: which scope")
+                    help="for report/survivors/recheck: which scope")
     ap.add_argument("--modules", nargs="*", default=[],
                     help="module names (e.g. grading works_checks); default all")
+    ap.add_argument("--tests", nargs="*", default=[],
+                    help="test files or node ids instead of the scope's selection (checks: "
+                         "by default those mapped to the named modules)")
     ap.add_argument("--jobs", type=int, default=1)
     ap.add_argument("--workdir", type=Path, default=None)
     a = ap.parse_args(argv)
-    scope = a.target if a.scope in ("report", "survivors") else a.scope
+    scope = a.target if a.scope in ("report", "survivors", "recheck") else a.scope
     if scope is None:
         ap.error("say which scope: science or checks")
     workdir = a.workdir or Path("/tmp/specgen-mutation") / scope
     if a.scope == "report":
         report(scope, workdir)
         return 0
+    if a.scope == "recheck":
+        print(f"killed on recheck: {recheck(scope, workdir, a.tests)}")
+        report(scope, workdir)
+        return 0
     if a.scope == "survivors":
         print("\n".join(survivors(scope, workdir)))
         return 0
-    code = run(scope, a.modules, workdir, a.jobs)
+    code = run(scope, a.modules, workdir, a.jobs, a.tests)
     report(scope, workdir)
     return code
 

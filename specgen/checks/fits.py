@@ -35,7 +35,9 @@ def kept():
         _KEPT.reset(token)
 
 
-def _once(key: tuple, make):
+def once(key: tuple, make):
+    """``make()`` once per key inside :func:`kept` (afresh outside one): for a pure result
+    whose ``key`` holds every input it depends on (hashable), shared read-only."""
     store = _KEPT.get()
     if store is None:
         return make()
@@ -47,22 +49,22 @@ def _once(key: tuple, make):
 def selection(ages_s, values_pa) -> sm.Selection:
     """:func:`~specgen.science.strength_models.fit_all` of a series (SI), made once."""
     t, y = tuple(map(float, ages_s)), tuple(map(float, values_pa))
-    return _once(("models", t, y), lambda: sm.fit_all(np.array(t), np.array(y)))
+    return once(("models", t, y), lambda: sm.fit_all(np.array(t), np.array(y)))
 
 
 def inference(ages_d, values_mpa, prior: si.Prior) -> si.Inference:
     """:func:`~specgen.science.strength_inference.fit` of a series with a prior, made once."""
     t, y = tuple(map(float, ages_d)), tuple(map(float, values_mpa))
-    return _once(("inference", t, y, repr(prior)), lambda: si.fit(list(t), list(y), prior))
+    return once(("inference", t, y, repr(prior)), lambda: si.fit(list(t), list(y), prior))
 
 
 def capillary(times_s, uptakes) -> moisture.CapillaryFit:
     """:func:`~specgen.science.moisture.capillary_coefficient` of a sample's readings, made once."""
     t, w = tuple(map(float, times_s)), tuple(map(float, uptakes))
-    return _once(("capillary", t, w), lambda: moisture.capillary_coefficient(list(t), list(w)))
+    return once(("capillary", t, w), lambda: moisture.capillary_coefficient(list(t), list(w)))
 
 
 def colour_summary(readings) -> colour.LabSummary:
     """:func:`~specgen.science.colour.summarise` of a sample's L*, a*, b* readings, made once."""
     lab = tuple(tuple(map(float, r)) for r in readings)
-    return _once(("colour", lab), lambda: colour.summarise([list(r) for r in lab]))
+    return once(("colour", lab), lambda: colour.summarise([list(r) for r in lab]))

@@ -119,6 +119,11 @@ def lab_factor(temp_k: float | None, st: Settings) -> float:
     """Equivalent-age rate of constant lab curing at ``temp_k`` (None: the reference)."""
     if temp_k is None:
         return 1.0
+    # every specimen of a project asks for one of a few curing temperatures: one per check run
+    return fits.once(("lab_factor", float(temp_k), st), lambda: _lab_factor(float(temp_k), st))
+
+
+def _lab_factor(temp_k: float, st: Settings) -> float:
     if st.method == "nurse_saul":
         return float(maturity.equivalent_age_nurse_saul(
             [0.0, 1.0], temp_k, datum_k=st.datum, t_ref_k=st.t_ref)[-1])
@@ -225,6 +230,14 @@ def site_equivalent_age(project, st: Settings, method: str, horizon_s: float):
     if hist is None:
         return None
     t, temp = hist
-    te = maturity.equivalent_age(t, temp, method=method, activation_energy=st.energy,
-                                 datum_k=st.datum, t_ref_k=st.t_ref)
-    return t, te
+    # one site record for every mix: its equivalent ages once per check run (read-only arrays)
+    return fits.once(("site_te", method, st, tuple(t.tolist()), tuple(temp.tolist())),
+                     lambda: _frozen(t, maturity.equivalent_age(
+                         t, temp, method=method, activation_energy=st.energy, datum_k=st.datum,
+                         t_ref_k=st.t_ref)))
+
+
+def _frozen(*arrays) -> tuple:
+    for a in arrays:
+        a.flags.writeable = False
+    return arrays

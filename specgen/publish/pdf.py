@@ -255,6 +255,10 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
     display).
     """
     from specgen.publish.pdf_parts import Printer
+    if getattr(pageset, "drawing", None):   # placeholders of the live preview's first pages
+        raise PublishError(f"{target}: {len(pageset.drawing)} figure(s) not drawn yet ("
+                           f"{', '.join(sorted(pageset.drawing)[:3])}); a PDF is never printed "
+                           "with a placeholder. Fix: draw them first (PageSet.draw).")
     vols = volumes(pieces(pageset), target, appendix)
     files = [(name, data, stamp) for name, data in sorted(attachments.items())]
     reused = total = 0

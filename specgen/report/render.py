@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 import jinja2
 from markupsafe import Markup, escape
 
+from specgen.cache import Later
 from specgen.refdata import CONTENT_DIR
 from specgen.report.chapters import badge, chapters, sheet_anchor
 from specgen.report.fmt import as_given, num, qty, unit_symbol
@@ -82,14 +83,22 @@ class RenderEnv:
     def figure(self, path: str, svg: bytes, caption: str, alt: str) -> dict:
         """Add a figure asset; figures are numbered in order of appearance.
 
+        ``svg`` is the figure's bytes, or a :class:`specgen.cache.Later` (the live preview's
+        first pages): the page set then holds a placeholder saying the figure is being drawn.
         ``caption`` says what the figure is about (printed under it); ``alt`` describes
         what it shows for a reader who cannot see it (the image's alternative text in the
         site and the tagged PDF) and so must not merely repeat the caption."""
         if " ".join(alt.split()).casefold() == " ".join(caption.split()).casefold():
             raise ValueError(f"{path}: the alternative text repeats the caption")
-        self.pageset.add_asset(path, svg)
         self.figures.append(path)
-        return {"src": path, "caption": caption, "alt": alt, "n": len(self.figures)}
+        n = len(self.figures)
+        if isinstance(svg, Later):   # not drawn yet (cache.drawing_later): a placeholder
+            from specgen.report.figures import placeholder
+            if path not in self.pageset.drawing:
+                self.pageset.add_placeholder(path, placeholder(n), svg.draw)
+        else:
+            self.pageset.add_asset(path, svg)
+        return {"src": path, "caption": caption, "alt": alt, "n": n}
 
     def table(self, caption: str) -> Markup:
         """A numbered table caption, placed just above a table in a template:

@@ -175,6 +175,7 @@ def formula_label(text: str) -> str:
     return formulas(text, lambda count: f"$_{{{count}}}$")
 
 
+@lru_cache(maxsize=16384)   # pure; the same sources recur on page after page
 def plain(text: str) -> str:
     """``text`` with labels for files, rules and keys, symbols for units (plain text)."""
     if not text:

@@ -8,11 +8,36 @@ from __future__ import annotations
 import math
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 from scipy import optimize, stats
 
 _Z95 = float(stats.norm.ppf(0.975))
+
+
+# ---------------------------------------------------------------- quantiles of draws
+def draw_quantiles(x: np.ndarray, probs: Sequence[float]) -> np.ndarray:
+    """``np.quantile(x, probs, axis=0, method="inverted_cdf")`` (rows: draws; a column with
+    a NaN gives NaN), by one sort of each column: the same numbers, as that method returns
+    an order statistic; the rows of the result follow ``probs``."""
+    x = np.asarray(x, float)
+    if x.ndim != 2 or x.shape[0] == 0:
+        return np.quantile(x, probs, axis=0, method="inverted_cdf")
+    ranks = _ranks(x.shape[0], tuple(float(p) for p in probs))
+    ordered = np.sort(x.T, axis=1)     # each column sorted as a contiguous row
+    out = ordered[:, ranks].T.copy()
+    out[:, np.isnan(ordered[:, -1])] = np.nan   # NaN sorts last, as numpy's quantile sees it
+    return out
+
+
+@lru_cache(maxsize=64)
+def _ranks(n: int, probs: tuple[float, ...]) -> np.ndarray:
+    # the order statistic numpy's inverted_cdf method takes for each probability, from numpy
+    # itself (its rounding of n·p included): the quantiles of the ranks 0 … n-1
+    out = np.quantile(np.arange(n, dtype=float), probs, method="inverted_cdf").astype(np.intp)
+    out.flags.writeable = False
+    return out
 
 
 # ---------------------------------------------------------------- generic Laplace fit

@@ -19,9 +19,9 @@ information about the curve, each with variance ``σb² + σw²/n_i``.
   ``(MS_lof - σw²)/n̄``, combined with the prior the same way; from the prior alone when
   the ages leave no degrees of freedom for it;
 * the curve: the mode of the posterior ``-ln p = ½Σ(ȳ_i - ln f_i)²/v_i + ½Σ((h_k - μ_k)/s_k)²``
-  (prior on logit φ, ln τA, ln τS, ln b and ln f(365)/f(28); flat on ln F), found by
-  ``scipy.optimize.least_squares``; its covariance by the Laplace approximation, the inverse
-  of the Gauss-Newton Hessian at the mode (:func:`laplace_fit`);
+  (prior on logit φ, ln τA, ln τS, ln b and, melded in (``strength_priors``), ln f(365)/f(28);
+  flat on ln F), found by ``scipy.optimize.least_squares``; its covariance by the Laplace
+  approximation, the inverse of the Gauss-Newton Hessian at the mode (:func:`laplace_fit`);
 * the posterior itself, not its linearisation: from a short record the law is far from linear
   in its parameters over the range the prior allows (a 28-day record hardly sees the slow
   stage), so the normal approximation misplaces the band at 90 and 365 days.  The intervals
@@ -56,8 +56,8 @@ from scipy import stats
 # the priors, the generic tools of the fit and the law, importable from here as before
 from specgen.science.strength_priors import (PRIOR_KEYS, _Z95, InferenceError,  # noqa: F401
                                              Prior, _central_cv, prior_from_table)
-from specgen.science.inference_tools import (Laplace, LackOfFit, falls,  # noqa: F401
-                                             importance_sample, interval_score, lack_of_fit,
+from specgen.science.inference_tools import (Laplace, LackOfFit, draw_quantiles,  # noqa: F401
+                                             falls, importance_sample, interval_score, lack_of_fit,
                                              laplace_fit, resample)
 from specgen.science.two_stage_law import log_f as _log_f  # noqa: F401
 from specgen.science.two_stage_law import log_f_grad as _log_f_grad
@@ -71,7 +71,7 @@ KEPT = 1000    # equally weighted draws kept after resampling (about the effecti
 NODES = 48     # a longer list of ages (a curve) takes the band's offsets from ln f at this many
                # log-spaced ages, interpolated in ln t (the offsets vary slowly with age)
 GAIN_AGES_D = (28.0, 365.0)
-PREDICTIVE_REPEATS = 1   # Student-t variates per kept draw in the predictive mixture (stratified)
+PREDICTIVE_REPEATS = 4   # t variates per draw (stratified); one let MC error cross the mean band
 
 
 # ---------------------------------------------------------------- the fit
@@ -182,7 +182,7 @@ def _neg_log_post(z, ages, means, sd, prior: Prior) -> np.ndarray:
     data = np.sum(((means - _log_f(zt, ages[None, :])) / sd) ** 2, axis=1)
     gain = _log_f(zt, np.array(GAIN_AGES_D)[None, :])
     h = (z[:, 1], z[:, 2], z[:, 3], z[:, 4], gain[:, 1] - gain[:, 0])
-    pri = sum(((v - prior.terms[k].mu) / prior.terms[k].sd) ** 2 for v, k in zip(h, PRIOR_KEYS))
+    pri = sum(((v - mu) / sd) ** 2 for v, (mu, sd) in zip(h, map(prior.penalty, PRIOR_KEYS)))
     return 0.5 * (data + pri)
 
 
@@ -200,12 +200,12 @@ def _prior_residuals(z, prior: Prior) -> np.ndarray:
     ln_f, lg_phi, ln_ta, ln_ts, ln_b = z
     gain = _log_f(z, np.array(GAIN_AGES_D))
     h = (lg_phi, ln_ta, ln_ts, ln_b, gain[1] - gain[0])
-    return np.array([(v - prior.terms[k].mu) / prior.terms[k].sd for v, k in zip(h, PRIOR_KEYS)])
+    return np.array([(v - mu) / sd for v, (mu, sd) in zip(h, map(prior.penalty, PRIOR_KEYS))])
 
 
 def _solve(ages, means, counts, sb2, sw2, prior: Prior, z0=None) -> Laplace:
     sd = np.sqrt(sb2 + sw2 / counts)
-    sds = np.array([prior.terms[k].sd for k in PRIOR_KEYS])
+    sds = np.array([prior.penalty(k)[1] for k in PRIOR_KEYS])
     gain_ages = np.array(GAIN_AGES_D)
 
     def resid(z):
@@ -216,7 +216,7 @@ def _solve(ages, means, counts, sb2, sw2, prior: Prior, z0=None) -> Laplace:
         prior_rows = np.vstack([np.eye(5)[1:5], g[1] - g[0]]) / sds[:, None]
         return np.vstack([-_log_f_grad(z, ages) / sd[:, None], prior_rows])
     if z0 is None:
-        z0 = np.array([0.0] + [prior.terms[k].mu for k in PRIOR_KEYS[:4]])
+        z0 = np.array([0.0] + [prior.penalty(k)[0] for k in PRIOR_KEYS[:4]])
         z0[0] = float(np.max(means - _log_f(z0, ages)))
     return laplace_fit(resid, z0, ages.size, jac)
 
@@ -257,7 +257,7 @@ def _log_bands(inf: Inference, t_d, level: float, extra_sd=None):
     nodes = t if t.size <= NODES else np.geomspace(t.min(), t.max(), NODES)
     with np.errstate(over="ignore", invalid="ignore"):
         lf = _log_f(inf.draws.T[:, :, None], nodes[None, :])
-    lo, hi = np.quantile(lf, [a, 1.0 - a], axis=0, method="inverted_cdf")
+    lo, hi = draw_quantiles(lf, [a, 1.0 - a])
     plo = phi = None
     if extra_sd is not None:
         e = np.broadcast_to(np.asarray(extra_sd, float), t.shape)
@@ -265,8 +265,7 @@ def _log_bands(inf: Inference, t_d, level: float, extra_sd=None):
             order = np.argsort(t)
             e = np.interp(np.log(nodes), np.log(t[order]), e[order])
         mix = lf[None, :, :] + _predictive_noise(inf.dof)[:, :, None] * e[None, None, :]
-        plo, phi = np.quantile(mix.reshape(-1, nodes.size), [a, 1.0 - a], axis=0,
-                               method="inverted_cdf")
+        plo, phi = draw_quantiles(mix.reshape(-1, nodes.size), [a, 1.0 - a])
     if nodes is t:
         return m, lo, hi, plo, phi
     mn, x, lt = _log_f(inf.mode, nodes), np.log(nodes), np.log(t)
@@ -368,7 +367,7 @@ def posterior_summary(inf: Inference) -> dict[str, tuple[float, float, float]]:
         with np.errstate(over="ignore", invalid="ignore"):
             gl = _log_f(inf.draws.T[:, :, None], np.array(GAIN_AGES_D)[None, :])
         cols = np.column_stack([inf.draws[:, 1:5], gl[:, 1] - gl[:, 0]])
-        q = np.quantile(cols, [0.025, 0.975], axis=0, method="inverted_cdf")
+        q = draw_quantiles(cols, [0.025, 0.975])
     else:
         sds = [math.sqrt(max(cov[i, i], 0.0)) for i in range(1, 5)]
         sds.append(math.sqrt(max(float(d @ cov @ d), 0.0)))
@@ -390,7 +389,8 @@ def prior_gain_interval(prior: Prior, age_d: float, level: float = 0.95, draws: 
                                              for k in PRIOR_KEYS[:4]])
     lf = _log_f(z.T[:, :, None], np.array([28.0, age_d, 365.0])[None, :])   # draws x 3
     ratio, g365 = np.exp(lf[:, 1] - lf[:, 0]), lf[:, 2] - lf[:, 0]
-    w = np.exp(-0.5 * ((g365 - tm["gain_365_28"].mu) / tm["gain_365_28"].sd) ** 2)
+    mu, sd = prior.penalty("gain_365_28")
+    w = np.exp(-0.5 * ((g365 - mu) / sd) ** 2)
     order = np.argsort(ratio)
     cw = np.cumsum(w[order]) / w.sum()
     a = (1 - level) / 2

@@ -19,6 +19,7 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
+from functools import lru_cache
 
 import numpy as np
 from scipy import stats
@@ -103,6 +104,23 @@ def summarise(values: Sequence[float]) -> Summary:
                    maximum=float(x.max()))
 
 
+# The distribution quantiles depend only on (probability, degrees of freedom), which repeat for
+# every group of a project: each is computed once per process (pure, so the same number).
+@lru_cache(maxsize=1024)
+def _norm_ppf(p: float) -> float:
+    return float(stats.norm.ppf(p))
+
+
+@lru_cache(maxsize=1024)
+def _t_ppf(p: float, dof: float) -> float:
+    return float(stats.t.ppf(p, dof))
+
+
+@lru_cache(maxsize=1024)
+def _t_isf(p: float, dof: float) -> float:
+    return float(stats.t.isf(p, dof))
+
+
 def kn_factor(n: int, known_variance: bool, fractile: float = 0.05) -> float:
     """EN 1990 Annex D (D7.2) factor k_n for the ``fractile`` characteristic value.
 
@@ -114,12 +132,12 @@ def kn_factor(n: int, known_variance: bool, fractile: float = 0.05) -> float:
     if not 0.0 < fractile < 0.5:
         raise StrengthInputError(f"fractile must lie between 0 and 0.5; got {fractile}")
     if known_variance:
-        q = float(stats.norm.ppf(1.0 - fractile))
+        q = _norm_ppf(1.0 - fractile)
     else:
         if n < 2:
             raise StrengthInputError("a characteristic value with unknown variance needs at "
                                      "least 2 results (EN 1990 Table D1 starts at n = 3)")
-        q = float(stats.t.ppf(1.0 - fractile, n - 1))
+        q = _t_ppf(1.0 - fractile, n - 1)
     return q * math.sqrt(1.0 + 1.0 / n)
 
 
@@ -171,7 +189,7 @@ def grubbs_critical(n: int, alpha: float = 0.05) -> float:
         raise StrengthInputError(f"Grubbs' test needs at least 3 values; got {n}")
     if not 0.0 < alpha < 1.0:
         raise StrengthInputError(f"alpha must lie between 0 and 1; got {alpha}")
-    t = float(stats.t.isf(alpha / (2.0 * n), n - 2))
+    t = _t_isf(alpha / (2.0 * n), n - 2)
     return (n - 1) / math.sqrt(n) * math.sqrt(t * t / (n - 2 + t * t))
 
 

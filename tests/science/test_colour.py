@@ -125,3 +125,121 @@ def test_lab_to_xyz_white_and_out_of_gamut():
     # CIE 15: L* = 100, a* = b* = 0 is the reference white itself
     assert lab_to_xyz((100, 0, 0)) == pytest.approx((0.95047, 1.0, 1.08883), abs=1e-12)
     assert lab_to_srgb((50, 120, -120)).clipped
+
+
+def _sharma_terms(lab1, lab2):
+    """Sharma, Wu & Dalal (2005) eqs. 2-21 written out again here, step by step, for the
+    intermediate terms the calculation sheet shows (ΔL', ΔC', ΔH', SL, SC, SH, RT, G)."""
+    (L1, a1, b1), (L2, a2, b2) = lab1, lab2
+    cbar = (math.sqrt(a1 * a1 + b1 * b1) + math.sqrt(a2 * a2 + b2 * b2)) / 2
+    G = 0.5 * (1 - math.sqrt(cbar ** 7 / (cbar ** 7 + 25 ** 7)))                  # eq. 3
+    ap1, ap2 = a1 * (1 + G), a2 * (1 + G)                                            # eq. 4
+    cp1, cp2 = math.sqrt(ap1 ** 2 + b1 ** 2), math.sqrt(ap2 ** 2 + b2 ** 2)          # eq. 5
+    hp1 = 0.0 if ap1 == b1 == 0 else math.degrees(math.atan2(b1, ap1)) % 360         # eq. 6
+    hp2 = 0.0 if ap2 == b2 == 0 else math.degrees(math.atan2(b2, ap2)) % 360
+    if cp1 * cp2 == 0:                                                               # eq. 10
+        dh = 0.0
+    elif abs(hp2 - hp1) <= 180:
+        dh = hp2 - hp1
+    elif hp2 - hp1 > 180:
+        dh = hp2 - hp1 - 360
+    else:
+        dh = hp2 - hp1 + 360
+    dH = 2 * math.sqrt(cp1 * cp2) * math.sin(math.radians(dh) / 2)                   # eq. 11
+    cbp = (cp1 + cp2) / 2                                                            # eq. 13
+    if cp1 * cp2 == 0:                                                               # eq. 14
+        hbar = hp1 + hp2
+    elif abs(hp1 - hp2) <= 180:
+        hbar = (hp1 + hp2) / 2
+    elif hp1 + hp2 < 360:
+        hbar = (hp1 + hp2 + 360) / 2
+    else:
+        hbar = (hp1 + hp2 - 360) / 2
+    r = math.radians
+    T = (1 - 0.17 * math.cos(r(hbar - 30)) + 0.24 * math.cos(r(2 * hbar))            # eq. 15
+         + 0.32 * math.cos(r(3 * hbar + 6)) - 0.20 * math.cos(r(4 * hbar - 63)))
+    dtheta = 30 * math.exp(-((hbar - 275) / 25) ** 2)                                # eq. 16
+    RC = 2 * math.sqrt(cbp ** 7 / (cbp ** 7 + 25 ** 7))                              # eq. 17
+    lbar = (L1 + L2) / 2
+    SL = 1 + 0.015 * (lbar - 50) ** 2 / math.sqrt(20 + (lbar - 50) ** 2)             # eq. 18
+    SC, SH = 1 + 0.045 * cbp, 1 + 0.015 * cbp * T                                    # eqs. 19, 20
+    RT = -math.sin(r(2 * dtheta)) * RC                                               # eq. 21
+    return {"dL": L2 - L1, "dC": cp2 - cp1, "dH": dH, "SL": SL, "SC": SC, "SH": SH,
+            "RT": RT, "G": G}
+
+
+@pytest.mark.parametrize("lab1, lab2", [
+    SHARMA_2005_TABLE_1[0][:2],       # pair 1: blue, hue difference small
+    SHARMA_2005_TABLE_1[6][:2],       # pair 7: one colour neutral (C' = 0)
+    SHARMA_2005_TABLE_1[24][:2],      # pair 25: L* away from 50
+    SHARMA_2005_TABLE_1[32][:2],      # pair 33: dark colours
+    ((50.0, 20.0, 1.8), (50.0, -10.0, -1.05)),   # h' 5° and 186°: difference just over 180°
+    ((50.0, 20.0, -1.8), (50.0, -10.0, 1.05)),   # h' 355° and 174°: hue sum over 360°
+    ((50.0, -10.0, -1.05), (50.0, 20.0, 1.8)),   # the first of these two reversed
+    ((40.0, 0.0, 0.0), (60.0, 0.0, 0.0)),        # both neutral
+])
+def test_intermediate_terms_against_the_equations_written_out(lab1, lab2):
+    d = ciede2000(lab1, lab2)
+    ref = _sharma_terms(lab1, lab2)
+    got = {k: getattr(d, k) for k in ref}
+    assert got == pytest.approx(ref, rel=1e-12, abs=1e-12)
+    # and the whole difference against colour-science
+    assert d.value == pytest.approx(float(colour.delta_E(lab1, lab2, method="CIE 2000")),
+                                    abs=1e-9)
+
+
+@pytest.mark.parametrize("lab1, lab2", [
+    ((50.0, 20.0, 1.8), (50.0, -10.0, -1.05)), ((50.0, 20.0, -1.8), (50.0, -10.0, 1.05)),
+    ((50.0, 30.0, 2.0), (50.0, -15.0, -1.6)), ((50.0, -15.0, -1.6), (50.0, 30.0, 2.0)),
+    ((70.0, 0.0, 40.0), (70.0, 0.5, -35.0)), ((70.0, 0.5, -35.0), (70.0, -0.5, 40.0)),
+])
+def test_ciede2000_across_the_hue_wrap_against_colour_science(lab1, lab2):
+    # pairs whose hue angles are about 180° apart, either side of the 0/360° cut
+    ref = float(colour.delta_E(lab1, lab2, method="CIE 2000"))
+    assert ciede2000(lab1, lab2).value == pytest.approx(ref, abs=1e-9)
+
+
+@pytest.mark.parametrize("lab", [
+    (5.0, 0.0, 0.0),          # f(Y) = 21/116 below 6/29: the linear part of the inverse
+    (20.0, 0.0, 80.0),        # f(Z) = 36/116 − 0.4 below 6/29
+    (20.0, -70.0, 0.0),       # f(X) = 36/116 − 0.14 below 6/29
+    (60.0, 60.0, -40.0),      # all three above 6/29: the cube
+])
+def test_lab_to_xyz_against_colour_science(lab):
+    # colour-science Lab_to_XYZ with our D65 white given as its chromaticity (Y = 1)
+    white = np.array([0.95047, 1.0, 1.08883])
+    ref = colour.Lab_to_XYZ(np.array(lab), illuminant=colour.XYZ_to_xy(white))
+    assert lab_to_xyz(lab) == pytest.approx(tuple(ref), rel=1e-9, abs=1e-12)
+
+
+@pytest.mark.parametrize("call, message", [
+    (lambda: ciede2000((101.0, 0, 0), (50, 0, 0)),
+     "first colour: L* must lie between 0 and 100; found 101"),
+    (lambda: ciede2000((50, 0, 0), (50, 0)),
+     "second colour: a CIELAB colour has three values (L*, a*, b*)"),
+    (lambda: ciede2000((50, 0, 0), (50, math.inf, 0)),
+     "second colour: L*, a* and b* must be finite numbers"),
+    (lambda: lab_to_xyz((-1.0, 0, 0)), "colour: L* must lie between 0 and 100; found -1"),
+    (lambda: summarise([(50, 0, 0), (50, 0, 0), (120, 0, 0)]),
+     "reading 3: L* must lie between 0 and 100; found 120"),
+    (lambda: summarise([]), "no readings to summarise"),
+])
+def test_colour_refusals_name_the_colour_and_the_fix(call, message):
+    with pytest.raises(ColourInputError) as exc:
+        call()
+    assert str(exc.value) == message
+
+
+def test_black_and_white_are_in_range():
+    # L* = 0 (black) and 100 (white) are the ends of the scale (CIE 15), both accepted
+    assert ciede2000((0.0, 0.0, 0.0), (100.0, 0.0, 0.0)).value == pytest.approx(
+        float(colour.delta_E((0, 0, 0), (100, 0, 0), method="CIE 2000")), abs=1e-9)
+
+
+def test_summary_of_two_readings():
+    readings = [(61.8, 3.9, 14.2), (62.5, 4.1, 14.9)]
+    s = summarise(readings)
+    # by hand: sample SD of two values = |x1 − x2| / √2
+    assert s.n == 2
+    assert s.sd == pytest.approx((0.7 / math.sqrt(2), 0.2 / math.sqrt(2), 0.7 / math.sqrt(2)),
+                                 rel=1e-9)

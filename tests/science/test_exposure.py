@@ -116,3 +116,138 @@ def test_absorption_rate_unit():
     v = units.parse("1 g/(min*in^2)", "absorption_rate") * 60
     assert v == pytest.approx(1e-3 / 0.0254 ** 2, rel=1e-12)
     assert v == pytest.approx(1.5500, abs=1e-4)
+
+
+# The reasoning of each classification, step by step: the steps of EN 1996-1-1 Annex A
+# Table A.1 (from memory: wetting level, then freeze-thaw, then salt and chemical sources),
+# in our words; each step is written out here as the dossier shows it.
+DRY_STEP = "dry: no wetting, so no freeze-thaw cycling → MX1"
+SALT_STEP = "salt air, sea water or de-icing salts → MX4"
+CHEM_STEP = "aggressive chemical environment → MX5"
+NOT_STATED = ("site climate not stated (dossier.yaml durability.freezing): taken without "
+              "freeze-thaw until it is")
+
+
+@pytest.mark.parametrize("conditions, freezing, whole", [
+    # internal: dry, so no cycling even on a freezing site (Table A.1 MX1)
+    (["internal"], True, ex.ExposureClass(
+        "dry", False, (), False, "MX1", ("MX1",),
+        ("internal: dry wetting", DRY_STEP))),
+    # sheltered, climate not stated: MX2.1 held until the climate is stated
+    (["sheltered"], None, ex.ExposureClass(
+        "moisture", None, (), False, "MX2.1", ("MX2.1",),
+        ("sheltered: moisture wetting",
+         f"moisture wetting (MX2.1/MX3.1); {NOT_STATED} → MX2.1"))),
+    (["sheltered"], False, ex.ExposureClass(
+        "moisture", False, (), False, "MX2.1", ("MX2.1",),
+        ("sheltered: moisture wetting",
+         "moisture wetting (MX2.1/MX3.1); no freeze-thaw cycling (site without frost) → MX2.1"))),
+    (["parapet"], True, ex.ExposureClass(
+        "severe", True, (), False, "MX3.2", ("MX3.2",),
+        ("parapet: severe wetting",
+         "severe wetting (MX2.2/MX3.2); freezing site and the masonry wet → freeze-thaw "
+         "cycling → MX3.2"))),
+    # permanently immersed: sea water (MX4) but not cycled by frost (MX2.2)
+    (["submerged"], True, ex.ExposureClass(
+        "severe", False, ("permanent immersion",), False, "MX2.2", ("MX4", "MX2.2"),
+        ("submerged: severe wetting; salt source: permanent immersion; not cycled by frost "
+         "while immersed",
+         "severe wetting (MX2.2/MX3.2); no freeze-thaw cycling (permanently immersed) → MX2.2",
+         SALT_STEP))),
+    (["tidal", "splash"], True, ex.ExposureClass(
+        "severe", True, ("tidal wetting and drying", "splash and wave overtopping"), False,
+        "MX3.2", ("MX4", "MX3.2"),
+        ("tidal: severe wetting; salt source: tidal wetting and drying",
+         "splash: severe wetting; salt source: splash and wave overtopping",
+         "severe wetting (MX2.2/MX3.2); freezing site and the masonry wet → freeze-thaw "
+         "cycling → MX3.2", SALT_STEP))),
+    (["aggressive_ground"], False, ex.ExposureClass(
+        "severe", False, (), True, "MX2.2", ("MX5", "MX2.2"),
+        ("aggressive ground: severe wetting; aggressive chemical environment",
+         "severe wetting (MX2.2/MX3.2); no freeze-thaw cycling (site without frost) → MX2.2",
+         CHEM_STEP))),
+    # one source named twice is listed once
+    (["salt_spray", "exposed", "salt_spray"], True, ex.ExposureClass(
+        "moisture", True, ("salt air or spray",), False, "MX3.1", ("MX4", "MX3.1"),
+        ("salt spray: moisture wetting; salt source: salt air or spray",
+         "exposed: moisture wetting",
+         "salt spray: moisture wetting; salt source: salt air or spray",
+         "moisture wetting (MX2.1/MX3.1); freezing site and the masonry wet → freeze-thaw "
+         "cycling → MX3.1", SALT_STEP))),
+])
+def test_classification_whole_with_its_reasoning(conditions, freezing, whole):
+    assert ex.classify(conditions, VOCAB, freezing) == whole
+
+
+def test_no_condition_is_refused_with_the_whole_message():
+    with pytest.raises(ValueError) as exc:
+        ex.classify([], VOCAB, True)
+    assert str(exc.value) == "no exposure condition given"
+
+
+@pytest.mark.parametrize("condition, location", [
+    # ASTM C270 Table X1.1 (from memory): foundation and retaining walls, manholes, sewers are
+    # "at or below grade"; each of our below-grade conditions alone lands there
+    ("below_dpc", "at_or_below_grade"), ("ground_contact", "at_or_below_grade"),
+    ("submerged", "at_or_below_grade"), ("tidal", "at_or_below_grade"),
+    ("aggressive_ground", "at_or_below_grade"),
+    ("parapet", "parapet"), ("coping", "parapet"),          # a coping tops a parapet wall
+    ("sheltered", "exterior_above_grade"), ("driving_rain", "exterior_above_grade"),
+])
+def test_american_location_of_each_condition_alone(condition, location):
+    assert ex.american_location([condition]) == location
+
+
+def test_carbonation_edges_worked_by_hand():
+    day = 86400.0
+    # a depth of zero (front not yet found) is a reading: K = (0·√7 + 3·√63)/(7 + 63) mm/√d
+    # = 23.8118/70 = 0.340168 mm/√d
+    k = cb.fit_coefficient([7 * day, 63 * day], [0.0, 3e-3])
+    assert k * 1e3 * math.sqrt(day) == pytest.approx(0.340168, abs=1e-6)
+    # an age of one second is positive: K = 1 mm / √1 s
+    assert cb.fit_coefficient([1.0], [1e-3]) == pytest.approx(1e-3, rel=1e-12)
+
+
+@pytest.mark.parametrize("ages, depths, message", [
+    ([], [], "give as many depths as ages, at least one"),
+    ([1.0, 2.0], [1e-3], "give as many depths as ages, at least one"),
+    ([0.0], [1e-3], "ages must be positive and depths not negative"),
+    ([1.0], [-1e-3], "ages must be positive and depths not negative"),
+])
+def test_carbonation_refusals_whole(ages, depths, message):
+    with pytest.raises(ValueError) as exc:
+        cb.fit_coefficient(ages, depths)
+    assert str(exc.value) == message
+
+
+@pytest.mark.parametrize("k", [0.0, -1e-9])
+def test_time_to_depth_refuses_a_coefficient_not_positive(k):
+    with pytest.raises(ValueError) as exc:
+        cb.time_to_depth(1e-3, k)
+    assert str(exc.value) == "the carbonation coefficient must be positive"
+
+
+def test_free_oxide_range_without_magnesia():
+    aw = refdata.load("atomic_weights").data
+    ox = {"SiO2": 21.5, "Al2O3": 8.1, "Fe2O3": 4.2, "CaO": 57.9, "SO3": 0.9, "CO2": 1.9}
+    # no MgO in the analysis: no periclase at all (upper bound 0 %)
+    assert sd.free_oxide_range(ox, aw).periclase == 0.0
+
+
+STAGES_C = refdata.load("kiln_stages").data
+
+
+@pytest.mark.parametrize("peak, where, reason", [
+    # kiln stages, common practice: calcite decomposition ends at 900 C, the usual
+    # natural-cement firing is 750-1100 C; each edge itself belongs to the usual range
+    (899, "under", "peak 899 °C below the end of calcite decomposition (900 °C): carbonate "
+                   "left and lime not yet combined with the clay's silica"),
+    (900, "within", "peak 900 °C within the usual range (750–1100 °C) and past calcite "
+                    "decomposition"),
+    (1100, "within", "peak 1100 °C within the usual range (750–1100 °C) and past calcite "
+                     "decomposition"),
+    (1101, "over", "peak 1101 °C above the usual natural-cement range (to 1100 °C): "
+                   "hard-burnt lime and periclase slake late"),
+])
+def test_firing_position_edges_and_reasons(peak, where, reason):
+    assert sd.firing_position(peak, STAGES_C) == (where, reason)
