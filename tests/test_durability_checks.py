@@ -533,6 +533,14 @@ def test_tests_asked_gathered_per_zone(demo):
         ("freeze–thaw resistance of the mortar", "DUR-FROST/Z1/M2"),
         ("initial and final setting time", "SITE-SET/M2"),
         ("soundness (expansion)", "DUR-SOUND/NC1")]
+    # the hold point counts them and names each with the check that asked for it, in that order
+    assert (c.value, c.message) == (3, "hold: before the works in zone Z1, the results of "
+                                    "freeze–thaw resistance of the mortar (DUR-FROST/Z1/M2); "
+                                    "initial and final setting time (SITE-SET/M2); "
+                                    "soundness (expansion) (DUR-SOUND/NC1)")
+    assert c.steps[0].title == "Tests asked for chosen mix M2"      # demo specification.yaml
+    assert [(i.symbol, i.source) for i in c.steps[0].inputs] == [
+        ("T1", "DUR-FROST/Z1/M2"), ("T2", "SITE-SET/M2"), ("T3", "DUR-SOUND/NC1")]
 
 
 def test_contradictory_exposure_is_an_input_error(cli, demo_copy):
