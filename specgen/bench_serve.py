@@ -60,7 +60,11 @@ def _serve_once(project: Path, work: Path, log: Path) -> dict:
     import signal
     from specgen.preview_bar import STATUS_PATH
     port = _free_port()
+    import matplotlib
     env = {k: v for k, v in os.environ.items() if k != SHARED_ENV}
+    # cold means no artefact cache, not a first run of matplotlib on this machine: its font
+    # list stays where it is (it would follow XDG_CACHE_HOME)
+    env.setdefault("MPLCONFIGDIR", matplotlib.get_cachedir())
     env.update(XDG_CACHE_HOME=str(work / "serve-cache"),
                PYTHONPATH=str(Path(__file__).resolve().parent.parent))   # this checkout
     t = time.perf_counter()
