@@ -23,7 +23,7 @@ from specgen.report.mathsvg import MathAssets
 from specgen.report.pageset import PageSet
 from specgen.report.references import Citations
 from specgen.templating import project_template_errors, project_templates, sandboxed
-from specgen.report.wording import reader, rule_label, symbol, tex_words
+from specgen.report.wording import reader, rule_label, symbol
 
 
 def template_env(project_root) -> jinja2.Environment:
@@ -118,8 +118,8 @@ class RenderEnv:
     def sheet(self, c) -> dict:
         """Context of one calculation sheet, straight from the check result."""
         # the sheet keeps four significant figures: enough to recompute by hand
-        steps = [{"title": reader(s.title), "formula": self.math.img(tex_words(s.formula)),
-                  "substituted": self.math.img(tex_words(s.substituted)),
+        steps = [{"title": reader(s.title), "formula": self.math.img(s.formula),
+                  "substituted": self.math.img(s.substituted),
                   "result": qty(s.result, s.unit, 4), "symbol": symbol(s.symbol),
                   "inputs": [{"symbol": symbol(i.symbol), "name": reader(i.name),
                               "value": as_given(i.value) if not isinstance(i.value, str)
