@@ -22,9 +22,11 @@ machine's, so it means the build's own only on an otherwise idle machine) beside
 own use of the cores (its CPU time over wall time × cores).  The last lines compare the
 figures with the targets.
 
-Two more, which ``--only serve`` / ``--only xlsx`` run alone: (g) ``serve`` on the demo — the
-time to the first answer and to the first page of the current revision, with a cold and with
-a warm artefact cache; (h) reading the demo's strength results from a workbook against the
+Two more, which ``--only serve`` / ``--only xlsx`` run alone: (g) ``serve`` on the demo, run
+as a user runs it (a fresh ``specgen serve`` process each time) — the time to the first answer
+and to the first page of the current revision (with the CPU seconds of the serving process),
+how many figures that page shows still being drawn, and when the page and every figure are
+complete, with a cold (empty) and then a warm artefact cache; (h) reading the demo's strength results from a workbook against the
 same rows as CSV (the table alone, and the whole project load).
 """
 from __future__ import annotations
@@ -41,6 +43,7 @@ import time
 from pathlib import Path
 
 from specgen.bench_cores import cpu_seconds, idle_during, measured, targets
+from specgen.bench_serve import bench_serve, project_copy as _project_copy
 from specgen.cache import SHARED_ENV
 
 
@@ -57,12 +60,6 @@ def _cold() -> None:
     """Forget every in-process memo, so a build in this process starts cold."""
     from specgen.report.mathsvg import svg_of
     svg_of.cache_clear()
-
-
-def _project_copy(demo: Path, where: Path) -> Path:
-    dst = where / "project"
-    shutil.copytree(demo, dst, ignore=shutil.ignore_patterns("issued"))
-    return dst
 
 
 def _floor(project: Path, work: Path):
@@ -118,53 +115,6 @@ def _peak_build(project: Path, out: Path) -> tuple[float, float]:
                           capture_output=True, text=True)
     seconds, kib = done.stdout.split()
     return float(seconds), int(kib) / 1024
-
-
-def _free_port() -> int:
-    import socket
-    with socket.socket() as sock:
-        sock.bind(("127.0.0.1", 0))
-        return sock.getsockname()[1]
-
-
-def _serve_once(project: Path) -> tuple[float, float, float]:
-    """(seconds to the first answer, seconds to the first page of the current revision, CPU
-    seconds this process spent until that page: the server, the build of the site and this
-    poll, the PDF not yet begun — a measure a shared machine disturbs less)."""
-    import threading
-    import urllib.request
-    from specgen.preview import serve
-    port, stop = _free_port(), threading.Event()
-    t, cpu0 = time.perf_counter(), time.process_time()
-    thread = threading.Thread(target=serve, args=(project, port), daemon=True,
-                              kwargs={"say": lambda text: None, "stop": stop})
-    thread.start()
-    first = page = None
-    while page is None:
-        try:
-            with urllib.request.urlopen(f"http://127.0.0.1:{port}/index.html", timeout=5) as r:
-                body = r.read()
-            first = first or time.perf_counter() - t
-            if b"Preview of revision" in body:
-                page, cpu = time.perf_counter() - t, time.process_time() - cpu0
-        except OSError:
-            pass
-        time.sleep(0.05)
-    stop.set()
-    thread.join()
-    return first, page, cpu
-
-
-def bench_serve(demo: Path, work: Path) -> None:
-    """(g) the preview's first answer and first page, cold then warm cache."""
-    import os
-    project = _project_copy(demo, work)
-    os.environ["XDG_CACHE_HOME"] = str(work / "serve-cache")
-    for label in ("cold cache", "warm cache"):
-        _cold()
-        first, page, cpu = _serve_once(project)
-        print(f"(g) serve, demo, {label}: first answer {first:6.2f} s, first page of the "
-              f"revision {page:7.2f} s ({cpu:6.2f} CPU s in this process; target 5 s)")
 
 
 def _cpu_median(fn, runs: int) -> float:

@@ -205,27 +205,54 @@ def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | N
         progress("check: running the checks and the consistency audit")
         results = evaluate(project, previous=_previous(archived[-1] if archived else None))
     progress("render: pages, figures and calculation sheets")
-    with cache.using(cache_dir or Path(out_dir) / cache.CACHE_DIR, cache.shared_folder()):
-        # the DOCX exports are made with the PDF, after the site (preview_pdf)
+    with cache.using(cache_dir or Path(out_dir) / cache.CACHE_DIR, cache.shared_folder()), \
+            cache.drawing_later():
+        # the DOCX exports are made with the PDF, after the site (preview_pdf); a figure the
+        # cache does not hold is a placeholder, drawn after the site (preview_figure)
         pages = render(project, results, history_for(Path(out_dir), project, results),
                        later_downloads=True)
     _fix_dates(project.revision.date)
     return Prepared(project, results, pages, key)
 
 
-def preview_site(prepared: Prepared, out_dir: Path | str) -> Path:
-    """Publish the prepared revision's site (no PDF) into ``out_dir/<revision>/``."""
+def preview_site(prepared: Prepared, out_dir: Path | str, first: set[str] | None = None
+                 ) -> Path:
+    """Publish the prepared revision's site (no PDF) into ``out_dir/<revision>/``; with
+    ``first`` (page paths), only those pages in full, the others saying they are being built."""
     from specgen.publish.preview import site_only
-    return site_only(prepared.project, prepared.results, prepared.pages, Path(out_dir))
+    return site_only(prepared.project, prepared.results, prepared.pages, Path(out_dir), first)
+
+
+def preview_figures(prepared: Prepared) -> dict[str, list[str]]:
+    """The figures the prepared site shows as placeholders, by page: the page's address
+    (``strength.html``) → figure paths in the order it shows them (the summary first)."""
+    from specgen.publish.preview import figures_by_page
+    return figures_by_page(prepared.pages)
+
+
+def preview_figure(prepared: Prepared, target: Path, path: str) -> None:
+    """Draw the figure shown as a placeholder at ``path`` and put it in its place in the
+    published preview ``target``; an error of the drawing is raised once the placeholder
+    there says the figure could not be drawn."""
+    from specgen.publish.preview import put_asset
+    try:
+        data = prepared.pages.draw(path)
+    except Exception:
+        from specgen.report.figures import not_drawn
+        put_asset(target, path, not_drawn(prepared.pages.assets[path]))
+        raise
+    put_asset(target, path, data)
 
 
 def preview_pdf(prepared: Prepared, target: Path, *, cache_dir: Path | str | None = None,
                 progress: Callable[..., None] = _quiet) -> list[Path]:
-    """Make the downloads left for later (the DOCX exports) and print the prepared revision's
-    PDF into ``target`` (parts from the artefact cache): the PDF files written, the report
+    """Draw the figures still shown as placeholders, make the downloads left for later (the
+    DOCX exports) and print the prepared revision's PDF into ``target`` (parts from the artefact cache): the PDF files written, the report
     first, then its appendix volume when it has one."""
-    from specgen.publish.preview import later_downloads, pdf_only
+    from specgen.publish.preview import later_downloads, pdf_only, put_asset
     from specgen import cache
+    for path in list(prepared.pages.drawing):   # never a PDF with a placeholder
+        put_asset(target, path, prepared.pages.draw(path))
     later_downloads(prepared.pages, target)
     with cache.using(cache_dir or target.parent / cache.CACHE_DIR, cache.shared_folder()):
         return pdf_only(prepared.project, prepared.results, prepared.pages, target,

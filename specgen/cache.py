@@ -17,6 +17,11 @@ second level behind the output folder's: a miss there is looked up in the shared
 both.  One shared folder serves every output folder and checkout of a machine (a review
 copy, a letter-paper copy, a CI cache); it is never pruned by a build (delete it at will),
 and its entries are checked on use like the others.
+
+Inside :func:`drawing_later` (the live preview's first pages) a figure or formula that misses
+the cache is not drawn: :func:`drawn_or_later` returns a :class:`Later` that draws it on
+demand, in the cache folders in use where it was asked for.  The render stage shows a
+placeholder for it and the preview draws it in the background.
 """
 from __future__ import annotations
 
@@ -33,6 +38,8 @@ _DIR: contextvars.ContextVar[Path | None] = contextvars.ContextVar("specgen_cach
 _USED: contextvars.ContextVar[set | None] = contextvars.ContextVar("specgen_cache_used", default=None)
 _SHARED: contextvars.ContextVar[Path | None] = contextvars.ContextVar("specgen_cache_shared",
                                                                      default=None)
+_LATER: contextvars.ContextVar[bool] = contextvars.ContextVar("specgen_cache_later",
+                                                              default=False)
 CACHE_DIR = ".cache"
 SHARED_ENV = "SPECGEN_SHARED_CACHE"
 
@@ -200,10 +207,50 @@ def cached(kind: str, inputs, produce) -> bytes:
     return data
 
 
+@contextlib.contextmanager
+def drawing_later():
+    """Within the block, figure functions draw nothing the cache does not hold: they return a
+    :class:`Later` instead (the live preview shows its pages before the figures are drawn)."""
+    token = _LATER.set(True)
+    try:
+        yield
+    finally:
+        _LATER.reset(token)
+
+
+class Later:
+    """A figure or formula not yet drawn: :meth:`draw` draws it (and keeps it in the cache folders that
+    were in use when it was asked for, whatever thread draws it)."""
+
+    def __init__(self, kind: str, inputs, produce):
+        self.kind, self.inputs, self._produce = kind, inputs, produce
+        self._context = contextvars.copy_context()   # the cache folders in use now
+
+    def draw(self) -> bytes:
+        """The artefact's bytes, drawn now (or found in the cache, if drawn since)."""
+        # a copy per call: one context cannot be entered by two threads at once
+        return self._context.copy().run(cached, self.kind, self.inputs, self._produce)
+
+
+def drawn_or_later(kind: str, inputs, produce) -> bytes | Later:
+    """:func:`cached`, except within :func:`drawing_later`: there an artefact the cache does
+    not hold is a :class:`Later`, not drawn now."""
+    if not _LATER.get():
+        return cached(kind, inputs, produce)
+    found = lookup(kind, inputs)
+    return found if found is not None else Later(kind, inputs, produce)
+
+
+def drawing_is_later() -> bool:
+    """Whether this is inside :func:`drawing_later`."""
+    return _LATER.get()
+
+
 def figure(fn):
-    """Decorator for figure functions returning SVG bytes: cached by their arguments."""
+    """Decorator for figure functions returning SVG bytes: cached by their arguments; within
+    :func:`drawing_later`, a :class:`Later` instead of a figure the cache does not hold."""
     @functools.wraps(fn)
     def wrapper(*args, **kwargs):
-        return cached(f"figure-{fn.__module__}.{fn.__qualname__}", [args, kwargs],
-                      lambda: fn(*args, **kwargs))
+        return drawn_or_later(f"figure-{fn.__module__}.{fn.__qualname__}", [args, kwargs],
+                              lambda: fn(*args, **kwargs))
     return wrapper

@@ -1,21 +1,25 @@
 """``specgen serve``: a live preview that answers at once.
 
 - The server starts before anything is built: until the first site is ready every page says
-  so and reloads itself.  The site comes first (load, check, render, site); the PDF is printed
-  afterwards in the background, and the preview bar on every page shows it as building until
-  it is there.
+  so and reloads itself.  The site comes first (load, check, render, site), each figure the
+  artefact cache does not hold shown as a placeholder (its alternative text kept); then, in
+  the background, the figures are drawn — those of the page last asked for first, the summary's
+  before any — each put in its place as it lands, and after them the PDF is printed (never
+  from a placeholder).  The preview bar on every page says which of its figures are still
+  being drawn (a small script swaps each in when it lands) and shows the PDF as building
+  until it is there.
 - The project folder is watched with watchdog (native file events, no polling).  A change
   rebuilds only what it touches: narrative or templates re-render with the check results
   kept; figures, math and PDF parts come from the artefact cache (kept between sessions).
 - ``/strength.html`` (any page without its revision folder) answers with that page of the
   current revision.
 - A page that could not be rebuilt (input error, an issued revision edited) still shows the
-  last good build, under a notice that carries the error text.
+  last good build, under a notice that carries the error text; a figure that could not be
+  drawn is named, with the error, in the same notice on the pages that show it.
 """
 from __future__ import annotations
 
 import hashlib
-import html
 import http.server
 import os
 import re
@@ -23,27 +27,15 @@ import shutil
 import tempfile
 import threading
 import time
-from dataclasses import dataclass, field
 from pathlib import Path
 from urllib.parse import unquote, urlsplit
 
 from specgen.errors import InputErrors, SpecgenError, UsageError
+from specgen.preview_background import Afterwards
+from specgen.preview_bar import State, own_answer, with_bar
 
 IGNORED = re.compile(r"(^|/)(\.[^/]*|[^/]*~|#[^/]*#|[^/]*\.sw[px]|__pycache__)(/|$)")
 DEBOUNCE_S = 0.4
-_BODY = re.compile(r"<body[^>]*>", re.I)
-
-
-@dataclass
-class State:
-    """What the server shows: the current revision, the PDF's state and any notice."""
-
-    revision: str | None = None
-    pdf: str = "waiting"          # waiting | building | ready | failed
-    pdf_names: tuple[str, ...] = ()   # the volumes printed: the report, then its appendices
-    notice: str = ""              # why the pages shown are not the latest edit
-    generation: int = 0
-    lock: threading.Lock = field(default_factory=threading.Lock)
 
 
 def cache_dir(project: Path) -> Path:
@@ -51,42 +43,6 @@ def cache_dir(project: Path) -> Path:
     base = Path(os.environ.get("XDG_CACHE_HOME") or Path.home() / ".cache")
     key = hashlib.sha256(str(project.resolve()).encode()).hexdigest()[:16]
     return base / "specgen" / f"preview-{key}"
-
-
-def bar(state: State) -> str:
-    """The preview bar put at the top of every page (escaped text only)."""
-    pdf = {"ready": _volume_links(state),
-           "building": "PDF and Word exports: being made… (the PDF links appear when "
-                       "they are done)",
-           "waiting": "PDF: waiting for the site", "failed": "PDF: could not be printed"}
-    parts = [f"Preview of revision {html.escape(state.revision or '—')}", pdf[state.pdf]]
-    out = ('<div role="status" style="position:sticky;top:0;z-index:1000;background:#1d3557;'
-           'color:#fff;padding:.4em 1em;font:14px/1.4 sans-serif">' + " · ".join(parts)
-           + "</div>")
-    if state.notice:
-        out += ('<div role="alert" style="background:#fff3cd;color:#3d2e00;border:2px solid '
-                '#b8860b;padding:.6em 1em;font:14px/1.4 sans-serif;white-space:pre-wrap">'
-                '<strong>This page was not rebuilt after the last edit.</strong>\n'
-                + html.escape(state.notice) + "</div>")
-    return out
-
-
-#: how the preview bar names each volume of the PDF, in the order they are printed
-VOLUME_WORDS = ("PDF: report", "appendices")
-
-
-def _volume_links(state: State) -> str:
-    """A link to each volume of the printed PDF (the report and its appendix volume)."""
-    return " · ".join(f'<a href="/{state.revision}/{html.escape(name)}">{words}</a>'
-                      for name, words in zip(state.pdf_names, VOLUME_WORDS))
-
-
-def waiting_page(state: State) -> bytes:
-    text = state.notice or "The first build of the site is running; this page reloads itself."
-    return ("<!doctype html><html lang=\"en\"><head><meta charset=\"utf-8\">"
-            "<meta http-equiv=\"refresh\" content=\"2\"><title>specgen preview</title></head>"
-            f"<body><h1>specgen preview</h1><p style=\"white-space:pre-wrap\">"
-            f"{html.escape(text)}</p></body></html>").encode("utf-8")
 
 
 def handler_for(out: Path, state: State):
@@ -106,9 +62,11 @@ def handler_for(out: Path, state: State):
                 pass   # the browser left (a reload, a closed tab) before the answer was sent
 
         def do_GET(self):
-            path = unquote(urlsplit(self.path).path)
-            if state.revision is None:
-                return self._send(waiting_page(state), "text/html; charset=utf-8")
+            url = urlsplit(self.path)
+            path = unquote(url.path)
+            own = own_answer(state, path, url.query)   # before the first site; the script's
+            if own is not None:
+                return self._send(*own)
             file = self._resolve(path)
             if file is None:
                 return super().do_GET()
@@ -116,8 +74,8 @@ def handler_for(out: Path, state: State):
                 return self._send(b"The PDF is still being printed; try again in a moment.",
                                   "text/plain; charset=utf-8", status=503)
             if file.suffix == ".html":
-                text = file.read_text(encoding="utf-8")
-                text = _BODY.sub(lambda m: m.group(0) + bar(state), text, count=1)
+                text = with_bar(state, _page_of(out / state.revision, file),
+                                file.read_text(encoding="utf-8"))
                 return self._send(text.encode("utf-8"), "text/html; charset=utf-8")
             # served from the resolved file: a bare address's assets live in the revision
             return self._send(file.read_bytes(), self.guess_type(str(file)))
@@ -149,6 +107,22 @@ def handler_for(out: Path, state: State):
     return Handler
 
 
+def _page_of(current: Path, file: Path) -> str:
+    """The page's address in the current revision's folder ("" for a page of another)."""
+    current, here = current.resolve(), file.resolve()
+    return here.relative_to(current).as_posix() if here.is_relative_to(current) else ""
+
+
+def _address(page: str) -> str:
+    """A page's address in the site (``strength.md`` → ``strength.html``)."""
+    return page.rsplit(".", 1)[0] + ".html"
+
+
+def _first_pages(pages, wanted: str) -> set[str]:
+    """The pages laid out first: the summary, and the page a reader asked for already."""
+    return {"index.md"} | {p for p in pages if _address(p) == wanted}
+
+
 def _snapshot(folder: Path) -> dict[str, str]:
     """Every file under ``folder`` (the issued revisions' inputs): path from the project → hash."""
     if not folder.is_dir():
@@ -166,8 +140,9 @@ def _frozen_text(paths: list[str], archive: str) -> str:
             f"inputs as attachments); a change belongs in the current draft, outside {archive}/.")
 
 
-class Previewer:
-    """Builds the site, then the PDF in the background; rebuilds on change."""
+class Previewer(Afterwards):
+    """Builds the site, then (:class:`Afterwards`, in the background) the rest of its pages,
+    its figures and its PDF; rebuilds on change."""
 
     def __init__(self, project: Path, out: Path, state: State, say=print, progress=None):
         self.project, self.out, self.state, self.say = project, out, state, say
@@ -175,14 +150,11 @@ class Previewer:
         self.prepared = None
         self._issued: dict[str, str] = {}   # issued inputs as last built: path → sha-256
         self.cache = cache_dir(project)
-        self._pdf_thread: threading.Thread | None = None
-        self._pdf_cv = threading.Condition()
-        self._pdf_want = None
-        self._pdf_busy = False
+        Afterwards.__init__(self)
 
     def rebuild(self, changed: set[str] | None = None) -> bool:
         """One cycle: the site now, the PDF queued.  False (and a notice) on failure."""
-        from specgen.build import ARCHIVE_DIR, prepare, preview_site
+        from specgen.build import ARCHIVE_DIR, prepare, preview_figures, preview_site
         if changed:
             self.say("changed: " + ", ".join(sorted(changed)[:8])
                      + (f" and {len(changed) - 8} more" if len(changed) > 8 else ""))
@@ -200,7 +172,12 @@ class Previewer:
                     "pages are not rebuilt from edited inputs. Fix: undo the edit, or open the "
                     f"next draft (specgen issue, or set revision.code and status: draft in "
                     "dossier.yaml) and make the change there.")
-            target = preview_site(prepared, self.out)
+            # the first site: the summary (and a page already asked for) first, the rest after
+            first = None if self.state.revision is not None else _first_pages(
+                prepared.pages.pages, self.state.wanted)
+            with self._site_lock:
+                target = preview_site(prepared, self.out, first)
+                self._published(prepared, target, preview_figures(prepared), first)
         except SpecgenError as exc:
             text = exc.report() if isinstance(exc, InputErrors) else str(exc)
             with self.state.lock:
@@ -210,14 +187,26 @@ class Previewer:
         kept = self.prepared is not None and prepared.results is self.prepared.results
         self.prepared = prepared
         self._issued = _snapshot(self.project / ARCHIVE_DIR)
+        drawing = len(prepared.pages.drawing)
+        self.say(f"{'first pages' if first else 'site'} of {target.name} ready in "
+                 f"{time.monotonic() - started:.1f} s"
+                 + (" (check results kept: only narrative or templates changed)" if kept else "")
+                 + (f"; {drawing} figures and formulas being drawn" if drawing else ""))
+        self.afterwards(prepared, target, self.state.generation)
+        return True
+
+    def _published(self, prepared, target: Path, figures: dict[str, list[str]],
+                   first: set[str] | None) -> None:
+        """The state of a site just put in place: a new build, its placeholders to draw, the
+        pages still to lay out (all but ``first``, when given)."""
         with self.state.lock:
             self.state.generation += 1
             self.state.revision, self.state.notice = target.name, ""
             self.state.pdf, self.state.pdf_names = "building", ()
-        self.say(f"site of {target.name} ready in {time.monotonic() - started:.1f} s"
-                 + (" (check results kept: only narrative or templates changed)" if kept else ""))
-        self._start_pdf(prepared, target, self.state.generation)
-        return True
+            self.state.figures, self.state.failed = figures, {}
+            self.state.drawing = set(prepared.pages.drawing)
+            self.state.building = {_address(p) for p in prepared.pages.pages
+                                   if first and p not in first}
 
     def _frozen_edits(self, changed, archive: str) -> list[str]:
         """Changed paths inside an issued revision already built here (a revision issued since,
@@ -229,46 +218,6 @@ class Previewer:
         now = _snapshot(self.project / archive)
         return sorted(p for p in inside if p.count("/") >= 2 and p.split("/")[1] in built
                       and now.get(p) != self._issued.get(p))
-
-    def wait(self) -> None:
-        """Return when no PDF is being printed or waiting to be."""
-        with self._pdf_cv:
-            while self._pdf_want is not None or self._pdf_busy:
-                self._pdf_cv.wait()
-
-    def _start_pdf(self, prepared, target: Path, generation: int) -> None:
-        """Ask for the PDF of this generation; the printer thread takes the newest request,
-        so a site rebuild never waits for a PDF (a superseded PDF is discarded)."""
-        with self._pdf_cv:
-            self._pdf_want = (prepared, target, generation)
-            self._pdf_cv.notify_all()
-            if self._pdf_thread is None:
-                self._pdf_thread = threading.Thread(target=self._printer, daemon=True)
-                self._pdf_thread.start()
-
-    def _printer(self) -> None:
-        from specgen.build import preview_pdf
-        while True:
-            with self._pdf_cv:
-                while self._pdf_want is None:
-                    self._pdf_cv.wait()
-                (prepared, target, generation), self._pdf_want = self._pdf_want, None
-                self._pdf_busy = True
-            try:
-                pdfs = preview_pdf(prepared, target, cache_dir=self.cache,
-                                   progress=self.progress)
-                outcome = ("ready", tuple(p.name for p in pdfs))
-                text = f"PDF of {target.name} ready ({len(pdfs)} volumes)"
-            except Exception as exc:  # noqa: BLE001 - reported on the pages, never fatal
-                outcome, text = ("failed", ()), f"PDF not printed: {exc}"
-            with self.state.lock:
-                current = self.state.generation == generation
-                if current:
-                    self.state.pdf, self.state.pdf_names = outcome
-            self.say(text if current else f"{text} (superseded by a newer edit)")
-            with self._pdf_cv:
-                self._pdf_busy = False
-                self._pdf_cv.notify_all()
 
 
 def watch(project: Path, on_change, stop: threading.Event,

@@ -405,7 +405,8 @@ def test_setting_times_against_the_family(demo):
     m3 = r[("SITE-SET", "M3")]
     # EN 459-1 (from memory): initial set > 1 h, final ≤ 40 h; demo M3: 4.5 h and 16 h
     assert m3.status == "pass" and m3.message.startswith(
-        "initial 270 min, final 960 min (Vicat, EN 459-2); NHL: initial ≥ 60 min, final ≤ 40 h")
+        "initial 270 min, final 960 min (Vicat, EN 459-2); natural hydraulic lime (NHL): "
+        "initial ≥ 60 min, final ≤ 40 h")
     m1 = r[("SITE-SET", "M1")]
     assert m1.status == "pass" and "tested at the card's retarder dose (0.2 %)" in m1.message
     m2 = r[("SITE-SET", "M2")]
@@ -533,6 +534,14 @@ def test_tests_asked_gathered_per_zone(demo):
         ("freeze–thaw resistance of the mortar", "DUR-FROST/Z1/M2"),
         ("initial and final setting time", "SITE-SET/M2"),
         ("soundness (expansion)", "DUR-SOUND/NC1")]
+    # the hold point counts them and names each with the check that asked for it, in that order
+    assert (c.value, c.message) == (3, "hold: before the works in zone Z1, the results of "
+                                    "freeze–thaw resistance of the mortar (DUR-FROST/Z1/M2); "
+                                    "initial and final setting time (SITE-SET/M2); "
+                                    "soundness (expansion) (DUR-SOUND/NC1)")
+    assert c.steps[0].title == "Tests asked for chosen mix M2"      # demo specification.yaml
+    assert [(i.symbol, i.source) for i in c.steps[0].inputs] == [
+        ("T1", "DUR-FROST/Z1/M2"), ("T2", "SITE-SET/M2"), ("T3", "DUR-SOUND/NC1")]
 
 
 def test_contradictory_exposure_is_an_input_error(cli, demo_copy):

@@ -251,3 +251,37 @@ def test_calamine_and_openpyxl_read_the_same(workbook, monkeypatch, case, change
     assert seen[0] == seen[1]
     tables, problems = seen[0]
     assert tables[0][3] or tables[0][1]   # something was read from the strength sheet
+
+
+def test_bad_workbooks_at_the_command_line_every_problem_at_once_nothing_written(
+        cli, workbook, tmp_path):
+    """The bad-input list on the command line: a workbook with merged cells, a formula, a
+    renamed sheet, a missing sheet, a unit changed in a header and a date as text, beside a
+    macro-enabled copy — every problem in one run, each located (sheet, cell) with its fix,
+    exit code 2, no traceback; the output folder of an earlier build is left as it was."""
+    project_dir, path, _ = workbook
+    wb = openpyxl.load_workbook(path)
+    for case, change, _ in BAD:
+        if case in ("merged", "formula", "renamed sheet", "missing sheet", "unit changed",
+                    "date as text"):
+            change(wb)
+    wb.save(project_dir / "lab" / "results.xlsx")
+    shutil.copyfile(path, project_dir / "lab" / "results.xlsm")
+    out = tmp_path / "site"
+    (out / "R1").mkdir(parents=True)
+    (out / "R1" / "index.html").write_text("the issued page")
+    for command in (("check", project_dir), ("build", project_dir, "--out", out)):
+        result = cli(*command)
+        assert result.exit_code == 2, result.output
+        assert "Traceback" not in result.output
+        for case, _, message in BAD:
+            if case in ("merged", "renamed sheet", "missing sheet", "unit changed",
+                        "date as text"):
+                assert message in result.output, (case, result.output)
+        # the column is named by its header as it now reads
+        assert (f"{W}, cell E4: value [psi]: holds a formula (=E2*2) instead of a value. Fix: "
+                "replace it by the measured value") in result.output
+        assert "lab/results.xlsm: is a macro-enabled workbook; specgen does not open it" in \
+            result.output
+    assert [p.name for p in out.rglob("*")] == ["R1", "index.html"]
+    assert (out / "R1" / "index.html").read_text() == "the issued page"

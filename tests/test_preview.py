@@ -140,8 +140,10 @@ class _Rev:
 
 class _Prepared:
     def __init__(self, status="draft"):
+        from specgen.report.pageset import PageSet
         self.project = type("P", (), {"revision": _Rev("R2", status)})()
         self.results = object()
+        self.pages = PageSet()      # every figure drawn
 
 
 def _previewer(tmp_path, monkeypatch, status="draft"):
@@ -152,7 +154,7 @@ def _previewer(tmp_path, monkeypatch, status="draft"):
     built = []
     monkeypatch.setattr(specgen.build, "prepare", lambda *a, **k: _Prepared(status))
 
-    def site(prepared, out):
+    def site(prepared, out, first=None):
         built.append(prepared)
         (out / "R2").mkdir(parents=True, exist_ok=True)
         return out / "R2"
@@ -162,7 +164,7 @@ def _previewer(tmp_path, monkeypatch, status="draft"):
     (project / "issued" / "R1" / "mixes.yaml").write_text("mixes: []\n")
     state = State()
     pv = Previewer(project, tmp_path / "out", state, say=lambda text: None)
-    pv._start_pdf = lambda *a: None     # no PDF in these tests
+    pv.afterwards = lambda *a: None     # no background work (rest of site, figures, PDF)
     return pv, state, project, built
 
 

@@ -330,6 +330,14 @@ def test_hold_point_released_in_another_revision_is_noted(demo_copy):
                          "HP9 of R2 is no longer listed: say why it was withdrawn")
     assert r.quantities["WEP-2026"]["hold_points"].value["HP1"]["history"] == \
         {"R2": "released", "R3": "released"}
+    # a point withdrawn before R2 (listed in R1 only) was answered in R2: only the points of
+    # the latest earlier revision missing now are noted
+    _archive_spec(demo_copy, "R1", EARLIER.replace("HP9, what: scaffold survey",
+                                                   "HP8, what: scaffold survey"))
+    _, r = check(demo_copy)
+    assert by(r)[("SPEC-HOLD", "WEP-2026")].notes[-1:] == (
+        "HP9 of R2 is no longer listed: say why it was withdrawn",)
+    assert not any("HP8" in n for n in by(r)[("SPEC-HOLD", "WEP-2026")].notes)
 
 
 # ------------------------------------------------------------------ bad input

@@ -64,16 +64,16 @@ def _relink(html: str, stem: str) -> str:
     return re.sub(r'href="([\w/-]+)\.md"', lambda m: f'href="#{_page_id(m.group(1) + ".md")}"', html)
 
 
-WIDE_COLUMNS = 12  # tables with more columns than this go on a landscape page
-
-
 def _landscape_wide_tables(html: str) -> str:
-    """Wrap wide tables in a block printed on a landscape page (``@page wide``)."""
+    """Wrap each table that cannot be set legibly across a portrait page (its measured
+    width, :func:`specgen.publish.widths.needs_landscape`) in a block printed on a
+    landscape page (``@page wide``)."""
+    from specgen.publish.widths import needs_landscape
+
     def wrap(m: re.Match) -> str:
-        header = re.search(r"<tr>(.*?)</tr>", m.group(0), flags=re.S)
-        cols = len(re.findall(r"<th\b", header.group(1))) if header else 0
-        return f'<div class="sg-wide">{m.group(0)}</div>' if cols > WIDE_COLUMNS else m.group(0)
-    return re.sub(r"<table>.*?</table>", wrap, html, flags=re.S)
+        return f'<div class="sg-wide">{m.group(0)}</div>' if needs_landscape(m.group(0)) \
+            else m.group(0)
+    return re.sub(r"<table\b[^>]*>.*?</table>", wrap, html, flags=re.S)
 
 
 PART_SIZE = 6_000  # characters of HTML: the least a piece of a cut chapter holds
@@ -255,6 +255,10 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
     display).
     """
     from specgen.publish.pdf_parts import Printer
+    if getattr(pageset, "drawing", None):   # placeholders of the live preview's first pages
+        raise PublishError(f"{target}: {len(pageset.drawing)} figure(s) not drawn yet ("
+                           f"{', '.join(sorted(pageset.drawing)[:3])}); a PDF is never printed "
+                           "with a placeholder. Fix: draw them first (PageSet.draw).")
     vols = volumes(pieces(pageset), target, appendix)
     files = [(name, data, stamp) for name, data in sorted(attachments.items())]
     reused = total = 0

@@ -1,12 +1,16 @@
 """Publishing for the live preview: the site first, the PDF afterwards, separately.
 
 ``site_only`` writes a revision folder without its PDF (staged, then renamed into place, with
-a manifest of the inputs so an issued revision is refused as in a build); ``pdf_only`` prints
-the PDF of the same page set later and moves it into that folder.  A full ``build`` is what
+a manifest of the inputs so an issued revision is refused as in a build), with a placeholder
+for each figure not drawn yet; ``put_asset`` puts each figure in its place as it is drawn;
+``pdf_only`` prints the PDF of the same page set later (every figure drawn: never from a
+placeholder) and moves it into that folder.  A full ``build`` is what
 publishes a revision for readers; the preview folder is a scratch copy.
 """
 from __future__ import annotations
 
+import dataclasses
+import html
 import os
 import shutil
 from pathlib import Path
@@ -17,9 +21,23 @@ from specgen.publish.output import (move_into_place, refuse_if_issued, staging_d
                                     update_versions, write_manifest)
 
 
-def site_only(project, results, pages, out: Path) -> Path:
-    """The revision's site, downloads and results.json in ``out/<revision>/`` (no PDF)."""
+#: what a page not laid out yet says (the first pages of a preview come before the rest)
+BEING_BUILT = ("# {title}\n\n*This page is being built for the preview; it takes its place "
+               "here in a moment.*\n")
+
+
+def site_only(project, results, pages, out: Path, first: set[str] | None = None) -> Path:
+    """The revision's site, downloads and results.json in ``out/<revision>/`` (no PDF).
+
+    With ``first`` (page paths, ``index.md``), only those pages are laid out in full; every
+    other page says it is being built (:data:`BEING_BUILT`), so the first page answers
+    sooner: the whole site follows (the same call without ``first``)."""
     from specgen.publish.site import build_site
+    if first:
+        pages = dataclasses.replace(pages, pages={
+            path: text if path in first else BEING_BUILT.format(
+                title=html.escape(pages.titles.get(path, path)))
+            for path, text in pages.pages.items()})
     rev = project.revision
     target = Path(out) / rev.code
     refuse_if_issued(target, project.inputs)
@@ -49,11 +67,7 @@ def later_downloads(pages, target: Path) -> list[str]:
     into ``target``, each beside its final name and then renamed; returns their paths."""
     made = pages.make_downloads()
     for rel in made:
-        final = Path(target) / rel
-        final.parent.mkdir(parents=True, exist_ok=True)
-        tmp = final.with_name(f".{final.name}.part")
-        tmp.write_bytes(pages.downloads[rel])
-        os.replace(tmp, final)
+        put_asset(target, rel, pages.downloads[rel])
     return made
 
 
@@ -80,3 +94,27 @@ def pdf_only(project, results, pages, target: Path, *, page_size: str = "a4",
         for t in (tmp, app_tmp):
             if t.exists():
                 t.unlink()
+
+
+def figures_by_page(pages) -> dict[str, list[str]]:
+    """The figures still to draw (``PageSet.drawing``) that each page shows: the page's
+    address in the site (``strength.html``) → figure paths in the order the page shows them;
+    the pages in the order of the dossier, its summary first."""
+    out = {}
+    for item in pages.nav:
+        text = pages.pages[item.path]
+        shown = sorted((text.find(f'{path}"'), path) for path in pages.drawing
+                       if f'{path}"' in text)
+        if shown:
+            out[item.path.rsplit(".", 1)[0] + ".html"] = [path for _, path in shown]
+    return out
+
+
+def put_asset(target: Path, rel: str, data: bytes) -> None:
+    """Replace the file ``rel`` of the published folder ``target`` (written beside it, then
+    renamed: a reader never gets half a figure)."""
+    final = Path(target) / rel
+    final.parent.mkdir(parents=True, exist_ok=True)
+    tmp = final.with_name(f".{final.name}.part")
+    tmp.write_bytes(data)
+    os.replace(tmp, final)

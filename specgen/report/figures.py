@@ -29,6 +29,43 @@ def to_svg(fig) -> bytes:
     return buf.getvalue()
 
 
+#: what a placeholder says while its figure is drawn, and once the drawing failed
+BEING_DRAWN = ("is being drawn", "It takes its place here when it is ready.")
+NOT_DRAWN = ("could not be drawn", "The notice at the top of the page says why.")
+
+
+def not_drawn(placeholder_svg: bytes) -> bytes:
+    """The placeholder of a figure whose drawing failed: it says so instead."""
+    text = placeholder_svg.decode("utf-8")
+    for now, then in zip(BEING_DRAWN, NOT_DRAWN):
+        text = text.replace(now, then)
+    return text.encode("utf-8")
+
+
+def formula_placeholder() -> bytes:
+    """What stands for a formula until it is drawn: a line of text in a dashed frame."""
+    return ('<svg xmlns="http://www.w3.org/2000/svg" width="230" height="26" '
+            f'viewBox="0 0 230 26"><title>This formula {BEING_DRAWN[0]}</title>'
+            '<rect x="1" y="1" width="228" height="24" fill="#f4f1ea" stroke="#8a7250" '
+            'stroke-dasharray="5 4"/><text x="10" y="18" font-family="DejaVu Sans, sans-serif" '
+            f'font-size="12" fill="#3b2f22">This formula {BEING_DRAWN[0]}</text></svg>'
+            ).encode("utf-8")
+
+
+def placeholder(n: int) -> bytes:
+    """What stands in a page for figure ``n`` until it is drawn (the live preview shows its
+    pages first): a framed box saying so (the caption stands under it already); plain SVG,
+    no matplotlib; small, so that its words stay legible on a phone's width."""
+    lines = [f"Figure {n} {BEING_DRAWN[0]}", BEING_DRAWN[1]]
+    return ('<svg xmlns="http://www.w3.org/2000/svg" width="420" height="84" '
+            f'viewBox="0 0 420 84"><title>{lines[0]}</title>'
+            '<rect x="1" y="1" width="418" height="82" fill="#f4f1ea" stroke="#8a7250" '
+            'stroke-width="2" stroke-dasharray="8 6"/>'
+            '<g font-family="DejaVu Sans, sans-serif" fill="#3b2f22">'
+            f'<text x="20" y="36" font-size="16" font-weight="bold">{lines[0]}</text>'
+            f'<text x="20" y="60" font-size="13">{lines[1]}</text></g></svg>').encode("utf-8")
+
+
 #: the ages a strength record is read at (test ages of EN 1015-11 and the later ages a
 #: natural cement needs, DOMAIN.md §1), used as the ticks of every age axis
 AGE_TICKS_D = (1, 3, 7, 14, 28, 56, 90, 180, 365, 730, 1825, 3650)

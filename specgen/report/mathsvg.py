@@ -6,17 +6,9 @@ from __future__ import annotations
 import contextlib
 import hashlib
 import re
-from functools import lru_cache
+from functools import lru_cache, partial
 
 from markupsafe import Markup, escape
-
-
-@lru_cache(maxsize=4096)
-def svg_of(latex: str) -> str:
-    """SVG text of a LaTeX expression (ziamath, STIX Two Math font shipped in the package);
-    kept in the output folder's artefact cache (specgen/cache.py)."""
-    from specgen.cache import cached
-    return cached("math", latex, lambda: _draw(latex)).decode("utf-8")
 
 
 def _draw(latex: str) -> bytes:
@@ -25,6 +17,23 @@ def _draw(latex: str) -> bytes:
     # as fast (measured on a formula repeated 60 times: 6.5 s against 14.4 s)
     ziamath.config.svg2 = False
     return re.sub(r"\s+$", "", ziamath.Latex(latex, size=18).svg()).encode("utf-8")
+
+
+@lru_cache(maxsize=4096)
+def svg_of(latex: str) -> str:
+    """SVG text of a LaTeX expression (ziamath, STIX Two Math font shipped in the package);
+    kept in the output folder's artefact cache (specgen/cache.py)."""
+    from specgen.cache import cached
+    return cached("math", latex, partial(_draw, latex)).decode("utf-8")
+
+
+def _svg_or_later(latex: str):
+    """The SVG bytes of ``latex``, or within ``cache.drawing_later`` a ``cache.Later`` when
+    the cache does not hold them (the live preview's first pages)."""
+    from specgen.cache import drawing_is_later, drawn_or_later
+    if drawing_is_later():
+        return drawn_or_later("math", latex, partial(_draw, latex))
+    return svg_of(latex).encode("utf-8")
 
 
 BESIDE_MIN = 8   # expressions to draw before a second process is worth its start
@@ -39,7 +48,8 @@ def drawn_beside(latexes):
     machine: the block draws from the front (:func:`svg_of`, which takes what the other
     process has already kept), the other process from the back, so they meet in the middle
     and each expression is drawn about once.  The bytes are :func:`_draw`'s either way.  Only
-    with a cache folder and where fork exists (else the block draws everything); the forked
+    with a cache folder, where fork exists and when the drawing is not left for later (the
+    live preview's first pages; else the block draws everything itself); the forked
     process touches nothing but the cache and the math engine (no output, no logging), as
     the printing workers of the PDF, so a lock held by another thread at the fork is never
     waited for."""
@@ -47,9 +57,9 @@ def drawn_beside(latexes):
 
     from specgen import cache
     folder, shared = cache.folders()
-    todo = [x for x in dict.fromkeys(latexes) if cache.lookup("math", x) is None]
-    if (folder is None or len(todo) < BESIDE_MIN
-            or "fork" not in multiprocessing.get_all_start_methods()):
+    todo = [] if folder is None or cache.drawing_is_later() else [
+        x for x in dict.fromkeys(latexes) if cache.lookup("math", x) is None]
+    if len(todo) < BESIDE_MIN or "fork" not in multiprocessing.get_all_start_methods():
         yield
         return
     ctx = multiprocessing.get_context("fork")
@@ -95,6 +105,13 @@ class MathAssets:
     def img(self, latex: str, depth: int = 0) -> Markup:
         """An ``<img>`` for ``latex``; ``depth`` is how deep the citing page is in the site."""
         name = hashlib.sha256(latex.encode("utf-8")).hexdigest()[:16]
-        path = self.pageset.add_asset(f"{self.folder}/{name}.svg", svg_of(latex).encode("utf-8"))
+        path = f"{self.folder}/{name}.svg"
+        if path not in self.pageset.assets:
+            data = _svg_or_later(latex)
+            if isinstance(data, bytes):
+                self.pageset.add_asset(path, data)
+            else:   # not drawn yet: a placeholder until it is
+                from specgen.report.figures import formula_placeholder
+                self.pageset.add_placeholder(path, formula_placeholder(), data.draw)
         prefix = "../" * depth
         return Markup(f'<img class="sg-math" src="{prefix}{path}" alt="{escape(latex)}">')

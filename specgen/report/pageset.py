@@ -34,6 +34,10 @@ class PageSet:
     # downloads whose bytes are made only when asked for (the DOCX exports, slow to make): the
     # live preview shows its pages first and makes these afterwards; path → maker
     later: dict[str, Callable[[], bytes]] = field(default_factory=dict)
+    # figures shown as a placeholder until drawn (the live preview's first pages, before the
+    # figures the artefact cache does not hold are drawn): path → function drawing the figure.
+    # ``assets`` holds the placeholder meanwhile; the PDF is never printed while any is left
+    drawing: dict[str, Callable[[], bytes]] = field(default_factory=dict)
     # document-control marks for the print: the mark on every page ("DRAFT — not for
     # construction", "Superseded by R4") and the cover's sign-off rows
     marks: dict = field(default_factory=dict)
@@ -51,6 +55,24 @@ class PageSet:
             raise ValueError(f"asset '{path}' is produced twice with different content")
         self.assets[path] = data
         return path
+
+    def add_placeholder(self, path: str, placeholder: bytes, draw: Callable[[], bytes]) -> str:
+        """An asset shown as ``placeholder`` until :meth:`draw` replaces it with what
+        ``draw()`` makes (see ``drawing``); returns its path."""
+        if path in self.assets and (path not in self.drawing
+                                    or self.assets[path] != placeholder):
+            raise ValueError(f"asset '{path}' is produced twice with different content")
+        self.assets[path] = placeholder
+        self.drawing[path] = draw
+        return path
+
+    def draw(self, path: str) -> bytes:
+        """Draw the figure left as a placeholder at ``path``, put it in its place and return
+        it (an error of the drawing leaves the placeholder and is raised)."""
+        data = self.drawing[path]()
+        self.assets[path] = data
+        del self.drawing[path]
+        return data
 
     def add_download(self, path: str, data: bytes | Callable[[], bytes]) -> str:
         """A file for the reader beside the PDF (see ``downloads``), or a function that makes

@@ -15,6 +15,7 @@ from dataclasses import dataclass, field
 import jinja2
 from markupsafe import Markup, escape
 
+from specgen.cache import Later
 from specgen.refdata import CONTENT_DIR
 from specgen.report.chapters import badge, chapters, sheet_anchor
 from specgen.report.fmt import as_given, num, qty, unit_symbol
@@ -22,7 +23,7 @@ from specgen.report.mathsvg import MathAssets, drawn_beside
 from specgen.report.pageset import PageSet
 from specgen.report.references import Citations
 from specgen.templating import project_template_errors, project_templates, sandboxed
-from specgen.report.wording import reader, rule_label, symbol, tex_words
+from specgen.report.wording import reader, rule_label, symbol
 
 
 def template_env(project_root) -> jinja2.Environment:
@@ -82,14 +83,22 @@ class RenderEnv:
     def figure(self, path: str, svg: bytes, caption: str, alt: str) -> dict:
         """Add a figure asset; figures are numbered in order of appearance.
 
+        ``svg`` is the figure's bytes, or a :class:`specgen.cache.Later` (the live preview's
+        first pages): the page set then holds a placeholder saying the figure is being drawn.
         ``caption`` says what the figure is about (printed under it); ``alt`` describes
         what it shows for a reader who cannot see it (the image's alternative text in the
         site and the tagged PDF) and so must not merely repeat the caption."""
         if " ".join(alt.split()).casefold() == " ".join(caption.split()).casefold():
             raise ValueError(f"{path}: the alternative text repeats the caption")
-        self.pageset.add_asset(path, svg)
         self.figures.append(path)
-        return {"src": path, "caption": caption, "alt": alt, "n": len(self.figures)}
+        n = len(self.figures)
+        if isinstance(svg, Later):   # not drawn yet (cache.drawing_later): a placeholder
+            from specgen.report.figures import placeholder
+            if path not in self.pageset.drawing:
+                self.pageset.add_placeholder(path, placeholder(n), svg.draw)
+        else:
+            self.pageset.add_asset(path, svg)
+        return {"src": path, "caption": caption, "alt": alt, "n": n}
 
     def table(self, caption: str) -> Markup:
         """A numbered table caption, placed just above a table in a template:
@@ -109,8 +118,8 @@ class RenderEnv:
     def sheet(self, c) -> dict:
         """Context of one calculation sheet, straight from the check result."""
         # the sheet keeps four significant figures: enough to recompute by hand
-        steps = [{"title": reader(s.title), "formula": self.math.img(tex_words(s.formula)),
-                  "substituted": self.math.img(tex_words(s.substituted)),
+        steps = [{"title": reader(s.title), "formula": self.math.img(s.formula),
+                  "substituted": self.math.img(s.substituted),
                   "result": qty(s.result, s.unit, 4), "symbol": symbol(s.symbol),
                   "inputs": [{"symbol": symbol(i.symbol), "name": reader(i.name),
                               "value": as_given(i.value) if not isinstance(i.value, str)
@@ -151,8 +160,7 @@ def render(project, results, history=None, superseded: str | None = None, *,
     from specgen.report.fmt import unit_display
     # every page shows units the way the practice the project follows does
     # the calculation sheets' math, drawn beside the chapters on the second core
-    math = [tex_words(t) for c in results.checks for s in c.steps for t in (s.formula,
-                                                                          s.substituted)]
+    math = [t for c in results.checks for s in c.steps for t in (s.formula, s.substituted)]
     with unit_display(practice.resolve(project.dossier).unit_display), \
             project_template_errors(getattr(project, "root", None)), drawn_beside(math):
         for spec in chapters():

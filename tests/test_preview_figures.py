@@ -1,0 +1,167 @@
+"""``specgen serve`` on a cold artefact cache: the first page answers before the figures and
+formulas are drawn (each shown as a placeholder, its alternative text kept, the preview bar
+saying so), they are drawn in the background — those of the page asked for first — and each
+takes its place as it lands; a figure that cannot be drawn is reported on its page, never a
+hang; the PDF is never printed from a placeholder."""
+from __future__ import annotations
+
+import html
+import http.server
+import json
+import re
+import threading
+import time
+
+import pytest
+
+from specgen.preview import Previewer, State, handler_for
+from specgen.preview_bar import SCRIPT_PATH, STATUS_PATH
+
+from tests.test_preview import get
+
+
+@pytest.fixture
+def cold(tmp_path, monkeypatch):
+    """The starter project previewed with an empty artefact cache (no shared one), the server
+    answering for its output folder, the background work (rest of the site, figures, PDF)
+    held until the test starts it: (previewer, base URL, started background requests)."""
+    from specgen.starter import write_starter
+    monkeypatch.delenv("SPECGEN_SHARED_CACHE", raising=False)
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    project, out = tmp_path / "p", tmp_path / "out"
+    write_starter(project)
+    out.mkdir()
+    state = State()
+    server = http.server.ThreadingHTTPServer(("127.0.0.1", 0), handler_for(out, state))
+    threading.Thread(target=server.serve_forever, daemon=True).start()
+    pv = Previewer(project, out, state, say=lambda text: None)
+    held = []
+    monkeypatch.setattr(pv, "afterwards", lambda *request: held.append(request))
+    yield pv, f"http://127.0.0.1:{server.server_address[1]}", held
+    with state.lock:
+        state.generation += 1          # a newer build: whatever is left of the work stops
+    pv.wait()
+    server.shutdown()
+    server.server_close()
+
+
+def _start(pv, held) -> None:
+    """Let the held background work run (the real thread of the previewer)."""
+    from specgen.preview_background import Afterwards
+    Afterwards.afterwards(pv, *held[-1])
+
+
+def _until(condition, seconds: float = 240.0) -> None:
+    deadline = time.monotonic() + seconds
+    while not condition():
+        assert time.monotonic() < deadline, "the background work did not finish in time"
+        time.sleep(0.1)
+
+
+def _figures(body: str) -> dict[str, str]:
+    """The figures a page shows: src → alternative text."""
+    return dict(re.findall(r'<img src="(figures/[^"]+\.svg)" alt="([^"]*)"', body))
+
+
+def test_first_page_cold_shows_placeholders_then_the_real_figures(cold, monkeypatch):
+    pv, base, held = cold
+    # a reader asked for the strength page while the first build ran (the waiting page)
+    assert "The first build of the site is running" in get(base + "/strength.html")[1]
+    assert pv.rebuild()
+    state = pv.state
+    assert state.drawing and held                # nothing drawn yet, the work not started
+    status, body = get(base + "/strength.html")
+    assert status == 200 and "Preview of revision R1" in body
+    shown = _figures(body)
+    assert shown and set(shown) == set(state.figures["strength.html"])
+    # the alternative text is the figure's own, not the placeholder's words
+    assert all(alt and "being drawn" not in alt for alt in shown.values())
+    assert (f"Figures and formulas: {len(shown)} of this page are still being drawn (each "
+            "takes its place as it is ready)") in body
+    assert f'<script src="{SCRIPT_PATH}"></script>' in body
+    assert 'id="sg-preview-data"' in body and "sg-preview-data" in get(base + SCRIPT_PATH)[1]
+    first = next(iter(shown))
+    placeholder = get(f"{base}/{first}")[1]
+    assert "is being drawn" in placeholder and "It takes its place here" in placeholder
+    # the summary and the page asked for are laid out; the others say they are being built
+    assert "being built" not in get(base + "/index.html")[1]
+    later = get(base + "/calculations.html")[1]
+    assert "This page is being built for the preview" in later
+    assert "This page is being built: it takes its place here in a moment" in later
+    assert json.loads(get(f"{base}{STATUS_PATH}?page=calculations.html")[1])["building"]
+
+    order = []
+    import specgen.build
+    real = specgen.build.preview_figure
+
+    def drawn_in_order(prepared, target, path):
+        order.append(path)
+        return real(prepared, target, path)
+    monkeypatch.setattr(specgen.build, "preview_figure", drawn_in_order)
+    get(base + "/strength.html")                  # the reader is back on the strength page
+    _start(pv, held)
+    _until(lambda: not set(shown) & state.drawing)
+    # the page asked for had its figures drawn before any other
+    assert set(order[:len(shown)]) == set(shown)
+    drawn = get(f"{base}/{first}")[1]
+    assert drawn.startswith(("<?xml", "<svg")) and "being drawn" not in drawn
+    assert "<path" in drawn                       # matplotlib's drawing, not our text box
+    status = json.loads(get(f"{base}{STATUS_PATH}?page=strength.html")[1])
+    assert status["drawing"] == [] and status["failed"] == [] and not status["building"]
+    body = get(base + "/strength.html")[1]
+    assert "still being drawn" not in body and SCRIPT_PATH not in body
+    assert _figures(body) == shown
+    # the rest of the site was laid out before the figures were drawn
+    assert "being built" not in get(base + "/calculations.html")[1]
+
+
+def test_a_figure_that_cannot_be_drawn_is_reported_on_its_page_not_a_hang(cold):
+    pv, base, held = cold
+    assert pv.rebuild()
+    state = pv.state
+    broken = state.figures["strength.html"][0]
+
+    def fails():
+        raise ValueError("the curve has no point to draw")
+    pv.prepared.pages.drawing[broken] = fails
+    with state.lock:
+        state.wanted = "strength.html"
+    _start(pv, held)
+    _until(lambda: broken in state.failed)
+    body = get(base + "/strength.html")[1]
+    assert 'role="alert"' in body
+    assert html.escape("of this page's figures and formulas could not be drawn; the PDF is not "
+                       "printed while one is missing.") in body
+    assert f"{broken}: ValueError: the curve has no point to draw" in body
+    assert "Fix: check the data it shows" in body
+    assert "could not be drawn" in get(f"{base}/{broken}")[1]
+    assert json.loads(get(f"{base}{STATUS_PATH}?page=strength.html")[1])["failed"] == [broken]
+    # the others are drawn all the same
+    others = [f for f in state.figures["strength.html"] if f != broken]
+    _until(lambda: not set(others) & state.drawing)
+
+
+def test_the_pdf_is_never_printed_from_a_placeholder(tmp_path):
+    """What is left as a placeholder is drawn before the PDF; a placeholder that cannot be
+    drawn stops the PDF before anything is printed, and the printer refuses a page set that
+    still holds one."""
+    from specgen.build import preview_pdf
+    from specgen.errors import PublishError
+    from specgen.publish.pdf import write_pdf
+    from specgen.report.pageset import PageSet
+    pages = PageSet()
+    pages.add_page("index.md", "Summary", '<img src="figures/a.svg" alt="A chart">')
+    pages.add_placeholder("figures/a.svg", b"<svg>being drawn</svg>", lambda: 1 / 0)
+    target = tmp_path / "R1"
+    target.mkdir()
+    prepared = type("Prepared", (), {"pages": pages, "project": None, "results": None})()
+    with pytest.raises(ZeroDivisionError):
+        preview_pdf(prepared, target, cache_dir=tmp_path / "cache")
+    assert not list(target.glob("*.pdf"))
+    with pytest.raises(PublishError, match=r"1 figure\(s\) not drawn yet \(figures/a.svg\); "
+                                           "a PDF is never printed with a placeholder"):
+        write_pdf(pages, {}, tmp_path / "x.pdf", attachments={})
+    assert not (tmp_path / "x.pdf").exists()
+    pages.drawing["figures/a.svg"] = lambda: b"<svg>drawn</svg>"
+    assert pages.draw("figures/a.svg") == b"<svg>drawn</svg>"
+    assert pages.assets["figures/a.svg"] == b"<svg>drawn</svg>" and not pages.drawing
