@@ -67,6 +67,28 @@ def applicable(results, project, zone_id: str, mix_id: str) -> list:
     return [r for r in results if r.subject in subjects and not r.code.startswith("SPEC-")]
 
 
+#: How the dossier names each binder family (materials.yaml ``type``): the trade's names, the
+#: limes with their EN 459-1 notation, and the short form a parenthesis takes (NHL).  The one
+#: table: a check writing a family into its text and a chapter showing one both read it here,
+#: so no key ("nhl", "air_lime") reaches a reader.
+FAMILIES = {"natural_cement": ("natural cement", "natural cement"),
+            "nhl": ("natural hydraulic lime (NHL)", "NHL"),
+            "fl": ("formulated lime (FL)", "FL"), "hl": ("hydraulic lime (HL)", "HL"),
+            "air_lime": ("air lime", "air lime"),
+            "portland": ("Portland cement", "Portland cement"),
+            "pozzolan": ("pozzolan", "pozzolan")}
+FAMILY_WORDS = {key: words for key, (words, _) in FAMILIES.items()}
+
+
+def family_words(*families: str, short: bool = False) -> str:
+    """The binder ``families`` (materials.yaml ``type`` keys) as a reader reads them, joined
+    with commas: ``family_words("nhl", "portland")`` → "natural hydraulic lime (NHL),
+    Portland cement"; ``short``: the form inside a parenthesis ("NH35 (NHL)").  A key the
+    table lacks reads with spaces for its underscores."""
+    return ", ".join(FAMILIES[f][short] if f in FAMILIES else str(f).replace("_", " ")
+                     for f in families)
+
+
 # the key of the gauging water among a mix's constituents (quantities and schedules)
 WATER = "water"
 

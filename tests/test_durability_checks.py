@@ -406,7 +406,8 @@ def test_setting_times_against_the_family(demo):
     m3 = r[("SITE-SET", "M3")]
     # EN 459-1 (from memory): initial set > 1 h, final ≤ 40 h; demo M3: 4.5 h and 16 h
     assert m3.status == "pass" and m3.message.startswith(
-        "initial 270 min, final 960 min (Vicat, EN 459-2); NHL: initial ≥ 60 min, final ≤ 40 h")
+        "initial 270 min, final 960 min (Vicat, EN 459-2); natural hydraulic lime (NHL): "
+        "initial ≥ 60 min, final ≤ 40 h")
     m1 = r[("SITE-SET", "M1")]
     assert m1.status == "pass" and "tested at the card's retarder dose (0.2 %)" in m1.message
     m2 = r[("SITE-SET", "M2")]

@@ -191,15 +191,6 @@ def test_two_builds_are_byte_identical(demo_build, tmp_path, monkeypatch):
         assert (first / name).read_bytes() == (again / name).read_bytes(), name
 
 
-def test_wide_tables_get_a_landscape_page():
-    from specgen.publish.pdf import WIDE_COLUMNS, _landscape_wide_tables
-    head = "".join(f"<th>c{i}</th>" for i in range(WIDE_COLUMNS + 1))
-    wide = f"<table><thead><tr>{head}</tr></thead></table>"
-    narrow = "<table><thead><tr><th>a</th><th>b</th></tr></thead></table>"
-    assert _landscape_wide_tables(wide).startswith('<div class="sg-wide">')
-    assert _landscape_wide_tables(narrow) == narrow
-
-
 def test_reference_titles_are_set_in_italics(demo_build):
     """Titles in the reference list are emphasised, not shown with their Markdown asterisks."""
     html = (demo_build / REV / "references.html").read_text()

@@ -183,7 +183,8 @@ def test_curing_regime_suits_the_binder_family():
     # the Values to confirm page (no mark on the sheet)
     _, results = check("demo_project")
     got = by_check(results)
-    for mix, family in (("M1", "natural_cement"), ("M2", "natural_cement"), ("M3", "nhl")):
+    for mix, family in (("M1", "natural cement"), ("M2", "natural cement"),
+                        ("M3", "natural hydraulic lime (NHL)")):
         c = got[("EVD-CURE", mix)]
         assert c.status == "pass", c.message
         assert c.message == f"EN 1015-11, cement and hydraulic mortars suits {family}"
@@ -199,11 +200,13 @@ def test_hydraulic_lime_prisms_dried_in_air_fail(demo_copy):
     _regime(demo_copy, "M3", "air_65")
     c = by_check(check(demo_copy)[1])[("EVD-CURE", "M3")]
     assert c.status == "fail"
-    assert c.message.startswith("in air at 65 % RH and 20 °C from demoulding does not suit nhl: "
+    assert c.message.startswith("in air at 65 % RH and 20 °C from demoulding does not suit "
+                                "natural hydraulic lime (NHL): "
                                 "the prisms' strength is not that "
                                 "of the mortar in the wall")
     assert c.notes == ()   # the regime is a rule of the trade, not a recalled value
-    assert c.steps[0].substituted == r"\text{nhl} \notin \{\text{air lime}\}"
+    assert c.steps[0].substituted == \
+        r"\text{natural hydraulic lime (NHL)} \notin \{\text{air lime}\}"
 
 
 def test_unstated_regime_is_attention_and_none_stated_not_assessed(demo_copy):
@@ -220,7 +223,7 @@ def test_unstated_regime_is_attention_and_none_stated_not_assessed(demo_copy):
                                                "samples.yaml, or lab/strength.csv)")
     m2 = got[("EVD-CURE", "M2")]
     assert (m2.status, m2.message) == ("attention", "1 of 30 prisms state no curing regime "
-                                       "(first: M2-01d-C1); the others suit natural_cement")
+                                       "(first: M2-01d-C1); the others suit natural cement")
 
 
 def test_memory_regime_holds_in_an_issued_revision(demo_copy):

@@ -132,13 +132,14 @@ def _context() -> dict:
 def test_wide_tables_print_landscape_with_the_running_heads(tmp_path):
     from pypdf import PdfReader
 
-    from specgen.publish.pdf import WIDE_COLUMNS, write_pdf
+    from specgen.publish.pdf import write_pdf
     from specgen.report.pageset import PageSet
-    cols = WIDE_COLUMNS + 2
+    # four columns of 40-digit numbers (that cannot break): wider than a portrait page
+    cols = 4
     table = ("| " + " | ".join(f"c{i}" for i in range(cols)) + " |\n"
              + "|" + "---|" * cols + "\n"
-             + "".join("| " + " | ".join(str(r * i) for i in range(cols)) + " |\n"
-                       for r in range(5)))
+             + "".join("| " + " | ".join(str(r * i + 1) * 40 for i in range(cols)) + " |\n"
+                       for r in range(1, 6)))
     pages = PageSet()
     pages.add_page("index.md", "Summary", "# Summary\n\nNarrow text.\n")
     pages.add_page("wide.md", "Wide", f"# Wide\n\n{table}\nAfter the table.\n")

@@ -3,6 +3,7 @@ the reader's wording of what the checks write (labels, symbols, plurals)."""
 from __future__ import annotations
 
 import datetime as dt
+import re
 
 import pytest
 
@@ -99,3 +100,76 @@ def test_age_axes_read_in_days_not_powers_of_ten(ages, expected):
     plt.close(fig)
     assert labels == expected
     assert not any("^" in t or "10" in t and t != "10" for t in labels)  # no mathtext 10^n
+
+
+@pytest.mark.parametrize("text, expected", [
+    # IUPAC, Nomenclature of Inorganic Chemistry (Red Book, 2005), IR-4: the number of atoms
+    # as a right subscript; a multiplier of a hydrate's water stays on the line (from memory)
+    ("SiO2, Al2O3+Fe2O3 and CaCO3.",
+     "SiO<sub>2</sub>, Al<sub>2</sub>O<sub>3</sub>+Fe<sub>2</sub>O<sub>3</sub> and "
+     "CaCO<sub>3</sub>."),
+    ("CaSO4·2H2O, Ca(OH)2", "CaSO<sub>4</sub>·2H<sub>2</sub>O, Ca(OH)<sub>2</sub>"),
+    # the cement chemist's notation sets its counts as subscripts too (Taylor, Cement
+    # Chemistry, 2nd ed., 1.2, from memory)
+    ("C2S + 4.3 H → C1.7-S-H4 (C3A, C4AF)",
+     "C<sub>2</sub>S + 4.3 H → C<sub>1.7</sub>-S-H<sub>4</sub> (C<sub>3</sub>A, C<sub>4</sub>AF)"),
+    # ids, classes and standards stay as written
+    ("NC1, NH35, EB1, M1, Z1.1, B2, MX1, ASTM C270, C10/C10M, EN 1015-11, so3_max, MgO, LOI",
+     "NC1, NH35, EB1, M1, Z1.1, B2, MX1, ASTM C270, C10/C10M, EN 1015-11, so3_max, MgO, LOI"),
+])
+def test_chemical_formulas_get_subscript_counts(text, expected):
+    from specgen.report.wording import formulas
+    assert formulas(text) == expected
+
+
+@pytest.mark.parametrize("formula", ["SiO2", "Al2O3", "Fe2O3", "SO3", "K2O", "Na2O", "CO2",
+                                     "CaCO3", "MgCO3", "CaSO4", "H2O", "Ca(OH)2", "Na2SO4",
+                                     "CaCl2", "P2O5", "TiO2", "Mn2O3"])
+def test_subscripts_are_the_atom_counts_a_reference_library_reads(formula):
+    """Each subscript set is the count periodictable (a reference library) parses from the
+    same formula: the digits made small are the right ones, and none is left on the line."""
+    import periodictable
+
+    from specgen.report.wording import formulas
+    html = formulas(formula)
+    counts: dict[str, int] = {}
+    group = 1
+    for m in re.finditer(r"(\()|\)(?:<sub>(\d+)</sub>)?|([A-Z][a-z]?)(?:<sub>(\d+)</sub>)?", html):
+        if m.group(1):
+            inner = html[m.end():html.index(")", m.end())]
+            after = re.match(r"\)<sub>(\d+)</sub>", html[m.end() + len(inner):])
+            group = int(after.group(1)) if after else 1
+        elif m.group(0).startswith(")"):
+            group = 1
+        else:
+            counts[m.group(3)] = counts.get(m.group(3), 0) + int(m.group(4) or 1) * group
+    expected = {str(el): n for el, n in periodictable.formula(formula).atoms.items()}
+    assert counts == expected
+    assert not re.search(r"(?<![<\w])\d", re.sub(r"<sub>\d+</sub>", "", html))
+
+
+def test_formulas_are_set_in_running_text_not_in_code_or_the_input_listing():
+    import markdown
+    page = ("Uncombined SiO2 and `SiO2` in code.\n\n| Oxide | Mass % |\n|---|---|\n"
+            "| Al2O3 | 8.1 |\n\n<div class=\"sg-input-listing\">CaCO3</div>\n\n"
+            "<img class=\"sg-math\" alt=\"CO2\" src=\"m.svg\">\n\nmin^½\n")
+    html = markdown.markdown(page, extensions=["tables", "md_in_html", "specgen.report.mdtypo"])
+    assert "Uncombined SiO<sub>2</sub>" in html and "<code>SiO2</code>" in html
+    assert "<td>Al<sub>2</sub>O<sub>3</sub></td>" in html
+    assert '<div class="sg-input-listing">CaCO3</div>' in html and 'alt="CO2"' in html
+    assert "min<sup>½</sup>" in html
+
+
+def test_binder_families_read_by_the_trades_names():
+    """The EN 459-1 notations of the limes (NHL, FL, HL; from memory) and the cements by
+    name: the one table a check and a chapter both read."""
+    import typing
+
+    from specgen.project.materials_schema import Binder
+    from specgen.views import FAMILY_WORDS, family_words
+    keys = typing.get_args(Binder.model_fields["type"].annotation)
+    assert set(FAMILY_WORDS) == set(keys)           # every family of the schema has words
+    assert family_words("nhl", "portland") == "natural hydraulic lime (NHL), Portland cement"
+    assert "(FL)" in family_words("fl") and "(HL)" in family_words("hl")
+    assert not any(k in re.findall(r"[\w]+", family_words(*keys)) for k in
+                   ("nhl", "fl", "hl", "portland", "air_lime", "natural_cement"))

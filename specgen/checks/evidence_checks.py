@@ -14,6 +14,7 @@ from specgen import refdata
 from specgen.checks import durability_common as dc
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step, not_assessed
+from specgen.views import family_words
 
 TITLE = "Curing regime of the strength prisms against the binder"
 BASIS = (Basis("reference", "en1015_11", "storage of the prisms before test, by kind of mortar"),
@@ -47,15 +48,16 @@ def curing_check(mix, ctx):
                                                      in used.values() if v.get("tag") == "memory"])
     steps = tuple(_step(mix, k, v, families, rows) for k, v in used.items())
     if wrong:
-        message = "; ".join(f"{_name(used[k])} does not suit {', '.join(fs)}"
+        message = "; ".join(f"{_name(used[k])} does not suit {family_words(*fs)}"
                             for k, fs in wrong.items()) + \
             ": the prisms' strength is not that of the mortar in the wall — recast and cure " \
             "them in a regime for the binder"
     elif unstated:
         message = (f"{len(unstated)} of {len(rows)} prisms state no curing regime "
-                   f"(first: {unstated[0]}); the others suit {', '.join(families)}")
+                   f"(first: {unstated[0]}); the others suit {family_words(*families)}")
     else:
-        message = f"{', '.join(_name(used[k]) for k in stated)} suits {', '.join(families)}"
+        message = (f"{', '.join(_name(used[k]) for k in stated)} suits "
+                   f"{family_words(*families)}")
     value = {k: {"specimens": sum(r.curing_regime == k for r in rows),
                  "suits": list(v["suits"]), "title": v["title"]} for k, v in used.items()}
     return CheckResult(code="EVD-CURE", title=TITLE, subject=mix.id, subject_kind="mix",
@@ -70,17 +72,17 @@ def _step(mix, key: str, regime: dict, families: list[str], rows) -> Step:
     suits = list(regime["suits"])
     ok = all(f in suits for f in families)
     n = sum(r.curing_regime == key for r in rows)
-    fam = ", ".join(families)
+    fam = family_words(*families)
     rel = r"\in" if ok else r"\notin"
-    members = dc.tex(", ".join(suits).replace("_", " "))
-    words = dc.tex(fam.replace("_", " "))
+    members = dc.tex(family_words(*suits))
+    words = dc.tex(fam)
     return Step(
         f"Regime {key} of {n} prisms of {mix.id}", r"f \in S(r)",
         (Input("r", "curing regime", key, "", f"lab/strength.csv or the prism series of "
                f"samples.yaml ({n} prisms): {regime['title']}"),
          Input("f", "binder families of the mix", fam, "", "materials.yaml binder type, "
                "through mixes.yaml"),
-         Input("S(r)", "binder families the regime suits", ", ".join(suits), "",
+         Input("S(r)", "binder families the regime suits", family_words(*suits), "",
                refdata.shown(str(regime.get("source", "")), str(regime.get("tag", ""))))),
         rf"\text{{{words}}} {rel} \{{\text{{{members}}}\}}", 1.0 if ok else 0.0, "", "")
 

@@ -35,6 +35,7 @@ from specgen.checks.result import (
     not_assessed,
 )
 from specgen.science import exposure as ex
+from specgen.views import family_words
 
 declare("exposure_class", "", "exposure class of a zone: {practice, designation, classes, base, "
         "wetting, freeze_thaw, sea, aggressive, conditions, american}")
@@ -233,7 +234,7 @@ def _indicators(pair, ctx, regime: str) -> Indicators:
 def _binder_indicator(pair, ctx, regime):
     """(inputs, substituted, words, 'met' | 'short' | 'unknown') of the binder's class."""
     fams = dc.binder_types(pair.mix, ctx.project)
-    inputs = [Input(bid, f"binder family {fam.replace('_', ' ')}", fam, "",
+    inputs = [Input(bid, "binder family", family_words(fam), "",
                     f"materials.yaml {bid}.type") for bid, fam in fams]
     cements = [bid for bid, fam in fams if fam in HYDRAULIC_CEMENT]
     if cements:

@@ -14,6 +14,7 @@ from specgen import refdata
 from specgen.checks import compatibility_common as cc
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, Input, Quantity, Step
+from specgen.views import family_words
 
 declare("salt_load_class", "", "salt-load class of chloride, nitrate and sulfate in each fabric "
         "material by the project's table {material: {ion: class}}, with the table")
@@ -55,7 +56,7 @@ def aluminate_rich(mix, project, ctx) -> tuple[bool, str]:
                            f"{'≥' if yes else '<'} {limit:g} %")
         else:
             yes = b.type in ALUMINATE_FAMILIES
-            reasons.append(f"{b.id}: no Al2O3 in an analysis; family {b.type.replace('_', ' ')} "
+            reasons.append(f"{b.id}: no Al2O3 in an analysis; family {family_words(b.type)} "
                            f"{'carries' if yes else 'does not carry'} reactive aluminate (assumed)")
         rich = rich or yes
     return rich, "; ".join(reasons)

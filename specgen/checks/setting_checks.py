@@ -14,6 +14,7 @@ from specgen.checks import durability_common as dc
 from specgen.checks import works_common as wc
 from specgen.checks.registry import register
 from specgen.checks.result import Basis, CheckResult, Input, Step
+from specgen.views import family_words
 
 TITLE = "Setting time and workable life"
 METHOD = {"vicat_en196_3": "Vicat, EN 196-3", "vicat_en459_2": "Vicat, EN 459-2",
@@ -101,12 +102,12 @@ def _family_limits(fam, s, ctx):
     if fam == "portland":
         r = dc.rule(ctx, "setting_initial_min_portland")
         ok = s.initial / 60 >= r.value
-        return ["pass" if ok else "fail"], [f"portland: initial set {'≥' if ok else '<'} "
-                                            f"{r.value:g} min"], [r]
+        words = f"{family_words(fam)}: initial set {'≥' if ok else '<'} {r.value:g} min"
+        return ["pass" if ok else "fail"], [words], [r]
     lo, hi = dc.rule(ctx, "setting_initial_min_lime"), dc.rule(ctx, "setting_final_max_lime")
     ok_lo, ok_hi = s.initial / 60 >= lo.value, s.final / 3600 <= hi.value
     return (["pass" if ok_lo and ok_hi else "fail"],
-            [f"{fam.upper()}: initial {'≥' if ok_lo else '<'} {lo.value:g} min, final "
+            [f"{family_words(fam)}: initial {'≥' if ok_lo else '<'} {lo.value:g} min, final "
              f"{'≤' if ok_hi else '>'} {hi.value:g} h"], [lo, hi])
 
 

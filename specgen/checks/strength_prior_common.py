@@ -14,6 +14,7 @@ import numpy as np
 from specgen import refdata
 from specgen.checks import fits
 from specgen.science import strength_inference as si
+from specgen.views import family_words
 
 DAY, MPA = 86400.0, 1e6
 _NHL = {"NHL2": "nhl_2", "NHL3.5": "nhl_3_5", "NHL5": "nhl_5"}
@@ -42,7 +43,7 @@ def family(project, mix) -> Family:
 
 
 def _key(types: list[str], binders) -> tuple[str, str]:
-    names = " + ".join(types) or "no binder"
+    names = " + ".join(family_words(t) for t in types) or "no binder"
     if types == ["natural_cement"]:
         return "natural_cement", "binder family natural cement"
     if types == ["nhl"]:
@@ -60,7 +61,7 @@ def _key(types: list[str], binders) -> tuple[str, str]:
         return "cement_lime", f"binder family cement-lime ({names})"
     if types == ["air_lime"]:
         return "air_lime", "binder family air lime (hardens by carbonation)"
-    return names.replace(" + ", "_"), f"binder family {names}"
+    return "_".join(types) or "no binder", f"binder family {names}"
 
 
 @dataclass

@@ -17,6 +17,7 @@ from specgen.checks import durability_common as dc
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Limit, Quantity, Step
 from specgen.science import carbonation as cb
+from specgen.views import family_words
 
 declare("carbonation_front", "", "carbonation of a lime-rich repair: {K_mm_per_sqrt_d, depth_mm, "
         "days_to_depth}")
@@ -158,8 +159,8 @@ def _depth(zone, ctx) -> tuple[float, str] | None:
 def _carb_one(pair, ctx):
     if pair.mix is None:
         return None
-    rich = [f"{b} ({f.replace('_', ' ')})" for b, f in dc.binder_types(pair.mix, ctx.project)
-            if f in dc.LIME_RICH]
+    rich = [f"{b} ({family_words(f, short=True)})"
+            for b, f in dc.binder_types(pair.mix, ctx.project) if f in dc.LIME_RICH]
     if not rich:
         return None
     basis = Basis("common practice", note="carbonation front x = K√t; phenolphthalein on a "

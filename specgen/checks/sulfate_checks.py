@@ -21,6 +21,7 @@ from specgen.checks import durability_common as dc
 from specgen.checks.registry import register
 from specgen.checks.result import Basis, CheckResult, Input, Step
 from specgen.checks.salt_checks import aluminate_rich
+from specgen.views import family_words
 
 TSA = "Thaumasite sulfate attack"
 ETT = "Ettringite sulfate expansion"
@@ -81,7 +82,7 @@ def carbonate(pair, ctx) -> Condition:
         if co2 is not None and co2 >= lim.value:
             found.append(f"{bid}: CO2 {co2:g} % ≥ {lim.value:g} % (analysis {an.id})")
         elif fam in dc.LIME_RICH:
-            found.append(f"{bid}: {fam.replace('_', ' ')} carbonates in the wall (calcite)")
+            found.append(f"{bid}: {family_words(fam)} carbonates in the wall (calcite)")
     return Condition("carbonate", bool(found), "; ".join(found) or
                      "no CO2 in the binders' analyses and no lime-rich binder",
                      "analyses.yaml, materials.yaml")
@@ -105,7 +106,7 @@ def cold(ctx) -> tuple[Condition, float | None]:
 
 def csh(pair, ctx) -> Condition:
     fams = dc.binder_types(pair.mix, ctx.project)
-    forming = [f"{b} ({f.replace('_', ' ')})" for b, f in fams if f in dc.BINDER_CSH]
+    forming = [f"{b} ({family_words(f, short=True)})" for b, f in fams if f in dc.BINDER_CSH]
     return Condition("C-S-H", bool(forming), ", ".join(forming) or "air lime only: no C-S-H",
                      "materials.yaml binder types")
 

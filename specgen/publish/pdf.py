@@ -64,16 +64,16 @@ def _relink(html: str, stem: str) -> str:
     return re.sub(r'href="([\w/-]+)\.md"', lambda m: f'href="#{_page_id(m.group(1) + ".md")}"', html)
 
 
-WIDE_COLUMNS = 12  # tables with more columns than this go on a landscape page
-
-
 def _landscape_wide_tables(html: str) -> str:
-    """Wrap wide tables in a block printed on a landscape page (``@page wide``)."""
+    """Wrap each table that cannot be set legibly across a portrait page (its measured
+    width, :func:`specgen.publish.widths.needs_landscape`) in a block printed on a
+    landscape page (``@page wide``)."""
+    from specgen.publish.widths import needs_landscape
+
     def wrap(m: re.Match) -> str:
-        header = re.search(r"<tr>(.*?)</tr>", m.group(0), flags=re.S)
-        cols = len(re.findall(r"<th\b", header.group(1))) if header else 0
-        return f'<div class="sg-wide">{m.group(0)}</div>' if cols > WIDE_COLUMNS else m.group(0)
-    return re.sub(r"<table>.*?</table>", wrap, html, flags=re.S)
+        return f'<div class="sg-wide">{m.group(0)}</div>' if needs_landscape(m.group(0)) \
+            else m.group(0)
+    return re.sub(r"<table\b[^>]*>.*?</table>", wrap, html, flags=re.S)
 
 
 PART_SIZE = 6_000  # characters of HTML: the least a piece of a cut chapter holds

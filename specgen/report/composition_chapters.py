@@ -7,9 +7,9 @@ chapter formats and arranges, it does not compute.
 from __future__ import annotations
 
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import BINDER_WORDS, as_given, num
+from specgen.report.fmt import as_given, num
 from specgen.report.wording import plain, reader
-from specgen.views import binder_analysis, oxide_order, raw_analyses
+from specgen.views import binder_analysis, family_words, oxide_order, raw_analyses
 
 MAJOR = ("SiO2", "Al2O3", "Fe2O3", "CaO", "MgO", "SO3")
 INDEX_COLUMNS = (("cementation_index", "CI"), ("hydraulic_index", "HI"),
@@ -73,7 +73,7 @@ def _binder(env, b) -> dict:
                             "expected": num(e, 3) if e is not None else "—",
                             "measured": num(m, 3) if m is not None else "—",
                             "delta": f"{(m or 0.0) - (e or 0.0):+.2f}"})
-    return {"id": b.id, "name": b.name, "type": BINDER_WORDS.get(b.type, b.type), "balance": balance,
+    return {"id": b.id, "name": b.name, "type": family_words(b.type), "balance": balance,
             "findings": _findings(env, b.id)}
 
 

@@ -7,6 +7,7 @@ from __future__ import annotations
 
 from specgen.cache import figure
 from specgen.report.figures import _pyplot, to_svg
+from specgen.report.wording import formula_label
 
 PHASE_COLOURS = {
     "C2S": "#1f3a5f", "C3S": "#12263f", "C3A": "#8c4a2f", "C4AF": "#a8643f", "C2AS": "#b9855a",
@@ -40,7 +41,7 @@ def phase_bars(rows: list[tuple[str, dict[str, float]]]) -> bytes:
     ax.set_yticks(range(len(rows)), [r[0] for r in reversed(rows)])
     ax.set_xlim(0, 100)
     ax.set_xlabel("potential phases, mass % of the binder as analysed (losses not assigned)")
-    ax.legend(seen.values(), seen.keys(), ncol=5, fontsize=7, frameon=False,
+    ax.legend(seen.values(), [formula_label(k) for k in seen], ncol=5, fontsize=7, frameon=False,
               loc="upper center", bbox_to_anchor=(0.5, -0.28))
     return to_svg(fig)
 

@@ -9,12 +9,6 @@ from dataclasses import dataclass
 from specgen.dates import date_text  # noqa: F401  (one place; the render stage formats with it)
 
 
-#: How the dossier names each binder type of materials.yaml (one table for every page).
-BINDER_WORDS = {"natural_cement": "natural cement", "nhl": "natural hydraulic lime (NHL)",
-                "fl": "formulated lime (FL)", "hl": "hydraulic lime (HL)", "air_lime": "air lime",
-                "portland": "Portland cement", "pozzolan": "pozzolan"}
-
-
 #: between a value and its unit: a narrow no-break space (the unit never wraps away)
 UNIT_SPACE = "\u202f"
 MINUS = "\u2212"

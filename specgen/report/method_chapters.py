@@ -5,7 +5,8 @@ numbers from the checks (rake-out depth, gaugings, weather window) — none comp
 from __future__ import annotations
 
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import BINDER_WORDS, as_given
+from specgen.report.fmt import as_given
+from specgen.views import family_words
 
 PARTS = (("preparation", "Preparation"), ("sequencing", "Sequence and bays"),
          ("protection", "Protection of the fabric and the public"), ("placing", "Placing"),
@@ -78,7 +79,7 @@ def _zone(env, zone, words: dict, window: dict) -> dict:
                       "text": text or " ".join(derived[key].split()).format(**values)})
     rake = env.results.check("MTH-RAKE", zone.id)
     return {"id": zone.id, "name": zone.name, "works": zone.works, "mix": mix or "",
-            "families": ", ".join(BINDER_WORDS.get(f, f) for f in families),
+            "families": family_words(*families),
             "parts": parts, "holds": _holds(p, zone.id),
             "rake": {"badge": badge(rake.status), "href": f"calculations.md#{sheet_anchor(rake)}"}
             if rake else None}

@@ -19,11 +19,11 @@ from specgen.cache import Later
 from specgen.refdata import CONTENT_DIR
 from specgen.report.chapters import badge, chapters, sheet_anchor
 from specgen.report.fmt import as_given, num, qty, unit_symbol
-from specgen.report.mathsvg import MathAssets
+from specgen.report.mathsvg import MathAssets, drawn_beside
 from specgen.report.pageset import PageSet
 from specgen.report.references import Citations
 from specgen.templating import project_template_errors, project_templates, sandboxed
-from specgen.report.wording import reader, rule_label, symbol, tex_words
+from specgen.report.wording import reader, rule_label, symbol
 
 
 def template_env(project_root) -> jinja2.Environment:
@@ -118,8 +118,8 @@ class RenderEnv:
     def sheet(self, c) -> dict:
         """Context of one calculation sheet, straight from the check result."""
         # the sheet keeps four significant figures: enough to recompute by hand
-        steps = [{"title": reader(s.title), "formula": self.math.img(tex_words(s.formula)),
-                  "substituted": self.math.img(tex_words(s.substituted)),
+        steps = [{"title": reader(s.title), "formula": self.math.img(s.formula),
+                  "substituted": self.math.img(s.substituted),
                   "result": qty(s.result, s.unit, 4), "symbol": symbol(s.symbol),
                   "inputs": [{"symbol": symbol(i.symbol), "name": reader(i.name),
                               "value": as_given(i.value) if not isinstance(i.value, str)
@@ -159,8 +159,10 @@ def render(project, results, history=None, superseded: str | None = None, *,
     from specgen import practice
     from specgen.report.fmt import unit_display
     # every page shows units the way the practice the project follows does
+    # the calculation sheets' math, drawn beside the chapters on the second core
+    math = [t for c in results.checks for s in c.steps for t in (s.formula, s.substituted)]
     with unit_display(practice.resolve(project.dossier).unit_display), \
-            project_template_errors(getattr(project, "root", None)):
+            project_template_errors(getattr(project, "root", None)), drawn_beside(math):
         for spec in chapters():
             env.number = numbers.get(spec.path, "")
             made = _pages_of(spec, spec.fn(env))

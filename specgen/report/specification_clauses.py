@@ -7,7 +7,8 @@ exports (Markdown and an HTML fragment) written beside the PDF.
 """
 from __future__ import annotations
 
-from specgen.report.fmt import BINDER_WORDS, as_given, num
+from specgen.report.fmt import as_given, num
+from specgen.views import family_words
 
 
 
@@ -27,7 +28,7 @@ def _materials(project, results, zone, mix) -> dict:
     for part in mix.binders:
         b = project.binders[part.binder]
         ci = results.check("CHEM-CI", b.analysis) if b.analysis else None
-        kind = BINDER_WORDS[b.type]
+        kind = family_words(b.type)
         binders.append({"id": b.id, "name": b.name,
                         # the family said once, not twice ("NHL 3.5 natural hydraulic lime")
                         "type": "" if kind.split(" (")[0].lower() in b.name.lower() else kind,

@@ -61,17 +61,6 @@ KEY_LABELS = {
     "sealed_20": "sealed curing at 20 °C",
     "air_65": "air curing at 65 % RH",
 }
-#: binder families (materials.yaml ``type``) as the checks write them → the trade's names
-#: (EN 459-1 for the limes); "portland" stands for the cement unless the word follows
-FAMILY_LABELS = [
-    (re.compile(r"\bnatural_cement\b"), "natural cement"),
-    (re.compile(r"\bair_lime\b"), "air lime"),
-    (re.compile(r"\bnhl\b"), "NHL"),
-    (re.compile(r"\bfl\b"), "FL"),
-    (re.compile(r"\bhl\b"), "HL"),
-    (re.compile(r"\bportland(?= cement\b)"), "Portland"),
-    (re.compile(r"\bportland\b"), "Portland cement"),
-]
 #: ASCII units and signs as the checks write them → typographic symbols
 UNIT_TEXT = [
     (re.compile(r"kg/\(m\^2·min\^0\.5\)|kg/\(m2·min0\.5\)"), "kg/(m²·min^½)"),
@@ -142,6 +131,50 @@ def typeset(text: str) -> str:
     return MINUS.sub("−", text)
 
 
+#: a token written as a chemical formula (SiO2, Ca(OH)2, CaSO4·2H2O; "Al2O3+Fe2O3" is two), or
+#: a phase in the cement chemist's notation (C2S, C3A, C4AF, C1.7-S-H4); its counts are set as
+#: subscripts (IUPAC Red Book 2005, IR-4, from memory; the notation's own usage, Taylor,
+#: *Cement Chemistry*, from memory)
+_PART = r"[A-Z][a-z]?\d*(?:[A-Z][a-z]?\d*|\((?:[A-Z][a-z]?\d*)+\)\d*)*"
+_FORMULA = re.compile(rf"(?<![\w.·/-])(?:{_PART}(?:·\d*{_PART})*"
+                      r"|C\d+(?:\.\d+)?(?:-?[ASFH]\d*)+)(?![\w(]|\.\d|-\w)")
+_COUNT = re.compile(r"(?<=[A-Za-z)])\d+(?:\.\d+)?")
+_CEMENT = re.compile(r"C\d+(?:\.\d+)?(?:-?[ASFH]\d*)+")
+
+
+@lru_cache(maxsize=None)
+def _elements() -> frozenset[str]:
+    from specgen import refdata
+    return frozenset(refdata.load("atomic_weights").data)
+
+
+def _is_formula(token: str) -> bool:
+    """A count, and only elements the program weighs (content/data/atomic_weights.yaml), two
+    or more of them, one an anion of the trade's chemistry (O, Cl): ids such as NC1, NH35 or
+    B2 stay as written."""
+    if _CEMENT.fullmatch(token):
+        return True
+    elements = set(re.findall(r"[A-Z][a-z]?", token))
+    return bool(_COUNT.search(token)) and len(elements) > 1 and elements <= _elements() \
+        and bool(elements & {"O", "Cl"})
+
+
+def formulas(text: str, sub=lambda count: f"<sub>{count}</sub>") -> str:
+    """``text`` with the counts of its chemical formulas set by ``sub``: ``SiO2`` →
+    ``SiO<sub>2</sub>`` (the default, for a page's markup), or whatever a figure's labels
+    need (:func:`formula_label`).  Identifiers, ``so3_max`` and numbers stay as written."""
+    def one(m: re.Match) -> str:
+        token = m.group(0)
+        return _COUNT.sub(lambda c: sub(c.group(0)), token) if _is_formula(token) else token
+    return _FORMULA.sub(one, text)
+
+
+def formula_label(text: str) -> str:
+    """``text`` for a figure's label, its formulas' counts as mathtext subscripts
+    (``SiO$_2$``): matplotlib sets them the way the pages' ``<sub>`` does."""
+    return formulas(text, lambda count: f"$_{{{count}}}$")
+
+
 @lru_cache(maxsize=16384)   # pure; the same sources recur on page after page
 def plain(text: str) -> str:
     """``text`` with labels for files, rules and keys, symbols for units (plain text)."""
@@ -154,8 +187,6 @@ def plain(text: str) -> str:
                            text)
     for key, label in KEY_LABELS.items():
         text = re.sub(rf"\b{key}\b", label, text)
-    for pat, label in FAMILY_LABELS:
-        text = pat.sub(label, text)
     text = typeset(text)
     text = text.replace("⟦", "").replace("⟧", "")
     return _SNAKE.sub(lambda m: m.group(0).replace("_", " ") if not SUBSCRIPT.fullmatch(
@@ -193,20 +224,6 @@ def input_terms(text) -> Markup:
                 f"<code>{escape(m.group(0))}</code>"]
         last = m.end()
     return Markup("".join(out) + str(escape(typeset(text[last:]))))
-
-
-_TEX_TEXT = re.compile(r"\\text\{([^{}]*)\}")
-
-
-def tex_words(latex: str) -> str:
-    """A formula's words (its ``\\text{…}`` groups) in the reader's terms: the binder families
-    and keys as :func:`plain` names them (a formula image shows its words as they stand)."""
-    def words(m: re.Match) -> str:
-        text = m.group(1)
-        for pat, label in FAMILY_LABELS:
-            text = pat.sub(label, text)
-        return "\\text{" + text + "}"
-    return _TEX_TEXT.sub(words, latex)
 
 
 def symbol(text: str) -> Markup:
