@@ -88,6 +88,11 @@ def using(folder: Path | str | None, shared: Path | str | None = None):
         _SHARED.reset(token_shared)
 
 
+def folders() -> tuple[Path | None, Path | None]:
+    """(the cache folder in use, its shared second level): None where there is none."""
+    return _DIR.get(), _SHARED.get()
+
+
 def prune(folder: Path | str, used: set[Path]) -> int:
     """Delete every entry of ``folder`` not in ``used`` (and stray temporary files), so the
     cache holds what the last complete build needed and no more.  Returns the count."""

@@ -9,6 +9,7 @@ import periodictable
 import pytest
 
 from specgen.build import check
+from tests.conftest import shared_scope
 
 M = lambda f: periodictable.formula(f).mass  # noqa: E731  reference library molar masses
 
@@ -23,7 +24,7 @@ def by(results):
     return {(c.code, c.subject): c for c in results.checks}
 
 
-@pytest.fixture(scope="module")
+@pytest.fixture(scope=shared_scope("module"))
 def demo(demo_checked):
     return demo_checked
 

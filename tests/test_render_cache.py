@@ -49,6 +49,9 @@ def test_cache_hit_equals_fresh_render_and_reissue_redraws_little(single, tmp_pa
     def spy(kind, inputs, produce):
         return real(kind, inputs, lambda: (drawn.append((kind, repr(inputs))), produce())[1])
     monkeypatch.setattr(cache, "cached", spy)
+    # every drawing counted here: none by a second process (test_math_drawn_beside_...)
+    from specgen.report import mathsvg
+    monkeypatch.setattr(mathsvg, "BESIDE_MIN", 10**9)
     reissued = _render(single, folder)
     monkeypatch.undo()
     new = _entries(folder) - before
@@ -131,3 +134,28 @@ def test_parts_start_costliest_first_from_the_last_timings(tmp_path):
         assert again.known == {"page-a#0": 9.0, "page-b#0": 1.0, "page-b#1": 2.0}
         assert again.order(sizes) == [0, 3, 2, 1]
         assert Timings.load(names, "P-2").known == {}         # another project's parts
+
+
+def test_math_drawn_beside_is_the_same_math(tmp_path):
+    """The calculation sheets' math drawn by a second process while the chapters render
+    (mathsvg.drawn_beside) is byte for byte what one process draws, every expression is kept
+    in the cache, and the second process has ended when the block ends."""
+    import multiprocessing
+
+    from specgen.report import mathsvg
+    latexes = [rf"x_{{{i}}} = \frac{{{i}}}{{{i + 1}}}" for i in range(12)]
+    alone = {x: mathsvg._draw(x).decode("utf-8") for x in latexes}   # one process, no cache
+    svg_of.cache_clear()
+    with cache.using(tmp_path / "cache"):
+        with mathsvg.drawn_beside(latexes):
+            assert len(multiprocessing.active_children()) == 1
+            got = {x: svg_of(x) for x in latexes}
+        assert multiprocessing.active_children() == []
+        assert all(cache.lookup("math", x) == alone[x].encode("utf-8") for x in latexes)
+    assert got == alone
+    # without a cache folder nothing is drawn beside: the block draws everything itself
+    svg_of.cache_clear()
+    with mathsvg.drawn_beside(latexes):
+        assert multiprocessing.active_children() == []
+        assert {x: svg_of(x) for x in latexes} == alone
+    svg_of.cache_clear()

@@ -217,12 +217,19 @@ def recheck(scope: str, workdir: Path, tests: list[str] = ()) -> int:
         data = json.loads(meta.read_text("utf-8"))
         module = meta.name[:-len(".py.meta")]
         selection = tests_for(scope, [module], tests)
+        clean = subprocess.run(   # the control: without a mutant the selection must pass
+            [sys.executable, "-m", "pytest", "-x", "-q", "-p", "no:cacheprovider",
+             "-m", "not e2e", *selection], cwd=mutants, env={**env, "MUTANT_UNDER_TEST": ""},
+            stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+        if clean.returncode != 0:
+            raise SystemExit(f"{module}: the selected tests fail without a mutant "
+                             f"(exit {clean.returncode}); nothing rechecked")
         for name, code in sorted(data["exit_code_by_key"].items()):
             if code != 0:
                 continue
             done = subprocess.run(
                 [sys.executable, "-m", "pytest", "-x", "-q", "-p", "no:cacheprovider",
-                 "-p", "no:randomly", "-m", "not e2e", *selection],
+                 "-m", "not e2e", *selection],
                 cwd=mutants, env={**env, "MUTANT_UNDER_TEST": name},
                 stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
             print(f"{name}: {'killed' if done.returncode == 1 else 'survived'}", flush=True)

@@ -3,6 +3,7 @@ and neither needs JavaScript.  Each distinct expression becomes one asset file,
 named by the hash of its LaTeX source (so identical inputs give identical files)."""
 from __future__ import annotations
 
+import contextlib
 import hashlib
 import re
 from functools import lru_cache, partial
@@ -33,6 +34,65 @@ def _svg_or_later(latex: str):
     if drawing_is_later():
         return drawn_or_later("math", latex, partial(_draw, latex))
     return svg_of(latex).encode("utf-8")
+
+
+BESIDE_MIN = 8   # expressions to draw before a second process is worth its start
+
+
+@contextlib.contextmanager
+def drawn_beside(latexes):
+    """While the block runs, a forked process draws into the artefact cache the expressions of
+    ``latexes`` (in the order the block asks for them) that the cache lacks, last first.
+
+    Drawing the math is most of a cold render, which is otherwise one process on a two-core
+    machine: the block draws from the front (:func:`svg_of`, which takes what the other
+    process has already kept), the other process from the back, so they meet in the middle
+    and each expression is drawn about once.  The bytes are :func:`_draw`'s either way.  Only
+    with a cache folder, where fork exists and when the drawing is not left for later (the
+    live preview's first pages; else the block draws everything itself); the forked
+    process touches nothing but the cache and the math engine (no output, no logging), as
+    the printing workers of the PDF, so a lock held by another thread at the fork is never
+    waited for."""
+    import multiprocessing
+
+    from specgen import cache
+    folder, shared = cache.folders()
+    todo = [] if folder is None or cache.drawing_is_later() else [
+        x for x in dict.fromkeys(latexes) if cache.lookup("math", x) is None]
+    if len(todo) < BESIDE_MIN or "fork" not in multiprocessing.get_all_start_methods():
+        yield
+        return
+    ctx = multiprocessing.get_context("fork")
+    stop = ctx.Event()
+    proc = ctx.Process(target=_draw_all, args=(todo[::-1], folder, shared, stop), daemon=True)
+    proc.start()
+    try:
+        yield
+    finally:
+        stop.set()      # what it has not drawn yet the block drew itself
+        proc.join()
+
+
+def _draw_all(latexes: list[str], folder, shared, stop) -> None:
+    from specgen import cache
+    _die_with_parent()
+    with cache.using(folder, shared):
+        for latex in latexes:
+            if stop.is_set():
+                return
+            if cache.lookup("math", latex) is None:
+                cache.store("math", latex, _draw(latex))
+
+
+def _die_with_parent() -> None:
+    # Linux: this process ends when the one that forked it ends, even by SIGKILL (prctl
+    # PR_SET_PDEATHSIG); elsewhere it ends with its list
+    try:
+        import ctypes
+        import signal
+        ctypes.CDLL("libc.so.6", use_errno=True).prctl(1, signal.SIGKILL)
+    except (OSError, AttributeError):
+        pass
 
 
 class MathAssets:

@@ -19,7 +19,7 @@ from specgen.cache import Later
 from specgen.refdata import CONTENT_DIR
 from specgen.report.chapters import badge, chapters, sheet_anchor
 from specgen.report.fmt import as_given, num, qty, unit_symbol
-from specgen.report.mathsvg import MathAssets
+from specgen.report.mathsvg import MathAssets, drawn_beside
 from specgen.report.pageset import PageSet
 from specgen.report.references import Citations
 from specgen.templating import project_template_errors, project_templates, sandboxed
@@ -159,8 +159,10 @@ def render(project, results, history=None, superseded: str | None = None, *,
     from specgen import practice
     from specgen.report.fmt import unit_display
     # every page shows units the way the practice the project follows does
+    # the calculation sheets' math, drawn beside the chapters on the second core
+    math = [t for c in results.checks for s in c.steps for t in (s.formula, s.substituted)]
     with unit_display(practice.resolve(project.dossier).unit_display), \
-            project_template_errors(getattr(project, "root", None)):
+            project_template_errors(getattr(project, "root", None)), drawn_beside(math):
         for spec in chapters():
             env.number = numbers.get(spec.path, "")
             made = _pages_of(spec, spec.fn(env))

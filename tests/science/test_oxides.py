@@ -180,3 +180,104 @@ def test_indices_unchanged_by_renormalisation(ox):
         value = index(ox)
         assert math.isfinite(value)
         assert index(fired) == pytest.approx(value, rel=1e-9)
+
+
+# --- combined water, LSF, band edges, lumped splits: by hand, whole results --------------
+from specgen.science.oxides import BandClass, combined_water  # noqa: E402
+
+
+@pytest.mark.parametrize("ox, water", [
+    # reported H2O (H2O+) is taken as it is
+    ({"CaO": 50.0, "SiO2": 20.0, "LOI": 20.0, "H2O": 3.1, "CO2": 15.0}, 3.1),
+    # by hand: LOI 20 − (CO2 15 + moisture 1.0 + organic 0.5) = 3.5
+    ({"CaO": 50.0, "SiO2": 20.0, "LOI": 20.0, "CO2": 15.0, "H2O-": 1.0, "organic": 0.5}, 3.5),
+    # by hand: no LOI reported, CO2 alone: the loss is the CO2, no combined water left
+    ({"CaO": 50.0, "SiO2": 20.0, "CO2": 15.0}, 0.0),
+    ({"CaO": 50.0, "SiO2": 20.0, "LOI": 20.0}, 20.0),
+])
+def test_combined_water_by_hand(ox, water):
+    assert combined_water(ox) == pytest.approx(water, abs=1e-12)
+
+
+def test_lime_saturation_factor_by_hand():
+    # Taylor, Cement Chemistry (from memory): LSF = (C − 0.7 S̄)/(2.8 S + 1.18 A + 0.65 F);
+    # (65 − 1.75)/(58.8 + 6.49 + 1.95) = 63.25/67.24 = 0.940660
+    ox = {"CaO": 65.0, "SiO2": 21.0, "Al2O3": 5.5, "Fe2O3": 3.0, "SO3": 2.5}
+    assert lime_saturation_factor(ox) == pytest.approx(0.940660, abs=1e-6)
+    # a small denominator is still a denominator: 50/(2.8 × 0.2) = 89.2857
+    assert lime_saturation_factor({"CaO": 50.0, "SiO2": 0.2}) == pytest.approx(89.2857, abs=1e-4)
+    with pytest.raises(ChemistryInputError) as exc:
+        lime_saturation_factor({"CaO": 50.0, "SiO2": 0.0})
+    assert str(exc.value) == "lime saturation factor needs SiO2, Al2O3 or Fe2O3 above zero"
+    with pytest.raises(ChemistryInputError) as exc:
+        alumina_ratio({"CaO": 50.0, "SiO2": 20.0, "Al2O3": 5.0})
+    assert str(exc.value) == "alumina ratio needs Fe2O3 above zero"
+
+
+def test_closure_needs_no_particular_oxide():
+    # a sand analysis without lime closes too: 95 + 4 = 99 %, 1 % short
+    c = closure({"SiO2": 95.0, "LOI": 4.0})
+    assert (c.total, c.deviation) == pytest.approx((99.0, -1.0))
+
+
+# bands written out here (limits invented for the test): [0.3, 0.5) feeble, [0.5, 0.7) moderate
+TWO = [{"name": "feeble", "lower": 0.3, "upper": 0.5},
+       {"name": "moderate", "lower": 0.5, "upper": 0.7}]
+
+
+@pytest.mark.parametrize("value, margin, expected", [
+    (0.1, 0.0, BandClass(BELOW_TABLE, None, 0.3, False, None, False)),
+    (0.3, 0.0, BandClass("feeble", 0.3, 0.5, True, BELOW_TABLE, True)),   # lower edge included
+    (0.4, 0.0, BandClass("feeble", 0.3, 0.5, False, None, True)),
+    (0.5, 0.0, BandClass("moderate", 0.5, 0.7, True, "feeble", True)),    # on the edge itself
+    (0.6, 0.0, BandClass("moderate", 0.5, 0.7, False, None, True)),
+    (0.7, 0.0, BandClass(ABOVE_TABLE, 0.7, None, True, "moderate", False)),
+    (0.48, 0.05, BandClass("feeble", 0.3, 0.5, True, "moderate", True)),
+    (0.9, 0.05, BandClass(ABOVE_TABLE, 0.7, None, False, None, False)),
+])
+def test_classify_whole_at_and_between_the_edges(value, margin, expected):
+    assert classify(value, TWO, margin) == expected
+
+
+@pytest.mark.parametrize("bands, value, message", [
+    (TWO, math.nan, "cannot classify a non-finite index nan"),
+    ([{"name": "feeble", "lower": 0.3}], 0.4, "a band needs name, lower and upper: 'upper'"),
+    ([], 0.4, "the band table is empty"),
+    ([{"name": "flat", "lower": 0.3, "upper": 0.3}], 0.3,
+     "bands must ascend without gaps: 'flat' 0.3-0.3 then '' from inf"),
+])
+def test_classify_refusals_whole(bands, value, message):
+    with pytest.raises(ChemistryInputError) as exc:
+        classify(value, bands, 0.0)
+    assert str(exc.value) == message
+
+
+SPLIT = {"Al2O3+Fe2O3": {"Al2O3": 0.6, "Fe2O3": 0.4}}
+
+
+def test_split_adds_to_a_separately_reported_part_by_hand():
+    # 10 % lumped, 60/40: Al2O3 1.0 reported + 6.0 = 7.0, Fe2O3 4.0
+    r = split_lumped({"CaO": 50.0, "Al2O3": 1.0, "Al2O3+Fe2O3": 10.0}, SPLIT)
+    assert r.analysis == pytest.approx({"CaO": 50.0, "Al2O3": 7.0, "Fe2O3": 4.0})
+    # nothing lumped (0 %) and half a percent are values too; a zero share is a share
+    assert split_lumped({"Al2O3+Fe2O3": 0.0}, SPLIT).analysis == {"Al2O3": 0.0, "Fe2O3": 0.0}
+    assert split_lumped({"Al2O3+Fe2O3": 0.5}, SPLIT).analysis == pytest.approx(
+        {"Al2O3": 0.3, "Fe2O3": 0.2})
+    only_a = {"Al2O3+Fe2O3": {"Al2O3": 1.0, "Fe2O3": 0.0}}
+    assert split_lumped({"Al2O3+Fe2O3": 5.0}, only_a).analysis == {"Al2O3": 5.0, "Fe2O3": 0.0}
+
+
+@pytest.mark.parametrize("value, split, message", [
+    (-1.0, SPLIT, "Al2O3+Fe2O3 must be a finite, non-negative mass %, got -1.0"),
+    (math.inf, SPLIT, "Al2O3+Fe2O3 must be a finite, non-negative mass %, got inf"),
+    (5.0, {"Al2O3+Fe2O3": {"Al2O3": 0.6, "MgO": 0.4}},
+     "the split for 'Al2O3+Fe2O3' names ['Al2O3', 'MgO'], expected ['Al2O3', 'Fe2O3']"),
+    (5.0, {"Al2O3+Fe2O3": {"Al2O3": 1.2, "Fe2O3": -0.2}},
+     "the split fractions for 'Al2O3+Fe2O3' must be >= 0 and sum to 1"),
+    (5.0, {"Al2O3+Fe2O3": {"Al2O3": math.nan, "Fe2O3": 0.4}},
+     "the split fractions for 'Al2O3+Fe2O3' must be >= 0 and sum to 1"),
+])
+def test_split_refusals_whole(value, split, message):
+    with pytest.raises(ChemistryInputError) as exc:
+        split_lumped({"Al2O3+Fe2O3": value}, split)
+    assert str(exc.value) == message

@@ -174,3 +174,81 @@ def test_lime_poor_analysis_refused_exactly_when_lime_runs_short(ox, assignment,
     else:
         r = unsintered_phases(ox, assignment, AW)
         assert sum(r.phases.values()) == pytest.approx(sum(ox.values()), rel=1e-9)
+
+
+# --- ferrite and aluminate by hand (periodictable molar masses, a reference library) ------
+C, A, F, S = M("CaO"), M("Al2O3"), M("Fe2O3"), M("SiO2")
+
+
+def test_c4af_then_c3a_by_hand():
+    ox = {"CaO": 60.0, "SiO2": 20.0, "Al2O3": 6.0, "Fe2O3": 4.0}
+    r = unsintered_phases(ox, "C4AF+C3A", AW)
+    # moles per 100 g: F 4/159.69 = 0.02505 all to C4AF (4C·A·F); A left 6/101.96 − 0.02505
+    # = 0.03380 to C3A; lime left to C2S with the silica (2C·S), enough lime: the rest free
+    nf, na, ns = 4.0 / F, 6.0 / A, 20.0 / S
+    c4af = nf * (4 * C + A + F)
+    c3a = (na - nf) * (3 * C + A)
+    c2s = ns * (2 * C + S)
+    free = 60.0 - (4 * nf + 3 * (na - nf) + 2 * ns) * C
+    assert r.phases == pytest.approx({"C4AF": c4af, "C3A": c3a, "C2S": c2s, "free lime": free},
+                                     abs=5e-3)
+    assert c4af == pytest.approx(12.17, abs=0.01) and c3a == pytest.approx(9.13, abs=0.01)
+
+
+def test_c4af_then_c2f_when_iron_exceeds_alumina_by_hand():
+    ox = {"CaO": 60.0, "SiO2": 20.0, "Al2O3": 2.0, "Fe2O3": 8.0}
+    r = unsintered_phases(ox, "C4AF+C3A", AW)
+    # A 2/101.96 = 0.01962 mol all to C4AF with as much F; F left 8/159.69 − 0.01962 =
+    # 0.03048 mol to C2F (2C·F); no C3A
+    na, nf, ns = 2.0 / A, 8.0 / F, 20.0 / S
+    c4af = na * (4 * C + A + F)
+    c2f = (nf - na) * (2 * C + F)
+    c2s = ns * (2 * C + S)
+    free = 60.0 - (4 * na + 2 * (nf - na) + 2 * ns) * C
+    assert r.phases == pytest.approx({"C4AF": c4af, "C2F": c2f, "C2S": c2s, "free lime": free},
+                                     abs=5e-3)
+
+
+def test_factor_defaults_to_one_mole_and_reads_any_formula():
+    # ASTM C150 annex coefficient, one mole of Al2O3 per C3A (from memory): 2.650
+    assert factor("C3A", "Al2O3", AW) == pytest.approx(2.650, abs=5e-4)
+    # a formula not in the phase table: Ca(OH)2 per CaO, periodictable 74.093/56.077
+    assert factor("Ca(OH)2", "CaO", AW) == pytest.approx(M("Ca(OH)2") / C, rel=1e-4)
+
+
+def test_bogue_without_sulfate_and_with_little_iron_by_hand():
+    # ASTM C150 equations, SO3 absent (0): C3S = 4.071·65 − 7.600·21 − 6.718·5.5 − 1.430·3
+    # = 264.615 − 159.600 − 36.949 − 4.290 = 63.776
+    r = bogue({"CaO": 65.0, "SiO2": 21.0, "Al2O3": 5.5, "Fe2O3": 3.0})
+    assert r.c3s == pytest.approx(63.776, abs=1e-3)
+    # Fe2O3 0.5 % is above zero: computed; C4AF = 3.043 × 0.5 = 1.5215, A/F = 2.0/0.5 = 4
+    r = bogue({"CaO": 65.0, "SiO2": 21.0, "Al2O3": 2.0, "Fe2O3": 0.5})
+    assert r.c4af == pytest.approx(1.5215, abs=1e-9) and r.af_ratio == pytest.approx(4.0)
+
+
+def test_bogue_refusals_whole():
+    with pytest.raises(ChemistryInputError) as exc:
+        bogue({"CaO": 65.0, "SiO2": 21.0, "Al2O3": 5.5, "Fe2O3": 0.0})
+    assert str(exc.value) == "Bogue needs Fe2O3 above zero (A/F undefined)"
+    with pytest.raises(ChemistryInputError, match="Fe2O3"):
+        bogue({"CaO": 65.0, "SiO2": 21.0, "Al2O3": 5.5})
+
+
+def test_bogue_at_the_af_limit_and_with_only_c2s_negative():
+    # A/F = 1.6/2.5 = 0.64 exactly: the C3A + C4AF form applies at the limit (ASTM C150,
+    # from memory: "A/F of 0.64 or more"); by hand C3S = 4.071·63 − 7.6·22 − 6.718·1.6
+    # − 1.43·2.5 = 256.473 − 167.2 − 10.749 − 3.575 = 74.949, C2S = 2.867·22 − 0.7544·74.949
+    # = 63.074 − 56.541 = 6.533, C3A = 2.65·1.6 − 1.692·2.5 = 4.24 − 4.23 = 0.01: none negative
+    ok = bogue({"CaO": 63.0, "SiO2": 22.0, "Al2O3": 1.6, "Fe2O3": 2.5})
+    assert (ok.c3s, ok.c2s, ok.c3a) == pytest.approx((74.949, 6.533, 0.01), abs=1e-3)
+    assert ok.valid and ok.note == "A/F >= 0.64: C3A + C4AF form applies"
+    low = bogue({"CaO": 65.0, "SiO2": 21.0, "Al2O3": 1.5, "Fe2O3": 3.0})
+    assert not low.valid and low.note == ("A/F < 0.64: ferrite solid solution (C4AF + C2F) "
+                                          "form needed; results not valid")
+    # by hand: C3S = 4.071·70 − 7.6·8 − 6.718·5 − 1.43·3 = 284.97 − 60.8 − 33.59 − 4.29
+    # = 186.29 (positive), C2S = 2.867·8 − 0.7544·186.29 = 22.936 − 140.537 = −117.60,
+    # C3A = 2.65·5 − 1.692·3 = 8.174 (positive): C2S alone is negative
+    r = bogue({"CaO": 70.0, "SiO2": 8.0, "Al2O3": 5.0, "Fe2O3": 3.0})
+    assert r.c2s == pytest.approx(-117.60, abs=0.01) and r.c3s > 0 and r.c3a > 0
+    assert not r.valid
+    assert r.note == "a potential phase came out negative: the analysis is not a Portland clinker"
