@@ -60,7 +60,17 @@ def demo_copy(tmp_path) -> Path:
     return dst
 
 
-@pytest.fixture(scope="session")
+def shared_scope(scope: str):
+    """``scope`` for a fixture shared between tests, except in the coverage pass of a mutation
+    run (tools/mutation.py), where each test computes it afresh: that pass records which
+    tests reach each function, and a test that reads a value computed for an earlier test
+    would not be counted as reaching the functions it depends on."""
+    def choose(fixture_name, config):
+        return "function" if os.environ.get("MUTANT_UNDER_TEST") == "stats" else scope
+    return choose
+
+
+@pytest.fixture(scope=shared_scope("session"))
 def demo_checked():
     """The demo project checked once per session, (project, results), for the tests that only
     read the results (a test that edits the demo takes ``demo_copy`` and checks that)."""

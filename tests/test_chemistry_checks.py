@@ -6,13 +6,14 @@ import math
 import pytest
 
 from specgen.build import check
+from tests.conftest import shared_scope
 
 
 def by(results):
     return {(c.code, c.subject): c for c in results.checks}
 
 
-@pytest.fixture(scope="module")
+@pytest.fixture(scope=shared_scope("module"))
 def demo(demo_checked):
     return demo_checked
 

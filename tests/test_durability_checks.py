@@ -7,6 +7,7 @@ from __future__ import annotations
 import pytest
 
 from specgen.build import check
+from tests.conftest import shared_scope
 from tests.helpers import by_check, edit
 
 
@@ -17,7 +18,7 @@ def _run_bad(cli, project) -> str:
     return result.output
 
 
-@pytest.fixture(scope="module")
+@pytest.fixture(scope=shared_scope("module"))
 def demo(tmp_path_factory):
     import shutil
     from tests.conftest import DEMO

@@ -10,6 +10,7 @@ import pytest
 
 from specgen.build import check
 from specgen.errors import InputErrors
+from tests.conftest import shared_scope
 
 
 def by(results):
@@ -21,7 +22,7 @@ def M(formula: str) -> float:
     return pt.formula(formula).mass
 
 
-@pytest.fixture(scope="module")
+@pytest.fixture(scope=shared_scope("module"))
 def demo(demo_checked):
     return demo_checked[1]
 

@@ -91,3 +91,15 @@ def test_a_spanning_cell_is_not_read_as_a_column():
              "<tr><td>a</td><td>b</td><td>c</td></tr></table>")
     assert len(widths.column_widths(table)) == 3
     assert not widths.needs_landscape(table)
+
+
+@pytest.mark.skipif(not FONT_FILE.exists(), reason="DejaVu Sans not installed")
+def test_a_turned_tables_caption_turns_with_it():
+    digest = "9f86d081884c7d659a2feaa0c55ad015a3bf4f1b2b0b822cd15d6c15b0f00a08"
+    caption = '<p class="sg-table-caption">Table 4. Digests</p>\n'
+    wide = _table(["File", "Copy", "Original"], [[digest, digest, digest]])
+    narrow = _table(["a", "b"], [["1", "2"]])
+    other = '<p class="sg-table-caption">Table 5. Small</p>\n'
+    html = f"<p>Before.</p>{caption}{wide}<p>Between.</p>{other}{narrow}"
+    assert _landscape_wide_tables(html) == (
+        f'<p>Before.</p><div class="sg-wide">{caption}{wide}</div><p>Between.</p>{other}{narrow}')

@@ -173,3 +173,26 @@ def test_binder_families_read_by_the_trades_names():
     assert "(FL)" in family_words("fl") and "(HL)" in family_words("hl")
     assert not any(k in re.findall(r"[\w]+", family_words(*keys)) for k in
                    ("nhl", "fl", "hl", "portland", "air_lime", "natural_cement"))
+
+
+def test_band_names_never_run_into_each_other(monkeypatch):
+    """The hydraulicity bands' names (content/data/hydraulicity_bands.yaml, Boynton's bands
+    of the cementation index) each stay inside their band and clear of their neighbours."""
+    from specgen import refdata
+    from specgen.report import figures
+    kept = {}
+    monkeypatch.setattr(figures, "to_svg", lambda fig: kept.setdefault("fig", fig) and b"")
+    bands = [{"name": b["name"], "low": b["lower"], "high": b["upper"]}
+             for b in refdata.load("hydraulicity_bands").data]
+    figures.band_chart.__wrapped__([("A", 1.17), ("B", 0.671)], bands, "cementation index")
+    fig = kept["fig"]
+    fig.canvas.draw()
+    renderer = fig.canvas.get_renderer()
+    ax = fig.axes[0]
+    names = [t for t in ax.texts if t.get_text().replace("\n", " ") in
+             {b["name"] for b in bands}]
+    boxes = sorted((t.get_window_extent(renderer) for t in names), key=lambda b: b.x0)
+    assert len(boxes) == len(bands)
+    for left, right in zip(boxes, boxes[1:]):
+        assert left.x1 <= right.x0, (left, right)
+    figures._pyplot().close(fig)

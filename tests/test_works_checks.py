@@ -7,6 +7,7 @@ import re
 import pytest
 
 from specgen.build import check
+from tests.conftest import shared_scope
 
 DEMO_NAMES = ("joint_length_per_m2", "mortar_volume", "binder_mass", "bags",
               "max_gauging_volume", "yield_per_m3")
@@ -18,7 +19,7 @@ def edit(path, old: str, new: str) -> None:
     path.write_text(text.replace(old, new, 1), encoding="utf-8")
 
 
-@pytest.fixture(scope="module")
+@pytest.fixture(scope=shared_scope("module"))
 def demo(demo_checked):
     return demo_checked
 

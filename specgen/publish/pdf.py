@@ -71,9 +71,11 @@ def _landscape_wide_tables(html: str) -> str:
     from specgen.publish.widths import needs_landscape
 
     def wrap(m: re.Match) -> str:
-        return f'<div class="sg-wide">{m.group(0)}</div>' if needs_landscape(m.group(0)) \
+        # the table's caption (just above it) turns with it, never left on the page before
+        return f'<div class="sg-wide">{m.group(0)}</div>' if needs_landscape(m.group(2)) \
             else m.group(0)
-    return re.sub(r"<table\b[^>]*>.*?</table>", wrap, html, flags=re.S)
+    return re.sub(r'(<p class="sg-table-caption">(?:(?!</p>).)*</p>\s*)?'
+                  r"(<table\b[^>]*>.*?</table>)", wrap, html, flags=re.S)
 
 
 PART_SIZE = 6_000  # characters of HTML: the least a piece of a cut chapter holds

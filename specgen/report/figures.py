@@ -7,6 +7,7 @@ from __future__ import annotations
 import io
 
 from specgen.cache import figure
+from specgen.report.fmt import num
 
 
 def _pyplot():
@@ -96,16 +97,25 @@ def band_chart(points: list[tuple[str, float]], bands: list[dict], title: str) -
     plt = _pyplot()
     fig, ax = plt.subplots(figsize=(7.0, 1.1 + 0.42 * max(1, len(points))))
     top = max([float(b["high"]) for b in bands] + [v for _, v in points]) * 1.05
+    # the band's width in points, from the axes' share of the figure (7 in wide)
+    pt_per_unit = ax.get_position().width * fig.get_figwidth() * 72 / top
     for i, b in enumerate(bands):
         lo, hi = float(b["low"]), float(b["high"])
         ax.axvspan(lo, hi, color=BAND_COLOURS[i % len(BAND_COLOURS)], zorder=0)
-        # Names wrapped to the band's width so that neighbouring names never overlap.
-        width = max(6, int(14 * (hi - lo) / (0.2 * top / 1.8)))
-        ax.text((lo + hi) / 2, len(points) - 0.45, "\n".join(textwrap.wrap(b["name"], width)),
-                ha="center", va="bottom", fontsize=6.5, color="#3b2f22", linespacing=1.1)
+        # Names wrapped to the characters that fit the band (DejaVu Sans averages about
+        # 0.6 em a character), so that neighbouring names never run into each other.
+        size = 6.5
+        chars = max(1, int((hi - lo) * pt_per_unit * 0.92 / (0.6 * size)))
+        lines = textwrap.wrap(b["name"], chars, break_long_words=False)
+        longest = max(len(x) for x in lines)
+        if longest > chars:          # a word longer than the band: a smaller face
+            size = max(4.5, size * chars / longest)
+        ax.text((lo + hi) / 2, len(points) - 0.45, "\n".join(lines),
+                ha="center", va="bottom", fontsize=size, color="#3b2f22", linespacing=1.1)
     for y, (label, value) in enumerate(reversed(points)):
         ax.plot([value], [y], marker="D", color="#1f3a5f", markersize=7, zorder=3)
-        ax.text(value, y + 0.18, f"{value:.3f}", ha="center", fontsize=7.5, color="#1f3a5f")
+        # three figures, as the table of indices beside the figure gives them
+        ax.text(value, y + 0.18, num(value, 3), ha="center", fontsize=7.5, color="#1f3a5f")
     ax.set_yticks(range(len(points)), [p[0] for p in reversed(points)])
     ax.set_ylim(-0.6, len(points) + 0.45)
     ax.set_xlim(0, top)
