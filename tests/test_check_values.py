@@ -271,3 +271,16 @@ def test_density_set_switch_changes_the_paste_and_the_shrinkage(demo, demo_copy)
     assert r.quantities["NC1"]["chemical_shrinkage"].value == pytest.approx(shrink(BENTZ), abs=0.01)
     assert r2.quantities["NC1"]["chemical_shrinkage"].value == pytest.approx(shrink(ROUNDED),
                                                                            abs=0.01)
+
+
+def test_paste_not_assessed_without_a_water_binder_ratio(demo_copy):
+    # Powers' porosity needs w/b (V0 = 1/rho_b + (w/b)/rho_w): without it the paste of M2 is
+    # not assessed, and M1 and M3, which still give theirs, keep their result
+    edit(demo_copy / "mixes.yaml", "    water_binder_ratio: 0.65\n", "")
+    _, r = check(demo_copy)
+    c = by(r)[("CHEM-PASTE", "M2")]
+    assert (c.status, c.value, c.message) == (
+        "not_assessed", None, "not assessed: the mix gives no water_binder_ratio in mixes.yaml")
+    assert by(r)[("CHEM-PASTE", "M1")].value == pytest.approx(_porosity(0.55, F_NC1, BENTZ),
+                                                              abs=2e-3)
+    assert by(r)[("CHEM-PASTE", "M3")].status == "info"
