@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from specgen.report.cautions import cautions_for
 from specgen.report.chapters import chapter
-from specgen.report.fmt import num, qty
+from specgen.report.fmt import qty
 
 @chapter("scope.md", "Scope and zones of work", "scope.md.j2")
 def scope(env) -> dict:
@@ -17,11 +17,12 @@ def scope(env) -> dict:
                      "units": unit.name if unit else "—", "historic": hist.name if hist else "—",
                      "candidates": ", ".join(z.candidates) or "—"})
     req = p.dossier.requirements
-    reqs = [f"minimum compressive strength {qty(m.value / 1e6, 'MPa', 3)} at {num(m.age / 86400, 3)} d"
-            for m in req.min_compressive]
+    # each quantity to the precision of its kind (strengths to 0.1 MPa, ages in whole days)
+    reqs = [f"minimum compressive strength {qty(m.value / 1e6, 'MPa')} at "
+            f"{qty(m.age / 86400, 'd')}" for m in req.min_compressive]
     if req.max_compressive_long_term:
         reqs.append(f"long-term compressive strength at most "
-                    f"{qty(req.max_compressive_long_term / 1e6, 'MPa', 3)}")
+                    f"{qty(req.max_compressive_long_term / 1e6, 'MPa')}")
     return {"zones": rows, "requirements": reqs, "practice": _practice(env),
             "heritage": heritage_context(p)}
 

@@ -243,3 +243,35 @@ def test_summary_of_two_readings():
     assert s.n == 2
     assert s.sd == pytest.approx((0.7 / math.sqrt(2), 0.2 / math.sqrt(2), 0.7 / math.sqrt(2)),
                                  rel=1e-9)
+
+
+def test_swatch_of_black_and_of_a_very_dark_grey():
+    # IEC 61966-2-1: linear values up to 0.0031308 are encoded as 12.92·v; black is in gamut
+    from specgen.science.colour import Swatch
+    assert lab_to_srgb((0.0, 0.0, 0.0)) == Swatch((0.0, 0.0, 0.0), "#000000", False)
+    # L* = 1: Y = 1/903.3 = 0.001107 (CIE 15 below the 6/29 point), so 12.92·0.001107 = 0.0143
+    sw = lab_to_srgb((1.0, 0.0, 0.0))
+    ref = colour.XYZ_to_sRGB(colour.Lab_to_XYZ(np.array([1.0, 0.0, 0.0])))   # colour-science
+    assert sw.rgb == pytest.approx(tuple(ref), abs=2e-5)
+    assert sw.rgb[1] == pytest.approx(12.92 / 903.3, abs=2e-5) and not sw.clipped
+
+
+def test_swatch_clipped_below_zero_only():
+    # a saturated green-blue: the red component falls below zero (colour-science gives −2.2
+    # after encoding), the others stay inside; clipped to 0 and flagged
+    sw = lab_to_srgb((50.0, -80.0, 0.0))
+    ref = colour.XYZ_to_sRGB(colour.Lab_to_XYZ(np.array([50.0, -80.0, 0.0])))
+    assert ref[0] < 0 and 0 < ref[1] < 1 and 0 < ref[2] < 1
+    assert sw.clipped
+    assert sw.rgb == pytest.approx((0.0, ref[1], ref[2]), abs=2e-4)
+    # hex by hand: 0, 255 × 0.5756 = 146.8 → 147 = 0x93, 255 × 0.4590 = 117.0 → 0x75
+    assert sw.hex == "#009375"
+
+
+def test_swatch_clipped_above_one_only():
+    # a light yellow: red above one (colour-science 1.11), green and blue inside: clipped to 1
+    sw = lab_to_srgb((95.0, 0.0, 90.0))
+    ref = colour.XYZ_to_sRGB(colour.Lab_to_XYZ(np.array([95.0, 0.0, 90.0])))
+    assert ref[0] > 1 and 0 < ref[1] < 1 and 0 < ref[2] < 1
+    assert sw.clipped
+    assert sw.rgb == pytest.approx((1.0, ref[1], ref[2]), abs=2e-4)

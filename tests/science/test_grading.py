@@ -460,3 +460,14 @@ def test_match_sieve_at_exactly_two_percent():
     # in binary floating point too); 51.5 is 3 % off
     assert match_sieve(51.0, [50.0]) == 50.0
     assert match_sieve(51.5, [50.0]) is None
+
+
+def test_fineness_modulus_refuses_a_coarser_sieve_when_the_top_one_held_material():
+    # ASTM C125: 9.5 mm counts in the FM; 3 % held on 4.75 mm, so what 9.5 mm held is unknown
+    g = from_passing([s * MM for s in SAND_MM], [0.97, 0.9, 0.7, 0.5, 0.2, 0.05], ASTM)
+    with pytest.raises(GradingInputError) as exc:
+        fineness_modulus(g, FM_SIEVES)
+    assert str(exc.value) == "the fineness modulus needs the 9.5 mm sieve"
+    with pytest.raises(GradingInputError) as exc:
+        common_sieves(g, from_passing([0.15 * MM, 0.075 * MM], [0.05, 0.0], ASTM))
+    assert str(exc.value) == "the gradings share fewer than two sieves"
