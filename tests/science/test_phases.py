@@ -210,8 +210,9 @@ def test_c4af_then_c2f_when_iron_exceeds_alumina_by_hand():
 
 
 def test_factor_defaults_to_one_mole_and_reads_any_formula():
-    # ASTM C150 annex coefficient, one mole of Al2O3 per C3A (from memory): 2.650
-    assert factor("C3A", "Al2O3", AW) == pytest.approx(2.650, abs=5e-4)
+    # one mole of Al2O3 per C3A: M(3CaO·Al2O3)/M(Al2O3) from periodictable's molar masses
+    # (3·56.077 + 101.961)/101.961 = 2.650
+    assert factor("C3A", "Al2O3", AW) == pytest.approx((3 * C + A) / A, rel=1e-4)
     # a formula not in the phase table: Ca(OH)2 per CaO, periodictable 74.093/56.077
     assert factor("Ca(OH)2", "CaO", AW) == pytest.approx(M("Ca(OH)2") / C, rel=1e-4)
 
