@@ -96,13 +96,61 @@ def _toml_list(items):
     return "[" + ", ".join(json.dumps(i) for i in items) + "]"
 
 
-def tests_for(scope: str, modules: list[str] = (), tests: list[str] = ()) -> list[str]:
+def names_read(module: str, root: Path = REPO) -> set[str]:
+    """What a test must name to read the results of check module ``module``: the check codes
+    it registers (``register("CODE"``, ``audit_rule("CODE"``) and the quantity names it
+    declares (``declare("name"``), plus its top-level function names (for a test that calls a
+    helper directly).  A ``*_common`` module registers nothing: the codes of the check modules
+    that import it stand for it."""
+    import ast
+    import re
+    src = (root / "specgen" / "checks" / f"{module}.py").read_text("utf-8")
+    pattern = r'(?:register|audit_rule|declare)\(\s*"([A-Za-z0-9_-]+)"'
+    names = set(re.findall(pattern, src))
+    names |= {n.name for n in ast.parse(src).body
+              if isinstance(n, ast.FunctionDef) and not n.name.startswith("_")}
+    if module.endswith("_common"):
+        for other in sorted((root / "specgen" / "checks").glob("*_checks.py")):
+            text = other.read_text("utf-8")
+            if f"specgen.checks.{module} import" in text or f"import {module}" in text:
+                names |= set(re.findall(pattern, text))
+    return names
+
+
+def tests_naming(files: list[str], names: set[str], root: Path = REPO) -> list[str]:
+    """The test functions of ``files`` (node ids ``file::test``) whose text, decorators
+    included, names one of ``names``: the tests that read a module's checks.  A file where
+    none does is kept whole (its tests may read the checks through a helper)."""
+    import ast
+    out = []
+    for f in files:
+        text = (root / f).read_text("utf-8")
+        lines = text.split("\n")
+        picked = []
+        for node in ast.parse(text).body:
+            if isinstance(node, ast.FunctionDef) and node.name.startswith("test_"):
+                first = min([node.lineno] + [d.lineno for d in node.decorator_list])
+                body = "\n".join(lines[first - 1:node.end_lineno])
+                if any(n in body for n in names):
+                    picked.append(f"{f}::{node.name}")
+        out += picked or [f]
+    return out
+
+
+def tests_for(scope: str, modules: list[str] = (), tests: list[str] = (),
+              narrow: bool = True) -> list[str]:
     """The tests a run selects: ``tests`` when given; for check modules that are all mapped,
-    the union of their files in CHECK_TESTS_BY_MODULE; otherwise the scope's whole list."""
+    the tests of their files in CHECK_TESTS_BY_MODULE that name one of the modules' check
+    codes, quantities or functions (``narrow``; the whole files without it); otherwise the
+    scope's whole list."""
     if tests:
         return list(tests)
     if scope == "checks" and modules and all(m in CHECK_TESTS_BY_MODULE for m in modules):
-        return sorted({t for m in modules for t in CHECK_TESTS_BY_MODULE[m]})
+        files = sorted({t for m in modules for t in CHECK_TESTS_BY_MODULE[m]})
+        if not narrow:
+            return files
+        names = set().union(*(names_read(m) for m in modules))
+        return tests_naming(files, names)
     return list(SCOPES[scope]["tests"])
 
 
