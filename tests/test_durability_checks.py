@@ -606,3 +606,64 @@ def test_american_practice_names_the_c270_location(demo_copy, monkeypatch):
     assert c.basis[0].ref == "astmc270"
     assert by_check(r)[("DUR-EXPOSE", "Z2")].message.startswith(
         "exterior, above grade, parapet wall: type N recommended (alternatives S)")
+
+
+def _dur_tests_of(zone, quantities, mixes):
+    """DUR-TESTS run on a hand-made context: ``quantities`` {subject: {name: value}} as the
+    earlier checks would have recorded them, ``mixes`` {mix id: [binder ids]}."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.durability_tests_checks import tests_check
+    from specgen.checks.result import Quantity
+    from specgen.checks.run import Context
+    project = NS(mixes={m: NS(binders=[NS(binder=b) for b in bs]) for m, bs in mixes.items()})
+    ctx = Context(project, None)
+    for sid, named in quantities.items():
+        for name, value in named.items():
+            ctx.record(sid, Quantity(name, value, "", name))
+    return tests_check(zone, ctx)
+
+
+def test_dur_tests_gathers_the_candidates_once_each_when_none_is_chosen():
+    """With no mix chosen (no ``selected_mix`` for the zone) DUR-TESTS gathers the tests asked
+    on every candidate, the zone, each pair and each binder, a test asked on a binder that two
+    candidates share listed once.  Expected rows written out by hand from the inputs below."""
+    from types import SimpleNamespace as NS
+    frost = {"test": "freeze–thaw resistance", "method": "EN 12371", "why": "w", "check": "F"}
+    sound = {"test": "soundness", "method": "EN 459-2", "why": "w", "check": "S"}
+    setting = {"test": "setting time", "method": "EN 196-3", "why": "w", "check": "T"}
+    c = _dur_tests_of(NS(id="Z9", candidates=["MA", "MB"]),
+                      {"Z9/MA": {"tests_asked": [frost]}, "B1": {"tests_asked": [sound]},
+                       "MB": {"tests_asked": [setting]}},
+                      {"MA": ["B1"], "MB": ["B1"]})
+    rows = [dict(frost, check="F/Z9/MA"), dict(sound, check="S/B1"),
+            dict(setting, check="T/MB")]
+    assert (c.code, c.title, c.subject, c.subject_kind, c.status, c.value, c.unit) == (
+        "DUR-TESTS", "Durability tests to commission", "Z9", "zone", "hold", 3, "")
+    assert c.message == ("hold: before the works in zone Z9, the results of "
+                         "freeze–thaw resistance (F/Z9/MA); soundness (S/B1); "
+                         "setting time (T/MB)")
+    assert [(q.name, q.value) for q in c.quantities] == [("durability_tests", rows)]
+    step = c.steps[0]
+    assert (step.title, step.substituted, step.result) == (
+        "Tests asked for the candidates (none chosen yet)", "n = 3", 3.0)
+    assert [(i.symbol, i.name, i.value, i.source) for i in step.inputs] == [
+        ("T1", "freeze–thaw resistance", "EN 12371", "F/Z9/MA"),
+        ("T2", "soundness", "EN 459-2", "S/B1"), ("T3", "setting time", "EN 196-3", "T/MB")]
+
+
+def test_dur_tests_passes_when_nothing_is_outstanding():
+    """No check asked for a test on the chosen mix (MA; MB's test is not read): DUR-TESTS
+    passes with an empty list; the words written out by hand."""
+    from types import SimpleNamespace as NS
+    asked = {"test": "soundness", "method": "EN 459-2", "why": "w", "check": "S"}
+    c = _dur_tests_of(NS(id="Z9", candidates=["MA", "MB"]),
+                      {"Z9": {"selected_mix": "MA"}, "MB": {"tests_asked": [asked]}},
+                      {"MA": ["B1"], "MB": ["B2"]})
+    assert (c.code, c.title, c.subject, c.subject_kind, c.status, c.value, c.unit) == (
+        "DUR-TESTS", "Durability tests to commission", "Z9", "zone", "pass", 0, "")
+    assert c.message == "no durability test outstanding for chosen mix MA"
+    assert [(q.name, q.value) for q in c.quantities] == [("durability_tests", [])]
+    assert c.steps == ()
+    c = _dur_tests_of(NS(id="Z9", candidates=["MA"]), {}, {"MA": []})
+    assert (c.status, c.value, c.message) == (
+        "pass", 0, "no durability test outstanding for the candidates (none chosen yet)")
