@@ -8,6 +8,7 @@ import pytest
 
 from specgen.build import check
 from tests.conftest import shared_scope
+from specgen.checks.result import Basis, Input, Quantity, Step
 from tests.helpers import by_check, edit
 
 
@@ -623,6 +624,11 @@ def _dur_tests_of(zone, quantities, mixes):
     return tests_check(zone, ctx)
 
 
+# the basis DUR-TESTS gives: the project's own requirement that works wait for the tests
+DUR_TESTS_BASIS = (Basis("project requirement", note="tests asked for by the durability "
+                         "checks; the works in the zone wait for their results"),)
+
+
 def test_dur_tests_gathers_the_candidates_once_each_when_none_is_chosen():
     """With no mix chosen (no ``selected_mix`` for the zone) DUR-TESTS gathers the tests asked
     on every candidate, the zone, each pair and each binder, a test asked on a binder that two
@@ -642,13 +648,14 @@ def test_dur_tests_gathers_the_candidates_once_each_when_none_is_chosen():
     assert c.message == ("hold: before the works in zone Z9, the results of "
                          "freeze–thaw resistance (F/Z9/MA); soundness (S/B1); "
                          "setting time (T/MB)")
-    assert [(q.name, q.value) for q in c.quantities] == [("durability_tests", rows)]
-    step = c.steps[0]
-    assert (step.title, step.substituted, step.result) == (
-        "Tests asked for the candidates (none chosen yet)", "n = 3", 3.0)
-    assert [(i.symbol, i.name, i.value, i.source) for i in step.inputs] == [
-        ("T1", "freeze–thaw resistance", "EN 12371", "F/Z9/MA"),
-        ("T2", "soundness", "EN 459-2", "S/B1"), ("T3", "setting time", "EN 196-3", "T/MB")]
+    assert c.quantities == (Quantity("durability_tests", rows, "", "tests"),)
+    assert c.basis == DUR_TESTS_BASIS
+    assert c.steps == (Step(
+        "Tests asked for the candidates (none chosen yet)",
+        r"n = \text{tests asked by the checks}",
+        (Input("T1", "freeze–thaw resistance", "EN 12371", "", "F/Z9/MA"),
+         Input("T2", "soundness", "EN 459-2", "", "S/B1"),
+         Input("T3", "setting time", "EN 196-3", "", "T/MB")), "n = 3", 3.0, "", "n"),)
 
 
 def test_dur_tests_passes_when_nothing_is_outstanding():
@@ -662,8 +669,8 @@ def test_dur_tests_passes_when_nothing_is_outstanding():
     assert (c.code, c.title, c.subject, c.subject_kind, c.status, c.value, c.unit) == (
         "DUR-TESTS", "Durability tests to commission", "Z9", "zone", "pass", 0, "")
     assert c.message == "no durability test outstanding for chosen mix MA"
-    assert [(q.name, q.value) for q in c.quantities] == [("durability_tests", [])]
-    assert c.steps == ()
+    assert c.quantities == (Quantity("durability_tests", [], "", "tests"),)
+    assert (c.steps, c.basis) == ((), DUR_TESTS_BASIS)
     c = _dur_tests_of(NS(id="Z9", candidates=["MA"]), {}, {"MA": []})
     assert (c.status, c.value, c.message) == (
         "pass", 0, "no durability test outstanding for the candidates (none chosen yet)")
