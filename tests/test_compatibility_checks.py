@@ -385,3 +385,78 @@ def test_a_check_declares_its_matrix_column_where_it_is_registered():
     finally:
         registry.unregister("COMP-TEST-X")
     assert chapter._columns("compatibility") == before
+
+
+# WTA salt-load table as 'Salzbelastung von Mauerwerk' gives it (references.json
+# salt_summary_wta), lower edges of medium and high in mass %
+WTA = "WTA salt-load table for assessing masonry (low / medium / high)"
+WTA_EDGES = {"chloride": "classes < 0.2 low, 0.2–0.5 medium, ≥ 0.5 high",
+             "nitrate": "classes < 0.1 low, 0.1–0.3 medium, ≥ 0.3 high",
+             "sulfate": "classes < 0.5 low, 0.5–1.5 medium, ≥ 1.5 high"}
+WTA_NOTE = (f"table: {WTA} — the WTA salt-load table as a public summary gives it (attributed "
+            "there to WTA-Merkblatt 2-6-99/D); published salt-load tables disagree, this one "
+            "is the project's choice")
+
+
+def _salt_inputs(step):
+    return [(i.symbol, i.name, pytest.approx(i.value, abs=1e-12), i.unit, i.source)
+            for i in step.inputs]
+
+
+def test_salt_result_whole_by_the_wta_table(demo_checked):
+    """COMP-SALT of demo Z2/M1 whole: units GS1 (chloride 0.35, nitrate 0.04, sulfate 0.82 %)
+    and historic mortar HM2 (0.41, 0.05, 1.65 %) of demo materials.yaml classed by hand on the
+    WTA edges: GS1 medium, low, medium; HM2 medium, low, high — high sulfate: attention."""
+    from specgen.checks.result import Basis
+    c = by_check(demo_checked[1])[("COMP-SALT", "Z2/M1")]
+    assert (c.title, c.status, c.value, c.unit) == (
+        "Salt load of the fabric", "attention", "high", "")
+    assert c.message == "high salt load (sulfate) (table wta_2_9)"
+    assert c.basis == (Basis("reference", "salt_summary_wta", WTA),)
+    assert c.notes == (
+        "high sulfate: its effect on the binder of M1 is assessed by DUR-ETT/Z2/M1 "
+        "(ettringite) and DUR-TSA/Z2/M1 (thaumasite)", WTA_NOTE)
+    units, mortar = c.steps
+    assert (units.title, units.formula, units.substituted, units.result, units.unit,
+            units.symbol) == (f"Salt load of units GS1 ({WTA})",
+                              r"\text{class} = \text{band of the table containing the content}",
+                              "chloride: medium, nitrate: low, sulfate: medium", 1.0, "",
+                              "class")
+    assert _salt_inputs(units) == [
+        ("chloride", "chloride, units GS1 → medium", 0.35, "mass %",
+         "materials.yaml GS1.salts; " + WTA_EDGES["chloride"]),
+        ("nitrate", "nitrate, units GS1 → low", 0.04, "mass %",
+         "materials.yaml GS1.salts; " + WTA_EDGES["nitrate"]),
+        ("sulfate", "sulfate, units GS1 → medium", 0.82, "mass %",
+         "materials.yaml GS1.salts; " + WTA_EDGES["sulfate"])]
+    assert (mortar.title, mortar.substituted, mortar.result) == (
+        f"Salt load of historic mortar HM2 ({WTA})",
+        "chloride: medium, nitrate: low, sulfate: high", 2.0)
+    assert [(q.name, q.value, q.unit) for q in c.quantities] == [("salt_load_class", {
+        "table": "wta_2_9", "GS1": {"chloride": "medium", "nitrate": "low", "sulfate": "medium"},
+        "HM2": {"chloride": "medium", "nitrate": "low", "sulfate": "high"}}, "")]
+    z3 = by_check(demo_checked[1])[("COMP-SALT", "Z3/M3")]
+    # GS1 as above, HM1 (0.08, 0.01, 0.42 %): low, low, low; medium at most: pass
+    assert (z3.status, z3.value, z3.message) == (
+        "pass", "medium", "no class above medium (table wta_2_9)")
+    assert z3.steps[1].substituted == "chloride: low, nitrate: low, sulfate: low"
+    assert z3.steps[1].result == 0.0
+
+
+def test_salt_on_a_class_edge_and_an_ion_not_measured(demo_copy):
+    """GS1's chloride set to 0.5 % (the WTA lower edge of high: at the edge is high) and its
+    nitrate left out (not classified, said so): Z2/M1 then has high chloride and sulfate."""
+    edit(demo_copy / "materials.yaml",
+         'salts: {chloride: "0.35 %", nitrate: "0.04 %", sulfate: "0.82 %"',
+         'salts: {chloride: "0.5 %", sulfate: "0.82 %"')
+    c = by_check(check(demo_copy)[1])[("COMP-SALT", "Z2/M1")]
+    assert (c.status, c.value, c.message) == (
+        "attention", "high", "high salt load (chloride, sulfate) (table wta_2_9)")
+    assert c.notes == (
+        "nitrate of units GS1 not measured: not classified",
+        "high sulfate: its effect on the binder of M1 is assessed by DUR-ETT/Z2/M1 "
+        "(ettringite) and DUR-TSA/Z2/M1 (thaumasite)", WTA_NOTE)
+    assert (c.steps[0].substituted, c.steps[0].result) == ("chloride: high, sulfate: medium",
+                                                           2.0)
+    assert [i.symbol for i in c.steps[0].inputs] == ["chloride", "sulfate"]
+    assert c.quantities[0].value["GS1"] == {"chloride": "high", "sulfate": "medium"}

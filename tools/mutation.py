@@ -64,7 +64,7 @@ CHECK_TESTS_BY_MODULE = {
     "hydration_checks": [T + "firing_phases_hydration_checks.py", T + "check_values.py"],
     "method_checks": [T + "method.py"],
     "phases_checks": [T + "firing_phases_hydration_checks.py", T + "binder_estimates.py"],
-    "salt_checks": [T + "compatibility_checks.py"],
+    "salt_checks": [T + "compatibility_checks.py", T + "durability_checks.py"],
     "setting_checks": [T + "durability_checks.py"],
     "soundness_checks": [T + "durability_checks.py"],
     "specification_checks": [T + "specification.py", T + "check_values.py"],
@@ -99,29 +99,33 @@ def _toml_list(items):
 def names_read(module: str, root: Path = REPO) -> set[str]:
     """What a test must name to read the results of check module ``module``: the check codes
     it registers (``register("CODE"``, ``audit_rule("CODE"``) and the quantity names it
-    declares (``declare("name"``), plus its top-level function names (for a test that calls a
-    helper directly).  A ``*_common`` module registers nothing: the codes of the check modules
-    that import it stand for it."""
+    declares (``declare("name"``), plus its top-level functions called or imported by name
+    (for a test that calls a helper directly), as regular expressions; with them the codes of
+    the check modules that import it (a ``*_common`` module registers nothing: those stand
+    for it)."""
     import ast
     import re
     src = (root / "specgen" / "checks" / f"{module}.py").read_text("utf-8")
     pattern = r'(?:register|audit_rule|declare)\(\s*"([A-Za-z0-9_-]+)"'
-    names = set(re.findall(pattern, src))
-    names |= {n.name for n in ast.parse(src).body
+    names = {re.escape(n) for n in re.findall(pattern, src)}
+    # a function is read when a test calls it (``name(``) or imports it, not when a word of
+    # the same spelling ("table") stands in a comment
+    names |= {rf"\b{n.name}\s*\(|import[^\n]*\b{n.name}\b" for n in ast.parse(src).body
               if isinstance(n, ast.FunctionDef) and not n.name.startswith("_")}
-    if module.endswith("_common"):
-        for other in sorted((root / "specgen" / "checks").glob("*_checks.py")):
-            text = other.read_text("utf-8")
-            if f"specgen.checks.{module} import" in text or f"import {module}" in text:
-                names |= set(re.findall(pattern, text))
+    for other in sorted((root / "specgen" / "checks").glob("*_checks.py")):
+        text = other.read_text("utf-8")
+        if f"specgen.checks.{module} import" in text or f"import {module}" in text:
+            names |= {re.escape(n) for n in re.findall(pattern, text)}
     return names
 
 
 def tests_naming(files: list[str], names: set[str], root: Path = REPO) -> list[str]:
     """The test functions of ``files`` (node ids ``file::test``) whose text, decorators
     included, names one of ``names``: the tests that read a module's checks.  A file where
-    none does is kept whole (its tests may read the checks through a helper)."""
+    none does is kept whole (its tests may read the checks through a helper).  ``names``
+    are regular expressions (``names_read``)."""
     import ast
+    import re
     out = []
     for f in files:
         text = (root / f).read_text("utf-8")
@@ -131,7 +135,7 @@ def tests_naming(files: list[str], names: set[str], root: Path = REPO) -> list[s
             if isinstance(node, ast.FunctionDef) and node.name.startswith("test_"):
                 first = min([node.lineno] + [d.lineno for d in node.decorator_list])
                 body = "\n".join(lines[first - 1:node.end_lineno])
-                if any(n in body for n in names):
+                if any(re.search(n, body) for n in names):
                     picked.append(f"{f}::{node.name}")
         out += picked or [f]
     return out
