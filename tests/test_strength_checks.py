@@ -354,7 +354,7 @@ def test_str_class_in_american_practice_below_the_lowest_type_and_without_28_day
     assert m3.notes[-1] == NHL_NOTE + "NH35 NHL 3.5"          # demo materials.yaml
     assert r.quantities["M3"]["strength_classes"].value["classes"] == []
     m1 = got[("STR-CLASS", "M1")]
-    assert (m1.status, m1.message, m1.steps) == (
-        "not_assessed", "not assessed: no compressive results at 28 d, the age at which the "
-        "classes are defined", ())
+    assert (m1.title, m1.status, m1.message, m1.steps) == (
+        "Strength class (descriptive)", "not_assessed", "not assessed: no compressive results "
+        "at 28 d, the age at which the classes are defined", ())
     assert [b.ref for b in m1.basis] == ["astmc270"]
