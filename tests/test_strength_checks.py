@@ -304,6 +304,7 @@ def test_str_class_result_whole_in_european_practice(demo_copy):
     c = by_check(check(demo_copy)[1])[("STR-CLASS", "M2")]
     assert (c.title, c.subject_kind, c.status, c.unit) == (
         "Strength class (descriptive)", "mix", "info", "MPa")
+    assert c.value == 3.3333          # 10/3 MPa kept to 4 decimals, as the sheet shows it
     assert c.message == f"28-d mean 3.33 MPa: EN 998-2 class M2.5 {STR_CLASS_WORDS}"
     assert c.notes == EN998_LINES + (
         "EN 998-2 table: EN 998-2 Specification for mortar for masonry - Part 2: Masonry "
