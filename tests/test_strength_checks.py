@@ -318,6 +318,10 @@ def test_str_class_result_whole_in_european_practice(demo_copy):
     assert [(i.symbol, i.name, i.value, i.unit, i.source) for i in step.inputs] == [
         ("f̄28", "28-d mean compressive strength", 3.3333, "MPa", "STR-AGG")]
     assert [(b.ref, b.read_in) for b in c.basis] == [("en998_2", "ziegel_moertel")]
+    from specgen.checks.result import Quantity
+    assert c.quantities == (Quantity("strength_classes", {
+        "standard": "EN 998-2", "table": "en998_2", "classes": ["M2.5"]}, "",
+        "mortar class met (descriptive)"),)
 
 
 def test_str_class_in_american_practice_below_the_lowest_type_and_without_28_days(demo_copy):
