@@ -363,3 +363,16 @@ def test_str_class_in_american_practice_below_the_lowest_type_and_without_28_day
         "Strength class (descriptive)", "not_assessed", "not assessed: no compressive results "
         "at 28 d, the age at which the classes are defined", ())
     assert [b.ref for b in m1.basis] == ["astmc270"]
+
+
+def test_str_class_note_names_each_binder_s_declared_class():
+    """The STR-CLASS note on the EN 459-1 binder classes lists every binder of the mix with
+    the class it declares, in the mix's order, and a dash when the project has none of them
+    (hand-made mix and project; binder B9 is not in the project)."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.strength_class_checks import _binder_class_note
+    project = NS(binders={"B1": NS(id="B1", declared_class="NHL 3.5"),
+                          "B2": NS(id="B2", declared_class=None)})
+    mix = NS(binders=[NS(binder="B2"), NS(binder="B9"), NS(binder="B1")])
+    assert _binder_class_note(mix, project) == NHL_NOTE + "B2 no class declared; B1 NHL 3.5"
+    assert _binder_class_note(NS(binders=[NS(binder="B9")]), project) == NHL_NOTE + "—"
