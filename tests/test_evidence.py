@@ -551,6 +551,9 @@ def test_curing_regime_pass_attention_hold_and_nothing_to_judge():
         "overridden with a justification) before this revision is issued",))
     assert _curing_of([], {"B1": "nhl"}) == []
     c = _curing_of(["", ""], {"B1": "nhl"})
+    assert (c.code, c.title, c.subject, c.subject_kind) == (
+        "EVD-CURE", "Curing regime of the strength prisms against the binder", "MX", "mix")
     assert (c.status, c.message, c.steps, c.quantities) == (
         "not_assessed", "not assessed: no curing regime is stated for the 2 prisms of MX (the "
         "prism series in samples.yaml, or lab/strength.csv)", (), ())
+    assert {b.ref or b.kind for b in c.basis} == {"en1015_11", "common practice"}
