@@ -502,6 +502,8 @@ def test_curing_regimes_that_do_not_suit_every_family_fail_with_each_named():
         "sealed in film at 20 °C until test does not suit air lime; EN 196-1 style does not "
         "suit air lime, natural hydraulic lime (NHL): the prisms' strength is not that of "
         "the mortar in the wall — recast and cure them in a regime for the binder")
+    assert [(q.name, q.unit, q.label) for q in c.quantities] == [
+        ("prism_curing", "", "curing regimes of the strength prisms")]
     assert [(q.name, q.value) for q in c.quantities] == [("prism_curing", {
         "families": ["air_lime", "nhl"],
         "regimes": {"sealed_20": {"specimens": 2, "suits": SEALED,
@@ -538,6 +540,9 @@ def test_curing_regime_pass_attention_hold_and_nothing_to_judge():
                                                r"\{\text{natural cement, natural hydraulic "
                                                r"lime (NHL), hydraulic lime (HL), Portland "
                                                r"cement}\}")
+    c = _curing_of(["water_20", "sealed_20"], {"B1": "natural_cement"})   # both suit it
+    assert (c.status, c.message) == (
+        "pass", "sealed in film at 20 °C until test, EN 196-1 style suits natural cement")
     c = _curing_of(["sealed_20", "", "water_20", ""], {"B1": "natural_cement"})
     assert (c.status, c.message) == (
         "attention", "2 of 4 prisms state no curing regime (first: P2); the others suit "
