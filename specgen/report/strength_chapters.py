@@ -31,6 +31,7 @@ def strength(env) -> dict:
     mixes = [_mix(env, m, rules) for m in p.mixes.values() if r.value(m.id, "mean_strength")]
     site = next((c for c in r.checks if c.code == "STR-SITE" and c.steps), None)
     energy = next((i for i in site.steps[0].inputs if i.symbol == "E"), None) if site else None
+    held = next((c for c in r.checks if c.code == "STR-SITE"), None)   # not assessed: why
     return {"mixes": mixes, "has_data": bool(mixes),
             "warning": next((n for n in (site.notes if site else ()) if "must be measured" in n),
                             ""),
@@ -38,6 +39,8 @@ def strength(env) -> dict:
             "method": METHOD_NAMES.get((r.value(site.subject, "equivalent_age") or {}).get(
                 "method", ""), "") if site else "",
             "site": plain(p.site_temperature.source) if p.site_temperature else "",
+            "no_site": "" if site else reader(held.message).rstrip(".") if held else
+            "this revision gives neither a site temperature nor a load strength",
             "limit": f"{rules['strength.extrapolation_limit'].value:g}",
             "level": f"{100 * rules['strength.confidence_level'].value:g} %"}
 
