@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from specgen.checks.result import key_days
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import anchor, num
+from specgen.report.fmt import UNIT_SPACE, anchor, num
 from specgen.report.wording import plain, reader
 
 TERMS = {"early_fraction": ("early (fast-stage) fraction", ""),
@@ -159,7 +159,9 @@ def _predictions(pred: dict) -> list[dict]:
         for age, v in sorted(ages.items(), key=lambda kv: key_days(kv[0])):
             flags = [w for w, on in (("extrapolated", v["extrapolated"]),
                                      ("indicative: never decides", v["indicative"])) if on]
-            rows.append({"test": test, "age": age, "value": num(v["value"], 3),
+            # the age's number and unit kept on one line ("365 d" wrapped in a narrow column)
+            rows.append({"test": test, "age": age.replace(" ", UNIT_SPACE),
+                         "value": num(v["value"], 3),
                          "mean": f"{num(v['lower'], 3)} – {num(v['upper'], 3)}",
                          "set": f"{num(v['pred_lower'], 3)} – {num(v['pred_upper'], 3)}",
                          "flags": ", ".join(flags) or "—"})
@@ -179,8 +181,9 @@ def _narrowing(env, mix: str) -> list[dict]:
         for age in ("90 d", "365 d"):
             v = comp.get(age)
             if v and "pred_lower" in v:
-                rows.append({"rev": code, "age": age, "mean": f"{num(v['lower'], 3)} – "
-                             f"{num(v['upper'], 3)}", "ratio": num(v["upper"] / v["lower"], 3),
+                rows.append({"rev": code, "age": age.replace(" ", UNIT_SPACE),
+                             "mean": f"{num(v['lower'], 3)} – {num(v['upper'], 3)}",
+                             "ratio": num(v["upper"] / v["lower"], 3),
                              "flag": "indicative" if v["indicative"] else ""})
     return rows if len({r["rev"] for r in rows}) > 1 else []
 
