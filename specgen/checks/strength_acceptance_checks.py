@@ -237,8 +237,8 @@ def site_check(mix, ctx):
         return []
     if p.site_temperature is None:
         return not_assessed("STR-SITE", title, mix.id, "a load strength is required but the "
-                            "dossier gives no site_temperature (a constant or a CSV of daily "
-                            "means under lab/)", (C1074,))
+                            "dossier gives no site temperature (dossier.yaml site_temperature: a "
+                            "constant, or a CSV of daily means under lab/)", (C1074,))
     s = _comp(ctx, mix.id)
     if s is None or s.run is None or not s.run.ok:
         why = (("; ".join(s.run.misfit) or s.run.error) if s and s.run else
