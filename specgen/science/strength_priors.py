@@ -23,15 +23,16 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
-from scipy import optimize, stats
+from scipy import optimize
 
 from specgen.errors import ScienceInputError
+from specgen.science.distributions import norm_ppf
 from specgen.science.two_stage_law import log_f
 
 MELD_DRAWS, MELD_RNG_STATE = 20000, 365   # draws of the shape rows for the implied gain
 
 PRIOR_KEYS = ("early_fraction", "tau_fast_d", "tau_slow_d", "shape_b", "gain_365_28")
-_Z95 = float(stats.norm.ppf(0.975))
+_Z95 = float(norm_ppf(0.975))
 
 
 class InferenceError(ScienceInputError):
