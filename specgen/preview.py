@@ -77,8 +77,11 @@ def handler_for(out: Path, state: State):
                 text = with_bar(state, _page_of(out / state.revision, file),
                                 file.read_text(encoding="utf-8"))
                 return self._send(text.encode("utf-8"), "text/html; charset=utf-8")
-            # served from the resolved file: a bare address's assets live in the revision
-            return self._send(file.read_bytes(), self.guess_type(str(file)))
+            # served from the resolved file: a bare address's assets live in the revision;
+            # a photograph not made yet is its placeholder, an SVG under the image's name
+            data = file.read_bytes()
+            return self._send(data, "image/svg+xml" if data.startswith(b"<svg")
+                              else self.guess_type(str(file)))
 
         def _resolve(self, path: str) -> Path | None:
             rel = path.lstrip("/")
