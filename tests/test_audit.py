@@ -113,6 +113,30 @@ def test_internal_identifier_in_reader_text(demo_copy):
     assert found[0].places == ("comments.yaml: C3",)
 
 
+def test_inputs_a_revision_lacks_are_named_as_file_keys_not_bare_identifiers():
+    # The issued R1 of the demo lacks the joint width, the render coats, the masonry volume,
+    # the units' suction and the vapour and capillary properties (demo data): the checks
+    # that cannot run say which file key to give, written as a key path of its file
+    # ("dossier.yaml Z1.joint_width"), which the reader's wording turns into words; a bare
+    # key would be an internal identifier in reader text and block the issue.
+    _, results = check("demo_project/issued/R1")
+    assert [f for f in results.findings if f.code == "AUD-WORDS"] == []
+    by = {c.key: c.message for c in results.checks}
+    assert by["WORKS-QTY/Z1"] == "not assessed: repointing in zone Z1: give dossier.yaml Z1.joint_width"
+    assert by["WORKS-QTY/Z3"] == ("not assessed: bedding in zone Z3: give dossier.yaml "
+                                  "Z3.masonry_volume")
+    assert by["DUR-RETAIN/Z1/M1"].endswith(
+        "give materials.yaml EB1.initial_rate_of_absorption (or EB1.capillary_coefficient)")
+
+
+def test_a_masonry_unit_key_in_reader_text_is_found(demo_copy):
+    # the keys of every file's records count as internal names, the units' included
+    edit(demo_copy / "comments.yaml", "Please add the firing record",
+         "Please add the firing record and the thermal_expansion")
+    found, _ = findings(demo_copy, "AUD-WORDS")
+    assert [f.subject for f in found] == ["thermal_expansion"]
+
+
 def test_comment_whose_subject_changed(demo_copy):
     found, _ = findings(demo_copy, "AUD-COMMENT")
     assert [f.subject for f in found] == ["C3"]
@@ -280,3 +304,69 @@ def test_every_clause_number_names_an_existing_result(demo_copy):
             assert found is not None and found.status != "not_assessed", (zone.id, src)
             named.add(code)
     assert {"STR-MIN", "SPEC-ACCEPT", "MIX-YIELD", "SITE-GAUGE", "COMP-COLOUR"} <= named
+
+
+def _unconfirmed(title, where, source, used_by):
+    return {"title": title, "where": where, "source": source, "used_by": used_by}
+
+
+def test_unverified_rule_on_hand_made_records():
+    """AUD-UNVERIFIED (unverified_rule) on two records written here: one finding per value,
+    its title (or, untitled, where it is), the first four of its checks in order and "…"
+    beyond them; never blocking.  Expected findings written out by hand."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.audit_record_checks import unverified_rule
+    from specgen.checks.result import Finding
+    records = [
+        _unconfirmed("Frost limit", "content/rules/durability.yaml: frost", "from memory",
+                     {"E/Z1", "A/Z2", "D/Z1", "B/Z1", "C/Z3"}),
+        _unconfirmed("", "content/reference/x.yaml: k", "handbook", {"B/M1", "A/M1"})]
+    ctx = NS(results=NS(unconfirmed=lambda: records))
+    fix = ("confirm the value against the printed source and cite its clause or table, or "
+           "override it in dossier.yaml with a justification.")
+    title = "Values still to confirm against their source"
+    assert unverified_rule(ctx) == [
+        Finding("AUD-UNVERIFIED", title,
+                "Frost limit (from memory) is used by A/Z2, B/Z1, C/Z3, D/Z1 … and is still "
+                "to be confirmed against its source.",
+                ("page Values to confirm", "calculation sheet A/Z2", "calculation sheet B/Z1",
+                 "calculation sheet C/Z3", "calculation sheet D/Z1"),
+                fix, subject="Frost limit", blocking=False),
+        Finding("AUD-UNVERIFIED", title,
+                "content/reference/x.yaml: k (handbook) is used by A/M1, B/M1 and is still to "
+                "be confirmed against its source.",
+                ("page Values to confirm", "calculation sheet A/M1", "calculation sheet B/M1"),
+                fix, subject="content/reference/x.yaml: k", blocking=False)]
+    ctx = NS(results=NS(unconfirmed=lambda: [
+        _unconfirmed("T", "w", "s", {"A", "B", "C", "D"})]))
+    assert unverified_rule(ctx)[0].message == ("T (s) is used by A, B, C, D and is still to be "
+                                               "confirmed against its source.")   # 4: no "…"
+
+
+@pytest.mark.parametrize("status, purpose, names, who, fields", [
+    ("draft", "for_construction", (None, None, None), None, None),
+    ("issued", "for_approval", (None, None, None), None, None),
+    ("issued", "for_construction", ("P", "C", "A"), None, None),
+    ("issued", "for_construction", ("P", None, "A"), "checked", "checked"),
+    ("issued", "for_construction", (None, "C", None), "prepared or approved",
+     "prepared, approved"),
+])
+def test_signoff_rule_only_for_an_issued_construction_revision(status, purpose, names, who,
+                                                               fields):
+    """AUD-SIGNOFF (signoff_rule): only a revision issued for construction must name who
+    prepared, checked and approved it; the finding names each one missing (by hand)."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.audit_record_checks import signoff_rule
+    from specgen.checks.result import Finding
+    sign = NS(**dict(zip(("prepared", "checked", "approved"), names)))
+    rev = NS(status=status, purpose=purpose, sign_off=sign, code="R7")
+    got = signoff_rule(NS(project=NS(revision=rev)))
+    if who is None:
+        assert got == []
+        return
+    assert got == [Finding(
+        "AUD-SIGNOFF", "Issued revision without its sign-off",
+        f"revision R7 is issued but names no one who {who} it.",
+        ("dossier.yaml: revision.sign_off", "cover: sign-off"),
+        f"give name, role, organisation and date under revision.sign_off for {fields}.",
+        subject="R7")]
