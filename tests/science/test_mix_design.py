@@ -29,6 +29,7 @@ def test_hand_worked_absolute_volume_example():
     #    sum 0.259259 + 1.698113 + 0.56 = 2.517372 m³.
     assert y.absolute_volumes["B"] == pytest.approx(0.259259, abs=1e-6)
     assert y.absolute_volumes["S"] == pytest.approx(1.698113, abs=1e-6)
+    assert y.absolute_volumes["water"] == pytest.approx(0.56, rel=1e-12)
     assert y.solid_water_volume == pytest.approx(2.517372, abs=1e-6)
     # 4. Fresh volume with 5 % air: 2.517372 / (1 − 0.05) = 2.649866 m³.
     assert y.fresh_volume == pytest.approx(2.649866, abs=1e-6)
@@ -81,6 +82,8 @@ def _whole(words):
      "S: parts and densities must be greater than zero"),
     ([NHL, Constituent("S", "sand", 3.0, -1500.0, -2650.0)],
      "S: parts and densities must be greater than zero"),
+    ([NHL, Constituent("S", "sand", 3.0, 1500.0, 0.0)],
+     "S: parts and densities must be greater than zero"),
     ([Constituent("B", "binder", 1.0, 2800.0, 2700.0), SAND],
      "B: the loose bulk density (2800 kg/m³) must be below the particle density (2700)"),
     # equal densities would mean a loose heap without voids: refused too
@@ -118,6 +121,24 @@ def test_air_at_the_edges_of_its_range():
     # 49 % air, just inside the range: 2.517372 / 0.51 = 4.936024 m³
     assert absolute_volume_yield([NHL, SAND], 0.8, 0.49, 1000.0).fresh_volume == \
         pytest.approx(4.936024, abs=1e-6)
+
+
+def test_the_method_is_scale_free_in_tonnes():
+    # the absolute-volume method is linear in mass: densities in t/m³ (every density of the
+    # hand example / 1000, water 1.0 t/m³) give the same volumes and masses / 1000; a
+    # lightweight filler with densities below 1 t/m³ (bulk 0.3, particle 0.9) is a mix too
+    b = Constituent("B", "binder", 1.0, 0.7, 2.7)
+    s = Constituent("S", "sand", 3.0, 1.5, 2.65)
+    y = absolute_volume_yield([b, s], 0.8, 0.05, 1.0)
+    assert y.fresh_volume == pytest.approx(2.649866, abs=1e-6)
+    # without the retarder: (0.7 + 4.5 + 0.56) t / 2.649866 m³ = 2.173695 t/m³
+    assert y.fresh_density == pytest.approx(2.173695, abs=1e-6)
+    light = Constituent("P", "sand", 1.0, 0.3, 0.9)
+    # by hand: 0.7 t binder, 0.3 t filler, water 0.56 t; volumes 0.7/2.7 + 0.3/0.9 + 0.56/1
+    # = 0.259259 + 0.333333 + 0.56 = 1.152593 m³ (no air)
+    yl = absolute_volume_yield([b, light], 0.8, 0.0, 1.0)
+    assert yl.solid_water_volume == pytest.approx(1.152593, abs=1e-6)
+    assert mass_proportions([b, light]) == pytest.approx({"B": 1.0, "P": 0.3 / 0.7}, rel=1e-12)
 
 
 def test_two_binders_and_two_sands_by_hand():
