@@ -300,3 +300,26 @@ def test_powers_edges_by_hand():
     # α = 1: capillary 5e-4 + 1e-3 − 1e-3 = 5e-4 of 1.5e-3: p = 1/3, X = 1e-3/1.5e-3 = 2/3
     assert (wet.capillary_porosity, wet.gel_space_ratio) == pytest.approx((1 / 3, 2 / 3),
                                                                           rel=1e-12)
+
+
+def test_ratios_do_not_depend_on_the_density_unit():
+    # dimensional analysis: the densities in t/m³ (each / 1000; water 0.9971, under 1) give
+    # volumes 1000 times larger, and the same unit-free ratios
+    kg = reaction_balance(BELITE_HYDRATION, AW, BENTZ)
+    t = reaction_balance(BELITE_HYDRATION, AW, {k: v / 1000 for k, v in BENTZ.items()})
+    assert t.volumes == pytest.approx({k: 1000 * v for k, v in kg.volumes.items()}, rel=1e-12)
+    assert (t.chemical_shrinkage, t.solid_volume_increase) == pytest.approx(
+        (0.0958, 1.242), abs=0.001)                           # as in the Bentz test above
+    assert t.relative == pytest.approx(kg.relative, rel=1e-12)
+
+
+def test_a_reaction_consuming_no_water():
+    # the pozzolanic reaction run backwards (C-S-H taken apart into lime, silica and water,
+    # written here only to test the bookkeeping): no water is consumed, so the water per kg
+    # is 0; lime formed per kg of C-S-H = 1.7·M(CH)/M(C1.7SH4) (periodictable)
+    back = Reaction("C1.7-S-H4 -> 1.7 CH + S + 2.3 H", (("C1.7SH4", 1.0),),
+                    (("CH", 1.7), ("S", 1.0), ("H", 2.3)))
+    bal = reaction_balance(back, AW, BENTZ)
+    assert bal.water_per_kg == 0.0
+    assert bal.ch_per_kg == pytest.approx(1.7 * _pt("Ca(OH)2") / _pt("(CaO)1.7(SiO2)(H2O)4"),
+                                          rel=1e-4)
