@@ -341,3 +341,30 @@ def test_plausibility_messages_whole():
     assert check_plausible([90e3], 100e3, 60e6, "kPa", 1e3) == [
         "result 1: 90 kPa is below the plausible 100 kPa; was it entered in the wrong unit "
         "(e.g. GPa or N/m² scaled)?"]
+
+
+def test_small_positive_values_and_two_results():
+    # any positive number is a result here (plausibility is a separate screen): 0.5 Pa passes,
+    # and a refusal lists only the values at or below zero
+    assert summarise([0.5, 0.7]).n == 2
+    with pytest.raises(StrengthInputError) as err:
+        summarise([0.5, -1e6])
+    assert str(err.value) == "strength results must be greater than zero; found -1e+06 Pa"
+    # two results have a sample SD (Python's statistics module): 4 and 5 MPa -> 0.7071 MPa
+    s = summarise([4.0e6, 5.0e6])
+    assert s.sd == pytest.approx(statistics.stdev([4.0e6, 5.0e6]), rel=1e-12)
+    assert s.cv == pytest.approx(statistics.stdev([4.0e6, 5.0e6]) / 4.5e6, rel=1e-12)
+
+
+def test_kn_table_refusal_on_the_known_row():
+    # the known row of Table D1 starts at n = 1: a count under one has no entry
+    with pytest.raises(StrengthInputError) as err:
+        kn_from_table(0.5, KN, known_variance=True)
+    assert str(err.value) == "EN 1990 Table D1 gives no k_n for n = 0.5 (known variance)"
+
+
+def test_grubbs_defaults_to_five_percent():
+    # the default significance is 0.05 (two-sided): the closed form written out above
+    assert grubbs_critical(5) == pytest.approx(_g_crit(5, 0.05), rel=1e-9)
+    assert grubbs_screen([4.0e6, 9.0e6]).alpha == 0.05
+    assert grubbs_screen([4.0e6, 9.0e6], alpha=0.01).alpha == 0.01
