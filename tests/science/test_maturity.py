@@ -224,3 +224,19 @@ def test_fhp_energy_helpers_at_and_around_the_split():
     assert arrhenius_energy(E, split - 5) == E
     # the factor with the energy function: at 10 °C, E = 48.2 kJ/mol → 0.49738 (above)
     assert float(arrhenius_factor(K + 10, f, TREF)) == pytest.approx(0.49738, abs=1e-5)
+
+
+def test_sub_second_steps_and_small_positive_parameters():
+    # a logger reading every half second: 1 s at 30 °C is 1.57362 s at 20 °C (factor above)
+    te = equivalent_age_arrhenius([0, 0.5, 1.0], K + 30, activation_energy=E, t_ref_k=TREF)
+    assert te == pytest.approx([0.0, 0.5 * 1.57362, 1.57362], abs=2e-5)
+    with pytest.raises(MaturityInputError) as err:
+        equivalent_age_arrhenius([0, 0.5, 0.5], K + 30, activation_energy=E, t_ref_k=TREF)
+    assert str(err.value) == "times must increase; reading 3 (0.5 s) does not follow reading 2 (0.5 s)"
+    # any positive energy and reference temperature are taken, written out:
+    # E = 0.5 J/mol at 30 °C: exp[−(0.5/R)(1/303.15 − 1/293.15)] = 1.0000068
+    assert float(arrhenius_factor(K + 30, 0.5, TREF)) == pytest.approx(
+        math.exp(-(0.5 / constants.R) * (1 / (K + 30) - 1 / TREF)), rel=1e-12)
+    # Tref = 0.5 K, T = 1 K, E = 1 J/mol: exp[−(1/R)(1 − 2)] = exp(1/R) = 1.12780
+    assert float(arrhenius_factor(1.0, 1.0, 0.5)) == pytest.approx(math.exp(1 / constants.R),
+                                                                   rel=1e-12)
