@@ -266,8 +266,7 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
     reused = total = 0
     done = {}
     with Printer(pageset, workers) as printer:
-        # every part of both volumes is queued at once, costliest first across the two, so
-        # neither core waits for one volume's last part before the other volume starts
+        # both volumes' parts queued at once, costliest first: no core waits between volumes
         jobs = {v.key: _volume_jobs(printer, v, context, page_size) for v in vols}
         queue = sorted(((-cost, n, i), submit) for n, job in enumerate(jobs.values())
                        for i, (cost, submit) in enumerate(job["parts"]))
@@ -321,8 +320,7 @@ def _volume_jobs(printer, v, context: dict, page_size: str) -> dict:
 
 
 def _print_volume(printer, job: dict, page_size: str, on_part, final: dict):
-    """One volume's parts (queued by :func:`_volume_jobs`), front matter and stamps:
-    (front, printed parts, stamps)."""
+    """One volume's (front, printed parts, stamps); its parts queued by :func:`_volume_jobs`."""
     groups, handles = job["groups"], job["handles"]
     printed = []
     for i in range(len(groups)):
@@ -332,8 +330,8 @@ def _print_volume(printer, job: dict, page_size: str, on_part, final: dict):
             on_part(i + 1, len(groups))
     job["timings"].keep([p.seconds for p in printed])
     front_doc, stamps = _front_and_stamps(job["front"], printer, job["ctx"], page_size,
-                                          job["every"], printed,
-                                          len(job["guess"].result().pages), final)
+                                          job["every"], printed, len(job["guess"].result().pages),
+                                          final)
     return front_doc, printed, stamps
 
 
