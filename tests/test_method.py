@@ -227,3 +227,12 @@ def test_bay_result_whole_and_the_default_placing_rate(demo_copy):
     assert (z1.steps[0].inputs[0].value, z1.steps[0].inputs[0].source) == (
         10.0, "rule works.placing_rate (common practice — one operative pointing or bedding; "
               "confirm on the trial panel)")
+
+
+def test_rake_out_only_for_repointing(demo_copy):
+    """MTH-RAKE is for repointing alone: the bedding zone Z3 given a joint width has no
+    rake-out depth (its blocks are rebedded, not raked out), nor has the render zone Z2."""
+    edit(demo_copy / "dossier.yaml", "    works: bedding\n",
+         '    works: bedding\n    joint_width: "10 mm"\n')
+    got = by_check(check(demo_copy)[1])
+    assert [k for k in got if k[0] == "MTH-RAKE"] == [("MTH-RAKE", "Z1")]
