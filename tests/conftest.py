@@ -37,7 +37,17 @@ def full_run(config) -> bool:
     return bool(config.getoption("--full") or os.environ.get("SPECGEN_FULL_TESTS"))
 
 
+# Fixtures that check or build the demo (seconds each); the module-scoped ``demo`` of a test
+# file is a checked copy of it.
+DEMO_FIXTURES = {"demo", "demo_copy", "demo_checked", "demo_build", "starter_build"}
+
+
 def pytest_collection_modifyitems(config, items):
+    if os.environ.get("MUTANT_UNDER_TEST") not in (None, "", "stats"):
+        # a mutation run (tools/mutation.py) stops at the first failing test: the tests that
+        # check no copy of the demo go first, so a mutant one of them kills costs no demo
+        # check.  The same tests run, only their order changes.
+        items.sort(key=lambda item: bool(DEMO_FIXTURES & set(item.fixturenames)))
     if full_run(config):
         return
     skip = pytest.mark.skip(reason="long run: pytest --full (or SPECGEN_FULL_TESTS=1) runs it")
