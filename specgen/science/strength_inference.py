@@ -96,10 +96,7 @@ class Inference:
     last_age: float            # d
     draws: np.ndarray | None = None     # equally weighted posterior draws of z
     ess: float = 0.0                    # effective sample size of the importance weights
-    # the bands already computed for this fit, by (ages, level, n): the checks ask for the
-    # same intervals several times (the band and the set interval at one age, the sheet and
-    # the decision, the wall's curve and its load day); kept with the fit, freed with it
-    memo: dict = field(default_factory=dict, repr=False)
+    memo: dict = field(default_factory=dict, repr=False)  # its bands, by (ages, level, n)
 
     @property
     def sampled(self) -> bool:
@@ -268,8 +265,7 @@ def _log_bands(inf: Inference, t_d, level: float, extra_sd=None):
         if nodes is not t:
             order = np.argsort(t)
             e = np.interp(np.log(nodes), np.log(t[order]), e[order])
-        # the mixture laid out one row per age (its PREDICTIVE_REPEATS x KEPT values), so each
-        # age's order statistics are taken from a contiguous row
+        # one row per age (its REPEATS x KEPT values): order statistics from contiguous rows
         mix = np.multiply(e[:, None, None], _predictive_noise(inf.dof)[None, :, :])
         mix += lf.T[:, None, :]
         plo, phi = row_quantiles(mix.reshape(nodes.size, -1), [a, 1.0 - a], overwrite=True)
@@ -326,8 +322,7 @@ def bands(inf: Inference, t_d, level: float = 0.95, n: float = 3.0) -> dict[str,
     (``n = inf``: the batch's own strength; ``n`` may be an array, one per age)."""
     t = np.atleast_1d(np.asarray(t_d, float))
     n_key = tuple(np.broadcast_to(np.asarray(n, float), t.shape).tolist())
-    key = (tuple(t.tolist()), float(level), n_key)
-    if key not in inf.memo:
+    if (key := (tuple(t.tolist()), float(level), n_key)) not in inf.memo:
         inf.memo[key] = _bands(inf, *key)
     return {k: v.copy() for k, v in inf.memo[key].items()}
 
