@@ -113,6 +113,30 @@ def test_internal_identifier_in_reader_text(demo_copy):
     assert found[0].places == ("comments.yaml: C3",)
 
 
+def test_inputs_a_revision_lacks_are_named_as_file_keys_not_bare_identifiers():
+    # The issued R1 of the demo lacks the joint width, the render coats, the masonry volume,
+    # the units' suction and the vapour and capillary properties (demo data): the checks
+    # that cannot run say which file key to give, written as a key path of its file
+    # ("dossier.yaml Z1.joint_width"), which the reader's wording turns into words; a bare
+    # key would be an internal identifier in reader text and block the issue.
+    _, results = check("demo_project/issued/R1")
+    assert [f for f in results.findings if f.code == "AUD-WORDS"] == []
+    by = {c.key: c.message for c in results.checks}
+    assert by["WORKS-QTY/Z1"] == "not assessed: repointing in zone Z1: give dossier.yaml Z1.joint_width"
+    assert by["WORKS-QTY/Z3"] == ("not assessed: bedding in zone Z3: give dossier.yaml "
+                                  "Z3.masonry_volume")
+    assert by["DUR-RETAIN/Z1/M1"].endswith(
+        "give materials.yaml EB1.initial_rate_of_absorption (or EB1.capillary_coefficient)")
+
+
+def test_a_masonry_unit_key_in_reader_text_is_found(demo_copy):
+    # the keys of every file's records count as internal names, the units' included
+    edit(demo_copy / "comments.yaml", "Please add the firing record",
+         "Please add the firing record and the thermal_expansion")
+    found, _ = findings(demo_copy, "AUD-WORDS")
+    assert [f.subject for f in found] == ["thermal_expansion"]
+
+
 def test_comment_whose_subject_changed(demo_copy):
     found, _ = findings(demo_copy, "AUD-COMMENT")
     assert [f.subject for f in found] == ["C3"]

@@ -280,7 +280,7 @@ def test_paste_not_assessed_without_a_water_binder_ratio(demo_copy):
     _, r = check(demo_copy)
     c = by(r)[("CHEM-PASTE", "M2")]
     assert (c.status, c.value, c.message) == (
-        "not_assessed", None, "not assessed: the mix gives no water_binder_ratio in mixes.yaml")
+        "not_assessed", None, "not assessed: the mix gives no mixes.yaml M2.water_binder_ratio")
     assert by(r)[("CHEM-PASTE", "M1")].value == pytest.approx(_porosity(0.55, F_NC1, BENTZ),
                                                               abs=2e-3)
     assert by(r)[("CHEM-PASTE", "M3")].status == "info"

@@ -176,9 +176,9 @@ def test_missing_fabric_property_is_not_assessed(demo_copy):
     _, r = check(demo_copy)
     m = by_check(r)[("COMP-MOIST", "Z1/M1")]
     assert m.status == "not_assessed"
-    assert m.message == "not assessed: missing vapour_resistance_factor of masonry unit EB1"
+    assert m.message == "not assessed: missing vapour resistance factor of masonry unit EB1"
     assert by_check(r)[("COMP-MOVE", "Z1/M3")].message == (
-        "not assessed: missing thermal_expansion of masonry unit EB1")
+        "not assessed: missing thermal expansion coefficient of masonry unit EB1")
 
 
 def test_missing_salts_not_assessed(demo_copy):

@@ -491,7 +491,7 @@ def test_missing_measurements_are_never_a_silent_pass(demo_copy):
     assert c[("DUR-RETAIN", "Z2/M1")].message == (
         "not assessed: the suction of the units is unknown: commission their initial rate of "
         "absorption (EN 772-11; ASTM C67) or capillary coefficient (EN 1925) and give "
-        "initial_rate_of_absorption (or capillary_coefficient) for the units in materials.yaml")
+        "materials.yaml GS1.initial_rate_of_absorption (or GS1.capillary_coefficient)")
     carb = c[("DUR-CARB", "Z3/M3")]
     assert carb.status == "attention" and "no carbonation depths measured — measure by " \
         "phenolphthalein" in carb.message

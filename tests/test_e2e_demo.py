@@ -191,6 +191,19 @@ def test_two_builds_are_byte_identical(demo_build, tmp_path, monkeypatch):
         assert (first / name).read_bytes() == (again / name).read_bytes(), name
 
 
+def test_strength_chapter_says_why_no_wall_strength_is_estimated(demo_build):
+    """R1 and R2 give no site temperature and no load strength (their issued dossier.yaml):
+    the chapter says so instead of naming an empty method and activation energy; R3 gives
+    both and names the method, the temperature-dependent energy and its source."""
+    for rev in ("R1", "R2"):
+        html = (demo_build / rev / "strength.html").read_text()
+        assert "activation energy ." not in html and " method (ASTM" not in html
+        assert ("Strength in the wall from the site temperature (ASTM C1074): not estimated — "
+                "this revision gives neither a site temperature nor a load strength.") in html
+    html = (demo_build / REV / "strength.html").read_text()
+    assert "Equivalent age: Arrhenius method (ASTM C1074), activation energy 33.5 kJ/mol" in html
+
+
 def test_reference_titles_are_set_in_italics(demo_build):
     """Titles in the reference list are emphasised, not shown with their Markdown asterisks."""
     html = (demo_build / REV / "references.html").read_text()

@@ -122,7 +122,7 @@ def test_quantities_not_assessed_without_dimensions(demo_copy):
     _, r = check(demo_copy)
     c = by(r)[("WORKS-QTY", "Z2")]
     assert c.status == "not_assessed"
-    assert c.message == "not assessed: render: give coats for zone Z2 in dossier.yaml"
+    assert c.message == "not assessed: render in zone Z2: give dossier.yaml Z2.coats"
 
 
 def run_check(cli, project) -> str:

@@ -97,7 +97,8 @@ def historic_aggregate(pair, project) -> tuple[gr.Grading | None, str]:
     if h is None:
         return None, cc.fabric_names(pair)[1]
     if not h.aggregate_sample:
-        return None, (f"historic mortar {h.id} names no aggregate_sample (its aggregate "
+        return None, (f"historic mortar {h.id} names no sieve analysis of its aggregate "
+                      f"(materials.yaml {h.id}.aggregate_sample: the sample of its aggregate "
                       "recovered by acid digestion, in lab/sieves.csv)")
     return project.gradings.get(h.aggregate_sample), ""
 
@@ -275,7 +276,8 @@ def _ba_one(pair, ctx):
     if h is None or h.acid_digestion is None:
         return cc.not_assessed(code, title, pair, [
             cc.fabric_names(pair)[1] if h is None else
-            f"historic mortar {h.id} has no acid_digestion results (materials.yaml)"])
+            f"historic mortar {h.id} has no acid digestion results (materials.yaml "
+            f"{h.id}.acid_digestion)"])
     d = h.acid_digestion
     loi, loi_src = _binder_loss(h, ctx.project)
     r = gr.binder_aggregate(d.sample_mass, d.residue_mass, d.binder_bulk_density,

@@ -278,7 +278,10 @@ def _internal_words(project) -> set[str]:
     words = {q.name for q in quantity_names()}
     docs = [project.dossier, *(x for x in (project.specification,) if x is not None)]
     stack = [type(getattr(d, "doc", d)) for d in docs]
-    stack += [type(x) for x in (*project.mixes.values(), *project.binders.values())]
+    stack += [type(x) for group in (project.mixes, project.binders, project.masonry_units,
+                                    project.historic_mortars, project.sands,
+                                    project.mortar_properties, project.analyses)
+              for x in group.values()]
     seen = set()
     while stack:
         t = stack.pop()

@@ -48,7 +48,7 @@ def binder_class_check(binder, ctx):
     if not steps:
         return not_assessed("BIND-CLASS", TITLE, binder.id, "binder", (_basis(table),),
                             f"nothing measured of {binder.id} to judge {name} by: no SO3 in "
-                            "its analysis and no class_tests in materials.yaml")
+                            f"its analysis and no materials.yaml {binder.id}.class_tests")
     bad = [s for s, ok in steps if not ok]
     return CheckResult(
         code="BIND-CLASS", title=TITLE, subject=binder.id, subject_kind="binder",

@@ -209,8 +209,9 @@ def _moisture_one(pair, ctx):
     missing = [w for w, v in ((f"capillary coefficient of mix {pair.mix_id} (materials.yaml "
                                "mortar_properties or lab/capillary.csv)", c_rep),
                               (f"capillary coefficient of {cc.fabric_names(pair)[0]}", c_unit),
-                              (f"vapour_resistance_factor of mix {pair.mix_id}", mu_rep),
-                              (f"vapour_resistance_factor of {cc.fabric_names(pair)[0]}", mu_unit))
+                              (f"vapour resistance factor of mix {pair.mix_id} (materials.yaml "
+                               "mortar_properties)", mu_rep),
+                              (f"vapour resistance factor of {cc.fabric_names(pair)[0]}", mu_unit))
                if v is None]
     if missing:
         return cc.not_assessed(code, title, pair, ["missing " + m for m in missing])
@@ -269,9 +270,10 @@ def _movement_one(pair, ctx):
     unit, props = pair.unit, pair.props
     a_rep = props.thermal_expansion if props else None
     a_fab = unit.thermal_expansion if unit else None
-    missing = [w for w, v in ((f"thermal_expansion of mix {pair.mix_id} (materials.yaml "
-                               "mortar_properties)", a_rep),
-                              (f"thermal_expansion of {cc.fabric_names(pair)[0]}", a_fab)) if not v]
+    missing = [w for w, v in ((f"thermal expansion coefficient of mix {pair.mix_id} "
+                               "(materials.yaml mortar_properties)", a_rep),
+                              (f"thermal expansion coefficient of {cc.fabric_names(pair)[0]}",
+                               a_fab)) if not v]
     if missing:
         return cc.not_assessed(code, title, pair, ["missing " + m for m in missing])
     tol = ctx.rules["compatibility.movement_tolerance"].value

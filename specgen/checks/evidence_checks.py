@@ -12,6 +12,7 @@ from __future__ import annotations
 
 from specgen import refdata
 from specgen.checks import durability_common as dc
+from specgen.checks import strength_common as sc
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step, not_assessed
 from specgen.views import family_words
@@ -28,7 +29,7 @@ declare("prism_curing", "", "curing regimes of a mix's strength prisms: {regime:
 @register("EVD-CURE", TITLE, "mix", order=305)
 def curing_check(mix, ctx):
     """Every stated regime must suit every binder family of the mix; unstated ones say so."""
-    rows = [r for r in ctx.project.strength if r.mix == mix.id]
+    rows = sc.rows_of(ctx, mix.id)
     if not rows:
         return []                      # no strength set of this mix: nothing was cured
     families = sorted({ctx.project.binders[b.binder].type for b in mix.binders

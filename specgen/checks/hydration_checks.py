@@ -170,7 +170,7 @@ def paste_check(mix, ctx) -> CheckResult:
     binder = main_binder(mix, ctx.project)
     if mix.water_binder_ratio is None:
         return not_assessed("CHEM-PASTE", PASTE_TITLE, mix.id, "mix", basis,
-                            "the mix gives no water_binder_ratio in mixes.yaml")
+                            f"the mix gives no mixes.yaml {mix.id}.water_binder_ratio")
     q = ctx.quantity(binder.id, "c2s_potential") if binder else None
     if q is None:
         return not_assessed("CHEM-PASTE", PASTE_TITLE, mix.id, "mix", basis,

@@ -237,8 +237,8 @@ def site_check(mix, ctx):
         return []
     if p.site_temperature is None:
         return not_assessed("STR-SITE", title, mix.id, "a load strength is required but the "
-                            "dossier gives no site_temperature (a constant or a CSV of daily "
-                            "means under lab/)", (C1074,))
+                            "dossier gives no site temperature (dossier.yaml site_temperature: a "
+                            "constant, or a CSV of daily means under lab/)", (C1074,))
     s = _comp(ctx, mix.id)
     if s is None or s.run is None or not s.run.ok:
         why = (("; ".join(s.run.misfit) or s.run.error) if s and s.run else
@@ -338,9 +338,10 @@ def _wall_curve(s: sc.Series, t, te, ctx) -> dict:
     ok = te > 0
     b = si.bands(s.run.inference, te[ok] / DAY, ctx.rules["strength.confidence_level"].value,
                  math.inf)
-    return {"days": [round(float(v) / DAY, 4) for v in t[ok]],
-            "value": [round(float(v), 4) for v in b["value"]],
-            "lower": [round(float(v), 4) for v in b["pred_lo"]]}
+    # a year of daily points per mix: rounded as Python floats (``tolist``), the same numbers
+    return {"days": [round(v / DAY, 4) for v in t[ok].tolist()],
+            "value": [round(v, 4) for v in b["value"].tolist()],
+            "lower": [round(v, 4) for v in b["pred_lo"].tolist()]}
 
 
 def _interp(a, t, te):

@@ -151,6 +151,17 @@ def cached(ctx) -> dict[tuple[str, str], Series]:
     return found
 
 
+def rows_of(ctx, mix: str) -> list:
+    """The strength rows of ``mix`` in file order: the project's rows indexed by mix once per
+    run (kept on the check context), not scanned again for every mix."""
+    found = ctx.__dict__.get("_rows_by_mix")
+    if found is None:
+        found = ctx.__dict__["_rows_by_mix"] = {}
+        for r in ctx.project.strength:
+            found.setdefault(r.mix, []).append(r)
+    return found.get(mix, [])
+
+
 def _series(key, rows, st, rules, plaus, project) -> Series:
     s = Series(*key)
     sigma_cv = project.dossier.strength.known_cv

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
 
 from specgen.checks import strength_common as sc
 from specgen.checks import strength_prior_common as spc
@@ -214,7 +215,7 @@ def _curve(s: sc.Series, level: float, n: int, ctx) -> dict:
     ages = spc.curve_ages(inf.last_age, top)
     b = si.bands(inf, ages, level, n)
     comp = si.components(inf, ages)
-    r4 = lambda a: [round(float(v), 4) for v in a]  # noqa: E731
+    r4 = lambda a: [round(v, 4) for v in np.asarray(a, float).tolist()]  # noqa: E731
     pts = [(g.te / DAY, r.value / MPA) for g in s.groups for r in g.specimens]
     fitted = si.value(inf, [p[0] for p in pts])
     return {"ages_d": r4(ages), **{k: r4(v) for k, v in b.items()},

@@ -58,11 +58,14 @@ def _suction(pair, ctx):
 def _retain_one(pair, ctx) -> CheckResult:
     suction = _suction(pair, ctx)
     if suction is None:
+        u = pair.unit
+        give = (f"materials.yaml {u.id}.initial_rate_of_absorption (or {u.id}."
+                "capillary_coefficient)" if u is not None else
+                f"the zone's units (dossier.yaml {pair.zone.id}.units) with one of them in "
+                "materials.yaml")
         return cc.not_assessed("DUR-RETAIN", RETAIN, pair, [
             "the suction of the units is unknown: commission their initial rate of "
-            "absorption (EN 772-11; ASTM C67) or capillary coefficient (EN 1925) and give "
-            "initial_rate_of_absorption (or capillary_coefficient) for the units in "
-            "materials.yaml"])
+            f"absorption (EN 772-11; ASTM C67) or capillary coefficient (EN 1925) and give {give}"])
     high, inputs, used = suction
     need = dc.rule(ctx, "water_retention_min_high_suction" if high else "water_retention_min")
     wr = pair.props.water_retention if pair.props else None

@@ -67,7 +67,7 @@ def water(pair, ctx) -> Condition:
     e = dc.exposure(ctx, pair.zone.id)
     if e is None:
         return Condition("water", None, "no exposure class", "DUR-EXPOSE",
-                         "give the zone's exposure_conditions")
+                         f"give dossier.yaml {pair.zone.id}.exposure_conditions")
     return Condition("water", e["wetting"] != "dry", f"{e['wetting']} wetting ({e['designation']})",
                      f"DUR-EXPOSE/{pair.zone.id}")
 

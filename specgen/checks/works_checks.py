@@ -57,7 +57,7 @@ def mix_yield_check(mix, ctx) -> CheckResult:
         why = (f"water is gauged to the consistence target {mix.consistence * 1000:g} mm "
                "(EN 1015-3)" if mix.consistence else "no water/binder ratio is given")
         return not_assessed("MIX-YIELD", title, mix.id, "mix", (PRACTICE,), f"{why}; give "
-                            "water_binder_ratio in mixes.yaml to compute the yield")
+                            f"mixes.yaml {mix.id}.water_binder_ratio to compute the yield")
     parts = wc.parts_of(p, mix)
     air, rho_w = wc.air_of(mix, ctx.rules), wc.water_density()
     binder = sum(y.masses[q.constituent.name] for q in parts if q.constituent.kind == "binder")
@@ -135,7 +135,7 @@ def works_quantities_check(zone, ctx) -> CheckResult:
     v = wc.zone_volume(zone, p, ctx.rules)
     if v.reason:
         return not_assessed("WORKS-QTY", title, zone.id, "zone", (WORKS,),
-                            f"{zone.works}: {v.reason} for zone {zone.id} in dossier.yaml")
+                            f"{zone.works} in zone {zone.id}: {v.reason}")
     steps = [_volume_step(zone, v)]
     masses: dict[str, dict] = {"binder_mass": {}, "sand_mass": {}, "water_mass": {},
                                "admixture_mass": {}, "bags": {}}

@@ -148,7 +148,8 @@ def zone_volume(zone, project, rules) -> ZoneVolume:
     where = f"dossier.yaml {zone.id}"
     if zone.works == "repointing":
         unit = project.masonry_units.get(zone.units) if zone.units else None
-        missing = [n for n, v in (("area", zone.area), ("joint_width", zone.joint_width),
+        missing = [n for n, v in ((f"{where}.area", zone.area),
+                                  (f"{where}.joint_width", zone.joint_width),
                                   ("the unit's length", unit and unit.length),
                                   ("the unit's height", unit and unit.height)) if not v]
         if missing:
@@ -165,7 +166,8 @@ def zone_volume(zone, project, rules) -> ZoneVolume:
                   ("d", "joint depth", depth.value, "mm", 1e-3, depth.source))
         return ZoneVolume(net, wastage, wk.with_wastage(net, wastage.value), L, inputs)
     if zone.works == "render":
-        missing = [n for n, v in (("area", zone.area), ("coats", zone.coats)) if not v]
+        missing = [n for n, v in ((f"{where}.area", zone.area), (f"{where}.coats", zone.coats))
+                   if not v]
         if missing:
             return ZoneVolume(0, wastage, 0, reason="give " + ", ".join(missing))
         net = wk.render_volume(zone.area, zone.coats)
@@ -174,7 +176,7 @@ def zone_volume(zone, project, rules) -> ZoneVolume:
             for i, t in enumerate(zone.coats))
         return ZoneVolume(net, wastage, wk.with_wastage(net, wastage.value), None, inputs)
     if not zone.masonry_volume:
-        return ZoneVolume(0, wastage, 0, reason="give masonry_volume")
+        return ZoneVolume(0, wastage, 0, reason=f"give {where}.masonry_volume")
     frac = (Sourced(zone.mortar_fraction, f"{where}.mortar_fraction") if zone.mortar_fraction
             else rule_si(rules, "bedding_mortar_fraction", "dimensionless"))
     net = wk.bedding_volume(zone.masonry_volume, frac.value)

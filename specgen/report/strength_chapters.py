@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from specgen.checks.result import key_days
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import anchor, num
+from specgen.report.fmt import UNIT_SPACE, anchor, num
 from specgen.report.wording import plain, reader
 
 TERMS = {"early_fraction": ("early (fast-stage) fraction", ""),
@@ -31,6 +31,7 @@ def strength(env) -> dict:
     mixes = [_mix(env, m, rules) for m in p.mixes.values() if r.value(m.id, "mean_strength")]
     site = next((c for c in r.checks if c.code == "STR-SITE" and c.steps), None)
     energy = next((i for i in site.steps[0].inputs if i.symbol == "E"), None) if site else None
+    held = next((c for c in r.checks if c.code == "STR-SITE"), None)   # not assessed: why
     return {"mixes": mixes, "has_data": bool(mixes),
             "warning": next((n for n in (site.notes if site else ()) if "must be measured" in n),
                             ""),
@@ -38,6 +39,8 @@ def strength(env) -> dict:
             "method": METHOD_NAMES.get((r.value(site.subject, "equivalent_age") or {}).get(
                 "method", ""), "") if site else "",
             "site": plain(p.site_temperature.source) if p.site_temperature else "",
+            "no_site": "" if site else reader(held.message).rstrip(".") if held else
+            "this revision gives neither a site temperature nor a load strength",
             "limit": f"{rules['strength.extrapolation_limit'].value:g}",
             "level": f"{100 * rules['strength.confidence_level'].value:g} %"}
 
@@ -156,7 +159,9 @@ def _predictions(pred: dict) -> list[dict]:
         for age, v in sorted(ages.items(), key=lambda kv: key_days(kv[0])):
             flags = [w for w, on in (("extrapolated", v["extrapolated"]),
                                      ("indicative: never decides", v["indicative"])) if on]
-            rows.append({"test": test, "age": age, "value": num(v["value"], 3),
+            # the age's number and unit kept on one line ("365 d" wrapped in a narrow column)
+            rows.append({"test": test, "age": age.replace(" ", UNIT_SPACE),
+                         "value": num(v["value"], 3),
                          "mean": f"{num(v['lower'], 3)} – {num(v['upper'], 3)}",
                          "set": f"{num(v['pred_lower'], 3)} – {num(v['pred_upper'], 3)}",
                          "flags": ", ".join(flags) or "—"})
@@ -176,8 +181,9 @@ def _narrowing(env, mix: str) -> list[dict]:
         for age in ("90 d", "365 d"):
             v = comp.get(age)
             if v and "pred_lower" in v:
-                rows.append({"rev": code, "age": age, "mean": f"{num(v['lower'], 3)} – "
-                             f"{num(v['upper'], 3)}", "ratio": num(v["upper"] / v["lower"], 3),
+                rows.append({"rev": code, "age": age.replace(" ", UNIT_SPACE),
+                             "mean": f"{num(v['lower'], 3)} – {num(v['upper'], 3)}",
+                             "ratio": num(v["upper"] / v["lower"], 3),
                              "flag": "indicative" if v["indicative"] else ""})
     return rows if len({r["rev"] for r in rows}) > 1 else []
 
