@@ -54,8 +54,9 @@ def pytest_collection_modifyitems(config, items):
                 item.add_marker(skip)
     late = {item.path for item in items if "demo_build" in item.fixturenames}
     items.sort(key=lambda item: item.path in late)   # stable: the order within a file stays
-    if any("demo_build" in item.fixturenames and not item.get_closest_marker("skip")
-           for item in items):
+    if not config.option.collectonly and any(
+            "demo_build" in item.fixturenames and not item.get_closest_marker("skip")
+            for item in items):
         _start_demo_build(config)
 
 
