@@ -41,11 +41,21 @@ def full_run(config) -> bool:
     return bool(config.getoption("--full") or os.environ.get("SPECGEN_FULL_TESTS"))
 
 
+# Fixtures that check or build the demo (seconds each); the module-scoped ``demo`` of a test
+# file is a checked copy of it.
+DEMO_FIXTURES = {"demo", "demo_copy", "demo_checked", "demo_build", "starter_build"}
+
+
 @pytest.hookimpl(trylast=True)   # after -m and -k have deselected
 def pytest_collection_modifyitems(config, items):
     """Skip the tests marked ``full`` unless asked; put the files that read the demo build
     last and start that build in the background, so the tests that need no demo build run
     beside it (on both workers) rather than wait for it."""
+    if os.environ.get("MUTANT_UNDER_TEST") not in (None, "", "stats"):
+        # a mutation run (tools/mutation.py) stops at the first failing test: the tests that
+        # check no copy of the demo go first, so a mutant one of them kills costs no demo
+        # check.  The same tests run, only their order changes.
+        items.sort(key=lambda item: bool(DEMO_FIXTURES & set(item.fixturenames)))
     if not full_run(config):
         skip = pytest.mark.skip(reason="long run: pytest --full (or SPECGEN_FULL_TESTS=1) "
                                 "runs it")

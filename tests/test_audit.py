@@ -304,3 +304,69 @@ def test_every_clause_number_names_an_existing_result(demo_copy):
             assert found is not None and found.status != "not_assessed", (zone.id, src)
             named.add(code)
     assert {"STR-MIN", "SPEC-ACCEPT", "MIX-YIELD", "SITE-GAUGE", "COMP-COLOUR"} <= named
+
+
+def _unconfirmed(title, where, source, used_by):
+    return {"title": title, "where": where, "source": source, "used_by": used_by}
+
+
+def test_unverified_rule_on_hand_made_records():
+    """AUD-UNVERIFIED (unverified_rule) on two records written here: one finding per value,
+    its title (or, untitled, where it is), the first four of its checks in order and "…"
+    beyond them; never blocking.  Expected findings written out by hand."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.audit_record_checks import unverified_rule
+    from specgen.checks.result import Finding
+    records = [
+        _unconfirmed("Frost limit", "content/rules/durability.yaml: frost", "from memory",
+                     {"E/Z1", "A/Z2", "D/Z1", "B/Z1", "C/Z3"}),
+        _unconfirmed("", "content/reference/x.yaml: k", "handbook", {"B/M1", "A/M1"})]
+    ctx = NS(results=NS(unconfirmed=lambda: records))
+    fix = ("confirm the value against the printed source and cite its clause or table, or "
+           "override it in dossier.yaml with a justification.")
+    title = "Values still to confirm against their source"
+    assert unverified_rule(ctx) == [
+        Finding("AUD-UNVERIFIED", title,
+                "Frost limit (from memory) is used by A/Z2, B/Z1, C/Z3, D/Z1 … and is still "
+                "to be confirmed against its source.",
+                ("page Values to confirm", "calculation sheet A/Z2", "calculation sheet B/Z1",
+                 "calculation sheet C/Z3", "calculation sheet D/Z1"),
+                fix, subject="Frost limit", blocking=False),
+        Finding("AUD-UNVERIFIED", title,
+                "content/reference/x.yaml: k (handbook) is used by A/M1, B/M1 and is still to "
+                "be confirmed against its source.",
+                ("page Values to confirm", "calculation sheet A/M1", "calculation sheet B/M1"),
+                fix, subject="content/reference/x.yaml: k", blocking=False)]
+    ctx = NS(results=NS(unconfirmed=lambda: [
+        _unconfirmed("T", "w", "s", {"A", "B", "C", "D"})]))
+    assert unverified_rule(ctx)[0].message == ("T (s) is used by A, B, C, D and is still to be "
+                                               "confirmed against its source.")   # 4: no "…"
+
+
+@pytest.mark.parametrize("status, purpose, names, who, fields", [
+    ("draft", "for_construction", (None, None, None), None, None),
+    ("issued", "for_approval", (None, None, None), None, None),
+    ("issued", "for_construction", ("P", "C", "A"), None, None),
+    ("issued", "for_construction", ("P", None, "A"), "checked", "checked"),
+    ("issued", "for_construction", (None, "C", None), "prepared or approved",
+     "prepared, approved"),
+])
+def test_signoff_rule_only_for_an_issued_construction_revision(status, purpose, names, who,
+                                                               fields):
+    """AUD-SIGNOFF (signoff_rule): only a revision issued for construction must name who
+    prepared, checked and approved it; the finding names each one missing (by hand)."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.audit_record_checks import signoff_rule
+    from specgen.checks.result import Finding
+    sign = NS(**dict(zip(("prepared", "checked", "approved"), names)))
+    rev = NS(status=status, purpose=purpose, sign_off=sign, code="R7")
+    got = signoff_rule(NS(project=NS(revision=rev)))
+    if who is None:
+        assert got == []
+        return
+    assert got == [Finding(
+        "AUD-SIGNOFF", "Issued revision without its sign-off",
+        f"revision R7 is issued but names no one who {who} it.",
+        ("dossier.yaml: revision.sign_off", "cover: sign-off"),
+        f"give name, role, organisation and date under revision.sign_off for {fields}.",
+        subject="R7")]

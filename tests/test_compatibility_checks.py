@@ -385,3 +385,145 @@ def test_a_check_declares_its_matrix_column_where_it_is_registered():
     finally:
         registry.unregister("COMP-TEST-X")
     assert chapter._columns("compatibility") == before
+
+
+# WTA salt-load table as 'Salzbelastung von Mauerwerk' gives it (references.json
+# salt_summary_wta), lower edges of medium and high in mass %
+WTA = "WTA salt-load table for assessing masonry (low / medium / high)"
+WTA_EDGES = {"chloride": "classes < 0.2 low, 0.2–0.5 medium, ≥ 0.5 high",
+             "nitrate": "classes < 0.1 low, 0.1–0.3 medium, ≥ 0.3 high",
+             "sulfate": "classes < 0.5 low, 0.5–1.5 medium, ≥ 1.5 high"}
+WTA_NOTE = (f"table: {WTA} — the WTA salt-load table as a public summary gives it (attributed "
+            "there to WTA-Merkblatt 2-6-99/D); published salt-load tables disagree, this one "
+            "is the project's choice")
+
+
+def _salt_inputs(step):
+    return [(i.symbol, i.name, pytest.approx(i.value, abs=1e-12), i.unit, i.source)
+            for i in step.inputs]
+
+
+def test_salt_result_whole_by_the_wta_table(demo_checked):
+    """COMP-SALT of demo Z2/M1 whole: units GS1 (chloride 0.35, nitrate 0.04, sulfate 0.82 %)
+    and historic mortar HM2 (0.41, 0.05, 1.65 %) of demo materials.yaml classed by hand on the
+    WTA edges: GS1 medium, low, medium; HM2 medium, low, high — high sulfate: attention."""
+    from specgen.checks.result import Basis
+    c = by_check(demo_checked[1])[("COMP-SALT", "Z2/M1")]
+    assert (c.title, c.status, c.value, c.unit) == (
+        "Salt load of the fabric", "attention", "high", "")
+    assert c.message == "high salt load (sulfate) (table wta_2_9)"
+    assert c.basis == (Basis("reference", "salt_summary_wta", WTA),)
+    assert c.notes == (
+        "high sulfate: its effect on the binder of M1 is assessed by DUR-ETT/Z2/M1 "
+        "(ettringite) and DUR-TSA/Z2/M1 (thaumasite)", WTA_NOTE)
+    units, mortar = c.steps
+    assert (units.title, units.formula, units.substituted, units.result, units.unit,
+            units.symbol) == (f"Salt load of units GS1 ({WTA})",
+                              r"\text{class} = \text{band of the table containing the content}",
+                              "chloride: medium, nitrate: low, sulfate: medium", 1.0, "",
+                              "class")
+    assert _salt_inputs(units) == [
+        ("chloride", "chloride, units GS1 → medium", 0.35, "mass %",
+         "materials.yaml GS1.salts; " + WTA_EDGES["chloride"]),
+        ("nitrate", "nitrate, units GS1 → low", 0.04, "mass %",
+         "materials.yaml GS1.salts; " + WTA_EDGES["nitrate"]),
+        ("sulfate", "sulfate, units GS1 → medium", 0.82, "mass %",
+         "materials.yaml GS1.salts; " + WTA_EDGES["sulfate"])]
+    assert (mortar.title, mortar.substituted, mortar.result) == (
+        f"Salt load of historic mortar HM2 ({WTA})",
+        "chloride: medium, nitrate: low, sulfate: high", 2.0)
+    assert [(q.name, q.value, q.unit) for q in c.quantities] == [("salt_load_class", {
+        "table": "wta_2_9", "GS1": {"chloride": "medium", "nitrate": "low", "sulfate": "medium"},
+        "HM2": {"chloride": "medium", "nitrate": "low", "sulfate": "high"}}, "")]
+    z3 = by_check(demo_checked[1])[("COMP-SALT", "Z3/M3")]
+    # GS1 as above, HM1 (0.08, 0.01, 0.42 %): low, low, low; medium at most: pass
+    assert (z3.status, z3.value, z3.message) == (
+        "pass", "medium", "no class above medium (table wta_2_9)")
+    assert z3.steps[1].substituted == "chloride: low, nitrate: low, sulfate: low"
+    assert z3.steps[1].result == 0.0
+
+
+def test_salt_on_a_class_edge_and_an_ion_not_measured(demo_copy):
+    """GS1's chloride set to 0.5 % (the WTA lower edge of high: at the edge is high) and its
+    nitrate left out (not classified, said so): Z2/M1 then has high chloride and sulfate."""
+    edit(demo_copy / "materials.yaml",
+         'salts: {chloride: "0.35 %", nitrate: "0.04 %", sulfate: "0.82 %"',
+         'salts: {chloride: "0.5 %", sulfate: "0.82 %"')
+    c = by_check(check(demo_copy)[1])[("COMP-SALT", "Z2/M1")]
+    assert (c.status, c.value, c.message) == (
+        "attention", "high", "high salt load (chloride, sulfate) (table wta_2_9)")
+    assert c.notes == (
+        "nitrate of units GS1 not measured: not classified",
+        "high sulfate: its effect on the binder of M1 is assessed by DUR-ETT/Z2/M1 "
+        "(ettringite) and DUR-TSA/Z2/M1 (thaumasite)", WTA_NOTE)
+    assert (c.steps[0].substituted, c.steps[0].result) == ("chloride: high, sulfate: medium",
+                                                           2.0)
+    assert [i.symbol for i in c.steps[0].inputs] == ["chloride", "sulfate"]
+    assert c.quantities[0].value["GS1"] == {"chloride": "high", "sulfate": "medium"}
+
+
+def test_colour_result_whole(demo_checked):
+    """COMP-COLOUR of demo Z1/M1 whole: two panel readings of M1 (trial panel TP1 names sample
+    M1, demo specification.yaml) and three of HM1 (lab/colour.csv rows 2-6); means, sample
+    SDs and spreads (largest ΔE00 of a reading from its mean) from numpy and colour-science;
+    ΔL' and S_L by hand (Sharma, Wu & Dalal 2005, eqs. 9 and 17); threshold 2 (project rule)."""
+    from specgen.checks.result import Basis
+    r = demo_checked[1]
+    c = by_check(r)[("COMP-COLOUR", "Z1/M1")]
+    panel = np.array([[63.9, 3.1, 12.6], [64.4, 3.3, 13.1]])
+    hist = np.array([[61.8, 3.9, 14.2], [62.5, 4.1, 14.9], [61.2, 3.7, 13.8]])
+    pm, hm = panel.mean(axis=0), hist.mean(axis=0)
+    de = float(colour.delta_E(pm, hm, method="CIE 2000"))                     # colour-science
+    spread = [max(float(colour.delta_E(x, m, method="CIE 2000")) for x in arr)
+              for arr, m in ((panel, pm), (hist, hm))]
+    assert (c.title, c.status, c.value, c.unit) == (
+        "Colour of the trial panel against the historic mortar", "attention",
+        pytest.approx(de, abs=5e-4), "")
+    assert c.message == (f"ΔE00 {de:.2f} between the mean of 2 panel reading(s) and 3 of HM1 "
+                         "(threshold 2, project rule); trial panels judged dry decide")
+    assert c.notes == (
+        "no standard acceptance threshold exists for repointing; ΔE00 ≈ 1 is just noticeable "
+        "and 2–3.5 visible at a glance (common practice); trial panels judged dry, by eye, in "
+        "daylight, decide", "readings under illuminant D65, 10° observer",
+        "fewer than three readings of a sample: the spread is poorly known")
+    assert [b.kind for b in c.basis] == ["reference", "project requirement"]
+    assert c.basis[0] == Basis("reference", "sharma2005", "CIEDE2000, eqs. 1–22")
+    assert (c.limit.compare, c.limit.high, c.limit.text, c.limit.rule) == (
+        "<=", 2.0, "ΔE00 ≤ 2", "compatibility.colour_delta_e_max")
+    mp, mh, diff = c.steps
+    assert (mp.title, mp.formula, mp.symbol) == (
+        "Mean colour of the panel of M1: trial panel TP1 (sample M1) (n = 2)",
+        r"\bar L^* = \frac{1}{n}\sum L^*_i \ldots", "spread ΔE00")
+    assert mp.result == pytest.approx(spread[0], abs=1e-4)
+    assert mh.result == pytest.approx(spread[1], abs=1e-4)
+    sd = np.std(panel, axis=0, ddof=1)
+    assert [(i.symbol, i.name, i.value, i.unit, i.source) for i in mp.inputs] == [
+        ("Lab", "reading 1", "63.9, 3.1, 12.6", "", "lab/colour.csv row 5 (D65/10°)"),
+        ("Lab", "reading 2", "64.4, 3.3, 13.1", "", "lab/colour.csv row 6 (D65/10°)"),
+        ("s", "sample SD of L*, a*, b*", ", ".join(f"{v:.2f}" for v in sd), "",
+         "computed (n − 1)")]
+    assert mp.substituted == r"(\bar L^*, \bar a^*, \bar b^*) = (64.15, 3.20, 12.85)"
+    assert mh.title == "Mean colour of historic mortar HM1 (n = 3)"
+    assert mh.substituted == r"(\bar L^*, \bar a^*, \bar b^*) = (61.83, 3.90, 14.30)"
+    lbar = (pm[0] + hm[0]) / 2
+    s_l = 1 + 0.015 * (lbar - 50) ** 2 / math.sqrt(20 + (lbar - 50) ** 2)
+    assert (diff.title, diff.symbol, diff.result) == (
+        "CIEDE2000 difference of the means", "ΔE00", pytest.approx(de, abs=1e-4))
+    assert [(i.symbol, i.name, i.source) for i in diff.inputs] == [
+        ("ΔL'", "lightness difference", "computed"), ("ΔC'", "chroma difference", "computed"),
+        ("ΔH'", "hue difference", "computed"),
+        ("S_L, S_C, S_H", "weighting functions", "computed"),
+        ("R_T", "rotation term", "computed")]
+    assert diff.inputs[0].value == pytest.approx(hm[0] - pm[0], abs=1e-4)
+    assert diff.inputs[3].value.startswith(f"{s_l:.4f}, ")
+    q = r.quantities["Z1/M1"]["delta_e_2000"].value
+    assert q["panel_mean"] == pytest.approx(list(pm), abs=1e-3)
+    assert q["historic_mean"] == pytest.approx(list(hm), abs=1e-3)
+    assert (q["panel_spread"], q["historic_spread"]) == pytest.approx(spread, abs=1e-4)
+    assert (q["illuminant"], q["observer"]) == ("D65", "10")
+    # display swatches: colour-science's Lab -> XYZ (D65) -> sRGB, 8 bits
+    for side, mean in (("panel", pm), ("historic", hm)):
+        rgb = colour.XYZ_to_sRGB(colour.Lab_to_XYZ(mean, colour.CCS_ILLUMINANTS[
+            "CIE 1931 2 Degree Standard Observer"]["D65"]))
+        want = "#" + "".join(f"{round(float(v) * 255):02x}" for v in rgb)
+        assert q[f"{side}_swatch"] == {"hex": want, "clipped": False}

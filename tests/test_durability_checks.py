@@ -8,6 +8,7 @@ import pytest
 
 from specgen.build import check
 from tests.conftest import shared_scope
+from specgen.checks.result import Basis, Input, Quantity, Step
 from tests.helpers import by_check, edit
 
 
@@ -606,3 +607,149 @@ def test_american_practice_names_the_c270_location(demo_copy, monkeypatch):
     assert c.basis[0].ref == "astmc270"
     assert by_check(r)[("DUR-EXPOSE", "Z2")].message.startswith(
         "exterior, above grade, parapet wall: type N recommended (alternatives S)")
+
+
+def _dur_tests_of(zone, quantities, mixes):
+    """DUR-TESTS run on a hand-made context: ``quantities`` {subject: {name: value}} as the
+    earlier checks would have recorded them, ``mixes`` {mix id: [binder ids]}."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.durability_tests_checks import tests_check
+    from specgen.checks.result import Quantity
+    from specgen.checks.run import Context
+    project = NS(mixes={m: NS(binders=[NS(binder=b) for b in bs]) for m, bs in mixes.items()})
+    ctx = Context(project, None)
+    for sid, named in quantities.items():
+        for name, value in named.items():
+            ctx.record(sid, Quantity(name, value, "", name))
+    return tests_check(zone, ctx)
+
+
+# the basis DUR-TESTS gives: the project's own requirement that works wait for the tests
+DUR_TESTS_BASIS = (Basis("project requirement", note="tests asked for by the durability "
+                         "checks; the works in the zone wait for their results"),)
+
+
+def test_dur_tests_gathers_the_candidates_once_each_when_none_is_chosen():
+    """With no mix chosen (no ``selected_mix`` for the zone) DUR-TESTS gathers the tests asked
+    on every candidate, the zone, each pair and each binder, a test asked on a binder that two
+    candidates share listed once.  Expected rows written out by hand from the inputs below."""
+    from types import SimpleNamespace as NS
+    frost = {"test": "freeze–thaw resistance", "method": "EN 12371", "why": "w", "check": "F"}
+    sound = {"test": "soundness", "method": "EN 459-2", "why": "w", "check": "S"}
+    setting = {"test": "setting time", "method": "EN 196-3", "why": "w", "check": "T"}
+    c = _dur_tests_of(NS(id="Z9", candidates=["MA", "MB"]),
+                      {"Z9/MA": {"tests_asked": [frost]}, "B1": {"tests_asked": [sound]},
+                       "MB": {"tests_asked": [setting]}},
+                      {"MA": ["B1"], "MB": ["B1"]})
+    rows = [dict(frost, check="F/Z9/MA"), dict(sound, check="S/B1"),
+            dict(setting, check="T/MB")]
+    assert (c.code, c.title, c.subject, c.subject_kind, c.status, c.value, c.unit) == (
+        "DUR-TESTS", "Durability tests to commission", "Z9", "zone", "hold", 3, "")
+    assert c.message == ("hold: before the works in zone Z9, the results of "
+                         "freeze–thaw resistance (F/Z9/MA); soundness (S/B1); "
+                         "setting time (T/MB)")
+    assert c.quantities == (Quantity("durability_tests", rows, "", "tests"),)
+    assert c.basis == DUR_TESTS_BASIS
+    assert c.steps == (Step(
+        "Tests asked for the candidates (none chosen yet)",
+        r"n = \text{tests asked by the checks}",
+        (Input("T1", "freeze–thaw resistance", "EN 12371", "", "F/Z9/MA"),
+         Input("T2", "soundness", "EN 459-2", "", "S/B1"),
+         Input("T3", "setting time", "EN 196-3", "", "T/MB")), "n = 3", 3.0, "", "n"),)
+
+
+def test_dur_tests_passes_when_nothing_is_outstanding():
+    """No check asked for a test on the chosen mix (MA; MB's test is not read): DUR-TESTS
+    passes with an empty list; the words written out by hand."""
+    from types import SimpleNamespace as NS
+    asked = {"test": "soundness", "method": "EN 459-2", "why": "w", "check": "S"}
+    c = _dur_tests_of(NS(id="Z9", candidates=["MA", "MB"]),
+                      {"Z9": {"selected_mix": "MA"}, "MB": {"tests_asked": [asked]}},
+                      {"MA": ["B1"], "MB": ["B2"]})
+    assert (c.code, c.title, c.subject, c.subject_kind, c.status, c.value, c.unit) == (
+        "DUR-TESTS", "Durability tests to commission", "Z9", "zone", "pass", 0, "")
+    assert c.message == "no durability test outstanding for chosen mix MA"
+    assert c.quantities == (Quantity("durability_tests", [], "", "tests"),)
+    assert (c.steps, c.basis) == ((), DUR_TESTS_BASIS)
+    c = _dur_tests_of(NS(id="Z9", candidates=["MA"]), {}, {"MA": []})
+    assert (c.status, c.value, c.message) == (
+        "pass", 0, "no durability test outstanding for the candidates (none chosen yet)")
+
+
+NML = "Northstead Materials Laboratory, NML-4460"          # demo mixes.yaml setting source
+LIME_RULE = "(EN 459-1, physical requirements, setting times)"  # content/rules/durability.yaml
+
+
+def test_setting_results_whole(demo):
+    """SITE-SET of demo M1 (natural cement, 45/110 min, tested at the card's 0.2 % retarder,
+    workable life 30 min measured) and M3 (NHL, 4.5 h = 270 min and 16 h = 960 min, against
+    EN 459-1's > 60 min and ≤ 40 h, from memory; workable life the NHL default of 2 h,
+    common practice), whole; the minutes by hand."""
+    r = by_check(demo)
+    m1 = r[("SITE-SET", "M1")]
+    assert (m1.title, m1.subject_kind, m1.status, m1.value, m1.unit, m1.notes) == (
+        "Setting time and workable life", "mix", "pass", 45.0, "min", ())
+    assert m1.message == ("initial 45 min, final 110 min (Vicat, EN 196-3); natural cement: no "
+                          "current standard limit; the set governs the gaugings; tested at "
+                          "the card's retarder dose (0.2 %)")
+    src = f"mixes.yaml M1.setting (Vicat, EN 196-3; {NML})"
+    assert m1.steps == (Step(
+        "Setting times and the workable life the gaugings use",
+        r"t_i < t_f,\quad t_w = \min(t_{w,0},\ t_i)",
+        (Input("t_i", "initial set", 45.0, "min", src),
+         Input("t_f", "final set", 110.0, "min", src),
+         Input("t_w,0", "workable life measured (EN 1015-9), else the binder default", 30.0,
+               "min", "mixes.yaml M1.workable_life"),
+         Input("t_w", "workable life used for the gaugings", 30.0, "min",
+               f"mixes.yaml M1.workable_life, EN 1015-9 ({NML})")),
+        r"t_i = 45,\ t_f = 110,\ t_w = 30\ \mathrm{min}", 30.0, "min", "t_w"),)
+    assert m1.basis == (Basis("reference", "en196_3", "setting times (Vicat)"),)
+    m3 = r[("SITE-SET", "M3")]
+    assert (m3.status, m3.value, m3.message) == (
+        "pass", 270.0, "initial 270 min, final 960 min (Vicat, EN 459-2); natural hydraulic "
+        "lime (NHL): initial ≥ 60 min, final ≤ 40 h")
+    nhl_life = ("rule works.workable_life_nhl (common practice — natural hydraulic lime mortars "
+                "stay workable for about 2-4 h if kept from drying (set is slow); measure it on "
+                "the trial mix)")
+    assert m3.notes == ("the workable life is not measured (EN 1015-9): the gaugings rest on "
+                        + nhl_life,)
+    lime = "a building lime with hydraulic properties (NHL, HL, FL)"
+    assert [(i.symbol, i.name, i.value, i.unit, i.source) for i in m3.steps[0].inputs[2:]] == [
+        ("t_i,min", "shortest initial setting time of " + lime, 60.0, "min",
+         "rule durability.setting_initial_min_lime " + LIME_RULE),
+        ("t_f,max", "longest final setting time of " + lime, 40.0, "h",
+         "rule durability.setting_final_max_lime " + LIME_RULE),
+        ("t_w,0", "workable life measured (EN 1015-9), else the binder default", 120.0, "min",
+         "default workable life of the binder family (common practice)"),
+        ("t_w", "workable life used for the gaugings", 120.0, "min", nhl_life)]
+    assert m3.steps[0].substituted == r"t_i = 270,\ t_f = 960,\ t_w = 120\ \mathrm{min}"
+    assert [(b.ref, b.note) for b in m3.basis] == [
+        ("en196_3", ""), ("en459", "from memory: initial set more than 1 h"),
+        ("en459", "from memory: final set at most 40 h")]
+
+
+def test_setting_outside_the_lime_limits_fails(demo_copy):
+    """M3 (NHL) set at 50 min and 41 h (2460 min): below EN 459-1's 60 min and above its
+    40 h (from memory, the rule's values): fail, both named (by hand)."""
+    edit(demo_copy / "mixes.yaml", 'setting: {initial: "4.5 h", final: "16 h"',
+         'setting: {initial: "50 min", final: "41 h"')
+    c = by_check(check(demo_copy)[1])[("SITE-SET", "M3")]
+    assert (c.status, c.value, c.message) == (
+        "fail", 50.0, "initial 50 min, final 2460 min (Vicat, EN 459-2); natural hydraulic "
+        "lime (NHL): initial < 60 min, final > 40 h")
+
+
+@pytest.mark.parametrize("initial, status, words", [
+    ("40 min", "fail", "Portland cement: initial set < 45 min"),
+    ("45 min", "pass", "Portland cement: initial set ≥ 45 min")])
+def test_setting_of_a_portland_binder(demo_copy, initial, status, words):
+    """NC1 declared a Portland cement: M1's initial set against EN 197-1's 45 min, the lowest
+    of the strength classes (from memory, content/rules/durability.yaml); on the limit passes."""
+    edit(demo_copy / "materials.yaml", "type: natural_cement", "type: portland")
+    edit(demo_copy / "mixes.yaml", 'setting: {initial: "45 min"',
+         f'setting: {{initial: "{initial}"')
+    c = by_check(check(demo_copy)[1])[("SITE-SET", "M1")]
+    assert (c.status, c.message) == (status, f"initial {initial}, final 110 min (Vicat, "
+                                     f"EN 196-3); {words}; tested at the card's retarder dose "
+                                     "(0.2 %)")
+    assert c.steps[0].inputs[2].symbol == "t_i,min"

@@ -463,3 +463,102 @@ def test_a_sample_id_given_twice_is_its_register_problem_only(demo_copy):
         "  - id: NC1-F2", 85) + 1
     assert f"samples.yaml, line {line}: samples[7].id: sample id 'NC1-F2' is given twice" in text
     assert "analyses.yaml" not in text, text
+
+
+def _curing_of(regimes, binders, issued=False):
+    """EVD-CURE (curing_check) on a hand-made project: mix MX of ``binders`` {id: type, or
+    None for a binder the project lacks}, one strength row per entry of ``regimes``
+    (specimen P1, P2, ...; "" for a row that states none)."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.evidence_checks import curing_check
+    from specgen.checks.run import Context
+    project = NS(
+        strength=[NS(mix="MX", specimen=f"P{i + 1}", curing_regime=r)
+                  for i, r in enumerate(regimes)] + [NS(mix="MY", specimen="Q1",
+                                                        curing_regime="air_65")],
+        binders={b: NS(type=t) for b, t in binders.items() if t is not None},
+        revision=NS(status="issued" if issued else "draft"))
+    mix = NS(id="MX", binders=[NS(binder=b) for b in binders])
+    return curing_check(mix, Context(project, None))
+
+
+# content/data/curing_regimes.yaml: the families each regime suits, titles and sources
+SEALED = ["natural_cement", "nhl", "hl", "portland"]
+WATER = ["natural_cement", "portland"]
+WATER_SOURCE = ("EN 196-1, curing of the standard mortar prisms (a binder test, suited to "
+                "hydraulic binders only)")
+
+
+def test_curing_regimes_that_do_not_suit_every_family_fail_with_each_named():
+    """Sealed curing starves the air lime, water curing both binders (the suits lists of
+    content/data/curing_regimes.yaml, common practice): fail, each regime with the families
+    it does not suit; the families sorted by key (air_lime, nhl); B9 is not in the project."""
+    c = _curing_of(["water_20", "sealed_20", "sealed_20"],
+                   {"B1": "nhl", "B2": "air_lime", "B9": None})
+    assert (c.code, c.subject, c.subject_kind, c.status, c.value, c.unit, c.notes) == (
+        "EVD-CURE", "MX", "mix", "fail", None, "", ())
+    assert c.title == "Curing regime of the strength prisms against the binder"
+    assert c.message == (
+        "sealed in film at 20 °C until test does not suit air lime; EN 196-1 style does not "
+        "suit air lime, natural hydraulic lime (NHL): the prisms' strength is not that of "
+        "the mortar in the wall — recast and cure them in a regime for the binder")
+    assert [(q.name, q.unit, q.label) for q in c.quantities] == [
+        ("prism_curing", "", "curing regimes of the strength prisms")]
+    assert [(q.name, q.value) for q in c.quantities] == [("prism_curing", {
+        "families": ["air_lime", "nhl"],
+        "regimes": {"sealed_20": {"specimens": 2, "suits": SEALED,
+                                  "title": "sealed in film at 20 °C until test"},
+                    "water_20": {"specimens": 1, "suits": WATER,
+                                 "title": "EN 196-1 style: 1 d in the mould in moist air, "
+                                          "then under water at 20 °C until test"}}})]
+    sealed, water = c.steps
+    assert (sealed.title, sealed.formula, sealed.result, sealed.unit, sealed.symbol) == (
+        "Regime sealed_20 of 2 prisms of MX", r"f \in S(r)", 0.0, "", "")
+    assert sealed.substituted == (
+        r"\text{air lime, natural hydraulic lime (NHL)} \notin \{\text{natural cement, "
+        r"natural hydraulic lime (NHL), hydraulic lime (HL), Portland cement}\}")
+    assert [(i.symbol, i.name, i.value, i.unit, i.source) for i in water.inputs] == [
+        ("r", "curing regime", "water_20", "", "lab/strength.csv or the prism series of "
+         "samples.yaml (1 prisms): EN 196-1 style: 1 d in the mould in moist air, then under "
+         "water at 20 °C until test"),
+        ("f", "binder families of the mix", "air lime, natural hydraulic lime (NHL)", "",
+         "materials.yaml binder type, through mixes.yaml"),
+        ("S(r)", "binder families the regime suits", "natural cement, Portland cement", "",
+         WATER_SOURCE + " (common practice)")]
+    assert {b.ref or b.kind for b in c.basis} == {"en1015_11", "common practice"}
+
+
+def test_curing_regime_pass_attention_hold_and_nothing_to_judge():
+    """Sealed curing suits an NHL (common practice): pass; a row stating no regime makes it
+    attention (counted, the first named); a regime recalled from memory holds the verdict in
+    an issued revision; no rows: no result; no regime stated: not assessed (by hand)."""
+    c = _curing_of(["sealed_20", "sealed_20"], {"B1": "nhl"})
+    assert (c.status, c.message, c.notes) == (
+        "pass", "sealed in film at 20 °C until test suits natural hydraulic lime (NHL)", ())
+    step = c.steps[0]
+    assert (step.result, step.substituted) == (1.0, r"\text{natural hydraulic lime (NHL)} \in "
+                                               r"\{\text{natural cement, natural hydraulic "
+                                               r"lime (NHL), hydraulic lime (HL), Portland "
+                                               r"cement}\}")
+    c = _curing_of(["water_20", "sealed_20"], {"B1": "natural_cement"})   # both suit it
+    assert (c.status, c.message) == (
+        "pass", "sealed in film at 20 °C until test, EN 196-1 style suits natural cement")
+    c = _curing_of(["sealed_20", "", "water_20", ""], {"B1": "natural_cement"})
+    assert (c.status, c.message) == (
+        "attention", "2 of 4 prisms state no curing regime (first: P2); the others suit "
+        "natural cement")
+    assert c.quantities[0].value["regimes"]["water_20"]["specimens"] == 1
+    assert _curing_of(["sealed_20"], {"B1": "nhl"}, issued=True).status == "pass"  # practice
+    c = _curing_of(["en1015_11_hydraulic"], {"B1": "nhl"}, issued=True)
+    assert (c.status, c.notes) == ("hold", (
+        "held: the verdict (pass) rests on the curing regime “EN 1015-11, cement and "
+        "hydraulic mortars”, still to be confirmed against the printed source (or "
+        "overridden with a justification) before this revision is issued",))
+    assert _curing_of([], {"B1": "nhl"}) == []
+    c = _curing_of(["", ""], {"B1": "nhl"})
+    assert (c.code, c.title, c.subject, c.subject_kind) == (
+        "EVD-CURE", "Curing regime of the strength prisms against the binder", "MX", "mix")
+    assert (c.status, c.message, c.steps, c.quantities) == (
+        "not_assessed", "not assessed: no curing regime is stated for the 2 prisms of MX (the "
+        "prism series in samples.yaml, or lab/strength.csv)", (), ())
+    assert {b.ref or b.kind for b in c.basis} == {"en1015_11", "common practice"}

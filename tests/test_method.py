@@ -123,3 +123,93 @@ def test_bay_never_larger_than_the_zone():
     # a 2 m² zone is one bay
     assert bay_area(10 / 3.6e6, 6 * 3600, 0.018 * 50, 50) == pytest.approx(60 / 18, rel=1e-12)
     assert bay_area(10 / 3.6e6, 6 * 3600, 0.018 * 2, 2) == 2
+
+
+WORKS_RULE = ("rule works.joint_depth_ratio (common practice — joints are raked out to about "
+              "twice their width, to sound mortar)")             # content/rules/works.yaml
+MIN_RULE = ("rule method.rake_out_min (common practice — a thinner repair has too little body "
+            "to key and is lost at the first frost; rake to at least about 15 mm, deeper only "
+            "to sound mortar)")                                   # content/rules/method.yaml
+MAX_RULE = ("rule method.rake_out_max_ratio (common practice — raking much deeper than two to "
+            "three joint widths loosens the units and takes more original mortar than the "
+            "repair needs)")                                      # content/rules/method.yaml
+DAY_RULE = ("rule works.working_day (common practice — about 5-7 h of placing in a site day "
+            "after setting up, breaks and cleaning down)")        # content/rules/works.yaml
+
+
+def test_rake_out_result_whole_with_the_depth_given(demo_checked):
+    """MTH-RAKE of demo Z1 whole: j = 10 mm, d = max(2 × 10, 15) = 20 mm by the rule, 20 mm
+    given (dossier.yaml), deepest 3 × 10 = 30 mm (rules: common practice); by hand."""
+    c = by_check(demo_checked[1])[("MTH-RAKE", "Z1")]
+    assert (c.title, c.subject_kind, c.status, c.value, c.unit) == (
+        "Rake-out depth of the joints", "zone", "pass", 20.0, "mm")
+    assert (c.limit.compare, c.limit.low, c.limit.high, c.limit.unit, c.limit.text) == (
+        "within", 20.0, 30.0, "mm", "20–30 mm")
+    rule, given = c.steps
+    assert (rule.title, rule.formula, rule.result, rule.unit, rule.symbol) == (
+        "Rake-out depth by the rule", r"d = \max(r \cdot j,\ d_{\min})", 20.0, "mm", "d")
+    assert [(i.symbol, i.name, i.value, i.unit, i.source) for i in rule.inputs] == [
+        ("j", "joint width", 10.0, "mm", "dossier.yaml Z1.joint_width"),
+        ("r", "depth as a multiple of the width", 2.0, "", WORKS_RULE),
+        ("d_min", "shallowest rake-out", 15.0, "mm", MIN_RULE)]
+    assert (given.title, given.formula, given.substituted, given.result, given.unit,
+            given.symbol) == ("The project's depth against the rule",
+                              r"d \le d_{given} \le r_{\max} \cdot j", r"20 \le 20 \le 30",
+                              20.0, "mm", "d_given")
+    assert [(i.symbol, i.name, i.value, i.unit, i.source) for i in given.inputs] == [
+        ("d_given", "depth given for the zone", 20.0, "mm", "dossier.yaml Z1.joint_depth"),
+        ("r_max", "deepest rake-out as a multiple of the width", 3.0, "", MAX_RULE)]
+    assert [(q.name, q.value, q.unit) for q in c.quantities] == [
+        ("rake_out_depth", {"depth": 20.0, "rule": 20.0, "given": 20.0, "deepest": 30.0},
+         "mm")]
+
+
+@pytest.mark.parametrize("depth, substituted", [("12 mm", r"20 > 12 \le 30"),
+                                                ("35 mm", r"20 \le 35 > 30")])
+def test_rake_out_depth_outside_the_rule_shown_on_the_sheet(demo_copy, depth, substituted):
+    """The sheet shows which side of the rule a depth given breaks (by hand: 20–30 mm)."""
+    edit(demo_copy / "dossier.yaml", 'joint_depth: "20 mm"', f'joint_depth: "{depth}"')
+    c = by_check(check(demo_copy)[1])[("MTH-RAKE", "Z1")]
+    assert c.steps[1].substituted == substituted
+    assert c.quantities[0].value["given"] == float(depth.split()[0])
+
+
+def test_rake_out_without_a_depth_given_has_no_limit(demo_copy):
+    """A 6 mm joint with no depth given: 15 mm by the rule (2 × 6 = 12 < 15), deepest 18 mm."""
+    edit(demo_copy / "dossier.yaml", 'joint_width: "10 mm"\n    joint_depth: "20 mm"\n',
+         'joint_width: "6 mm"\n')
+    c = by_check(check(demo_copy)[1])[("MTH-RAKE", "Z1")]
+    assert (c.limit, len(c.steps), c.steps[0].substituted) == (
+        None, 1, r"d = \max(2 \cdot 6,\ 15)")
+    assert c.quantities[0].value == {"depth": 15.0, "rule": 15.0, "given": None,
+                                     "deepest": 18.0}
+
+
+def test_bay_result_whole_and_the_default_placing_rate(demo_copy):
+    """MTH-BAY of demo Z2 whole (25 L/h × 6 h = 150 L a day; 12 + 8 mm coats = 20 L/m²;
+    150 × 85 / 1700 = 7.5 m², by hand); Z1 without its placing rate takes the works rule's
+    10 L/h (common practice): 60 L a day over 741.18 L / 240 m² = 19.43 m², by hand."""
+    z2 = by_check(check(demo_copy)[1])[("MTH-BAY", "Z2")]
+    assert (z2.title, z2.subject_kind, z2.status, z2.unit) == (
+        "Bay size of a day's work", "zone", "info", "m²")
+    assert z2.message == "bays of about 7.5 m² a crew-day (150 L a day at 20 L per m² of face)"
+    step = z2.steps[0]
+    assert (step.title, step.result, step.unit, step.symbol) == (
+        "Face area one crew fills in a day", 7.5, "m²", "A_bay")
+    assert step.substituted == (r"A_{bay} = \min(150\ \mathrm{L} \times 85 / 1700\ \mathrm{L},"
+                                r"\ 85) = 7.5")
+    assert [(i.symbol, i.name, i.value, i.unit, i.source) for i in step.inputs] == [
+        ("q", "placing rate", 25.0, "L/h", "dossier.yaml Z2.placing_rate"),
+        ("T", "placing hours per day", 6.0, "h", DAY_RULE),
+        ("V", "mortar volume before wastage", pytest.approx(1.7, abs=1e-12), "m³",
+         "WORKS-QTY/Z2"),
+        ("A", "face area of the zone", 85.0, "m²", "dossier.yaml Z2.area")]
+    assert [(q.name, q.value, q.unit) for q in z2.quantities] == [
+        ("bay_area", {"area": 7.5, "per_m2_l": 20.0, "per_day_l": 150.0, "zone_area": 85.0},
+         "m²")]
+    edit(demo_copy / "dossier.yaml", '    placing_rate: "8 L/h"\n', "")
+    z1 = by_check(check(demo_copy)[1])[("MTH-BAY", "Z1")]
+    assert z1.value == pytest.approx(60 * 240 / 741.18, abs=0.01)
+    assert (z1.steps[0].inputs[0].value, z1.steps[0].inputs[0].source) == (
+        10.0, "rule works.placing_rate (common practice — one operative pointing or bedding; "
+              "confirm on the trial panel)")

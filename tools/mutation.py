@@ -64,7 +64,7 @@ CHECK_TESTS_BY_MODULE = {
     "hydration_checks": [T + "firing_phases_hydration_checks.py", T + "check_values.py"],
     "method_checks": [T + "method.py"],
     "phases_checks": [T + "firing_phases_hydration_checks.py", T + "binder_estimates.py"],
-    "salt_checks": [T + "compatibility_checks.py"],
+    "salt_checks": [T + "compatibility_checks.py", T + "durability_checks.py"],
     "setting_checks": [T + "durability_checks.py"],
     "soundness_checks": [T + "durability_checks.py"],
     "specification_checks": [T + "specification.py", T + "check_values.py"],
@@ -96,13 +96,70 @@ def _toml_list(items):
     return "[" + ", ".join(json.dumps(i) for i in items) + "]"
 
 
-def tests_for(scope: str, modules: list[str] = (), tests: list[str] = ()) -> list[str]:
+def names_read(module: str, root: Path = REPO) -> set[str]:
+    """What a test must name to read the results of check module ``module``: the check codes
+    it registers (``register("CODE"``, ``audit_rule("CODE"``) and the quantity names it
+    declares (``declare("name"``), plus its top-level functions called or imported by name
+    (for a test that calls a helper directly), as regular expressions; with them the codes of
+    the check modules that import it (a ``*_common`` module registers nothing: those stand
+    for it)."""
+    import ast
+    import re
+    src = (root / "specgen" / "checks" / f"{module}.py").read_text("utf-8")
+    pattern = r'(?:register|audit_rule|declare)\(\s*"([A-Za-z0-9_-]+)"'
+    names = {re.escape(n) for n in re.findall(pattern, src)}
+    # a function is read when a test calls it (``name(``) or imports it, not when a word of
+    # the same spelling ("table") stands in a comment
+    names |= {rf"\b{n.name}\s*\(|import[^\n]*\b{n.name}\b" for n in ast.parse(src).body
+              if isinstance(n, ast.FunctionDef) and not n.name.startswith("_")}
+    for other in sorted((root / "specgen" / "checks").glob("*_checks.py")):
+        text = other.read_text("utf-8")
+        if f"specgen.checks.{module} import" in text or f"import {module}" in text:
+            names |= {re.escape(n) for n in re.findall(pattern, text)}
+    return names
+
+
+def tests_naming(files: list[str], names: set[str], root: Path = REPO) -> list[str]:
+    """The test functions of ``files`` (node ids ``file::test``) whose text, decorators
+    included, names one of ``names``: the tests that read a module's checks.  A file where
+    none does is kept whole (its tests may read the checks through a helper).  ``names``
+    are regular expressions (``names_read``)."""
+    import ast
+    import re
+    out = []
+    for f in files:
+        text = (root / f).read_text("utf-8")
+        lines = text.split("\n")
+        defs = [n for n in ast.parse(text).body if isinstance(n, ast.FunctionDef)]
+
+        def body(node):
+            first = min([node.lineno] + [d.lineno for d in node.decorator_list])
+            return "\n".join(lines[first - 1:node.end_lineno])
+        # a helper of the file that names them (``_curing_of`` calling the check) counts for
+        # the tests that call it
+        wanted = list(names) + [rf"\b{n.name}\s*\(" for n in defs
+                                if not n.name.startswith("test_")
+                                and any(re.search(x, body(n)) for x in names)]
+        picked = [f"{f}::{n.name}" for n in defs if n.name.startswith("test_")
+                  and any(re.search(x, body(n)) for x in wanted)]
+        out += picked or [f]
+    return out
+
+
+def tests_for(scope: str, modules: list[str] = (), tests: list[str] = (),
+              narrow: bool = True) -> list[str]:
     """The tests a run selects: ``tests`` when given; for check modules that are all mapped,
-    the union of their files in CHECK_TESTS_BY_MODULE; otherwise the scope's whole list."""
+    the tests of their files in CHECK_TESTS_BY_MODULE that name one of the modules' check
+    codes, quantities or functions (``narrow``; the whole files without it); otherwise the
+    scope's whole list."""
     if tests:
         return list(tests)
     if scope == "checks" and modules and all(m in CHECK_TESTS_BY_MODULE for m in modules):
-        return sorted({t for m in modules for t in CHECK_TESTS_BY_MODULE[m]})
+        files = sorted({t for m in modules for t in CHECK_TESTS_BY_MODULE[m]})
+        if not narrow:
+            return files
+        names = set().union(*(names_read(m) for m in modules))
+        return tests_naming(files, names)
     return list(SCOPES[scope]["tests"])
 
 

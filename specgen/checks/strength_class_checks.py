@@ -14,8 +14,9 @@ from specgen.science import strength_classes as scl
 C270 = Basis("reference", "astmc270", "property specification, minimum 28-d compressive strength")
 EN998 = Basis("reference", "en998_2", "compressive strength classes M1 … M20 on the mean at 28 d "
               "(tested to EN 1015-11)", read_in="ziegel_moertel")
-MORTAR_CLASSES = {"astm_c270": ("ASTM C270", "type", C270),
-                  "en998_2": ("EN 998-2", "class", EN998)}
+# standard, its word for one class and for several, basis
+MORTAR_CLASSES = {"astm_c270": ("ASTM C270", "type", "types", C270),
+                  "en998_2": ("EN 998-2", "class", "classes", EN998)}
 declare("strength_classes", "", "mortar class met by the 28-d mean by the practice's "
         "classification (EN 998-2 or ASTM C270), descriptive: {standard, table, classes}")
 
@@ -26,7 +27,7 @@ def class_check(mix, ctx):
     from specgen import practice
     s, title = _comp(ctx, mix.id), "Strength class (descriptive)"
     key = practice.resolve(ctx.project.dossier).mortar_classes
-    standard, word, basis = MORTAR_CLASSES[key]
+    standard, word, words, basis = MORTAR_CLASSES[key]
     g28 = _group_at(s, 28 * DAY)
     if g28 is None:
         return not_assessed("STR-CLASS", title, mix.id, "no compressive results at 28 d, the "
@@ -35,10 +36,11 @@ def class_check(mix, ctx):
     m = g28.summary.mean
     cmp = scl.strongest_minimum(m, scl.classes_from_table(table), standard=standard,
                                 source=table["source"])
-    text = (f"28-d mean {m / MPA:.3g} MPa: {standard} {word} "
-            f"{', '.join(cmp.matches) or 'below the lowest ' + word} (descriptive: the mean of "
+    met = (f"{standard} {word} {', '.join(cmp.matches)}" if cmp.matches
+           else f"below the lowest {standard} {word}")
+    text = (f"28-d mean {m / MPA:.3g} MPa: {met} (descriptive: the mean of "
             "the laboratory prisms, not a declared or characteristic value)")
-    step = Step(f"28-d mean against the {standard} {word}s", r"\bar{f}_{28} \ge f_{min}",
+    step = Step(f"28-d mean against the {standard} {words}", r"\bar{f}_{28} \ge f_{min}",
                 (Input("f̄28", "28-d mean compressive strength", round(m / MPA, 4), "MPa",
                        "STR-AGG"),),
                 r"\bar{f}_{28} = " + f"{m / MPA:.3f}", round(m / MPA, 4), "MPa", "f̄28")
