@@ -10,9 +10,10 @@ to disk) and a plain WeasyPrint render of the same print HTML, in sequence, and
 log–log slope of time against results), with the share of the 200-mix ``check`` spent in the
 strength inference (the prior-informed fit, its bands and posterior summaries: CPU seconds
 inside ``specgen.science.strength_inference``) and the ratio of ``check`` to ``check`` without
-it (the target: within 2×), and (f) once, the full build (site and PDF) of
-the 200-mix project in a fresh process, with its time and the peak resident memory of
-its largest process.  Medians of ``runs`` repetitions.
+it (the target: within 2×), and the CPU seconds in the least-squares model comparison
+(``strength_models.fit_all``), the other fit made once per series, and (f) once, the full
+build (site and PDF) of the 200-mix project in a fresh process, with its time and the peak
+resident memory of its largest process.  Medians of ``runs`` repetitions.
 
 Beside the wall-clock times it prints the CPU time (user + system, this process and its
 children: the PDF workers and the site process) of (b) and (c), so the re-issue ratio can be
@@ -213,34 +214,39 @@ def bench_xlsx(demo: Path, work: Path, runs: int) -> None:
 _INFERENCE_ENTRIES = ("fit", "bands", "interval", "components", "posterior_summary", "falls")
 
 
-def _inference_share(project: Path) -> tuple[float, float]:
-    """(CPU s of one ``check`` of ``project``, CPU s of it inside the strength inference): the
-    inference's public entry points are timed while one check runs (nested calls counted once)."""
+def _inference_share(project: Path) -> tuple[float, float, float]:
+    """(CPU s of one ``check`` of ``project``, CPU s of it inside the strength inference, CPU s
+    inside the least-squares model comparison): the inference's public entry points and
+    ``strength_models.fit_all`` are timed while one check runs (nested calls counted once).
+    The two are the floor of a large project's check: one fit of each per series."""
     from specgen.build import check
     from specgen.science import strength_inference as si
-    spent, depth, saved = [0.0], [0], {k: getattr(si, k) for k in _INFERENCE_ENTRIES}
+    from specgen.science import strength_models as sm
+    spent, depth = [0.0, 0.0], [0, 0]
+    saved = [(si, k, getattr(si, k), 0) for k in _INFERENCE_ENTRIES] + [
+        (sm, "fit_all", sm.fit_all, 1)]
 
-    def timed(fn):
+    def timed(fn, i):
         def run(*a, **kw):
-            depth[0] += 1
+            depth[i] += 1
             t = time.process_time()
             try:
                 return fn(*a, **kw)
             finally:
-                depth[0] -= 1
-                if depth[0] == 0:
-                    spent[0] += time.process_time() - t
+                depth[i] -= 1
+                if depth[i] == 0:
+                    spent[i] += time.process_time() - t
         return run
     try:
-        for k, fn in saved.items():
-            setattr(si, k, timed(fn))
+        for mod, k, fn, i in saved:
+            setattr(mod, k, timed(fn, i))
         t0 = time.process_time()
         check(project)
         total = time.process_time() - t0
     finally:
-        for k, fn in saved.items():
-            setattr(si, k, fn)
-    return total, spent[0]
+        for mod, k, fn, _ in saved:
+            setattr(mod, k, fn)
+    return total, spent[0], spent[1]
 
 
 def _reuse_heard():
@@ -325,6 +331,8 @@ def _print_figures(fig: dict) -> None:
         print(f"(e) check, {n:3d} mixes / {s:5d} results  {t:7.3f} s")
     print(f"(e) of which strength inference      {share[1]:7.3f} CPU s of {share[0]:.3f} CPU s; check"
           f" / check without it = {share[0] / max(share[0] - share[1], 1e-9):.2f} (target: <= 2)")
+    print(f"(e) of which model comparison fits   {share[2]:7.3f} CPU s (least squares, three laws "
+          f"per series); the rest of check {share[0] - share[1] - share[2]:.3f} CPU s")
     if f:
         print(f"(f) build, 200 mixes (site + PDF)   {f[0]:7.1f} s, peak memory {f[1]:6.0f} MiB")
     print(f"ratio (b)/(d) = {b / d:.2f}   ratio (c)/(b) = {c_wall / b:.2f} "

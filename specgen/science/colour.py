@@ -160,8 +160,13 @@ class Swatch:
 
 def lab_to_srgb(lab: Sequence[float]) -> Swatch:
     """CIELAB (D65) → gamma-encoded sRGB for a swatch; out-of-gamut colours are clipped."""
-    lin = _XYZ_TO_SRGB @ np.array(lab_to_xyz(lab))
-    clipped = bool(np.any(lin < -1e-6) or np.any(lin > 1.0 + 1e-6))
+    xyz = np.array(lab_to_xyz(lab))
+    lin = _XYZ_TO_SRGB @ xyz
+    # IEC 61966-2-1 states the matrix to four decimals: each coefficient may be off by half a
+    # unit of the fourth, so a linear component is known to 0.5e-4·(|X| + |Y| + |Z|) (the white
+    # itself gives a green of 1.000076, inside that bound).  Beyond it a colour is clipped.
+    tol = 0.5e-4 * float(np.abs(xyz).sum())
+    clipped = bool(np.any(lin < -tol) or np.any(lin > 1.0 + tol))
     lin = np.clip(lin, 0.0, 1.0)
     enc = np.where(lin <= 0.0031308, 12.92 * lin, 1.055 * lin ** (1 / 2.4) - 0.055)
     rgb = tuple(float(v) for v in enc)

@@ -275,3 +275,26 @@ def test_swatch_clipped_above_one_only():
     assert ref[0] > 1 and 0 < ref[1] < 1 and 0 < ref[2] < 1
     assert sw.clipped
     assert sw.rgb == pytest.approx((1.0, ref[1], ref[2]), abs=2e-4)
+
+
+def test_swatch_of_the_reference_white_is_not_clipped():
+    # CIE 15: L* = 100, a* = b* = 0 is the D65 white; IEC 61966-2-1 gives its matrix to four
+    # decimals, so the white's linear green comes out 1.000076 (colour-science, which uses the
+    # same matrix, gives the same); each coefficient is known to ±0.5e-4, so a component is
+    # known to 0.5e-4 × (X + Y + Z) = 0.5e-4 × 3.0393 = 1.52e-4 (hand derivation): in gamut.
+    ref = colour.XYZ_to_RGB(np.array(lab_to_xyz((100.0, 0.0, 0.0))), "sRGB",
+                            apply_cctf_encoding=False)
+    assert 1.0 < ref[1] < 1.0 + 1.52e-4                       # the rounding, as colour-science sees it
+    sw = lab_to_srgb((100.0, 0.0, 0.0))
+    assert not sw.clipped and sw.hex == "#ffffff"
+    assert sw.rgb == pytest.approx((1.0, 1.0, 1.0), abs=1e-4)
+
+
+def test_swatch_just_beyond_the_matrix_rounding_is_clipped():
+    # a white nudged to green (a* = −0.1): colour-science gives a linear green of 1.00065,
+    # four times the 1.52e-4 the matrix's rounding allows (derivation above): out of gamut
+    ref = colour.XYZ_to_RGB(np.array(lab_to_xyz((100.0, -0.1, 0.0))), "sRGB",
+                            apply_cctf_encoding=False)
+    assert ref[1] > 1.0 + 4 * 1.52e-4
+    sw = lab_to_srgb((100.0, -0.1, 0.0))
+    assert sw.clipped and sw.rgb[1] == pytest.approx(1.0, abs=1e-12)      # clipped to 1

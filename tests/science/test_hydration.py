@@ -139,3 +139,187 @@ def test_density_set_must_be_complete():
         reaction_balance(BELITE_HYDRATION, AW, {k: v for k, v in BENTZ.items() if k != "CH"})
     with pytest.raises(ChemistryInputError, match="mass fraction"):
         water_for_full_hydration({"C2S": 1.5}, {})
+
+
+# --- every field of a balance, the refusals whole, and the edges of Powers' model -----------
+
+def _pt(formula):
+    # molar mass in kg/mol from periodictable (reference library; its own atomic weights)
+    return periodictable.formula(formula).mass / 1000.0
+
+
+def test_every_field_of_the_belite_balance_against_periodictable():
+    # volumes per mole of reaction (m³/mol) = n·M/ρ, M from periodictable, ρ the Bentz set
+    # (signed: reactants negative); relative = |V|/V(C2S); densities as given
+    m = {"C2S": _pt("Ca2SiO4"), "H": _pt("H2O"), "C1.7SH4": _pt("(CaO)1.7(SiO2)(H2O)4"),
+         "CH": _pt("Ca(OH)2")}
+    v = {"C2S": -m["C2S"] / 3280.0, "H": -4.3 * m["H"] / 997.1,
+         "C1.7SH4": m["C1.7SH4"] / 2110.0, "CH": 0.3 * m["CH"] / 2240.0}
+    bal = reaction_balance(BELITE_HYDRATION, AW, BENTZ)
+    assert bal.reaction == "C2S + 4.3 H -> C1.7-S-H4 + 0.3 CH"
+    assert bal.volumes == pytest.approx(v, rel=1e-4)
+    assert bal.relative == pytest.approx({k: abs(x) / -v["C2S"] for k, x in v.items()}, rel=1e-4)
+    v_in, v_out = -v["C2S"] - v["H"], v["C1.7SH4"] + v["CH"]
+    assert bal.chemical_shrinkage == pytest.approx((v_in - v_out) / v_in, rel=1e-4)
+    assert bal.solid_volume_increase == pytest.approx((v_out + v["C2S"]) / -v["C2S"], rel=1e-4)
+    assert bal.product_volume_per_kg == pytest.approx(v_out / m["C2S"], rel=1e-4)
+    assert bal.densities == {"C2S": 3280.0, "H": 997.1, "C1.7SH4": 2110.0, "CH": 2240.0}
+
+
+def test_pozzolanic_balance_per_kg_of_its_first_reactant():
+    # the reference phase is the first reactant, 1.7 CH: per kg of lime, water
+    # 2.3·M(H2O)/(1.7·M(CH)) = 2.3 × 18.015/(1.7 × 74.093) = 0.3290 kg/kg; lime consumed −1 kg/kg;
+    # solids 1.7 CH + S in, C-S-H out (water is not a solid)
+    m_ch, m_s, m_h = _pt("Ca(OH)2"), _pt("SiO2"), _pt("H2O")
+    m_csh = _pt("(CaO)1.7(SiO2)(H2O)4")
+    bal = reaction_balance(POZZOLANIC, AW, BENTZ)
+    assert bal.water_per_kg == pytest.approx(2.3 * m_h / (1.7 * m_ch), rel=1e-4)
+    assert bal.water_per_kg == pytest.approx(0.3290, abs=1e-4)
+    assert bal.ch_per_kg == pytest.approx(-1.0, rel=1e-12)
+    solid_in = 1.7 * m_ch / 2240.0 + m_s / 2200.0
+    solid_out = m_csh / 2110.0
+    v_in = solid_in + 2.3 * m_h / 997.1
+    assert bal.solid_volume_increase == pytest.approx((solid_out - solid_in) / solid_in, rel=1e-4)
+    assert bal.chemical_shrinkage == pytest.approx((v_in - solid_out) / v_in, rel=1e-4)
+    assert bal.product_volume_per_kg == pytest.approx(solid_out / (1.7 * m_ch), rel=1e-4)
+    assert bal.relative["CH"] == pytest.approx(1.0, rel=1e-12)
+
+
+def test_density_switch_changes_only_the_csh_density():
+    # the C-S-H density of a sensitivity case replaces that of the set, the others kept: the
+    # case at Bentz's own 2110 kg/m³ is the Bentz balance; at 2000 kg/m³ the C-S-H volume is
+    # M/2000 (periodictable), the rest as in the Bentz set
+    cases = csh_density_sensitivity(BELITE_HYDRATION, AW, BENTZ, [2000.0, 2110.0])
+    assert [c.csh_density for c in cases] == [2000.0, 2110.0]
+    v_c2s, v_h = _pt("Ca2SiO4") / 3280.0, 4.3 * _pt("H2O") / 997.1
+    v_ch = 0.3 * _pt("Ca(OH)2") / 2240.0
+    for case, rho in zip(cases, (2000.0, 2110.0)):
+        v_out = _pt("(CaO)1.7(SiO2)(H2O)4") / rho + v_ch
+        assert case.chemical_shrinkage == pytest.approx((v_c2s + v_h - v_out) / (v_c2s + v_h),
+                                                        rel=1e-4)
+        assert case.solid_volume_increase == pytest.approx((v_out - v_c2s) / v_c2s, rel=1e-4)
+
+
+def test_unbalanced_reaction_names_the_elements_off():
+    # C2S + 4 H -> C1.7SH4 + 0.3 CH by hand: H 8 in, 8 + 0.6 out (−0.6); O 4 + 4 in,
+    # 7.7 + 0.6 out (−0.3); Ca 2 in, 1.7 + 0.3 out and Si 1 each side (balanced, not named)
+    import ast
+    wrong = Reaction("C2S + 4 H -> C1.7SH4 + 0.3 CH", (("C2S", 1.0), ("H", 4.0)),
+                     (("C1.7SH4", 1.0), ("CH", 0.3)))
+    with pytest.raises(ChemistryInputError) as err:
+        check_balanced(wrong, AW)
+    head = "reaction 'C2S + 4 H -> C1.7SH4 + 0.3 CH' does not balance: "
+    assert str(err.value).startswith(head)
+    assert ast.literal_eval(str(err.value)[len(head):]) == pytest.approx({"H": -0.6, "O": -0.3},
+                                                                         abs=1e-9)
+
+
+def test_unknown_species_is_refused_whole():
+    odd = Reaction("C3S + 3 H -> ...", (("C3S", 1.0), ("H", 3.0)), (("CH", 1.0),))
+    with pytest.raises(ChemistryInputError) as err:
+        check_balanced(odd, AW)
+    assert str(err.value) == "unknown species 'C3S': known are C2S, H, CH, C1.7SH4, S"
+
+
+@pytest.mark.parametrize("rho", [None, 0.0, -2240.0, float("nan"), float("inf")])
+def test_density_set_refusals_whole(rho):
+    dens = {k: v for k, v in BENTZ.items() if k != "CH"}
+    if rho is not None:
+        dens["CH"] = rho
+    with pytest.raises(ChemistryInputError) as err:
+        reaction_balance(BELITE_HYDRATION, AW, dens)
+    assert str(err.value) == "the density set needs a positive density for 'CH'"
+
+
+@pytest.mark.parametrize("fraction", [1.5, -0.1, float("nan")])
+def test_mass_fraction_refusal_whole(fraction):
+    with pytest.raises(ChemistryInputError) as err:
+        water_for_full_hydration({"C2S": fraction}, {})
+    assert str(err.value) == f"C2S must be a mass fraction 0-1, got {fraction!r}"
+
+
+def test_mass_fractions_at_the_edges_are_taken():
+    # 0 and 1 are mass fractions: pure C2S needs its whole water per kg, none needs none
+    bal = reaction_balance(BELITE_HYDRATION, AW, BENTZ)
+    w = 4.3 * _pt("H2O") / _pt("Ca2SiO4")                      # periodictable
+    assert water_for_full_hydration({"C2S": 1.0}, {"C2S": bal}) == pytest.approx(w, rel=1e-4)
+    assert water_for_full_hydration({"C2S": 0.0, "CH": 1.0}, {"C2S": bal}) == 0.0
+    # two reactive phases add: 0.6 C2S + 0.3 lime (pozzolanic, 0.3290 kg/kg by hand above)
+    poz = reaction_balance(POZZOLANIC, AW, BENTZ)
+    both = water_for_full_hydration({"C2S": 0.6, "CH": 0.3}, {"C2S": bal, "CH": poz})
+    assert both == pytest.approx(0.6 * w + 0.3 * 2.3 * _pt("H2O") / (1.7 * _pt("Ca(OH)2")),
+                                 rel=1e-4)
+
+
+@pytest.mark.parametrize("args, message", [
+    ((0.5, 1.2, 3150.0, 0.68e-3, 1000.0), "degree of hydration must lie in 0-1, got 1.2"),
+    ((0.5, -0.1, 3150.0, 0.68e-3, 1000.0), "degree of hydration must lie in 0-1, got -0.1"),
+    ((0.5, float("nan"), 3150.0, 0.68e-3, 1000.0), "degree of hydration must lie in 0-1, got nan"),
+    ((0.0, 0.5, 3150.0, 0.68e-3, 1000.0), "w/b must be a positive number, got 0.0"),
+    ((float("inf"), 0.5, 3150.0, 0.68e-3, 1000.0), "w/b must be a positive number, got inf"),
+    ((0.5, 0.5, -1.0, 0.68e-3, 1000.0), "binder density must be a positive number, got -1.0"),
+    ((0.5, 0.5, 3150.0, 0.0, 1000.0), "product volume must be a positive number, got 0.0"),
+    ((0.5, 0.5, 3150.0, 0.68e-3, 0.0), "water density must be a positive number, got 0.0"),
+])
+def test_powers_refusals_whole(args, message):
+    with pytest.raises(ChemistryInputError) as err:
+        powers(*args)
+    assert str(err.value) == message
+
+
+def test_powers_edges_by_hand():
+    # binder 2000 kg/m³ (v_b = 5e-4 m³/kg), products 1e-3 m³/kg: each kg reacted grows by
+    # 5e-4 m³; w/b 0.25 with water 1000 kg/m³ (v_w = 2.5e-4): space runs out at α = 0.5
+    at = powers(0.25, 0.5, 2000.0, 1e-3, 1000.0)
+    assert at == type(at)(0.0, 1.0, 0.5, False)         # on the limit: not beyond it
+    beyond = powers(0.25, 0.6, 2000.0, 1e-3, 1000.0)
+    assert beyond == type(at)(0.0, 1.0, 0.5, True)      # held at α = 0.5, flagged
+    # α = 0.25: gel 2.5e-4, capillary 5e-4 + 2.5e-4 − 0.75·5e-4 − 2.5e-4 = 1.25e-4;
+    # p = 1.25e-4/7.5e-4 = 1/6, X = 2.5e-4/3.75e-4 = 2/3
+    half = powers(0.25, 0.25, 2000.0, 1e-3, 1000.0)
+    assert (half.capillary_porosity, half.gel_space_ratio) == pytest.approx((1 / 6, 2 / 3),
+                                                                            rel=1e-12)
+    assert (half.max_degree, half.space_limited) == (0.5, False)
+    # α = 0: no gel; the capillary space is the water, p = 2.5e-4/7.5e-4 = 1/3, X = 0
+    none = powers(0.25, 0.0, 2000.0, 1e-3, 1000.0)
+    assert (none.capillary_porosity, none.gel_space_ratio) == pytest.approx((1 / 3, 0.0),
+                                                                            abs=1e-12)
+    # products taking no more room than the binder (growth 0, then −1e-4 m³/kg): never
+    # space-limited, max degree 1; α = 1 with v_p = 4e-4: capillary 5e-4 + 5e-4 − 4e-4 =
+    # 6e-4 of V0 = 1e-3 (w/b 0.5): p = 0.6, X = 4e-4/1e-3 = 0.4
+    flat = powers(0.5, 1.0, 2000.0, 5e-4, 1000.0)
+    assert (flat.max_degree, flat.space_limited) == (1.0, False)
+    assert flat.capillary_porosity == pytest.approx(0.5, rel=1e-12)
+    shrinking = powers(0.5, 1.0, 2000.0, 4e-4, 1000.0)
+    assert (shrinking.max_degree, shrinking.space_limited) == (1.0, False)
+    assert (shrinking.capillary_porosity, shrinking.gel_space_ratio) == pytest.approx(
+        (0.6, 0.4), rel=1e-12)
+    # plenty of water: v_w/growth = 1e-3/5e-4 = 2 is capped at a degree of 1
+    wet = powers(1.0, 1.0, 2000.0, 1e-3, 1000.0)
+    assert (wet.max_degree, wet.space_limited) == (1.0, False)
+    # α = 1: capillary 5e-4 + 1e-3 − 1e-3 = 5e-4 of 1.5e-3: p = 1/3, X = 1e-3/1.5e-3 = 2/3
+    assert (wet.capillary_porosity, wet.gel_space_ratio) == pytest.approx((1 / 3, 2 / 3),
+                                                                          rel=1e-12)
+
+
+def test_ratios_do_not_depend_on_the_density_unit():
+    # dimensional analysis: the densities in t/m³ (each / 1000; water 0.9971, under 1) give
+    # volumes 1000 times larger, and the same unit-free ratios
+    kg = reaction_balance(BELITE_HYDRATION, AW, BENTZ)
+    t = reaction_balance(BELITE_HYDRATION, AW, {k: v / 1000 for k, v in BENTZ.items()})
+    assert t.volumes == pytest.approx({k: 1000 * v for k, v in kg.volumes.items()}, rel=1e-12)
+    assert (t.chemical_shrinkage, t.solid_volume_increase) == pytest.approx(
+        (0.0958, 1.242), abs=0.001)                           # as in the Bentz test above
+    assert t.relative == pytest.approx(kg.relative, rel=1e-12)
+
+
+def test_a_reaction_consuming_no_water():
+    # the pozzolanic reaction run backwards (C-S-H taken apart into lime, silica and water,
+    # written here only to test the bookkeeping): no water is consumed, so the water per kg
+    # is 0; lime formed per kg of C-S-H = 1.7·M(CH)/M(C1.7SH4) (periodictable)
+    back = Reaction("C1.7-S-H4 -> 1.7 CH + S + 2.3 H", (("C1.7SH4", 1.0),),
+                    (("CH", 1.7), ("S", 1.0), ("H", 2.3)))
+    bal = reaction_balance(back, AW, BENTZ)
+    assert bal.water_per_kg == 0.0
+    assert bal.ch_per_kg == pytest.approx(1.7 * _pt("Ca(OH)2") / _pt("(CaO)1.7(SiO2)(H2O)4"),
+                                          rel=1e-4)

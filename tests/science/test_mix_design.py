@@ -1,4 +1,6 @@
 """Mix design: volume → mass proportions and the absolute-volume yield, checked by hand and pint."""
+import re
+
 import pytest
 from hypothesis import given
 from hypothesis import strategies as st
@@ -27,6 +29,7 @@ def test_hand_worked_absolute_volume_example():
     #    sum 0.259259 + 1.698113 + 0.56 = 2.517372 m³.
     assert y.absolute_volumes["B"] == pytest.approx(0.259259, abs=1e-6)
     assert y.absolute_volumes["S"] == pytest.approx(1.698113, abs=1e-6)
+    assert y.absolute_volumes["water"] == pytest.approx(0.56, rel=1e-12)
     assert y.solid_water_volume == pytest.approx(2.517372, abs=1e-6)
     # 4. Fresh volume with 5 % air: 2.517372 / (1 − 0.05) = 2.649866 m³.
     assert y.fresh_volume == pytest.approx(2.649866, abs=1e-6)
@@ -65,21 +68,99 @@ def test_litres_and_percent_against_pint():
     assert units.parse("0.2 %", "fraction") == pytest.approx(0.002)
 
 
+def _whole(words):
+    # the whole message, not a fragment of it
+    return f"^{re.escape(words)}$"
+
+
 @pytest.mark.parametrize("items, words", [
     ([SAND], "a mix needs at least one binder"),
-    ([Constituent("B", "binder", 0.0, 700.0, 2700.0), SAND], "greater than zero"),
-    ([Constituent("B", "binder", 1.0, 2800.0, 2700.0), SAND], "must be below the particle"),
+    ([], "a mix needs at least one binder"),
+    ([Constituent("B", "binder", 0.0, 700.0, 2700.0), SAND],
+     "B: parts and densities must be greater than zero"),
+    ([NHL, Constituent("S", "sand", 3.0, 0.0, 2650.0)],
+     "S: parts and densities must be greater than zero"),
+    ([NHL, Constituent("S", "sand", 3.0, -1500.0, -2650.0)],
+     "S: parts and densities must be greater than zero"),
+    ([NHL, Constituent("S", "sand", 3.0, 1500.0, 0.0)],
+     "S: parts and densities must be greater than zero"),
+    ([Constituent("B", "binder", 1.0, 2800.0, 2700.0), SAND],
+     "B: the loose bulk density (2800 kg/m³) must be below the particle density (2700)"),
+    # equal densities would mean a loose heap without voids: refused too
+    ([NHL, Constituent("S", "sand", 3.0, 2650.0, 2650.0)],
+     "S: the loose bulk density (2650 kg/m³) must be below the particle density (2650)"),
 ])
 def test_unusable_proportions_are_refused(items, words):
-    with pytest.raises(MixDesignError, match=words):
-        mass_proportions(items)
+    for fn in (mass_proportions, volume_ratio):
+        with pytest.raises(MixDesignError, match=_whole(words)):
+            fn(items)
+    with pytest.raises(MixDesignError, match=_whole(words)):
+        absolute_volume_yield(items, 0.8, 0.05, 1000.0)
 
 
-@pytest.mark.parametrize("wb, air, words", [
-    (0.0, 0.04, "water/binder ratio"), (0.8, 0.6, "air content"), (0.8, -0.01, "air content")])
-def test_unusable_water_or_air_is_refused(wb, air, words):
-    with pytest.raises(MixDesignError, match=words):
-        absolute_volume_yield([NHL, SAND], wb, air, 1000.0)
+@pytest.mark.parametrize("wb, air, rho_w, words", [
+    (0.0, 0.04, 1000.0, "the water/binder ratio must be greater than zero"),
+    (-0.5, 0.04, 1000.0, "the water/binder ratio must be greater than zero"),
+    (float("nan"), 0.04, 1000.0, "the water/binder ratio must be greater than zero"),
+    (0.8, 0.6, 1000.0, "the air content must lie between 0 and 50 %"),
+    (0.8, 0.5, 1000.0, "the air content must lie between 0 and 50 %"),
+    (0.8, -0.01, 1000.0, "the air content must lie between 0 and 50 %"),
+    (0.8, 0.04, 0.0, "the water density must be greater than zero"),
+    (0.8, 0.04, -998.2, "the water density must be greater than zero"),
+])
+def test_unusable_water_or_air_is_refused(wb, air, rho_w, words):
+    with pytest.raises(MixDesignError, match=_whole(words)):
+        absolute_volume_yield([NHL, SAND], wb, air, rho_w)
+
+
+def test_air_at_the_edges_of_its_range():
+    # no air: the fresh volume is the absolute volume, 2.517372 m³ (hand example above)
+    y = absolute_volume_yield([NHL, SAND], 0.8, 0.0, 1000.0)
+    assert y.fresh_volume == pytest.approx(2.517372, abs=1e-6)
+    assert y.admixtures == {} and set(y.per_m3) == {"B", "S", "water"}
+    # 49 % air, just inside the range: 2.517372 / 0.51 = 4.936024 m³
+    assert absolute_volume_yield([NHL, SAND], 0.8, 0.49, 1000.0).fresh_volume == \
+        pytest.approx(4.936024, abs=1e-6)
+
+
+def test_the_method_is_scale_free_in_tonnes():
+    # the absolute-volume method is linear in mass: densities in t/m³ (every density of the
+    # hand example / 1000, water 1.0 t/m³) give the same volumes and masses / 1000; a
+    # lightweight filler with densities below 1 t/m³ (bulk 0.3, particle 0.9) is a mix too
+    b = Constituent("B", "binder", 1.0, 0.7, 2.7)
+    s = Constituent("S", "sand", 3.0, 1.5, 2.65)
+    y = absolute_volume_yield([b, s], 0.8, 0.05, 1.0)
+    assert y.fresh_volume == pytest.approx(2.649866, abs=1e-6)
+    # without the retarder: (0.7 + 4.5 + 0.56) t / 2.649866 m³ = 2.173695 t/m³
+    assert y.fresh_density == pytest.approx(2.173695, abs=1e-6)
+    light = Constituent("P", "sand", 1.0, 0.3, 0.9)
+    # by hand: 0.7 t binder, 0.3 t filler, water 0.56 t; volumes 0.7/2.7 + 0.3/0.9 + 0.56/1
+    # = 0.259259 + 0.333333 + 0.56 = 1.152593 m³ (no air)
+    yl = absolute_volume_yield([b, light], 0.8, 0.0, 1.0)
+    assert yl.solid_water_volume == pytest.approx(1.152593, abs=1e-6)
+    assert mass_proportions([b, light]) == pytest.approx({"B": 1.0, "P": 0.3 / 0.7}, rel=1e-12)
+
+
+def test_two_binders_and_two_sands_by_hand():
+    # binders 1 part × 700 = 700 kg and 0.5 part × 1000 = 500 kg: Σ binder 1200 kg;
+    # sands 2 × 1500 = 3000 kg and 1 × 1400 = 1400 kg
+    items = [NHL, Constituent("L", "binder", 0.5, 1000.0, 2300.0), Constituent(
+        "S", "sand", 2.0, 1500.0, 2650.0), Constituent("F", "sand", 1.0, 1400.0, 2600.0)]
+    # per unit binder mass: 700/1200, 500/1200, 3000/1200, 1400/1200
+    assert mass_proportions(items) == pytest.approx(
+        {"B": 0.583333, "L": 0.416667, "S": 2.5, "F": 1.166667}, abs=1e-6)
+    # by loose volume: (2 + 1) sand parts / (1 + 0.5) binder parts = 2
+    assert volume_ratio(items) == pytest.approx(2.0, rel=1e-12)
+    # yield with w/b 0.5 (600 kg water), no air, water 1000 kg/m³: absolute volumes
+    # 700/2700 + 500/2300 + 3000/2650 + 1400/2600 + 0.6 = 0.259259 + 0.217391 + 1.132075
+    # + 0.538462 + 0.6 = 2.747187 m³; binder per m³ 1200 / 2.747187 = 436.81 kg
+    y = absolute_volume_yield(items, 0.5, 0.0, 1000.0)
+    assert y.water == pytest.approx(600.0, rel=1e-12)
+    assert y.solid_water_volume == pytest.approx(2.747187, abs=1e-6)
+    assert y.binder_mass_per_m3 == pytest.approx(436.81, abs=0.01)
+    assert y.loose_volume == pytest.approx(4.5, rel=1e-12)
+    # fresh density (1200 + 4400 + 600) / 2.747187 = 2256.85 kg/m³
+    assert y.fresh_density == pytest.approx(2256.85, abs=0.01)
 
 
 @given(st.floats(0.5, 6), st.floats(0.3, 1.2), st.floats(0.0, 0.2))

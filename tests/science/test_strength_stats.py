@@ -227,3 +227,144 @@ def test_grubbs_screen_no_outlier_too_few_and_all_equal_whole_results():
     equal = grubbs_screen([4.0e6] * 4)
     assert (equal.statistic, equal.message) == (0.0, "no outlier: G = 0.000 <= G_crit = 1.481")
     assert equal.critical == pytest.approx(_g_crit(4), rel=1e-9)
+
+
+# --- refusals whole, the messages of the plausibility screen, and every field of a result ---
+
+@pytest.mark.parametrize("bad, message", [
+    ([], "no strength results given"),
+    ([2e6, float("nan")], "strength results must be finite numbers (found NaN or inf)"),
+    ([2e6, float("inf")], "strength results must be finite numbers (found NaN or inf)"),
+    ([2e6, 0.0, 3e6, -1.5e6], "strength results must be greater than zero; found 0, -1.5e+06 Pa"),
+])
+def test_bad_results_are_refused_whole(bad, message):
+    for fn in (summarise, characteristic_value, grubbs_screen):
+        with pytest.raises(StrengthInputError) as err:
+            fn(bad)
+        assert str(err.value) == message
+
+
+@pytest.mark.parametrize("args, message", [
+    ((2.5, False), "the number of results must be a whole number >= 1; got 2.5"),
+    ((0, True), "the number of results must be a whole number >= 1; got 0"),
+    ((3, False, 0.0), "fractile must lie between 0 and 0.5; got 0.0"),
+    ((3, False, 0.5), "fractile must lie between 0 and 0.5; got 0.5"),
+    ((1, False), "a characteristic value with unknown variance needs at least 2 results "
+                 "(EN 1990 Table D1 starts at n = 3)"),
+])
+def test_kn_refusals_whole(args, message):
+    with pytest.raises(StrengthInputError) as err:
+        kn_factor(*args)
+    assert str(err.value) == message
+
+
+def test_kn_at_the_smallest_counts_and_another_fractile():
+    # n = 1, known variance: u(0.95)·sqrt(2) (scipy.stats.norm); n = 2, unknown:
+    # t(0.95, 1)·sqrt(1.5) = 6.3138 × 1.2247 = 7.733 (scipy.stats.t)
+    assert kn_factor(1, True) == pytest.approx(stats.norm.ppf(0.95) * math.sqrt(2), rel=1e-12)
+    assert kn_factor(2, False) == pytest.approx(stats.t.ppf(0.95, 1) * math.sqrt(1.5), rel=1e-12)
+    # the 10 % fractile: u(0.90) = 1.2816 and t(0.90, 4) = 1.5332 (scipy.stats)
+    assert kn_factor(5, True, 0.10) == pytest.approx(stats.norm.ppf(0.9) * math.sqrt(1.2),
+                                                     rel=1e-12)
+    assert kn_factor(5, False, 0.10) == pytest.approx(stats.t.ppf(0.9, 4) * math.sqrt(1.2),
+                                                      rel=1e-12)
+
+
+def test_kn_table_refusal_whole_and_its_known_row():
+    with pytest.raises(StrengthInputError) as err:
+        kn_from_table(2, KN, known_variance=False)
+    assert str(err.value) == "EN 1990 Table D1 gives no k_n for n = 2 (unknown variance)"
+    # the known-variance row of Table D1 starts at n = 1 (2.31): read as printed
+    i = KN["n"].index(1)
+    assert kn_from_table(1, KN, known_variance=True) == KN["vx_known"][i] == 2.31
+    # n = 3 on both rows as printed (Table D1: known 1.89, unknown 3.37)
+    assert kn_from_table(3, KN, known_variance=True) == 1.89
+
+
+def test_characteristic_value_every_field():
+    # 4.0, 4.5, 5.0 MPa, unknown variance (by hand above): mean 4.5, s = 0.5, k = 3.372
+    cv = characteristic_value([4.0e6, 4.5e6, 5.0e6])
+    k = stats.t.ppf(0.95, 2) * math.sqrt(4 / 3)                       # scipy.stats.t
+    assert (cv.mean, cv.s, cv.n, cv.variance, cv.fractile) == (4.5e6, 0.5e6, 3, "unknown", 0.05)
+    assert cv.k_n == pytest.approx(k, rel=1e-12)
+    assert cv.value == pytest.approx(4.5e6 - k * 0.5e6, rel=1e-12)
+    assert cv.basis == ("EN 1990 Annex D (D7.2), normal distribution, variance unknown: "
+                        "k_n = t(1-p, n-1)·sqrt(1+1/n)")
+    kv = characteristic_value([4.0e6, 4.5e6, 5.0e6], sigma=0.3e6, fractile=0.10)
+    ku = stats.norm.ppf(0.90) * math.sqrt(4 / 3)                      # scipy.stats.norm
+    assert (kv.s, kv.variance, kv.fractile) == (0.3e6, "known", 0.10)
+    assert kv.value == pytest.approx(4.5e6 - ku * 0.3e6, rel=1e-12)
+    assert kv.basis == ("EN 1990 Annex D (D7.2), normal distribution, variance known: "
+                        "k_n = u(1-p)·sqrt(1+1/n)")
+    # a known sigma of zero is allowed: the characteristic value is the mean
+    assert characteristic_value([4.0e6, 5.0e6], sigma=0.0).value == 4.5e6
+
+
+@pytest.mark.parametrize("sigma", [-0.1e6, float("nan"), float("inf")])
+def test_known_sigma_refused_whole(sigma):
+    with pytest.raises(StrengthInputError) as err:
+        characteristic_value([4.0e6, 4.5e6, 5.0e6], sigma=sigma)
+    assert str(err.value) == f"a known standard deviation must be finite and >= 0; got {sigma}"
+
+
+@pytest.mark.parametrize("args, message", [
+    ((2,), "Grubbs' test needs at least 3 values; got 2"),
+    ((5, 0.0), "alpha must lie between 0 and 1; got 0.0"),
+    ((5, 1.0), "alpha must lie between 0 and 1; got 1.0"),
+])
+def test_grubbs_critical_refusals_whole(args, message):
+    with pytest.raises(StrengthInputError) as err:
+        grubbs_critical(*args)
+    assert str(err.value) == message
+
+
+def test_grubbs_value_just_below_the_critical_value_is_kept():
+    # G > G_crit flags (G equal to G_crit, 1.1543 for n = 3, cannot be met exactly in floating
+    # point): 1.18, 1.18, 1.24 flags (1.1547, above); 1.18, 1.19, 1.24 by hand: mean 1.20333,
+    # deviations −0.02333, −0.01333, +0.03667, s = sqrt(0.0020667/2) = 0.032146,
+    # G = 0.03667/0.032146 = 1.1406 < 1.1543: kept
+    assert _g([1.18e6, 1.19e6, 1.24e6]) == pytest.approx(1.1406, abs=1e-4)
+    scr = grubbs_screen([1.18e6, 1.19e6, 1.24e6])
+    assert scr.flagged == () and scr.message == "no outlier: G = 1.141 <= G_crit = 1.154"
+
+
+def test_plausibility_messages_whole():
+    # each side of the range with its own wording, a non-number, and the range's own edges
+    msgs = check_plausible([5.0e6, 725e6, 0.05e6, float("nan"), 0.1e6, 60e6], 0.1e6, 60e6)
+    assert msgs == [
+        "result 2: 725 MPa is above the plausible 60 MPa; was it entered in psi or kPa under "
+        "an MPa heading?",
+        "result 3: 0.05 MPa is below the plausible 0.1 MPa; was it entered in the wrong unit "
+        "(e.g. GPa or N/m² scaled)?",
+        "result 4: nan is not a number"]
+    # in another unit: kPa labels and factors
+    assert check_plausible([90e3], 100e3, 60e6, "kPa", 1e3) == [
+        "result 1: 90 kPa is below the plausible 100 kPa; was it entered in the wrong unit "
+        "(e.g. GPa or N/m² scaled)?"]
+
+
+def test_small_positive_values_and_two_results():
+    # any positive number is a result here (plausibility is a separate screen): 0.5 Pa passes,
+    # and a refusal lists only the values at or below zero
+    assert summarise([0.5, 0.7]).n == 2
+    with pytest.raises(StrengthInputError) as err:
+        summarise([0.5, -1e6])
+    assert str(err.value) == "strength results must be greater than zero; found -1e+06 Pa"
+    # two results have a sample SD (Python's statistics module): 4 and 5 MPa -> 0.7071 MPa
+    s = summarise([4.0e6, 5.0e6])
+    assert s.sd == pytest.approx(statistics.stdev([4.0e6, 5.0e6]), rel=1e-12)
+    assert s.cv == pytest.approx(statistics.stdev([4.0e6, 5.0e6]) / 4.5e6, rel=1e-12)
+
+
+def test_kn_table_refusal_on_the_known_row():
+    # the known row of Table D1 starts at n = 1: a count under one has no entry
+    with pytest.raises(StrengthInputError) as err:
+        kn_from_table(0.5, KN, known_variance=True)
+    assert str(err.value) == "EN 1990 Table D1 gives no k_n for n = 0.5 (known variance)"
+
+
+def test_grubbs_defaults_to_five_percent():
+    # the default significance is 0.05 (two-sided): the closed form written out above
+    assert grubbs_critical(5) == pytest.approx(_g_crit(5, 0.05), rel=1e-9)
+    assert grubbs_screen([4.0e6, 9.0e6]).alpha == 0.05
+    assert grubbs_screen([4.0e6, 9.0e6], alpha=0.01).alpha == 0.01
