@@ -78,7 +78,7 @@ def handler_for(out: Path, state: State):
                                 file.read_text(encoding="utf-8"))
                 return self._send(text.encode("utf-8"), "text/html; charset=utf-8")
             # served from the resolved file: a bare address's assets live in the revision
-            return self._send(file.read_bytes(), self.guess_type(str(file)))
+            return self._send(*_asset(file, self.guess_type))
 
         def _resolve(self, path: str) -> Path | None:
             rel = path.lstrip("/")
@@ -105,6 +105,13 @@ def handler_for(out: Path, state: State):
             self.wfile.write(body)
 
     return Handler
+
+
+def _asset(file: Path, guess_type) -> tuple[bytes, str]:
+    """A file's bytes and type; a photograph not made yet is its placeholder, an SVG under
+    the image's name, and is sent as SVG (the browser shows its box, not a broken image)."""
+    data = file.read_bytes()
+    return data, "image/svg+xml" if data.startswith(b"<svg") else guess_type(str(file))
 
 
 def _page_of(current: Path, file: Path) -> str:

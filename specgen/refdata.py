@@ -124,11 +124,19 @@ class Tracked(dict):
         return (dict, (dict(self),))
 
 
+def content_yaml(path: Path):
+    """One of our own YAML files under ``content/`` (tables, rules, cautions), parsed with
+    libyaml when PyYAML has it (the same documents, about 12 times faster than PyYAML's pure
+    parser: some 0.25 s of CPU time each command spent reading them)."""
+    return yaml.load(path.read_text(encoding="utf-8"),
+                     Loader=getattr(yaml, "CSafeLoader", yaml.SafeLoader))
+
+
 @lru_cache(maxsize=None)
 def _load(name: str) -> RefTable:
     """Load ``content/data/<name>.yaml``; refuse a table without a ``source``."""
     path = DATA_DIR / f"{name}.yaml"
-    doc = yaml.safe_load(path.read_text(encoding="utf-8"))
+    doc = content_yaml(path)
     if not isinstance(doc, dict) or "source" not in doc or "data" not in doc:
         raise ValueError(f"{path}: a reference table needs 'source:' and 'data:' keys")
     extra = {k: v for k, v in doc.items() if k not in {"source", "data", "tag", "notes"}}

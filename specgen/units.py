@@ -8,13 +8,28 @@ pint is used only here, where user text is read and where values are shown.
 from __future__ import annotations
 
 import math
+import os
 import re
 from dataclasses import dataclass
 from functools import lru_cache
+from pathlib import Path
 
 import pint
 
-ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+
+def _registry() -> pint.UnitRegistry:
+    """pint's registry, its parsed definition files kept in the user's cache (pint's own
+    ``cache_folder``: reading them afresh is most of the registry's 0.3 s of CPU time, paid by
+    every command); a cache that cannot be written or read only costs that time."""
+    base = Path(os.environ.get("XDG_CACHE_HOME") or Path.home() / ".cache")
+    try:
+        return pint.UnitRegistry(autoconvert_offset_to_baseunit=True,
+                                 cache_folder=base / "specgen" / f"units-pint-{pint.__version__}")
+    except Exception:   # noqa: BLE001 — an unwritable or damaged cache: parse as without one
+        return pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+
+
+ureg = _registry()
 ureg.define("percent_ = 0.01 = pct")
 
 # a capillary coefficient in kg/(m²·s^0.5) times this is in kg/(m²·min^0.5), the unit of

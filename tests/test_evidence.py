@@ -519,7 +519,7 @@ def test_curing_regimes_that_do_not_suit_every_family_fail_with_each_named():
         r"natural hydraulic lime (NHL), hydraulic lime (HL), Portland cement}\}")
     assert [(i.symbol, i.name, i.value, i.unit, i.source) for i in water.inputs] == [
         ("r", "curing regime", "water_20", "", "lab/strength.csv or the prism series of "
-         "samples.yaml (1 prisms): EN 196-1 style: 1 d in the mould in moist air, then under "
+         "samples.yaml (1 prism): EN 196-1 style: 1 d in the mould in moist air, then under "
          "water at 20 °C until test"),
         ("f", "binder families of the mix", "air lime, natural hydraulic lime (NHL)", "",
          "materials.yaml binder type, through mixes.yaml"),

@@ -102,6 +102,20 @@ def test_glossary_lists_only_what_the_pages_print():
     assert [e["term"] for e in printed(entries, pages)] == ["f_k", "HP"]
 
 
+@pytest.mark.parametrize("text", ["CIELAB, then CI 1.2", "xHP2 -HP3 HP", "MX1.5 of MX", "a|b",
+                                  "LSF-2 LSF_3", "(CI)", "HP4", ""])
+def test_glossary_search_tried_where_the_term_stands_finds_what_a_whole_search_finds(text):
+    # the search starts only where a term's plain head stands (a speed-up): the reference is
+    # the plain search of the whole text with the same pattern (Python's re)
+    import re
+    entries = [{"term": "CI"}, {"term": "HP", "match": "HP[0-9]+"}, {"term": "LSF"},
+               {"term": "MX", "match": "MX[0-9.]+"}, {"term": "a|b", "match": "a|b"},
+               {"term": "ab", "match": "ab?c?"}]
+    whole = [e["term"] for e in entries if re.search(
+        rf"(?<![\w-]){e.get('match') or re.escape(e['term'])}(?![\w-])", text)]
+    assert [e["term"] for e in printed(entries, {"a.md": text})] == whole
+
+
 def test_bay_area_of_a_day_s_work_by_hand():
     """Bay area A_bay = min(q·T·A/V, A), the rule stated on the calculation sheet."""
     c = by_check(check("demo_project")[1])
@@ -213,3 +227,12 @@ def test_bay_result_whole_and_the_default_placing_rate(demo_copy):
     assert (z1.steps[0].inputs[0].value, z1.steps[0].inputs[0].source) == (
         10.0, "rule works.placing_rate (common practice — one operative pointing or bedding; "
               "confirm on the trial panel)")
+
+
+def test_rake_out_only_for_repointing(demo_copy):
+    """MTH-RAKE is for repointing alone: the bedding zone Z3 given a joint width has no
+    rake-out depth (its blocks are rebedded, not raked out), nor has the render zone Z2."""
+    edit(demo_copy / "dossier.yaml", "    works: bedding\n",
+         '    works: bedding\n    joint_width: "10 mm"\n')
+    got = by_check(check(demo_copy)[1])
+    assert [k for k in got if k[0] == "MTH-RAKE"] == [("MTH-RAKE", "Z1")]

@@ -165,3 +165,61 @@ def test_the_pdf_is_never_printed_from_a_placeholder(tmp_path):
     pages.drawing["figures/a.svg"] = lambda: b"<svg>drawn</svg>"
     assert pages.draw("figures/a.svg") == b"<svg>drawn</svg>"
     assert pages.assets["figures/a.svg"] == b"<svg>drawn</svg>" and not pages.drawing
+
+
+def _photo_env(tmp_path):
+    """A render environment and a photograph of the demo, as the evidence chapter places it."""
+    from types import SimpleNamespace
+
+    from specgen.report.pageset import PageSet
+    from specgen.report.render import RenderEnv
+    from tests.conftest import DEMO
+    data = (DEMO / "images" / "P1-inner-face-bay3.jpg").read_bytes()
+    img = SimpleNamespace(id="P1", file="images/P1-inner-face-bay3.jpg", keep_metadata=False,
+                          page=None, alt="Inner face of bay 3, mortar joints raked out",
+                          kind="photograph")
+    return RenderEnv(None, None, PageSet(), None), img, data
+
+
+def test_a_photograph_not_made_yet_is_a_placeholder_its_thumbnail_is_real(tmp_path):
+    # the live preview's first pages leave the print-size image for later (the PDF page of a
+    # survey sheet took a fifth of a second); the site's page shows the thumbnail, made now
+    from specgen import cache
+    from specgen.report.evidence_chapters import picture
+    from specgen.report.evidence_images import PRINT_PX, THUMB_PX, normalise
+    env, img, data = _photo_env(tmp_path)
+    with cache.using(tmp_path / "c"), cache.drawing_later():
+        pic = picture(env, img, data, "Bay 3, inner face (photograph)")
+        unnumbered = picture(env, img, data, "Bay 3 again", numbered=False)
+    assert pic["src"] == unnumbered["src"] == "images/p1.jpg"
+    assert list(env.pageset.drawing) == ["images/p1.jpg"]
+    assert env.pageset.assets["images/p1.jpg"].startswith(b"<svg")
+    assert b"Figure 1 is being drawn" in env.pageset.assets["images/p1.jpg"]
+    assert env.pageset.assets[pic["thumb"]] == normalise(data, img.file, THUMB_PX)[0]
+    assert pic["thumb_size"] == normalise(data, img.file, THUMB_PX)[2]
+    # drawn in the background: the very bytes a build places
+    assert env.pageset.draw("images/p1.jpg") == normalise(data, img.file, PRINT_PX)[0]
+
+
+def test_a_photograph_placeholder_is_served_as_svg(tmp_path):
+    # the placeholder stands under the photograph's name (.jpg): served as what it is, so the
+    # browser shows the box that says the image is being drawn, not a broken image
+    from specgen.report.figures import placeholder
+    out = tmp_path / "out"
+    (out / "R1" / "images").mkdir(parents=True)
+    (out / "R1" / "images" / "p1.jpg").write_bytes(placeholder(3))
+    (out / "R1" / "images" / "p2.jpg").write_bytes(b"\xff\xd8\xff\xe0 a JPEG")
+    state = State(revision="R1")
+    server = http.server.ThreadingHTTPServer(("127.0.0.1", 0), handler_for(out, state))
+    threading.Thread(target=server.serve_forever, daemon=True).start()
+    import urllib.request
+    try:
+        base = f"http://127.0.0.1:{server.server_address[1]}"
+        with urllib.request.urlopen(base + "/images/p1.jpg", timeout=10) as r:
+            assert r.headers["Content-Type"] == "image/svg+xml"
+            assert b"Figure 3 is being drawn" in r.read()
+        with urllib.request.urlopen(base + "/images/p2.jpg", timeout=10) as r:
+            assert r.headers["Content-Type"] == "image/jpeg"
+    finally:
+        server.shutdown()
+        server.server_close()

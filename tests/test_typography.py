@@ -65,6 +65,9 @@ def test_dates_as_dates():
     ("at 20 degC", "at 20 °C"),
     ("three 40 x 40 x 160 mm prisms", "three 40 × 40 × 160 mm prisms"),
     ("model two_component", "model two-component model (aluminate + silicate)"),
+    # several keys in one text, each once (a label that holds a key is not read again)
+    ("hyperbolic, then water_20 and sealed_20; not hyperbolic_x",
+     "hyperbolic law, then water curing at 20 °C and sealed curing at 20 °C; not hyperbolic x"),
 ])
 def test_plain_wording_has_no_internal_names(text, expected):
     assert plain(text) == expected

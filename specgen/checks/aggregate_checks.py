@@ -274,10 +274,9 @@ def _ba_one(pair, ctx):
     code, title = "COMP-BA", "Binder:aggregate of the historic mortar"
     h = pair.historic
     if h is None or h.acid_digestion is None:
-        return cc.not_assessed(code, title, pair, [
-            cc.fabric_names(pair)[1] if h is None else
+        return cc.not_assessed(code, title, pair, [cc.fabric_names(pair)[1] if h is None else (
             f"historic mortar {h.id} has no acid digestion results (materials.yaml "
-            f"{h.id}.acid_digestion)"])
+            f"{h.id}.acid_digestion)")])
     d = h.acid_digestion
     loi, loi_src = _binder_loss(h, ctx.project)
     r = gr.binder_aggregate(d.sample_mass, d.residue_mass, d.binder_bulk_density,

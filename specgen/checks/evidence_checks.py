@@ -77,10 +77,11 @@ def _step(mix, key: str, regime: dict, families: list[str], rows) -> Step:
     rel = r"\in" if ok else r"\notin"
     members = dc.tex(family_words(*suits))
     words = dc.tex(fam)
+    prisms = f"{n} prism{'' if n == 1 else 's'}"
     return Step(
-        f"Regime {key} of {n} prisms of {mix.id}", r"f \in S(r)",
+        f"Regime {key} of {prisms} of {mix.id}", r"f \in S(r)",
         (Input("r", "curing regime", key, "", f"lab/strength.csv or the prism series of "
-               f"samples.yaml ({n} prisms): {regime['title']}"),
+               f"samples.yaml ({prisms}): {regime['title']}"),
          Input("f", "binder families of the mix", fam, "", "materials.yaml binder type, "
                "through mixes.yaml"),
          Input("S(r)", "binder families the regime suits", family_words(*suits), "",

@@ -12,10 +12,8 @@ from dataclasses import asdict, dataclass, replace
 from functools import lru_cache
 from pathlib import Path
 
-import yaml
-
 from specgen.checks.result import Basis
-from specgen.refdata import CONTENT_DIR
+from specgen.refdata import CONTENT_DIR, content_yaml
 
 RULES_DIR = CONTENT_DIR / "rules"
 
@@ -70,7 +68,7 @@ def builtin_rules() -> dict[str, Rule]:
     """Every rule shipped in ``content/rules``."""
     out: dict[str, Rule] = {}
     for path in sorted(Path(RULES_DIR).glob("*.yaml")):
-        doc = yaml.safe_load(path.read_text(encoding="utf-8")) or {}
+        doc = content_yaml(path) or {}
         for name, raw in (doc.get("rules") or {}).items():
             key = f"{path.stem}.{name}"
             out[key] = Rule(key, float(raw["value"]), str(raw.get("unit", "")),

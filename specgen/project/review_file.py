@@ -23,7 +23,7 @@ from pydantic import Field
 
 from specgen.errors import InputErrors, ProblemLog, did_you_mean, quote
 from specgen.pagetext import page_facts, squeeze
-from specgen.project.files import read_yaml
+from specgen.project.files import compose, read_yaml
 from specgen.project.schema import ANCHOR_PATTERN, CommentsFile, Model, RevisionCode
 
 FORMAT = "specgen-review/1"
@@ -192,7 +192,7 @@ def _list_indent(text: str) -> int | None:
     """Column of the '-' of the comments list when it is the file's last key, in block
     style with at least one item; ``None`` otherwise."""
     try:
-        root = yaml.compose(text, Loader=yaml.SafeLoader) if text.strip() else None
+        root = compose(text) if text.strip() else None
     except yaml.YAMLError:
         return None
     if not isinstance(root, yaml.MappingNode) or not root.value:

@@ -266,12 +266,18 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
     reused = total = 0
     done = {}
     with Printer(pageset, workers) as printer:
+        # both volumes' parts queued at once, costliest first: no core waits between volumes
+        jobs = {v.key: _volume_jobs(printer, v, context, page_size) for v in vols}
+        queue = sorted(((-cost, n, i), submit) for n, job in enumerate(jobs.values())
+                       for i, (cost, submit) in enumerate(job["parts"]))
+        for _order, submit in queue:
+            submit()
         for v in vols:  # with ``appendix``: the report, then its appendices (own contents)
             ident = identifier if v.key == "main" or identifier is None else \
                 hashlib.sha256(identifier + b"/appendix").digest()[:16]
             final = dict(attachments=files, pdf_identifier=ident) if v.key == "main" else \
                 dict(pdf_identifier=ident)
-            done[v.key] = _print_volume(printer, v, context, page_size, on_part, final)
+            done[v.key] = _print_volume(printer, jobs[v.key], page_size, on_part, final)
             reused += sum(1 for p in done[v.key][1] if not p.seconds)
             total += len(done[v.key][1])
     anchors = {k: global_anchors([d[0], *d[1]]) for k, d in done.items()}
@@ -285,8 +291,9 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
     return reused, total
 
 
-def _print_volume(printer, v, context: dict, page_size: str, on_part, final: dict):
-    """One volume's parts, front matter and stamps: (front, printed parts, stamps)."""
+def _volume_jobs(printer, v, context: dict, page_size: str) -> dict:
+    """One volume's print: its contents laid out once with placeholder numbers (submitted
+    now), and its parts as (expected CPU seconds, submit) for the caller to queue."""
     from specgen.publish.pdf_parts import Timings, cached_or_submitted
     every = v.pieces
     css = stylesheet(page_size, "parts.css", "control.css")
@@ -299,19 +306,32 @@ def _print_volume(printer, v, context: dict, page_size: str, on_part, final: dic
         return cached_or_submitted(printer, "pdf-front", document_html(
             ctx, [], front=True, toc=every, toc_pages=numbers, elsewhere=v.other), css,
             **PDF_OPTIONS, **extra)
-    guess = front({p.id: PLACEHOLDER_PAGE for p in every})
-    handles = {i: cached_or_submitted(printer, "pdf-part", document_html(
-        ctx, groups[i], front=False), css, **PDF_OPTIONS)
-        for i in timings.order([sum(len(p.html) for p in g) for g in groups])}
+    handles: dict[int, object] = {}
+
+    def submitter(i):
+        def submit():
+            handles[i] = cached_or_submitted(printer, "pdf-part", document_html(
+                ctx, groups[i], front=False), css, **PDF_OPTIONS)
+        return submit
+    costs = timings.costs([sum(len(p.html) for p in g) for g in groups])
+    return {"ctx": ctx, "every": every, "groups": groups, "timings": timings, "front": front,
+            "guess": front({p.id: PLACEHOLDER_PAGE for p in every}), "handles": handles,
+            "parts": [(costs[i], submitter(i)) for i in range(len(groups))]}
+
+
+def _print_volume(printer, job: dict, page_size: str, on_part, final: dict):
+    """One volume's (front, printed parts, stamps); its parts queued by :func:`_volume_jobs`."""
+    groups, handles = job["groups"], job["handles"]
     printed = []
     for i in range(len(groups)):
         printed.append(handles[i].result())
         reached(f"pdf-part-{i + 1}")
         if on_part is not None:
             on_part(i + 1, len(groups))
-    timings.keep([p.seconds for p in printed])
-    front_doc, stamps = _front_and_stamps(front, printer, ctx, page_size, every, printed,
-                                          len(guess.result().pages), final)
+    job["timings"].keep([p.seconds for p in printed])
+    front_doc, stamps = _front_and_stamps(job["front"], printer, job["ctx"], page_size,
+                                          job["every"], printed, len(job["guess"].result().pages),
+                                          final)
     return front_doc, printed, stamps
 
 

@@ -1,4 +1,4 @@
-"""Putting the printed parts together into the one tagged PDF/A-3a dossier (pypdf).
+"""Putting the printed parts together into the one tagged PDF/A-3a dossier (pikepdf, on qpdf).
 
 The front matter (cover and contents) is the host: WeasyPrint wrote it as PDF/A-3a with
 the document's metadata, identifier, output intent and attachments, and every other
@@ -10,7 +10,10 @@ part's pages are appended to it.  Then, over the whole document:
   parts work like links within one;
 * the bookmarks of all parts become one outline, nested by heading level.
 
-Nothing here depends on the clock or on chance, so the same parts give the same bytes.
+qpdf copies and writes the objects in compiled code: the demo's two volumes are put together
+in about a tenth of the CPU time pypdf took (DEVELOPERS.md, "Benchmark").  Nothing here
+depends on the clock or on chance (the file identifier is the front matter's), so the same
+parts give the same bytes.
 """
 from __future__ import annotations
 
@@ -25,75 +28,94 @@ def assemble(front, parts: list, stamps: list, target, *, foreign=None,
     ``foreign`` ((file name, anchors)) is the other volume of the dossier: a link to one of
     its anchors opens that file at the anchor's named destination; ``exported`` are this
     volume's anchors the other volume links to, each made a named destination."""
-    from pypdf import PdfReader, PdfWriter
-    from pypdf.generic import NameObject
+    import pikepdf
     docs = [front, *parts]
-    writer = PdfWriter(clone_from=PdfReader(io.BytesIO(front.pdf)))
-    for page in writer.pages:
-        page.pop(NameObject("/Annots"), None)
-    tree = StructureMerge(writer)
+    pdf = pikepdf.Pdf.open(io.BytesIO(front.pdf))
+    for page in pdf.pages:
+        _drop(page.obj, "/Annots")
+    tree = StructureMerge(pdf)
+    sources = []  # kept open until written: qpdf reads the parts' streams when it writes
     for n, part in enumerate(parts, start=1):
-        reader = PdfReader(io.BytesIO(part.pdf))
-        added = []
-        for page in reader.pages:
-            page.pop(NameObject("/Annots"), None)  # made again below, across parts
-            added.append(writer.add_page(page))
-        tree.append(reader, added, f"p{n}-")
+        src = pikepdf.Pdf.open(io.BytesIO(part.pdf))
+        sources.append(src)
+        for page in src.pages:
+            _drop(page.obj, "/Annots")  # made again below, across parts
+        start = len(pdf.pages)
+        pdf.pages.extend(src.pages)
+        tree.append(src, [pdf.pages[i] for i in range(start, len(pdf.pages))], f"p{n}-")
     offsets, n = [], 0
     for doc in docs:
         offsets.append(n)
         n += len(doc.pages)
-    stamp_pages = [p for s in stamps for p in PdfReader(io.BytesIO(s.pdf)).pages]
-    if len(stamp_pages) != n or len(writer.pages) != n:
-        raise RuntimeError(f"assembly: {len(writer.pages)} pages, {len(stamp_pages)} stamps, "
+    stamp_pdfs = [pikepdf.Pdf.open(io.BytesIO(s.pdf)) for s in stamps]
+    sources += stamp_pdfs
+    stamp_pages = [(p, s) for s in stamp_pdfs for p in s.pages]
+    if len(stamp_pages) != n or len(pdf.pages) != n:
+        raise RuntimeError(f"assembly: {len(pdf.pages)} pages, {len(stamp_pages)} stamps, "
                            f"{n} expected")
-    for page, stamp in zip(writer.pages, stamp_pages):
-        _lay_over(writer, page, stamp)
+    for page, (stamp, src) in zip(pdf.pages, stamp_pages):
+        _lay_over(pdf, page, stamp, src)
     tree.finish()
-    _show_title(writer)
+    _show_title(pdf)
     anchors = global_anchors(docs)
-    _links(writer, docs, offsets, anchors, foreign)
-    _named(writer, anchors, exported)
-    _outline(writer, docs, offsets)
-    writer.write(target)
+    _links(pdf, docs, offsets, anchors, foreign)
+    _named(pdf, anchors, exported)
+    _outline(pdf, docs, offsets)
+    # the identifier stays the front matter's (the revision's), so a build is reproducible
+    pdf.save(target, deterministic_id=True, compress_streams=True)
+    for src in sources:
+        src.close()
+    pdf.close()
 
 
-def _show_title(writer) -> None:
+def _drop(obj, key: str) -> None:
+    if key in obj:
+        del obj[key]
+
+
+def _show_title(pdf) -> None:
     """A reader's window shows the document's title, not its file name (as PDF/UA asks)."""
-    from pypdf.generic import BooleanObject, DictionaryObject, NameObject
-    prefs = writer._root_object.get("/ViewerPreferences")
-    prefs = DictionaryObject(prefs.get_object()) if prefs is not None else DictionaryObject()
-    prefs[NameObject("/DisplayDocTitle")] = BooleanObject(True)
-    writer._root_object[NameObject("/ViewerPreferences")] = prefs
+    import pikepdf
+    prefs = pdf.Root.get("/ViewerPreferences")
+    prefs = pikepdf.Dictionary(dict(prefs.items())) if prefs is not None else pikepdf.Dictionary()
+    prefs.DisplayDocTitle = True
+    pdf.Root.ViewerPreferences = prefs
 
 
-def _lay_over(writer, page, stamp) -> None:
-    """Draw ``stamp`` (a page of another PDF) over ``page`` as a form XObject.
+def _lay_over(pdf, page, stamp, src) -> None:
+    """Draw ``stamp`` (a page of another PDF, ``src``) over ``page`` as a form XObject.
 
     The page's own content streams are kept as they are (compressed, untouched) and
     wrapped in q/Q so the stamp starts from the default graphics state.
     """
-    from pypdf.generic import ArrayObject, DecodedStreamObject, DictionaryObject, NameObject
-    form = DecodedStreamObject()
-    form.set_data(stamp.get_contents().get_data())
-    form.update({NameObject("/Type"): NameObject("/XObject"),
-                 NameObject("/Subtype"): NameObject("/Form"),
-                 NameObject("/BBox"): stamp.mediabox,
-                 NameObject("/Resources"): stamp["/Resources"].clone(writer)})
-    form = form.flate_encode()
-    resources = DictionaryObject(page["/Resources"])  # this page's own copy (parts share one)
-    xobjects = DictionaryObject(resources.get("/XObject", DictionaryObject()))
-    xobjects[NameObject("/SgStamp")] = writer._add_object(form)
-    resources[NameObject("/XObject")] = xobjects
-    page[NameObject("/Resources")] = resources
-    contents = page.get("/Contents")
-    contents = list(contents) if isinstance(contents, ArrayObject) else [page.raw_get("/Contents")]
-    before, after = DecodedStreamObject(), DecodedStreamObject()
-    before.set_data(b"q\n")
+    import pikepdf
+    from pikepdf import Array, Dictionary, Name
+    # qpdf compresses the new streams when it writes (compress_streams)
+    form = pikepdf.Stream(pdf, stamp.obj.Contents.read_bytes() if not isinstance(
+        stamp.obj.Contents, Array) else b"\n".join(c.read_bytes() for c in stamp.obj.Contents))
+    form.Type, form.Subtype = Name.XObject, Name.Form
+    form.BBox = Array(stamp.mediabox)
+    form.Resources = _copied(pdf, stamp.obj.Resources, src)
+    resources = Dictionary(dict(page.obj.Resources.items()))  # this page's own copy (parts share one)
+    xobjects = resources.get("/XObject")
+    xobjects = Dictionary(dict(xobjects.items())) if xobjects is not None else Dictionary()
+    xobjects.SgStamp = pdf.make_indirect(form)
+    resources.XObject = xobjects
+    page.obj.Resources = resources
+    contents = page.obj.get("/Contents")
+    contents = list(contents) if isinstance(contents, Array) else [contents]
     # the running head is a pagination artifact, outside the structure tree (PDF/UA)
-    after.set_data(b"\nQ\nq /Artifact BMC /SgStamp Do EMC Q\n")
-    page[NameObject("/Contents")] = ArrayObject(
-        [writer._add_object(before), *contents, writer._add_object(after)])
+    page.obj.Contents = Array([pdf.make_stream(b"q\n"), *contents,
+                               pdf.make_stream(b"\nQ\nq /Artifact BMC /SgStamp Do EMC Q\n")])
+
+
+def _copied(pdf, obj, src=None):
+    """``obj`` of another PDF (``src``) in ``pdf``, copied by qpdf in one call (once per
+    source document, so references to pages already copied lead to the copies); a direct
+    object is made indirect in ``src`` first, so qpdf copies it whole."""
+    if not obj.is_indirect:
+        obj = src.make_indirect(obj)
+    return pdf.copy_foreign(obj)
 
 
 def global_anchors(docs, start: int = 0) -> dict[str, tuple[int, float, float]]:
@@ -108,81 +130,104 @@ def global_anchors(docs, start: int = 0) -> dict[str, tuple[int, float, float]]:
     return found
 
 
-def _named(writer, anchors: dict, names) -> None:
+def _named(pdf, anchors: dict, names) -> None:
     """A named destination for each of ``names`` (the other volume's links land there)."""
-    from pypdf.generic import ArrayObject, FloatObject, NameObject, NumberObject, TextStringObject
-    for name in sorted(names):
-        if name in anchors:
-            page, x, y = anchors[name]
-            writer.add_named_destination_array(TextStringObject(name), ArrayObject([
-                writer.pages[page].indirect_reference, NameObject("/XYZ"), FloatObject(x),
-                FloatObject(y), NumberObject(0)]))
+    import pikepdf
+    chosen = [n for n in sorted(names) if n in anchors]
+    if not chosen:
+        return
+    if "/Names" not in pdf.Root:
+        pdf.Root.Names = pikepdf.Dictionary()
+    if "/Dests" not in pdf.Root.Names:
+        pdf.Root.Names.Dests = pdf.make_indirect(pikepdf.Dictionary(Names=pikepdf.Array()))
+    tree = pikepdf.NameTree(pdf.Root.Names.Dests)
+    for name in chosen:
+        page, x, y = anchors[name]
+        tree[name] = _xyz(pdf, page, x, y)
+
+
+def _xyz(pdf, page: int, x: float, y: float):
+    """An explicit destination: ``page`` of the document at (x, y), the zoom kept."""
+    from pikepdf import Array, Name
+    return Array([pdf.pages[page].obj, Name.XYZ, x, y, 0])
 
 
 def _to_other_volume(foreign, target: str):
     """The action opening the other volume at ``target`` (a remote go-to, allowed in
     PDF/A), or None when ``target`` is not one of its anchors."""
-    from pypdf.generic import BooleanObject, DictionaryObject, NameObject, TextStringObject
+    from pikepdf import Dictionary, Name, String
     if foreign is None or target not in foreign[1]:
         return None
-    return DictionaryObject({NameObject("/Type"): NameObject("/Action"),
-                             NameObject("/S"): NameObject("/GoToR"),
-                             NameObject("/F"): TextStringObject(foreign[0]),
-                             NameObject("/D"): TextStringObject(target),
-                             NameObject("/NewWindow"): BooleanObject(False)})
+    return Dictionary(Type=Name.Action, S=Name.GoToR, F=String(foreign[0]), D=String(target),
+                      NewWindow=False)
 
 
-def _links(writer, docs, offsets, anchors, foreign=None) -> None:
+def _links(pdf, docs, offsets, anchors, foreign=None) -> None:
+    from pikepdf import Array, Dictionary, Name, String
+
     from specgen.publish.pdf_parts import BASE
-    from pypdf.generic import (ArrayObject, DictionaryObject, FloatObject, NameObject,
-                               NumberObject, TextStringObject)
-    pages = writer.pages
     for doc, offset in zip(docs, offsets):
         for page, kind, target, rect in doc.links:
-            annot = DictionaryObject({
-                NameObject("/Type"): NameObject("/Annot"),
-                NameObject("/Subtype"): NameObject("/Link"),
-                NameObject("/Rect"): ArrayObject(FloatObject(v) for v in rect),
-                NameObject("/BS"): DictionaryObject({NameObject("/W"): NumberObject(0)}),
-                NameObject("/F"): NumberObject(4),  # printable, as PDF/A asks
-            })
+            annot = Dictionary(Type=Name.Annot, Subtype=Name.Link, Rect=Array(rect),
+                               BS=Dictionary(W=0),
+                               F=4)  # printable, as PDF/A asks
             if kind == "internal" and target not in anchors:
                 remote = _to_other_volume(foreign, target)
                 if remote is None:
                     continue  # a link to nothing stays plain text, as in a browser
-                annot[NameObject("/A")] = remote
+                annot.A = remote
             elif kind == "internal":
-                to_page, x, y = anchors[target]
-                annot[NameObject("/Dest")] = ArrayObject([
-                    pages[to_page].indirect_reference, NameObject("/XYZ"), FloatObject(x),
-                    FloatObject(y), NumberObject(0)])
+                annot.Dest = _xyz(pdf, *anchors[target])
             else:
                 if target.startswith(BASE):
                     # a file published beside the PDF (a download: the quantities schedule,
                     # the exports), linked relative to the PDF's own folder instead of the
                     # print engine's private address, which leads nowhere once printed
                     target = target[len(BASE):]
-                annot[NameObject("/A")] = DictionaryObject({
-                    NameObject("/Type"): NameObject("/Action"),
-                    NameObject("/S"): NameObject("/URI"),
-                    NameObject("/URI"): TextStringObject(target)})
-            on = pages[offset + page]
+                annot.A = Dictionary(Type=Name.Action, S=Name.URI, URI=String(target))
+            on = pdf.pages[offset + page].obj
             if "/Annots" not in on:
-                on[NameObject("/Annots")] = ArrayObject()
-            on["/Annots"].append(writer._add_object(annot))
+                on.Annots = Array()
+            on.Annots.append(pdf.make_indirect(annot))
 
 
-def _outline(writer, docs, offsets) -> None:
-    from pypdf.generic import Fit
-    stack: list[tuple[int, object]] = []
+def _outline(pdf, docs, offsets) -> None:
+    """Every part's bookmarks as one outline, nested by heading level (each opens its page
+    at the heading, the zoom kept)."""
+    from pikepdf import Array, Dictionary, Name, String
+    root = pdf.Root.get("/Outlines")
+    if root is None:
+        root = pdf.Root.Outlines = pdf.make_indirect(Dictionary(Type=Name.Outlines))
+    stack: list[tuple[int, object]] = [(0, root)]
+    counts = {}
     for doc, offset in zip(docs, offsets):
         for page, level, label, x, y in doc.bookmarks:
-            while stack and stack[-1][0] >= level:
+            while len(stack) > 1 and stack[-1][0] >= level:
                 stack.pop()
-            parent = stack[-1][1] if stack else None
-            item = writer.add_outline_item(title=label, page_number=offset + page, parent=parent,
-                                           fit=Fit.xyz(left=x, top=y, zoom=0))
+            parent = stack[-1][1]
+            item = pdf.make_indirect(Dictionary(Title=String(label), Parent=parent,
+                                                Dest=_xyz(pdf, offset + page, x, y)))
+            if "/Last" in parent:
+                parent.Last.Next = item
+                item.Prev = parent.Last
+            else:
+                parent.First = item
+            parent.Last = item
+            counts[parent.objgen] = counts.get(parent.objgen, 0) + 1
             stack.append((level, item))
+    _count(root, counts)
+
+
+def _count(item, counts) -> int:
+    """Set /Count of ``item`` and its descendants (every item open): the items visible
+    under it; returns that number."""
+    n, kid = 0, item.get("/First")
+    while kid is not None:
+        n += 1 + _count(kid, counts)
+        kid = kid.get("/Next")
+    if n:
+        item.Count = n
+    return n
 
 
 class StructureMerge:
@@ -195,99 +240,97 @@ class StructureMerge:
     references are left out of the tree: the links' text stays tagged as links.
     """
 
-    def __init__(self, writer):
-        from pypdf.generic import NameObject
-        self.writer = writer
-        root = writer._root_object
-        self.root = root["/StructTreeRoot"].get_object() if "/StructTreeRoot" in root else None
+    def __init__(self, pdf):
+        self.pdf = pdf
+        root = pdf.Root
+        self.root = root.StructTreeRoot if "/StructTreeRoot" in root else None
         self.nums: list = []
         self.next = 0
         if self.root is None:
             return
-        self.document = _kids(self.root["/K"])[0].get_object()
+        self.document = _kids(self.root.K)[0]
         _strip_annotations(self.document, "p0-")
-        nums = self.root["/ParentTree"].get_object().get("/Nums", [])
+        nums = self.root.ParentTree.get("/Nums", [])
         for key, value in zip(nums[::2], nums[1::2]):
             if not _is_annotation_entry(value):
                 self.nums += [key, value]
                 self.next = max(self.next, int(key) + 1)
-        for page in writer.pages:
-            page.pop(NameObject("/StructParent"), None)
+        for page in pdf.pages:
+            _drop(page.obj, "/StructParent")
 
-    def append(self, reader, pages, prefix: str) -> None:
-        """Join the tree of ``reader`` (a part) whose ``pages`` were added to the writer."""
-        from pypdf.generic import NameObject, NumberObject
-        tagged = reader.trailer["/Root"].get("/StructTreeRoot")
+    def append(self, src, pages, prefix: str) -> None:
+        """Join the tree of ``src`` (a part) whose ``pages`` were added to the document."""
+        tagged = src.Root.get("/StructTreeRoot")
         if self.root is None or tagged is None:
             return
-        tagged = tagged.get_object()
         shift = {}
-        for page, new in zip(reader.pages, pages):
-            if page.get("/StructParents") is not None:
-                shift[int(page["/StructParents"])] = self.next
-                new[NameObject("/StructParents")] = NumberObject(self.next)
+        for page, new in zip(src.pages, pages):
+            if page.obj.get("/StructParents") is not None:
+                shift[int(page.obj.StructParents)] = self.next
+                new.obj.StructParents = self.next
                 self.next += 1
-        kids = [kid for doc in _kids(tagged["/K"]) for kid in _kids(doc.get_object().get("/K", []))]
+        kids = [kid for doc in _kids(tagged.K) for kid in _kids(doc.get("/K", []))]
         for kid in kids:  # all before any is copied: a copy follows its parent to the rest
-            _strip_annotations(kid.get_object(), prefix)
+            _strip_annotations(kid, prefix)
+            _drop(kid, "/P")  # set to the host's document element below; not copied
         for kid in kids:
-            kid = kid.clone(self.writer)  # its pages map to those added above
-            kid.get_object()[NameObject("/P")] = self.document.indirect_reference
+            kid = _copied(self.pdf, kid, src)  # its pages map to those added above
+            kid.P = self.document
             _append_kid(self.document, kid)
-        old = tagged["/ParentTree"].get_object().get("/Nums", [])
+        old = tagged.ParentTree.get("/Nums", [])
         for key, value in zip(old[::2], old[1::2]):
             if int(key) in shift:
-                self.nums += [NumberObject(shift[int(key)]), value.clone(self.writer)]
+                self.nums += [shift[int(key)], _copied(self.pdf, value, src)]
 
     def finish(self) -> None:
-        from pypdf.generic import ArrayObject, DictionaryObject, NameObject, NumberObject
+        from pikepdf import Array, Dictionary, Name
         if self.root is None:
             return
-        self.root[NameObject("/K")] = ArrayObject([self.document.indirect_reference])
-        self.root[NameObject("/ParentTree")] = self.writer._add_object(DictionaryObject(
-            {NameObject("/Nums"): ArrayObject(self.nums)}))
-        self.root[NameObject("/ParentTreeNextKey")] = NumberObject(self.next)
-        for page in self.writer.pages:
-            page[NameObject("/Tabs")] = NameObject("/S")  # tab order follows the structure
+        self.root.K = Array([self.document])
+        self.root.ParentTree = self.pdf.make_indirect(Dictionary(Nums=Array(self.nums)))
+        self.root.ParentTreeNextKey = self.next
+        for page in self.pdf.pages:
+            page.obj.Tabs = Name.S  # tab order follows the structure
 
 
 def _kids(k) -> list:
-    from pypdf.generic import ArrayObject
-    k = k.get_object() if hasattr(k, "get_object") else k
-    return list(k) if isinstance(k, (list, ArrayObject)) else [k]
+    import pikepdf
+    return list(k) if isinstance(k, pikepdf.Array) else [k]
 
 
 def _append_kid(parent, kid) -> None:
-    from pypdf.generic import ArrayObject, NameObject
+    from pikepdf import Array
     current = parent.get("/K")
     items = _kids(current) if current is not None else []
-    parent[NameObject("/K")] = ArrayObject([*items, kid])
+    parent.K = Array([*items, kid])
 
 
 def _is_annotation_entry(value) -> bool:
-    value = value.get_object()
-    return not isinstance(value, list)  # a page's entry is an array of elements
+    import pikepdf
+    return not isinstance(value, pikepdf.Array)  # a page's entry is an array of elements
 
 
 def _strip_annotations(elem, prefix: str) -> None:
-    """Drop object references to annotations (made again later) and prefix ids."""
-    from pypdf.generic import ArrayObject, DictionaryObject, NameObject, TextStringObject
-    if not isinstance(elem, DictionaryObject):
-        return
-    if "/ID" in elem:
-        elem[NameObject("/ID")] = TextStringObject(prefix + str(elem["/ID"]))
-    attrs = elem.get("/A")
-    if isinstance(attrs, DictionaryObject) and "/Headers" in attrs:
-        attrs[NameObject("/Headers")] = ArrayObject(
-            TextStringObject(prefix + str(h)) for h in attrs["/Headers"])
-    k = elem.get("/K")
-    if k is None:
-        return
-    kept = []
-    for kid in _kids(k):
-        obj = kid.get_object() if hasattr(kid, "get_object") else kid
-        if isinstance(obj, DictionaryObject) and obj.get("/Type") == "/OBJR":
+    """Drop object references to annotations (made again later) and prefix ids, through
+    ``elem`` and every element under it (a walk, not recursion: the calculation sheets'
+    trees are deep and wide)."""
+    from pikepdf import Array, Dictionary, Name, String
+    stack = [elem]
+    while stack:
+        elem = stack.pop()
+        if not isinstance(elem, Dictionary):
             continue
-        _strip_annotations(obj, prefix)
-        kept.append(kid)
-    elem[NameObject("/K")] = ArrayObject(kept)
+        if "/ID" in elem:
+            elem.ID = String(prefix + str(elem.ID))
+        attrs = elem.get("/A")
+        if isinstance(attrs, Dictionary) and "/Headers" in attrs:
+            attrs.Headers = Array([String(prefix + str(h)) for h in attrs.Headers])
+        k = elem.get("/K")
+        if k is None or isinstance(k, int):
+            continue
+        kids = list(k) if isinstance(k, Array) else [k]
+        kept = [kid for kid in kids if isinstance(kid, int) or not (
+            isinstance(kid, Dictionary) and kid.get("/Type") == Name.OBJR)]
+        if len(kept) != len(kids):
+            elem.K = Array(kept)
+        stack.extend(kid for kid in kept if not isinstance(kid, int))

@@ -315,14 +315,18 @@ class Timings:
             known = {}
         return cls(names, known if isinstance(known, dict) else {}, key)
 
-    def order(self, sizes: list[int]) -> list[int]:
-        """Indices of the parts, costliest first: a part printed before by its time, a new one
+    def costs(self, sizes: list[int]) -> list[float]:
+        """The expected CPU seconds of each part: a part printed before by its time, a new one
         by its HTML size at the seconds per character of the parts timed before."""
         timed = [(self.known[n], sizes[i]) for i, n in enumerate(self.names)
                  if isinstance(self.known.get(n), (int, float)) and sizes[i]]
         rate = sorted(t / s for t, s in timed)[len(timed) // 2] if timed else 1.0
-        cost = [self.known[n] if isinstance(self.known.get(n), (int, float)) else sizes[i] * rate
+        return [self.known[n] if isinstance(self.known.get(n), (int, float)) else sizes[i] * rate
                 for i, n in enumerate(self.names)]
+
+    def order(self, sizes: list[int]) -> list[int]:
+        """Indices of the parts, costliest first (:meth:`costs`)."""
+        cost = self.costs(sizes)
         return sorted(range(len(self.names)), key=lambda i: (-cost[i], i))
 
     def keep(self, seconds: list[float]) -> None:

@@ -31,7 +31,8 @@ def site_only(project, results, pages, out: Path, first: set[str] | None = None)
 
     With ``first`` (page paths, ``index.md``), only those pages are laid out in full; every
     other page says it is being built (:data:`BEING_BUILT`), so the first page answers
-    sooner: the whole site follows (the same call without ``first``)."""
+    sooner: the whole site follows (the same call without ``first``), and with it
+    results.json, which no page links (writing it took a twentieth of the first page)."""
     from specgen.publish.site import build_site
     if first:
         pages = dataclasses.replace(pages, pages={
@@ -44,7 +45,8 @@ def site_only(project, results, pages, out: Path, first: set[str] | None = None)
     staging = staging_dir(Path(out), rev.code)
     try:
         build_site(pages, staging, f"{project.dossier.project.title} — {rev.code}")
-        (staging / "results.json").write_text(results.to_json(), encoding="utf-8")
+        if not first:
+            (staging / "results.json").write_text(results.to_json(), encoding="utf-8")
         for rel, data in sorted(pages.downloads.items()):
             (staging / rel).parent.mkdir(parents=True, exist_ok=True)
             (staging / rel).write_bytes(data)

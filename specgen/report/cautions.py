@@ -9,9 +9,7 @@ from __future__ import annotations
 import functools
 from dataclasses import dataclass
 
-import yaml
-
-from specgen.refdata import CONTENT_DIR
+from specgen.refdata import CONTENT_DIR, content_yaml
 
 
 @dataclass(frozen=True)
@@ -27,7 +25,7 @@ class Scope:
 @functools.lru_cache(maxsize=1)
 def _library() -> dict:
     """The caution library, read once per process (callers only read it)."""
-    return yaml.safe_load((CONTENT_DIR / "cautions.yaml").read_text(encoding="utf-8"))
+    return content_yaml(CONTENT_DIR / "cautions.yaml")
 
 
 def _applies(trigger: str, scope: Scope) -> bool:

@@ -64,15 +64,17 @@ def picture(env, img, data: bytes, caption: str, anchor_id: str = "",
     (``thumb``, with its size), caption and alternative text; a numbered figure unless
     ``numbered`` is false.  The image is normalised once per size (Pillow); a drawing given
     as SVG has no raster sizes, so the site shows the drawing itself."""
-    from specgen.report.evidence_images import THUMB_PX, normalise
-    full, ext, _ = normalise(data, img.file, keep_metadata=img.keep_metadata, page=img.page)
+    from specgen.report.evidence_images import extension, print_size, thumbnail
+    # the print-size image may be left for later (the live preview): the site's pages show
+    # the thumbnail, which is small and made now
+    full, ext = print_size(data, img.file, img.keep_metadata, img.page), extension(data, img.file)
     alt = img.alt or f"{img.kind.capitalize()} {img.id}, as the caption below describes"
     src = f"images/{anchor(img.id)}.{ext}"
     fig = (env.figure(src, full, caption, alt) if numbered else
-           {"src": env.pageset.add_asset(src, full), "caption": caption, "alt": alt, "n": 0})
-    thumb, _, size = normalise(data, img.file, THUMB_PX, img.keep_metadata, img.page)
+           {"src": env.unnumbered(src, full), "caption": caption, "alt": alt, "n": 0})
     if ext == "svg":
         return {**fig, "thumb": src, "thumb_size": None, "anchor": anchor_id}
+    thumb, size = thumbnail(data, img.file, img.keep_metadata, img.page)
     thumb_src = env.pageset.add_asset(f"images/{anchor(img.id)}-thumb.{ext}", thumb)
     return {**fig, "thumb": thumb_src, "thumb_size": size, "anchor": anchor_id}
 
@@ -168,10 +170,9 @@ def _drawing(env, d) -> dict:
               if s.location is not None and s.location.drawing == d.id]
     zones = [(a.zone, a.x, a.y, a.width, a.height) for a in d.zones]
     sheet = None
-    if d.image in p.images:
-        from specgen.report.evidence_images import normalise
+    if d.image in p.images:   # made upright and to print size in the figure, drawn or later
         img, data = p.images[d.image]
-        sheet = normalise(data, img.file, page=img.page)[0]
+        sheet = (data, img.file, img.page)
     svg = overlay(d.width, d.height, d.units, zones, points, d.north, sheet)
     caption = f"Drawing {d.id}: {d.title} — zones of work and sample points"
     if d.reference:

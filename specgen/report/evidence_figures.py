@@ -20,10 +20,15 @@ LEADER_FROM = 11      # |dy| beyond which a label gets its leader line (pt)
 def overlay(width: float, height: float, units: str, zones: list[tuple[str, float, float, float,
                                                                         float]],
             points: list[tuple[str, float, float]], note: str = "",
-            sheet: bytes | None = None) -> bytes:
+            sheet: tuple[bytes, str, int | None] | None = None) -> bytes:
     """Drawing extent ``width`` × ``height`` (``units``), zone rectangles ``(label, x, y, w,
     h)`` and sample points ``(label, x, y)``, with a legend and the orientation ``note``;
-    ``sheet`` (JPEG or PNG bytes, already upright) is drawn under them over the extent."""
+    ``sheet`` (the survey sheet as placed: its bytes, file name and PDF page) is drawn under
+    them over the extent, upright and at print size (made here, so that a figure left for
+    later leaves that work for later too)."""
+    if sheet is not None:
+        from specgen.report.evidence_images import normalise
+        sheet = normalise(sheet[0], sheet[1], page=sheet[2])[0]
     return to_svg(overlay_figure(width, height, units, zones, points, note, sheet))
 
 

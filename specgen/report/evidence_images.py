@@ -46,6 +46,47 @@ def normalise(data: bytes, name: str, long_side: int = PRINT_PX,
         return out.getvalue(), "png", im.size
 
 
+def extension(data: bytes, name: str) -> str:
+    """The extension :func:`normalise` gives ``data`` (read from the file's header alone)."""
+    if name.lower().endswith(".svg"):
+        return "svg"
+    if name.lower().endswith(".pdf"):
+        return "png"
+    from PIL import Image
+    with Image.open(io.BytesIO(data)) as src:   # lazy: the header, not the pixels
+        return "jpg" if src.format == "JPEG" else "png"
+
+
+def print_size(data: bytes, name: str, keep_metadata: bool = False, page: int | None = None):
+    """:func:`normalise` at :data:`PRINT_PX` (the bytes), through the artefact cache; within
+    ``cache.drawing_later`` (the live preview's first pages) a :class:`specgen.cache.Later`
+    when the cache does not hold it, placed as a figure still being drawn."""
+    import hashlib
+
+    from specgen import cache
+    if name.lower().endswith(".svg"):
+        return data
+    key = [hashlib.sha256(data).hexdigest(), name, PRINT_PX, keep_metadata, page]
+    return cache.drawn_or_later("image", key, lambda: normalise(
+        data, name, PRINT_PX, keep_metadata, page)[0])
+
+
+def thumbnail(data: bytes, name: str, keep_metadata: bool = False, page: int | None = None
+              ) -> tuple[bytes, tuple[int, int]]:
+    """:func:`normalise` at :data:`THUMB_PX` (the bytes and the size), through the artefact
+    cache (small: always made now)."""
+    import hashlib
+
+    from PIL import Image
+
+    from specgen import cache
+    key = [hashlib.sha256(data).hexdigest(), name, THUMB_PX, keep_metadata, page]
+    thumb = cache.cached("image", key, lambda: normalise(data, name, THUMB_PX, keep_metadata,
+                                                         page)[0])
+    with Image.open(io.BytesIO(thumb)) as im:
+        return thumb, im.size
+
+
 def pdf_page(data: bytes, page: int, long_side: int):
     """Page ``page`` (from 1) of the PDF ``data`` as an RGB Pillow image ``long_side`` px on its
     long side, white behind (loading has checked the file, its page count and that it is not

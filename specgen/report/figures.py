@@ -53,11 +53,12 @@ def formula_placeholder() -> bytes:
             ).encode("utf-8")
 
 
-def placeholder(n: int) -> bytes:
-    """What stands in a page for figure ``n`` until it is drawn (the live preview shows its
-    pages first): a framed box saying so (the caption stands under it already); plain SVG,
-    no matplotlib; small, so that its words stay legible on a phone's width."""
-    lines = [f"Figure {n} {BEING_DRAWN[0]}", BEING_DRAWN[1]]
+def placeholder(n: int = 0, label: str = "") -> bytes:
+    """What stands in a page for figure ``n`` (or the image ``label`` names) until it is
+    drawn (the live preview shows its pages first): a framed box saying so (the caption
+    stands under it already); plain SVG, no matplotlib; small, so that its words stay
+    legible on a phone's width."""
+    lines = [f"{label or f'Figure {n}'} {BEING_DRAWN[0]}", BEING_DRAWN[1]]
     return ('<svg xmlns="http://www.w3.org/2000/svg" width="420" height="84" '
             f'viewBox="0 0 420 84"><title>{lines[0]}</title>'
             '<rect x="1" y="1" width="418" height="82" fill="#f4f1ea" stroke="#8a7250" '

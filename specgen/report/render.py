@@ -100,6 +100,17 @@ class RenderEnv:
             self.pageset.add_asset(path, svg)
         return {"src": path, "caption": caption, "alt": alt, "n": n}
 
+    def unnumbered(self, path: str, data) -> str:
+        """An image placed without a figure number (its numbered place is elsewhere):
+        ``data`` its bytes or a :class:`specgen.cache.Later`, shown as a placeholder until
+        drawn; returns its path."""
+        if not isinstance(data, Later):
+            return self.pageset.add_asset(path, data)
+        if path not in self.pageset.drawing:
+            from specgen.report.figures import placeholder
+            self.pageset.add_placeholder(path, placeholder(label="This image"), data.draw)
+        return path
+
     def table(self, caption: str) -> Markup:
         """A numbered table caption, placed just above a table in a template:
         ``{{ table("Analyses, mass %") }}``.  Tables are numbered in order of appearance

@@ -61,6 +61,9 @@ KEY_LABELS = {
     "sealed_20": "sealed curing at 20 °C",
     "air_65": "air curing at 65 % RH",
 }
+#: any key of KEY_LABELS as a whole word (one pass: no label holds another key)
+_KEY_WORD = re.compile(r"\b(?:" + "|".join(sorted(map(re.escape, KEY_LABELS), key=len,
+                                                  reverse=True)) + r")\b")
 #: ASCII units and signs as the checks write them → typographic symbols
 UNIT_TEXT = [
     (re.compile(r"kg/\(m\^2·min\^0\.5\)|kg/\(m2·min0\.5\)"), "kg/(m²·min^½)"),
@@ -185,8 +188,7 @@ def plain(text: str) -> str:
     text = _FIELD_AFTER_FILE.sub(_field, text)
     text = _QUOTED_KEY.sub(lambda m: KEY_LABELS.get(m.group(1), m.group(1).replace("_", " ")),
                            text)
-    for key, label in KEY_LABELS.items():
-        text = re.sub(rf"\b{key}\b", label, text)
+    text = _KEY_WORD.sub(lambda m: KEY_LABELS[m.group(0)], text)
     text = typeset(text)
     text = text.replace("⟦", "").replace("⟧", "")
     return _SNAKE.sub(lambda m: m.group(0).replace("_", " ") if not SUBSCRIPT.fullmatch(

@@ -11,9 +11,11 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
-from scipy import optimize, stats
+from scipy import optimize
 
-_Z95 = float(stats.norm.ppf(0.975))
+from specgen.science.distributions import f_sf, norm_ppf
+
+_Z95 = float(norm_ppf(0.975))
 
 
 # ---------------------------------------------------------------- quantiles of draws
@@ -141,7 +143,7 @@ def lack_of_fit(values: Sequence[float], groups: Sequence, fitted: Sequence[floa
     if d_pe <= 0 or d_lof <= 1e-9 or ss_pe <= 0:
         return LackOfFit(ss_pe, d_pe, ss_lof, d_lof, None, None)
     f = (ss_lof / d_lof) / (ss_pe / d_pe)
-    return LackOfFit(ss_pe, d_pe, ss_lof, d_lof, f, float(stats.f.sf(f, d_lof, d_pe)))
+    return LackOfFit(ss_pe, d_pe, ss_lof, d_lof, f, float(f_sf(f, d_lof, d_pe)))
 
 
 # ---------------------------------------------------------------- scores and record checks

@@ -51,8 +51,8 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
-from scipy import stats
 
+from specgen.science.distributions import f_sf, norm_ppf, t_ppf
 # the priors, the generic tools of the fit and the law, importable from here as before
 from specgen.science.strength_priors import (PRIOR_KEYS, _Z95, InferenceError,  # noqa: F401
                                              Prior, _central_cv, prior_from_table)
@@ -114,12 +114,12 @@ class Inference:
 
 @lru_cache(maxsize=256)
 def _t_quantile(level: float, dof: float) -> float:
-    return float(stats.t.ppf(0.5 + level / 2.0, dof))
+    return float(t_ppf(0.5 + level / 2.0, dof))
 
 
 @lru_cache(maxsize=32)
 def _z_quantile(level: float) -> float:
-    return float(stats.norm.ppf(0.5 + level / 2.0))
+    return float(norm_ppf(0.5 + level / 2.0))
 
 
 def _groups(ages_d, values_mpa):
@@ -169,7 +169,7 @@ def fit(ages_d: Sequence[float], values_mpa: Sequence[float], prior: Prior) -> I
     lof_b = None
     if lof.f is not None:
         denom = lof.ss_pure / lof.dof_pure + counts.mean() * prior.batch_cv.high ** 2
-        lof_b = float(stats.f.sf((lof.ss_lof / lof.dof_lof) / denom, lof.dof_lof, lof.dof_pure))
+        lof_b = float(f_sf((lof.ss_lof / lof.dof_lof) / denom, lof.dof_lof, lof.dof_pure))
     draws, ess = _sample(ages, means, counts, sb2, sw2, prior, lap)
     return Inference(prior, ages, means, counts, lap.mode, lap.cov, lap.p_eff, math.sqrt(sw2),
                      math.sqrt(sb2), w_src, b_src, d_w + PRIOR_DOF, lof, lof_b,
@@ -285,7 +285,7 @@ def _predictive_noise(dof: float) -> np.ndarray:
     Carlo theory, methods and examples, ch. 10)."""
     size = PREDICTIVE_REPEATS * KEPT
     u = (np.arange(size) + 0.5) / size
-    out = stats.t.ppf(np.random.default_rng(RNG_STATE + 1).permutation(u), dof)
+    out = t_ppf(np.random.default_rng(RNG_STATE + 1).permutation(u), dof)
     out = out.reshape(PREDICTIVE_REPEATS, KEPT)
     out.flags.writeable = False
     return out

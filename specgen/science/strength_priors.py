@@ -23,15 +23,16 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
-from scipy import optimize, stats
+from scipy import optimize
 
 from specgen.errors import ScienceInputError
+from specgen.science.distributions import norm_ppf
 from specgen.science.two_stage_law import log_f
 
 MELD_DRAWS, MELD_RNG_STATE = 20000, 365   # draws of the shape rows for the implied gain
 
 PRIOR_KEYS = ("early_fraction", "tau_fast_d", "tau_slow_d", "shape_b", "gain_365_28")
-_Z95 = float(stats.norm.ppf(0.975))
+_Z95 = float(norm_ppf(0.975))
 
 
 class InferenceError(ScienceInputError):
@@ -115,8 +116,13 @@ def weighted_quantiles(x: np.ndarray, w: np.ndarray, q) -> np.ndarray:
     """Quantiles ``q`` of ``x`` under weights ``w`` (linear between the mid-points of the
     cumulative weights, so they move smoothly with the weights)."""
     order = np.argsort(x)
-    c = np.cumsum(w[order])
-    return np.interp(q, (c - 0.5 * w[order]) / c[-1], x[order])
+    return _sorted_weighted_quantiles(x[order], w[order], q)
+
+
+def _sorted_weighted_quantiles(x: np.ndarray, w: np.ndarray, q) -> np.ndarray:
+    """:func:`weighted_quantiles` of ``x`` already in ascending order (``w`` in that order)."""
+    c = np.cumsum(w)
+    return np.interp(q, (c - 0.5 * w) / c[-1], x)
 
 
 @lru_cache(maxsize=64)
@@ -126,13 +132,14 @@ def melded_gain(shape: tuple, low: float, high: float) -> tuple[float, float]:
     docstring, found by matching the range (``scipy.optimize.least_squares`` over the centre and
     ln SD) on draws of the shape terms weighted by the term.  When the shape rows cannot be
     narrowed to the row (the row is the wider), the closest match is kept."""
-    g = _implied_log_gains(shape)
+    # sorted once: the weights follow the draws, so the order is the same at every step
+    g = np.sort(_implied_log_gains(shape))
     target = np.log([low, high])
     scale = (target[1] - target[0]) / (2 * _Z95)
 
     def mismatch(x):
         w = np.exp(-0.5 * ((g - x[0]) / math.exp(x[1])) ** 2) + 1e-300   # never all zero
-        return (weighted_quantiles(g, w, [0.025, 0.975]) - target) / scale
+        return (_sorted_weighted_quantiles(g, w, [0.025, 0.975]) - target) / scale
     start = [float(target.mean()), math.log(scale)]
     sol = optimize.least_squares(mismatch, start, diff_step=1e-3,
                                  bounds=([-10.0, math.log(0.01)], [10.0, math.log(50.0)]))

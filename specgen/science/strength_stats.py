@@ -22,9 +22,9 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
-from scipy import stats
 
 from specgen.errors import ScienceInputError
+from specgen.science.distributions import norm_ppf, t_isf, t_ppf
 
 
 class StrengthInputError(ScienceInputError):
@@ -108,17 +108,17 @@ def summarise(values: Sequence[float]) -> Summary:
 # every group of a project: each is computed once per process (pure, so the same number).
 @lru_cache(maxsize=1024)
 def _norm_ppf(p: float) -> float:
-    return float(stats.norm.ppf(p))
+    return float(norm_ppf(p))
 
 
 @lru_cache(maxsize=1024)
 def _t_ppf(p: float, dof: float) -> float:
-    return float(stats.t.ppf(p, dof))
+    return float(t_ppf(p, dof))
 
 
 @lru_cache(maxsize=1024)
 def _t_isf(p: float, dof: float) -> float:
-    return float(stats.t.isf(p, dof))
+    return float(t_isf(p, dof))
 
 
 def kn_factor(n: int, known_variance: bool, fractile: float = 0.05) -> float:
