@@ -8,10 +8,14 @@ determinism, the demo's issued revision rebuilt) that repeat what the bounded te
 several times the cost."""
 from __future__ import annotations
 
+import contextlib
+import fcntl
+import functools
 import os
 import shutil
 import subprocess
 import sys
+import time
 from pathlib import Path
 
 import pytest
@@ -42,18 +46,97 @@ def full_run(config) -> bool:
 DEMO_FIXTURES = {"demo", "demo_copy", "demo_checked", "demo_build", "starter_build"}
 
 
+@pytest.hookimpl(trylast=True)   # after -m and -k have deselected
 def pytest_collection_modifyitems(config, items):
+    """Skip the tests marked ``full`` unless asked; put the files that read the demo build
+    last and start that build in the background, so the tests that need no demo build run
+    beside it (on both workers) rather than wait for it."""
     if os.environ.get("MUTANT_UNDER_TEST") not in (None, "", "stats"):
         # a mutation run (tools/mutation.py) stops at the first failing test: the tests that
         # check no copy of the demo go first, so a mutant one of them kills costs no demo
         # check.  The same tests run, only their order changes.
         items.sort(key=lambda item: bool(DEMO_FIXTURES & set(item.fixturenames)))
-    if full_run(config):
-        return
-    skip = pytest.mark.skip(reason="long run: pytest --full (or SPECGEN_FULL_TESTS=1) runs it")
-    for item in items:
-        if "full" in item.keywords:
-            item.add_marker(skip)
+    if not full_run(config):
+        skip = pytest.mark.skip(reason="long run: pytest --full (or SPECGEN_FULL_TESTS=1) "
+                                "runs it")
+        for item in items:
+            if "full" in item.keywords:
+                item.add_marker(skip)
+    late = {item.path for item in items if "demo_build" in item.fixturenames}
+    items.sort(key=lambda item: item.path in late)   # stable: the order within a file stays
+    if not config.option.collectonly and any(
+            "demo_build" in item.fixturenames and not item.get_closest_marker("skip")
+            for item in items):
+        _start_demo_build(config)
+
+
+def pytest_unconfigure(config):
+    """The worker that started the background demo build waits for it before it ends
+    (another worker's tests may still need it; an interrupt reaches it with the run)."""
+    proc = getattr(config, "_specgen_demo_build", None)
+    if proc is not None:
+        proc.wait()
+
+
+# -- one run, several workers ------------------------------------------------------------
+# The suite runs on pytest-xdist's workers (``-n 2`` in pyproject's addopts).  A session
+# fixture is made once per worker, so the costly ones (the demo build, the starter build,
+# the artefact cache) are made once per *run* in a folder every worker shares, under a file
+# lock, as pytest-xdist's documentation shows ("Making session-scoped fixtures execute
+# only once").  In one process (``-n 0``) the same code runs there alone.
+
+def _run_folder(config) -> Path:
+    """A folder shared by every worker of this run (the one process's own without xdist)."""
+    base = config._tmp_path_factory.getbasetemp()
+    return base.parent if hasattr(config, "workerinput") else base
+
+
+@contextlib.contextmanager
+def _locked(path: Path):
+    with open(path, "a") as handle:
+        fcntl.flock(handle, fcntl.LOCK_EX)
+        try:
+            yield
+        finally:
+            fcntl.flock(handle, fcntl.LOCK_UN)
+
+
+def once_per_run(config, name: str, make) -> Path:
+    """``make(folder)`` run once for the whole run (whichever worker asks first; the others
+    wait for it), returning the shared ``folder``.  A failed ``make`` is tried again by the
+    next worker that asks, and fails there too, so every test that needs it reports it."""
+    shared = _run_folder(config)
+    folder, done = shared / name, shared / f"{name}.done"
+    with _locked(shared / f"{name}.lock"):
+        if not done.exists():
+            if folder.exists():
+                shutil.rmtree(folder)
+            make(folder)
+            done.touch()
+    return folder
+
+
+def _cache_folder(config) -> Path:
+    folder = _run_folder(config) / "shared-cache"
+    folder.mkdir(exist_ok=True)
+    return folder
+
+
+def _start_demo_build(config) -> None:
+    """Start the demo build for the whole run as a command-line build in the background
+    (whichever worker collects first); ``demo_build`` waits for it."""
+    shared = _run_folder(config)
+    with _locked(shared / "demo-out.lock"):
+        if (shared / "demo-out.started").exists():
+            return
+        (shared / "demo-out.started").touch()
+        log = open(shared / "demo-out.log", "w")
+        config._specgen_demo_build = subprocess.Popen(
+            ["sh", "-c", '"$0" -m specgen build "$1" --out "$2" --quiet; echo $? > "$3"',
+             sys.executable, str(DEMO), str(shared / "demo-out"), str(shared / "demo-out.rc")],
+            stdout=log, stderr=subprocess.STDOUT,
+            env={**os.environ, "PYTHONPATH": str(REPO),
+                 "SPECGEN_SHARED_CACHE": str(_cache_folder(config))})
 
 
 @pytest.fixture
@@ -99,12 +182,12 @@ def cli():
 
 
 @pytest.fixture(scope="session", autouse=True)
-def shared_cache(tmp_path_factory):
-    """One artefact cache shared by every build of the session (``SPECGEN_SHARED_CACHE``,
-    inherited by the builds run as subprocesses): a figure, formula or PDF part drawn once
-    is not drawn again for another output folder.  A test about a cold build removes it
-    (``monkeypatch.delenv``)."""
-    folder = tmp_path_factory.mktemp("shared-cache")
+def shared_cache(request):
+    """One artefact cache shared by every build of the run, on every worker
+    (``SPECGEN_SHARED_CACHE``, inherited by the builds run as subprocesses): a figure,
+    formula or PDF part drawn once is not drawn again for another output folder.  A test
+    about a cold build removes it (``monkeypatch.delenv``)."""
+    folder = _cache_folder(request.config)
     before = os.environ.get("SPECGEN_SHARED_CACHE")
     os.environ["SPECGEN_SHARED_CACHE"] = str(folder)
     yield folder
@@ -115,28 +198,51 @@ def shared_cache(tmp_path_factory):
 
 
 @pytest.fixture(scope="session")
-def demo_build(tmp_path_factory) -> Path:
-    """One build of demo_project shared by every end-to-end test (returns OUT)."""
-    from specgen.build import build
-    out = tmp_path_factory.mktemp("demo-out")
-    build(DEMO, out)
-    return out
+def demo_build(request, shared_cache) -> Path:
+    """One build of demo_project shared by every end-to-end test of the run, on every worker
+    (returns OUT; read it only, or copy it).  Started in the background when the tests are
+    collected (``_start_demo_build``); this waits for it."""
+    shared = _run_folder(request.config)
+    _start_demo_build(request.config)          # (when collection did not, e.g. under -k)
+    rc, deadline = shared / "demo-out.rc", time.monotonic() + 3600
+    while not rc.exists() or not rc.read_text().strip():
+        if time.monotonic() > deadline:
+            pytest.fail("the demo build did not end within an hour:\n"
+                        + (shared / "demo-out.log").read_text())
+        time.sleep(0.5)
+    if rc.read_text().strip() != "0":
+        pytest.fail("the demo build failed:\n" + (shared / "demo-out.log").read_text())
+    return shared / "demo-out"
 
 
 @pytest.fixture(scope="session")
-def starter_build(tmp_path_factory, shared_cache) -> tuple[Path, Path]:
+def demo_pdf_text(demo_build):
+    """The text of every page of a PDF of the demo build (pypdf ``extract_text``), extracted
+    once per worker: ``demo_pdf_text("R3/WEP-2026-R3.pdf")`` → a tuple of page texts.  The
+    main volume is read by several tests; each took it apart afresh before."""
+    from pypdf import PdfReader
+
+    @functools.cache
+    def pages(relative: str) -> tuple[str, ...]:
+        return tuple(p.extract_text() for p in PdfReader(str(demo_build / relative)).pages)
+    return pages
+
+
+@pytest.fixture(scope="session")
+def starter_build(request, shared_cache) -> tuple[Path, Path]:
     """One build of the starter project (``specgen new``), run as the command line runs it,
-    shared by the tests that need a small built project: (PROJECT, OUT).  Read it only; a
-    test that changes the project or the output takes a copy (``copy_build``)."""
+    shared by the tests of the run that need a small built project: (PROJECT, OUT).  Read
+    it only; a test that changes the project or the output takes a copy (``copy_build``)."""
     from specgen.starter import write_starter
-    root = tmp_path_factory.mktemp("starter") / "project"
-    write_starter(root)
-    out = root.parent / "out"
-    done = subprocess.run([sys.executable, "-m", "specgen", "build", str(root), "--out",
-                           str(out), "--quiet"], capture_output=True, text=True,
-                          env={**os.environ, "PYTHONPATH": str(REPO)})
-    assert done.returncode == 0, done.stderr
-    return root, out
+
+    def make(folder: Path) -> None:
+        write_starter(folder / "project")
+        done = subprocess.run([sys.executable, "-m", "specgen", "build", str(folder / "project"),
+                               "--out", str(folder / "out"), "--quiet"], capture_output=True,
+                              text=True, env={**os.environ, "PYTHONPATH": str(REPO)})
+        assert done.returncode == 0, done.stderr
+    folder = once_per_run(request.config, "starter", make)
+    return folder / "project", folder / "out"
 
 
 def copy_build(build: tuple[Path, Path], dest: Path) -> tuple[Path, Path]:

@@ -22,7 +22,7 @@ def _clause() -> str:
 CLAUSE = _clause()
 
 
-def test_specification_page_and_exports_in_the_build(demo_build):
+def test_specification_page_and_exports_in_the_build(demo_build, demo_pdf_text):
     rev = demo_build / REV
     page = (rev / "specification.html").read_text(encoding="utf-8")
     for heading in ("Options appraisal", "Selection per zone", "Site test regime", "Hold points",
@@ -45,6 +45,6 @@ def test_specification_page_and_exports_in_the_build(demo_build):
     assert "The mortar for each zone" in summary and "Hold points still open" in summary
     from pypdf import PdfReader
     pdf = PdfReader(str(rev / f"WEP-2026-{REV}.pdf"))
-    text = "\n".join(p.extract_text() or "" for p in pdf.pages)
+    text = "\n".join(demo_pdf_text(f"{REV}/WEP-2026-{REV}.pdf"))
     assert CLAUSE in text
     assert f"exports/WEP-2026-{REV}-Z1-specification.md" in (pdf.attachments or {})

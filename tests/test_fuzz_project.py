@@ -22,7 +22,7 @@ problems must all be about the corrupted file (no follow-on errors); messages st
 Any other exception is a *traceback*.  The test prints its tally.
 
 Default: a bounded run (``SPECGEN_FUZZ_CASES``, 150 cases) that takes well under a minute.
-Long mode by hand: ``SPECGEN_FUZZ_CASES=1200 python3 -m pytest -q -s tests/test_fuzz_project.py``.
+Long mode by hand: ``SPECGEN_FUZZ_CASES=1200 python3 -m pytest -q -n 0 -s tests/test_fuzz_project.py``.
 """
 from __future__ import annotations
 

@@ -209,7 +209,7 @@ def prepare(scope: str, workdir: Path, modules: list[str] = (), tests: list[str]
         for pattern in only:
             for path in sorted(workdir.glob(pattern)):
                 undecorate(path)
-    args = ["-m", "not e2e", "-p", "no:cacheprovider"]
+    args = ["-m", "not e2e", "-p", "no:cacheprovider", "-n", "0"]
     for d in spec["deselect"]:
         args += ["--deselect", d]
     section = (
@@ -300,7 +300,7 @@ def recheck(scope: str, workdir: Path, tests: list[str] = ()) -> int:
         module = meta.name[:-len(".py.meta")]
         selection = tests_for(scope, [module], tests)
         clean = subprocess.run(   # the control: without a mutant the selection must pass
-            [sys.executable, "-m", "pytest", "-x", "-q", "-p", "no:cacheprovider",
+            [sys.executable, "-m", "pytest", "-x", "-q", "-p", "no:cacheprovider", "-n", "0",
              "-m", "not e2e", *selection], cwd=mutants, env={**env, "MUTANT_UNDER_TEST": ""},
             stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
         if clean.returncode != 0:
@@ -310,7 +310,7 @@ def recheck(scope: str, workdir: Path, tests: list[str] = ()) -> int:
             if code != 0:
                 continue
             done = subprocess.run(
-                [sys.executable, "-m", "pytest", "-x", "-q", "-p", "no:cacheprovider",
+                [sys.executable, "-m", "pytest", "-x", "-q", "-p", "no:cacheprovider", "-n", "0",
                  "-m", "not e2e", *selection],
                 cwd=mutants, env={**env, "MUTANT_UNDER_TEST": name},
                 stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)

@@ -23,13 +23,25 @@ def unpack(z) -> tuple[float, float, float, float, float]:
 
 
 def log_f(z, t_d) -> np.ndarray:
+    """``ln f`` at ages ``t_d`` (d) for parameters ``z`` (each term a number, or an array
+    broadcast against ``t_d``: many draws at many ages at once)."""
     ln_f, lg_phi, ln_ta, ln_ts, ln_b = z
     phi = 1.0 / (1.0 + np.exp(-lg_phi))
     t = np.asarray(t_d, float)
-    # (t/τS)^b as exp(b·(ln t - ln τS)): the same number, cheaper over many draws and ages
-    shape = phi * -np.expm1(-t * np.exp(-ln_ta)) + (1 - phi) * -np.expm1(
-        -np.exp(np.exp(ln_b) * (np.log(t) - ln_ts)))
-    return ln_f + np.log(np.maximum(shape, 1e-300))
+    # (t/τS)^b as exp(b·(ln t - ln τS)): the same number, cheaper over many draws and ages;
+    # the steps of phi·-expm1(-t/τA) + (1-phi)·-expm1(-(t/τS)^b) written into two buffers the
+    # size of the result (a draws x ages grid makes no other temporaries): the same operations
+    # in the same order, so the same numbers
+    fast = np.asarray(-t * np.exp(-ln_ta))
+    np.negative(np.expm1(fast, out=fast), out=fast)
+    np.multiply(phi, fast, out=fast)
+    slow = np.asarray(np.exp(ln_b) * (np.log(t) - ln_ts))
+    np.negative(np.exp(slow, out=slow), out=slow)
+    np.negative(np.expm1(slow, out=slow), out=slow)
+    np.multiply(1 - phi, slow, out=slow)
+    np.add(fast, slow, out=fast)
+    np.log(np.maximum(fast, 1e-300, out=fast), out=fast)
+    return np.add(ln_f, fast, out=fast)
 
 
 def log_f_grad(z, t_d) -> np.ndarray:

@@ -253,3 +253,39 @@ def test_bogue_at_the_af_limit_and_with_only_c2s_negative():
     assert r.c2s == pytest.approx(-117.60, abs=0.01) and r.c3s > 0 and r.c3a > 0
     assert not r.valid
     assert r.note == "a potential phase came out negative: the analysis is not a Portland clinker"
+
+
+# --- the phase names and stoichiometry of under-burnt dolomitic stone, ferrite as C2F, and
+# --- the words of the refusals and assumptions, whole
+
+def test_under_burnt_dolomitic_stone_carbonates_by_periodictable():
+    # CaO 30, MgO 20, CO2 40, SiO2 10 mass %: CO2 goes to calcite first while CaO lasts
+    # (30/M(CaO) mol), the excess to MgCO3 (1 MgO : 1 CO2), the rest of MgO is periclase;
+    # no lime is left, so the silica stays uncombined (molar masses: periodictable)
+    ox = {"CaO": 30.0, "MgO": 20.0, "CO2": 40.0, "SiO2": 10.0}
+    n_ca = 30.0 / M("CaO")
+    n_mg = 40.0 / M("CO2") - n_ca
+    r = unsintered_phases(ox, "amorphous", AW)
+    assert r.phases == pytest.approx({
+        "calcite": n_ca * M("CaCO3"), "MgCO3": n_mg * M("MgCO3"),
+        "periclase": 20.0 - n_mg * M("MgO"), "uncombined SiO2": 10.0}, rel=1e-4)
+    assert r.lime_limited
+    assert r.assumptions == (
+        "C3S = 0: fired below sintering, no melt, no alite",
+        "aluminate/ferrite assignment: " + ASSIGNMENTS["amorphous"],
+        "lime-limited: not all silica finds lime for C2S (C2S = 1.536 C available)")
+
+
+def test_ferrite_as_c2f_under_the_gehlenite_assignment():
+    # Fe2O3 4 mass % as C2F: 4/M(Fe2O3) mol × M(Ca2Fe2O5) (periodictable); lime in excess
+    ox = {"CaO": 66.0, "SiO2": 20.0, "Al2O3": 0.0, "Fe2O3": 4.0}
+    r = unsintered_phases(ox, "C2AS gehlenite", AW)
+    assert r.phases["C2F"] == pytest.approx(4.0 / M("Fe2O3") * M("Ca2Fe2O5"), rel=1e-4)
+    assert not r.lime_limited and len(r.assumptions) == 2
+
+
+def test_unknown_assignment_refused_whole():
+    with pytest.raises(ChemistryInputError) as err:
+        unsintered_phases(FIRED_MARL, "C3A only", AW)
+    assert str(err.value) == ("unknown aluminate assignment 'C3A only': choose one of "
+                              "C4AF+C3A, C2AS gehlenite, amorphous")
