@@ -117,8 +117,8 @@ def _group_step(g: sc.Group) -> Step:
                     tuple(inputs), rf"\bar{{f}} = {m:.3f}", round(m, 4), "MPa", "f̄")
     c = g.characteristic
     inputs.append(Input("k_n", "EN 1990 factor, variance unknown", round(c.k_n, 4), "",
-                        "EN 1990 Annex D (D7.2): t(0.95, n−1)·√(1 + 1/n), t from SciPy "
-                        "(special.stdtrit, which scipy.stats.t.ppf uses)"))
+                        "EN 1990 Annex D (D7.2): t(0.95, n−1)·√(1 + 1/n), Student's t quantile "
+                        "computed with SciPy"))
     return Step(
         f"{what}: characteristic value (n = {n})",
         r"f_k = \bar{f} - k_n\,s,\quad k_n = t_{0.95,\,n-1}\sqrt{1 + 1/n}", tuple(inputs),
@@ -360,7 +360,7 @@ def pred_step(s: sc.Series, iv, ctx, prefix: str = "", mean=None) -> Step:
                     inf.sigma_w_source),
               Input("q", f"Student t, {inf.dof:g} dof, {level:.0%} two-sided",
                     round(inf.quantile(level), 4), "",
-                    "SciPy (special.stdtrit, which scipy.stats.t.ppf uses)")]
+                    "Student's t quantile computed with SciPy")]
     sub = rf"\hat f = {iv.value:.3f};\ \text{{{iv.kind}}}: [{iv.lower:.3f},\ {iv.upper:.3f}]"
     if mean is not None:
         sub += rf";\ \text{{mean curve}}: [{mean.lower:.3f},\ {mean.upper:.3f}]"
