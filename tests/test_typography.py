@@ -58,6 +58,8 @@ def test_dates_as_dates():
     ("content/data/cement_densities.yaml, set 'bentz_nist'",
      "phase density sets, NIST phase densities (Bentz)"),
     ("give joint_width for zone Z1 in dossier.yaml", "give joint width for zone Z1 in dossier data"),
+    # a one-word key of a record is worded like a longer one (dossier.yaml Z1.joint_width)
+    ("give dossier.yaml Z2.coats", "give dossier data, Z2 coats"),
     ("4 age(s) 1–28 d", "4 ages 1–28 d"),
     ("1 measure(s)", "1 measure"),
     ("AICc -31.25", f"AICc {MINUS}31.25"),

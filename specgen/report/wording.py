@@ -81,7 +81,7 @@ SUBSCRIPT = re.compile(r"(?<![\w/.-])([A-Za-zα-ωΔ])_\{?([A-Za-z0-9,]{1,12})\}
 
 _FILE = re.compile(r"\b(?:content/(?:data|rules)/)?([\w/-]+)\.(ya?ml|csv|json)\b")
 _FIELD_AFTER_FILE = re.compile(
-    r"(?P<label>⟦[^⟧]+⟧),? (?:(?P<id>[A-Z][\w-]*)\.)?(?P<field>[a-z][a-z0-9]*(?:[_.][a-z0-9]+)+)\b")
+    r"(?P<label>⟦[^⟧]+⟧),? (?:(?P<id>[A-Z][\w-]*)\.)?(?P<field>[a-z][a-z0-9]*(?:[_.][a-z0-9]+)*)\b")
 _RULE = re.compile(r"\brule `?([a-z]+)\.([a-z0-9_]+)`?")
 _QUOTED_KEY = re.compile(r"(?:set )?'([a-z0-9]+(?:_[a-z0-9]+)+)'")
 _SNAKE = re.compile(r"\b[a-z][a-z0-9]*(?:_[a-z0-9]+)+\b")
@@ -120,6 +120,8 @@ def _file(m: re.Match) -> str:
 
 
 def _field(m: re.Match) -> str:
+    if not m.group("id") and not re.search(r"[_.]", m.group("field")):
+        return m.group(0)      # a plain word after the file ("lab/strength.csv row 2"), no key
     what = m.group("field").replace(".", " ").replace("_", " ")
     ident = f"{m.group('id')} " if m.group("id") else ""
     return f"{m.group('label')[:-1]}, {ident}{what}⟧"
