@@ -9,6 +9,7 @@ import numpy as np
 import pytest
 
 from specgen.build import check
+from specgen.checks.result import Input, Quantity, Step
 from tests.helpers import by_check, edit, problems
 
 
@@ -527,3 +528,130 @@ def test_colour_result_whole(demo_checked):
             "CIE 1931 2 Degree Standard Observer"]["D65"]))
         want = "#" + "".join(f"{round(float(v) * 255):02x}" for v in rgb)
         assert q[f"{side}_swatch"] == {"hex": want, "clipped": False}
+
+
+# --- COMP-SALT and aluminate_rich on hand-made projects (no demo check) -------------------
+# Edges of content/data/salt_load.yaml, the two tables as their public summaries give them
+# (source named there): WTA 2-6-99 chloride 0.2/0.5, nitrate 0.1/0.3, sulfate 0.5/1.5; the
+# WTA 3-13-01 table (key onorm_b3355) chloride 0.03/0.10, nitrate 0.05/0.15, sulfate
+# 0.10/0.25 mass %; a content on an edge is in the higher class.
+ONORM = "salt-load assessment after WTA-Merkblatt 3-13-01/D (low / medium / high)"
+ONORM_NOTE = (f"table: {ONORM} — the salt-load assessment table of WTA-Merkblatt 3-13-01/D as "
+              "a public conservation wiki gives it; published salt-load tables disagree, this "
+              "one is the project's choice")
+
+
+def _salt_of(unit_salts, historic_salts, table="onorm_b3355", candidates=("MA",)):
+    """COMP-SALT of zone Z9 on a hand-made project: ``*_salts`` (chloride, nitrate, sulfate)
+    of masonry unit U9 and historic mortar H9, or None for no salts (the material exists)."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.rules import RuleBook
+    from specgen.checks.run import Context
+    from specgen.checks.salt_checks import salt_check
+
+    def salts(v):
+        return None if v is None else NS(chloride=v[0], nitrate=v[1], sulfate=v[2])
+    project = NS(masonry_units={"U9": NS(id="U9", salts=salts(unit_salts))},
+                 historic_mortars={"H9": NS(id="H9", salts=salts(historic_salts))},
+                 mixes={}, mortar_properties={},
+                 dossier=NS(compatibility=NS(salt_table=table)))
+    zone = NS(id="Z9", units="U9", historic_mortar="H9", candidates=list(candidates))
+    return salt_check(zone, Context(project, RuleBook()))
+
+
+def test_salt_without_any_content_is_not_assessed():
+    from specgen.checks.result import Basis
+    out = _salt_of(None, None, candidates=("MA", "MB"))
+    assert [(c.code, c.title, c.subject, c.subject_kind, c.status, c.value, c.unit) for c in
+            out] == [("COMP-SALT", "Salt load of the fabric", s, "zone", "not_assessed", None,
+                      "") for s in ("Z9/MA", "Z9/MB")]
+    assert out[0].message == (
+        "not assessed: no salt contents for the fabric of zone Z9: add 'salts:' (chloride, "
+        "nitrate, sulfate in mass %) to its masonry unit or historic mortar in materials.yaml")
+    assert out[0].basis == (Basis("reference", "salzwiki_measures", ONORM),)
+
+
+def test_salt_on_the_edges_of_the_second_table_whole():
+    """Units U9: chloride 0.03 (on the medium edge: medium), nitrate not measured, sulfate
+    0.0999 (low); historic mortar H9: chloride 0.0299 (low), nitrate 0.15 (on the high edge:
+    high), sulfate 0.10 (on the medium edge: medium).  Highest per ion: chloride medium,
+    nitrate high, sulfate medium: attention (high nitrate), medium sulfate noted."""
+    from specgen.checks.result import Basis
+    c = _salt_of((0.03, None, 0.0999), (0.0299, 0.15, 0.10))[0]
+    edges = {"chloride": "classes < 0.03 low, 0.03–0.1 medium, ≥ 0.1 high",
+             "nitrate": "classes < 0.05 low, 0.05–0.15 medium, ≥ 0.15 high",
+             "sulfate": "classes < 0.1 low, 0.1–0.25 medium, ≥ 0.25 high"}
+    formula = r"\text{class} = \text{band of the table containing the content}"
+    assert (c.status, c.value, c.unit, c.message) == (
+        "attention", "high", "", "high salt load (nitrate) (table onorm_b3355)")
+    assert c.basis == (Basis("reference", "salzwiki_measures", ONORM),)
+    assert c.notes == (
+        "nitrate of units U9 not measured: not classified",
+        "medium sulfate: its effect on the binder of MA is assessed by DUR-ETT/Z9/MA "
+        "(ettringite) and DUR-TSA/Z9/MA (thaumasite)", ONORM_NOTE)
+    assert c.steps == (
+        Step(f"Salt load of units U9 ({ONORM})", formula, (
+            Input("chloride", "chloride, units U9 → medium", 0.03, "mass %",
+                  "materials.yaml U9.salts; " + edges["chloride"]),
+            Input("sulfate", "sulfate, units U9 → low", 0.0999, "mass %",
+                  "materials.yaml U9.salts; " + edges["sulfate"])),
+             "chloride: medium, sulfate: low", 1.0, "", "class"),
+        Step(f"Salt load of historic mortar H9 ({ONORM})", formula, (
+            Input("chloride", "chloride, historic mortar H9 → low", 0.0299, "mass %",
+                  "materials.yaml H9.salts; " + edges["chloride"]),
+            Input("nitrate", "nitrate, historic mortar H9 → high", 0.15, "mass %",
+                  "materials.yaml H9.salts; " + edges["nitrate"]),
+            Input("sulfate", "sulfate, historic mortar H9 → medium", 0.10, "mass %",
+                  "materials.yaml H9.salts; " + edges["sulfate"])),
+             "chloride: low, nitrate: high, sulfate: medium", 2.0, "", "class"))
+    assert c.quantities == (Quantity("salt_load_class", {
+        "table": "onorm_b3355", "U9": {"chloride": "medium", "sulfate": "low"},
+        "H9": {"chloride": "low", "nitrate": "high", "sulfate": "medium"}}, "",
+        "salt-load classes"),)
+
+
+def test_salt_of_units_alone_all_low_passes():
+    """Only the units carry salts, all below the WTA 2-6-99 lower edges: pass, no sulfate
+    note; a material measured with no ion gives no step and no class above low."""
+    c = _salt_of((0.19, 0.09, 0.49), None, table="wta_2_9")[0]
+    assert (c.status, c.value, c.message) == ("pass", "low",
+                                             "no class above medium (table wta_2_9)")
+    assert len(c.notes) == 1 and c.notes[0].startswith("table: WTA salt-load table")
+    assert [(s.title, s.substituted, s.result) for s in c.steps] == [
+        ("Salt load of units U9 (WTA salt-load table for assessing masonry (low / medium / "
+         "high))", "chloride: low, nitrate: low, sulfate: low", 0.0)]
+    c = _salt_of((None, None, None), None, table="wta_2_9")[0]
+    assert (c.status, c.value, c.steps) == ("pass", None, ())
+    assert c.quantities[0].value == {"table": "wta_2_9", "U9": {}}
+
+
+def test_aluminate_rich_by_analysis_or_family():
+    """content/rules/compatibility.yaml: Al2O3 ≥ 5 % makes a binder aluminate-rich (common
+    practice); without an analysis the family decides (natural cement, Portland, HL, FL
+    carry reactive aluminate: a declared assumption).  A binder the project lacks is skipped;
+    an analysis without Al2O3 falls back on the family."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.rules import RuleBook
+    from specgen.checks.run import Context
+    from specgen.checks.salt_checks import aluminate_rich
+    project = NS(
+        binders={"B1": NS(id="B1", type="nhl", analysis="A1"),
+                 "B2": NS(id="B2", type="nhl", analysis=None),
+                 "B3": NS(id="B3", type="natural_cement", analysis="A3"),
+                 "B4": NS(id="B4", type="air_lime", analysis="A4")},
+        analyses={"A1": NS(id="A1", mass_percent={"Al2O3": 5.0}),
+                  "A3": NS(id="A3", mass_percent={"CaO": 60.0}),
+                  "A4": NS(id="A4", mass_percent={"Al2O3": 4.99})})
+    ctx = Context(project, RuleBook())
+
+    def rich(*ids):
+        return aluminate_rich(NS(binders=[NS(binder=b) for b in ids]), project, ctx)
+    assert rich("B1") == (True, "B1: Al2O3 5 % in analysis A1 ≥ 5 %")
+    assert rich("B4", "B2", "B9") == (False, (
+        "B4: Al2O3 4.99 % in analysis A4 < 5 %; B2: no Al2O3 in an analysis; family natural "
+        "hydraulic lime (NHL) does not carry reactive aluminate (assumed)"))
+    assert rich("B2", "B3") == (True, (
+        "B2: no Al2O3 in an analysis; family natural hydraulic lime (NHL) does not carry "
+        "reactive aluminate (assumed); B3: no Al2O3 in an analysis; family natural cement "
+        "carries reactive aluminate (assumed)"))
+    assert rich() == (False, "")
