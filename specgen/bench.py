@@ -59,8 +59,8 @@ def _median(fn, runs: int) -> float:
 
 def _cold() -> None:
     """Forget every in-process memo, so a build in this process starts cold."""
-    from specgen.report.mathsvg import svg_of
-    svg_of.cache_clear()
+    from specgen.report.mathsvg import svg_bytes
+    svg_bytes.cache_clear()
 
 
 def _floor(project: Path, work: Path):
