@@ -59,8 +59,8 @@ def _median(fn, runs: int) -> float:
 
 def _cold() -> None:
     """Forget every in-process memo, so a build in this process starts cold."""
-    from specgen.report.mathsvg import svg_of
-    svg_of.cache_clear()
+    from specgen.report.mathsvg import svg_bytes
+    svg_bytes.cache_clear()
 
 
 def _floor(project: Path, work: Path):
@@ -211,7 +211,7 @@ def bench_xlsx(demo: Path, work: Path, runs: int) -> None:
           "process (time.process_time), medians, so other jobs on the machine count less")
 
 
-_INFERENCE_ENTRIES = ("fit", "bands", "interval", "components", "posterior_summary", "falls")
+_INFERENCE_ENTRIES = ("fit", "fit_many", "bands", "interval", "components", "posterior_summary", "falls")
 
 
 def _inference_share(project: Path) -> tuple[float, float, float]:
