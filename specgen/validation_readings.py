@@ -191,10 +191,12 @@ def study(series: int = 200, rng_state: int = 7, draws: int = 40000,
             acc = {name: {"hit": np.zeros(2), "score": np.zeros(2), "own": 0.0,
                           "own_gain": implied_gain(*cells[name], 90.0)} for name in readings}
             base_score = np.zeros(2)
+            laws, recs = [], []
             for _ in range(series):
-                law = make(rng, row)
-                t, y = v.simulate(law, rng, ages, 0.04)
-                inf = si.fit(t, y, prior)
+                laws.append(make(rng, row))
+                recs.append(v.simulate(laws[-1], rng, ages, 0.04))
+            fits = si.fit_many([(t, y, prior) for t, y in recs])   # as the study fits them
+            for law, (t, y), inf in zip(laws, recs, fits):
                 var = inf.sigma_b ** 2 + inf.sigma_w ** 2 / inf.counts
                 truth = law(targets)
                 f28 = math.exp(np.mean(np.log([b for a, b in zip(t, y) if a == 28])))
