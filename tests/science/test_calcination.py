@@ -205,3 +205,64 @@ def test_every_atomic_weight_matches_periodictable(element):
     # atomic_weights.yaml is confirmed by this comparison, so it carries no 'memory' tag.
     assert refdata.load("atomic_weights").data[element] == pytest.approx(
         getattr(periodictable, element).mass, rel=1e-4)
+
+
+# --- the fired comparison, residual carbonate and carbonates: whole results, refusals whole,
+# --- and the keys each needs (and only those)
+
+def test_fired_comparison_over_the_union_of_oxides_by_hand():
+    # expected (loss-free) CaO 60, SiO2 25, MgO 5; measured CaO 58.8, SiO2 24.5, SO3 1.96 with
+    # CO2 2 (loss-free factor 100/98): CaO 60.0, SiO2 25.0, SO3 2.0.  Differences (measured −
+    # expected): CaO 0, MgO −5 (missing from the measured), SiO2 0, SO3 +2 (missing from the
+    # expected): the largest is MgO, −5 (by hand)
+    expected = {"CaO": 60.0, "SiO2": 25.0, "MgO": 5.0}
+    measured = {"CaO": 58.8, "SiO2": 24.5, "SO3": 1.96, "CO2": 2.0}
+    got = compare_fired(expected, measured)
+    assert got.differences == pytest.approx({"CaO": 0.0, "MgO": -5.0, "SiO2": 0.0, "SO3": 2.0},
+                                            abs=1e-9)
+    assert (got.largest, got.largest_difference) == ("MgO", pytest.approx(-5.0, abs=1e-9))
+
+
+def test_fired_comparison_of_two_empty_analyses_refused_whole():
+    with pytest.raises(ChemistryInputError) as err:
+        compare_fired({}, {})
+    assert str(err.value) == "nothing to compare: both analyses are empty"
+
+
+def test_residual_carbonate_needs_only_co2():
+    # a binder and a raw stone reported without SiO2 (CO2 is all the calculation reads):
+    # CaCO3 = 2.0·M(CaCO3)/M(CO2) (periodictable); no raw stone -> no degree (None)
+    binder = {"CaO": 60.0, "CO2": 2.0}
+    res = residual_carbonate(binder, AW)
+    f = periodictable.formula
+    assert res.co2 == 2.0 and res.decarbonation is None
+    assert res.caco3 == pytest.approx(2.0 * f("CaCO3").mass / f("CO2").mass, rel=1e-4)
+    # raw CO2 0.5 % (small but reported): degree = 1 − (2/98)/(0.5/99.5) = 1 − 4.0612 =
+    # −3.0612 by hand (a binder with more CO2 than its raw stone: negative, shown as such)
+    res = residual_carbonate(binder, AW, {"CaO": 50.0, "CO2": 0.5})
+    assert res.decarbonation == pytest.approx(1 - (2.0 / 98.0) / (0.5 / 99.5), rel=1e-12)
+
+
+def test_residual_carbonate_refusals_whole():
+    with pytest.raises(ChemistryInputError) as err:
+        residual_carbonate({"CaO": 60.0, "CO2": 2.0}, AW, {"CaO": 50.0, "CO2": 0.0})
+    assert str(err.value) == "the raw stone reports no CO2: decarbonation undefined"
+    with pytest.raises(ChemistryInputError) as err:
+        residual_carbonate({"CaO": 60.0, "SiO2": 20.0}, AW)
+    assert str(err.value) == "the analysis lacks CO2 (mass %)"
+    with pytest.raises(ChemistryInputError) as err:
+        residual_carbonate({"CaO": 60.0, "CO2": 2.0}, AW, {"CaO": 50.0, "SiO2": 9.0})
+    assert str(err.value) == "the analysis lacks CO2 (mass %)"
+
+
+def test_carbonates_of_a_stone_reported_without_silica():
+    # pure calcite by its oxides (periodictable): CaO M(CaO)/M(CaCO3)·100 %, CO2 the rest;
+    # all of it is CaCO3 (100 %), none MgCO3, nothing unassigned
+    f = periodictable.formula
+    cao = 100 * f("CaO").mass / f("CaCO3").mass
+    carb = carbonate_content({"CaO": cao, "CO2": 100 - cao}, AW)
+    assert (carb.caco3, carb.mgco3, carb.unassigned_co2) == pytest.approx((100.0, 0.0, 0.0),
+                                                                          abs=2e-3)
+    with pytest.raises(ChemistryInputError) as err:
+        carbonate_content({"CaO": 50.0, "SiO2": 5.0}, AW)
+    assert str(err.value) == "the analysis lacks CO2 (mass %)"
