@@ -266,3 +266,42 @@ def test_carbonates_of_a_stone_reported_without_silica():
     with pytest.raises(ChemistryInputError) as err:
         carbonate_content({"CaO": 50.0, "SiO2": 5.0}, AW)
     assert str(err.value) == "the analysis lacks CO2 (mass %)"
+
+
+def test_carbonates_whole_with_co2_beyond_both_capacities():
+    # CaO 30, MgO 2, CO2 30 mass % (periodictable molar masses, by hand):
+    # CaO carries 30·44.009/56.077 = 23.544 % CO2 (calcite 53.544 %); the rest 6.456 % is
+    # more than MgO can carry, 2·44.009/40.304 = 2.184 % (MgCO3 4.184 %); unassigned 4.272 %
+    f = periodictable.formula
+    m = {k: f(k).mass for k in ("CaO", "MgO", "CO2", "CaCO3", "MgCO3")}
+    to_ca = 30 * m["CO2"] / m["CaO"]
+    to_mg = 2 * m["CO2"] / m["MgO"]
+    carb = carbonate_content({"CaO": 30.0, "MgO": 2.0, "CO2": 30.0, "SiO2": 10.0}, AW)
+    assert (to_ca, to_mg, 30 - to_ca - to_mg) == pytest.approx((23.544, 2.184, 4.272), abs=1e-3)
+    assert (carb.co2_to_cao, carb.co2_to_mgo, carb.unassigned_co2) == pytest.approx(
+        (to_ca, to_mg, 30 - to_ca - to_mg), rel=1e-4)
+    assert (carb.caco3, carb.mgco3) == pytest.approx(
+        (to_ca * m["CaCO3"] / m["CO2"], to_mg * m["MgCO3"] / m["CO2"]), rel=1e-4)
+    assert carb.method == "CO2 assigned to CaO as calcite first, the remainder to MgO as MgCO3"
+
+
+def test_clay_of_a_lime_free_clay_and_without_alumina():
+    # kaolinite as oxides (no CaO: a clay, not a marl): SiO2 + Al2O3 + combined water is all
+    # of it, 100 % (the oxides of 100 % kaolinite, by hand in test_synthetic_marl_oxides_by_hand)
+    kaol = oxides_from_minerals({KAOLINITE: 100.0}, AW) | {"CO2": 0.0}
+    est = clay_fraction(kaol, AW)
+    assert est.fraction == pytest.approx(100.0, abs=1e-9)
+    assert est.method == "SiO2 + Al2O3 + Fe2O3 + combined water (H2O+ as reported)"
+    # no Al2O3 reported: SiO2 12 + Fe2O3 3 + (LOI 40 − CO2 39.5 = 0.5 water) = 15.5 %; a
+    # combined water of half a per cent is a water, not a refusal
+    est = clay_fraction({"CaO": 45.0, "SiO2": 12.0, "Fe2O3": 3.0, "CO2": 39.5, "LOI": 40.0}, AW)
+    assert est.fraction == pytest.approx(15.5, abs=1e-9)
+    assert est.method == ("SiO2 + Al2O3 + Fe2O3 + combined water "
+                          "(LOI - CO2 - moisture - organic matter)")
+
+
+def test_clay_refused_whole_when_co2_exceeds_the_loss():
+    with pytest.raises(ChemistryInputError) as err:
+        clay_fraction({"CaO": 45.0, "SiO2": 12.0, "CO2": 39.5, "LOI": 39.0}, AW)
+    assert str(err.value) == ("CO2 (with the moisture and organic matter reported) exceeds LOI:"
+                              " combined water would be negative")
