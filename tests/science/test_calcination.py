@@ -305,3 +305,23 @@ def test_clay_refused_whole_when_co2_exceeds_the_loss():
         clay_fraction({"CaO": 45.0, "SiO2": 12.0, "CO2": 39.5, "LOI": 39.0}, AW)
     assert str(err.value) == ("CO2 (with the moisture and organic matter reported) exceeds LOI:"
                               " combined water would be negative")
+
+
+def test_clay_with_no_combined_water_and_by_residue():
+    # LOI equal to CO2: combined water exactly 0, accepted: SiO2 10 + Al2O3 4 = 14 % (by hand)
+    ox = {"CaO": 30.0, "MgO": 2.0, "SiO2": 10.0, "Al2O3": 4.0, "SO3": 1.5, "CO2": 30.0,
+          "LOI": 30.0}
+    assert clay_fraction(ox, AW).fraction == pytest.approx(14.0, abs=1e-12)
+    # residue: 100 − CaCO3 − MgCO3 − SO3, the carbonates as in
+    # test_carbonates_whole_with_co2_beyond_both_capacities (periodictable):
+    # 100 − 53.544 − 4.184 − 1.5 = 40.772 % (by hand)
+    f = periodictable.formula
+    caco3 = 30 * f("CaCO3").mass / f("CaO").mass
+    mgco3 = 2 * f("MgCO3").mass / f("MgO").mass
+    est = clay_fraction(ox, AW, "residue")
+    assert 100 - caco3 - mgco3 - 1.5 == pytest.approx(40.772, abs=2e-3)
+    assert est.fraction == pytest.approx(100 - caco3 - mgco3 - 1.5, rel=1e-4)
+    assert est.method == "non-carbonate residue: 100 - CaCO3 - MgCO3 (from CO2) - SO3"
+    with pytest.raises(ChemistryInputError) as err:
+        clay_fraction(ox, AW, "sieve")
+    assert str(err.value) == "unknown clay method 'sieve': use 'oxide_sum' or 'residue'"
