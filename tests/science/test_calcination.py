@@ -325,3 +325,51 @@ def test_clay_with_no_combined_water_and_by_residue():
     with pytest.raises(ChemistryInputError) as err:
         clay_fraction(ox, AW, "sieve")
     assert str(err.value) == "unknown clay method 'sieve': use 'oxide_sum' or 'residue'"
+
+
+@pytest.mark.parametrize("clay, inside, message", [
+    # the natural-cement range 20-30 % (common practice); each edge inside, beyond it outside
+    (20.0, True, "clay 20.0 % lies in the natural-cement range 20-30 %"),
+    (30.0, True, "clay 30.0 % lies in the natural-cement range 20-30 %"),
+    (19.96, False, "clay 20.0 % is below the natural-cement range 20-30 %"),
+    (30.04, False, "clay 30.0 % is above the natural-cement range 20-30 %"),
+    (12.5, False, "clay 12.5 % is below the natural-cement range 20-30 %"),
+])
+def test_clay_range_edges_and_words(clay, inside, message):
+    got = clay_range_check(clay, 20.0, 30.0)
+    assert (got.value, got.low, got.high, got.inside, got.message) == (clay, 20.0, 30.0, inside,
+                                                                       message)
+
+
+@pytest.mark.parametrize("clay, low, high, message", [
+    (25.0, 30.0, 30.0, "need a finite clay % and low < high: 25.0, 30.0-30.0"),
+    (float("nan"), 20.0, 30.0, "need a finite clay % and low < high: nan, 20.0-30.0"),
+    (float("nan"), 30.0, 20.0, "need a finite clay % and low < high: nan, 30.0-20.0"),
+])
+def test_clay_range_refusals_whole(clay, low, high, message):
+    with pytest.raises(ChemistryInputError) as err:
+        clay_range_check(clay, low, high)
+    assert str(err.value) == message
+
+
+def test_co2_balance_needs_cao_and_co2_only_and_a_tolerance_of_zero_is_allowed():
+    # pure calcite's oxides (periodictable): capacity equals the CO2 measured, gap 0 within
+    # the 4-digit weights; a tolerance of 0.5 mass %: agrees
+    f = periodictable.formula
+    cao = 100 * f("CaO").mass / f("CaCO3").mass
+    bal = co2_balance({"CaO": cao, "CO2": 100 - cao}, AW, tolerance=0.5)
+    assert bal.gap == pytest.approx(0.0, abs=2e-3) and bal.measured == 100 - cao
+    assert not bal.flagged
+    assert bal.message == "CO2 measured agrees with CaO + MgO within 0.50 %"
+    # a tolerance of 0 mass % is allowed (exact agreement asked): CaO 50 could carry
+    # 50·44.009/56.077 = 39.240 % CO2 (by hand), 9.240 % more than the 30 % measured
+    bal = co2_balance({"CaO": 50.0, "CO2": 30.0}, AW, tolerance=0.0)
+    assert bal.capacity == pytest.approx(39.240, abs=1e-3) and bal.flagged
+    assert bal.message == ("CaO and MgO could carry 9.24 % more CO2 than measured: part of the "
+                           "lime and magnesia is not carbonate, or the analysis is inconsistent")
+    with pytest.raises(ChemistryInputError) as err:
+        co2_balance({"CaO": 50.0, "CO2": 30.0}, AW, tolerance=-0.1)
+    assert str(err.value) == "CO2 tolerance must be >= 0 mass %, got -0.1"
+    with pytest.raises(ChemistryInputError) as err:
+        co2_balance({"CaO": 50.0, "SiO2": 5.0}, AW, tolerance=1.0)
+    assert str(err.value) == "the analysis lacks CO2 (mass %)"
