@@ -373,3 +373,17 @@ def test_co2_balance_needs_cao_and_co2_only_and_a_tolerance_of_zero_is_allowed()
     with pytest.raises(ChemistryInputError) as err:
         co2_balance({"CaO": 50.0, "SiO2": 5.0}, AW, tolerance=1.0)
     assert str(err.value) == "the analysis lacks CO2 (mass %)"
+
+
+def test_co2_balance_on_its_edges_and_the_excess_worded_whole():
+    # no CaO, no CO2: gap 0 against a tolerance of 0 is agreement, not a flag (strict edges)
+    bal = co2_balance({"CaO": 0.0, "CO2": 0.0}, AW, tolerance=0.0)
+    assert (bal.capacity, bal.gap, bal.flagged) == (0.0, 0.0, False)
+    # no CaO, CO2 2 %: the gap is exactly −2, on the edge of a 2 % tolerance: agreement
+    bal = co2_balance({"CaO": 0.0, "CO2": 2.0}, AW, tolerance=2.0)
+    assert (bal.gap, bal.flagged) == (-2.0, False)
+    assert bal.message == "CO2 measured agrees with CaO + MgO within 2.00 %"
+    # CaO 40, CO2 40: CaO carries 40·44.009/56.077 = 31.392 % (by hand), 8.608 % short
+    bal = co2_balance({"CaO": 40.0, "SiO2": 5.0, "CO2": 40.0}, AW, tolerance=5.0)
+    assert bal.gap == pytest.approx(-8.608, abs=1e-3) and bal.flagged
+    assert bal.message == "CO2 measured exceeds what CaO and MgO could carry by 8.61 %"
