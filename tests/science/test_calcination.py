@@ -387,3 +387,27 @@ def test_co2_balance_on_its_edges_and_the_excess_worded_whole():
     bal = co2_balance({"CaO": 40.0, "SiO2": 5.0, "CO2": 40.0}, AW, tolerance=5.0)
     assert bal.gap == pytest.approx(-8.608, abs=1e-3) and bal.flagged
     assert bal.message == "CO2 measured exceeds what CaO and MgO could carry by 8.61 %"
+
+
+@pytest.mark.parametrize("minerals, message", [
+    ({"CaCO3": -1.0}, "CaCO3 must be a finite, non-negative mass %"),
+    ({"CaCO3": float("nan")}, "CaCO3 must be a finite, non-negative mass %"),
+    # Cl has an atomic weight but no reporting oxide in an oxide analysis
+    ({"NaCl": 1.0}, "no reporting oxide for 'Cl' in NaCl"),
+    # hydrogen alone would need one O per H2 (as H2O) and holds none
+    ({"H2": 1.0}, "H2 cannot be written as oxides: oxygen does not balance"),
+    # FeO reported as Fe2O3 needs 1.5 O per Fe and holds 1: half an oxygen short
+    ({"FeO": 1.0}, "FeO cannot be written as oxides: oxygen does not balance"),
+])
+def test_minerals_refused_whole(minerals, message):
+    with pytest.raises(ChemistryInputError) as err:
+        oxides_from_minerals(minerals, AW)
+    assert str(err.value) == message
+
+
+def test_an_element_without_atomic_weight_refused_whole():
+    # "X" reads as an element symbol (one capital) that the table does not hold
+    for formula, element in (("CaX", "X"), ("X·2H2O", "X")):
+        with pytest.raises(ChemistryInputError) as err:
+            molar_mass(formula, AW)
+        assert str(err.value) == f"no atomic weight for {element!r} (formula {formula!r})"
