@@ -211,7 +211,7 @@ def bench_xlsx(demo: Path, work: Path, runs: int) -> None:
           "process (time.process_time), medians, so other jobs on the machine count less")
 
 
-_INFERENCE_ENTRIES = ("fit", "bands", "interval", "components", "posterior_summary", "falls")
+_INFERENCE_ENTRIES = ("fit", "fit_many", "bands", "interval", "components", "posterior_summary", "falls")
 
 
 def _inference_share(project: Path) -> tuple[float, float, float]:
