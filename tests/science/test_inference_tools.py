@@ -252,3 +252,75 @@ def test_the_default_quantile_is_the_normal_97_5_percent():
     assert it._Z95 == pytest.approx(Z975, rel=1e-12)          # scipy.stats.norm.ppf(0.975)
     assert it.falls([1.0, 2.0], [Z975 * s + 1e-9, 0.0], [3, 3], 0.0, 0.1) != []
     assert it.falls([1.0, 2.0], [Z975 * s - 1e-9, 0.0], [3, 3], 0.0, 0.1) == []
+
+
+# ---------------------------------------------------------------- the Laplace fit of many series
+X_LIN = np.array([0.0, 1.0, 2.0, 4.0])
+Y_LIN = np.array([[0.9, 3.1, 4.9, 9.2], [2.0, 1.5, 1.1, 0.2], [-1.0, 0.0, 1.2, 2.9]])
+SIG_LIN, PRIOR_SD_LIN = 0.5, np.array([3.0, 2.0])
+
+
+def _linear_many(z, idx):
+    # residuals and Jacobian of Bayesian linear regressions, one per series (rows of Y_LIN)
+    xm = np.column_stack([np.ones_like(X_LIN), X_LIN])
+    r = np.concatenate([(Y_LIN[idx] - z @ xm.T) / SIG_LIN, z / PRIOR_SD_LIN], axis=1)
+    j = np.vstack([-xm / SIG_LIN, np.diag(1 / PRIOR_SD_LIN)])
+    return r, np.broadcast_to(j, (len(idx), *j.shape)).copy()
+
+
+def test_laplace_fit_many_equals_bayesian_linear_regression_per_series():
+    # closed form per series (Bishop, Pattern Recognition and Machine Learning, eq. 3.53-3.54):
+    # Cov = (XᵀX/σ² + Λ⁻¹)⁻¹, mode = Cov·Xᵀy/σ²; cost ½|r|² and p_eff = tr(Cov·XᵀX/σ²) there
+    xm = np.column_stack([np.ones_like(X_LIN), X_LIN])
+    cov = np.linalg.inv(xm.T @ xm / SIG_LIN ** 2 + np.diag(1 / PRIOR_SD_LIN ** 2))
+    laps = it.laplace_fit_many(_linear_many, np.zeros((3, 2)), X_LIN.size)
+    assert len(laps) == 3
+    for i, lap in enumerate(laps):
+        mode = cov @ xm.T @ Y_LIN[i] / SIG_LIN ** 2
+        r, _ = _linear_many(mode[None, :], np.array([i]))
+        assert lap.mode == pytest.approx(mode, rel=1e-8, abs=1e-10)
+        assert lap.cov == pytest.approx(cov, rel=1e-10)
+        assert lap.cost == pytest.approx(0.5 * np.sum(r ** 2), rel=1e-12)
+        assert lap.p_eff == pytest.approx(np.trace(cov @ xm.T @ xm) / SIG_LIN ** 2, rel=1e-10)
+
+
+T_EXP = np.array([0.5, 1.0, 2.0, 4.0, 8.0])
+Y_EXP = np.array([[4.1, 3.3, 2.2, 1.0, 0.25], [9.0, 8.1, 6.4, 4.2, 1.9]])
+
+
+def _exp_many(z, idx):
+    # y = a·exp(−b·t), parameters z = (ln a, ln b): residuals and Jacobian per series
+    a, b = np.exp(z[:, 0])[:, None], np.exp(z[:, 1])[:, None]
+    f = a * np.exp(-b * T_EXP)
+    return f - Y_EXP[idx], np.stack([f, -b * T_EXP * f], axis=2)
+
+
+def test_laplace_fit_many_of_a_nonlinear_law_against_scipy_least_squares():
+    # reference: scipy.optimize.least_squares of each series alone, tight tolerances (1e-15)
+    from scipy import optimize
+    z0 = np.array([[1.0, -1.0], [2.0, -2.0]])
+    laps = it.laplace_fit_many(_exp_many, z0, T_EXP.size)
+    for i, lap in enumerate(laps):
+        ref = optimize.least_squares(
+            lambda z: _exp_many(z[None, :], np.array([i]))[0][0], z0[i],
+            jac=lambda z: _exp_many(z[None, :], np.array([i]))[1][0],
+            ftol=1e-15, xtol=1e-15, gtol=1e-15)
+        assert lap.mode == pytest.approx(ref.x, abs=1e-8)
+        assert lap.cost == pytest.approx(ref.cost, rel=1e-12)
+        j = ref.jac
+        assert lap.cov == pytest.approx(np.linalg.inv(j.T @ j), rel=1e-6)
+        # all residuals are data here: p_eff = tr(Cov·JᵀJ) = 2 parameters
+        assert lap.p_eff == pytest.approx(2.0, rel=1e-9)
+
+
+def test_laplace_fit_many_gives_none_where_a_series_cannot_be_solved():
+    # one step allowed: the nonlinear series do not converge -> None each (fitted alone later)
+    assert it.laplace_fit_many(_exp_many, np.array([[1.0, -1.0], [2.0, -2.0]]), T_EXP.size,
+                               max_iter=1) == [None, None]
+
+    # a start where the residuals are not finite (the law overflows): None for that series only
+    def guarded(z, idx):
+        with np.errstate(over="ignore", invalid="ignore"):
+            return _exp_many(z, idx)
+    laps = it.laplace_fit_many(guarded, np.array([[1.0, -1.0], [800.0, -2.0]]), T_EXP.size)
+    assert laps[0] is not None and laps[1] is None
