@@ -411,3 +411,13 @@ def test_an_element_without_atomic_weight_refused_whole():
         with pytest.raises(ChemistryInputError) as err:
             molar_mass(formula, AW)
         assert str(err.value) == f"no atomic weight for {element!r} (formula {formula!r})"
+
+
+def test_a_leading_number_multiplies_and_a_misplaced_one_is_refused_whole():
+    # "2H2O": two waters, H 4 and O 2 (the docstring's rule: a leading number multiplies)
+    assert parse_formula("2H2O") == {"H": 4.0, "O": 2.0}
+    assert parse_formula("0.5CaO") == {"Ca": 0.5, "O": 0.5}
+    for formula, token in (("(2H2O)", "2"), ("Ca(2OH)2", "2")):
+        with pytest.raises(ChemistryInputError) as err:
+            parse_formula(formula)
+        assert str(err.value) == f"misplaced number {token!r} in formula {formula!r}"
