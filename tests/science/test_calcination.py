@@ -421,3 +421,21 @@ def test_a_leading_number_multiplies_and_a_misplaced_one_is_refused_whole():
         with pytest.raises(ChemistryInputError) as err:
             parse_formula(formula)
         assert str(err.value) == f"misplaced number {token!r} in formula {formula!r}"
+
+
+@pytest.mark.parametrize("formula, message", [
+    ("Ca)2", "unbalanced ')' in formula 'Ca)2'"),
+    ("()", "formula '()' names no element"),
+    ("Ca-2", "cannot read formula 'Ca-2' at '-2'"),
+    ("Ca(OH", "missing ')' in formula 'Ca(OH'"),
+])
+def test_formula_refusals_whole(formula, message):
+    with pytest.raises(ChemistryInputError) as err:
+        parse_formula(formula)
+    assert str(err.value) == message
+
+
+def test_spaces_in_a_formula_are_ignored():
+    # "Ca CO3" is CaCO3: Ca 1, C 1, O 3 (by hand)
+    assert parse_formula("Ca CO3") == {"Ca": 1.0, "C": 1.0, "O": 3.0}
+    assert parse_formula("CaSO4 · 2H2O") == {"Ca": 1.0, "S": 1.0, "O": 6.0, "H": 4.0}
