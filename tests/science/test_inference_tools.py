@@ -324,3 +324,12 @@ def test_laplace_fit_many_gives_none_where_a_series_cannot_be_solved():
             return _exp_many(z, idx)
     laps = it.laplace_fit_many(guarded, np.array([[1.0, -1.0], [800.0, -2.0]]), T_EXP.size)
     assert laps[0] is not None and laps[1] is None
+
+
+def test_falls_where_the_within_batch_scatter_decides():
+    # σb = 0, σw = 0.3, three prisms each: s = sqrt(0.09·(1/3 + 1/3)) = 0.244949,
+    # q·s = 1.959964·0.244949 = 0.480091 (by hand); a drop of 0.6 on the log scale is a
+    # fall, one of 0.45 is not (the scatter of two means of three falls as 1/n, not as n)
+    assert it.falls([28.0, 90.0], [0.6, 0.0], [3, 3], 0.3, 0.0) == [
+        (28.0, 90.0, pytest.approx(math.exp(-0.6), rel=1e-12))]
+    assert it.falls([28.0, 90.0], [0.45, 0.0], [3, 3], 0.3, 0.0) == []
