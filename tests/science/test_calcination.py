@@ -439,3 +439,13 @@ def test_spaces_in_a_formula_are_ignored():
     # "Ca CO3" is CaCO3: Ca 1, C 1, O 3 (by hand)
     assert parse_formula("Ca CO3") == {"Ca": 1.0, "C": 1.0, "O": 3.0}
     assert parse_formula("CaSO4 · 2H2O") == {"Ca": 1.0, "S": 1.0, "O": 6.0, "H": 4.0}
+
+
+def test_carbonates_without_magnesia_leave_the_excess_unassigned():
+    # CaO 30, CO2 30, no MgO reported: CaO carries 23.544 % (as above, by hand); none can go
+    # to MgCO3, so 30 − 23.544 = 6.456 % is unassigned
+    f = periodictable.formula
+    to_ca = 30 * f("CO2").mass / f("CaO").mass
+    carb = carbonate_content({"CaO": 30.0, "CO2": 30.0, "SiO2": 10.0}, AW)
+    assert (carb.co2_to_mgo, carb.mgco3) == (0.0, 0.0)
+    assert carb.unassigned_co2 == pytest.approx(30 - to_ca, rel=1e-4)
