@@ -8,12 +8,12 @@ import pytest
 
 from specgen.build import check
 from specgen import cache
-from specgen.report.mathsvg import svg_of
+from specgen.report.mathsvg import svg_bytes, svg_of
 from specgen.report.render import render
 
 
 def _render(project_dir, folder=None):
-    svg_of.cache_clear()  # no in-process memo: only the folder cache may help
+    svg_bytes.cache_clear()  # no in-process memo: only the folder cache may help
     project, results = check(project_dir)
     with cache.using(folder):
         pages = render(project, results)
@@ -145,7 +145,7 @@ def test_math_drawn_beside_is_the_same_math(tmp_path):
     from specgen.report import mathsvg
     latexes = [rf"x_{{{i}}} = \frac{{{i}}}{{{i + 1}}}" for i in range(12)]
     alone = {x: mathsvg._draw(x).decode("utf-8") for x in latexes}   # one process, no cache
-    svg_of.cache_clear()
+    svg_bytes.cache_clear()
     with cache.using(tmp_path / "cache"):
         with mathsvg.drawn_beside(latexes):
             assert len(multiprocessing.active_children()) == 1
@@ -154,8 +154,8 @@ def test_math_drawn_beside_is_the_same_math(tmp_path):
         assert all(cache.lookup("math", x) == alone[x].encode("utf-8") for x in latexes)
     assert got == alone
     # without a cache folder nothing is drawn beside: the block draws everything itself
-    svg_of.cache_clear()
+    svg_bytes.cache_clear()
     with mathsvg.drawn_beside(latexes):
         assert multiprocessing.active_children() == []
         assert {x: svg_of(x) for x in latexes} == alone
-    svg_of.cache_clear()
+    svg_bytes.cache_clear()
