@@ -263,3 +263,29 @@ def test_the_first_pages_read_exactly_as_the_built_pages(starter_build, tmp_path
         assert _article(served) == _article(whole), page
     assert "This page is being built for the preview" in (out / "R1" / "calculations.html"
                                                          ).read_text(encoding="utf-8")
+
+
+def test_a_chapter_declared_as_one_page_that_makes_a_family_is_refused():
+    # render names a one-page chapter after the first pages from its declaration alone, so a
+    # chapter whose declaration and pages disagree is an error, never a wrong navigation
+    from specgen.report.chapters import ChapterSpec
+    from specgen.report.render import _pages_of, one_page
+
+    def family(env) -> dict:
+        return [{"path": "card/a.md", "title": "A"}]
+    spec = ChapterSpec("card.md", "Cards", 0, "card.md.j2", family)
+    assert one_page(spec)
+    with pytest.raises(TypeError, match="declared as one page"):
+        _pages_of(spec, family(None))
+
+
+def test_a_page_only_named_is_never_published(tmp_path):
+    from specgen.publish.preview import site_only
+    from specgen.report.pageset import PageSet
+    pages = PageSet()
+    pages.add_page("index.md", "Summary", "# Summary\n")
+    pages.add_page("checks.md", "Check register", "")
+    pages.unrendered.add("checks.md")
+    with pytest.raises(ValueError, match="pages not rendered cannot be laid out: checks.md"):
+        site_only(None, None, pages, tmp_path)            # the whole site from a first render
+    assert not any(tmp_path.iterdir())                     # nothing written
