@@ -65,7 +65,7 @@ class Afterwards:
         started = time.monotonic()
         try:
             prepared = complete(prepared)
-        except SpecgenError as exc:
+        except Exception as exc:  # noqa: BLE001 - reported on the pages, never a silent stop
             return self._not_built(exc)
         with self._site_lock:
             with self.state.lock:
@@ -83,9 +83,13 @@ class Afterwards:
         return prepared
 
     def _not_built(self, exc) -> None:
+        """Say on every page, and in the terminal, why the rest of the site was not built."""
+        from specgen.errors import InputErrors, SpecgenError
+        text = exc.report() if isinstance(exc, InputErrors) else str(exc) \
+            if isinstance(exc, SpecgenError) else f"{type(exc).__name__}: {exc}"
         with self.state.lock:
-            self.state.notice = str(exc)
-        self.say(f"the rest of the site was not built:\n{exc}")
+            self.state.notice = text
+        self.say(f"the rest of the site was not built:\n{text}")
 
     def _next_figure(self) -> str | None:
         """The figure to draw next: the first not drawn of the page last asked for, else of
