@@ -25,11 +25,15 @@ from __future__ import annotations
 
 import contextlib
 import functools
+import threading
 
 CHECKED = "0.13"   # the ziamath version whose layout code the shortcuts were read against
 
 _ORIGINAL: dict = {}
 _PLAIN: list[bool] = []   # non-empty within plain(): install() leaves ziamath as it ships
+# the live preview draws in a background thread: installing twice at once would keep the
+# shortcut itself as the "original" it calls
+_LOCK = threading.RLock()
 
 
 def _stretchy_names() -> frozenset[str]:
@@ -116,18 +120,21 @@ def _uninstall() -> None:
 def install() -> bool:
     """Apply the shortcuts for good (idempotent); False when ziamath is not ``CHECKED``
     (or within :func:`plain`)."""
-    return not _PLAIN and _install()
+    with _LOCK:
+        return not _PLAIN and _install()
 
 
 @contextlib.contextmanager
 def plain():
     """Within the block, ziamath lays out as it ships (the reference the tests compare with)."""
-    was = bool(_ORIGINAL)
-    _uninstall()
-    _PLAIN.append(True)
+    with _LOCK:
+        was = bool(_ORIGINAL)
+        _uninstall()
+        _PLAIN.append(True)
     try:
         yield
     finally:
-        _PLAIN.pop()
-        if was and not _PLAIN:
-            _install()
+        with _LOCK:
+            _PLAIN.pop()
+            if was and not _PLAIN:
+                _install()
