@@ -2,6 +2,7 @@
 import pytest
 
 from specgen.build import check
+from specgen.checks.result import Basis, CheckResult, Input, Limit, Quantity, Step
 
 # Published analysis: "Report of the tests of metals and other materials for industrial
 # purposes ... Watertown Arsenal" (tests of 1900, Washington, 1902), p. 474, table
@@ -165,3 +166,192 @@ def test_index_of_a_natural_cement_outside_its_band_and_without_lime(demo_copy):
         "Cementation index", "not_assessed", None, "", "not assessed: the analysis gives no "
         "SiO2", ())
     assert [b.ref for b in c.basis] == ["eckel1922"]
+
+
+# --- CHEM-CLOSURE and CHEM-CI on hand-made analyses (no demo check) -------------------------
+# Every expected value below is written out by hand from the test's own inputs; the rules are
+# those of content/rules/analysis.yaml (closure ±1 % pass, ±2.5 % attention, band margin 0.05,
+# common practice) and the bands those of content/data/hydraulicity_bands.yaml (Eckel's bands
+# as reproduced in Boynton, from memory: 0.3 / 0.5 / 0.7 / 1.1 / 1.7).
+LAB = "Harbourside Test House, report HT-17"          # invented laboratory
+CLOSURE_BASIS = Basis("common practice", note="a careful wet-chemical or XRF analysis with "
+                      "LOI closes within about ±1 %")
+ECKEL = Basis("reference", "eckel1922", "cementation index, as reproduced in Boynton (1980)")
+BOYNTON = Basis("reference", "boynton1980", "hydraulicity bands of the cementation index")
+
+
+def _analysis(ox, aid="A1", lab="", material=None, split=None):
+    from types import SimpleNamespace as NS
+    return NS(id=aid, mass_percent=dict(ox), laboratory=lab, material=material,
+              lumped_split=split or {})
+
+
+def _ctx(binders=None, overrides=()):
+    """A hand-made context: ``binders`` {id: family}; the built-in rules with ``overrides``
+    ((rule, value, justification), as dossier.yaml rule_overrides gives them)."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.rules import RuleBook
+    from specgen.checks.run import Context
+    project = NS(binders={b: NS(id=b, type=t) for b, t in (binders or {}).items()})
+    book = RuleBook([NS(rule=r, value=v, justification=j) for r, v, j in overrides])
+    return Context(project, book)
+
+
+def _closure_limit(overridden=""):
+    return Limit("within", 99.0, 101.0, "%", "100 ± 1 % (attention to ± 2.5 %)",
+                 rule="analysis.closure_pass", overridden=overridden)
+
+
+def test_closure_without_loi_adds_its_parts_whole():
+    """No LOI reported: CO2 and H2O are the loss and are added.  By hand: 20 + 40 + 2.5 + 30
+    + 7 = 99.5 % (−0.50 %, within ±1 %: pass); loss on ignition = CO2 + H2O = 37 %.  Inputs
+    in the conventional oxide order (SiO2, CaO, MgO, CO2, then H2O, a name outside it)."""
+    from specgen.checks.composition_checks import closure_check
+    a = _analysis({"H2O": 7.0, "CaO": 40.0, "CO2": 30.0, "SiO2": 20.0, "MgO": 2.5}, lab=LAB)
+    src = f"analysis A1 ({LAB})"
+    assert closure_check(a, _ctx()) == CheckResult(
+        code="CHEM-CLOSURE", title="Oxide analysis closure", subject="A1",
+        subject_kind="analysis", status="pass", value=99.5, unit="%", basis=(CLOSURE_BASIS,),
+        steps=(Step("Sum of reported constituents", r"\Sigma = \sum_i w_i",
+                    (Input("w(SiO2)", "SiO2", 20.0, "%", src),
+                     Input("w(CaO)", "CaO", 40.0, "%", src),
+                     Input("w(MgO)", "MgO", 2.5, "%", src),
+                     Input("w(CO2)", "CO2", 30.0, "%", src),
+                     Input("w(H2O)", "H2O", 7.0, "%", src)),
+                    r"\Sigma = 20.00 + 40.00 + 2.50 + 30.00 + 7.00", 99.5, "%", "Σ"),),
+        limit=_closure_limit(),
+        message=f"total 99.50 %, -0.50 % from 100 %; {CLOSURE_WORDS}", notes=(),
+        quantities=(Quantity("analysis_total", 99.5, "%", "sum of constituents"),
+                    Quantity("loss_on_ignition", 37.0, "%", "loss on ignition")))
+
+
+@pytest.mark.parametrize("loi, status, words", [
+    (26.0, "pass", "total 101.00 %, +1.00 % from 100 %"),        # exactly on the ±1 % edge
+    (26.1, "attention", "total 101.10 %, +1.10 % from 100 %"),
+    (27.5, "attention", "total 102.50 %, +2.50 % from 100 %"),   # exactly on the ±2.5 % edge
+    (22.5, "attention", "total 97.50 %, -2.50 % from 100 %"),
+    (27.6, "fail", "total 102.60 %, +2.60 % from 100 %"),
+    (24.0, "pass", "total 99.00 %, -1.00 % from 100 %")])
+def test_closure_edges_with_loi_and_its_parts(loi, status, words):
+    """LOI reported with its parts CO2 and H2O: only LOI is added (by hand 25 + 50 + LOI),
+    the parts are noted in oxide order (CO2 before H2O); an edge of the rule belongs to the
+    better status.  No laboratory named: the source is the analysis alone."""
+    from specgen.checks.composition_checks import closure_check
+    a = _analysis({"SiO2": 25.0, "H2O": 4.0, "CaO": 50.0, "CO2": 20.0, "LOI": loi}, aid="A2")
+    c = closure_check(a, _ctx())
+    assert (c.status, c.message) == (status, f"{words}; {CLOSURE_WORDS}")
+    assert c.value == pytest.approx(75.0 + loi, abs=1e-9)
+    assert c.notes == (f"CO2 = 20 % is part of LOI = {loi:g} %: not added a second time",
+                       f"H2O = 4 % is part of LOI = {loi:g} %: not added a second time")
+    assert [(i.name, i.source) for i in c.steps[0].inputs] == [
+        ("SiO2", "analysis A2"), ("CaO", "analysis A2"), ("LOI", "analysis A2")]
+    assert c.quantities[1] == Quantity("loss_on_ignition", loi, "%", "loss on ignition")
+
+
+def test_closure_with_the_attention_band_overridden():
+    """A project override of the attention band (3 %, with its justification): the limit
+    names the justification, the message the new band; 102.6 % is now attention."""
+    from specgen.checks.composition_checks import closure_check
+    a = _analysis({"SiO2": 25.0, "CaO": 50.0, "LOI": 27.6})
+    c = closure_check(a, _ctx(overrides=[("analysis.closure_attention", 3.0,
+                                          "the laboratory's stated repeatability")]))
+    assert (c.status, c.message) == ("attention", "total 102.60 %, +2.60 % from 100 %; pass "
+                                     "within ±1 %, attention within ±3 %")
+    assert c.limit == Limit("within", 99.0, 101.0, "%", "100 ± 1 % (attention to ± 3 %)",
+                            rule="analysis.closure_pass",
+                            overridden="the laboratory's stated repeatability")
+
+
+def _ci_expected(aid, ox, ci, band, low, high, edges, status, message, src, notes=(),
+                 borderline=False):
+    """CHEM-CI written out whole from its inputs (``ox`` the oxides the formula reads)."""
+    g = lambda k: ox.get(k, 0.0)  # noqa: E731
+    return CheckResult(
+        code="CHEM-CI", title="Cementation index", subject=aid, subject_kind="analysis",
+        status=status, value=ci, unit="", basis=(ECKEL, BOYNTON),
+        steps=(Step("Cementation index (Eckel)",
+                    r"CI = \frac{2.8\,S + 1.1\,A + 0.7\,F}{C + 1.4\,M}",
+                    tuple(Input(s, n, g(n), "%", src) for s, n in (
+                        ("S", "SiO2"), ("A", "Al2O3"), ("F", "Fe2O3"), ("C", "CaO"),
+                        ("M", "MgO"))),
+                    rf"CI = \frac{{2.8 \times {g('SiO2'):.2f} + 1.1 \times {g('Al2O3'):.2f} + "
+                    rf"0.7 \times {g('Fe2O3'):.2f}}}{{{g('CaO'):.2f} + 1.4 \times "
+                    rf"{g('MgO'):.2f}}}", ci, "", "CI"),),
+        limit=Limit("within", low, high, "", f"band '{band}': {edges}",
+                    rule="hydraulicity_bands"),
+        message=message, notes=notes,
+        quantities=(Quantity("cementation_index", ci, "", "Eckel cementation index"),
+                    Quantity("hydraulicity_class", band, "", "band of the cementation index"
+                             + (" (borderline)" if borderline else ""))))
+
+
+def test_index_below_the_table_whole():
+    """SiO2 5, CaO 70: CI = 2.8·5/70 = 0.2 (by hand), below the lowest edge 0.3 and 0.1 from
+    it (more than the 0.05 margin); an analysis of no binder: info."""
+    from specgen.checks.composition_checks import cementation_index_check
+    ox = {"SiO2": 5.0, "CaO": 70.0, "LOI": 25.0}
+    c = cementation_index_check(_analysis(ox, aid="B1", lab=LAB), _ctx())
+    assert c == _ci_expected(
+        "B1", ox, 0.2, "below the lowest band", None, 0.3, "< 0.3", "info",
+        "CI = 0.200: falls in the band 'below the lowest band' (< 0.3)", f"analysis B1 ({LAB})")
+
+
+@pytest.mark.parametrize("material, binders, status, tail", [
+    ("NC9", {"NC9": "natural_cement"}, "attention", ", but binder NC9 is declared a natural "
+                                                    "cement"),
+    ("NC9", {"NC9": "nhl"}, "info", ""),       # a lime's analysis above the table: no verdict
+    ("NC9", {}, "info", ""),                   # a binder the project lacks
+    (None, {"NC9": "natural_cement"}, "info", "")])
+def test_index_above_the_table_against_the_declared_binder(material, binders, status, tail):
+    """SiO2 35, Al2O3 10, Fe2O3 5, CaO 50, MgO 5: CI = (98 + 11 + 3.5)/(50 + 7) = 112.5/57
+    = 1.97368 (by hand), above the highest edge 1.7 by more than the margin: a natural cement
+    declared for it is told it falls outside its band; anything else is information."""
+    from specgen.checks.composition_checks import cementation_index_check
+    ox = {"SiO2": 35.0, "Al2O3": 10.0, "Fe2O3": 5.0, "CaO": 50.0, "MgO": 5.0}
+    c = cementation_index_check(_analysis(ox, aid="B2", material=material), _ctx(binders))
+    assert c == _ci_expected(
+        "B2", ox, 1.9737, "above the highest band", 1.7, None, "≥ 1.7", status,
+        f"CI = 1.974: falls in the band 'above the highest band' (≥ 1.7){tail}",
+        "analysis B2")
+
+
+def test_index_borderline_wins_over_the_declared_binder():
+    """SiO2 24, CaO 60: CI = 67.2/60 = 1.12 (by hand), in the natural-cement band 1.1–1.7 but
+    0.02 from its lower edge (within the 0.05 margin): attention, borderline with the
+    eminently hydraulic band, although the binder is declared a natural cement."""
+    from specgen.checks.composition_checks import cementation_index_check
+    ox = {"SiO2": 24.0, "CaO": 60.0}
+    c = cementation_index_check(_analysis(ox, aid="B3", material="NC9"),
+                                _ctx({"NC9": "natural_cement"}))
+    assert c == _ci_expected(
+        "B3", ox, 1.12, "natural cement", 1.1, 1.7, "1.1–1.7", "attention",
+        "CI = 1.120: falls in the band 'natural cement' (1.1–1.7), within the margin of the "
+        "edge with 'eminently hydraulic lime': borderline", "analysis B3", borderline=True)
+
+
+def test_index_of_a_lumped_analysis_states_the_split():
+    """Al2O3+Fe2O3 10 % split 0.6/0.4 (declared): Al2O3 6, Fe2O3 4; CI = (2.8·25 + 1.1·6 +
+    0.7·4)/60 = 79.4/60 = 1.32333 (by hand), natural cement, declared so: pass; the split is
+    the check's note, worded as the science states an assumption."""
+    from specgen.checks.composition_checks import cementation_index_check
+    a = _analysis({"SiO2": 25.0, "Al2O3+Fe2O3": 10.0, "CaO": 60.0}, aid="B4", material="NC9",
+                  split={"Al2O3+Fe2O3": {"Al2O3": 0.6, "Fe2O3": 0.4}})
+    c = cementation_index_check(a, _ctx({"NC9": "natural_cement"}))
+    assert c == _ci_expected(
+        "B4", {"SiO2": 25.0, "Al2O3": 6.0, "Fe2O3": 4.0, "CaO": 60.0}, 1.3233,
+        "natural cement", 1.1, 1.7, "1.1–1.7", "pass",
+        "CI = 1.323: falls in the band 'natural cement' (1.1–1.7), consistent with binder "
+        "NC9 declared a natural cement", "analysis B4",
+        notes=("Al2O3+Fe2O3 = 10.00 % reported together; split assumed as 60 % Al2O3, "
+               "40 % Fe2O3",))
+
+
+def test_index_without_lime_or_silica_names_both():
+    """Neither CaO nor SiO2: not assessed, both named in the formula's order (C, S)."""
+    from specgen.checks.composition_checks import cementation_index_check
+    c = cementation_index_check(_analysis({"Al2O3": 5.0, "MgO": 3.0, "LOI": 10.0}, aid="B5"),
+                                _ctx())
+    assert c == CheckResult(
+        code="CHEM-CI", title="Cementation index", subject="B5", subject_kind="analysis",
+        status="not_assessed", value=None, unit="", basis=(ECKEL,),
+        message="not assessed: the analysis gives no CaO, SiO2")

@@ -9,6 +9,7 @@ import numpy as np
 import pytest
 
 from specgen.build import check
+from specgen.checks.result import Input, Quantity, Step
 from tests.helpers import by_check, edit, problems
 
 
@@ -527,3 +528,268 @@ def test_colour_result_whole(demo_checked):
             "CIE 1931 2 Degree Standard Observer"]["D65"]))
         want = "#" + "".join(f"{round(float(v) * 255):02x}" for v in rgb)
         assert q[f"{side}_swatch"] == {"hex": want, "clipped": False}
+
+
+# --- COMP-SALT and aluminate_rich on hand-made projects (no demo check) -------------------
+# Edges of content/data/salt_load.yaml, the two tables as their public summaries give them
+# (source named there): WTA 2-6-99 chloride 0.2/0.5, nitrate 0.1/0.3, sulfate 0.5/1.5; the
+# WTA 3-13-01 table (key onorm_b3355) chloride 0.03/0.10, nitrate 0.05/0.15, sulfate
+# 0.10/0.25 mass %; a content on an edge is in the higher class.
+ONORM = "salt-load assessment after WTA-Merkblatt 3-13-01/D (low / medium / high)"
+ONORM_NOTE = (f"table: {ONORM} — the salt-load assessment table of WTA-Merkblatt 3-13-01/D as "
+              "a public conservation wiki gives it; published salt-load tables disagree, this "
+              "one is the project's choice")
+
+
+def _salt_of(unit_salts, historic_salts, table="onorm_b3355", candidates=("MA",)):
+    """COMP-SALT of zone Z9 on a hand-made project: ``*_salts`` (chloride, nitrate, sulfate)
+    of masonry unit U9 and historic mortar H9, or None for no salts (the material exists)."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.rules import RuleBook
+    from specgen.checks.run import Context
+    from specgen.checks.salt_checks import salt_check
+
+    def salts(v):
+        return None if v is None else NS(chloride=v[0], nitrate=v[1], sulfate=v[2])
+    project = NS(masonry_units={"U9": NS(id="U9", salts=salts(unit_salts))},
+                 historic_mortars={"H9": NS(id="H9", salts=salts(historic_salts))},
+                 mixes={}, mortar_properties={},
+                 dossier=NS(compatibility=NS(salt_table=table)))
+    zone = NS(id="Z9", units="U9", historic_mortar="H9", candidates=list(candidates))
+    return salt_check(zone, Context(project, RuleBook()))
+
+
+def test_salt_without_any_content_is_not_assessed():
+    from specgen.checks.result import Basis
+    out = _salt_of(None, None, candidates=("MA", "MB"))
+    assert [(c.code, c.title, c.subject, c.subject_kind, c.status, c.value, c.unit) for c in
+            out] == [("COMP-SALT", "Salt load of the fabric", s, "zone", "not_assessed", None,
+                      "") for s in ("Z9/MA", "Z9/MB")]
+    assert out[0].message == (
+        "not assessed: no salt contents for the fabric of zone Z9: add 'salts:' (chloride, "
+        "nitrate, sulfate in mass %) to its masonry unit or historic mortar in materials.yaml")
+    assert out[0].basis == (Basis("reference", "salzwiki_measures", ONORM),)
+
+
+def test_salt_on_the_edges_of_the_second_table_whole():
+    """Units U9: chloride 0.03 (on the medium edge: medium), nitrate not measured, sulfate
+    0.0999 (low); historic mortar H9: chloride 0.0299 (low), nitrate 0.15 (on the high edge:
+    high), sulfate 0.10 (on the medium edge: medium).  Highest per ion: chloride medium,
+    nitrate high, sulfate medium: attention (high nitrate), medium sulfate noted."""
+    from specgen.checks.result import Basis
+    c = _salt_of((0.03, None, 0.0999), (0.0299, 0.15, 0.10))[0]
+    edges = {"chloride": "classes < 0.03 low, 0.03–0.1 medium, ≥ 0.1 high",
+             "nitrate": "classes < 0.05 low, 0.05–0.15 medium, ≥ 0.15 high",
+             "sulfate": "classes < 0.1 low, 0.1–0.25 medium, ≥ 0.25 high"}
+    formula = r"\text{class} = \text{band of the table containing the content}"
+    assert (c.status, c.value, c.unit, c.message) == (
+        "attention", "high", "", "high salt load (nitrate) (table onorm_b3355)")
+    assert c.basis == (Basis("reference", "salzwiki_measures", ONORM),)
+    assert c.notes == (
+        "nitrate of units U9 not measured: not classified",
+        "medium sulfate: its effect on the binder of MA is assessed by DUR-ETT/Z9/MA "
+        "(ettringite) and DUR-TSA/Z9/MA (thaumasite)", ONORM_NOTE)
+    assert c.steps == (
+        Step(f"Salt load of units U9 ({ONORM})", formula, (
+            Input("chloride", "chloride, units U9 → medium", 0.03, "mass %",
+                  "materials.yaml U9.salts; " + edges["chloride"]),
+            Input("sulfate", "sulfate, units U9 → low", 0.0999, "mass %",
+                  "materials.yaml U9.salts; " + edges["sulfate"])),
+             "chloride: medium, sulfate: low", 1.0, "", "class"),
+        Step(f"Salt load of historic mortar H9 ({ONORM})", formula, (
+            Input("chloride", "chloride, historic mortar H9 → low", 0.0299, "mass %",
+                  "materials.yaml H9.salts; " + edges["chloride"]),
+            Input("nitrate", "nitrate, historic mortar H9 → high", 0.15, "mass %",
+                  "materials.yaml H9.salts; " + edges["nitrate"]),
+            Input("sulfate", "sulfate, historic mortar H9 → medium", 0.10, "mass %",
+                  "materials.yaml H9.salts; " + edges["sulfate"])),
+             "chloride: low, nitrate: high, sulfate: medium", 2.0, "", "class"))
+    assert c.quantities == (Quantity("salt_load_class", {
+        "table": "onorm_b3355", "U9": {"chloride": "medium", "sulfate": "low"},
+        "H9": {"chloride": "low", "nitrate": "high", "sulfate": "medium"}}, "",
+        "salt-load classes"),)
+
+
+def test_salt_of_units_alone_all_low_passes():
+    """Only the units carry salts, all below the WTA 2-6-99 lower edges: pass, no sulfate
+    note; a material measured with no ion gives no step and no class above low."""
+    c = _salt_of((0.19, 0.09, 0.49), None, table="wta_2_9")[0]
+    assert (c.status, c.value, c.message) == ("pass", "low",
+                                             "no class above medium (table wta_2_9)")
+    assert len(c.notes) == 1 and c.notes[0].startswith("table: WTA salt-load table")
+    assert [(s.title, s.substituted, s.result) for s in c.steps] == [
+        ("Salt load of units U9 (WTA salt-load table for assessing masonry (low / medium / "
+         "high))", "chloride: low, nitrate: low, sulfate: low", 0.0)]
+    c = _salt_of((None, None, None), None, table="wta_2_9")[0]
+    assert (c.status, c.value, c.steps) == ("pass", None, ())
+    assert c.quantities[0].value == {"table": "wta_2_9", "U9": {}}
+
+
+def test_aluminate_rich_by_analysis_or_family():
+    """content/rules/compatibility.yaml: Al2O3 ≥ 5 % makes a binder aluminate-rich (common
+    practice); without an analysis the family decides (natural cement, Portland, HL, FL
+    carry reactive aluminate: a declared assumption).  A binder the project lacks is skipped;
+    an analysis without Al2O3 falls back on the family."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.rules import RuleBook
+    from specgen.checks.run import Context
+    from specgen.checks.salt_checks import aluminate_rich
+    project = NS(
+        binders={"B1": NS(id="B1", type="nhl", analysis="A1"),
+                 "B2": NS(id="B2", type="nhl", analysis=None),
+                 "B3": NS(id="B3", type="natural_cement", analysis="A3"),
+                 "B4": NS(id="B4", type="air_lime", analysis="A4")},
+        analyses={"A1": NS(id="A1", mass_percent={"Al2O3": 5.0}),
+                  "A3": NS(id="A3", mass_percent={"CaO": 60.0}),
+                  "A4": NS(id="A4", mass_percent={"Al2O3": 4.99})})
+    ctx = Context(project, RuleBook())
+
+    def rich(*ids):
+        return aluminate_rich(NS(binders=[NS(binder=b) for b in ids]), project, ctx)
+    assert rich("B1") == (True, "B1: Al2O3 5 % in analysis A1 ≥ 5 %")
+    assert rich("B4", "B2", "B9") == (False, (
+        "B4: Al2O3 4.99 % in analysis A4 < 5 %; B2: no Al2O3 in an analysis; family natural "
+        "hydraulic lime (NHL) does not carry reactive aluminate (assumed)"))
+    assert rich("B2", "B3") == (True, (
+        "B2: no Al2O3 in an analysis; family natural hydraulic lime (NHL) does not carry "
+        "reactive aluminate (assumed); B3: no Al2O3 in an analysis; family natural cement "
+        "carries reactive aluminate (assumed)"))
+    assert rich() == (False, "")
+
+
+# --- COMP-COLOUR on hand-made readings (no demo check) -------------------------------------
+def _colour_of(rows, panels=(), historic="H9", candidates=("MA",), threshold=None):
+    """COMP-COLOUR of zone Z9 on a hand-made project: ``rows`` (sample, L, a, b, illuminant,
+    observer) as lab/colour.csv rows 2, 3, ...; ``panels`` (id, mix, zone, colour sample) of
+    specification.yaml; ``historic`` the zone's historic mortar (None: it names none)."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.colour_checks import colour_check
+    from specgen.checks.rules import RuleBook
+    from specgen.checks.run import Context
+    project = NS(
+        colours=[NS(sample=s, L=L, a=a, b=b, illuminant=i, observer=o, file="lab/colour.csv",
+                    row=n + 2) for n, (s, L, a, b, i, o) in enumerate(rows)],
+        specification=NS(doc=NS(trial_panels=[NS(id=i, mix=m, zone=z, colour_sample=s)
+                                               for i, m, z, s in panels])),
+        masonry_units={}, historic_mortars={"H9": NS(id="H9")} if historic else {}, mixes={},
+        mortar_properties={})
+    zone = NS(id="Z9", units=None, historic_mortar=historic, candidates=list(candidates))
+    over = [] if threshold is None else [NS(rule="compatibility.colour_delta_e_max",
+                                            value=threshold, justification="panel brief")]
+    return colour_check(zone, Context(project, RuleBook(over)))
+
+
+SHARMA_BASIS = ("reference", "sharma2005", "CIEDE2000, eqs. 1–22")
+
+
+def test_colour_missing_readings_named_together():
+    """No readings of the candidate and no historic mortar named: both said, in one
+    not-assessed result per candidate; then a panel built for another zone (its sample used,
+    said so) against a historic mortar without readings."""
+    c = _colour_of([], historic=None)[0]
+    assert (c.code, c.subject, c.status, c.value) == ("COMP-COLOUR", "Z9/MA", "not_assessed",
+                                                      None)
+    assert c.message == ("not assessed: no colour readings of the trial panel of MA "
+                         "(lab/colour.csv, sample MA (no trial panel of MA names a colour "
+                         "sample)); zone Z9 names no historic mortar")
+    assert [(b.kind, b.ref, b.clause) for b in c.basis] == [SHARMA_BASIS]
+    c = _colour_of([("S2", 60.0, 2.0, 10.0, "D65", "10")],
+                   panels=[("TP1", "MB", "Z9", "S1"), ("TP2", "MA", "Z8", "S2"),
+                           ("TP3", "MA", "Z7", "S3")])[0]
+    assert c.message == "not assessed: no colour readings of historic mortar H9 (lab/colour.csv)"
+    c = _colour_of([], panels=[("TP2", "MA", "Z8", "S2"), ("TP4", "MA", None, "S4")])[0]
+    assert c.message.startswith("not assessed: no colour readings of the trial panel of MA "
+                                "(lab/colour.csv, trial panel TP4 (sample S4))")
+
+
+def test_colour_under_two_conditions_is_not_assessed():
+    c = _colour_of([("MA", 60.0, 2.0, 10.0, "D65", "10"), ("H9", 60.0, 2.0, 10.0, "D50", "2"),
+                    ("H9", 61.0, 2.0, 10.0, "D65", "10")])[0]
+    assert (c.status, c.message) == ("not_assessed", (
+        "not assessed: the readings use different illuminant/observer conditions (D50/2°, "
+        "D65/10°): measure panel and historic mortar under the same conditions"))
+
+
+def _s_l(lbar):
+    """CIEDE2000 lightness weighting S_L (Sharma, Wu & Dalal 2005, eq. 17)."""
+    return 1 + 0.015 * (lbar - 50) ** 2 / math.sqrt(20 + (lbar - 50) ** 2)
+
+
+def test_colour_of_neutral_greys_whole():
+    """Neutral greys (a* = b* = 0: no chroma, so ΔC' = ΔH' = 0, S_C = S_H = 1 and R_T = 0 by
+    eqs. 15-22 of Sharma, Wu & Dalal 2005): ΔE00 = |ΔL'|/S_L.  Panel readings L* 51 and 53
+    (mean 52, SD √2), historic 50 three times: ΔE00 = 2/S_L(51) = 1.99347, within the
+    threshold 2 (project rule): pass; cross-checked with colour-science.  The spread of a
+    sample is its largest ΔE00 from its mean: 1/S_L(51.5) for the panel, 0 for the mortar."""
+    from specgen.checks.result import Basis
+    rows = [("MA", 51.0, 0.0, 0.0, "D65", "10"), ("MA", 53.0, 0.0, 0.0, "D65", "10")] + [
+        ("H9", 50.0, 0.0, 0.0, "D65", "10")] * 3
+    c = _colour_of(rows, panels=[("TP1", "MA", "Z9", "MA")])[0]
+    de = 2 / _s_l(51.0)
+    assert de == pytest.approx(float(colour.delta_E([52, 0, 0], [50, 0, 0],
+                                                    method="CIE 2000")), abs=1e-9)
+    spread = max(1 / _s_l(51.5), 1 / _s_l(52.5))
+    assert (c.title, c.subject_kind, c.status, c.value, c.unit) == (
+        "Colour of the trial panel against the historic mortar", "zone", "pass",
+        round(de, 3), "")
+    assert c.message == ("ΔE00 1.99 between the mean of 2 panel reading(s) and 3 of H9 "
+                         "(threshold 2, project rule); trial panels judged dry decide")
+    assert c.notes == (
+        "no standard acceptance threshold exists for repointing; ΔE00 ≈ 1 is just noticeable "
+        "and 2–3.5 visible at a glance (common practice); trial panels judged dry, by eye, in "
+        "daylight, decide", "readings under illuminant D65, 10° observer",
+        "fewer than three readings of a sample: the spread is poorly known")
+    assert [(b.kind, b.ref, b.clause) for b in c.basis] == [
+        SHARMA_BASIS, ("project requirement", "", "")]
+    assert c.limit.compare == "<=" and (c.limit.high, c.limit.text, c.limit.rule) == (
+        2.0, "ΔE00 ≤ 2", "compatibility.colour_delta_e_max")
+    panel, hist, diff = c.steps
+    row = "lab/colour.csv row {} (D65/10°)"
+    assert panel == Step(
+        "Mean colour of the panel of MA: trial panel TP1 (sample MA) (n = 2)",
+        r"\bar L^* = \frac{1}{n}\sum L^*_i \ldots",
+        (Input("Lab", "reading 1", "51, 0, 0", "", row.format(2)),
+         Input("Lab", "reading 2", "53, 0, 0", "", row.format(3)),
+         Input("s", "sample SD of L*, a*, b*", "1.41, 0.00, 0.00", "", "computed (n − 1)")),
+        r"(\bar L^*, \bar a^*, \bar b^*) = (52.00, 0.00, 0.00)", round(spread, 4), "",
+        "spread ΔE00")
+    assert (hist.title, hist.substituted, hist.result) == (
+        "Mean colour of historic mortar H9 (n = 3)",
+        r"(\bar L^*, \bar a^*, \bar b^*) = (50.00, 0.00, 0.00)", 0.0)
+    assert [i.source for i in hist.inputs] == [row.format(n) for n in (4, 5, 6)] + [
+        "computed (n − 1)"]
+    assert (diff.title, diff.result, diff.unit, diff.symbol) == (
+        "CIEDE2000 difference of the means", round(de, 4), "", "ΔE00")
+    assert [(i.symbol, i.name, i.value) for i in diff.inputs] == [
+        ("ΔL'", "lightness difference", -2.0), ("ΔC'", "chroma difference", 0.0),
+        ("ΔH'", "hue difference", 0.0),
+        ("S_L, S_C, S_H", "weighting functions", f"{_s_l(51.0):.4f}, 1.0000, 1.0000"),
+        ("R_T", "rotation term", 0.0)]
+    assert diff.substituted.startswith(
+        rf"\Delta E_{{00}} = \sqrt{{(-2.000/{_s_l(51.0):.3f})^2 + (")
+    assert diff.substituted.endswith(rf"\,\ldots}} = {de:.3f}")
+    q = c.quantities[0]
+    assert (q.name, q.unit, q.label) == ("delta_e_2000", "", "CIEDE2000 difference")
+    white = colour.CCS_ILLUMINANTS["CIE 1931 2 Degree Standard Observer"]["D65"]
+    hexes = ["#" + "".join(f"{round(float(v) * 255):02x}" for v in colour.XYZ_to_sRGB(
+        colour.Lab_to_XYZ([L, 0, 0], white))) for L in (52, 50)]    # colour-science
+    assert q.value == {
+        "value": round(de, 4), "panel_mean": [52.0, 0.0, 0.0], "panel_spread": round(spread, 4),
+        "historic_mean": [50.0, 0.0, 0.0], "historic_spread": 0.0, "illuminant": "D65",
+        "observer": "10", "panel_swatch": {"hex": hexes[0], "clipped": False},
+        "historic_swatch": {"hex": hexes[1], "clipped": False}}
+
+
+def test_colour_threshold_edge_and_three_readings():
+    """Three panel readings each side, so no spread note; greys L* 52 against 50 judged
+    against an overridden threshold equal to ΔE00 itself (≤: pass) and just below it
+    (attention)."""
+    rows = [("MA", 52.0, 0.0, 0.0, "D65", "2")] * 3 + [("H9", 50.0, 0.0, 0.0, "D65", "2")] * 3
+    de = 2 / _s_l(51.0)
+    c = _colour_of(rows, threshold=de)[0]
+    assert (c.status, c.notes[1:]) == ("pass", ("readings under illuminant D65, 2° observer",))
+    assert c.steps[0].title == ("Mean colour of the panel of MA: sample MA (no trial panel of "
+                                "MA names a colour sample) (n = 3)")
+    c = _colour_of(rows, threshold=de - 1e-6)[0]
+    assert c.status == "attention"
+    assert c.limit.overridden == "panel brief"

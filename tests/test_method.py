@@ -236,3 +236,140 @@ def test_rake_out_only_for_repointing(demo_copy):
          '    works: bedding\n    joint_width: "10 mm"\n')
     got = by_check(check(demo_copy)[1])
     assert [k for k in got if k[0] == "MTH-RAKE"] == [("MTH-RAKE", "Z1")]
+
+
+# --- MTH-RAKE and MTH-BAY on hand-made zones (no demo check) --------------------------------
+# Rules (content/rules/works.yaml and method.yaml, common practice): depth ratio 2, least
+# depth 15 mm, deepest 3 joint widths; placing rate 10 L/h, 6 h of placing a day.
+RAKE_BASIS = ("common practice", "joints are raked out to about twice their width, to sound "
+              "mortar, and never less than about 15 mm")
+RATE_RULE = ("rule works.placing_rate (common practice — one operative pointing or bedding; "
+             "confirm on the trial panel)")
+
+
+def _ctx(volumes=None):
+    from specgen.checks.rules import RuleBook
+    from specgen.checks.run import Context
+    from specgen.checks.result import Quantity
+    ctx = Context(None, RuleBook())
+    for zone, v in (volumes or {}).items():
+        ctx.record(zone, Quantity("mortar_volume_net", v, "m³", "net mortar volume"))
+    return ctx
+
+
+def _rake(width_mm, depth_mm=None, works="repointing"):
+    from types import SimpleNamespace as NS
+    from specgen.checks.method_checks import rake_out_check
+    zone = NS(id="Z9", works=works, joint_width=None if width_mm is None else width_mm * 1e-3,
+              joint_depth=None if depth_mm is None else depth_mm * 1e-3)
+    return rake_out_check(zone, _ctx())
+
+
+def _rule_step(width, rule):
+    from specgen.checks.result import Input, Step
+    return Step("Rake-out depth by the rule", r"d = \max(r \cdot j,\ d_{\min})",
+                (Input("j", "joint width", width, "mm", "dossier.yaml Z9.joint_width"),
+                 Input("r", "depth as a multiple of the width", 2.0, "", WORKS_RULE),
+                 Input("d_min", "shallowest rake-out", 15.0, "mm", MIN_RULE)),
+                rf"d = \max(2 \cdot {width:g},\ 15)", rule, "mm", "d")
+
+
+def test_rake_out_by_the_rule_alone_whole():
+    """A 12 mm joint, no depth given: d = max(2 × 12, 15) = 24 mm, deepest 3 × 12 = 36 mm."""
+    from specgen.checks.result import Basis, CheckResult, Quantity
+    assert _rake(12.0) == CheckResult(
+        code="MTH-RAKE", title="Rake-out depth of the joints", subject="Z9",
+        subject_kind="zone", status="pass", value=24.0, unit="mm",
+        basis=(Basis(RAKE_BASIS[0], note=RAKE_BASIS[1]),), steps=(_rule_step(12.0, 24.0),),
+        limit=None, message="rake out to 24 mm (the rule)",
+        quantities=(Quantity("rake_out_depth", {"depth": 24.0, "rule": 24.0, "given": None,
+                                                "deepest": 36.0}, "mm",
+                             "rake-out depth of the joints"),))
+
+
+@pytest.mark.parametrize("depth, status, shown, message", [
+    (24.0, "pass", r"24 \le 24 \le 36", "rake out to 24 mm as given: within the rule's "
+                                        "24–36 mm"),          # on the rule's depth
+    (36.0, "pass", r"24 \le 36 \le 36", "rake out to 36 mm as given: within the rule's "
+                                        "24–36 mm"),          # on the deepest
+    (23.9, "attention", r"24 > 23.9 \le 36", "the depth given, 23.9 mm, is shallower than the "
+     "rule's 24 mm: the repair may not key; confirm it on the trial bay or change it"),
+    (36.1, "attention", r"24 \le 36.1 > 36", "the depth given, 36.1 mm, is deeper than 36 mm: "
+     "it takes more original mortar than the repair needs; confirm it on the trial bay or "
+     "change it")])
+def test_rake_out_depth_given_on_and_beyond_the_edges(depth, status, shown, message):
+    """A 12 mm joint (rule 24 mm, deepest 36 mm, by hand) with a depth given: the edges
+    belong to the rule; the sheet shows which side a depth breaks."""
+    from specgen.checks.result import Input, Limit, Step
+    c = _rake(12.0, depth)
+    assert (c.status, c.value, c.message) == (status, depth, message)
+    assert c.limit == Limit("within", low=24.0, high=36.0, unit="mm", text="24–36 mm")
+    assert c.steps == (_rule_step(12.0, 24.0), Step(
+        "The project's depth against the rule", r"d \le d_{given} \le r_{\max} \cdot j",
+        (Input("d_given", "depth given for the zone", depth, "mm", "dossier.yaml Z9.joint_depth"),
+         Input("r_max", "deepest rake-out as a multiple of the width", 3.0, "", MAX_RULE)),
+        shown, depth, "mm", "d_given"))
+    assert c.quantities[0].value == {"depth": depth, "rule": 24.0, "given": depth,
+                                     "deepest": 36.0}
+
+
+def test_rake_out_least_depth_governs_a_narrow_joint():
+    """A 5 mm joint: 2 × 5 = 10 < 15 mm, so 15 mm; deepest 15 mm too (3 × 5)."""
+    c = _rake(5.0)
+    assert (c.value, c.steps, c.quantities[0].value) == (
+        15.0, (_rule_step(5.0, 15.0),), {"depth": 15.0, "rule": 15.0, "given": None,
+                                         "deepest": 15.0})
+
+
+def test_rake_out_none_for_other_works_or_no_width():
+    assert (_rake(10.0, works="render"), _rake(10.0, works="bedding"), _rake(None)) == (
+        [], [], [])
+
+
+def _bay(area, volume, rate_l_h=None, works="render"):
+    from types import SimpleNamespace as NS
+    from specgen.checks.method_checks import bay_check
+    zone = NS(id="Z9", works=works, area=area,
+              placing_rate=None if rate_l_h is None else rate_l_h / 3.6e6)
+    return bay_check(zone, _ctx({} if volume is None else {"Z9": volume}))
+
+
+def test_bay_of_a_render_zone_whole():
+    """50 m² rendered 18 mm thick in all: V = 0.9 m³ (18 L per m²); the rule's 10 L/h for
+    6 h = 60 L a day; A_bay = min(60 × 50 / 900, 50) = 3.333 m² (by hand)."""
+    from specgen.checks.result import Basis, CheckResult, Input, Quantity, Step
+    assert _bay(50.0, 0.9) == CheckResult(
+        code="MTH-BAY", title="Bay size of a day's work", subject="Z9", subject_kind="zone",
+        status="info", value=3.33, unit="m²",
+        basis=(Basis("common practice", note="work by area is done in bays that one crew "
+                     "finishes in a day, so no bay is left raked out, part-pointed or with an "
+                     "open render coat overnight"),),
+        steps=(Step("Face area one crew fills in a day", r"A_{bay} = \min(q\,T\,A / V,\ A)",
+                    (Input("q", "placing rate", 10.0, "L/h", RATE_RULE),
+                     Input("T", "placing hours per day", 6.0, "h", DAY_RULE),
+                     Input("V", "mortar volume before wastage", 0.9, "m³", "WORKS-QTY/Z9"),
+                     Input("A", "face area of the zone", 50.0, "m²", "dossier.yaml Z9.area")),
+                    r"A_{bay} = \min(60\ \mathrm{L} \times 50 / 900\ \mathrm{L},\ 50) = 3.33",
+                    3.33, "m²", "A_bay"),),
+        message="bays of about 3.33 m² a crew-day (60 L a day at 18 L per m² of face)",
+        quantities=(Quantity("bay_area", {"area": 3.33, "per_m2_l": 18.0, "per_day_l": 60.0,
+                                          "zone_area": 50.0}, "m²", "bay area of a day's work"),))
+
+
+def test_bay_of_a_small_repointing_zone_is_the_zone():
+    """2 m² at 18 L per m² (V = 0.036 m³) with the zone's own 25 L/h: 150 L a day would fill
+    150 × 2 / 36 = 8.33 m², more than the zone: one bay of 2 m² (by hand)."""
+    c = _bay(2.0, 0.036, rate_l_h=25.0, works="repointing")
+    assert (c.value, c.message) == (2.0, "bays of about 2 m² a crew-day (150 L a day at 18 L "
+                                         "per m² of face)")
+    assert (c.steps[0].inputs[0].value, c.steps[0].inputs[0].source) == (
+        25.0, "dossier.yaml Z9.placing_rate")
+    assert c.steps[0].substituted == (r"A_{bay} = \min(150\ \mathrm{L} \times 2 / 36\ "
+                                      r"\mathrm{L},\ 2) = 2")
+    assert c.quantities[0].value == {"area": 2.0, "per_m2_l": 18.0, "per_day_l": 150.0,
+                                     "zone_area": 2.0}
+
+
+def test_bay_none_for_bedding_no_volume_or_no_area():
+    assert (_bay(50.0, 0.9, works="bedding"), _bay(50.0, None), _bay(None, 0.9),
+            _bay(0.0, 0.9)) == ([], [], [], [])

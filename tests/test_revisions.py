@@ -105,3 +105,21 @@ def test_revision_code_colliding_with_archive(demo_copy, cli):
     assert result.exit_code == 2
     assert "revision 'r2' is already issued in issued/R2/." in result.output
     assert not (demo_copy.parent / "o").exists()
+
+
+def test_revision_before_any_choice_says_so_in_the_readers_words(demo_build):
+    """R1 and R2 of the demo come before the specification (issued/R1 and issued/R2 hold no
+    specification.yaml): the summary says no mortar is chosen yet and names the zone's
+    candidates from that revision's dossier.yaml and mixes.yaml — not the check's instruction
+    to the specifier ("add one with a selection for each zone")."""
+    import re
+    for rev in ("R1", "R2"):
+        page = (demo_build / rev / "index.html").read_text(encoding="utf-8")
+        text = re.sub(r"\s+", " ", re.sub(r"<[^>]+>", "", page))
+        assert "add one with a selection" not in text and "specification.yaml" not in text
+        # issued/R2/dossier.yaml: Z1 candidates [M1, M2, M3], Z2 [M1, M2], Z3 [M2, M3]
+        assert ("Mortar chosen: none yet in this revision; the candidates are M1 (Natural "
+                "cement 1 : 1.5 sand), M2 (Natural cement 1 : 2.5 sand) and M3 (NHL 3.5 1 : "
+                "2.5 sand).") in text
+        assert text.count("Mortar chosen: none yet in this revision") == 3
+        assert text.count("Still open: the choice of mortar, recorded in the specification") == 3

@@ -189,6 +189,12 @@ def count(n, word: str, many: str | None = None) -> str:
     return f"{n} {word if n == 1 else (many or word + 's')}"
 
 
+def and_list(items) -> str:
+    """``a, b and c`` for a reader (one item alone; nothing for none)."""
+    items = list(items)
+    return ", ".join(items[:-1]) + " and " + items[-1] if len(items) > 1 else "".join(items)
+
+
 def anchor(*parts: str) -> str:
     """A stable HTML id from parts (lowercase, safe characters only)."""
     raw = "-".join(parts).lower()

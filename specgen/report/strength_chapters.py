@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from specgen.checks.result import key_days
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import UNIT_SPACE, anchor, num
+from specgen.report.fmt import UNIT_SPACE, and_list, anchor, num, rounded
 from specgen.report.wording import plain, reader
 
 TERMS = {"early_fraction": ("early (fast-stage) fraction", ""),
@@ -212,15 +212,17 @@ def _figure(env, mix, test: str, c: dict | None, rules, caption: str
 def _strength_alt(data: dict) -> str:
     """What a strength chart shows, in words: the points, the means, the curve, the limits."""
     test = data["test"]
-    ages = sorted({round(a, 3) for a, *_ in data["means"]})
+    # read as the tables print them: ages in whole days, strengths to 0.1 MPa (fmt.PRECISION)
+    ages = sorted({rounded(a, "d") for a, *_ in data["means"]}, key=float)
     out = (f"Chart of {test} strength in MPa against age in days on a logarithmic axis. "
            f"{len(data['specimens'])} specimen results as circles at "
-           + ", ".join(num(a, 3) for a in ages) + " days; their means: "
-           + ", ".join(f"{num(m, 3)} MPa at {num(a, 3)} d" for a, m, _ in data["means"]) + ".")
+           + and_list(ages) + " days; their means: "
+           + and_list([f"{rounded(m, 'MPa')} MPa at {rounded(a, 'd')} d"
+                   for a, m, _ in data["means"]]) + ".")
     if data["curve"]:
         c = data["curve"]
-        out += (f" A line for the fitted {data['model']}, reaching {num(c['value'][-1], 3)} "
-                f"MPa at {num(c['ages_d'][-1], 3)} days, with its shaded band.")
+        out += (f" A line for the fitted {data['model']}, reaching {rounded(c['value'][-1], 'MPa')}"
+                f" MPa at {rounded(c['ages_d'][-1], 'd')} days, with its shaded band.")
     if data.get("wall"):
         out += " A dash-dotted line for the strength in the wall at the site temperature."
     for _, value, label, _kind in data["limits"]:

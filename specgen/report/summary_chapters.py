@@ -11,10 +11,10 @@ from markupsafe import Markup
 
 from specgen.checks.result import STATUS_WORDS
 from specgen.report.chapters import badge, chapter, check_rows
-from specgen.report.fmt import count, date_text, qty, rounded
+from specgen.report.fmt import and_list, count, date_text, qty, rounded
 from specgen.report.marks import control_context
 from specgen.report.review import open_by_category
-from specgen.report.wording import reader, rule_label
+from specgen.report.wording import rule_label
 
 PURPOSE_WORDS = {"preliminary": "preliminary", "for_approval": "for approval",
                  "for_construction": "for construction"}
@@ -50,7 +50,11 @@ def _zone(env, zone, holds: dict) -> dict:
            if sel else "", "mix_name": p.mixes[mix].name if mix in p.mixes else "",
            "why": chosen[1].rationale if chosen else "", "open": [], "cost": ""}
     if not mix:
-        out["open"].append(reader(sel.message) if sel else "no mortar chosen yet")
+        # a reader's words, not the check's instruction to the specifier ("add a selection
+        # to ..."): an issued revision may rightly come before any choice is made
+        named = [f"{m} ({p.mixes[m].name})" if m in p.mixes else m for m in zone.candidates]
+        out["candidates"] = and_list(named)
+        out["open"].append("the choice of mortar, recorded in the specification")
         return out
     failed = [c.title[0].lower() + c.title[1:] for c in r.checks
               if c.status == "fail" and c.subject in (mix, f"{zone.id}/{mix}")]
