@@ -318,6 +318,9 @@ def interval(s: sc.Series, age_s: float, kind: str, ctx, n: float | None = None)
 
 def _pred_result(code, title, mix, s: sc.Series, ctx) -> CheckResult:
     steps, data, indicative = [], {}, []
+    si.bands_each(s.run.inference, [a / DAY for a in prediction_ages(ctx, s.test)],
+                  ctx.rules["strength.confidence_level"].value,
+                  spc.set_size(ctx.project, ctx.rules))   # the ages' intervals made together
     for age in prediction_ages(ctx, s.test):
         m, p = interval(s, age, "mean", ctx), interval(s, age, "set", ctx)
         steps.append(pred_step(s, p, ctx, mean=m))
@@ -358,7 +361,7 @@ def pred_step(s: sc.Series, iv, ctx, prefix: str = "", mean=None) -> Step:
                     inf.sigma_b_source),
               Input("σ_w", "scatter within a batch", round(100 * inf.sigma_w, 3), "%",
                     inf.sigma_w_source),
-              Input("q", f"Student t, {inf.dof:g} dof, {level:.0%} two-sided",
+              Input("q", f"Student t, {inf.dof:g} dof, {100 * level:.0f} % two-sided",
                     round(inf.quantile(level), 4), "",
                     "Student's t quantile computed with SciPy")]
     sub = rf"\hat f = {iv.value:.3f};\ \text{{{iv.kind}}}: [{iv.lower:.3f},\ {iv.upper:.3f}]"
