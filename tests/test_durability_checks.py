@@ -901,3 +901,47 @@ def test_setting_of_a_lime_on_the_edges(initial, final, status, words):
     assert (c.status, c.message) == (status, (
         f"initial {initial / 60:g} min, final {final / 60:g} min (Vicat, EN 459-2); natural "
         f"hydraulic lime (NHL): {words}"))
+
+
+def test_durability_pieces_by_hand():
+    """The shared pieces of the durability checks on hand-made inputs: the practice when
+    dossier.yaml states none (content/data/practice.yaml: American practice is the default),
+    a recalled rule's hold only in an issued revision and only of a verdict (not of info, hold
+    or not assessed), a recalled table named in the hold, a rule confirmed by an override not
+    held, the exposure recorded, and the words made safe for a formula's \\text{}."""
+    from types import SimpleNamespace as NS
+    from specgen.checks import durability_common as dc
+    from specgen.checks.rules import RuleBook
+    from specgen.checks.run import Context
+    dossier = NS(practice=NS(follows=None, mortar_classes=None, mixing_reason=""),
+                 compatibility=NS(grading_envelope=None))
+    assert dc.practice(NS(dossier=dossier)) == (
+        "american", "practice not stated in dossier.yaml: American practice (ASTM standards) "
+        "assumed")
+    dossier.practice.follows = "european"
+    assert dc.practice(NS(dossier=dossier)) == ("european", "dossier.yaml practice: european")
+    issued = Context(NS(revision=NS(status="issued")), RuleBook())
+    draft = Context(NS(revision=NS(status="draft")), RuleBook())
+    lime = dc.rule(issued, "setting_initial_min_lime")
+    assert lime.key == "durability.setting_initial_min_lime"
+    held = (f"held: the verdict (pass) rests on “{lime.description}”, table T, still to be "
+            "confirmed against the printed source (or overridden with a justification) before "
+            "this revision is issued")
+    assert dc.memory_gate(issued, "pass", [lime], ["table T"]) == ("hold", [held])
+    assert dc.memory_gate(issued, "fail", [], ["table T"])[0] == "hold"
+    for status in ("info", "hold", "not_assessed"):
+        assert dc.memory_gate(issued, status, [lime]) == (status, [])
+    assert dc.memory_gate(draft, "fail", [lime], ["table T"]) == ("fail", [])
+    confirmed = Context(NS(revision=NS(status="issued")), RuleBook([NS(
+        rule="durability.setting_initial_min_lime", value=60, justification="read in EN 459-1")]))
+    assert dc.memory_gate(confirmed, "pass", [dc.rule(confirmed, "setting_initial_min_lime")]) \
+        == ("pass", [])
+    assert dc.rule_input(issued, "t", "setting_initial_min_lime", shown=1.0) == Input(
+        "t", lime.description, 1.0, "min", lime.source())
+    assert dc.exposure(issued, "Z9") is None
+    issued.record("Z9", Quantity("exposure_class", {"class": "MX3.2"}, "", "exposure"))
+    assert dc.exposure(issued, "Z9") == {"class": "MX3.2"}
+    assert dc.tests_quantity(issued, "Z9", []) == []
+    assert dc.tex(r"a\b & <c> {d}") == "a b &amp; &lt;c&gt; (d)"
+    assert dc.binder_types(NS(binders=[NS(binder="B1"), NS(binder="B9")]),
+                           NS(binders={"B1": NS(type="nhl")})) == [("B1", "nhl")]
