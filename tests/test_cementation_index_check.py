@@ -399,3 +399,14 @@ def test_chemistry_pieces_by_hand():
                                        NS(type="nhl", contains_clinker=True),
                                        NS(type="nhl", contains_clinker=False))] == [
         False, True, True, False]
+
+
+def test_closure_rounds_to_four_decimals():
+    """A laboratory's figures to five decimals: the total 25.00004 + 50 + 25.00004 =
+    100.00008 % is recorded, shown and summed as 100.0001 % (four decimals, by hand), the
+    loss on ignition 25.00004 as 25.0 %."""
+    from specgen.checks.composition_checks import closure_check
+    c = closure_check(_analysis({"SiO2": 25.00004, "CaO": 50.0, "LOI": 25.00004}), _ctx())
+    assert (c.value, c.steps[0].result) == (100.0001, 100.0001)
+    assert c.quantities == (Quantity("analysis_total", 100.0001, "%", "sum of constituents"),
+                            Quantity("loss_on_ignition", 25.0, "%", "loss on ignition"))
