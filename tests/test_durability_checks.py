@@ -891,7 +891,8 @@ def test_setting_verdict_on_recalled_limits_held_when_issued():
 @pytest.mark.parametrize("initial, final, status, words", [
     (3600.0, 144000.0, "pass", "initial ≥ 60 min, final ≤ 40 h"),     # both on the edge
     (3540.0, 144000.0, "fail", "initial < 60 min, final ≤ 40 h"),
-    (3600.0, 144060.0, "fail", "initial ≥ 60 min, final > 40 h")])
+    (3600.0, 144060.0, "fail", "initial ≥ 60 min, final > 40 h"),
+    (3600.0, 144030.0, "fail", "initial ≥ 60 min, final > 40 h")])     # 40 h and 30 s
 def test_setting_of_a_lime_on_the_edges(initial, final, status, words):
     """EN 459-1 (from memory): initial set 60 min or more and final set 40 h (2400 min) or
     less both meet the limits; a minute beyond either fails.  Tested at the card's dose (no
@@ -945,3 +946,14 @@ def test_durability_pieces_by_hand():
     assert dc.tex(r"a\b & <c> {d}") == "a b &amp; &lt;c&gt; (d)"
     assert dc.binder_types(NS(binders=[NS(binder="B1"), NS(binder="B9")]),
                            NS(binders={"B1": NS(type="nhl")})) == [("B1", "nhl")]
+
+
+def test_setting_tested_at_another_retarder_dose_alone_is_attention():
+    """Natural cement set tested at 0.1 % retarder while the card doses 0.2 % (workable life
+    measured 10 min, within the set): the dose alone makes it attention (by hand)."""
+    c, _ = _setting_of({"N1": "natural_cement"}, (2700.0, 6600.0, "vicat_en196_3", "", 0.001),
+                       [("Citric Retarder", "set control", 0.002)], life=600.0)
+    assert (c.status, c.notes) == ("attention", ())
+    assert c.message == ("initial 45 min, final 110 min (Vicat, EN 196-3); natural cement: no "
+                         "current standard limit; the set governs the gaugings; tested at 0.1 % "
+                         "retarder but the card doses 0.2 %: repeat the test at the card's dose")
