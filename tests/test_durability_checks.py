@@ -957,3 +957,14 @@ def test_setting_tested_at_another_retarder_dose_alone_is_attention():
     assert c.message == ("initial 45 min, final 110 min (Vicat, EN 196-3); natural cement: no "
                          "current standard limit; the set governs the gaugings; tested at 0.1 % "
                          "retarder but the card doses 0.2 %: repeat the test at the card's dose")
+
+
+def test_setting_times_shown_to_two_decimals_of_a_minute():
+    """Times read in seconds (2746.4 s and 6622 s) are shown in minutes to two decimals:
+    45.77 and 110.37 min (by hand: 45.7733…, 110.3667…); the message keeps %g."""
+    c, _ = _setting_of({"N1": "natural_cement"}, (2746.4, 6622.0, "vicat_en196_3", "", 0.0),
+                       life=600.0)
+    assert [(i.symbol, i.value) for i in c.steps[0].inputs[:2]] == [("t_i", 45.77),
+                                                                   ("t_f", 110.37)]
+    assert c.value == 45.77
+    assert c.message.startswith("initial 45.7733 min, final 110.367 min (Vicat, EN 196-3)")
