@@ -960,11 +960,22 @@ def test_setting_tested_at_another_retarder_dose_alone_is_attention():
 
 
 def test_setting_times_shown_to_two_decimals_of_a_minute():
-    """Times read in seconds (2746.4 s and 6622 s) are shown in minutes to two decimals:
-    45.77 and 110.37 min (by hand: 45.7733…, 110.3667…); the message keeps %g."""
+    """Times read in seconds (2746.4 s and 6622 s, a workable life of 1000 s) are shown in
+    minutes to two decimals: 45.77, 110.37 and 16.67 min (by hand: 45.7733…, 110.3667…,
+    16.6667…); the message keeps %g."""
     c, _ = _setting_of({"N1": "natural_cement"}, (2746.4, 6622.0, "vicat_en196_3", "", 0.0),
-                       life=600.0)
-    assert [(i.symbol, i.value) for i in c.steps[0].inputs[:2]] == [("t_i", 45.77),
-                                                                   ("t_f", 110.37)]
-    assert c.value == 45.77
+                       life=1000.0)
+    assert [(i.symbol, i.value) for i in c.steps[0].inputs] == [
+        ("t_i", 45.77), ("t_f", 110.37), ("t_w,0", 16.67), ("t_w", 16.67)]
+    assert (c.value, c.steps[0].result) == (45.77, 16.67)
     assert c.message.startswith("initial 45.7733 min, final 110.367 min (Vicat, EN 196-3)")
+
+
+def test_setting_workable_life_equal_to_the_initial_set_is_no_conflict():
+    """A workable life measured equal to the initial set (45 min both) is not longer than it:
+    pass, the life used is 45 min (min of the two, by hand)."""
+    c, _ = _setting_of({"N1": "natural_cement"}, (2700.0, 6600.0, "vicat_en196_3", "", 0.0),
+                       life=2700.0)
+    assert (c.status, c.steps[0].result) == ("pass", 45.0)
+    assert c.message == ("initial 45 min, final 110 min (Vicat, EN 196-3); natural cement: no "
+                         "current standard limit; the set governs the gaugings")
