@@ -12,8 +12,9 @@ strength inference (the prior-informed fit, its bands and posterior summaries: C
 inside ``specgen.science.strength_inference``) and the ratio of ``check`` to ``check`` without
 it (the target: within 2×), and the CPU seconds in the least-squares model comparison
 (``strength_models.fit_all``), the other fit made once per series, and (f) once, the full
-build (site and PDF) of the 200-mix project in a fresh process, with its time and the peak
-resident memory of its largest process.  Medians of ``runs`` repetitions.
+build (site and PDF) of the 200-mix project in a fresh process, with its time, its CPU time
+(user + system of every process of the build) and the peak resident memory of its largest
+process.  Medians of ``runs`` repetitions.
 
 Beside the wall-clock times it prints the CPU time (user + system, this process and its
 children: the PDF workers and the site process) of (b) and (c), so the re-issue ratio can be
@@ -59,8 +60,8 @@ def _median(fn, runs: int) -> float:
 
 def _cold() -> None:
     """Forget every in-process memo, so a build in this process starts cold."""
-    from specgen.report.mathsvg import svg_of
-    svg_of.cache_clear()
+    from specgen.report.mathsvg import svg_bytes
+    svg_bytes.cache_clear()
 
 
 def _floor(project: Path, work: Path):
@@ -106,16 +107,18 @@ import resource, subprocess, sys, time
 t = time.perf_counter()
 subprocess.run([sys.executable, "-m", "specgen", "build", sys.argv[1], "--out", sys.argv[2],
                 "--quiet"], check=True, stdout=subprocess.DEVNULL)
-print(time.perf_counter() - t, resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss)
+kids = resource.getrusage(resource.RUSAGE_CHILDREN)
+print(time.perf_counter() - t, kids.ru_maxrss, kids.ru_utime + kids.ru_stime)
 """
 
 
-def _peak_build(project: Path, out: Path) -> tuple[float, float]:
-    """(seconds, peak RSS in MiB of the largest process) of one build in a fresh process."""
+def _peak_build(project: Path, out: Path) -> tuple[float, float, float]:
+    """(seconds, peak RSS in MiB of the largest process, CPU seconds of the build and every
+    process it started) of one build in a fresh process."""
     done = subprocess.run([sys.executable, "-c", _PEAK, str(project), str(out)], check=True,
                           capture_output=True, text=True)
-    seconds, kib = done.stdout.split()
-    return float(seconds), int(kib) / 1024
+    seconds, kib, cpu = done.stdout.split()
+    return float(seconds), int(kib) / 1024, float(cpu)
 
 
 def _cpu_median(fn, runs: int) -> float:
@@ -211,7 +214,7 @@ def bench_xlsx(demo: Path, work: Path, runs: int) -> None:
           "process (time.process_time), medians, so other jobs on the machine count less")
 
 
-_INFERENCE_ENTRIES = ("fit", "bands", "interval", "components", "posterior_summary", "falls")
+_INFERENCE_ENTRIES = ("fit", "fit_many", "bands", "interval", "components", "posterior_summary", "falls")
 
 
 def _inference_share(project: Path) -> tuple[float, float, float]:
@@ -334,7 +337,8 @@ def _print_figures(fig: dict) -> None:
     print(f"(e) of which model comparison fits   {share[2]:7.3f} CPU s (least squares, three laws "
           f"per series); the rest of check {share[0] - share[1] - share[2]:.3f} CPU s")
     if f:
-        print(f"(f) build, 200 mixes (site + PDF)   {f[0]:7.1f} s, peak memory {f[1]:6.0f} MiB")
+        print(f"(f) build, 200 mixes (site + PDF)   {f[0]:7.1f} s   CPU {f[2]:7.1f} s, peak memory "
+              f"{f[1]:6.0f} MiB")
     print(f"ratio (b)/(d) = {b / d:.2f}   ratio (c)/(b) = {c_wall / b:.2f} "
           f"(CPU {c_cpu / b_cpu:.2f})   growth exponent of (e) = {slope:.2f}")
     targets(b / d, (c_wall / b, c_cpu / b_cpu), times[-1], f)

@@ -130,10 +130,15 @@ def study(series: int = 200, rng_state: int = 7, batch_cv: float = 0.04) -> list
             hits = {a: 0 for a in TARGETS}
             score = {a: [] for a in TARGETS}
             base = {a: [] for a in TARGETS}
+            laws, recs = [], []
             for _ in range(series):
-                law = make(rng, table[fam])
-                t, y = simulate(law, rng, ages, batch_cv)
-                inf = si.fit(t, y, prior)
+                laws.append(make(rng, table[fam]))
+                recs.append(simulate(laws[-1], rng, ages, batch_cv))
+            # all series of the cell fitted together (a record is fitted the same alone)
+            fits = si.fit_many([(t, y, prior) for t, y in recs])
+            for law, (t, y), inf in zip(laws, recs, fits):
+                if isinstance(inf, si.InferenceError):
+                    raise inf
                 b = si.bands(inf, list(TARGETS))
                 f28 = math.exp(np.mean(np.log([v for a, v in zip(t, y) if a == 28])))
                 for i, a in enumerate(TARGETS):

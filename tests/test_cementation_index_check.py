@@ -342,8 +342,8 @@ def test_index_of_a_lumped_analysis_states_the_split():
         "natural cement", 1.1, 1.7, "1.1–1.7", "pass",
         "CI = 1.323: falls in the band 'natural cement' (1.1–1.7), consistent with binder "
         "NC9 declared a natural cement", "analysis B4",
-        notes=("Al2O3+Fe2O3 = 10.00 % reported together; split assumed as 60% Al2O3, "
-               "40% Fe2O3",))
+        notes=("Al2O3+Fe2O3 = 10.00 % reported together; split assumed as 60 % Al2O3, "
+               "40 % Fe2O3",))
 
 
 def test_index_without_lime_or_silica_names_both():

@@ -48,3 +48,33 @@ def test_specification_page_and_exports_in_the_build(demo_build, demo_pdf_text):
     text = "\n".join(demo_pdf_text(f"{REV}/WEP-2026-{REV}.pdf"))
     assert CLAUSE in text
     assert f"exports/WEP-2026-{REV}-Z1-specification.md" in (pdf.attachments or {})
+
+
+def test_findings_on_the_chosen_mortar_name_each_check_by_its_title(demo_build):
+    """The specification lists, per zone, the findings the works must allow for: the same
+    checks, in the same order, as SPEC-SELECT's notes in results.json — each shown by its
+    title linked to its calculation sheet, with its register key after it, never as a bare
+    key ("DUR-SOUND/NC1: hold — ...")."""
+    import html
+    import re
+    rev = demo_build / REV
+    page = (rev / "specification.html").read_text(encoding="utf-8")
+    results = json.loads((rev / "results.json").read_text(encoding="utf-8"))
+    titles = {"/".join(filter(None, (c["code"], c["subject"]))): c["title"]
+              for c in results["checks"]}
+    for sel in (c for c in results["checks"] if c["code"] == "SPEC-SELECT"):
+        zone = sel["subject"]
+        part = page[page.index('<h2 id="selection-per-zone"'):]     # past the contents
+        part = part[part.index(f">{zone} —"):]
+        part = part[part.index("must allow for"):]
+        items = re.findall(r"<li>(.*?)</li>", part[:part.index("</ul>")], re.S)
+        assert len(items) == len(sel["notes"]) > 0, zone
+        for item, note in zip(items, sel["notes"]):
+            key, status = re.match(r"(\S+): (\w[\w ]*?) — ", note).groups()
+            code, _, subject = key.partition("/")
+            link = re.match(r'<a href="calculations\.html#calc-([^"]+)">(.*?)</a> \((.*?)\) — '
+                            r'(.*?):', item)
+            assert link, item
+            assert html.unescape(link.group(2)) == titles[key]
+            assert link.group(3) == key and link.group(4) == status
+            assert link.group(1).startswith(code.lower())

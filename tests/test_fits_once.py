@@ -31,8 +31,16 @@ def made(monkeypatch) -> Counter:
             return fn(t, y, *args, **kwargs)
         return wrapper
 
+    def counting_many(fn):
+        # the inference fits records together (``si.fit`` is one record of ``si.fit_many``)
+        def wrapper(records):
+            for t, y, *_ in records:
+                counter[("inference", tuple(map(float, t)), tuple(map(float, y)))] += 1
+            return fn(records)
+        return wrapper
+
     monkeypatch.setattr(sm, "fit_all", counting("models", sm.fit_all))
-    monkeypatch.setattr(si, "fit", counting("inference", si.fit))
+    monkeypatch.setattr(si, "fit_many", counting_many(si.fit_many))
     yield counter
 
 

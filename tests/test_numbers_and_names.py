@@ -86,7 +86,7 @@ NAMES = ["lime & pozzolan retarder", "50 % solution", "retarder_{x}", "a \\ b", 
 
 def test_admixture_names_reach_the_formula_escaped(demo_copy):
     from specgen.checks.run import evaluate
-    from specgen.report.mathsvg import svg_of
+    from specgen.report.mathsvg import _draw
     admixtures = ", ".join('{name: "%s", dose: "0.1 %%"}' % n.replace("\\", "\\\\")
                            for n in NAMES)
     edit(demo_copy / "mixes.yaml", '{name: citric acid solution, dose: "0.2 %", purpose: retarder}',
@@ -100,4 +100,4 @@ def test_admixture_names_reach_the_formula_escaped(demo_copy):
     for latex in formulas:
         for name in NAMES:
             assert tex_name(name) in latex
-        ET.fromstring(svg_of.__wrapped__(latex))  # draws, and the SVG is well-formed XML
+        ET.fromstring(_draw(latex))  # draws, and the SVG is well-formed XML

@@ -1,5 +1,9 @@
 """The artefact cache: a hit is byte-identical to a fresh render, and a re-issue after one
-new lab result redraws only what that result changes."""
+new lab result redraws only what that result changes.
+
+The re-issue test renders its project cold three times (fresh, into a cold cache, fresh after
+the new result): on the starter project (two mixes, 16 CPU s a cold render) in the default
+run, on the demo (more kinds of figure and sheet, 35 CPU s a cold render) with ``--full``."""
 from __future__ import annotations
 
 import shutil
@@ -8,12 +12,13 @@ import pytest
 
 from specgen.build import check
 from specgen import cache
-from specgen.report.mathsvg import svg_of
+from specgen.report.mathsvg import svg_bytes, svg_of
 from specgen.report.render import render
+from tests.conftest import DEMO
 
 
 def _render(project_dir, folder=None):
-    svg_of.cache_clear()  # no in-process memo: only the folder cache may help
+    svg_bytes.cache_clear()  # no in-process memo: only the folder cache may help
     project, results = check(project_dir)
     with cache.using(folder):
         pages = render(project, results)
@@ -25,12 +30,23 @@ def _entries(folder):
 
 
 @pytest.fixture
-def single(demo_copy):
-    shutil.rmtree(demo_copy / "issued")
-    return demo_copy
+def single(tmp_path, full):
+    """(project with no issued revision, (a mix that gets a new 90 d result, the result in
+    MPa), a mix that does not):
+    the starter (``specgen new``), or with ``--full`` the demo without its archive."""
+    if full:
+        project = tmp_path / "project"
+        shutil.copytree(DEMO, project)
+        shutil.rmtree(project / "issued")
+        return project, ("M1", 7.9), "M3"
+    from specgen.starter import write_starter
+    write_starter(tmp_path / "project")
+    # 4.0 MPa at 90 d: M1 stays weaker than the starter's historic mortar (as test_lifecycle)
+    return tmp_path / "project", ("M1", 4.0), "M2"
 
 
 def test_cache_hit_equals_fresh_render_and_reissue_redraws_little(single, tmp_path, monkeypatch):
+    single, (changed, mpa), other = single
     folder = tmp_path / "cache"
     fresh = _render(single)
     first = _render(single, folder)
@@ -42,7 +58,7 @@ def test_cache_hit_equals_fresh_render_and_reissue_redraws_little(single, tmp_pa
     assert _entries(folder) == before          # and nothing new drawn
 
     csv = single / "lab" / "strength.csv"
-    csv.write_text(csv.read_text() + "M1-90d-C9,M1,90,compressive,7.9,20\n")
+    csv.write_text(csv.read_text() + f"{changed}-90d-C9,{changed},90,compressive,{mpa},20\n")
     drawn = []                                  # (kind, inputs) of every artefact drawn anew
     real = cache.cached
 
@@ -59,8 +75,8 @@ def test_cache_hit_equals_fresh_render_and_reissue_redraws_little(single, tmp_pa
     # (other mixes, chemistry, the unchanged formulas) come from the cache
     assert new and len(new) < 0.5 * len(before) and len(drawn) == len(new)
     redrawn = [inputs for kind, inputs in drawn if kind.endswith("strength_age")]
-    assert redrawn and all("'M1 " in i for i in redrawn)   # M1's figures only
-    assert not any("'M3 " in i for i in redrawn)            # M3 untouched
+    assert redrawn and all(f"'{changed} " in i for i in redrawn)   # M1's figures only
+    assert not any(f"'{other} " in i for i in redrawn)              # the other mix untouched
     assert reissued == _render(single)         # the re-issue equals a fresh render, byte for byte
 
 
@@ -145,7 +161,7 @@ def test_math_drawn_beside_is_the_same_math(tmp_path):
     from specgen.report import mathsvg
     latexes = [rf"x_{{{i}}} = \frac{{{i}}}{{{i + 1}}}" for i in range(12)]
     alone = {x: mathsvg._draw(x).decode("utf-8") for x in latexes}   # one process, no cache
-    svg_of.cache_clear()
+    svg_bytes.cache_clear()
     with cache.using(tmp_path / "cache"):
         with mathsvg.drawn_beside(latexes):
             assert len(multiprocessing.active_children()) == 1
@@ -154,8 +170,8 @@ def test_math_drawn_beside_is_the_same_math(tmp_path):
         assert all(cache.lookup("math", x) == alone[x].encode("utf-8") for x in latexes)
     assert got == alone
     # without a cache folder nothing is drawn beside: the block draws everything itself
-    svg_of.cache_clear()
+    svg_bytes.cache_clear()
     with mathsvg.drawn_beside(latexes):
         assert multiprocessing.active_children() == []
         assert {x: svg_of(x) for x in latexes} == alone
-    svg_of.cache_clear()
+    svg_bytes.cache_clear()

@@ -58,6 +58,25 @@ def inference(ages_d, values_mpa, prior: si.Prior) -> si.Inference:
     return once(("inference", t, y, repr(prior)), lambda: si.fit(list(t), list(y), prior))
 
 
+def inferences(records) -> None:
+    """Make together (:func:`~specgen.science.strength_inference.fit_many`, the solves batched)
+    the fits of every ``(ages_d, values_mpa, prior)`` record not yet kept, so that
+    :func:`inference` finds them; a record that cannot be fitted is left for :func:`inference`
+    to refuse.  Outside :func:`kept` nothing is kept, so nothing is made."""
+    store = _KEPT.get()
+    if store is None:
+        return
+    todo: dict[tuple, tuple] = {}
+    for ages_d, values_mpa, prior in records:
+        t, y = tuple(map(float, ages_d)), tuple(map(float, values_mpa))
+        key = ("inference", t, y, repr(prior))
+        if key not in store:
+            todo.setdefault(key, (list(t), list(y), prior))
+    for key, made in zip(todo, si.fit_many(list(todo.values()))):
+        if isinstance(made, si.Inference):
+            store[key] = made
+
+
 def capillary(times_s, uptakes) -> moisture.CapillaryFit:
     """:func:`~specgen.science.moisture.capillary_coefficient` of a sample's readings, made once."""
     t, w = tuple(map(float, times_s)), tuple(map(float, uptakes))

@@ -73,7 +73,7 @@ def _decide(s: sc.Series, age: float, limit: float, kind: str, ctx) -> dict:
     iv = interval(s, age, "set", ctx)
     inf = s.run.inference
     status = scl.accept(iv.value * MPA, iv.lower * MPA, iv.upper * MPA, limit, kind)
-    text = (f"predicted {iv.value:.3g} MPa; {iv.level:.0%} interval for the {iv.kind} "
+    text = (f"predicted {iv.value:.3g} MPa; {100 * iv.level:.0f} % interval for the {iv.kind} "
             f"[{iv.lower:.3g}, {iv.upper:.3g}] MPa")
     hold_d = None
     if iv.indicative and status != "hold":

@@ -358,7 +358,7 @@ def pred_step(s: sc.Series, iv, ctx, prefix: str = "", mean=None) -> Step:
                     inf.sigma_b_source),
               Input("σ_w", "scatter within a batch", round(100 * inf.sigma_w, 3), "%",
                     inf.sigma_w_source),
-              Input("q", f"Student t, {inf.dof:g} dof, {level:.0%} two-sided",
+              Input("q", f"Student t, {inf.dof:g} dof, {100 * level:.0f} % two-sided",
                     round(inf.quantile(level), 4), "",
                     "Student's t quantile computed with SciPy")]
     sub = rf"\hat f = {iv.value:.3f};\ \text{{{iv.kind}}}: [{iv.lower:.3f},\ {iv.upper:.3f}]"

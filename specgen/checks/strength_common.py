@@ -137,9 +137,16 @@ def analyse(project, rules) -> dict[tuple[str, str], Series]:
     for r in project.strength:
         rows.setdefault((r.mix, r.test), []).append(r)
     plaus = refdata.load("strength_classes").data["plausible_range"]
-    out = {}
-    for key in sorted(rows):
-        out[key] = _series(key, rows[key], st, rules, plaus[key[1]], project)
+    out = {key: _series(key, rows[key], st, rules, plaus[key[1]], project)
+           for key in sorted(rows)}
+    # the inference's fits of every series made together (their solves batched), then each
+    # series takes its own (``fits.inference`` finds it kept)
+    fams = {key: spc.family(project, project.mixes[key[0]]) for key in out
+            if key[0] in project.mixes}
+    fits.inferences([spc.fit_record(out[k], fam) for k, fam in fams.items()
+                     if not out[k].implausible])
+    for key, s in out.items():
+        _fit(s, fams.get(key), rules)
     return out
 
 
@@ -178,20 +185,24 @@ def _series(key, rows, st, rules, plaus, project) -> Series:
         t_fit += [r.age * lab_factor(r.curing_temperature, st) for r in g.kept]
         y_fit += [r.value for r in g.kept]
     s.t_fit, s.y_fit = np.array(t_fit), np.array(y_fit)
-    mix = project.mixes.get(key[0])
-    if mix is not None:
-        s.run = spc.infer(s, spc.family(project, mix), rules)
+    return s
+
+
+def _fit(s: Series, fam, rules) -> None:
+    """The series' two fits: the inference with its family's prior (``fam``; None when the
+    mix is not in the project) and the model comparison."""
+    if fam is not None:
+        s.run = spc.infer(s, fam, rules)
     if s.implausible:
         s.fit_error = ("results of implausible magnitude (see the aggregation check): "
                        "correct the unit or the values before fitting")
-        return s
+        return
     try:
         s.selection = fits.selection(s.t_fit, s.y_fit)
         if s.selection.best is None:
             s.fit_error = s.selection.reasoning
     except sm.StrengthFitError as exc:
         s.fit_error = str(exc)
-    return s
 
 
 def _group(test, age, rows, st, rules, known_cv) -> Group:

@@ -187,7 +187,7 @@ def _means_step(run: spc.InferenceRun, level: float) -> Step:
         subs.append(rf"{age:.4g}\,\mathrm{{d}}: {mean:.3f} \in [{b['mean_lo'][i]:.3f},\ "
                     rf"{b['mean_hi'][i]:.3f}]_{{mean}},\ [{b['pred_lo'][i]:.3f},\ "
                     rf"{b['pred_hi'][i]:.3f}]_{{set}}")
-    return Step(f"Measured means against the {level:.0%} band for the mean curve and the "
+    return Step(f"Measured means against the {100 * level:.0f} % band for the mean curve and the "
                 "interval for a set of the same size",
                 r",\quad ".join(si.interval_formulas(inf)),
                 tuple(inputs), r";\ ".join(subs), len(run.outside), "", "misses")

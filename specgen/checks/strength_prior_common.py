@@ -116,10 +116,16 @@ def infer(series, fam: Family, rules) -> InferenceRun:
     return run
 
 
+def fit_record(series, fam: Family) -> tuple[list[float], list[float], si.Prior]:
+    """What the inference fits for a series: equivalent ages (d) and values (MPa) of the
+    kept results, and the family's prior."""
+    return ([g.te / DAY for g in series.groups for _ in g.kept],
+            [r.value / MPA for g in series.groups for r in g.kept], fam.prior)
+
+
 def _infer(series, fam: Family) -> InferenceRun:
     run = InferenceRun(fam)
-    t = [g.te / DAY for g in series.groups for _ in g.kept]
-    y = [r.value / MPA for g in series.groups for r in g.kept]
+    t, y, _ = fit_record(series, fam)
     if series.implausible:
         run.error = ("results of implausible magnitude (see the aggregation check): correct "
                      "the unit or the values before the strength can be inferred")

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import html
 import logging
+import re
 import tempfile
 from pathlib import Path
 
@@ -40,7 +41,20 @@ class _FeedPages:
 
     def on_page_content(self, html, page, config, files):
         from specgen.publish.safety import neutralise_links
-        return neutralise_links(html)
+        return page_addresses(neutralise_links(html))
+
+
+#: a link written as raw HTML in a chapter (a status badge linking its calculation sheet, a
+#: check named in a warning) to another page by its source name: ``calculations.md#calc-x``
+_SOURCE_LINK = re.compile(r'href="([\w/-]+)\.md(#[^"]*)?"')
+
+
+def page_addresses(text: str) -> str:
+    """Links to pages by their source name (``x.md``, ``x.md#a``) pointed at the page the
+    site writes (``x.html``, ``x.html#a``; ``use_directory_urls: false``).  MkDocs does
+    this for Markdown links only; a raw HTML link would otherwise lead to a missing file.
+    The PDF makes the same links internal on its own (``publish.pdf._relink``)."""
+    return _SOURCE_LINK.sub(lambda m: f'href="{m.group(1)}.html{m.group(2) or ""}"', text)
 
 
 def _theme_code():

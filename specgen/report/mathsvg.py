@@ -13,6 +13,9 @@ from markupsafe import Markup, escape
 
 def _draw(latex: str) -> bytes:
     import ziamath
+
+    from specgen.report.mathlayout import install
+    install()   # the same drawing without the layout work nothing reads (mathlayout.py)
     # glyphs as plain paths, not <symbol>/<use>: WeasyPrint draws such SVG about twice
     # as fast (measured on a formula repeated 60 times: 6.5 s against 14.4 s)
     ziamath.config.svg2 = False
@@ -20,11 +23,17 @@ def _draw(latex: str) -> bytes:
 
 
 @lru_cache(maxsize=4096)
-def svg_of(latex: str) -> str:
-    """SVG text of a LaTeX expression (ziamath, STIX Two Math font shipped in the package);
-    kept in the output folder's artefact cache (specgen/cache.py)."""
+def svg_bytes(latex: str) -> bytes:
+    """SVG of a LaTeX expression (ziamath, STIX Two Math font shipped in the package); kept in
+    the output folder's artefact cache (specgen/cache.py).  The page set's asset is this very
+    object, so an expression's SVG is held once in memory however often it is asked for."""
     from specgen.cache import cached
-    return cached("math", latex, partial(_draw, latex)).decode("utf-8")
+    return cached("math", latex, partial(_draw, latex))
+
+
+def svg_of(latex: str) -> str:
+    """SVG text of a LaTeX expression (:func:`svg_bytes` decoded)."""
+    return svg_bytes(latex).decode("utf-8")
 
 
 def _svg_or_later(latex: str):
@@ -33,7 +42,7 @@ def _svg_or_later(latex: str):
     from specgen.cache import drawing_is_later, drawn_or_later
     if drawing_is_later():
         return drawn_or_later("math", latex, partial(_draw, latex))
-    return svg_of(latex).encode("utf-8")
+    return svg_bytes(latex)
 
 
 BESIDE_MIN = 8   # expressions to draw before a second process is worth its start
@@ -45,7 +54,7 @@ def drawn_beside(latexes):
     ``latexes`` (in the order the block asks for them) that the cache lacks, last first.
 
     Drawing the math is most of a cold render, which is otherwise one process on a two-core
-    machine: the block draws from the front (:func:`svg_of`, which takes what the other
+    machine: the block draws from the front (:func:`svg_bytes`, which takes what the other
     process has already kept), the other process from the back, so they meet in the middle
     and each expression is drawn about once.  The bytes are :func:`_draw`'s either way.  Only
     with a cache folder, where fork exists and when the drawing is not left for later (the

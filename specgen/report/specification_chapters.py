@@ -80,16 +80,31 @@ def _zone(env, zone, jenv, clause_ctx) -> dict:
             "message": reader(sel.message) if sel else "", "href": _href(sel.key) if sel else "",
             "rationale": s.rationale if s else "", "justification": s.justification if s else "",
             "approach": _approach(p),
-            "notes": [reader(n) for n in sel.notes] if sel else [], "clauses": clauses,
+            "notes": _findings(r, p, zone.id, chosen) if chosen else [], "clauses": clauses,
             "clause_number": clause_ctx["number"] if clause_ctx else "",
             "n_failed": len(failed), "failed_links": Markup("; ").join(
-                Markup('<a href="{}">{}</a> {}').format(f["href"], f["key"], f["title"])
-                for f in failed)}
+                _check_link(c) for c in failed)}
 
 
-def _failed(results, project, zone_id: str, mix_id: str) -> list[dict]:
-    return [{"key": c.key, "title": c.title, "href": _href(c.key), "message": reader(c.message)}
-            for c in applicable(results.checks, project, zone_id, mix_id) if c.status == "fail"]
+def _failed(results, project, zone_id: str, mix_id: str) -> list:
+    return [c for c in applicable(results.checks, project, zone_id, mix_id)
+            if c.status == "fail"]
+
+
+def _check_link(c) -> Markup:
+    """A check as a reader meets it: its title, linked to its calculation sheet, and its
+    register key after it (to find it in the check register)."""
+    return Markup('<a href="{}">{}</a> ({})').format(_href(c.key), c.title, c.key)
+
+
+def _findings(results, project, zone_id: str, mix_id: str) -> list[Markup]:
+    """What the works must allow for: the failed, held and attention checks on the chosen
+    mix (the ones SPEC-SELECT lists in its notes, in the same order), each by its title and
+    link, its status in words and its finding."""
+    checks = applicable(results.checks, project, zone_id, mix_id)
+    return [Markup("{} — {}: {}").format(_check_link(c), STATUS_WORDS[c.status],
+                                         reader(c.message))
+            for status in ("fail", "hold", "attention") for c in checks if c.status == status]
 
 
 @chapter("options.md", "Options appraised, check by check", "options.md.j2", volume="appendix")

@@ -72,7 +72,7 @@ def _band(ax, c: dict) -> None:
     import numpy as np
     ages = np.asarray(c["ages_d"], float)
     far = ages > float(c["indicative_from_d"])
-    level = f"{c['level']:.0%}"
+    level = f"{100 * c['level']:.0f} %"
     for lo, hi, colour, label in (
             ("pred_lo", "pred_hi", WIDE, f"{level} interval, next set of {c['n']} prisms"),
             ("mean_lo", "mean_hi", BAND, f"{level} band for the mean curve")):

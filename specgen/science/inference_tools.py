@@ -16,6 +16,7 @@ from scipy import optimize
 from specgen.science.distributions import f_sf, norm_ppf
 
 _Z95 = float(norm_ppf(0.975))
+LM_DAMPINGS = (1e-3, 10.0)   # starting dampings of laplace_fit_many's paths
 
 
 # ---------------------------------------------------------------- quantiles of draws
@@ -87,6 +88,83 @@ def laplace_fit(residuals: Callable[[np.ndarray], np.ndarray], z0: Sequence[floa
     jd = j[:n_data]
     p_eff = float(np.trace(cov @ (jd.T @ jd)))
     return Laplace(res.x, cov, p_eff, float(res.cost))
+
+
+def laplace_fit_many(resid_jac: Callable[[np.ndarray, np.ndarray], tuple[np.ndarray, np.ndarray]],
+                     z0: np.ndarray, n_data: int, max_iter: int = 200, xtol: float = 1e-10
+                     ) -> list[Laplace | None]:
+    """:func:`laplace_fit` of many problems of one structure at once (numpy over a series
+    axis): ``resid_jac(z, idx)`` gives the residuals (k x m) and their Jacobian (k x m x p) of
+    the series ``idx`` at their parameters ``z`` (k x p); ``z0`` is series x p.
+
+    Levenberg-Marquardt with Marquardt's scaling (the damping ``λ·diag(JᵀJ)``; Nocedal &
+    Wright, Numerical Optimization, sec. 10.3), every series stepped together, each with its
+    own damping; a series stops when its accepted step is below ``xtol`` (relative to its
+    parameters), or when no damping lowers its cost any more (at its minimum to rounding).
+    The stopping rule is tighter than ``least_squares``' default (``ftol = xtol = gtol =
+    1e-8``), so both find the same mode to within that solver's own tolerance.  A series not
+    converged within ``max_iter`` steps gives None: the caller fits it alone.
+
+    A posterior of a nonlinear law may have more than one mode, and which one a descent
+    reaches depends on its path: each series is solved along two paths (a bold and a cautious
+    starting damping, ``LM_DAMPINGS``) and keeps the lower of the minima they reach."""
+    best: list[Laplace | None] = [None] * np.shape(z0)[0]
+    for lam0 in LM_DAMPINGS:
+        for i, lap in enumerate(_lm_path(resid_jac, z0, n_data, max_iter, xtol, lam0)):
+            if lap is not None and (best[i] is None or lap.cost < best[i].cost):
+                best[i] = lap
+    return best
+
+
+def _lm_path(resid_jac, z0, n_data: int, max_iter: int, xtol: float, lam0: float):
+    """One Levenberg-Marquardt descent of every series from ``z0`` (:func:`laplace_fit_many`)."""
+    z = np.array(z0, float)
+    s, p = z.shape
+    r, jac = resid_jac(z, np.arange(s))
+    cost = 0.5 * np.sum(r ** 2, axis=1)
+    lam, nu = np.full(s, lam0), np.full(s, 2.0)
+    done, ok = ~np.isfinite(cost), np.zeros(s, bool)
+    eye = np.eye(p)
+    for _ in range(max_iter):
+        act = np.flatnonzero(~done)
+        if act.size == 0:
+            break
+        ja = jac[act]
+        g = np.einsum("smp,sm->sp", ja, r[act])
+        h = np.einsum("smp,smq->spq", ja, ja)
+        damp = lam[act, None] * np.maximum(np.einsum("spp->sp", h), 1e-300)
+        try:
+            step = -np.linalg.solve(h + damp[:, :, None] * eye, g[:, :, None])[:, :, 0]
+        except np.linalg.LinAlgError:
+            done[act] = True      # not ok: fitted alone
+            break
+        zn = z[act] + step
+        with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+            rn, jn = resid_jac(zn, act)
+        cn = 0.5 * np.sum(rn ** 2, axis=1)
+        gain = np.sum(step * (damp * step - g), axis=1) * 0.5   # reduction the model predicts
+        better = np.isfinite(cn) & np.all(np.isfinite(jn), axis=(1, 2)) & (cn <= cost[act])
+        size = np.max(np.abs(step), axis=1) / (1.0 + np.max(np.abs(z[act]), axis=1))
+        # converged: a step below xtol, or one below sqrt(xtol) that no longer lowers the
+        # cost beyond rounding (the last digits of a cost of m squares)
+        small = (size <= xtol) | ((size <= math.sqrt(xtol))
+                                  & (cost[act] - cn <= 1e-14 * cost[act]))
+        rho = np.where(gain > 0, (cost[act] - cn) / np.where(gain > 0, gain, 1.0), 0.0)
+        acc, rej = act[better], act[~better]
+        z[acc], r[acc], jac[acc], cost[acc] = zn[better], rn[better], jn[better], cn[better]
+        # Nielsen's update of the damping (Madsen, Nielsen & Tingleff 2004, Methods for
+        # non-linear least squares problems, sec. 3.2)
+        lam[acc] *= np.maximum(1.0 / 3.0, 1.0 - (2.0 * np.clip(rho[better], 0, 1) - 1.0) ** 3)
+        nu[acc] = 2.0
+        lam[rej] *= nu[rej]
+        nu[rej] *= 2.0
+        stop = act[(better & small) | (~better & (lam[act] > 1e16))]
+        done[stop] = ok[stop] = True
+    cov = np.linalg.pinv(np.einsum("smp,smq->spq", jac, jac))
+    jd = jac[:, :n_data]
+    p_eff = np.einsum("spq,sqp->s", cov, np.einsum("smp,smq->spq", jd, jd))
+    return [Laplace(z[i].copy(), cov[i], float(p_eff[i]), float(cost[i])) if ok[i] else None
+            for i in range(s)]
 
 
 def importance_sample(neg_log_post: Callable[[np.ndarray], np.ndarray], mode: Sequence[float],

@@ -117,7 +117,7 @@ def split_lumped(ox: Mapping[str, float],
         fractions = _checked_split(key, value, splits)
         for oxide, frac in fractions.items():
             out[oxide] = out.get(oxide, 0.0) + value * frac
-        shares = ", ".join(f"{frac:.0%} {oxide}" for oxide, frac in fractions.items())
+        shares = ", ".join(f"{100 * frac:.0f} % {oxide}" for oxide, frac in fractions.items())
         notes.append(f"{key} = {value:.2f} % reported together; split assumed as {shares}")
     return SplitAnalysis(analysis=out, assumptions=tuple(notes))
 

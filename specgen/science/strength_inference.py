@@ -60,17 +60,18 @@ from specgen.science.inference_tools import (Laplace, LackOfFit, draw_quantiles,
                                              falls, importance_sample, interval_score, lack_of_fit,
                                              laplace_fit, resample, row_quantiles)
 from specgen.science.two_stage_law import log_f as _log_f  # noqa: F401
+# the posterior mode (one record's problem, many solved together), importable from here
+from specgen.science.strength_solve import (GAIN_AGES_D, PRIOR_DOF, _groups, _Prep,  # noqa: F401
+                                            _solve, _solve_many, _start)
 from specgen.science.two_stage_law import log_f_grad as _log_f_grad
 from specgen.science.two_stage_law import unpack as _unpack
 
-PRIOR_DOF = 4.0          # weight of the prior's variances, as degrees of freedom (common practice)
 # importance sampling of the posterior (common practice for a Laplace proposal: heavier tails
 # and a wider scale than the approximation, so the weights stay bounded; MacKay 2003 ch. 29)
 DRAWS, PROPOSAL_DOF, PROPOSAL_SCALE, MIN_ESS, RNG_STATE = 4000, 5.0, 1.5, 100.0, 20260
 KEPT = 1000    # equally weighted draws kept after resampling (about the effective sample size)
 NODES = 48     # a longer list of ages (a curve) takes the band's offsets from ln f at this many
                # log-spaced ages, interpolated in ln t (the offsets vary slowly with age)
-GAIN_AGES_D = (28.0, 365.0)
 PREDICTIVE_REPEATS = 4   # t variates per draw (stratified); one let MC error cross the mean band
 
 
@@ -123,58 +124,52 @@ def _z_quantile(level: float) -> float:
     return float(norm_ppf(0.5 + level / 2.0))
 
 
-def _groups(ages_d, values_mpa):
-    t = np.asarray(ages_d, float).ravel()
-    y = np.asarray(values_mpa, float).ravel()
-    if t.size != y.size or t.size == 0:
-        raise InferenceError(f"{t.size} ages but {y.size} results; give one age per result")
-    if not (np.all(np.isfinite(t)) and np.all(np.isfinite(y))) or np.any(t <= 0) or np.any(y <= 0):
-        raise InferenceError("ages and results must be finite numbers greater than zero")
-    ages, inv = np.unique(t, return_inverse=True)
-    return t, np.log(y), ages, inv
-
-
 def fit(ages_d: Sequence[float], values_mpa: Sequence[float], prior: Prior) -> Inference:
     """Fit the two-stage law to results (ages d, MPa) with ``prior``; needs >= 3 ages."""
-    t, ly, ages, inv = _groups(ages_d, values_mpa)
-    if ages.size < 3:
-        raise InferenceError(
-            f"results at {ages.size} age(s) ({', '.join(f'{a:g} d' for a in ages)}); the "
-            "two-stage law is fitted to three or more ages: test at 7, 28 and 90 days")
-    counts = np.bincount(inv).astype(float)
-    means = np.bincount(inv, ly) / counts
-    d_w = float(np.sum(counts - 1))
-    ss_w = float(np.sum((ly - means[inv]) ** 2))
-    s0w = _central_cv(prior.within_cv)
-    sw2 = (PRIOR_DOF * s0w ** 2 + ss_w) / (PRIOR_DOF + d_w)
-    w_src = (f"pooled replicates ({d_w:g} dof) with the prior's {100 * s0w:.1f} % "
-             f"({PRIOR_DOF:g} dof)" if d_w > 0 else
-             f"prior only ({100 * s0w:.1f} %): no replicates")
-    s0b = _central_cv(prior.batch_cv)
-    sb2, b_src = s0b ** 2, f"prior only ({100 * s0b:.1f} %)"
-    lap = _solve(ages, means, counts, sb2, sw2, prior)
-    for _ in range(1):    # batch variance from the lack-of-fit mean square, then refit once
-        d_lof = ages.size - lap.p_eff
-        if d_lof < 0.5:
-            b_src = (f"prior only ({100 * s0b:.1f} %): the ages leave no degrees of freedom "
-                     "beyond the curve")
-            break
-        ms_lof = float(np.sum(counts * (means - _log_f(lap.mode, ages)) ** 2)) / d_lof
-        excess = max(0.0, (ms_lof - sw2) / counts.mean())
-        sb2 = (PRIOR_DOF * s0b ** 2 + d_lof * excess) / (PRIOR_DOF + d_lof)
-        b_src = (f"lack-of-fit mean square beyond the pure error ({d_lof:.2f} dof) with the "
-                 f"prior's {100 * s0b:.1f} % ({PRIOR_DOF:g} dof)")
-        lap = _solve(ages, means, counts, sb2, sw2, prior, lap.mode)
-    fitted = _log_f(lap.mode, ages)[inv]
-    lof = lack_of_fit(ly, inv, fitted, lap.p_eff)
+    out = fit_many([(ages_d, values_mpa, prior)])[0]
+    if isinstance(out, InferenceError):
+        raise out
+    return out
+
+
+def fit_many(records) -> list[Inference | InferenceError]:
+    """:func:`fit` of each ``(ages_d, values_mpa, prior)`` record, the refusal (not raised) of
+    each record that cannot be fitted in its place.  The penalised least-squares solves of
+    all the records are made together, numpy over a series axis (``laplace_fit_many``), in
+    the two rounds :func:`fit` makes (the curve, then again with the batch variance the lack
+    of fit gives); the sampling and the rest one record at a time.  A record is fitted the
+    same way alone or among others."""
+    preps: list = []
+    for rec in records:
+        try:
+            preps.append(_Prep.of(*rec))
+        except InferenceError as exc:
+            preps.append(exc)
+    live = [p for p in preps if isinstance(p, _Prep)]
+    for p, lap in zip(live, _solve_many([(p, None) for p in live])):
+        p.lap = lap
+    again = [p for p in live if p.batch_variance()]
+    for p, lap in zip(again, _solve_many([(p, p.lap.mode) for p in again])):
+        p.lap = lap
+    return [_inference_of(p) if isinstance(p, _Prep) else p for p in preps]
+
+
+def _inference_of(prep) -> Inference:
+    """The :class:`Inference` of a record fitted by :func:`fit_many`: lack of fit, the
+    posterior draws."""
+    lap, prior, counts = prep.lap, prep.prior, prep.counts
+    fitted = _log_f(lap.mode, prep.ages)[prep.inv]
+    lof = lack_of_fit(prep.ly, prep.inv, fitted, lap.p_eff)
     lof_b = None
     if lof.f is not None:
         denom = lof.ss_pure / lof.dof_pure + counts.mean() * prior.batch_cv.high ** 2
         lof_b = float(f_sf((lof.ss_lof / lof.dof_lof) / denom, lof.dof_lof, lof.dof_pure))
-    draws, ess = _sample(ages, means, counts, sb2, sw2, prior, lap)
-    return Inference(prior, ages, means, counts, lap.mode, lap.cov, lap.p_eff, math.sqrt(sw2),
-                     math.sqrt(sb2), w_src, b_src, d_w + PRIOR_DOF, lof, lof_b,
-                     float(ages.max()), draws, ess)
+    draws, ess = _sample(prep.ages, prep.means, counts, prep.sb2, prep.sw2, prior, lap)
+    return Inference(prior, prep.ages, prep.means, counts, lap.mode, lap.cov, lap.p_eff,
+                     math.sqrt(prep.sw2), math.sqrt(prep.sb2), prep.w_src, prep.b_src,
+                     prep.d_w + PRIOR_DOF, lof, lof_b, float(prep.ages.max()), draws, ess)
+
+
 
 
 def _neg_log_post(z, ages, means, sd, prior: Prior) -> np.ndarray:
@@ -195,31 +190,6 @@ def _sample(ages, means, counts, sb2, sw2, prior: Prior, lap: Laplace):
     z, w, ess = importance_sample(lambda zz: _neg_log_post(zz, ages, means, sd, prior),
                                   lap.mode, lap.cov, DRAWS, PROPOSAL_DOF, PROPOSAL_SCALE, RNG_STATE)
     return (None, ess) if z is None or ess < MIN_ESS else (resample(z, w, KEPT, RNG_STATE), ess)
-
-
-def _prior_residuals(z, prior: Prior) -> np.ndarray:
-    ln_f, lg_phi, ln_ta, ln_ts, ln_b = z
-    gain = _log_f(z, np.array(GAIN_AGES_D))
-    h = (lg_phi, ln_ta, ln_ts, ln_b, gain[1] - gain[0])
-    return np.array([(v - mu) / sd for v, (mu, sd) in zip(h, map(prior.penalty, PRIOR_KEYS))])
-
-
-def _solve(ages, means, counts, sb2, sw2, prior: Prior, z0=None) -> Laplace:
-    sd = np.sqrt(sb2 + sw2 / counts)
-    sds = np.array([prior.penalty(k)[1] for k in PRIOR_KEYS])
-    gain_ages = np.array(GAIN_AGES_D)
-
-    def resid(z):
-        return np.concatenate([(means - _log_f(z, ages)) / sd, _prior_residuals(z, prior)])
-
-    def jac(z):
-        g = _log_f_grad(z, gain_ages)
-        prior_rows = np.vstack([np.eye(5)[1:5], g[1] - g[0]]) / sds[:, None]
-        return np.vstack([-_log_f_grad(z, ages) / sd[:, None], prior_rows])
-    if z0 is None:
-        z0 = np.array([0.0] + [prior.penalty(k)[0] for k in PRIOR_KEYS[:4]])
-        z0[0] = float(np.max(means - _log_f(z0, ages)))
-    return laplace_fit(resid, z0, ages.size, jac)
 
 
 # ---------------------------------------------------------------- predictions

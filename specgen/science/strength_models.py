@@ -97,26 +97,48 @@ def _weights(t_d, y, weighting, sigma_pa):
 
 
 def _start(spec, t, y, w, x_fixed):
-    """Grid over the nonlinear parameters with the amplitudes solved by NNLS."""
-    best, best_x = math.inf, None
+    """Grid over the nonlinear parameters with the amplitudes solved by NNLS, every grid
+    point at once (numpy over the grid axis); the first best point of the grid in its order."""
     if spec.key == "two_component":
-        grid = [(ts, b) for ts in np.geomspace(1.0, 3000.0, 13) for b in (0.5, 0.75, 1.0, 1.5, 2.2)]
+        ts, b = (a.ravel() for a in np.meshgrid(np.geomspace(1.0, 3000.0, 13),
+                                                (0.5, 0.75, 1.0, 1.5, 2.2), indexing="ij"))
         ta = x_fixed[1]
         col_a = -np.expm1(-t / ta) * w
-        for ts, b in grid:
-            a = np.column_stack([col_a, -np.expm1(-(t / ts) ** b) * w])
-            amp, rn = optimize.nnls(a, y * w)
-            if rn < best:
-                best, best_x = rn, [amp[0], ta, amp[1], ts, b]
-        return np.array(best_x)
-    for q in (np.linspace(0.02, 2.5, 40) if spec.key == "en1992_age"
-              else np.geomspace(0.01, 3000.0, 40)):
-        col = spec.f([1.0, q], t) * w
-        amp = max(float(col @ (y * w) / (col @ col)), 1e-3)
-        rn = float(np.sum((amp * col - y * w) ** 2))
-        if rn < best:
-            best, best_x = rn, [amp, q]
-    return np.array(best_x)
+        col_s = -np.expm1(-(t[None, :] / ts[:, None]) ** b[:, None]) * w
+        amp, rn = _nnls2(col_a, col_s, y * w)
+        i = int(np.argmin(rn))
+        return np.array([amp[i, 0], ta, amp[i, 1], ts[i], b[i]])
+    q = (np.linspace(0.02, 2.5, 40) if spec.key == "en1992_age"
+         else np.geomspace(0.01, 3000.0, 40))
+    col = spec.f([1.0, q[:, None]], t[None, :]) * w
+    amp = np.maximum(col @ (y * w) / np.sum(col * col, axis=1), 1e-3)
+    rn = np.sum((amp[:, None] * col - y * w) ** 2, axis=1)
+    i = int(np.argmin(rn))
+    return np.array([amp[i], q[i]])
+
+
+def _nnls2(a, cols, b):
+    """Non-negative least squares of ``b`` on two columns, ``a`` (shared) and each row of
+    ``cols``, in closed form (the same answers as ``scipy.optimize.nnls``, one problem per
+    row): the unconstrained solution when both amplitudes are >= 0, else the better of the
+    two one-column fits (each >= 0).  Returns (amplitudes rows x 2, residual norms)."""
+    aa, ab, bb = a @ a, cols @ a, np.sum(cols * cols, axis=1)
+    ya, yb = a @ b, cols @ b
+    det = aa * bb - ab * ab
+    with np.errstate(divide="ignore", invalid="ignore"):
+        x0 = (ya * bb - yb * ab) / det
+        x1 = (yb * aa - ya * ab) / det
+        only_a = np.full(bb.shape, max(ya / aa, 0.0) if aa > 0 else 0.0)
+        only_b = np.where(bb > 0, np.maximum(yb / bb, 0.0), 0.0)
+    both = np.isfinite(x0) & np.isfinite(x1) & (x0 >= 0) & (x1 >= 0) & (det > 0)
+    cand = [np.column_stack([np.where(both, x0, 0.0), np.where(both, x1, 0.0)]),
+            np.column_stack([only_a, np.zeros_like(only_a)]),
+            np.column_stack([np.zeros_like(only_b), only_b])]
+    norms = [np.linalg.norm(c[:, :1] * a + c[:, 1:] * cols - b, axis=1) for c in cand]
+    norms[0] = np.where(both, norms[0], np.inf)
+    k = np.argmin(np.vstack(norms), axis=0)
+    pick = np.arange(k.size)
+    return np.stack(cand)[k, pick], np.vstack(norms)[k, pick]
 
 
 def fit_model(model: str, ages_s: Sequence[float], values_pa: Sequence[float], *,

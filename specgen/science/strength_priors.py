@@ -133,7 +133,13 @@ def melded_gain(shape: tuple, low: float, high: float) -> tuple[float, float]:
     ln SD) on draws of the shape terms weighted by the term.  When the shape rows cannot be
     narrowed to the row (the row is the wider), the closest match is kept."""
     # sorted once: the weights follow the draws, so the order is the same at every step
-    g = np.sort(_implied_log_gains(shape))
+    return match_gain_term(np.sort(_implied_log_gains(shape)), low, high)
+
+
+def match_gain_term(g: np.ndarray, low: float, high: float) -> tuple[float, float]:
+    """(centre, SD) of the log-normal gain term under which the draws ``g`` (ln f365/f28 of
+    draws of the shape terms, ascending) have the central 95 % range ``low``-``high``: the
+    matching :func:`melded_gain` does, on any set of shape draws."""
     target = np.log([low, high])
     scale = (target[1] - target[0]) / (2 * _Z95)
 

@@ -59,3 +59,22 @@ def log_f_grad(z, t_d) -> np.ndarray:
         np.ones_like(t), (a_ - b_) * phi * (1 - phi) / shape,
         -phi * (t / ta) * ea / shape, -(1 - phi) * b * u * eb / shape,
         (1 - phi) * eb * b * u * np.log(t / ts) / shape])
+
+
+def log_f_grad_many(z, t_d) -> np.ndarray:
+    """:func:`log_f_grad` of many parameter vectors at once: ``z`` (series x 5), ``t_d``
+    (series x ages, or one row of ages for all); returns series x ages x 5, the same formula
+    term by term."""
+    z = np.asarray(z, float)
+    lg_phi, ln_ta, ln_ts, ln_b = (z[:, k:k + 1] for k in range(1, 5))
+    phi, ta, ts, b = 1.0 / (1.0 + np.exp(-lg_phi)), np.exp(ln_ta), np.exp(ln_ts), np.exp(ln_b)
+    t = np.broadcast_to(np.asarray(t_d, float), (z.shape[0], np.shape(t_d)[-1]))
+    ea = np.exp(-t / ta)
+    u = (t / ts) ** b
+    eb = np.exp(-u)
+    a_, b_ = -np.expm1(-t / ta), -np.expm1(-u)
+    shape = np.maximum(phi * a_ + (1 - phi) * b_, 1e-300)
+    return np.stack([
+        np.ones_like(t), (a_ - b_) * phi * (1 - phi) / shape,
+        -phi * (t / ta) * ea / shape, -(1 - phi) * b * u * eb / shape,
+        (1 - phi) * eb * b * u * np.log(t / ts) / shape], axis=-1)

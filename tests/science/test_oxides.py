@@ -128,7 +128,7 @@ def test_lumped_oxide_split_states_assumption():
     assert result.analysis["Fe2O3"] == pytest.approx(4.0)
     assert "Al2O3+Fe2O3" not in result.analysis
     assert result.assumptions == ("Al2O3+Fe2O3 = 10.00 % reported together; "
-                                  "split assumed as 60% Al2O3, 40% Fe2O3",)
+                                  "split assumed as 60 % Al2O3, 40 % Fe2O3",)
     assert closure(result.analysis).total == pytest.approx(closure(ox).total)
 
 

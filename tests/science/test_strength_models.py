@@ -288,3 +288,21 @@ def test_two_component_fit_with_held_tau_a_matches_scipy_curve_fit():
     se = [fit.std_errors["f_A"] / MPA, fit.std_errors["f_S"] / MPA,
           fit.std_errors["tau_S"] / DAY, fit.std_errors["b"]]
     assert se == pytest.approx(list(np.sqrt(np.diag(pcov))), rel=1e-2)
+
+
+def test_grid_start_nnls_equals_scipy_nnls():
+    """The grid start solves its two-amplitude non-negative least squares in closed form, one
+    problem per grid point at once; reference: ``scipy.optimize.nnls`` of each problem
+    (reference library), on random problems in which either, both or neither bound binds."""
+    from scipy import optimize
+    from specgen.science.strength_models import _nnls2
+    rng = np.random.default_rng(3)
+    for _ in range(40):
+        n = int(rng.integers(3, 12))
+        a, cols = rng.uniform(0, 1, n), rng.uniform(0, 1, (65, n))
+        b = rng.normal(0.3, 1.0, n)
+        amp, rn = _nnls2(a, cols, b)
+        for k in range(cols.shape[0]):
+            ref, ref_rn = optimize.nnls(np.column_stack([a, cols[k]]), b)
+            assert amp[k] == pytest.approx(ref, rel=1e-9, abs=1e-12)
+            assert rn[k] == pytest.approx(ref_rn, rel=1e-9, abs=1e-12)
