@@ -655,6 +655,8 @@ def test_aluminate_rich_by_analysis_or_family():
         "reactive aluminate (assumed); B3: no Al2O3 in an analysis; family natural cement "
         "carries reactive aluminate (assumed)"))
     assert rich() == (False, "")
+    assert rich("B9", "B3") == (True, "B3: no Al2O3 in an analysis; family natural cement "
+                                      "carries reactive aluminate (assumed)")
 
 
 # --- COMP-COLOUR on hand-made readings (no demo check) -------------------------------------
