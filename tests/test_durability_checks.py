@@ -979,3 +979,16 @@ def test_setting_workable_life_equal_to_the_initial_set_is_no_conflict():
     assert (c.status, c.steps[0].result) == ("pass", 45.0)
     assert c.message == ("initial 45 min, final 110 min (Vicat, EN 196-3); natural cement: no "
                          "current standard limit; the set governs the gaugings")
+
+
+def test_setting_workable_life_longer_than_the_set_alone_is_attention():
+    """A natural cement set at 45 min whose workable life was measured at 60 min (tested at
+    the card's dose, no standard limit): the conflict of the two tests alone makes it
+    attention, and the gaugings use the 45 min (by hand)."""
+    c, _ = _setting_of({"N1": "natural_cement"}, (2700.0, 6600.0, "vicat_en196_3", "", 0.0),
+                       life=3600.0)
+    assert (c.status, c.steps[0].result) == ("attention", 45.0)
+    assert c.message == ("initial 45 min, final 110 min (Vicat, EN 196-3); natural cement: no "
+                         "current standard limit; the set governs the gaugings; measured "
+                         "workable life 60 min is longer than the initial set: the gaugings use "
+                         "45 min; check the two tests")
