@@ -136,10 +136,17 @@ def tests_naming(files: list[str], names: set[str], root: Path = REPO) -> list[s
             first = min([node.lineno] + [d.lineno for d in node.decorator_list])
             return "\n".join(lines[first - 1:node.end_lineno])
         # a helper of the file that names them (``_curing_of`` calling the check) counts for
-        # the tests that call it
-        wanted = list(names) + [rf"\b{n.name}\s*\(" for n in defs
-                                if not n.name.startswith("test_")
-                                and any(re.search(x, body(n)) for x in names)]
+        # the tests that call it, and so does a helper calling such a helper (``_lime_portland``
+        # calling ``_setting_of``): repeated until no helper is added
+        wanted = list(names)
+        helpers = [n for n in defs if not n.name.startswith("test_")]
+        while True:
+            more = [rf"\b{n.name}\s*\(" for n in helpers
+                    if rf"\b{n.name}\s*\(" not in wanted
+                    and any(re.search(x, body(n)) for x in wanted)]
+            if not more:
+                break
+            wanted += more
         picked = [f"{f}::{n.name}" for n in defs if n.name.startswith("test_")
                   and any(re.search(x, body(n)) for x in wanted)]
         out += picked or [f]

@@ -176,7 +176,6 @@ def render(project, results, history=None, superseded: str | None = None, *,
     jenv.globals["table"] = env.table
     base = {"project": project.dossier.project, "revision": project.revision,
             "narrative": {}}
-    numbers = chapter_numbers(chapters())
     from specgen import practice
     from specgen.report.fmt import unit_display
     # every page shows units the way the practice the project follows does
@@ -184,34 +183,7 @@ def render(project, results, history=None, superseded: str | None = None, *,
     math = [t for c in results.checks for s in c.steps for t in (s.formula, s.substituted)]
     with unit_display(practice.resolve(project.dossier).unit_display), \
             project_template_errors(getattr(project, "root", None)), drawn_beside(math):
-        waiting = set(first) if first is not None else None  # first pages not laid out yet
-        done = False   # every first page laid out (and none awaits a part written last)
-        for spec in chapters():
-            env.number = numbers.get(spec.path, "")
-            done = done or waiting is not None and not waiting and not env.deferred
-            if done and one_page(spec):   # named by its declaration, its context not prepared
-                pageset.add_page(spec.path, f"{env.number} {spec.title}".strip(), "",
-                                 volume=spec.volume)
-                pageset.unrendered.add(spec.path)
-                continue
-            made = _pages_of(spec, spec.fn(env))
-            for i, (path, title, ctx) in enumerate(made, start=1):
-                if env.number:  # a family of pages is numbered within its chapter: 6.1, 6.2 …
-                    title = f"{env.number}.{i} {title}" if len(made) > 1 or path != spec.path \
-                        else f"{env.number} {title}"
-                done = done or waiting is not None and not waiting and not env.deferred
-                if done:
-                    pageset.add_page(path, title, "", volume=spec.volume)
-                    pageset.unrendered.add(path)
-                    continue
-                ctx = dict(base, **ctx, title=title)
-                stem = path.rsplit(".", 1)[0]
-                ctx["narrative"] = _narrative_for(
-                    project, "introduction" if stem == "index" else stem)
-                text = jenv.get_template(spec.template).render(**ctx)
-                pageset.add_page(path, title, text, volume=spec.volume)
-                if waiting is not None:
-                    waiting.discard(path)
+        _lay_out(env, jenv, base, first)
         if not pageset.unrendered:   # the parts written last read every page: a whole render
             _resolve_later(env, pageset)
     from specgen.report.review import CONTEXT_ASSET, review_context
@@ -221,6 +193,40 @@ def render(project, results, history=None, superseded: str | None = None, *,
     if not later_downloads:
         pageset.make_downloads()
     return pageset
+
+
+def _lay_out(env: RenderEnv, jenv, base: dict, first: set[str] | None) -> None:
+    """Every chapter's pages into ``env.pageset``, in reading order; with ``first``, laid out
+    only up to the last of those pages, the rest named (see :func:`render`)."""
+    pageset, numbers = env.pageset, chapter_numbers(chapters())
+    waiting = set(first) if first is not None else None  # first pages not laid out yet
+    done = False   # every first page laid out (and none awaits a part written last)
+    for spec in chapters():
+        env.number = numbers.get(spec.path, "")
+        done = done or waiting is not None and not waiting and not env.deferred
+        if done and one_page(spec):   # named by its declaration, its context not prepared
+            pageset.add_page(spec.path, f"{env.number} {spec.title}".strip(), "",
+                             volume=spec.volume)
+            pageset.unrendered.add(spec.path)
+            continue
+        made = _pages_of(spec, spec.fn(env))
+        for i, (path, title, ctx) in enumerate(made, start=1):
+            if env.number:  # a family of pages is numbered within its chapter: 6.1, 6.2 …
+                title = f"{env.number}.{i} {title}" if len(made) > 1 or path != spec.path \
+                    else f"{env.number} {title}"
+            done = done or waiting is not None and not waiting and not env.deferred
+            if done:
+                pageset.add_page(path, title, "", volume=spec.volume)
+                pageset.unrendered.add(path)
+                continue
+            ctx = dict(base, **ctx, title=title)
+            stem = path.rsplit(".", 1)[0]
+            ctx["narrative"] = _narrative_for(
+                env.project, "introduction" if stem == "index" else stem)
+            pageset.add_page(path, title, jenv.get_template(spec.template).render(**ctx),
+                             volume=spec.volume)
+            if waiting is not None:
+                waiting.discard(path)
 
 
 def chapter_numbers(specs) -> dict[str, str]:
