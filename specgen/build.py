@@ -180,6 +180,8 @@ class Prepared:
     results: Results
     pages: object
     data_key: tuple   # hashes of the inputs the checks read (all but narrative and templates)
+    history: object = None     # the earlier revisions the pages were rendered against
+    cache_dir: Path | None = None   # the artefact cache the figures and math come from
 
 
 def _data_key(project: Project) -> tuple:
@@ -188,13 +190,13 @@ def _data_key(project: Project) -> tuple:
 
 @fits.kept()  # each strength fit once per call (checks/fits.py)
 def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | None = None,
-            cache_dir: Path | str | None = None, progress: Callable[..., None] = _quiet
-            ) -> Prepared:
+            cache_dir: Path | str | None = None, progress: Callable[..., None] = _quiet,
+            first: set[str] | None = None) -> Prepared:
     """Load, check and render; the checks are reused from ``reuse`` when only narrative or
-    templates changed, and figures and math come from the artefact cache."""
+    templates changed, and figures and math come from the artefact cache.  With ``first``
+    (page paths), only the pages up to them are laid out (``render``'s ``first``; the rest
+    by :func:`complete`)."""
     from specgen.publish.history import history_for
-    from specgen import cache
-    from specgen.report.render import render
     progress("load: reading and validating the project folder")
     project = load(project_dir)
     key = _data_key(project)
@@ -205,14 +207,33 @@ def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | N
         progress("check: running the checks and the consistency audit")
         results = evaluate(project, previous=_previous(archived[-1] if archived else None))
     progress("render: pages, figures and calculation sheets")
-    with cache.using(cache_dir or Path(out_dir) / cache.CACHE_DIR, cache.shared_folder()), \
-            cache.drawing_later():
-        # the DOCX exports are made with the PDF, after the site (preview_pdf); a figure the
-        # cache does not hold is a placeholder, drawn after the site (preview_figure)
-        pages = render(project, results, history_for(Path(out_dir), project, results),
-                       later_downloads=True)
+    from specgen import cache
+    prepared = Prepared(project, results, None, key,
+                        history_for(Path(out_dir), project, results),
+                        Path(cache_dir or Path(out_dir) / cache.CACHE_DIR))
+    prepared.pages = _preview_pages(prepared, first)
     _fix_dates(project.revision.date)
-    return Prepared(project, results, pages, key)
+    return prepared
+
+
+def _preview_pages(prepared: Prepared, first: set[str] | None):
+    """The prepared revision's pages as the live preview renders them: the DOCX exports made
+    with the PDF, after the site (preview_pdf); a figure the cache does not hold a
+    placeholder, drawn after the site (preview_figure)."""
+    from specgen import cache
+    from specgen.report.render import render
+    with cache.using(prepared.cache_dir, cache.shared_folder()), cache.drawing_later():
+        return render(prepared.project, prepared.results, prepared.history,
+                      later_downloads=True, first=first)
+
+
+def complete(prepared: Prepared) -> Prepared:
+    """The prepared revision with every page laid out (``prepare``'s ``first`` left the
+    rest unrendered): the same project, results and history, rendered whole."""
+    if not prepared.pages.unrendered:
+        return prepared
+    return Prepared(prepared.project, prepared.results, _preview_pages(prepared, None),
+                    prepared.data_key, prepared.history, prepared.cache_dir)
 
 
 def preview_site(prepared: Prepared, out_dir: Path | str, first: set[str] | None = None

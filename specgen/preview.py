@@ -125,9 +125,11 @@ def _address(page: str) -> str:
     return page.rsplit(".", 1)[0] + ".html"
 
 
-def _first_pages(pages, wanted: str) -> set[str]:
-    """The pages laid out first: the summary, and the page a reader asked for already."""
-    return {"index.md"} | {p for p in pages if _address(p) == wanted}
+def _first_pages(wanted: str) -> set[str]:
+    """The pages laid out first: the summary, and the page a reader asked for already
+    (``strength.html`` → ``strength.md``; an address of no page lays out the whole site)."""
+    return {"index.md"} | ({wanted.removesuffix(".html") + ".md"} if wanted.endswith(".html")
+                           else set())
 
 
 def _snapshot(folder: Path) -> dict[str, str]:
@@ -170,8 +172,10 @@ class Previewer(Afterwards):
             frozen = self._frozen_edits(changed or (), ARCHIVE_DIR)
             if frozen:   # the inputs of an issued revision: never previewed as edited
                 raise UsageError(_frozen_text(frozen, ARCHIVE_DIR))
+            # the first site: the summary (and a page already asked for) first, the rest after
+            first = None if self.state.revision is not None else _first_pages(self.state.wanted)
             prepared = prepare(self.project, self.out, reuse=self.prepared, cache_dir=self.cache,
-                               progress=self.progress)
+                               progress=self.progress, first=first)
             rev = prepared.project.revision
             if changed and rev.status == "issued":
                 raise UsageError(
@@ -179,9 +183,7 @@ class Previewer(Afterwards):
                     "pages are not rebuilt from edited inputs. Fix: undo the edit, or open the "
                     f"next draft (specgen issue, or set revision.code and status: draft in "
                     "dossier.yaml) and make the change there.")
-            # the first site: the summary (and a page already asked for) first, the rest after
-            first = None if self.state.revision is not None else _first_pages(
-                prepared.pages.pages, self.state.wanted)
+            first = first and first & set(prepared.pages.pages)
             with self._site_lock:
                 target = preview_site(prepared, self.out, first)
                 self._published(prepared, target, preview_figures(prepared), first)

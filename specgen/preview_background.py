@@ -47,35 +47,49 @@ class Afterwards:
                     self._pdf_cv.wait()
                 (prepared, target, generation), self._pdf_want = self._pdf_want, None
                 self._pdf_busy = True
-            if self._rest_of_site(prepared, generation) and \
-                    self._draw_figures(prepared, target, generation):
+            prepared = self._rest_of_site(prepared, generation)
+            if prepared is not None and self._draw_figures(prepared, target, generation):
                 self._print(prepared, target, generation)
             with self._pdf_cv:
                 self._pdf_busy = False
                 self._pdf_cv.notify_all()
 
-    def _rest_of_site(self, prepared, generation: int) -> bool:
-        """Lay out the pages the first site said were being built; False when superseded."""
-        from specgen.build import preview_site
+    def _rest_of_site(self, prepared, generation: int):
+        """Lay out the pages the first site said were being built (rendering them first, when
+        the first site rendered only its own: ``build.complete``); the revision prepared
+        whole, or None when superseded or failed."""
+        from specgen.build import complete, preview_figures, preview_site
         from specgen.errors import SpecgenError
         if not self.state.building:
-            return True
+            return prepared
         started = time.monotonic()
+        try:
+            prepared = complete(prepared)
+        except Exception as exc:  # noqa: BLE001 - reported on the pages, never a silent stop
+            return self._not_built(exc)
         with self._site_lock:
             with self.state.lock:
                 if self.state.generation != generation:
-                    return False
+                    return None
             try:
                 target = preview_site(prepared, self.out)
             except SpecgenError as exc:
-                with self.state.lock:
-                    self.state.notice = str(exc)
-                self.say(f"the rest of the site was not built:\n{exc}")
-                return False
-            with self.state.lock:
+                return self._not_built(exc)
+            with self.state.lock:   # the whole page set's placeholders, by page
                 self.state.building = set()
+                self.state.figures = preview_figures(prepared)
+                self.state.drawing = set(prepared.pages.drawing)
         self.say(f"whole site of {target.name} ready in {time.monotonic() - started:.1f} s")
-        return True
+        return prepared
+
+    def _not_built(self, exc) -> None:
+        """Say on every page, and in the terminal, why the rest of the site was not built."""
+        from specgen.errors import InputErrors, SpecgenError
+        text = exc.report() if isinstance(exc, InputErrors) else str(exc) \
+            if isinstance(exc, SpecgenError) else f"{type(exc).__name__}: {exc}"
+        with self.state.lock:
+            self.state.notice = text
+        self.say(f"the rest of the site was not built:\n{text}")
 
     def _next_figure(self) -> str | None:
         """The figure to draw next: the first not drawn of the page last asked for, else of

@@ -355,3 +355,58 @@ def test_index_without_lime_or_silica_names_both():
         code="CHEM-CI", title="Cementation index", subject="B5", subject_kind="analysis",
         status="not_assessed", value=None, unit="", basis=(ECKEL,),
         message="not assessed: the analysis gives no CaO, SiO2")
+
+
+def test_chemistry_pieces_by_hand():
+    """The shared pieces of the chemistry checks on hand-made analyses: a lumped key without
+    its split refused with the line to add, a guarded check's refusal turned into *not
+    assessed* with its reason, a non-finite value refused, absent oxides shown as 0, the
+    binder an analysis belongs to, and what counts as clinker."""
+    from types import SimpleNamespace as NS
+    from specgen.checks import chemistry_common as cm
+    from specgen.science.oxides import ChemistryInputError
+    lumped = _analysis({"SiO2": 20.0, "Al2O3+Fe2O3": 9.0, "CaO": 60.0}, aid="L1")
+    with pytest.raises(ChemistryInputError) as err:
+        cm.prepared(lumped)
+    assert str(err.value) == (
+        "'Al2O3+Fe2O3' is reported lumped and no split is declared; add to analysis 'L1' in "
+        "analyses.yaml: lumped_split: {'Al2O3+Fe2O3': {Al2O3: …, Fe2O3: …}}")
+    plain = cm.prepared(_analysis({"SiO2": 20.0, "CaO": 60.0}))
+    assert (plain.ox, plain.assumptions) == ({"SiO2": 20.0, "CaO": 60.0}, ())
+
+    def refuses(subject, ctx):
+        raise ChemistryInputError("the index needs CaO above zero")
+    guarded = cm.guarded("CHEM-CI", "Cementation index", "analysis", (ECKEL,))(refuses)
+    assert guarded(NS(id="L1"), None) == CheckResult(
+        code="CHEM-CI", title="Cementation index", subject="L1", subject_kind="analysis",
+        status="not_assessed", value=None, unit="", basis=(ECKEL,),
+        message="not assessed: the index needs CaO above zero")
+    assert cm.finite(1.5, "x") == 1.5
+    with pytest.raises(ChemistryInputError) as err:
+        cm.finite(float("nan"), "the lime saturation factor")
+    assert str(err.value) == ("the lime saturation factor came out non-finite; check the "
+                              "analysis")
+    with pytest.raises(ChemistryInputError):
+        cm.finite(float("inf"), "x")
+    a = _analysis({"SiO2": 20.0}, aid="L2", lab=LAB, material="B1")
+    assert cm.oxide_inputs(a, a.mass_percent, [("S", "SiO2"), ("A", "Al2O3")]) == (
+        Input("S", "SiO2", 20.0, "%", f"analysis L2 ({LAB})"),
+        Input("A", "Al2O3", 0.0, "%", "not reported: taken as 0"))
+    project = NS(binders={"B1": NS(type="nhl", contains_clinker=False)})
+    assert cm.binder_of(a, project) is project.binders["B1"]
+    assert cm.binder_of(_analysis({}), project) is None
+    assert [cm.is_clinker(b) for b in (None, NS(type="portland", contains_clinker=False),
+                                       NS(type="nhl", contains_clinker=True),
+                                       NS(type="nhl", contains_clinker=False))] == [
+        False, True, True, False]
+
+
+def test_closure_rounds_to_four_decimals():
+    """A laboratory's figures to five decimals: the total 25.00004 + 50 + 25.00004 =
+    100.00008 % is recorded, shown and summed as 100.0001 % (four decimals, by hand), the
+    loss on ignition 25.00004 as 25.0 %."""
+    from specgen.checks.composition_checks import closure_check
+    c = closure_check(_analysis({"SiO2": 25.00004, "CaO": 50.0, "LOI": 25.00004}), _ctx())
+    assert (c.value, c.steps[0].result) == (100.0001, 100.0001)
+    assert c.quantities == (Quantity("analysis_total", 100.0001, "%", "sum of constituents"),
+                            Quantity("loss_on_ignition", 25.0, "%", "loss on ignition"))

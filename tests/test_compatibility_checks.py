@@ -655,6 +655,8 @@ def test_aluminate_rich_by_analysis_or_family():
         "reactive aluminate (assumed); B3: no Al2O3 in an analysis; family natural cement "
         "carries reactive aluminate (assumed)"))
     assert rich() == (False, "")
+    assert rich("B9", "B3") == (True, "B3: no Al2O3 in an analysis; family natural cement "
+                                      "carries reactive aluminate (assumed)")
 
 
 # --- COMP-COLOUR on hand-made readings (no demo check) -------------------------------------
@@ -793,3 +795,52 @@ def test_colour_threshold_edge_and_three_readings():
     c = _colour_of(rows, threshold=de - 1e-6)[0]
     assert c.status == "attention"
     assert c.limit.overridden == "panel brief"
+
+
+def test_compatibility_pieces_by_hand():
+    """The shared pieces of the compatibility checks on hand-made inputs: the fabric's names,
+    a ratio step (1.234567 / 3 = 0.411522, by hand), a rule's limit either way, and a pair
+    whose readings the science refuses turned into its own *not assessed* while the zone's
+    other pair is still judged."""
+    from types import SimpleNamespace as NS
+    from specgen.checks import compatibility_common as cc
+    from specgen.checks.result import Basis, CheckResult, Limit
+    from specgen.checks.rules import RuleBook
+    from specgen.checks.run import Context
+    from specgen.errors import ScienceInputError
+    zone = NS(id="Z9", candidates=["MA", "MB"], units="U9", historic_mortar="H9")
+    full = NS(zone=zone, unit=NS(id="U9"), historic=NS(id="H9"))
+    bare = NS(zone=zone, unit=None, historic=None)
+    assert cc.fabric_names(full) == ("masonry unit U9", "historic mortar H9")
+    assert cc.fabric_names(bare) == ("zone Z9 names no masonry unit",
+                                     "zone Z9 names no historic mortar")
+    assert cc.ratio_step("Ratio to the unit", "R", "repair strength", 1.234567, "lab A",
+                         "unit strength", 3.0, "lab B", "MPa") == Step(
+        "Ratio to the unit", r"R = \frac{x_\mathrm{repair}}{x_\mathrm{fabric}}",
+        (Input("x_repair", "repair strength", 1.23457, "MPa", "lab A"),
+         Input("x_fabric", "unit strength", 3.0, "MPa", "lab B")),
+        r"R = \frac{1.235}{3} = 0.4115", 0.41152, "", "R")
+    ctx = Context(NS(masonry_units={"U9": full.unit}, historic_mortars={"H9": full.historic},
+                     mixes={}, mortar_properties={}),
+                  RuleBook([NS(rule="compatibility.colour_delta_e_max", value=3.0,
+                               justification="brief")]))
+    assert cc.rule_limit(ctx, "colour_delta_e_max", "<=", "ΔE00 ≤ 3") == Limit(
+        "<=", high=3.0, unit="", text="ΔE00 ≤ 3", rule="compatibility.colour_delta_e_max",
+        overridden="brief")
+    assert cc.rule_limit(ctx, "colour_delta_e_max", ">=", "t", unit="x") == Limit(
+        ">=", low=3.0, unit="x", text="t", rule="compatibility.colour_delta_e_max",
+        overridden="brief")
+    assert cc.rule_basis(ctx, "colour_delta_e_max").kind == "project requirement"
+
+    def judge(pair, ctx):
+        if pair.mix_id == "MA":
+            raise ScienceInputError("two readings are needed, one given")
+        return cc.result("COMP-SALT", "t", pair, "pass", 1.0, "u", [], "m")
+    out = cc.each_pair("COMP-SALT", zone, ctx, judge)
+    assert out == [
+        CheckResult(code="COMP-SALT", title="Salt load of the fabric", subject="Z9/MA",
+                    subject_kind="zone", status="not_assessed", value=None, unit="",
+                    basis=(Basis("common practice", note="content/rules/compatibility.yaml"),),
+                    message="not assessed: two readings are needed, one given"),
+        CheckResult(code="COMP-SALT", title="t", subject="Z9/MB", subject_kind="zone",
+                    status="pass", value=1.0, unit="u", basis=(), message="m")]

@@ -115,17 +115,21 @@ def test_first_page_cold_shows_placeholders_then_the_real_figures(cold, monkeypa
     assert "being built" not in get(base + "/calculations.html")[1]
 
 
-def test_a_figure_that_cannot_be_drawn_is_reported_on_its_page_not_a_hang(cold):
+def test_a_figure_that_cannot_be_drawn_is_reported_on_its_page_not_a_hang(cold, monkeypatch):
     pv, base, held = cold
-    assert pv.rebuild()
     state = pv.state
-    broken = state.figures["strength.html"][0]
-
-    def fails():
-        raise ValueError("the curve has no point to draw")
-    pv.prepared.pages.drawing[broken] = fails
     with state.lock:
-        state.wanted = "strength.html"
+        state.wanted = "strength.html"       # asked for while the first build ran
+    assert pv.rebuild()
+    broken = state.figures["strength.html"][0]
+    from specgen.report.pageset import PageSet
+    real = PageSet.draw
+
+    def fails(pages, path):   # whichever page set the background draws from (the whole one)
+        if path == broken:
+            raise ValueError("the curve has no point to draw")
+        return real(pages, path)
+    monkeypatch.setattr(PageSet, "draw", fails)
     _start(pv, held)
     _until(lambda: broken in state.failed)
     body = get(base + "/strength.html")[1]
@@ -223,3 +227,65 @@ def test_a_photograph_placeholder_is_served_as_svg(tmp_path):
     finally:
         server.shutdown()
         server.server_close()
+
+
+def _article(page: str) -> str:
+    """A page's content as the theme lays it out (its ``<article>``), without the frame."""
+    found = re.search(r"<article\b.*?</article>", page, re.S)
+    assert found, "no article on the page"
+    return found.group(0)
+
+
+def test_the_first_pages_read_exactly_as_the_built_pages(starter_build, tmp_path, monkeypatch):
+    """The first site lays out only the summary and the page asked for (the rest of the pages
+    named, not rendered, until the whole site follows); those two read exactly as in a full
+    ``specgen build`` of the same project, figures and formulas at their places with their
+    alternative text (the placeholders' bytes aside, which are the figures' files)."""
+    project, built = starter_build
+    monkeypatch.delenv("SPECGEN_SHARED_CACHE", raising=False)
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    out = tmp_path / "out"
+    out.mkdir()
+    state = State(wanted="strength.html")    # asked for while the first build ran
+    pv = Previewer(project, out, state, say=lambda text: None)
+    held = []
+    monkeypatch.setattr(pv, "afterwards", lambda *request: held.append(request))
+    assert pv.rebuild() and held
+    pages = pv.prepared.pages
+    # the first render laid out what the first site shows, and no page after the one asked for
+    assert "index.md" not in pages.unrendered and "strength.md" not in pages.unrendered
+    assert {"calculations.md", "references.md"} <= pages.unrendered
+    assert state.building and "calculations.html" in state.building
+    for page in ("index.html", "strength.html"):
+        served = (out / "R1" / page).read_text(encoding="utf-8")
+        whole = (built / "R1" / page).read_text(encoding="utf-8")
+        assert "being built" not in served
+        assert _article(served) == _article(whole), page
+    assert "This page is being built for the preview" in (out / "R1" / "calculations.html"
+                                                         ).read_text(encoding="utf-8")
+
+
+def test_a_chapter_declared_as_one_page_that_makes_a_family_is_refused():
+    # render names a one-page chapter after the first pages from its declaration alone, so a
+    # chapter whose declaration and pages disagree is an error, never a wrong navigation
+    from specgen.report.chapters import ChapterSpec
+    from specgen.report.render import _pages_of, one_page
+
+    def family(env) -> dict:
+        return [{"path": "card/a.md", "title": "A"}]
+    spec = ChapterSpec("card.md", "Cards", 0, "card.md.j2", family)
+    assert one_page(spec)
+    with pytest.raises(TypeError, match="declared as one page"):
+        _pages_of(spec, family(None))
+
+
+def test_a_page_only_named_is_never_published(tmp_path):
+    from specgen.publish.preview import site_only
+    from specgen.report.pageset import PageSet
+    pages = PageSet()
+    pages.add_page("index.md", "Summary", "# Summary\n")
+    pages.add_page("checks.md", "Check register", "")
+    pages.unrendered.add("checks.md")
+    with pytest.raises(ValueError, match="pages not rendered cannot be laid out: checks.md"):
+        site_only(None, None, pages, tmp_path)            # the whole site from a first render
+    assert not any(tmp_path.iterdir())                     # nothing written

@@ -288,3 +288,31 @@ def test_report_and_appendices_print_as_two_cross_linked_volumes(tmp_path):
     assert {str(a["/D"]) for a in out_one} >= {"p-calc-sheet-1", "page-calc"}
     assert {str(a["/D"]) for a in out_two} <= set(one.named_destinations)
     assert set(one.attachments) == {"a.txt"} and not two.attachments
+
+
+def test_a_chapter_the_same_in_two_revisions_is_printed_once(tmp_path):
+    """Two revisions whose chapters read the same share every chapter part through the
+    artefact cache (a part's own metadata is not the dossier's, so it carries no revision);
+    the covers differ, and each volume still carries its own revision's title."""
+    from pypdf import PdfReader
+
+    from specgen import cache
+    from specgen.publish.pdf import write_pdf
+    from specgen.report.pageset import PageSet
+    from types import SimpleNamespace
+    pages = PageSet()
+    pages.add_page("index.md", "Summary", "# Summary\n\nThe same text in both revisions.\n")
+    pages.add_page("notes.md", "Notes", "# Notes\n\nUnchanged between the two.\n")
+    def entries(kind):
+        return len([f for f in (tmp_path / "cache" / kind).rglob("*") if f.is_file()])
+    parts, fronts = [], []
+    with cache.using(tmp_path / "cache"):
+        for code in ("A", "B"):
+            context = dict(_context(), title=f"Test pier — revision {code}",
+                           revision=SimpleNamespace(code=code))
+            write_pdf(pages, context, tmp_path / f"{code}.pdf", attachments={}, workers=1)
+            parts.append(entries("pdf-part"))
+            fronts.append(entries("pdf-front"))
+            assert PdfReader(str(tmp_path / f"{code}.pdf")).metadata.title == context["title"]
+    assert parts[0] == 2 and parts[1] == 2   # revision B printed no chapter anew
+    assert fronts[1] > fronts[0]             # but its own cover and contents

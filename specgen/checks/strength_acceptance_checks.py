@@ -276,6 +276,8 @@ def _site_result(mix, s: sc.Series, load, ctx) -> CheckResult:
     other = "nurse_saul" if st.method == "arrhenius" else "arrhenius"
     _, te2 = sc.site_equivalent_age(p, st, other, horizon)
     steps, wall, ages_te, notes = [_te_step(p, st, t, te, te2)], {}, {}, []
+    si.bands_each(s.run.inference, [float(_interp(a, t, te)) / DAY for a in wall_ages(ctx, t[-1])],
+                  ctx.rules["strength.confidence_level"].value, math.inf)   # made together
     for a in wall_ages(ctx, t[-1]):
         e = float(_interp(a, t, te))
         ages_te[age_key(a)] = round(e / DAY, 4)

@@ -318,6 +318,9 @@ def interval(s: sc.Series, age_s: float, kind: str, ctx, n: float | None = None)
 
 def _pred_result(code, title, mix, s: sc.Series, ctx) -> CheckResult:
     steps, data, indicative = [], {}, []
+    si.bands_each(s.run.inference, [a / DAY for a in prediction_ages(ctx, s.test)],
+                  ctx.rules["strength.confidence_level"].value,
+                  spc.set_size(ctx.project, ctx.rules))   # the ages' intervals made together
     for age in prediction_ages(ctx, s.test):
         m, p = interval(s, age, "mean", ctx), interval(s, age, "set", ctx)
         steps.append(pred_step(s, p, ctx, mean=m))

@@ -165,6 +165,8 @@ def document_html(context: dict, sections: list[Piece], *, front: bool,
     ``elsewhere``: the chapters of the other volume, listed (and linked) after this one's.
     """
     Markup = jinja2.utils.markupsafe.Markup
+    if not front:  # the assembly takes a part's pages, not its metadata: one chapter, one print
+        context = {"title": sections[0].title if sections else ""}
     entries = [{"id": p.id, "title": p.title,
                 "page": toc_pages.get(p.id) if toc_pages is not None else None}
                for p in toc if not p.cont]
@@ -199,10 +201,9 @@ def parts(every: list[Piece]) -> list[list[Piece]]:
 # PDF/A-3a: archival, with the inputs attached, and tagged (structure tree, alternative
 # texts, language).  WeasyPrint (70) takes one variant per document (``pdf_variant``): of
 # pdf/a-1b … pdf/a-4f, pdf/ua-1, pdf/ua-2, pdf/x-*; its pdf/ua-1 and pdf/ua-2 tag with the
-# same code as pdf/a-3a (``pdf_tags``) but are not PDF/A, so they cannot carry the inputs as
-# PDF/A-3 attachments, and no variant is both.  We keep PDF/A-3a and do not claim PDF/UA:
-# the assembly makes the links again across parts outside the structure tree, which PDF/UA
-# forbids.  What a screen reader needs is checked by tests/pdf_structure.py.
+# same code as pdf/a-3a (``pdf_tags``) but are not PDF/A (no PDF/A-3 attachments); no variant
+# is both.  We keep PDF/A-3a, not claiming PDF/UA: the assembly makes links across parts
+# outside the structure tree.  What a screen reader needs: tests/pdf_structure.py.
 PDF_OPTIONS = {"pdf_variant": "pdf/a-3a", "custom_metadata": True}
 PLACEHOLDER_PAGE = 8888  # the contents laid out once with numbers of this width
 #: the words a volume's cover, contents and running heads carry
@@ -214,8 +215,7 @@ VOLUME_WORDS = {"main": {"kicker": "Binder specification dossier", "folio": "",
 
 @dataclass
 class Volume:
-    """One PDF of the dossier: its chapter pieces, where it is written and the file name the
-    other volume links to it by, and the print of its parts once done."""
+    """One PDF of the dossier: its pieces, where it is written, the name the other links to."""
 
     key: str
     target: object

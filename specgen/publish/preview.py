@@ -16,7 +16,7 @@ import shutil
 from pathlib import Path
 
 from specgen.errors import PublishError
-from specgen.publish import _print_context, _stamp, appendix_pdf_name, pdf_name
+from specgen.publish import _print_context, _report_bar, _stamp, appendix_pdf_name, pdf_name
 from specgen.publish.output import (move_into_place, refuse_if_issued, staging_dir,
                                     update_versions, write_manifest)
 
@@ -34,6 +34,9 @@ def site_only(project, results, pages, out: Path, first: set[str] | None = None)
     sooner: the whole site follows (the same call without ``first``), and with it
     results.json, which no page links (writing it took a twentieth of the first page)."""
     from specgen.publish.site import build_site
+    bare = pages.unrendered & (set(first) if first else set(pages.pages))
+    if bare:   # a page only named by a first render (render's ``first``) is never published
+        raise ValueError(f"pages not rendered cannot be laid out: {', '.join(sorted(bare))}")
     if first:
         pages = dataclasses.replace(pages, pages={
             path: text if path in first else BEING_BUILT.format(
@@ -44,7 +47,9 @@ def site_only(project, results, pages, out: Path, first: set[str] | None = None)
     refuse_if_issued(target, project.inputs)
     staging = staging_dir(Path(out), rev.code)
     try:
-        build_site(pages, staging, f"{project.dossier.project.title} — {rev.code}")
+        # the page frame of a build (report bar, closing line deferring to local codes)
+        build_site(pages, staging, f"{project.dossier.project.title} — {rev.code}",
+                   {"sg_report": _report_bar(project)})
         if not first:
             (staging / "results.json").write_text(results.to_json(), encoding="utf-8")
         for rel, data in sorted(pages.downloads.items()):

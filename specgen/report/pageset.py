@@ -38,6 +38,9 @@ class PageSet:
     # figures the artefact cache does not hold are drawn): path → function drawing the figure.
     # ``assets`` holds the placeholder meanwhile; the PDF is never printed while any is left
     drawing: dict[str, Callable[[], bytes]] = field(default_factory=dict)
+    # pages named (in the navigation, with their titles) but not laid out: their text is
+    # empty (the live preview's first pages: ``render(first=...)``); never published so
+    unrendered: set[str] = field(default_factory=set)
     # document-control marks for the print: the mark on every page ("DRAFT — not for
     # construction", "Superseded by R4") and the cover's sign-off rows
     marks: dict = field(default_factory=dict)

@@ -150,11 +150,21 @@ class RenderEnv:
 
 
 def render(project, results, history=None, superseded: str | None = None, *,
-           later_downloads: bool = False) -> PageSet:
+           later_downloads: bool = False, first: set[str] | None = None) -> PageSet:
     """Render every registered chapter into a page set (narrative placed by file name).
 
     With ``later_downloads`` the slow downloads (the DOCX exports) are left in
     ``PageSet.later`` for :meth:`PageSet.make_downloads` (the live preview's pages come first).
+
+    With ``first`` (page paths: the live preview's first pages), the pages are laid out only
+    up to the last of those in reading order: each of them reads exactly as in a whole
+    render, since the pages before it, whose figures, tables and citations number its own,
+    are laid out as always.  The pages after it are only named, with their titles, for the
+    navigation and the links (a chapter declared as one page, :func:`one_page`, without
+    preparing its context; a family of pages from its contexts), their text left empty and
+    listed in ``PageSet.unrendered`` (a later whole render lays them out).  A first page
+    holding a part written once every page is rendered (``RenderEnv.later``) makes the render
+    whole.
 
     ``history`` (:class:`specgen.publish.history.History`) gives earlier revisions and
     the change report; without it the dossier is rendered as a first revision.
@@ -166,7 +176,6 @@ def render(project, results, history=None, superseded: str | None = None, *,
     jenv.globals["table"] = env.table
     base = {"project": project.dossier.project, "revision": project.revision,
             "narrative": {}}
-    numbers = chapter_numbers(chapters())
     from specgen import practice
     from specgen.report.fmt import unit_display
     # every page shows units the way the practice the project follows does
@@ -174,20 +183,9 @@ def render(project, results, history=None, superseded: str | None = None, *,
     math = [t for c in results.checks for s in c.steps for t in (s.formula, s.substituted)]
     with unit_display(practice.resolve(project.dossier).unit_display), \
             project_template_errors(getattr(project, "root", None)), drawn_beside(math):
-        for spec in chapters():
-            env.number = numbers.get(spec.path, "")
-            made = _pages_of(spec, spec.fn(env))
-            for i, (path, title, ctx) in enumerate(made, start=1):
-                if env.number:  # a family of pages is numbered within its chapter: 6.1, 6.2 …
-                    title = f"{env.number}.{i} {title}" if len(made) > 1 or path != spec.path \
-                        else f"{env.number} {title}"
-                ctx = dict(base, **ctx, title=title)
-                stem = path.rsplit(".", 1)[0]
-                ctx["narrative"] = _narrative_for(
-                    project, "introduction" if stem == "index" else stem)
-                text = jenv.get_template(spec.template).render(**ctx)
-                pageset.add_page(path, title, text, volume=spec.volume)
-        _resolve_later(env, pageset)
+        _lay_out(env, jenv, base, first)
+        if not pageset.unrendered:   # the parts written last read every page: a whole render
+            _resolve_later(env, pageset)
     from specgen.report.review import CONTEXT_ASSET, review_context
     pageset.add_asset(CONTEXT_ASSET, review_context(project))
     from specgen.report.marks import apply_marks
@@ -195,6 +193,40 @@ def render(project, results, history=None, superseded: str | None = None, *,
     if not later_downloads:
         pageset.make_downloads()
     return pageset
+
+
+def _lay_out(env: RenderEnv, jenv, base: dict, first: set[str] | None) -> None:
+    """Every chapter's pages into ``env.pageset``, in reading order; with ``first``, laid out
+    only up to the last of those pages, the rest named (see :func:`render`)."""
+    pageset, numbers = env.pageset, chapter_numbers(chapters())
+    waiting = set(first) if first is not None else None  # first pages not laid out yet
+    done = False   # every first page laid out (and none awaits a part written last)
+    for spec in chapters():
+        env.number = numbers.get(spec.path, "")
+        done = done or waiting is not None and not waiting and not env.deferred
+        if done and one_page(spec):   # named by its declaration, its context not prepared
+            pageset.add_page(spec.path, f"{env.number} {spec.title}".strip(), "",
+                             volume=spec.volume)
+            pageset.unrendered.add(spec.path)
+            continue
+        made = _pages_of(spec, spec.fn(env))
+        for i, (path, title, ctx) in enumerate(made, start=1):
+            if env.number:  # a family of pages is numbered within its chapter: 6.1, 6.2 …
+                title = f"{env.number}.{i} {title}" if len(made) > 1 or path != spec.path \
+                    else f"{env.number} {title}"
+            done = done or waiting is not None and not waiting and not env.deferred
+            if done:
+                pageset.add_page(path, title, "", volume=spec.volume)
+                pageset.unrendered.add(path)
+                continue
+            ctx = dict(base, **ctx, title=title)
+            stem = path.rsplit(".", 1)[0]
+            ctx["narrative"] = _narrative_for(
+                env.project, "introduction" if stem == "index" else stem)
+            pageset.add_page(path, title, jenv.get_template(spec.template).render(**ctx),
+                             volume=spec.volume)
+            if waiting is not None:
+                waiting.discard(path)
 
 
 def chapter_numbers(specs) -> dict[str, str]:
@@ -226,13 +258,22 @@ def _resolve_later(env: RenderEnv, pageset: PageSet) -> None:
             pageset.pages[path] = text
 
 
+def one_page(spec) -> bool:
+    """Whether a chapter declares one page, its own path and title (its function annotated
+    ``-> dict``; a family's ``-> list[dict]``): such a page is named without its context."""
+    return spec.fn.__annotations__.get("return") in ("dict", dict)
+
+
 def _pages_of(spec, made) -> list[tuple[str, str, dict]]:
     """(path, title, context) of each page of a chapter.
 
     A chapter returns one context, or a list of contexts each naming its own ``path``
     and ``title`` (a family of pages, e.g. one batching card per mix; an empty list
-    makes no page).
+    makes no page).  A chapter declared as one page (:func:`one_page`) returns one context.
     """
+    if isinstance(made, list) and one_page(spec):
+        raise TypeError(f"chapter {spec.path}: declared as one page (-> dict), it returned a "
+                        "list of pages; annotate it -> list[dict]")
     if isinstance(made, list):
         return [(m["path"], m["title"], {k: v for k, v in m.items() if k not in ("path", "title")})
                 for m in made]

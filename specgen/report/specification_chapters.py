@@ -188,10 +188,10 @@ def _plain_document(env, jenv, template: str, stem: str, title: str, **ctx) -> s
         ref=cited, sources=cited.sources, project=p.dossier.project, revision=p.revision,
         marking=marking(p.revision), **ctx)
     md = md.replace("&#39;", "'").replace("&#34;", '"')  # quotes are plain text here
-    fragment = html_fragment(md)
     mark, date = f"{p.dossier.project.code}, {marking(p.revision)}", p.revision.date
-    env.pageset.add_download(f"{stem}.docx", lambda: docx_bytes(fragment, title=title, mark=mark,
-                                                                date=date))
+    # the Markdown converted when the DOCX is made (the live preview makes it after the site)
+    env.pageset.add_download(f"{stem}.docx", lambda: docx_bytes(
+        html_fragment(md), title=title, mark=mark, date=date))
     return md
 
 

@@ -297,6 +297,28 @@ def bands(inf: Inference, t_d, level: float = 0.95, n: float = 3.0) -> dict[str,
     return {k: v.copy() for k, v in inf.memo[key].items()}
 
 
+def bands_each(inf: Inference, t_d, level: float = 0.95, n: float = 3.0) -> None:
+    """Keep in the fit's memo the bands at each of the ages ``t_d`` (d) alone -- what
+    ``bands(inf, [age], level, n)`` gives for each -- computed together: the checks ask for
+    one age at a time, and each age's numbers do not depend on the others asked beside it
+    (up to ``NODES`` ages a band is read at the ages themselves).  Ages a prediction refuses
+    are left to :func:`bands` to refuse."""
+    t = np.atleast_1d(np.asarray(t_d, float))
+    ns = np.broadcast_to(np.asarray(n, float), t.shape)
+    todo = {}
+    for a, k in zip(t.tolist(), ns.tolist()):
+        key = ((a,), float(level), (k,))
+        if a > 0 and math.isfinite(a) and key not in inf.memo:
+            todo[key] = (a, k)
+    keys = list(todo)
+    for i in range(0, len(keys), NODES):
+        part = keys[i:i + NODES]
+        got = _bands(inf, tuple(todo[k][0] for k in part), float(level),
+                     tuple(todo[k][1] for k in part))
+        for j, key in enumerate(part):
+            inf.memo[key] = {name: v[j:j + 1].copy() for name, v in got.items()}
+
+
 def _bands(inf: Inference, t: tuple, level: float, n: tuple) -> dict[str, np.ndarray]:
     e = np.sqrt(inf.sigma_b ** 2 + inf.sigma_w ** 2 / np.asarray(n, float))
     m, lo, hi, plo, phi = _log_bands(inf, np.asarray(t, float), level, e)

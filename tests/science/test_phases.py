@@ -289,3 +289,61 @@ def test_unknown_assignment_refused_whole():
         unsintered_phases(FIRED_MARL, "C3A only", AW)
     assert str(err.value) == ("unknown aluminate assignment 'C3A only': choose one of "
                               "C4AF+C3A, C2AS gehlenite, amorphous")
+
+
+# --- edges of the assignment: a shortfall under a gram, CO2 just beyond the carbonates, lime
+# --- exactly enough for the silica, alumina beyond the gehlenite silica, tiny and empty totals
+
+def test_a_lime_shortfall_of_half_a_gram_is_refused():
+    # Al2O3 10 % as C3A needs 3·10/M(Al2O3)·M(CaO) = 3·10/101.961·56.077 = 16.4995 % CaO
+    # (periodictable); CaO 16 % is 0.4995 % short: refused, not rounded away
+    assert 3 * 10 / A * C == pytest.approx(16.4995, abs=1e-3)
+    with pytest.raises(ChemistryInputError) as err:
+        unsintered_phases({"CaO": 16.0, "SiO2": 0.0, "Al2O3": 10.0}, "C4AF+C3A", AW)
+    assert str(err.value) == "not enough CaO to form C3A: the analysis cannot be assigned this way"
+
+
+def test_co2_half_a_percent_beyond_the_carbonates_is_refused_whole():
+    with pytest.raises(ChemistryInputError) as err:
+        unsintered_phases({"CaO": 0.0, "SiO2": 10.0, "CO2": 0.5}, "amorphous", AW)
+    assert str(err.value) == "CO2 exceeds what CaO and MgO can carry by 0.50 %"
+
+
+def test_lime_exactly_enough_for_the_silica_is_not_lime_limited():
+    # a quarter mole of SiO2 and half a mole of CaO per 100 g (the atomic-weight table's molar
+    # masses, so the moles are exact): C2S takes all of both, nothing is left over
+    m_c, m_s = (sum(n * AW[e] for e, n in f) for f in ((("Ca", 1), ("O", 1)),
+                                                         (("Si", 1), ("O", 2))))
+    r = unsintered_phases({"CaO": 0.5 * m_c, "SiO2": 0.25 * m_s}, "amorphous", AW)
+    assert not r.lime_limited and len(r.assumptions) == 2
+    assert r.phases == pytest.approx({"C2S": 0.25 * (2 * C + S)}, rel=1e-4)   # periodictable
+
+
+def test_alumina_beyond_the_gehlenite_silica_is_other():
+    # gehlenite C2AS takes one SiO2 per Al2O3: SiO2 2 % = 2/60.084 = 0.033287 mol takes
+    # 0.033287·101.961 = 3.394 % Al2O3; the other 6.606 % stays unassigned ("other");
+    # CaO 50 − 2·0.033287·56.077 = 46.267 % free lime (periodictable molar masses, by hand)
+    r = unsintered_phases({"CaO": 50.0, "SiO2": 2.0, "Al2O3": 10.0}, "C2AS gehlenite", AW)
+    n = 2.0 / S
+    assert (10 - n * A, 50 - 2 * n * C) == pytest.approx((6.606, 46.267), abs=1e-3)
+    assert r.phases == pytest.approx({"C2AS": n * (2 * C + A + S), "other": 10 - n * A,
+                                      "free lime": 50 - 2 * n * C}, rel=1e-4)
+
+
+def test_a_small_total_is_assigned_and_an_empty_one_refused_whole():
+    # half a per cent of lime alone: all of it free lime (a sample reported in part)
+    r = unsintered_phases({"CaO": 0.5, "SiO2": 0.0}, "amorphous", AW)
+    assert r.phases == {"free lime": 0.5} and r.crystalline == 1.0
+    with pytest.raises(ChemistryInputError) as err:
+        unsintered_phases({"CaO": 0.0, "SiO2": 0.0}, "amorphous", AW)
+    assert str(err.value) == "the analysis holds no oxides to assign to phases"
+
+
+def test_bogue_at_the_af_limit_with_a_negative_phase():
+    # A/F = 1.6/2.5 = 0.64 exactly (the form applies, ASTM C150) but C2S is negative: by hand
+    # C3S = 4.071·70 − 7.6·8 − 6.718·1.6 − 1.43·2.5 = 209.846; C2S = 2.867·8 − 0.7544·209.846
+    # = −135.372: the analysis is not a Portland clinker
+    r = bogue({"CaO": 70.0, "SiO2": 8.0, "Al2O3": 1.6, "Fe2O3": 2.5})
+    assert (r.c3s, r.c2s) == pytest.approx((209.846, -135.372), abs=1e-3)
+    assert not r.valid
+    assert r.note == "a potential phase came out negative: the analysis is not a Portland clinker"

@@ -382,3 +382,19 @@ def test_a_refused_record_is_returned_in_its_place():
     assert isinstance(out[0], si.Inference) and isinstance(out[2], si.Inference)
     assert isinstance(out[1], si.InferenceError)
     assert "three or more ages" in str(out[1])
+
+
+def test_bands_made_together_equal_each_alone():
+    """``bands_each`` computes several single-age intervals in one call and keeps each in the
+    fit's memo: each equals ``bands`` of that age alone on a fresh fit (1e-12 relative;
+    reference: the single-age definition), an age a prediction refuses is left out."""
+    ages = [28.0, 90.0, 180.0, 365.0, 3.5]
+    together = si.fit(*_record(28), NC)
+    si.bands_each(together, ages + [-1.0], 0.95, 3.0)
+    assert len(together.memo) == len(ages)
+    for a in ages:
+        alone = si.fit(*_record(28), NC)
+        want = si.bands(alone, [a], 0.95, 3.0)
+        got = si.bands(together, [a], 0.95, 3.0)
+        for k in want:
+            assert got[k] == pytest.approx(want[k], rel=1e-12)
