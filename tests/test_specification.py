@@ -80,12 +80,15 @@ def test_justified_failure_is_attention_and_shown_prominently(demo_copy):
     assert z2.message.startswith("M2 selected although it fails COMP-MOIST, DUR-TSA, DUR-ETT and "
                                  "DUR-RETAIN — justification: Both candidates fail for this zone.")
     box = text[text.index('!!! warning "Chosen although it fails checks"'):]
+    # each check by its title, linked to its sheet, with its register key after it (the
+    # site points calculations.md at calculations.html: publish.site.page_addresses)
     assert box.split("\n")[1] == (
-        '    Fails <a href="calculations.md#calc-comp-moist-z2-m2">COMP-MOIST/Z2/M2</a> Repair at '
-        'least as open as the units; <a href="calculations.md#calc-dur-tsa-z2-m2">DUR-TSA/Z2/M2'
-        '</a> Thaumasite sulfate attack; <a href="calculations.md#calc-dur-ett-z2-m2">'
-        'DUR-ETT/Z2/M2</a> Ettringite sulfate expansion; <a href="calculations.md#calc-dur-'
-        'retain-z2-m2">DUR-RETAIN/Z2/M2</a> Water retention against the suction of the units.')
+        '    Fails <a href="calculations.md#calc-comp-moist-z2-m2">Repair at least as open as '
+        'the units</a> (COMP-MOIST/Z2/M2); <a href="calculations.md#calc-dur-tsa-z2-m2">'
+        'Thaumasite sulfate attack</a> (DUR-TSA/Z2/M2); <a href="calculations.md#calc-dur-ett-'
+        'z2-m2">Ettringite sulfate expansion</a> (DUR-ETT/Z2/M2); <a href="calculations.md#calc-'
+        'dur-retain-z2-m2">Water retention against the suction of the units</a> '
+        '(DUR-RETAIN/Z2/M2).')
     assert "**Justification recorded by the specifier:** Both candidates fail" in box
 
 
