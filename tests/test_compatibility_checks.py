@@ -18,6 +18,15 @@ def demo(demo_copy):
     return demo_copy, check(demo_copy)[1]
 
 
+
+#: COMP-COLOUR's notes for dry panels read under D65/10° with fewer than three readings of a
+#: sample, written out whole (the wording the check must give; "common practice" is its tag)
+COLOUR_NOTES_D65_FEW = (
+    "no standard acceptance threshold exists for repointing; ΔE00 ≈ 1 is just noticeable "
+    "and 2–3.5 visible at a glance (common practice); trial panels judged dry, by eye, in "
+    "daylight, decide", "readings under illuminant D65, 10° observer",
+    "fewer than three readings of a sample: the spread is poorly known")
+
 def test_every_candidate_of_every_zone_is_checked(demo):
     _, r = demo
     codes = ("COMP-STR-UNIT", "COMP-STR-HIST", "COMP-MOIST", "COMP-MOVE", "COMP-SALT",
@@ -482,11 +491,7 @@ def test_colour_result_whole(demo_checked):
         pytest.approx(de, abs=5e-4), "")
     assert c.message == (f"ΔE00 {de:.2f} between the mean of 2 panel reading(s) and 3 of HM1 "
                          "(threshold 2, project rule); trial panels judged dry decide")
-    assert c.notes == (
-        "no standard acceptance threshold exists for repointing; ΔE00 ≈ 1 is just noticeable "
-        "and 2–3.5 visible at a glance (common practice); trial panels judged dry, by eye, in "
-        "daylight, decide", "readings under illuminant D65, 10° observer",
-        "fewer than three readings of a sample: the spread is poorly known")
+    assert c.notes == COLOUR_NOTES_D65_FEW
     assert [b.kind for b in c.basis] == ["reference", "project requirement"]
     assert c.basis[0] == Basis("reference", "sharma2005", "CIEDE2000, eqs. 1–22")
     assert (c.limit.compare, c.limit.high, c.limit.text, c.limit.rule) == (
@@ -736,11 +741,7 @@ def test_colour_of_neutral_greys_whole():
         round(de, 3), "")
     assert c.message == ("ΔE00 1.99 between the mean of 2 panel reading(s) and 3 of H9 "
                          "(threshold 2, project rule); trial panels judged dry decide")
-    assert c.notes == (
-        "no standard acceptance threshold exists for repointing; ΔE00 ≈ 1 is just noticeable "
-        "and 2–3.5 visible at a glance (common practice); trial panels judged dry, by eye, in "
-        "daylight, decide", "readings under illuminant D65, 10° observer",
-        "fewer than three readings of a sample: the spread is poorly known")
+    assert c.notes == COLOUR_NOTES_D65_FEW
     assert [(b.kind, b.ref, b.clause) for b in c.basis] == [
         SHARMA_BASIS, ("project requirement", "", "")]
     assert c.limit.compare == "<=" and (c.limit.high, c.limit.text, c.limit.rule) == (

@@ -72,7 +72,8 @@ def _zone(env, zone, jenv, clause_ctx) -> dict:
     chosen = r.value(zone.id, "selected_mix")
     s = p.specification.selection_for(zone.id)[1] if chosen and p.specification else None
     clauses = _clauses(jenv, clause_ctx) if clause_ctx else None
-    failed = _failed(r, p, zone.id, chosen) if chosen else []
+    checks = applicable(r.checks, p, zone.id, chosen) if chosen else []
+    failed = [c for c in checks if c.status == "fail"]
     return {"id": zone.id, "name": zone.name, "works": zone.works, "candidates": list(zone.candidates),
             "selected": chosen, "mix_name": p.mixes[chosen].name if chosen else "",
             "badge": Markup(badge(sel.status)) if sel else "", "status": sel.status if sel else "",
@@ -80,15 +81,10 @@ def _zone(env, zone, jenv, clause_ctx) -> dict:
             "message": reader(sel.message) if sel else "", "href": _href(sel.key) if sel else "",
             "rationale": s.rationale if s else "", "justification": s.justification if s else "",
             "approach": _approach(p),
-            "notes": _findings(r, p, zone.id, chosen) if chosen else [], "clauses": clauses,
+            "notes": _findings(checks), "clauses": clauses,
             "clause_number": clause_ctx["number"] if clause_ctx else "",
             "n_failed": len(failed), "failed_links": Markup("; ").join(
                 _check_link(c) for c in failed)}
-
-
-def _failed(results, project, zone_id: str, mix_id: str) -> list:
-    return [c for c in applicable(results.checks, project, zone_id, mix_id)
-            if c.status == "fail"]
 
 
 def _check_link(c) -> Markup:
@@ -97,11 +93,10 @@ def _check_link(c) -> Markup:
     return Markup('<a href="{}">{}</a> ({})').format(_href(c.key), c.title, c.key)
 
 
-def _findings(results, project, zone_id: str, mix_id: str) -> list[Markup]:
+def _findings(checks) -> list[Markup]:
     """What the works must allow for: the failed, held and attention checks on the chosen
     mix (the ones SPEC-SELECT lists in its notes, in the same order), each by its title and
     link, its status in words and its finding."""
-    checks = applicable(results.checks, project, zone_id, mix_id)
     return [Markup("{} — {}: {}").format(_check_link(c), STATUS_WORDS[c.status],
                                          reader(c.message))
             for status in ("fail", "hold", "attention") for c in checks if c.status == status]

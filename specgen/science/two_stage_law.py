@@ -45,20 +45,10 @@ def log_f(z, t_d) -> np.ndarray:
 
 
 def log_f_grad(z, t_d) -> np.ndarray:
-    """∂ ln f/∂z, analytic (rows: ages; columns: ln F, logit φ, ln τA, ln τS, ln b)."""
-    _, lg_phi, ln_ta, ln_ts, ln_b = (float(v) for v in z)
-    phi, ta, ts, b = 1.0 / (1.0 + math.exp(-lg_phi)), math.exp(ln_ta), math.exp(ln_ts), \
-        math.exp(ln_b)
+    """∂ ln f/∂z, analytic (rows: ages; columns: ln F, logit φ, ln τA, ln τS, ln b): the one
+    parameter vector case of :func:`log_f_grad_many`."""
     t = np.atleast_1d(np.asarray(t_d, float))
-    ea = np.exp(-t / ta)
-    u = (t / ts) ** b
-    eb = np.exp(-u)
-    a_, b_ = -np.expm1(-t / ta), -np.expm1(-u)
-    shape = np.maximum(phi * a_ + (1 - phi) * b_, 1e-300)
-    return np.column_stack([
-        np.ones_like(t), (a_ - b_) * phi * (1 - phi) / shape,
-        -phi * (t / ta) * ea / shape, -(1 - phi) * b * u * eb / shape,
-        (1 - phi) * eb * b * u * np.log(t / ts) / shape])
+    return log_f_grad_many(np.asarray(z, float)[None, :], t[None, :])[0]
 
 
 def log_f_grad_many(z, t_d) -> np.ndarray:
