@@ -425,3 +425,14 @@ def test_rake_out_fractional_depth_given_shown_to_a_thousandth_of_a_mm():
         r"16.2468 \le 20.1236 \le 24.3702", 20.124, "mm", "d_given")
     assert c.quantities[0].value == {"depth": 20.124, "rule": 16.247, "given": 20.124,
                                      "deepest": 24.37}
+
+
+def test_rake_out_on_the_least_depth_beyond_the_deepest_of_a_thin_joint():
+    """A 4 mm joint: the rule gives max(2 × 4, 15) = 15 mm but the deepest is 3 × 4 = 12 mm
+    (by hand), so no depth meets both.  15 mm given is on the rule's depth and beyond the
+    deepest: the message says deeper, not shallower."""
+    c = _rake(4.0, 15.0)
+    assert (c.status, c.message) == (
+        "attention", "the depth given, 15 mm, is deeper than 12 mm: it takes more original "
+        "mortar than the repair needs; confirm it on the trial bay or change it")
+    assert c.steps[1].substituted == r"15 \le 15 > 12"
