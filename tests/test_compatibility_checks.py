@@ -845,3 +845,19 @@ def test_compatibility_pieces_by_hand():
                     message="not assessed: two readings are needed, one given"),
         CheckResult(code="COMP-SALT", title="t", subject="Z9/MB", subject_kind="zone",
                     status="pass", value=1.0, unit="u", basis=(), message="m")]
+
+
+def test_colour_spread_shown_to_four_decimals():
+    """Panel greys L* 50 and 54 (mean 52) against three of L* 52: the means agree (ΔE00 0,
+    pass).  The panel's spread is its largest ΔE00 from the mean, 2/S_L(51) = 1.99347 (the
+    reading 50 against 52, L̄' = 51; 2/S_L(53) = 1.95109 for 54), shown 1.9935 on the sheet and
+    in the quantity (Sharma, Wu & Dalal 2005, eq. 17, by hand)."""
+    rows = [("MA", 50.0, 0.0, 0.0, "D65", "10"), ("MA", 54.0, 0.0, 0.0, "D65", "10")] + [
+        ("H9", 52.0, 0.0, 0.0, "D65", "10")] * 3
+    c = _colour_of(rows)[0]
+    spread = 2 / _s_l(51.0)
+    assert round(spread, 5) == 1.99347
+    assert (c.status, c.value) == ("pass", 0.0)
+    assert (c.steps[0].result, c.steps[1].result) == (1.9935, 0.0)
+    assert (c.quantities[0].value["panel_spread"],
+            c.quantities[0].value["historic_spread"]) == (1.9935, 0.0)
