@@ -861,3 +861,30 @@ def test_colour_spread_shown_to_four_decimals():
     assert (c.steps[0].result, c.steps[1].result) == (1.9935, 0.0)
     assert (c.quantities[0].value["panel_spread"],
             c.quantities[0].value["historic_spread"]) == (1.9935, 0.0)
+
+
+def test_colour_not_assessed_results_carry_the_title_and_basis():
+    """Every not-assessed COMP-COLOUR keeps the check's title and cites Sharma, Wu & Dalal;
+    a reading the science refuses (L* above 100: CIELAB lightness runs 0–100, CIE 15) gives
+    that pair a not-assessed under the check's own code with the science's reason."""
+    title = "Colour of the trial panel against the historic mortar"
+    c = _colour_of([], historic=None)[0]
+    assert (c.title, c.subject_kind) == (title, "zone")
+    c = _colour_of([("MA", 60.0, 2.0, 10.0, "D65", "10"), ("H9", 60.0, 2.0, 10.0, "D50", "2")])[0]
+    assert c.title == title
+    assert [(b.kind, b.ref, b.clause) for b in c.basis] == [SHARMA_BASIS]
+    c = _colour_of([("MA", 60.0, 2.0, 10.0, "D65", "10"), ("MA", 120.0, 2.0, 10.0, "D65", "10"),
+                    ("H9", 60.0, 2.0, 10.0, "D65", "10")])[0]
+    assert (c.code, c.title, c.subject, c.status, c.message) == (
+        "COMP-COLOUR", title, "Z9/MA", "not_assessed",
+        "not assessed: reading 2: L* must lie between 0 and 100; found 120")
+
+
+def test_colour_difference_step_shows_the_ciede2000_formula():
+    """The third step of the sheet states eq. 22 of Sharma, Wu & Dalal (2005) with
+    k_L = k_C = k_H = 1 (the reference conditions)."""
+    rows = [("MA", 52.0, 0.0, 0.0, "D65", "10")] * 3 + [("H9", 50.0, 0.0, 0.0, "D65", "10")] * 3
+    assert _colour_of(rows)[0].steps[2].formula == (
+        r"\Delta E_{00} = \sqrt{\left(\frac{\Delta L'}{S_L}\right)^2 + "
+        r"\left(\frac{\Delta C'}{S_C}\right)^2 + \left(\frac{\Delta H'}{S_H}\right)^2 + "
+        r"R_T\frac{\Delta C'}{S_C}\frac{\Delta H'}{S_H}}")
