@@ -884,7 +884,17 @@ def test_colour_difference_step_shows_the_ciede2000_formula():
     """The third step of the sheet states eq. 22 of Sharma, Wu & Dalal (2005) with
     k_L = k_C = k_H = 1 (the reference conditions)."""
     rows = [("MA", 52.0, 0.0, 0.0, "D65", "10")] * 3 + [("H9", 50.0, 0.0, 0.0, "D65", "10")] * 3
-    assert _colour_of(rows)[0].steps[2].formula == (
+    step = _colour_of(rows)[0].steps[2]
+    # neutral greys 52 against 50: ΔL' = 50 − 52 = −2, no chroma so ΔC' = ΔH' = 0,
+    # S_C = S_H = 1 and R_T = 0 (eqs. 15-22); S_L at L̄' = 51 by eq. 17 (by hand)
+    assert step.inputs == (
+        Input("ΔL'", "lightness difference", -2.0, "", "computed"),
+        Input("ΔC'", "chroma difference", 0.0, "", "computed"),
+        Input("ΔH'", "hue difference", 0.0, "", "computed"),
+        Input("S_L, S_C, S_H", "weighting functions", f"{_s_l(51.0):.4f}, 1.0000, 1.0000", "",
+              "computed"),
+        Input("R_T", "rotation term", 0.0, "", "computed"))
+    assert step.formula == (
         r"\Delta E_{00} = \sqrt{\left(\frac{\Delta L'}{S_L}\right)^2 + "
         r"\left(\frac{\Delta C'}{S_C}\right)^2 + \left(\frac{\Delta H'}{S_H}\right)^2 + "
         r"R_T\frac{\Delta C'}{S_C}\frac{\Delta H'}{S_H}}")
