@@ -135,9 +135,11 @@ def _cpu_median(fn, runs: int) -> float:
     return statistics.median(times)
 
 
-def _cpu_pair(first, second, runs: int) -> tuple[float, float]:
+def _cpu_pair(first, second, runs: int) -> tuple[float, float, tuple[float, float]]:
     """Median CPU seconds per call of two functions, called in turn (so a change in the load of
-    a shared machine falls on both alike)."""
+    a shared machine falls on both alike), and the spread of the ratio: the ratio of the
+    medians of each tenth of the calls, lowest and highest (a tenth, since one call is a few
+    milliseconds, below the resolution of ``time.process_time`` on some systems)."""
     first(), second()
     a, b = [], []
     for _ in range(runs):
@@ -147,7 +149,10 @@ def _cpu_pair(first, second, runs: int) -> tuple[float, float]:
         t = time.process_time()
         second()
         b.append(time.process_time() - t)
-    return statistics.median(a), statistics.median(b)
+    step = max(1, runs // 10)
+    parts = [statistics.median(b[i:i + step]) / statistics.median(a[i:i + step])
+             for i in range(0, runs - step + 1, step)]
+    return statistics.median(a), statistics.median(b), (min(parts), max(parts))
 
 
 def _workbooks_of(csv: Path, project: Path, work: Path) -> dict[str, tuple[Path, Path]]:
@@ -204,9 +209,10 @@ def bench_xlsx(demo: Path, work: Path, runs: int) -> None:
             for sheet in read_workbook(book, "lab/strength.xlsx", log):
                 read_sheet(sheet, strength_results, "lab/strength.xlsx", log)
             assert not log.problems, log.problems[:3]
-        a, b = _cpu_pair(via_csv, via_xlsx, runs * 40)
+        a, b, (low, high) = _cpu_pair(via_csv, via_xlsx, runs * 40)
         print(f"(h) {n} strength rows, {label}: from CSV {a * 1000:5.2f} ms, from xlsx "
-              f"{b * 1000:5.2f} ms (ratio {b / a:.2f}; target within 2)")
+              f"{b * 1000:5.2f} ms (ratio {b / a:.2f}, {low:.2f}-{high:.2f} over each tenth "
+              "of the calls; target within 2)")
     with_csv = _cpu_median(lambda: load_project(project), runs)
     csv.unlink()
     shutil.copyfile(pairs["bare workbook"][1], project / "lab" / "strength.xlsx")
