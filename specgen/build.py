@@ -46,13 +46,16 @@ def load(project_dir) -> Project:
     return load_project(project_dir, names=reference_names(), derive=derive)
 
 
-@fits.kept()  # each strength fit once per call (checks/fits.py)
-def check(project_dir: Path | str) -> tuple[Project, Results]:
+def check(project_dir: Path | str, *, fit_cache: Path | str | bool | None = None
+          ) -> tuple[Project, Results]:
     """Load the project (and its archived issued revisions, validated as a build would)
-    and run every check and the audit (no output written)."""
-    project = load(project_dir)
-    archived = _load_archive(Path(project_dir), project)
-    return project, evaluate(project, previous=_previous(archived[-1] if archived else None))
+    and run every check and the audit (no output written).  ``fit_cache``: keep the strength
+    fits between runs in that folder (True: the user's cache folder; ``fit_cache.py``)."""
+    from specgen.fit_cache import store_for
+    with fits.kept(persist=store_for(fit_cache)):  # each fit once per call (checks/fits.py)
+        project = load(project_dir)
+        archived = _load_archive(Path(project_dir), project)
+        return project, evaluate(project, previous=_previous(archived[-1] if archived else None))
 
 
 def import_comments(project_dir: Path | str, review_file: Path | str,
