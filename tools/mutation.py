@@ -325,7 +325,8 @@ def _forked(mutants: Path, selection: list[str], names: list[str]):
 
 
 def recheck(scope: str, workdir: Path, tests: list[str] = (), fork: bool = False) -> int:
-    """Run each surviving mutant of a finished run again against the tests as they are now
+    """Run each surviving mutant of a finished run (and each no test reached then) again
+    against the tests as they are now
     (the working tree's ``tests/`` copied into the scratch copy first): a mutant that a test
     added since the run kills is recorded as killed (exit code 1) in mutmut's meta file.
     ``tests`` narrows what runs (default: the run's selection); returns how many were killed.
@@ -351,7 +352,8 @@ def recheck(scope: str, workdir: Path, tests: list[str] = (), fork: bool = False
         if clean is not None and clean.returncode != 0:
             raise SystemExit(f"{module}: the selected tests fail without a mutant "
                              f"(exit {clean.returncode}); nothing rechecked")
-        names = [n for n, code in sorted(data["exit_code_by_key"].items()) if code == 0]
+        # survivors, and mutants no selected test reached at the run (a test added since may)
+        names = [n for n, code in sorted(data["exit_code_by_key"].items()) if code in (0, 33)]
         codes = (_forked(mutants, selection, names) if fork else
                  (subprocess.run(
                      [sys.executable, "-m", "pytest", "-x", "-q", "-p", "no:cacheprovider",

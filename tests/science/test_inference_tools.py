@@ -333,3 +333,97 @@ def test_falls_where_the_within_batch_scatter_decides():
     assert it.falls([28.0, 90.0], [0.6, 0.0], [3, 3], 0.3, 0.0) == [
         (28.0, 90.0, pytest.approx(math.exp(-0.6), rel=1e-12))]
     assert it.falls([28.0, 90.0], [0.45, 0.0], [3, 3], 0.3, 0.0) == []
+
+
+# ---------------------------------------------------------------- the descent itself, step by step
+# Scalar problems r(z) = (atan(z − c), (z − m)/sp): one datum and one prior residual, so the
+# descent can be written out here in plain floats, apart from the module's numpy batch.
+ATAN = [  # (c, m, sp, z0): a start the Gauss-Newton step overshoots (rejected steps), a
+    (0.0, 0.0, 1e6, 2.0),   # gentle start, a start at the minimum itself, a prior pulling away
+    (1.0, 1.0, 1e6, 1.5),
+    (0.5, 0.5, 1e6, 0.5),
+    (0.0, 3.0, 2.0, 2.5),
+]
+
+
+def _atan_many(z, idx):
+    c, m, sp, _ = (np.array([ATAN[i][k] for i in idx])[:, None] for k in range(4))
+    d = z - c
+    r = np.concatenate([np.arctan(d), (z - m) / sp], axis=1)
+    j = np.stack([1.0 / (1.0 + d ** 2), np.broadcast_to(1.0 / sp, d.shape)], axis=1)
+    return r, j
+
+
+def _lm_by_hand(c, m, sp, z0, lam, max_iter, xtol=1e-10):
+    """Levenberg-Marquardt of one parameter as Madsen, Nielsen & Tingleff (2004), Methods
+    for non-linear least squares problems, algorithm 3.16 writes it: damping μ·diag(JᵀJ)
+    (Marquardt), gain ratio ρ = (F(z) − F(z_new)) / (L(0) − L(h)) with L(0) − L(h) =
+    ½·h·(μ·h − g), a step kept when F does not rise, μ ×= max(1/3, 1 − (2ρ − 1)³) and ν = 2
+    on a kept step, μ ×= ν and ν ×= 2 on a refused one; stopped (the module's docstring) when
+    a kept step is below xtol relative to 1 + |z|, or below √xtol with F falling by no more
+    than 1e-14·F, or when μ passes 1e16 on a refused step.  Returns (z, F, J², Jd²) or None
+    when max_iter steps do not stop it."""
+    def res(z):
+        return [math.atan(z - c), (z - m) / sp], [1.0 / (1.0 + (z - c) ** 2), 1.0 / sp]
+    z, nu = z0, 2.0
+    r, j = res(z)
+    f = 0.5 * (r[0] ** 2 + r[1] ** 2)
+    for _ in range(max_iter):
+        g, h = j[0] * r[0] + j[1] * r[1], j[0] ** 2 + j[1] ** 2
+        step = -g / (h + lam * h)
+        rn, jn = res(z + step)
+        fn = 0.5 * (rn[0] ** 2 + rn[1] ** 2)
+        gain = 0.5 * step * (lam * h * step - g)
+        size = abs(step) / (1.0 + abs(z))
+        small = size <= xtol or (size <= math.sqrt(xtol) and f - fn <= 1e-14 * f)
+        rho = (f - fn) / gain if gain > 0 else 0.0
+        if fn <= f:
+            z, r, j, f = z + step, rn, jn, fn
+            lam *= max(1.0 / 3.0, 1.0 - (2.0 * min(max(rho, 0.0), 1.0) - 1.0) ** 3)
+            nu = 2.0
+            if small:
+                return z, f, j[0] ** 2 + j[1] ** 2, j[0] ** 2
+        else:
+            lam *= nu
+            nu *= 2.0
+            if lam > 1e16:
+                return z, f, j[0] ** 2 + j[1] ** 2, j[0] ** 2
+    return None
+
+
+def _steps_by_hand(i, lam0):
+    # the fewest steps after which the descent written out above stops
+    return next(k for k in range(1, 200) if _lm_by_hand(*ATAN[i], lam0, k) is not None)
+
+
+@pytest.mark.parametrize("lam0", it.LM_DAMPINGS)
+def test_each_descent_follows_marquardt_with_nielsens_damping_step_by_step(lam0):
+    # the batch of four series against the descent written out above, one series at a time:
+    # the same point, cost, curvature and data share to rounding, and the same number of steps
+    laps = it._lm_path(_atan_many, np.array([[a[3]] for a in ATAN]), 1, 200, 1e-10, lam0)
+    for i, lap in enumerate(laps):
+        z, f, h, hd = _lm_by_hand(*ATAN[i], lam0, 200)
+        assert lap.mode[0] == pytest.approx(z, rel=1e-13, abs=1e-15)
+        assert lap.cost == pytest.approx(f, rel=1e-12, abs=1e-300)
+        assert lap.cov[0, 0] == pytest.approx(1.0 / h, rel=1e-12)
+        assert lap.p_eff == pytest.approx(hd / h, rel=1e-12)
+        n = _steps_by_hand(i, lam0)
+        one = np.array([[ATAN[i][3]]])
+        assert it._lm_path(lambda zz, idx: _atan_many(zz, np.array([i])[idx]), one, 1, n,
+                           1e-10, lam0)[0] is not None
+        if n > 1:
+            assert it._lm_path(lambda zz, idx: _atan_many(zz, np.array([i])[idx]), one, 1,
+                               n - 1, 1e-10, lam0) == [None]
+
+
+def test_the_first_overshooting_step_is_refused_by_hand():
+    # atan from z0 = 2 (c = 0; the prior's 1/sp² = 1e-12 is below these digits): g =
+    # atan(2)/5 = 1.107149/5 = 0.221430, JᵀJ = 1/25 = 0.04; with μ = 1e-3 the step is
+    # −0.221430/(0.04·1.001) = −0.221430/0.04004 = −5.53021 to z = −3.53021, where
+    # |atan| = 1.29476 exceeds atan(2) = 1.10715: refused (the first kept step comes later)
+    assert _lm_by_hand(0.0, 0.0, 1e6, 2.0, 1e-3, 1) is None
+    step = -(math.atan(2.0) / 5.0) / (0.04 * 1.001)
+    assert step == pytest.approx(-5.53021, abs=5e-6)
+    assert abs(math.atan(2.0 + step)) == pytest.approx(1.29476, abs=5e-6)
+    assert abs(math.atan(2.0 + step)) > math.atan(2.0)
+    assert _steps_by_hand(0, 1e-3) > 2

@@ -1,0 +1,122 @@
+"""Strength inference, what is read from a fit: the curve, its two parts, the posterior
+summary of each prior term (Laplace normal and posterior draws) and the interval formulas.
+The fit is made by hand (a mode, a covariance and draws of our own choosing; no fitting, no
+demo), and every check value comes from the two-stage law written out here, numpy's
+quantiles or a derivation beside it."""
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pytest
+
+from specgen import refdata
+from specgen.science import strength_inference as si
+
+PRIORS = refdata.load("strength_priors").data
+NC = si.prior_from_table("natural_cement", PRIORS["natural_cement"])
+Z975 = 1.959963984540054     # standard normal 97.5 % quantile (scipy.stats.norm.ppf(0.975))
+
+# an invented posterior mode: F = 9 MPa, φ = 0.2, τA = 0.05 d, τS = 40 d, b = 0.7
+F, PHI, TA, TS, B = 9.0, 0.2, 0.05, 40.0, 0.7
+MODE = np.array([math.log(F), math.log(PHI / (1 - PHI)), math.log(TA), math.log(TS),
+                 math.log(B)])
+COV = np.diag([0.01, 0.09, 0.16, 0.04, 0.0025])
+COV[3, 4] = COV[4, 3] = -0.005
+
+
+def _law(t, f=F, phi=PHI, ta=TA, ts=TS, b=B):
+    # f(t) = F·[φ·(1 − e^(−t/τA)) + (1 − φ)·(1 − e^(−(t/τS)^b))]  (the law as documented)
+    t = np.asarray(t, float)
+    return f * (phi * (1 - np.exp(-t / ta)) + (1 - phi) * (1 - np.exp(-(t / ts) ** b)))
+
+
+def _inference(draws=None):
+    return si.Inference(prior=NC, ages=np.array([1.0, 7.0, 28.0]), means_log=np.zeros(3),
+                        counts=np.full(3, 3.0), mode=MODE.copy(), cov=COV.copy(), p_eff=3.0,
+                        sigma_w=0.05, sigma_b=0.08, sigma_w_source="", sigma_b_source="",
+                        dof=10.0, lof=None, lof_batch_p=None, last_age=28.0, draws=draws)
+
+
+def test_the_curve_and_its_two_parts_are_the_law_written_out():
+    inf = _inference()
+    t = np.array([0.02, 0.05, 1.0, 28.0, 365.0])
+    assert si.value(inf, t) == pytest.approx(_law(t), rel=1e-12)
+    parts = si.components(inf, t)
+    assert parts["aluminate"] == pytest.approx(F * PHI * (1 - np.exp(-t / TA)), rel=1e-12)
+    assert parts["silicate"] == pytest.approx(
+        F * (1 - PHI) * (1 - np.exp(-(t / TS) ** B)), rel=1e-12)
+    # at t = τA the fast part is F·φ·(1 − 1/e) = 9·0.2·0.632121 = 1.137818 MPa (by hand)
+    assert si.components(inf, [TA])["aluminate"][0] == pytest.approx(1.137818, abs=1e-6)
+
+
+@pytest.mark.parametrize("ages", [[0.0], [-1.0], [float("nan")], [28.0, float("inf")]])
+def test_the_curve_refuses_ages_word_for_word(ages):
+    with pytest.raises(si.InferenceError) as exc:
+        si.value(_inference(), ages)
+    assert str(exc.value) == "prediction ages must be positive finite numbers of days"
+
+
+def _gain_log_sd(z, cov):
+    # delta method for ln f(365) − ln f(28): its gradient by central differences of the law
+    # written out above (step 1e-6 on each term of z), then sqrt(dᵀ·Σ·d)
+    def lg(v):
+        f, phi, ta, ts, b = (math.exp(v[0]), 1 / (1 + math.exp(-v[1])), math.exp(v[2]),
+                             math.exp(v[3]), math.exp(v[4]))
+        return math.log(_law(365.0, f, phi, ta, ts, b) / _law(28.0, f, phi, ta, ts, b))
+    d = np.array([(lg(z + h) - lg(z - h)) / 2e-6 for h in np.eye(5) * 1e-6])
+    return lg(z), math.sqrt(d @ cov @ d)
+
+
+def test_posterior_summary_from_the_laplace_normal():
+    # each shape term: mode and mode ± 1.959964·sd on its own scale, mapped back
+    # (logistic for φ, exp for the times and b); the gain by the delta method
+    got = si.posterior_summary(_inference())
+    sd = np.sqrt(np.diag(COV))
+    back = [lambda v: 1 / (1 + math.exp(-v)), math.exp, math.exp, math.exp]
+    for k, (name, f) in enumerate(zip(("early_fraction", "tau_fast_d", "tau_slow_d",
+                                       "shape_b"), back), start=1):
+        assert got[name] == pytest.approx(
+            (f(MODE[k]), f(MODE[k] - Z975 * sd[k]), f(MODE[k] + Z975 * sd[k])), rel=1e-12)
+    assert got["early_fraction"][0] == pytest.approx(0.2, rel=1e-12)
+    lg, s = _gain_log_sd(MODE, COV)
+    assert got["gain_365_28"] == pytest.approx(
+        (math.exp(lg), math.exp(lg - Z975 * s), math.exp(lg + Z975 * s)), rel=1e-7)
+    assert list(got) == ["early_fraction", "tau_fast_d", "tau_slow_d", "shape_b", "gain_365_28"]
+
+
+def test_posterior_summary_from_the_draws():
+    # with draws the range of each term is numpy's inverted-CDF 2.5 % and 97.5 % quantile of
+    # the draws (then mapped back); the mode stays the mode
+    rng = np.random.default_rng(5)
+    draws = MODE + rng.multivariate_normal(np.zeros(5), COV, 400)
+    got = si.posterior_summary(_inference(draws))
+    back = [lambda v: 1 / (1 + np.exp(-v)), np.exp, np.exp, np.exp]
+    for k, (name, f) in enumerate(zip(("early_fraction", "tau_fast_d", "tau_slow_d",
+                                       "shape_b"), back), start=1):
+        lo, hi = np.quantile(draws[:, k], [0.025, 0.975], method="inverted_cdf")
+        assert got[name] == pytest.approx((f(MODE[k]), f(lo), f(hi)), rel=1e-12)
+    gains = []
+    for v in draws:
+        f, phi, ta, ts, b = (math.exp(v[0]), 1 / (1 + math.exp(-v[1])), math.exp(v[2]),
+                             math.exp(v[3]), math.exp(v[4]))
+        gains.append(_law(365.0, f, phi, ta, ts, b) / _law(28.0, f, phi, ta, ts, b))
+    lo, hi = np.quantile(gains, [0.025, 0.975], method="inverted_cdf")
+    assert got["gain_365_28"] == pytest.approx(
+        (float(_law(365.0) / _law(28.0)), lo, hi), rel=1e-9)
+
+
+def test_interval_formulas_name_their_method_word_for_word():
+    # the formulas of the module docstring ("Intervals"): Laplace fallback exp(ln f ± z·sqrt(gᵀΣg))
+    # and exp(ln f ± q·sqrt(gᵀΣg + σb² + σw²/n)); with draws, the central quantiles of ln f(t; z_i)
+    # and of ln f(t; z_i) + T_i·sqrt(σb² + σw²/n), T_i Student's t
+    laplace = si.interval_formulas(_inference())
+    assert laplace == (
+        r"e^{\ln\hat f \pm z\sqrt{g^{\mathsf T}\Sigma g}},\ g = \partial \ln f/\partial\theta",
+        r"e^{\ln\hat f \pm q\sqrt{g^{\mathsf T}\Sigma g + \sigma_b^2 + \sigma_w^2/n}}")
+    sampled = si.interval_formulas(_inference(np.tile(MODE, (3, 1))))
+    assert sampled == (
+        r"\left[e^{Q_{\alpha/2}},\ e^{Q_{1-\alpha/2}}\right]\ \text{of}\ "
+        r"\ln f(t; z_i),\ z_i\ \text{posterior draws}",
+        r"\left[e^{Q_{\alpha/2}},\ e^{Q_{1-\alpha/2}}\right]\ \text{of}\ "
+        r"\ln f(t; z_i) + T_i\sqrt{\sigma_b^2 + \sigma_w^2/n},\ T_i \sim t_{\nu}")
