@@ -178,14 +178,18 @@ def test_one_interval_whole_and_where_it_turns_indicative():
 
 def test_band_from_draws_is_their_quantiles():
     # with draws (and no more ages than the nodes), the band for the mean curve is numpy's
-    # inverted-CDF 2.5 % and 97.5 % quantile of ln f over the draws, exponentiated
+    # inverted-CDF quantiles of ln f over the draws, exponentiated.  At the 50 % level the
+    # probabilities (1 − 0.5)/2 = 0.25 and 0.75 are exact in binary, so the order statistics
+    # are the 250th and 750th of the 1000 draws without any rounding of n·p
     rng = np.random.default_rng(9)
     draws = MODE + rng.multivariate_normal(np.zeros(5), COV, si.KEPT)   # a fit keeps KEPT
     t = np.array([3.0, 28.0, 180.0])
     lf = np.array([np.log(_law(t, math.exp(v[0]), 1 / (1 + math.exp(-v[1])), math.exp(v[2]),
                                  math.exp(v[3]), math.exp(v[4]))) for v in draws])
-    lo, hi = np.quantile(lf, [0.025, 0.975], axis=0, method="inverted_cdf")
-    got = si.bands(_inference(draws), t)
+    lo, hi = np.sort(lf, axis=0)[[249, 749]]
+    assert np.array_equal(np.quantile(lf, [0.25, 0.75], axis=0, method="inverted_cdf"),
+                          [lo, hi])
+    got = si.bands(_inference(draws), t, level=0.5)
     assert got["mean_lo"] == pytest.approx(np.exp(lo), rel=1e-12)
     assert got["mean_hi"] == pytest.approx(np.exp(hi), rel=1e-12)
     assert got["value"] == pytest.approx(_law(t), rel=1e-12)
