@@ -249,9 +249,11 @@ W_GRID = 1.0 / Y_GRID                                         # relative weights
     ("en1992_age", np.linspace(0.02, 2.5, 40), lambda q: _en1992(T_GRID, 1.0, q)),
     ("hyperbolic", np.geomspace(0.01, 3000.0, 40), lambda q: _hyperbolic(T_GRID, 1.0, q)),
 ])
-def test_one_amplitude_grid_start_is_the_best_grid_point(model, grid, law):
-    k, amp = _best_on_grid([[law(q) * W_GRID] for q in grid], Y_GRID * W_GRID, floor=1e-3)
-    got = sm._start(sm.MODELS[model], T_GRID, Y_GRID, W_GRID, np.zeros(2))
+@pytest.mark.parametrize("scale", [1.0, 0.1])      # 0.1: strengths under 1 MPa (a weak lime)
+def test_one_amplitude_grid_start_is_the_best_grid_point(model, grid, law, scale):
+    y = Y_GRID * scale
+    k, amp = _best_on_grid([[law(q) * W_GRID] for q in grid], y * W_GRID, floor=1e-3)
+    got = sm._start(sm.MODELS[model], T_GRID, y, W_GRID, np.zeros(2))
     assert got == pytest.approx([amp[0], grid[k]], rel=1e-12)
 
 
