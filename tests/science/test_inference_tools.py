@@ -343,6 +343,7 @@ ATAN = [  # (c, m, sp, z0): a start the Gauss-Newton step overshoots (rejected s
     (1.0, 1.0, 1e6, 1.5),
     (0.5, 0.5, 1e6, 0.5),
     (0.0, 3.0, 2.0, 2.5),
+    (1e4, 1e4, 1e6, 1e4 + 0.5),   # far from zero: the step is measured relative to 1 + |z|
 ]
 
 
@@ -427,3 +428,50 @@ def test_the_first_overshooting_step_is_refused_by_hand():
     assert abs(math.atan(2.0 + step)) == pytest.approx(1.29476, abs=5e-6)
     assert abs(math.atan(2.0 + step)) > math.atan(2.0)
     assert _steps_by_hand(0, 1e-3) > 2
+
+
+def _far_many(z, idx):
+    # series 0: r = (e^z − 2, 1e-3/e^(−z) − 2e-3, 0·e^z), minimum at z = ln 2; from z0 = −7 the
+    # first step is about 2·e^7/(1 + μ) ≈ 2190, where e^z overflows (e^709 is the largest double), 1/e^(−z) divides
+    # by zero and 0·∞ is invalid; series 1: the atan problem ATAN[1] with a third residual 0
+    zf = z[:, 0]
+    out_r, out_j = np.zeros((len(idx), 3)), np.zeros((len(idx), 3, 1))
+    for k, i in enumerate(idx):
+        if i == 0:
+            e = np.exp(zf[k])
+            out_r[k] = [e - 2.0, 1e-3 / np.exp(-zf[k]) - 2e-3, 0.0 * e]
+            out_j[k, :, 0] = [e, 1e-3 / np.exp(-zf[k]), 0.0 * e]
+        else:
+            r, j = _atan_many(z[k:k + 1], np.array([1]))
+            out_r[k, :2], out_j[k, :2] = r[0], j[0]
+    return out_r, out_j
+
+
+def test_a_trial_step_into_overflow_warns_nothing_and_leaves_the_other_series_alone():
+    import warnings
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")            # a RuntimeWarning would fail the test
+        laps = it._lm_path(_far_many, np.array([[-7.0], [ATAN[1][3]]]), 2, 200, 1e-10, 1e-3)
+    assert laps[0].mode[0] == pytest.approx(math.log(2.0), rel=1e-9)   # e^z = 2
+    # the second series' descent is the one written out above, untouched by the first's
+    # non-finite trial steps
+    z, f, h, hd = _lm_by_hand(*ATAN[1], 1e-3, 200)
+    assert laps[1].mode[0] == pytest.approx(z, rel=1e-13)
+    assert laps[1].cost == pytest.approx(f, rel=1e-12, abs=1e-300)
+
+
+def test_an_integer_start_is_a_number_not_a_count():
+    # a start of 2 (an integer) descends as 2.0 does: the iterates are real numbers
+    one = lambda zz, idx: _atan_many(zz, np.array([0])[idx])   # noqa: E731
+    got = it._lm_path(one, np.array([[2]]), 1, 200, 1e-10, 1e-3)[0]
+    z, f, _, _ = _lm_by_hand(*ATAN[0], 1e-3, 200)
+    assert got.mode[0] == pytest.approx(z, rel=1e-13, abs=1e-15)
+    assert got.cost == pytest.approx(f, rel=1e-12, abs=1e-300)
+
+
+def test_a_singular_damped_system_gives_none_for_each_series():
+    # residual 1 whatever z is: JᵀJ = 0 and, with no starting damping, the system of the step
+    # is singular: each series is left to be fitted alone (None), not an error
+    def flat(z, idx):
+        return np.ones((len(idx), 1)), np.zeros((len(idx), 1, 1))
+    assert it._lm_path(flat, np.zeros((2, 1)), 1, 50, 1e-10, 0.0) == [None, None]

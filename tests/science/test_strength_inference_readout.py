@@ -120,3 +120,76 @@ def test_interval_formulas_name_their_method_word_for_word():
         r"\ln f(t; z_i),\ z_i\ \text{posterior draws}",
         r"\left[e^{Q_{\alpha/2}},\ e^{Q_{1-\alpha/2}}\right]\ \text{of}\ "
         r"\ln f(t; z_i) + T_i\sqrt{\sigma_b^2 + \sigma_w^2/n},\ T_i \sim t_{\nu}")
+
+
+def _log_law_grad(t):
+    # ∂ ln f/∂z at the mode by central differences (step 1e-6) of the law written out above
+    def lf(v):
+        return np.log(_law(t, math.exp(v[0]), 1 / (1 + math.exp(-v[1])), math.exp(v[2]),
+                           math.exp(v[3]), math.exp(v[4])))
+    return np.column_stack([(lf(MODE + h) - lf(MODE - h)) / 2e-6 for h in np.eye(5) * 1e-6])
+
+
+@pytest.mark.parametrize("level, z, q", [
+    # z: standard normal and q: Student's t at 10 dof, two-sided (scipy.stats.norm.ppf and
+    # scipy.stats.t.ppf; t table: t(0.975, 10) = 2.228, t(0.95, 10) = 1.812)
+    (0.95, 1.959963984540054, 2.228138851986274),
+    (0.90, 1.6448536269514722, 1.8124611228107335),
+])
+def test_laplace_bands_by_the_delta_method(level, z, q):
+    # band for the mean curve exp(ln f ± z·sqrt(gᵀΣg)); next set of n prisms
+    # exp(ln f ± q·sqrt(gᵀΣg + σb² + σw²/n)) (module docstring), σb = 0.08, σw = 0.05
+    t = np.array([1.0, 28.0, 90.0, 365.0])
+    g = _log_law_grad(t)
+    var = np.einsum("ij,jk,ik->i", g, COV, g)
+    m = np.log(_law(t))
+    for n in (3.0, 1.0, float("inf")):
+        got = si.bands(_inference(), t, level, n)
+        sp = q * np.sqrt(var + 0.08 ** 2 + 0.05 ** 2 / n)
+        assert got["value"] == pytest.approx(np.exp(m), rel=1e-12)
+        assert got["mean_lo"] == pytest.approx(np.exp(m - z * np.sqrt(var)), rel=1e-7)
+        assert got["mean_hi"] == pytest.approx(np.exp(m + z * np.sqrt(var)), rel=1e-7)
+        assert got["pred_lo"] == pytest.approx(np.exp(m - sp), rel=1e-7)
+        assert got["pred_hi"] == pytest.approx(np.exp(m + sp), rel=1e-7)
+
+
+def test_one_interval_whole_and_where_it_turns_indicative():
+    # 95 % Laplace; last tested age 28 d, so beyond 3 × 28 = 84 d an interval is indicative
+    inf = _inference()
+    g = _log_law_grad(np.array([84.0]))[0]
+    var = g @ COV @ g
+    m = math.log(_law(84.0))
+    mean = si.interval(inf, 84.0, "mean")
+    assert mean == si.Interval(84.0, pytest.approx(math.exp(m), rel=1e-12),
+                               pytest.approx(math.exp(m - Z975 * math.sqrt(var)), rel=1e-7),
+                               pytest.approx(math.exp(m + Z975 * math.sqrt(var)), rel=1e-7),
+                               "mean curve", 0.95, False)
+    sp = 2.228138851986274 * math.sqrt(var + 0.08 ** 2 + 0.05 ** 2 / 3)
+    assert si.interval(inf, 84.0, "set") == si.Interval(
+        84.0, pytest.approx(math.exp(m), rel=1e-12), pytest.approx(math.exp(m - sp), rel=1e-7),
+        pytest.approx(math.exp(m + sp), rel=1e-7), "mean of the next set of 3 prisms", 0.95,
+        False)
+    assert si.interval(inf, 84.0, "set", n=float("inf")).kind == "one batch"
+    assert si.interval(inf, 84.001, "mean").indicative is True
+    assert si.interval(inf, 84.001, "mean", limit_factor=3.1).indicative is False
+    assert si.interval(inf, 86.8, "mean", limit_factor=3.1).indicative is False   # 3.1·28 = 86.8
+    assert si.interval(inf, 86.81, "mean", limit_factor=3.1).indicative is True
+
+
+def test_band_from_draws_is_their_quantiles():
+    # with draws (and no more ages than the nodes), the band for the mean curve is numpy's
+    # inverted-CDF quantiles of ln f over the draws, exponentiated.  At the 50 % level the
+    # probabilities (1 − 0.5)/2 = 0.25 and 0.75 are exact in binary, so the order statistics
+    # are the 250th and 750th of the 1000 draws without any rounding of n·p
+    rng = np.random.default_rng(9)
+    draws = MODE + rng.multivariate_normal(np.zeros(5), COV, si.KEPT)   # a fit keeps KEPT
+    t = np.array([3.0, 28.0, 180.0])
+    lf = np.array([np.log(_law(t, math.exp(v[0]), 1 / (1 + math.exp(-v[1])), math.exp(v[2]),
+                                 math.exp(v[3]), math.exp(v[4]))) for v in draws])
+    lo, hi = np.sort(lf, axis=0)[[249, 749]]
+    assert np.array_equal(np.quantile(lf, [0.25, 0.75], axis=0, method="inverted_cdf"),
+                          [lo, hi])
+    got = si.bands(_inference(draws), t, level=0.5)
+    assert got["mean_lo"] == pytest.approx(np.exp(lo), rel=1e-12)
+    assert got["mean_hi"] == pytest.approx(np.exp(hi), rel=1e-12)
+    assert got["value"] == pytest.approx(_law(t), rel=1e-12)

@@ -249,9 +249,11 @@ W_GRID = 1.0 / Y_GRID                                         # relative weights
     ("en1992_age", np.linspace(0.02, 2.5, 40), lambda q: _en1992(T_GRID, 1.0, q)),
     ("hyperbolic", np.geomspace(0.01, 3000.0, 40), lambda q: _hyperbolic(T_GRID, 1.0, q)),
 ])
-def test_one_amplitude_grid_start_is_the_best_grid_point(model, grid, law):
-    k, amp = _best_on_grid([[law(q) * W_GRID] for q in grid], Y_GRID * W_GRID, floor=1e-3)
-    got = sm._start(sm.MODELS[model], T_GRID, Y_GRID, W_GRID, np.zeros(2))
+@pytest.mark.parametrize("scale", [1.0, 0.1])      # 0.1: strengths under 1 MPa (a weak lime)
+def test_one_amplitude_grid_start_is_the_best_grid_point(model, grid, law, scale):
+    y = Y_GRID * scale
+    k, amp = _best_on_grid([[law(q) * W_GRID] for q in grid], y * W_GRID, floor=1e-3)
+    got = sm._start(sm.MODELS[model], T_GRID, y, W_GRID, np.zeros(2))
     assert got == pytest.approx([amp[0], grid[k]], rel=1e-12)
 
 
@@ -353,3 +355,41 @@ def test_akaike_weights_by_hand_and_nothing_ranked_when_nothing_fits():
         "f28) has 2 parameters and needs results at >= 3 distinct ages; got 2; "
         "hyperbolic law: the hyperbolic law has 2 parameters and needs results at >= 3 "
         "distinct ages; got 2")
+
+
+def test_the_comparison_in_words_whole():
+    # five ages: all three laws are fitted.  Each AICc again from the fitted parameters with the
+    # laws written out, in the least-squares form n·ln(RSS/n) + 2k + 2k(k+1)/(n−k−1),
+    # k = parameters + 1 (Burnham & Anderson 2002, Model Selection and Multimodel Inference,
+    # sec. 2.2 and eq. 2.3; −2 ln L less its constant n(1 + ln 2π)); support bands of ΔAICc (from memory, as the module): <= 2 substantial, <= 7
+    # considerably less, <= 10 little, beyond essentially none
+    t, y = _data(rng_state=6)
+    sel = fit_all(t * DAY, y * MPA)
+    means = {a: y[t == a].mean() for a in AGES}
+    w = np.array([1.0 / means[a] for a in t])
+
+    def two(x, tt):
+        fa, ta, fs, ts, b = x
+        return fa * (1 - np.exp(-tt / ta)) + fs * (1 - np.exp(-(tt / ts) ** b))
+    laws = {"en1992_age": lambda x: _en1992(t, *x), "hyperbolic": lambda x: _hyperbolic(t, *x),
+            "two_component": lambda x: two(x, t)}
+    aicc = {}
+    for f in sel.fits:
+        r = (laws[f.model](f.x) - y) * w
+        n, k = r.size, len(f.params) + 1
+        aicc[f.model] = n * math.log(np.sum(r ** 2) / n) + 2 * k + 2 * k * (k + 1) / (n - k - 1)
+    order = sorted(aicc, key=aicc.get)
+    assert order == ["hyperbolic", "en1992_age", "two_component"]
+    d = {m: aicc[m] - aicc["hyperbolic"] for m in order}
+    assert 0 < d["en1992_age"] <= 2.0 and 7.0 < d["two_component"] <= 10.0   # the two bands
+    wts = {m: math.exp(-0.5 * v) for m, v in d.items()}
+    w_best = wts["hyperbolic"] / sum(wts.values())
+    title = {"hyperbolic": "hyperbolic law", "en1992_age": "EN 1992-1-1 age function (fitted s, "
+             "f28)", "two_component": "two-component model (aluminate + silicate)"}
+    assert sel.reasoning == (
+        f"Chosen: hyperbolic law (AICc {aicc['hyperbolic']:.2f}, Akaike weight {w_best:.2f}, "
+        "2 parameters). "
+        f"{title['en1992_age']}: AICc {aicc['en1992_age']:.2f}, ΔAICc {d['en1992_age']:+.2f} "
+        "against the chosen model (substantial support relative to it). "
+        f"{title['two_component']}: AICc {aicc['two_component']:.2f}, ΔAICc "
+        f"{d['two_component']:+.2f} against the chosen model (little support relative to it).")
