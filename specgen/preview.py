@@ -125,10 +125,12 @@ def _address(page: str) -> str:
     return page.rsplit(".", 1)[0] + ".html"
 
 
-def _first_pages(wanted: str) -> set[str]:
-    """The pages laid out first: the summary, and the page a reader asked for already
-    (``strength.html`` → ``strength.md``; an address of no page lays out the whole site)."""
-    return {"index.md"} | ({wanted.removesuffix(".html") + ".md"} if wanted.endswith(".html")
+def _first_pages(wanted: str, revision: str) -> set[str]:
+    """The pages laid out first: the summary, and the page a reader asked for already, by its
+    bare address or in the folder of the revision being built (``strength.html`` and
+    ``R3/strength.html`` → ``strength.md``; an address of no page lays out the whole site)."""
+    page = wanted.removeprefix(revision + "/")
+    return {"index.md"} | ({page.removesuffix(".html") + ".md"} if page.endswith(".html")
                            else set())
 
 
@@ -172,10 +174,13 @@ class Previewer(Afterwards):
             frozen = self._frozen_edits(changed or (), ARCHIVE_DIR)
             if frozen:   # the inputs of an issued revision: never previewed as edited
                 raise UsageError(_frozen_text(frozen, ARCHIVE_DIR))
-            # the first site: the summary (and a page already asked for) first, the rest after
-            first = None if self.state.revision is not None else _first_pages(self.state.wanted)
+            # the first site: the summary (and a page asked for until the render starts)
+            # first, the rest after
+            first = None if self.state.revision is not None else (
+                lambda revision: _first_pages(self.state.wanted, revision))
             prepared = prepare(self.project, self.out, reuse=self.prepared, cache_dir=self.cache,
                                progress=self.progress, first=first)
+            first = prepared.first
             rev = prepared.project.revision
             if changed and rev.status == "issued":
                 raise UsageError(

@@ -144,6 +144,7 @@ class _Prepared:
         self.project = type("P", (), {"revision": _Rev("R2", status)})()
         self.results = object()
         self.pages = PageSet()      # every figure drawn
+        self.first = None           # no page laid out before the others
 
 
 def _previewer(tmp_path, monkeypatch, status="draft"):
