@@ -926,11 +926,13 @@ def _ciede2000_terms(lab1, lab2):
 
 
 def test_colour_difference_step_of_a_chromatic_pair_whole():
-    """A blue-grey panel (52.3456, −12.3456, −20.4321) against a historic mortar
+    """A blue-grey panel (52.34567, −12.3457, −20.4323) against a historic mortar
     (50.1234, −10.9876, −22.1111), three readings each: every term of the difference step by
     the equations written out above, the total cross-checked with colour-science; the terms
-    shown to 4 decimals (R_T to 5), the working line to 3 (R_T to 4)."""
-    panel, hist = (52.3456, -12.3456, -20.4321), (50.1234, -10.9876, -22.1111)
+    shown to 4 decimals (R_T to 5), the working line to 3 (R_T to 4).  The readings are
+    chosen so that no shown term has a zero in the next decimal (ΔL' −2.22227, ΔC' 0.562379,
+    ΔH' 2.237189, R_T −0.1567056), where a figure rounded one place further would show."""
+    panel, hist = (52.34567, -12.3457, -20.4323), (50.1234, -10.9876, -22.1111)
     rows = [("MA", *panel, "D65", "10")] * 3 + [("H9", *hist, "D65", "10")] * 3
     dL, dC, dH, sl, sc, sh, rt, de = _ciede2000_terms(panel, hist)
     assert de == pytest.approx(float(colour.delta_E(panel, hist, method="CIE 2000")), abs=1e-9)
