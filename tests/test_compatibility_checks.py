@@ -945,3 +945,6 @@ def test_colour_difference_step_of_a_chromatic_pair_whole():
         rf" + ({dH:.3f}/{sh:.3f})^2 + ({rt:.4f})\,\ldots}} = {de:.3f}")
     assert (step.result, c.value, c.quantities[0].value["value"]) == (
         round(de, 4), round(de, 3), round(de, 4))
+    # the recorded means to 0.001 (the readings of each side are equal, so each mean is them)
+    assert (c.quantities[0].value["panel_mean"], c.quantities[0].value["historic_mean"]) == (
+        [52.346, -12.346, -20.432], [50.123, -10.988, -22.111])
