@@ -861,6 +861,13 @@ def test_colour_spread_shown_to_four_decimals():
     assert (c.steps[0].result, c.steps[1].result) == (1.9935, 0.0)
     assert (c.quantities[0].value["panel_spread"],
             c.quantities[0].value["historic_spread"]) == (1.9935, 0.0)
+    # the same readings the other way round: the historic mortar's spread shown alike
+    rows = [("MA", 52.0, 0.0, 0.0, "D65", "10")] * 3 + [
+        ("H9", 50.0, 0.0, 0.0, "D65", "10"), ("H9", 54.0, 0.0, 0.0, "D65", "10")]
+    c = _colour_of(rows)[0]
+    assert (c.steps[0].result, c.steps[1].result) == (0.0, 1.9935)
+    assert (c.quantities[0].value["panel_spread"],
+            c.quantities[0].value["historic_spread"]) == (0.0, 1.9935)
 
 
 def test_colour_not_assessed_results_carry_the_title_and_basis():
