@@ -95,7 +95,8 @@ class Piece:
     volume: str = "main"  # the volume it prints in: "main" or "appendix"
 
 
-def _cut_points(html: str, size: int, whole: int = CHAPTER_WHOLE) -> list[int]:
+def _cut_points(html: str, size: int, whole: int = CHAPTER_WHOLE,
+               sections: bool = False) -> list[int]:
     """Offsets of top-level ``<h2`` at which a chapter is cut into pieces (each starts a page).
 
     A cut falls before a top-level heading chosen by the heading itself (a hash of its
@@ -105,22 +106,33 @@ def _cut_points(html: str, size: int, whole: int = CHAPTER_WHOLE) -> list[int]:
     byte).  A run with no chosen heading is cut at the first heading past
     ``CUT_MOST × size``.  A chapter shorter than ``whole`` is not cut: the report's chapters
     keep their flow, and only the long appendices (the calculation sheets, the check
-    register) gain page breaks.
+    register) gain page breaks.  With ``sections`` (a chapter of one section per mix or
+    zone, ``chapters.chapter(sections=True)``) every top-level heading but the first (which
+    follows the chapter's opening text on its page) starts a piece, whatever the lengths:
+    a new result of one mix re-lays that mix's section alone.
     """
-    cuts, depth, last = [], 0, 0
-    if len(html) < whole:
+    cuts, depth, last, heads = [], 0, 0, 0
+    if len(html) < whole and not sections:
         return cuts
     for m in re.finditer(r"<(/?)(div|details|table|blockquote|figure|ul|ol|h2)\b", html):
         tag = m.group(2)
         if tag == "h2":
-            if not m.group(1) and depth == 0 and m.start() - last >= size and (
-                    _chosen(html[m.start():html.find(">", m.start()) + 1])
-                    or m.start() - last >= CUT_MOST * size):
+            if m.group(1) or depth:
+                continue
+            heads += 1
+            if heads > 1 if sections else _due(html, m.start(), last, size):
                 cuts.append(m.start())
                 last = m.start()
             continue
         depth += -1 if m.group(1) else 1
     return cuts
+
+
+def _due(html: str, at: int, last: int, size: int) -> bool:
+    """Whether the top-level heading at ``at`` starts a piece of a long chapter cut last at
+    ``last``: a chosen heading at least ``size`` on, or any heading ``CUT_MOST × size`` on."""
+    return at - last >= size and (_chosen(html[at:html.find(">", at) + 1])
+                                  or at - last >= CUT_MOST * size)
 
 
 def _chosen(heading_tag: str) -> bool:
@@ -134,19 +146,30 @@ def pieces(pageset, size: int = PART_SIZE) -> list[Piece]:
     Each piece starts a new page, in the assembled dossier and in a single-document render
     alike, so the cut points are the same page breaks either way.
     """
-    import markdown
-    from specgen.publish.safety import neutralise_links
     names, configs = _extensions()
     out = []
     for item in pageset.nav:
-        md = markdown.Markdown(extensions=names, extension_configs=configs)
-        body = _relink(neutralise_links(md.convert(pageset.pages[item.path])), _stem(item.path))
-        body = _landscape_wide_tables(body)
-        bounds = [0, *_cut_points(body, size), len(body)]
+        body = _print_body(pageset.pages[item.path], _stem(item.path), names, configs)
+        bounds = [0, *_cut_points(body, size, sections=item.sections), len(body)]
         for i, (a, b) in enumerate(zip(bounds, bounds[1:])):
             out.append(Piece(_page_id(item.path), item.title, body[a:b], cont=i > 0,
                              volume=item.volume))
     return out
+
+
+def _print_body(text: str, stem: str, names: list, configs: dict) -> str:
+    """A page's Markdown as print HTML: converted with the site's extensions, its links made
+    links inside the one document, its wide tables turned.  From the artefact cache when the
+    same Markdown was converted before, so a re-issue converts only the pages that changed."""
+    from specgen import cache
+
+    def convert() -> bytes:
+        import markdown
+        from specgen.publish.safety import neutralise_links
+        md = markdown.Markdown(extensions=names, extension_configs=configs)
+        body = _relink(neutralise_links(md.convert(text)), stem)
+        return _landscape_wide_tables(body).encode("utf-8")
+    return cache.cached("print-html", [text, stem, names, configs], convert).decode("utf-8")
 
 
 def _template(name: str):
