@@ -94,7 +94,7 @@ def _floor(project: Path, work: Path):
         render(proj, results)   # figures (matplotlib) and math (ziamath), no cache
         subprocess.run([sys.executable, "-m", "mkdocs", "build", "-q", "-f", str(cfg)], check=True,
                        cwd=BASE_CONFIG.parent, env=dict(os.environ, NO_MKDOCS_2_WARNING="1"))
-        import weasyprint
+        from specgen.publish.weasyfix import weasyprint
         css = (BASE_CONFIG.parent / "content/print/print.css").read_text()
         weasyprint.HTML(string=html, base_url="file:///specgen-pageset/",
                         url_fetcher=_fetcher(pages)).write_pdf(
