@@ -50,11 +50,15 @@ def new(directory: Path) -> None:
               show_default=True, help="table for people, json for tools (results.json content)")
 @click.option("--wide", is_flag=True, help="one line per check, however long (the table "
               "otherwise wraps findings to the terminal's width)")
-def check_cmd(directory: Path, fmt: str, wide: bool) -> None:
+@click.option("--fit-cache/--no-fit-cache", default=True, show_default=True,
+              help="keep the strength fits between runs in the user's cache folder, keyed by "
+              "their inputs and the program's version (a series that did not change is not "
+              "fitted again)")
+def check_cmd(directory: Path, fmt: str, wide: bool, fit_cache: bool) -> None:
     """Run every check on the project in DIRECTORY and print the results."""
     from specgen.build import check
     try:
-        _, results = check(directory)
+        _, results = check(directory, fit_cache=fit_cache)
     except SpecgenError as exc:
         _fail(exc)
     if fmt == "json":

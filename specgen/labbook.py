@@ -23,7 +23,8 @@ from pathlib import Path
 
 from specgen.errors import PublishError
 from specgen.project import Project
-from specgen.project.workbook import INSTRUCTIONS, LAYOUT_PROPERTY, SHEETS
+from specgen.project.workbook import INSTRUCTIONS, SHEETS
+from specgen.project.xlsx_package import LAYOUT_PROPERTY
 
 DAY = 86400.0
 CAPILLARY_TIMES_MIN = (5, 10, 15, 30, 60, 90)   # common practice: EN 1015-18 reads 10 and 90 min

@@ -845,3 +845,56 @@ def test_compatibility_pieces_by_hand():
                     message="not assessed: two readings are needed, one given"),
         CheckResult(code="COMP-SALT", title="t", subject="Z9/MB", subject_kind="zone",
                     status="pass", value=1.0, unit="u", basis=(), message="m")]
+
+
+def test_colour_spread_shown_to_four_decimals():
+    """Panel greys L* 50 and 54 (mean 52) against three of L* 52: the means agree (ΔE00 0,
+    pass).  The panel's spread is its largest ΔE00 from the mean, 2/S_L(51) = 1.99347 (the
+    reading 50 against 52, L̄' = 51; 2/S_L(53) = 1.95109 for 54), shown 1.9935 on the sheet and
+    in the quantity (Sharma, Wu & Dalal 2005, eq. 17, by hand)."""
+    rows = [("MA", 50.0, 0.0, 0.0, "D65", "10"), ("MA", 54.0, 0.0, 0.0, "D65", "10")] + [
+        ("H9", 52.0, 0.0, 0.0, "D65", "10")] * 3
+    c = _colour_of(rows)[0]
+    spread = 2 / _s_l(51.0)
+    assert round(spread, 5) == 1.99347
+    assert (c.status, c.value) == ("pass", 0.0)
+    assert (c.steps[0].result, c.steps[1].result) == (1.9935, 0.0)
+    assert (c.quantities[0].value["panel_spread"],
+            c.quantities[0].value["historic_spread"]) == (1.9935, 0.0)
+
+
+def test_colour_not_assessed_results_carry_the_title_and_basis():
+    """Every not-assessed COMP-COLOUR keeps the check's title and cites Sharma, Wu & Dalal;
+    a reading the science refuses (L* above 100: CIELAB lightness runs 0–100, CIE 15) gives
+    that pair a not-assessed under the check's own code with the science's reason."""
+    title = "Colour of the trial panel against the historic mortar"
+    c = _colour_of([], historic=None)[0]
+    assert (c.title, c.subject_kind) == (title, "zone")
+    c = _colour_of([("MA", 60.0, 2.0, 10.0, "D65", "10"), ("H9", 60.0, 2.0, 10.0, "D50", "2")])[0]
+    assert c.title == title
+    assert [(b.kind, b.ref, b.clause) for b in c.basis] == [SHARMA_BASIS]
+    c = _colour_of([("MA", 60.0, 2.0, 10.0, "D65", "10"), ("MA", 120.0, 2.0, 10.0, "D65", "10"),
+                    ("H9", 60.0, 2.0, 10.0, "D65", "10")])[0]
+    assert (c.code, c.title, c.subject, c.status, c.message) == (
+        "COMP-COLOUR", title, "Z9/MA", "not_assessed",
+        "not assessed: reading 2: L* must lie between 0 and 100; found 120")
+
+
+def test_colour_difference_step_shows_the_ciede2000_formula():
+    """The third step of the sheet states eq. 22 of Sharma, Wu & Dalal (2005) with
+    k_L = k_C = k_H = 1 (the reference conditions)."""
+    rows = [("MA", 52.0, 0.0, 0.0, "D65", "10")] * 3 + [("H9", 50.0, 0.0, 0.0, "D65", "10")] * 3
+    step = _colour_of(rows)[0].steps[2]
+    # neutral greys 52 against 50: ΔL' = 50 − 52 = −2, no chroma so ΔC' = ΔH' = 0,
+    # S_C = S_H = 1 and R_T = 0 (eqs. 15-22); S_L at L̄' = 51 by eq. 17 (by hand)
+    assert step.inputs == (
+        Input("ΔL'", "lightness difference", -2.0, "", "computed"),
+        Input("ΔC'", "chroma difference", 0.0, "", "computed"),
+        Input("ΔH'", "hue difference", 0.0, "", "computed"),
+        Input("S_L, S_C, S_H", "weighting functions", f"{_s_l(51.0):.4f}, 1.0000, 1.0000", "",
+              "computed"),
+        Input("R_T", "rotation term", 0.0, "", "computed"))
+    assert step.formula == (
+        r"\Delta E_{00} = \sqrt{\left(\frac{\Delta L'}{S_L}\right)^2 + "
+        r"\left(\frac{\Delta C'}{S_C}\right)^2 + \left(\frac{\Delta H'}{S_H}\right)^2 + "
+        r"R_T\frac{\Delta C'}{S_C}\frac{\Delta H'}{S_H}}")

@@ -285,3 +285,106 @@ def test_bad_workbooks_at_the_command_line_every_problem_at_once_nothing_written
             result.output
     assert [p.name for p in out.rglob("*")] == ["R1", "index.html"]
     assert (out / "R1" / "index.html").read_text() == "the issued page"
+
+
+# Cells of a SpreadsheetML worksheet (ECMA-376 Part 1, the xlsx format): a cell <c> holds a
+# formula in a child element <f> (also written with a namespace prefix, <x:f>, where the
+# document declares one) and its cell type t="e" marks an error value; a data validation's
+# <formula1> sits after <sheetData>, outside the cells.
+def _worksheet(cells: bytes, after: bytes = b"", prefix: bytes = b"") -> bytes:
+    ns = b"http://schemas.openxmlformats.org/spreadsheetml/2006/main"
+    p = prefix + b":" if prefix else b""
+    declare = b"xmlns:" + prefix if prefix else b"xmlns"
+    return (b"<" + p + b"worksheet " + declare + b'="' + ns + b'"><' + p + b"sheetData>"
+            + cells + b"</" + p + b"sheetData>" + after + b"</" + p + b"worksheet>")
+
+
+VALIDATION = (b'<extLst><ext xmlns:x14="urn:x14"><x14:dataValidations xmlns:xm="urn:xm">'
+              b"<x14:dataValidation><x14:formula1><xm:f>lists!$A$1:$A$3</xm:f></x14:formula1>"
+              b"</x14:dataValidation></x14:dataValidations></ext></extLst>")
+SCAN = [
+    ("plain values", _worksheet(b'<row r="1"><c r="A1"><v>1.5</v></c></row>'), False),
+    ("formula", _worksheet(b'<row r="2"><c r="E2"><f>E1*2</f><v>3</v></c></row>'), True),
+    ("shared formula", _worksheet(b'<row r="3"><c r="E3"><f t="shared" si="0"/><v>3</v>'
+                                  b'</c></row>'), True),
+    ("prefixed formula", _worksheet(b'<x:row r="2"><x:c r="E2"><x:f>E1*2</x:f></x:c></x:row>',
+                                    prefix=b"x"), True),
+    ("error value", _worksheet(b'<row r="2"><c r="E2" t="e"><v>#DIV/0!</v></c></row>'), True),
+    ("error value, single quotes", _worksheet(b"<row r='2'><c r='E2' t='e'><v>#N/A</v></c>"
+                                              b"</row>"), True),
+    # a list validation as a spreadsheet program writes it in its extension list, with the
+    # range in an element <xm:f>: no formula in a cell
+    ("validation formula after the cells", _worksheet(
+        b'<row r="1"><c r="A1"><v>1</v></c></row>', after=VALIDATION), False),
+    ("no cells", _worksheet(b"", after=VALIDATION).replace(b"<sheetData></sheetData>",
+                                                           b"<sheetData/>"), False),
+    ("not a worksheet", b'<styleSheet><fonts><font><f>odd</f></font></fonts></styleSheet>', False),
+]
+
+
+@pytest.mark.parametrize("case,part,found", SCAN, ids=[s[0] for s in SCAN])
+def test_formula_and_error_search_looks_in_the_cells_only(case, part, found):
+    from specgen.project.xlsx_package import _formula_or_error
+    assert _formula_or_error(part) is found
+
+
+def test_parts_inflated_from_memory_are_the_parts_zipfile_reads(workbook):
+    """The search reads each part straight from the file's bytes; every part must come out
+    as the standard library's zip reader gives it, and a part whose declared size is a lie is
+    refused with the workbook named, not read."""
+    import io
+    import struct
+    from specgen.errors import ProblemLog
+    from specgen.project import workbook as wbmod
+    from specgen.project.xlsx_package import _part
+    project_dir, path, _ = workbook
+    data = path.read_bytes()
+    with zipfile.ZipFile(io.BytesIO(data)) as z:
+        items = z.infolist()
+        assert {i.compress_type for i in items} == {zipfile.ZIP_DEFLATED}
+        for item in items:
+            assert _part(z, data, item) == z.read(item), item.filename
+    # the central directory's uncompressed size of the first sheet, made 1 byte larger
+    sheet = next(i for i in items if i.filename == "xl/worksheets/sheet2.xml")
+    # its central directory entry: signature PK\1\2, the file name at byte 46, the
+    # uncompressed size at byte 24 (the zip format, PKWARE APPNOTE.TXT 4.3.12)
+    at = data.find(b"PK\x01\x02")
+    while data[at + 46:at + 46 + len(sheet.filename)] != sheet.filename.encode():
+        at = data.find(b"PK\x01\x02", at + 4)
+    size = struct.unpack_from("<L", data, at + 24)[0]
+    assert size == sheet.file_size
+    bad = bytearray(data)
+    struct.pack_into("<L", bad, at + 24, size + 1)
+    target = project_dir / "lab" / "results.xlsx"
+    target.write_bytes(bytes(bad))
+    log = ProblemLog()
+    assert wbmod.read_workbook(target, "lab/results.xlsx", log) == []
+    [problem] = log.problems
+    assert str(problem).startswith("lab/results.xlsx: cannot be read as an xlsx workbook "
+                                   "(BadZipFile: xl/worksheets/sheet2.xml does not inflate to "
+                                   "its declared size).")
+
+
+@pytest.mark.parametrize("case,change", [("filled", lambda wb: [
+    (_fill(wb, r, 6.5 + r / 10), wb["strength"].cell(r, 7, dt.date(2025, 11, 20)))
+    for r in range(2, 8)])] + [b[:2] for b in BAD], ids=["filled"] + [b[0] for b in BAD])
+def test_column_pass_and_cell_by_cell_read_the_same(workbook, monkeypatch, case, change):
+    """Rows are read column by column, a row with an unusual cell again cell by cell; with
+    every row sent cell by cell the rows, planned tests and located messages are the same."""
+    from specgen.errors import ProblemLog
+    from specgen.project import workbook as wbmod
+    project_dir, path, _ = workbook
+    wb = openpyxl.load_workbook(path)
+    change(wb)
+    target = project_dir / "lab" / "results.xlsx"
+    wb.save(target)
+    seen = []
+    for every_cell in (False, True):
+        if every_cell:
+            monkeypatch.setattr(wbmod, "_column_text", lambda cells, *_: [None] * len(cells))
+        log = ProblemLog()
+        sheets = wbmod.read_workbook(target, "lab/results.xlsx", log)
+        seen.append(([(s.sheet, s.table, s.letters, s.pending) for s in sheets],
+                     [str(p) for p in log.problems]))
+    assert seen[0] == seen[1]
+    assert seen[0][0][0][1] or seen[0][0][0][3]   # the strength sheet gave rows or plans

@@ -373,3 +373,84 @@ def test_bay_of_a_small_repointing_zone_is_the_zone():
 def test_bay_none_for_bedding_no_volume_or_no_area():
     assert (_bay(50.0, 0.9, works="bedding"), _bay(50.0, None), _bay(None, 0.9),
             _bay(0.0, 0.9)) == ([], [], [], [])
+
+
+def test_rake_out_of_a_fractional_width_shown_to_a_thousandth_of_a_mm():
+    """An 8.1234 mm joint, no depth given: d = max(2 × 8.1234, 15) = 16.2468 mm and deepest
+    3 × 8.1234 = 24.3702 mm (by hand); the inputs and results are shown to 0.001 mm (8.123,
+    16.247, 24.37), the working line and the message with the figures to six digits."""
+    from specgen.checks.result import Input, Step
+    c = _rake(8.1234)
+    assert (c.value, c.message) == (16.247, "rake out to 16.2468 mm (the rule)")
+    assert c.steps == (Step(
+        "Rake-out depth by the rule", r"d = \max(r \cdot j,\ d_{\min})",
+        (Input("j", "joint width", 8.123, "mm", "dossier.yaml Z9.joint_width"),
+         Input("r", "depth as a multiple of the width", 2.0, "", WORKS_RULE),
+         Input("d_min", "shallowest rake-out", 15.0, "mm", MIN_RULE)),
+        r"d = \max(2 \cdot 8.1234,\ 15)", 16.247, "mm", "d"),)
+    assert c.quantities[0].value == {"depth": 16.247, "rule": 16.247, "given": None,
+                                     "deepest": 24.37}
+
+
+@pytest.mark.parametrize("given, status", [
+    (0.015625 - 1e-9, "pass"),      # 1e-9 m shallower than the rule: within the tolerance
+    (0.0234375 + 1e-9, "pass"),     # 1e-9 m deeper than the deepest: within the tolerance
+    (0.015625 - 2e-9, "attention"),
+    (0.0234375 + 2e-9, "attention")])
+def test_rake_out_edges_allow_a_nanometre_of_rounding(given, status):
+    """A 7.8125 mm joint (2⁻⁷ m, so every product is exact in binary): rule max(2 × 7.8125,
+    15) = 15.625 mm, deepest 3 × 7.8125 = 23.4375 mm (by hand).  A depth given in other units
+    can land a rounding error off an edge: the comparison allows 1e-9 m either side, no more."""
+    from types import SimpleNamespace as NS
+    from specgen.checks.method_checks import rake_out_check
+    c = rake_out_check(NS(id="Z9", works="repointing", joint_width=0.0078125,
+                          joint_depth=given), _ctx())
+    assert c.status == status
+
+
+def test_rake_out_fractional_depth_given_shown_to_a_thousandth_of_a_mm():
+    """The 8.1234 mm joint (rule 16.2468 mm, deepest 24.3702 mm, by hand) with 20.1236 mm
+    given: within, so it passes; the depth given and the limit's edges are shown to 0.001 mm
+    (20.124; 16.247–24.37), the working line and the message to six digits."""
+    from specgen.checks.result import Input, Limit, Step
+    c = _rake(8.1234, 20.1236)
+    assert (c.status, c.value, c.message) == (
+        "pass", 20.124, "rake out to 20.1236 mm as given: within the rule's 16.2468–24.3702 mm")
+    assert c.limit == Limit("within", low=16.247, high=24.37, unit="mm",
+                            text="16.2468–24.3702 mm")
+    assert c.steps[1] == Step(
+        "The project's depth against the rule", r"d \le d_{given} \le r_{\max} \cdot j",
+        (Input("d_given", "depth given for the zone", 20.124, "mm", "dossier.yaml Z9.joint_depth"),
+         Input("r_max", "deepest rake-out as a multiple of the width", 3.0, "", MAX_RULE)),
+        r"16.2468 \le 20.1236 \le 24.3702", 20.124, "mm", "d_given")
+    assert c.quantities[0].value == {"depth": 20.124, "rule": 16.247, "given": 20.124,
+                                     "deepest": 24.37}
+
+
+def test_rake_out_on_the_least_depth_beyond_the_deepest_of_a_thin_joint():
+    """A 4 mm joint: the rule gives max(2 × 4, 15) = 15 mm but the deepest is 3 × 4 = 12 mm
+    (by hand), so no depth meets both.  15 mm given is on the rule's depth and beyond the
+    deepest: the message says deeper, not shallower."""
+    c = _rake(4.0, 15.0)
+    assert (c.status, c.message) == (
+        "attention", "the depth given, 15 mm, is deeper than 12 mm: it takes more original "
+        "mortar than the repair needs; confirm it on the trial bay or change it")
+    assert c.steps[1].substituted == r"15 \le 15 > 12"
+
+
+@pytest.mark.parametrize("rate_l_h, shown_rate, per_day, area", [
+    # 12.34567 L/h for the rule's 6 h: 74.07402 L a day, shown 74.074; the bay
+    # 74.07402 × 7 / 100 = 5.185 m², shown 5.19 (by hand)
+    (12.34567, 12.3457, 74.074, 5.19),
+    # 25.000045 L/h: 150.00027 L a day, shown 150.0; the rate is shown 25.0 only when it is
+    # converted by exactly 3.6e6 (1000 L per m³ × 3600 s per h); 150 × 7 / 100 = 10.5 m² is
+    # more than the zone: the bay is the zone's 7 m² (by hand)
+    (25.000045, 25.0, 150.0, 7.0)])
+def test_bay_figures_shown_to_their_decimals(rate_l_h, shown_rate, per_day, area):
+    """A 7 m² repointing zone taking 0.1 m³: 100 / 7 = 14.2857 L per m² of face, shown to
+    0.001 L (14.286); the zone's own placing rate shown to 0.0001 L/h and the day's mortar
+    to 0.001 L (by hand)."""
+    c = _bay(7.0, 0.1, rate_l_h=rate_l_h, works="repointing")
+    assert c.steps[0].inputs[0].value == shown_rate
+    assert c.quantities[0].value == {"area": area,
+                                     "per_m2_l": 14.286, "per_day_l": per_day, "zone_area": 7.0}

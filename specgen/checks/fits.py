@@ -7,6 +7,10 @@ are pure functions of their inputs, so inside one pipeline call (:func:`kept`, o
 evaluation that asks for the same series.  The capillary fits and colour summaries of a
 sample are asked for once per zone and candidate: they are kept the same way.  Outside one, every fit is made afresh.  The
 render stage fits nothing: it draws the curves the checks recorded (``strength_curve``).
+
+``kept(persist=...)`` also keeps the strength fits between runs: ``persist`` (the pipeline's
+``specgen.fit_cache.FitStore``; this module touches no file) is asked for a fit before it is
+made, and given at the end of a complete run each fit made in it (or whose bands grew).
 """
 from __future__ import annotations
 
@@ -20,19 +24,50 @@ from specgen.science import strength_inference as si
 from specgen.science import strength_models as sm
 
 _KEPT: contextvars.ContextVar[dict | None] = contextvars.ContextVar("specgen_fits", default=None)
+# (the store kept between runs, {key: size of the fit's band memo when it was read})
+_PERSIST: contextvars.ContextVar[tuple | None] = contextvars.ContextVar("specgen_fits_persist",
+                                                                       default=None)
 
 
 @contextlib.contextmanager
-def kept():
-    """Keep the fits made inside (one build or check); a nested call shares the outer one's."""
+def kept(persist=None):
+    """Keep the fits made inside (one build or check); a nested call shares the outer one's.
+    ``persist``: a store with ``get(key)``/``put(key, fit)`` kept between runs (or None)."""
     if _KEPT.get() is not None:
         yield
         return
-    token = _KEPT.set({})
+    store: dict = {}
+    token = _KEPT.set(store)
+    token_p = _PERSIST.set((persist, {}) if persist is not None else None)
     try:
         yield
+        if persist is not None:
+            _hand_over(store, persist, _PERSIST.get()[1])
     finally:
         _KEPT.reset(token)
+        _PERSIST.reset(token_p)
+
+
+def _memo_size(fit) -> int:
+    return len(getattr(fit, "memo", ()))
+
+
+def _hand_over(store: dict, persist, read: dict) -> None:
+    """Give ``persist`` each fit made in the run, and each read from it whose bands grew."""
+    for key, fit in store.items():
+        if key not in read or _memo_size(fit) > read[key]:
+            persist.put(key, fit)
+
+
+def _from_persist(key: tuple):
+    """The fit kept between runs for ``key`` (None: none, or no store in use)."""
+    kept_p = _PERSIST.get()
+    if kept_p is None:
+        return None
+    found = kept_p[0].get(key)
+    if found is not None:
+        kept_p[1][key] = _memo_size(found)
+    return found
 
 
 def once(key: tuple, make):
@@ -42,7 +77,9 @@ def once(key: tuple, make):
     if store is None:
         return make()
     if key not in store:
-        store[key] = make()  # a refusal (an exception) is not kept: it is cheap
+        found = _from_persist(key)
+        # a refusal (an exception) is not kept: it is cheap
+        store[key] = found if found is not None else make()
     return store[key]
 
 
@@ -70,8 +107,12 @@ def inferences(records) -> None:
     for ages_d, values_mpa, prior in records:
         t, y = tuple(map(float, ages_d)), tuple(map(float, values_mpa))
         key = ("inference", t, y, repr(prior))
+        if key not in store and (found := _from_persist(key)) is not None:
+            store[key] = found
         if key not in store:
             todo.setdefault(key, (list(t), list(y), prior))
+    if not todo:
+        return
     for key, made in zip(todo, si.fit_many(list(todo.values()))):
         if isinstance(made, si.Inference):
             store[key] = made

@@ -17,17 +17,14 @@ from __future__ import annotations
 
 import datetime as dt
 import io
-import json
-import re
-import zipfile
-import zlib
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 from specgen.errors import Problem, ProblemLog, did_you_mean
-from specgen.project.files import MAX_FILE_BYTES, CsvTable
+from specgen.project.files import CsvTable
 from specgen.project.tables import (CAPILLARY_COLUMNS, COLOUR_COLUMNS, DATE, SIEVE_COLUMNS,
                                     STRENGTH_COLUMNS)
+from specgen.project.xlsx_package import MACRO_SUFFIXES, OLD_SUFFIXES, SAVE_AS, inspect
 from specgen.units import split_header
 
 LAB_DIR = "lab"
@@ -38,13 +35,6 @@ SHEETS = {"strength": (STRENGTH_COLUMNS, ("value",)),
           "capillary": (CAPILLARY_COLUMNS, ("uptake",)),
           "colour": (COLOUR_COLUMNS, ("L", "a", "b")),
           "sieves": (SIEVE_COLUMNS, ("retained", "passing"))}
-# a workbook written by specgen records its sheets and headers in this document property
-LAYOUT_PROPERTY = "specgen-layout"
-MACRO_SUFFIXES = {".xlsm", ".xltm", ".xlsb", ".xlam"}
-OLD_SUFFIXES = {".xls", ".xlt"}
-MAX_UNZIPPED_BYTES = 200 * 1024 * 1024   # a workbook that inflates beyond this is refused
-CUSTOM_PART = "docProps/custom.xml"   # the document's custom properties
-SAVE_AS = "save it from the spreadsheet as 'Excel Workbook (.xlsx)'"
 
 
 @dataclass
@@ -75,7 +65,7 @@ def read_workbook(path: Path, rel: str, log: ProblemLog) -> list[SheetTable]:
     value for the message.  Both readers hand :func:`_sheet` the same grid, so the checks,
     messages and locations are the same whichever read the file.
     """
-    inside = _inspect(path, rel, log)
+    inside = inspect(path, rel, log)
     if inside is None:
         return []
     data, layout, formulas = inside
@@ -163,95 +153,6 @@ def _grids_openpyxl(file: io.BytesIO) -> tuple[list[str], list[tuple[str, _Grid 
     return list(wb.sheetnames), out
 
 
-# parts of the package that never hold cells (themes, styles, the shared strings, properties,
-# the sheet list, the content types)
-_NO_CELLS = re.compile(r"(docProps/|xl/theme/|xl/(styles|sharedStrings|workbook)\.xml$|"
-                       r"\[Content_Types\]\.xml$)")
-
-
-_AFTER_NAME = frozenset(b" \t\r\n>/")
-
-
-def _formula_or_error(part: bytes) -> bool:
-    """Whether a part may hold a formula (an element ``f``, with any namespace prefix) or an
-    error value (a cell of type ``"e"``).  A false alarm (``<f`` or ``:f`` in a text, ``"e"`` in
-    an attribute) only sends the file to openpyxl; a formula missed would be read as its last
-    computed value.  Plain searches: a regular expression costs as much as calamine's read."""
-    for lead in (b"<f", b":f"):
-        i = part.find(lead)
-        while i >= 0:
-            if i + 2 < len(part) and part[i + 2] in _AFTER_NAME:
-                return True
-            i = part.find(lead, i + 2)
-    return b'"e"' in part or b"'e'" in part
-
-
-def _inspect(path: Path, rel: str, log: ProblemLog
-             ) -> tuple[bytes, dict[str, list[str]], bool] | None:
-    """(the file's bytes, the layout specgen wrote, whether any part holds a formula or an
-    error value), or ``None`` when the file is not to be opened (the reason in ``log``)."""
-    suffix = path.suffix.lower()
-    if suffix in MACRO_SUFFIXES:
-        log.add(rel, "is a macro-enabled workbook; specgen does not open it, so no macro runs.",
-                fix=SAVE_AS + " (macros are dropped), then delete this file.")
-        return None
-    if suffix in OLD_SUFFIXES:
-        log.add(rel, "is in the old binary spreadsheet format, which specgen does not read.",
-                fix=SAVE_AS + ".")
-        return None
-    if path.stat().st_size > MAX_FILE_BYTES:
-        log.add(rel, f"is larger than {MAX_FILE_BYTES // 2**20} MiB.",
-                fix="keep only the project's results in the workbook.")
-        return None
-    data = path.read_bytes()   # read once: both the checks and the reader work from memory
-    if not zipfile.is_zipfile(io.BytesIO(data)):
-        log.add(rel, "is not an xlsx workbook (an xlsx file is a zip archive).",
-                fix=SAVE_AS + ", or export each sheet as 'CSV UTF-8'.")
-        return None
-    try:
-        with zipfile.ZipFile(io.BytesIO(data)) as z:
-            items = z.infolist()
-            names = [i.filename for i in items]
-            if any(n.lower().endswith("vbaproject.bin") for n in names):
-                log.add(rel, "holds macros (a macro project inside an .xlsx); specgen does not "
-                        "open it, so no macro runs.", fix=SAVE_AS + " without macros.")
-                return None
-            inflated = sum(i.file_size for i in items)
-            if inflated > MAX_UNZIPPED_BYTES:
-                log.add(rel, f"inflates to {inflated / 1e6:.0f} MB; the limit is "
-                        f"{MAX_UNZIPPED_BYTES // 2**20} MiB.", fix="keep only the project's results.")
-                return None
-            # every part that may hold cells, not only xl/worksheets/
-            formulas = any(_formula_or_error(z.read(n)) for n in names
-                           if n.lower().endswith(".xml") and not _NO_CELLS.match(n))
-            custom = z.read(CUSTOM_PART) if CUSTOM_PART in names else None
-    except (zipfile.BadZipFile, zlib.error, OSError, EOFError, RuntimeError, ValueError) as exc:
-        log.add(rel, f"cannot be read as an xlsx workbook ({type(exc).__name__}: "
-                f"{str(exc)[:80]}).", fix=SAVE_AS + ", or export each sheet as 'CSV UTF-8'.")
-        return None
-    return data, _layout(custom), formulas
-
-
-def _layout(custom: bytes | None) -> dict[str, list[str]]:
-    """Sheets and headers as specgen wrote them (empty for a workbook made elsewhere)."""
-    if not custom:
-        return {}
-    from xml.etree import ElementTree as ET
-    try:
-        root = ET.fromstring(custom)
-    except ET.ParseError:
-        return {}
-    for prop in root:
-        if prop.get("name") == LAYOUT_PROPERTY and len(prop):
-            try:
-                data = json.loads(prop[0].text or "")
-            except (TypeError, ValueError):
-                return {}
-            return {k: [str(h) for h in v] for k, v in data.items()
-                    if isinstance(v, list)} if isinstance(data, dict) else {}
-    return {}
-
-
 def _sheet(grid: _Grid, rel: str, written: list[str] | None, log: ProblemLog) -> SheetTable:
     from openpyxl.utils import get_column_letter as letter
     name = grid.title
@@ -259,46 +160,21 @@ def _sheet(grid: _Grid, rel: str, written: list[str] | None, log: ProblemLog) ->
     by_name = {c.name: c for c in columns}
     merged = _merged_rows(grid, rel, log)
     heads = ["" if v is None else str(v).strip() for v in (grid.rows[0] if grid.rows else [])]
+    names = {h: split_header(h)[0] for h in heads if h}   # header → column name, once each
     headers, letters = [], {}
     for i, text in enumerate(heads):
         if text:
             headers.append(text)
-            letters[text] = letters[split_header(text)[0]] = letter(i + 1)
+            letters[text] = letters[names[text]] = letter(i + 1)
     headers_ok = written is None or _same_headers(headers, written, letters, name, rel, log)
-    kinds = [by_name.get(split_header(h)[0]) if h else None for h in heads]
-    results = [h for h in headers if split_header(h)[0] in result_cols]
-    first = next((h for h in heads if h), None)
-    rows, pending, flagged = [], [], grid.flagged
-    # (column number, header, whether plain text or numbers, column), for each column
-    columns_at = [(i, h, bool(h) and k is not None and k.kind != DATE, k)
-                  for i, (h, k) in enumerate(zip(heads, kinds), start=1)]
-    for r, cells in enumerate(grid.rows[1:], start=2):
-        values, bad = {}, False
-        for (i, header, plain, kind), v in zip(columns_at, cells):
-            flag = flagged.get((r, i)) if flagged else None
-            if flag is None:                 # the common cells here, the rest in _text
-                if v is None or v == "":
-                    if header:
-                        values[header] = ""
-                    continue
-                if plain and type(v) is float:
-                    values[header] = _number(v)
-                    continue
-                if plain and type(v) is str and v[0] != "=":
-                    values[header] = v.strip()
-                    continue
-            text, problem = _text(v, flag, kind)
-            if problem:
-                log.add(rel, problem[0], sheet=name, cell=f"{letter(i)}{r}",
-                        field=header or None, fix=problem[1])
-                bad = True
-            elif text and not header:
-                log.add(rel, f"holds '{text[:40]}' in a column without a header.", sheet=name,
-                        cell=f"{letter(i)}{r}", fix="give the column its header, or clear it.")
-                bad = True
-            if header:
-                values[header] = text
-        if not any(values.values()) or r in merged or bad:
+    # (column number, header, column), for each column
+    columns_at = [(i, h, by_name.get(names[h]) if h else None)
+                  for i, h in enumerate(heads, start=1)]
+    results = [h for h in headers if names[h] in result_cols]
+    first = headers[0] if headers else None
+    rows, pending = [], []
+    for r, values in _rows(grid, columns_at, rel, log):
+        if values is None or r in merged or not any(values.values()):
             continue
         if not any(values.get(h) for h in results):
             pending.append((r, values.get(first, "") if first else ""))
@@ -307,6 +183,80 @@ def _sheet(grid: _Grid, rel: str, written: list[str] | None, log: ProblemLog) ->
     # a changed header leaves the sheet unread (its cells were still checked above)
     table = CsvTable(headers, rows) if rows and headers_ok else None
     return SheetTable(name, table, letters, pending)
+
+
+def _rows(grid: _Grid, columns_at: list, rel: str, log: ProblemLog
+          ) -> list[tuple[int, dict[str, str] | None]]:
+    """(row number, {header: CSV text}) of each data row; ``None`` for a row with a refused
+    cell (the reason logged, located).
+
+    Column by column first: the cells a CSV would hold as they are — empty, a number or a text
+    not starting with ``=`` in a text or number column, a date in a date column — become their
+    text in one pass per column.  A row holding any other cell (a date where a number is
+    expected, a flagged cell, a value under no header or under a header specgen does not know)
+    is then read again cell by cell by :func:`_row_by_cells`, which has the messages, in row
+    order.  Either way a row comes out the same; the column pass saves the Python work per
+    cell that made a workbook cost twice its CSV."""
+    body = grid.rows[1:]
+    width = len(columns_at)
+    if not body or not width:
+        return []
+    texts = [_column_text(cells, header, column) for (_, header, column), cells in
+             zip(columns_at, zip(*(row if len(row) == width else
+                                   list(row[:width]) + [None] * (width - len(row))
+                                   for row in body)))]
+    for (r, c) in grid.flagged:
+        if 2 <= r <= len(body) + 1 and c <= width:
+            texts[c - 1][r - 2] = None
+    again = sorted({k for column in texts if None in column
+                    for k, text in enumerate(column) if text is None})
+    named = [(h, t) for (_, h, _), t in zip(columns_at, texts) if h]
+    if named:
+        headers = [h for h, _ in named]
+        out = [(k, dict(zip(headers, cells)))
+               for k, cells in enumerate(zip(*(t for _, t in named)), start=2)]
+    else:
+        out = [(k, {}) for k in range(2, len(body) + 2)]
+    for k in again:
+        out[k] = (k + 2, _row_by_cells(k + 2, body[k], columns_at, grid, rel, log))
+    return out
+
+
+def _column_text(cells, header: str, column) -> list[str | None]:
+    """The cells of one column as CSV text; ``None`` where a cell needs a closer look."""
+    if not header or column is None:   # empty cells only, or the row is read cell by cell
+        return ["" if v is None or v == "" else None for v in cells]
+    if column.kind == DATE:
+        return ["" if v is None or v == "" else v.isoformat() if type(v) is dt.date
+                else None for v in cells]
+    # the common cells inline (as _text reads them): a call per cell is what this pass saves
+    return ["" if v is None or v == "" else _number(v) if type(v) is float
+            else v.strip() if type(v) is str and v[0] != "=" else None for v in cells]
+
+
+def _row_by_cells(r: int, row: list, columns_at: list, grid: _Grid, rel: str,
+                  log: ProblemLog) -> dict[str, str] | None:
+    """One row read cell by cell, each refused cell logged; ``None`` if any was refused."""
+    from openpyxl.utils import get_column_letter as letter
+    values, bad = {}, False
+    for (i, header, column), v in zip(columns_at, row):
+        flag = grid.flagged.get((r, i))
+        if flag is None and (v is None or v == ""):
+            if header:
+                values[header] = ""
+            continue
+        text, problem = _text(v, flag, column)
+        if problem:
+            log.add(rel, problem[0], sheet=grid.title, cell=f"{letter(i)}{r}",
+                    field=header or None, fix=problem[1])
+            bad = True
+        elif text and not header:
+            log.add(rel, f"holds '{text[:40]}' in a column without a header.", sheet=grid.title,
+                    cell=f"{letter(i)}{r}", fix="give the column its header, or clear it.")
+            bad = True
+        if header:
+            values[header] = text
+    return None if bad else values
 
 
 def _merged_rows(grid: _Grid, rel: str, log: ProblemLog) -> set[int]:

@@ -1,0 +1,122 @@
+"""The strength fits kept between runs of ``check`` (``specgen/fit_cache.py``): a re-check
+reads what did not change and gives the results a check without the cache gives, byte for
+byte; any change to an input or to the code misses; a damaged entry is made again.
+
+The reference every comparison uses is computed in the test itself: the same project checked
+with no fit cache (``results.json`` content, ``Results.to_json``)."""
+from __future__ import annotations
+
+import json
+from collections import Counter
+
+import pytest
+from click.testing import CliRunner
+
+from specgen import build, cache, fit_cache
+from specgen.cli import cli
+from specgen.science import strength_inference as si
+from specgen.science import strength_models as sm
+from specgen.synthetic import write_project
+
+MIXES = 3   # three series with results (and the starter's analyses, sands, colours ...)
+
+
+@pytest.fixture
+def made(monkeypatch) -> Counter:
+    """Fits made, by kind: the model comparison per series, the inference per record."""
+    counter: Counter = Counter()
+    fit_all, fit_many = sm.fit_all, si.fit_many
+
+    def counting_all(*a, **kw):
+        counter["models"] += 1
+        return fit_all(*a, **kw)
+
+    def counting_many(records):
+        counter["inference"] += len(records)
+        return fit_many(records)
+    monkeypatch.setattr(sm, "fit_all", counting_all)
+    monkeypatch.setattr(si, "fit_many", counting_many)
+    return counter
+
+
+def _json(project, **kw) -> str:
+    return build.check(project, **kw)[1].to_json()
+
+
+def _entries(folder) -> list:
+    return sorted(p for p in folder.rglob("*") if p.is_file())
+
+
+def test_a_recheck_reads_every_fit_and_gives_the_same_results(tmp_path, made):
+    project = write_project(tmp_path / "p", MIXES)
+    plain = _json(project)
+    assert made == {"models": MIXES, "inference": MIXES}
+    made.clear()
+    first = _json(project, fit_cache=tmp_path / "fits")
+    assert made == {"models": MIXES, "inference": MIXES}    # an empty cache: every fit made
+    assert len(_entries(tmp_path / "fits")) == 2 * MIXES     # and kept, one entry per fit
+    made.clear()
+    again = _json(project, fit_cache=tmp_path / "fits")
+    assert made == {}                                        # nothing fitted again
+    assert first == plain and again == plain
+
+
+def test_a_changed_value_refits_its_series_only(tmp_path, made):
+    project = write_project(tmp_path / "p", MIXES)
+    _json(project, fit_cache=tmp_path / "fits")
+    csv = project / "lab" / "strength.csv"
+    rows = csv.read_text(encoding="utf-8").splitlines()
+    # the first result of mix M2 (the header, then M1's 8 ages x 3 prisms): 5 % stronger
+    at = next(i for i, r in enumerate(rows) if r.startswith("M2-"))
+    cells = rows[at].split(",")
+    cells[4] = f"{float(cells[4]) * 1.05:.3f}"
+    rows[at] = ",".join(cells)
+    csv.write_text("\n".join(rows) + "\n", encoding="utf-8")
+    made.clear()
+    cached = _json(project, fit_cache=tmp_path / "fits")
+    assert made == {"models": 1, "inference": 1}
+    made.clear()
+    assert cached == _json(project)        # the same as every series fitted afresh
+    assert made == {"models": MIXES, "inference": MIXES}
+
+
+def test_a_code_change_misses_and_drops_the_old_entries(tmp_path, made, monkeypatch):
+    project = write_project(tmp_path / "p", MIXES)
+    plain = _json(project, fit_cache=tmp_path / "fits")
+    old = {p.relative_to(tmp_path / "fits").parts[0] for p in _entries(tmp_path / "fits")}
+    # another version of the package's sources (cache.code_version hashes every one of them)
+    monkeypatch.setattr(cache, "code_version", lambda: "another version of the sources")
+    fit_cache.version.cache_clear()
+    try:
+        made.clear()
+        assert _json(project, fit_cache=tmp_path / "fits") == plain
+        assert made == {"models": MIXES, "inference": MIXES}
+        now = {p.relative_to(tmp_path / "fits").parts[0] for p in _entries(tmp_path / "fits")}
+        assert len(now) == 1 and now.isdisjoint(old)
+    finally:
+        fit_cache.version.cache_clear()
+
+
+def test_a_damaged_entry_is_made_again(tmp_path, made):
+    project = write_project(tmp_path / "p", MIXES)
+    plain = _json(project, fit_cache=tmp_path / "fits")
+    entry = _entries(tmp_path / "fits")[0]
+    raw = bytearray(entry.read_bytes())
+    raw[-20] ^= 0xFF                       # one byte of the pickled fit changed
+    entry.write_bytes(bytes(raw))
+    made.clear()
+    assert _json(project, fit_cache=tmp_path / "fits") == plain
+    assert sum(made.values()) == 1          # that one fit, nothing else
+
+
+def test_the_command_keeps_fits_unless_told_not_to(tmp_path, monkeypatch):
+    project = write_project(tmp_path / "p", MIXES)
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "xdg"))
+    runner = CliRunner()
+    off = runner.invoke(cli, ["check", "--format", "json", "--no-fit-cache", str(project)])
+    assert off.exit_code in (0, 1), off.output
+    assert not (tmp_path / "xdg").exists()
+    on = runner.invoke(cli, ["check", "--format", "json", str(project)])
+    assert on.exit_code == off.exit_code
+    assert json.loads(on.output) == json.loads(off.output)
+    assert len(_entries(tmp_path / "xdg" / "specgen" / "fits")) == 2 * MIXES
