@@ -2,10 +2,11 @@
 
 Measures (a) ``check`` on the demo, (b) a full cold build of the demo's current
 revision (no artefact cache, in-process memos cleared), (c) a re-issue after one new
-lab result into the same output folder (its artefact cache warm), (d) the floor: the
-same figures drawn with matplotlib and the same math drawn with ziamath (our render
-pass with every cache off), then plain ``mkdocs build`` of the same Markdown (written
-to disk) and a plain WeasyPrint render of the same print HTML, in sequence, and
+lab result into the same output folder (its artefact cache warm), (d) the floor: for
+each revision the cold build publishes (the archived ones too), the same figures drawn with
+matplotlib and the same math drawn with ziamath (our render pass with every cache off), then
+plain ``mkdocs build`` of the same Markdown (written to disk) and a plain WeasyPrint render of
+the same print HTML with the build's PDF options, in sequence, and
 (e) ``check`` on synthetic projects of 10, 50 and 200 mixes (the growth exponent is the
 log–log slope of time against results) — and the 200-mix ``check`` keeping its strength fits
 between runs (``fit_cache.py``), with an empty fit cache (cold: the figure the target is
@@ -67,40 +68,56 @@ def _cold() -> None:
 
 
 def _floor(project: Path, work: Path):
-    """Bare toolchain on the same pages: mkdocs build from disk + WeasyPrint of the print HTML."""
-    from specgen.build import check
+    """Bare toolchain doing the work a cold build publishes, in sequence: for each revision
+    (the archived ones from ``issued/``, oldest first, then the current one) our render pass
+    with every cache off (matplotlib figures, ziamath math), plain ``mkdocs build`` of its
+    Markdown written to disk, and one plain WeasyPrint render of its print HTML with the
+    build's PDF options (PDF/A-3a, metadata).  Until 2026-12-05 the floor did the current
+    revision alone, while a cold build of the demo publishes three."""
+    from specgen.build import _load_archive, check, load
+    from specgen.checks.builtin import evaluate, previous_of
     from specgen.publish import _print_context
-    from specgen.publish.pdf import to_html
+    from specgen.publish.pdf import PDF_OPTIONS, to_html
     from specgen.publish.pdf_parts import _fetcher
     from specgen.publish.site import BASE_CONFIG, _site_assets
     from specgen.report.render import render
-    proj, results = check(project)
-    pages = render(proj, results)
-    docs = work / "floor-docs"
-    pages.write_to(docs)
-    for path, data in _site_assets().items():
-        (docs / path).parent.mkdir(parents=True, exist_ok=True)
-        (docs / path).write_bytes(data)
-    cfg = work / "mkdocs.yml"
-    nav = "\n".join(f"  - '{n.title}': {n.path}" for n in pages.nav)
-    # the theme's custom_dir is relative to the config file: point it at the repository's
+    current, results = check(project)
+    archived = _load_archive(project, load(project))
+    revisions = [(old, evaluate(old, previous=previous_of(before)))
+                 for old, before in zip(archived, [None] + archived)]
+    revisions.append((current, results))
     base = re.sub(r"custom_dir: (\S+)",
                   lambda m: f"custom_dir: {BASE_CONFIG.parent / m.group(1)}", BASE_CONFIG.read_text())
-    cfg.write_text(base.replace("site_name: specgen dossier", "site_name: floor")
-                   + f"docs_dir: {docs}\nsite_dir: {work / 'floor-site'}\nnav:\n{nav}\n")
-    html = to_html(pages, _print_context(proj))
+    jobs = []
+    for proj, res in revisions:
+        code = proj.revision.code
+        pages = render(proj, res)
+        docs = work / f"floor-docs-{code}"
+        pages.write_to(docs)
+        for path, data in _site_assets().items():
+            (docs / path).parent.mkdir(parents=True, exist_ok=True)
+            (docs / path).write_bytes(data)
+        cfg = work / f"mkdocs-{code}.yml"
+        nav = "\n".join(f"  - '{n.title}': {n.path}" for n in pages.nav)
+        # the theme's custom_dir is relative to the config file: point it at the repository's
+        cfg.write_text(base.replace("site_name: specgen dossier", "site_name: floor")
+                       + f"docs_dir: {docs}\nsite_dir: {work / f'floor-site-{code}'}\nnav:\n{nav}\n")
+        jobs.append((proj, res, cfg, to_html(pages, _print_context(proj)), pages, code))
 
     def run():
         import os
-        _cold()
-        render(proj, results)   # figures (matplotlib) and math (ziamath), no cache
-        subprocess.run([sys.executable, "-m", "mkdocs", "build", "-q", "-f", str(cfg)], check=True,
-                       cwd=BASE_CONFIG.parent, env=dict(os.environ, NO_MKDOCS_2_WARNING="1"))
         from specgen.publish.weasyfix import weasyprint
+        _cold()
         css = (BASE_CONFIG.parent / "content/print/print.css").read_text()
-        weasyprint.HTML(string=html, base_url="file:///specgen-pageset/",
-                        url_fetcher=_fetcher(pages)).write_pdf(
-            str(work / "floor.pdf"), stylesheets=[weasyprint.CSS(string=css)])
+        for proj, res, cfg, html, pages, code in jobs:
+            render(proj, res)   # figures (matplotlib) and math (ziamath), no cache
+            subprocess.run([sys.executable, "-m", "mkdocs", "build", "-q", "-f", str(cfg)],
+                           check=True, cwd=BASE_CONFIG.parent,
+                           env=dict(os.environ, NO_MKDOCS_2_WARNING="1"))
+            weasyprint.HTML(string=html, base_url="file:///specgen-pageset/",
+                            url_fetcher=_fetcher(pages)).write_pdf(
+                str(work / f"floor-{code}.pdf"), stylesheets=[weasyprint.CSS(string=css)],
+                **PDF_OPTIONS)
     return run
 
 
