@@ -245,16 +245,13 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
               workers: int | None = None, on_part=None, appendix=None) -> tuple[int, int]:
     """Print the page set as a tagged PDF/A-3a at ``target`` with ``attachments`` embedded;
     returns (chapter parts taken unchanged from the cache, chapter parts).
-
-    The chapters are printed in parts on every core, the costliest first (the CPU time each
-    part took last time, kept in the artefact cache; its HTML size when new), the front
-    matter once their page numbers are known, the running heads last;
-    :mod:`specgen.publish.pdf_assembly` puts them together.  Whatever has not changed — a
-    part, the front matter, the running heads, the assembled whole — comes from the
-    artefact cache, byte for byte as it was drawn.  ``stamp`` (a datetime, the revision
-    date) dates the attachments, so identical inputs give a byte-identical PDF.
-    ``on_part(done, total)`` is called as the chapter parts come back (for a progress
-    display), counted over both volumes: the report's parts, then its appendices'.
+    Chapters print in parts on every core, costliest first (each part's CPU time last time,
+    kept in the artefact cache; its HTML size when new), the front matter once their page
+    numbers are known, the running heads last; :mod:`specgen.publish.pdf_assembly` puts them
+    together.  What has not changed (a part, the front matter, the running heads, the whole)
+    comes from the artefact cache byte for byte.  ``stamp`` (the revision date) dates the
+    attachments: identical inputs, byte-identical PDF.  ``on_part(done, total)`` hears the
+    parts come back, counted over both volumes (the report's parts, then its appendices').
     """
     from specgen.publish.pdf_parts import Printer
     if getattr(pageset, "drawing", None):   # placeholders of the live preview's first pages
