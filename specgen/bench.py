@@ -16,8 +16,9 @@ inside ``specgen.science.strength_inference``) and the ratio of ``check`` to ``c
 it (the target: within 2×), and the CPU seconds in the least-squares model comparison
 (``strength_models.fit_all``), the other fit made once per series, and (f) once, the full
 build (site and PDF) of the 200-mix project in a fresh process, with its time, its CPU time
-(user + system of every process of the build) and the peak resident memory of its largest
-process.  Medians of ``runs`` repetitions.
+(user + system of every process of the build), the peak memory of its whole process tree,
+each stage's CPU seconds and a projection of its time on two idle cores
+(``specgen/bench_large.py``).  Medians of ``runs`` repetitions.
 
 Beside the wall-clock times it prints the CPU time (user + system, this process and its
 children: the PDF workers and the site process) of (b) and (c), so the re-issue ratio can be
@@ -48,6 +49,7 @@ from pathlib import Path
 
 from specgen.bench_cores import cpu_seconds, idle_during, measured, targets
 from specgen.bench_floor import _cold, _floor
+from specgen.bench_large import large_build, print_large
 from specgen.bench_serve import bench_serve, project_copy as _project_copy
 from specgen.cache import SHARED_ENV
 
@@ -59,25 +61,6 @@ def _median(fn, runs: int) -> float:
         fn()
         times.append(time.perf_counter() - t)
     return statistics.median(times)
-
-
-_PEAK = """
-import resource, subprocess, sys, time
-t = time.perf_counter()
-subprocess.run([sys.executable, "-m", "specgen", "build", sys.argv[1], "--out", sys.argv[2],
-                "--quiet"], check=True, stdout=subprocess.DEVNULL)
-kids = resource.getrusage(resource.RUSAGE_CHILDREN)
-print(time.perf_counter() - t, kids.ru_maxrss, kids.ru_utime + kids.ru_stime)
-"""
-
-
-def _peak_build(project: Path, out: Path) -> tuple[float, float, float]:
-    """(seconds, peak RSS in MiB of the largest process, CPU seconds of the build and every
-    process it started) of one build in a fresh process."""
-    done = subprocess.run([sys.executable, "-c", _PEAK, str(project), str(out)], check=True,
-                          capture_output=True, text=True)
-    seconds, kib, cpu = done.stdout.split()
-    return float(seconds), int(kib) / 1024, float(cpu)
 
 
 def _cpu_median(fn, runs: int) -> float:
@@ -287,7 +270,7 @@ def main(runs: int = 3, large: bool = True, only: str = "all") -> None:
         share = _inference_share(syn)
         fit_cold, fit_warm = _fit_cache_pair(syn, work / "fit-cache", runs)
         slope = (math.log(times[-1]) - math.log(times[0])) / (math.log(sizes[-1]) - math.log(sizes[0]))
-        f = _peak_build(syn, work / "syn-out") if large else None
+        f = large_build(syn, work / "syn-out") if large else None
         (work / "g").mkdir()
         (work / "h").mkdir()
         bench_xlsx(demo, work / "h", runs)
@@ -320,12 +303,12 @@ def _print_figures(fig: dict) -> None:
     print(f"(e) check, 200 mixes, fits kept between runs: cold (empty fit cache) {fit_cold:7.3f} s,"
           f" warm (every fit read back) {fit_warm:7.3f} s; the target is judged on the cold figure")
     if f:
-        print(f"(f) build, 200 mixes (site + PDF)   {f[0]:7.1f} s   CPU {f[2]:7.1f} s, peak memory "
-              f"{f[1]:6.0f} MiB")
+        print_large(f)
     print(f"ratio (b)/(d) = {b / d:.2f}   ratio (c)/(b) = {c_wall / b:.2f} "
           f"(CPU {c_cpu / b_cpu:.2f})   growth exponent of (e) = {slope:.2f}")
     # the cold figure decides: the larger of no fit cache and an empty one (which also writes)
-    targets(b / d, (c_wall / b, c_cpu / b_cpu), max(times[-1], fit_cold), f)
+    targets(b / d, (c_wall / b, c_cpu / b_cpu), max(times[-1], fit_cold),
+            (f.wall, f.pss_mib, f.projected) if f else None)
 
 
 if __name__ == "__main__":
