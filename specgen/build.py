@@ -46,11 +46,9 @@ def load(project_dir) -> Project:
     return load_project(project_dir, names=reference_names(), derive=derive)
 
 
-def check(project_dir: Path | str, *, fit_cache: Path | str | bool | None = None
-          ) -> tuple[Project, Results]:
-    """Load the project (and its archived issued revisions, validated as a build would)
-    and run every check and the audit (no output written).  ``fit_cache``: keep the strength
-    fits between runs in that folder (True: the user's cache folder; ``fit_cache.py``)."""
+def check(project_dir: Path | str, *, fit_cache=None) -> tuple[Project, Results]:
+    """Load the project (and its archived issued revisions, validated as a build would) and run
+    every check and the audit, writing nothing; ``fit_cache``: see ``fit_cache.store_for``."""
     from specgen.fit_cache import store_for
     with fits.kept(persist=store_for(fit_cache)):  # each fit once per call (checks/fits.py)
         project = load(project_dir)
@@ -60,11 +58,9 @@ def check(project_dir: Path | str, *, fit_cache: Path | str | bool | None = None
 
 def import_comments(project_dir: Path | str, review_file: Path | str,
                     out_dir: Path | str) -> list[str]:
-    """Take a reviewer's exported comment file into the project's ``comments.yaml``.
-
-    The comments are checked against the revision they were made on, as published in
-    ``out_dir``; those already taken in are skipped.  Returns the ids given to new comments.
-    """
+    """Take a reviewer's exported comment file into the project's ``comments.yaml``, checked
+    against the revision they were made on, as published in ``out_dir``; those already taken
+    in are skipped.  Returns the ids given to new comments."""
     from specgen.project.review_file import take_in
     project = load(project_dir)
     return take_in(project, Path(review_file), Path(out_dir))
@@ -82,7 +78,6 @@ def lab_workbook(project_dir: Path | str, path: Path | str | None = None, *,
                  overwrite: bool = False) -> tuple[Path, dict[str, int]]:
     """Write the laboratory workbook of the project (planned tests without results yet);
     returns where and the rows per sheet.  Default file: ``<code>-<revision>-lab.xlsx``."""
-    from specgen.errors import UsageError
     from specgen.labbook import write_workbook
     project = load(project_dir)
     code = project.dossier.project.code

@@ -235,9 +235,11 @@ class Previewer(Afterwards):
 
 
 def watch(project: Path, on_change, stop: threading.Event,
-          started: threading.Event | None = None) -> None:
+          started: threading.Event | None = None, first=None) -> None:
     """Call ``on_change(paths)`` after file events in ``project`` settle (watchdog);
-    ``started`` is set once the folder is being watched."""
+    ``started`` is set once the folder is being watched.  ``first`` (the first build) is
+    called once the folder is watched, so an edit made while it runs is not lost: it is
+    handled as soon as ``first`` returns."""
     from watchdog.events import FileSystemEventHandler
     from watchdog.observers import Observer
     pending: set[str] = set()
@@ -265,6 +267,8 @@ def watch(project: Path, on_change, stop: threading.Event,
     if started is not None:
         started.set()
     try:
+        if first is not None:
+            first()
         while not stop.is_set():
             if not event.wait(0.2):
                 continue
@@ -296,12 +300,14 @@ def serve(directory: Path, port: int, *, say=print, progress=None, ready=None,
     threading.Thread(target=server.serve_forever, daemon=True).start()
     say(f"Serving http://127.0.0.1:{port}/ (pages answer at once; Ctrl+C to stop)")
     previewer = Previewer(directory, out, state, say, progress)
-    previewer.rebuild()
-    if ready is not None:
-        ready(state)
+
+    def first() -> None:   # run once the folder is watched: an edit meanwhile is not lost
+        previewer.rebuild()
+        if ready is not None:
+            ready(state)
     stop = stop or threading.Event()
     try:
-        watch(directory, lambda changed: previewer.rebuild(changed), stop)
+        watch(directory, lambda changed: previewer.rebuild(changed), stop, first=first)
     except KeyboardInterrupt:
         pass
     finally:
