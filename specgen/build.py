@@ -46,11 +46,9 @@ def load(project_dir) -> Project:
     return load_project(project_dir, names=reference_names(), derive=derive)
 
 
-def check(project_dir: Path | str, *, fit_cache: Path | str | bool | None = None
-          ) -> tuple[Project, Results]:
-    """Load the project (and its archived issued revisions, validated as a build would)
-    and run every check and the audit (no output written).  ``fit_cache``: keep the strength
-    fits between runs in that folder (True: the user's cache folder; ``fit_cache.py``)."""
+def check(project_dir: Path | str, *, fit_cache=None) -> tuple[Project, Results]:
+    """Load the project (and its archived issued revisions, validated as a build would) and run
+    every check and the audit, writing nothing; ``fit_cache``: see ``fit_cache.store_for``."""
     from specgen.fit_cache import store_for
     with fits.kept(persist=store_for(fit_cache)):  # each fit once per call (checks/fits.py)
         project = load(project_dir)
@@ -60,11 +58,9 @@ def check(project_dir: Path | str, *, fit_cache: Path | str | bool | None = None
 
 def import_comments(project_dir: Path | str, review_file: Path | str,
                     out_dir: Path | str) -> list[str]:
-    """Take a reviewer's exported comment file into the project's ``comments.yaml``.
-
-    The comments are checked against the revision they were made on, as published in
-    ``out_dir``; those already taken in are skipped.  Returns the ids given to new comments.
-    """
+    """Take a reviewer's exported comment file into the project's ``comments.yaml``, checked
+    against the revision they were made on, as published in ``out_dir``; those already taken
+    in are skipped.  Returns the ids given to new comments."""
     from specgen.project.review_file import take_in
     project = load(project_dir)
     return take_in(project, Path(review_file), Path(out_dir))
@@ -82,7 +78,6 @@ def lab_workbook(project_dir: Path | str, path: Path | str | None = None, *,
                  overwrite: bool = False) -> tuple[Path, dict[str, int]]:
     """Write the laboratory workbook of the project (planned tests without results yet);
     returns where and the rows per sheet.  Default file: ``<code>-<revision>-lab.xlsx``."""
-    from specgen.errors import UsageError
     from specgen.labbook import write_workbook
     project = load(project_dir)
     code = project.dossier.project.code
@@ -185,6 +180,7 @@ class Prepared:
     data_key: tuple   # hashes of the inputs the checks read (all but narrative and templates)
     history: object = None     # the earlier revisions the pages were rendered against
     cache_dir: Path | None = None   # the artefact cache the figures and math come from
+    first: set[str] | None = None   # the pages laid out first (``prepare``'s ``first``)
 
 
 def _data_key(project: Project) -> tuple:
@@ -194,11 +190,13 @@ def _data_key(project: Project) -> tuple:
 @fits.kept()  # each strength fit once per call (checks/fits.py)
 def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | None = None,
             cache_dir: Path | str | None = None, progress: Callable[..., None] = _quiet,
-            first: set[str] | None = None) -> Prepared:
+            first: set[str] | Callable[[str], set[str]] | None = None) -> Prepared:
     """Load, check and render; the checks are reused from ``reuse`` when only narrative or
     templates changed, and figures and math come from the artefact cache.  With ``first``
     (page paths), only the pages up to them are laid out (``render``'s ``first``; the rest
-    by :func:`complete`)."""
+    by :func:`complete`); given as a function of the revision's code, it is asked when the
+    render starts, so a page asked for while the project loads and is checked is among them
+    (the set used is ``Prepared.first``)."""
     from specgen.publish.history import history_for
     progress("load: reading and validating the project folder")
     project = load(project_dir)
@@ -211,9 +209,11 @@ def prepare(project_dir: Path | str, out_dir: Path | str, *, reuse: Prepared | N
         results = evaluate(project, previous=_previous(archived[-1] if archived else None))
     progress("render: pages, figures and calculation sheets")
     from specgen import cache
+    if callable(first):
+        first = first(project.revision.code)
     prepared = Prepared(project, results, None, key,
                         history_for(Path(out_dir), project, results),
-                        Path(cache_dir or Path(out_dir) / cache.CACHE_DIR))
+                        Path(cache_dir or Path(out_dir) / cache.CACHE_DIR), first)
     prepared.pages = _preview_pages(prepared, first)
     _fix_dates(project.revision.date)
     return prepared

@@ -125,10 +125,12 @@ def _address(page: str) -> str:
     return page.rsplit(".", 1)[0] + ".html"
 
 
-def _first_pages(wanted: str) -> set[str]:
-    """The pages laid out first: the summary, and the page a reader asked for already
-    (``strength.html`` → ``strength.md``; an address of no page lays out the whole site)."""
-    return {"index.md"} | ({wanted.removesuffix(".html") + ".md"} if wanted.endswith(".html")
+def _first_pages(wanted: str, revision: str) -> set[str]:
+    """The pages laid out first: the summary, and the page a reader asked for already, by its
+    bare address or in the folder of the revision being built (``strength.html`` and
+    ``R3/strength.html`` → ``strength.md``; an address of no page lays out the whole site)."""
+    page = wanted.removeprefix(revision + "/")
+    return {"index.md"} | ({page.removesuffix(".html") + ".md"} if page.endswith(".html")
                            else set())
 
 
@@ -172,10 +174,13 @@ class Previewer(Afterwards):
             frozen = self._frozen_edits(changed or (), ARCHIVE_DIR)
             if frozen:   # the inputs of an issued revision: never previewed as edited
                 raise UsageError(_frozen_text(frozen, ARCHIVE_DIR))
-            # the first site: the summary (and a page already asked for) first, the rest after
-            first = None if self.state.revision is not None else _first_pages(self.state.wanted)
+            # the first site: the summary (and a page asked for until the render starts)
+            # first, the rest after
+            first = None if self.state.revision is not None else (
+                lambda revision: _first_pages(self.state.wanted, revision))
             prepared = prepare(self.project, self.out, reuse=self.prepared, cache_dir=self.cache,
                                progress=self.progress, first=first)
+            first = prepared.first
             rev = prepared.project.revision
             if changed and rev.status == "issued":
                 raise UsageError(
@@ -230,9 +235,11 @@ class Previewer(Afterwards):
 
 
 def watch(project: Path, on_change, stop: threading.Event,
-          started: threading.Event | None = None) -> None:
+          started: threading.Event | None = None, first=None) -> None:
     """Call ``on_change(paths)`` after file events in ``project`` settle (watchdog);
-    ``started`` is set once the folder is being watched."""
+    ``started`` is set once the folder is being watched.  ``first`` (the first build) is
+    called once the folder is watched, so an edit made while it runs is not lost: it is
+    handled as soon as ``first`` returns."""
     from watchdog.events import FileSystemEventHandler
     from watchdog.observers import Observer
     pending: set[str] = set()
@@ -260,6 +267,8 @@ def watch(project: Path, on_change, stop: threading.Event,
     if started is not None:
         started.set()
     try:
+        if first is not None:
+            first()
         while not stop.is_set():
             if not event.wait(0.2):
                 continue
@@ -291,12 +300,14 @@ def serve(directory: Path, port: int, *, say=print, progress=None, ready=None,
     threading.Thread(target=server.serve_forever, daemon=True).start()
     say(f"Serving http://127.0.0.1:{port}/ (pages answer at once; Ctrl+C to stop)")
     previewer = Previewer(directory, out, state, say, progress)
-    previewer.rebuild()
-    if ready is not None:
-        ready(state)
+
+    def first() -> None:   # run once the folder is watched: an edit meanwhile is not lost
+        previewer.rebuild()
+        if ready is not None:
+            ready(state)
     stop = stop or threading.Event()
     try:
-        watch(directory, lambda changed: previewer.rebuild(changed), stop)
+        watch(directory, lambda changed: previewer.rebuild(changed), stop, first=first)
     except KeyboardInterrupt:
         pass
     finally:

@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import contextlib
 import fcntl
-import functools
 import os
 import shutil
 import subprocess
@@ -67,7 +66,9 @@ def pytest_collection_modifyitems(config, items):
     if not config.option.collectonly and any(
             "demo_build" in item.fixturenames and not item.get_closest_marker("skip")
             for item in items):
-        _start_demo_build(config)
+        _start_demo_build(config, text=any(
+            PDF_TEXT_FIXTURES & set(item.fixturenames) and not item.get_closest_marker("skip")
+            for item in items))
 
 
 def pytest_unconfigure(config):
@@ -122,18 +123,37 @@ def _cache_folder(config) -> Path:
     return folder
 
 
-def _start_demo_build(config) -> None:
+#: the fixtures that read the demo build's PDF text (taken apart once per run: pdf_text.py)
+PDF_TEXT_FIXTURES = {"demo_pdf_text", "demo_pdf_prose"}
+
+
+def _demo_revision() -> str:
+    """The demo's current revision (its dossier.yaml, read with PyYAML)."""
+    import yaml
+    return yaml.safe_load((DEMO / "dossier.yaml").read_text(encoding="utf-8"))["revision"]["code"]
+
+
+def _start_demo_build(config, text: bool = False) -> None:
     """Start the demo build for the whole run as a command-line build in the background
-    (whichever worker collects first); ``demo_build`` waits for it."""
+    (whichever worker collects first); ``demo_build`` waits for it.  With ``text`` (a test
+    of the run reads the PDFs' text), the same background job then takes the current
+    revision's PDFs apart once (``tests/pdf_text.py``), beside the tests that need no text."""
     shared = _run_folder(config)
     with _locked(shared / "demo-out.lock"):
         if (shared / "demo-out.started").exists():
             return
         (shared / "demo-out.started").touch()
+        target = ""
+        if text:
+            (shared / "demo-text.wanted").touch()
+            target = str(shared / "demo-text.json")
         log = open(shared / "demo-out.log", "w")
         config._specgen_demo_build = subprocess.Popen(
-            ["sh", "-c", '"$0" -m specgen build "$1" --out "$2" --quiet; echo $? > "$3"',
-             sys.executable, str(DEMO), str(shared / "demo-out"), str(shared / "demo-out.rc")],
+            ["sh", "-c", '"$0" -m specgen build "$1" --out "$2" --quiet; echo $? > "$3"; '
+             '[ -z "$4" ] || { [ "$(cat "$3")" = 0 ] && "$0" -m tests.pdf_text "$2" "$5" "$4"; '
+             'echo $? > "$4.rc"; }',
+             sys.executable, str(DEMO), str(shared / "demo-out"), str(shared / "demo-out.rc"),
+             target, _demo_revision()],
             stdout=log, stderr=subprocess.STDOUT,
             env={**os.environ, "PYTHONPATH": str(REPO),
                  "SPECGEN_SHARED_CACHE": str(_cache_folder(config))})
@@ -197,6 +217,21 @@ def shared_cache(request):
         os.environ["SPECGEN_SHARED_CACHE"] = before
 
 
+@pytest.fixture(scope="session", autouse=True)
+def user_cache_home(tmp_path_factory):
+    """The user's cache folder of the run's commands (``XDG_CACHE_HOME``: the fit cache of
+    ``specgen check``, fit_cache.py) in a folder of the run, so the suite never writes to
+    the real ``~/.cache``."""
+    folder = tmp_path_factory.mktemp("user-cache")
+    before = os.environ.get("XDG_CACHE_HOME")
+    os.environ["XDG_CACHE_HOME"] = str(folder)
+    yield folder
+    if before is None:
+        os.environ.pop("XDG_CACHE_HOME", None)
+    else:
+        os.environ["XDG_CACHE_HOME"] = before
+
+
 @pytest.fixture(scope="session")
 def demo_build(request, shared_cache) -> Path:
     """One build of demo_project shared by every end-to-end test of the run, on every worker
@@ -204,27 +239,65 @@ def demo_build(request, shared_cache) -> Path:
     collected (``_start_demo_build``); this waits for it."""
     shared = _run_folder(request.config)
     _start_demo_build(request.config)          # (when collection did not, e.g. under -k)
-    rc, deadline = shared / "demo-out.rc", time.monotonic() + 3600
-    while not rc.exists() or not rc.read_text().strip():
-        if time.monotonic() > deadline:
-            pytest.fail("the demo build did not end within an hour:\n"
-                        + (shared / "demo-out.log").read_text())
-        time.sleep(0.5)
-    if rc.read_text().strip() != "0":
+    rc = _wait_for(shared / "demo-out.rc", "the demo build", shared / "demo-out.log")
+    if rc != "0":
         pytest.fail("the demo build failed:\n" + (shared / "demo-out.log").read_text())
     return shared / "demo-out"
 
 
-@pytest.fixture(scope="session")
-def demo_pdf_text(demo_build):
-    """The text of every page of a PDF of the demo build (pypdf ``extract_text``), extracted
-    once per worker: ``demo_pdf_text("R3/WEP-2026-R3.pdf")`` → a tuple of page texts.  The
-    main volume is read by several tests; each took it apart afresh before."""
-    from pypdf import PdfReader
+def _wait_for(path: Path, what: str, log: Path) -> str:
+    """The content of ``path`` (a return code a background job writes when it ends)."""
+    deadline = time.monotonic() + 3600
+    while not path.exists() or not path.read_text().strip():
+        if time.monotonic() > deadline:
+            pytest.fail(f"{what} did not end within an hour:\n" + log.read_text())
+        time.sleep(0.5)
+    return path.read_text().strip()
 
-    @functools.cache
+
+@pytest.fixture(scope="session")
+def demo_pdf_pages(request, demo_build) -> dict[str, list[dict[str, str]]]:
+    """Every page of the current revision's PDFs of the demo build, taken apart once per
+    *run* (``tests/pdf_text.py``: plain text and prose in one pass): by the PDF's path
+    relative to the build, a list of ``{"text", "prose"}``.  The background demo build
+    does it when the collected tests read PDF text; else (a fixture asked for outside
+    them) the first worker that asks does it under the run's lock."""
+    import json
+
+    from tests.pdf_text import write
+    shared = _run_folder(request.config)
+    target = shared / "demo-text.json"
+    if (shared / "demo-text.wanted").exists():
+        rc = _wait_for(shared / "demo-text.json.rc", "taking the demo PDFs apart",
+                       shared / "demo-out.log")
+        if rc != "0":
+            pytest.fail("taking the demo PDFs apart failed:\n"
+                        + (shared / "demo-out.log").read_text())
+    else:
+        folder = once_per_run(request.config, "demo-text",
+                              lambda f: (f.mkdir(), write(demo_build, _demo_revision(),
+                                                          f / "text.json")))
+        target = folder / "text.json"
+    return json.loads(target.read_text(encoding="utf-8"))
+
+
+@pytest.fixture(scope="session")
+def demo_pdf_text(demo_pdf_pages):
+    """The text of every page of a PDF of the demo build's current revision (pypdf
+    ``extract_text``), taken apart once per run (``demo_pdf_pages``):
+    ``demo_pdf_text("R3/WEP-2026-R3.pdf")`` → a tuple of page texts."""
     def pages(relative: str) -> tuple[str, ...]:
-        return tuple(p.extract_text() for p in PdfReader(str(demo_build / relative)).pages)
+        return tuple(page["text"] for page in demo_pdf_pages[relative])
+    return pages
+
+
+@pytest.fixture(scope="session")
+def demo_pdf_prose(demo_pdf_pages):
+    """What a reader reads of every page of a PDF of the demo build's current revision:
+    the text with the monospaced runs (code) left out (``tests/pdf_text.py``), as a tuple
+    of page texts: ``demo_pdf_prose("R3/WEP-2026-R3.pdf")``."""
+    def pages(relative: str) -> tuple[str, ...]:
+        return tuple(page["prose"] for page in demo_pdf_pages[relative])
     return pages
 
 

@@ -95,12 +95,15 @@ def internal_names(text: str) -> list[tuple[str, str]]:
     return [(kind, m.group(0)) for kind, pat in PATTERNS.items() for m in pat.finditer(text)]
 
 
-def pdf_reader_pages(reader, listing_titles=("Input files",)) -> list[tuple[int, str]]:
+def pdf_reader_pages(reader, listing_titles=("Input files",),
+                     prose: list[str] | tuple[str, ...] | None = None) -> list[tuple[int, str]]:
     """(page number from 1, text) of every page of a PDF (pypdf ``reader``) a reader reads:
     all of them but the pages of the chapters whose outline title ends with one of
     ``listing_titles`` (the input listing, whose subject is the files as written); text
     set in a monospaced font (code: a file or key named as written) is left out, as the
-    site's scan leaves out ``<code>``."""
+    site's scan leaves out ``<code>``.  ``prose``: the pages' prose already taken apart
+    (``tests/pdf_text.py``, as the ``demo_pdf_prose`` fixture holds it), else read here."""
+    from tests.pdf_text import page_texts
     top = [(o.title, reader.get_destination_page_number(o)) for o in reader.outline
            if not isinstance(o, list)]
     skip = set()
@@ -108,14 +111,7 @@ def pdf_reader_pages(reader, listing_titles=("Input files",)) -> list[tuple[int,
         if title.endswith(tuple(listing_titles)):
             end = top[i + 1][1] if i + 1 < len(top) else len(reader.pages)
             skip.update(range(start, end))
-    return [(i + 1, _prose(page)) for i, page in enumerate(reader.pages) if i not in skip]
-
-
-def _prose(page) -> str:
-    chunks: list[str] = []
-
-    def visit(text, _cm, _tm, font, _size):
-        mono = font is not None and "Mono" in str(font.get("/BaseFont", ""))
-        chunks.append(" " if mono else text)
-    page.extract_text(visitor_text=visit)
-    return "".join(chunks)
+    if prose is not None:
+        assert len(prose) == len(reader.pages), (len(prose), len(reader.pages))
+    return [(i + 1, prose[i] if prose is not None else page_texts(page)["prose"])
+            for i, page in enumerate(reader.pages) if i not in skip]

@@ -319,7 +319,7 @@ BAD_DATA = [
                  "lab/sieves.csv, row 14: sieve: sample 'HM1-agg' (rows 14, 15, 16, 17, 18, 19): "
                  'cumulative passing is not monotone: 97 % passes 1.18 mm but only 95 % passes '
                  'the coarser 2.36 mm. Fix: cumulative passing must fall (or stay equal) from '
-                 'each sieve to the next finer one: check the transcription.',
+                 'each sieve to the next finer one: check the values as copied from the report.',
                  id='bad_sieve_analysis_non_monotone'),
     pytest.param('lab/sieves.csv', 'S2,1.18,83\n', '',
                  "lab/sieves.csv, row 8: sieve: sample 'S2' (rows 8, 9, 10, 11, 12): the sieve "
@@ -845,3 +845,103 @@ def test_compatibility_pieces_by_hand():
                     message="not assessed: two readings are needed, one given"),
         CheckResult(code="COMP-SALT", title="t", subject="Z9/MB", subject_kind="zone",
                     status="pass", value=1.0, unit="u", basis=(), message="m")]
+
+
+def test_colour_spread_shown_to_four_decimals():
+    """Panel greys L* 50 and 54 (mean 52) against three of L* 52: the means agree (ΔE00 0,
+    pass).  The panel's spread is its largest ΔE00 from the mean, 2/S_L(51) = 1.99347 (the
+    reading 50 against 52, L̄' = 51; 2/S_L(53) = 1.95109 for 54), shown 1.9935 on the sheet and
+    in the quantity (Sharma, Wu & Dalal 2005, eq. 17, by hand)."""
+    rows = [("MA", 50.0, 0.0, 0.0, "D65", "10"), ("MA", 54.0, 0.0, 0.0, "D65", "10")] + [
+        ("H9", 52.0, 0.0, 0.0, "D65", "10")] * 3
+    c = _colour_of(rows)[0]
+    spread = 2 / _s_l(51.0)
+    assert round(spread, 5) == 1.99347
+    assert (c.status, c.value) == ("pass", 0.0)
+    assert (c.steps[0].result, c.steps[1].result) == (1.9935, 0.0)
+    assert (c.quantities[0].value["panel_spread"],
+            c.quantities[0].value["historic_spread"]) == (1.9935, 0.0)
+
+
+def test_colour_not_assessed_results_carry_the_title_and_basis():
+    """Every not-assessed COMP-COLOUR keeps the check's title and cites Sharma, Wu & Dalal;
+    a reading the science refuses (L* above 100: CIELAB lightness runs 0–100, CIE 15) gives
+    that pair a not-assessed under the check's own code with the science's reason."""
+    title = "Colour of the trial panel against the historic mortar"
+    c = _colour_of([], historic=None)[0]
+    assert (c.title, c.subject_kind) == (title, "zone")
+    c = _colour_of([("MA", 60.0, 2.0, 10.0, "D65", "10"), ("H9", 60.0, 2.0, 10.0, "D50", "2")])[0]
+    assert c.title == title
+    assert [(b.kind, b.ref, b.clause) for b in c.basis] == [SHARMA_BASIS]
+    c = _colour_of([("MA", 60.0, 2.0, 10.0, "D65", "10"), ("MA", 120.0, 2.0, 10.0, "D65", "10"),
+                    ("H9", 60.0, 2.0, 10.0, "D65", "10")])[0]
+    assert (c.code, c.title, c.subject, c.status, c.message) == (
+        "COMP-COLOUR", title, "Z9/MA", "not_assessed",
+        "not assessed: reading 2: L* must lie between 0 and 100; found 120")
+
+
+def test_colour_difference_step_shows_the_ciede2000_formula():
+    """The third step of the sheet states eq. 22 of Sharma, Wu & Dalal (2005) with
+    k_L = k_C = k_H = 1 (the reference conditions)."""
+    rows = [("MA", 52.0, 0.0, 0.0, "D65", "10")] * 3 + [("H9", 50.0, 0.0, 0.0, "D65", "10")] * 3
+    step = _colour_of(rows)[0].steps[2]
+    # neutral greys 52 against 50: ΔL' = 50 − 52 = −2, no chroma so ΔC' = ΔH' = 0,
+    # S_C = S_H = 1 and R_T = 0 (eqs. 15-22); S_L at L̄' = 51 by eq. 17 (by hand)
+    assert step.inputs == (
+        Input("ΔL'", "lightness difference", -2.0, "", "computed"),
+        Input("ΔC'", "chroma difference", 0.0, "", "computed"),
+        Input("ΔH'", "hue difference", 0.0, "", "computed"),
+        Input("S_L, S_C, S_H", "weighting functions", f"{_s_l(51.0):.4f}, 1.0000, 1.0000", "",
+              "computed"),
+        Input("R_T", "rotation term", 0.0, "", "computed"))
+    assert step.formula == (
+        r"\Delta E_{00} = \sqrt{\left(\frac{\Delta L'}{S_L}\right)^2 + "
+        r"\left(\frac{\Delta C'}{S_C}\right)^2 + \left(\frac{\Delta H'}{S_H}\right)^2 + "
+        r"R_T\frac{\Delta C'}{S_C}\frac{\Delta H'}{S_H}}")
+
+
+def _ciede2000_terms(lab1, lab2):
+    """ΔL', ΔC', ΔH', S_L, S_C, S_H, R_T and ΔE00 of ``lab2`` against ``lab1`` by eqs. 1-22
+    of Sharma, Wu & Dalal (2005), k_L = k_C = k_H = 1, written out here for the test."""
+    (L1, a1, b1), (L2, a2, b2) = lab1, lab2
+    cbar = (math.hypot(a1, b1) + math.hypot(a2, b2)) / 2
+    g = 0.5 * (1 - math.sqrt(cbar ** 7 / (cbar ** 7 + 25 ** 7)))
+    c1, c2 = math.hypot((1 + g) * a1, b1), math.hypot((1 + g) * a2, b2)
+    h1 = math.degrees(math.atan2(b1, (1 + g) * a1)) % 360
+    h2 = math.degrees(math.atan2(b2, (1 + g) * a2)) % 360
+    dh = h2 - h1 if abs(h2 - h1) <= 180 else h2 - h1 - 360 if h2 - h1 > 180 else h2 - h1 + 360
+    dL, dC = L2 - L1, c2 - c1
+    dH = 2 * math.sqrt(c1 * c2) * math.sin(math.radians(dh / 2))
+    lbar, cbar_ = (L1 + L2) / 2, (c1 + c2) / 2
+    hbar = (h1 + h2) / 2 if abs(h1 - h2) <= 180 else (
+        (h1 + h2 + 360) / 2 if h1 + h2 < 360 else (h1 + h2 - 360) / 2)
+    t = (1 - 0.17 * math.cos(math.radians(hbar - 30)) + 0.24 * math.cos(math.radians(2 * hbar))
+         + 0.32 * math.cos(math.radians(3 * hbar + 6)) - 0.20 * math.cos(math.radians(4 * hbar - 63)))
+    dtheta = 30 * math.exp(-((hbar - 275) / 25) ** 2)
+    rc = 2 * math.sqrt(cbar_ ** 7 / (cbar_ ** 7 + 25 ** 7))
+    sl, sc, sh = _s_l(lbar), 1 + 0.045 * cbar_, 1 + 0.015 * cbar_ * t
+    rt = -math.sin(math.radians(2 * dtheta)) * rc
+    de = math.sqrt((dL / sl) ** 2 + (dC / sc) ** 2 + (dH / sh) ** 2 + rt * dC / sc * dH / sh)
+    return dL, dC, dH, sl, sc, sh, rt, de
+
+
+def test_colour_difference_step_of_a_chromatic_pair_whole():
+    """A blue-grey panel (52.34567, −12.3457, −20.4323) against a historic mortar
+    (50.1234, −10.9876, −22.1111), three readings each: every term of the difference step by
+    the equations written out above, the total cross-checked with colour-science; the terms
+    shown to 4 decimals (R_T to 5), the working line to 3 (R_T to 4).  The readings are
+    chosen so that no shown term has a zero in the next decimal (ΔL' −2.22227, ΔC' 0.562379,
+    ΔH' 2.237189, R_T −0.1567056), where a figure rounded one place further would show."""
+    panel, hist = (52.34567, -12.3457, -20.4323), (50.1234, -10.9876, -22.1111)
+    rows = [("MA", *panel, "D65", "10")] * 3 + [("H9", *hist, "D65", "10")] * 3
+    dL, dC, dH, sl, sc, sh, rt, de = _ciede2000_terms(panel, hist)
+    assert de == pytest.approx(float(colour.delta_E(panel, hist, method="CIE 2000")), abs=1e-9)
+    c = _colour_of(rows)[0]
+    step = c.steps[2]
+    assert [i.value for i in step.inputs] == [
+        round(dL, 4), round(dC, 4), round(dH, 4), f"{sl:.4f}, {sc:.4f}, {sh:.4f}", round(rt, 5)]
+    assert step.substituted == (
+        rf"\Delta E_{{00}} = \sqrt{{({dL:.3f}/{sl:.3f})^2 + ({dC:.3f}/{sc:.3f})^2"
+        rf" + ({dH:.3f}/{sh:.3f})^2 + ({rt:.4f})\,\ldots}} = {de:.3f}")
+    assert (step.result, c.value, c.quantities[0].value["value"]) == (
+        round(de, 4), round(de, 3), round(de, 4))

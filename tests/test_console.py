@@ -107,3 +107,29 @@ def test_pdf_reports_its_parts_as_they_are_printed(tmp_path):
               on_part=lambda done, total: seen.append((done, total)))
     n = len(parts(pieces(pages)))
     assert seen == [(i, n) for i in range(1, n + 1)] and n >= 1
+
+
+def test_pdf_parts_are_counted_over_both_volumes(tmp_path):
+    """With an appendix volume the count runs once over the report's parts and then the
+    appendices' (1/n … n/n), not once per volume (which read as the PDF done twice)."""
+    from types import SimpleNamespace
+
+    from specgen.publish.pdf import pieces, volumes, write_pdf
+    from specgen.report.pageset import PageSet
+    pages = PageSet()
+    pages.add_page("index.md", "Summary", "# Summary\n\nText.\n")
+    pages.add_page("two.md", "Two", "# Two\n\nMore text.\n")
+    pages.add_page("sheets.md", "Sheets", "# Sheets\n\nA sheet.\n", volume="appendix")
+    project = SimpleNamespace(title="Test pier", site="Nowhere", client="Nobody", code="T-1")
+    context = {"title": "Test pier — revision A", "author": "specgen tests", "subject": "s",
+               "keywords": "k", "date": "2026-01-01", "project": project,
+               "revision": SimpleNamespace(code="A"), "state": "draft", "purpose": "preliminary"}
+    appendix = (tmp_path / "t-appendices.pdf", "t-appendices.pdf", "t.pdf")
+    vols = volumes(pieces(pages), tmp_path / "t.pdf", appendix)
+    assert [v.key for v in vols] == ["main", "appendix"]
+    seen = []
+    write_pdf(pages, context, tmp_path / "t.pdf", attachments={}, workers=1,
+              appendix=appendix, on_part=lambda done, total: seen.append((done, total)))
+    n = len(seen)
+    assert n >= 2 and seen == [(i, n) for i in range(1, n + 1)]
+    assert (tmp_path / "t-appendices.pdf").exists()

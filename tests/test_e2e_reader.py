@@ -28,10 +28,11 @@ def _pages(demo_build) -> list[Path]:
     return [p for p in sorted((demo_build / REV).glob("*.html")) if p.name not in LISTINGS]
 
 
-def test_no_internal_name_reaches_a_reader(demo_build):
+def test_no_internal_name_reaches_a_reader(demo_build, demo_pdf_prose):
     """Every page of the site (what a screen reader says of it too: alternative texts,
     labels) and every page of both PDF volumes, but the input listing and code (a file or
-    key named as written, for the person editing the project, is set as code)."""
+    key named as written, for the person editing the project, is set as code).  The PDFs'
+    prose is taken apart once per run (``demo_pdf_prose``)."""
     from pypdf import PdfReader
 
     from tests.reader_text import pdf_reader_pages
@@ -41,8 +42,11 @@ def test_no_internal_name_reaches_a_reader(demo_build):
         names = internal_names(reader_text(page.read_text(encoding="utf-8")))
         if names:
             found[page.name] = sorted(set(names))[:8]
-    for pdf in sorted((demo_build / REV).glob("*.pdf")):
-        for n, text in pdf_reader_pages(PdfReader(str(pdf))):
+    pdfs = sorted((demo_build / REV).glob("*.pdf"))
+    assert len(pdfs) == 2                    # the main volume and the appendix volume
+    for pdf in pdfs:
+        prose = demo_pdf_prose(pdf.relative_to(demo_build).as_posix())
+        for n, text in pdf_reader_pages(PdfReader(str(pdf)), prose=prose):
             if names := internal_names(text):
                 found[f"{pdf.name} p. {n}"] = sorted(set(names))[:8]
     assert found == {}

@@ -436,3 +436,21 @@ def test_rake_out_on_the_least_depth_beyond_the_deepest_of_a_thin_joint():
         "attention", "the depth given, 15 mm, is deeper than 12 mm: it takes more original "
         "mortar than the repair needs; confirm it on the trial bay or change it")
     assert c.steps[1].substituted == r"15 \le 15 > 12"
+
+
+@pytest.mark.parametrize("rate_l_h, shown_rate, per_day, area", [
+    # 12.34567 L/h for the rule's 6 h: 74.07402 L a day, shown 74.074; the bay
+    # 74.07402 × 7 / 100 = 5.185 m², shown 5.19 (by hand)
+    (12.34567, 12.3457, 74.074, 5.19),
+    # 25.000045 L/h: 150.00027 L a day, shown 150.0; the rate is shown 25.0 only when it is
+    # converted by exactly 3.6e6 (1000 L per m³ × 3600 s per h); 150 × 7 / 100 = 10.5 m² is
+    # more than the zone: the bay is the zone's 7 m² (by hand)
+    (25.000045, 25.0, 150.0, 7.0)])
+def test_bay_figures_shown_to_their_decimals(rate_l_h, shown_rate, per_day, area):
+    """A 7 m² repointing zone taking 0.1 m³: 100 / 7 = 14.2857 L per m² of face, shown to
+    0.001 L (14.286); the zone's own placing rate shown to 0.0001 L/h and the day's mortar
+    to 0.001 L (by hand)."""
+    c = _bay(7.0, 0.1, rate_l_h=rate_l_h, works="repointing")
+    assert c.steps[0].inputs[0].value == shown_rate
+    assert c.quantities[0].value == {"area": area,
+                                     "per_m2_l": 14.286, "per_day_l": per_day, "zone_area": 7.0}

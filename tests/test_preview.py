@@ -99,6 +99,31 @@ def test_watcher_reports_changed_files_and_ignores_editor_droppings(tmp_path):
     assert not any(".swp" in p for s in seen for p in s)
 
 
+def test_an_edit_made_while_the_first_build_runs_is_not_lost(tmp_path):
+    """The folder is watched before the first build starts: a file saved while it runs is
+    rebuilt as soon as it ends (before, the watcher started after it and the edit was never
+    seen, the preview showing the old text with no notice)."""
+    project = tmp_path / "p"
+    (project / "lab").mkdir(parents=True)
+    seen, stop, order = [], threading.Event(), []
+
+    def first_build():
+        order.append("first build")
+        (project / "lab" / "strength.csv").write_text("specimen\n")   # saved meanwhile
+        time.sleep(1.0)        # the build goes on; the event is collected, not handled yet
+
+    def changed(paths):
+        order.append("rebuild")
+        seen.append(paths)
+        stop.set()
+    thread = threading.Thread(target=watch, args=(project, changed, stop),
+                              kwargs={"first": first_build}, daemon=True)
+    thread.start()
+    thread.join(timeout=60)
+    assert order == ["first build", "rebuild"]
+    assert "lab/strength.csv" in seen[0]
+
+
 @pytest.mark.e2e
 def test_previewer_site_first_then_pdf_and_partial_rebuilds(tmp_path, monkeypatch):
     from specgen.preview import Previewer
@@ -144,6 +169,7 @@ class _Prepared:
         self.project = type("P", (), {"revision": _Rev("R2", status)})()
         self.results = object()
         self.pages = PageSet()      # every figure drawn
+        self.first = None           # no page laid out before the others
 
 
 def _previewer(tmp_path, monkeypatch, status="draft"):

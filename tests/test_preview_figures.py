@@ -15,7 +15,7 @@ import time
 import pytest
 
 from specgen.preview import Previewer, State, handler_for
-from specgen.preview_bar import SCRIPT_PATH, STATUS_PATH
+from specgen.preview_bar import SCRIPT_PATH, STATUS_PATH, own_answer
 
 from tests.test_preview import get
 
@@ -263,6 +263,35 @@ def test_the_first_pages_read_exactly_as_the_built_pages(starter_build, tmp_path
         assert _article(served) == _article(whole), page
     assert "This page is being built for the preview" in (out / "R1" / "calculations.html"
                                                          ).read_text(encoding="utf-8")
+
+
+def test_a_page_asked_for_in_its_revision_folder_while_the_project_loads_comes_first(
+        starter_build, tmp_path, monkeypatch):
+    """A reader who asks for ``/R1/strength.html`` (the address a link or a bookmark of the
+    revision gives) while the first build is still loading and checking the project gets that
+    page in the first site, laid out in full, not a page saying it is being built until the
+    whole site follows."""
+    project, built = starter_build
+    monkeypatch.delenv("SPECGEN_SHARED_CACHE", raising=False)
+    monkeypatch.setenv("XDG_CACHE_HOME", str(tmp_path / "cache"))
+    out = tmp_path / "out"
+    out.mkdir()
+    state = State()      # nothing asked for when the build starts
+
+    def heard(step, *args, **kwargs):
+        if step.startswith("check"):     # the project loaded, its checks running
+            own_answer(state, "/R1/strength.html", "")
+    pv = Previewer(project, out, state, say=lambda text: None, progress=heard)
+    monkeypatch.setattr(pv, "afterwards", lambda *request: None)
+    assert state.wanted == "" and pv.rebuild()
+    assert state.wanted == "R1/strength.html"
+    pages = pv.prepared.pages
+    assert "strength.md" not in pages.unrendered and "calculations.md" in pages.unrendered
+    assert "strength.html" not in state.building and "calculations.html" in state.building
+    served = (out / "R1" / "strength.html").read_text(encoding="utf-8")
+    assert "being built" not in served
+    assert _article(served) == _article((built / "R1" / "strength.html").read_text(
+        encoding="utf-8"))
 
 
 def test_a_chapter_declared_as_one_page_that_makes_a_family_is_refused():

@@ -324,13 +324,26 @@ def _forked(mutants: Path, selection: list[str], names: list[str]):
         yield os.waitstatus_to_exitcode(os.waitpid(pid, 0)[1])
 
 
-def recheck(scope: str, workdir: Path, tests: list[str] = (), fork: bool = False) -> int:
-    """Run each surviving mutant of a finished run again against the tests as they are now
+def _function_of(mutant: str) -> str:
+    """The function a mutant name belongs to: ``pkg.mod.x_name__mutmut_3`` -> ``name``,
+    ``pkg.mod.xǁClassǁname__mutmut_3`` -> ``name``."""
+    last = mutant.rsplit(".", 1)[-1].rsplit("__mutmut_", 1)[0]
+    return last.split("ǁ")[-1] if "ǁ" in last else last[2:]
+
+
+def recheck(scope: str, workdir: Path, tests: list[str] = (), fork: bool = False,
+            unrun: bool = False, functions: list[str] = ()) -> int:
+    """Run each surviving mutant of a finished run (and each no test reached then) again
+    against the tests as they are now
     (the working tree's ``tests/`` copied into the scratch copy first): a mutant that a test
     added since the run kills is recorded as killed (exit code 1) in mutmut's meta file.
     ``tests`` narrows what runs (default: the run's selection); returns how many were killed.
     ``fork``: each mutant in a child forked from one warm process (:func:`_forked`) instead
     of a fresh interpreter per mutant (a science survivor: about 1 CPU s instead of 6).
+    ``unrun``: also the mutants a stopped run never reached (a survivor there means only that
+    the narrowed selection does not kill it: a lower bound of the killed share).
+    ``functions``: only the mutants of these functions (names as in the module, methods by
+    their own name), the others left as they are.
     """
     mutants = workdir / "mutants"
     for dst in (workdir / "tests", mutants / "tests"):
@@ -351,7 +364,10 @@ def recheck(scope: str, workdir: Path, tests: list[str] = (), fork: bool = False
         if clean is not None and clean.returncode != 0:
             raise SystemExit(f"{module}: the selected tests fail without a mutant "
                              f"(exit {clean.returncode}); nothing rechecked")
-        names = [n for n, code in sorted(data["exit_code_by_key"].items()) if code == 0]
+        # survivors, and mutants no selected test reached at the run (a test added since may)
+        again = (0, 33, None) if unrun else (0, 33)
+        names = [n for n, code in sorted(data["exit_code_by_key"].items()) if code in again
+                 and (not functions or _function_of(n) in functions)]
         codes = (_forked(mutants, selection, names) if fork else
                  (subprocess.run(
                      [sys.executable, "-m", "pytest", "-x", "-q", "-p", "no:cacheprovider",
@@ -361,9 +377,9 @@ def recheck(scope: str, workdir: Path, tests: list[str] = (), fork: bool = False
                   for name in names))
         for name, code in zip(names, codes):
             print(f"{name}: {'killed' if code == 1 else 'survived'}", flush=True)
-            if code == 1:
-                data["exit_code_by_key"][name] = 1
-                killed += 1
+            if code == 1 or data["exit_code_by_key"][name] is None:
+                data["exit_code_by_key"][name] = 1 if code == 1 else 0
+                killed += code == 1
                 meta.write_text(json.dumps(data), "utf-8")
     return killed
 
@@ -381,6 +397,10 @@ def main(argv=None) -> int:
     ap.add_argument("--jobs", type=int, default=1)
     ap.add_argument("--fork", action="store_true",
                     help="recheck: run each mutant in a child forked from one warm process")
+    ap.add_argument("--unrun", action="store_true",
+                    help="recheck: also run the mutants a stopped run did not reach")
+    ap.add_argument("--functions", nargs="*", default=[],
+                    help="recheck: only the mutants of these functions")
     ap.add_argument("--workdir", type=Path, default=None)
     a = ap.parse_args(argv)
     scope = a.target if a.scope in ("report", "survivors", "recheck") else a.scope
@@ -391,7 +411,8 @@ def main(argv=None) -> int:
         report(scope, workdir)
         return 0
     if a.scope == "recheck":
-        print(f"killed on recheck: {recheck(scope, workdir, a.tests, a.fork)}")
+        killed = recheck(scope, workdir, a.tests, a.fork, a.unrun, a.functions)
+        print(f"killed on recheck: {killed}")
         report(scope, workdir)
         return 0
     if a.scope == "survivors":

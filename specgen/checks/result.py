@@ -11,6 +11,8 @@ import unicodedata
 from dataclasses import asdict, dataclass, field
 from typing import Literal
 
+from specgen.jsontext import fields_of
+
 Status = Literal["pass", "fail", "needs_decision", "attention", "hold", "not_assessed", "info"]
 STATUSES: tuple[str, ...] = ("fail", "needs_decision", "hold", "attention", "not_assessed",
                              "pass", "info")
@@ -144,8 +146,10 @@ class CheckResult:
         """Unique key of the result in a dossier: ``CODE/subject``."""
         return f"{self.code}/{self.subject}"
 
-    def to_dict(self) -> dict:
-        d = asdict(self)
+    def to_dict(self, deep: bool = True) -> dict:
+        """The result as results.json records it; ``deep=False``: its own fields only (the
+        steps, quantities and basis left as they are, for ``jsontext.dumps`` to write)."""
+        d = asdict(self) if deep else fields_of(self)
         d["status_word"] = STATUS_WORDS[self.status]
         return d
 
@@ -181,5 +185,5 @@ class Finding:
     subject: str = ""
     blocking: bool = True
 
-    def to_dict(self) -> dict:
-        return asdict(self)
+    def to_dict(self, deep: bool = True) -> dict:
+        return asdict(self) if deep else fields_of(self)

@@ -5,7 +5,6 @@ after it; ``results.json`` is its serialised form (see ``to_json``).
 """
 from __future__ import annotations
 
-import json
 from dataclasses import dataclass, field
 
 from specgen import __version__, refdata
@@ -13,6 +12,7 @@ from specgen.checks.registry import as_list, audit_rules, checks, is_declared
 from specgen.checks.result import STATUSES, CheckResult, Finding, Quantity, not_assessed
 from specgen.checks.rules import Rule, RuleBook
 from specgen.errors import ScienceInputError
+from specgen.jsontext import dumps
 
 
 @dataclass
@@ -100,21 +100,23 @@ class Results:
                 return s
         return "pass"
 
-    def to_dict(self) -> dict:
+    def to_dict(self, deep: bool = True) -> dict:
+        """The results as results.json records them; ``deep=False``: the checks' and findings'
+        steps, quantities and basis left as they are (``to_json`` writes them as they are)."""
         return {
             "format": "specgen-results/1",
             "generator": f"specgen {__version__}",
             "project": self.project_code,
             "revision": self.revision,
             "counts": self.counts(),
-            "checks": [c.to_dict() for c in self.checks],
+            "checks": [c.to_dict(deep) for c in self.checks],
             "quantities": {s: {n: {"value": q.value, "unit": q.unit, "label": q.label}
                                for n, q in sorted(qs.items())}
                            for s, qs in sorted(self.quantities.items())},
             "subjects": dict(sorted(self.subjects.items())),
             "specimens": dict(sorted(self.specimens.items())),
             "comments": self.comments,
-            "findings": [f.to_dict() for f in self.findings],
+            "findings": [f.to_dict(deep) for f in self.findings],
             "previous": self.previous,
             "facts": self.facts,
             "values_used": self.values_used,
@@ -122,7 +124,9 @@ class Results:
         }
 
     def to_json(self) -> str:
-        return json.dumps(self.to_dict(), indent=2, sort_keys=True, ensure_ascii=False) + "\n"
+        """``json.dumps(self.to_dict(), indent=2, sort_keys=True, ensure_ascii=False)`` and a
+        newline: the same text, written without copying the results (``jsontext``)."""
+        return dumps(self.to_dict(deep=False)) + "\n"
 
 
 def subjects_of(project, kind: str) -> list[tuple[str, object]]:

@@ -268,16 +268,13 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
               workers: int | None = None, on_part=None, appendix=None) -> tuple[int, int]:
     """Print the page set as a tagged PDF/A-3a at ``target`` with ``attachments`` embedded;
     returns (chapter parts taken unchanged from the cache, chapter parts).
-
-    The chapters are printed in parts on every core, the costliest first (the CPU time each
-    part took last time, kept in the artefact cache; its HTML size when new), the front
-    matter once their page numbers are known, the running heads last;
-    :mod:`specgen.publish.pdf_assembly` puts them together.  Whatever has not changed — a
-    part, the front matter, the running heads, the assembled whole — comes from the
-    artefact cache, byte for byte as it was drawn.  ``stamp`` (a datetime, the revision
-    date) dates the attachments, so identical inputs give a byte-identical PDF.
-    ``on_part(done, total)`` is called as the chapter parts come back (for a progress
-    display).
+    Chapters print in parts on every core, costliest first (each part's CPU time last time,
+    kept in the artefact cache; its HTML size when new), the front matter once their page
+    numbers are known, the running heads last; :mod:`specgen.publish.pdf_assembly` puts them
+    together.  What has not changed (a part, the front matter, the running heads, the whole)
+    comes from the artefact cache byte for byte.  ``stamp`` (the revision date) dates the
+    attachments: identical inputs, byte-identical PDF.  ``on_part(done, total)`` hears the
+    parts come back, counted over both volumes (the report's parts, then its appendices').
     """
     from specgen.publish.pdf_parts import Printer
     if getattr(pageset, "drawing", None):   # placeholders of the live preview's first pages
@@ -295,12 +292,15 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
                        for i, (cost, submit) in enumerate(job["parts"]))
         for _order, submit in queue:
             submit()
+        grand, before = sum(len(j["groups"]) for j in jobs.values()), 0
         for v in vols:  # with ``appendix``: the report, then its appendices (own contents)
             ident = identifier if v.key == "main" or identifier is None else \
                 hashlib.sha256(identifier + b"/appendix").digest()[:16]
             final = dict(attachments=files, pdf_identifier=ident) if v.key == "main" else \
                 dict(pdf_identifier=ident)
-            done[v.key] = _print_volume(printer, jobs[v.key], page_size, on_part, final)
+            counted = on_part and (lambda i, _n, b=before: on_part(b + i, grand))
+            done[v.key] = _print_volume(printer, jobs[v.key], page_size, counted, final)
+            before += len(jobs[v.key]["groups"])
             reused += sum(1 for p in done[v.key][1] if not p.seconds)
             total += len(done[v.key][1])
     anchors = {k: global_anchors([d[0], *d[1]]) for k, d in done.items()}

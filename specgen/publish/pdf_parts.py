@@ -63,7 +63,7 @@ def print_document(html: str, css: str, pageset, **options) -> Printed:
     """Lay out and draw one document; ``options`` go to WeasyPrint (as its ``write_pdf``)."""
     import time
 
-    import weasyprint
+    from specgen.publish.weasyfix import weasyprint
     started = time.process_time()
 
     if "attachments" in options:  # (name, bytes, datetime) triples: plain data for the workers
@@ -189,7 +189,7 @@ class Printer:
         if workers > 1 and "fork" in multiprocessing.get_all_start_methods():
             # imported once here, before the workers fork, rather than once in each worker
             # of each revision's print (about 0.7-0.9 CPU s a time on this machine)
-            import weasyprint  # noqa: F401
+            from specgen.publish.weasyfix import weasyprint  # noqa: F401
             _PAGESET = pageset
             self.pool = ProcessPoolExecutor(max_workers=workers,
                                             mp_context=multiprocessing.get_context("fork"),

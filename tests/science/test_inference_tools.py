@@ -333,3 +333,145 @@ def test_falls_where_the_within_batch_scatter_decides():
     assert it.falls([28.0, 90.0], [0.6, 0.0], [3, 3], 0.3, 0.0) == [
         (28.0, 90.0, pytest.approx(math.exp(-0.6), rel=1e-12))]
     assert it.falls([28.0, 90.0], [0.45, 0.0], [3, 3], 0.3, 0.0) == []
+
+
+# ---------------------------------------------------------------- the descent itself, step by step
+# Scalar problems r(z) = (atan(z − c), (z − m)/sp): one datum and one prior residual, so the
+# descent can be written out here in plain floats, apart from the module's numpy batch.
+ATAN = [  # (c, m, sp, z0): a start the Gauss-Newton step overshoots (rejected steps), a
+    (0.0, 0.0, 1e6, 2.0),   # gentle start, a start at the minimum itself, a prior pulling away
+    (1.0, 1.0, 1e6, 1.5),
+    (0.5, 0.5, 1e6, 0.5),
+    (0.0, 3.0, 2.0, 2.5),
+    (1e4, 1e4, 1e6, 1e4 + 0.5),   # far from zero: the step is measured relative to 1 + |z|
+]
+
+
+def _atan_many(z, idx):
+    c, m, sp, _ = (np.array([ATAN[i][k] for i in idx])[:, None] for k in range(4))
+    d = z - c
+    r = np.concatenate([np.arctan(d), (z - m) / sp], axis=1)
+    j = np.stack([1.0 / (1.0 + d ** 2), np.broadcast_to(1.0 / sp, d.shape)], axis=1)
+    return r, j
+
+
+def _lm_by_hand(c, m, sp, z0, lam, max_iter, xtol=1e-10):
+    """Levenberg-Marquardt of one parameter as Madsen, Nielsen & Tingleff (2004), Methods
+    for non-linear least squares problems, algorithm 3.16 writes it: damping μ·diag(JᵀJ)
+    (Marquardt), gain ratio ρ = (F(z) − F(z_new)) / (L(0) − L(h)) with L(0) − L(h) =
+    ½·h·(μ·h − g), a step kept when F does not rise, μ ×= max(1/3, 1 − (2ρ − 1)³) and ν = 2
+    on a kept step, μ ×= ν and ν ×= 2 on a refused one; stopped (the module's docstring) when
+    a kept step is below xtol relative to 1 + |z|, or below √xtol with F falling by no more
+    than 1e-14·F, or when μ passes 1e16 on a refused step.  Returns (z, F, J², Jd²) or None
+    when max_iter steps do not stop it."""
+    def res(z):
+        return [math.atan(z - c), (z - m) / sp], [1.0 / (1.0 + (z - c) ** 2), 1.0 / sp]
+    z, nu = z0, 2.0
+    r, j = res(z)
+    f = 0.5 * (r[0] ** 2 + r[1] ** 2)
+    for _ in range(max_iter):
+        g, h = j[0] * r[0] + j[1] * r[1], j[0] ** 2 + j[1] ** 2
+        step = -g / (h + lam * h)
+        rn, jn = res(z + step)
+        fn = 0.5 * (rn[0] ** 2 + rn[1] ** 2)
+        gain = 0.5 * step * (lam * h * step - g)
+        size = abs(step) / (1.0 + abs(z))
+        small = size <= xtol or (size <= math.sqrt(xtol) and f - fn <= 1e-14 * f)
+        rho = (f - fn) / gain if gain > 0 else 0.0
+        if fn <= f:
+            z, r, j, f = z + step, rn, jn, fn
+            lam *= max(1.0 / 3.0, 1.0 - (2.0 * min(max(rho, 0.0), 1.0) - 1.0) ** 3)
+            nu = 2.0
+            if small:
+                return z, f, j[0] ** 2 + j[1] ** 2, j[0] ** 2
+        else:
+            lam *= nu
+            nu *= 2.0
+            if lam > 1e16:
+                return z, f, j[0] ** 2 + j[1] ** 2, j[0] ** 2
+    return None
+
+
+def _steps_by_hand(i, lam0):
+    # the fewest steps after which the descent written out above stops
+    return next(k for k in range(1, 200) if _lm_by_hand(*ATAN[i], lam0, k) is not None)
+
+
+@pytest.mark.parametrize("lam0", it.LM_DAMPINGS)
+def test_each_descent_follows_marquardt_with_nielsens_damping_step_by_step(lam0):
+    # the batch of four series against the descent written out above, one series at a time:
+    # the same point, cost, curvature and data share to rounding, and the same number of steps
+    laps = it._lm_path(_atan_many, np.array([[a[3]] for a in ATAN]), 1, 200, 1e-10, lam0)
+    for i, lap in enumerate(laps):
+        z, f, h, hd = _lm_by_hand(*ATAN[i], lam0, 200)
+        assert lap.mode[0] == pytest.approx(z, rel=1e-13, abs=1e-15)
+        assert lap.cost == pytest.approx(f, rel=1e-12, abs=1e-300)
+        assert lap.cov[0, 0] == pytest.approx(1.0 / h, rel=1e-12)
+        assert lap.p_eff == pytest.approx(hd / h, rel=1e-12)
+        n = _steps_by_hand(i, lam0)
+        one = np.array([[ATAN[i][3]]])
+        assert it._lm_path(lambda zz, idx: _atan_many(zz, np.array([i])[idx]), one, 1, n,
+                           1e-10, lam0)[0] is not None
+        if n > 1:
+            assert it._lm_path(lambda zz, idx: _atan_many(zz, np.array([i])[idx]), one, 1,
+                               n - 1, 1e-10, lam0) == [None]
+
+
+def test_the_first_overshooting_step_is_refused_by_hand():
+    # atan from z0 = 2 (c = 0; the prior's 1/sp² = 1e-12 is below these digits): g =
+    # atan(2)/5 = 1.107149/5 = 0.221430, JᵀJ = 1/25 = 0.04; with μ = 1e-3 the step is
+    # −0.221430/(0.04·1.001) = −0.221430/0.04004 = −5.53021 to z = −3.53021, where
+    # |atan| = 1.29476 exceeds atan(2) = 1.10715: refused (the first kept step comes later)
+    assert _lm_by_hand(0.0, 0.0, 1e6, 2.0, 1e-3, 1) is None
+    step = -(math.atan(2.0) / 5.0) / (0.04 * 1.001)
+    assert step == pytest.approx(-5.53021, abs=5e-6)
+    assert abs(math.atan(2.0 + step)) == pytest.approx(1.29476, abs=5e-6)
+    assert abs(math.atan(2.0 + step)) > math.atan(2.0)
+    assert _steps_by_hand(0, 1e-3) > 2
+
+
+def _far_many(z, idx):
+    # series 0: r = (e^z − 2, 1e-3/e^(−z) − 2e-3, 0·e^z), minimum at z = ln 2; from z0 = −7 the
+    # first step is about 2·e^7/(1 + μ) ≈ 2190, where e^z overflows (e^709 is the largest double), 1/e^(−z) divides
+    # by zero and 0·∞ is invalid; series 1: the atan problem ATAN[1] with a third residual 0
+    zf = z[:, 0]
+    out_r, out_j = np.zeros((len(idx), 3)), np.zeros((len(idx), 3, 1))
+    for k, i in enumerate(idx):
+        if i == 0:
+            e = np.exp(zf[k])
+            out_r[k] = [e - 2.0, 1e-3 / np.exp(-zf[k]) - 2e-3, 0.0 * e]
+            out_j[k, :, 0] = [e, 1e-3 / np.exp(-zf[k]), 0.0 * e]
+        else:
+            r, j = _atan_many(z[k:k + 1], np.array([1]))
+            out_r[k, :2], out_j[k, :2] = r[0], j[0]
+    return out_r, out_j
+
+
+def test_a_trial_step_into_overflow_warns_nothing_and_leaves_the_other_series_alone():
+    import warnings
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")            # a RuntimeWarning would fail the test
+        laps = it._lm_path(_far_many, np.array([[-7.0], [ATAN[1][3]]]), 2, 200, 1e-10, 1e-3)
+    assert laps[0].mode[0] == pytest.approx(math.log(2.0), rel=1e-9)   # e^z = 2
+    # the second series' descent is the one written out above, untouched by the first's
+    # non-finite trial steps
+    z, f, h, hd = _lm_by_hand(*ATAN[1], 1e-3, 200)
+    assert laps[1].mode[0] == pytest.approx(z, rel=1e-13)
+    assert laps[1].cost == pytest.approx(f, rel=1e-12, abs=1e-300)
+
+
+def test_an_integer_start_is_a_number_not_a_count():
+    # a start of 2 (an integer) descends as 2.0 does: the iterates are real numbers
+    one = lambda zz, idx: _atan_many(zz, np.array([0])[idx])   # noqa: E731
+    got = it._lm_path(one, np.array([[2]]), 1, 200, 1e-10, 1e-3)[0]
+    z, f, _, _ = _lm_by_hand(*ATAN[0], 1e-3, 200)
+    assert got.mode[0] == pytest.approx(z, rel=1e-13, abs=1e-15)
+    assert got.cost == pytest.approx(f, rel=1e-12, abs=1e-300)
+
+
+def test_a_singular_damped_system_gives_none_for_each_series():
+    # residual 1 whatever z is: JᵀJ = 0 and, with no starting damping, the system of the step
+    # is singular: each series is left to be fitted alone (None), not an error
+    def flat(z, idx):
+        return np.ones((len(idx), 1)), np.zeros((len(idx), 1, 1))
+    assert it._lm_path(flat, np.zeros((2, 1)), 1, 50, 1e-10, 0.0) == [None, None]

@@ -221,3 +221,175 @@ def test_components_refuse_ages_word_for_word(ages):
     with pytest.raises(StrengthFitError) as exc:
         components(_fit(), ages)
     assert str(exc.value) == "ages must be positive finite numbers of seconds"
+
+
+# ------------------------------------------------------------------ the grid start, a bound, the whole result
+def _best_on_grid(columns, yw, floor=0.0):
+    """The grid start as the module's docstring states it: each grid point's amplitudes by
+    non-negative least squares (scipy.optimize.nnls, reference library; a one-column
+    amplitude no lower than ``floor``), the first point of least residual in grid order."""
+    best = None
+    for k, cols in enumerate(columns):
+        amp, _ = optimize.nnls(np.column_stack(cols), yw)
+        amp = np.maximum(amp, floor)
+        rn = float(np.sum((np.column_stack(cols) @ amp - yw) ** 2))
+        if best is None or rn < best[0] - 1e-12 * abs(best[0]):
+            best = (rn, k, amp)
+    return best[1], best[2]
+
+
+T_GRID = np.array([0.5, 1.0, 3.0, 7.0, 28.0, 90.0])            # d
+Y_GRID = np.array([0.9, 1.4, 2.3, 3.0, 4.1, 4.6])              # MPa, invented
+W_GRID = 1.0 / Y_GRID                                         # relative weights
+
+
+@pytest.mark.parametrize("model, grid, law", [
+    # EN 1992: s on 40 even points 0.02 ... 2.5; hyperbolic: k on 40 geometric points
+    # 0.01 ... 3000 d (the module's docstring of _start); the laws written out above
+    ("en1992_age", np.linspace(0.02, 2.5, 40), lambda q: _en1992(T_GRID, 1.0, q)),
+    ("hyperbolic", np.geomspace(0.01, 3000.0, 40), lambda q: _hyperbolic(T_GRID, 1.0, q)),
+])
+@pytest.mark.parametrize("scale", [1.0, 0.1])      # 0.1: strengths under 1 MPa (a weak lime)
+def test_one_amplitude_grid_start_is_the_best_grid_point(model, grid, law, scale):
+    y = Y_GRID * scale
+    k, amp = _best_on_grid([[law(q) * W_GRID] for q in grid], y * W_GRID, floor=1e-3)
+    got = sm._start(sm.MODELS[model], T_GRID, y, W_GRID, np.zeros(2))
+    assert got == pytest.approx([amp[0], grid[k]], rel=1e-12)
+
+
+def test_two_component_grid_start_is_the_best_grid_point():
+    # tauS on 13 geometric points 1 ... 3000 d times b in (0.5, 0.75, 1, 1.5, 2.2), tauA held
+    # at its given value (here 2 h); both amplitudes by NNLS at each point
+    ta = 2.0 / 24.0
+    grid = [(ts, b) for ts in np.geomspace(1.0, 3000.0, 13) for b in (0.5, 0.75, 1.0, 1.5, 2.2)]
+    cols = [[(1 - np.exp(-T_GRID / ta)) * W_GRID, (1 - np.exp(-(T_GRID / ts) ** b)) * W_GRID]
+            for ts, b in grid]
+    k, amp = _best_on_grid(cols, Y_GRID * W_GRID)
+    got = sm._start(sm.MODELS["two_component"], T_GRID, Y_GRID, W_GRID,
+                    np.array([0.0, ta, 0.0, 0.0, 0.0]))
+    assert got == pytest.approx([amp[0], ta, amp[1], grid[k][0], grid[k][1]], rel=1e-9)
+
+
+def test_closed_form_nnls_on_degenerate_columns_equals_scipy_nnls():
+    # reference: scipy.optimize.nnls; a zero shared column, zero and repeated grid columns,
+    # and targets whose best fit wants a negative amplitude on one or the other column
+    from specgen.science.strength_models import _nnls2
+    a = np.array([1.0, 2.0, 0.5, 1.5])
+    cases = [
+        (np.zeros(4), np.array([[1.0, 0.0, 2.0, 1.0], [0.0, 0.0, 0.0, 0.0]]), np.array([1.0, 0.5, 2.0, 0.7])),
+        (a, np.array([[0.0, 0.0, 0.0, 0.0], a, 2.0 * a]), np.array([1.2, 2.1, 0.4, 1.4])),
+        (a, np.array([[1.0, 0.2, 3.0, 0.1], [0.3, 2.0, 0.1, 1.0]]), np.array([-1.0, 0.5, 3.0, -0.2])),
+        (a, np.array([[1.0, 0.2, 3.0, 0.1], [0.3, 2.0, 0.1, 1.0]]), np.array([2.0, 4.0, -0.5, 3.0])),
+        (a, np.array([[1.0, 1.0, 1.0, 1.0]]), -np.ones(4)),
+    ]
+    for aa, cols, b in cases:
+        amp, rn = _nnls2(aa, cols, b)
+        for k in range(cols.shape[0]):
+            ref, ref_rn = optimize.nnls(np.column_stack([aa, cols[k]]), b)
+            assert np.column_stack([aa, cols[k]]) @ amp[k] == pytest.approx(
+                np.column_stack([aa, cols[k]]) @ ref, rel=1e-9, abs=1e-12)
+            assert rn[k] == pytest.approx(ref_rn, rel=1e-9, abs=1e-12)
+            assert np.all(amp[k] >= 0.0)
+
+
+T_FALL = np.array([7.0, 7.0, 28.0, 28.0, 90.0, 90.0])        # d
+Y_FALL = np.array([5.0, 5.1, 4.6, 4.5, 4.1, 4.0])            # MPa, invented: falling with age
+
+
+def test_a_fit_pressed_on_a_bound_is_said_and_whole():
+    # strengths falling with age want s < 0; its lower bound is 0.01 (the module's bounds), so
+    # s rests there.  With s = 0.01 the fit is linear in f28: weighted least squares by hand,
+    # f28 = Σw²·e·y / Σw²·e², e = exp{0.01[1 − (28/t)^0.5]}, w = 1/(mean at the age)
+    fit = fit_model("en1992_age", T_FALL * DAY, Y_FALL * MPA)
+    means = {7.0: 5.05, 28.0: 4.55, 90.0: 4.05}                # by hand
+    w = np.array([1.0 / means[a] for a in T_FALL])
+    e = np.exp(0.01 * (1.0 - np.sqrt(28.0 / T_FALL)))
+    f28 = np.sum(w ** 2 * e * Y_FALL) / np.sum(w ** 2 * e ** 2)
+    assert fit.params["s"] == pytest.approx(0.01, abs=1e-9)
+    assert fit.params["f28"] / MPA == pytest.approx(f28, rel=1e-6)
+    assert fit.at_bounds == ("s",)
+    assert fit.notes == ("at a bound: s (its standard error from the Jacobian is not reliable)",)
+    assert fit.title == "EN 1992-1-1 age function (fitted s, f28)"
+    assert fit.formula == "f = f28·exp{s[1 - (28 d/t)^0.5]}"
+    assert (fit.n_obs, fit.n_ages, fit.dof) == (6, 3, 4)
+    assert (fit.age_min, fit.age_max) == (7 * DAY, 90 * DAY)
+    assert fit.free == (True, True) and fit.fixed == {}
+    assert fit.x == pytest.approx((fit.params["f28"] / MPA, fit.params["s"]), rel=1e-15)
+    # Cov = s²·(JᵀJ)⁻¹ with the weighted Jacobian written out: ∂f/∂f28 = e, ∂f/∂s = f28·e·g
+    g = 1.0 - np.sqrt(28.0 / T_FALL)
+    x0, x1 = fit.x
+    r = (x0 * np.exp(x1 * g) - Y_FALL) * w
+    s2 = np.sum(r ** 2) / 4
+    jw = np.column_stack([np.exp(x1 * g), x0 * np.exp(x1 * g) * g]) * w[:, None]
+    assert np.array(fit.cov) == pytest.approx(s2 * np.linalg.inv(jw.T @ jw), rel=1e-6)
+    assert fit.sigma_hat == pytest.approx(math.sqrt(s2), rel=1e-9)
+
+
+def test_aluminate_part_within_its_first_hours():
+    # at ages of the order of tauA the aluminate term fA (1 − e^(−t/tauA)) is far from fA:
+    # at t = tauA it is fA (1 − 1/e) = 0.632121·fA (by hand)
+    t = np.repeat(np.asarray([1, 3, 7, 14, 28, 56, 90], float), 2)
+    y = 1.0 * (1 - np.exp(-t * 24)) + 4.0 * (1 - np.exp(-(t / 20) ** 0.8))
+    fit = fit_model("two_component", t * DAY, y * MPA)
+    ta = fit.fixed["tau_A"]
+    got = components(fit, [ta, 0.5 * ta])
+    assert got["aluminate"] == pytest.approx(
+        fit.params["f_A"] * np.array([0.632121, 1 - math.exp(-0.5)]), rel=1e-6)
+
+
+def test_akaike_weights_by_hand_and_nothing_ranked_when_nothing_fits():
+    # Akaike weights (Burnham & Anderson 2002, eq. 2.14): exp(−Δ/2) / Σ exp(−Δ/2)
+    t, y = _data(rng_state=6)
+    sel = fit_all(t * DAY, y * MPA)
+    rel = {m: math.exp(-0.5 * d) for m, d in sel.delta_aicc.items()}
+    assert sel.akaike_weights == pytest.approx({m: v / sum(rel.values()) for m, v in rel.items()},
+                                               rel=1e-12)
+    assert len(sel.delta_aicc) == 3 and max(sel.delta_aicc.values()) > 0.5   # 5 ages: all three
+    none = fit_all([7 * DAY, 28 * DAY], [2e6, 3e6])
+    assert (none.best, none.fits, none.delta_aicc, none.akaike_weights) == (None, (), {}, {})
+    assert none.reasoning == (
+        "not assessed: "
+        "two-component model (aluminate + silicate): the two-component model (aluminate + "
+        "silicate) has 4 parameters and needs results at >= 5 distinct ages; got 2; "
+        "EN 1992-1-1 age function (fitted s, f28): the EN 1992-1-1 age function (fitted s, "
+        "f28) has 2 parameters and needs results at >= 3 distinct ages; got 2; "
+        "hyperbolic law: the hyperbolic law has 2 parameters and needs results at >= 3 "
+        "distinct ages; got 2")
+
+
+def test_the_comparison_in_words_whole():
+    # five ages: all three laws are fitted.  Each AICc again from the fitted parameters with the
+    # laws written out, in the least-squares form n·ln(RSS/n) + 2k + 2k(k+1)/(n−k−1),
+    # k = parameters + 1 (Burnham & Anderson 2002, Model Selection and Multimodel Inference,
+    # sec. 2.2 and eq. 2.3; −2 ln L less its constant n(1 + ln 2π)); support bands of ΔAICc (from memory, as the module): <= 2 substantial, <= 7
+    # considerably less, <= 10 little, beyond essentially none
+    t, y = _data(rng_state=6)
+    sel = fit_all(t * DAY, y * MPA)
+    means = {a: y[t == a].mean() for a in AGES}
+    w = np.array([1.0 / means[a] for a in t])
+
+    def two(x, tt):
+        fa, ta, fs, ts, b = x
+        return fa * (1 - np.exp(-tt / ta)) + fs * (1 - np.exp(-(tt / ts) ** b))
+    laws = {"en1992_age": lambda x: _en1992(t, *x), "hyperbolic": lambda x: _hyperbolic(t, *x),
+            "two_component": lambda x: two(x, t)}
+    aicc = {}
+    for f in sel.fits:
+        r = (laws[f.model](f.x) - y) * w
+        n, k = r.size, len(f.params) + 1
+        aicc[f.model] = n * math.log(np.sum(r ** 2) / n) + 2 * k + 2 * k * (k + 1) / (n - k - 1)
+    order = sorted(aicc, key=aicc.get)
+    assert order == ["hyperbolic", "en1992_age", "two_component"]
+    d = {m: aicc[m] - aicc["hyperbolic"] for m in order}
+    assert 0 < d["en1992_age"] <= 2.0 and 7.0 < d["two_component"] <= 10.0   # the two bands
+    wts = {m: math.exp(-0.5 * v) for m, v in d.items()}
+    w_best = wts["hyperbolic"] / sum(wts.values())
+    title = {"hyperbolic": "hyperbolic law", "en1992_age": "EN 1992-1-1 age function (fitted s, "
+             "f28)", "two_component": "two-component model (aluminate + silicate)"}
+    assert sel.reasoning == (
+        f"Chosen: hyperbolic law (AICc {aicc['hyperbolic']:.2f}, Akaike weight {w_best:.2f}, "
+        "2 parameters). "
+        f"{title['en1992_age']}: AICc {aicc['en1992_age']:.2f}, ΔAICc {d['en1992_age']:+.2f} "
+        "against the chosen model (substantial support relative to it). "
+        f"{title['two_component']}: AICc {aicc['two_component']:.2f}, ΔAICc "
+        f"{d['two_component']:+.2f} against the chosen model (little support relative to it).")

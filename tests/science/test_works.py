@@ -224,3 +224,44 @@ def test_batching_boundaries_by_hand():
     assert g.binder_measures == 1 and g.measures == {"NH35": 1.0, "S1": 2.5}
     assert g.volume / L == pytest.approx(2.341115, rel=1e-12)
     assert g.masses == {"NH35": pytest.approx(0.7, abs=1e-4), "water": pytest.approx(0.525, abs=1e-4)}
+
+
+@pytest.mark.parametrize("width, ratio, minimum, depth", [
+    # max(ratio·j, d_min) by hand (common practice: rake out to about twice the joint width,
+    # never under a keying depth): 2.5 × 10 mm = 25 mm over a 20 mm least depth; 2 × 8 mm =
+    # 16 mm is shallower than 20 mm, so 20 mm; 2 × 10 mm = 20 mm meets it exactly
+    (0.010, 2.5, 0.020, 0.025),
+    (0.008, 2.0, 0.020, 0.020),
+    (0.010, 2.0, 0.020, 0.020),
+])
+def test_rake_out_depth_by_hand(width, ratio, minimum, depth):
+    assert wk.rake_out_depth(width, ratio, minimum) == pytest.approx(depth, rel=1e-12)
+
+
+@pytest.mark.parametrize("rate, day, volume, area, bay", [
+    # min(q·T·A/V, A) by hand: 0.25 m³/h for 8 h = 2 m³ a day; a zone of 40 m² taking 0.8 m³
+    # (0.02 m³/m²) -> 2 / 0.02 = 100 m², more than the zone: the bay is the zone, 40 m²;
+    # with 4 m³ net (0.1 m³/m²) -> 2 / 0.1 = 20 m²; with exactly 2 m³ (0.05 m³/m²) -> 40 m²
+    (0.25 / 3600, 8 * 3600.0, 0.8, 40.0, 40.0),
+    (0.25 / 3600, 8 * 3600.0, 4.0, 40.0, 20.0),
+    (0.25 / 3600, 8 * 3600.0, 2.0, 40.0, 40.0),
+])
+def test_bay_area_by_hand(rate, day, volume, area, bay):
+    assert wk.bay_area(rate, day, volume, area) == pytest.approx(bay, rel=1e-12)
+
+
+@pytest.mark.parametrize("call, message", [
+    (lambda: wk.rake_out_depth(0.0, 2.0, 0.02), "joint_width must be greater than zero; found 0.0"),
+    (lambda: wk.rake_out_depth(0.01, -1.0, 0.02), "ratio must be greater than zero; found -1.0"),
+    (lambda: wk.rake_out_depth(0.01, 2.0, float("nan")),
+     "minimum must be greater than zero; found nan"),
+    (lambda: wk.bay_area(0.0, 1.0, 1.0, 1.0), "rate must be greater than zero; found 0.0"),
+    (lambda: wk.bay_area(1.0, -2.0, 1.0, 1.0), "day must be greater than zero; found -2.0"),
+    (lambda: wk.bay_area(1.0, 1.0, 0.0, 1.0), "volume_net must be greater than zero; found 0.0"),
+    (lambda: wk.bay_area(1.0, 1.0, 1.0, float("inf")),
+     "area must be greater than zero; found inf"),
+])
+def test_rake_out_and_bay_refusals_word_for_word(call, message):
+    with pytest.raises(wk.WorksInputError) as exc:
+        call()
+    assert str(exc.value) == message
