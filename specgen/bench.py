@@ -2,10 +2,11 @@
 
 Measures (a) ``check`` on the demo, (b) a full cold build of the demo's current
 revision (no artefact cache, in-process memos cleared), (c) a re-issue after one new
-lab result into the same output folder (its artefact cache warm), (d) the floor: the
-same figures drawn with matplotlib and the same math drawn with ziamath (our render
-pass with every cache off), then plain ``mkdocs build`` of the same Markdown (written
-to disk) and a plain WeasyPrint render of the same print HTML, in sequence, and
+lab result into the same output folder (its artefact cache warm), (d) the floor: for
+each revision the cold build publishes (the archived ones too), the same figures drawn with
+matplotlib and the same math drawn with ziamath (our render pass with every cache off), then
+plain ``mkdocs build`` of the same Markdown (written to disk) and a plain WeasyPrint render of
+the same print HTML with the build's PDF options, in sequence, and
 (e) ``check`` on synthetic projects of 10, 50 and 200 mixes (the growth exponent is the
 log–log slope of time against results) — and the 200-mix ``check`` keeping its strength fits
 between runs (``fit_cache.py``), with an empty fit cache (cold: the figure the target is
@@ -38,7 +39,6 @@ from __future__ import annotations
 
 import math
 import os
-import re
 import shutil
 import statistics
 import subprocess
@@ -48,6 +48,7 @@ import time
 from pathlib import Path
 
 from specgen.bench_cores import cpu_seconds, idle_during, measured, targets
+from specgen.bench_floor import _cold, _floor
 from specgen.bench_large import large_build, print_large
 from specgen.bench_serve import bench_serve, project_copy as _project_copy
 from specgen.cache import SHARED_ENV
@@ -60,50 +61,6 @@ def _median(fn, runs: int) -> float:
         fn()
         times.append(time.perf_counter() - t)
     return statistics.median(times)
-
-
-def _cold() -> None:
-    """Forget every in-process memo, so a build in this process starts cold."""
-    from specgen.report.mathsvg import svg_bytes
-    svg_bytes.cache_clear()
-
-
-def _floor(project: Path, work: Path):
-    """Bare toolchain on the same pages: mkdocs build from disk + WeasyPrint of the print HTML."""
-    from specgen.build import check
-    from specgen.publish import _print_context
-    from specgen.publish.pdf import to_html
-    from specgen.publish.pdf_parts import _fetcher
-    from specgen.publish.site import BASE_CONFIG, _site_assets
-    from specgen.report.render import render
-    proj, results = check(project)
-    pages = render(proj, results)
-    docs = work / "floor-docs"
-    pages.write_to(docs)
-    for path, data in _site_assets().items():
-        (docs / path).parent.mkdir(parents=True, exist_ok=True)
-        (docs / path).write_bytes(data)
-    cfg = work / "mkdocs.yml"
-    nav = "\n".join(f"  - '{n.title}': {n.path}" for n in pages.nav)
-    # the theme's custom_dir is relative to the config file: point it at the repository's
-    base = re.sub(r"custom_dir: (\S+)",
-                  lambda m: f"custom_dir: {BASE_CONFIG.parent / m.group(1)}", BASE_CONFIG.read_text())
-    cfg.write_text(base.replace("site_name: specgen dossier", "site_name: floor")
-                   + f"docs_dir: {docs}\nsite_dir: {work / 'floor-site'}\nnav:\n{nav}\n")
-    html = to_html(pages, _print_context(proj))
-
-    def run():
-        import os
-        _cold()
-        render(proj, results)   # figures (matplotlib) and math (ziamath), no cache
-        subprocess.run([sys.executable, "-m", "mkdocs", "build", "-q", "-f", str(cfg)], check=True,
-                       cwd=BASE_CONFIG.parent, env=dict(os.environ, NO_MKDOCS_2_WARNING="1"))
-        import weasyprint
-        css = (BASE_CONFIG.parent / "content/print/print.css").read_text()
-        weasyprint.HTML(string=html, base_url="file:///specgen-pageset/",
-                        url_fetcher=_fetcher(pages)).write_pdf(
-            str(work / "floor.pdf"), stylesheets=[weasyprint.CSS(string=css)])
-    return run
 
 
 def _cpu_median(fn, runs: int) -> float:
