@@ -2,10 +2,11 @@
 
 Measures (a) ``check`` on the demo, (b) a full cold build of the demo's current
 revision (no artefact cache, in-process memos cleared), (c) a re-issue after one new
-lab result into the same output folder (its artefact cache warm), (d) the floor: the
-same figures drawn with matplotlib and the same math drawn with ziamath (our render
-pass with every cache off), then plain ``mkdocs build`` of the same Markdown (written
-to disk) and a plain WeasyPrint render of the same print HTML, in sequence, and
+lab result into the same output folder (its artefact cache warm), (d) the floor: for
+each revision the cold build publishes (the archived ones too), the same figures drawn with
+matplotlib and the same math drawn with ziamath (our render pass with every cache off), then
+plain ``mkdocs build`` of the same Markdown (written to disk) and a plain WeasyPrint render of
+the same print HTML with the build's PDF options, in sequence, and
 (e) ``check`` on synthetic projects of 10, 50 and 200 mixes (the growth exponent is the
 log–log slope of time against results) — and the 200-mix ``check`` keeping its strength fits
 between runs (``fit_cache.py``), with an empty fit cache (cold: the figure the target is
@@ -15,8 +16,9 @@ inside ``specgen.science.strength_inference``) and the ratio of ``check`` to ``c
 it (the target: within 2×), and the CPU seconds in the least-squares model comparison
 (``strength_models.fit_all``), the other fit made once per series, and (f) once, the full
 build (site and PDF) of the 200-mix project in a fresh process, with its time, its CPU time
-(user + system of every process of the build) and the peak resident memory of its largest
-process.  Medians of ``runs`` repetitions.
+(user + system of every process of the build), the peak memory of its whole process tree,
+each stage's CPU seconds and a projection of its time on two idle cores
+(``specgen/bench_large.py``).  Medians of ``runs`` repetitions.
 
 Beside the wall-clock times it prints the CPU time (user + system, this process and its
 children: the PDF workers and the site process) of (b) and (c), so the re-issue ratio can be
@@ -37,7 +39,6 @@ from __future__ import annotations
 
 import math
 import os
-import re
 import shutil
 import statistics
 import subprocess
@@ -47,6 +48,8 @@ import time
 from pathlib import Path
 
 from specgen.bench_cores import cpu_seconds, idle_during, measured, targets
+from specgen.bench_floor import _cold, _floor
+from specgen.bench_large import large_build, print_large
 from specgen.bench_serve import bench_serve, project_copy as _project_copy
 from specgen.cache import SHARED_ENV
 
@@ -58,69 +61,6 @@ def _median(fn, runs: int) -> float:
         fn()
         times.append(time.perf_counter() - t)
     return statistics.median(times)
-
-
-def _cold() -> None:
-    """Forget every in-process memo, so a build in this process starts cold."""
-    from specgen.report.mathsvg import svg_bytes
-    svg_bytes.cache_clear()
-
-
-def _floor(project: Path, work: Path):
-    """Bare toolchain on the same pages: mkdocs build from disk + WeasyPrint of the print HTML."""
-    from specgen.build import check
-    from specgen.publish import _print_context
-    from specgen.publish.pdf import to_html
-    from specgen.publish.pdf_parts import _fetcher
-    from specgen.publish.site import BASE_CONFIG, _site_assets
-    from specgen.report.render import render
-    proj, results = check(project)
-    pages = render(proj, results)
-    docs = work / "floor-docs"
-    pages.write_to(docs)
-    for path, data in _site_assets().items():
-        (docs / path).parent.mkdir(parents=True, exist_ok=True)
-        (docs / path).write_bytes(data)
-    cfg = work / "mkdocs.yml"
-    nav = "\n".join(f"  - '{n.title}': {n.path}" for n in pages.nav)
-    # the theme's custom_dir is relative to the config file: point it at the repository's
-    base = re.sub(r"custom_dir: (\S+)",
-                  lambda m: f"custom_dir: {BASE_CONFIG.parent / m.group(1)}", BASE_CONFIG.read_text())
-    cfg.write_text(base.replace("site_name: specgen dossier", "site_name: floor")
-                   + f"docs_dir: {docs}\nsite_dir: {work / 'floor-site'}\nnav:\n{nav}\n")
-    html = to_html(pages, _print_context(proj))
-
-    def run():
-        import os
-        _cold()
-        render(proj, results)   # figures (matplotlib) and math (ziamath), no cache
-        subprocess.run([sys.executable, "-m", "mkdocs", "build", "-q", "-f", str(cfg)], check=True,
-                       cwd=BASE_CONFIG.parent, env=dict(os.environ, NO_MKDOCS_2_WARNING="1"))
-        import weasyprint
-        css = (BASE_CONFIG.parent / "content/print/print.css").read_text()
-        weasyprint.HTML(string=html, base_url="file:///specgen-pageset/",
-                        url_fetcher=_fetcher(pages)).write_pdf(
-            str(work / "floor.pdf"), stylesheets=[weasyprint.CSS(string=css)])
-    return run
-
-
-_PEAK = """
-import resource, subprocess, sys, time
-t = time.perf_counter()
-subprocess.run([sys.executable, "-m", "specgen", "build", sys.argv[1], "--out", sys.argv[2],
-                "--quiet"], check=True, stdout=subprocess.DEVNULL)
-kids = resource.getrusage(resource.RUSAGE_CHILDREN)
-print(time.perf_counter() - t, kids.ru_maxrss, kids.ru_utime + kids.ru_stime)
-"""
-
-
-def _peak_build(project: Path, out: Path) -> tuple[float, float, float]:
-    """(seconds, peak RSS in MiB of the largest process, CPU seconds of the build and every
-    process it started) of one build in a fresh process."""
-    done = subprocess.run([sys.executable, "-c", _PEAK, str(project), str(out)], check=True,
-                          capture_output=True, text=True)
-    seconds, kib, cpu = done.stdout.split()
-    return float(seconds), int(kib) / 1024, float(cpu)
 
 
 def _cpu_median(fn, runs: int) -> float:
@@ -330,7 +270,7 @@ def main(runs: int = 3, large: bool = True, only: str = "all") -> None:
         share = _inference_share(syn)
         fit_cold, fit_warm = _fit_cache_pair(syn, work / "fit-cache", runs)
         slope = (math.log(times[-1]) - math.log(times[0])) / (math.log(sizes[-1]) - math.log(sizes[0]))
-        f = _peak_build(syn, work / "syn-out") if large else None
+        f = large_build(syn, work / "syn-out") if large else None
         (work / "g").mkdir()
         (work / "h").mkdir()
         bench_xlsx(demo, work / "h", runs)
@@ -363,12 +303,12 @@ def _print_figures(fig: dict) -> None:
     print(f"(e) check, 200 mixes, fits kept between runs: cold (empty fit cache) {fit_cold:7.3f} s,"
           f" warm (every fit read back) {fit_warm:7.3f} s; the target is judged on the cold figure")
     if f:
-        print(f"(f) build, 200 mixes (site + PDF)   {f[0]:7.1f} s   CPU {f[2]:7.1f} s, peak memory "
-              f"{f[1]:6.0f} MiB")
+        print_large(f)
     print(f"ratio (b)/(d) = {b / d:.2f}   ratio (c)/(b) = {c_wall / b:.2f} "
           f"(CPU {c_cpu / b_cpu:.2f})   growth exponent of (e) = {slope:.2f}")
     # the cold figure decides: the larger of no fit cache and an empty one (which also writes)
-    targets(b / d, (c_wall / b, c_cpu / b_cpu), max(times[-1], fit_cold), f)
+    targets(b / d, (c_wall / b, c_cpu / b_cpu), max(times[-1], fit_cold),
+            (f.wall, f.pss_mib, f.projected) if f else None)
 
 
 if __name__ == "__main__":

@@ -71,8 +71,10 @@ def targets(cold: float, reissue: tuple[float, float], check200: float, large) -
              f"{reissue[0]:.2f}; CPU time {reissue[1]:.2f}"),
             ("cold build <= 0.6 x sequential floor", cold <= 0.6, f"{cold:.2f}"),
             ("check, 200 mixes <= 1.5 s", check200 <= 1.5, f"{check200:.2f} s")]
-    if large:
+    if large:   # (wall s, peak MiB of the process tree, projected s on two idle cores)
         rows.append(("build, 200 mixes <= 200 s, peak < 1 GiB",
-                     large[0] <= 200 and large[1] < 1024, f"{large[0]:.0f} s, {large[1]:.0f} MiB"))
+                     large[0] <= 200 and large[1] < 1024,
+                     f"{large[0]:.0f} s, {large[1]:.0f} MiB; projected on two idle cores "
+                     f"{large[2]:.0f} s"))
     for label, met, seen in rows:
         print(f"target: {label:42s} {'met' if met else 'NOT met'} ({seen})")

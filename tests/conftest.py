@@ -217,6 +217,21 @@ def shared_cache(request):
         os.environ["SPECGEN_SHARED_CACHE"] = before
 
 
+@pytest.fixture(scope="session", autouse=True)
+def user_cache_home(tmp_path_factory):
+    """The user's cache folder of the run's commands (``XDG_CACHE_HOME``: the fit cache of
+    ``specgen check``, fit_cache.py) in a folder of the run, so the suite never writes to
+    the real ``~/.cache``."""
+    folder = tmp_path_factory.mktemp("user-cache")
+    before = os.environ.get("XDG_CACHE_HOME")
+    os.environ["XDG_CACHE_HOME"] = str(folder)
+    yield folder
+    if before is None:
+        os.environ.pop("XDG_CACHE_HOME", None)
+    else:
+        os.environ["XDG_CACHE_HOME"] = before
+
+
 @pytest.fixture(scope="session")
 def demo_build(request, shared_cache) -> Path:
     """One build of demo_project shared by every end-to-end test of the run, on every worker

@@ -319,7 +319,7 @@ BAD_DATA = [
                  "lab/sieves.csv, row 14: sieve: sample 'HM1-agg' (rows 14, 15, 16, 17, 18, 19): "
                  'cumulative passing is not monotone: 97 % passes 1.18 mm but only 95 % passes '
                  'the coarser 2.36 mm. Fix: cumulative passing must fall (or stay equal) from '
-                 'each sieve to the next finer one: check the transcription.',
+                 'each sieve to the next finer one: check the values as copied from the report.',
                  id='bad_sieve_analysis_non_monotone'),
     pytest.param('lab/sieves.csv', 'S2,1.18,83\n', '',
                  "lab/sieves.csv, row 8: sieve: sample 'S2' (rows 8, 9, 10, 11, 12): the sieve "

@@ -43,7 +43,8 @@ def test_compatibility_figures_and_colour_caveat(demo_build):
 def test_fabric_chapter_lists_units_and_historic_mortars(demo_build):
     html = (demo_build / REV / "fabric.html").read_text()
     assert "EB1 — Blue engineering brick (1868)" in html
-    assert "<td>compressive strength</td>\n<td style=\"text-align: right;\">48 MPa</td>" in html
+    # the value and its unit bound by the narrow no-break space (SI Brochure, 5.4.3; from memory)
+    assert "<td>compressive strength</td>\n<td style=\"text-align: right;\">48\u202fMPa</td>" in html
     assert "HM2 — Parapet render, weathered" in html
     assert "Northstead Materials Laboratory, report NML-4502" in html
 

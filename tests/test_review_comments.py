@@ -189,9 +189,11 @@ def test_a_file_that_is_not_json_is_refused_at_its_line(demo_copy, cli, tmp_path
 # ------------------------------------------------------------- the panel in a browser
 @pytest.mark.e2e
 def test_comment_in_the_browser_export_import_and_see_it_anchored(demo_build, demo_copy, cli,
-                                                                   tmp_path):
+                                                                   tmp_path, shared_cache):
     """Select a clause, comment, export, take the file in, render again: the comments page
-    shows the comment anchored to that clause, its passage unchanged."""
+    shows the comment anchored to that clause, its passage unchanged.  The render draws its
+    figures and formulas from the run's artefact cache, which the demo build filled (a hit
+    is the bytes a fresh drawing gives: test_render_cache.py)."""
     playwright = pytest.importorskip("playwright.sync_api")
     if not shutil.which("chromium"):
         pytest.skip("Debian chromium is not installed")
@@ -237,10 +239,12 @@ def test_comment_in_the_browser_export_import_and_see_it_anchored(demo_build, de
     assert [c["anchor"] for c in doc["comments"]] == [anchor]
     result = cli("import-comments", demo_copy, exported, "--out", demo_build)
     assert result.exit_code == 0, result.output
+    from specgen import cache
     from specgen.build import check
     from specgen.report.render import render
     project, results = check(demo_copy)
-    pages = render(project, results).pages
+    with cache.using(tmp_path / "cache", shared_cache):
+        pages = render(project, results).pages
     text = pages["comments.md"]
     assert f"(specification.md#{anchor})" in text
     assert "The quoted passage reads the same in this revision." in text

@@ -4,8 +4,9 @@ Living Standard, "navigate to a fragment": a fragment with no matching id scroll
 A reviewer opening the site from a folder follows these links; a link to ``calculations.md``
 (a page's source name) opened a missing file on every badge of the options appraisal.
 
-The 404 page is left out: MkDocs writes it with addresses from the site's root, for a web
-server, and it is never reached from a folder."""
+The "page not found" page is held to the same rule: the theme wrote it with addresses from
+the server's root (``/assets/…``, ``//WEP-….pdf``), so in a revision folder it had no style and
+no working link (``publish.site.error_page_addresses``)."""
 from __future__ import annotations
 
 import re
@@ -14,7 +15,7 @@ from urllib.parse import unquote
 
 import pytest
 
-from specgen.publish.site import page_addresses
+from specgen.publish.site import error_page_addresses, page_addresses
 
 pytestmark = pytest.mark.e2e
 
@@ -30,9 +31,8 @@ def test_every_link_between_pages_of_each_revision_resolves(demo_build):
     for rev in ("R1", "R2", "R3"):
         folder = demo_build / rev
         for page in sorted(folder.glob("*.html")):
-            if page.name == "404.html":
-                continue
-            for href in re.findall(r'href="([^"]+)"', page.read_text(encoding="utf-8")):
+            text = page.read_text(encoding="utf-8")
+            for href in re.findall(r'(?:href|src)="([^"]+)"', text):
                 if re.match(r"[a-z][a-z0-9+.-]*:", href) or href.startswith("//"):
                     continue                          # another site, mail: not ours to follow
                 path, _, fragment = href.partition("#")
@@ -55,3 +55,45 @@ def test_a_raw_link_to_a_page_source_points_at_the_page_written():
     assert page_addresses(text) == (
         '<a href="calculations.html#calc-dur-sound-nc1">a</a> <a href="before-issue.html">b</a>'
         ' <a href="https://example.org/notes.md">c</a> <a href="#calc-x">d</a>')
+
+
+def test_the_page_not_found_links_from_its_revision_folder(demo_build):
+    text = (demo_build / "R3" / "404.html").read_text(encoding="utf-8")
+    rooted = re.findall(r'(?:href|src)="(/[^"]*)"', text)
+    assert not rooted, rooted[:10]
+    assert 'href="WEP-2026-R3.pdf"' in text and '"base": "."' in text
+
+
+def test_root_addresses_of_the_page_not_found_made_relative():
+    # what mkdocs-material 9 writes on 404.html without a site_url: its base "/" joined to
+    # each address ("/x", and "//x" where the template itself adds a slash)
+    text = ('<link href="/assets/specgen.css"><a href="/.">home</a> <a href="//R.pdf">pdf</a> '
+            '<a href="/../revisions.html">all</a> <script src="/assets/x.js"></script> '
+            '<a href="https://example.org/">out</a> {"base": "/", "search": "/assets/w.js"}')
+    assert error_page_addresses(text) == (
+        '<link href="assets/specgen.css"><a href=".">home</a> <a href="R.pdf">pdf</a> '
+        '<a href="../revisions.html">all</a> <script src="assets/x.js"></script> '
+        '<a href="https://example.org/">out</a> {"base": ".", "search": "assets/w.js"}')
+
+
+def test_drawn_figures_open_full_size_and_nothing_else_is_wrapped():
+    from specgen.publish.site import figure_links
+    text = ('<figure class="sg-figure">\n<p><img src="figures/strength-M1.svg" alt="Chart"></p>'
+            '<figcaption>Figure 4</figcaption></figure>'
+            '<figure class="sg-figure sg-picture"><a class="sg-screen-only" href="images/a.jpg">'
+            '<img src="images/a-thumb.jpg" alt="Photo"></a></figure>'
+            '<p><img class="sg-math" src="math/f.svg" alt="x"></p>')
+    assert figure_links(text) == (
+        '<figure class="sg-figure">\n<p><a class="sg-figure-full" href="figures/strength-M1.svg">'
+        '<img src="figures/strength-M1.svg" alt="Chart"></a></p>'
+        '<figcaption>Figure 4</figcaption></figure>'
+        '<figure class="sg-figure sg-picture"><a class="sg-screen-only" href="images/a.jpg">'
+        '<img src="images/a-thumb.jpg" alt="Photo"></a></figure>'
+        '<p><img class="sg-math" src="math/f.svg" alt="x"></p>')
+
+
+def test_every_drawn_figure_of_the_demo_links_its_drawing(demo_build):
+    page = (demo_build / "R3" / "strength.html").read_text(encoding="utf-8")
+    figures = re.findall(r'<img src="(figures/[^"]+)"', page)
+    linked = re.findall(r'<a class="sg-figure-full" href="(figures/[^"]+)"><img src="\1"', page)
+    assert figures and linked == figures

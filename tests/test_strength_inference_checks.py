@@ -108,7 +108,7 @@ def test_later_age_weaker_is_held_with_the_reason(demo_copy):
     inf = by[("STR-INF-C", "M1")]
     assert inf.status == "hold"
     assert "the mean falls from 28 d to 90 d" in inf.message
-    assert "check the specimens, their curing and the transcription" in inf.message
+    assert "check the specimens, their curing and the copying of the results" in inf.message
     assert by[("STR-PRED-C", "M1")].status == "not_assessed"
     assert by[("STR-MAX", "M1")].status == "not_assessed"
     _no_nan(r)

@@ -201,3 +201,27 @@ def test_band_names_never_run_into_each_other(monkeypatch):
     for left, right in zip(boxes, boxes[1:]):
         assert left.x1 <= right.x0, (left, right)
     figures._pyplot().close(fig)
+
+
+@pytest.mark.parametrize("text, expected", [
+    # SI Brochure, 9th ed., 5.4.3 and ISO 80000-1: value and unit symbol are one expression,
+    # separated by a space that must not break a line (from memory); "%" likewise
+    ("coverage 95 % of", f"coverage 95{S}% of"),
+    ("at 28 d, 3.5 MPa", f"at 28{S}d, 3.5{S}MPa"),
+    ("a 1.5 m wide lift", f"a 1.5{S}m wide lift"),
+    ("20 °C and 4 m² of panel", f"20{S}°C and 4{S}m² of panel"),
+    # not a unit: a word that starts like one, a year, a unit followed by more of a unit
+    ("2 mice in 1850 the", "2 mice in 1850 the"),
+    ("5 mm/s", "5 mm/s"),
+])
+def test_rendered_text_binds_a_number_to_its_unit(text, expected):
+    from specgen.report.mdtypo import bind_units
+    assert bind_units(text) == expected
+
+
+def test_markdown_pages_bind_units_outside_code():
+    import markdown
+    html = markdown.markdown("Coverage 95 % at 28 d; `95 %` kept.",
+                             extensions=["specgen.report.mdtypo"])
+    assert f"95{S}% at 28{S}d" in html
+    assert "<code>95 %</code>" in html

@@ -8,7 +8,7 @@ reported in the same round as the loader's, before anything is written:
 * sieve analyses of lab/sieves.csv, grouped per sample, become gradings
   (:mod:`specgen.science.grading`);
 * sieve analyses on another series than the grading envelope's, without a stated reason;
-* analysis totals outside the sanity window (a transcription or unit error, not chemistry;
+* analysis totals outside the sanity window (a copying or unit error, not chemistry;
   a modest gap is left to the closure check, which reports it with its calculation).
 
 Each sieve sample must use one kind of value (masses retained or cumulative % passing) on sieves
@@ -29,7 +29,7 @@ from specgen.science.oxides import ChemistryInputError, closure
 
 ROOT = "dossier.yaml"
 ANALYSES = "analyses.yaml"
-# An analysis whose total is this far from 100 % is a transcription or unit error, not chemistry.
+# An analysis whose total is this far from 100 % is a copying or unit error, not chemistry.
 TOTAL_WINDOW = (85.0, 115.0)
 
 
@@ -162,5 +162,5 @@ def _fix(message: str) -> str:
     if "two series" in message:
         return "sieve each sample on one series, or split the rows into two samples."
     if "monotone" in message:
-        return "cumulative passing must fall (or stay equal) from each sieve to the next finer one: check the transcription."
+        return "cumulative passing must fall (or stay equal) from each sieve to the next finer one: check the values as copied from the report."
     return "check the sieve analysis against the laboratory report."

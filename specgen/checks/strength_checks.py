@@ -145,7 +145,7 @@ def _drops(s: sc.Series, limit: float) -> list[str]:
         if b.summary.mean < (1 - limit) * a.summary.mean:
             out.append(f"{s.test}: the mean falls from {a.summary.mean / MPA:.3g} MPa at "
                        f"{a.age / DAY:g} d to {b.summary.mean / MPA:.3g} MPa at {b.age / DAY:g} d "
-                       f"(more than {100 * limit:g} %): check specimens, curing and transcription")
+                       f"(more than {100 * limit:g} %): check specimens, curing and the copying of the results")
     return out
 
 

@@ -142,7 +142,7 @@ def _infer(series, fam: Family) -> InferenceRun:
         run.error = "; ".join(
             f"the mean falls from {a:g} d to {b:g} d to {100 * r:.0f} % of its value, more than "
             "the scatter explains" for a, b, r in run.falls) + (
-            ": check the specimens, their curing and the transcription, and retest; the "
+            ": check the specimens, their curing and the copying of the results, and retest; the "
             "record is not used to predict")
     return run
 

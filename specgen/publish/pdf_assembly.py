@@ -246,6 +246,7 @@ class StructureMerge:
         self.root = root.StructTreeRoot if "/StructTreeRoot" in root else None
         self.nums: list = []
         self.next = 0
+        self.added: list = []   # the parts' elements, set under the document element once
         if self.root is None:
             return
         self.document = _kids(self.root.K)[0]
@@ -276,7 +277,7 @@ class StructureMerge:
         for kid in kids:
             kid = _copied(self.pdf, kid, src)  # its pages map to those added above
             kid.P = self.document
-            _append_kid(self.document, kid)
+            self.added.append(kid)
         old = tagged.ParentTree.get("/Nums", [])
         for key, value in zip(old[::2], old[1::2]):
             if int(key) in shift:
@@ -286,6 +287,10 @@ class StructureMerge:
         from pikepdf import Array, Dictionary, Name
         if self.root is None:
             return
+        if self.added:  # one array at the end: built again per element it cost n² (issue 25)
+            current = self.document.get("/K")
+            self.document.K = Array([*(_kids(current) if current is not None else []),
+                                     *self.added])
         self.root.K = Array([self.document])
         self.root.ParentTree = self.pdf.make_indirect(Dictionary(Nums=Array(self.nums)))
         self.root.ParentTreeNextKey = self.next
@@ -296,13 +301,6 @@ class StructureMerge:
 def _kids(k) -> list:
     import pikepdf
     return list(k) if isinstance(k, pikepdf.Array) else [k]
-
-
-def _append_kid(parent, kid) -> None:
-    from pikepdf import Array
-    current = parent.get("/K")
-    items = _kids(current) if current is not None else []
-    parent.K = Array([*items, kid])
 
 
 def _is_annotation_entry(value) -> bool:

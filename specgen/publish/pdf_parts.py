@@ -13,6 +13,7 @@ Memory stays bounded: a worker holds the layout of one part at a time.
 """
 from __future__ import annotations
 
+import functools
 import json
 import os
 from concurrent.futures import ProcessPoolExecutor
@@ -62,7 +63,7 @@ def print_document(html: str, css: str, pageset, **options) -> Printed:
     """Lay out and draw one document; ``options`` go to WeasyPrint (as its ``write_pdf``)."""
     import time
 
-    import weasyprint
+    from specgen.publish.weasyfix import weasyprint
     started = time.process_time()
 
     if "attachments" in options:  # (name, bytes, datetime) triples: plain data for the workers
@@ -188,7 +189,7 @@ class Printer:
         if workers > 1 and "fork" in multiprocessing.get_all_start_methods():
             # imported once here, before the workers fork, rather than once in each worker
             # of each revision's print (about 0.7-0.9 CPU s a time on this machine)
-            import weasyprint  # noqa: F401
+            from specgen.publish.weasyfix import weasyprint  # noqa: F401
             _PAGESET = pageset
             self.pool = ProcessPoolExecutor(max_workers=workers,
                                             mp_context=multiprocessing.get_context("fork"),
@@ -289,6 +290,7 @@ def _asset_digests(html: str, pageset) -> list:
     return out
 
 
+@functools.lru_cache(maxsize=1)   # asked once per part: the package metadata read once
 def _engine_version() -> str:
     from importlib.metadata import version
     try:

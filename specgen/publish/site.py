@@ -41,7 +41,10 @@ class _FeedPages:
 
     def on_page_content(self, html, page, config, files):
         from specgen.publish.safety import neutralise_links
-        return page_addresses(neutralise_links(html))
+        return figure_links(page_addresses(neutralise_links(html)))
+
+    def on_post_template(self, output, template_name, config):
+        return error_page_addresses(output) if template_name == "404.html" else output
 
 
 #: a link written as raw HTML in a chapter (a status badge linking its calculation sheet, a
@@ -55,6 +58,39 @@ def page_addresses(text: str) -> str:
     this for Markdown links only; a raw HTML link would otherwise lead to a missing file.
     The PDF makes the same links internal on its own (``publish.pdf._relink``)."""
     return _SOURCE_LINK.sub(lambda m: f'href="{m.group(1)}.html{m.group(2) or ""}"', text)
+
+
+#: a drawn figure of a page (a chart, a grading curve), not yet inside a link
+_FIGURE_IMAGE = re.compile(r'(<figure class="sg-figure"[^>]*>\s*(?:<p>)?)'
+                           r'(<img src="(figures/[^"]+)"[^>]*>)')
+
+
+def figure_links(text: str) -> str:
+    """Each drawn figure of the site opens full size when followed: on a phone a chart is
+    set 390 px wide, too small to read its points, and the drawing itself scales to any
+    width.  The print keeps the figures as they are (the PDF is laid out from the
+    Markdown, not from these pages)."""
+    return _FIGURE_IMAGE.sub(
+        lambda m: f'{m.group(1)}<a class="sg-figure-full" href="{m.group(3)}">{m.group(2)}</a>',
+        text)
+
+
+#: an address the theme writes from the site's root on its "page not found" page: ``/x``,
+#: ``//x`` (its base ``/`` joined to ``/x``) and the search's ``"base": "/"``
+_ROOT_ADDRESS = re.compile(r'((?:href|src)="|"(?:base|search)": ")//?(?!/)')
+
+
+def error_page_addresses(text: str) -> str:
+    """The "page not found" page with the addresses of its revision, not of the server root.
+
+    Without a ``site_url`` the theme writes that page's links from the root (``/assets/…``,
+    and ``//WEP-….pdf`` for the PDF, which a browser reads as a host name), so opened in a
+    revision folder it loses its style and every link.  Every page of a revision sits in
+    the revision's own folder (``use_directory_urls: false``), so relative addresses are
+    right for any address a reader mistypes there."""
+    def relative(m: re.Match) -> str:
+        return m.group(1) + ("." if text[m.end():m.end() + 1] == '"' else "")
+    return _ROOT_ADDRESS.sub(relative, text)
 
 
 def _theme_code():

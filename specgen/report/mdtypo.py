@@ -21,6 +21,11 @@ KEEP_CLASSES = {"sg-input-listing", "sg-hash", "sg-math"}
 VOID = {"area", "br", "col", "embed", "hr", "img", "input", "link", "meta", "source", "wbr"}
 
 _TAG = re.compile(r"<(/?)([a-zA-Z][\w-]*)([^>]*)>")
+#: a number, a plain space and a unit symbol (or %): the space becomes the narrow no-break
+#: space :data:`specgen.report.fmt.UNIT_SPACE`, as :func:`fmt.qty` writes it, so a value
+#: the checks wrote with a plain space ("95 %", "28 d") never wraps away from its unit
+_NUMBER_UNIT = re.compile(
+    r"(?<=\d) (?=(?:%|‰|MPa|GPa|N/mm²|kg/m³|mm|cm|µm|m²|m³|m|kg|g|°C|K|d|h|min)(?![\w²³/]))")
 _CLASS = re.compile(r"""\bclass\s*=\s*(?:"([^"]*)"|'([^']*)')""")
 
 
@@ -56,7 +61,14 @@ def text_nodes(html: str, change) -> str:
 class _Typography(Postprocessor):
     def run(self, text: str) -> str:
         from specgen.report.wording import formulas
-        return text_nodes(text.replace("^½", "<sup>½</sup>"), formulas)
+        return text_nodes(text.replace("^½", "<sup>½</sup>"), lambda t: bind_units(formulas(t)))
+
+
+def bind_units(text: str) -> str:
+    """``text`` with the plain space between a number and its unit made the narrow no-break
+    space (``95 %`` → ``95\u202f%``); other spaces are left as they are."""
+    from specgen.report.fmt import UNIT_SPACE
+    return _NUMBER_UNIT.sub(UNIT_SPACE, text)
 
 
 class TypographyExtension(Extension):
