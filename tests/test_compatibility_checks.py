@@ -955,3 +955,20 @@ def test_colour_difference_step_of_a_chromatic_pair_whole():
     # the recorded means to 0.001 (the readings of each side are equal, so each mean is them)
     assert (c.quantities[0].value["panel_mean"], c.quantities[0].value["historic_mean"]) == (
         [52.346, -12.346, -20.432], [50.123, -10.988, -22.111])
+
+
+def test_compatibility_ratio_of_a_fractional_fabric_and_a_not_assessed_with_steps():
+    """A ratio over a fabric value of 2.3456789: the input shown to 5 decimals (2.34568), the
+    ratio 1 / 2.3456789 = 0.4263158 (by hand) to 5 (0.42632) and 4 in the working line; a
+    not-assessed result keeps the steps it is given."""
+    from types import SimpleNamespace as NS
+    from specgen.checks import compatibility_common as cc
+    assert cc.ratio_step("Ratio to the unit", "R", "repair strength", 1.0, "lab A",
+                         "unit strength", 2.3456789, "lab B", "MPa") == Step(
+        "Ratio to the unit", r"R = \frac{x_\mathrm{repair}}{x_\mathrm{fabric}}",
+        (Input("x_repair", "repair strength", 1.0, "MPa", "lab A"),
+         Input("x_fabric", "unit strength", 2.34568, "MPa", "lab B")),
+        r"R = \frac{1}{2.346} = 0.4263", 0.42632, "", "R")
+    step = Step("What was read", "x", (), "x = 1", 1.0, "", "x")
+    c = cc.not_assessed("COMP-SALT", "t", NS(subject="Z9/MA"), ["no readings"], steps=(step,))
+    assert (c.steps, c.message) == ((step,), "not assessed: no readings")
