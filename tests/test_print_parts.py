@@ -74,6 +74,28 @@ def test_a_section_that_changes_moves_no_cut(grow, by):
     assert f'id="calc-x-{grow}"' in changed[0]
 
 
+def test_a_chapter_of_sections_starts_each_section_but_the_first_on_a_page():
+    """A chapter declared ``sections=True`` (one section per mix or zone) is cut before each
+    top-level heading after the first, however short: one mix's new result changes its own
+    piece and no other (nested headings never cut)."""
+    def chapter(m1: str) -> str:
+        return ('<h1 id="c">4 Strength</h1>\n<p>opening</p>\n'
+                + "".join(f'<h2 id="mix-{m}">{m}</h2>\n<p>{text}</p>\n'
+                          '<div class="card"><h2>inside</h2></div>\n'
+                          for m, text in (("m1", m1), ("m2", "b"), ("m3", "c"))))
+    before, after = chapter("a"), chapter("a, and one more result")
+    cuts = _cut_points(before, 6000, sections=True)
+    assert [before[c:c + 14] for c in cuts] == ['<h2 id="mix-m2', '<h2 id="mix-m3']
+    assert _cut_points(before, 6000) == []        # undeclared, the same chapter prints whole
+    split = [_split_at(t, _cut_points(t, 6000, sections=True)) for t in (before, after)]
+    assert [a == b for a, b in zip(*split)] == [False, True, True]   # the first mix's piece only
+
+
+def _split_at(html: str, cuts: list[int]) -> list[str]:
+    bounds = [0, *cuts, len(html)]
+    return [html[a:b] for a, b in zip(bounds, bounds[1:])]
+
+
 def test_a_chapter_shorter_than_whole_is_not_cut():
     from specgen.publish.pdf import CHAPTER_WHOLE
     html = _sheets(60)

@@ -20,6 +20,7 @@ import yaml
 from specgen.errors import PublishError
 from specgen.killpoints import reached
 from specgen.publish.pdf_assembly import global_anchors
+from specgen.publish.pdf_cuts import CHAPTER_WHOLE, PART_SIZE, _cut_points  # noqa: F401
 from specgen.refdata import CONTENT_DIR
 
 PRINT_DIR = CONTENT_DIR / "print"
@@ -78,12 +79,6 @@ def _landscape_wide_tables(html: str) -> str:
                   r"(<table\b[^>]*>.*?</table>)", wrap, html, flags=re.S)
 
 
-PART_SIZE = 6_000  # characters of HTML: the least a piece of a cut chapter holds
-CUT_SPREAD = 3     # about one top-level heading in this many past PART_SIZE starts a piece
-CUT_MOST = 12      # … and a piece is cut at the first heading past this many PART_SIZE
-CHAPTER_WHOLE = 60_000  # characters: a chapter shorter than this prints whole (no page breaks added)
-
-
 @dataclass(frozen=True)
 class Piece:
     """A run of one chapter's HTML that starts a new page (``cont``: not the chapter's first)."""
@@ -95,58 +90,36 @@ class Piece:
     volume: str = "main"  # the volume it prints in: "main" or "appendix"
 
 
-def _cut_points(html: str, size: int, whole: int = CHAPTER_WHOLE) -> list[int]:
-    """Offsets of top-level ``<h2`` at which a chapter is cut into pieces (each starts a page).
-
-    A cut falls before a top-level heading chosen by the heading itself (a hash of its
-    tag, which carries its id), at least ``size`` characters after the last cut, not by
-    how long the text before it is: a section whose text changes moves no cut, so on a
-    re-issue only the piece holding it is laid out again (the others are reused byte for
-    byte).  A run with no chosen heading is cut at the first heading past
-    ``CUT_MOST × size``.  A chapter shorter than ``whole`` is not cut: the report's chapters
-    keep their flow, and only the long appendices (the calculation sheets, the check
-    register) gain page breaks.
-    """
-    cuts, depth, last = [], 0, 0
-    if len(html) < whole:
-        return cuts
-    for m in re.finditer(r"<(/?)(div|details|table|blockquote|figure|ul|ol|h2)\b", html):
-        tag = m.group(2)
-        if tag == "h2":
-            if not m.group(1) and depth == 0 and m.start() - last >= size and (
-                    _chosen(html[m.start():html.find(">", m.start()) + 1])
-                    or m.start() - last >= CUT_MOST * size):
-                cuts.append(m.start())
-                last = m.start()
-            continue
-        depth += -1 if m.group(1) else 1
-    return cuts
-
-
-def _chosen(heading_tag: str) -> bool:
-    """Whether a piece may start at this heading (about one in ``CUT_SPREAD``, stably)."""
-    return hashlib.sha256(heading_tag.encode("utf-8")).digest()[0] % CUT_SPREAD == 0
-
-
 def pieces(pageset, size: int = PART_SIZE) -> list[Piece]:
     """Every chapter of the print in navigation order, long ones cut at top-level headings.
 
     Each piece starts a new page, in the assembled dossier and in a single-document render
     alike, so the cut points are the same page breaks either way.
     """
-    import markdown
-    from specgen.publish.safety import neutralise_links
     names, configs = _extensions()
     out = []
     for item in pageset.nav:
-        md = markdown.Markdown(extensions=names, extension_configs=configs)
-        body = _relink(neutralise_links(md.convert(pageset.pages[item.path])), _stem(item.path))
-        body = _landscape_wide_tables(body)
-        bounds = [0, *_cut_points(body, size), len(body)]
+        body = _print_body(pageset.pages[item.path], _stem(item.path), names, configs)
+        bounds = [0, *_cut_points(body, size, sections=item.sections), len(body)]
         for i, (a, b) in enumerate(zip(bounds, bounds[1:])):
             out.append(Piece(_page_id(item.path), item.title, body[a:b], cont=i > 0,
                              volume=item.volume))
     return out
+
+
+def _print_body(text: str, stem: str, names: list, configs: dict) -> str:
+    """A page's Markdown as print HTML: converted with the site's extensions, its links made
+    links inside the one document, its wide tables turned.  From the artefact cache when the
+    same Markdown was converted before, so a re-issue converts only the pages that changed."""
+    from specgen import cache
+
+    def convert() -> bytes:
+        import markdown
+        from specgen.publish.safety import neutralise_links
+        md = markdown.Markdown(extensions=names, extension_configs=configs)
+        body = _relink(neutralise_links(md.convert(text)), stem)
+        return _landscape_wide_tables(body).encode("utf-8")
+    return cache.cached("print-html", [text, stem, names, configs], convert).decode("utf-8")
 
 
 def _template(name: str):

@@ -13,6 +13,7 @@ Memory stays bounded: a worker holds the layout of one part at a time.
 """
 from __future__ import annotations
 
+import functools
 import json
 import os
 from concurrent.futures import ProcessPoolExecutor
@@ -289,6 +290,7 @@ def _asset_digests(html: str, pageset) -> list:
     return out
 
 
+@functools.lru_cache(maxsize=1)   # asked once per part: the package metadata read once
 def _engine_version() -> str:
     from importlib.metadata import version
     try:

@@ -22,6 +22,7 @@ class ChapterSpec:
     fn: Callable
     in_print: bool = True
     volume: str = "main"  # "main" (the report) or "appendix" (register, sheets, listings)
+    sections: bool = False  # in print, each top-level section (a mix, a zone) starts a page
 
 
 _CHAPTERS: dict[str, ChapterSpec] = {}
@@ -64,12 +65,14 @@ VOLUMES = ("main", "appendix")
 
 
 def chapter(path: str, title: str, template: str, in_print: bool = True,
-            volume: str = "main"):
+            volume: str = "main", sections: bool = False):
     """Decorator registering a chapter; two chapters may not claim one path.  Its place is
     its position in :data:`READING_ORDER`.
 
     ``volume`` places it in the report (``main``) or in the appendices (``appendix``):
-    the site's navigation and the PDF's two volumes follow it."""
+    the site's navigation and the PDF's two volumes follow it.  ``sections``: in print, each
+    top-level section (one per mix or zone) starts a page, so a re-issue that changes one
+    mix or zone lays out only that section's pages again (``publish.pdf.pieces``)."""
     if volume not in VOLUMES:
         raise ValueError(f"chapter '{path}': volume must be one of {VOLUMES}")
 
@@ -77,7 +80,8 @@ def chapter(path: str, title: str, template: str, in_print: bool = True,
         if path in _CHAPTERS:
             raise ValueError(f"chapter path '{path}' is already registered")
         order = READING_ORDER.index(path) if path in READING_ORDER else len(READING_ORDER)
-        _CHAPTERS[path] = ChapterSpec(path, title, order, template, fn, in_print, volume)
+        _CHAPTERS[path] = ChapterSpec(path, title, order, template, fn, in_print, volume,
+                                          sections)
         return fn
     return deco
 

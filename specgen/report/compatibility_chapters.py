@@ -77,7 +77,8 @@ def _material(kind: str, m) -> dict:
             "salt_sample": salts.sample if salts is not None and salts.sample else ""}
 
 
-@chapter("compatibility.md", "Compatibility with the fabric", "compatibility.md.j2")
+@chapter("compatibility.md", "Compatibility with the fabric", "compatibility.md.j2",
+         sections=True)  # a zone a page
 def compatibility(env) -> dict:
     p = env.project
     zones = [_zone(env, z) for z in p.dossier.zones if z.candidates]

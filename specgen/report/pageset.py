@@ -12,6 +12,7 @@ class NavItem:
     title: str
     path: str
     volume: str = "main"  # "main" (the report) or "appendix"
+    sections: bool = False  # in print, each top-level section starts a page
 
 
 @dataclass
@@ -45,12 +46,13 @@ class PageSet:
     # construction", "Superseded by R4") and the cover's sign-off rows
     marks: dict = field(default_factory=dict)
 
-    def add_page(self, path: str, title: str, text: str, volume: str = "main") -> None:
+    def add_page(self, path: str, title: str, text: str, volume: str = "main",
+                 sections: bool = False) -> None:
         if path in self.pages:
             raise ValueError(f"page '{path}' is produced twice")
         self.pages[path] = text
         self.titles[path] = title
-        self.nav.append(NavItem(title, path, volume))
+        self.nav.append(NavItem(title, path, volume, sections))
 
     def add_asset(self, path: str, data: bytes) -> str:
         """Store an asset once; returns its path (identical content may be added again)."""

@@ -224,7 +224,7 @@ def _lay_out(env: RenderEnv, jenv, base: dict, first: set[str] | None) -> None:
             ctx["narrative"] = _narrative_for(
                 env.project, "introduction" if stem == "index" else stem)
             pageset.add_page(path, title, jenv.get_template(spec.template).render(**ctx),
-                             volume=spec.volume)
+                             volume=spec.volume, sections=spec.sections)
             if waiting is not None:
                 waiting.discard(path)
 

@@ -102,7 +102,8 @@ def _findings(checks) -> list[Markup]:
             for status in ("fail", "hold", "attention") for c in checks if c.status == status]
 
 
-@chapter("options.md", "Options appraised, check by check", "options.md.j2", volume="appendix")
+@chapter("options.md", "Options appraised, check by check", "options.md.j2", volume="appendix",
+         sections=True)  # a zone a page
 def options(env) -> dict:
     """Every candidate of each zone against every check that applies to it (the
     specification chapter gives the choice and its reason; this is the full table)."""
@@ -175,6 +176,7 @@ def _basis_words(basis) -> str:
 def _plain_document(env, jenv, template: str, stem: str, title: str, **ctx) -> str:
     """Render one plain document (Markdown) and publish it as .md, .html (for the zone
     exports) and .docx, from the same text."""
+    from specgen import cache
     from specgen.report.specification_docx import docx_bytes, marking
     from specgen.report.specification_export import html_fragment
     p = env.project
@@ -185,8 +187,10 @@ def _plain_document(env, jenv, template: str, stem: str, title: str, **ctx) -> s
     md = md.replace("&#39;", "'").replace("&#34;", '"')  # quotes are plain text here
     mark, date = f"{p.dossier.project.code}, {marking(p.revision)}", p.revision.date
     # the Markdown converted when the DOCX is made (the live preview makes it after the site)
-    env.pageset.add_download(f"{stem}.docx", lambda: docx_bytes(
-        html_fragment(md), title=title, mark=mark, date=date))
+    # kept in the artefact cache by its text: a re-issue that leaves it alone makes it no more
+    env.pageset.add_download(f"{stem}.docx", lambda: cache.cached(
+        "docx", [md, title, mark, date.isoformat()],
+        lambda: docx_bytes(html_fragment(md), title=title, mark=mark, date=date)))
     return md
 
 

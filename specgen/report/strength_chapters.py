@@ -24,7 +24,7 @@ TERMS = {"early_fraction": ("early (fast-stage) fraction", ""),
 METHOD_NAMES = {"arrhenius": "Arrhenius", "nurse_saul": "Nurse–Saul"}
 
 
-@chapter("strength.md", "Strength development", "strength.md.j2")
+@chapter("strength.md", "Strength development", "strength.md.j2", sections=True)  # a mix a page
 def strength(env) -> dict:
     p, r = env.project, env.results
     rules = r.rules  # the rules in force for the checks
@@ -64,7 +64,7 @@ def _mix(env, mix, rules) -> dict:
 
 
 @chapter("strength-detail.md", "Strength records in detail", "strength_detail.md.j2",
-         volume="appendix")
+         volume="appendix", sections=True)
 def strength_detail(env) -> dict:
     """The record behind the strength chapter, per mix: results per age, the prior and the
     data together, the least-squares models compared, and the residuals."""
