@@ -155,9 +155,10 @@ def large_build(project: Path, out: Path) -> LargeBuild:
                       stages=_stages(done["marks"], samples))
 
 
-def print_large(f: LargeBuild) -> None:
-    """The large build's lines of the benchmark's output."""
-    print(f"(f) build, 200 mixes (site + PDF)   {f.wall:7.1f} s   CPU {f.cpu:7.1f} s; peak memory "
+def print_large(f: LargeBuild, label: str = "200 mixes") -> None:
+    """The large build's lines of the benchmark's output: the whole, then the wall and CPU
+    seconds from each progress step to the next."""
+    print(f"(f) build, {label} (site + PDF)   {f.wall:7.1f} s   CPU {f.cpu:7.1f} s; peak memory "
           f"of the process tree {f.pss_mib:6.0f} MiB PSS ({f.rss_mib:.0f} MiB RSS summed, "
           f"largest process {f.largest_mib:.0f} MiB); projected on {CORES} idle cores "
           f"{f.projected:6.1f} s")
@@ -166,4 +167,4 @@ def print_large(f: LargeBuild) -> None:
 
 
 if __name__ == "__main__":   # python3 -m specgen.bench_large PROJECT OUT: the large build alone
-    print_large(large_build(Path(sys.argv[1]), Path(sys.argv[2])))
+    print_large(large_build(Path(sys.argv[1]), Path(sys.argv[2])), label=sys.argv[1])

@@ -861,6 +861,13 @@ def test_colour_spread_shown_to_four_decimals():
     assert (c.steps[0].result, c.steps[1].result) == (1.9935, 0.0)
     assert (c.quantities[0].value["panel_spread"],
             c.quantities[0].value["historic_spread"]) == (1.9935, 0.0)
+    # the same readings the other way round: the historic mortar's spread shown alike
+    rows = [("MA", 52.0, 0.0, 0.0, "D65", "10")] * 3 + [
+        ("H9", 50.0, 0.0, 0.0, "D65", "10"), ("H9", 54.0, 0.0, 0.0, "D65", "10")]
+    c = _colour_of(rows)[0]
+    assert (c.steps[0].result, c.steps[1].result) == (0.0, 1.9935)
+    assert (c.quantities[0].value["panel_spread"],
+            c.quantities[0].value["historic_spread"]) == (0.0, 1.9935)
 
 
 def test_colour_not_assessed_results_carry_the_title_and_basis():
@@ -945,3 +952,23 @@ def test_colour_difference_step_of_a_chromatic_pair_whole():
         rf" + ({dH:.3f}/{sh:.3f})^2 + ({rt:.4f})\,\ldots}} = {de:.3f}")
     assert (step.result, c.value, c.quantities[0].value["value"]) == (
         round(de, 4), round(de, 3), round(de, 4))
+    # the recorded means to 0.001 (the readings of each side are equal, so each mean is them)
+    assert (c.quantities[0].value["panel_mean"], c.quantities[0].value["historic_mean"]) == (
+        [52.346, -12.346, -20.432], [50.123, -10.988, -22.111])
+
+
+def test_compatibility_ratio_of_a_fractional_fabric_and_a_not_assessed_with_steps():
+    """A ratio over a fabric value of 2.3456789: the input shown to 5 decimals (2.34568), the
+    ratio 1 / 2.3456789 = 0.4263158 (by hand) to 5 (0.42632) and 4 in the working line; a
+    not-assessed result keeps the steps it is given."""
+    from types import SimpleNamespace as NS
+    from specgen.checks import compatibility_common as cc
+    assert cc.ratio_step("Ratio to the unit", "R", "repair strength", 1.0, "lab A",
+                         "unit strength", 2.3456789, "lab B", "MPa") == Step(
+        "Ratio to the unit", r"R = \frac{x_\mathrm{repair}}{x_\mathrm{fabric}}",
+        (Input("x_repair", "repair strength", 1.0, "MPa", "lab A"),
+         Input("x_fabric", "unit strength", 2.34568, "MPa", "lab B")),
+        r"R = \frac{1}{2.346} = 0.4263", 0.42632, "", "R")
+    step = Step("What was read", "x", (), "x = 1", 1.0, "", "x")
+    c = cc.not_assessed("COMP-SALT", "t", NS(subject="Z9/MA"), ["no readings"], steps=(step,))
+    assert (c.steps, c.message) == ((step,), "not assessed: no readings")

@@ -298,3 +298,13 @@ def test_swatch_just_beyond_the_matrix_rounding_is_clipped():
     assert ref[1] > 1.0 + 4 * 1.52e-4
     sw = lab_to_srgb((100.0, -0.1, 0.0))
     assert sw.clipped and sw.rgb[1] == pytest.approx(1.0, abs=1e-12)      # clipped to 1
+
+
+def test_the_srgb_blue_primary_is_in_gamut_with_a_channel_at_zero():
+    # the sRGB primary blue (0, 0, 1) in CIELAB by colour-science (about 32.30, 79.20, −107.85):
+    # back through the four-decimal IEC matrix its linear green is a rounding away from 0
+    # (within the matrix's tolerance), so the swatch is the primary itself, not clipped
+    lab = colour.XYZ_to_Lab(colour.sRGB_to_XYZ([0.0, 0.0, 1.0]))
+    sw = lab_to_srgb(tuple(lab))
+    assert sw.hex == "#0000ff"
+    assert sw.clipped is False
