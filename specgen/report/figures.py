@@ -4,7 +4,9 @@ matplotlib is imported inside the functions so that ``specgen check`` never load
 """
 from __future__ import annotations
 
+import hashlib
 import io
+import re
 
 from specgen.cache import figure
 from specgen.report.fmt import num
@@ -27,7 +29,31 @@ def to_svg(fig) -> bytes:
     fig.savefig(buf, format="svg", metadata={"Date": None, "Creator": "specgen"},
                 bbox_inches="tight")
     _pyplot().close(fig)
-    return buf.getvalue()
+    return stable_ids(buf.getvalue())
+
+
+#: a clip path or hatch pattern matplotlib defines in an SVG, with its whole definition
+_DEFINED = re.compile(rb'<(clipPath|pattern) id="([ph][0-9a-f]{10})"(.*?)</\1>', re.S)
+
+
+def stable_ids(svg: bytes) -> bytes:
+    """The SVG with each clip path and hatch pattern named by a hash of its definition as
+    written.  matplotlib names them by a hash of the unrounded numbers behind them (and their
+    printed form), which varied between processes for the same drawing: the same figure came
+    out with other ids and so other bytes, breaking "same inputs, same bytes"."""
+    names = {}
+    for m in _DEFINED.finditer(svg):
+        body, n = m.group(1) + m.group(3), 0
+        while True:    # two definitions written alike keep two names (in drawing order)
+            name = m.group(2)[:1] + hashlib.sha256(body + b"#%d" % n).hexdigest()[:10].encode()
+            if name not in names.values():
+                break
+            n += 1
+        names[m.group(2)] = name
+    if not names:
+        return svg
+    old = re.compile(rb'(id="|url\(#)(' + b"|".join(map(re.escape, names)) + rb')\b')
+    return old.sub(lambda m: m.group(1) + names[m.group(2)], svg)
 
 
 #: what a placeholder says while its figure is drawn, and once the drawing failed
