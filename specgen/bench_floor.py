@@ -20,8 +20,8 @@ def _floor(project: Path, work: Path):
     (the archived ones from ``issued/``, oldest first, then the current one) our render pass
     with every cache off (matplotlib figures, ziamath math), plain ``mkdocs build`` of its
     Markdown written to disk, and one plain WeasyPrint render of its print HTML with the
-    build's PDF options (PDF/A-3a, metadata).  Until 2026-12-05 the floor did the current
-    revision alone, while a cold build of the demo publishes three."""
+    build's PDF options (PDF/A-3a, metadata).  The benchmark's copy of the demo leaves out
+    ``issued/``, so there both the build and the floor do the current revision alone."""
     from specgen.build import _load_archive, check, load
     from specgen.checks.builtin import evaluate, previous_of
     from specgen.publish import _print_context
