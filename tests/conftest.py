@@ -207,14 +207,7 @@ def shared_cache(request):
     (``SPECGEN_SHARED_CACHE``, inherited by the builds run as subprocesses): a figure,
     formula or PDF part drawn once is not drawn again for another output folder.  A test
     about a cold build removes it (``monkeypatch.delenv``)."""
-    folder = _cache_folder(request.config)
-    before = os.environ.get("SPECGEN_SHARED_CACHE")
-    os.environ["SPECGEN_SHARED_CACHE"] = str(folder)
-    yield folder
-    if before is None:
-        os.environ.pop("SPECGEN_SHARED_CACHE", None)
-    else:
-        os.environ["SPECGEN_SHARED_CACHE"] = before
+    yield from _environ("SPECGEN_SHARED_CACHE", _cache_folder(request.config))
 
 
 @pytest.fixture(scope="session", autouse=True)
@@ -222,14 +215,19 @@ def user_cache_home(tmp_path_factory):
     """The user's cache folder of the run's commands (``XDG_CACHE_HOME``: the fit cache of
     ``specgen check``, fit_cache.py) in a folder of the run, so the suite never writes to
     the real ``~/.cache``."""
-    folder = tmp_path_factory.mktemp("user-cache")
-    before = os.environ.get("XDG_CACHE_HOME")
-    os.environ["XDG_CACHE_HOME"] = str(folder)
+    yield from _environ("XDG_CACHE_HOME", tmp_path_factory.mktemp("user-cache"))
+
+
+def _environ(name: str, folder: Path):
+    """Set ``name`` to ``folder`` for the run (builds run as subprocesses inherit it), yield
+    the folder, then put back what was there."""
+    before = os.environ.get(name)
+    os.environ[name] = str(folder)
     yield folder
     if before is None:
-        os.environ.pop("XDG_CACHE_HOME", None)
+        os.environ.pop(name, None)
     else:
-        os.environ["XDG_CACHE_HOME"] = before
+        os.environ[name] = before
 
 
 @pytest.fixture(scope="session")

@@ -91,12 +91,29 @@ def _problems(project_dir) -> list[str]:
     return [str(p) for p in exc.value.problems]
 
 
-def _edit(workbook, change) -> list[str]:
+def _save_changed(workbook, change):
+    """The planned workbook with ``change`` made, saved as the project's lab results."""
     project_dir, path, _ = workbook
     wb = openpyxl.load_workbook(path)
     change(wb)
-    wb.save(project_dir / "lab" / "results.xlsx")
-    return _problems(project_dir)
+    target = project_dir / "lab" / "results.xlsx"
+    wb.save(target)
+    return target
+
+
+def _edit(workbook, change) -> list[str]:
+    _save_changed(workbook, change)
+    return _problems(workbook[0])
+
+
+def _read_as_project(target):
+    """(sheet, table, letters, pending) of each sheet read, and the located messages."""
+    from specgen.errors import ProblemLog
+    from specgen.project import workbook as wbmod
+    log = ProblemLog()
+    sheets = wbmod.read_workbook(target, "lab/results.xlsx", log)
+    return ([(s.sheet, s.table, s.letters, s.pending) for s in sheets],
+            [str(p) for p in log.problems])
 
 
 W = "lab/results.xlsx, sheet 'strength'"
@@ -235,19 +252,11 @@ def test_calamine_and_openpyxl_read_the_same(workbook, monkeypatch, case, change
     """The fast reader (calamine) and openpyxl, the reference, give the same rows, the same
     planned tests and the same located messages for the same workbook."""
     from specgen.project import workbook as wbmod
-    from specgen.errors import ProblemLog
-    project_dir, path, _ = workbook
-    wb = openpyxl.load_workbook(path)
-    change(wb)
-    target = project_dir / "lab" / "results.xlsx"
-    wb.save(target)
+    target = _save_changed(workbook, change)
     seen = []
     for reader in (wbmod._grids_calamine, wbmod._grids_openpyxl):
         monkeypatch.setattr(wbmod, "_grids_calamine", reader)
-        log = ProblemLog()
-        sheets = wbmod.read_workbook(target, "lab/results.xlsx", log)
-        seen.append(([(s.sheet, s.table, s.letters, s.pending) for s in sheets],
-                     [str(p) for p in log.problems]))
+        seen.append(_read_as_project(target))
     assert seen[0] == seen[1]
     tables, problems = seen[0]
     assert tables[0][3] or tables[0][1]   # something was read from the strength sheet
@@ -371,20 +380,12 @@ def test_parts_inflated_from_memory_are_the_parts_zipfile_reads(workbook):
 def test_column_pass_and_cell_by_cell_read_the_same(workbook, monkeypatch, case, change):
     """Rows are read column by column, a row with an unusual cell again cell by cell; with
     every row sent cell by cell the rows, planned tests and located messages are the same."""
-    from specgen.errors import ProblemLog
     from specgen.project import workbook as wbmod
-    project_dir, path, _ = workbook
-    wb = openpyxl.load_workbook(path)
-    change(wb)
-    target = project_dir / "lab" / "results.xlsx"
-    wb.save(target)
+    target = _save_changed(workbook, change)
     seen = []
     for every_cell in (False, True):
         if every_cell:
             monkeypatch.setattr(wbmod, "_column_text", lambda cells, *_: [None] * len(cells))
-        log = ProblemLog()
-        sheets = wbmod.read_workbook(target, "lab/results.xlsx", log)
-        seen.append(([(s.sheet, s.table, s.letters, s.pending) for s in sheets],
-                     [str(p) for p in log.problems]))
+        seen.append(_read_as_project(target))
     assert seen[0] == seen[1]
     assert seen[0][0][0][1] or seen[0][0][0][3]   # the strength sheet gave rows or plans

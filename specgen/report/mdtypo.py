@@ -13,6 +13,8 @@ import re
 from markdown import Extension
 from markdown.postprocessors import Postprocessor
 
+from specgen.report import fmt
+
 #: elements whose text is code, markup of its own or an address: never retouched
 KEEP_TAGS = {"code", "pre", "kbd", "samp", "script", "style", "svg", "math", "textarea"}
 #: a container quoting input as it was given (file names, hashes), or a formula's image
@@ -21,11 +23,13 @@ KEEP_CLASSES = {"sg-input-listing", "sg-hash", "sg-math"}
 VOID = {"area", "br", "col", "embed", "hr", "img", "input", "link", "meta", "source", "wbr"}
 
 _TAG = re.compile(r"<(/?)([a-zA-Z][\w-]*)([^>]*)>")
-#: a number, a plain space and a unit symbol (or %): the space becomes the narrow no-break
-#: space :data:`specgen.report.fmt.UNIT_SPACE`, as :func:`fmt.qty` writes it, so a value
-#: the checks wrote with a plain space ("95 %", "28 d") never wraps away from its unit
-_NUMBER_UNIT = re.compile(
-    r"(?<=\d) (?=(?:%|‰|MPa|GPa|N/mm²|kg/m³|mm|cm|µm|m²|m³|m|kg|g|°C|K|d|h|min)(?![\w²³/]))")
+#: a number, a plain space and a unit symbol the formatter knows (:data:`fmt.PRECISION`,
+#: :data:`fmt.UNIT_SYMBOLS`) or %: the space becomes the narrow no-break space
+#: :data:`fmt.UNIT_SPACE`, as :func:`fmt.qty` writes it, so a value the checks wrote with a
+#: plain space ("95 %", "28 d") never wraps away from its unit (longest symbol tried first)
+_NUMBER_UNIT = re.compile(r"(?<=\d) (?=(?:" + "|".join(
+    re.escape(u) for u in sorted({*fmt.PRECISION, *fmt.UNIT_SYMBOLS.values()} - {"", "count"},
+                                 key=len, reverse=True)) + r")(?![\w²³/]))")
 _CLASS = re.compile(r"""\bclass\s*=\s*(?:"([^"]*)"|'([^']*)')""")
 
 
@@ -67,8 +71,7 @@ class _Typography(Postprocessor):
 def bind_units(text: str) -> str:
     """``text`` with the plain space between a number and its unit made the narrow no-break
     space (``95 %`` → ``95\u202f%``); other spaces are left as they are."""
-    from specgen.report.fmt import UNIT_SPACE
-    return _NUMBER_UNIT.sub(UNIT_SPACE, text)
+    return _NUMBER_UNIT.sub(fmt.UNIT_SPACE, text)
 
 
 class TypographyExtension(Extension):
