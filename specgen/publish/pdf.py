@@ -233,26 +233,22 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
                            "with a placeholder. Fix: draw them first (PageSet.draw).")
     vols = volumes(pieces(pageset), target, appendix)
     files = [(name, data, stamp) for name, data in sorted(attachments.items())]
-    reused = total = 0
-    done = {}
     with Printer(pageset, workers) as printer:
-        # both volumes' parts queued at once, costliest first: no core waits between volumes
+        # both volumes' parts queued at once: no core waits between volumes
         jobs = {v.key: _volume_jobs(printer, v, context, page_size) for v in vols}
-        queue = sorted(((-cost, n, i), submit) for n, job in enumerate(jobs.values())
-                       for i, (cost, submit) in enumerate(job["parts"]))
-        for _order, submit in queue:
-            submit()
-        grand, before = sum(len(j["groups"]) for j in jobs.values()), 0
-        for v in vols:  # with ``appendix``: the report, then its appendices (own contents)
+        for job in jobs.values():
+            for cost, submit in job["parts"]:
+                submit(cost + job["tail"])
+        finals = {}
+        for v in vols:
             ident = identifier if v.key == "main" or identifier is None else \
                 hashlib.sha256(identifier + b"/appendix").digest()[:16]
-            final = dict(attachments=files, pdf_identifier=ident) if v.key == "main" else \
-                dict(pdf_identifier=ident)
-            counted = on_part and (lambda i, _n, b=before: on_part(b + i, grand))
-            done[v.key] = _print_volume(printer, jobs[v.key], page_size, counted, final)
-            before += len(jobs[v.key]["groups"])
-            reused += sum(1 for p in done[v.key][1] if not p.seconds)
-            total += len(done[v.key][1])
+            finals[v.key] = dict(attachments=files, pdf_identifier=ident) if v.key == "main" \
+                else dict(pdf_identifier=ident)
+        _collect(printer, jobs, page_size, on_part, finals)
+        done = {k: (job["tail_work"].front(), job["printed"], job["tail_work"].stamps())
+                for k, job in jobs.items()}
+    # put together once the workers have ended: the assembly's memory is not added to theirs
     anchors = {k: global_anchors([d[0], *d[1]]) for k, d in done.items()}
     for v in vols:
         other = [o for o in vols if o is not v]
@@ -261,13 +257,15 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
                   for _p, kind, t, _r in doc.links if kind == "internal" and t in anchors[v.key]}
         _assembled(*done[v.key], v.target, foreign, linked)
     reached("pdf-assembled")
-    return reused, total
+    printed = [p for job in jobs.values() for p in job["printed"]]
+    return sum(1 for p in printed if not p.seconds), len(printed)
 
 
 def _volume_jobs(printer, v, context: dict, page_size: str) -> dict:
     """One volume's print: its contents laid out once with placeholder numbers (submitted
-    now), and its parts as (expected CPU seconds, submit) for the caller to queue."""
-    from specgen.publish.pdf_parts import Timings, cached_or_submitted
+    now, first), its parts as (expected CPU seconds, submit(priority)) for the caller to
+    queue, and ``tail``: the expected CPU seconds of what waits on all its parts."""
+    from specgen.publish.pdf_parts import Timings, cached_or_submitted, weight
     every = v.pieces
     css = stylesheet(page_size, "parts.css", "control.css")
     ctx = dict(context, volume=VOLUME_WORDS[v.key], other_name=v.other_name)
@@ -275,63 +273,102 @@ def _volume_jobs(printer, v, context: dict, page_size: str) -> dict:
     timings = Timings.load([_part_name(g, every) for g in groups],
                            getattr(context.get("project"), "code", "") + v.name)
 
-    def front(numbers, **extra):
+    def front(numbers, priority=FIRST, **extra):
         return cached_or_submitted(printer, "pdf-front", document_html(
             ctx, [], front=True, toc=every, toc_pages=numbers, elsewhere=v.other), css,
-            **PDF_OPTIONS, **extra)
+            priority, **PDF_OPTIONS, **extra)
     handles: dict[int, object] = {}
+    html = [document_html(ctx, g, front=False) for g in groups]
 
     def submitter(i):
-        def submit():
-            handles[i] = cached_or_submitted(printer, "pdf-part", document_html(
-                ctx, groups[i], front=False), css, **PDF_OPTIONS)
+        def submit(priority):
+            handles[i] = cached_or_submitted(printer, "pdf-part", html[i], css, priority,
+                                             **PDF_OPTIONS)
         return submit
-    costs = timings.costs([sum(len(p.html) for p in g) for g in groups])
+    costs = timings.costs([weight(h, printer.pageset) for h in html])
     return {"ctx": ctx, "every": every, "groups": groups, "timings": timings, "front": front,
             "guess": front({p.id: PLACEHOLDER_PAGE for p in every}), "handles": handles,
-            "parts": [(costs[i], submitter(i)) for i in range(len(groups))]}
+            "parts": [(costs[i], submitter(i)) for i in range(len(groups))],
+            "tail": timings.tail(costs)}
 
 
-def _print_volume(printer, job: dict, page_size: str, on_part, final: dict):
-    """One volume's (front, printed parts, stamps); its parts queued by :func:`_volume_jobs`."""
-    groups, handles = job["groups"], job["handles"]
-    printed = []
-    for i in range(len(groups)):
-        printed.append(handles[i].result())
-        reached(f"pdf-part-{i + 1}")
-        if on_part is not None:
-            on_part(i + 1, len(groups))
-    job["timings"].keep([p.seconds for p in printed])
-    front_doc, stamps = _front_and_stamps(job["front"], printer, job["ctx"], page_size,
-                                          job["every"], printed, len(job["guess"].result().pages),
-                                          final)
-    return front_doc, printed, stamps
+FIRST = 1e9   # priority of what the rest waits on: the contents, then the running heads
+
+
+def _collect(printer, jobs: dict, page_size: str, on_part, finals: dict) -> None:
+    """Wait for the parts of every volume as they come back, in any order (counted over both
+    volumes for ``on_part``); as soon as a volume's parts are all laid out, its contents
+    with their page numbers and its running heads go to the next free worker (``FIRST``),
+    beside the other volume's remaining parts.  Sets each job's ``printed`` and
+    ``tail_work`` (:class:`_Tail`)."""
+    grand = sum(len(j["groups"]) for j in jobs.values())
+    counted = 0
+    while True:
+        ready = sum(1 for j in jobs.values() for h in j["handles"].values() if h.done())
+        while counted < ready:
+            counted += 1
+            reached(f"pdf-part-{counted}")
+            if on_part is not None:
+                on_part(counted, grand)
+        for key, job in jobs.items():
+            if "printed" not in job and all(h.done() for h in job["handles"].values()):
+                job["printed"] = [job["handles"][i].result() for i in range(len(job["groups"]))]
+                job["tail_work"] = _Tail(job, printer, page_size, finals[key])
+        if all("printed" in j for j in jobs.values()):
+            return
+        if printer.pool is None:   # printed here, one at a time, as asked
+            next(h for j in jobs.values() for h in j["handles"].values() if not h.done()).result()
+        else:
+            printer.wait_any()
+
+
+class _Tail:
+    """A volume's front matter with the chapters' page numbers, and its running-head stamps:
+    submitted when made, waited for by :meth:`front` and :meth:`stamps`."""
+
+    def __init__(self, job: dict, printer, page_size: str, final: dict):
+        self.job, self.printer, self.page_size, self.final = job, printer, page_size, final
+        self.sizes = [size for doc in job["printed"] for size in doc.pages]
+        self.length = len(job["guess"].result().pages)
+        self._submit()
+        self._done = None
+
+    def _submit(self) -> None:
+        job = self.job
+        anchors = global_anchors(job["printed"], start=self.length)
+        numbers = {p.id: anchors[p.id][0] + 1 for p in job["every"] if p.id in anchors}
+        self.handle = job["front"](numbers, **self.final)
+        self.stamp_handles = _stamps(self.printer, job["ctx"], self.page_size, self.length,
+                                     self.sizes)
+
+    def front(self):
+        """The front matter (its length checked against the one the numbers assumed)."""
+        for _ in range(3):  # the contents' length does not depend on its numbers, but check
+            done = self.handle.result()
+            if len(done.pages) == self.length:
+                self._done = done
+                break
+            self.length = len(done.pages)
+            self._submit()
+        else:
+            raise PublishError("the contents pages changed length with their page numbers "
+                               "three times; nothing was changed in the output folder. Fix: "
+                               "report this with the project.")
+        reached("pdf-front")
+        return self._done
+
+    def stamps(self) -> list:
+        """The running-head stamps (after :meth:`front`); their time kept with the parts'."""
+        stamps = [s.result() for s in self.stamp_handles]
+        self.job["timings"].keep([p.seconds for p in self.job["printed"]],
+                                 sum(s.seconds for s in stamps))
+        return stamps
 
 
 def _part_name(group: list[Piece], every: list[Piece]) -> str:
     """A part's name from one build to the next: its first piece's chapter and place in it."""
     first = group[0]
     return f"{first.id}#{sum(1 for p in every[:every.index(first)] if p.id == first.id)}"
-
-
-def _front_and_stamps(front, printer, context, page_size, every, printed, length, final):
-    """The front matter with the chapters' page numbers, and the running-head stamps."""
-    sizes = [size for doc in printed for size in doc.pages]
-    for _ in range(3):  # the contents' length does not depend on its numbers, but check
-        anchors = global_anchors(printed, start=length)
-        numbers = {p.id: anchors[p.id][0] + 1 for p in every if p.id in anchors}
-        handle = front(numbers, **final)
-        stamps = _stamps(printer, context, page_size, length, sizes)
-        done = handle.result()
-        if len(done.pages) == length:
-            break
-        length = len(done.pages)
-    else:
-        raise PublishError("the contents pages changed length with their page numbers "
-                           "three times; nothing was changed in the output folder. Fix: "
-                           "report this with the project.")
-    reached("pdf-front")
-    return done, [s.result() for s in stamps]
 
 
 def _assembled(front, printed, stamps, target, foreign=None, exported=frozenset()) -> None:
@@ -369,5 +406,6 @@ def _stamps(printer, context, page_size: str, front_pages: int, sizes: list) -> 
     folio = context.get("volume", VOLUME_WORDS["main"])["folio"]
     return [cached_or_submitted(printer, "pdf-stamp", tpl.render(
         pages=pages[i:i + STAMP_SPLIT], total=total, title=context["title"], project=project,
-        folio=folio, revision=revision, mark=context.get("mark", "")), css, **PDF_OPTIONS)
+        folio=folio, revision=revision, mark=context.get("mark", "")), css, FIRST - 1,
+        **PDF_OPTIONS)
         for i in range(0, total, STAMP_SPLIT)]
