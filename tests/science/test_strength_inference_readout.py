@@ -10,6 +10,7 @@ import math
 
 import numpy as np
 import pytest
+from scipy import stats
 
 from specgen import refdata
 from specgen.science import strength_inference as si
@@ -288,3 +289,42 @@ def test_the_prior_gain_range_is_the_weighted_quantile_written_out(age, level):
     if level < 1:
         assert si.prior_gain_interval(NC, age, level, draws=500, rng_state=3) == \
             pytest.approx(_prior_gain_range(NC, age, level, 500, 3), rel=1e-9)
+
+
+def test_a_long_age_list_takes_its_bands_from_48_log_spaced_ages_written_out():
+    # more ages than si.NODES (48): the module docstring's rule written out.  At 48 ages
+    # log-spaced from the first to the last (numpy.geomspace) the band's edges are numpy's
+    # inverted-CDF quantiles of ln f over the draws, and the set's of the predictive mixture
+    # ln f(t; z_i) + T·e, e = sqrt(σb² + σw²/n) interpolated in ln t to those ages, T the
+    # stratified Student-t variates (scipy.stats.t.ppf at (i + ½)/4000, shuffled by numpy's
+    # generator at state 20261, four per draw, 10 dof); each edge's offset from ln f at the
+    # mode is then interpolated in ln t to every age asked.  48 ages exactly: at the ages.
+    # The 50 % level: its probabilities 0.25 and 0.75 are exact in binary (see the band from
+    # draws above), so the ranks are numpy's without rounding.
+    rng = np.random.default_rng(12)
+    draws = MODE + rng.multivariate_normal(np.zeros(5), COV, si.KEPT)
+    inf = _inference(draws)
+
+    def ln_law(t, v):
+        return np.log(_law(t, math.exp(v[0]), 1 / (1 + math.exp(-v[1])), math.exp(v[2]),
+                           math.exp(v[3]), math.exp(v[4])))
+    u = (np.arange(4000) + 0.5) / 4000
+    noise = stats.t.ppf(np.random.default_rng(20261).permutation(u), 10.0)
+    for size in (60, 48):
+        t = np.sort(rng.uniform(0.5, 400.0, size))
+        n = rng.choice([1.0, 3.0, 6.0], size)
+        e = np.sqrt(0.08 ** 2 + 0.05 ** 2 / n)
+        nodes = t if size <= 48 else np.geomspace(t[0], t[-1], 48)
+        lf = np.array([ln_law(nodes, v) for v in draws])             # draws x nodes
+        en = np.interp(np.log(nodes), np.log(t), e)
+        mix = [lf[:, j][None, :] + en[j] * noise.reshape(4, -1) for j in range(nodes.size)]
+        edges = {"mean_lo": np.quantile(lf, 0.25, axis=0, method="inverted_cdf"),
+                 "mean_hi": np.quantile(lf, 0.75, axis=0, method="inverted_cdf"),
+                 "pred_lo": np.array([np.quantile(x, 0.25, method="inverted_cdf") for x in mix]),
+                 "pred_hi": np.array([np.quantile(x, 0.75, method="inverted_cdf") for x in mix])}
+        shuffled = rng.permutation(size)          # the ages asked in any order
+        got = si.bands(inf, t[shuffled], 0.5, n[shuffled])
+        m = ln_law(t, MODE)
+        for k, edge in edges.items():
+            want = m + np.interp(np.log(t), np.log(nodes), edge - ln_law(nodes, MODE))
+            assert got[k] == pytest.approx(np.exp(want[shuffled]), rel=1e-9), (size, k)
