@@ -409,14 +409,17 @@ def sample_names(names_by_module: dict[str, list[str]], size: float,
     the module when ``0 < size < 1``, rounded up; the whole module when it has no more),
     drawn by ``random.Random`` from the random state ``rng_state`` and the module's name, so
     the draw of one module does not depend on which others are drawn with it.  Names are
-    sorted before the draw (the meta files' order does not matter) and in the result."""
+    sorted before the draw (the meta files' order does not matter); the result keeps the
+    order of the draw, so that every prefix of it is itself a simple random sample (what
+    ``random.sample`` promises of its sub-slices): a run may go through the draw in passes
+    (``--upto``) and stop between them."""
     import random
     out = {}
     for module in sorted(names_by_module):
         names = sorted(set(names_by_module[module]))
         n = ceil(size * len(names)) if 0 < size < 1 else int(size)
         rng = random.Random(f"{rng_state}:{module}")
-        out[module] = sorted(rng.sample(names, min(n, len(names))))
+        out[module] = rng.sample(names, min(n, len(names)))
     return out
 
 
@@ -473,34 +476,42 @@ def _record(code: int) -> int:
 
 
 def sample(scope: str, modules: list[str], workdir: Path, size: float, rng_state: int,
-           tests: list[str] = ()) -> None:
-    """Per module, in ``workdir/MODULE``: a fresh scratch copy, its mutants made, a sample
-    drawn (``sample.json``) and run (:func:`sample_run`, in a fresh interpreter)."""
+           tests: list[str] = (), upto: int | None = None) -> None:
+    """Per module, in ``workdir/MODULE``: a fresh scratch copy, its mutants made and a sample
+    drawn (``sample.json``), then the first ``upto`` of the draw run (all when None;
+    :func:`sample_run`, in a fresh interpreter).  A module whose draw of the same size and
+    random state is already there is not made again: the run goes on where it stopped."""
     for module in modules:
         wd = workdir / module
-        prepare(scope, wd, [module], tests)
-        names = generate(wd)
-        picked = sample_names({module: names.get(module, [])}, size, rng_state)[module]
-        (wd / "sample.json").write_text(json.dumps(
-            {"module": module, "size": size, "rng_state": rng_state,
-             "mutants": len(names.get(module, [])), "names": picked,
-             "tests": tests_for(scope, [module], tests)}, indent=1), "utf-8")
-        print(f"{module}: {len(picked)} of {len(names.get(module, []))} mutants", flush=True)
+        drawn = wd / "sample.json"
+        old = json.loads(drawn.read_text("utf-8")) if drawn.exists() else {}
+        if (old.get("size"), old.get("rng_state")) != (size, rng_state):
+            prepare(scope, wd, [module], tests)
+            names = generate(wd).get(module, [])
+            picked = sample_names({module: names}, size, rng_state)[module]
+            drawn.write_text(json.dumps(
+                {"module": module, "size": size, "rng_state": rng_state,
+                 "mutants": len(names), "names": picked,
+                 "tests": tests_for(scope, [module], tests)}, indent=1), "utf-8")
+            print(f"{module}: {len(picked)} of {len(names)} mutants drawn", flush=True)
         env = {k: v for k, v in os.environ.items() if k != "PYTHONPATH"}
         subprocess.run([sys.executable, str(Path(__file__).resolve()), "sample-run", scope,
-                        "--workdir", str(wd)], env=env, check=True)
+                        "--workdir", str(wd)] + ([] if upto is None else ["--upto", str(upto)]),
+                       env=env, check=True)
 
 
-def sample_run(scope: str, workdir: Path) -> None:
-    """Run the mutants drawn in ``workdir/sample.json`` against the module's selection, each
-    in a child forked from one warm process (:func:`_forked`): a mutant survives only if
-    every selected test passes; its exit code goes into mutmut's meta file (the mutants not
-    drawn stay "not run")."""
+def sample_run(scope: str, workdir: Path, upto: int | None = None) -> None:
+    """Run the mutants drawn in ``workdir/sample.json`` (the first ``upto`` of the draw, those
+    not run yet) against the module's selection, each in a child forked from one warm
+    process (:func:`_forked`): a mutant survives only if every selected test passes; its
+    exit code goes into mutmut's meta file (the mutants not drawn stay "not run")."""
     drawn = json.loads((workdir / "sample.json").read_text("utf-8"))
     meta = workdir / "mutants" / SCOPES[scope]["package"] / f"{drawn['module']}.py.meta"
     data = json.loads(meta.read_text("utf-8"))
-    for name, code in zip(drawn["names"],
-                          _forked(workdir / "mutants", drawn["tests"], drawn["names"])):
+    todo = [n for n in drawn["names"][:upto] if data["exit_code_by_key"][n] is None]
+    if not todo:
+        return
+    for name, code in zip(todo, _forked(workdir / "mutants", drawn["tests"], todo)):
         data["exit_code_by_key"][name] = _record(code)
         meta.write_text(json.dumps(data), "utf-8")
         print(f"{name}: {'killed' if _record(code) in KILLED else 'survived'} ({code})",
@@ -559,6 +570,8 @@ def main(argv=None) -> int:
                     help="sample: mutants drawn per module (a count, or a fraction below 1)")
     ap.add_argument("--rng-state", type=int, default=27,
                     help="sample: the random state of the draw (the same state, the same draw)")
+    ap.add_argument("--upto", type=int, default=None,
+                    help="sample: run only the first UPTO of each module's draw (a pass)")
     ap.add_argument("--exact", nargs="*", default=[],
                     help="estimate: modules run whole, as MODULE=KILLED/MUTANTS")
     ap.add_argument("--workdir", type=Path, default=None)
@@ -578,11 +591,11 @@ def main(argv=None) -> int:
     if a.scope == "sample":
         if not a.modules:
             ap.error("sample: name the modules (--modules)")
-        sample(scope, a.modules, workdir, a.sample, a.rng_state, a.tests)
+        sample(scope, a.modules, workdir, a.sample, a.rng_state, a.tests, a.upto)
         estimate(scope, workdir)
         return 0
     if a.scope == "sample-run":
-        sample_run(scope, workdir)
+        sample_run(scope, workdir, a.upto)
         report(scope, workdir)
         return 0
     if a.scope == "estimate":
