@@ -1,6 +1,7 @@
 """The strength fits kept between runs of ``check`` (``specgen/fit_cache.py``): a re-check
 reads what did not change and gives the results a check without the cache gives, byte for
-byte; any change to an input or to the code misses; a damaged entry is made again.
+byte; any change to an input or to the code misses; a damaged entry is made again.  The fits
+made in two processes (``checks/fits.py``, ``made_together``) are those one process makes.
 
 The reference every comparison uses is computed in the test itself: the same project checked
 with no fit cache (``results.json`` content, ``Results.to_json``)."""
@@ -12,7 +13,10 @@ from collections import Counter
 import pytest
 from click.testing import CliRunner
 
+import os
+
 from specgen import build, cache, fit_cache
+from specgen.checks import fits
 from specgen.cli import cli
 from specgen.science import strength_inference as si
 from specgen.science import strength_models as sm
@@ -120,3 +124,61 @@ def test_the_command_keeps_fits_unless_told_not_to(tmp_path, monkeypatch):
     assert on.exit_code == off.exit_code
     assert json.loads(on.output) == json.loads(off.output)
     assert len(_entries(tmp_path / "xdg" / "specgen" / "fits")) == 2 * MIXES
+
+
+def test_a_truncated_entry_is_made_again(tmp_path, made):
+    project = write_project(tmp_path / "p", MIXES)
+    plain = _json(project, fit_cache=tmp_path / "fits")
+    entry = _entries(tmp_path / "fits")[-1]
+    entry.write_bytes(entry.read_bytes()[:100])   # a write cut short (a full disc, a crash)
+    made.clear()
+    assert _json(project, fit_cache=tmp_path / "fits") == plain
+    assert sum(made.values()) == 1
+
+
+def test_fits_made_in_two_processes_are_those_of_one(tmp_path, made, monkeypatch):
+    project = write_project(tmp_path / "p", MIXES)
+    monkeypatch.setattr(fits, "_cores", lambda: 2)
+    monkeypatch.setattr(fits, "BESIDE_MIN", 10 ** 9)
+    plain = _json(project)
+    assert made == {"models": MIXES, "inference": MIXES}
+    made.clear()
+    monkeypatch.setattr(fits, "BESIDE_MIN", 2)
+    first = _json(project, fit_cache=tmp_path / "fits")
+    # this process made the front half of each kind (1 of 3), the other the back half; the
+    # counting wrappers were forked with it, but what they count there is not seen here
+    assert made == {"models": 1, "inference": 1}
+    assert first == plain
+    assert len(_entries(tmp_path / "fits")) == 2 * MIXES     # every fit kept, either process's
+    made.clear()
+    assert _json(project, fit_cache=tmp_path / "fits") == plain and made == {}
+
+
+def test_one_core_or_few_fits_make_them_here(tmp_path, made, monkeypatch):
+    project = write_project(tmp_path / "p", MIXES)
+    monkeypatch.setattr(fits, "BESIDE_MIN", 2)
+    monkeypatch.setattr(fits, "_cores", lambda: 1)
+    _json(project)
+    assert made == {"models": MIXES, "inference": MIXES}
+    made.clear()
+    monkeypatch.setattr(fits, "_cores", lambda: 2)
+    monkeypatch.setattr(fits, "BESIDE_MIN", 2 * MIXES + 1)      # one fit short of the minimum
+    _json(project)
+    assert made == {"models": MIXES, "inference": MIXES}
+
+
+def test_a_failed_second_process_leaves_its_fits_to_this_one(tmp_path, made, monkeypatch):
+    project = write_project(tmp_path / "p", MIXES)
+    plain = _json(project)
+    here, fit_many = os.getpid(), si.fit_many
+
+    def dies_elsewhere(records):
+        if os.getpid() != here:
+            os._exit(3)                    # the second process ends without an answer
+        return fit_many(records)
+    monkeypatch.setattr(si, "fit_many", dies_elsewhere)
+    monkeypatch.setattr(fits, "_cores", lambda: 2)
+    monkeypatch.setattr(fits, "BESIDE_MIN", 2)
+    made.clear()
+    assert _json(project) == plain
+    assert made == {"models": MIXES, "inference": MIXES}       # all made here in the end
