@@ -443,3 +443,17 @@ def test_a_fit_without_replicates_has_no_lack_of_fit_test():
     assert inf.lof.f is None and inf.lof.p_value is None
     assert inf.lof_batch_p is None
     assert inf.sigma_w_source == "prior only (4.5 %): no replicates"
+
+
+def test_degenerate_weights_fall_back_to_the_laplace_normal():
+    # a proposal far wider than the posterior (unit variances on the log scales, against a
+    # posterior the 15 results of M1 fix to a few per cent) puts nearly all the weight on one
+    # draw: the effective sample size 1/Σw² is then near 1, below MIN_ESS (100), and no draws
+    # are kept (the module docstring's fallback); at the fit's own covariance 1000 are kept
+    from specgen.science.inference_tools import Laplace
+    inf = si.fit(*_record(90), NC)
+    args = (inf.ages, inf.means_log, inf.counts, inf.sigma_b ** 2, inf.sigma_w ** 2, NC)
+    draws, ess = si._sample(*args, Laplace(inf.mode, np.eye(5), inf.p_eff, 0.0))
+    assert draws is None and 1.0 <= ess < 2.0
+    draws, ess = si._sample(*args, Laplace(inf.mode, inf.cov, inf.p_eff, 0.0))
+    assert draws.shape == (1000, 5) and ess >= 100
