@@ -481,8 +481,9 @@ def test_a_singular_damped_system_gives_none_for_each_series():
 def test_adjacent_ranks_are_numpys_inverted_cdf():
     # probabilities one draw apart (ranks k and k + 1, placed one after the other by the
     # partial sorts): numpy's inverted-CDF quantiles (reference library), row by row
-    rows = np.random.default_rng(8).normal(size=(3, 100))
-    probs = [0.5, 0.51, 0.52, 0.9]
+    # (64/128, 65/128, 66/128 are exact in binary: ranks 63, 64, 65 of 128)
+    rows = np.random.default_rng(8).normal(size=(3, 128))
+    probs = [0.5, 0.5078125, 0.515625, 0.9]
     assert np.array_equal(it.row_quantiles(rows, probs),
                           np.quantile(rows.T, probs, axis=0, method="inverted_cdf"))
 
