@@ -35,6 +35,18 @@ def test_aggregation_matches_en1990_and_scipy(demo_copy):
     assert step.result == pytest.approx(mean - kn * sd, abs=1e-4)
     assert all("lab/strength.csv row" in i.source for i in step.inputs if i.symbol == "f_i")
     assert agg.basis[0].ref == "en1990"
+    # the summary lines of the calculation sheet, whole: n, mean, sample SD (scipy, n − 1)
+    # and CV = 100·s/mean in %, each with its symbol, unit and where it comes from
+    summary = {i.symbol: i for i in step.inputs if i.symbol != "f_i"}
+    assert (summary["n"].name, summary["n"].value, summary["n"].unit, summary["n"].source) \
+        == ("results kept", 3, "", "count")
+    assert summary["f̄"].value == pytest.approx(mean, abs=1e-4) and summary["f̄"].unit == "MPa"
+    assert summary["s"].value == pytest.approx(sd, abs=1e-4)
+    assert summary["s"].source == "computed (n − 1)"
+    assert (summary["CV"].name, summary["CV"].unit, summary["CV"].source) == (
+        "coefficient of variation", "%", "computed")
+    assert summary["CV"].value == pytest.approx(100 * sd / mean, abs=5e-3)
+    assert summary["k_n"].value == pytest.approx(kn, abs=1e-4)
 
 
 def test_grubbs_tie_in_three_is_reported_not_dropped(demo_copy):
@@ -107,6 +119,14 @@ def test_fit_prediction_and_names_in_results(demo_copy):
     assert p90["pred_lower"] < p90["lower"] and p90["pred_upper"] > p90["upper"]
     fit = by_check(r)[("STR-FIT-C", "M1")]
     assert "Chosen: two-component model" in fit.notes[0] and "AICc" in fit.notes[0]
+    # the calculation sheet of each predicted age starts from the age it answers, in days:
+    # the demo's requirements at 28 and 90 d and the late age of 365 d (demo dossier.yaml)
+    ages = [s.inputs[0] for s in by_check(r)[("STR-PRED-C", "M1")].steps]
+    assert [(i.symbol, i.name, i.value, i.unit, i.source) for i in ages] == [
+        ("t", "age (equivalent, at 20 °C)", a, "d", "requirement or late age")
+        for a in (28.0, 90.0, 365.0)]
+    assert q["predicted_strength"].label == ("predicted strength: band for the mean and "
+                                             "interval for the next set")
 
 
 def test_short_record_prediction_is_indicative_and_never_decides(demo_copy):
