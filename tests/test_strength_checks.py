@@ -127,6 +127,11 @@ def test_fit_prediction_and_names_in_results(demo_copy):
         for a in (28.0, 90.0, 365.0)]
     assert q["predicted_strength"].label == ("predicted strength: band for the mean and "
                                              "interval for the next set")
+    # the message gives each age as "28 d: … MPa, mean [a, b], next set [c, d]", the ages
+    # beyond the extrapolation limit (only 365 d here) marked "(indicative)" after the bracket
+    parts = by_check(r)[("STR-PRED-C", "M1")].message.split("; ")
+    assert [p.split(":")[0] for p in parts[:3]] == ["28 d", "90 d", "365 d"]
+    assert parts[2].endswith("] (indicative)") and not parts[1].endswith("(indicative)")
 
 
 def test_short_record_prediction_is_indicative_and_never_decides(demo_copy):
