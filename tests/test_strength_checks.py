@@ -157,6 +157,15 @@ def test_acceptance_pass_fail_and_hold(demo_copy):
     # M3 28 d: 2.80, 2.28, 2.37 -> mean 2.483, s 0.2779, f_k = 2.483 - 3.372*0.2779 = 1.546 < 2
     m3 = by[("STR-MIN", "M3")]
     assert m3.status == "fail" and m3.value == pytest.approx(1.546, abs=2e-3)
+    # the 28-d step's measured inputs whole: mean (2.80 + 2.28 + 2.37)/3 = 2.4833 MPa and
+    # the characteristic value above, each in MPa with where it comes from
+    first = next(st for st in m3.steps if any(i.symbol == "f̄" for i in st.inputs))
+    measured = {i.symbol: i for i in first.inputs if i.symbol in ("f̄", "f_k,unknown")}
+    assert measured["f̄"].value == pytest.approx(7.45 / 3, abs=1e-4)
+    assert (measured["f̄"].unit, measured["f̄"].source) == ("MPa", "STR-AGG")
+    assert measured["f_k,unknown"].value == pytest.approx(1.546, abs=2e-3)
+    assert (measured["f_k,unknown"].unit, measured["f_k,unknown"].source) == (
+        "MPa", "EN 1990 Annex D (D7.2), from the specimens at this age")
     assert by[("STR-MIN", "M1")].status == "pass"
     mx = by[("STR-MAX", "M1")]   # 365 d interval straddles the 9 MPa cap
     assert mx.status == "hold" and mx.limit.high == 9.0
@@ -215,6 +224,15 @@ def test_site_temperature_and_load_strength(demo_copy):
     assert f28 * g(day * factor) / g(28) > 1.0
     assert "load strength 1 MPa reached on day" in site.message
     assert any("must be measured" in n for n in site.notes)
+    # the equivalent-age step, as the sheet shows it: t_e(t\,d) = …\,d, in days
+    import re
+    step = site.steps[0]
+    got = re.fullmatch(r"t_e\(([\d.]+)\\,\\mathrm\{d\}\) = ([\d.]+)\\,\\mathrm\{d\}",
+                       step.substituted)
+    assert got, step.substituted
+    assert float(got.group(2)) == pytest.approx(float(got.group(1)) * factor, abs=0.006)
+    assert (step.unit, step.symbol) == ("d", "t_e")
+    assert step.result == pytest.approx(float(got.group(1)) * factor, abs=1e-4)
 
 
 def test_not_assessed_with_fewer_than_two_ages(demo_copy):
