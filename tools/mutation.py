@@ -539,10 +539,12 @@ def estimate(scope: str, workdir: Path, exact: list[str] = (), as_run: bool = Fa
         codes = {**data["exit_code_by_key"],
                  **(data.get("exit_code_at_run", {}) if as_run else {})}
         ran = [c for c in codes.values() if c is not None]
-        if ran:
-            k = sum(c in KILLED for c in ran)
+        k, module = sum(c in KILLED for c in ran), meta.name[:-len(".py.meta")]
+        if len(ran) >= 2:            # a stratum's variance needs two mutants run
             strata.append((len(codes), len(ran), k))
-            rows.append((meta.name[:-len(".py.meta")], len(codes), len(ran), k))
+            rows.append((module, len(codes), len(ran), k))
+        else:
+            print(f"{module}: {len(ran)} mutant run, left out (two are needed)")
     print(f"{'module':28} {'mutants':>8} {'run':>5} {'killed':>7} {'killed %':>9} "
           f"{'95 % (Wilson)':>15}")
     for module, big_n, n, k in rows:
