@@ -316,8 +316,9 @@ def _part_name(group: list[Piece], every: list[Piece]) -> str:
 
 def _front_and_stamps(front, printer, context, page_size, every, printed, length, final):
     """The front matter with the chapters' page numbers, and the running-head stamps."""
+    from specgen.publish.pdf_stamps import kinds_of
     sizes = [size for doc in printed for size in doc.pages]
-    specimen = _stamp_specimen(printer, context, page_size, _stamp_kinds(length, sizes))
+    specimen = _stamp_specimen(printer, context, page_size, kinds_of(length, sizes))
     for _ in range(3):  # the contents' length does not depend on its numbers, but check
         anchors = global_anchors(printed, start=length)
         numbers = {p.id: anchors[p.id][0] + 1 for p in every if p.id in anchors}
@@ -331,7 +332,7 @@ def _front_and_stamps(front, printer, context, page_size, every, printed, length
                            "three times; nothing was changed in the output folder. Fix: "
                            "report this with the project.")
     reached("pdf-front")
-    return done, _stamp_set(printer, context, page_size, _stamp_kinds(length, sizes),
+    return done, _stamp_set(printer, context, page_size, kinds_of(length, sizes),
                             specimen.result())
 
 
@@ -357,11 +358,6 @@ def _assembled(front, printed, stamps, target, foreign=None, exported=frozenset(
 
 
 STAMP_SPLIT = 400  # pages per stamp document, where every stamp page is laid out
-
-
-def _stamp_kinds(front_pages: int, sizes: list) -> list:
-    """The kind of each page of a volume for its stamp: the cover, portrait (None), wide."""
-    return ["cover"] + [None] * (front_pages - 1) + ["wide" if w > h else None for w, h in sizes]
 
 
 def _stamp_html(context, pages: list, total) -> str:

@@ -28,6 +28,12 @@ DIGITS = "1234567890"
 KINDS = ("cover", None, "wide")
 
 
+def kinds_of(front_pages: int, sizes: list) -> list:
+    """The kind of each page of a volume for its stamp: the cover, portrait (None) or wide
+    (``sizes``: the chapter pages' (width, height) after ``front_pages`` of front matter)."""
+    return ["cover"] + [None] * (front_pages - 1) + ["wide" if w > h else None for w, h in sizes]
+
+
 def folio_text(folio: str, number, total) -> str:
     """The folio as the stamp template writes it (``stamp.html.j2``)."""
     return f"{folio}page {number} of {total}"
@@ -116,15 +122,11 @@ def _read(page, text: str) -> Folio | None:
     if widths is None or any(adjust.get(d, 0) for d in DIGITS + " "):
         return None             # a digit or space kerned: its neighbours would matter
     size = float(tf.operands[1])
-    total = sum(widths.get(int.from_bytes(gids[ch], "big"), None) or 0 for ch in text) \
-        - sum(adjust.get(ch, 0) for ch in text)
-    if any(int.from_bytes(g, "big") not in widths for g in gids.values()):
-        return None
-    x = float(tm.operands[4])
+    glyphs = {ch: (g, widths[int.from_bytes(g, "big")]) for ch, g in gids.items()}
+    width = sum(glyphs[ch][1] - adjust.get(ch, 0) for ch in text)   # glyph space, as TJ
     return Folio(head=ops[:i - 2], tail=ops[i + 1:], font=str(tf.operands[0]), size=size,
-                 centre=x + total * size / 2000, y=float(tm.operands[5]),
-                 glyphs={ch: (g, widths[int.from_bytes(g, "big")]) for ch, g in gids.items()},
-                 adjust=adjust, page=page)
+                 centre=float(tm.operands[4]) + width * size / 2000, y=float(tm.operands[5]),
+                 glyphs=glyphs, adjust=adjust, page=page)
 
 
 def _spell(run: list, text: str):
@@ -177,20 +179,14 @@ def _widths(font) -> dict[int, float] | None:
 
 
 class _Default(dict):
-    """Widths with the font's default for a glyph the array leaves out."""
+    """Widths with the font's default (``/DW``) for a glyph the array leaves out."""
 
     def __init__(self, known, default):
         super().__init__(known)
         self.default = default
 
-    def __contains__(self, key):
-        return True
-
     def __missing__(self, key):
         return self.default
-
-    def get(self, key, fallback=None):
-        return self[key]
 
 
 @dataclass
