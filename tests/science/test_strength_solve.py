@@ -27,7 +27,7 @@ PRIOR = Prior("test_family", "test family",
                "tau_slow_d": _term("tau_slow_d", 20.0, 200.0),
                "shape_b": _term("shape_b", 0.4, 1.2),
                "gain_365_28": _term("gain_365_28", 1.3, 3.0)},
-              _term("batch_cv", 0.02, 0.08), _term("within_cv", 0.03, 0.12), False,
+              _term("batch_cv", 0.03, 0.12), _term("within_cv", 0.03, 0.12), False,
               (0.8, 0.25))
 
 
@@ -88,10 +88,10 @@ def test_groups_variances_and_sources_by_hand():
     assert p.d_w == 3.0
     assert p.sw2 == pytest.approx((4 * 0.06 ** 2 + ss_w) / (4 + 3), rel=1e-12)
     assert p.w_src == "pooled replicates (3 dof) with the prior's 6.0 % (4 dof)"
-    # batch: the prior's centre sqrt(0.02 × 0.08) = 0.04 until the fit gives a lack of fit
-    assert p.s0b == pytest.approx(0.04, rel=1e-12)
-    assert p.sb2 == pytest.approx(0.0016, rel=1e-12)
-    assert p.b_src == "prior only (4.0 %)"
+    # batch: the prior's centre sqrt(0.03 × 0.12) = 0.06 until the fit gives a lack of fit
+    assert p.s0b == pytest.approx(0.06, rel=1e-12)
+    assert p.sb2 == pytest.approx(0.0036, rel=1e-12)
+    assert p.b_src == "prior only (6.0 %)"
 
 
 def test_no_replicates_take_the_prior_alone():
@@ -99,6 +99,11 @@ def test_no_replicates_take_the_prior_alone():
     assert p.d_w == 0.0
     assert p.sw2 == pytest.approx(0.06 ** 2, rel=1e-12)       # (4 × 0.06² + 0)/(4 + 0)
     assert p.w_src == "prior only (6.0 %): no replicates"
+    # one replicate pair: 1 dof pooled with the prior's 4
+    one = ss._Prep.of([7, 7, 28, 90], [2.0, 2.2, 4.0, 6.0], PRIOR)
+    assert one.d_w == 1.0
+    assert one.sw2 == pytest.approx((4 * 0.06 ** 2 + 0.5 * math.log(1.1) ** 2) / 5, rel=1e-12)
+    assert one.w_src == "pooled replicates (1 dof) with the prior's 6.0 % (4 dof)"
 
 
 # ------------------------------------------------------------------ the batch variance
@@ -125,15 +130,15 @@ def test_batch_variance_only_with_half_a_dof_beyond_the_curve(p_eff, refitted):
     assert p.batch_variance() is refitted
     d_lof = 3 - p_eff
     if not refitted:        # 0.4 dof: below the half dof the method asks
-        assert p.sb2 == pytest.approx(0.0016, rel=1e-12)
-        assert p.b_src == ("prior only (4.0 %): the ages leave no degrees of freedom beyond "
+        assert p.sb2 == pytest.approx(0.0036, rel=1e-12)
+        assert p.b_src == ("prior only (6.0 %): the ages leave no degrees of freedom beyond "
                            "the curve")
         return
     excess = (_ms_lof(p, d_lof) - p.sw2) / 3.0        # three prisms per age
     assert excess > 0
-    assert p.sb2 == pytest.approx((4 * 0.04 ** 2 + d_lof * excess) / (4 + d_lof), rel=1e-12)
+    assert p.sb2 == pytest.approx((4 * 0.06 ** 2 + d_lof * excess) / (4 + d_lof), rel=1e-12)
     assert p.b_src == (f"lack-of-fit mean square beyond the pure error ({d_lof:.2f} dof) with "
-                       "the prior's 4.0 % (4 dof)")
+                       "the prior's 6.0 % (4 dof)")
 
 
 def test_a_lack_of_fit_within_the_pure_error_adds_no_batch_variance():
@@ -141,8 +146,8 @@ def test_a_lack_of_fit_within_the_pure_error_adds_no_batch_variance():
     p = _prep_with_fit(curve + np.array([0.001, -0.001, 0.0]), 2.0)
     assert _ms_lof(p, 1.0) < p.sw2
     assert p.batch_variance() is True
-    # the excess is max(0, ·) = 0: the prior's 0.04² at 4 dof pooled with 0 at 1 dof
-    assert p.sb2 == pytest.approx(4 * 0.04 ** 2 / 5, rel=1e-12)
+    # the excess is max(0, ·) = 0: the prior's 0.06² at 4 dof pooled with 0 at 1 dof
+    assert p.sb2 == pytest.approx(4 * 0.06 ** 2 / 5, rel=1e-12)
 
 
 # ------------------------------------------------------------------ prior residuals, start
