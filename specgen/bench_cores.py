@@ -21,6 +21,16 @@ def cpu_seconds() -> float:
     return own.ru_utime + own.ru_stime + kids.ru_utime + kids.ru_stime
 
 
+def median(fn, runs: int) -> float:
+    """Median wall seconds of ``runs`` calls of ``fn``."""
+    times = []
+    for _ in range(runs):
+        t = time.perf_counter()
+        fn()
+        times.append(time.perf_counter() - t)
+    return statistics.median(times)
+
+
 def measured(fn, runs: int) -> tuple[float, float]:
     """(median wall seconds, median CPU seconds) of ``runs`` calls of ``fn``."""
     walls, cpus = [], []
