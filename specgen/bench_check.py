@@ -174,7 +174,9 @@ def print_check(e: dict) -> None:
     if judged <= 1.5:
         said = "met"
     elif met:
-        said = "NOT met; within 1.5 s only the " + " and the ".join(met) + " figure"
+        said = ("NOT met; within 1.5 s only the " + " and the ".join(met)
+                + (" figures" if len(met) > 1 else " figure") + " (in this process: the command "
+                "adds its imports)")
     else:
         said = "NOT met, nor by the warm or the one-changed figure"
     print(f"(e) the 1.5 s target is judged on the cold figure ({judged:.3f} s, the larger of no "

@@ -98,3 +98,26 @@ def test_stratified_share_and_interval_by_hand():
     # whole → (3420 + 90) / 3575, standard error 0
     whole = tool.stratified([(3475, 3475, 3420), (100, 100, 90)])
     assert abs(whole["share"] - 3510 / 3575) < 1e-12 and whole["se"] == 0.0
+
+
+def test_estimate_reads_the_sampled_modules_and_the_codes_of_the_run(tmp_path, capsys):
+    import json
+    tool = _tool()
+    meta = tmp_path / "m" / "mutants" / "specgen" / "checks" / "m.py.meta"
+    meta.parent.mkdir(parents=True)
+    codes = {f"specgen.checks.m.x_f__mutmut_{i}": None for i in range(1, 101)}   # 100 made
+    for i in range(1, 11):                    # 10 drawn: 8 killed at the run, 2 survived
+        codes[f"specgen.checks.m.x_f__mutmut_{i}"] = 1 if i <= 8 else 0
+    # a recheck with a test written from one survivor: killed now, survived at the run
+    codes["specgen.checks.m.x_f__mutmut_9"] = 1
+    meta.write_text(json.dumps({"exit_code_by_key": codes,
+                                "exit_code_at_run": {"specgen.checks.m.x_f__mutmut_9": 0}}))
+    now = tool.estimate("checks", tmp_path, exact=["whole=45/50"])
+    run = tool.estimate("checks", tmp_path, exact=["whole=45/50"], as_run=True)
+    capsys.readouterr()
+    # by hand: N = 100 + 50; now (100/150)·0.9 + (50/150)·0.9 = 0.9; at the run
+    # (100/150)·0.8 + (50/150)·0.9 = 0.83333
+    assert now["mutants"] == 150 and abs(now["share"] - 0.9) < 1e-12
+    assert abs(run["share"] - (2 / 3 * 0.8 + 1 / 3 * 0.9)) < 1e-12
+    # the whole module adds no variance: v = (2/3)²·(1 − 10/100)·0.8·0.2/9 = 0.0071111
+    assert abs(run["se"] - 0.0071111 ** 0.5) < 1e-6

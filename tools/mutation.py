@@ -396,6 +396,10 @@ def recheck(scope: str, workdir: Path, tests: list[str] = (), fork: bool = False
         for name, code in zip(names, codes):
             print(f"{name}: {'killed' if code == 1 else 'survived'}", flush=True)
             if code == 1 or data["exit_code_by_key"][name] is None:
+                # the run's own code is kept beside (``estimate --as-run``): a test written
+                # from a sampled survivor makes the sample no longer independent of the tests
+                data.setdefault("exit_code_at_run", {}).setdefault(
+                    name, data["exit_code_by_key"][name])
                 data["exit_code_by_key"][name] = 1 if code == 1 else 0
                 killed += code == 1
                 meta.write_text(json.dumps(data), "utf-8")
@@ -518,10 +522,12 @@ def sample_run(scope: str, workdir: Path, upto: int | None = None) -> None:
               flush=True)
 
 
-def estimate(scope: str, workdir: Path, exact: list[str] = ()) -> dict:
+def estimate(scope: str, workdir: Path, exact: list[str] = (), as_run: bool = False) -> dict:
     """The package's share killed from the sampled modules under ``workdir`` (one folder per
     module) and the modules run whole (``exact``: ``MODULE=KILLED/MUTANTS``): per module the
-    share with its Wilson interval, and the stratified estimate with its interval."""
+    share with its Wilson interval, and the stratified estimate with its interval.
+    ``as_run``: each mutant's code at the run, before any recheck (the unbiased figure for
+    the tests of the run's commit)."""
     strata, rows = [], []
     for item in exact:
         module, figures = item.split("=")
@@ -529,12 +535,16 @@ def estimate(scope: str, workdir: Path, exact: list[str] = ()) -> dict:
         strata.append((big_n, big_n, k))
         rows.append((module, big_n, big_n, k))
     for meta in sorted(workdir.glob(f"*/mutants/{SCOPES[scope]['package']}/*.py.meta")):
-        codes = json.loads(meta.read_text("utf-8"))["exit_code_by_key"]
+        data = json.loads(meta.read_text("utf-8"))
+        codes = {**data["exit_code_by_key"],
+                 **(data.get("exit_code_at_run", {}) if as_run else {})}
         ran = [c for c in codes.values() if c is not None]
-        if ran:
-            k = sum(c in KILLED for c in ran)
+        k, module = sum(c in KILLED for c in ran), meta.name[:-len(".py.meta")]
+        if len(ran) >= 2:            # a stratum's variance needs two mutants run
             strata.append((len(codes), len(ran), k))
-            rows.append((meta.name[:-len(".py.meta")], len(codes), len(ran), k))
+            rows.append((module, len(codes), len(ran), k))
+        else:
+            print(f"{module}: {len(ran)} mutant run, left out (two are needed)")
     print(f"{'module':28} {'mutants':>8} {'run':>5} {'killed':>7} {'killed %':>9} "
           f"{'95 % (Wilson)':>15}")
     for module, big_n, n, k in rows:
@@ -572,6 +582,8 @@ def main(argv=None) -> int:
                     help="sample: the random state of the draw (the same state, the same draw)")
     ap.add_argument("--upto", type=int, default=None,
                     help="sample: run only the first UPTO of each module's draw (a pass)")
+    ap.add_argument("--as-run", action="store_true",
+                    help="estimate: the codes of the run, before any recheck")
     ap.add_argument("--exact", nargs="*", default=[],
                     help="estimate: modules run whole, as MODULE=KILLED/MUTANTS")
     ap.add_argument("--workdir", type=Path, default=None)
@@ -599,7 +611,7 @@ def main(argv=None) -> int:
         report(scope, workdir)
         return 0
     if a.scope == "estimate":
-        estimate(scope, workdir, a.exact)
+        estimate(scope, workdir, a.exact, a.as_run)
         return 0
     if a.scope == "survivors":
         print("\n".join(survivors(scope, workdir)))

@@ -316,12 +316,13 @@ def _part_name(group: list[Piece], every: list[Piece]) -> str:
 
 def _front_and_stamps(front, printer, context, page_size, every, printed, length, final):
     """The front matter with the chapters' page numbers, and the running-head stamps."""
+    from specgen.publish.pdf_stamps import kinds_of
     sizes = [size for doc in printed for size in doc.pages]
+    specimen = _stamp_specimen(printer, context, page_size, kinds_of(length, sizes))
     for _ in range(3):  # the contents' length does not depend on its numbers, but check
         anchors = global_anchors(printed, start=length)
         numbers = {p.id: anchors[p.id][0] + 1 for p in every if p.id in anchors}
         handle = front(numbers, **final)
-        stamps = _stamps(printer, context, page_size, length, sizes)
         done = handle.result()
         if len(done.pages) == length:
             break
@@ -331,7 +332,8 @@ def _front_and_stamps(front, printer, context, page_size, every, printed, length
                            "three times; nothing was changed in the output folder. Fix: "
                            "report this with the project.")
     reached("pdf-front")
-    return done, [s.result() for s in stamps]
+    return done, _stamp_set(printer, context, page_size, kinds_of(length, sizes),
+                            specimen.result())
 
 
 def _assembled(front, printed, stamps, target, foreign=None, exported=frozenset()) -> None:
@@ -348,26 +350,51 @@ def _assembled(front, printed, stamps, target, foreign=None, exported=frozenset(
         buffer = io.BytesIO()
         assemble(front, printed, stamps, buffer, foreign=foreign, exported=exported)
         return buffer.getvalue()
-    key = [hashlib.sha256(doc.to_bytes()).hexdigest() for doc in (front, *printed, *stamps)]
+    key = [hashlib.sha256(doc.to_bytes()).hexdigest() for doc in (front, *printed)]
+    key += [stamps.key()]
     key += [foreign[0] if foreign else "", sorted(exported),
             sorted(foreign[1]) if foreign else []]
     Path(target).write_bytes(cache.cached("pdf-whole", key, produce))
 
 
-STAMP_SPLIT = 400  # pages per stamp document
+STAMP_SPLIT = 400  # pages per stamp document, where every stamp page is laid out
 
 
-def _stamps(printer, context, page_size: str, front_pages: int, sizes: list) -> list:
-    """Submit the running-head stamps: one page per page of the dossier."""
-    from specgen.publish.pdf_parts import cached_or_submitted
-    total = front_pages + len(sizes)
-    kinds = ["cover"] + [None] * (front_pages - 1) + ["wide" if w > h else None for w, h in sizes]
-    pages = [{"number": i + 1, "kind": k} for i, k in enumerate(kinds)]
-    css = stylesheet(page_size, "stamp.css", "control.css")
-    tpl = _template("stamp.html.j2")
+def _stamp_html(context, pages: list, total) -> str:
     project, revision = context["project"].title, context["revision"].code
     folio = context.get("volume", VOLUME_WORDS["main"])["folio"]
-    return [cached_or_submitted(printer, "pdf-stamp", tpl.render(
-        pages=pages[i:i + STAMP_SPLIT], total=total, title=context["title"], project=project,
-        folio=folio, revision=revision, mark=context.get("mark", "")), css, **PDF_OPTIONS)
+    return _template("stamp.html.j2").render(
+        pages=pages, total=total, title=context["title"], project=project, folio=folio,
+        revision=revision, mark=context.get("mark", ""))
+
+
+def _stamp_specimen(printer, context, page_size: str, kinds: list):
+    """Submit the stamps' specimen (:mod:`specgen.publish.pdf_stamps`): one page of each
+    kind, the same whatever the page count, so a re-issue takes it from the cache."""
+    from specgen.publish.pdf_parts import cached_or_submitted
+    from specgen.publish.pdf_stamps import DIGITS, specimen_pages
+    css = stylesheet(page_size, "stamp.css", "control.css")
+    html = _stamp_html(context, specimen_pages(kinds), DIGITS)
+    return cached_or_submitted(printer, "pdf-stamp", html, css, **PDF_OPTIONS)
+
+
+def _stamp_set(printer, context, page_size: str, kinds: list, specimen):
+    """The volume's stamps: the specimen with each page's folio written in, or, where the
+    specimen cannot be read so, every stamp page laid out (:func:`_stamps`)."""
+    from specgen.publish.pdf_stamps import StampSet, folios
+    folio = context.get("volume", VOLUME_WORDS["main"])["folio"]
+    if folios(specimen.pdf, folio, kinds) is not None:
+        return StampSet(kinds, folio, specimen=specimen)
+    laid = _stamps(printer, context, page_size, kinds)
+    return StampSet(kinds, folio, laid=[s.result() for s in laid])
+
+
+def _stamps(printer, context, page_size: str, kinds: list) -> list:
+    """Submit the running-head stamps laid out in full: one page per page of the dossier."""
+    from specgen.publish.pdf_parts import cached_or_submitted
+    total = len(kinds)
+    pages = [{"number": i + 1, "kind": k} for i, k in enumerate(kinds)]
+    css = stylesheet(page_size, "stamp.css", "control.css")
+    return [cached_or_submitted(printer, "pdf-stamp", _stamp_html(
+        context, pages[i:i + STAMP_SPLIT], total), css, **PDF_OPTIONS)
         for i in range(0, total, STAMP_SPLIT)]
