@@ -10,7 +10,8 @@ the same print HTML with the build's PDF options, in sequence, and
 (e) ``check`` on synthetic projects of 10, 50 and 200 mixes (the growth exponent is the
 log–log slope of time against results) — and the 200-mix ``check`` keeping its strength fits
 between runs (``fit_cache.py``), with an empty fit cache (cold: the figure the target is
-judged on) and a full one (warm) — with the share of the 200-mix ``check`` spent in the
+judged on), a full one (warm) and after one result changed (``specgen/bench_check.py``;
+``--only check`` runs (e) alone) — with the share of the 200-mix ``check`` spent in the
 strength inference (the prior-informed fit, its bands and posterior summaries: CPU seconds
 inside ``specgen.science.strength_inference``) and the ratio of ``check`` to ``check`` without
 it (the target: within 2×), and the CPU seconds in the least-squares model comparison
@@ -37,7 +38,6 @@ same rows as CSV (the table alone, and the whole project load).
 """
 from __future__ import annotations
 
-import math
 import os
 import shutil
 import statistics
@@ -47,20 +47,12 @@ import tempfile
 import time
 from pathlib import Path
 
-from specgen.bench_cores import cpu_seconds, idle_during, measured, targets
+from specgen.bench_check import check_figures, check_judged, print_check
+from specgen.bench_cores import cpu_seconds, idle_during, measured, median as _median, targets
 from specgen.bench_floor import _cold, _floor
 from specgen.bench_large import large_build, print_large
 from specgen.bench_serve import bench_serve, project_copy as _project_copy
 from specgen.cache import SHARED_ENV
-
-
-def _median(fn, runs: int) -> float:
-    times = []
-    for _ in range(runs):
-        t = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t)
-    return statistics.median(times)
 
 
 def _cpu_median(fn, runs: int) -> float:
@@ -162,58 +154,6 @@ def bench_xlsx(demo: Path, work: Path, runs: int) -> None:
           "process (time.process_time), medians, so other jobs on the machine count less")
 
 
-_INFERENCE_ENTRIES = ("fit", "fit_many", "bands", "interval", "components", "posterior_summary", "falls")
-
-
-def _inference_share(project: Path) -> tuple[float, float, float]:
-    """(CPU s of one ``check`` of ``project``, CPU s of it inside the strength inference, CPU s
-    inside the least-squares model comparison): the inference's public entry points and
-    ``strength_models.fit_all`` are timed while one check runs (nested calls counted once).
-    The two are the floor of a large project's check: one fit of each per series."""
-    from specgen.build import check
-    from specgen.science import strength_inference as si
-    from specgen.science import strength_models as sm
-    spent, depth = [0.0, 0.0], [0, 0]
-    saved = [(si, k, getattr(si, k), 0) for k in _INFERENCE_ENTRIES] + [
-        (sm, "fit_all", sm.fit_all, 1)]
-
-    def timed(fn, i):
-        def run(*a, **kw):
-            depth[i] += 1
-            t = time.process_time()
-            try:
-                return fn(*a, **kw)
-            finally:
-                depth[i] -= 1
-                if depth[i] == 0:
-                    spent[i] += time.process_time() - t
-        return run
-    try:
-        for mod, k, fn, i in saved:
-            setattr(mod, k, timed(fn, i))
-        t0 = time.process_time()
-        check(project)
-        total = time.process_time() - t0
-    finally:
-        for mod, k, fn, _ in saved:
-            setattr(mod, k, fn)
-    return total, spent[0], spent[1]
-
-
-def _fit_cache_pair(project: Path, folder: Path, runs: int) -> tuple[float, float]:
-    """Medians (s) of ``check`` of ``project`` keeping its strength fits in ``folder``
-    (``fit_cache.py``): cold, the folder emptied before each run (every fit made and
-    written), then warm (every fit read back)."""
-    from specgen.build import check
-    cold = []
-    for _ in range(runs):
-        shutil.rmtree(folder, ignore_errors=True)
-        t = time.perf_counter()
-        check(project, fit_cache=folder)
-        cold.append(time.perf_counter() - t)
-    return statistics.median(cold), _median(lambda: check(project, fit_cache=folder), runs)
-
-
 def _reuse_heard():
     """(what was heard, a progress function that hears how many PDF parts were reused)."""
     reuse = {}
@@ -226,13 +166,16 @@ def _reuse_heard():
 
 def main(runs: int = 3, large: bool = True, only: str = "all") -> None:
     from specgen.build import build, check
-    from specgen.synthetic import write_project
     os.environ.pop(SHARED_ENV, None)  # cold means cold: no cache shared with other builds
     demo = Path(__file__).resolve().parent.parent / "demo_project"
     if only != "all":
         with tempfile.TemporaryDirectory(prefix="specgen-bench-") as tmp:
             if only == "serve":
                 bench_serve(demo, Path(tmp))
+            elif only == "check":
+                e = check_figures(Path(tmp), runs)
+                print_check(e)
+                targets(None, None, check_judged(e), None)
             else:
                 bench_xlsx(demo, Path(tmp), runs)
         return
@@ -262,15 +205,8 @@ def main(runs: int = 3, large: bool = True, only: str = "all") -> None:
         c_wall = statistics.median(w for w, _ in again)
         c_cpu = statistics.median(u for _, u in again)
         d = _median(_floor(project, work), runs)
-        sizes, times = [], []
-        for n in (10, 50, 200):
-            syn = write_project(work / f"syn{n}", n)
-            times.append(_median(lambda: check(syn), runs))
-            sizes.append(n * 8 * 3)
-        share = _inference_share(syn)
-        fit_cold, fit_warm = _fit_cache_pair(syn, work / "fit-cache", runs)
-        slope = (math.log(times[-1]) - math.log(times[0])) / (math.log(sizes[-1]) - math.log(sizes[0]))
-        f = large_build(syn, work / "syn-out") if large else None
+        e = check_figures(work, runs)
+        f = large_build(e["syn"], work / "syn-out") if large else None
         (work / "g").mkdir()
         (work / "h").mkdir()
         bench_xlsx(demo, work / "h", runs)
@@ -280,10 +216,8 @@ def main(runs: int = 3, large: bool = True, only: str = "all") -> None:
 
 def _print_figures(fig: dict) -> None:
     """The figures of one run, then the targets, each said met or not."""
-    a, b, b_cpu, c_wall, c_cpu, reuse, d, idle, sizes, times, share, f, slope = (
-        fig[k] for k in ("a", "b", "b_cpu", "c_wall", "c_cpu", "reuse", "d", "idle", "sizes",
-                         "times", "share", "f", "slope"))
-    fit_cold, fit_warm = fig["fit_cold"], fig["fit_warm"]
+    a, b, b_cpu, c_wall, c_cpu, reuse, d, idle, e, f = (
+        fig[k] for k in ("a", "b", "b_cpu", "c_wall", "c_cpu", "reuse", "d", "idle", "e", "f"))
     print(f"(a) check, demo                      {a:7.3f} s")
     print(f"(b) full cold build, demo            {b:7.3f} s   CPU {b_cpu:7.1f} s")
     print(f"(c) re-issue after one new result    {c_wall:7.3f} s   CPU {c_cpu:7.1f} s"
@@ -294,20 +228,12 @@ def _print_figures(fig: dict) -> None:
         print("    idle share of each core during a cold build (whole machine): "
               + ", ".join(f"core {i} {s:.0%}" for i, s in enumerate(idle[0]))
               + f"; the build's own use of the cores {idle[1]:.0%}")
-    for n, s, t in zip((10, 50, 200), sizes, times):
-        print(f"(e) check, {n:3d} mixes / {s:5d} results  {t:7.3f} s")
-    print(f"(e) of which strength inference      {share[1]:7.3f} CPU s of {share[0]:.3f} CPU s; check"
-          f" / check without it = {share[0] / max(share[0] - share[1], 1e-9):.2f} (target: <= 2)")
-    print(f"(e) of which model comparison fits   {share[2]:7.3f} CPU s (least squares, three laws "
-          f"per series); the rest of check {share[0] - share[1] - share[2]:.3f} CPU s")
-    print(f"(e) check, 200 mixes, fits kept between runs: cold (empty fit cache) {fit_cold:7.3f} s,"
-          f" warm (every fit read back) {fit_warm:7.3f} s; the target is judged on the cold figure")
+    print_check(e)
     if f:
         print_large(f)
     print(f"ratio (b)/(d) = {b / d:.2f}   ratio (c)/(b) = {c_wall / b:.2f} "
-          f"(CPU {c_cpu / b_cpu:.2f})   growth exponent of (e) = {slope:.2f}")
-    # the cold figure decides: the larger of no fit cache and an empty one (which also writes)
-    targets(b / d, (c_wall / b, c_cpu / b_cpu), max(times[-1], fit_cold),
+          f"(CPU {c_cpu / b_cpu:.2f})   growth exponent of (e) = {e['slope']:.2f}")
+    targets(b / d, (c_wall / b, c_cpu / b_cpu), check_judged(e),
             (f.wall, f.pss_mib, f.projected) if f else None)
 
 
@@ -318,8 +244,9 @@ if __name__ == "__main__":
     @click.option("--runs", default=3, show_default=True, help="repetitions per measurement")
     @click.option("--large/--no-large", default=True, show_default=True,
                   help="also build the 200-mix project once (time and peak memory; slow)")
-    @click.option("--only", type=click.Choice(["all", "serve", "xlsx"]), default="all",
-                  show_default=True, help="run only the preview or the workbook measurement")
+    @click.option("--only", type=click.Choice(["all", "serve", "xlsx", "check"]), default="all",
+                  show_default=True,
+                  help="run only the preview, the workbook or the synthetic check measurement")
     def _bench(runs: int, large: bool, only: str) -> None:
         """Time check, build, re-issue and the bare toolchain (ratios in one run)."""
         main(runs, large=large, only=only)

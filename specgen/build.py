@@ -49,8 +49,8 @@ def load(project_dir) -> Project:
 def check(project_dir: Path | str, *, fit_cache=None) -> tuple[Project, Results]:
     """Load the project (and its archived issued revisions, validated as a build would) and run
     every check and the audit, writing nothing; ``fit_cache``: see ``fit_cache.store_for``."""
-    from specgen.fit_cache import store_for
-    with fits.kept(persist=store_for(fit_cache)):  # each fit once per call (checks/fits.py)
+    from specgen import collector, fit_cache as kept_between_runs
+    with collector.paused(), fits.kept(persist=kept_between_runs.store_for(fit_cache)):
         project = load(project_dir)
         archived = _load_archive(Path(project_dir), project)
         return project, evaluate(project, previous=_previous(archived[-1] if archived else None))

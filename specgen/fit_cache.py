@@ -10,6 +10,11 @@ series, each under the SHA-256 of
 * the fit's kind and its exact inputs (ages and values as ``repr`` of each float, which gives
   the float back exactly; the prior by its ``repr``), as ``checks/fits.py`` keys them.
 
+Each binder family's prior is kept here too (``strength_prior_common._prior``, keyed by the
+family and its table row's ``repr``): its one-year gain term is matched by least squares, so
+a check with every fit and prior kept neither matches it again nor imports
+``scipy.optimize``.
+
 So any change to an input, to the code or to those libraries misses, and a hit is the object
 a fresh fit gives (the fits are deterministic: fixed random states), bands included.  Entries
 are written at the end of a complete run (a temporary file, then a rename; each with the
@@ -32,7 +37,7 @@ from pathlib import Path
 
 from specgen import cache
 
-KINDS = ("models", "inference")   # the fits kept here (``checks/fits.py`` key kinds)
+KINDS = ("models", "inference", "prior")   # what is kept here (``checks/fits.py`` key kinds)
 
 
 def default_folder() -> Path:

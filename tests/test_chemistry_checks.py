@@ -49,6 +49,31 @@ def test_raw_stone_carbonate_co2_balance_and_clay(demo):
     # 26.3 % lies in the 20-30 % band (common practice) but the non-carbonate residue
     # 100 - 68.226 - 0.6 = 31.17 % does not: the two methods straddle the band, so borderline
     assert checks[("CHEM-CLAY", "BS-1")].status == "attention"
+    # the residue's step whole: 100 − 30.0·M(CaCO3)/M(CO2) − SO3 0.6
+    #   = 100 − 30.0 × 100.086/44.009 − 0.6 = 100 − 68.2265 − 0.6 = 31.1735 %
+    res = checks[("CHEM-CLAY", "BS-1")].steps[1]
+    assert (res.title, res.unit, res.symbol) == ("Cross-check: non-carbonate residue", "%",
+                                                 "w_res")
+    assert res.result == pytest.approx(31.1735, abs=2e-4)
+
+
+ATOMIC_SOURCE = "content/data/atomic_weights.yaml (IUPAC/CIAAW standard atomic weights)"
+
+
+def test_carbonate_steps_show_the_molar_mass_ratios_with_their_source(demo):
+    _, results = demo
+    co2 = by(results)[("CHEM-CO2", "BS-1")]
+    ratios = {(i.symbol, i.name, i.unit, i.source): i.value
+              for s in co2.steps for i in s.inputs if i.unit == "g/g"}
+    # molar masses from IUPAC standard atomic weights (C 12.011, O 15.999, Ca 40.078,
+    # Mg 24.305): CO2 44.009, CaO 56.077, MgO 40.304, CaCO3 100.086, MgCO3 84.313 g/mol
+    expected = {("k_C", "M(CO2)/M(CaO)"): 44.009 / 56.077,      # 0.78480
+                ("k_M", "M(CO2)/M(MgO)"): 44.009 / 40.304,      # 1.09193
+                ("r_Ca", "M(CaCO3)/M(CO2)"): 100.086 / 44.009,  # 2.27422
+                ("r_Mg", "M(MgCO3)/M(CO2)"): 84.313 / 44.009}   # 1.91581
+    assert set(ratios) == {(sym, name, "g/g", ATOMIC_SOURCE) for sym, name in expected}
+    for (sym, name), value in expected.items():
+        assert ratios[(sym, name, "g/g", ATOMIC_SOURCE)] == pytest.approx(value, abs=2e-5)
 
 
 def test_loss_free_factor(demo):

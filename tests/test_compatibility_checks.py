@@ -972,3 +972,18 @@ def test_compatibility_ratio_of_a_fractional_fabric_and_a_not_assessed_with_step
     step = Step("What was read", "x", (), "x = 1", 1.0, "", "x")
     c = cc.not_assessed("COMP-SALT", "t", NS(subject="Z9/MA"), ["no readings"], steps=(step,))
     assert (c.steps, c.message) == ((step,), "not assessed: no readings")
+
+
+def test_grading_step_names_each_sieve_in_millimetres(demo_checked):
+    # the fineness-modulus step of the historic aggregate lists one input per sieve, named by
+    # its opening in mm as the laboratory reports it (demo lab/sieves.csv, HM1-agg: 4.75 mm
+    # 100 %, 2.36 mm 95, 1.18 mm 79, 0.600 mm 55, 0.300 mm 28, 0.150 mm 9 % passing; the
+    # ASTM C125 series)
+    c = by_check(demo_checked[1])[("COMP-GRAD", "Z1/M1")]
+    step = next(s for s in c.steps if s.title == "Fineness modulus of historic aggregate HM1-agg")
+    assert [(i.symbol, float(i.value), i.unit) for i in step.inputs] == [
+        ("P(4.75)", 100.0, "%"), ("P(2.36)", 95.0, "%"), ("P(1.18)", 79.0, "%"),
+        ("P(0.6)", 55.0, "%"), ("P(0.3)", 28.0, "%"), ("P(0.15)", 9.0, "%")]
+    # FM = Σ cumulative % retained on the standard sieves / 100 (ASTM C125), by hand:
+    # (0 + 5 + 21 + 45 + 72 + 91) / 100 = 2.34
+    assert step.result == pytest.approx(2.34, abs=1e-4)

@@ -517,6 +517,11 @@ def test_render_bond_only_where_render_is_specified(demo):
     assert {s for (code, s) in r if code == "DUR-BOND"} == {"Z2/M1", "Z2/M2"}
     # 0.12 MPa ≥ 0.1 MPa (common practice), broke in the mortar
     assert r[("DUR-BOND", "Z2/M2")].message == "bond 0.12 MPa ≥ 0.1 MPa, broke in the mortar"
+    # the step as the sheet shows it: the measured bond (demo materials.yaml: M2
+    # "0.12 MPa") in MPa, under its symbol
+    step = r[("DUR-BOND", "Z2/M2")].steps[0]
+    assert (step.title, step.result, step.unit, step.symbol) == (
+        "Pull-off bond against the minimum", 0.12, "MPa", "f_u")
 
 
 def test_carbonation_front_of_the_lime_mix(demo):

@@ -13,6 +13,9 @@ from specgen.errors import InputErrors
 from tests.conftest import shared_scope
 
 
+ATOMIC_SOURCE = "content/data/atomic_weights.yaml (IUPAC/CIAAW standard atomic weights)"
+
+
 def by(results):
     return {(c.code, c.subject): c for c in results.checks}
 
@@ -53,6 +56,14 @@ def test_residual_carbonate_and_decarbonation(demo):
     assert c.status == "pass"   # CO2 <= 3 %, common practice
     step = c.steps[0]
     assert step.result == pytest.approx(1.9 * M("CaCO3") / M("CO2"), abs=2e-3)
+    # the molar masses the step shows, named, in g/mol, from the atomic-weight table
+    # (periodictable: CaCO3 100.087, CO2 44.010 g/mol; 4 decimals shown)
+    masses = {i.symbol: i for i in step.inputs if i.unit == "g/mol"}
+    assert {k: (i.name, i.source) for k, i in masses.items()} == {
+        "M_{CaCO_3}": ("molar mass of calcite", ATOMIC_SOURCE),
+        "M_{CO_2}": ("molar mass of CO2", ATOMIC_SOURCE)}
+    assert masses["M_{CaCO_3}"].value == pytest.approx(M("CaCO3"), abs=2e-3)
+    assert masses["M_{CO_2}"].value == pytest.approx(M("CO2"), abs=2e-3)
     assert demo.quantities["NC1"]["decarbonation"].value == pytest.approx(95.616, abs=2e-3)
 
 

@@ -6,6 +6,7 @@ from __future__ import annotations
 import pytest
 
 from specgen.build import check
+from specgen.report.chapters import badge
 from specgen.report.glossary_chapters import printed
 from tests.helpers import by_check, edit, problems
 
@@ -427,15 +428,51 @@ def test_rake_out_fractional_depth_given_shown_to_a_thousandth_of_a_mm():
                                      "deepest": 24.37}
 
 
-def test_rake_out_on_the_least_depth_beyond_the_deepest_of_a_thin_joint():
+@pytest.mark.parametrize("given, value, said", [
+    (None, 15.0, ""),
+    (15.0, 15.0, "; the depth given, 15 mm, cannot settle it"),
+    (10.0, 10.0, "; the depth given, 10 mm, cannot settle it")])
+def test_rake_out_of_a_joint_too_fine_for_both_rules_is_held(given, value, said):
     """A 4 mm joint: the rule gives max(2 × 4, 15) = 15 mm but the deepest is 3 × 4 = 12 mm
-    (by hand), so no depth meets both.  15 mm given is on the rule's depth and beyond the
-    deepest: the message says deeper, not shallower."""
-    c = _rake(4.0, 15.0)
-    assert (c.status, c.message) == (
-        "attention", "the depth given, 15 mm, is deeper than 12 mm: it takes more original "
-        "mortar than the repair needs; confirm it on the trial bay or change it")
-    assert c.steps[1].substituted == r"15 \le 15 > 12"
+    (by hand; ratios 2 and 3, least depth 15 mm: common practice), so no depth meets both
+    rules.  The check holds — whatever depth is given — and says what decides: a trial bay,
+    with the heritage authority; the sheet shows the conflict, 15 > 3 · 4 = 12."""
+    from specgen.checks.result import Input, Step
+    c = _rake(4.0, given)
+    assert (c.status, c.value, c.limit) == ("hold", value, None)
+    assert c.message == (
+        "joints 4 mm wide are too fine for both rules of practice: the least depth, 15 mm, is "
+        "deeper than the deepest the width allows, 12 mm" + said + "; agree on a trial bay, "
+        "with the heritage authority, whether these joints are raked out at all and to what "
+        "depth")
+    assert c.steps == (_rule_step(4.0, 15.0), Step(
+        "The rule's depth against the deepest rake-out", r"d \le r_{\max} \cdot j",
+        (Input("r_max", "deepest rake-out as a multiple of the width", 3.0, "", MAX_RULE),),
+        r"15 > 3 \cdot 4 = 12", 12.0, "mm", "d_max"))
+    assert c.quantities[0].value == {"depth": value, "rule": 15.0, "given": given,
+                                     "deepest": 12.0}
+
+
+def test_rake_out_of_the_finest_joint_both_rules_allow_passes():
+    """5 mm is the finest joint both rules allow (15 mm / 3 = 5 mm, by hand): rule 15 mm,
+    deepest 15 mm, so it passes; 4.999 mm (deepest 14.997 mm < 15 mm) is held."""
+    assert (_rake(5.0).status, _rake(5.0, 15.0).status, _rake(4.999).status) == (
+        "pass", "pass", "hold")
+
+
+def test_method_statement_names_no_depth_for_a_held_joint(demo_copy):
+    """Demo Z1 given 4 mm joints and no depth: the preparation clause sends the depth to a
+    trial bay instead of quoting 15 mm, which the deepest rule (12 mm) forbids."""
+    from specgen.report.method_chapters import method
+    edit(demo_copy / "dossier.yaml", 'joint_width: "10 mm"\n    joint_depth: "20 mm"\n',
+         'joint_width: "4 mm"\n')
+    z1 = method(_env(demo_copy))["zones"][0]
+    text = {p["title"]: p["text"] for p in z1["parts"]}["Preparation"]
+    assert ("hand rakes to a depth agreed on a trial bay with the heritage authority (joints "
+            "this fine cannot meet both rules of practice for the rake-out depth), square at "
+            "the back") in text
+    assert "15 mm" not in text
+    assert z1["rake"]["badge"] == badge("hold")
 
 
 @pytest.mark.parametrize("rate_l_h, shown_rate, per_day, area", [

@@ -4,10 +4,11 @@ Documents wait in the printer, not in the process pool's first-come queue, and g
 worker as one frees, highest priority first, so a volume's running heads (ready only once
 all its parts are laid out) start at the next free worker rather than after every part
 queued before them.  Before this, the appendix volume's running heads of a cold demo build
-(6.35 CPU s, one document) ran alone at the end while the other core waited.  The
+(6.35 CPU s, one document, when every stamp page was laid out) ran alone at the end while
+the other core waited.  The
 mechanism is tested here with a stand-in pool whose documents finish when the test says;
-the whole print with real workers against one process is in ``test_print_parts.py`` and the
-byte-for-byte re-issue in ``test_reissue.py``.
+the whole print is in ``test_print_parts.py`` and the byte-for-byte re-issue in
+``test_reissue.py``.
 """
 from __future__ import annotations
 
@@ -17,7 +18,8 @@ import pytest
 
 from specgen import cache
 from specgen.publish import pdf_parts
-from specgen.publish.pdf_parts import BASE, SVG_BYTES_PER_CHAR, Printer, Timings, weight
+from specgen.publish.pdf_parts import BASE, SVG_BYTES_PER_CHAR, Printer, weight
+from specgen.publish.pdf_schedule import Timings
 from specgen.report.pageset import PageSet
 
 
@@ -124,15 +126,16 @@ def test_an_untimed_part_is_costed_by_its_html_and_the_svg_it_draws():
     assert t.order([weight(sheet, pages), weight(text, pages)]) == [0, 1]
 
 
-def test_the_running_heads_time_is_kept_beside_the_parts(tmp_path):
-    """A volume's running heads wait for all its parts; their time (else a share of the
-    parts' cost) tells which volume's parts go first."""
+def test_the_tail_time_is_kept_beside_the_parts(tmp_path):
+    """A volume's contents and running heads wait for all its parts; their time last build
+    (never timed: 0) is added to its parts' priority, so the volume with the longer tail is
+    laid out first."""
     with cache.using(tmp_path / "c"):
         first = Timings.load(["p#0", "p#1"], "P-1")
-        assert first.tail([10.0, 20.0]) == pytest.approx(Timings.TAIL_SHARE * 30.0)
+        assert first.tail() == 0.0
         first.keep([1.0, 2.0], tail=6.5)
         again = Timings.load(["p#0", "p#1"], "P-1")
         assert again.known == {"p#0": 1.0, "p#1": 2.0, Timings.TAIL: 6.5}
-        assert again.tail([10.0, 20.0]) == 6.5
+        assert again.tail() == 6.5
         again.keep([0.0, 0.0], tail=0.0)          # all from the cache: the times stay
         assert Timings.load(["p#0", "p#1"], "P-1").known == again.known

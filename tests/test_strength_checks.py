@@ -35,6 +35,18 @@ def test_aggregation_matches_en1990_and_scipy(demo_copy):
     assert step.result == pytest.approx(mean - kn * sd, abs=1e-4)
     assert all("lab/strength.csv row" in i.source for i in step.inputs if i.symbol == "f_i")
     assert agg.basis[0].ref == "en1990"
+    # the summary lines of the calculation sheet, whole: n, mean, sample SD (scipy, n − 1)
+    # and CV = 100·s/mean in %, each with its symbol, unit and where it comes from
+    summary = {i.symbol: i for i in step.inputs if i.symbol != "f_i"}
+    assert (summary["n"].name, summary["n"].value, summary["n"].unit, summary["n"].source) \
+        == ("results kept", 3, "", "count")
+    assert summary["f̄"].value == pytest.approx(mean, abs=1e-4) and summary["f̄"].unit == "MPa"
+    assert summary["s"].value == pytest.approx(sd, abs=1e-4)
+    assert summary["s"].source == "computed (n − 1)"
+    assert (summary["CV"].name, summary["CV"].unit, summary["CV"].source) == (
+        "coefficient of variation", "%", "computed")
+    assert summary["CV"].value == pytest.approx(100 * sd / mean, abs=5e-3)
+    assert summary["k_n"].value == pytest.approx(kn, abs=1e-4)
 
 
 def test_grubbs_tie_in_three_is_reported_not_dropped(demo_copy):
@@ -107,6 +119,19 @@ def test_fit_prediction_and_names_in_results(demo_copy):
     assert p90["pred_lower"] < p90["lower"] and p90["pred_upper"] > p90["upper"]
     fit = by_check(r)[("STR-FIT-C", "M1")]
     assert "Chosen: two-component model" in fit.notes[0] and "AICc" in fit.notes[0]
+    # the calculation sheet of each predicted age starts from the age it answers, in days:
+    # the demo's requirements at 28 and 90 d and the late age of 365 d (demo dossier.yaml)
+    ages = [s.inputs[0] for s in by_check(r)[("STR-PRED-C", "M1")].steps]
+    assert [(i.symbol, i.name, i.value, i.unit, i.source) for i in ages] == [
+        ("t", "age (equivalent, at 20 °C)", a, "d", "requirement or late age")
+        for a in (28.0, 90.0, 365.0)]
+    assert q["predicted_strength"].label == ("predicted strength: band for the mean and "
+                                             "interval for the next set")
+    # the message gives each age as "28 d: … MPa, mean [a, b], next set [c, d]", the ages
+    # beyond the extrapolation limit (only 365 d here) marked "(indicative)" after the bracket
+    parts = by_check(r)[("STR-PRED-C", "M1")].message.split("; ")
+    assert [p.split(":")[0] for p in parts[:3]] == ["28 d", "90 d", "365 d"]
+    assert parts[2].endswith("] (indicative)") and not parts[1].endswith("(indicative)")
 
 
 def test_short_record_prediction_is_indicative_and_never_decides(demo_copy):
@@ -132,6 +157,15 @@ def test_acceptance_pass_fail_and_hold(demo_copy):
     # M3 28 d: 2.80, 2.28, 2.37 -> mean 2.483, s 0.2779, f_k = 2.483 - 3.372*0.2779 = 1.546 < 2
     m3 = by[("STR-MIN", "M3")]
     assert m3.status == "fail" and m3.value == pytest.approx(1.546, abs=2e-3)
+    # the 28-d step's measured inputs whole: mean (2.80 + 2.28 + 2.37)/3 = 2.4833 MPa and
+    # the characteristic value above, each in MPa with where it comes from
+    first = next(st for st in m3.steps if any(i.symbol == "f̄" for i in st.inputs))
+    measured = {i.symbol: i for i in first.inputs if i.symbol in ("f̄", "f_k,unknown")}
+    assert measured["f̄"].value == pytest.approx(7.45 / 3, abs=1e-4)
+    assert (measured["f̄"].unit, measured["f̄"].source) == ("MPa", "STR-AGG")
+    assert measured["f_k,unknown"].value == pytest.approx(1.546, abs=2e-3)
+    assert (measured["f_k,unknown"].unit, measured["f_k,unknown"].source) == (
+        "MPa", "EN 1990 Annex D (D7.2), from the specimens at this age")
     assert by[("STR-MIN", "M1")].status == "pass"
     mx = by[("STR-MAX", "M1")]   # 365 d interval straddles the 9 MPa cap
     assert mx.status == "hold" and mx.limit.high == 9.0
@@ -190,6 +224,15 @@ def test_site_temperature_and_load_strength(demo_copy):
     assert f28 * g(day * factor) / g(28) > 1.0
     assert "load strength 1 MPa reached on day" in site.message
     assert any("must be measured" in n for n in site.notes)
+    # the equivalent-age step, as the sheet shows it: t_e(t\,d) = …\,d, in days
+    import re
+    step = site.steps[0]
+    got = re.fullmatch(r"t_e\(([\d.]+)\\,\\mathrm\{d\}\) = ([\d.]+)\\,\\mathrm\{d\}",
+                       step.substituted)
+    assert got, step.substituted
+    assert float(got.group(2)) == pytest.approx(float(got.group(1)) * factor, abs=0.006)
+    assert (step.unit, step.symbol) == ("d", "t_e")
+    assert step.result == pytest.approx(float(got.group(1)) * factor, abs=1e-4)
 
 
 def test_not_assessed_with_fewer_than_two_ages(demo_copy):

@@ -110,6 +110,12 @@ def test_quick_set_halves_the_measure(demo):
     assert c.status == "attention"
     assert (g["measure_L"], g["halved_from_L"], g["binder_measures"]) == (0.25, 1.0, 1)
     assert "so a 0.25 L scoop is used" in c.message
+    # the first step as the sheet shows it: V_max = t_w·q/γ = (10/60 h) × 8 L/h / 1.5
+    # = 0.8889 L, by hand from the same inputs
+    first = c.steps[0]
+    assert (first.title, first.unit, first.symbol) == (
+        "Largest gauging placed within the workable life", "L", "V_max")
+    assert first.result == pytest.approx(10 / 60 * 8 / 1.5, abs=1e-4)
     # Z1: 8 L/h × 6 h = 48 L in gaugings of 0.596 L: ⌈80.5⌉ = 81 gaugings a day, more than
     # the 40 one mixer keeps up with (rule of common practice): the check says so
     assert r.quantities["M2"]["gauging_by_zone"].value["Z1"]["per_day"] == 81

@@ -7,6 +7,8 @@ Usage (from the repository root; mutmut is in the ``test`` extra)::
     python3 tools/mutation.py checks --modules works_checks works_common
     python3 tools/mutation.py report science             # the figures of the last run
     python3 tools/mutation.py recheck checks --workdir W  # survivors against today's tests
+    python3 tools/mutation.py sample checks --modules A B --sample 60 --rng-state 27 --workdir D
+    python3 tools/mutation.py estimate checks --workdir D --exact M=KILLED/MUTANTS ...
 
 Each scope runs in its own scratch copy of the repository (``--workdir``, default
 ``/tmp/specgen-mutation/<scope>``) so that mutmut's ``mutants/`` folder never lands in the
@@ -16,6 +18,11 @@ checks (each evaluates a copy of the demo project: slow, so scope them by module
 ``--jobs`` is mutmut's ``--max-children`` (default 1: the machine is shared).
 The report prints, per module and per package, the mutants killed (a test failed, or the
 mutant timed out), survived, and not covered by any selected test, and the share killed.
+
+``sample`` runs a stratified random sample instead of every mutant (a module is a stratum:
+``--sample N`` of its mutants, or a fraction ``--sample 0.1``, drawn with ``--rng-state K``),
+and ``estimate`` gives each sampled module's share killed with its Wilson interval and the
+package's share as the stratified estimate (modules run whole given by ``--exact``).
 """
 from __future__ import annotations
 
@@ -26,6 +33,8 @@ import shutil
 import subprocess
 import sys
 from collections import Counter
+from math import ceil, sqrt
+from statistics import NormalDist
 from pathlib import Path
 
 REPO = Path(__file__).resolve().parent.parent
@@ -295,11 +304,13 @@ def _forked(mutants: Path, selection: list[str], names: list[str]):
     tests and their libraries (what mutmut does): a survivor then costs its tests, not a
     fresh interpreter's imports.  Yields one pytest exit code per name."""
     import pytest
+    import resource
     os.chdir(mutants)
     sys.path.insert(0, str(mutants))
     os.environ.pop("PYTHONPATH", None)
     args = ["-x", "-q", "-p", "no:cacheprovider", "-n", "0", "-m", "not e2e", *selection]
     os.environ["MUTANT_UNDER_TEST"] = ""
+    before = resource.getrusage(resource.RUSAGE_SELF)
     with open(os.devnull, "w") as sink:
         saved = os.dup(1), os.dup(2)
         os.dup2(sink.fileno(), 1), os.dup2(sink.fileno(), 2)
@@ -310,9 +321,16 @@ def _forked(mutants: Path, selection: list[str], names: list[str]):
     if warm != 0:
         raise SystemExit(f"the selected tests fail without a mutant (exit {int(warm)}); "
                          "nothing rechecked")
+    after = resource.getrusage(resource.RUSAGE_SELF)
+    # a mutant that loops is stopped by the kernel (SIGXCPU, exit -24: a timeout, counted as
+    # killed as mutmut counts it) after ten times the CPU of the run without a mutant (CPU,
+    # not wall time: the machine is shared), and 30 s more for the imports that run warmed
+    warm_cpu = (after.ru_utime + after.ru_stime) - (before.ru_utime + before.ru_stime)
+    limit = int(10 * warm_cpu) + 30
     for name in names:
         pid = os.fork()
         if pid == 0:      # the child: the mutant's run, its output discarded
+            resource.setrlimit(resource.RLIMIT_CPU, (limit, limit + 5))
             with open(os.devnull, "w") as sink:
                 os.dup2(sink.fileno(), 1), os.dup2(sink.fileno(), 2)
                 os.environ["MUTANT_UNDER_TEST"] = name
@@ -378,17 +396,174 @@ def recheck(scope: str, workdir: Path, tests: list[str] = (), fork: bool = False
         for name, code in zip(names, codes):
             print(f"{name}: {'killed' if code == 1 else 'survived'}", flush=True)
             if code == 1 or data["exit_code_by_key"][name] is None:
+                # the run's own code is kept beside (``estimate --as-run``): a test written
+                # from a sampled survivor makes the sample no longer independent of the tests
+                data.setdefault("exit_code_at_run", {}).setdefault(
+                    name, data["exit_code_by_key"][name])
                 data["exit_code_by_key"][name] = 1 if code == 1 else 0
                 killed += code == 1
                 meta.write_text(json.dumps(data), "utf-8")
     return killed
 
 
+def sample_names(names_by_module: dict[str, list[str]], size: float,
+                 rng_state: int) -> dict[str, list[str]]:
+    """A stratified random sample of mutant names: each module (stratum) gets a simple random
+    sample without replacement of ``size`` of its mutants (an integer count, or a fraction of
+    the module when ``0 < size < 1``, rounded up; the whole module when it has no more),
+    drawn by ``random.Random`` from the random state ``rng_state`` and the module's name, so
+    the draw of one module does not depend on which others are drawn with it.  Names are
+    sorted before the draw (the meta files' order does not matter); the result keeps the
+    order of the draw, so that every prefix of it is itself a simple random sample (what
+    ``random.sample`` promises of its sub-slices): a run may go through the draw in passes
+    (``--upto``) and stop between them."""
+    import random
+    out = {}
+    for module in sorted(names_by_module):
+        names = sorted(set(names_by_module[module]))
+        n = ceil(size * len(names)) if 0 < size < 1 else int(size)
+        rng = random.Random(f"{rng_state}:{module}")
+        out[module] = rng.sample(names, min(n, len(names)))
+    return out
+
+
+Z95 = NormalDist().inv_cdf(0.975)      # 1.959964: the two-sided 95 % normal quantile
+
+
+def wilson(killed: int, n: int, z: float = Z95) -> tuple[float, float]:
+    """Wilson's score interval for a binomial share ``killed / n`` (Wilson, J. Amer. Statist.
+    Assoc. 22, 1927): the shares p whose score |k/n − p| / sqrt(p(1 − p)/n) is at most z."""
+    p = killed / n
+    d = 1 + z * z / n
+    mid = (p + z * z / (2 * n)) / d
+    half = z * sqrt(p * (1 - p) / n + z * z / (4 * n * n)) / d
+    return max(0.0, mid - half), min(1.0, mid + half)
+
+
+def stratified(strata: list[tuple[int, int, int]], z: float = Z95) -> dict:
+    """The stratified estimate of a proportion from ``(N_h, n_h, k_h)`` per stratum (mutants
+    in the module, mutants run, killed) — Cochran, *Sampling Techniques* (3rd ed., 1977),
+    ch. 5, stratified random sampling for proportions:
+    p_st = Σ W_h p_h with W_h = N_h / N, and its estimated variance
+    v(p_st) = Σ W_h² (1 − f_h) p_h q_h / (n_h − 1), f_h = n_h / N_h (a stratum run whole
+    adds none); the interval is p_st ± z·sqrt(v), the normal approximation."""
+    big_n = sum(s[0] for s in strata)
+    p = sum(nh_all / big_n * k / n for nh_all, n, k in strata)
+    var = sum((nh_all / big_n) ** 2 * (1 - n / nh_all) * (k / n) * (1 - k / n) / (n - 1)
+              for nh_all, n, k in strata if n < nh_all)
+    se = sqrt(var)
+    return {"mutants": big_n, "share": p, "se": se,
+            "low": max(0.0, p - z * se), "high": min(1.0, p + z * se)}
+
+
+def generate(workdir: Path) -> dict[str, list[str]]:
+    """Make the mutants of a prepared scratch copy with mutmut's own generation (nothing
+    run): the names of each mutated module, from mutmut's meta files."""
+    env = {k: v for k, v in os.environ.items() if k != "PYTHONPATH"}
+    code = ("from mutmut.__main__ import *\n"
+            "set_mutant_under_test('mutant_generation')\n"
+            "copy_src_dir(); copy_also_copy_files(); setup_source_paths(); create_mutants(1)\n")
+    subprocess.run([sys.executable, "-c", code], cwd=workdir, env=env, check=True,
+                   stdout=subprocess.DEVNULL)
+    out = {}
+    for meta in sorted(workdir.glob("mutants/**/*.py.meta")):
+        out[meta.name[:-len(".py.meta")]] = sorted(
+            json.loads(meta.read_text("utf-8"))["exit_code_by_key"])
+    return out
+
+
+def _record(code: int) -> int:
+    """A pytest exit code of a mutant's run as mutmut records it: 0 survived, 5 (no test
+    collected) as mutmut's 33 (no tests), anything else as it came (1 killed, -24 the CPU
+    limit: a timeout)."""
+    return 33 if code == 5 else code
+
+
+def sample(scope: str, modules: list[str], workdir: Path, size: float, rng_state: int,
+           tests: list[str] = (), upto: int | None = None) -> None:
+    """Per module, in ``workdir/MODULE``: a fresh scratch copy, its mutants made and a sample
+    drawn (``sample.json``), then the first ``upto`` of the draw run (all when None;
+    :func:`sample_run`, in a fresh interpreter).  A module whose draw of the same size and
+    random state is already there is not made again: the run goes on where it stopped."""
+    for module in modules:
+        wd = workdir / module
+        drawn = wd / "sample.json"
+        old = json.loads(drawn.read_text("utf-8")) if drawn.exists() else {}
+        if (old.get("size"), old.get("rng_state")) != (size, rng_state):
+            prepare(scope, wd, [module], tests)
+            names = generate(wd).get(module, [])
+            picked = sample_names({module: names}, size, rng_state)[module]
+            drawn.write_text(json.dumps(
+                {"module": module, "size": size, "rng_state": rng_state,
+                 "mutants": len(names), "names": picked,
+                 "tests": tests_for(scope, [module], tests)}, indent=1), "utf-8")
+            print(f"{module}: {len(picked)} of {len(names)} mutants drawn", flush=True)
+        env = {k: v for k, v in os.environ.items() if k != "PYTHONPATH"}
+        subprocess.run([sys.executable, str(Path(__file__).resolve()), "sample-run", scope,
+                        "--workdir", str(wd)] + ([] if upto is None else ["--upto", str(upto)]),
+                       env=env, check=True)
+
+
+def sample_run(scope: str, workdir: Path, upto: int | None = None) -> None:
+    """Run the mutants drawn in ``workdir/sample.json`` (the first ``upto`` of the draw, those
+    not run yet) against the module's selection, each in a child forked from one warm
+    process (:func:`_forked`): a mutant survives only if every selected test passes; its
+    exit code goes into mutmut's meta file (the mutants not drawn stay "not run")."""
+    drawn = json.loads((workdir / "sample.json").read_text("utf-8"))
+    meta = workdir / "mutants" / SCOPES[scope]["package"] / f"{drawn['module']}.py.meta"
+    data = json.loads(meta.read_text("utf-8"))
+    todo = [n for n in drawn["names"][:upto] if data["exit_code_by_key"][n] is None]
+    if not todo:
+        return
+    for name, code in zip(todo, _forked(workdir / "mutants", drawn["tests"], todo)):
+        data["exit_code_by_key"][name] = _record(code)
+        meta.write_text(json.dumps(data), "utf-8")
+        print(f"{name}: {'killed' if _record(code) in KILLED else 'survived'} ({code})",
+              flush=True)
+
+
+def estimate(scope: str, workdir: Path, exact: list[str] = (), as_run: bool = False) -> dict:
+    """The package's share killed from the sampled modules under ``workdir`` (one folder per
+    module) and the modules run whole (``exact``: ``MODULE=KILLED/MUTANTS``): per module the
+    share with its Wilson interval, and the stratified estimate with its interval.
+    ``as_run``: each mutant's code at the run, before any recheck (the unbiased figure for
+    the tests of the run's commit)."""
+    strata, rows = [], []
+    for item in exact:
+        module, figures = item.split("=")
+        k, big_n = (int(x) for x in figures.split("/"))
+        strata.append((big_n, big_n, k))
+        rows.append((module, big_n, big_n, k))
+    for meta in sorted(workdir.glob(f"*/mutants/{SCOPES[scope]['package']}/*.py.meta")):
+        data = json.loads(meta.read_text("utf-8"))
+        codes = {**data["exit_code_by_key"],
+                 **(data.get("exit_code_at_run", {}) if as_run else {})}
+        ran = [c for c in codes.values() if c is not None]
+        k, module = sum(c in KILLED for c in ran), meta.name[:-len(".py.meta")]
+        if len(ran) >= 2:            # a stratum's variance needs two mutants run
+            strata.append((len(codes), len(ran), k))
+            rows.append((module, len(codes), len(ran), k))
+        else:
+            print(f"{module}: {len(ran)} mutant run, left out (two are needed)")
+    print(f"{'module':28} {'mutants':>8} {'run':>5} {'killed':>7} {'killed %':>9} "
+          f"{'95 % (Wilson)':>15}")
+    for module, big_n, n, k in rows:
+        lo, hi = wilson(k, n)
+        print(f"{module:28} {big_n:8} {n:5} {k:7} {100 * k / n:9.1f} "
+              f"{100 * lo:7.1f}–{100 * hi:5.1f}")
+    est = stratified(strata)
+    print(f"package (stratified, {len(rows)} modules, {est['mutants']} mutants): "
+          f"{100 * est['share']:.1f} % killed, 95 % interval {100 * est['low']:.1f}–"
+          f"{100 * est['high']:.1f} % (standard error {100 * est['se']:.2f} points)")
+    return est
+
+
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.split("\n")[0])
-    ap.add_argument("scope", choices=[*SCOPES, "report", "survivors", "recheck"])
+    steps = ("report", "survivors", "recheck", "sample", "sample-run", "estimate")
+    ap.add_argument("scope", choices=[*SCOPES, *steps])
     ap.add_argument("target", nargs="?", choices=list(SCOPES),
-                    help="for report/survivors/recheck: which scope")
+                    help="for " + "/".join(steps) + ": which scope")
     ap.add_argument("--modules", nargs="*", default=[],
                     help="module names (e.g. grading works_checks); default all")
     ap.add_argument("--tests", nargs="*", default=[],
@@ -401,9 +576,19 @@ def main(argv=None) -> int:
                     help="recheck: also run the mutants a stopped run did not reach")
     ap.add_argument("--functions", nargs="*", default=[],
                     help="recheck: only the mutants of these functions")
+    ap.add_argument("--sample", type=float, default=60,
+                    help="sample: mutants drawn per module (a count, or a fraction below 1)")
+    ap.add_argument("--rng-state", type=int, default=27,
+                    help="sample: the random state of the draw (the same state, the same draw)")
+    ap.add_argument("--upto", type=int, default=None,
+                    help="sample: run only the first UPTO of each module's draw (a pass)")
+    ap.add_argument("--as-run", action="store_true",
+                    help="estimate: the codes of the run, before any recheck")
+    ap.add_argument("--exact", nargs="*", default=[],
+                    help="estimate: modules run whole, as MODULE=KILLED/MUTANTS")
     ap.add_argument("--workdir", type=Path, default=None)
     a = ap.parse_args(argv)
-    scope = a.target if a.scope in ("report", "survivors", "recheck") else a.scope
+    scope = a.target if a.scope in steps else a.scope
     if scope is None:
         ap.error("say which scope: science or checks")
     workdir = a.workdir or Path("/tmp/specgen-mutation") / scope
@@ -414,6 +599,19 @@ def main(argv=None) -> int:
         killed = recheck(scope, workdir, a.tests, a.fork, a.unrun, a.functions)
         print(f"killed on recheck: {killed}")
         report(scope, workdir)
+        return 0
+    if a.scope == "sample":
+        if not a.modules:
+            ap.error("sample: name the modules (--modules)")
+        sample(scope, a.modules, workdir, a.sample, a.rng_state, a.tests, a.upto)
+        estimate(scope, workdir)
+        return 0
+    if a.scope == "sample-run":
+        sample_run(scope, workdir, a.upto)
+        report(scope, workdir)
+        return 0
+    if a.scope == "estimate":
+        estimate(scope, workdir, a.exact, a.as_run)
         return 0
     if a.scope == "survivors":
         print("\n".join(survivors(scope, workdir)))

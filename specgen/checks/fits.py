@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import contextlib
 import contextvars
+import os
 
 import numpy as np
 
@@ -95,27 +96,95 @@ def inference(ages_d, values_mpa, prior: si.Prior) -> si.Inference:
     return once(("inference", t, y, repr(prior)), lambda: si.fit(list(t), list(y), prior))
 
 
-def inferences(records) -> None:
-    """Make together (:func:`~specgen.science.strength_inference.fit_many`, the solves batched)
-    the fits of every ``(ages_d, values_mpa, prior)`` record not yet kept, so that
-    :func:`inference` finds them; a record that cannot be fitted is left for :func:`inference`
-    to refuse.  Outside :func:`kept` nothing is kept, so nothing is made."""
+def made_together(records, series) -> None:
+    """Make, before they are asked for, the fits not yet kept: the inference of each
+    ``(ages_d, values_mpa, prior)`` record (:func:`inference`; their solves batched by
+    :func:`~specgen.science.strength_inference.fit_many`) and the model comparison of
+    each ``(ages_s, values_pa)`` series (:func:`selection`).  When there are at least
+    ``BESIDE_MIN`` of them, a second process (``fork``) makes the back half of each kind
+    while this one makes the front: every fit is a pure function of its own inputs, made by the same code
+    either way, so the results are those of one process, kept in the same order.  A fit that
+    cannot be made is left for :func:`inference` / :func:`selection` to refuse."""
     store = _KEPT.get()
     if store is None:
         return
     todo: dict[tuple, tuple] = {}
     for ages_d, values_mpa, prior in records:
         t, y = tuple(map(float, ages_d)), tuple(map(float, values_mpa))
-        key = ("inference", t, y, repr(prior))
+        todo.setdefault(("inference", t, y, repr(prior)), (list(t), list(y), prior))
+    for ages_s, values_pa in series:
+        t, y = tuple(map(float, ages_s)), tuple(map(float, values_pa))
+        todo.setdefault(("models", t, y), (t, y))
+    for key in list(todo):
         if key not in store and (found := _from_persist(key)) is not None:
             store[key] = found
-        if key not in store:
-            todo.setdefault(key, (list(t), list(y), prior))
-    if not todo:
-        return
-    for key, made in zip(todo, si.fit_many(list(todo.values()))):
+        if key in store:
+            del todo[key]
+    if todo:
+        store.update(_made_beside(todo))
+
+
+def _make(todo: dict[tuple, tuple]) -> dict[tuple, object]:
+    """The fits of ``todo`` (key: arguments) that could be made, by key (in one process)."""
+    out: dict[tuple, object] = {}
+    inf = [k for k in todo if k[0] == "inference"]
+    for key, made in zip(inf, si.fit_many([todo[k] for k in inf])):
         if isinstance(made, si.Inference):
-            store[key] = made
+            out[key] = made
+    for key in (k for k in todo if k[0] == "models"):
+        t, y = todo[key]
+        try:
+            out[key] = sm.fit_all(np.array(t), np.array(y))
+        except sm.StrengthFitError:
+            pass    # refused again, with its message, when the check asks
+    return out
+
+
+BESIDE_MIN = 40   # fits to make before a second process pays for its start (about 0.05 s)
+
+
+def _made_beside(todo: dict[tuple, tuple]) -> dict[tuple, object]:
+    """:func:`_make` of ``todo``, the back half in a second process when two cores are free
+    to this one and there is enough to make (else all here)."""
+    import multiprocessing
+    if (len(todo) < BESIDE_MIN or _cores() < 2
+            or "fork" not in multiprocessing.get_all_start_methods()):
+        return _make(todo)
+    keys = list(todo)
+    front, back = [], []
+    for kind in ("inference", "models"):   # half of each kind each: their costs differ
+        of = [k for k in keys if k[0] == kind]
+        front += of[:len(of) // 2]
+        back += of[len(of) // 2:]
+    from concurrent.futures import ProcessPoolExecutor
+    with ProcessPoolExecutor(1, mp_context=multiprocessing.get_context("fork"),
+                             initializer=_die_with_parent) as pool:
+        other = pool.submit(_make, {k: todo[k] for k in back})
+        out = _make({k: todo[k] for k in front})
+        try:
+            out.update(other.result())
+        except Exception:  # noqa: BLE001 - the other process failed: its half made here
+            # (an error of the fits themselves is raised again here, where it belongs)
+            out.update(_make({k: todo[k] for k in back}))
+    return {k: out[k] for k in keys if k in out}
+
+
+def _cores() -> int:
+    try:
+        return len(os.sched_getaffinity(0))
+    except AttributeError:    # not Linux
+        return os.cpu_count() or 1
+
+
+def _die_with_parent() -> None:
+    # Linux: the second process ends when this one ends, even by SIGKILL (PR_SET_PDEATHSIG),
+    # as the math drawing's (``report/mathsvg.py``)
+    try:
+        import ctypes
+        import signal
+        ctypes.CDLL("libc.so.6", use_errno=True).prctl(1, signal.SIGKILL)
+    except (OSError, AttributeError):
+        pass
 
 
 def capillary(times_s, uptakes) -> moisture.CapillaryFit:

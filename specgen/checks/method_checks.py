@@ -4,6 +4,8 @@ The method statement's preparation clause quotes this depth: ``d = max(r · j, d
 joint width ``j`` times the ratio of practice (``works.joint_depth_ratio``, the same rule the
 quantities use), never shallower than ``method.rake_out_min``.  A depth the project gives is
 compared with the rule and with the deepest sensible rake-out (``method.rake_out_max_ratio``).
+A joint finer than ``d_min / r_max`` (5 mm with the rules of practice) cannot meet both rules:
+the check holds it, and the method statement names no depth for it, until a trial bay decides.
 """
 from __future__ import annotations
 
@@ -40,6 +42,15 @@ def rake_out_check(zone, ctx):
                   round(rule / MM, 3), "mm", "d")]
     status, message = "pass", f"rake out to {rule / MM:g} mm (the rule)"
     limit = None
+    if rule > deepest + 1e-9:        # j < d_min / r_max: the two rules cannot both hold
+        steps.append(Step("The rule's depth against the deepest rake-out",
+                          r"d \le r_{\max} \cdot j",
+                          (Input("r_max", "deepest rake-out as a multiple of the width",
+                                 rmax.value, "", rmax.source()),),
+                          rf"{rule / MM:g} > {rmax.value:g} \cdot {w / MM:g} = {deepest / MM:g}",
+                          round(deepest / MM, 3), "mm", "d_max"))
+        return _rake_result(zone, "hold", given if given is not None else rule, rule, given,
+                            deepest, steps, None, _too_fine(w, rule, deepest, given))
     if given is not None:
         ok = rule - 1e-9 <= given <= deepest + 1e-9
         lo_rel = r"\le" if given >= rule else ">"
@@ -62,7 +73,21 @@ def rake_out_check(zone, ctx):
                       if given < rule else f"deeper than {deepest / MM:g} mm: it takes more "
                       "original mortar than the repair needs")
                    + "; confirm it on the trial bay or change it")
-    depth = given if given is not None else rule
+    return _rake_result(zone, status, given if given is not None else rule, rule, given,
+                        deepest, steps, limit, message)
+
+
+def _too_fine(width: float, rule: float, deepest: float, given) -> str:
+    """Why a joint this fine is held: the least depth of practice is deeper than the deepest
+    rake-out its width allows, so no depth meets both rules; what decides is a trial bay."""
+    said = f"; the depth given, {given / MM:g} mm, cannot settle it" if given is not None else ""
+    return (f"joints {width / MM:g} mm wide are too fine for both rules of practice: the least "
+            f"depth, {rule / MM:g} mm, is deeper than the deepest the width allows, "
+            f"{deepest / MM:g} mm{said}; agree on a trial bay, with the heritage authority, "
+            "whether these joints are raked out at all and to what depth")
+
+
+def _rake_result(zone, status, depth, rule, given, deepest, steps, limit, message):
     q = Quantity("rake_out_depth", {"depth": round(depth / MM, 3), "rule": round(rule / MM, 3),
                                     "given": round(given / MM, 3) if given else None,
                                     "deepest": round(deepest / MM, 3)}, "mm",

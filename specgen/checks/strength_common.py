@@ -139,12 +139,14 @@ def analyse(project, rules) -> dict[tuple[str, str], Series]:
     plaus = refdata.load("strength_classes").data["plausible_range"]
     out = {key: _series(key, rows[key], st, rules, plaus[key[1]], project)
            for key in sorted(rows)}
-    # the inference's fits of every series made together (their solves batched), then each
-    # series takes its own (``fits.inference`` finds it kept)
+    # the fits of every series made together (the inference's solves batched; on two cores
+    # when there are many), then each series takes its own (``fits.inference`` and
+    # ``fits.selection`` find them kept)
     fams = {key: spc.family(project, project.mixes[key[0]]) for key in out
             if key[0] in project.mixes}
-    fits.inferences([spc.fit_record(out[k], fam) for k, fam in fams.items()
-                     if not out[k].implausible])
+    fits.made_together([spc.fit_record(out[k], fam) for k, fam in fams.items()
+                        if not out[k].implausible],
+                       [(s.t_fit, s.y_fit) for s in out.values() if not s.implausible])
     for key, s in out.items():
         _fit(s, fams.get(key), rules)
     return out

@@ -36,10 +36,16 @@ def family(project, mix) -> Family:
     types = sorted({b.type for b in binders})
     key, why = _key(types, binders)
     if key in table:
-        return Family(si.prior_from_table(key, table[key]), why, False)
-    return Family(si.prior_from_table("widest", table["widest"]),
+        return Family(_prior(key, table[key]), why, False)
+    return Family(_prior("widest", table["widest"]),
                   f"{why}: no prior for this binder family in content/data/strength_priors.yaml, "
                   "so the widest prior is used (the band is as wide as the families allow)", True)
+
+
+def _prior(name: str, row) -> si.Prior:
+    """:func:`~specgen.science.strength_inference.prior_from_table` of a family's row, made
+    once and kept between runs with the fits (its gain term is matched by least squares)."""
+    return fits.once(("prior", name, repr(row)), lambda: si.prior_from_table(name, row))
 
 
 def _key(types: list[str], binders) -> tuple[str, str]:

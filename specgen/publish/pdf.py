@@ -227,6 +227,7 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
     parts come back, counted over both volumes (the report's parts, then its appendices').
     """
     from specgen.publish.pdf_parts import Printer
+    from specgen.publish.pdf_schedule import _collect
     if getattr(pageset, "drawing", None):   # placeholders of the live preview's first pages
         raise PublishError(f"{target}: {len(pageset.drawing)} figure(s) not drawn yet ("
                            f"{', '.join(sorted(pageset.drawing)[:3])}); a PDF is never printed "
@@ -245,7 +246,7 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
                 hashlib.sha256(identifier + b"/appendix").digest()[:16]
             finals[v.key] = dict(attachments=files, pdf_identifier=ident) if v.key == "main" \
                 else dict(pdf_identifier=ident)
-        _collect(printer, jobs, page_size, on_part, finals)
+        _collect(printer, jobs, page_size, on_part, finals, (_stamp_specimen, _stamp_set))
         done = {k: (job["tail_work"].front(), job["printed"], job["tail_work"].stamps())
                 for k, job in jobs.items()}
     # put together once the workers have ended: the assembly's memory is not added to theirs
@@ -265,7 +266,8 @@ def _volume_jobs(printer, v, context: dict, page_size: str) -> dict:
     """One volume's print: its contents laid out once with placeholder numbers (submitted
     now, first), its parts as (expected CPU seconds, submit(priority)) for the caller to
     queue, and ``tail``: the expected CPU seconds of what waits on all its parts."""
-    from specgen.publish.pdf_parts import Timings, cached_or_submitted, weight
+    from specgen.publish.pdf_parts import cached_or_submitted, weight
+    from specgen.publish.pdf_schedule import FIRST, Timings
     every = v.pieces
     css = stylesheet(page_size, "parts.css", "control.css")
     ctx = dict(context, volume=VOLUME_WORDS[v.key], other_name=v.other_name)
@@ -289,80 +291,7 @@ def _volume_jobs(printer, v, context: dict, page_size: str) -> dict:
     return {"ctx": ctx, "every": every, "groups": groups, "timings": timings, "front": front,
             "guess": front({p.id: PLACEHOLDER_PAGE for p in every}), "handles": handles,
             "parts": [(costs[i], submitter(i)) for i in range(len(groups))],
-            "tail": timings.tail(costs)}
-
-
-FIRST = 1e9   # priority of what the rest waits on: the contents, then the running heads
-
-
-def _collect(printer, jobs: dict, page_size: str, on_part, finals: dict) -> None:
-    """Wait for the parts of every volume as they come back, in any order (counted over both
-    volumes for ``on_part``); as soon as a volume's parts are all laid out, its contents
-    with their page numbers and its running heads go to the next free worker (``FIRST``),
-    beside the other volume's remaining parts.  Sets each job's ``printed`` and
-    ``tail_work`` (:class:`_Tail`)."""
-    grand = sum(len(j["groups"]) for j in jobs.values())
-    counted = 0
-    while True:
-        ready = sum(1 for j in jobs.values() for h in j["handles"].values() if h.done())
-        while counted < ready:
-            counted += 1
-            reached(f"pdf-part-{counted}")
-            if on_part is not None:
-                on_part(counted, grand)
-        for key, job in jobs.items():
-            if "printed" not in job and all(h.done() for h in job["handles"].values()):
-                job["printed"] = [job["handles"][i].result() for i in range(len(job["groups"]))]
-                job["tail_work"] = _Tail(job, printer, page_size, finals[key])
-        if all("printed" in j for j in jobs.values()):
-            return
-        if printer.pool is None:   # printed here, one at a time, as asked
-            next(h for j in jobs.values() for h in j["handles"].values() if not h.done()).result()
-        else:
-            printer.wait_any()
-
-
-class _Tail:
-    """A volume's front matter with the chapters' page numbers, and its running-head stamps:
-    submitted when made, waited for by :meth:`front` and :meth:`stamps`."""
-
-    def __init__(self, job: dict, printer, page_size: str, final: dict):
-        self.job, self.printer, self.page_size, self.final = job, printer, page_size, final
-        self.sizes = [size for doc in job["printed"] for size in doc.pages]
-        self.length = len(job["guess"].result().pages)
-        self._submit()
-        self._done = None
-
-    def _submit(self) -> None:
-        job = self.job
-        anchors = global_anchors(job["printed"], start=self.length)
-        numbers = {p.id: anchors[p.id][0] + 1 for p in job["every"] if p.id in anchors}
-        self.handle = job["front"](numbers, **self.final)
-        self.stamp_handles = _stamps(self.printer, job["ctx"], self.page_size, self.length,
-                                     self.sizes)
-
-    def front(self):
-        """The front matter (its length checked against the one the numbers assumed)."""
-        for _ in range(3):  # the contents' length does not depend on its numbers, but check
-            done = self.handle.result()
-            if len(done.pages) == self.length:
-                self._done = done
-                break
-            self.length = len(done.pages)
-            self._submit()
-        else:
-            raise PublishError("the contents pages changed length with their page numbers "
-                               "three times; nothing was changed in the output folder. Fix: "
-                               "report this with the project.")
-        reached("pdf-front")
-        return self._done
-
-    def stamps(self) -> list:
-        """The running-head stamps (after :meth:`front`); their time kept with the parts'."""
-        stamps = [s.result() for s in self.stamp_handles]
-        self.job["timings"].keep([p.seconds for p in self.job["printed"]],
-                                 sum(s.seconds for s in stamps))
-        return stamps
+            "tail": timings.tail()}
 
 
 def _part_name(group: list[Piece], every: list[Piece]) -> str:
@@ -385,27 +314,53 @@ def _assembled(front, printed, stamps, target, foreign=None, exported=frozenset(
         buffer = io.BytesIO()
         assemble(front, printed, stamps, buffer, foreign=foreign, exported=exported)
         return buffer.getvalue()
-    key = [hashlib.sha256(doc.to_bytes()).hexdigest() for doc in (front, *printed, *stamps)]
+    key = [hashlib.sha256(doc.to_bytes()).hexdigest() for doc in (front, *printed)]
+    key += [stamps.key()]
     key += [foreign[0] if foreign else "", sorted(exported),
             sorted(foreign[1]) if foreign else []]
     Path(target).write_bytes(cache.cached("pdf-whole", key, produce))
 
 
-STAMP_SPLIT = 400  # pages per stamp document
+STAMP_SPLIT = 400  # pages per stamp document, where every stamp page is laid out
 
 
-def _stamps(printer, context, page_size: str, front_pages: int, sizes: list) -> list:
-    """Submit the running-head stamps: one page per page of the dossier."""
-    from specgen.publish.pdf_parts import cached_or_submitted
-    total = front_pages + len(sizes)
-    kinds = ["cover"] + [None] * (front_pages - 1) + ["wide" if w > h else None for w, h in sizes]
-    pages = [{"number": i + 1, "kind": k} for i, k in enumerate(kinds)]
-    css = stylesheet(page_size, "stamp.css", "control.css")
-    tpl = _template("stamp.html.j2")
+def _stamp_html(context, pages: list, total) -> str:
     project, revision = context["project"].title, context["revision"].code
     folio = context.get("volume", VOLUME_WORDS["main"])["folio"]
-    return [cached_or_submitted(printer, "pdf-stamp", tpl.render(
-        pages=pages[i:i + STAMP_SPLIT], total=total, title=context["title"], project=project,
-        folio=folio, revision=revision, mark=context.get("mark", "")), css, FIRST - 1,
-        **PDF_OPTIONS)
+    return _template("stamp.html.j2").render(
+        pages=pages, total=total, title=context["title"], project=project, folio=folio,
+        revision=revision, mark=context.get("mark", ""))
+
+
+def _stamp_specimen(printer, context, page_size: str, kinds: list):
+    """Submit the stamps' specimen (:mod:`specgen.publish.pdf_stamps`): one page of each
+    kind, the same whatever the page count, so a re-issue takes it from the cache."""
+    from specgen.publish.pdf_parts import cached_or_submitted
+    from specgen.publish.pdf_stamps import DIGITS, specimen_pages
+    css = stylesheet(page_size, "stamp.css", "control.css")
+    html = _stamp_html(context, specimen_pages(kinds), DIGITS)
+    from specgen.publish.pdf_schedule import FIRST
+    return cached_or_submitted(printer, "pdf-stamp", html, css, FIRST - 1, **PDF_OPTIONS)
+
+
+def _stamp_set(printer, context, page_size: str, kinds: list, specimen):
+    """The volume's stamps: the specimen with each page's folio written in, or, where the
+    specimen cannot be read so, every stamp page laid out (:func:`_stamps`)."""
+    from specgen.publish.pdf_stamps import StampSet, folios
+    folio = context.get("volume", VOLUME_WORDS["main"])["folio"]
+    if folios(specimen.pdf, folio, kinds) is not None:
+        return StampSet(kinds, folio, specimen=specimen)
+    laid = _stamps(printer, context, page_size, kinds)
+    return StampSet(kinds, folio, laid=[s.result() for s in laid])
+
+
+def _stamps(printer, context, page_size: str, kinds: list) -> list:
+    """Submit the running-head stamps laid out in full: one page per page of the dossier."""
+    from specgen.publish.pdf_parts import cached_or_submitted
+    from specgen.publish.pdf_schedule import FIRST
+    total = len(kinds)
+    pages = [{"number": i + 1, "kind": k} for i, k in enumerate(kinds)]
+    css = stylesheet(page_size, "stamp.css", "control.css")
+    return [cached_or_submitted(printer, "pdf-stamp", _stamp_html(
+        context, pages[i:i + STAMP_SPLIT], total), css, FIRST - 1, **PDF_OPTIONS)
         for i in range(0, total, STAMP_SPLIT)]

@@ -4,8 +4,9 @@ The front matter (cover and contents) is the host: WeasyPrint wrote it as PDF/A-
 the document's metadata, identifier, output intent and attachments, and every other
 part's pages are appended to it.  Then, over the whole document:
 
-* the running heads and "page x of y" are laid over each page from the stamp pages
-  (one stamp page per page, the same size, drawn by WeasyPrint with the same fonts);
+* the running heads and "page x of y" are laid over each page from the stamps (one per
+  page, the same size: a specimen page drawn by WeasyPrint with the same fonts, its folio
+  written for the page, :mod:`specgen.publish.pdf_stamps`);
 * every link is made again with an explicit destination (page, x, y), so links between
   parts work like links within one;
 * the bookmarks of all parts become one outline, nested by heading level.
@@ -20,10 +21,11 @@ from __future__ import annotations
 import io
 
 
-def assemble(front, parts: list, stamps: list, target, *, foreign=None,
+def assemble(front, parts: list, stamps, target, *, foreign=None,
              exported=frozenset()) -> None:
     """Write ``front`` + ``parts`` (:class:`~specgen.publish.pdf_parts.Printed`) to
-    ``target`` with the ``stamps``' pages laid over the pages in order.
+    ``target`` with ``stamps`` (:class:`~specgen.publish.pdf_stamps.StampSet`, one stamp
+    per page) laid over the pages in order.
 
     ``foreign`` ((file name, anchors)) is the other volume of the dossier: a link to one of
     its anchors opens that file at the anchor's named destination; ``exported`` are this
@@ -47,14 +49,21 @@ def assemble(front, parts: list, stamps: list, target, *, foreign=None,
     for doc in docs:
         offsets.append(n)
         n += len(doc.pages)
-    stamp_pdfs = [pikepdf.Pdf.open(io.BytesIO(s.pdf)) for s in stamps]
-    sources += stamp_pdfs
-    stamp_pages = [(p, s) for s in stamp_pdfs for p in s.pages]
-    if len(stamp_pages) != n or len(pdf.pages) != n:
-        raise RuntimeError(f"assembly: {len(pdf.pages)} pages, {len(stamp_pages)} stamps, "
+    if len(stamps.kinds) != n or len(pdf.pages) != n:
+        raise RuntimeError(f"assembly: {len(pdf.pages)} pages, {len(stamps.kinds)} stamps, "
                            f"{n} expected")
-    for page, (stamp, src) in zip(pdf.pages, stamp_pages):
-        _lay_over(pdf, page, stamp, src)
+    stamped, opened = 0, {}
+    resources: dict = {}   # a source page's resources, copied once (shared by its stamps)
+    for page, (content, source, src) in zip(pdf.pages, stamps.pages()):
+        opened[id(src)] = src   # kept open until written, as the parts are
+        key = (id(src), source.objgen)
+        if key not in resources:
+            resources[key] = _copied(pdf, source.obj.Resources, src)
+        _lay_over(pdf, page, content, source.mediabox, resources[key])
+        stamped += 1
+    sources += opened.values()
+    if stamped != n:
+        raise RuntimeError(f"assembly: {stamped} stamps laid over {n} pages")
     tree.finish()
     _show_title(pdf)
     anchors = global_anchors(docs)
@@ -82,8 +91,9 @@ def _show_title(pdf) -> None:
     pdf.Root.ViewerPreferences = prefs
 
 
-def _lay_over(pdf, page, stamp, src) -> None:
-    """Draw ``stamp`` (a page of another PDF, ``src``) over ``page`` as a form XObject.
+def _lay_over(pdf, page, content: bytes, bbox, stamp_resources) -> None:
+    """Draw a stamp (its ``content`` stream, media box ``bbox`` and resources, already in
+    ``pdf``) over ``page`` as a form XObject.
 
     The page's own content streams are kept as they are (compressed, untouched) and
     wrapped in q/Q so the stamp starts from the default graphics state.
@@ -91,11 +101,10 @@ def _lay_over(pdf, page, stamp, src) -> None:
     import pikepdf
     from pikepdf import Array, Dictionary, Name
     # qpdf compresses the new streams when it writes (compress_streams)
-    form = pikepdf.Stream(pdf, stamp.obj.Contents.read_bytes() if not isinstance(
-        stamp.obj.Contents, Array) else b"\n".join(c.read_bytes() for c in stamp.obj.Contents))
+    form = pikepdf.Stream(pdf, content)
     form.Type, form.Subtype = Name.XObject, Name.Form
-    form.BBox = Array(stamp.mediabox)
-    form.Resources = _copied(pdf, stamp.obj.Resources, src)
+    form.BBox = Array(bbox)
+    form.Resources = stamp_resources
     resources = Dictionary(dict(page.obj.Resources.items()))  # this page's own copy (parts share one)
     xobjects = resources.get("/XObject")
     xobjects = Dictionary(dict(xobjects.items())) if xobjects is not None else Dictionary()

@@ -35,12 +35,15 @@ def _values(env, zone, window: dict) -> dict:
     from specgen.checks.rules import RuleBook
     r, mix = env.results, env.results.value(zone.id, "selected_mix")
     rake = r.value(zone.id, "rake_out_depth")
+    held = getattr(r.check("MTH-RAKE", zone.id), "status", None) == "hold"
     layer = RuleBook(env.project.dossier.rule_overrides)["method.pointing_layer"]
     by_zone = (r.value(mix, "gauging_by_zone") or {}).get(zone.id, {}) if mix else {}
     coats = [f"coat {i} {as_given(round(t * 1e3, 6))} mm" for i, t in enumerate(zone.coats, 1)]
     bay = r.value(zone.id, "bay_area")
-    return {"depth": f"{as_given(rake['depth'])} mm (the rule from the joint width gives "
-                     f"{as_given(rake['rule'])} mm)" if rake else "sound mortar",
+    return {"depth": ("a depth agreed on a trial bay with the heritage authority (joints this "
+                      "fine cannot meet both rules of practice for the rake-out depth)") if held
+            else f"{as_given(rake['depth'])} mm (the rule from the joint width gives "
+                 f"{as_given(rake['rule'])} mm)" if rake else "sound mortar",
             "bay": (f"about {_sig(bay['area'], 2)} m² of face (the day's "
                     f"{_sig(bay['per_day_l'], 3)} L of mortar at {_sig(bay['per_m2_l'], 3)} L per "
                     "m² of face)" if bay else

@@ -19,7 +19,6 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import optimize
 
 from specgen.errors import ScienceInputError
 
@@ -276,6 +275,7 @@ def fit_blend(components: Sequence[Grading], target: Grading, weight: float = 1e
     b = passing_at(target, sv)
     A_aug = np.vstack([A, weight * np.ones(len(components))])
     b_aug = np.concatenate([b, [weight]])
+    from scipy import optimize   # only when a blend is fitted
     x, _ = optimize.nnls(A_aug, b_aug)
     x = x / x.sum()
     resid = A @ x - b

@@ -11,7 +11,6 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
-from scipy import optimize
 
 from specgen.science.distributions import f_sf, norm_ppf
 
@@ -79,6 +78,7 @@ def laplace_fit(residuals: Callable[[np.ndarray], np.ndarray], z0: Sequence[floa
     For a model linear in ``z`` with a Gaussian prior this is the exact posterior.
     ``p_eff = tr((JᵀJ)⁻¹·J_dᵀJ_d)``: the effective number of parameters the data fix.
     """
+    from scipy import optimize   # only when a fit is made (not when every fit is kept)
     res = optimize.least_squares(residuals, np.asarray(z0, float), method="trf",
                                  x_scale="jac", diff_step=1e-6,
                                  jac=jac if jac is not None else "2-point")

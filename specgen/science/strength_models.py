@@ -23,7 +23,6 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import optimize
 
 # the laws and their constants, importable from here as before
 from specgen.science.strength_laws import (  # noqa: F401
@@ -183,6 +182,7 @@ def _solve(spec, t, y, w, wdesc, x0, free, lo, hi, notes, t_s) -> FitResult:
         x[free] = z
         return x
 
+    from scipy import optimize   # only when a fit is made (not when every fit is kept)
     res = optimize.least_squares(
         lambda z: (spec.f(full(z), t) - y) * w, x0[free],
         jac=lambda z: spec.jac(full(z), t)[:, free] * w[:, None],

@@ -23,7 +23,6 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
-from scipy import optimize
 
 from specgen.errors import ScienceInputError
 from specgen.science.distributions import norm_ppf
@@ -147,6 +146,7 @@ def match_gain_term(g: np.ndarray, low: float, high: float) -> tuple[float, floa
         w = np.exp(-0.5 * ((g - x[0]) / math.exp(x[1])) ** 2) + 1e-300   # never all zero
         return (_sorted_weighted_quantiles(g, w, [0.025, 0.975]) - target) / scale
     start = [float(target.mean()), math.log(scale)]
+    from scipy import optimize   # only when a prior is matched
     sol = optimize.least_squares(mismatch, start, diff_step=1e-3,
                                  bounds=([-10.0, math.log(0.01)], [10.0, math.log(50.0)]))
     return float(sol.x[0]), math.exp(float(sol.x[1]))

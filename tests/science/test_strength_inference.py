@@ -4,6 +4,7 @@ Each check value names its source beside it."""
 from __future__ import annotations
 
 import math
+import re
 
 import numpy as np
 import pytest
@@ -398,3 +399,61 @@ def test_bands_made_together_equal_each_alone():
         got = si.bands(together, [a], 0.95, 3.0)
         for k in want:
             assert got[k] == pytest.approx(want[k], rel=1e-12)
+
+
+def test_a_fit_carries_its_lack_of_fit_and_its_sources():
+    # the demo's M1 record to 90 d (5 ages x 3 prisms): the pure-error lack-of-fit test from
+    # its definition (Draper & Smith, Applied Regression Analysis, sec. 2.1) at the fitted
+    # curve, the law written out here; F's tail by scipy.stats.f; the same test with the batch
+    # scatter the prior allows at most (CV 0.12, content/data/strength_priors.yaml) added to
+    # the pure-error mean square, n̄·0.12² with n̄ = 3 prisms
+    t, y = _record(90)
+    inf = si.fit(t, y, NC)
+    assert inf.prior is NC
+    assert inf.ages.tolist() == [1.0, 3.0, 7.0, 28.0, 90.0] and inf.counts.tolist() == [3.0] * 5
+    f, phi, ta, ts, b = (math.exp(inf.mode[0]), 1 / (1 + math.exp(-inf.mode[1])),
+                         math.exp(inf.mode[2]), math.exp(inf.mode[3]), math.exp(inf.mode[4]))
+    curve = np.log(f * (phi * (1 - np.exp(-inf.ages / ta))
+                        + (1 - phi) * (1 - np.exp(-(inf.ages / ts) ** b))))
+    logs = {a: np.log(v) for a, v in M1.items()}
+    ss_pure = sum(float(np.sum((v - v.mean()) ** 2)) for v in logs.values())
+    ss_lof = sum(3 * (v.mean() - c) ** 2 for v, c in zip(logs.values(), curve))
+    assert 0 < inf.p_eff < 5
+    d_lof = 5 - inf.p_eff
+    assert (inf.lof.dof_pure, inf.lof.dof_lof) == (10.0, pytest.approx(d_lof, rel=1e-12))
+    assert inf.lof.ss_pure == pytest.approx(ss_pure, rel=1e-10)
+    assert inf.lof.ss_lof == pytest.approx(ss_lof, rel=1e-9)
+    f_value = (ss_lof / d_lof) / (ss_pure / 10)
+    assert inf.lof.f == pytest.approx(f_value, rel=1e-9)
+    assert inf.lof.p_value == pytest.approx(stats.f.sf(f_value, d_lof, 10), rel=1e-7)
+    f_batch = (ss_lof / d_lof) / (ss_pure / 10 + 3 * 0.12 ** 2)
+    assert inf.lof_batch_p == pytest.approx(stats.f.sf(f_batch, d_lof, 10), rel=1e-7)
+    # the within-batch scatter: 10 replicate dof pooled with the prior's sqrt(0.02 x 0.10) =
+    # 4.47 % at 4 dof (the scaled-inverse-chi-squared update of the module docstring)
+    assert inf.sigma_w == pytest.approx(math.sqrt((4 * 0.002 + ss_pure) / 14), rel=1e-12)
+    assert inf.dof == 14.0 and inf.last_age == 90.0
+    assert inf.sigma_w_source == "pooled replicates (10 dof) with the prior's 4.5 % (4 dof)"
+    assert re.fullmatch(r"lack-of-fit mean square beyond the pure error \(\d\.\d\d dof\) with "
+                        r"the prior's 4\.9 % \(4 dof\)", inf.sigma_b_source)
+
+
+def test_a_fit_without_replicates_has_no_lack_of_fit_test():
+    # one result per age: no pure error, so neither F test exists (lack_of_fit's docstring)
+    inf = si.fit([1, 3, 7, 28, 90], [1.2, 1.8, 2.4, 4.8, 7.6], NC)
+    assert inf.lof.f is None and inf.lof.p_value is None
+    assert inf.lof_batch_p is None
+    assert inf.sigma_w_source == "prior only (4.5 %): no replicates"
+
+
+def test_degenerate_weights_fall_back_to_the_laplace_normal():
+    # a proposal far wider than the posterior (unit variances on the log scales, against a
+    # posterior the 15 results of M1 fix to a few per cent) puts nearly all the weight on one
+    # draw: the effective sample size 1/Σw² is then near 1, below MIN_ESS (100), and no draws
+    # are kept (the module docstring's fallback); at the fit's own covariance 1000 are kept
+    from specgen.science.inference_tools import Laplace
+    inf = si.fit(*_record(90), NC)
+    args = (inf.ages, inf.means_log, inf.counts, inf.sigma_b ** 2, inf.sigma_w ** 2, NC)
+    draws, ess = si._sample(*args, Laplace(inf.mode, np.eye(5), inf.p_eff, 0.0))
+    assert draws is None and 1.0 <= ess < 2.0
+    draws, ess = si._sample(*args, Laplace(inf.mode, inf.cov, inf.p_eff, 0.0))
+    assert draws.shape == (1000, 5) and ess >= 100

@@ -5,10 +5,12 @@ demo), and every check value comes from the two-stage law written out here, nump
 quantiles or a derivation beside it."""
 from __future__ import annotations
 
+import dataclasses
 import math
 
 import numpy as np
 import pytest
+from scipy import stats
 
 from specgen import refdata
 from specgen.science import strength_inference as si
@@ -193,3 +195,136 @@ def test_band_from_draws_is_their_quantiles():
     assert got["mean_lo"] == pytest.approx(np.exp(lo), rel=1e-12)
     assert got["mean_hi"] == pytest.approx(np.exp(hi), rel=1e-12)
     assert got["value"] == pytest.approx(_law(t), rel=1e-12)
+
+
+@pytest.mark.parametrize("ages", [[0.0], [-1.0], [float("nan")], [28.0, float("inf")]])
+def test_the_bands_refuse_ages_word_for_word(ages):
+    with pytest.raises(si.InferenceError) as exc:
+        si.bands(_inference(), ages)
+    assert str(exc.value) == "prediction ages must be positive finite numbers of days"
+
+
+def test_a_laplace_variance_below_zero_by_rounding_gives_a_band_of_no_width():
+    # a covariance whose gᵀΣg is negative (as rounding can leave one at a well-fixed age) is
+    # read as zero: the band closes on the curve (the law written out), never NaN
+    inf = dataclasses.replace(_inference(), cov=-1e-30 * np.eye(5))
+    got = si.bands(inf, [28.0])
+    assert got["mean_lo"] == pytest.approx(_law([28.0]), rel=1e-12)
+    assert got["mean_hi"] == pytest.approx(_law([28.0]), rel=1e-12)
+
+
+def test_bands_each_keeps_the_positive_ages_at_the_default_level_and_set_size():
+    # the defaults are the 95 % level and sets of 3 prisms (the signature, as for bands); an
+    # age of 0 d is left for bands to refuse, half a day is kept; each kept band equals the
+    # delta method's (Laplace fit: exp(ln f ± z·sqrt(gᵀΣg)) and with q = t(0.975, 10) = 2.228
+    # for the set, σb = 0.08, σw = 0.05)
+    inf = _inference()
+    si.bands_each(inf, [0.0, 0.5, 28.0, 365.0])
+    assert set(inf.memo) == {((a,), 0.95, (3.0,)) for a in (0.5, 28.0, 365.0)}
+    for a in (0.5, 28.0, 365.0):
+        g = _log_law_grad(np.array([a]))[0]
+        var = g @ COV @ g
+        m = math.log(_law(a))
+        sp = 2.228138851986274 * math.sqrt(var + 0.08 ** 2 + 0.05 ** 2 / 3)
+        kept = inf.memo[((a,), 0.95, (3.0,))]
+        assert kept["mean_lo"][0] == pytest.approx(math.exp(m - Z975 * math.sqrt(var)), rel=1e-7)
+        assert kept["pred_hi"][0] == pytest.approx(math.exp(m + sp), rel=1e-7)
+
+
+def test_an_interval_for_a_set_of_one_prism():
+    # n = 1: exp(ln f ± q·sqrt(gᵀΣg + σb² + σw²/1)), q = t(0.975, 10) = 2.228 (scipy.stats.t)
+    inf = _inference()
+    g = _log_law_grad(np.array([56.0]))[0]
+    sp = 2.228138851986274 * math.sqrt(g @ COV @ g + 0.08 ** 2 + 0.05 ** 2)
+    m = math.log(_law(56.0))
+    got = si.interval(inf, 56.0, "set", n=1.0)
+    assert (got.lower, got.upper) == (pytest.approx(math.exp(m - sp), rel=1e-7),
+                                      pytest.approx(math.exp(m + sp), rel=1e-7))
+    assert got.kind == "mean of the next set of 1 prisms"
+
+
+def _prior_gain_range(prior, age, level, draws=4000, rng_state=0):
+    # the prior alone, written out: the four shape terms drawn from their normals in the
+    # order early fraction, τA, τS, b (numpy's generator at the given state), f(age)/f(28 d)
+    # of each draw from the law written out above, each weighted by the melded gain term
+    # exp(−½((ln f365/f28 − μ)/s)²); the range is the weighted inverted CDF at (1 − level)/2
+    # and (1 + level)/2: the smallest ratio whose share of the weight reaches the probability
+    # (the largest ratio when rounding leaves the share short of it)
+    rng = np.random.default_rng(rng_state)
+    shape = [rng.normal(prior.terms[k].mu, prior.terms[k].sd, draws)
+             for k in ("early_fraction", "tau_fast_d", "tau_slow_d", "shape_b")]
+    phi, ta, ts, b = 1 / (1 + np.exp(-shape[0])), np.exp(shape[1]), np.exp(shape[2]), \
+        np.exp(shape[3])
+    f28, fa, f365 = (_law(t, 1.0, phi, ta, ts, b) for t in (28.0, age, 365.0))
+    mu, sd = prior.penalty("gain_365_28")
+    w = np.exp(-0.5 * ((np.log(f365 / f28) - mu) / sd) ** 2)
+    ratio = fa / f28
+    order = sorted(range(draws), key=lambda i: ratio[i])
+    out = []
+    for p in ((1 - level) / 2, (1 + level) / 2):
+        acc, pick = 0.0, ratio[order[-1]]
+        for i in order:
+            acc += w[i]
+            if acc / w.sum() >= p:
+                pick = ratio[i]
+                break
+        out.append(float(pick))
+    return tuple(out)
+
+
+def test_the_prior_gain_range_at_one_year_is_the_printed_row():
+    # f365/f28 under the prior alone: the printed gain row of natural cement, 1.3-3.5
+    # (content/data/strength_priors.yaml), within 4 % (Monte Carlo error of a 2.5 % quantile
+    # of 4000 draws); the 50 % range lies inside it
+    lo, hi = si.prior_gain_interval(NC, 365.0)
+    assert (lo, hi) == (pytest.approx(1.3, rel=0.04), pytest.approx(3.5, rel=0.04))
+    mid = si.prior_gain_interval(NC, 365.0, level=0.5)
+    assert lo < mid[0] < mid[1] < hi
+
+
+@pytest.mark.parametrize("age, level", [(90.0, 0.95), (90.0, 0.5), (180.0, 1.0)])
+def test_the_prior_gain_range_is_the_weighted_quantile_written_out(age, level):
+    got = si.prior_gain_interval(NC, age, level)
+    assert got == pytest.approx(_prior_gain_range(NC, age, level), rel=1e-9)
+    if level < 1:
+        assert si.prior_gain_interval(NC, age, level, draws=500, rng_state=3) == \
+            pytest.approx(_prior_gain_range(NC, age, level, 500, 3), rel=1e-9)
+
+
+def test_a_long_age_list_takes_its_bands_from_48_log_spaced_ages_written_out():
+    # more ages than si.NODES (48): the module docstring's rule written out.  At 48 ages
+    # log-spaced from the first to the last (numpy.geomspace) the band's edges are numpy's
+    # inverted-CDF quantiles of ln f over the draws, and the set's of the predictive mixture
+    # ln f(t; z_i) + T·e, e = sqrt(σb² + σw²/n) interpolated in ln t to those ages, T the
+    # stratified Student-t variates (scipy.stats.t.ppf at (i + ½)/4000, shuffled by numpy's
+    # generator at state 20261, four per draw, 10 dof); each edge's offset from ln f at the
+    # mode is then interpolated in ln t to every age asked.  48 ages exactly: at the ages.
+    # The 50 % level: its probabilities 0.25 and 0.75 are exact in binary (see the band from
+    # draws above), so the ranks are numpy's without rounding.
+    rng = np.random.default_rng(12)
+    draws = MODE + rng.multivariate_normal(np.zeros(5), COV, si.KEPT)
+    inf = _inference(draws)
+
+    def ln_law(t, v):
+        return np.log(_law(t, math.exp(v[0]), 1 / (1 + math.exp(-v[1])), math.exp(v[2]),
+                           math.exp(v[3]), math.exp(v[4])))
+    u = (np.arange(4000) + 0.5) / 4000
+    noise = stats.t.ppf(np.random.default_rng(20261).permutation(u), 10.0)
+    for size in (60, 48):
+        t = np.sort(rng.uniform(0.5, 400.0, size))
+        n = rng.choice([1.0, 3.0, 6.0], size)
+        e = np.sqrt(0.08 ** 2 + 0.05 ** 2 / n)
+        nodes = t if size <= 48 else np.geomspace(t[0], t[-1], 48)
+        lf = np.array([ln_law(nodes, v) for v in draws])             # draws x nodes
+        en = np.interp(np.log(nodes), np.log(t), e)
+        mix = [lf[:, j][None, :] + en[j] * noise.reshape(4, -1) for j in range(nodes.size)]
+        edges = {"mean_lo": np.quantile(lf, 0.25, axis=0, method="inverted_cdf"),
+                 "mean_hi": np.quantile(lf, 0.75, axis=0, method="inverted_cdf"),
+                 "pred_lo": np.array([np.quantile(x, 0.25, method="inverted_cdf") for x in mix]),
+                 "pred_hi": np.array([np.quantile(x, 0.75, method="inverted_cdf") for x in mix])}
+        shuffled = rng.permutation(size)          # the ages asked in any order
+        got = si.bands(inf, t[shuffled], 0.5, n[shuffled])
+        m = ln_law(t, MODE)
+        for k, edge in edges.items():
+            want = m + np.interp(np.log(t), np.log(nodes), edge - ln_law(nodes, MODE))
+            assert got[k] == pytest.approx(np.exp(want[shuffled]), rel=1e-9), (size, k)

@@ -4,9 +4,11 @@ import copy
 
 import numpy as np
 import pytest
+from scipy import stats
 
 from specgen import refdata
-from specgen.science.strength_priors import InferenceError, prior_from_table, weighted_quantiles
+from specgen.science.strength_priors import (InferenceError, match_gain_term, prior_from_table,
+                                            weighted_quantiles)
 
 PRIORS = refdata.load("strength_priors").data
 ROW = PRIORS["natural_cement"]
@@ -63,3 +65,20 @@ def test_a_fraction_just_under_one_is_taken():
     row = copy.deepcopy(ROW)
     row["early_fraction"]["range"] = [0.1, 0.99]
     assert prior_from_table("natural_cement", row).terms["early_fraction"].high == 0.99
+
+
+def test_gain_term_matched_on_normal_draws_is_the_conjugate_normal():
+    # Draws of ln f365/f28 laid on a normal N(m0, s0²) (its quantiles at (i + ½)/N, scipy):
+    # weighted by a normal term N(c, s²) they are normal with precision 1/s0² + 1/s² and mean
+    # (m0/s0² + c/s²)/precision (conjugate normal, Gelman et al., Bayesian Data Analysis,
+    # sec. 2.5).  The term whose weighted draws have the central 95 % range low-high has
+    # 1/s² = 1/st² − 1/s0² and c = (mt/st² − m0/s0²)·s², mt and st the target's mean and SD
+    # on the log scale (st = ln(high/low)/(2 × 1.959964), the normal quantile, scipy).
+    n, m0, s0, low, high = 20000, 0.6, 0.35, 1.5, 2.6
+    g = m0 + s0 * stats.norm.ppf((np.arange(n) + 0.5) / n)
+    mt = 0.5 * (np.log(low) + np.log(high))
+    st = (np.log(high) - np.log(low)) / (2 * stats.norm.ppf(0.975))
+    s = 1 / np.sqrt(1 / st ** 2 - 1 / s0 ** 2)
+    c = (mt / st ** 2 - m0 / s0 ** 2) * s ** 2
+    # 0.6959 and 0.1532 (computed above); 1e-6 relative: the grid of draws, not the formula
+    assert match_gain_term(g, low, high) == pytest.approx((c, s), rel=1e-6)

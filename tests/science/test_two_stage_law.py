@@ -77,3 +77,17 @@ def test_gradient_of_one_age_given_as_a_number():
     assert g.shape == (1, 5)
     assert g[0] == pytest.approx([1.0, 0.0, -0.5 * e1 / (1 - e1), -0.5 * e1 / (1 - e1), 0.0],
                                  abs=1e-12)
+
+
+def test_gradient_of_many_vectors_at_one_row_of_ages():
+    # log_f_grad_many with one row of ages for every vector (a 1-D age list, as its docstring
+    # allows): each vector's rows against central differences (step 1e-6) of ln f from the
+    # law written out above, as for one vector
+    zs = np.array(Z)
+    g = tsl.log_f_grad_many(zs, AGES)
+    assert g.shape == (len(Z), len(AGES), 5)
+    for z, gz in zip(Z, g):
+        def lnf(zz):
+            return np.log(_law(AGES, *_natural(zz)))
+        num = np.column_stack([(lnf(z + e) - lnf(z - e)) / 2e-6 for e in np.eye(5) * 1e-6])
+        assert gz == pytest.approx(num, rel=1e-5, abs=1e-8)
