@@ -137,7 +137,7 @@ def test_shared_cache_serves_every_output_folder(tmp_path):
 
 
 def test_parts_start_costliest_first_from_the_last_timings(tmp_path):
-    from specgen.publish.pdf_parts import Timings
+    from specgen.publish.pdf_schedule import Timings
     names = ["page-a#0", "page-b#0", "page-b#1", "page-c#0"]
     sizes = [1000, 4000, 2000, 3000]
     with cache.using(tmp_path / "c"):

@@ -227,32 +227,29 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
     parts come back, counted over both volumes (the report's parts, then its appendices').
     """
     from specgen.publish.pdf_parts import Printer
+    from specgen.publish.pdf_schedule import _collect
     if getattr(pageset, "drawing", None):   # placeholders of the live preview's first pages
         raise PublishError(f"{target}: {len(pageset.drawing)} figure(s) not drawn yet ("
                            f"{', '.join(sorted(pageset.drawing)[:3])}); a PDF is never printed "
                            "with a placeholder. Fix: draw them first (PageSet.draw).")
     vols = volumes(pieces(pageset), target, appendix)
     files = [(name, data, stamp) for name, data in sorted(attachments.items())]
-    reused = total = 0
-    done = {}
     with Printer(pageset, workers) as printer:
-        # both volumes' parts queued at once, costliest first: no core waits between volumes
+        # both volumes' parts queued at once: no core waits between volumes
         jobs = {v.key: _volume_jobs(printer, v, context, page_size) for v in vols}
-        queue = sorted(((-cost, n, i), submit) for n, job in enumerate(jobs.values())
-                       for i, (cost, submit) in enumerate(job["parts"]))
-        for _order, submit in queue:
-            submit()
-        grand, before = sum(len(j["groups"]) for j in jobs.values()), 0
-        for v in vols:  # with ``appendix``: the report, then its appendices (own contents)
+        for job in jobs.values():
+            for cost, submit in job["parts"]:
+                submit(cost + job["tail"])
+        finals = {}
+        for v in vols:
             ident = identifier if v.key == "main" or identifier is None else \
                 hashlib.sha256(identifier + b"/appendix").digest()[:16]
-            final = dict(attachments=files, pdf_identifier=ident) if v.key == "main" else \
-                dict(pdf_identifier=ident)
-            counted = on_part and (lambda i, _n, b=before: on_part(b + i, grand))
-            done[v.key] = _print_volume(printer, jobs[v.key], page_size, counted, final)
-            before += len(jobs[v.key]["groups"])
-            reused += sum(1 for p in done[v.key][1] if not p.seconds)
-            total += len(done[v.key][1])
+            finals[v.key] = dict(attachments=files, pdf_identifier=ident) if v.key == "main" \
+                else dict(pdf_identifier=ident)
+        _collect(printer, jobs, page_size, on_part, finals, (_stamp_specimen, _stamp_set))
+        done = {k: (job["tail_work"].front(), job["printed"], job["tail_work"].stamps())
+                for k, job in jobs.items()}
+    # put together once the workers have ended: the assembly's memory is not added to theirs
     anchors = {k: global_anchors([d[0], *d[1]]) for k, d in done.items()}
     for v in vols:
         other = [o for o in vols if o is not v]
@@ -261,13 +258,16 @@ def write_pdf(pageset, context: dict, target, *, attachments: dict[str, bytes],
                   for _p, kind, t, _r in doc.links if kind == "internal" and t in anchors[v.key]}
         _assembled(*done[v.key], v.target, foreign, linked)
     reached("pdf-assembled")
-    return reused, total
+    printed = [p for job in jobs.values() for p in job["printed"]]
+    return sum(1 for p in printed if not p.seconds), len(printed)
 
 
 def _volume_jobs(printer, v, context: dict, page_size: str) -> dict:
     """One volume's print: its contents laid out once with placeholder numbers (submitted
-    now), and its parts as (expected CPU seconds, submit) for the caller to queue."""
-    from specgen.publish.pdf_parts import Timings, cached_or_submitted
+    now, first), its parts as (expected CPU seconds, submit(priority)) for the caller to
+    queue, and ``tail``: the expected CPU seconds of what waits on all its parts."""
+    from specgen.publish.pdf_parts import cached_or_submitted, weight
+    from specgen.publish.pdf_schedule import FIRST, Timings
     every = v.pieces
     css = stylesheet(page_size, "parts.css", "control.css")
     ctx = dict(context, volume=VOLUME_WORDS[v.key], other_name=v.other_name)
@@ -275,65 +275,29 @@ def _volume_jobs(printer, v, context: dict, page_size: str) -> dict:
     timings = Timings.load([_part_name(g, every) for g in groups],
                            getattr(context.get("project"), "code", "") + v.name)
 
-    def front(numbers, **extra):
+    def front(numbers, priority=FIRST, **extra):
         return cached_or_submitted(printer, "pdf-front", document_html(
             ctx, [], front=True, toc=every, toc_pages=numbers, elsewhere=v.other), css,
-            **PDF_OPTIONS, **extra)
+            priority, **PDF_OPTIONS, **extra)
     handles: dict[int, object] = {}
+    html = [document_html(ctx, g, front=False) for g in groups]
 
     def submitter(i):
-        def submit():
-            handles[i] = cached_or_submitted(printer, "pdf-part", document_html(
-                ctx, groups[i], front=False), css, **PDF_OPTIONS)
+        def submit(priority):
+            handles[i] = cached_or_submitted(printer, "pdf-part", html[i], css, priority,
+                                             **PDF_OPTIONS)
         return submit
-    costs = timings.costs([sum(len(p.html) for p in g) for g in groups])
+    costs = timings.costs([weight(h, printer.pageset) for h in html])
     return {"ctx": ctx, "every": every, "groups": groups, "timings": timings, "front": front,
             "guess": front({p.id: PLACEHOLDER_PAGE for p in every}), "handles": handles,
-            "parts": [(costs[i], submitter(i)) for i in range(len(groups))]}
-
-
-def _print_volume(printer, job: dict, page_size: str, on_part, final: dict):
-    """One volume's (front, printed parts, stamps); its parts queued by :func:`_volume_jobs`."""
-    groups, handles = job["groups"], job["handles"]
-    printed = []
-    for i in range(len(groups)):
-        printed.append(handles[i].result())
-        reached(f"pdf-part-{i + 1}")
-        if on_part is not None:
-            on_part(i + 1, len(groups))
-    job["timings"].keep([p.seconds for p in printed])
-    front_doc, stamps = _front_and_stamps(job["front"], printer, job["ctx"], page_size,
-                                          job["every"], printed, len(job["guess"].result().pages),
-                                          final)
-    return front_doc, printed, stamps
+            "parts": [(costs[i], submitter(i)) for i in range(len(groups))],
+            "tail": timings.tail()}
 
 
 def _part_name(group: list[Piece], every: list[Piece]) -> str:
     """A part's name from one build to the next: its first piece's chapter and place in it."""
     first = group[0]
     return f"{first.id}#{sum(1 for p in every[:every.index(first)] if p.id == first.id)}"
-
-
-def _front_and_stamps(front, printer, context, page_size, every, printed, length, final):
-    """The front matter with the chapters' page numbers, and the running-head stamps."""
-    from specgen.publish.pdf_stamps import kinds_of
-    sizes = [size for doc in printed for size in doc.pages]
-    specimen = _stamp_specimen(printer, context, page_size, kinds_of(length, sizes))
-    for _ in range(3):  # the contents' length does not depend on its numbers, but check
-        anchors = global_anchors(printed, start=length)
-        numbers = {p.id: anchors[p.id][0] + 1 for p in every if p.id in anchors}
-        handle = front(numbers, **final)
-        done = handle.result()
-        if len(done.pages) == length:
-            break
-        length = len(done.pages)
-    else:
-        raise PublishError("the contents pages changed length with their page numbers "
-                           "three times; nothing was changed in the output folder. Fix: "
-                           "report this with the project.")
-    reached("pdf-front")
-    return done, _stamp_set(printer, context, page_size, kinds_of(length, sizes),
-                            specimen.result())
 
 
 def _assembled(front, printed, stamps, target, foreign=None, exported=frozenset()) -> None:
@@ -375,7 +339,8 @@ def _stamp_specimen(printer, context, page_size: str, kinds: list):
     from specgen.publish.pdf_stamps import DIGITS, specimen_pages
     css = stylesheet(page_size, "stamp.css", "control.css")
     html = _stamp_html(context, specimen_pages(kinds), DIGITS)
-    return cached_or_submitted(printer, "pdf-stamp", html, css, **PDF_OPTIONS)
+    from specgen.publish.pdf_schedule import FIRST
+    return cached_or_submitted(printer, "pdf-stamp", html, css, FIRST - 1, **PDF_OPTIONS)
 
 
 def _stamp_set(printer, context, page_size: str, kinds: list, specimen):
@@ -392,9 +357,10 @@ def _stamp_set(printer, context, page_size: str, kinds: list, specimen):
 def _stamps(printer, context, page_size: str, kinds: list) -> list:
     """Submit the running-head stamps laid out in full: one page per page of the dossier."""
     from specgen.publish.pdf_parts import cached_or_submitted
+    from specgen.publish.pdf_schedule import FIRST
     total = len(kinds)
     pages = [{"number": i + 1, "kind": k} for i, k in enumerate(kinds)]
     css = stylesheet(page_size, "stamp.css", "control.css")
     return [cached_or_submitted(printer, "pdf-stamp", _stamp_html(
-        context, pages[i:i + STAMP_SPLIT], total), css, **PDF_OPTIONS)
+        context, pages[i:i + STAMP_SPLIT], total), css, FIRST - 1, **PDF_OPTIONS)
         for i in range(0, total, STAMP_SPLIT)]

@@ -14,6 +14,9 @@ Memory stays bounded: a worker holds the layout of one part at a time.
 from __future__ import annotations
 
 import functools
+import gc
+import heapq
+import itertools
 import json
 import os
 from concurrent.futures import ProcessPoolExecutor
@@ -178,34 +181,73 @@ class Printer:
 
     ``submit`` returns a handle whose ``result()`` is a :class:`Printed`; where fork is
     unavailable, or with one worker, documents are printed in this process when asked.
+    Documents wait here, not in the pool's own first-come queue, and go to a worker as one
+    frees, highest ``priority`` first: a document that becomes ready late (a volume's running
+    heads, once its parts are laid out) starts at the next free worker rather than after
+    every part queued before it.  The pool is fed whenever a handle is waited on
+    (:meth:`wait_any`, ``result()``) or a document submitted.
     """
 
     def __init__(self, pageset, workers: int | None = None):
         global _PAGESET
         self.pageset = pageset
-        workers = workers or min(2, os.cpu_count() or 1)
+        self.workers = workers or min(2, os.cpu_count() or 1)
         self.pool = None
+        self._waiting: list = []     # heap of (-priority, order, job, handle)
+        self._running: set = set()   # futures handed to the pool
+        self._order = itertools.count()
+        self._frozen = False
         import multiprocessing
-        if workers > 1 and "fork" in multiprocessing.get_all_start_methods():
+        if self.workers > 1 and "fork" in multiprocessing.get_all_start_methods():
             # imported once here, before the workers fork, rather than once in each worker
             # of each revision's print (about 0.7-0.9 CPU s a time on this machine)
             from specgen.publish.weasyfix import weasyprint  # noqa: F401
             _PAGESET = pageset
-            self.pool = ProcessPoolExecutor(max_workers=workers,
+            # the heap so far (the page set, the results, the modules) moved out of the
+            # collector's reach: a collection in a worker would otherwise write to every
+            # inherited object's header and copy its page (copy-on-write), so each worker
+            # came to hold a private copy of much of the build's heap
+            gc.collect()
+            gc.freeze()
+            self._frozen = True
+            self.pool = ProcessPoolExecutor(max_workers=self.workers,
                                             mp_context=multiprocessing.get_context("fork"),
                                             initializer=die_with_parent)
 
-    def submit(self, html: str, css: str, **options):
+    def submit(self, html: str, css: str, priority: float = 0.0, **options):
         if self.pool is None:
             return _Handle(lambda: print_document(html, css, self.pageset, **options))
-        future = self.pool.submit(_work, (html, css, options))
-        return _Handle(lambda: _unpack(future))
+        waiting = _Waiting(self)
+        heapq.heappush(self._waiting, (-priority, next(self._order), (html, css, options),
+                                       waiting))
+        self._feed()
+        return _Handle(waiting.result, waiting.done)
+
+    def _feed(self) -> None:
+        """Hand waiting documents to the pool while a worker is free, highest priority first."""
+        self._running = {f for f in self._running if not f.done()}
+        while self._waiting and len(self._running) < self.workers:
+            _p, _n, job, waiting = heapq.heappop(self._waiting)
+            waiting.future = self.pool.submit(_work, job)
+            self._running.add(waiting.future)
+
+    def wait_any(self) -> None:
+        """Wait until a document in the pool is done (none running: at once), then feed it."""
+        from concurrent.futures import FIRST_COMPLETED, wait
+        self._feed()
+        if self._running:
+            wait(self._running, return_when=FIRST_COMPLETED)
+        self._feed()
 
     def close(self, cancel: bool = False) -> None:
         global _PAGESET
         if self.pool is not None:
+            self._waiting.clear()
             self.pool.shutdown(wait=True, cancel_futures=cancel)
             self.pool = None
+        if self._frozen:
+            gc.unfreeze()
+            self._frozen = False
         _PAGESET = None
 
     def __enter__(self):
@@ -215,11 +257,30 @@ class Printer:
         self.close(cancel=kind is not None)
 
 
-class _Handle:
-    """A document being printed; ``result()`` gives its :class:`Printed` (worked out once)."""
+class _Waiting:
+    """A document queued in a :class:`Printer`: its future once a worker has it."""
 
-    def __init__(self, get):
-        self._get, self._printed = get, None
+    def __init__(self, printer: Printer):
+        self.printer, self.future = printer, None
+
+    def done(self) -> bool:
+        return self.future is not None and self.future.done()
+
+    def result(self) -> Printed:
+        while not self.done():
+            self.printer.wait_any()
+        return _unpack(self.future)
+
+
+class _Handle:
+    """A document being printed; ``result()`` gives its :class:`Printed` (worked out once);
+    ``done()``: whether a worker has finished it (``done`` asked), or it is worked out."""
+
+    def __init__(self, get, done=None):
+        self._get, self._done, self._printed = get, done, None
+
+    def done(self) -> bool:
+        return self._printed is not None or (self._done is not None and self._done())
 
     def result(self) -> Printed:
         if self._printed is None:
@@ -240,9 +301,10 @@ def _unpack(future) -> Printed:
     return printed
 
 
-def cached_or_submitted(printer: Printer, kind: str, html: str, css: str, **options):
+def cached_or_submitted(printer: Printer, kind: str, html: str, css: str,
+                        priority: float = 0.0, **options):
     """A handle for the part: from the artefact cache when drawn before, else submitted
-    (and kept in the cache once printed).
+    with ``priority`` (:meth:`Printer.submit`) and kept in the cache once printed.
 
     The key covers the HTML, the CSS, the options (attachments and identifier by their
     SHA-256), our code, WeasyPrint's version and the SHA-256 of every asset the HTML uses.
@@ -253,14 +315,14 @@ def cached_or_submitted(printer: Printer, kind: str, html: str, css: str, **opti
     found = cache.lookup(kind, inputs)
     if found is not None:
         printed = Printed.from_bytes(found)
-        return _Handle(lambda: printed)
-    handle = printer.submit(html, css, **options)
+        return _Handle(lambda: printed, lambda: True)
+    handle = printer.submit(html, css, priority, **options)
 
     def printed_and_kept() -> Printed:
         printed = handle.result()
         cache.store(kind, inputs, printed.to_bytes())
         return printed
-    return _Handle(printed_and_kept)
+    return _Handle(printed_and_kept, handle.done)
 
 
 def _option_key(options: dict) -> list:
@@ -299,44 +361,19 @@ def _engine_version() -> str:
         return "weasyprint=?"
 
 
-class Timings:
-    """The CPU time each chapter part took to print, kept in the artefact cache from one
-    build to the next, so the costliest parts start first and both cores stay busy to the
-    end (a long part started last would leave one core idle while it finishes)."""
+#: a byte of SVG (a figure or formula the part draws) costs WeasyPrint about 1/32 of a
+#: character of HTML: a least-squares fit of the 89 parts of a cold demo build (2026-12-05,
+#: CPU s of each part against its HTML characters and the bytes of the SVG it uses) gave
+#: 5.5e-5 s a character and 1.7e-6 s an SVG byte (R² 0.92; HTML size alone: R² 0.74)
+SVG_BYTES_PER_CHAR = 32
 
-    KIND = "pdf-timings"
 
-    def __init__(self, names: list[str], known: dict[str, float], key: list):
-        self.names, self.known, self.key = names, known, key
+def weight(html: str, pageset) -> int:
+    """A part's expected cost before it was ever timed, in characters of HTML: its own
+    characters plus the SVG it draws (:data:`SVG_BYTES_PER_CHAR`)."""
+    import re
+    svg = sum(len(pageset.assets.get(src.removeprefix(BASE)) or b"")
+              for src in set(re.findall(r'src="([^"]+\.svg)"', html)))
+    return len(html) + svg // SVG_BYTES_PER_CHAR
 
-    @classmethod
-    def load(cls, names: list[str], project: str = "") -> Timings:
-        """The timings of the last build of ``project`` for the parts ``names``."""
-        from specgen import cache
-        key = ["part seconds", project]
-        try:
-            known = json.loads(cache.lookup(cls.KIND, key) or b"{}")
-        except ValueError:
-            known = {}
-        return cls(names, known if isinstance(known, dict) else {}, key)
 
-    def costs(self, sizes: list[int]) -> list[float]:
-        """The expected CPU seconds of each part: a part printed before by its time, a new one
-        by its HTML size at the seconds per character of the parts timed before."""
-        timed = [(self.known[n], sizes[i]) for i, n in enumerate(self.names)
-                 if isinstance(self.known.get(n), (int, float)) and sizes[i]]
-        rate = sorted(t / s for t, s in timed)[len(timed) // 2] if timed else 1.0
-        return [self.known[n] if isinstance(self.known.get(n), (int, float)) else sizes[i] * rate
-                for i, n in enumerate(self.names)]
-
-    def order(self, sizes: list[int]) -> list[int]:
-        """Indices of the parts, costliest first (:meth:`costs`)."""
-        cost = self.costs(sizes)
-        return sorted(range(len(self.names)), key=lambda i: (-cost[i], i))
-
-    def keep(self, seconds: list[float]) -> None:
-        """Record this build's times (a part from the cache keeps the time it took before)."""
-        from specgen import cache
-        now = {n: round(s, 3) if s > 0 else self.known.get(n) for n, s in zip(self.names, seconds)}
-        now = {n: s for n, s in now.items() if isinstance(s, (int, float))}
-        cache.store(self.KIND, self.key, json.dumps(now, sort_keys=True).encode("utf-8"))

@@ -475,3 +475,53 @@ def test_a_singular_damped_system_gives_none_for_each_series():
     def flat(z, idx):
         return np.ones((len(idx), 1)), np.zeros((len(idx), 1, 1))
     assert it._lm_path(flat, np.zeros((2, 1)), 1, 50, 1e-10, 0.0) == [None, None]
+
+
+# ---------------------------------------------------------------- edges found by the mutation run
+def test_adjacent_ranks_are_numpys_inverted_cdf():
+    # probabilities one draw apart (ranks k and k + 1, placed one after the other by the
+    # partial sorts): numpy's inverted-CDF quantiles (reference library), row by row
+    # (64/128, 65/128, 66/128 are exact in binary: ranks 63, 64, 65 of 128)
+    rows = np.random.default_rng(8).normal(size=(3, 128))
+    probs = [0.5, 0.5078125, 0.515625, 0.9]
+    assert np.array_equal(it.row_quantiles(rows, probs),
+                          np.quantile(rows.T, probs, axis=0, method="inverted_cdf"))
+
+
+def test_importance_weights_ignore_a_constant_in_the_target():
+    # self-normalised weights p/q: a constant factor in p (here e^800, beyond a float's range
+    # on its own) cancels (MacKay 2003, ch. 29), so the weights are those of the target without it
+    mu, sd = np.array([0.3, -0.2]), np.array([1.2, 0.7])
+    mode, cov = np.array([0.0, 0.0]), np.array([[1.0, 0.3], [0.3, 0.5]])
+    _, w, _ = it.importance_sample(_gauss_nlp(mu, sd), mode, cov, 400, 5.0, 1.5, 11)
+    _, w_big, _ = it.importance_sample(lambda z: _gauss_nlp(mu, sd)(z) - 800.0, mode, cov,
+                                       400, 5.0, 1.5, 11)
+    assert w_big == pytest.approx(w, rel=1e-9)
+
+
+def test_lack_of_fit_with_one_replicate_pair_and_the_sums_of_an_untestable_one():
+    # groups a (1, 3), b (4), c (8): pure error (1−2)² + (3−2)² = 2 on N − k = 4 − 3 = 1 dof;
+    # fitted 2.5, 2.5, 4, 7: lack of fit 2(0.5)² + 0 + 1² = 1.5 on 3 − 1 = 2 dof;
+    # F = (1.5/2)/(2/1) = 0.375 (by hand), p from scipy.stats.f.sf
+    got = it.lack_of_fit([1.0, 3.0, 4.0, 8.0], ["a", "a", "b", "c"], [2.5, 2.5, 4.0, 7.0], 1.0)
+    assert got.f == pytest.approx(0.375, rel=1e-12)
+    assert got.p_value == pytest.approx(stats.f.sf(0.375, 2.0, 1.0), rel=1e-9)
+    # one result per group: not testable, its lack-of-fit sum still reported:
+    # (1 − 1.1)² + (2 − 1.9)² + 0 = 0.02 on 3 − 1 = 2 dof
+    none = it.lack_of_fit([1.0, 2.0, 3.0], [1, 2, 3], [1.1, 1.9, 3.0], 1.0)
+    assert (none.ss_lof, none.dof_lof) == (pytest.approx(0.02, rel=1e-9), 2.0)
+
+
+def test_falls_with_unequal_counts_at_their_critical_quantile():
+    # s = sqrt(2σb² + σw²(1/n_a + 1/n_b)), σw = 0.05, σb = 0.10; a fall when d > q·s, so the
+    # critical q is d/s (by hand).  Counts 1 and 6, d = ln 4 − ln 2.5 = 0.470004:
+    # s = sqrt(0.02 + 0.0025·7/6) = 0.151383, q* = 3.10474
+    d2 = np.log([4.0, 2.5])
+    assert it.falls([28.0, 90.0], d2, [1, 6], 0.05, 0.10, q=3.09) != []
+    assert it.falls([28.0, 90.0], d2, [1, 6], 0.05, 0.10, q=3.12) == []
+    # three ages, counts 1, 6, 2, the drop of 0.5 between the second and third:
+    # s = sqrt(0.02 + 0.0025·(1/6 + 1/2)) = 0.147196, q* = 3.39683
+    means3 = [0.0, 0.0, -0.5]
+    assert it.falls([7.0, 28.0, 90.0], means3, [1, 6, 2], 0.05, 0.10, q=3.38) == [
+        (28.0, 90.0, pytest.approx(math.exp(-0.5), rel=1e-12))]
+    assert it.falls([7.0, 28.0, 90.0], means3, [1, 6, 2], 0.05, 0.10, q=3.41) == []
