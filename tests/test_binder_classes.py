@@ -126,6 +126,10 @@ def test_a_class_of_another_family_is_not_assessed(demo_copy):
     assert c.status == "not_assessed"
     assert c.message == ("not assessed: binder NH35 declares 'HL 5', which is no EN 459-1 "
                          "class of NHL such as 'NHL 3.5' (materials.yaml declared_class)")
+    # it still names the table it would have read: a reference, EN 459-1 Annex A Table A.4
+    # (content/data/binder_classes.yaml, en459_1)
+    assert [(b.kind, b.ref, b.clause) for b in c.basis] == [
+        ("reference", "en459", "Annex A, Table A.4, limit values for single results")]
 
 
 @pytest.mark.parametrize("declared, status, message", [
