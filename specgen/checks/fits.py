@@ -87,7 +87,12 @@ def once(key: tuple, make):
 def selection(ages_s, values_pa) -> sm.Selection:
     """:func:`~specgen.science.strength_models.fit_all` of a series (SI), made once."""
     t, y = tuple(map(float, ages_s)), tuple(map(float, values_pa))
-    return once(("models", t, y), lambda: sm.fit_all(np.array(t), np.array(y)))
+    return once(("models", t, y), lambda: _models(t, y))
+
+
+def _models(t: tuple, y: tuple) -> sm.Selection:
+    """The model comparison of one series, as :func:`selection` and :func:`_make` make it."""
+    return sm.fit_all(np.array(t), np.array(y))
 
 
 def inference(ages_d, values_mpa, prior: si.Prior) -> si.Inference:
@@ -134,7 +139,7 @@ def _make(todo: dict[tuple, tuple]) -> dict[tuple, object]:
     for key in (k for k in todo if k[0] == "models"):
         t, y = todo[key]
         try:
-            out[key] = sm.fit_all(np.array(t), np.array(y))
+            out[key] = _models(t, y)
         except sm.StrengthFitError:
             pass    # refused again, with its message, when the check asks
     return out
