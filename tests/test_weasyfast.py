@@ -98,3 +98,18 @@ def test_the_print_css_is_parsed_once_per_process_and_prints_the_same(fresh, mon
         alone = weasyprint.HTML(string=HTML, base_url=BASE, url_fetcher=pdf_parts._fetcher(
             PAGESET)).write_pdf(stylesheets=[weasyprint.CSS(string=CSS)], **PDF_OPTIONS)
     assert alone == first
+
+
+def test_one_font_configuration_per_process_prints_the_same(fresh, monkeypatch):
+    from specgen.publish.weasyfix import weasyprint
+    monkeypatch.setattr(pdf_parts, "_FONTS", [])
+    text = ("<html lang='en'><body><h1>Mortar for the north pier</h1><p><b>Bold</b>, "
+            "<i>italic</i> and <code>monospace</code> text: 1.5 N/mm² at 28 d.</p></body></html>")
+    shared = [print_document(page, CSS, PAGESET, **PDF_OPTIONS).pdf for page in (HTML, text)]
+    config = pdf_parts._FONTS[0][1]
+    assert pdf_parts._fonts() is config          # kept: the same object for every part
+    # WeasyPrint's default, a font configuration of its own for each document
+    alone = [weasyprint.HTML(string=page, base_url=BASE, url_fetcher=pdf_parts._fetcher(
+        PAGESET)).write_pdf(stylesheets=[weasyprint.CSS(string=CSS)], **PDF_OPTIONS)
+        for page in (HTML, text)]
+    assert shared == alone
