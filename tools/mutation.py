@@ -55,7 +55,7 @@ T = "tests/test_"
 CHECK_TESTS_BY_MODULE = {
     "aggregate_checks": [T + "compatibility_checks.py"],
     "audit_checks": [T + "audit.py"], "audit_record_checks": [T + "audit.py"],
-    "binder_class_checks": [T + "binder_classes.py"],
+    "binder_class_checks": [T + "binder_classes.py", T + "whole_binder_class_checks.py"],
     "calcination_checks": [T + "firing_phases_hydration_checks.py"],
     "chemistry_checks": [T + "chemistry_checks.py", T + "check_values.py",
                          T + "cementation_index_check.py"],
@@ -83,7 +83,8 @@ CHECK_TESTS_BY_MODULE = {
     "strength_class_checks": [T + "strength_checks.py"],
     "strength_common": [T + "strength_checks.py", T + "strength_inference_checks.py"],
     "strength_inference_checks": [T + "strength_inference_checks.py"],
-    "strength_prior_common": [T + "strength_inference_checks.py"],
+    "strength_prior_common": [T + "strength_inference_checks.py",
+                              T + "whole_strength_prior_common.py"],
     "substrate_checks": [T + "durability_checks.py"],
     "sulfate_checks": [T + "durability_checks.py", T + "compatibility_checks.py"],
     "works_checks": [T + "works_checks.py", T + "check_values.py"],
