@@ -80,7 +80,7 @@ CHECK_TESTS_BY_MODULE = {
     "specification_checks": [T + "specification.py", T + "check_values.py"],
     "specification_record_checks": [T + "specification.py", T + "check_values.py"],
     "strength_acceptance_checks": [T + "strength_checks.py", T + "strength_inference_checks.py"],
-    "strength_checks": [T + "strength_checks.py"],
+    "strength_checks": [T + "strength_checks.py", T + "whole_strength_checks.py"],
     "strength_class_checks": [T + "strength_checks.py"],
     "strength_common": [T + "strength_checks.py", T + "strength_inference_checks.py"],
     "strength_inference_checks": [T + "strength_inference_checks.py"],
