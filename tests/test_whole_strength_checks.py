@@ -15,6 +15,7 @@ from __future__ import annotations
 import copy
 import csv
 import math
+import re
 import statistics
 from collections import defaultdict
 from types import SimpleNamespace as NS
@@ -35,6 +36,7 @@ AICC = Basis("reference", "burnham2002", "AICc and ΔAICc, sec. 2.4 and 2.6")
 EN1992 = Basis("reference", "en1992", "eq. 3.2, age function of compressive strength")
 KN_SOURCE = ("EN 1990 Annex D (D7.2): t(0.95, n−1)·√(1 + 1/n), Student's t quantile computed "
              "with SciPy")
+NUMBER = r"\d+\.\d+"
 FK = r"f_k = \bar{f} - k_n\,s,\quad k_n = t_{0.95,\,n-1}\sqrt{1 + 1/n}"
 
 
@@ -352,3 +354,65 @@ def test_fit_on_warm_lab_curing_shows_the_equivalent_age_step(demo_checked):
         "maturity_defaults.yaml (EN 1015-11 curing at 20 °C)"]
     assert lab.substituted == (rf"a_T = \exp\left[-\frac{{33500}}{{8.3145}}\left(\frac{{1}}"
                                rf"{{303.15}} - \frac{{1}}{{293.15}}\right)\right] = {a:.4f}")
+
+
+@pytest.mark.parametrize("code, test", [("STR-PRED-C", "compressive"), ("STR-PRED-F", "flexural")])
+@pytest.mark.parametrize("mix", ["M1", "M2", "M3"])
+def test_prediction_sheets_of_the_demo_whole(demo_checked, code, test, mix):
+    # the ages: the dossier's required ages (dossier.yaml requirements.min_compressive: 28 and
+    # 90 d) for compressive, 28 d for flexural, and the late ages of the rules (90 and 365 d);
+    # the last tested age 90 d (lab/strength.csv); the extrapolation limit 3 (rule
+    # strength.extrapolation_limit): 365 d > 3 × 90 d is indicative, never deciding
+    _, results = demo_checked
+    got = results.check(code, mix)
+    inf = results.check(f"STR-INF-{code[-1]}", mix)
+    assert (got.title, got.unit, got.status) == (f"Predicted strength ({test})", "MPa",
+                                                 "attention")
+    assert got.basis == (
+        Basis("common practice", note="two-stage law with the binder family's prior "
+              "(content/data/strength_priors.yaml); see STR-INF"),
+        Basis("common practice", note="predictions beyond the extrapolation limit (rule "
+              "strength.extrapolation_limit) are indicative only"))
+    data = got.quantities[0].value[test]
+    assert list(data) == ["28 d", "90 d", "365 d"]
+    scatter = {i.symbol: (i.value, i.source) for i in inf.steps[1].inputs}
+    where = {"28 d": "within the tested ages", "90 d": "within the tested ages",
+             "365 d": "indicative: beyond the extrapolation limit"}
+    for step, (age, d) in zip(got.steps, data.items()):
+        assert step.title == f"{test} at {age} ({where[age]}); interval for the {d['n']}"
+        assert d["n"] == "mean of the next set of 3 prisms"       # rule: 3 prisms a set
+        assert (step.result, step.unit, step.symbol) == (d["value"], "MPa", "f̂")
+        # the sheet's figures to 3 decimals, the quantities' to 4: equal within one unit
+        # of the third decimal (the 4-decimal figure may sit on a rounding tie)
+        want = (rf"\hat f = {d['value']:.3f};\ \text{{{d['n']}}}: [{d['pred_lower']:.3f},\ "
+                rf"{d['pred_upper']:.3f}];\ \text{{mean curve}}: [{d['lower']:.3f},\ "
+                rf"{d['upper']:.3f}]")
+        assert re.sub(NUMBER, "#", step.substituted) == re.sub(NUMBER, "#", want)
+        assert [float(x) for x in re.findall(NUMBER, step.substituted)] == pytest.approx(
+            [float(x) for x in re.findall(NUMBER, want)], abs=1.001e-3)
+        t, last, kx, sb, sw, q = step.inputs
+        assert (t.symbol, t.name, t.value, t.unit, t.source) == (
+            "t", "age (equivalent, at 20 °C)", float(age[:-2]), "d", "requirement or late age")
+        assert (last.symbol, last.name, last.value, last.unit, last.source) == (
+            "t_last", "last tested age", 90.0, "d", "STR-AGG")
+        assert (kx.symbol, kx.name, kx.value, kx.unit, kx.source) == (
+            "k_x", "extrapolation limit", 3.0, "×", "rule strength.extrapolation_limit "
+            "(common practice)")
+        # the scatter is STR-INF's, the same on both sheets
+        assert (sb.symbol, sb.name, sb.unit, (sb.value, sb.source)) == (
+            "σ_b", "scatter between batches", "%", scatter["σ_b"])
+        assert (sw.symbol, sw.name, sw.unit, (sw.value, sw.source)) == (
+            "σ_w", "scatter within a batch", "%", scatter["σ_w"])
+        dof = float(q.name.split(", ")[1].removesuffix(" dof"))
+        assert q.name == f"Student t, {dof:g} dof, 95 % two-sided"
+        assert q.value == pytest.approx(round(stats.t.ppf(0.975, dof), 4), abs=1e-4)
+        assert (q.symbol, q.unit, q.source) == ("q", "", "Student's t quantile computed with SciPy")
+        assert d["extrapolated"] is (float(age[:-2]) > 90) and d["indicative"] is (age == "365 d")
+        assert d["lower"] <= d["value"] <= d["upper"] and d["pred_lower"] < d["lower"]
+        assert d["pred_upper"] > d["upper"]
+    text = "; ".join(f"{k}: {v['value']:.3g} MPa, mean [{v['lower']:.3g}, {v['upper']:.3g}], "
+                     f"next set [{v['pred_lower']:.3g}, {v['pred_upper']:.3g}]"
+                     + (" (indicative)" if v["indicative"] else "") for k, v in data.items())
+    assert got.message == (text + "; 365 d beyond 3× the last tested age (90 d): indicative, "
+                           "never deciding")
+    assert got.value == data["365 d"]["value"]
