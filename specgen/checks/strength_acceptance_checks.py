@@ -338,6 +338,8 @@ def _load_day(s: sc.Series, load_mpa: float, t, te, ctx) -> tuple[float | None, 
 
 def _wall_curve(s: sc.Series, t, te, ctx) -> dict:
     ok = te > 0
+    if not ok.any():     # a record at or below the Nurse-Saul datum: no age gained, no curve
+        return {"days": [], "value": [], "lower": []}
     b = si.bands(s.run.inference, te[ok] / DAY, ctx.rules["strength.confidence_level"].value,
                  math.inf)
     # a year of daily points per mix: rounded as Python floats (``tolist``), the same numbers
