@@ -81,13 +81,19 @@ CHECK_TESTS_BY_MODULE = {
     "specification_record_checks": [T + "specification.py", T + "check_values.py"],
     "strength_acceptance_checks": [T + "strength_checks.py", T + "strength_inference_checks.py",
                                    T + "whole_strength_acceptance_checks.py"],
-    "strength_checks": [T + "strength_checks.py", T + "whole_strength_checks.py"],
+    "strength_checks": [T + "strength_checks.py", T + "whole_strength_checks.py",
+                        T + "whole_strength_acceptance_checks.py",
+                        T + "whole_strength_inference_checks.py"],
     "strength_class_checks": [T + "strength_checks.py"],
-    "strength_common": [T + "strength_checks.py", T + "strength_inference_checks.py"],
+    "strength_common": [T + "strength_checks.py", T + "strength_inference_checks.py",
+                        T + "whole_strength_checks.py", T + "whole_strength_acceptance_checks.py",
+                        T + "whole_strength_inference_checks.py"],
     "strength_inference_checks": [T + "strength_inference_checks.py",
                                   T + "whole_strength_inference_checks.py"],
     "strength_prior_common": [T + "strength_inference_checks.py",
-                              T + "whole_strength_prior_common.py"],
+                              T + "whole_strength_prior_common.py",
+                              T + "whole_strength_inference_checks.py",
+                              T + "whole_strength_acceptance_checks.py"],
     "substrate_checks": [T + "durability_checks.py"],
     "sulfate_checks": [T + "durability_checks.py", T + "compatibility_checks.py"],
     "works_checks": [T + "works_checks.py", T + "check_values.py"],
@@ -121,6 +127,10 @@ def names_read(module: str, root: Path = REPO) -> set[str]:
     src = (root / "specgen" / "checks" / f"{module}.py").read_text("utf-8")
     pattern = r'(?:register|audit_rule|declare)\(\s*"([A-Za-z0-9_-]+)"'
     names = {re.escape(n) for n in re.findall(pattern, src)}
+    # codes made per test kind in an f-string (``code = f"STR-INF-{CODE_OF[test]}"``): the
+    # prefix and any last letter (a test names "STR-INF-C")
+    made = r'\bcode(?:, title)? = f"([A-Z][A-Z0-9]*(?:-[A-Z0-9]+)*-)\{'
+    names |= {re.escape(n) + "[A-Z]" for n in re.findall(made, src)}
     # a function is read when a test calls it (``name(``) or imports it, not when a word of
     # the same spelling ("table") stands in a comment
     names |= {rf"\b{n.name}\s*\(|import[^\n]*\b{n.name}\b" for n in ast.parse(src).body
@@ -129,6 +139,7 @@ def names_read(module: str, root: Path = REPO) -> set[str]:
         text = other.read_text("utf-8")
         if f"specgen.checks.{module} import" in text or f"import {module}" in text:
             names |= {re.escape(n) for n in re.findall(pattern, text)}
+            names |= {re.escape(n) + "[A-Z]" for n in re.findall(made, text)}
     return names
 
 
