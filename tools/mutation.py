@@ -46,6 +46,7 @@ CHECK_TESTS = [
     "tests/test_compatibility_checks.py", "tests/test_firing_phases_hydration_checks.py",
     "tests/test_strength_checks.py", "tests/test_works_checks.py",
     "tests/test_specification.py", "tests/test_check_values.py", "tests/test_revisions.py",
+    "tests/test_whole_specification_checks.py", "tests/test_whole_works_checks.py",
 ]
 # Each check module against the scenario tests that read its checks (found by the check codes
 # each module registers), so that a check mutant runs a few files instead of all of them:
@@ -78,7 +79,8 @@ CHECK_TESTS_BY_MODULE = {
     "salt_checks": [T + "compatibility_checks.py", T + "durability_checks.py"],
     "setting_checks": [T + "durability_checks.py"],
     "soundness_checks": [T + "durability_checks.py", T + "whole_soundness_checks.py"],
-    "specification_checks": [T + "specification.py", T + "check_values.py"],
+    "specification_checks": [T + "specification.py", T + "check_values.py",
+                             T + "whole_specification_checks.py"],
     "specification_record_checks": [T + "specification.py", T + "check_values.py"],
     "strength_acceptance_checks": [T + "strength_checks.py", T + "strength_inference_checks.py"],
     "strength_checks": [T + "strength_checks.py"],
@@ -89,8 +91,8 @@ CHECK_TESTS_BY_MODULE = {
     "substrate_checks": [T + "durability_checks.py"],
     "sulfate_checks": [T + "durability_checks.py", T + "compatibility_checks.py",
                        T + "whole_sulfate_checks.py"],
-    "works_checks": [T + "works_checks.py", T + "check_values.py"],
-    "works_common": [T + "works_checks.py", T + "check_values.py"],
+    "works_checks": [T + "works_checks.py", T + "check_values.py", T + "whole_works_checks.py"],
+    "works_common": [T + "works_checks.py", T + "check_values.py", T + "whole_works_checks.py"],
     "works_gauging_checks": [T + "works_checks.py"],
 }
 SCOPES = {
