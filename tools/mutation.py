@@ -46,6 +46,7 @@ CHECK_TESTS = [
     "tests/test_compatibility_checks.py", "tests/test_firing_phases_hydration_checks.py",
     "tests/test_strength_checks.py", "tests/test_works_checks.py",
     "tests/test_specification.py", "tests/test_check_values.py", "tests/test_revisions.py",
+    "tests/test_whole_specification_checks.py", "tests/test_whole_works_checks.py",
 ]
 # Each check module against the scenario tests that read its checks (found by the check codes
 # each module registers), so that a check mutant runs a few files instead of all of them:
@@ -53,12 +54,13 @@ CHECK_TESTS = [
 # alone would pick nearly the whole list above for each mutant.
 T = "tests/test_"
 CHECK_TESTS_BY_MODULE = {
-    "aggregate_checks": [T + "compatibility_checks.py"],
+    "aggregate_checks": [T + "compatibility_checks.py", T + "whole_aggregate_checks.py"],
     "audit_checks": [T + "audit.py"], "audit_record_checks": [T + "audit.py"],
     "binder_class_checks": [T + "binder_classes.py", T + "whole_binder_class_checks.py"],
-    "calcination_checks": [T + "firing_phases_hydration_checks.py"],
+    "calcination_checks": [T + "firing_phases_hydration_checks.py",
+                           T + "whole_calcination_checks.py"],
     "chemistry_checks": [T + "chemistry_checks.py", T + "check_values.py",
-                         T + "cementation_index_check.py"],
+                         T + "cementation_index_check.py", T + "whole_chemistry_checks.py"],
     "chemistry_common": [T + "chemistry_checks.py", T + "check_values.py",
                          T + "cementation_index_check.py"],
     "colour_checks": [T + "compatibility_checks.py"],
@@ -69,15 +71,17 @@ CHECK_TESTS_BY_MODULE = {
     "durability_common": [T + "durability_checks.py"],
     "durability_tests_checks": [T + "durability_checks.py"],
     "evidence_checks": [T + "evidence.py"],
-    "exposure_checks": [T + "durability_checks.py"],
+    "exposure_checks": [T + "durability_checks.py", T + "whole_exposure_checks.py"],
     "hydration_checks": [T + "firing_phases_hydration_checks.py", T + "check_values.py",
                          T + "whole_hydration_checks.py"],
     "method_checks": [T + "method.py"],
-    "phases_checks": [T + "firing_phases_hydration_checks.py", T + "binder_estimates.py"],
+    "phases_checks": [T + "firing_phases_hydration_checks.py", T + "binder_estimates.py",
+                      T + "whole_phases_checks.py"],
     "salt_checks": [T + "compatibility_checks.py", T + "durability_checks.py"],
     "setting_checks": [T + "durability_checks.py"],
-    "soundness_checks": [T + "durability_checks.py"],
-    "specification_checks": [T + "specification.py", T + "check_values.py"],
+    "soundness_checks": [T + "durability_checks.py", T + "whole_soundness_checks.py"],
+    "specification_checks": [T + "specification.py", T + "check_values.py",
+                             T + "whole_specification_checks.py"],
     "specification_record_checks": [T + "specification.py", T + "check_values.py"],
     "strength_acceptance_checks": [T + "strength_checks.py", T + "strength_inference_checks.py",
                                    T + "whole_strength_acceptance_checks.py"],
@@ -95,9 +99,10 @@ CHECK_TESTS_BY_MODULE = {
                               T + "whole_strength_inference_checks.py",
                               T + "whole_strength_acceptance_checks.py"],
     "substrate_checks": [T + "durability_checks.py"],
-    "sulfate_checks": [T + "durability_checks.py", T + "compatibility_checks.py"],
-    "works_checks": [T + "works_checks.py", T + "check_values.py"],
-    "works_common": [T + "works_checks.py", T + "check_values.py"],
+    "sulfate_checks": [T + "durability_checks.py", T + "compatibility_checks.py",
+                       T + "whole_sulfate_checks.py"],
+    "works_checks": [T + "works_checks.py", T + "check_values.py", T + "whole_works_checks.py"],
+    "works_common": [T + "works_checks.py", T + "check_values.py", T + "whole_works_checks.py"],
     "works_gauging_checks": [T + "works_checks.py"],
 }
 SCOPES = {
