@@ -10,7 +10,8 @@ prior taken at the geometric middle of its range in ``content/data/strength_prio
 equivalent age (Arrhenius t_e = Σ exp[−E/R (1/T − 1/T_r)] Δt; Nurse-Saul t_e = Σ (T − T_0) Δt /
 (T_r − T_0)) with the temperature-dependent activation energy of Freiesleben Hansen &
 Pedersen as ``content/data/maturity_defaults.yaml`` states it (33.5 kJ/mol at or above 20 °C,
-plus 1.47 kJ/mol per kelvin below; datum −10 °C), R by ``scipy.constants``; the decision rule
+plus 1.47 kJ/mol per kelvin below: from memory, as that file tags them; datum −10 °C, common
+practice), R by ``scipy.constants``; the decision rule
 of the interval for the next set (pass when the whole interval is on the right side of the
 limit, fail when the whole is on the wrong side, hold otherwise: "when the data cannot decide,
 say hold") and the candidate test ages 56, 90, 180, 365 d (``strength_classes.yaml``, common
