@@ -109,3 +109,69 @@ def test_set_size_from_the_specification_else_the_rule():
     got = spc.set_size(NS(specification=none_given), {"specification.prisms_per_set":
                                                       NS(value=3.0)})
     assert (got, type(got)) == (3, int)
+
+
+# ------------------------------------------------------------------ the fit judged (infer)
+def _record(means, spread):
+    """A compressive record of mix M1, three prisms per age at mean·(1 − spread, 1, 1 + spread)
+    (MPa), cured at 20 °C, with the demo project's binders (NC1: natural cement)."""
+    from specgen.checks import strength_common as sc
+    from specgen.checks.rules import RuleBook
+    from specgen.project import load_project
+    from tests.conftest import DEMO
+    project = load_project(DEMO)
+    rules = RuleBook()
+    rows = [NS(specimen=f"R{a}-{k}", mix="M1", age=a * 86400.0, test="compressive",
+               value=m * (1 + k * spread) * 1e6, curing_temperature=None, row=2, file="x.csv")
+            for a, m in means for k in (-1, 0, 1)]
+    series = sc._series(("M1", "compressive"), rows, sc.settings(project), rules,
+                        {"low_mpa": 0.05, "high_mpa": 100.0}, project)
+    fam = spc.family(project, project.mixes["M1"])
+    return series, fam, rules
+
+
+def test_infer_names_a_mean_the_band_misses_and_a_set_interval_that_misses():
+    # a bump at 7 d (3.5 MPa between 1.8 at 3 d and 4.8 at 28 d), tight replicates (±1 %): the
+    # band for the mean curve misses the 7-d mean, the interval for a set does not — a
+    # batch-to-batch scatter, not a misfit
+    series, fam, rules = _record([(1, 1.2), (3, 1.8), (7, 3.5), (28, 4.8), (90, 7.6)], 0.01)
+    run = spc.infer(series, fam, rules)
+    assert (run.mean_misses, run.outside, run.misfit, run.falls, run.error) == (
+        (7.0,), (), (), (), "")
+    assert run.ok
+    # a record no two-stage law follows (0.3 MPa at 1 d, 4 MPa at 3 d, flat to 28 d, 12 at
+    # 90 d; ±0.5 %): lack of fit even with the prior's largest batch scatter (12 %, the
+    # natural-cement row of strength_priors.yaml), and set intervals missing measured means
+    series, fam, rules = _record([(1, 0.3), (3, 4.0), (7, 4.2), (28, 4.3), (90, 12.0)], 0.005)
+    run = spc.infer(series, fam, rules)
+    assert not run.ok and run.falls == ()
+    lof, miss = run.misfit
+    assert lof.startswith("lack of fit: p = ") and lof.endswith(
+        " below 0.05 even allowing the prior's largest batch-to-batch scatter (12 %)")
+    assert float(lof.split("p = ")[1].split()[0]) < 0.05
+    assert [a for a, *_ in run.outside] == [1.0, 3.0]
+    for age, mean, lo, hi in run.outside:              # each measured mean outside its interval
+        assert not lo <= mean <= hi
+    assert miss == "the interval for a set misses the measured mean at " + ", ".join(
+        f"{a:.4g} d ({m:.3g} MPa outside [{lo:.3g}, {hi:.3g}])" for a, m, lo, hi in run.outside)
+    assert miss.startswith("the interval for a set misses the measured mean at 1 d (0.3 MPa "
+                           "outside [")
+
+
+def test_infer_holds_two_falls_and_refuses_implausible_values():
+    # the mean falls from 7 to 28 d and from 56 to 90 d to half its value: both named, one
+    # sentence each, and the record is not used
+    series, fam, rules = _record([(1, 1.2), (7, 4.0), (28, 2.0), (56, 5.0), (90, 2.5)], 0.01)
+    run = spc.infer(series, fam, rules)
+    assert [(a, b) for a, b, _ in run.falls] == [(7.0, 28.0), (56.0, 90.0)]
+    assert run.error == (
+        "the mean falls from 7 d to 28 d to 50 % of its value, more than the scatter explains; "
+        "the mean falls from 56 d to 90 d to 50 % of its value, more than the scatter explains"
+        ": check the specimens, their curing and the copying of the results, and retest; the "
+        "record is not used to predict")
+    assert not run.ok and run.misfit == ()
+    series.implausible = ["R7-0 (row 2): 4e+06 Pa"]
+    run = spc.infer(series, fam, rules)
+    assert (run.inference, run.ok) == (None, False)
+    assert run.error == ("results of implausible magnitude (see the aggregation check): correct "
+                         "the unit or the values before the strength can be inferred")
