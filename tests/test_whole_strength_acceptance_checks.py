@@ -335,6 +335,7 @@ def test_site_equivalent_age_of_a_constant_temperature_whole(demo_checked, metho
         [a * rate for a in (7, 28, 90, 365)], rel=1e-3)
     assert [s.title.split(":")[0] for s in got.steps[1:]] == [
         f"in the wall at {a} d" for a in (7, 28, 90, 365)]
+    assert all(s.title.endswith("; interval for one batch") for s in got.steps[1:])
     eq = next(q for q in got.quantities if q.name == "equivalent_age")
     assert eq.value["method"] == method
     assert eq.value["wall"]["365 d"] == pytest.approx(te, rel=1e-4)
