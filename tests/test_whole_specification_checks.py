@@ -201,8 +201,8 @@ def test_spec_select_without_a_file_without_a_selection_and_with_an_open_fail(de
 
 
 def test_spec_select_unjustified_fail_names_line_field_and_the_clean_choice(demo_checked):
-    """Z3 with M3 and no justification: M3 fails STR-MIN and DUR-TSA (two checks: 'checks'),
-    and M2, the other candidate, fails DUR-... too — read from the demo's results."""
+    """SPEC-SELECT of Z3 with M3 and no justification: M3 fails STR-MIN and DUR-TSA (two checks: 'checks'),
+    and M2, the other candidate, fails a check in Z3 too (DUR-TSA/Z3/M2, read from the demo's results)."""
     project, results = demo_checked
     z3 = _zone(project, "Z3")
     sel = project.specification.doc.selections[2].model_copy(update={"justification": None})
@@ -334,7 +334,7 @@ def test_spec_accept_whole_from_the_requirements(demo_checked):
 
 
 def test_spec_accept_rows_of_a_fractional_share_and_no_requirement():
-    """_acceptance_rows by hand: r = 0.8 of 2.123456 MPa at 28 d = 1.6987648 → 1.6988 (4
+    """SPEC-ACCEPT's _acceptance_rows by hand: r = 0.8 of 2.123456 MPa at 28 d = 1.6987648 → 1.6988 (4
     decimals) in the table, 1.7 (3 figures) in the substitution and the message; no cap; an age with no
     requirement (7 d) gives no row; the message with nothing is said in words."""
     verdicts = {"min 28 d": {"kind": "min", "limit": 2.123456}}

@@ -312,3 +312,73 @@ def test_site_weather_without_a_record_undated_and_a_single_reading(demo_checked
         else:
             assert c.status == "pass"
             assert c.message.endswith("; 0 of 1 day of lab/site-temperature.csv fall outside")
+
+
+def test_zone_volume_of_each_kind_with_defaults_and_what_is_missing(demo_checked):
+    """works_common.zone_volume by hand on the demo's zones changed in memory: Z1 without a
+    joint depth takes 2 × 10 mm (works.joint_depth_ratio 2.0, content/rules/works.yaml); Z2's
+    render inputs name each coat; Z3 without a mortar fraction takes 0.25
+    (works.bedding_mortar_fraction): 1.8 × 0.25 × 1.12 m³; a missing area, coats or masonry
+    volume gives the reason instead of a volume."""
+    from specgen.checks import works_common as wc
+    project, _ = demo_checked
+    rules = RuleBook(project.dossier.rule_overrides)
+    z = {x.id: x for x in project.dossier.zones}
+    v = wc.zone_volume(z["Z1"].model_copy(update={"joint_depth": None}), project, rules)
+    L = (0.23 + 0.01 + 0.075) / ((0.23 + 0.01) * (0.075 + 0.01))
+    assert v.net == pytest.approx(240 * L * 0.01 * 0.02, rel=1e-12)
+    assert v.total == pytest.approx(v.net * 1.15, rel=1e-12)
+    assert v.joint_length == pytest.approx(L, rel=1e-12)
+    assert v.inputs[-1][:5] == ("d", "joint depth", pytest.approx(0.02), "mm", 1e-3)
+    assert v.inputs[-1][5] == ("joint width × rule works.joint_depth_ratio (common practice — "
+                               "joints are raked out to about twice their width, to sound mortar)")
+    assert v.wastage.source == ("rule works.wastage_repointing (common practice — pointing loses "
+                                "mortar on the hawk, in the joint and on the face)")
+    r = wc.zone_volume(z["Z2"], project, rules)
+    assert [i[:2] + i[3:] for i in r.inputs] == [
+        ("A", "rendered area", "m²", 1, "dossier.yaml Z2.area"),
+        ("t_1", "thickness of coat 1", "mm", 1e-3, "dossier.yaml Z2.coats[0]"),
+        ("t_2", "thickness of coat 2", "mm", 1e-3, "dossier.yaml Z2.coats[1]")]
+    assert (r.net, r.joint_length) == (pytest.approx(85 * 0.020), None)
+    b = wc.zone_volume(z["Z3"].model_copy(update={"mortar_fraction": None}), project, rules)
+    assert b.total == pytest.approx(1.8 * 0.25 * 1.12, rel=1e-12)
+    assert b.inputs[1] == ("f", "mortar fraction", 0.25, "", 1, "rule works.bedding_mortar_"
+                           "fraction (common practice — coursed stone and brickwork hold roughly "
+                           "a fifth to a third of their volume in mortar)")
+    assert b.inputs[0] == ("V_m", "volume of masonry", 1.8, "m³", 1, "dossier.yaml Z3.masonry_volume")
+    assert wc.zone_volume(z["Z1"].model_copy(update={"area": None, "joint_width": None}),
+                          project, rules).reason == ("give dossier.yaml Z1.area, dossier.yaml "
+                                                     "Z1.joint_width")
+    assert wc.zone_volume(z["Z1"].model_copy(update={"units": None}), project,
+                          rules).reason == "give the unit's length, the unit's height"
+    assert wc.zone_volume(z["Z2"].model_copy(update={"coats": []}), project,
+                          rules).reason == "give dossier.yaml Z2.coats"
+    none = wc.zone_volume(z["Z3"].model_copy(update={"masonry_volume": None}), project, rules)
+    assert (none.reason, none.total, none.net) == ("give dossier.yaml Z3.masonry_volume", 0, 0)
+    c = wks.works_quantities_check(z["Z3"].model_copy(update={"masonry_volume": None}),
+                                   _ctx(demo_checked))
+    assert (c.code, c.status, c.value, c.message) == (
+        "WORKS-QTY", "not_assessed", None,
+        "not assessed: bedding in zone Z3: give dossier.yaml Z3.masonry_volume")
+
+
+def test_parts_densities_given_or_defaulted(demo_checked):
+    """works_common.parts_of: NC1's bulk density given (850, materials.yaml) and its particle
+    density the natural-cement default 2900 (content/data/mix_densities.yaml, common
+    practice); a binder without a bulk density takes the 900 kg/m³ default; the water density
+    998.2 kg/m³ (IAPWS-95, 998.207)."""
+    from specgen.checks import works_common as wc
+    project, _ = demo_checked
+    m1 = next(m for m in (project.mixes.values() if isinstance(project.mixes, dict)
+                          else project.mixes) if m.id == "M1")
+    nc1 = wc.parts_of(project, m1)[0]
+    assert (nc1.bulk.value, nc1.bulk.source) == (850.0, "materials.yaml NC1.bulk_density")
+    assert (nc1.particle.value, nc1.particle.source) == (2900.0, "default: common practice")
+    assert nc1.label == "Blackscar natural cement (trial firing 2)"
+    binders = dict(project.binders)
+    binders["NC1"] = binders["NC1"].model_copy(update={"bulk_density": None})
+    bare = wc.parts_of(_Swapped(project, binders=binders), m1)[0]
+    assert (bare.bulk.value, bare.bulk.source) == (900.0, "default: common practice")
+    assert wc.water_density().value == 998.2
+    assert wc.air_of(m1, RuleBook(project.dossier.rule_overrides)) == wc.Sourced(
+        0.045, "mixes.yaml M1.air_content (measured)")

@@ -47,6 +47,9 @@ CHECK_TESTS = [
     "tests/test_strength_checks.py", "tests/test_works_checks.py",
     "tests/test_specification.py", "tests/test_check_values.py", "tests/test_revisions.py",
     "tests/test_whole_specification_checks.py", "tests/test_whole_works_checks.py",
+    "tests/test_whole_compatibility_checks.py", "tests/test_whole_substrate_checks.py",
+    "tests/test_whole_works_gauging_checks.py", "tests/test_whole_audit_checks.py",
+    "tests/test_whole_specification_record_checks.py",
 ]
 # Each check module against the scenario tests that read its checks (found by the check codes
 # each module registers), so that a check mutant runs a few files instead of all of them:
@@ -55,7 +58,8 @@ CHECK_TESTS = [
 T = "tests/test_"
 CHECK_TESTS_BY_MODULE = {
     "aggregate_checks": [T + "compatibility_checks.py", T + "whole_aggregate_checks.py"],
-    "audit_checks": [T + "audit.py"], "audit_record_checks": [T + "audit.py"],
+    "audit_checks": [T + "audit.py", T + "whole_audit_checks.py"],
+    "audit_record_checks": [T + "audit.py"],
     "binder_class_checks": [T + "binder_classes.py", T + "whole_binder_class_checks.py"],
     "calcination_checks": [T + "firing_phases_hydration_checks.py",
                            T + "whole_calcination_checks.py"],
@@ -64,7 +68,7 @@ CHECK_TESTS_BY_MODULE = {
     "chemistry_common": [T + "chemistry_checks.py", T + "check_values.py",
                          T + "cementation_index_check.py"],
     "colour_checks": [T + "compatibility_checks.py"],
-    "compatibility_checks": [T + "compatibility_checks.py"],
+    "compatibility_checks": [T + "compatibility_checks.py", T + "whole_compatibility_checks.py"],
     "compatibility_common": [T + "compatibility_checks.py"],
     "composition_checks": [T + "cementation_index_check.py", T + "chemistry_checks.py",
                            T + "revisions.py"],
@@ -82,7 +86,8 @@ CHECK_TESTS_BY_MODULE = {
     "soundness_checks": [T + "durability_checks.py", T + "whole_soundness_checks.py"],
     "specification_checks": [T + "specification.py", T + "check_values.py",
                              T + "whole_specification_checks.py"],
-    "specification_record_checks": [T + "specification.py", T + "check_values.py"],
+    "specification_record_checks": [T + "specification.py", T + "check_values.py",
+                                    T + "whole_specification_record_checks.py"],
     "strength_acceptance_checks": [T + "strength_checks.py", T + "strength_inference_checks.py",
                                    T + "whole_strength_acceptance_checks.py"],
     "strength_checks": [T + "strength_checks.py", T + "whole_strength_checks.py",
@@ -99,12 +104,12 @@ CHECK_TESTS_BY_MODULE = {
                               T + "whole_strength_prior_common.py",
                               T + "whole_strength_inference_checks.py",
                               T + "whole_strength_acceptance_checks.py"],
-    "substrate_checks": [T + "durability_checks.py"],
+    "substrate_checks": [T + "durability_checks.py", T + "whole_substrate_checks.py"],
     "sulfate_checks": [T + "durability_checks.py", T + "compatibility_checks.py",
                        T + "whole_sulfate_checks.py"],
     "works_checks": [T + "works_checks.py", T + "check_values.py", T + "whole_works_checks.py"],
     "works_common": [T + "works_checks.py", T + "check_values.py", T + "whole_works_checks.py"],
-    "works_gauging_checks": [T + "works_checks.py"],
+    "works_gauging_checks": [T + "works_checks.py", T + "whole_works_gauging_checks.py"],
 }
 SCOPES = {
     "science": {"package": "specgen/science", "tests": ["tests/science"], "deselect": []},
