@@ -272,3 +272,62 @@ def test_warm_cured_record_marks_indicative_ages_from_its_equivalent_age(demo_ch
     curve = got.quantities[1].value["compressive"]
     assert curve["indicative_from_d"] == round(3 * 90 * a_t, 4)
     assert got.quantities[0].value["compressive"]["last_age_d"] == round(90 * a_t, 4)
+
+
+def test_a_record_no_law_follows_is_a_misfit_on_every_sheet(demo_checked):
+    # 0.3 MPa at 1 d, 4 MPa at 3 d, flat to 28 d, 12 at 90 d (±0.5 %): the law with the
+    # natural-cement prior misses measured means even with a set's interval, so STR-INF says
+    # so (attention) and no sheet predicts from it: STR-PRED, STR-MIN's untested ages,
+    # STR-MAX and STR-SITE are not assessed with the same reasons
+    from specgen.checks import strength_acceptance_checks as sac
+    rows = [("M1", a, m * (1 + 0.005 * k)) for a, m in ((1, 0.3), (3, 4.0), (7, 4.2),
+                                                       (28, 4.3), (90, 12.0)) for k in (-1, 0, 1)]
+    ctx = _ctx(demo_checked, rows)
+    mix = ctx.project.mixes["M1"]
+    got = _inf("STR-INF-C")(mix, ctx)
+    assert got.status == "attention"
+    misfit = [n for n in got.notes if n.startswith("misfit: ")]
+    assert [n.split(": ", 1)[1].split(" ")[0:2] for n in misfit] == [["lack", "of"],
+                                                                     ["the", "interval"]]
+    assert all(n.endswith("; the law is not used to predict") for n in misfit)
+    each = [n.removeprefix("misfit: ").removesuffix("; the law is not used to predict")
+            for n in misfit]
+    reasons = "; ".join(each)
+    assert got.message.endswith("; " + reasons)
+    assert got.quantities[1].value["compressive"]["usable"] is False
+    assert got.quantities[0].value["compressive"]["misfit"] == each
+    pred = _inf("STR-PRED-C")(mix, ctx)
+    assert (pred.status, pred.message) == ("not_assessed",
+                                           f"not assessed: no prediction: {reasons}")
+    mx = sac.maximum_check(mix, ctx)
+    assert mx.message == (f"not assessed: no prediction of the long-term strength ({reasons})")
+    site = sac.site_check(mix, ctx)
+    assert site.message == f"not assessed: no strength prediction ({reasons})"
+    mn = sac.minimum_check(mix, ctx)      # 28 and 90 d are tested: measured; none predicted
+    assert [s.title.split(" (n")[0] for s in mn.steps] == [
+        "measured at 28 d against the minimum", "measured at 90 d against the minimum"]
+
+
+def test_a_binder_family_without_a_row_is_read_with_the_widest_prior(demo_checked):
+    # M1's binder taken as a Portland cement: no row of strength_priors.yaml, so the widest
+    # prior, and the sheet says so (attention)
+    project, _ = demo_checked
+    p = copy.copy(project)
+    p.binders = {k: (b.model_copy(update={"type": "portland", "declared_class": ""})
+                     if k == "NC1" else b) for k, b in project.binders.items()}
+    p.strength = [r for r in project.strength if r.mix == "M1"]
+    ctx = Context(p, RuleBook(p.dossier.rule_overrides))
+    got = _inf("STR-INF-C")(p.mixes["M1"], ctx)
+    widest = _priors()["widest"]
+    assert got.status == "attention"
+    assert got.notes[:3] == (
+        "binder family Portland cement: no prior for this binder family in "
+        "content/data/strength_priors.yaml, so the widest prior is used (the band is as wide "
+        "as the families allow)",
+        "no prior for this binder family: the widest prior is used",
+        "prior ranges are common practice (content/data/strength_priors.yaml), not a published "
+        f"series: {widest['label']}")
+    lo, hi = widest["gain_365_28"]["range"]
+    assert f"(prior {lo:g}–{hi:g})" in got.message
+    rec = got.quantities[0].value["compressive"]
+    assert (rec["family"], rec["widest"]) == ("widest", True)
