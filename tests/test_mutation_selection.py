@@ -30,6 +30,21 @@ def test_tests_reached_through_helpers_of_helpers_are_selected(tmp_path):
     assert _tool().tests_naming(["t.py"], {r"\bnothing_here\s*\("}, root=tmp_path) == ["t.py"]
 
 
+def test_codes_made_per_test_kind_are_read(tmp_path):
+    # a check registered under a code made in an f-string (STR-INF-C and STR-INF-F from one
+    # function) is read by a test naming either code
+    checks = tmp_path / "specgen" / "checks"
+    checks.mkdir(parents=True)
+    (checks / "made_checks.py").write_text(
+        'def _check(test):\n    code, title = f"STR-INF-{test[0].upper()}", "t"\n', "utf-8")
+    names = _tool().names_read("made_checks", root=tmp_path)
+    assert names == {r"STR\-INF\-[A-Z]"}
+    (tmp_path / "t.py").write_text(
+        'def test_c():\n    assert "STR-INF-C"\n\n'
+        'def test_other():\n    assert "STR-AGG"\n', encoding="utf-8")
+    assert _tool().tests_naming(["t.py"], names, root=tmp_path) == ["t.py::test_c"]
+
+
 # --- the stratified sample of mutants and its estimate (tools/mutation.py sample/estimate) ---
 
 def _names(module, n):

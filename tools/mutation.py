@@ -46,6 +46,10 @@ CHECK_TESTS = [
     "tests/test_compatibility_checks.py", "tests/test_firing_phases_hydration_checks.py",
     "tests/test_strength_checks.py", "tests/test_works_checks.py",
     "tests/test_specification.py", "tests/test_check_values.py", "tests/test_revisions.py",
+    "tests/test_whole_specification_checks.py", "tests/test_whole_works_checks.py",
+    "tests/test_whole_compatibility_checks.py", "tests/test_whole_substrate_checks.py",
+    "tests/test_whole_works_gauging_checks.py", "tests/test_whole_audit_checks.py",
+    "tests/test_whole_specification_record_checks.py",
 ]
 # Each check module against the scenario tests that read its checks (found by the check codes
 # each module registers), so that a check mutant runs a few files instead of all of them:
@@ -53,42 +57,59 @@ CHECK_TESTS = [
 # alone would pick nearly the whole list above for each mutant.
 T = "tests/test_"
 CHECK_TESTS_BY_MODULE = {
-    "aggregate_checks": [T + "compatibility_checks.py"],
-    "audit_checks": [T + "audit.py"], "audit_record_checks": [T + "audit.py"],
-    "binder_class_checks": [T + "binder_classes.py"],
-    "calcination_checks": [T + "firing_phases_hydration_checks.py"],
+    "aggregate_checks": [T + "compatibility_checks.py", T + "whole_aggregate_checks.py"],
+    "audit_checks": [T + "audit.py", T + "whole_audit_checks.py"],
+    "audit_record_checks": [T + "audit.py"],
+    "binder_class_checks": [T + "binder_classes.py", T + "whole_binder_class_checks.py"],
+    "calcination_checks": [T + "firing_phases_hydration_checks.py",
+                           T + "whole_calcination_checks.py"],
     "chemistry_checks": [T + "chemistry_checks.py", T + "check_values.py",
-                         T + "cementation_index_check.py"],
+                         T + "cementation_index_check.py", T + "whole_chemistry_checks.py"],
     "chemistry_common": [T + "chemistry_checks.py", T + "check_values.py",
                          T + "cementation_index_check.py"],
     "colour_checks": [T + "compatibility_checks.py"],
-    "compatibility_checks": [T + "compatibility_checks.py"],
+    "compatibility_checks": [T + "compatibility_checks.py", T + "whole_compatibility_checks.py"],
     "compatibility_common": [T + "compatibility_checks.py"],
     "composition_checks": [T + "cementation_index_check.py", T + "chemistry_checks.py",
                            T + "revisions.py"],
     "durability_common": [T + "durability_checks.py"],
     "durability_tests_checks": [T + "durability_checks.py"],
     "evidence_checks": [T + "evidence.py"],
-    "exposure_checks": [T + "durability_checks.py"],
-    "hydration_checks": [T + "firing_phases_hydration_checks.py", T + "check_values.py"],
+    "exposure_checks": [T + "durability_checks.py", T + "whole_exposure_checks.py"],
+    "hydration_checks": [T + "firing_phases_hydration_checks.py", T + "check_values.py",
+                         T + "whole_hydration_checks.py"],
     "method_checks": [T + "method.py"],
-    "phases_checks": [T + "firing_phases_hydration_checks.py", T + "binder_estimates.py"],
+    "phases_checks": [T + "firing_phases_hydration_checks.py", T + "binder_estimates.py",
+                      T + "whole_phases_checks.py"],
     "salt_checks": [T + "compatibility_checks.py", T + "durability_checks.py"],
     "setting_checks": [T + "durability_checks.py"],
-    "soundness_checks": [T + "durability_checks.py"],
-    "specification_checks": [T + "specification.py", T + "check_values.py"],
-    "specification_record_checks": [T + "specification.py", T + "check_values.py"],
-    "strength_acceptance_checks": [T + "strength_checks.py", T + "strength_inference_checks.py"],
-    "strength_checks": [T + "strength_checks.py"],
+    "soundness_checks": [T + "durability_checks.py", T + "whole_soundness_checks.py"],
+    "specification_checks": [T + "specification.py", T + "check_values.py",
+                             T + "whole_specification_checks.py"],
+    "specification_record_checks": [T + "specification.py", T + "check_values.py",
+                                    T + "whole_specification_record_checks.py"],
+    "strength_acceptance_checks": [T + "strength_checks.py", T + "strength_inference_checks.py",
+                                   T + "whole_strength_acceptance_checks.py"],
+    "strength_checks": [T + "strength_checks.py", T + "whole_strength_checks.py",
+                        T + "whole_strength_acceptance_checks.py",
+                        T + "whole_strength_inference_checks.py"],
     "strength_class_checks": [T + "strength_checks.py"],
-    "strength_common": [T + "strength_checks.py", T + "strength_inference_checks.py"],
-    "strength_inference_checks": [T + "strength_inference_checks.py"],
-    "strength_prior_common": [T + "strength_inference_checks.py"],
-    "substrate_checks": [T + "durability_checks.py"],
-    "sulfate_checks": [T + "durability_checks.py", T + "compatibility_checks.py"],
-    "works_checks": [T + "works_checks.py", T + "check_values.py"],
-    "works_common": [T + "works_checks.py", T + "check_values.py"],
-    "works_gauging_checks": [T + "works_checks.py"],
+    "strength_common": [T + "strength_checks.py", T + "strength_inference_checks.py",
+                        T + "whole_strength_checks.py", T + "whole_strength_acceptance_checks.py",
+                        T + "whole_strength_inference_checks.py",
+                        T + "whole_strength_common.py"],
+    "strength_inference_checks": [T + "strength_inference_checks.py",
+                                  T + "whole_strength_inference_checks.py"],
+    "strength_prior_common": [T + "strength_inference_checks.py",
+                              T + "whole_strength_prior_common.py",
+                              T + "whole_strength_inference_checks.py",
+                              T + "whole_strength_acceptance_checks.py"],
+    "substrate_checks": [T + "durability_checks.py", T + "whole_substrate_checks.py"],
+    "sulfate_checks": [T + "durability_checks.py", T + "compatibility_checks.py",
+                       T + "whole_sulfate_checks.py"],
+    "works_checks": [T + "works_checks.py", T + "check_values.py", T + "whole_works_checks.py"],
+    "works_common": [T + "works_checks.py", T + "check_values.py", T + "whole_works_checks.py"],
+    "works_gauging_checks": [T + "works_checks.py", T + "whole_works_gauging_checks.py"],
 }
 SCOPES = {
     "science": {"package": "specgen/science", "tests": ["tests/science"], "deselect": []},
@@ -117,6 +138,10 @@ def names_read(module: str, root: Path = REPO) -> set[str]:
     src = (root / "specgen" / "checks" / f"{module}.py").read_text("utf-8")
     pattern = r'(?:register|audit_rule|declare)\(\s*"([A-Za-z0-9_-]+)"'
     names = {re.escape(n) for n in re.findall(pattern, src)}
+    # codes made per test kind in an f-string (``code = f"STR-INF-{CODE_OF[test]}"``): the
+    # prefix and any last letter (a test names "STR-INF-C")
+    made = r'\bcode(?:, title)? = f"([A-Z][A-Z0-9]*(?:-[A-Z0-9]+)*-)\{'
+    names |= {re.escape(n) + "[A-Z]" for n in re.findall(made, src)}
     # a function is read when a test calls it (``name(``) or imports it, not when a word of
     # the same spelling ("table") stands in a comment
     names |= {rf"\b{n.name}\s*\(|import[^\n]*\b{n.name}\b" for n in ast.parse(src).body
@@ -125,6 +150,7 @@ def names_read(module: str, root: Path = REPO) -> set[str]:
         text = other.read_text("utf-8")
         if f"specgen.checks.{module} import" in text or f"import {module}" in text:
             names |= {re.escape(n) for n in re.findall(pattern, text)}
+            names |= {re.escape(n) + "[A-Z]" for n in re.findall(made, text)}
     return names
 
 

@@ -42,7 +42,10 @@ def envelope(ctx) -> tuple[str, dict]:
 
 
 def _series_name(key: str) -> str:
-    return refdata.load("sieve_series").data["series"][key]["title"].split(" (")[0] if key else "?"
+    """The series' name ending in "sieves" (its title says "… test sieves" or not), so that
+    a sentence never reads "sieves sieves"."""
+    name = refdata.load("sieve_series").data["series"][key]["title"].split(" (")[0] if key else "?"
+    return name if name.endswith("sieves") else f"{name} sieves"
 
 
 def _envelope_step(g: gr.Grading, cmp: gr.EnvelopeComparison, env: dict) -> Step:
@@ -55,8 +58,8 @@ def _envelope_step(g: gr.Grading, cmp: gr.EnvelopeComparison, env: dict) -> Step
                    for s, p, lo, hi, i in zip(cmp.sieves, cmp.passing, cmp.low, cmp.high,
                                               cmp.interpolated or (False,) * len(cmp.sieves)))
     return Step(f"Passing on the envelope's sieves ({_series_name(env.get('series', ''))}), "
-                f"from the analysis on the {_series_name(g.series)} sieves",
-                r"P(s) = P_2 + (P_1 - P_2)\,rac{\ln(s/s_2)}{\ln(s_1/s_2)}", inputs,
+                f"from the analysis on the {_series_name(g.series)}",
+                r"P(s) = P_2 + (P_1 - P_2)\,\frac{\ln(s/s_2)}{\ln(s_1/s_2)}", inputs,
                 r"s_2 \le s \le s_1\ \text{adjacent sieves of the analysis}",
                 round(100 * max(cmp.outside), 3), "%", "outside")
 
@@ -118,6 +121,14 @@ def _envelope_curve(env: dict) -> dict:
             "low": [e["low"] for e in lim], "high": [e["high"] for e in lim]}
 
 
+def _rms_substituted(dev) -> str:
+    """Every difference squared under the root, so the sheet shows the sum it takes."""
+    terms = " + ".join(f"({100 * d:.3f})^2" if d < 0 else f"{100 * d:.3f}^2"
+                       for d in dev.difference)
+    return (rf"\Delta_\mathrm{{rms}} = \sqrt{{\frac{{1}}{{{len(dev.difference)}}}({terms})}}"
+            rf" = {100 * dev.rms:.3f}")
+
+
 def _grading_step(name: str, g: gr.Grading, fm: float, src: str) -> Step:
     inputs = tuple(Input(f"P({s * 1000:g})", f"passing {s * 1000:g} mm (retained {100 * r:.1f} %, "
                          f"cumulative retained {100 * c:.1f} %)", round(100 * p, 2), "%", src)
@@ -165,10 +176,10 @@ def _grading_one(pair, ctx):
     steps.append(Step("Difference from the historic aggregate",
                       r"\Delta_\mathrm{rms} = \sqrt{\frac{1}{n}\sum (P_\mathrm{repair} - P_\mathrm{hist})^2}",
                       tuple(Input(f"ΔP({s * 1000:g})", f"difference at {s * 1000:g} mm",
-                                  round(100 * d, 3), "%", "computed")
+                                  round(100 * d, 3), "%", "P_repair − P_hist, the fineness "
+                                  "modulus steps above")
                             for s, d in zip(dev.sieves, dev.difference)),
-                      rf"\Delta_\mathrm{{rms}} = {100 * dev.rms:.3f}", round(100 * dev.rms, 4), "%",
-                      "Δ_rms"))
+                      _rms_substituted(dev), round(100 * dev.rms, 4), "%", "Δ_rms"))
     statuses.append("pass" if 100 * dev.rms <= rms_lim else "attention")
     msg.append(f"RMS difference from the historic aggregate {100 * dev.rms:.1f} % (at most "
                f"{rms_lim:g} %), largest {100 * dev.max_abs:.1f} %")
@@ -183,13 +194,13 @@ def _grading_one(pair, ctx):
     cmp = gr.compare_envelope(g, usable, interpolate=across)
     if across:
         steps.append(_envelope_step(g, cmp, env))
-        notes.append(f"the envelope is written on the {_series_name(env['series'])} sieves and "
-                     f"the sand was sieved on the {_series_name(g.series)} sieves: the passing "
+        notes.append(f"the envelope is written on the {_series_name(env['series'])} and "
+                     f"the sand was sieved on the {_series_name(g.series)}: the passing "
                      "on each envelope sieve is read between the two nearest sieves of the "
                      "analysis, linear in the logarithm of the aperture")
     if hist.series and g.series and hist.series != g.series:
-        notes.append(f"the historic aggregate was sieved on the {_series_name(hist.series)} "
-                     "sieves: its passing is read on the repair sand's sieves by the same "
+        notes.append(f"the historic aggregate was sieved on the {_series_name(hist.series)}"
+                     ": its passing is read on the repair sand's sieves by the same "
                      "interpolation")
     out = [f"{s * 1000:g} mm ({100 * pp:.0f} % passing, limits {100 * lo:g}–{100 * hi:g} %)"
            for s, pp, lo, hi, d in zip(cmp.sieves, cmp.passing, cmp.low, cmp.high, cmp.outside)
@@ -302,13 +313,7 @@ def _ba_one(pair, ctx):
         notes.append(f"not corrected for loss on ignition: {loi_src}; the acid-soluble loss is "
                      "counted as binder as found (carbonated, with its CO2 and bound water)")
     if r.by_volume is not None:
-        steps.append(Step("Binder:aggregate by loose volume",
-                          r"B{:}A_V = \frac{(m_s - m_r)/\rho_b}{m_r/\rho_a}",
-                          inputs + (Input("ρ_b", "binder loose bulk density", d.binder_bulk_density,
-                                          "kg/m³", src),
-                                    Input("ρ_a", "aggregate loose bulk density",
-                                          d.aggregate_bulk_density, "kg/m³", src)),
-                          rf"B{{:}}A_V = {r.by_volume:.4f}", round(r.by_volume, 5), "", "B:A_V"))
+        steps.append(_volume_step(d, r, inputs, src, loi, loi_src))
     else:
         notes.append("by volume not computed: binder_bulk_density and aggregate_bulk_density not both given")
     q = {"historic_by_mass": round(r.by_mass, 4),
@@ -330,6 +335,25 @@ def _ba_one(pair, ctx):
                      f"historic mortar {h.id}: 1 : {1 / r.by_mass:.2g} by mass{vol}{mix_txt}",
                      steps=steps, notes=notes,
                      quantities=[Quantity("binder_aggregate_ratio", q, "", "binder:aggregate")])
+
+
+def _volume_step(d, r, inputs, src, loi, loi_src) -> Step:
+    """B:A by loose volume; the binder mass is net of its loss on ignition when that is known
+    (as the science computes it: the CO2 and bound water taken up are not binder as batched)."""
+    dens = (Input("ρ_b", "binder loose bulk density", d.binder_bulk_density, "kg/m³", src),
+            Input("ρ_a", "aggregate loose bulk density", d.aggregate_bulk_density, "kg/m³", src))
+    top = f"{d.sample_mass * 1000:g} - {d.residue_mass * 1000:g}"
+    if loi is None:
+        formula, num = r"B{:}A_V = \frac{(m_s - m_r)/\rho_b}{m_r/\rho_a}", f"({top})"
+    else:
+        formula = r"B{:}A_V = \frac{(m_s - m_r)(1 - LOI/100)/\rho_b}{m_r/\rho_a}"
+        num = f"({top})(1 - {loi:g}/100)"
+        dens = (Input("LOI", "loss on ignition of the binder fraction (its CO2 and bound water "
+                      "are not binder)", loi, "%", loi_src),) + dens
+    return Step("Binder:aggregate by loose volume", formula, inputs + dens,
+                rf"B{{:}}A_V = \frac{{{num}/{d.binder_bulk_density:g}}}"
+                rf"{{{d.residue_mass * 1000:g}/{d.aggregate_bulk_density:g}}} = "
+                rf"{r.by_volume:.4f}", round(r.by_volume, 5), "", "B:A_V")
 
 
 def _binder_loss(h, project) -> tuple[float | None, str]:

@@ -178,7 +178,9 @@ def clause_limit_rule(ctx) -> list[Finding]:
             if c.code not in CLAUSE_LIMITS or not _outside(c) or covered(c, sel.covers):
                 continue
             n, what = CLAUSE_LIMITS[c.code]
-            value = f"{c.value:.3g} {c.unit}".strip() if isinstance(c.value, float) else c.value
+            # the value as the check recorded it (its sheet's result): rounding it again here
+            # would contradict the sheet (6.355 shown as 6.36 beside the sheet's 6.35)
+            value = f"{c.value:g} {c.unit}".strip() if isinstance(c.value, float) else c.value
             out.append(Finding(
                 "AUD-CLAUSE-LIMIT", "Clause limit against the chosen mortar",
                 f"clause {n} of zone {zone.id} ({what}) states {c.limit.text if c.limit else c.title}, "

@@ -154,7 +154,14 @@ def stages() -> dict[str, tuple[float, float, str, str]]:
 
 
 def _c(kelvin: float) -> float:
-    return kelvin - ZERO_C
+    """°C of a temperature in K, to 1e-6 °C: the stages' edges come back as written
+    (900 °C, not the 900.0000000000001 of the round trip through kelvin)."""
+    return round(kelvin - ZERO_C, 6)
+
+
+# the symbol of each stage on the sheet, as the step's formula names it
+STAGE_SYMBOL = {"dehydroxylation": "T_{dehyd}", "calcite_decomposition": "T_{calc}",
+                "natural_cement_firing": "T_{NC}", "sintering": "T_{sint}"}
 
 
 @register("CHEM-FIRING", FIRING_TITLE, "binder", order=150)
@@ -177,7 +184,7 @@ def firing_check(binder, ctx) -> CheckResult | None:
                                         series.points if series else None)
     shown_peak = peak if peak is not None else max(k for _, k in series.points)
     stage_inputs = tuple(
-        Input(f"T_{{{key[:5]}}}", f"{st[key][2]} (from–to)",
+        Input(STAGE_SYMBOL[key], f"{st[key][2]} (from–to)",
               f"{_c(st[key][0]):g}–{_c(st[key][1]):g}", "°C",
               f"{STAGE_SOURCE} ({st[key][3] or 'common practice'})")
         for key in ("dehydroxylation", "calcite_decomposition", "natural_cement_firing",
@@ -185,7 +192,7 @@ def firing_check(binder, ctx) -> CheckResult | None:
     peak_src = (f"materials.yaml, binder {binder.id}, firing.peak" if peak is not None
                 else f"{series.file}, highest reading")
     steps = [Step("Peak temperature against the stages",
-                  r"T_{dehyd} \le T_{calc,end} \le T_{peak} < T_{sint}",
+                  r"T_{dehyd,from} \le T_{calc,to} \le T_{peak} < T_{sint,from}",
                   (Input("T_{peak}", "peak kiln temperature", round(_c(shown_peak), 1), "°C",
                          peak_src),) + stage_inputs,
                   rf"{_c(st['dehydroxylation'][0]):g} \le {_c(st['calcite_decomposition'][1]):g}"

@@ -224,6 +224,7 @@ def clay_check(analysis, ctx) -> CheckResult:
     aw = atomic_weights()
     clay = calcination.clay_fraction(ox, aw, "oxide_sum")
     residue = calcination.clay_fraction(ox, aw, "residue")
+    carb = calcination.carbonate_content(ox, aw)    # the residue's carbonates, shown on its step
     rng = calcination.clay_range_check(clay.fraction, low.value, high.value)
     cross = calcination.clay_range_check(residue.fraction, low.value, high.value)
     straddle = rng.inside != cross.inside     # the two estimates fall on both sides of an edge
@@ -238,8 +239,13 @@ def clay_check(analysis, ctx) -> CheckResult:
              rf"w_{{clay}} = {g('SiO2'):.2f} + {g('Al2O3'):.2f} + {g('Fe2O3'):.2f} + "
              rf"{water:.2f}", round(clay.fraction, 4), "%", "w_clay"),
         Step("Cross-check: non-carbonate residue", r"w_{res} = 100 - CaCO_3 - MgCO_3 - \bar{S}",
-             oxide_inputs(analysis, ox, (("CO2", "CO2"), ("S̄", "SO3"))),
-             rf"w_{{res}} = {residue.fraction:.2f}", round(residue.fraction, 4), "%", "w_res"))
+             (Input("CaCO_3", "calcite from the CO2 (CO2 to CaO first)", round(carb.caco3, 4),
+                    "%", f"CHEM-CO2/{analysis.id}"),
+              Input("MgCO_3", "magnesite from the rest of the CO2", round(carb.mgco3, 4), "%",
+                    f"CHEM-CO2/{analysis.id}"))
+             + oxide_inputs(analysis, ox, (("S̄", "SO3"),)),
+             rf"w_{{res}} = 100 - {carb.caco3:.2f} - {carb.mgco3:.2f} - {g('SO3'):.2f} = "
+             rf"{residue.fraction:.2f}", round(residue.fraction, 4), "%", "w_res"))
     binder = binder_of(analysis, ctx.project)
     if binder is not None and binder.type == "natural_cement":
         status = "pass" if rng.inside and not straddle else "attention"

@@ -235,7 +235,8 @@ def _moisture_one(pair, ctx):
     if d:
         sd = moisture.sd_value(mu_rep, d)
         steps.append(Step("Diffusion-equivalent air layer of the repair", r"s_d = \mu\,d",
-                          (Input("μ", "repair mortar μ", mu_rep, "", "materials.yaml"),
+                          (Input("μ", "repair mortar μ", mu_rep, "",
+                                 f"materials.yaml mortar_properties {pair.mix_id}"),
                            Input("d", "repair thickness", round(d * 1000, 3), "mm",
                                  "dossier.yaml compatibility.repair_thickness")),
                           rf"s_d = {mu_rep:g} \times {d:g} = {sd:.4f}", round(sd, 5), "m", "s_d"))

@@ -133,7 +133,7 @@ def _over_assignments(ox, aw) -> dict:
 
 
 def _range_step(rng: dict) -> Step:
-    inputs = tuple(Input(f"χ[{a}]", f"crystalline share, Al2O3/Fe2O3 {phases.ASSIGNMENTS[a]}",
+    inputs = tuple(Input(f"χ[{a}]", f"crystalline share with {phases.ASSIGNMENTS[a]}",
                          v["crystalline"], "%", f"estimate with assignment '{a}'")
                    for a, v in rng["by_assignment"].items())
     return Step("Crystalline share over the aluminate assignments",

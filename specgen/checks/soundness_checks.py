@@ -104,11 +104,14 @@ def _measured(binder, s, ctx) -> CheckResult:
                 r",\ ".join(rf"\text{{{dc.tex(w)}}}" for w in words[:5]), float(len(verdicts)),
                 "", "n")
     head = next((i for i in inputs if i.symbol in ("E", "E_a")), inputs[0])
+    # the limit shown is the one of the value shown: the autoclave's (%) when only it was run
+    lim_r, lim_w, lim_u = ((auto_r, "autoclave expansion", "%") if head.symbol == "E_a"
+                           else (exp_r, "expansion", "mm"))
     return CheckResult(code="DUR-SOUND", title=TITLE, subject=binder.id, subject_kind="binder",
                        status=status, value=head.value, unit=head.unit,
                        basis=tuple(dict.fromkeys(r.basis for r in used)), steps=(step,),
-                       limit=Limit("<=", high=exp_r.value, unit="mm", text=f"expansion ≤ "
-                                   f"{exp_r.value:g} mm", rule=exp_r.key),
+                       limit=Limit("<=", high=lim_r.value, unit=lim_u, text=f"{lim_w} ≤ "
+                                   f"{lim_r.value:g} {lim_u}", rule=lim_r.key),
                        message="; ".join(words), notes=tuple(notes),
                        quantities=tuple(dc.tests_quantity(ctx, binder.id, tests)))
 

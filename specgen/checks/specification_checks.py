@@ -232,7 +232,7 @@ def sampling_check(zone, ctx) -> CheckResult:
               Input("a", "wall area per set", s["a"][0], "m²", s["a"][1]),
               Input("p", "prisms per set and age", s["p"][0], "", s["p"][1]),
               Input("k", "test ages", ", ".join(f"{t / DAY:g}" for t, _ in ages) or "none",
-                    "d", ages[0][1] if ages else "none given")]
+                    "d", _age_sources(ages))]
     if zone.area:
         inputs.append(Input("A", "wall area", zone.area, "m²", f"dossier.yaml {zone.id}.area"))
     if by_day:
@@ -240,6 +240,17 @@ def sampling_check(zone, ctx) -> CheckResult:
                    Input("q", "placing rate", round(s["q"][0] * 3.6e6, 4), "L/h", s["q"][1]),
                    Input("T", "placing hours per day", s["T"][0] / 3600, "h", s["T"][1])]
     return _sampling_result(zone, n, total, s, ages, inputs, vol)
+
+
+def _age_sources(ages) -> str:
+    """Where the test ages come from: each source once, with the ages it gives when there is
+    more than one (an age a strength hold adds is not the dossier's requirement)."""
+    by_source: dict[str, list[str]] = {}
+    for t, src in ages:
+        by_source.setdefault(src, []).append(f"{t / DAY:g}")
+    if len(by_source) < 2:
+        return next(iter(by_source), "none given")
+    return "; ".join(f"{', '.join(d)} d: {src}" for src, d in by_source.items())
 
 
 def _sampling_inputs(zone, spec, rules) -> dict[str, tuple]:

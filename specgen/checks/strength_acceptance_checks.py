@@ -338,6 +338,8 @@ def _load_day(s: sc.Series, load_mpa: float, t, te, ctx) -> tuple[float | None, 
 
 def _wall_curve(s: sc.Series, t, te, ctx) -> dict:
     ok = te > 0
+    if not ok.any():     # a record at or below the Nurse-Saul datum: no age gained, no curve
+        return {"days": [], "value": [], "lower": []}
     b = si.bands(s.run.inference, te[ok] / DAY, ctx.rules["strength.confidence_level"].value,
                  math.inf)
     # a year of daily points per mix: rounded as Python floats (``tolist``), the same numbers
@@ -357,6 +359,8 @@ def _wall_text(wall: dict) -> str:
         + (" indicative" if v["indicative"] else "") for k, v in wall.items())
 
 
+#: the equivalent-age methods as a reader names them (the dossier.yaml keys stay inside)
+METHOD_NAMES = {"arrhenius": "Arrhenius", "nurse_saul": "Nurse-Saul"}
 WHERE = {"air": "air temperature, standing in for the temperature in the joint",
          "surface": "surface temperature of the wall", "joint": "temperature in the joint"}
 AIR_NOTE = ("the site record is of air temperature, a stand-in for the temperature in the joint: "
@@ -377,10 +381,10 @@ def _te_step(p, st: sc.Settings, t, te, te2) -> Step:
               Input("T_0", "Nurse-Saul datum", round(st.datum - 273.15, 2), "°C",
                     st.datum_source),
               Input("t_e'", f"equivalent age at {t[-1] / DAY:g} d by the other method "
-                    f"({'Nurse-Saul' if st.method == 'arrhenius' else 'Arrhenius'})",
+                    f"({METHOD_NAMES['nurse_saul' if st.method == 'arrhenius' else 'arrhenius']})",
                     round(te2[-1] / DAY, 3), "d", "ASTM C1074, for comparison"))
     formula = (r"t_e = \sum e^{-\frac{E}{R}\left(\frac{1}{T_a} - \frac{1}{T_r}\right)}\,\Delta t"
                if st.method == "arrhenius" else r"t_e = \frac{\sum (T_a - T_0)\,\Delta t}{T_r - T_0}")
-    return Step(f"Equivalent age in the wall ({st.method.replace('_', '-')}, ASTM C1074)",
+    return Step(f"Equivalent age in the wall ({METHOD_NAMES[st.method]}, ASTM C1074)",
                 formula, inputs, rf"t_e({t[-1] / DAY:g}\,\mathrm{{d}}) = {te[-1] / DAY:.2f}\,"
                 r"\mathrm{d}", round(te[-1] / DAY, 4), "d", "t_e")

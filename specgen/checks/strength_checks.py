@@ -369,8 +369,10 @@ def pred_step(s: sc.Series, iv, ctx, prefix: str = "", mean=None) -> Step:
         sub += rf";\ \text{{mean curve}}: [{mean.lower:.3f},\ {mean.upper:.3f}]"
     where = ("indicative: beyond the extrapolation limit" if iv.indicative else
              "extrapolated" if iv.age > inf.last_age * (1 + 1e-9) else "within the tested ages")
-    title = (f"{prefix}: t_e = {iv.age:.4g} d ({where}); interval for the {iv.kind}" if prefix
-             else f"{s.test} at {iv.age:g} d ({where}); interval for the {iv.kind}")
+    # "the mean curve", "the mean of the next set of 3 prisms", but "one batch" (no article)
+    kind = iv.kind if iv.kind == "one batch" else f"the {iv.kind}"
+    title = (f"{prefix}: t_e = {iv.age:.4g} d ({where}); interval for {kind}" if prefix
+             else f"{s.test} at {iv.age:g} d ({where}); interval for {kind}")
     return Step(title,
                 si.interval_formulas(inf)[1 if iv.kind != "mean curve" else 0],
                 tuple(inputs), sub, round(iv.value, 4), "MPa", "f̂")

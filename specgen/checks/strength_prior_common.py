@@ -58,7 +58,7 @@ def _key(types: list[str], binders) -> tuple[str, str]:
             k = cls.pop()
             return k, f"binder family natural hydraulic lime, declared {binders[0].declared_class}"
         return "nhl", "binder family natural hydraulic lime (no single declared class)"
-    if set(types) <= {"fl", "hl"}:
+    if types and set(types) <= {"fl", "hl"}:      # (the empty set is a subset too)
         return "formulated_lime", f"binder family {names}"
     if types == ["air_lime", "pozzolan"]:
         return "lime_pozzolan", "binder family hydrated (air) lime with pozzolan"

@@ -204,7 +204,7 @@ def _figure(env, mix, test: str, c: dict | None, rules, caption: str
         data.update(model="two-stage law with the family's prior", curve=c,
                     components={"aluminate": c["aluminate"], "silicate": c["silicate"]})
         wall = r.value(mix.id, "in_wall_curve")
-        if test == "compressive" and wall:
+        if test == "compressive" and wall and wall["days"]:     # none gained: no line
             data["wall"] = {"ages": wall["days"], "value": wall["value"]}
     return strength_age(data), caption, _strength_alt(data)
 
