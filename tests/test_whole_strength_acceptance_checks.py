@@ -371,8 +371,12 @@ def test_site_without_a_load_strength_states_the_wall_only(demo_checked):
     got = sac.site_check(ctx.project.mixes["M1"], ctx)
     assert (got.status, got.value, got.unit, got.basis) == ("info", None, "", (C1074,))
     assert "load strength" not in got.message
-    assert [q.name for q in got.quantities] == ["equivalent_age", "in_wall_curve",
-                                                "in_wall_strength"]
+    assert [(q.name, q.unit, q.label) for q in got.quantities] == [
+        ("equivalent_age", "d", "equivalent age at 20 °C in the wall"),
+        ("in_wall_curve", "MPa", "strength in the wall along the site record"),
+        ("in_wall_strength", "MPa", "predicted strength in the wall")]
+    # the wall's own strength: the interval for one batch (n = ∞), not for a set of prisms
+    assert all(r"\text{one batch}: [" in s.substituted for s in got.steps[1:])
     # at the reference temperature the wall's equivalent age is its age (a_T = 1)
     assert got.quantities[0].value["wall"] == {"7 d": 7.0, "28 d": 28.0, "90 d": 90.0,
                                                "365 d": 365.0}

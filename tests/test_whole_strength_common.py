@@ -170,7 +170,25 @@ def test_series_flags_implausible_values_with_their_row():
     plaus = {"low_mpa": 0.05, "high_mpa": 100.0}
     s = sc._series(("MX", "compressive"), rows, sc.settings(_project()), RULES, plaus,
                    _project())
-    assert len(s.implausible) == 1 and s.implausible[0].startswith("S2 (row 3): ")
+    assert s.implausible == ["S2 (row 3): 350 MPa is above the plausible 100 MPa; was it "
+                             "entered in psi or kPa under an MPa heading?"]
     assert s.t_fit.tolist() == [7 * 86400.0] * 3 and s.y_fit.tolist() == [2e6, 350e6, 2.1e6]
     assert s.last_age == 7 * 86400.0
     assert np.all(np.isfinite(s.t_fit))
+
+
+def test_the_analysis_is_made_once_per_run(demo_checked):
+    # the strength analysis of a check run is kept on its context: asked twice, the same
+    # object (not a second analysis)
+    import copy
+    from specgen.checks.rules import RuleBook
+    from specgen.checks.run import Context
+    project, _ = demo_checked
+    p = copy.copy(project)
+    p.strength = [_row(i, v) for i, v in enumerate((2.0, 2.1, 2.2), start=1)]
+    for r in p.strength:
+        r.mix = "M1"
+    ctx = Context(p, RuleBook())
+    first = sc.cached(ctx)
+    assert list(first) == [("M1", "compressive")] and sc.cached(ctx) is first
+    assert ctx.__dict__["_strength"] is first

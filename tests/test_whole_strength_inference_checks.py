@@ -141,7 +141,8 @@ def test_inference_sheet_of_the_demo_whole(demo_checked, code, test, mix):
     assert (sp.symbol, sp.name, sp.source, sp.value) == (
         "SS_pe", "pure-error sum of squares", "Σ (ln y_ij − ȳ_i)², replicates", round(ss_pe, 6))
     assert (npe.symbol, npe.value, npe.source) == ("ν_pe", nu_pe, "results − ages")
-    assert (alpha.symbol, alpha.value, alpha.source) == ("α", 0.05, "rule strength.lof_alpha")
+    assert (alpha.symbol, alpha.name, alpha.value, alpha.unit, alpha.source) == (
+        "α", "significance level", 0.05, "", "rule strength.lof_alpha")
     F_lof = (sl.value / nl.value) / (ss_pe / nu_pe)
     assert lof.result == pytest.approx(F_lof, rel=1e-3)
     p_lof = stats.f.sf(F_lof, nl.value, nu_pe)
@@ -187,6 +188,12 @@ def test_inference_sheet_of_the_demo_whole(demo_checked, code, test, mix):
         ROWS[mix], row["label"], False, 3, 90.0)
     assert rec["prior"] == {k: [*row[k]["range"], row[k]["source"]] for k, *_ in TERMS}
     assert rec["lack_of_fit"]["dof"] == [nl.value, nu_pe]
+    # the record's test figures are the sheet's: F, p and p with the batch scatter allowed
+    p_batch = float(lof.substituted.rsplit("p = ", 1)[1])
+    assert set(rec["lack_of_fit"]) == {"F", "p", "p_batch", "dof"}
+    assert rec["lack_of_fit"]["F"] == lof.result
+    assert rec["lack_of_fit"]["p"] == pytest.approx(p_lof, rel=2e-3, abs=1e-4)
+    assert rec["lack_of_fit"]["p_batch"] == pytest.approx(p_batch, rel=5e-3, abs=1e-4)
     curve = got.quantities[1].value[test]
     assert (curve["n"], curve["level"], curve["usable"], curve["indicative_from_d"]) == (
         3, 0.95, True, 270.0)                     # 3 × the last tested age (90 d)
@@ -194,6 +201,15 @@ def test_inference_sheet_of_the_demo_whole(demo_checked, code, test, mix):
                               for t, v, sd, n in curve["means"]]
     assert [m[0] for m in curve["means"]] == list(logs)
     assert len(curve["specimens"]) == sum(len(g) for g in logs.values())
+    # each specimen's residual against the law at the recorded posterior mode (5 decimals;
+    # the sheet's φ to 3 decimals would move f by up to F × 0.0005, 0.4 % at 1 d):
+    # 100 (y / f(t) − 1) %
+    mode = {k: v[0] for k, v in rec["posterior"].items()}
+    law = {"F": f_in.value, "phi": mode["early_fraction"], "tau_a": mode["tau_fast_d"],
+           "tau_s": mode["tau_slow_d"], "b": mode["shape_b"]}
+    assert [r[0] for r in curve["residuals_pct"]] == [a for a, _ in curve["specimens"]]
+    assert [r[1] for r in curve["residuals_pct"]] == pytest.approx(
+        [100 * (v / _law(law, a) - 1) for a, v in curve["specimens"]], abs=0.02)
 
 
 def _ctx(demo_checked, rows):
@@ -235,3 +251,83 @@ def test_a_later_age_far_weaker_is_held_with_the_reason(demo_checked):
     assert got.notes[-1].endswith(": check the specimens, their curing and the copying of the "
                                   "results, and retest; the record is not used to predict")
     assert got.quantities[1].value["compressive"]["usable"] is False
+
+
+def test_warm_cured_record_marks_indicative_ages_from_its_equivalent_age(demo_checked):
+    # prisms cured at 25 °C (ASTM C1074, Arrhenius, E = 33.5 kJ/mol at or above 20 °C: from
+    # memory, as content/data/maturity_defaults.yaml tags it): the last tested age in
+    # equivalent days is 90 · a_T, and predictions are indicative beyond 3 times it (rule
+    # strength.extrapolation_limit), shown to four decimals
+    from scipy import constants
+    project, _ = demo_checked
+    p = copy.copy(project)
+    p.strength = [NS(specimen=f"W-{a}-{k}", mix="M1", age=a * 86400.0, test="compressive",
+                     value=m * (1 + 0.01 * k) * 1e6, curing_temperature=298.15, row=2,
+                     file="lab/strength.csv")
+                  for a, m in ((1, 1.2), (3, 1.8), (7, 2.4), (28, 4.8), (90, 7.6))
+                  for k in (-1, 0, 1)]
+    ctx = Context(p, RuleBook(p.dossier.rule_overrides))
+    got = _inf("STR-INF-C")(p.mixes["M1"], ctx)
+    a_t = math.exp(-33500.0 / constants.R * (1 / 298.15 - 1 / 293.15))
+    curve = got.quantities[1].value["compressive"]
+    assert curve["indicative_from_d"] == round(3 * 90 * a_t, 4)
+    assert got.quantities[0].value["compressive"]["last_age_d"] == round(90 * a_t, 4)
+
+
+def test_a_record_no_law_follows_is_a_misfit_on_every_sheet(demo_checked):
+    # 0.3 MPa at 1 d, 4 MPa at 3 d, flat to 28 d, 12 at 90 d (±0.5 %): the law with the
+    # natural-cement prior misses measured means even with a set's interval, so STR-INF says
+    # so (attention) and no sheet predicts from it: STR-PRED, STR-MIN's untested ages,
+    # STR-MAX and STR-SITE are not assessed with the same reasons
+    from specgen.checks import strength_acceptance_checks as sac
+    rows = [("M1", a, m * (1 + 0.005 * k)) for a, m in ((1, 0.3), (3, 4.0), (7, 4.2),
+                                                       (28, 4.3), (90, 12.0)) for k in (-1, 0, 1)]
+    ctx = _ctx(demo_checked, rows)
+    mix = ctx.project.mixes["M1"]
+    got = _inf("STR-INF-C")(mix, ctx)
+    assert got.status == "attention"
+    misfit = [n for n in got.notes if n.startswith("misfit: ")]
+    assert [n.split(": ", 1)[1].split(" ")[0:2] for n in misfit] == [["lack", "of"],
+                                                                     ["the", "interval"]]
+    assert all(n.endswith("; the law is not used to predict") for n in misfit)
+    each = [n.removeprefix("misfit: ").removesuffix("; the law is not used to predict")
+            for n in misfit]
+    reasons = "; ".join(each)
+    assert got.message.endswith("; " + reasons)
+    assert got.quantities[1].value["compressive"]["usable"] is False
+    assert got.quantities[0].value["compressive"]["misfit"] == each
+    pred = _inf("STR-PRED-C")(mix, ctx)
+    assert (pred.status, pred.message) == ("not_assessed",
+                                           f"not assessed: no prediction: {reasons}")
+    mx = sac.maximum_check(mix, ctx)
+    assert mx.message == (f"not assessed: no prediction of the long-term strength ({reasons})")
+    site = sac.site_check(mix, ctx)
+    assert site.message == f"not assessed: no strength prediction ({reasons})"
+    mn = sac.minimum_check(mix, ctx)      # 28 and 90 d are tested: measured; none predicted
+    assert [s.title.split(" (n")[0] for s in mn.steps] == [
+        "measured at 28 d against the minimum", "measured at 90 d against the minimum"]
+
+
+def test_a_binder_family_without_a_row_is_read_with_the_widest_prior(demo_checked):
+    # M1's binder taken as a Portland cement: no row of strength_priors.yaml, so the widest
+    # prior, and the sheet says so (attention)
+    project, _ = demo_checked
+    p = copy.copy(project)
+    p.binders = {k: (b.model_copy(update={"type": "portland", "declared_class": ""})
+                     if k == "NC1" else b) for k, b in project.binders.items()}
+    p.strength = [r for r in project.strength if r.mix == "M1"]
+    ctx = Context(p, RuleBook(p.dossier.rule_overrides))
+    got = _inf("STR-INF-C")(p.mixes["M1"], ctx)
+    widest = _priors()["widest"]
+    assert got.status == "attention"
+    assert got.notes[:3] == (
+        "binder family Portland cement: no prior for this binder family in "
+        "content/data/strength_priors.yaml, so the widest prior is used (the band is as wide "
+        "as the families allow)",
+        "no prior for this binder family: the widest prior is used",
+        "prior ranges are common practice (content/data/strength_priors.yaml), not a published "
+        f"series: {widest['label']}")
+    lo, hi = widest["gain_365_28"]["range"]
+    assert f"(prior {lo:g}–{hi:g})" in got.message
+    rec = got.quantities[0].value["compressive"]
+    assert (rec["family"], rec["widest"]) == ("widest", True)

@@ -36,15 +36,8 @@ def assemble(front, parts: list, stamps, target, *, foreign=None,
     for page in pdf.pages:
         _drop(page.obj, "/Annots")
     tree = StructureMerge(pdf)
-    sources = []  # kept open until written: qpdf reads the parts' streams when it writes
     for n, part in enumerate(parts, start=1):
-        src = pikepdf.Pdf.open(io.BytesIO(part.pdf))
-        sources.append(src)
-        for page in src.pages:
-            _drop(page.obj, "/Annots")  # made again below, across parts
-        start = len(pdf.pages)
-        pdf.pages.extend(src.pages)
-        tree.append(src, [pdf.pages[i] for i in range(start, len(pdf.pages))], f"p{n}-")
+        _append(pdf, tree, part, f"p{n}-")   # the part's document is let go on return
     offsets, n = [], 0
     for doc in docs:
         offsets.append(n)
@@ -52,16 +45,15 @@ def assemble(front, parts: list, stamps, target, *, foreign=None,
     if len(stamps.kinds) != n or len(pdf.pages) != n:
         raise RuntimeError(f"assembly: {len(pdf.pages)} pages, {len(stamps.kinds)} stamps, "
                            f"{n} expected")
-    stamped, opened = 0, {}
+    stamped, opened = 0, {}   # the stamps' documents (one specimen, or the laid stamps)
     resources: dict = {}   # a source page's resources, copied once (shared by its stamps)
     for page, (content, source, src) in zip(pdf.pages, stamps.pages()):
-        opened[id(src)] = src   # kept open until written, as the parts are
+        opened[id(src)] = src   # kept while the resources are keyed by its id
         key = (id(src), source.objgen)
         if key not in resources:
             resources[key] = _copied(pdf, source.obj.Resources, src)
         _lay_over(pdf, page, content, source.mediabox, resources[key])
         stamped += 1
-    sources += opened.values()
     if stamped != n:
         raise RuntimeError(f"assembly: {stamped} stamps laid over {n} pages")
     tree.finish()
@@ -72,9 +64,28 @@ def assemble(front, parts: list, stamps, target, *, foreign=None,
     _outline(pdf, docs, offsets)
     # the identifier stays the front matter's (the revision's), so a build is reproducible
     pdf.save(target, deterministic_id=True, compress_streams=True)
-    for src in sources:
+    for src in opened.values():
         src.close()
     pdf.close()
+
+
+def _append(pdf, tree, part, prefix: str) -> None:
+    """Copy ``part``'s pages and structure elements into ``pdf``; its document is opened
+    here and let go when this returns.
+
+    qpdf copies a page's objects into ``pdf`` at once but reads a copied stream's data only
+    when it writes, from the part's bytes (it keeps the part's input for that, not its
+    parsed document).  A part's document holds its cross-reference table and every object
+    read (about 1.6 MiB each for a calculation sheet's part): kept open until the volume
+    is written, they made the assembly's memory grow with every part at once
+    (DEVELOPERS.md, "How the assembly holds memory")."""
+    import pikepdf
+    src = pikepdf.Pdf.open(io.BytesIO(part.pdf))
+    for page in src.pages:
+        _drop(page.obj, "/Annots")  # made again across parts (:func:`_links`)
+    start = len(pdf.pages)
+    pdf.pages.extend(src.pages)
+    tree.append(src, [pdf.pages[i] for i in range(start, len(pdf.pages))], prefix)
 
 
 def _drop(obj, key: str) -> None:
