@@ -13,11 +13,15 @@ run without its trailing spaces fits whole, it is laid out whole; the following 
 element then starts the next line, as in a browser.  Only that case is changed; every
 other result of ``split_first_line`` is WeasyPrint's own.
 
-Import ``weasyprint`` from here wherever the print is laid out.
+Importing this module also installs :mod:`specgen.publish.weasyfast` (the SVG drawing's
+memos, byte for byte WeasyPrint's output).  Import ``weasyprint`` from here wherever the
+print is laid out.
 """
 from __future__ import annotations
 
 import weasyprint
+
+from specgen.publish import weasyfast as _weasyfast
 from weasyprint.layout import inline as _inline
 from weasyprint.text import line_break as _line_break
 
@@ -45,5 +49,7 @@ def split_first_line(text, style, context, max_width, justification_spacing,
 # the line layout's own reference only (``split_text_box``); the preferred widths of
 # tables and floats keep WeasyPrint's function as it is
 _inline.split_first_line = split_first_line
+# the SVG drawing's memos (same bytes, drawn once per process): weasyfast.py
+_weasyfast.install()
 
 __all__ = ["weasyprint", "split_first_line"]
