@@ -319,6 +319,16 @@ def test_grading_against_an_envelope_on_another_sieve_series(demo_checked, monke
         "passing 4 mm (read between sieves), limits 85–99 %", "interpolated", "%")
     assert step.result == pytest.approx(four.value - 99, abs=6e-3)
     assert c.status == "attention"
+    # 99.754 % shown to the fewest decimals that keep it outside the 99 % limit without
+    # reading as "all passed": "99.8", not the "100" of whole percent
+    assert c.message.endswith("outside the envelope at 4 mm (99.8 % passing, limits 85–99 %)")
+    # 8 and 5.6 mm lie above S2's largest sieve, 4.75 mm, which all of it passed (demo
+    # lab/sieves.csv): 100 % there is not a measurement on those sieves, and the sheet says so
+    assert [(i.symbol, i.name, i.value) for i in step.inputs[:2]] == [
+        ("P(8)", "passing 8 mm (above the analysis' largest sieve, 4.75 mm, which all passed), "
+                 "limits 100–100 %", 100.0),
+        ("P(5.6)", "passing 5.6 mm (above the analysis' largest sieve, 4.75 mm, which all "
+                   "passed), limits 95–100 %", 100.0)]
     assert c.notes[1] == (
         "the envelope is written on the EN 933-2 / ISO 565 basic set of test sieves and the "
         "sand was sieved on the ASTM E11 test sieves: the passing on each envelope sieve is read "
