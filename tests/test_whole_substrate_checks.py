@@ -224,7 +224,7 @@ def test_dur_carb_of_z1_m3_whole_by_least_squares_through_the_origin(demo_checke
     assert time.substituted == rf"t = (20 / {k:.3f})^2 = {t:.0f}\ \mathrm{{d}}"
     assert c.message == (f"NH35 (NHL) hardens largely by carbonation: until the front has "
                          f"passed through the repair the hydraulic strength model does not "
-                         f"describe it: K = {k:.2f} mm/√d, so 20 mm carbonate in about {t:.0f} "
+                         f"describe it: K = {k:.3f} mm/√d, so 20 mm carbonate in about {t:.0f} "
                          f"days (≈ {t / 30.4:.0f} months); protect it from frost and saturation "
                          f"over that time")
     q, = c.quantities
