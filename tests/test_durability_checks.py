@@ -527,9 +527,10 @@ def test_render_bond_only_where_render_is_specified(demo):
 def test_carbonation_front_of_the_lime_mix(demo):
     r = by_check(demo)
     c = r[("DUR-CARB", "Z1/M3")]
-    # by hand (tests/science/test_exposure.py): K = 0.845 mm/√d; 20 mm joint depth → 560 d
+    # by hand (tests/science/test_exposure.py): K = 0.845 mm/√d, shown to the sheet's three
+    # decimals in the message too (it read 0.84 beside the sheet's 0.845); 20 mm → 560 d
     assert c.status == "info" and c.value == pytest.approx(560.2, abs=0.1)
-    assert "K = 0.84 mm/√d, so 20 mm carbonate in about 560 days" in c.message
+    assert "K = 0.845 mm/√d, so 20 mm carbonate in about 560 days" in c.message
     assert ("DUR-CARB", "Z1/M2") not in r          # natural cement: not lime-rich
 
 

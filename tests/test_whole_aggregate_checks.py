@@ -171,6 +171,8 @@ def test_binder_aggregate_of_hm1_whole(demo_checked):
                          f"{1 / net:.2g} net of its loss on ignition (21.5 %), 1 : {1 / vol:.2g} "
                          "by volume; mix M1 1 : 1.5 by volume (B:A 0.667)")
     assert c.notes == ("fines dissolved from a calcareous aggregate would be counted as binder",)
+    assert c.basis == (Basis("common practice", note="acid digestion of a lime or natural-cement "
+                             "mortar with a siliceous aggregate"),)
     src = "materials.yaml HM1.acid_digestion"
     lab = "analysis HM1-B (Northstead Materials Laboratory, report NML-4402 rev. A)"
     by_mass, loss_free, by_vol = c.steps
@@ -220,7 +222,7 @@ def _pair(demo_checked, sands=(("S2", 1.0),), historic="HM1", mix=True):
 
 
 def test_grading_within_the_envelope_passes_and_a_tight_rule_does_not(demo_checked):
-    """S2 alone (demo sieves) lies inside ASTM C144 on every sieve it has; against HM1-agg the
+    """COMP-GRAD: S2 alone (demo sieves) lies inside ASTM C144 on every sieve it has; against HM1-agg the
     differences 0, 4, 4, 3, 5, 5 give RMS √(91/6) = 3.894 % ≤ 10 %: pass.  With the rule
     overridden to 3.5 %: attention."""
     from specgen.checks.aggregate_checks import _grading_one
@@ -241,6 +243,7 @@ def test_grading_within_the_envelope_passes_and_a_tight_rule_does_not(demo_check
 
 
 def test_grading_and_blend_not_assessed(demo_checked):
+    """COMP-GRAD and COMP-BLEND without a sand, a sieve analysis or a historic mortar."""
     from specgen.checks.aggregate_checks import _blend_one, _grading_one
     ctx = _ctx(demo_checked)
     nosand = _grading_one(_pair(demo_checked, sands=()), ctx)
@@ -256,7 +259,7 @@ def test_grading_and_blend_not_assessed(demo_checked):
 
 
 def test_binder_aggregate_without_loss_or_densities(demo_checked):
-    """A digestion with no binder analysis and no bulk densities: by mass only, each omission
+    """COMP-BA of a digestion with no binder analysis and no bulk densities: by mass only, each omission
     said; 40 g with 30 g residue: 10/30 = 0.3333, 1 : 3 by mass."""
     from specgen.checks.aggregate_checks import _ba_one
     dig = NS(sample_mass=0.040, residue_mass=0.030, binder_bulk_density=None,
@@ -292,7 +295,7 @@ def test_binder_aggregate_without_loss_or_densities(demo_checked):
 
 
 def test_grading_against_an_envelope_on_another_sieve_series(demo_checked, monkeypatch):
-    """The demo's sands were sieved on the ASTM E11 series; the EN 13139 0/4 envelope is
+    """COMP-GRAD: the demo's sands were sieved on the ASTM E11 series; the EN 13139 0/4 envelope is
     written on the EN 933-2 sieves (8, 5.6, 4 mm and 63 µm): the passing on those sieves is
     read between the two nearest sieves, linear in log aperture — the formula on the sheet a
     proper LaTeX fraction, the series named once."""
@@ -316,6 +319,16 @@ def test_grading_against_an_envelope_on_another_sieve_series(demo_checked, monke
         "passing 4 mm (read between sieves), limits 85–99 %", "interpolated", "%")
     assert step.result == pytest.approx(four.value - 99, abs=6e-3)
     assert c.status == "attention"
+    # 99.754 % shown to the fewest decimals that keep it outside the 99 % limit without
+    # reading as "all passed": "99.8", not the "100" of whole percent
+    assert c.message.endswith("outside the envelope at 4 mm (99.8 % passing, limits 85–99 %)")
+    # 8 and 5.6 mm lie above S2's largest sieve, 4.75 mm, which all of it passed (demo
+    # lab/sieves.csv): 100 % there is not a measurement on those sieves, and the sheet says so
+    assert [(i.symbol, i.name, i.value) for i in step.inputs[:2]] == [
+        ("P(8)", "passing 8 mm (above the analysis' largest sieve, 4.75 mm, which all passed), "
+                 "limits 100–100 %", 100.0),
+        ("P(5.6)", "passing 5.6 mm (above the analysis' largest sieve, 4.75 mm, which all "
+                   "passed), limits 95–100 %", 100.0)]
     assert c.notes[1] == (
         "the envelope is written on the EN 933-2 / ISO 565 basic set of test sieves and the "
         "sand was sieved on the ASTM E11 test sieves: the passing on each envelope sieve is read "

@@ -303,3 +303,12 @@ def test_aud_cite_and_words_on_results_made_here(demo_checked):
     assert found[1].fix == ("say it in words a reader knows (the project's own text), or report "
                             "the wording of a check's message as a fault of specgen.")
     assert _findings(results, "AUD-WORDS") == []              # the demo's text: none
+
+
+def test_aud_words_flags_a_key_of_the_specification_file(demo_checked):
+    """AUD-WORDS knows the keys of specification.yaml too ('per_working_day', a field of its
+    site_tests and of no other file)."""
+    project, results = demo_checked
+    worded = dataclasses.replace(_result(), message="set per_working_day")
+    found = au.words_rule(AuditContext(project, _copy(results, checks=[worded])))
+    assert [f.subject for f in found] == ["per_working_day"]

@@ -159,6 +159,8 @@ def test_firing_record_of_nc1_whole(demo_checked):
 def test_no_raw_stone_and_no_co2_are_not_assessed(demo_checked):
     res = by_check(demo_checked[1])
     fired, burn = res[("CHEM-FIRED", "NH35")], res[("CHEM-BURN", "NH35")]
+    assert (fired.title, burn.title) == ("Fired composition against the raw stone",
+                                         "Residual carbonate (degree of burning)")
     assert (fired.status, fired.message, fired.basis) == (
         "not_assessed", "not assessed: no raw-stone analysis names this binder as its material; "
         "the balance needs both", (FIRED_BASIS,))
@@ -251,3 +253,28 @@ def test_firing_branches(demo_checked):
     # highest reading 1193.15 K = 920 °C; held 1 h at or above 800 °C
     assert (s.value, s.steps[0].inputs[0].source) == (920.0, "lab/f9.csv, highest reading")
     assert (s.steps[1].result, s.steps[1].inputs[1].value) == (1.0, "4 rows")
+
+
+def test_fired_oxide_missing_from_one_side_and_an_overridden_rule(demo_checked):
+    """CHEM-FIRED: MgO 2.0 in the raw stone, none reported in the binder: the binder's MgO is
+    taken as 0 on its step (0 − 2.0 = −2.0 %: attention); the rule overridden to 2.5 % with a
+    justification shows it on the limit (|−2.0| ≤ 2.5: pass).  CHEM-BURN: CO2 1.23456 % is
+    kept to 4 decimals (1.2346) in results.json."""
+    from specgen.checks.calcination_checks import burn_check, fired_check
+    from specgen.checks.rules import RuleBook
+    from specgen.checks.run import Context
+    raw = _an("R9", "raw_stone", {"SiO2": 20.0, "CaO": 60.0, "MgO": 2.0})
+    b = _an("A9", "binder", {"SiO2": 20.0, "CaO": 60.0})
+    c = _run(fired_check, [raw, b])
+    assert (c.status, c.value) == ("attention", -2.0)
+    mg = next(s for s in c.steps if s.symbol == "ΔMgO")
+    assert mg.substituted == (r"\Delta = \frac{100 \times 0.00}{100 - 0.00} - "
+                              r"\frac{100 \times 2.00}{100 - 0.00}")
+    assert mg.inputs[2] == Input("x_b", "MgO in the binder", 0.0, "%", "analysis A9")
+    ov = NS(rule="calcination.fired_difference", value=2.5, justification="two beds, said so")
+    project = NS(analyses={"R9": raw, "A9": b}, binders={}, firing={})
+    o = fired_check(NS(id="B9", type="natural_cement", analysis="A9", firing=None),
+                    Context(project, RuleBook([ov])))
+    assert (o.status, o.limit.high, o.limit.overridden) == ("pass", 2.5, "two beds, said so")
+    co2 = _run(burn_check, [_an("A9", "binder", {"SiO2": 20.0, "CaO": 60.0, "CO2": 1.23456})])
+    assert (co2.value, co2.quantities[0].value) == (1.2346, 1.2346)

@@ -192,8 +192,8 @@ def test_clay_fraction_of_the_raw_stone_whole(demo_checked):
     assert res.inputs[1] == Input("MgCO_3", "magnesite from the rest of the CO2", 0.0, "%",
                                   "CHEM-CO2/BS-1")
     assert res.result == pytest.approx(100 - calcite - 0.6, abs=2e-3)
-    assert [(q.name, q.value, q.label) for q in c.quantities] == [
-        ("clay_fraction", 26.3, "clay fraction")]
+    assert [(q.name, q.value, q.unit, q.label) for q in c.quantities] == [
+        ("clay_fraction", 26.3, "%", "clay fraction")]
 
 
 # ---------------------------------------------------------------- hand-made analyses
@@ -252,6 +252,7 @@ def test_ratios_without_fe2o3_and_lsf_of_a_clinker(demo_checked):
 
 
 def test_raw_stone_checks_without_co2_or_not_a_raw_stone(demo_checked):
+    """CHEM-CO2 and CHEM-CLAY: no CO2 is not assessed; a binder's analysis gets no result."""
     from specgen.checks import chemistry_checks as cc
     ox = {"SiO2": 15.0, "CaO": 40.0, "Al2O3": 5.0, "Fe2O3": 3.0, "LOI": 33.0}
     co2 = _run(cc.co2_check, _an(ox))
@@ -267,7 +268,7 @@ def test_raw_stone_checks_without_co2_or_not_a_raw_stone(demo_checked):
 
 
 def test_carbonate_gap_within_tolerance_and_magnesite(demo_checked):
-    """CaO 30.0, MgO 5.0, CO2 28.0 %: capacity 30·0.784796 + 5·1.091926 = 23.5439 + 5.4596 =
+    """CHEM-CO2 of CaO 30.0, MgO 5.0, CO2 28.0 %: capacity 30·0.784796 + 5·1.091926 = 23.5439 + 5.4596 =
     29.0035; gap 1.0035 ≤ 2.5: pass.  CO2 to CaO 23.5439, the rest 4.4561 to MgO (< 5.4596):
     carbonates 23.5439·2.274217 + 4.4561·1.915812 = 53.5439 + 8.5371 = 62.0810 %."""
     from specgen.checks import chemistry_checks as cc
@@ -289,7 +290,7 @@ def test_carbonate_gap_within_tolerance_and_magnesite(demo_checked):
 
 
 def test_clay_of_a_stone_inside_and_of_another_binder(demo_checked):
-    """SiO2 14.0, Al2O3 5.0, Fe2O3 2.0, CaO 42.0, CO2 33.0, H2O 2.0 reported: clay =
+    """CHEM-CLAY of SiO2 14.0, Al2O3 5.0, Fe2O3 2.0, CaO 42.0, CO2 33.0, H2O 2.0: clay =
     14 + 5 + 2 + 2 = 23.0 %.  CaO can carry 42.0·44.009/56.077 = 32.961 % CO2 < 33.0, so the
     calcite is 42.0·100.086/56.077 = 74.961 % (the last 0.039 % CO2 finds no MgO); residue
     100 − 74.961 = 25.04 %: both inside 20–30 %: pass for a natural cement, info for an NHL's
@@ -311,3 +312,15 @@ def test_clay_of_a_stone_inside_and_of_another_binder(demo_checked):
     # clay 17 % < 20 %, residue 24.95 % inside: straddles: attention, residue "lies in"
     assert low.status == "attention"
     assert f"the non-carbonate residue ({residue:.1f} %) lies in the range" in low.message
+
+
+def test_lime_saturation_factor_without_silicates_is_not_assessed(demo_checked):
+    """CHEM-LSF of CaO 60 % with SiO2, Al2O3 and Fe2O3 all 0: the denominator
+    2.8·0 + 1.18·0 + 0.65·0 is zero: the science refuses it before any division, so the
+    result is not assessed and says what is missing (never a non-finite factor)."""
+    from specgen.checks import chemistry_checks as cc
+    c = _run(cc.lime_saturation_check, _an({"CaO": 60.0, "SiO2": 0.0, "Al2O3": 0.0,
+                                           "Fe2O3": 0.0}, kind="binder"))
+    assert (c.status, c.basis) == ("not_assessed", (TAYLOR,))
+    assert c.message == ("not assessed: lime saturation factor needs SiO2, Al2O3 or Fe2O3 above "
+                         "zero")

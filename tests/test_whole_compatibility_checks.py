@@ -310,3 +310,22 @@ def test_comp_move_of_z1_m2_beyond_the_tolerance_and_missing(demo_checked):
     at = type(pair)(**{**pair.__dict__,
                        "props": pair.props.model_copy(update={"thermal_expansion": 9e-6})})
     assert cx._movement_one(at, ctx).status == "pass"
+
+
+def test_comp_moist_capillary_by_regression_when_two_points_are_missing(demo_checked):
+    """M2's readings of lab/capillary.csv without the 10 min one: EN 1015-18's two-point
+    coefficient cannot be made, so the least-squares slope of W against √t is used (said in
+    the source); slope by scipy.stats.linregress on t in seconds, × √60 for min^0.5."""
+    from scipy.stats import linregress
+    project, _ = demo_checked
+    rows = [r for r in project.capillary if not (r.sample == "M2" and abs(r.time - 600) < 1)]
+    sw = type("P", (), {"capillary": rows, "dossier": project.dossier})()
+    c, src, step = cx.capillary(None, "M2", sw)
+    kept = [(t, w) for t, w in ((5, 0.78), (15, 1.27), (30, 1.74), (60, 2.43), (90, 2.94))]
+    fit = linregress([math.sqrt(60 * t) for t, _ in kept], [w for _, w in kept])
+    assert c == pytest.approx(fit.slope * math.sqrt(60), rel=1e-9)
+    assert step.result == round(c, 4)
+    assert (step.title, step.unit, step.symbol) == (
+        "Capillary coefficient of M2: least-squares slope against √t", "kg/(m²·min^0.5)", "C")
+    assert src.startswith("fitted to lab/capillary.csv (5 readings); EN 1015-18 two-point "
+                          "coefficient not possible: ")

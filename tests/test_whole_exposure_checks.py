@@ -118,7 +118,7 @@ def test_frost_of_an_untested_lime_mix_is_held_whole(demo_checked):
     and a 28-d mean under 2.5 MPa: hold, the test named and the indicators that weigh
     against it."""
     c = by_check(demo_checked[1])[("DUR-FROST", "Z1/M3")]
-    assert (c.status, c.value, c.unit, c.limit) == ("hold", None, "", None)
+    assert (c.title, c.status, c.value, c.unit, c.limit) == (FROST, "hold", None, "", None)
     assert c.message.startswith(
         "MX4 with MX3.1 asks for a declared freeze–thaw resistance; M3 has none: commission "
         + method(50) + " — the indicators weigh against the mix: lime class 3.5 < 5; 28-d "
@@ -239,7 +239,7 @@ def test_frost_untested_moderate_deemed_to_satisfy(demo_checked):
     attention, deemed to satisfy; the same in the severe regime (sea) is held."""
     mix = _mix(demo_checked, air=0.04)
     c = _frost(demo_checked, _pair(mix), exposure=MODERATE, f28=1.0)
-    assert c.status == "attention"
+    assert (c.title, c.status, c.value, c.unit) == (FROST, "attention", None, "")
     assert c.message == ("MX3.1: no freeze–thaw test, but binder class, measured air content and "
                          "28-d strength all meet the minima of common practice for moderate "
                          "frost: deemed to satisfy; " + method(25) + " would confirm it")

@@ -249,3 +249,20 @@ def test_sound_unmeasured_branches(demo_checked):
     assert lime.status == "attention"
     assert lime.message == ("nothing measured; no risk indicated by the analysis or the "
                             "firing — commission " + METHOD)
+
+
+def test_sound_natural_cement_over_the_so3_limit(demo_checked):
+    """DUR-SOUND of a natural cement whose analysis gives SO3 3.5 % > 3 % (ASTM C10/C10M
+    max 3.0 %): a risk named, and the sheet's relation reads ">"."""
+    from specgen.checks.rules import RuleBook
+    from specgen.checks.run import Context
+    from specgen.checks.soundness_checks import soundness_check
+    p = demo_checked[0]
+    an = NS(id="A9", kind="binder", material="B9", laboratory="", lumped_split={},
+            mass_percent={"SiO2": 22.0, "Al2O3": 5.0, "Fe2O3": 3.0, "CaO": 46.0, "MgO": 1.0,
+                          "SO3": 3.5})
+    project = NS(analyses={"A9": an}, binders=p.binders, revision=p.revision, dossier=p.dossier)
+    c = soundness_check(_binder(analysis="A9"), Context(project, RuleBook()))
+    assert c.status == "hold"
+    assert c.steps[0].substituted.endswith(r",\ SO_3 = 3.5 > 3\,\%")
+    assert "SO3 3.5 % > 3 % (ASTM C10/C10M)" in c.message

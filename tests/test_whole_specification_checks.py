@@ -356,3 +356,15 @@ def test_spec_accept_not_assessed_without_a_selection(demo_checked):
     assert (c.code, c.status, c.value, c.message, c.title) == (
         "SPEC-ACCEPT", "not_assessed", None, "not assessed: no mortar selected for zone Z9",
         "Site acceptance criteria for the chosen mortar")
+
+
+def test_spec_sampling_placing_rate_shown_to_four_decimals(demo_checked):
+    """SPEC-SAMPLING of Z1 at 8.123456 L/h (dossier.yaml, fractional): q shown as 8.1235 L/h;
+    days ⌈852.35 / (8.123456 × 6)⌉ by hand."""
+    project, results = demo_checked
+    z1 = _zone(project, "Z1", placing_rate=8.123456e-3 / 3600)
+    c = sc.sampling_check(z1, _ctx(demo_checked))
+    q = next(i for i in c.steps[0].inputs if i.symbol == "q")
+    assert (q.value, q.unit) == (8.1235, "L/h")
+    v = results.quantities["Z1"]["mortar_volume"].value
+    assert c.quantities[0].value["working_days"] == math.ceil(v * 1000 / (8.123456 * 6))

@@ -115,10 +115,11 @@ def test_spec_hold_of_the_demo_whole(demo_checked):
     assert (c.title, c.status, c.value, c.unit, c.subject_kind, c.basis, c.notes) == (
         "Hold points", "info", 4, "", "project", (HOLDS,), ())
     step, = c.steps
-    assert (step.title, step.formula, step.substituted, step.result, step.symbol) == (
+    assert (step.title, step.formula, step.substituted, step.result, step.unit, step.symbol) == (
         "Hold points and their state in each revision",
         r"\mathrm{open} \to \mathrm{released\ (once,\ on\ evidence)}",
-        r"\mathrm{released}: 1,\ \mathrm{open}: 4", 4, "n_open")
+        r"\mathrm{released}: 1,\ \mathrm{open}: 4", 4, "", "n_open")
+    assert c.quantities[0].unit == ""
     assert step.inputs == tuple(
         Input(f"HP{i + 1}", h.what, "R3 released" if i == 0 else "R3 open", "",
               f"specification.yaml hold_points[{i}]") for i, h in enumerate(holds))

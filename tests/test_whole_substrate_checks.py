@@ -224,7 +224,7 @@ def test_dur_carb_of_z1_m3_whole_by_least_squares_through_the_origin(demo_checke
     assert time.substituted == rf"t = (20 / {k:.3f})^2 = {t:.0f}\ \mathrm{{d}}"
     assert c.message == (f"NH35 (NHL) hardens largely by carbonation: until the front has "
                          f"passed through the repair the hydraulic strength model does not "
-                         f"describe it: K = {k:.2f} mm/√d, so 20 mm carbonate in about {t:.0f} "
+                         f"describe it: K = {k:.3f} mm/√d, so 20 mm carbonate in about {t:.0f} "
                          f"days (≈ {t / 30.4:.0f} months); protect it from frost and saturation "
                          f"over that time")
     q, = c.quantities
@@ -255,3 +255,17 @@ def test_dur_carb_depths_of_render_and_bedding_and_nothing_measured(demo_checked
                          "(EN 14630 method)")
     assert sb._carb_one(_pair(project, "Z3", "M2"), _ctx(demo_checked)) is None
     assert ("DUR-CARB", "Z3/M2") not in {(r.code, r.subject) for r in results.checks}
+
+
+def test_dur_bond_asked_for_a_render_zone_without_units(demo_checked):
+    """DUR-BOND of Z2/M2 with no units named and no bond measured: the test asked names 'the
+    background' (nothing to name it by)."""
+    project, _ = demo_checked
+    pair = _pair(project, "Z2", "M2")
+    bare = _pair(project, "Z2", "M2", unit=None,
+                 props=pair.props.model_copy(update={"bond_strength": None}))
+    c = sb._bond_one(bare, _ctx(demo_checked))
+    asked = {q.name: q.value for q in c.quantities}["tests_asked"]
+    assert {"test": "render bond (pull-off)", "method": "EN 1015-12 pull-off on the trial panel "
+            "at 28 d, at least five discs, recording where each broke",
+            "why": "render on the background in zone Z2", "check": "DUR-BOND"} in asked

@@ -132,7 +132,7 @@ def _tsa(demo_checked, pair=None, **kw):
 
 
 def test_thaumasite_cold_edge_is_strict(demo_checked):
-    """15 °C exactly (288.15 K) is not below 15 °C: cold absent, pass; 14.9 °C is cold."""
+    """DUR-TSA: 15 °C exactly (288.15 K) is not below 15 °C: cold absent, pass; 14.9 °C is cold."""
     c = _tsa(demo_checked, zone_q=WET, salt={"HM1": {"sulfate": "medium"}}, lowest=288.15)
     assert (c.status, c.value) == ("pass", "cold absent")
     assert c.message == ("no thaumasite risk: cold absent (15.0 °C ≥ 15 °C)")
@@ -146,7 +146,7 @@ def test_thaumasite_cold_edge_is_strict(demo_checked):
 
 
 def test_thaumasite_cold_from_the_site_record(demo_checked):
-    """No lowest winter temperature: the coldest day of the site record (here 276.15 K, 3.0 °C,
+    """DUR-TSA with no lowest winter temperature: the coldest day of the site record (here 276.15 K, 3.0 °C,
     the least of the points), or its constant temperature."""
     site = NS(source="lab/site.csv", constant=None, points=((0.0, 280.15), (86400.0, 276.15)))
     c = _tsa(demo_checked, zone_q=WET, salt={"HM1": {"sulfate": "high"}}, lowest=None,
@@ -185,7 +185,7 @@ def test_thaumasite_unknowns_hold_and_name_the_measurement(demo_checked):
 
 
 def test_thaumasite_absent_conditions(demo_checked):
-    """Dry wetting; low fabric sulfate with no sea; air lime only (no C-S-H, but it carbonates);
+    """DUR-TSA: dry wetting; low fabric sulfate with no sea; air lime only (no C-S-H, but it carbonates);
     de-icing salt is not sea water."""
     dry = {"wetting": "dry", "designation": "MX1", "sea": ["de-icing salts"]}
     c = _tsa(demo_checked, _pair(demo_checked, binders=["L9"]), zone_q=dry,
@@ -239,7 +239,7 @@ def test_ettringite_branches(demo_checked):
 
 def test_sulfate_verdicts_held_in_an_issued_revision_only_on_a_recalled_table(demo_checked,
                                                                           monkeypatch):
-    """content/data/salt_load.yaml's tables carry no memory tag: an issued revision keeps a
+    """DUR-TSA: content/data/salt_load.yaml's tables carry no memory tag: an issued revision keeps a
     fail on a high fabric class; were the table's edges recalled (tag memory, patched here),
     the verdict is held and the table named."""
     from specgen.checks import salt_checks
@@ -260,3 +260,16 @@ def test_sulfate_verdicts_held_in_an_issued_revision_only_on_a_recalled_table(de
                                      "sea": ["splash"]}, salt={"HM1": {"sulfate": "low"}},
                issued=True)
     assert _tsa_one(_pair(demo_checked), low).status == "fail"
+
+
+def test_thaumasite_of_medium_fabric_sulfate_without_sea_is_not_severe(demo_checked):
+    """DUR-TSA and DUR-ETT: medium fabric sulfate, no sea water, severe wetting: every
+    condition met, but neither high sulfate nor sea water with severe wetting: attention, and
+    no sea note on the ettringite result."""
+    from specgen.checks.sulfate_checks import _ett_one
+    severe = {"wetting": "severe", "designation": "MX3.2", "sea": []}
+    c = _tsa(demo_checked, zone_q=severe, salt={"HM1": {"sulfate": "medium"}})
+    assert c.status == "attention"
+    e = _ett_one(_pair(demo_checked), _ctx(demo_checked, zone_q=severe,
+                                           salt={"HM1": {"sulfate": "medium"}}))
+    assert (e.status, e.notes) == ("attention", ())

@@ -5,6 +5,7 @@ beside it; the branches the demo never takes on projects and mixes changed in me
 from __future__ import annotations
 
 import csv
+import dataclasses
 import datetime as dt
 from pathlib import Path
 
@@ -382,3 +383,51 @@ def test_parts_densities_given_or_defaulted(demo_checked):
     assert wc.water_density().value == 998.2
     assert wc.air_of(m1, RuleBook(project.dossier.rule_overrides)) == wc.Sourced(
         0.045, "mixes.yaml M1.air_content (measured)")
+
+
+def test_workable_life_source_and_the_initial_set_cap(demo_checked):
+    """works_common.workable_life: M1's 30 min measured, with its source named (mixes.yaml
+    workable_life_source); without one, '(laboratory)'; a measured 60 min life above M1's
+    initial set of 45 min (mixes.yaml setting) is capped at 45 min, said with both figures."""
+    from specgen.checks import works_common as wc
+    project, _ = demo_checked
+    rules = RuleBook(project.dossier.rule_overrides)
+    m1 = next(m for m in (project.mixes.values() if isinstance(project.mixes, dict)
+                          else project.mixes) if m.id == "M1")
+    life, measured = wc.workable_life(project, m1, rules)
+    assert (life, measured) == (wc.Sourced(1800.0, "mixes.yaml M1.workable_life, EN 1015-9 "
+                                           "(Northstead Materials Laboratory, NML-4460)"), True)
+    bare = m1.model_copy(update={"workable_life_source": None})
+    assert wc.workable_life(project, bare, rules)[0].source == (
+        "mixes.yaml M1.workable_life, EN 1015-9 (laboratory)")
+    long = m1.model_copy(update={"workable_life": 3600.0})
+    assert wc.workable_life(project, long, rules) == (wc.Sourced(
+        2700.0, "mixes.yaml M1.setting.initial (initial set 45 min caps the 60 min of mixes.yaml "
+        "M1.workable_life, EN 1015-9 (Northstead Materials Laboratory, NML-4460))"), True)
+    binders = dict(project.binders)
+    binders["NC1"] = binders["NC1"].model_copy(update={"particle_density": 3000.0})
+    given = wc.parts_of(_Swapped(project, binders=binders), m1)[0]
+    assert (given.particle.value, given.particle.source) == (
+        3000.0, "materials.yaml NC1.particle_density")
+
+
+def test_works_qty_wastage_shown_to_three_decimals_and_weather_days_to_two(demo_checked):
+    """A wastage of 12.3456 % (dossier.yaml, fractional) is shown as 12.346 % (3 decimals);
+    a curing period of 4.25 d (a rule changed in memory) is kept as 4.25 d, not 4."""
+    project, _ = demo_checked
+    z3 = next(z for z in project.dossier.zones if z.id == "Z3")
+    c = wks.works_quantities_check(z3.model_copy(update={"wastage": 0.123456}), _ctx(demo_checked))
+    assert c.steps[0].inputs[-1] == Input("w", "wastage allowance", 12.346, "%",
+                                          "dossier.yaml Z3.wastage")
+    ctx = _ctx(demo_checked)
+    book = ctx.rules
+    rule = book["works.curing_days"]
+
+    class _Rules:
+        def __getitem__(self, key):
+            return dataclasses.replace(rule, value=4.25) if key == "works.curing_days" \
+                else book[key]
+    ctx.rules = _Rules()
+    w = wks.weather_check(project, ctx)
+    assert w.quantities[0].value["curing_days"] == 4.25
+    assert w.steps[0].inputs[2].value == 4.25

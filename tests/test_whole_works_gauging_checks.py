@@ -208,3 +208,21 @@ def test_site_gauge_smallest_measure_too_big_no_yield_and_no_zone(demo_checked):
         "Site gauging size")
     none = _Swapped(project, dossier=project.dossier.model_copy(update={"zones": []}))
     assert wg.gauging_check(m2, _ctx(demo_checked, none)) == []
+
+
+def test_site_gauge_rate_and_admixture_shown_to_their_decimals(demo_checked):
+    """SITE-GAUGE of M1 with Z1 at 8.123456 L/h (shown to 4 decimals: 8.1235 L/h) and its
+    retarder at 0.1234 % of the binder: 0.85 kg × 0.001234 = 1.0489 g, kept to 2 decimals
+    (1.05 g) on the card."""
+    project, _ = demo_checked
+    zones = [z.model_copy(update={"placing_rate": 8.123456e-3 / 3600}) if z.id == "Z1" else z
+             for z in project.dossier.zones]
+    sw = _Swapped(project, dossier=project.dossier.model_copy(update={"zones": zones}))
+    m1 = next(m for m in (project.mixes.values() if isinstance(project.mixes, dict)
+                          else project.mixes) if m.id == "M1")
+    adm = [m1.admixtures[0].model_copy(update={"dose": 0.001234})]
+    c = wg.gauging_check(m1.model_copy(update={"admixtures": adm}), _ctx(demo_checked, sw))
+    assert c.code == "SITE-GAUGE"
+    assert c.steps[0].inputs[2] == Input("q_Z1", "placing rate, zone Z1", 8.1235, "L/h",
+                                         "dossier.yaml Z1.placing_rate")
+    assert c.quantities[2].value["admixture_g"] == {"citric acid solution": 1.05}

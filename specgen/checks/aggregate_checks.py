@@ -48,11 +48,32 @@ def _series_name(key: str) -> str:
     return name if name.endswith("sieves") else f"{name} sieves"
 
 
+def _how_read(g: gr.Grading, sieve: float, between: bool) -> str:
+    """How the passing on an envelope sieve was had: on a sieve of the analysis it was
+    measured; above its largest sieve, all of the sample passed that one (100 %)."""
+    if between:
+        return "read between sieves"
+    if gr.match_sieve(sieve, g.sieves) is None:
+        return f"above the analysis' largest sieve, {g.sieves[0] * 1000:g} mm, which all passed"
+    return "measured"
+
+
+def _outside_pct(p: float, lo: float, hi: float) -> str:
+    """A passing outside its limits, in % to the fewest decimals (0 to 3) that still show it
+    outside them, and never "100" or "0" for a share that is not all or nothing: 99.75 %
+    against at most 99 % reads "99.8", not "100" (all passed) or "99" (on the limit)."""
+    for d in range(4):
+        shown = round(100 * p, d)
+        whole = (shown == 100 and p < 1) or (shown == 0 and p > 0)
+        if (shown < 100 * lo or shown > 100 * hi) and not whole:
+            return f"{shown:.{d}f}"
+    return f"{100 * p:.3f}"
+
+
 def _envelope_step(g: gr.Grading, cmp: gr.EnvelopeComparison, env: dict) -> Step:
     """The passing on the envelope's own sieves, read between the analysis' sieves where the
     two series differ (linear in the logarithm of the aperture)."""
-    inputs = tuple(Input(f"P({s * 1000:g})", f"passing {s * 1000:g} mm "
-                         + ("(read between sieves)" if i else "(measured)")
+    inputs = tuple(Input(f"P({s * 1000:g})", f"passing {s * 1000:g} mm ({_how_read(g, s, i)})"
                          + f", limits {100 * lo:g}–{100 * hi:g} %", round(100 * p, 2), "%",
                          "interpolated" if i else "lab/sieves.csv")
                    for s, p, lo, hi, i in zip(cmp.sieves, cmp.passing, cmp.low, cmp.high,
@@ -202,7 +223,7 @@ def _grading_one(pair, ctx):
         notes.append(f"the historic aggregate was sieved on the {_series_name(hist.series)}"
                      ": its passing is read on the repair sand's sieves by the same "
                      "interpolation")
-    out = [f"{s * 1000:g} mm ({100 * pp:.0f} % passing, limits {100 * lo:g}–{100 * hi:g} %)"
+    out = [f"{s * 1000:g} mm ({_outside_pct(pp, lo, hi)} % passing, limits {100 * lo:g}–{100 * hi:g} %)"
            for s, pp, lo, hi, d in zip(cmp.sieves, cmp.passing, cmp.low, cmp.high, cmp.outside)
            if d > 1e-9]
     statuses.append("pass" if not out else "attention")

@@ -202,7 +202,7 @@ def _carb_fit(pair, reads, depth, basis, lead) -> CheckResult:
                   rf"t = ({depth[0] * 1e3:g} / {k_show:.3f})^2 = {t / DAY:.0f}\ \mathrm{{d}}",
                   round(t / DAY, 1), "d", "t")]
     return cc.result("DUR-CARB", CARB, pair, "info", round(t / DAY, 1), "d", [basis],
-                     f"{lead}: K = {k_show:.2f} mm/√d, so {depth[0] * 1e3:g} mm carbonate in "
+                     f"{lead}: K = {k_show:.3f} mm/√d, so {depth[0] * 1e3:g} mm carbonate in "
                      f"about {t / DAY:.0f} days (≈ {t / DAY / 30.4:.0f} months); protect it from "
                      "frost and saturation over that time", steps=steps,
                      quantities=[Quantity("carbonation_front", {
