@@ -1,5 +1,5 @@
 """The print's memos around WeasyPrint (``specgen.publish.weasyfast``: SVG paths drawn once per
-process, lengths parsed once; ``pdf_parts._stylesheet``: the print CSS parsed once per
+process, lengths parsed once; ``weasyfix.stylesheet``: the print CSS parsed once per
 process) write the very bytes WeasyPrint writes without them.  The reference is the
 reference library itself: WeasyPrint's own functions, put back by ``weasyfast.bypassed``."""
 from __future__ import annotations
@@ -8,7 +8,7 @@ from types import SimpleNamespace
 
 import pytest
 
-from specgen.publish import pdf_parts, weasyfast
+from specgen.publish import pdf_parts, weasyfast, weasyfix
 from specgen.publish.pdf import PDF_OPTIONS
 from specgen.publish.pdf_parts import BASE, print_document
 
@@ -88,11 +88,11 @@ def test_lengths_are_parsed_as_weasyprint_parses_them(fresh):
 
 
 def test_the_print_css_is_parsed_once_per_process_and_prints_the_same(fresh, monkeypatch):
-    monkeypatch.setattr(pdf_parts, "_SHEETS", {})
+    monkeypatch.setattr(weasyfix, "_SHEETS", {})
     first = _printed()                       # the sheet parsed
-    sheet = pdf_parts._SHEETS[CSS]
+    sheet = weasyfix._SHEETS[CSS]
     second = _printed()                      # the same sheet object used again
-    assert pdf_parts._SHEETS == {CSS: sheet} and second == first
+    assert weasyfix._SHEETS == {CSS: sheet} and second == first
     with weasyfast.bypassed():
         from specgen.publish.weasyfix import weasyprint
         alone = weasyprint.HTML(string=HTML, base_url=BASE, url_fetcher=pdf_parts._fetcher(
@@ -102,12 +102,12 @@ def test_the_print_css_is_parsed_once_per_process_and_prints_the_same(fresh, mon
 
 def test_one_font_configuration_per_process_prints_the_same(fresh, monkeypatch):
     from specgen.publish.weasyfix import weasyprint
-    monkeypatch.setattr(pdf_parts, "_FONTS", [])
+    monkeypatch.setattr(weasyfix, "_FONTS", [])
     text = ("<html lang='en'><body><h1>Mortar for the north pier</h1><p><b>Bold</b>, "
             "<i>italic</i> and <code>monospace</code> text: 1.5 N/mm² at 28 d.</p></body></html>")
     shared = [print_document(page, CSS, PAGESET, **PDF_OPTIONS).pdf for page in (HTML, text)]
-    config = pdf_parts._FONTS[0][1]
-    assert pdf_parts._fonts() is config          # kept: the same object for every part
+    config = weasyfix._FONTS[0][1]
+    assert weasyfix.fonts() is config          # kept: the same object for every part
     # WeasyPrint's default, a font configuration of its own for each document
     alone = [weasyprint.HTML(string=page, base_url=BASE, url_fetcher=pdf_parts._fetcher(
         PAGESET)).write_pdf(stylesheets=[weasyprint.CSS(string=CSS)], **PDF_OPTIONS)

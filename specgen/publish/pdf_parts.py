@@ -66,6 +66,7 @@ def print_document(html: str, css: str, pageset, **options) -> Printed:
     """Lay out and draw one document; ``options`` go to WeasyPrint (as its ``write_pdf``)."""
     import time
 
+    from specgen.publish import weasyfix
     from specgen.publish.weasyfix import weasyprint
     started = time.process_time()
 
@@ -74,7 +75,7 @@ def print_document(html: str, css: str, pageset, **options) -> Printed:
             weasyprint.Attachment(string=data, name=name, description=name, created=when,
                                   modified=when) for name, data, when in options["attachments"]])
     doc = weasyprint.HTML(string=html, base_url=BASE, url_fetcher=_fetcher(pageset)).render(
-        stylesheets=[_stylesheet(css)], font_config=_fonts(), **options)
+        stylesheets=[weasyfix.stylesheet(css)], font_config=weasyfix.fonts(), **options)
     out = Printed(pdf=b"")
     for number, page in enumerate(doc.pages):
         height = page.height
@@ -92,40 +93,6 @@ def print_document(html: str, css: str, pageset, **options) -> Printed:
     out.pdf = _quietly(doc.write_pdf, **options)
     out.seconds = time.process_time() - started
     return out
-
-
-_SHEETS: dict = {}   # CSS text → its parsed WeasyPrint stylesheet, in this process
-SHEETS_KEPT = 4      # the print's sheets: parts, stamps (a page size each)
-
-
-def _stylesheet(css: str):
-    """The print CSS parsed once per process, not once per part (about 0.02 CPU s each).
-
-    WeasyPrint only reads a stylesheet while it lays a document out (its selector matcher
-    and page rules), as it does its own user-agent sheets, shared by every document."""
-    from specgen.publish.weasyfix import weasyprint
-    sheet = _SHEETS.get(css)
-    if sheet is None:
-        if len(_SHEETS) >= SHEETS_KEPT:
-            _SHEETS.clear()
-        sheet = _SHEETS[css] = weasyprint.CSS(string=css)
-    return sheet
-
-
-_FONTS: list = []    # (process id, its WeasyPrint font configuration)
-
-
-def _fonts():
-    """One font configuration per process, not one per part: WeasyPrint otherwise loads
-    Fontconfig's configuration and font list, and Pango's font map, for every document.
-    The print uses no web fonts (no ``@font-face``), so the configuration only ever holds
-    the system's fonts, the same for every part.  Made again in a forked process (Fontconfig
-    and Pango state is not shared across a fork)."""
-    from specgen.publish.weasyfix import weasyprint
-    if not _FONTS or _FONTS[0][0] != os.getpid():
-        from weasyprint.text.fonts import FontConfiguration
-        _FONTS[:] = [(os.getpid(), FontConfiguration())]
-    return _FONTS[0][1]
 
 
 def _quietly(write, **options) -> bytes:
