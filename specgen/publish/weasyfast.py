@@ -97,11 +97,12 @@ def bypassed():
 def install() -> None:
     """Put the two memos in WeasyPrint's SVG drawing (once per process)."""
     global _original_path
-    import importlib
     if _original_path is not None:
         return
-    svg = importlib.import_module("weasyprint.svg")
-    utils = importlib.import_module("weasyprint.svg.utils")
+    import weasyprint.svg as svg
+    import weasyprint.svg.defs
+    import weasyprint.svg.text
+    import weasyprint.svg.utils as utils
     _original_path = svg.TAGS["path"]
     original_size = utils.size
     sizes: dict = {}
@@ -118,9 +119,7 @@ def install() -> None:
                 sizes.clear()
             sizes[key] = found
         return found
-    for name in ("weasyprint.svg", "weasyprint.svg.utils", "weasyprint.svg.defs",
-                 "weasyprint.svg.text"):
-        module = importlib.import_module(name)
+    for module in (svg, utils, weasyprint.svg.defs, weasyprint.svg.text):
         if getattr(module, "size", None) is original_size:
             _replaced.append((module, "size", original_size, size))
     _replaced.append((_Tags(svg.TAGS), "path", _original_path, path))
