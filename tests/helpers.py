@@ -7,6 +7,29 @@ from specgen.build import check
 from specgen.errors import InputErrors
 
 
+class Swapped:
+    """A project with some attributes replaced, everything else read through (a hand-made
+    case built on the demo without copying or checking it again)."""
+
+    def __init__(self, project, **swap):
+        self._project = project
+        self.__dict__.update(swap)
+
+    def __getattr__(self, name):
+        return getattr(self._project, name)
+
+
+def checked_context(demo_checked, project=None):
+    """The checks' context of the session's checked demo (``demo_checked``): its rule
+    overrides, quantities and results, with ``project`` (e.g. a :class:`Swapped`) in place
+    of the demo where given."""
+    from specgen.checks.rules import RuleBook
+    from specgen.checks.run import Context
+    p, results = demo_checked
+    return Context(project or p, RuleBook(p.dossier.rule_overrides),
+                   quantities=results.quantities, results=results.checks)
+
+
 def by_check(results) -> dict:
     """Check results keyed by (code, subject)."""
     return {(c.code, c.subject): c for c in results.checks}

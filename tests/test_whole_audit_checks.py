@@ -13,21 +13,12 @@ from types import SimpleNamespace
 from specgen.checks import audit_checks as au
 from specgen.checks.result import Basis, CheckResult, Finding, Limit, Quantity
 from specgen.checks.run import AuditContext, Previous
-from tests.helpers import line_of
+from tests.helpers import Swapped, line_of
 
 DEMO = Path(__file__).resolve().parent.parent / "demo_project"
 LIMIT_FIX = ("justify the choice against this check and name it under covers (the clause then "
              "says so), or choose a mortar that meets the limit, or change the limit with a "
              "justified rule override.")
-
-
-class _Swapped:
-    def __init__(self, project, **swap):
-        self._project = project
-        self.__dict__.update(swap)
-
-    def __getattr__(self, name):
-        return getattr(self._project, name)
 
 
 def _findings(results, code):
@@ -140,7 +131,7 @@ def test_aud_comment_none_without_changes_or_when_answered(demo_checked):
     project, results = demo_checked
     assert au.comment_rule(AuditContext(project, _copy(results, changes=None))) == []
     answered = [c.model_copy(update={"response": "see NML-4502"}) for c in project.comments]
-    sw = _Swapped(project, comments=answered)
+    sw = Swapped(project, comments=answered)
     assert au.comment_rule(AuditContext(sw, _copy(results))) == []
 
 
@@ -158,7 +149,7 @@ def test_aud_desc_facts_and_a_refuted_claim(demo_checked):
     project, results = demo_checked
     prev = _prev(results, project, **{"lab/sieves.csv": "0" * 64})
     text = ("No new laboratory results. No changes. Selections unchanged.")
-    sw = _Swapped(project, revision=project.revision.model_copy(update={"description": text}))
+    sw = Swapped(project, revision=project.revision.model_copy(update={"description": text}))
     r = _copy(results)
     found = au.description_rule(AuditContext(sw, r, prev))
     assert r.facts == [
@@ -188,7 +179,7 @@ def test_aud_desc_without_a_previous_revision_and_unrefuted(demo_checked):
     r = _copy(results)
     assert au.description_rule(AuditContext(project, r, None)) == []
     assert r.facts == ["No earlier issued revision: there is nothing to compare with."]
-    sw = _Swapped(project, revision=project.revision.model_copy(
+    sw = Swapped(project, revision=project.revision.model_copy(
         update={"description": "Inputs unchanged; nothing has changed."}))
     r = _copy(results)
     assert au.description_rule(AuditContext(sw, r, _prev(results, project))) == []
@@ -260,7 +251,7 @@ def test_aud_decide_names_each_uncovered_fail(demo_checked):
     assert all(results.check(*k.split("/", 1)).status == "fail" for k in fails)
     before = {"checks": [{"code": "DUR-TSA", "subject": "Z2/M2", "status": "fail"}]}
     prev = Previous("R2", "2026-11-16", "", before, {})
-    ctx = AuditContext(_Swapped(project, specification=fake), _copy(results, quantities=q), prev)
+    ctx = AuditContext(Swapped(project, specification=fake), _copy(results, quantities=q), prev)
     f, = au.decision_rule(ctx)
     titles = {k: results.check(*k.split("/", 1)).title for k in fails}
     names = "; ".join(f"{k} ({titles[k]}" + ("" if k == "DUR-TSA/Z2/M2" else ", new since R2")

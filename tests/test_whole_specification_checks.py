@@ -10,8 +10,7 @@ import pytest
 
 from specgen.checks import specification_checks as sc
 from specgen.checks.result import Basis, Input
-from specgen.checks.rules import RuleBook
-from specgen.checks.run import Context
+from tests.helpers import Swapped, checked_context
 
 SPEC_RULE = "rule specification.{} (common practice — {})"
 AREA_NOTE = "sampling by area of work done, with at least one set per day's work"
@@ -25,22 +24,6 @@ SAMPLING = Basis("common practice", note="sampling rule of specification.yaml si
                  "content/rules/specification.yaml")
 COST = Basis("project requirement", note="specification.yaml unit_prices; mortar volume from "
              "WORKS-QTY")
-
-
-def _ctx(demo_checked):
-    project, results = demo_checked
-    return Context(project, RuleBook(project.dossier.rule_overrides),
-                   quantities=results.quantities, results=results.checks)
-
-
-class _Swapped:
-    """The demo project with its specification replaced (everything else read through)."""
-
-    def __init__(self, project, specification):
-        self._project, self.specification = project, specification
-
-    def __getattr__(self, name):
-        return getattr(self._project, name)
 
 
 def _zone(project, zid, **update):
@@ -81,7 +64,7 @@ def test_spec_cost_not_assessed_without_area_or_volume(demo_checked):
     """Z3 has no area (dossier.yaml): not assessed, said why; a zone without WORKS-QTY's
     volume (an id with no quantities) says that instead."""
     project, _ = demo_checked
-    ctx = _ctx(demo_checked)
+    ctx = checked_context(demo_checked)
     z3 = sc.cost_check(_zone(project, "Z3"), ctx)
     assert [(c.subject, c.status, c.value, c.unit, c.message, c.basis) for c in z3] == [
         ("Z3/M2", "not_assessed", None, "", "not assessed: no wall area for the zone", (COST,)),
@@ -95,12 +78,12 @@ def test_spec_cost_of_a_fractional_price_shown_to_two_decimals(demo_checked):
     """A price of 1234.5 GBP per 0.5 m³ for M1 on Z1: c = 1234.5 / 0.5 × V / 240, shown to
     2 decimals in the value and the message; the per-quantity Q shown as 0.5 m³."""
     project, results = demo_checked
-    ctx = _ctx(demo_checked)
+    ctx = checked_context(demo_checked)
     spec = project.specification
     prices = [spec.doc.unit_prices[0].model_copy(update={"price": 1234.5, "per": 0.5})]
     doc = spec.doc.model_copy(update={"unit_prices": prices, "currency": ""})
     fake = type(spec)(**{**spec.__dict__, "doc": doc})
-    ctx.project = _Swapped(project, fake)
+    ctx.project = Swapped(project, specification=fake)
     c, = sc.cost_check(_zone(project, "Z1"), ctx)
     v = results.quantities["Z1"]["mortar_volume"].value
     cost = 1234.5 / 0.5 * v / 240.0
@@ -158,14 +141,14 @@ def test_spec_select_whole_of_each_demo_zone(demo_checked):
 
 def _with_spec(demo_checked, selections=None, drop=False):
     project, _ = demo_checked
-    ctx = _ctx(demo_checked)
+    ctx = checked_context(demo_checked)
     spec = project.specification
     if drop:
         fake = None
     else:
         fake = type(spec)(**{**spec.__dict__,
                              "doc": spec.doc.model_copy(update={"selections": selections})})
-    ctx.project = _Swapped(project, fake)
+    ctx.project = Swapped(project, specification=fake)
     return ctx, fake
 
 
@@ -276,12 +259,12 @@ def test_spec_sampling_minimum_governs_and_not_assessed(demo_checked):
     1 by area; with min_sets 2 (the project's) the minimum governs: 'the minimum'.  With no
     area and no day count, not assessed."""
     project, _ = demo_checked
-    ctx = _ctx(demo_checked)
+    ctx = checked_context(demo_checked)
     spec = project.specification
     tests = spec.doc.site_tests.model_copy(update={"per_working_day": False, "min_sets": 2,
                                                    "test_ages": [28 * 86400.0, 7.5 * 86400.0]})
     fake = type(spec)(**{**spec.__dict__, "doc": spec.doc.model_copy(update={"site_tests": tests})})
-    ctx.project = _Swapped(project, fake)
+    ctx.project = Swapped(project, specification=fake)
     c = sc.sampling_check(_zone(project, "Z1", area=30.0, id="Z1"), ctx)
     step = c.steps[0]
     assert (c.value, c.message) == (2, "2 set(s) of 3 prisms per test age (1 by area): 18 prisms")
@@ -352,7 +335,7 @@ def test_spec_accept_rows_of_a_fractional_share_and_no_requirement():
 def test_spec_accept_not_assessed_without_a_selection(demo_checked):
     """A zone with no selected mix recorded (an id the checks never saw): not assessed."""
     project, _ = demo_checked
-    c = sc.acceptance_check(_zone(project, "Z1", id="Z9"), _ctx(demo_checked))
+    c = sc.acceptance_check(_zone(project, "Z1", id="Z9"), checked_context(demo_checked))
     assert (c.code, c.status, c.value, c.message, c.title) == (
         "SPEC-ACCEPT", "not_assessed", None, "not assessed: no mortar selected for zone Z9",
         "Site acceptance criteria for the chosen mortar")
@@ -363,7 +346,7 @@ def test_spec_sampling_placing_rate_shown_to_four_decimals(demo_checked):
     days ⌈852.35 / (8.123456 × 6)⌉ by hand."""
     project, results = demo_checked
     z1 = _zone(project, "Z1", placing_rate=8.123456e-3 / 3600)
-    c = sc.sampling_check(z1, _ctx(demo_checked))
+    c = sc.sampling_check(z1, checked_context(demo_checked))
     q = next(i for i in c.steps[0].inputs if i.symbol == "q")
     assert (q.value, q.unit) == (8.1235, "L/h")
     v = results.quantities["Z1"]["mortar_volume"].value

@@ -10,25 +10,18 @@ from specgen.checks.result import Basis, Input
 from specgen.checks.rules import RuleBook
 from specgen.checks.run import Context
 from specgen.project.specification import EarlierState
+from tests.helpers import Swapped
 
 PANELS = Basis("common practice", note="trial panels are judged by eye, dry, in daylight, before "
                "the works proceed")
 HOLDS = Basis("project requirement", note="specification.yaml hold_points")
 
 
-class _Swapped:
-    def __init__(self, project, specification):
-        self._project, self.specification = project, specification
-
-    def __getattr__(self, name):
-        return getattr(self._project, name)
-
-
 def _ctx(demo_checked, spec=None, drop=False):
     project, results = demo_checked
     p = project
     if spec is not None or drop:
-        p = _Swapped(project, None if drop else spec)
+        p = Swapped(project, specification=None if drop else spec)
     return Context(p, RuleBook(project.dossier.rule_overrides), quantities=results.quantities,
                    results=results.checks), p
 

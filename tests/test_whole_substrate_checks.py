@@ -11,8 +11,7 @@ import pytest
 from specgen.checks import compatibility_common as cc
 from specgen.checks import substrate_checks as sb
 from specgen.checks.result import Basis, Input
-from specgen.checks.rules import RuleBook
-from specgen.checks.run import Context
+from tests.helpers import checked_context
 
 IRA_HIGH = Input(
     "IRA_high", "initial rate of absorption above which units are of high suction and are "
@@ -25,12 +24,6 @@ THIRSTY = ("a thirsty background draws the water out of the mortar before it can
 BOND_NOTE = ("EN 998-1 asks for a declared value and the fracture pattern, not a minimum; about "
              "0.1 MPa is usual for lime-based renders that stay on the wall")
 DAMP = "units of high suction: damp the background evenly before placing, and again between coats"
-
-
-def _ctx(demo_checked):
-    project, results = demo_checked
-    return Context(project, RuleBook(project.dossier.rule_overrides),
-                   quantities=results.quantities, results=results.checks)
 
 
 def _pair(project, zone_id, mix, **swap):
@@ -86,7 +79,7 @@ def test_dur_retain_by_the_capillary_coefficient_edges_and_hold(demo_checked):
     durability.capillary_high_suction: high); WR exactly 85 % passes (≥); 84.99 % fails; no
     WR at all: hold with the test asked; no suction known at all: not assessed."""
     project, _ = demo_checked
-    ctx = _ctx(demo_checked)
+    ctx = checked_context(demo_checked)
     pair = _pair(project, "Z2", "M2")
     unit = pair.unit.model_copy(update={"initial_rate_of_absorption": None})
     at = _pair(project, "Z2", "M2", unit=unit,
@@ -173,7 +166,7 @@ def test_dur_bond_on_each_fracture_and_the_edge(demo_checked, bond, failure, sta
     pair = _pair(project, "Z2", "M2")
     p = pair.props.model_copy(update={"bond_strength": bond, "bond_failure": failure,
                                       "source": None})
-    c = sb._bond_one(_pair(project, "Z2", "M2", props=p), _ctx(demo_checked))
+    c = sb._bond_one(_pair(project, "Z2", "M2", props=p), checked_context(demo_checked))
     assert (c.code, c.status, c.message) == ("DUR-BOND", status, tail)
     assert c.value == round(bond / 1e6, 4)
     assert c.steps[0].inputs[0].source == "materials.yaml mortar_properties M2 (laboratory)"
@@ -184,13 +177,13 @@ def test_dur_bond_not_measured_is_held_and_not_a_render_zone(demo_checked):
     project, _ = demo_checked
     pair = _pair(project, "Z2", "M2")
     p = pair.props.model_copy(update={"bond_strength": None})
-    c = sb._bond_one(_pair(project, "Z2", "M2", props=p), _ctx(demo_checked))
+    c = sb._bond_one(_pair(project, "Z2", "M2", props=p), checked_context(demo_checked))
     assert (c.status, c.value, c.title) == ("hold", None, "Render bond to the background")
     assert c.message == ("render bond of M2 not measured: commission the EN 1015-12 pull-off "
                          "on the trial panel at 28 d, at least five discs, recording where each "
                          "broke")
     z1 = next(z for z in project.dossier.zones if z.id == "Z1")
-    assert sb.bond_check(z1, _ctx(demo_checked)) == []
+    assert sb.bond_check(z1, checked_context(demo_checked)) == []
 
 
 def test_dur_carb_of_z1_m3_whole_by_least_squares_through_the_origin(demo_checked):
@@ -242,18 +235,18 @@ def test_dur_carb_depths_of_render_and_bedding_and_nothing_measured(demo_checked
     assert z3.steps[1].inputs[0] == Input("d", "depth of the repair", 25.0, "mm",
                                           "dossier.yaml compatibility.repair_thickness")
     z2 = next(z for z in project.dossier.zones if z.id == "Z2")
-    assert sb._depth(z2, _ctx(demo_checked)) == (pytest.approx(0.020),
+    assert sb._depth(z2, checked_context(demo_checked)) == (pytest.approx(0.020),
                                                  "dossier.yaml Z2.coats (total)")
     pair = _pair(project, "Z3", "M3")
     bare = _pair(project, "Z3", "M3", props=pair.props.model_copy(update={"carbonation": []}))
-    c = sb._carb_one(bare, _ctx(demo_checked))
+    c = sb._carb_one(bare, checked_context(demo_checked))
     assert (c.code, c.status, c.value) == ("DUR-CARB", "attention", None)
     assert c.message == ("NH35 (NHL) hardens largely by carbonation: until the front has passed "
                          "through the repair the hydraulic strength model does not describe "
                          "it; no carbonation depths measured — measure by phenolphthalein on "
                          "fresh breaks of prisms cured beside the work, at 28 and 90 d "
                          "(EN 14630 method)")
-    assert sb._carb_one(_pair(project, "Z3", "M2"), _ctx(demo_checked)) is None
+    assert sb._carb_one(_pair(project, "Z3", "M2"), checked_context(demo_checked)) is None
     assert ("DUR-CARB", "Z3/M2") not in {(r.code, r.subject) for r in results.checks}
 
 
@@ -264,7 +257,7 @@ def test_dur_bond_asked_for_a_render_zone_without_units(demo_checked):
     pair = _pair(project, "Z2", "M2")
     bare = _pair(project, "Z2", "M2", unit=None,
                  props=pair.props.model_copy(update={"bond_strength": None}))
-    c = sb._bond_one(bare, _ctx(demo_checked))
+    c = sb._bond_one(bare, checked_context(demo_checked))
     asked = {q.name: q.value for q in c.quantities}["tests_asked"]
     assert {"test": "render bond (pull-off)", "method": "EN 1015-12 pull-off on the trial panel "
             "at 28 d, at least five discs, recording where each broke",

@@ -14,7 +14,7 @@ import pytest
 from specgen.checks import works_checks as wks
 from specgen.checks.result import Basis, Input
 from specgen.checks.rules import RuleBook
-from specgen.checks.run import Context
+from tests.helpers import Swapped, checked_context
 
 DEMO = Path(__file__).resolve().parent.parent / "demo_project"
 PRACTICE = Basis("common practice", note="absolute-volume method; defaults in "
@@ -27,23 +27,6 @@ QUARTZ = ("default: common practice: a sand taken as quartz (2.65 g/cm³; common
           "2.55-2.71 g/cm³); a measured particle density (EN 1097-6, ASTM C128) in "
           "materials.yaml replaces it")
 RHO_W = 998.2   # kg/m³, water at 20 °C (IAPWS-95: 998.207 kg/m³), as content/data gives it
-
-
-class _Swapped:
-    """The demo project with some attributes replaced (everything else read through)."""
-
-    def __init__(self, project, **swap):
-        self._project = project
-        self.__dict__.update(swap)
-
-    def __getattr__(self, name):
-        return getattr(self._project, name)
-
-
-def _ctx(demo_checked, project=None):
-    p, results = demo_checked
-    return Context(project or p, RuleBook(p.dossier.rule_overrides),
-                   quantities=results.quantities, results=results.checks)
 
 
 def test_mix_yield_of_m1_whole_by_the_absolute_volume_method(demo_checked):
@@ -126,7 +109,7 @@ def test_mix_yield_of_m3_default_air_and_one_sand(demo_checked):
 def test_mix_yield_not_assessed_without_a_water_ratio(demo_checked):
     """A mix gauged to a consistence (no w/b): not assessed, the target named in mm."""
     project, _ = demo_checked
-    ctx = _ctx(demo_checked)
+    ctx = checked_context(demo_checked)
     m2 = project.mixes["M2"] if isinstance(project.mixes, dict) else next(
         m for m in project.mixes if m.id == "M2")
     c = wks.mix_yield_check(m2.model_copy(update={"water_binder_ratio": None,
@@ -287,8 +270,8 @@ def test_site_weather_without_a_record_undated_and_a_single_reading(demo_checked
     """No record: the window alone, status info; an undated record: days after placement;
     one constant reading of 30.5 °C (hot, above 30) and one of exactly 30 °C (inside)."""
     project, _ = demo_checked
-    bare = _Swapped(project, site_temperature=None)
-    c = wks.weather_check(bare, _ctx(demo_checked, bare))
+    bare = Swapped(project, site_temperature=None)
+    c = wks.weather_check(bare, checked_context(demo_checked, bare))
     assert (c.status, c.value, c.unit) == ("info", None, "")
     assert c.message == ("place mortar only between 5 and 30 °C; keep damp 5 d and protect 7 d; "
                          "no site temperature record is given")
@@ -299,8 +282,8 @@ def test_site_weather_without_a_record_undated_and_a_single_reading(demo_checked
     rec = project.site_temperature
     for kelvin, n in ((303.65, 1), (303.15, 0)):
         one = type(rec)(**{**rec.__dict__, "constant": kelvin})
-        sw = _Swapped(project, site_temperature=one, dossier=dossier)
-        c = wks.weather_check(sw, _ctx(demo_checked, sw))
+        sw = Swapped(project, site_temperature=one, dossier=dossier)
+        c = wks.weather_check(sw, checked_context(demo_checked, sw))
         assert c.steps[0].inputs[-1].value == "1 reading"
         assert c.value == n
         if n:
@@ -357,7 +340,7 @@ def test_zone_volume_of_each_kind_with_defaults_and_what_is_missing(demo_checked
     none = wc.zone_volume(z["Z3"].model_copy(update={"masonry_volume": None}), project, rules)
     assert (none.reason, none.total, none.net) == ("give dossier.yaml Z3.masonry_volume", 0, 0)
     c = wks.works_quantities_check(z["Z3"].model_copy(update={"masonry_volume": None}),
-                                   _ctx(demo_checked))
+                                   checked_context(demo_checked))
     assert (c.code, c.status, c.value, c.message) == (
         "WORKS-QTY", "not_assessed", None,
         "not assessed: bedding in zone Z3: give dossier.yaml Z3.masonry_volume")
@@ -378,7 +361,7 @@ def test_parts_densities_given_or_defaulted(demo_checked):
     assert nc1.label == "Blackscar natural cement (trial firing 2)"
     binders = dict(project.binders)
     binders["NC1"] = binders["NC1"].model_copy(update={"bulk_density": None})
-    bare = wc.parts_of(_Swapped(project, binders=binders), m1)[0]
+    bare = wc.parts_of(Swapped(project, binders=binders), m1)[0]
     assert (bare.bulk.value, bare.bulk.source) == (900.0, "default: common practice")
     assert wc.water_density().value == 998.2
     assert wc.air_of(m1, RuleBook(project.dossier.rule_overrides)) == wc.Sourced(
@@ -406,7 +389,7 @@ def test_workable_life_source_and_the_initial_set_cap(demo_checked):
         "M1.workable_life, EN 1015-9 (Northstead Materials Laboratory, NML-4460))"), True)
     binders = dict(project.binders)
     binders["NC1"] = binders["NC1"].model_copy(update={"particle_density": 3000.0})
-    given = wc.parts_of(_Swapped(project, binders=binders), m1)[0]
+    given = wc.parts_of(Swapped(project, binders=binders), m1)[0]
     assert (given.particle.value, given.particle.source) == (
         3000.0, "materials.yaml NC1.particle_density")
 
@@ -416,10 +399,10 @@ def test_works_qty_wastage_shown_to_three_decimals_and_weather_days_to_two(demo_
     a curing period of 4.25 d (a rule changed in memory) is kept as 4.25 d, not 4."""
     project, _ = demo_checked
     z3 = next(z for z in project.dossier.zones if z.id == "Z3")
-    c = wks.works_quantities_check(z3.model_copy(update={"wastage": 0.123456}), _ctx(demo_checked))
+    c = wks.works_quantities_check(z3.model_copy(update={"wastage": 0.123456}), checked_context(demo_checked))
     assert c.steps[0].inputs[-1] == Input("w", "wastage allowance", 12.346, "%",
                                           "dossier.yaml Z3.wastage")
-    ctx = _ctx(demo_checked)
+    ctx = checked_context(demo_checked)
     book = ctx.rules
     rule = book["works.curing_days"]
 

@@ -10,8 +10,7 @@ import pytest
 
 from specgen.checks import works_gauging_checks as wg
 from specgen.checks.result import Basis, Input
-from specgen.checks.rules import RuleBook
-from specgen.checks.run import Context
+from tests.helpers import Swapped, checked_context
 
 GAUGE = Basis("common practice", note="gauging sized to the workable life (EN 1015-9 where "
               "measured), the crew's placing rate and a safety factor")
@@ -24,21 +23,6 @@ DAY = ("rule works.working_day (common practice — about 5-7 h of placing in a 
        "setting up, breaks and cleaning down)")
 MOST = ("rule works.max_gaugings_per_day (common practice — above this the mixer falls behind "
         "the crew; a retarder trial or a second mixer is needed)")
-
-
-class _Swapped:
-    def __init__(self, project, **swap):
-        self._project = project
-        self.__dict__.update(swap)
-
-    def __getattr__(self, name):
-        return getattr(self._project, name)
-
-
-def _ctx(demo_checked, project=None):
-    p, results = demo_checked
-    return Context(project or p, RuleBook(p.dossier.rule_overrides),
-                   quantities=results.quantities, results=results.checks)
 
 
 def _vf(parts_rho, wb, air, rho_p_binder):
@@ -190,10 +174,10 @@ def test_site_gauge_smallest_measure_too_big_no_yield_and_no_zone(demo_checked):
     project, _ = demo_checked
     zones = [z.model_copy(update={"placing_rate": 2e-3 / 3600}) if z.id == "Z1" else z
              for z in project.dossier.zones if z.id == "Z1"]
-    sw = _Swapped(project, dossier=project.dossier.model_copy(update={"zones": zones}))
+    sw = Swapped(project, dossier=project.dossier.model_copy(update={"zones": zones}))
     m2 = next(m for m in (project.mixes.values() if isinstance(project.mixes, dict)
                           else project.mixes) if m.id == "M2")
-    c = wg.gauging_check(m2, _ctx(demo_checked, sw))
+    c = wg.gauging_check(m2, checked_context(demo_checked, sw))
     assert (c.code, c.status, c.value, c.unit) == ("SITE-GAUGE", "attention",
                                                    round(10 * 2 / 60 / 1.5, 3), "L")
     assert c.message == ("even the smallest measure (0.25 L) of binder makes more than the 0.22 L "
@@ -202,12 +186,12 @@ def test_site_gauge_smallest_measure_too_big_no_yield_and_no_zone(demo_checked):
     assert [s.title for s in c.steps] == ["Largest gauging placed within the workable life"]
     assert [q.name for q in c.quantities] == ["max_gauging_volume", "workable_life"]
     bare = m2.model_copy(update={"water_binder_ratio": None})
-    na = wg.gauging_check(bare, _ctx(demo_checked))
+    na = wg.gauging_check(bare, checked_context(demo_checked))
     assert (na.status, na.value, na.message, na.title) == (
         "not_assessed", None, "not assessed: the mix has no yield (see MIX-YIELD)",
         "Site gauging size")
-    none = _Swapped(project, dossier=project.dossier.model_copy(update={"zones": []}))
-    assert wg.gauging_check(m2, _ctx(demo_checked, none)) == []
+    none = Swapped(project, dossier=project.dossier.model_copy(update={"zones": []}))
+    assert wg.gauging_check(m2, checked_context(demo_checked, none)) == []
 
 
 def test_site_gauge_rate_and_admixture_shown_to_their_decimals(demo_checked):
@@ -217,11 +201,11 @@ def test_site_gauge_rate_and_admixture_shown_to_their_decimals(demo_checked):
     project, _ = demo_checked
     zones = [z.model_copy(update={"placing_rate": 8.123456e-3 / 3600}) if z.id == "Z1" else z
              for z in project.dossier.zones]
-    sw = _Swapped(project, dossier=project.dossier.model_copy(update={"zones": zones}))
+    sw = Swapped(project, dossier=project.dossier.model_copy(update={"zones": zones}))
     m1 = next(m for m in (project.mixes.values() if isinstance(project.mixes, dict)
                           else project.mixes) if m.id == "M1")
     adm = [m1.admixtures[0].model_copy(update={"dose": 0.001234})]
-    c = wg.gauging_check(m1.model_copy(update={"admixtures": adm}), _ctx(demo_checked, sw))
+    c = wg.gauging_check(m1.model_copy(update={"admixtures": adm}), checked_context(demo_checked, sw))
     assert c.code == "SITE-GAUGE"
     assert c.steps[0].inputs[2] == Input("q_Z1", "placing rate, zone Z1", 8.1235, "L/h",
                                          "dossier.yaml Z1.placing_rate")
