@@ -66,8 +66,7 @@ def print_document(html: str, css: str, pageset, **options) -> Printed:
     """Lay out and draw one document; ``options`` go to WeasyPrint (as its ``write_pdf``)."""
     import time
 
-    from specgen.publish import weasyfix
-    from specgen.publish.weasyfix import weasyprint
+    from specgen.publish.weasyfix import fonts, stylesheet, weasyprint
     started = time.process_time()
 
     if "attachments" in options:  # (name, bytes, datetime) triples: plain data for the workers
@@ -75,7 +74,7 @@ def print_document(html: str, css: str, pageset, **options) -> Printed:
             weasyprint.Attachment(string=data, name=name, description=name, created=when,
                                   modified=when) for name, data, when in options["attachments"]])
     doc = weasyprint.HTML(string=html, base_url=BASE, url_fetcher=_fetcher(pageset)).render(
-        stylesheets=[weasyfix.stylesheet(css)], font_config=weasyfix.fonts(), **options)
+        stylesheets=[stylesheet(css)], font_config=fonts(), **options)
     out = Printed(pdf=b"")
     for number, page in enumerate(doc.pages):
         height = page.height
