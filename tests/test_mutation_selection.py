@@ -136,3 +136,21 @@ def test_estimate_reads_the_sampled_modules_and_the_codes_of_the_run(tmp_path, c
     assert abs(run["share"] - (2 / 3 * 0.8 + 1 / 3 * 0.9)) < 1e-12
     # the whole module adds no variance: v = (2/3)²·(1 − 10/100)·0.8·0.2/9 = 0.0071111
     assert abs(run["se"] - 0.0071111 ** 0.5) < 1e-6
+
+
+def test_each_whole_result_file_runs_against_its_own_module_unlisted():
+    """A check module's own ``tests/test_whole_<module>.py`` is in its selection and in the
+    scope's list without being written into CHECK_TESTS_BY_MODULE; every such file is named
+    after a check module that exists (a misspelt one would never run against any mutant)."""
+    tool = _tool()
+    root = TOOL.parent.parent
+    whole = sorted(root.glob("tests/test_whole_*.py"))
+    assert whole, "no whole-result test file found"
+    for f in whole:
+        module = f.stem.removeprefix("test_whole_")
+        assert (root / "specgen" / "checks" / f"{module}.py").exists(), f.name
+        rel = f"tests/{f.name}"
+        assert rel in tool.module_test_files(module)
+        assert rel in tool.CHECK_TESTS
+    # a module without such a file keeps exactly its listed files
+    assert tool.module_test_files("colour_checks") == ["tests/test_compatibility_checks.py"]

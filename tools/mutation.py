@@ -46,70 +46,58 @@ CHECK_TESTS = [
     "tests/test_compatibility_checks.py", "tests/test_firing_phases_hydration_checks.py",
     "tests/test_strength_checks.py", "tests/test_works_checks.py",
     "tests/test_specification.py", "tests/test_check_values.py", "tests/test_revisions.py",
-    "tests/test_whole_specification_checks.py", "tests/test_whole_works_checks.py",
-    "tests/test_whole_compatibility_checks.py", "tests/test_whole_substrate_checks.py",
-    "tests/test_whole_works_gauging_checks.py", "tests/test_whole_audit_checks.py",
-    "tests/test_whole_specification_record_checks.py",
 ]
+# every check module's whole-result file (``tests/test_whole_<module>.py``), found, not listed
+CHECK_TESTS += sorted(str(f.relative_to(REPO)) for f in (REPO / "tests").glob("test_whole_*.py"))
 # Each check module against the scenario tests that read its checks (found by the check codes
 # each module registers), so that a check mutant runs a few files instead of all of them:
 # every check is reached by every `check()` of the demo, so mutmut's per-function selection
 # alone would pick nearly the whole list above for each mutant.
 T = "tests/test_"
 CHECK_TESTS_BY_MODULE = {
-    "aggregate_checks": [T + "compatibility_checks.py", T + "whole_aggregate_checks.py"],
-    "audit_checks": [T + "audit.py", T + "whole_audit_checks.py"],
+    "aggregate_checks": [T + "compatibility_checks.py"],
+    "audit_checks": [T + "audit.py"],
     "audit_record_checks": [T + "audit.py"],
-    "binder_class_checks": [T + "binder_classes.py", T + "whole_binder_class_checks.py"],
-    "calcination_checks": [T + "firing_phases_hydration_checks.py",
-                           T + "whole_calcination_checks.py"],
+    "binder_class_checks": [T + "binder_classes.py"],
+    "calcination_checks": [T + "firing_phases_hydration_checks.py"],
     "chemistry_checks": [T + "chemistry_checks.py", T + "check_values.py",
-                         T + "cementation_index_check.py", T + "whole_chemistry_checks.py"],
+                         T + "cementation_index_check.py"],
     "chemistry_common": [T + "chemistry_checks.py", T + "check_values.py",
                          T + "cementation_index_check.py"],
     "colour_checks": [T + "compatibility_checks.py"],
-    "compatibility_checks": [T + "compatibility_checks.py", T + "whole_compatibility_checks.py"],
+    "compatibility_checks": [T + "compatibility_checks.py"],
     "compatibility_common": [T + "compatibility_checks.py"],
     "composition_checks": [T + "cementation_index_check.py", T + "chemistry_checks.py",
                            T + "revisions.py"],
     "durability_common": [T + "durability_checks.py"],
     "durability_tests_checks": [T + "durability_checks.py"],
     "evidence_checks": [T + "evidence.py"],
-    "exposure_checks": [T + "durability_checks.py", T + "whole_exposure_checks.py"],
-    "hydration_checks": [T + "firing_phases_hydration_checks.py", T + "check_values.py",
-                         T + "whole_hydration_checks.py"],
+    "exposure_checks": [T + "durability_checks.py"],
+    "hydration_checks": [T + "firing_phases_hydration_checks.py", T + "check_values.py"],
     "method_checks": [T + "method.py"],
-    "phases_checks": [T + "firing_phases_hydration_checks.py", T + "binder_estimates.py",
-                      T + "whole_phases_checks.py"],
+    "phases_checks": [T + "firing_phases_hydration_checks.py", T + "binder_estimates.py"],
     "salt_checks": [T + "compatibility_checks.py", T + "durability_checks.py"],
     "setting_checks": [T + "durability_checks.py"],
-    "soundness_checks": [T + "durability_checks.py", T + "whole_soundness_checks.py"],
-    "specification_checks": [T + "specification.py", T + "check_values.py",
-                             T + "whole_specification_checks.py"],
-    "specification_record_checks": [T + "specification.py", T + "check_values.py",
-                                    T + "whole_specification_record_checks.py"],
-    "strength_acceptance_checks": [T + "strength_checks.py", T + "strength_inference_checks.py",
-                                   T + "whole_strength_acceptance_checks.py"],
-    "strength_checks": [T + "strength_checks.py", T + "whole_strength_checks.py",
+    "soundness_checks": [T + "durability_checks.py"],
+    "specification_checks": [T + "specification.py", T + "check_values.py"],
+    "specification_record_checks": [T + "specification.py", T + "check_values.py"],
+    "strength_acceptance_checks": [T + "strength_checks.py", T + "strength_inference_checks.py"],
+    "strength_checks": [T + "strength_checks.py",
                         T + "whole_strength_acceptance_checks.py",
                         T + "whole_strength_inference_checks.py"],
     "strength_class_checks": [T + "strength_checks.py"],
     "strength_common": [T + "strength_checks.py", T + "strength_inference_checks.py",
                         T + "whole_strength_checks.py", T + "whole_strength_acceptance_checks.py",
-                        T + "whole_strength_inference_checks.py",
-                        T + "whole_strength_common.py"],
-    "strength_inference_checks": [T + "strength_inference_checks.py",
-                                  T + "whole_strength_inference_checks.py"],
+                        T + "whole_strength_inference_checks.py"],
+    "strength_inference_checks": [T + "strength_inference_checks.py"],
     "strength_prior_common": [T + "strength_inference_checks.py",
-                              T + "whole_strength_prior_common.py",
                               T + "whole_strength_inference_checks.py",
                               T + "whole_strength_acceptance_checks.py"],
-    "substrate_checks": [T + "durability_checks.py", T + "whole_substrate_checks.py"],
-    "sulfate_checks": [T + "durability_checks.py", T + "compatibility_checks.py",
-                       T + "whole_sulfate_checks.py"],
-    "works_checks": [T + "works_checks.py", T + "check_values.py", T + "whole_works_checks.py"],
+    "substrate_checks": [T + "durability_checks.py"],
+    "sulfate_checks": [T + "durability_checks.py", T + "compatibility_checks.py"],
+    "works_checks": [T + "works_checks.py", T + "check_values.py"],
     "works_common": [T + "works_checks.py", T + "check_values.py", T + "whole_works_checks.py"],
-    "works_gauging_checks": [T + "works_checks.py", T + "whole_works_gauging_checks.py"],
+    "works_gauging_checks": [T + "works_checks.py"],
 }
 SCOPES = {
     "science": {"package": "specgen/science", "tests": ["tests/science"], "deselect": []},
@@ -188,6 +176,15 @@ def tests_naming(files: list[str], names: set[str], root: Path = REPO) -> list[s
     return out
 
 
+def module_test_files(module: str) -> list[str]:
+    """The test files a check module's mutants run against: its entry in
+    CHECK_TESTS_BY_MODULE and, when there is one, its own whole-result file
+    (``tests/test_whole_<module>.py``), which need not be listed."""
+    own = f"tests/test_whole_{module}.py"
+    files = list(CHECK_TESTS_BY_MODULE[module])
+    return files + [own] if (REPO / own).exists() and own not in files else files
+
+
 def tests_for(scope: str, modules: list[str] = (), tests: list[str] = (),
               narrow: bool = True) -> list[str]:
     """The tests a run selects: ``tests`` when given; for check modules that are all mapped,
@@ -197,7 +194,7 @@ def tests_for(scope: str, modules: list[str] = (), tests: list[str] = (),
     if tests:
         return list(tests)
     if scope == "checks" and modules and all(m in CHECK_TESTS_BY_MODULE for m in modules):
-        files = sorted({t for m in modules for t in CHECK_TESTS_BY_MODULE[m]})
+        files = sorted({t for m in modules for t in module_test_files(m)})
         if not narrow:
             return files
         names = set().union(*(names_read(m) for m in modules))
