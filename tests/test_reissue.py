@@ -4,9 +4,10 @@ After one new laboratory result, a build into the same output folder lays out ag
 PDF parts whose content changed and takes the rest from the output folder's artefact cache
 (``publish/pdf.py``).  What the reader gets must not depend on that: the test builds the
 changed project twice, once as a re-issue (into the copy of a built output folder, its cache
-warm) and once cold (a fresh folder, no cache anywhere), and compares the text of every PDF
-page, every site page and every other file of the revision, byte for byte (DESIGN.md,
-"Reproducible": same inputs give byte-identical site, figures and PDF)."""
+warm) and once cold (a fresh folder, no cache anywhere), and compares every site page as
+text, the text of every page of a PDF whose bytes differ, and every file of the revision
+byte for byte (DESIGN.md, "Reproducible": same inputs give byte-identical site, figures and
+PDF)."""
 from __future__ import annotations
 
 from pathlib import Path
@@ -47,7 +48,11 @@ def test_reissue_after_one_new_result_equals_a_cold_build(starter_build, tmp_pat
     pdfs = sorted(name for name in a if name.endswith(".pdf"))
     assert len(pdfs) == 2            # the report and its appendix volume
     for name in pdfs:
-        assert _page_texts(reissued / name) == _page_texts(cold / name), name
+        # the same bytes are the same text on every page; the text (34 CPU s for both
+        # volumes of both builds, measured under load) is read only for a volume whose
+        # bytes differ, where it names what a reader would see differ
+        if a[name] != b[name]:
+            assert _page_texts(reissued / name) == _page_texts(cold / name), name
     pages = sorted(name for name in a if name.endswith(".html"))
     assert "strength.html" in pages and "calculations.html" in pages
     for name in pages:
