@@ -34,6 +34,9 @@ def pytest_addoption(parser):
 def pytest_configure(config):
     config.addinivalue_line("markers", "full: long test run only with --full "
                             "(or SPECGEN_FULL_TESTS=1)")
+    config.addinivalue_line("markers", "costly(seconds): a test file whose tests take about "
+                            "that many CPU seconds (its browser's included): the workers "
+                            "start the costliest files first")
 
 
 def full_run(config) -> bool:
@@ -62,13 +65,30 @@ def pytest_collection_modifyitems(config, items):
             if "full" in item.keywords:
                 item.add_marker(skip)
     late = {item.path for item in items if "demo_build" in item.fixturenames}
-    items.sort(key=lambda item: item.path in late)   # stable: the order within a file stays
+    cost = _file_costs(items) if hasattr(config, "workerinput") else {}
+    # stable: the order within a file stays
+    items.sort(key=lambda item: (item.path in late, -cost.get(item.path, 0.0)))
     if not config.option.collectonly and any(
             "demo_build" in item.fixturenames and not item.get_closest_marker("skip")
             for item in items):
         _start_demo_build(config, text=any(
             PDF_TEXT_FIXTURES & set(item.fixturenames) and not item.get_closest_marker("skip")
             for item in items))
+
+
+def _file_costs(items) -> dict:
+    """The CPU seconds each test file declares (``pytest.mark.costly(seconds)``).
+
+    pytest-xdist hands a worker a whole file (``--dist loadfile``), in the order the workers
+    collected them (``--no-loadscope-reorder``; its default sends the files with the most
+    tests first, which left the costliest, one-test files to the end on one worker while
+    the other had nothing left to do).  The costliest go first, so the last files handed
+    out are short ones and both workers end together; the demo build's readers stay last."""
+    cost: dict = {}
+    for item in items:
+        mark = item.get_closest_marker("costly")
+        cost[item.path] = max(cost.get(item.path, 0.0), float(mark.args[0]) if mark else 0.0)
+    return cost
 
 
 def pytest_unconfigure(config):

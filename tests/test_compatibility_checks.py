@@ -12,6 +12,8 @@ from specgen.build import check
 from specgen.checks.result import Input, Quantity, Step
 from tests.helpers import by_check, edit, problems
 
+pytestmark = pytest.mark.costly(12)   # CPU s (tests/conftest.py)
+
 
 @pytest.fixture
 def demo(demo_copy):

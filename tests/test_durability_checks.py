@@ -11,6 +11,8 @@ from tests.conftest import shared_scope
 from specgen.checks.result import Basis, Input, Quantity, Step
 from tests.helpers import by_check, edit
 
+pytestmark = pytest.mark.costly(17)   # CPU s (tests/conftest.py)
+
 
 def _run_bad(cli, project) -> str:
     result = cli("check", project)

@@ -6,7 +6,7 @@ import shutil
 
 import pytest
 
-pytestmark = pytest.mark.e2e
+pytestmark = [pytest.mark.e2e, pytest.mark.costly(40)]
 
 REV = "R3"  # the demo's current (draft) revision; R1 and R2 are archived under issued/
 

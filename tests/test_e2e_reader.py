@@ -15,7 +15,7 @@ import pytest
 from tests.conftest import REPO
 from tests.reader_text import internal_names, reader_text
 
-pytestmark = pytest.mark.e2e
+pytestmark = [pytest.mark.e2e, pytest.mark.costly(120)]
 
 REV = "R3"
 #: the page whose subject is the input as it is written: the input listing; and the web

@@ -15,7 +15,7 @@ import pytest
 
 from tests.conftest import copy_build
 
-pytestmark = pytest.mark.e2e
+pytestmark = [pytest.mark.e2e, pytest.mark.costly(25)]
 
 
 def tree(root):

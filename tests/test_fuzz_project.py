@@ -35,6 +35,7 @@ import tempfile
 from collections import Counter
 from pathlib import Path
 
+import pytest
 import yaml
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
@@ -43,6 +44,8 @@ from specgen.errors import InputErrors
 from specgen.project import schema
 from specgen.project.files import read_yaml
 from specgen.project.load import DOCUMENTS
+
+pytestmark = pytest.mark.costly(20)   # CPU s (tests/conftest.py)
 
 REPO = Path(__file__).resolve().parent.parent
 DEMO = REPO / "demo_project"

@@ -9,6 +9,8 @@ import pytest
 from specgen.errors import InputErrors
 from specgen.build import load as load_project  # as every command reads a project
 
+pytestmark = pytest.mark.costly(30)   # CPU s (tests/conftest.py)
+
 SCRIPT = "<script>window.__pwned=1;alert(1)</script>"
 IMG = "<img src=x onerror=\"window.__pwned=2;alert(2)\">"
 

@@ -23,6 +23,8 @@ from specgen.build import verify
 from tests.conftest import copy_build
 from tests.helpers import edit
 
+pytestmark = pytest.mark.costly(60)   # CPU s (tests/conftest.py)
+
 REPO = Path(__file__).resolve().parent.parent
 
 

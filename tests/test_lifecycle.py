@@ -17,7 +17,7 @@ import pytest
 from specgen.publish.output import sha256_file
 from tests.helpers import edit
 
-pytestmark = pytest.mark.e2e
+pytestmark = [pytest.mark.e2e, pytest.mark.costly(115)]
 
 
 def _one_mix(proj) -> None:

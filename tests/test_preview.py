@@ -12,6 +12,8 @@ import pytest
 
 from specgen.preview import State, handler_for, watch
 
+pytestmark = pytest.mark.costly(35)   # CPU s (tests/conftest.py)
+
 
 @pytest.fixture
 def served(tmp_path):

@@ -14,6 +14,8 @@ from hypothesis import strategies as st
 
 from specgen.publish.pdf import _cut_points, parts, Piece
 
+pytestmark = pytest.mark.costly(25)   # CPU s (tests/conftest.py)
+
 
 def _chapter(blocks: list[tuple[str, int]]) -> str:
     """HTML made of top-level h2 sections and h2 headings nested inside divs and tables."""

@@ -12,8 +12,12 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import pytest
+
 from specgen.build import build
 from tests.conftest import copy_build
+
+pytestmark = pytest.mark.costly(80)   # CPU s (tests/conftest.py)
 
 
 def _files(revision: Path) -> dict[str, bytes]:

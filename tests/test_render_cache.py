@@ -16,6 +16,8 @@ from specgen.report.mathsvg import svg_bytes, svg_of
 from specgen.report.render import render
 from tests.conftest import DEMO
 
+pytestmark = pytest.mark.costly(15)   # CPU s (tests/conftest.py)
+
 
 def _render(project_dir, folder=None):
     svg_bytes.cache_clear()  # no in-process memo: only the folder cache may help

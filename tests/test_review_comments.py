@@ -11,6 +11,8 @@ import pytest
 
 from specgen.pagetext import page_facts, section_text, squeeze
 
+pytestmark = pytest.mark.costly(15)   # CPU s (tests/conftest.py)
+
 REV = "R3"
 CHROMIUM = shutil.which("chromium") or "/usr/bin/chromium"
 ARGS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking",

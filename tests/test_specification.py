@@ -13,6 +13,8 @@ from specgen.build import check
 from specgen.errors import InputErrors
 from specgen.science import site_tests as st
 
+pytestmark = pytest.mark.costly(20)   # CPU s (tests/conftest.py)
+
 
 def edit(path, old: str, new: str) -> None:
     text = path.read_text(encoding="utf-8")

@@ -12,6 +12,8 @@ import pytest
 from specgen.build import verify
 from specgen import cache
 
+pytestmark = pytest.mark.costly(10)   # CPU s (tests/conftest.py)
+
 
 def test_poisoned_cache_entry_is_discarded_and_drawn_again(tmp_path):
     drawn = []
