@@ -38,10 +38,8 @@ def open_browser(width: int = 1400, height: int = 900):
             browser.close()
 
 
-def axe_violations(page, html: Path, script: str | None = None) -> list[dict]:
-    """axe-core's violations (WCAG 2.1 A and AA) on the page at ``html``."""
-    page.goto(html.as_uri())
-    page.wait_for_load_state("load")
+def axe_violations(page, script: str | None = None) -> list[dict]:
+    """axe-core's violations (WCAG 2.1 A and AA) on the document the page has loaded."""
     page.add_script_tag(content=script or axe_script())
     return page.evaluate(
         "async (tags) => (await axe.run(document, {runOnly: {type: 'tag', values: tags},"

@@ -6,7 +6,7 @@ import shutil
 
 import pytest
 
-pytestmark = [pytest.mark.e2e, pytest.mark.costly(40)]
+pytestmark = [pytest.mark.e2e, pytest.mark.costly(10)]
 
 REV = "R3"  # the demo's current (draft) revision; R1 and R2 are archived under issued/
 
@@ -122,37 +122,6 @@ def test_summary_fits_two_pages_and_the_main_volume_is_short(demo_build, demo_pd
     assert page.index('href="scope.html"') < page.index("Appendices")
     assert f'href="./WEP-2026-{REV}.pdf"' in page
     assert f'href="./WEP-2026-{REV}-appendices.pdf"' in page
-
-
-def test_pages_in_real_browser(demo_build):
-    """Every page loads in Debian's Chromium with no console error and no outside request."""
-    playwright = pytest.importorskip("playwright.sync_api")
-    if not shutil.which("chromium"):
-        pytest.skip("Debian chromium is not installed")
-    rev = demo_build / REV
-    errors, outside = [], []
-    with playwright.sync_playwright() as pw:
-        browser = pw.chromium.launch(executable_path=CHROMIUM, args=[
-            "--no-sandbox", "--disable-gpu", "--disable-background-networking",
-            "--disable-component-update", "--disable-sync", "--no-first-run"])
-        page = browser.new_page()
-        page.on("console", lambda m: errors.append(m.text) if m.type == "error" else None)
-        page.on("request", lambda r: outside.append(r.url)
-                if not r.url.startswith(("file:", "data:", "blob:")) else None)
-        for html in sorted(rev.glob("*.html")):
-            if html.name == "404.html":
-                continue
-            page.goto(html.as_uri())
-            page.wait_for_load_state("load")
-            assert page.title(), html.name
-        page.goto((rev / "index.html").as_uri())
-        body = page.inner_text("body")
-        shot = page.screenshot(full_page=True)
-        browser.close()
-    assert not errors, errors
-    assert not outside, outside
-    assert "The mortar for each zone" in body and "check register" in body
-    assert len(shot) > 20_000  # a blank page compresses to a few kB
 
 
 def test_search_finds_a_known_term_offline(demo_build):

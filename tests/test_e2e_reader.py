@@ -15,7 +15,7 @@ import pytest
 from tests.conftest import REPO
 from tests.reader_text import internal_names, reader_text
 
-pytestmark = [pytest.mark.e2e, pytest.mark.costly(120)]
+pytestmark = [pytest.mark.e2e, pytest.mark.costly(170)]
 
 REV = "R3"
 #: the page whose subject is the input as it is written: the input listing; and the web
@@ -99,47 +99,107 @@ def _browser_or_skip():
 #: the pages checked at the phone width in the default run (--full: every page)
 PHONE_PAGES = {"index.html", "strength.html", "compatibility.html", "specification.html",
                "card-M1.html", "revisions.html"}
-
-
-def test_axe_finds_no_wcag_violation_on_any_page(demo_build, full):
-    """axe-core (WCAG 2.0/2.1 A and AA rule sets) in Debian's Chromium, every page at the
-    desktop width; at the phone width the key pages (every page with --full)."""
-    _browser_or_skip()
-    from tests.browser import axe_script, axe_violations, open_browser
-    script, found = axe_script(), {}
-    every = [*_pages(demo_build), demo_build / REV / "inputs.html", demo_build / "revisions.html"]
-    for width in (1400, 390):
-        with open_browser(width=width) as page:
-            for html in [h for h in every if full or width > 500 or h.name in PHONE_PAGES]:
-                for v in axe_violations(page, html, script):
-                    found.setdefault(f"{html.name}@{width}", []).append(
-                        (v["id"], [n["target"] for n in v["nodes"][:3]]))
-    assert found == {}
-
-
 SHOTS = {"home": "index.html", "chapter": "composition.html",
          "calculation-sheet": "calculations.html#calc-chem-ci-nc1-a", "batching-card": "card-M1.html"}
+#: the window of each width: a desktop screen, a phone's (390 × 844 CSS px)
+WINDOWS = {1400: 1000, 390: 844}
 
 
-def test_screenshots_of_the_key_pages(demo_build):
-    """Home, a chapter, a calculation sheet and a batching card at 1400 and 390 px, kept
-    for a person to look at; each must show more than a blank page."""
+@pytest.fixture(scope="module")
+def browsed(demo_build, request):
+    """The demo's pages opened in Debian's Chromium, each once per width, and what the
+    tests below read of each opening.  A load is the costly part (the calculation sheets,
+    one page of about 290 000 px, take seconds to load and most of axe's time), so one
+    opening serves every test that needs the page: its title, console errors and outside
+    requests (every page of R3 at the desktop width), the screenshot (``SHOTS``), then
+    axe-core (every page at the desktop width; at the phone width the key pages, every
+    page with --full).  Console errors and outside requests are kept from every opening."""
     _browser_or_skip()
-    from tests.browser import open_browser
+    from tests.browser import axe_script, axe_violations, open_browser
+    from tests.conftest import full_run
+    full, rev = full_run(request.config), demo_build / REV
     folder = Path(os.environ.get("SPECGEN_ARTEFACTS", REPO / "test-artefacts")) / "screenshots"
     folder.mkdir(parents=True, exist_ok=True)
-    for width in (1400, 390):
-        with open_browser(width=width, height=1000 if width > 500 else 844) as page:
-            for name, target in SHOTS.items():
-                path, _, frag = target.partition("#")
-                page.goto((demo_build / REV / path).as_uri() + (f"#{frag}" if frag else ""))
+    shots = {rev / t.partition("#")[0]: (name, t.partition("#")[2]) for name, t in SHOTS.items()}
+    seen = {"titles": {}, "errors": [], "outside": [], "axed": set(), "violations": {},
+            "shots": {}}
+    script = axe_script()
+    for width, height in WINDOWS.items():
+        wide = width > 500
+        axe = {p for p in _axe_pages(demo_build) if full or wide or p.name in PHONE_PAGES}
+        titled = _titled_pages(demo_build) if wide else set()
+        with open_browser(width=width, height=height) as page:
+            now = {"page": None, "axe": False}
+            # axe reads the style sheets itself (refused from a file:// page: a console
+            # error of axe's, not the page's), so its run is not listened to
+            page.on("console", lambda m: seen["errors"].append((now["page"], m.text))
+                    if m.type == "error" and not now["axe"] else None)
+            page.on("request", lambda r: seen["outside"].append((now["page"], r.url))
+                    if not r.url.startswith(("file:", "data:", "blob:")) else None)
+            for html in sorted(axe | titled | set(shots)):
+                now.update(page=f"{html.relative_to(demo_build)}@{width}", axe=False)
+                page.goto(html.as_uri())
                 page.wait_for_load_state("load")
-                shot = folder / f"{name}-{width}.png"
-                page.screenshot(path=str(shot), full_page=not frag)
-                assert shot.stat().st_size > 20_000, shot  # a blank page is a few kB
-                # nothing wider than the screen except inside a scrolling region
-                overflow = page.evaluate("document.documentElement.scrollWidth")
-                assert overflow <= width + 1, (name, width, overflow)
+                if html in titled:
+                    seen["titles"][html.name] = page.title()
+                if wide and html == rev / "index.html":
+                    seen["index"] = (page.inner_text("body"), len(page.screenshot(full_page=True)))
+                if html in shots:
+                    name, frag = shots[html]
+                    if frag:    # the same document, scrolled to the sheet
+                        page.goto(f"{html.as_uri()}#{frag}")
+                    shot = folder / f"{name}-{width}.png"
+                    page.screenshot(path=str(shot), full_page=not frag)
+                    seen["shots"][(name, width)] = (
+                        shot, shot.stat().st_size,
+                        page.evaluate("document.documentElement.scrollWidth"))
+                if html in axe:
+                    now["axe"] = True
+                    seen["axed"].add(f"{html.name}@{width}")
+                    for v in axe_violations(page, script):
+                        seen["violations"].setdefault(f"{html.name}@{width}", []).append(
+                            (v["id"], [n["target"] for n in v["nodes"][:3]]))
+    return seen
+
+
+def _axe_pages(demo_build) -> set[Path]:
+    """The pages axe checks: every page of R3 but the server's "not found" page, and the
+    revision list of the root."""
+    return {*_pages(demo_build), demo_build / REV / "inputs.html", demo_build / "revisions.html"}
+
+
+def _titled_pages(demo_build) -> set[Path]:
+    return {p for p in (demo_build / REV).glob("*.html") if p.name != "404.html"}
+
+
+def test_pages_in_real_browser(browsed, demo_build):
+    """Every page loads in Debian's Chromium with no console error and no outside request."""
+    assert browsed["errors"] == []
+    assert browsed["outside"] == []
+    assert set(browsed["titles"]) == {p.name for p in _titled_pages(demo_build)}
+    assert all(browsed["titles"].values()), browsed["titles"]
+    body, shot = browsed["index"]
+    assert "The mortar for each zone" in body and "check register" in body
+    assert shot > 20_000  # a blank page compresses to a few kB
+
+
+def test_axe_finds_no_wcag_violation_on_any_page(browsed, demo_build, full):
+    """axe-core (WCAG 2.0/2.1 A and AA rule sets) in Debian's Chromium, every page at the
+    desktop width; at the phone width the key pages (every page with --full)."""
+    every = _axe_pages(demo_build)
+    assert browsed["axed"] == ({f"{p.name}@1400" for p in every}
+                               | {f"{p.name}@390" for p in every if full or p.name in PHONE_PAGES})
+    assert browsed["violations"] == {}
+
+
+def test_screenshots_of_the_key_pages(browsed):
+    """Home, a chapter, a calculation sheet and a batching card at 1400 and 390 px, kept
+    for a person to look at; each must show more than a blank page."""
+    assert sorted(browsed["shots"]) == sorted((n, w) for n in SHOTS for w in WINDOWS)
+    for (name, width), (shot, size, overflow) in browsed["shots"].items():
+        assert size > 20_000, shot  # a blank page is a few kB
+        # nothing wider than the screen except inside a scrolling region
+        assert overflow <= width + 1, (name, width, overflow)
 
 
 def test_pdf_is_tagged_for_a_screen_reader(demo_build):
