@@ -247,7 +247,9 @@ def chapter_numbers(specs) -> dict[str, str]:
 
 def _resolve_later(env: RenderEnv, pageset: PageSet) -> None:
     """Write the deferred parts into the pages that hold their placeholders."""
-    from specgen.report.review import later_token
+    from specgen.report.review import later_token, page_sections
+    # before the deferred parts are written, so each revision's digests are made alike
+    pageset.sections = page_sections(pageset.pages)
     if not env.deferred:
         return
     done = {str(later_token(n)): fn(pageset.pages) for n, fn in enumerate(env.deferred, 1)}
