@@ -214,7 +214,7 @@ ARGS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking",
 @pytest.mark.e2e
 def test_comment_on_a_figure_and_a_table_row_in_the_browser(demo_build, demo_copy, cli,
                                                             tmp_path):
-    """Click a figure, then select a row of the check register: each comment is anchored to
+    """Select a figure's caption, then a row of the check register: each comment is anchored to
     the figure or the row, the file they export is taken in, and each names its place."""
     playwright = pytest.importorskip("playwright.sync_api")
     if not shutil.which("chromium"):
@@ -223,8 +223,13 @@ def test_comment_on_a_figure_and_a_table_row_in_the_browser(demo_build, demo_cop
         browser = pw.chromium.launch(executable_path=CHROMIUM, args=ARGS)
         page = browser.new_page(accept_downloads=True)
         page.goto((demo_build / "R3" / "strength.html").as_uri())
-        fig = page.evaluate("document.querySelector('article figure[id]').id")
-        page.click(f"#{fig} img")
+        # a figure opens its full-size image when clicked: its caption is what one selects
+        fig = page.evaluate("""() => {
+            const f = document.querySelector("article figure[id]");
+            const r = document.createRange(); r.selectNodeContents(f.querySelector("figcaption"));
+            const s = window.getSelection(); s.removeAllRanges(); s.addRange(r);
+            return f.id; }""")
+        page.wait_for_timeout(100)
         page.click(".sg-review-toggle")
         assert page.input_value("#sg-review-anchor") == fig
         caption = page.inner_text(f"#{fig} figcaption")

@@ -98,15 +98,6 @@
     var text = sel.toString().replace(/\s+/g, " ").trim();
     if (text) { lastSelection = {quote: text.slice(0, 2000), anchor: anchorOf(range.startContainer)}; }
   });
-  /* A figure is an image: a click on it (with no text selected) chooses it, its caption
-   * as the quote.  Keyboard users choose it from the panel's list of places. */
-  document.addEventListener("click", function (e) {
-    var fig = e.target && e.target.closest ? e.target.closest("figure[id]") : null;
-    if (!fig || !content().contains(fig) || panel.contains(fig)) { return; }
-    var sel = window.getSelection();
-    if (sel && !sel.isCollapsed) { return; }
-    lastSelection = {quote: words(fig.querySelector("figcaption")).slice(0, 2000), anchor: fig.id};
-  });
 
   /* ---- the panel ---------------------------------------------------------------- */
   var toggle = el("button", {type: "button", "class": "sg-review-toggle", "aria-expanded": "false",
@@ -114,8 +105,8 @@
   var panel = el("aside", {id: "sg-review-panel", "class": "sg-review-panel", hidden: "",
                            "aria-labelledby": "sg-review-title"});
   var title = el("h2", {id: "sg-review-title", tabindex: "-1"}, "Review comments");
-  var intro = el("p", {}, "Select a passage or a table row, or click a figure, then write your " +
-    "comment. Comments stay in this " +
+  var intro = el("p", {}, "Select a passage, a table row or a figure's caption (or choose a " +
+    "section or figure from the list), then write your comment. Comments stay in this " +
     "browser until you export them as a file to send to the specifier; nothing is sent anywhere.");
   var form = el("form", {"class": "sg-review-form", novalidate: ""});
   var status = el("p", {"class": "sg-review-status", role: "status", "aria-live": "polite"});
