@@ -160,7 +160,7 @@ def test_a_response_is_checked_against_what_really_changed():
     assert _changed_words(env, "fabric") == (
         "[2 Fabric](fabric.md) reads the same as in R2 (**the response says it changed**)")
     assert _changed_words(env, "SITE-WEATHER").startswith(
-        "check SITE\\-WEATHER/WEP\\-2026: for information → attention")
+        "check SITE\\-WEATHER/WEP\\-2026: for information → attention, now 29")
     assert _changed_words(env, "STR-MIN/M1") == (
         "check STR\\-MIN/M1: no status or value changed since R2 "
         "(**the response says it changed**)")
@@ -197,7 +197,7 @@ def test_the_demo_change_report_shows_the_answer_and_the_pages_it_changed(demo_b
             f"changed. Changed in answer: {works} :") in text, text[:3000]
     assert re.search(r"Changed in answer: [^:]+: \d+ sections? changed \(Weather and curing;",
                      text)
-    assert "check SITE-WEATHER/WEP-2026: for information → attention" in text
+    assert "check SITE-WEATHER/WEP-2026: for information → attention, now 29 d." in text
     assert "the response says it changed" not in text
     assert re.search(r"Pages whose text changed since R2", text)
     comments = " ".join(page_facts((out / "R3" / "comments.html").read_text("utf-8"))[1].split())

@@ -83,9 +83,10 @@ def _moved(c: dict) -> str:
         words.append(f"{STATUS_WORDS.get(c['old_status'], 'not present')} → "
                      f"{STATUS_WORDS.get(c['new_status'], 'not present')}")
     if c["old_value"] != c["new_value"]:
-        old = qty(c["old_value"], c["unit"]) if c["old_value"] is not None else "—"
-        new = qty(c["new_value"], c["unit"]) if c["new_value"] is not None else "—"
-        words.append(f"{old} → {new}")
+        old, new = (qty(v, c["unit"]) if v is not None else None
+                    for v in (c["old_value"], c["new_value"]))
+        words.append(f"{old} → {new}" if old and new else f"now {new}" if new
+                     else f"no value now (was {old})")
     return ", ".join(words)
 
 
