@@ -738,7 +738,7 @@ def test_colour_of_neutral_greys_whole():
     spread = max(1 / _s_l(51.5), 1 / _s_l(52.5))
     assert (c.title, c.subject_kind, c.status, c.value, c.unit) == (
         "Colour of the trial panel against the historic mortar", "zone", "pass",
-        round(de, 3), "")
+        round(de, 4), "")
     assert c.message == ("ΔE00 1.99 between the mean of 2 panel reading(s) and 3 of H9 "
                          "(threshold 2, project rule); trial panels judged dry decide")
     assert c.notes == COLOUR_NOTES_D65_FEW
@@ -770,7 +770,8 @@ def test_colour_of_neutral_greys_whole():
         ("R_T", "rotation term", 0.0)]
     assert diff.substituted.startswith(
         rf"\Delta E_{{00}} = \sqrt{{(-2.000/{_s_l(51.0):.3f})^2 + (")
-    assert diff.substituted.endswith(rf"\,\ldots}} = {de:.3f}")
+    # to 0.01, as its result line (SYMBOL_PRECISION)
+    assert diff.substituted.endswith(rf"\,\ldots}} = {round(de, 4):.2f}")
     q = c.quantities[0]
     assert (q.name, q.unit, q.label) == ("delta_e_2000", "", "CIEDE2000 difference")
     white = colour.CCS_ILLUMINANTS["CIE 1931 2 Degree Standard Observer"]["D65"]
@@ -949,9 +950,9 @@ def test_colour_difference_step_of_a_chromatic_pair_whole():
         round(dL, 4), round(dC, 4), round(dH, 4), f"{sl:.4f}, {sc:.4f}, {sh:.4f}", round(rt, 5)]
     assert step.substituted == (
         rf"\Delta E_{{00}} = \sqrt{{({dL:.3f}/{sl:.3f})^2 + ({dC:.3f}/{sc:.3f})^2"
-        rf" + ({dH:.3f}/{sh:.3f})^2 + ({rt:.4f})\,\ldots}} = {de:.3f}")
+        rf" + ({dH:.3f}/{sh:.3f})^2 + ({rt:.4f})\,\ldots}} = {round(de, 4):.2f}")
     assert (step.result, c.value, c.quantities[0].value["value"]) == (
-        round(de, 4), round(de, 3), round(de, 4))
+        round(de, 4), round(de, 4), round(de, 4))
     # the recorded means to 0.001 (the readings of each side are equal, so each mean is them)
     assert (c.quantities[0].value["panel_mean"], c.quantities[0].value["historic_mean"]) == (
         [52.346, -12.346, -20.432], [50.123, -10.988, -22.111])

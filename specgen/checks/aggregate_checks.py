@@ -13,6 +13,7 @@ from __future__ import annotations
 
 from specgen import refdata
 from specgen.checks import compatibility_common as cc
+from specgen.precision import by_symbol
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, Input, Quantity, Step, tex_name, worst
 from specgen.science import grading as gr
@@ -156,7 +157,8 @@ def _grading_step(name: str, g: gr.Grading, fm: float, src: str) -> Step:
                    for s, r, c, p in zip(g.sieves, g.retained, g.cumulative, g.passing))
     cum = " + ".join(f"{100 * c:.4g}" for c, s in zip(g.cumulative, g.sieves) if s >= 0.00015 - 1e-9)
     return Step(f"Fineness modulus of {name}", r"FM = \frac{\sum \text{cumulative \% retained}}{100}",
-                inputs, rf"FM = \frac{{{cum}}}{{100}} = {fm:.3f}", round(fm, 4), "", "FM")
+                inputs, rf"FM = \frac{{{cum}}}{{100}} = " + by_symbol(round(fm, 4), "FM"),
+                round(fm, 4), "", "FM")
 
 
 @register("COMP-GRAD", "Aggregate grading against the historic aggregate", "zone", order=550,
@@ -230,7 +232,7 @@ def _grading_one(pair, ctx):
     msg.append(f"within the {env['title']} envelope" if not out
                else "outside the envelope at " + "; ".join(out))
     if "repair" in fm and "historic" in fm:
-        msg.insert(0, f"FM {fm['repair']:.2f} (historic {fm['historic']:.2f})")
+        msg.insert(0, f"FM {by_symbol(fm['repair'], 'FM')} (historic {by_symbol(fm['historic'], 'FM')})")
     drawn = _envelope_curve(env)
     notes.append(f"envelope: {drawn['title']} — {drawn['source']}")
     return cc.result(code, title, pair, worst(statuses), round(100 * dev.rms, 3), "%",
