@@ -421,7 +421,7 @@ def test_salt_result_whole_by_the_wta_table(demo_checked):
     c = by_check(demo_checked[1])[("COMP-SALT", "Z2/M1")]
     assert (c.title, c.status, c.value, c.unit) == (
         "Salt load of the fabric", "attention", "high", "")
-    assert c.message == "high salt load (sulfate) (table wta_2_9)"
+    assert c.message == "high salt load (sulfate) (wta_2_9)"
     assert c.basis == (Basis("reference", "salt_summary_wta", WTA),)
     assert c.notes == (
         "high sulfate: its effect on the binder of M1 is assessed by DUR-ETT/Z2/M1 "
@@ -448,7 +448,7 @@ def test_salt_result_whole_by_the_wta_table(demo_checked):
     z3 = by_check(demo_checked[1])[("COMP-SALT", "Z3/M3")]
     # GS1 as above, HM1 (0.08, 0.01, 0.42 %): low, low, low; medium at most: pass
     assert (z3.status, z3.value, z3.message) == (
-        "pass", "medium", "no class above medium (table wta_2_9)")
+        "pass", "medium", "no class above medium (wta_2_9)")
     assert z3.steps[1].substituted == "chloride: low, nitrate: low, sulfate: low"
     assert z3.steps[1].result == 0.0
 
@@ -461,7 +461,7 @@ def test_salt_on_a_class_edge_and_an_ion_not_measured(demo_copy):
          'salts: {chloride: "0.5 %", sulfate: "0.82 %"')
     c = by_check(check(demo_copy)[1])[("COMP-SALT", "Z2/M1")]
     assert (c.status, c.value, c.message) == (
-        "attention", "high", "high salt load (chloride, sulfate) (table wta_2_9)")
+        "attention", "high", "high salt load (chloride, sulfate) (wta_2_9)")
     assert c.notes == (
         "nitrate of units GS1 not measured: not classified",
         "high sulfate: its effect on the binder of M1 is assessed by DUR-ETT/Z2/M1 "
@@ -588,7 +588,7 @@ def test_salt_on_the_edges_of_the_second_table_whole():
              "sulfate": "classes < 0.1 low, 0.1–0.25 medium, ≥ 0.25 high"}
     formula = r"\text{class} = \text{band of the table containing the content}"
     assert (c.status, c.value, c.unit, c.message) == (
-        "attention", "high", "", "high salt load (nitrate) (table onorm_b3355)")
+        "attention", "high", "", "high salt load (nitrate) (onorm_b3355)")
     assert c.basis == (Basis("reference", "salzwiki_measures", ONORM),)
     assert c.notes == (
         "nitrate of units U9 not measured: not classified",
@@ -620,7 +620,7 @@ def test_salt_of_units_alone_all_low_passes():
     note; a material measured with no ion gives no step and no class above low."""
     c = _salt_of((0.19, 0.09, 0.49), None, table="wta_2_9")[0]
     assert (c.status, c.value, c.message) == ("pass", "low",
-                                             "no class above medium (table wta_2_9)")
+                                             "no class above medium (wta_2_9)")
     assert len(c.notes) == 1 and c.notes[0].startswith("table: WTA salt-load table")
     assert [(s.title, s.substituted, s.result) for s in c.steps] == [
         ("Salt load of units U9 (WTA salt-load table for assessing masonry (low / medium / "

@@ -93,6 +93,18 @@ def test_every_source_of_the_demo_reads_as_words(demo_checked):
     assert not found, found
 
 
+@pytest.mark.parametrize("text, expected", [
+    # a key already followed by the rest of its label is not labelled twice
+    ("hyperbolic law chosen by AICc", "hyperbolic law chosen by AICc"),
+    ("model hyperbolic", "model hyperbolic law"),
+    # a range whose two ends are one number is that number; real ranges stay
+    ("limits 100–100 %", "limits 100 %"), ("2.5–2.5 MPa", "2.5 MPa"),
+    ("1–10 d", "1–10 d"), ("10–100 %", "10–100 %"), ("95–100 %", "95–100 %"),
+])
+def test_no_word_or_number_said_twice(text, expected):
+    assert plain(text) == expected
+
+
 def test_a_kind_without_a_unit_keeps_its_precision_on_the_sheet():
     # ΔE00 to 0.01 on every page (SYMBOL_PRECISION, common practice): the sheet's four
     # figures give way to the kind's rule

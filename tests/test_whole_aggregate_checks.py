@@ -326,7 +326,7 @@ def test_grading_against_an_envelope_on_another_sieve_series(demo_checked, monke
     # lab/sieves.csv): 100 % there is not a measurement on those sieves, and the sheet says so
     assert [(i.symbol, i.name, i.value) for i in step.inputs[:2]] == [
         ("P(8)", "passing 8 mm (above the analysis' largest sieve, 4.75 mm, which all passed), "
-                 "limits 100–100 %", 100.0),
+                 "limit 100 %", 100.0),    # one limit, not "100–100 %"
         ("P(5.6)", "passing 5.6 mm (above the analysis' largest sieve, 4.75 mm, which all "
                    "passed), limits 95–100 %", 100.0)]
     assert c.notes[1] == (

@@ -71,11 +71,17 @@ def _outside_pct(p: float, lo: float, hi: float) -> str:
     return f"{100 * p:.3f}"
 
 
+def _limits(lo: float, hi: float) -> str:
+    """``limits 95–100 %``, or ``limit 100 %`` when both are one (the whole sand passes)."""
+    low, high = f"{100 * lo:g}", f"{100 * hi:g}"
+    return f"limit {high} %" if low == high else f"limits {low}–{high} %"
+
+
 def _envelope_step(g: gr.Grading, cmp: gr.EnvelopeComparison, env: dict) -> Step:
     """The passing on the envelope's own sieves, read between the analysis' sieves where the
     two series differ (linear in the logarithm of the aperture)."""
     inputs = tuple(Input(f"P({s * 1000:g})", f"passing {s * 1000:g} mm ({_how_read(g, s, i)})"
-                         + f", limits {100 * lo:g}–{100 * hi:g} %", round(100 * p, 2), "%",
+                         + f", {_limits(lo, hi)}", round(100 * p, 2), "%",
                          "interpolated" if i else "lab/sieves.csv")
                    for s, p, lo, hi, i in zip(cmp.sieves, cmp.passing, cmp.low, cmp.high,
                                               cmp.interpolated or (False,) * len(cmp.sieves)))
@@ -225,7 +231,7 @@ def _grading_one(pair, ctx):
         notes.append(f"the historic aggregate was sieved on the {_series_name(hist.series)}"
                      ": its passing is read on the repair sand's sieves by the same "
                      "interpolation")
-    out = [f"{s * 1000:g} mm ({_outside_pct(pp, lo, hi)} % passing, limits {100 * lo:g}–{100 * hi:g} %)"
+    out = [f"{s * 1000:g} mm ({_outside_pct(pp, lo, hi)} % passing, {_limits(lo, hi)})"
            for s, pp, lo, hi, d in zip(cmp.sieves, cmp.passing, cmp.low, cmp.high, cmp.outside)
            if d > 1e-9]
     statuses.append("pass" if not out else "attention")

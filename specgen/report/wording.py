@@ -74,6 +74,8 @@ UNIT_TEXT = [
     (re.compile(r"min\^0\.5"), "min^½"),
     (re.compile(r"\s->\s"), " → "),
     (re.compile(r"(?<=\d) ?x ?(?=\d)"), " × "),
+    # a range whose ends are one number is that number ("100–100 %" reads "100 %")
+    (re.compile(r"(?<![\d.])(\d+(?:\.\d+)?)–\1(?![\d.])"), r"\1"),
 ]
 PLURALS = re.compile(r"\b(\d+(?:\.\d+)?) ((?:[a-z-]+ ){0,2}[a-z]+)\(s\)")
 MINUS = re.compile(r"(?<![\w.])-(?=\d)")
@@ -189,6 +191,14 @@ def _field(m: re.Match) -> str:
     return f"{m.group('label')[:-1]}, {text}⟧"
 
 
+def _key_label(m: re.Match) -> str:
+    """A key's label, unless the text already goes on with the rest of it ("hyperbolic law"
+    stays, not "hyperbolic law law")."""
+    label = KEY_LABELS[m.group(0)]
+    rest = label[len(m.group(0)):] if label.startswith(m.group(0)) else ""
+    return m.group(0) if rest and m.string.startswith(rest, m.end()) else label
+
+
 def typeset(text: str) -> str:
     """Units by their symbols, plurals right, true minus signs (no names changed)."""
     for pat, sym in UNIT_TEXT:
@@ -252,7 +262,7 @@ def plain(text: str) -> str:
     text = _FIELD_AFTER_FILE.sub(_field, text)
     text = _QUOTED_KEY.sub(lambda m: KEY_LABELS.get(m.group(1), m.group(1).replace("_", " ")),
                            text)
-    text = _KEY_WORD.sub(lambda m: KEY_LABELS[m.group(0)], text)
+    text = _KEY_WORD.sub(_key_label, text)
     text = typeset(text)
     text = text.replace("⟦", "").replace("⟧", "")
     return _SNAKE.sub(lambda m: m.group(0).replace("_", " ") if not SUBSCRIPT.fullmatch(
