@@ -10,7 +10,7 @@ from markupsafe import Markup, escape
 
 from specgen.checks.result import STATUS_WORDS
 from specgen.report.chapters import badge, chapter
-from specgen.report.fmt import anchor, as_given, date_text, num, qty, rounded, unit_symbol
+from specgen.report.fmt import anchor, as_given, date_text, qty, rounded, unit_symbol
 from specgen.report.specification_clauses import clause_context
 from specgen.report.wording import reader
 from specgen.views import applicable
