@@ -48,7 +48,7 @@ def test_exposure_class_of_each_demo_zone(demo):
         "Z1": "MX4 with MX3.1", "Z2": "MX4 with MX3.2", "Z3": "MX4 with MX3.2"}
     z3 = r[("DUR-EXPOSE", "Z3")]
     assert z3.status == "info" and z3.message.startswith(
-        "MX4 with MX3.2: splash: severe wetting; salt source: splash and wave overtopping; "
+        f"{MX32}: splash: severe wetting; salt source: splash and wave overtopping; "
         "tidal: severe wetting; salt source: tidal wetting and drying; severe wetting "
         "(MX2.2/MX3.2); freezing site and the masonry wet → freeze-thaw cycling → MX3.2")
     # the words read from the zone's free text are shown as the inputs' sources

@@ -105,6 +105,20 @@ def test_no_word_or_number_said_twice(text, expected):
     assert plain(text) == expected
 
 
+def test_a_list_of_symbols_gets_each_its_subscript():
+    # CIEDE2000's weighting functions S_L, S_C, S_H (Sharma, Wu & Dalal 2005), one per symbol
+    from specgen.report.wording import symbol
+    assert symbol("S_L, S_C, S_H") == "S<sub>L</sub>, S<sub>C</sub>, S<sub>H</sub>"
+    assert symbol("V_m,min") == "V<sub>m,min</sub>"       # a comma inside one subscript stays
+
+
+def test_a_negative_zero_reads_zero():
+    # ISO 80000-1: a sign belongs to a non-zero number (from memory); CIEDE2000's R_T of a
+    # pair with no blue hue rounds to −0.0 and reads 0
+    from specgen.report.fmt import as_given
+    assert as_given(-0.0) == "0" and as_given(-0.5) == "\u22120.5"
+
+
 def test_a_kind_without_a_unit_keeps_its_precision_on_the_sheet():
     # ΔE00 to 0.01 on every page (SYMBOL_PRECISION, common practice): the sheet's four
     # figures give way to the kind's rule

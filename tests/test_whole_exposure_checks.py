@@ -45,7 +45,8 @@ def test_exposure_of_the_sheltered_zone_whole(demo_checked):
         "DUR-EXPOSE", EXPOSE, "Z1", "zone", "info", "MX4 with MX3.1", "")
     assert c.basis == (EN1996,) and c.limit is None
     assert c.message == (
-        "MX4 with MX3.1: sheltered: moisture wetting; salt spray: moisture wetting; salt "
+        "MX4 with MX3.1 (saturated salt air, sea water or de-icing salts; moisture or wetting "
+        "plus freeze–thaw cycling): sheltered: moisture wetting; salt spray: moisture wetting; salt "
         "source: salt air or spray; moisture wetting (MX2.1/MX3.1); freezing site and the "
         "masonry wet → freeze-thaw cycling → MX3.1; salt air, sea water or de-icing salts → MX4")
     assert c.notes == ("dossier.yaml practice: european", WORDING)

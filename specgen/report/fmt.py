@@ -74,7 +74,7 @@ def rounded(value, unit_or_kind: str) -> str:
 def as_given(value) -> str:
     """An input value as the source gave it (no padding zeros), e.g. ``5.6``, ``0.2``."""
     if isinstance(value, (int, float)) and not isinstance(value, bool):
-        return _signed(f"{value:.6g}")
+        return _signed(f"{value + 0.0:.6g}")    # + 0.0: a negative zero reads 0, not −0
     return num(value)
 
 

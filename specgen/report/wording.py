@@ -303,7 +303,10 @@ def input_terms(text) -> Markup:
 
 
 def symbol(text: str) -> Markup:
-    """A symbol of a calculation (``f_k``, ``V_m,min``, ``x_repair``) with its subscript."""
+    """A symbol of a calculation (``f_k``, ``V_m,min``, ``x_repair``) with its subscript; a
+    list of symbols (``S_L, S_C, S_H``) each with its own."""
+    if ", " in (text or "") and all("_" in part for part in text.split(", ")):
+        return Markup(", ").join(symbol(part) for part in text.split(", "))
     out = str(escape(text or ""))
     m = re.fullmatch(r"([^_]+)_\{?(.+?)\}?", out)
     return Markup(f"{m.group(1)}<sub>{m.group(2)}</sub>" if m else out)
