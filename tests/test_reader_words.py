@@ -162,3 +162,15 @@ def test_register_message_and_sheet_read_the_same_number(demo_checked):
     # the demo's checks that state such a quantity in their message (not a vacuous pass)
     assert compared >= {"COMP-COLOUR", "CHEM-CI", "CHEM-HI", "CHEM-LSF", "CHEM-RATIOS",
                         "COMP-MOVE", "COMP-GRAD"}, compared
+
+
+def test_the_terminal_table_shows_the_colour_difference_as_the_dossier(demo_checked):
+    """`specgen check`'s table (textreport) shows COMP-COLOUR/Z2/M2's value by the same rule
+    as the register and its finding: ΔE00 to 0.01 (SYMBOL_PRECISION, common practice)."""
+    from specgen.textreport import table
+    _, results = demo_checked
+    line = next(ln for ln in table(results, wide=True).splitlines()
+                if ln.startswith("COMP-COLOUR") and " Z2/M2 " in ln)
+    value = line.split("attention", 1)[1].split()[0]
+    assert value == rounded(results.check("COMP-COLOUR", "Z2/M2").value, "ΔE00")
+    assert re.fullmatch(r"\d+\.\d\d", value) and f"ΔE00 {value} between" in line

@@ -40,7 +40,7 @@ PROPERTIES = (("compressive_strength", "compressive strength", 1e-6, "MPa"),
 def _cell(c) -> dict:
     if c is None:
         return {"badge": "—", "value": "", "href": ""}
-    value = "" if c.status == "not_assessed" or c.value is None else qty(c.value, c.unit, 3)
+    value = "" if c.status == "not_assessed" or c.value is None else qty(c.value, c.unit, 3, c.value_symbol)
     return {"badge": badge(c.status), "value": value,
             "href": f"calculations.md#{sheet_anchor(c)}"}
 

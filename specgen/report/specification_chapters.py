@@ -26,7 +26,8 @@ def _href(key: str) -> str:
 def _cell(c) -> dict:
     if c is None:
         return {"badge": Markup("—"), "value": "", "href": ""}
-    value = "" if c.status == "not_assessed" or c.value is None else qty(c.value, c.unit)
+    value = "" if c.status == "not_assessed" or c.value is None else qty(
+        c.value, c.unit, kind=c.value_symbol)
     return {"badge": Markup(badge(c.status)), "value": value, "href": _href(c.key)}
 
 
