@@ -296,7 +296,9 @@ def _movement_one(pair, ctx):
                           rf"\delta = \frac{{|{rep:g} - {fab:g}|}}{{{fab:g}}} = " + by_symbol(round(dev, 5), "δ"),
                           round(dev, 5), "", "δ"))
         statuses.append("pass" if dev <= tol else "attention")
-        words.append(f"{kind} {rep:g} vs {fab:g} {u} (δ = {by_symbol(round(dev, 5), 'δ')})")
+        # "10 vs 6 × 10⁻⁶/K": a unit that opens with a number is a factor, not a second value
+        shown = f"× {u}" if u[0].isdigit() else u
+        words.append(f"{kind} {rep:g} vs {fab:g} {shown} (δ = {by_symbol(round(dev, 5), 'δ')})")
     return cc.result(code, title, pair, worst(statuses), steps[0].result, "",
                      [cc.rule_basis(ctx, "movement_tolerance")],
                      "; ".join(words) + f"; tolerance {tol:g}", steps=steps, notes=notes,
