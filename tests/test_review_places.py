@@ -264,3 +264,65 @@ def test_comment_on_a_figure_and_a_table_row_in_the_browser(demo_build, demo_cop
     result = cli("import-comments", demo_copy, strength_json, "--out", demo_build)
     assert result.exit_code == 0, result.output
     assert "C5" in result.output
+
+
+@pytest.mark.e2e
+def test_a_figure_commented_on_with_the_keyboard_alone(demo_build, tmp_path):
+    """No mouse: Tab to the skip link that opens the panel, choose a figure from the list of places with the
+    arrow keys, type, save and export with Enter; axe-core finds no WCAG 2.1 A/AA violation
+    in the open panel of a page with figures."""
+    playwright = pytest.importorskip("playwright.sync_api")
+    axe = pytest.importorskip("axe_playwright_python.base")
+    if not shutil.which("chromium"):
+        pytest.skip("Debian chromium is not installed")
+    with playwright.sync_playwright() as pw:
+        browser = pw.chromium.launch(executable_path=CHROMIUM, args=ARGS)
+        page = browser.new_page(accept_downloads=True)
+        page.goto((demo_build / "R3" / "compatibility.html").as_uri())
+        # the button comes after every link of the chapter; a skip link near the start of
+        # the page, after "Skip to content", opens the panel
+        for presses in range(1, 4):
+            page.keyboard.press("Tab")
+            if page.evaluate("document.activeElement.classList.contains('sg-review-skip')"):
+                break
+        else:
+            pytest.fail("no 'Skip to review comments' link within three Tab presses")
+        assert page.evaluate("document.activeElement.textContent") == "Skip to review comments"
+        page.keyboard.press("Enter")
+        assert page.evaluate("document.activeElement.id") == "sg-review-title"
+        page.keyboard.press("Tab")                # the list of places
+        assert page.evaluate("document.activeElement.id") == "sg-review-anchor"
+        options = page.evaluate("[...document.querySelectorAll('#sg-review-anchor option')]"
+                                ".map(o => [o.value, o.textContent])")
+        first_figure = next(i for i, (value, _) in enumerate(options) if value.startswith("fig-"))
+        for _ in range(first_figure):
+            page.keyboard.press("ArrowDown")
+        chosen = page.input_value("#sg-review-anchor")
+        assert chosen == options[first_figure][0]
+        for _ in range(3):                        # quote, category, comment
+            page.keyboard.press("Tab")
+        page.keyboard.type("The grading envelope should be named on this figure.")
+        page.keyboard.press("Tab")
+        page.keyboard.type("Historic environment officer")
+        page.add_script_tag(path=str(axe.AXE_FILE_PATH))
+        found = page.evaluate("""async () => (await axe.run(
+            document.getElementById('sg-review-panel'),
+            {runOnly: {type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa']}}
+            )).violations.map(v => v.id + ': ' + v.nodes.length)""")
+        assert page.evaluate("document.activeElement.id") == "sg-review-author"
+        for _ in range(3):                        # organisation, role, Save comment
+            page.keyboard.press("Tab")
+        page.keyboard.press("Enter")
+        assert "Comment saved" in page.inner_text(".sg-review-status")
+        for _ in range(2):                        # past the saved comment's delete button
+            page.keyboard.press("Tab")
+        assert page.evaluate("document.activeElement.classList.contains('sg-review-export')")
+        with page.expect_download() as download:
+            page.keyboard.press("Enter")
+        saved = tmp_path / "keyboard.json"
+        download.value.save_as(saved)
+        browser.close()
+    assert found == []
+    [comment] = json.loads(saved.read_text())["comments"]
+    assert comment["anchor"] == chosen and comment["page"] == "compatibility"
+    assert comment["text"] == "The grading envelope should be named on this figure."

@@ -144,6 +144,13 @@
   [title, intro, form, status, list, exportButton, closeButton].forEach(function (n) { panel.appendChild(n); });
   document.body.appendChild(toggle);
   document.body.appendChild(panel);
+  /* The button comes last in the page, after every link of a long chapter: a link at the
+   * start, shown when it has the keyboard's focus (as "Skip to content" is), opens the panel. */
+  var jump = el("a", {href: "#sg-review-panel", "class": "sg-review-skip"},
+                "Skip to review comments");
+  var skip = document.querySelector(".md-skip");
+  if (skip) { skip.parentNode.insertBefore(jump, skip.nextSibling); }
+  else { document.body.insertBefore(jump, document.body.firstChild); }
 
   function fillSections(selected) {
     section.textContent = "";
@@ -197,6 +204,7 @@
     toggle.focus();
   }
   toggle.addEventListener("click", function () { if (panel.hidden) { open(); } else { close(); } });
+  jump.addEventListener("click", function (e) { e.preventDefault(); open(); });
   closeButton.addEventListener("click", close);
   panel.addEventListener("keydown", function (e) { if (e.key === "Escape") { close(); } });
   form.addEventListener("submit", function (e) {
