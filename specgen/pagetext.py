@@ -26,6 +26,10 @@ class _Reader(html.parser.HTMLParser):
         self._skip = 0
         self._in = None          # ("heading", level) or ("element", depth) while in the section
         self._done = False
+        self.tag = ""            # the anchored element's tag
+        self.label: list[str] = []   # what names it: a heading's words, a figure's caption,
+        self._label = None           # a row's first cells (the tag whose text is being read)
+        self._cells = 0
 
     def handle_starttag(self, tag, attrs):
         found = dict(attrs).get("id")
@@ -39,8 +43,20 @@ class _Reader(html.parser.HTMLParser):
             self._in = ("element", self._in[1] + 1)
         if not self._done and self._in is None and self.anchor and found == self.anchor:
             self._in = ("heading", int(tag[1])) if tag in HEADINGS else ("element", 1)
+            self.tag = tag
+            if tag in HEADINGS:
+                self._label = tag
+        elif self._in and self._label is None and (
+                (self.tag == "tr" and tag in ("td", "th") and self._cells < 2)
+                or (self.tag == "figure" and tag == "figcaption" and not self.label)):
+            self._label = tag
+            self._cells += 1
+            if self._cells == 2:
+                self.label.append(" · ")
 
     def handle_endtag(self, tag):
+        if tag == self._label:
+            self._label = None
         if tag in ("script", "style") and self._skip:
             self._skip -= 1
         if self._in and self._in[0] == "element":
@@ -54,6 +70,8 @@ class _Reader(html.parser.HTMLParser):
         self.parts.append(data)
         if self._in:
             self.section.append(data)
+        if self._label:
+            self.label.append(data)
 
 
 def read(page_html: str, anchor: str | None = None) -> _Reader:
@@ -75,6 +93,20 @@ def section_text(page_html: str, anchor: str) -> str | None:
     if anchor not in r.ids:
         return None
     return " ".join(" ".join(r.section).split())
+
+
+def anchor_label(page_html: str, anchor: str) -> str | None:
+    """What names the element with id ``anchor``: a heading's words, "Figure: <caption>",
+    "Table row: <first two cells>"; ``None`` if no element has that id."""
+    r = read(page_html, anchor)
+    if anchor not in r.ids:
+        return None
+    words = " ".join("".join(r.label).split()).strip(" ·")
+    if r.tag == "figure":
+        return f"Figure: {words}" if words else "a figure"
+    if r.tag == "tr":
+        return f"Table row: {words}" if words else "a table row"
+    return words or "a passage"
 
 
 def squeeze(text: str) -> str:

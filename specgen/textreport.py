@@ -10,14 +10,17 @@ import shutil
 import textwrap
 
 from specgen.checks.result import STATUS_WORDS
+from specgen.precision import SYMBOL_PRECISION, by_symbol
 
 MIN_FINDING = 30   # below this many columns for the finding, wrap under the whole line instead
 
 
-def _fmt(value, unit: str) -> str:
+def _fmt(value, unit: str, kind: str = "") -> str:
     if value is None:
         return "—"
-    if isinstance(value, float):
+    if isinstance(value, float) and kind in SYMBOL_PRECISION:
+        value = by_symbol(value, kind)    # as the dossier shows it (ΔE00 6.35)
+    elif isinstance(value, float):
         value = f"{value:.4g}"
     return f"{value} {unit}".strip()
 
@@ -26,7 +29,8 @@ def table(results, *, width: int | None = None, wide: bool = False) -> str:
     """One row per check: code, subject, status word, value, finding (wrapped, never cut)."""
     width = width or shutil.get_terminal_size((120, 20)).columns
     rows = [("CHECK", "SUBJECT", "STATUS", "VALUE", "FINDING")]
-    rows += [(c.code, c.subject, STATUS_WORDS[c.status], _fmt(c.value, c.unit), c.message)
+    rows += [(c.code, c.subject, STATUS_WORDS[c.status], _fmt(c.value, c.unit, c.value_symbol),
+              c.message)
              for c in results.checks]
     widths = [max(len(r[i]) for r in rows) for i in range(4)]
     offset = sum(widths) + 2 * 4

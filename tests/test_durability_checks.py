@@ -13,6 +13,13 @@ from tests.helpers import by_check, edit
 
 pytestmark = pytest.mark.costly(17)   # CPU s (tests/conftest.py)
 
+#: the demo's designations with what their classes mean (content/data/exposure_classes.yaml,
+#: EN 1996-2 wording, tagged memory there)
+MX31 = ("MX4 with MX3.1 (saturated salt air, sea water or de-icing salts; moisture or wetting "
+        "plus freeze–thaw cycling)")
+MX32 = ("MX4 with MX3.2 (saturated salt air, sea water or de-icing salts; severe wetting plus "
+        "freeze–thaw cycling)")
+
 
 def _run_bad(cli, project) -> str:
     result = cli("check", project)
@@ -43,7 +50,7 @@ def test_exposure_class_of_each_demo_zone(demo):
         "Z1": "MX4 with MX3.1", "Z2": "MX4 with MX3.2", "Z3": "MX4 with MX3.2"}
     z3 = r[("DUR-EXPOSE", "Z3")]
     assert z3.status == "info" and z3.message.startswith(
-        "MX4 with MX3.2: splash: severe wetting; salt source: splash and wave overtopping; "
+        f"{MX32}: splash: severe wetting; salt source: splash and wave overtopping; "
         "tidal: severe wetting; salt source: tidal wetting and drying; severe wetting "
         "(MX2.2/MX3.2); freezing site and the masonry wet → freeze-thaw cycling → MX3.2")
     # the words read from the zone's free text are shown as the inputs' sources
@@ -93,13 +100,14 @@ def test_frost_requirement_against_the_mix(demo):
     # MX4 → the severe regime: 50 cycles, mass loss ≤ 5 %, strength loss ≤ 20 % (common
     # practice); demo M1: 50 cycles, 1.8 %, 14 %
     assert m1.status == "pass" and m1.value == 50 and m1.limit.low == 50
-    assert m1.message == ("MX4 with MX3.1: 50 of 50 cycles; mass loss 1.8 % (limit 5 %); "
+    # the class with its words (content/data/exposure_classes.yaml, EN 1996-2 wording)
+    assert m1.message == (f"{MX31}: 50 of 50 cycles; mass loss 1.8 % (limit 5 %); "
                           "strength loss 14 % (limit 20 %)")
     air = {i.symbol: i for i in m1.steps[0].inputs}["a"]
     assert air.value == 4.5 and air.source == "mixes.yaml M1.air_content (measured)"
     m3 = r[("DUR-FROST", "Z3/M3")]
     assert m3.status == "hold" and m3.message.startswith(
-        "MX4 with MX3.2 asks for a declared freeze–thaw resistance; M3 has none: commission at "
+        f"{MX32} asks for a declared freeze–thaw resistance; M3 has none: commission at "
         "least 50 cycles on water-saturated prisms 40 × 40 × 160 mm by the provisions valid at "
         "the place of use (EN 998-2 gives no European method), reporting mass loss and strength "
         "loss against unfrozen companions — the indicators weigh")
@@ -159,7 +167,7 @@ def test_passed_frost_test_with_too_little_air_is_attention(demo_copy):
     c = by_check(r)[("DUR-FROST", "Z1/M1")]
     # 3 % < 4 % (frost_air_min, common practice): the passed test stands, the air does not
     assert c.status == "attention" and c.message == (
-        "MX4 with MX3.1: 50 of 50 cycles; mass loss 1.8 % (limit 5 %); strength loss 14 % "
+        f"{MX31}: 50 of 50 cycles; mass loss 1.8 % (limit 5 %); strength loss 14 % "
         "(limit 20 %); the test passed but the indicators weigh against the mix: air content "
         "3 % < 4 % — keep the site mix to the tested one and protect the young work from frost")
 
@@ -180,8 +188,8 @@ def test_moderate_frost_deemed_to_satisfy_only_on_measured_indicators(demo_copy)
     _, r = check(demo_copy)
     c = by_check(r)[("DUR-FROST", "Z1/M2")]
     assert c.status == "attention" and c.message.startswith(
-        "MX3.1: no freeze–thaw test, but binder class, measured air content and 28-d strength "
-        "all meet the minima of common practice for moderate frost: deemed to satisfy; at least "
+        "MX3.1 (moisture or wetting plus freeze–thaw cycling): no freeze–thaw test, but binder "
+        "class, measured air content and 28-d strength all meet the minima of common practice for moderate frost: deemed to satisfy; at least "
         "25 cycles")
     assert "tests_asked" not in r.quantities.get("Z1/M2", {}) or not any(
         t["check"] == "DUR-FROST" for t in r.quantities["Z1/M2"]["tests_asked"].value)
@@ -500,7 +508,7 @@ def test_missing_measurements_are_never_a_silent_pass(demo_copy):
         "phenolphthalein" in carb.message
     ft = c[("DUR-FROST", "Z2/M1")]
     assert ft.status == "hold" and ft.message.startswith(
-        "MX4 with MX3.2: 50 of 50 cycles; no mass or strength loss reported — complete the "
+        f"{MX32}: 50 of 50 cycles; no mass or strength loss reported — complete the "
         "test: at least 50 cycles")
     assert {s.status for k, s in c.items() if k[0].startswith("DUR-")} >= {"hold", "not_assessed"}
 

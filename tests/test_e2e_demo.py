@@ -112,7 +112,9 @@ def test_summary_fits_two_pages_and_the_main_volume_is_short(demo_build, demo_pd
     # the cost where the zone gives its wall area: Z1 and Z2 (demo dossier.yaml); Z3, the
     # rebedding of blocks, gives none
     assert summary.count("Cost of the mortar:") == 2
-    assert len(reader.pages) <= 66, len(reader.pages)   # "about 60" (issue 21)
+    # "about 60" (issue 21); 66 until the demo's fourth review comment (made on R2's site,
+    # answered in R3, its passage's old and new text shown) ran chapter 11 onto a second page
+    assert len(reader.pages) <= 67, len(reader.pages)
     # the site mirrors the split: the appendix chapters in a section of their own, and both
     # volumes linked from the report bar of every page
     page = (demo_build / REV / "index.html").read_text(encoding="utf-8")

@@ -88,7 +88,7 @@ def test_a_comment_about_an_unknown_page_is_refused(demo_copy, cli):
     path.write_text(path.read_text().replace("about: composition", "about: fabrik"))
     result = cli("check", demo_copy)
     assert result.exit_code == 2
-    assert ("comments.yaml, line 25: comments[2].about: comment 'C3' is about 'fabrik', which is "
+    assert ("comments.yaml, line 28: comments[2].about: comment 'C3' is about 'fabrik', which is "
             "neither a check code nor a page of the dossier. Fix: did you mean 'fabric'?"
             ) in result.output
 
@@ -131,7 +131,7 @@ def test_import_appends_once_and_keeps_the_file_layout(demo_build, demo_copy, cl
     before = (demo_copy / "comments.yaml").read_text()
     first = cli("import-comments", demo_copy, _write(tmp_path, doc), "--out", demo_build)
     assert first.exit_code == 0, first.output
-    assert "1 new comment added to" in first.output and first.output.rstrip().endswith(": C4")
+    assert "1 new comment added to" in first.output and first.output.rstrip().endswith(": C5")
     after = (demo_copy / "comments.yaml").read_text()
     assert after.startswith(before)            # the specifier's file and its notes untouched
     again = cli("import-comments", demo_copy, _write(tmp_path, doc), "--out", demo_build)
@@ -139,7 +139,7 @@ def test_import_appends_once_and_keeps_the_file_layout(demo_build, demo_copy, cl
     assert (demo_copy / "comments.yaml").read_text() == after
     from specgen.build import check
     project, _ = check(demo_copy)
-    c = {c.id: c for c in project.comments}["C4"]
+    c = {c.id: c for c in project.comments}["C5"]
     assert (c.about, c.anchor, c.category, c.author, c.raised_in, c.status) == (
         "specification", doc["comments"][0]["anchor"], "required change", "A. Reviewer", REV, "open")
 

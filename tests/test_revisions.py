@@ -49,7 +49,7 @@ def test_first_revision_says_so(demo_build):
 
 def test_comment_page_and_summary_count(demo_build):
     page = (demo_build / "R3" / "comments.html").read_text()
-    assert "2 open, 1 closed." in page
+    assert "2 open, 2 closed." in page
     assert 'href="calculations.html#calc-chem-ci-nhl-a"' in page
     assert "<strong>Open review comments:</strong> 2" in (demo_build / "R3" / "index.html").read_text()
 
@@ -92,7 +92,7 @@ def test_comment_naming_unknown_check(demo_copy, cli):
     path.write_text(path.read_text().replace("about: CHEM-CI/NHL-A", "about: CHEM-CJ"))
     result = cli("check", demo_copy)
     assert result.exit_code == 2
-    assert ("comments.yaml, line 17: comments[1].about: comment 'C2' is about 'CHEM-CJ', which is "
+    assert ("comments.yaml, line 19: comments[1].about: comment 'C2' is about 'CHEM-CJ', which is "
             "neither a check code nor a page of the dossier. Fix: did you mean 'CHEM-CI'?") in result.output
 
 
@@ -101,6 +101,9 @@ def test_revision_code_colliding_with_archive(demo_copy, cli):
     path.write_text(path.read_text().replace("  code: R3\n", "  code: r2\n"))
     # specification.yaml records a hold point released in R3, which r2 no longer is
     (demo_copy / "specification.yaml").unlink()
+    # and a comment closed in R3 is closed in r2 now
+    comments = demo_copy / "comments.yaml"
+    comments.write_text(comments.read_text().replace("closed_in: R3", "closed_in: r2"))
     result = cli("build", demo_copy, "--out", demo_copy.parent / "o", "--quiet")
     assert result.exit_code == 2
     assert "revision 'r2' is already issued in issued/R2/." in result.output

@@ -65,7 +65,7 @@ def test_grading_of_m1_in_zone_z1_whole(demo_checked):
         r"FM = \frac{\sum \text{cumulative \% retained}}{100}", "", "FM")
     assert repair.result == pytest.approx(_fm(blend), abs=6e-5)
     assert repair.substituted == ("FM = \\frac{0 + 5.769 + 23.13 + 46.77 + 73.13 + 90.77}{100} "
-                                  "= 2.396")
+                                  "= 2.40")   # FM to 0.01 on every page (SYMBOL_PRECISION)
     src = f"lab/sieves.csv, blended by mass S1 0.681, S2 0.319 ({DENS})"
     cum = 0.0
     for i, (s, p) in enumerate(zip(SIEVES, blend)):
@@ -78,7 +78,7 @@ def test_grading_of_m1_in_zone_z1_whole(demo_checked):
         assert repair.inputs[i].value == pytest.approx(round(p, 2), abs=1e-9)
     assert (hist.title, hist.substituted, hist.result) == (
         "Fineness modulus of historic aggregate HM1-agg",
-        "FM = \\frac{0 + 5 + 21 + 45 + 72 + 91}{100} = 2.340", 2.34)
+        "FM = \\frac{0 + 5 + 21 + 45 + 72 + 91}{100} = 2.34", 2.34)
     assert {i.source for i in hist.inputs} == {"lab/sieves.csv"}
     assert (dev.title, dev.unit, dev.symbol) == ("Difference from the historic aggregate", "%",
                                                  "Δ_rms")
@@ -326,7 +326,7 @@ def test_grading_against_an_envelope_on_another_sieve_series(demo_checked, monke
     # lab/sieves.csv): 100 % there is not a measurement on those sieves, and the sheet says so
     assert [(i.symbol, i.name, i.value) for i in step.inputs[:2]] == [
         ("P(8)", "passing 8 mm (above the analysis' largest sieve, 4.75 mm, which all passed), "
-                 "limits 100–100 %", 100.0),
+                 "limit 100 %", 100.0),    # one limit, not "100–100 %"
         ("P(5.6)", "passing 5.6 mm (above the analysis' largest sieve, 4.75 mm, which all "
                    "passed), limits 95–100 %", 100.0)]
     assert c.notes[1] == (

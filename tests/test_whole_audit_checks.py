@@ -48,7 +48,8 @@ def test_aud_clause_limit_of_the_demo_whole(demo_checked):
         expected.append(Finding(
             "AUD-CLAUSE-LIMIT", "Clause limit against the chosen mortar",
             f"clause 7 of zone {zid} (Acceptance criteria: appearance) states ΔE00 ≤ 2, but the "
-            f"chosen mortar M2 gives {col.value:g} (COMP-COLOUR/{zid}/M2: attention), and the "
+            # ΔE00 as its sheet and register show it, to 0.01 (SYMBOL_PRECISION)
+            f"chosen mortar M2 gives {col.value:.2f} (COMP-COLOUR/{zid}/M2: attention), and the "
             "selection's justification does not name that check.",
             (f"specification: zone {zid}, clause 7", f"calculation sheet COMP-COLOUR/{zid}/M2",
              f"specification.yaml, line {lines[zid]}: selections[{i}].covers"),

@@ -131,7 +131,7 @@ def test_firing_record_of_nc1_whole(demo_checked):
         r"500 \le 900 \le 930 < 1250", 930.0, "°C", "T_peak")
     assert peak.inputs[:4] == (
         Input("T_{peak}", "peak kiln temperature", 930.0, "°C",
-              "materials.yaml, binder NC1, firing.peak"),
+              "materials.yaml binders NC1.firing.peak"),
         Input("T_{dehyd}", "clay dehydroxylation (from–to)", "500–650", "°C", stages),
         Input("T_{calc}", "calcite decomposition (from–to)", "800–900", "°C", stages),
         Input("T_{NC}", "usual natural-cement firing range (from–to)", "750–1100", "°C", stages))

@@ -277,13 +277,15 @@ def test_comp_move_of_z2_m2_thermal_and_hygric(demo_checked):
               "materials.yaml mortar_properties M2"),
         Input("α_fabric", "units GS1 thermal expansion", pytest.approx(11.0), "10⁻⁶/K",
               "materials.yaml GS1"))
-    assert th.substituted == rf"\delta = \frac{{|10 - 11|}}{{11}} = {1 / 11:.4f}"
+    # δ to 0.01 on every page (SYMBOL_PRECISION), its substitution as its result line
+    assert th.substituted == rf"\delta = \frac{{|10 - 11|}}{{11}} = {1 / 11:.2f}"
     assert th.result == pytest.approx(round(1 / 11, 5), abs=1e-12)
     assert (hy.title, hy.inputs[0].unit, hy.inputs[1].name) == (
         "Relative difference of hygric expansion", "mm/m", "units GS1 hygric expansion")
     assert hy.result == pytest.approx(0.25, abs=1e-9)
     assert c.value == th.result
-    assert c.message == "thermal 10 vs 11 10⁻⁶/K (δ = 0.09); hygric 0.3 vs 0.4 mm/m (δ = 0.25); tolerance 0.5"
+    assert c.message == ("thermal 10 vs 11 × 10⁻⁶/K (δ = 0.09); hygric 0.3 vs 0.4 mm/m "
+                         "(δ = 0.25); tolerance 0.5")
     assert c.notes == ()
     assert (c.limit.compare, c.limit.high, c.limit.text, c.limit.rule) == (
         "<=", 0.5, "δ ≤ 0.5", "compatibility.movement_tolerance")
@@ -296,7 +298,7 @@ def test_comp_move_of_z1_m2_beyond_the_tolerance_and_missing(demo_checked):
     c = results.check("COMP-MOVE", "Z1/M2")
     assert (c.status, c.value) == ("attention", round(4 / 6, 5))
     assert c.notes == ("hygric expansion not compared: not given for both",)
-    assert c.message == "thermal 10 vs 6 10⁻⁶/K (δ = 0.67); tolerance 0.5"
+    assert c.message == "thermal 10 vs 6 × 10⁻⁶/K (δ = 0.67); tolerance 0.5"
     pair = _pair(project, "Z1", "M2")
     bare = type(pair)(**{**pair.__dict__,
                          "props": pair.props.model_copy(update={"thermal_expansion": None})})

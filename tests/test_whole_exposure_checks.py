@@ -45,7 +45,8 @@ def test_exposure_of_the_sheltered_zone_whole(demo_checked):
         "DUR-EXPOSE", EXPOSE, "Z1", "zone", "info", "MX4 with MX3.1", "")
     assert c.basis == (EN1996,) and c.limit is None
     assert c.message == (
-        "MX4 with MX3.1: sheltered: moisture wetting; salt spray: moisture wetting; salt "
+        "MX4 with MX3.1 (saturated salt air, sea water or de-icing salts; moisture or wetting "
+        "plus freeze–thaw cycling): sheltered: moisture wetting; salt spray: moisture wetting; salt "
         "source: salt air or spray; moisture wetting (MX2.1/MX3.1); freezing site and the "
         "masonry wet → freeze-thaw cycling → MX3.1; salt air, sea water or de-icing salts → MX4")
     assert c.notes == ("dossier.yaml practice: european", WORDING)
@@ -82,8 +83,10 @@ def test_frost_of_a_tested_mix_whole(demo_checked):
     c = by_check(demo_checked[1])[("DUR-FROST", "Z1/M1")]
     assert (c.title, c.status, c.value, c.unit) == (FROST, "pass", 50, "cycles")
     assert c.basis == (EN998, SEVERE, PRACTICE)
-    assert c.message == ("MX4 with MX3.1: 50 of 50 cycles; mass loss 1.8 % (limit 5 %); "
-                         "strength loss 14 % (limit 20 %)")
+    # the class with what it means (content/data/exposure_classes.yaml, EN 1996-2 wording)
+    assert c.message == ("MX4 with MX3.1 (saturated salt air, sea water or de-icing salts; "
+                         "moisture or wetting plus freeze–thaw cycling): 50 of 50 cycles; mass "
+                         "loss 1.8 % (limit 5 %); strength loss 14 % (limit 20 %)")
     assert (c.limit.compare, c.limit.low, c.limit.text, c.limit.rule) == (
         ">=", 50.0, "N ≥ 50 cycles", "durability.frost_cycles_severe")
     ind, test = c.steps
@@ -120,7 +123,9 @@ def test_frost_of_an_untested_lime_mix_is_held_whole(demo_checked):
     c = by_check(demo_checked[1])[("DUR-FROST", "Z1/M3")]
     assert (c.title, c.status, c.value, c.unit, c.limit) == (FROST, "hold", None, "", None)
     assert c.message.startswith(
-        "MX4 with MX3.1 asks for a declared freeze–thaw resistance; M3 has none: commission "
+        "MX4 with MX3.1 (saturated salt air, sea water or de-icing salts; moisture or wetting "
+        "plus freeze–thaw cycling) asks for a declared freeze–thaw resistance; M3 has none: "
+        "commission "
         + method(50) + " — the indicators weigh against the mix: lime class 3.5 < 5; 28-d "
         "strength ")
     (step,) = c.steps
@@ -240,6 +245,7 @@ def test_frost_untested_moderate_deemed_to_satisfy(demo_checked):
     mix = _mix(demo_checked, air=0.04)
     c = _frost(demo_checked, _pair(mix), exposure=MODERATE, f28=1.0)
     assert (c.title, c.status, c.value, c.unit) == (FROST, "attention", None, "")
+    # a hand-made exposure without its classes: the designation alone
     assert c.message == ("MX3.1: no freeze–thaw test, but binder class, measured air content and "
                          "28-d strength all meet the minima of common practice for moderate "
                          "frost: deemed to satisfy; " + method(25) + " would confirm it")

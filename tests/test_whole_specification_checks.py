@@ -36,7 +36,7 @@ def test_spec_cost_whole_from_the_price_schedule(demo_checked):
     c = P/Q × V/A with V of WORKS-QTY/Z1 and A = 240 m² (dossier.yaml): 1650 × V / 240."""
     project, results = demo_checked
     v = results.quantities["Z1"]["mortar_volume"].value
-    for i, (mix, price) in enumerate((("M1", 1650.0), ("M2", 1480.0), ("M3", 1320.0))):
+    for mix, price in (("M1", 1650.0), ("M2", 1480.0), ("M3", 1320.0)):
         c = results.check("SPEC-COST", f"Z1/{mix}")
         cost = price / 1.0 * v / 240.0           # the formula above, by hand
         assert (c.title, c.status, c.unit, c.basis) == (
@@ -47,7 +47,7 @@ def test_spec_cost_whole_from_the_price_schedule(demo_checked):
             "Cost per m² of wall", r"c = \frac{P}{Q}\,\frac{V}{A}", "GBP/m²", "c")
         assert step.inputs == (
             Input("P", f"price of {mix}", price, "GBP", "harbour works price schedule 2026 (invented)"),
-            Input("Q", "priced quantity", 1.0, "m³", f"specification.yaml unit_prices[{i}].per"),
+            Input("Q", "priced quantity", 1.0, "m³", f"specification.yaml unit_prices {mix}.per"),
             Input("V", "mortar volume with wastage", v, "m³", "WORKS-QTY/Z1"),
             Input("A", "wall area", 240.0, "m²", "dossier.yaml Z1.area"))
         assert step.substituted == (rf"c = \frac{{{price:g}}}{{1}} \times \frac{{{v:g}}}{{240}} "

@@ -37,7 +37,7 @@ def _zone(project, zid):
 
 def test_spec_panel_of_the_demo_whole(demo_checked):
     """specification.yaml: Z1 chooses M2 and TP2 (M2, Z1, 2026-09-15) was accepted judged dry
-    (trial_panels[1]): pass, 1 of 1; TP1 is of M1, not counted.  Z2 chooses M2: TP4 (Z2)
+    (trial_panels TP2): pass, 1 of 1; TP1 is of M1, not counted.  Z2 chooses M2: TP4 (Z2)
     pending: attention; TP2 is of zone Z1, not Z2.  Z3 chooses M3: TP3 pending."""
     _, results = demo_checked
     z1 = results.check("SPEC-PANEL", "Z1")
@@ -48,7 +48,7 @@ def test_spec_panel_of_the_demo_whole(demo_checked):
         "Trial panels of M2", r"\mathrm{accepted} \wedge \mathrm{judged\ dry}",
         r"1\ \mathrm{of}\ 1", 1, "", "n")
     assert step.inputs == (Input("TP2", "panel of M2 at inner face, bay 3, middle",
-                                 "accepted, judged dry", "", "specification.yaml trial_panels[1]"),)
+                                 "accepted, judged dry", "", "specification.yaml trial_panels TP2"),)
     assert z1.message == "TP2 of M2 accepted, judged dry"
     assert [(q.name, q.value, q.unit, q.label) for q in z1.quantities] == [
         ("trial_panel", {"TP2": {"judgement": "accepted", "judged_dry": True,
@@ -58,7 +58,7 @@ def test_spec_panel_of_the_demo_whole(demo_checked):
         "attention", 0, "no panel of M2 accepted when dry yet (TP4 pending)")
     assert z2.steps[0].inputs == (
         Input("TP4", "panel of M2 at parapet, coping band beside the lamp standard", "pending", "",
-              "specification.yaml trial_panels[3]"),)
+              "specification.yaml trial_panels TP4"),)
     assert z2.steps[0].substituted == r"0\ \mathrm{of}\ 1"
     assert z2.quantities[0].value == {"TP4": {"judgement": "pending", "judged_dry": False,
                                               "date": "2026-11-10"}}
@@ -80,8 +80,9 @@ def test_spec_panel_rejected_wet_none_and_no_selection(demo_checked):
     assert (c.code, c.status, c.value) == ("SPEC-PANEL", "attention", 0)
     assert c.message == ("no panel of M2 accepted when dry yet (TP2 accepted, judged before it "
                          "was dry; TP9 rejected, judged dry)")
-    assert [i.source for i in c.steps[0].inputs] == ["specification.yaml trial_panels[1]",
-                                                     "specification.yaml trial_panels[2]"]
+    # each panel by its id (TP2, and TP9 that replaced TP3's place), not its position
+    assert [i.source for i in c.steps[0].inputs] == ["specification.yaml trial_panels TP2",
+                                                     "specification.yaml trial_panels TP9"]
     both = tp[1].model_copy(update={"judgement": "rejected"})
     ctx, _ = _ctx(demo_checked, _spec(project, trial_panels=[both, rej]))
     c = sr.panel_check(_zone(project, "Z1"), ctx)
@@ -115,7 +116,7 @@ def test_spec_hold_of_the_demo_whole(demo_checked):
     assert c.quantities[0].unit == ""
     assert step.inputs == tuple(
         Input(f"HP{i + 1}", h.what, "R3 released" if i == 0 else "R3 open", "",
-              f"specification.yaml hold_points[{i}]") for i, h in enumerate(holds))
+              f"specification.yaml hold_points {h.id}") for i, h in enumerate(holds))
     assert step.inputs[0].name == ("Trial panels of the chosen mortars judged dry and accepted "
                                    "by the heritage service")
     assert c.message == "5 hold point(s): 1 released (HP1 in R3), 4 open (HP2, HP3, HP4, HP5)"

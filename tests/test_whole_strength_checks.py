@@ -261,8 +261,17 @@ LATEX = {  # the laws as EN 1992-1-1 eq. 3.2, the hyperbolic and the two-compone
         (r"f(t) = f_A\left(1 - e^{-t/\tau_A}\right) + "
          r"f_S\left(1 - e^{-(t/\tau_S)^{b}}\right)"),
 }
-UNITS = {"f28": "MPa", "s": "", "f_inf": "MPa", "k": "d", "f_A": "MPa", "f_S": "MPa",
-         "tau_A": "d", "tau_S": "d", "b": ""}
+UNITS = {"f_28": "MPa", "s": "", "f_∞": "MPa", "k": "d", "f_A": "MPa", "f_S": "MPa",
+         "τ_A": "d", "τ_S": "d", "b": ""}
+# what each parameter is, read off the laws above: f_A + f_S is the strength approached when
+# both exponentials have decayed; at t = k the hyperbolic law gives f_∞·k/(2k) = f_∞/2
+WORDS = {"f_A": "strength gained in the aluminate stage",
+         "τ_A": "time constant of the aluminate stage",
+         "f_S": "strength gained in the silicate stage",
+         "τ_S": "time constant of the silicate stage",
+         "b": "stretch exponent of the silicate stage", "f_28": "strength at 28 d",
+         "s": "coefficient s of the age function", "f_∞": "strength approached at great age",
+         "k": "age at half that strength"}
 
 
 @pytest.mark.parametrize("code, test", [("STR-FIT-C", "compressive"), ("STR-FIT-F", "flexural")])
@@ -282,9 +291,8 @@ def test_fit_sheets_of_the_demo_whole(demo_checked, code, test, mix):
         assert (step.formula, step.unit, step.symbol) == (LATEX[title], "", "AICc")
         params = step.inputs[:-2]
         held = {i.symbol for i in params if i.source == "held (not fitted)"}
-        assert held == ({"tau_A"} if title.startswith("two-component") else set())
-        assert all(i.name == f"parameter {i.symbol}" and i.unit == UNITS[i.symbol]
-                   for i in params)
+        assert held == ({"τ_A"} if title.startswith("two-component") else set())
+        assert all(i.name == WORDS[i.symbol] and i.unit == UNITS[i.symbol] for i in params)
         assert all(i.source.startswith("fitted; standard error ") and
                    i.source.endswith(f" {UNITS[i.symbol]}".rstrip()) for i in params
                    if i.symbol not in held)
@@ -298,14 +306,14 @@ def test_fit_sheets_of_the_demo_whole(demo_checked, code, test, mix):
         p = {i.symbol: i.value for i in params}
         # the substituted law shows the parameters listed (to the decimals shown)
         if title.startswith("EN 1992"):
-            assert step.substituted == (rf"f(t) = {p['f28']:.3f}\,\exp\left\{{{p['s']:.3f}"
+            assert step.substituted == (rf"f(t) = {p['f_28']:.3f}\,\exp\left\{{{p['s']:.3f}"
                                         r"\left[1 - (28/t)^{0.5}\right]\right\}")
         elif title.startswith("hyperbolic"):
-            assert step.substituted == rf"f(t) = {p['f_inf']:.3f}\,\frac{{t}}{{{p['k']:.3f} + t}}"
+            assert step.substituted == rf"f(t) = {p['f_∞']:.3f}\,\frac{{t}}{{{p['k']:.3f} + t}}"
         else:
             assert step.substituted == (
-                rf"f(t) = {p['f_A']:.3f}\left(1 - e^{{-t/{p['tau_A']:.4f}}}\right) + "
-                rf"{p['f_S']:.3f}\left(1 - e^{{-(t/{p['tau_S']:.2f})^{{{p['b']:.3f}}}}}\right)")
+                rf"f(t) = {p['f_A']:.3f}\left(1 - e^{{-t/{p['τ_A']:.4f}}}\right) + "
+                rf"{p['f_S']:.3f}\left(1 - e^{{-(t/{p['τ_S']:.2f})^{{{p['b']:.3f}}}}}\right)")
     best = min(aicc, key=aicc.get)
     assert got.steps[0].title.startswith(best) and got.value == best
     assert got.message == (f"{best} chosen by AICc from 3 model(s) fitted to {n} results at "

@@ -27,6 +27,11 @@ SEA_NOTE = ("sea water: its chloride moderates the expansion of ettringite in pr
 COLD = "cold: -4.0 °C < 15 °C"
 CARB_NC1 = "carbonate: NC1: CO2 1.9 % ≥ 0.5 % (analysis NC1-A)"
 
+#: the water condition of the demo's zone Z1: the class with what it means
+#: (content/data/exposure_classes.yaml, EN 1996-2 wording, tagged memory there)
+WATER_MX31 = ("water: moisture wetting (MX4 with MX3.1: saturated salt air, sea water or de-icing "
+              "salts; moisture or wetting plus freeze–thaw cycling)")
+
 
 def _inputs(step):
     return [(i.symbol, i.name, i.value, i.unit, i.source) for i in step.inputs]
@@ -39,7 +44,8 @@ def test_thaumasite_of_natural_cement_in_the_splash_zone_whole(demo_checked):
         "DUR-TSA", TSA, "Z2/M1", "zone", "fail", "all 5 conditions met", "")
     sul = ("sulfate: fabric sulfate high (COMP-SALT/Z2/M1); sea water (splash and wave "
            "overtopping, DUR-EXPOSE/Z2)")
-    water = "water: severe wetting (MX4 with MX3.2)"
+    water = ("water: severe wetting (MX4 with MX3.2: saturated salt air, sea water or de-icing "
+             "salts; severe wetting plus freeze–thaw cycling)")
     assert c.message == ("thaumasite risk: every condition met — C-S-H: NC1 (natural cement); "
                          f"{sul}; {water}; {CARB_NC1}; {COLD}")
     assert (c.basis, c.limit, c.notes, c.quantities) == ((TEG,), None, (), ())
@@ -64,7 +70,7 @@ def test_thaumasite_of_a_lime_in_the_sheltered_zone_is_attention(demo_checked):
     carb = "carbonate: NH35: natural hydraulic lime (NHL) carbonates in the wall (calcite)"
     assert c.steps[0].inputs[0].name == "C-S-H: NH35 (NHL)"
     assert c.steps[0].inputs[3].name == carb
-    assert carb in c.message and "water: moisture wetting (MX4 with MX3.1)" in c.message
+    assert carb in c.message and WATER_MX31 in c.message
 
 
 def test_ettringite_whole(demo_checked):
@@ -85,7 +91,7 @@ def test_ettringite_whole(demo_checked):
     assert _inputs(step) == [
         ("aluminate", "aluminate: NH35: Al2O3 2.5 % in analysis NHL-A < 5 %", "no", "", alu_src),
         ("sulfate", sul, "yes", "", "COMP-SALT, DUR-EXPOSE"),
-        ("water", "water: moisture wetting (MX4 with MX3.1)", "yes", "", "DUR-EXPOSE/Z1")]
+        ("water", WATER_MX31, "yes", "", "DUR-EXPOSE/Z1")]
     # Z1/M1: NC1's 8.1 % ≥ 5 %, sea water, not high sulfate: attention with the sea note
     a = res[("DUR-ETT", "Z1/M1")]
     assert (a.status, a.value, a.notes) == ("attention", "all 3 conditions met", (SEA_NOTE,))

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 from specgen import refdata
 from specgen.checks import compatibility_common as cc
+from specgen.precision import by_symbol
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, Input, Quantity, Step, tex_name, worst
 from specgen.science import grading as gr
@@ -70,11 +71,17 @@ def _outside_pct(p: float, lo: float, hi: float) -> str:
     return f"{100 * p:.3f}"
 
 
+def _limits(lo: float, hi: float) -> str:
+    """``limits 95–100 %``, or ``limit 100 %`` when both are one (the whole sand passes)."""
+    low, high = f"{100 * lo:g}", f"{100 * hi:g}"
+    return f"limit {high} %" if low == high else f"limits {low}–{high} %"
+
+
 def _envelope_step(g: gr.Grading, cmp: gr.EnvelopeComparison, env: dict) -> Step:
     """The passing on the envelope's own sieves, read between the analysis' sieves where the
     two series differ (linear in the logarithm of the aperture)."""
     inputs = tuple(Input(f"P({s * 1000:g})", f"passing {s * 1000:g} mm ({_how_read(g, s, i)})"
-                         + f", limits {100 * lo:g}–{100 * hi:g} %", round(100 * p, 2), "%",
+                         + f", {_limits(lo, hi)}", round(100 * p, 2), "%",
                          "interpolated" if i else "lab/sieves.csv")
                    for s, p, lo, hi, i in zip(cmp.sieves, cmp.passing, cmp.low, cmp.high,
                                               cmp.interpolated or (False,) * len(cmp.sieves)))
@@ -156,7 +163,8 @@ def _grading_step(name: str, g: gr.Grading, fm: float, src: str) -> Step:
                    for s, r, c, p in zip(g.sieves, g.retained, g.cumulative, g.passing))
     cum = " + ".join(f"{100 * c:.4g}" for c, s in zip(g.cumulative, g.sieves) if s >= 0.00015 - 1e-9)
     return Step(f"Fineness modulus of {name}", r"FM = \frac{\sum \text{cumulative \% retained}}{100}",
-                inputs, rf"FM = \frac{{{cum}}}{{100}} = {fm:.3f}", round(fm, 4), "", "FM")
+                inputs, rf"FM = \frac{{{cum}}}{{100}} = " + by_symbol(round(fm, 4), "FM"),
+                round(fm, 4), "", "FM")
 
 
 @register("COMP-GRAD", "Aggregate grading against the historic aggregate", "zone", order=550,
@@ -223,14 +231,14 @@ def _grading_one(pair, ctx):
         notes.append(f"the historic aggregate was sieved on the {_series_name(hist.series)}"
                      ": its passing is read on the repair sand's sieves by the same "
                      "interpolation")
-    out = [f"{s * 1000:g} mm ({_outside_pct(pp, lo, hi)} % passing, limits {100 * lo:g}–{100 * hi:g} %)"
+    out = [f"{s * 1000:g} mm ({_outside_pct(pp, lo, hi)} % passing, {_limits(lo, hi)})"
            for s, pp, lo, hi, d in zip(cmp.sieves, cmp.passing, cmp.low, cmp.high, cmp.outside)
            if d > 1e-9]
     statuses.append("pass" if not out else "attention")
     msg.append(f"within the {env['title']} envelope" if not out
                else "outside the envelope at " + "; ".join(out))
     if "repair" in fm and "historic" in fm:
-        msg.insert(0, f"FM {fm['repair']:.2f} (historic {fm['historic']:.2f})")
+        msg.insert(0, f"FM {by_symbol(fm['repair'], 'FM')} (historic {by_symbol(fm['historic'], 'FM')})")
     drawn = _envelope_curve(env)
     notes.append(f"envelope: {drawn['title']} — {drawn['source']}")
     return cc.result(code, title, pair, worst(statuses), round(100 * dev.rms, 3), "%",

@@ -12,6 +12,7 @@ from __future__ import annotations
 import json
 import re
 
+from specgen.precision import SYMBOL_PRECISION, by_symbol
 from specgen.checks.registry import audit_rule, quantity_names
 from specgen.checks.result import Finding
 from specgen.checks.revision_delta import compare, decision_lines
@@ -178,9 +179,11 @@ def clause_limit_rule(ctx) -> list[Finding]:
             if c.code not in CLAUSE_LIMITS or not _outside(c) or covered(c, sel.covers):
                 continue
             n, what = CLAUSE_LIMITS[c.code]
-            # the value as the check recorded it (its sheet's result): rounding it again here
-            # would contradict the sheet (6.355 shown as 6.36 beside the sheet's 6.35)
-            value = f"{c.value:g} {c.unit}".strip() if isinstance(c.value, float) else c.value
+            # the value as its sheet shows it: by the rule of its kind where one is set
+            # (ΔE00 6.35, not 6.3545), else as the check recorded it (never rounded again)
+            shown = by_symbol(c.value, c.value_symbol) if c.value_symbol in SYMBOL_PRECISION \
+                else f"{c.value:g}"
+            value = f"{shown} {c.unit}".strip() if isinstance(c.value, float) else c.value
             out.append(Finding(
                 "AUD-CLAUSE-LIMIT", "Clause limit against the chosen mortar",
                 f"clause {n} of zone {zone.id} ({what}) states {c.limit.text if c.limit else c.title}, "

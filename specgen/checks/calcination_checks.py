@@ -189,7 +189,7 @@ def firing_check(binder, ctx) -> CheckResult | None:
               f"{STAGE_SOURCE} ({st[key][3] or 'common practice'})")
         for key in ("dehydroxylation", "calcite_decomposition", "natural_cement_firing",
                     "sintering") if key in st)
-    peak_src = (f"materials.yaml, binder {binder.id}, firing.peak" if peak is not None
+    peak_src = (f"materials.yaml binders {binder.id}.firing.peak" if peak is not None
                 else f"{series.file}, highest reading")
     steps = [Step("Peak temperature against the stages",
                   r"T_{dehyd,from} \le T_{calc,to} \le T_{peak} < T_{sint,from}",

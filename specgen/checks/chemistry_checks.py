@@ -9,6 +9,7 @@ from specgen.checks.chemistry_common import (ATOMIC, TAYLOR, VICAT, atomic_weigh
                                              finite, guarded, is_clinker, not_assessed,
                                              oxide_inputs, prepared, source)
 from specgen.views import oxide_order
+from specgen.precision import by_symbol
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Limit, Quantity, Step
 from specgen.science import calcination, oxides
@@ -85,7 +86,7 @@ def hydraulic_index_check(analysis, ctx) -> CheckResult:
         code="CHEM-HI", title="Hydraulic index (Vicat)", subject=analysis.id,
         subject_kind="analysis", status="info", value=round(hi, 4), unit="", basis=(VICAT,),
         steps=(step,), notes=prep.assumptions,
-        message=f"HI = {hi:.3f} (scheme: {oxides.HYDRAULIC_INDEX_SCHEME}); for information — "
+        message=f"HI = {by_symbol(round(hi, 4), 'HI')} (scheme: {oxides.HYDRAULIC_INDEX_SCHEME}); for information — "
                 "the classification uses the cementation index",
         quantities=(Quantity("hydraulic_index", round(hi, 4), "", "hydraulic index (Vicat)"),))
 
@@ -111,7 +112,7 @@ def lime_saturation_check(analysis, ctx) -> CheckResult:
     return CheckResult(
         code="CHEM-LSF", title="Lime saturation factor", subject=analysis.id,
         subject_kind="analysis", status="info", value=round(lsf, 4), unit="", basis=(TAYLOR,),
-        steps=(step,), notes=prep.assumptions, message=f"LSF = {lsf:.3f}; {why}",
+        steps=(step,), notes=prep.assumptions, message=f"LSF = {by_symbol(round(lsf, 4), 'LSF')}; {why}",
         quantities=(Quantity("lime_saturation_factor", round(lsf, 4), "",
                              "lime saturation factor"),))
 
@@ -128,7 +129,7 @@ def ratios_check(analysis, ctx) -> CheckResult:
                   rf"SR = \frac{{{g('SiO2'):.2f}}}{{{g('Al2O3'):.2f} + {g('Fe2O3'):.2f}}}",
                   round(sr, 4), "", "SR")]
     quantities = [Quantity("silica_ratio", round(sr, 4), "", "silica ratio")]
-    text = f"SR = {sr:.2f}"
+    text = f"SR = {by_symbol(round(sr, 4), 'SR')}"
     if g("Fe2O3") > 0:
         ar = oxides.alumina_ratio(ox)
         steps.append(Step("Alumina ratio", r"AR = \frac{A}{F}",
@@ -136,7 +137,7 @@ def ratios_check(analysis, ctx) -> CheckResult:
                           rf"AR = \frac{{{g('Al2O3'):.2f}}}{{{g('Fe2O3'):.2f}}}", round(ar, 4),
                           "", "AR"))
         quantities.append(Quantity("alumina_ratio", round(ar, 4), "", "alumina ratio"))
-        text += f", AR = {ar:.2f}"
+        text += f", AR = {by_symbol(round(ar, 4), 'AR')}"
     else:
         text += "; AR not assessed: no Fe2O3 reported"
     return CheckResult(

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 from specgen.checks import compatibility_common as cc
 from specgen.checks import fits
+from specgen.precision import by_symbol
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, Input, Quantity, Step
 from specgen.science import colour
@@ -105,7 +106,8 @@ def _colour_one(pair, ctx):
                          f"{de.SL:.4f}, {de.SC:.4f}, {de.SH:.4f}", "", "computed"),
                    Input("R_T", "rotation term", round(de.RT, 5), "", "computed")),
                   rf"\Delta E_{{00}} = \sqrt{{({de.dL:.3f}/{de.SL:.3f})^2 + ({de.dC:.3f}/{de.SC:.3f})^2"
-                  rf" + ({de.dH:.3f}/{de.SH:.3f})^2 + ({de.RT:.4f})\,\ldots}} = {de.value:.3f}",
+                  rf" + ({de.dH:.3f}/{de.SH:.3f})^2 + ({de.RT:.4f})\,\ldots}} = "
+                  + by_symbol(round(de.value, 4), "ΔE00"),
                   round(de.value, 4), "", "ΔE00")]
     status = "pass" if de.value <= limit else "attention"
     notes = [DECIDES, f"readings under illuminant {ill}, {obs}° observer"]
@@ -118,9 +120,9 @@ def _colour_one(pair, ctx):
     for side in ("panel", "historic"):
         sw = colour.lab_to_srgb(q[f"{side}_mean"])
         q[f"{side}_swatch"] = {"hex": sw.hex, "clipped": sw.clipped}
-    return cc.result(code, title, pair, status, round(de.value, 3), "",
+    return cc.result(code, title, pair, status, round(de.value, 4), "",
                      [SHARMA, cc.rule_basis(ctx, "colour_delta_e_max")],
-                     f"ΔE00 {de.value:.2f} between the mean of {sp.n} panel reading(s) and {sh.n} of "
+                     f"ΔE00 {by_symbol(round(de.value, 4), 'ΔE00')} between the mean of {sp.n} panel reading(s) and {sh.n} of "
                      f"{hist_id} (threshold {limit:g}, project rule); trial panels judged dry decide",
                      steps=steps, notes=notes,
                      limit=cc.rule_limit(ctx, "colour_delta_e_max", "<=", f"ΔE00 ≤ {limit:g}"),

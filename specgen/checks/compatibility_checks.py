@@ -14,6 +14,7 @@ from __future__ import annotations
 
 from specgen.checks import compatibility_common as cc
 from specgen.checks import fits
+from specgen.precision import by_symbol
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, Input, Quantity, Step, worst
 from specgen.science import moisture
@@ -292,10 +293,12 @@ def _movement_one(pair, ctx):
                                  f"materials.yaml mortar_properties {pair.mix_id}"),
                            Input("α_fabric", f"units {unit.id} {kind} expansion", fab, u,
                                  f"materials.yaml {unit.id}")),
-                          rf"\delta = \frac{{|{rep:g} - {fab:g}|}}{{{fab:g}}} = {dev:.4f}",
+                          rf"\delta = \frac{{|{rep:g} - {fab:g}|}}{{{fab:g}}} = " + by_symbol(round(dev, 5), "δ"),
                           round(dev, 5), "", "δ"))
         statuses.append("pass" if dev <= tol else "attention")
-        words.append(f"{kind} {rep:g} vs {fab:g} {u} (δ = {dev:.2f})")
+        # "10 vs 6 × 10⁻⁶/K": a unit that opens with a number is a factor, not a second value
+        shown = f"× {u}" if u[0].isdigit() else u
+        words.append(f"{kind} {rep:g} vs {fab:g} {shown} (δ = {by_symbol(round(dev, 5), 'δ')})")
     return cc.result(code, title, pair, worst(statuses), steps[0].result, "",
                      [cc.rule_basis(ctx, "movement_tolerance")],
                      "; ".join(words) + f"; tolerance {tol:g}", steps=steps, notes=notes,

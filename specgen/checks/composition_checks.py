@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 from specgen.checks.chemistry_common import guarded, prepared, source
+from specgen.precision import by_symbol
 from specgen.checks.registry import declare, register
 from specgen.checks.result import Basis, CheckResult, Input, Limit, Quantity, Step
 from specgen.science import oxides
@@ -87,7 +88,7 @@ def cementation_index_check(analysis, ctx) -> CheckResult:
         status=status, value=round(ci, 4), unit="", basis=(ECKEL, band["basis"]), steps=(step,),
         limit=Limit("within", band["low"], band["high"], "", f"band '{band['name']}': "
                     f"{_edges(band)}", rule="hydraulicity_bands"),
-        message=f"CI = {ci:.3f}: {message}", notes=prep.assumptions,
+        message=f"CI = {by_symbol(round(ci, 4), 'CI')}: {message}", notes=prep.assumptions,
         quantities=(Quantity("cementation_index", round(ci, 4), "", "Eckel cementation index"),
                     Quantity("hydraulicity_class", band["name"], "",
                              "band of the cementation index" + (" (borderline)"

@@ -73,6 +73,24 @@ def exposure(ctx, zone_id: str) -> dict | None:
     return q.value if q is not None else None
 
 
+def exposure_meaning(e: dict) -> str:
+    """What a zone's exposure classes mean, in words (content/data/exposure_classes.yaml, the
+    European wording), e.g. ``saturated salt air, sea water or de-icing salts; moisture or
+    wetting plus freeze–thaw cycling`` for MX4 with MX3.1; '' when the table has none."""
+    from specgen import refdata
+    table = refdata.load("exposure_classes").data["european"]
+    return "; ".join(table[c].split(", without")[0].removeprefix("exposed to ")
+                     .replace("freeze-thaw", "freeze–thaw")
+                     for c in e.get("classes", ()) if c in table)
+
+
+def exposure_words(e: dict) -> str:
+    """A zone's exposure as a reader needs it: its designation with what its classes mean,
+    ``MX4 with MX3.1 (saturated salt air, …)``; the designation alone without words."""
+    meaning = exposure_meaning(e)
+    return f"{e['designation']} ({meaning})" if meaning else e["designation"]
+
+
 def tex(text: str) -> str:
     """Plain words for a LaTeX \\text{}: the math renderer copies the characters into MathML
     as they stand, so the XML specials are escaped and braces and backslashes kept out."""

@@ -84,7 +84,8 @@ def exposure_check(zone, ctx) -> CheckResult:
     q["american"] = {"location": loc["location"], "recommended": loc["recommended"],
                      "alternatives": loc["alternatives"], "weathering": ex.weathering(ec)}
     basis = [dc.PRACTICE_BASIS]
-    text = f"{ec.designation}: " + "; ".join(ec.reasons)
+    meaning = dc.exposure_meaning({"classes": ec.classes})
+    text = f"{ec.designation}" + (f" ({meaning})" if meaning else "") + ": " + "; ".join(ec.reasons)
     if kind == "american":
         basis = [Basis("reference", "astmc270", "Appendix X1, Table X1.1")]
         text = (f"{loc['location']}: type {loc['recommended']} recommended (alternatives "
@@ -138,7 +139,8 @@ def _frost_one(pair, ctx) -> CheckResult:
                          "dossier.yaml (true where winter air falls below 0 °C)")
     if not e["freeze_thaw"]:
         return cc.result("DUR-FROST", FROST, pair, "pass", e["designation"], "", [EN998],
-                         f"{e['designation']}: no freeze–thaw cycling, so no frost requirement")
+                         f"{dc.exposure_words(e)}: no freeze–thaw cycling, so no frost "
+                         "requirement")
     regime = "severe" if e["base"] == "MX3.2" or bool(e["sea"]) else "moderate"
     need = dc.rule(ctx, f"frost_cycles_{regime}")
     ind = _indicators(pair, ctx, regime)
@@ -157,12 +159,12 @@ def _frost_untested(pair, ctx, e, need, ind, test, regime) -> CheckResult:
     basis = [EN998, need.basis, PRACTICE]
     if regime == "moderate" and ind.all_met:
         return cc.result("DUR-FROST", FROST, pair, "attention", None, "", basis,
-                         f"{e['designation']}: no freeze–thaw test, but binder class, measured "
-                         "air content and 28-d strength all meet the minima of common practice "
+                         f"{dc.exposure_words(e)}: no freeze–thaw test, but binder class, "
+                         "measured air content and 28-d strength all meet the minima of common practice "
                          f"for moderate frost: deemed to satisfy; {test['method']} would confirm "
                          "it", steps=[ind.step])
-    msg = (f"{e['designation']} asks for a declared freeze–thaw resistance; {pair.mix_id} has "
-           f"none: commission {test['method']}")
+    msg = (f"{dc.exposure_words(e)} asks for a declared freeze–thaw resistance; {pair.mix_id} "
+           f"has none: commission {test['method']}")
     if ind.short:
         msg += f" — the indicators weigh against the mix: {'; '.join(ind.short)}"
     return cc.result("DUR-FROST", FROST, pair, "hold", None, "", basis, msg, steps=[ind.step],
@@ -194,7 +196,7 @@ def _frost_tested(pair, ctx, e, need, ft, ind, test) -> CheckResult:
                             r"N \ge N_{req},\ ML \le ML_{max},\ SL \le SL_{max}", tuple(inputs),
                             rf"N = {ft.cycles}\ \text{{against}}\ {need.value:g}",
                             float(ft.cycles), "", "N")]
-    msg = f"{e['designation']}: " + "; ".join(words)
+    msg = f"{dc.exposure_words(e)}: " + "; ".join(words)
     if status == "hold":
         msg += f" — complete the test: {test['method']}"
     elif status == "pass" and ind.short:

@@ -142,6 +142,13 @@ class CheckResult:
     notes: tuple[str, ...] = field(default_factory=tuple)
 
     @property
+    def value_symbol(self) -> str:
+        """The symbol of the value: that of the step that computed it (the last step whose
+        result is the value, in its unit); '' when no step did."""
+        return next((s.symbol for s in reversed(self.steps)
+                     if s.result == self.value and s.unit == self.unit), "")
+
+    @property
     def key(self) -> str:
         """Unique key of the result in a dossier: ``CODE/subject``."""
         return f"{self.code}/{self.subject}"

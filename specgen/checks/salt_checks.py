@@ -115,6 +115,6 @@ def _salt_one(pair, ctx):
     notes.append(f"table: {tab['title']} — {refdata.shown(tab['source'], tab.get('tag', ''))}; published "
                  "salt-load tables disagree, this one is the project's choice")
     return cc.result(code, title, pair, status, max(top.values(), key=order.index) if top else None,
-                     "", [basis], f"{'; '.join(msg)} (table {key})", steps=steps, notes=notes,
+                     "", [basis], f"{'; '.join(msg)} ({key})", steps=steps, notes=notes,
                      quantities=[Quantity("salt_load_class", {"table": key, **classes}, "",
                                           "salt-load classes")])

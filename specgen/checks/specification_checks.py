@@ -51,12 +51,12 @@ def _result(code, title, subject, status, value, unit, basis, message, **kw) -> 
 def cost_check(zone, ctx) -> list[CheckResult]:
     """(price / priced quantity) × mortar volume of the zone / wall area, per priced candidate."""
     spec = spec_of(ctx)
-    prices = {u.mix: (i, u) for i, u in enumerate(spec.doc.unit_prices)} if spec else {}
-    return [_cost_one(zone, m, *prices[m], spec.doc.currency, ctx)
+    prices = {u.mix: u for u in spec.doc.unit_prices} if spec else {}
+    return [_cost_one(zone, m, prices[m], spec.doc.currency, ctx)
             for m in zone.candidates if m in prices]
 
 
-def _cost_one(zone, mix_id, i, price, currency, ctx) -> CheckResult:
+def _cost_one(zone, mix_id, price, currency, ctx) -> CheckResult:
     title, subject = "Cost of a candidate per m² of wall", f"{zone.id}/{mix_id}"
     vol = ctx.quantity(zone.id, "mortar_volume")
     unit = f"{currency}/m²".strip("/") if currency else "/m²"
@@ -65,9 +65,9 @@ def _cost_one(zone, mix_id, i, price, currency, ctx) -> CheckResult:
         return _result("SPEC-COST", title, subject, "not_assessed", None, "", COST,
                        f"not assessed: {why}")
     cost = st.cost_per_area(price.price, price.per, vol.value, zone.area)
-    src = price.source or f"{SPEC_FILE} unit_prices[{i}]"
+    src = price.source or f"{SPEC_FILE} unit_prices {mix_id}.price"
     inputs = (Input("P", f"price of {mix_id}", price.price, currency, src),
-              Input("Q", "priced quantity", round(price.per, 9), "m³", f"{SPEC_FILE} unit_prices[{i}].per"),
+              Input("Q", "priced quantity", round(price.per, 9), "m³", f"{SPEC_FILE} unit_prices {mix_id}.per"),
               Input("V", "mortar volume with wastage", vol.value, "m³", f"WORKS-QTY/{zone.id}"),
               Input("A", "wall area", zone.area, "m²", f"dossier.yaml {zone.id}.area"))
     step = Step("Cost per m² of wall", r"c = \frac{P}{Q}\,\frac{V}{A}", inputs,

@@ -31,7 +31,7 @@ def panel_check(zone, ctx) -> CheckResult:
     panels = [(i, tp) for i, tp in enumerate(spec.doc.trial_panels)
               if tp.mix == mix and tp.zone in (None, zone.id)]
     inputs = tuple(Input(tp.id, f"panel of {tp.mix} at {tp.location}", _verdict(tp), "",
-                         f"{SPEC_FILE} trial_panels[{i}]") for i, tp in panels)
+                         f"{SPEC_FILE} trial_panels {tp.id}") for _, tp in panels)
     good = [tp for _, tp in panels if tp.judgement == "accepted" and tp.judged_dry]
     status, msg = _panel_verdict(zone.id, mix, [tp for _, tp in panels], good)
     step = Step(f"Trial panels of {mix}", r"\mathrm{accepted} \wedge \mathrm{judged\ dry}",
@@ -71,8 +71,8 @@ def hold_check(project, ctx) -> CheckResult:
     released = [h for h in spec.doc.hold_points if h.state == "released"]
     opened = [h.id for h in spec.doc.hold_points if h.state == "open"]
     inputs = tuple(Input(h.id, h.what, " → ".join(f"{r} {s}" for r, s in table[h.id]["history"]
-                                                  .items()), "", f"{SPEC_FILE} hold_points[{i}]")
-                   for i, h in enumerate(spec.doc.hold_points))
+                                                  .items()), "", f"{SPEC_FILE} hold_points {h.id}")
+                   for h in spec.doc.hold_points)
     step = Step("Hold points and their state in each revision", r"\mathrm{open} \to "
                 r"\mathrm{released\ (once,\ on\ evidence)}", inputs,
                 rf"\mathrm{{released}}: {len(released)},\ \mathrm{{open}}: {len(opened)}",

@@ -40,6 +40,18 @@ LATEX = {
     "en1992_age": r"f(t) = f_{28}\,\exp\left\{s\left[1 - (28/t)^{0.5}\right]\right\}",
     "hyperbolic": r"f(t) = f_\infty\,\frac{t}{k + t}",
 }
+# Each fitted parameter as the sheet shows it: (symbol as in LATEX, what it is, read off the law)
+PARAMETERS = {
+    "f_A": ("f_A", "strength gained in the aluminate stage"),
+    "tau_A": ("τ_A", "time constant of the aluminate stage"),
+    "f_S": ("f_S", "strength gained in the silicate stage"),
+    "tau_S": ("τ_S", "time constant of the silicate stage"),
+    "b": ("b", "stretch exponent of the silicate stage"),
+    "f28": ("f_28", "strength at 28 d"),
+    "s": ("s", "coefficient s of the age function"),
+    "f_inf": ("f_∞", "strength approached at great age"),
+    "k": ("k", "age at half that strength"),
+}
 # Display of fitted parameters: SI unit -> (shown unit, divisor)
 SHOWN = {"Pa": ("MPa", MPA), "s": ("d", DAY), "1": ("", 1.0)}
 CODE_OF = {"compressive": "C", "flexural": "F"}
@@ -231,7 +243,8 @@ def _model_step(f: sm.FitResult) -> Step:
         se = f.std_errors.get(name)
         src = "held (not fitted)" if name in f.fixed else (
             f"fitted; standard error {se / div:.3g} {unit}".strip() if se is not None else "fitted")
-        inputs.append(Input(name, f"parameter {name}", round(v / div, 5), unit, src))
+        symbol, words = PARAMETERS[name]
+        inputs.append(Input(symbol, words, round(v / div, 5), unit, src))
         subs[name] = v / div
     inputs += [Input("n", "results fitted", f.n_obs, "", f.weighting),
                Input("ν", "degrees of freedom", f.dof, "", "n − parameters")]

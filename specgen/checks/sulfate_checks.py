@@ -68,8 +68,10 @@ def water(pair, ctx) -> Condition:
     if e is None:
         return Condition("water", None, "no exposure class", "DUR-EXPOSE",
                          f"give dossier.yaml {pair.zone.id}.exposure_conditions")
-    return Condition("water", e["wetting"] != "dry", f"{e['wetting']} wetting ({e['designation']})",
-                     f"DUR-EXPOSE/{pair.zone.id}")
+    # the class with what it means: "moisture wetting (MX4 with MX3.1: saturated salt air, …)"
+    meaning = dc.exposure_meaning(e)
+    return Condition("water", e["wetting"] != "dry", f"{e['wetting']} wetting ({e['designation']}"
+                     + (f": {meaning})" if meaning else ")"), f"DUR-EXPOSE/{pair.zone.id}")
 
 
 def carbonate(pair, ctx) -> Condition:

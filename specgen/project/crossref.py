@@ -135,18 +135,30 @@ def _comment_refs(project, located, log: ProblemLog, names, failed=frozenset()) 
                     field=f"comments[{i}].closed_in", fix="add 'closed_in: <revision>'.")
         if names is None:
             continue
-        codes, pages = names
-        code, _, subject = c.about.partition("/")
-        if _is_page(c.about, pages) or (code in codes and (
-                not subject or subject in _subjects(project) or set(failed) & SUBJECT_FILES)):
-            continue  # subjects are not judged while a file defining them has problems
-        hint = did_you_mean(c.about, sorted(codes) + sorted(pages))
-        log.add("comments.yaml", f"comment '{c.id}' is about '{c.about}', which is neither a check "
-                "code nor a page of the dossier.",
-                line=located.line_of(("comments", i, "about")) if located else None,
-                field=f"comments[{i}].about",
-                fix=hint or f"use a check code ({', '.join(sorted(codes))}) or a page "
-                            f"({', '.join(sorted(pages))}).")
+        places = [("about", ("comments", i, "about"), c.about)] + [
+            (f"changed[{j}]", ("comments", i, "changed", j), name)
+            for j, name in enumerate(c.changed)]
+        for key, where, name in places:
+            if _names_place(name, project, names, failed):
+                continue
+            codes, pages = names
+            verb = "is about" if key == "about" else "names as changed"
+            log.add("comments.yaml", f"comment '{c.id}' {verb} '{name}', which is neither a "
+                    "check code nor a page of the dossier.",
+                    line=located.line_of(where) if located else None,
+                    field=f"comments[{i}].{key}",
+                    fix=did_you_mean(name, sorted(codes) + sorted(pages))
+                    or f"use a check code ({', '.join(sorted(codes))}) or a page "
+                       f"({', '.join(sorted(pages))}).")
+
+
+def _names_place(name: str, project, names, failed) -> bool:
+    """Whether ``name`` is a page, a check code, or a check code with a known subject
+    (subjects are not judged while a file defining them has problems)."""
+    codes, pages = names
+    code, _, subject = name.partition("/")
+    return _is_page(name, pages) or (code in codes and (
+        not subject or subject in _subjects(project) or bool(set(failed) & SUBJECT_FILES)))
 
 
 def _is_page(about: str, pages) -> bool:

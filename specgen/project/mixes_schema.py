@@ -83,6 +83,10 @@ class Comment(Model):
     key: Annotated[str, Field(pattern=r"^[A-Za-z0-9_-]{8,64}$")] | None = Field(
         None, description="identity of an imported comment (keeps a second import from "
         "duplicating it)")
+    changed: list[Text] = Field(
+        default_factory=list, description="what the response changed in the dossier: pages "
+        "(e.g. specification) or checks (CODE/subject), each named as in 'about'; the change "
+        "report of the revision that closes the comment says whether each really changed")
 
 
 class CommentsFile(Model):

@@ -42,7 +42,8 @@ class ReviewComment(Model):
     page: Annotated[str, Field(pattern=r"^[A-Za-z0-9][A-Za-z0-9_-]{0,79}$")] = Field(
         description="page of the published site, without .html")
     anchor: Annotated[str, Field(pattern=ANCHOR_PATTERN)] | None = Field(
-        None, description="id of the element the comment is about (none: the whole page)")
+        None, description="id of the element the comment is about: a heading, a figure "
+        "(fig-…) or a table row (row-…); none: the whole page")
     quote: Annotated[str, Field(max_length=2000)] = Field("", description="selected text")
     text: Annotated[str, Field(min_length=1, max_length=4000)] = Field(description="the comment")
     author: Annotated[str, Field(min_length=1, max_length=200)] = Field(description="name")

@@ -115,7 +115,8 @@ def _publish_into(staging, project, results, pages, page_size, progress, changes
         "project": project.dossier.project.code, "revision": rev.code,
         "status": rev.status, "date": rev.date.isoformat(), "format": "specgen-manifest/1",
         "description": rev.description, "purpose": rev.purpose, "facts": results.facts,
-        "findings": len(results.findings), **{k: v for k, v in control.items() if v}})
+        "findings": len(results.findings), "sections": pages.sections,
+        **{k: v for k, v in control.items() if v}})
     reached("staged")
 
 

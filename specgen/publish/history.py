@@ -57,6 +57,9 @@ class History:
     previous: str | None
     changes: dict | None
     earlier: tuple = ()          # (code, results.json as a dict) of each earlier revision
+    # the previous revision's section digests (its manifest's "sections"); None when that
+    # revision is not in OUT or was built before pages were compared
+    sections_before: dict | None = None
 
 
 def history_for(out: Path, project, results) -> History:
@@ -70,8 +73,10 @@ def history_for(out: Path, project, results) -> History:
              "facts": r.manifest.get("facts", []), "current": False} for r in earlier]
     rows.append({"code": rev.code, "date": rev.date.isoformat(), "status": rev.status,
                  "description": rev.description, "facts": results.facts, "current": True})
+    before = next((r for r in earlier if r.code == results.previous), None)
     return History(rows, results.previous, results.changes,
-                   tuple((r.code, r.results) for r in earlier))
+                   tuple((r.code, r.results) for r in earlier),
+                   before.manifest.get("sections") if before else None)
 
 
 def find(out: Path, code: str) -> Issued:

@@ -27,8 +27,14 @@ PRINT_DIR = CONTENT_DIR / "print"
 PAGE_SIZES = {"a4": "A4", "letter": "letter"}
 
 
+#: extensions only the site needs: the ids a reviewer's comment anchors to (figures, table
+#: rows) would be thousands of named destinations in the PDF, where nobody comments
+SITE_ONLY = {"specgen.report.mdanchors"}
+
+
 def _extensions() -> tuple[list, dict]:
-    """The Markdown extensions of the site configuration (one list for both media)."""
+    """The Markdown extensions of the site configuration (one list for both media, less
+    :data:`SITE_ONLY`)."""
     class _Loader(yaml.SafeLoader):
         pass
     _Loader.add_multi_constructor("tag:yaml.org,2002:python/", lambda *a: None)
@@ -36,6 +42,8 @@ def _extensions() -> tuple[list, dict]:
     cfg = yaml.load((CONTENT_DIR.parent / "mkdocs.yml").read_text(encoding="utf-8"), _Loader)
     names, configs = [], {}
     for item in cfg.get("markdown_extensions", []):
+        if isinstance(item, str) and item in SITE_ONLY:
+            continue
         if isinstance(item, dict):
             (name, conf), = item.items()
             names.append(name)

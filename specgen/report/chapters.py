@@ -116,7 +116,8 @@ def check_rows(results, page_of_sheets: str = "calculations.md") -> list[dict]:
     """One row per check result, linking to its calculation sheet."""
     from specgen.report.wording import reader
     return [{"code": c.code, "title": c.title, "subject": c.subject, "badge": badge(c.status),
-             "status": c.status, "value": reader(c.value) if isinstance(c.value, str) else qty(c.value, c.unit),
+             "status": c.status, "value": reader(c.value) if isinstance(c.value, str)
+             else qty(c.value, c.unit, kind=c.value_symbol),
              "message": reader(c.message),
              "href": f"{page_of_sheets}#{sheet_anchor(c)}"} for c in results.checks]
 

@@ -11,7 +11,7 @@ from __future__ import annotations
 from specgen.checks.registry import in_matrix
 from specgen.checks.result import STATUSES
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import as_given, num, qty
+from specgen.report.fmt import as_given, num, qty, rounded
 from specgen.report.wording import reader
 from specgen.units import ROOT_MIN
 from specgen.views import pairs as zone_pairs
@@ -40,7 +40,7 @@ PROPERTIES = (("compressive_strength", "compressive strength", 1e-6, "MPa"),
 def _cell(c) -> dict:
     if c is None:
         return {"badge": "—", "value": "", "href": ""}
-    value = "" if c.status == "not_assessed" or c.value is None else qty(c.value, c.unit, 3)
+    value = "" if c.status == "not_assessed" or c.value is None else qty(c.value, c.unit, 3, c.value_symbol)
     return {"badge": badge(c.status), "value": value,
             "href": f"calculations.md#{sheet_anchor(c)}"}
 
@@ -161,7 +161,7 @@ def _colour_figure(env, z, pairs) -> dict | None:
         hist, panel = v["historic_swatch"], v["panel_swatch"]
         rows.append({"label": f"{pr.mix_id} panel", "historic_label": pr.historic.id,
                      "historic_hex": hist["hex"], "panel_hex": panel["hex"],
-                     "delta_e": num(v["value"], 3), "clipped": hist["clipped"] or panel["clipped"]})
+                     "delta_e": rounded(v["value"], "ΔE00"), "clipped": hist["clipped"] or panel["clipped"]})
     if not rows:
         return None
     from specgen.report.compatibility_figures import colour_swatches

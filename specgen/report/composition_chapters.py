@@ -7,7 +7,7 @@ chapter formats and arranges, it does not compute.
 from __future__ import annotations
 
 from specgen.report.chapters import badge, chapter, sheet_anchor
-from specgen.report.fmt import as_given, num
+from specgen.report.fmt import as_given, num, rounded
 from specgen.report.wording import plain, reader
 from specgen.views import binder_analysis, family_words, oxide_order, raw_analyses
 
@@ -43,10 +43,11 @@ def composition(env) -> dict:
             "Cementation index of each analysis on the hydraulicity bands",
             "Scale of the cementation index shaded in bands from "
             f"{bands[0]['name']} to {bands[-1]['name']}, with a diamond for each analysis: "
-            + "; ".join(f"{c.subject} at {num(c.value, 3)}" for c in ci) + ".")
+            + "; ".join(f"{c.subject} at {rounded(c.value, 'CI')}" for c in ci) + ".")
     indices = [{"id": a.id, "class": env.results.value(a.id, "hydraulicity_class") or "—",
-                "cells": [num(v, 3) if (v := env.results.value(a.id, k)) is not None else "—"
-                          for k, _ in INDEX_COLUMNS]} for a in p.analyses.values()]
+                # each index by its kind's rule (fmt.SYMBOL_PRECISION), as its sheet shows it
+                "cells": [rounded(v, h) if (v := env.results.value(a.id, k)) is not None
+                          else "—" for k, h in INDEX_COLUMNS]} for a in p.analyses.values()]
     from specgen.report.evidence_chapters import sample_links
     analyses = [{"id": a.id, "kind": a.kind.replace("_", " "), "description": a.description,
                  "sample": sample_links([a.lab_sample]) if a.lab_sample else "",

@@ -4,9 +4,10 @@ from __future__ import annotations
 import contextlib
 import contextvars
 import math
-from dataclasses import dataclass
 
 from specgen.dates import date_text  # noqa: F401  (one place; the render stage formats with it)
+# the rule per quantity kind: one table, which the checks' messages read too
+from specgen.precision import PRECISION, SYMBOL_PRECISION, Precision, by_symbol  # noqa: F401
 
 
 #: between a value and its unit: a narrow no-break space (the unit never wraps away)
@@ -14,29 +15,6 @@ UNIT_SPACE = "\u202f"
 MINUS = "\u2212"
 
 
-@dataclass(frozen=True)
-class Precision:
-    """How a kind of quantity is rounded for reading: ``decimals`` fixed decimals, or
-    ``significant`` figures when set; ``integer`` for counts."""
-
-    decimals: int = 2
-    significant: int = 0
-    integer: bool = False
-
-
-#: the rule per quantity kind, by the unit the kind is shown in (what the measurement
-#: supports, common practice: strengths to 0.1 MPa as lab reports give them, temperatures
-#: to 0.1 °C, densities to 1 kg/m³, site volumes to three figures, ages in whole days)
-PRECISION = {
-    "MPa": Precision(decimals=1), "GPa": Precision(decimals=1), "%": Precision(decimals=1),
-    "°C": Precision(decimals=1), "kg/m³": Precision(decimals=0), "d": Precision(integer=True),
-    "min": Precision(integer=True), "h": Precision(decimals=1), "L": Precision(significant=3),
-    "m³": Precision(significant=3), "m²": Precision(significant=3), "m": Precision(significant=3),
-    "kg": Precision(significant=3), "g": Precision(significant=3), "mm": Precision(decimals=1),
-    "m/m²": Precision(significant=3), "kJ/mol": Precision(decimals=1),
-    "kg/(m²·min^½)": Precision(significant=2), "": Precision(significant=3),
-    "count": Precision(integer=True),
-}
 #: ASCII spellings of units (as checks and data files write them) and their symbols
 UNIT_SYMBOLS = {"degC": "°C", "deg C": "°C", "m^2": "m²", "m2": "m²", "m^3": "m³", "m3": "m³",
                 "kg/m^3": "kg/m³", "kg/m3": "kg/m³", "cm^3": "cm³", "m/m^2": "m/m²",
@@ -78,9 +56,12 @@ def num(value, digits: int = 4) -> str:
 
 
 def rounded(value, unit_or_kind: str) -> str:
-    """``value`` rounded by the rule of its quantity kind (:data:`PRECISION`), no unit."""
+    """``value`` rounded by the rule of its quantity kind (:data:`SYMBOL_PRECISION` by its
+    symbol, else :data:`PRECISION` by its unit), no unit."""
     if value is None or isinstance(value, (str, bool)) or not math.isfinite(value):
         return num(value)
+    if unit_or_kind in SYMBOL_PRECISION:
+        return _signed(by_symbol(value, unit_or_kind))
     rule = PRECISION.get(unit_symbol(unit_or_kind), Precision(significant=3))
     if rule.integer:
         return _signed(f"{round(value):d}")
@@ -93,23 +74,26 @@ def rounded(value, unit_or_kind: str) -> str:
 def as_given(value) -> str:
     """An input value as the source gave it (no padding zeros), e.g. ``5.6``, ``0.2``."""
     if isinstance(value, (int, float)) and not isinstance(value, bool):
-        return _signed(f"{value:.6g}")
+        return _signed(f"{value + 0.0:.6g}")    # + 0.0: a negative zero reads 0, not −0
     return num(value)
 
 
-def qty(value, unit: str, digits: int | None = None) -> str:
+def qty(value, unit: str, digits: int | None = None, kind: str = "") -> str:
     """Value and unit, e.g. ``4.9 MPa``, ``12.3 %`` (narrow no-break space between).
 
     Without ``digits`` the value is rounded by the rule of its kind (:data:`PRECISION`:
     what a reader needs), with its US customary value beside it when the practice shows
     units that way (:func:`unit_display`); with ``digits`` it keeps that many significant
-    figures in SI (what a calculation sheet needs to be recomputed by hand).
+    figures in SI (what a calculation sheet needs to be recomputed by hand).  A ``kind`` (the
+    quantity's symbol) listed in :data:`SYMBOL_PRECISION` is shown by its rule either way:
+    the sheet and the register read the same number.
     """
     if isinstance(value, str):  # a named result (a model, a class): its words
         from specgen.report.wording import plain
         return plain(value)
     symbol = unit_symbol(unit)
-    text = rounded(value, symbol) if digits is None else _to_recompute(value, symbol, digits)
+    text = rounded(value, kind) if kind in SYMBOL_PRECISION else rounded(value, symbol) \
+        if digits is None else _to_recompute(value, symbol, digits)
     shown = f"{text}{UNIT_SPACE}{symbol}" if symbol and text != "—" else text
     beside = us_customary(value, symbol) if digits is None and _DISPLAY.get() == US_BESIDE \
         else ""

@@ -45,6 +45,9 @@ class PageSet:
     # document-control marks for the print: the mark on every page ("DRAFT — not for
     # construction", "Superseded by R4") and the cover's sign-off rows
     marks: dict = field(default_factory=dict)
+    # for each page, a digest of each section's text (review.page_sections): kept in the
+    # manifest, so the next revision's change report can say which pages changed
+    sections: dict = field(default_factory=dict)
 
     def add_page(self, path: str, title: str, text: str, volume: str = "main",
                  sections: bool = False) -> None:

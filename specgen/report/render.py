@@ -131,7 +131,7 @@ class RenderEnv:
         # the sheet keeps four significant figures: enough to recompute by hand
         steps = [{"title": reader(s.title), "formula": self.math.img(s.formula),
                   "substituted": self.math.img(s.substituted),
-                  "result": qty(s.result, s.unit, 4), "symbol": symbol(s.symbol),
+                  "result": qty(s.result, s.unit, 4, s.symbol), "symbol": symbol(s.symbol),
                   "inputs": [{"symbol": symbol(i.symbol), "name": reader(i.name),
                               "value": as_given(i.value) if not isinstance(i.value, str)
                               else reader(i.value), "unit": unit_symbol(i.unit) or "—",
@@ -145,7 +145,7 @@ class RenderEnv:
                      "overridden": c.limit.overridden}
         return {"anchor": sheet_anchor(c), "code": c.code, "title": c.title, "subject": c.subject,
                 "badge": badge(c.status), "message": reader(c.message), "steps": steps,
-                "bases": bases, "limit": limit, "value": qty(c.value, c.unit, 4),
+                "bases": bases, "limit": limit, "value": qty(c.value, c.unit, 4, c.value_symbol),
                 "notes": [reader(n) for n in c.notes]}
 
 
@@ -247,7 +247,9 @@ def chapter_numbers(specs) -> dict[str, str]:
 
 def _resolve_later(env: RenderEnv, pageset: PageSet) -> None:
     """Write the deferred parts into the pages that hold their placeholders."""
-    from specgen.report.review import later_token
+    from specgen.report.review import later_token, page_sections
+    # before the deferred parts are written, so each revision's digests are made alike
+    pageset.sections = page_sections(pageset.pages)
     if not env.deferred:
         return
     done = {str(later_token(n)): fn(pageset.pages) for n, fn in enumerate(env.deferred, 1)}

@@ -9,17 +9,20 @@ the quote, so the comments page and the change report can say "unchanged", "chan
 """
 from __future__ import annotations
 
+import hashlib
 import json
+import re
 from dataclasses import dataclass
 
 import markdown
 from markupsafe import Markup, escape
 
-from specgen.pagetext import section_text, squeeze
+from specgen.pagetext import anchor_label, section_text, squeeze
 
 CONTEXT_ASSET = "assets/review-context.js"
 # the Markdown extensions of mkdocs.yml that give headings and elements their ids
-EXTENSIONS = ["toc", "tables", "attr_list", "md_in_html", "admonition", "def_list"]
+EXTENSIONS = ["toc", "tables", "attr_list", "md_in_html", "admonition", "def_list",
+              "specgen.report.mdanchors"]
 NOW_SHOWN = 600          # characters of a changed section shown beside the old quote
 CATEGORY_ORDER = ("required change", "question", "advisory")
 
@@ -30,6 +33,7 @@ class Place:
 
     state: str           # "unchanged", "changed", "gone", "page" (whole page), "none"
     now: str = ""        # the section's text now, when it changed
+    label: str = ""      # what names the anchored element now (heading, figure, table row)
 
 
 def review_context(project) -> bytes:
@@ -47,17 +51,35 @@ def place_of(comment, pages: dict[str, str]) -> Place:
     if text is None:
         return Place("gone")
     html = markdown.markdown(text, extensions=EXTENSIONS)
+    label = ""
     if comment.anchor:
         now = section_text(html, comment.anchor)
+        label = anchor_label(html, comment.anchor) or ""
     else:
         from specgen.pagetext import page_facts
         now = page_facts(html)[1]
     if now is None:
         return Place("gone")
     if not comment.quote or squeeze(comment.quote) in squeeze(now):
-        return Place("unchanged")
+        return Place("unchanged", label=label)
     short = " ".join(now.split())
-    return Place("changed", short if len(short) <= NOW_SHOWN else short[:NOW_SHOWN - 1] + "…")
+    return Place("changed", short if len(short) <= NOW_SHOWN else short[:NOW_SHOWN - 1] + "…",
+                 label)
+
+
+def where_words(comment, pages: dict[str, str], titles: dict[str, str]) -> str:
+    """Where a comment was made, in words: "8 Specification › 8.1.1 Materials", "4 Strength
+    development › Table row: compressive · 28 d", or its check code; never an element id."""
+    code, _, subject = comment.about.partition("/")
+    title = titles.get(f"{comment.about}.md")
+    if title is None:
+        return f"check {comment.about}" if subject or code.isupper() else comment.about
+    if not comment.anchor:
+        return title
+    place = place_of(comment, pages)
+    if place.label:
+        return f"{title} › {place.label}"
+    return f"{title} › a passage no longer in this revision"
 
 
 def place_markdown(comment, pages: dict[str, str]) -> str:
@@ -91,3 +113,62 @@ def open_by_category(comments) -> str:
 def later_token(n: int) -> Markup:
     """A placeholder for text written once every page is rendered."""
     return Markup(f"<!--sg-later-{n}-->")
+
+
+# ------------------------------------------------ what changed on the pages since a revision
+_HEADING = re.compile(r"^(#{1,6})[ \t]+(.*?)[ \t]*(?:\{[^}\n]*\})?[ \t]*$", re.M)
+_NUMBER = re.compile(r"^(?:[A-Z]|\d+)(?:\.\d+)*\.?\s+")   # "8.1.1 ", "B ": a section's number
+_LATER = re.compile(r"<!--sg-later-\d+-->")
+_COUNTED = re.compile(r"\b(Table|Figure) \d+\.")             # numbers that move with other pages
+TOP = "(opening)"
+
+
+def page_sections(pages: dict[str, str]) -> dict[str, dict[str, str]]:
+    """For each page, a digest of the text of each of its sections, keyed by the section's
+    headings without their numbers ("Zone Z1 … › Materials"; :data:`TOP` before the first
+    sub-heading).  Two revisions' digests tell which sections' text changed: written into
+    each revision's manifest, read by the next revision's change report.  Table and figure
+    numbers and the parts written once every page is rendered are left out (they move when
+    another page changes)."""
+    out = {}
+    for path, text in pages.items():
+        if not path.endswith(".md"):
+            continue
+        parts: dict[str, list[str]] = {}
+        trail: list[tuple[int, str]] = []
+        key, pos = TOP, 0
+        for m in _HEADING.finditer(text):
+            parts.setdefault(key, []).append(text[pos:m.start()])
+            level = len(m.group(1))
+            trail = [t for t in trail if t[0] < level] + [(level, section_name(m.group(2)))]
+            key = " › ".join(t for _, t in trail[1:]) or TOP
+            pos = m.end()
+        parts.setdefault(key, []).append(text[pos:])
+        out[path[:-3]] = {k: _digest(" ".join(v)) for k, v in parts.items()}
+    return out
+
+
+def section_name(heading: str) -> str:
+    """A heading's words without its number, as :func:`page_sections` keys it."""
+    return _NUMBER.sub("", " ".join(heading.split()))
+
+
+def _digest(text: str) -> str:
+    text = _COUNTED.sub(r"\1 #.", _LATER.sub("", text))
+    return hashlib.sha256(" ".join(text.split()).encode("utf-8")).hexdigest()[:16]
+
+
+def compare_sections(old: dict, new: dict) -> list[dict]:
+    """Pages whose text changed between two revisions' :func:`page_sections`, in the new
+    revision's page order: page, and the sections changed, added and removed."""
+    found = []
+    for page in list(new) + [p for p in old if p not in new]:
+        a, b = old.get(page), new.get(page)
+        if a == b:
+            continue
+        a, b = a or {}, b or {}
+        found.append({"page": page, "new_page": page not in old, "gone": page not in new,
+                      "changed": [k for k in b if k in a and a[k] != b[k]],
+                      "added": [k for k in b if k not in a],
+                      "removed": [k for k in a if k not in b]})
+    return found

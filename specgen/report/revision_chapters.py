@@ -4,7 +4,8 @@ from __future__ import annotations
 from specgen.checks.result import STATUS_WORDS
 from specgen.report.chapters import badge, chapter, sheet_anchor, sheet_anchor_of
 from specgen.report.fmt import qty
-from specgen.report.review import open_by_category, place_markdown, place_of
+from specgen.report.review import (TOP, compare_sections, open_by_category, place_markdown,
+                                   place_of, section_name, where_words)
 from specgen.report.wording import plain
 
 
@@ -26,24 +27,103 @@ def changes(env) -> dict:
     return {"previous": ch["from"], "decision": ch.get("decision_lines", []),
             "inputs": ch["inputs"], "specimens": ch["specimens"],
             "checks": rows, "comments": ch["comments"], "answered": _answered(env),
+            "pages": env.later(lambda pages: _pages_changed(env)),
             "status_changes": sum(1 for c in ch["checks"] if c["old_status"] != c["new_status"])}
 
 
 def _answered(env) -> list[dict]:
-    """Comments closed in this revision, with whether their passage changed."""
+    """Comments closed in this revision: where each was made, what became of its passage and
+    what the response changed (each named page or check checked against the revision before)."""
     code = env.project.revision.code
-    return [{"id": c.id, "href": f"comments.md#comment-{c.id.lower()}", "where": _where(c),
+    return [{"id": c.id, "href": f"comments.md#comment-{c.id.lower()}",
              "category": c.category or "comment",
-             "change": env.later(lambda pages, c=c: _change_words(c, pages))}
+             "line": env.later(lambda pages, c=c: _answer_words(env, c, pages))}
             for c in env.project.comments if c.status == "closed" and c.closed_in == code]
 
 
-def _change_words(c, pages) -> str:
-    state = place_of(c, pages).state
-    return {"changed": f"the passage on page {c.about} changed",
-            "gone": f"the passage was removed from page {c.about}",
-            "unchanged": f"page {c.about}: the quoted passage is unchanged"}.get(
-                state, f"about {c.about}")
+def _answer_words(env, c, pages) -> str:
+    from specgen.report.render import inert
+    where = inert(where_words(c, pages, env.pageset.titles))
+    own = {"changed": "the quoted passage has changed", "gone": "the quoted passage is no "
+           "longer in the dossier", "unchanged": "the quoted passage reads the same"}.get(
+               place_of(c, pages).state)
+    first = place_of(c, pages).label if c.anchor else ""
+    changed = [_changed_words(env, name, first) for name in c.changed] or [
+        "the response names no page or check it changed"]
+    return f"about {where}{'; ' + own if own else ''}. Changed in answer: {'; '.join(changed)}."
+
+
+def _changed_words(env, name: str, first: str = "") -> str:
+    """One place a response says it changed, and whether it did since the revision before
+    (the section called ``first``, where the comment was made, named first)."""
+    from specgen.report.render import inert
+    before = env.results.previous
+    code, _, subject = name.partition("/")
+    title = env.pageset.titles.get(f"{name}.md")
+    if title is None:              # a check, or a family of checks
+        moved = [c for c in (env.results.changes or {}).get("checks", [])
+                 if c["key"] == name or (not subject and c["code"] == code)]
+        if not moved:
+            return f"check {inert(name)}: no status or value changed since {before} " \
+                   "(**the response says it changed**)"
+        return "; ".join(f"check {inert(c['key'])}: {_moved(c)}" for c in moved)
+    link = f"[{inert(title)}]({name}.md)"
+    if env.history is None or env.history.sections_before is None:
+        return f"{link} (not compared: the pages of {before} are not in this output folder)"
+    diff = {d["page"]: d for d in compare_sections(env.history.sections_before,
+                                                  env.pageset.sections)}
+    if name not in diff:
+        return f"{link} reads the same as in {before} (**the response says it changed**)"
+    return f"{link}: {_section_words(diff[name], first)}"
+
+
+def _moved(c: dict) -> str:
+    words = []
+    if c["old_status"] != c["new_status"]:
+        words.append(f"{STATUS_WORDS.get(c['old_status'], 'not present')} → "
+                     f"{STATUS_WORDS.get(c['new_status'], 'not present')}")
+    if c["old_value"] != c["new_value"]:
+        old, new = (qty(v, c["unit"]) if v is not None else None
+                    for v in (c["old_value"], c["new_value"]))
+        words.append(f"{old} → {new}" if old and new else f"now {new}" if new
+                     else f"no value now (was {old})")
+    return ", ".join(words)
+
+
+def _section_words(d: dict, first: str = "", most: int = 5) -> str:
+    """"3 sections changed (Materials; Curing; …), 1 added (…)" for one page; a section
+    called ``first`` (numbers aside) is named first."""
+    if d["new_page"]:
+        return "a new page"
+    if d["gone"]:
+        return "no longer in the dossier"
+    from specgen.report.render import inert
+    words = []
+    for kind in ("changed", "added", "removed"):
+        names = [n.split(" › ")[-1] if n != TOP else "its opening" for n in d[kind]]
+        names.sort(key=lambda n: n != section_name(first))    # stable: page order otherwise
+        if names:
+            shown = "; ".join(inert(n) for n in names[:most])
+            more = f"; and {len(names) - most} more" if len(names) > most else ""
+            words.append(f"{len(names)} section{'s' if len(names) != 1 else ''} {kind} "
+                         f"({shown}{more})")
+    return ", ".join(words) or "changed"
+
+
+def _pages_changed(env) -> str:
+    """The pages whose text changed since the revision the change report compares with."""
+    from specgen.report.render import inert
+    before = env.results.previous
+    if env.history is None or env.history.sections_before is None:
+        return (f"The pages of {before} are not in this output folder, or were published "
+                "before specgen compared pages: this revision's pages are not compared with "
+                "them (its inputs and checks are).")
+    diff = compare_sections(env.history.sections_before, env.pageset.sections)
+    if not diff:
+        return f"Every page reads as in {before}."
+    return (f"Pages whose text changed since {before}, with the sections that changed (table "
+            "and figure numbers left out: they move when another page changes):\n\n") + "\n".join(f"- [{inert(env.pageset.titles.get(d['page'] + '.md', d['page']))}]"
+                     f"({d['page']}.md): {_section_words(d)}" for d in diff)
 
 
 @chapter("history.md", "Revision history", "history.md.j2", volume="appendix")
@@ -64,7 +144,8 @@ def comments(env) -> dict:
     rows = []
     for c in env.project.comments:
         rows.append({"id": c.id, "slug": c.id.lower(), "raised": c.raised_in, "about": c.about,
-                     "href": _comment_href(env, c, checks), "where": _where(c),
+                     "href": _comment_href(env, c, checks),
+                     "where": env.later(lambda pages, c=c: _where(env, c, pages)),
                      "category": c.category or "", "role": c.reviewer_role,
                      "who": ", ".join(x for x in (c.author, c.organisation) if x) or c.reviewer_role,
                      "date": c.date.isoformat() if c.date else "", "quote": c.quote,
@@ -88,8 +169,9 @@ def _comment_href(env, c, checks) -> str | None:
     return f"{page}.md" + (f"#{c.anchor}" if c.anchor else "")
 
 
-def _where(c) -> str:
-    return c.about + (f" › {c.anchor}" if c.anchor else "")
+def _where(env, c, pages) -> str:
+    from specgen.report.render import inert
+    return inert(where_words(c, pages, env.pageset.titles))
 
 
 __all__ = ["STATUS_WORDS"]

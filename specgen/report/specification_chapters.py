@@ -10,7 +10,7 @@ from markupsafe import Markup, escape
 
 from specgen.checks.result import STATUS_WORDS
 from specgen.report.chapters import badge, chapter
-from specgen.report.fmt import anchor, as_given, date_text, num, qty, unit_symbol
+from specgen.report.fmt import anchor, as_given, date_text, qty, rounded, unit_symbol
 from specgen.report.specification_clauses import clause_context
 from specgen.report.wording import reader
 from specgen.views import applicable
@@ -26,7 +26,8 @@ def _href(key: str) -> str:
 def _cell(c) -> dict:
     if c is None:
         return {"badge": Markup("—"), "value": "", "href": ""}
-    value = "" if c.status == "not_assessed" or c.value is None else qty(c.value, c.unit)
+    value = "" if c.status == "not_assessed" or c.value is None else qty(
+        c.value, c.unit, kind=c.value_symbol)
     return {"badge": Markup(badge(c.status)), "value": value, "href": _href(c.key)}
 
 
@@ -330,7 +331,7 @@ def _panels(env) -> list[dict]:
                                                  ", not yet dry" if tp.judgement != "pending"
                                                  else ""),
                     "judged_on": tp.judged_on.isoformat() if tp.judged_on else "—",
-                    "delta_e": num(colour.value, 3) if colour and colour.status != "not_assessed"
+                    "delta_e": rounded(colour.value, "ΔE00") if colour and colour.status != "not_assessed"
                     else "—", "colour_href": _href(colour.key) if colour else "",
                     "sample": tp.colour_sample or "—", "remarks": tp.remarks or "—", "photo": fig})
     return out

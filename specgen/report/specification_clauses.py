@@ -7,7 +7,7 @@ exports (Markdown and an HTML fragment) written beside the PDF.
 """
 from __future__ import annotations
 
-from specgen.report.fmt import as_given, num
+from specgen.report.fmt import as_given, num, qty, rounded
 from specgen.views import family_words
 
 
@@ -34,7 +34,7 @@ def _materials(project, results, zone, mix) -> dict:
                         "type": "" if kind.split(" (")[0].lower() in b.name.lower() else kind,
                         "declared": b.declared_class, "analysis": b.analysis,
                         "band": ci.limit.text if ci and ci.limit else "",
-                        "ci": num(ci.value, 3) if ci and ci.status != "not_assessed" else "",
+                        "ci": rounded(ci.value, "CI") if ci and ci.status != "not_assessed" else "",
                         "source": ci.key if ci else ""})
     sands = [{"id": s.sand, "name": project.sands[s.sand].name} for s in mix.sands]
     grad = results.check("COMP-GRAD", f"{zone.id}/{mix.id}")
@@ -128,7 +128,8 @@ def _colour(project, results, zone, mix) -> dict | None:
     sel = project.specification.selection_for(zone.id) if project.specification else None
     justified = bool(sel and any(ref in (c.code, c.key) for ref in sel[1].covers)) if c else False
     return {"limit": lim.text if lim else "", "source": c.key if c is not None else "",
-            "panels": ", ".join(panels), "measured": num(c.value, 3) if outside else "",
+            "panels": ", ".join(panels),
+            "measured": qty(c.value, "", 3, c.value_symbol) if outside else "",
             "justified": justified}
 
 

@@ -74,14 +74,38 @@ UNIT_TEXT = [
     (re.compile(r"min\^0\.5"), "min^½"),
     (re.compile(r"\s->\s"), " → "),
     (re.compile(r"(?<=\d) ?x ?(?=\d)"), " × "),
+    # a range whose ends are one number is that number ("100–100 %" reads "100 %")
+    (re.compile(r"(?<![\d.])(\d+(?:\.\d+)?)–\1(?![\d.])"), r"\1"),
 ]
 PLURALS = re.compile(r"\b(\d+(?:\.\d+)?) ((?:[a-z-]+ ){0,2}[a-z]+)\(s\)")
 MINUS = re.compile(r"(?<![\w.])-(?=\d)")
 SUBSCRIPT = re.compile(r"(?<![\w/.-])([A-Za-zα-ωΔ])_\{?([A-Za-z0-9,]{1,12})\}?(?![\w/])")
 
 _FILE = re.compile(r"\b(?:content/(?:data|rules)/)?([\w/-]+)\.(ya?ml|csv|json)\b")
+#: a key of a record, an entry of a list by its position (``coats[0]``) allowed
+_KEY = r"[a-z][a-z0-9]*(?:_[a-z0-9]+)*(?:\[\d+\])?"
+#: what follows a file's label: a list of the file and the id of its entry (``mortar_properties
+#: M3``), an id (``Z2``), and a path of keys in that entry (``.carbonation[0]``, ``.firing.peak``)
 _FIELD_AFTER_FILE = re.compile(
-    r"(?P<label>⟦[^⟧]+⟧),? (?:(?P<id>[A-Z][\w-]*)\.)?(?P<field>[a-z][a-z0-9]*(?:[_.][a-z0-9]+)*)\b")
+    rf"(?P<label>⟦[^⟧]+⟧),? (?:(?P<section>[a-z][a-z0-9]*(?:_[a-z0-9]+)*) (?=[A-Z]))?"
+    rf"(?:(?P<id>[A-Z][\w-]*)(?:\.(?=[a-z])|\b))?(?P<field>{_KEY}(?:\.{_KEY})*)?(?![\w\[])")
+_INDEXED = re.compile(r"([a-z][a-z0-9_]*)\[(\d+)\]")
+#: a list of a project file named before the id of one of its entries, as a reader says it
+SECTION_WORDS = {"mortar_properties": "mortar properties of", "unit_prices": "unit price of"}
+#: the noun of one entry of a list named by its position (``carbonation[0]``)
+ENTRY_WORDS = {"carbonation": "carbonation depth reading"}
+#: keys (or paths of keys) whose words are not their name's
+FIELD_WORDS = {
+    "per": "quantity priced per",
+    "freeze_thaw": "freeze–thaw test",
+    "firing.peak": "peak firing temperature",
+    "water_binder_ratio": "water/binder ratio",
+    "requirements.min_compressive": "required minimum compressive strength",
+    "requirements.max_compressive_long_term": "required maximum long-term compressive strength",
+    "known_cv": "known coefficient of variation",
+}
+_ORDINALS = ("first", "second", "third", "fourth", "fifth", "sixth", "seventh", "eighth",
+             "ninth", "tenth")
 _RULE = re.compile(r"\brule `?([a-z]+)\.([a-z0-9_]+)`?")
 _QUOTED_KEY = re.compile(r"(?:set )?'([a-z0-9]+(?:_[a-z0-9]+)+)'")
 _SNAKE = re.compile(r"\b[a-z][a-z0-9]*(?:_[a-z0-9]+)+\b")
@@ -119,12 +143,60 @@ def _file(m: re.Match) -> str:
     return f"⟦{label or m.group(1).rsplit('/', 1)[-1].replace('_', ' ').replace('-', ' ')}⟧"
 
 
+def ordinal(n: int) -> str:
+    """``n`` (from 1) as an ordinal: ``first`` … ``tenth``, then ``11th``, ``21st``."""
+    if n <= len(_ORDINALS):
+        return _ORDINALS[n - 1]
+    suffix = "th" if 10 <= n % 100 <= 20 else {1: "st", 2: "nd", 3: "rd"}.get(n % 10, "th")
+    return f"{n}{suffix}"
+
+
+def singular(words: str) -> str:
+    """The noun of one entry of a list named in the plural (``hold points`` → ``hold point``,
+    ``analyses`` → ``analysis``, ``mixes`` → ``mix``)."""
+    for end, one in (("yses", "ysis"), ("ies", "y"), ("xes", "x"), ("ches", "ch"),
+                     ("sses", "ss")):
+        if words.endswith(end):
+            return words[:-len(end)] + one
+    return words[:-1] if words.endswith("s") and not words.endswith("ss") else words
+
+
+def key_words(path: str) -> str:
+    """A path of keys in a project file as a reader says it: ``coats[0]`` → ``first coat``,
+    ``unit_prices[0].per`` → ``first unit price, quantity priced per``; a key of
+    :data:`FIELD_WORDS` by its words, any other by its name with spaces."""
+    if path in FIELD_WORDS:
+        return FIELD_WORDS[path]
+    words = []
+    for key in path.split("."):
+        m = _INDEXED.fullmatch(key)
+        if m:
+            noun = ENTRY_WORDS.get(m.group(1)) or singular(m.group(1).replace("_", " "))
+            words.append(f"{ordinal(int(m.group(2)) + 1)} {noun}")
+        else:
+            words.append(FIELD_WORDS.get(key, key.replace("_", " ")))
+    return ", ".join(words)
+
+
 def _field(m: re.Match) -> str:
-    if not m.group("id") and not re.search(r"[_.]", m.group("field")):
+    section, ident, field = m.group("section"), m.group("id"), m.group("field") or ""
+    if not (section or ident) and not re.search(r"[_.\[]", field):
         return m.group(0)      # a plain word after the file ("lab/strength.csv row 2"), no key
-    what = m.group("field").replace(".", " ").replace("_", " ")
-    ident = f"{m.group('id')} " if m.group("id") else ""
-    return f"{m.group('label')[:-1]}, {ident}{what}⟧"
+    what = key_words(field) if field else ""
+    if section:
+        entry = f"{SECTION_WORDS.get(section) or singular(section.replace('_', ' '))} {ident}"
+        text = f"{entry}, {what}" if what else entry
+    else:
+        text = " ".join(filter(None, (ident, what)))
+    return f"{m.group('label')[:-1]}, {text}⟧"
+
+
+def _key_label(m: re.Match) -> str:
+    """A key's label, unless the text already goes on with the rest of it ("hyperbolic law"
+    stays, not "hyperbolic law law")."""
+    label = KEY_LABELS[m.group(0)]
+    rest = label[len(m.group(0)):] if label.startswith(m.group(0)) else ""
+    return m.group(0) if rest and m.string.startswith(rest, m.end()) else label
 
 
 def typeset(text: str) -> str:
@@ -190,7 +262,7 @@ def plain(text: str) -> str:
     text = _FIELD_AFTER_FILE.sub(_field, text)
     text = _QUOTED_KEY.sub(lambda m: KEY_LABELS.get(m.group(1), m.group(1).replace("_", " ")),
                            text)
-    text = _KEY_WORD.sub(lambda m: KEY_LABELS[m.group(0)], text)
+    text = _KEY_WORD.sub(_key_label, text)
     text = typeset(text)
     text = text.replace("⟦", "").replace("⟧", "")
     return _SNAKE.sub(lambda m: m.group(0).replace("_", " ") if not SUBSCRIPT.fullmatch(
@@ -231,7 +303,10 @@ def input_terms(text) -> Markup:
 
 
 def symbol(text: str) -> Markup:
-    """A symbol of a calculation (``f_k``, ``V_m,min``, ``x_repair``) with its subscript."""
+    """A symbol of a calculation (``f_k``, ``V_m,min``, ``x_repair``) with its subscript; a
+    list of symbols (``S_L, S_C, S_H``) each with its own."""
+    if ", " in (text or "") and all("_" in part for part in text.split(", ")):
+        return Markup(", ").join(symbol(part) for part in text.split(", "))
     out = str(escape(text or ""))
     m = re.fullmatch(r"([^_]+)_\{?(.+?)\}?", out)
     return Markup(f"{m.group(1)}<sub>{m.group(2)}</sub>" if m else out)

@@ -164,12 +164,12 @@ def fit_model(model: str, ages_s: Sequence[float], values_pa: Sequence[float], *
     notes = []
     if model == "two_component":
         if not TAU_A_BOUNDS_S[0] <= tau_a_s <= TAU_A_BOUNDS_S[1]:
-            raise StrengthFitError("tau_A must lie between 1 min and 12 h")
+            raise StrengthFitError("the aluminate time constant τ_A must lie between 1 min and 12 h")
         x_full[1] = tau_a_s / DAY
         if p == 4:
             free[1] = False
-            notes.append(f"tau_A held at {tau_a_s / 60:g} min: fewer than two ages under "
-                         "half a day, so the aluminate time constant cannot be fitted")
+            notes.append(f"τ_A held at {tau_a_s / 60:g} min: fewer than two ages under half a "
+                         "day, so the aluminate stage's time constant cannot be fitted")
     x0 = np.clip(_start(spec, t, y, w, x_full), lo, hi)
     return _solve(spec, t, y, w, wdesc, x0, free, lo, hi, notes, t_s)
 

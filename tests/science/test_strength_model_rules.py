@@ -132,17 +132,17 @@ def test_model_refusals_word_for_word():
     for tau in (59.0, 12 * 3600.0 + 1):          # the bounds are 1 min and 12 h, inclusive
         with pytest.raises(StrengthFitError) as exc:
             fit_model("two_component", t * DAY, y * MPA, tau_a_s=tau)
-        assert str(exc.value) == "tau_A must lie between 1 min and 12 h"
+        assert str(exc.value) == "the aluminate time constant τ_A must lie between 1 min and 12 h"
 
 
 def test_tau_a_on_its_bounds_is_held_and_said_in_minutes():
     # no age under half a day: tau_A is held where it is given; 60 s = 1 min, 43 200 s = 720 min
     t, y = _data()
-    for tau, words in ((60.0, "tau_A held at 1 min"), (12 * 3600.0, "tau_A held at 720 min")):
+    for tau, words in ((60.0, "τ_A held at 1 min"), (12 * 3600.0, "τ_A held at 720 min")):
         fit = fit_model("two_component", t * DAY, y * MPA, tau_a_s=tau)
         assert fit.fixed == {"tau_A": tau}
         assert fit.notes[0] == (f"{words}: fewer than two ages under half a day, so the "
-                                "aluminate time constant cannot be fitted")
+                                "aluminate stage's time constant cannot be fitted")
 
 
 # ------------------------------------------------------------------ AICc and support

@@ -46,6 +46,26 @@
   function headings() {
     return Array.prototype.slice.call(content().querySelectorAll("h1[id], h2[id], h3[id], h4[id]"));
   }
+  function words(node) { return node ? node.textContent.replace(/\s+/g, " ").trim() : ""; }
+  /* The places a comment can be about without selecting text: headings and figures. */
+  function places() {
+    return Array.prototype.slice.call(content().querySelectorAll(
+      "h1[id], h2[id], h3[id], h4[id], figure[id]"));
+  }
+  /* What the panel calls the element with this id: a heading's words, a figure's caption,
+   * a table row's first cell. */
+  function labelOf(id) {
+    var e = id ? document.getElementById(id) : null;
+    if (!e) { return "The selected passage"; }
+    if (/^H[1-6]$/.test(e.tagName)) { return words(e).slice(0, 90); }
+    if (e.tagName === "FIGURE") {
+      return "Figure: " + (words(e.querySelector("figcaption")) || id).slice(0, 90);
+    }
+    if (e.tagName === "TR") {
+      return "Table row: " + (words(e.querySelector("td, th")) || id).slice(0, 90);
+    }
+    return "The selected passage";
+  }
   function newKey() {
     var bytes = new Uint8Array(8);
     (window.crypto || window.msCrypto).getRandomValues(bytes);
@@ -85,7 +105,8 @@
   var panel = el("aside", {id: "sg-review-panel", "class": "sg-review-panel", hidden: "",
                            "aria-labelledby": "sg-review-title"});
   var title = el("h2", {id: "sg-review-title", tabindex: "-1"}, "Review comments");
-  var intro = el("p", {}, "Select a passage, then write your comment. Comments stay in this " +
+  var intro = el("p", {}, "Select a passage, a table row or a figure's caption (or choose a " +
+    "section or figure from the list), then write your comment. Comments stay in this " +
     "browser until you export them as a file to send to the specifier; nothing is sent anywhere.");
   var form = el("form", {"class": "sg-review-form", novalidate: ""});
   var status = el("p", {"class": "sg-review-status", role: "status", "aria-live": "polite"});
@@ -112,7 +133,7 @@
                                   autocomplete: "organization"});
   var role = el("input", {name: "role", type: "text", maxlength: "200", autocomplete: "organization-title"});
   var submit = el("button", {type: "submit"}, "Save comment");
-  form.appendChild(field("Section of this page", section, "sg-review-anchor"));
+  form.appendChild(field("Place on this page (section, figure or selected row)", section, "sg-review-anchor"));
   form.appendChild(field("Quoted text (from your selection; you may shorten it)", quote, "sg-review-quote"));
   form.appendChild(field("Category", category, "sg-review-category"));
   form.appendChild(field("Comment", text, "sg-review-text"));
@@ -123,17 +144,24 @@
   [title, intro, form, status, list, exportButton, closeButton].forEach(function (n) { panel.appendChild(n); });
   document.body.appendChild(toggle);
   document.body.appendChild(panel);
+  /* The button comes last in the page, after every link of a long chapter: a link at the
+   * start, shown when it has the keyboard's focus (as "Skip to content" is), opens the panel. */
+  var jump = el("a", {href: "#sg-review-panel", "class": "sg-review-skip"},
+                "Skip to review comments");
+  var skip = document.querySelector(".md-skip");
+  if (skip) { skip.parentNode.insertBefore(jump, skip.nextSibling); }
+  else { document.body.insertBefore(jump, document.body.firstChild); }
 
   function fillSections(selected) {
     section.textContent = "";
     section.appendChild(el("option", {value: ""}, "The whole page"));
-    headings().forEach(function (h) {
-      var o = el("option", {value: h.id}, h.textContent.replace(/\s+/g, " ").trim().slice(0, 90));
+    places().forEach(function (h) {
+      var o = el("option", {value: h.id}, labelOf(h.id));
       if (h.id === selected) { o.selected = true; }
       section.appendChild(o);
     });
-    if (selected && section.value !== selected) {  // an element that is not a heading
-      var o = el("option", {value: selected}, "The selected passage");
+    if (selected && section.value !== selected) {  // a table row or another element
+      var o = el("option", {value: selected}, labelOf(selected));
       o.selected = true;
       section.appendChild(o);
     }
@@ -176,6 +204,7 @@
     toggle.focus();
   }
   toggle.addEventListener("click", function () { if (panel.hidden) { open(); } else { close(); } });
+  jump.addEventListener("click", function (e) { e.preventDefault(); open(); });
   closeButton.addEventListener("click", close);
   panel.addEventListener("keydown", function (e) { if (e.key === "Escape") { close(); } });
   form.addEventListener("submit", function (e) {
