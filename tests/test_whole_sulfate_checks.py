@@ -27,10 +27,9 @@ SEA_NOTE = ("sea water: its chloride moderates the expansion of ettringite in pr
 COLD = "cold: -4.0 °C < 15 °C"
 CARB_NC1 = "carbonate: NC1: CO2 1.9 % ≥ 0.5 % (analysis NC1-A)"
 
-#: the water condition of the demo's zone Z1: the class with what it means
-#: (content/data/exposure_classes.yaml, EN 1996-2 wording, tagged memory there)
-WATER_MX31 = ("water: moisture wetting (MX4 with MX3.1: saturated salt air, sea water or de-icing "
-              "salts; moisture or wetting plus freeze–thaw cycling)")
+#: the water condition of the demo's zone Z1: the class by its designation (what it means is
+#: said once, by DUR-EXPOSE/Z1, named as the condition's source)
+WATER_MX31 = "water: moisture wetting (MX4 with MX3.1)"
 
 
 def _inputs(step):
@@ -44,8 +43,7 @@ def test_thaumasite_of_natural_cement_in_the_splash_zone_whole(demo_checked):
         "DUR-TSA", TSA, "Z2/M1", "zone", "fail", "all 5 conditions met", "")
     sul = ("sulfate: fabric sulfate high (COMP-SALT/Z2/M1); sea water (splash and wave "
            "overtopping, DUR-EXPOSE/Z2)")
-    water = ("water: severe wetting (MX4 with MX3.2: saturated salt air, sea water or de-icing "
-             "salts; severe wetting plus freeze–thaw cycling)")
+    water = "water: severe wetting (MX4 with MX3.2)"
     assert c.message == ("thaumasite risk: every condition met — C-S-H: NC1 (natural cement); "
                          f"{sul}; {water}; {CARB_NC1}; {COLD}")
     assert (c.basis, c.limit, c.notes, c.quantities) == ((TEG,), None, (), ())

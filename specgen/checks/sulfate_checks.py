@@ -68,10 +68,10 @@ def water(pair, ctx) -> Condition:
     if e is None:
         return Condition("water", None, "no exposure class", "DUR-EXPOSE",
                          f"give dossier.yaml {pair.zone.id}.exposure_conditions")
-    # the class with what it means: "moisture wetting (MX4 with MX3.1: saturated salt air, …)"
-    meaning = dc.exposure_meaning(e)
+    # the class by its designation: what it means is said once, by the zone's DUR-EXPOSE,
+    # named beside it (repeated in every sulfate finding it ran the main volume pages longer)
     return Condition("water", e["wetting"] != "dry", f"{e['wetting']} wetting ({e['designation']}"
-                     + (f": {meaning})" if meaning else ")"), f"DUR-EXPOSE/{pair.zone.id}")
+                     ")", f"DUR-EXPOSE/{pair.zone.id}")
 
 
 def carbonate(pair, ctx) -> Condition:
