@@ -66,8 +66,10 @@ def pytest_collection_modifyitems(config, items):
                 item.add_marker(skip)
     late = {item.path for item in items if "demo_build" in item.fixturenames}
     cost = _file_costs(items) if hasattr(config, "workerinput") else {}
-    # stable: the order within a file stays
-    items.sort(key=lambda item: (item.path in late, -cost.get(item.path, 0.0)))
+    # stable: the order within a file stays.  The declared costly files first, those that
+    # need no demo build before those that read it; then the rest, the demo's readers last
+    items.sort(key=lambda item: (not cost.get(item.path), item.path in late,
+                                 -cost.get(item.path, 0.0)))
     if not config.option.collectonly and any(
             "demo_build" in item.fixturenames and not item.get_closest_marker("skip")
             for item in items):
@@ -83,7 +85,10 @@ def _file_costs(items) -> dict:
     collected them (``--no-loadscope-reorder``; its default sends the files with the most
     tests first, which left the costliest, one-test files to the end on one worker while
     the other had nothing left to do).  The costliest go first, so the last files handed
-    out are short ones and both workers end together; the demo build's readers stay last."""
+    out are short ones and both workers end together.  A costly reader of the demo build
+    goes after the costly files that need none (the build is done by then) and before the
+    cheap files, which fill the end beside it (the browser pass, over a minute, was the
+    last file handed out, with the other worker idle)."""
     cost: dict = {}
     for item in items:
         mark = item.get_closest_marker("costly")

@@ -28,31 +28,6 @@ def _pages(demo_build) -> list[Path]:
     return [p for p in sorted((demo_build / REV).glob("*.html")) if p.name not in LISTINGS]
 
 
-def test_no_internal_name_reaches_a_reader(demo_build, demo_pdf_prose):
-    """Every page of the site (what a screen reader says of it too: alternative texts,
-    labels) and every page of both PDF volumes, but the input listing and code (a file or
-    key named as written, for the person editing the project, is set as code).  The PDFs'
-    prose is taken apart once per run (``demo_pdf_prose``)."""
-    from pypdf import PdfReader
-
-    from tests.reader_text import pdf_reader_pages
-    found = {}
-    pages = [*_pages(demo_build), demo_build / "index.html", demo_build / "revisions.html"]
-    for page in pages:
-        names = internal_names(reader_text(page.read_text(encoding="utf-8")))
-        if names:
-            found[page.name] = sorted(set(names))[:8]
-    pdfs = sorted((demo_build / REV).glob("*.pdf"))
-    assert len(pdfs) == 2                    # the main volume and the appendix volume
-    for pdf in pdfs:
-        prose = demo_pdf_prose(pdf.relative_to(demo_build).as_posix())
-        for n, text in pdf_reader_pages(PdfReader(str(pdf)), prose=prose):
-            if names := internal_names(text):
-                found[f"{pdf.name} p. {n}"] = sorted(set(names))[:8]
-    assert found == {}
-    assert len(pages) >= 25  # the demo: 27 pages of R3 and the two of the root
-
-
 def test_the_scan_finds_what_it_is_for():
     """The scan itself, on text made for it: each kind of name found in running text and in
     an alternative text, none inside code or the input listing."""
@@ -226,3 +201,30 @@ def test_pdf_is_tagged_for_a_screen_reader(demo_build):
     for reader in (main, appendix):
         assert reader.trailer["/Root"]["/ViewerPreferences"]["/DisplayDocTitle"] == True  # noqa: E712
         assert b"pdfaid:part=\"3\"" in reader.trailer["/Root"]["/Metadata"].get_object().get_data()
+
+
+# last in the file: the PDFs' prose is taken apart after the demo build (conftest.py),
+# while the tests above run
+def test_no_internal_name_reaches_a_reader(demo_build, demo_pdf_prose):
+    """Every page of the site (what a screen reader says of it too: alternative texts,
+    labels) and every page of both PDF volumes, but the input listing and code (a file or
+    key named as written, for the person editing the project, is set as code).  The PDFs'
+    prose is taken apart once per run (``demo_pdf_prose``)."""
+    from pypdf import PdfReader
+
+    from tests.reader_text import pdf_reader_pages
+    found = {}
+    pages = [*_pages(demo_build), demo_build / "index.html", demo_build / "revisions.html"]
+    for page in pages:
+        names = internal_names(reader_text(page.read_text(encoding="utf-8")))
+        if names:
+            found[page.name] = sorted(set(names))[:8]
+    pdfs = sorted((demo_build / REV).glob("*.pdf"))
+    assert len(pdfs) == 2                    # the main volume and the appendix volume
+    for pdf in pdfs:
+        prose = demo_pdf_prose(pdf.relative_to(demo_build).as_posix())
+        for n, text in pdf_reader_pages(PdfReader(str(pdf)), prose=prose):
+            if names := internal_names(text):
+                found[f"{pdf.name} p. {n}"] = sorted(set(names))[:8]
+    assert found == {}
+    assert len(pages) >= 25  # the demo: 27 pages of R3 and the two of the root
