@@ -25,7 +25,7 @@ def test_compatibility_matrix_links_every_pair_to_its_sheet(demo_build):
             assert f'id="{anchor}"' in sheets, anchor
     # two real tables per zone (compatibility with the fabric, then durability in the
     # zone's exposure), one row per candidate of each zone (3 + 2 + 2) in each
-    assert len(re.findall(r"<tr>\s*<td><strong>M\d</strong></td>", html)) == 2 * 7
+    assert len(re.findall(r"<tr[^>]*>\s*<td><strong>M\d</strong></td>", html)) == 2 * 7
     assert len(re.findall(r"Table \d+\. Compatibility of the candidates with the fabric of "
                           r"zone Z\d", html)) == 3
 

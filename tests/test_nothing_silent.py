@@ -51,7 +51,7 @@ CASES = [
      "revision 'R7', which is neither this revision nor an issued one. Fix: use one of: R3, R1, "
      "R2."),
     ("a comment closed in an unknown revision", "comments.yaml", "closed_in: R2",
-     "closed_in: R0", "comments.yaml, line 14: comments[0].closed_in: comment 'C1' was closed "
+     "closed_in: R0", "comments.yaml, line 15: comments[0].closed_in: comment 'C1' was closed "
      "in revision 'R0'"),
     ("a colour reading of an unknown sample", "lab/colour.csv", "HM2,", "HMX,",
      "lab/colour.csv, row 12: sample: sample 'HMX' is not defined; a sample here is a historic "
