@@ -137,6 +137,17 @@ def test_sections_and_pages_added_and_removed():
     assert found["works"]["new_page"] and found["fabric"]["gone"]
 
 
+def test_a_section_named_twice_on_a_page_is_named_with_its_parent():
+    from specgen.report.revision_chapters import _section_words
+    two = "# 4 Strength\n\n## M1\n\n### Findings\n\nx\n\n## M2\n\n### Findings\n\ny\n"
+    old, new = page_sections({"s.md": two}), page_sections({"s.md": two.replace("y", "z")
+                                                                        .replace("x", "w")})
+    [d] = compare_sections(old, new)
+    assert _section_words(d) == "2 sections changed (M1 › Findings; M2 › Findings)"
+    only = compare_sections(old, page_sections({"s.md": two.replace("x", "w")}))[0]
+    assert _section_words(only) == "1 section changed (Findings)"
+
+
 def _env(before: dict | None, now: dict, checks: list[dict]):
     return SimpleNamespace(
         pageset=SimpleNamespace(titles={"works.md": "7 Works", "fabric.md": "2 Fabric"},

@@ -100,7 +100,7 @@ def _section_words(d: dict, first: str = "", most: int = 5) -> str:
     from specgen.report.render import inert
     words = []
     for kind in ("changed", "added", "removed"):
-        names = [n.split(" › ")[-1] if n != TOP else "its opening" for n in d[kind]]
+        names = [_short(n, d) for n in d[kind]]
         names.sort(key=lambda n: n != section_name(first))    # stable: page order otherwise
         if names:
             shown = "; ".join(inert(n) for n in names[:most])
@@ -108,6 +108,18 @@ def _section_words(d: dict, first: str = "", most: int = 5) -> str:
             words.append(f"{len(names)} section{'s' if len(names) != 1 else ''} {kind} "
                          f"({shown}{more})")
     return ", ".join(words) or "changed"
+
+
+def _short(key: str, d: dict) -> str:
+    """A section by its own heading, with its parent's where another listed section of the
+    page has the same heading ("M1 — … › Findings" beside "M2 — … › Findings")."""
+    if key == TOP:
+        return "its opening"
+    last = key.split(" › ")[-1]
+    listed = [k for kind in ("changed", "added", "removed") for k in d[kind]]
+    if sum(1 for k in listed if k.split(" › ")[-1] == last) > 1:
+        return " › ".join(key.split(" › ")[-2:])
+    return last
 
 
 def _pages_changed(env) -> str:
