@@ -87,26 +87,31 @@ def page_facts(page_html: str) -> tuple[set[str], str]:
     return r.ids, " ".join(r.parts)
 
 
-def section_text(page_html: str, anchor: str) -> str | None:
-    """Visible text of the section anchored at ``anchor``; ``None`` if no element has that id."""
+def anchored(page_html: str, anchor: str) -> tuple[str | None, str | None]:
+    """(visible text of the section anchored at ``anchor``, what names that element: a
+    heading's words, "Figure: <caption>", "Table row: <first two cells>") from one reading
+    of the page; ``(None, None)`` if no element has that id."""
     r = read(page_html, anchor)
     if anchor not in r.ids:
-        return None
-    return " ".join(" ".join(r.section).split())
+        return None, None
+    words = " ".join("".join(r.label).split()).strip(" ·")
+    if r.tag == "figure":
+        label = f"Figure: {words}" if words else "a figure"
+    elif r.tag == "tr":
+        label = f"Table row: {words}" if words else "a table row"
+    else:
+        label = words or "a passage"
+    return " ".join(" ".join(r.section).split()), label
+
+
+def section_text(page_html: str, anchor: str) -> str | None:
+    """Visible text of the section anchored at ``anchor``; ``None`` if no element has that id."""
+    return anchored(page_html, anchor)[0]
 
 
 def anchor_label(page_html: str, anchor: str) -> str | None:
-    """What names the element with id ``anchor``: a heading's words, "Figure: <caption>",
-    "Table row: <first two cells>"; ``None`` if no element has that id."""
-    r = read(page_html, anchor)
-    if anchor not in r.ids:
-        return None
-    words = " ".join("".join(r.label).split()).strip(" ·")
-    if r.tag == "figure":
-        return f"Figure: {words}" if words else "a figure"
-    if r.tag == "tr":
-        return f"Table row: {words}" if words else "a table row"
-    return words or "a passage"
+    """What names the element with id ``anchor`` (:func:`anchored`)."""
+    return anchored(page_html, anchor)[1]
 
 
 def squeeze(text: str) -> str:

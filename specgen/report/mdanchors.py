@@ -67,16 +67,24 @@ def _stashed(el: ET.Element, stash) -> list:
 
 def _row_names(rows: list[ET.Element], stash) -> list[str]:
     """A name for each row: its first cell, or as many leading cells as it takes to tell the
-    row from every other row of the table."""
-    cells = [[_text(c, stash) for c in row] for row in rows]
-    names = []
-    for i, mine in enumerate(cells):
-        others = [c for j, c in enumerate(cells) if j != i]
-        n = 1
-        while n < len(mine) and any(c[:n] == mine[:n] for c in others):
-            n += 1
-        names.append(slug(" ".join(mine[:n])))
-    return names
+    row from every other row of the table (rows grouped by their first n cells, n growing,
+    so a register of thousands of rows is named in a few passes)."""
+    cells = [tuple(_text(c, stash) for c in row) for row in rows]
+    names: list[str | None] = [None] * len(cells)
+    left = list(range(len(cells)))
+    width = max((len(c) for c in cells), default=0)
+    for n in range(1, width + 1):
+        groups: dict[tuple, list[int]] = {}
+        for i in left:
+            groups.setdefault(cells[i][:n], []).append(i)
+        left = []
+        for prefix, members in groups.items():
+            if len(members) == 1 or n == width:
+                for i in members:
+                    names[i] = slug(" ".join(prefix))
+            else:
+                left.extend(members)
+    return [name or "" for name in names]
 
 
 class _Anchors(Treeprocessor):

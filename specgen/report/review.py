@@ -9,6 +9,7 @@ the quote, so the comments page and the change report can say "unchanged", "chan
 """
 from __future__ import annotations
 
+import functools
 import hashlib
 import json
 import re
@@ -17,7 +18,7 @@ from dataclasses import dataclass
 import markdown
 from markupsafe import Markup, escape
 
-from specgen.pagetext import anchor_label, section_text, squeeze
+from specgen.pagetext import anchored, page_facts, squeeze
 
 CONTEXT_ASSET = "assets/review-context.js"
 # the Markdown extensions of mkdocs.yml that give headings and elements their ids
@@ -43,21 +44,27 @@ def review_context(project) -> bytes:
     return f"window.specgenReview = {data};\n".encode("ascii")
 
 
+def page_of(about: str) -> str:
+    """The page stem a comment's ``about`` names ("summary" is the index page)."""
+    return "index" if about in ("summary", "index") else about
+
+
+@functools.lru_cache(maxsize=4)
+def _page_html(text: str) -> str:
+    """A page's Markdown as the site makes it: kept for the few pages comments are on, as
+    each comment's place, words and change are read from it."""
+    return markdown.markdown(text, extensions=EXTENSIONS)
+
+
 def place_of(comment, pages: dict[str, str]) -> Place:
     """Compare a comment's quote with its anchored section in this revision's pages."""
     if not comment.anchor and not comment.quote:
         return Place("page" if comment.about else "none")
-    text = pages.get(f"{comment.about}.md")
+    text = pages.get(f"{page_of(comment.about)}.md")
     if text is None:
         return Place("gone")
-    html = markdown.markdown(text, extensions=EXTENSIONS)
-    label = ""
-    if comment.anchor:
-        now = section_text(html, comment.anchor)
-        label = anchor_label(html, comment.anchor) or ""
-    else:
-        from specgen.pagetext import page_facts
-        now = page_facts(html)[1]
+    html = _page_html(text)
+    now, label = anchored(html, comment.anchor) if comment.anchor else (page_facts(html)[1], "")
     if now is None:
         return Place("gone")
     if not comment.quote or squeeze(comment.quote) in squeeze(now):
@@ -67,19 +74,18 @@ def place_of(comment, pages: dict[str, str]) -> Place:
                  label)
 
 
-def where_words(comment, pages: dict[str, str], titles: dict[str, str]) -> str:
+def where_words(comment, pages: dict[str, str], titles: dict[str, str],
+                place: Place | None = None) -> str:
     """Where a comment was made, in words: "8 Specification › 8.1.1 Materials", "4 Strength
-    development › Table row: compressive · 28 d", or its check code; never an element id."""
-    code, _, subject = comment.about.partition("/")
-    title = titles.get(f"{comment.about}.md")
-    if title is None:
-        return f"check {comment.about}" if subject or code.isupper() else comment.about
+    development › Table row: compressive · 28 d", or its check code; never an element id.
+    ``place``: :func:`place_of` the comment, when the caller has it."""
+    title = titles.get(f"{page_of(comment.about)}.md")
+    if title is None:              # not a page: a check code (comments.yaml is checked so)
+        return f"check {comment.about}"
     if not comment.anchor:
         return title
-    place = place_of(comment, pages)
-    if place.label:
-        return f"{title} › {place.label}"
-    return f"{title} › a passage no longer in this revision"
+    label = (place or place_of(comment, pages)).label
+    return f"{title} › {label or 'a passage no longer in this revision'}"
 
 
 def place_markdown(comment, pages: dict[str, str]) -> str:

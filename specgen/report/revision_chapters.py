@@ -1,11 +1,13 @@
 """Chapters about the dossier's life: revision history, changes, review comments."""
 from __future__ import annotations
 
+import functools
+
 from specgen.checks.result import STATUS_WORDS
 from specgen.report.chapters import badge, chapter, sheet_anchor, sheet_anchor_of
 from specgen.report.fmt import qty
-from specgen.report.review import (TOP, compare_sections, open_by_category, place_markdown,
-                                   place_of, section_name, where_words)
+from specgen.report.review import (TOP, compare_sections, open_by_category, page_of,
+                                   place_markdown, place_of, section_name, where_words)
 from specgen.report.wording import plain
 
 
@@ -24,38 +26,47 @@ def changes(env) -> dict:
                      "delta": qty(c["delta"], c["unit"]) if c["delta"] is not None else "—",
                      "href": f"calculations.md#{sheet_anchor_of(c['code'], c['subject'])}"
                      if c["new_status"] else None})
+    @functools.cache
+    def page_diff() -> dict | None:
+        """Page → its changed sections since the previous revision (once, when every page is
+        rendered); None when that revision's pages cannot be compared."""
+        before = env.history.sections_before if env.history is not None else None
+        return None if before is None else {
+            d["page"]: d for d in compare_sections(before, env.pageset.sections)}
+
     return {"previous": ch["from"], "decision": ch.get("decision_lines", []),
             "inputs": ch["inputs"], "specimens": ch["specimens"],
-            "checks": rows, "comments": ch["comments"], "answered": _answered(env),
-            "pages": env.later(lambda pages: _pages_changed(env)),
+            "checks": rows, "comments": ch["comments"], "answered": _answered(env, page_diff),
+            "pages": env.later(lambda pages: _pages_changed(env, page_diff())),
             "status_changes": sum(1 for c in ch["checks"] if c["old_status"] != c["new_status"])}
 
 
-def _answered(env) -> list[dict]:
+def _answered(env, page_diff) -> list[dict]:
     """Comments closed in this revision: where each was made, what became of its passage and
     what the response changed (each named page or check checked against the revision before)."""
     code = env.project.revision.code
     return [{"id": c.id, "href": f"comments.md#comment-{c.id.lower()}",
              "category": c.category or "comment",
-             "line": env.later(lambda pages, c=c: _answer_words(env, c, pages))}
+             "line": env.later(lambda pages, c=c: _answer_words(env, c, pages, page_diff()))}
             for c in env.project.comments if c.status == "closed" and c.closed_in == code]
 
 
-def _answer_words(env, c, pages) -> str:
+def _answer_words(env, c, pages, diff: dict | None) -> str:
     from specgen.report.render import inert
-    where = inert(where_words(c, pages, env.pageset.titles))
+    place = place_of(c, pages)
+    where = inert(where_words(c, pages, env.pageset.titles, place))
     own = {"changed": "the quoted passage has changed", "gone": "the quoted passage is no "
            "longer in the dossier", "unchanged": "the quoted passage reads the same"}.get(
-               place_of(c, pages).state)
-    first = place_of(c, pages).label if c.anchor else ""
-    changed = [_changed_words(env, name, first) for name in c.changed] or [
-        "the response names no page or check it changed"]
+               place.state)
+    changed = [_changed_words(env, name, diff, place.label if c.anchor else "")
+               for name in c.changed] or ["the response names no page or check it changed"]
     return f"about {where}{'; ' + own if own else ''}. Changed in answer: {'; '.join(changed)}."
 
 
-def _changed_words(env, name: str, first: str = "") -> str:
+def _changed_words(env, name: str, diff: dict | None, first: str = "") -> str:
     """One place a response says it changed, and whether it did since the revision before
-    (the section called ``first``, where the comment was made, named first)."""
+    (``diff``: the page diff, None when not compared; the section called ``first``, where
+    the comment was made, named first)."""
     from specgen.report.render import inert
     before = env.results.previous
     code, _, subject = name.partition("/")
@@ -68,10 +79,8 @@ def _changed_words(env, name: str, first: str = "") -> str:
                    "(**the response says it changed**)"
         return "; ".join(f"check {inert(c['key'])}: {_moved(c)}" for c in moved)
     link = f"[{inert(title)}]({name}.md)"
-    if env.history is None or env.history.sections_before is None:
+    if diff is None:
         return f"{link} (not compared: the pages of {before} are not in this output folder)"
-    diff = {d["page"]: d for d in compare_sections(env.history.sections_before,
-                                                  env.pageset.sections)}
     if name not in diff:
         return f"{link} reads the same as in {before} (**the response says it changed**)"
     return f"{link}: {_section_words(diff[name], first)}"
@@ -122,20 +131,20 @@ def _short(key: str, d: dict) -> str:
     return last
 
 
-def _pages_changed(env) -> str:
+def _pages_changed(env, diff: dict | None) -> str:
     """The pages whose text changed since the revision the change report compares with."""
     from specgen.report.render import inert
     before = env.results.previous
-    if env.history is None or env.history.sections_before is None:
+    if diff is None:
         return (f"The pages of {before} are not in this output folder, or were published "
                 "before specgen compared pages: this revision's pages are not compared with "
                 "them (its inputs and checks are).")
-    diff = compare_sections(env.history.sections_before, env.pageset.sections)
     if not diff:
         return f"Every page reads as in {before}."
     return (f"Pages whose text changed since {before}, with the sections that changed (table "
-            "and figure numbers left out: they move when another page changes):\n\n") + "\n".join(f"- [{inert(env.pageset.titles.get(d['page'] + '.md', d['page']))}]"
-                     f"({d['page']}.md): {_section_words(d)}" for d in diff)
+            "and figure numbers left out: they move when another page changes):\n\n") + "\n".join(
+        f"- [{inert(env.pageset.titles.get(d['page'] + '.md', d['page']))}]({d['page']}.md): "
+        f"{_section_words(d)}" for d in diff.values())
 
 
 @chapter("history.md", "Revision history", "history.md.j2", volume="appendix")
@@ -175,7 +184,7 @@ def _comment_href(env, c, checks) -> str | None:
         return f"calculations.md#{sheet_anchor(checks[c.about])}"
     if not subject and any(k.startswith(code + "/") for k in checks):
         return "index.md"
-    page = "index" if c.about in ("summary", "index") else c.about
+    page = page_of(c.about)
     if f"{page}.md" not in env.pageset.pages and page not in env.pageset_paths():
         return None
     return f"{page}.md" + (f"#{c.anchor}" if c.anchor else "")
