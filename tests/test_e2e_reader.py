@@ -7,7 +7,6 @@ from __future__ import annotations
 
 import os
 import re
-import shutil
 from pathlib import Path
 
 import pytest
@@ -64,13 +63,6 @@ def test_units_and_signs_are_typeset(demo_build):
     assert "\u202f°C" in sheets or "\u202fMPa" in sheets
 
 
-def _browser_or_skip():
-    pytest.importorskip("playwright.sync_api")
-    pytest.importorskip("axe_playwright_python")
-    if not shutil.which("chromium"):
-        pytest.skip("Debian chromium is not installed")
-
-
 #: the pages checked at the phone width in the default run (--full: every page)
 PHONE_PAGES = {"index.html", "strength.html", "compatibility.html", "specification.html",
                "card-M1.html", "revisions.html"}
@@ -89,8 +81,8 @@ def browsed(demo_build, request):
     requests (every page of R3 at the desktop width), the screenshot (``SHOTS``), then
     axe-core (every page at the desktop width; at the phone width the key pages, every
     page with --full).  Console errors and outside requests are kept from every opening."""
-    _browser_or_skip()
-    from tests.browser import axe_script, axe_violations, open_browser
+    from tests.browser import axe_script, axe_violations, browser_or_skip, open_browser
+    browser_or_skip()
     from tests.conftest import full_run
     full, rev = full_run(request.config), demo_build / REV
     folder = Path(os.environ.get("SPECGEN_ARTEFACTS", REPO / "test-artefacts")) / "screenshots"

@@ -4,19 +4,16 @@ comments page telling whether each commented passage still reads the same."""
 from __future__ import annotations
 
 import json
-import shutil
 
 import markdown
 import pytest
 
 from specgen.pagetext import page_facts, section_text, squeeze
+from tests.browser import axe_violations, browser_or_skip, open_browser
 
 pytestmark = pytest.mark.costly(15)   # CPU s (tests/conftest.py)
 
 REV = "R3"
-CHROMIUM = shutil.which("chromium") or "/usr/bin/chromium"
-ARGS = ["--no-sandbox", "--disable-gpu", "--disable-background-networking",
-        "--disable-component-update", "--disable-sync", "--no-first-run"]
 
 
 # ----------------------------------------------------------------- plain functions
@@ -196,12 +193,8 @@ def test_comment_in_the_browser_export_import_and_see_it_anchored(demo_build, de
     shows the comment anchored to that clause, its passage unchanged.  The render draws its
     figures and formulas from the run's artefact cache, which the demo build filled (a hit
     is the bytes a fresh drawing gives: test_render_cache.py)."""
-    playwright = pytest.importorskip("playwright.sync_api")
-    if not shutil.which("chromium"):
-        pytest.skip("Debian chromium is not installed")
-    with playwright.sync_playwright() as pw:
-        browser = pw.chromium.launch(executable_path=CHROMIUM, args=ARGS)
-        page = browser.new_page(accept_downloads=True)
+    browser_or_skip()
+    with open_browser(downloads=True) as page:
         outside = []
         page.on("request", lambda r: outside.append(r.url)
                 if not r.url.startswith(("file:", "data:", "blob:")) else None)
@@ -234,7 +227,6 @@ def test_comment_in_the_browser_export_import_and_see_it_anchored(demo_build, de
             page.click(".sg-review-export")
         exported = tmp_path / "from-browser.json"
         download.value.save_as(exported)
-        browser.close()
     assert not outside, outside
     doc = json.loads(exported.read_text())
     assert doc["format"] == "specgen-review/1" and doc["revision"] == REV
@@ -255,13 +247,8 @@ def test_comment_in_the_browser_export_import_and_see_it_anchored(demo_build, de
 
 @pytest.mark.e2e
 def test_the_panel_is_keyboard_operable_and_passes_axe(demo_build):
-    playwright = pytest.importorskip("playwright.sync_api")
-    axe = pytest.importorskip("axe_playwright_python.base")
-    if not shutil.which("chromium"):
-        pytest.skip("Debian chromium is not installed")
-    with playwright.sync_playwright() as pw:
-        browser = pw.chromium.launch(executable_path=CHROMIUM, args=ARGS)
-        page = browser.new_page()
+    browser_or_skip()
+    with open_browser() as page:
         page.goto((demo_build / REV / "comments.html").as_uri())
         page.focus(".sg-review-toggle")
         page.keyboard.press("Enter")
@@ -269,14 +256,10 @@ def test_the_panel_is_keyboard_operable_and_passes_axe(demo_build):
         for _ in range(2):
             page.keyboard.press("Tab")
         assert page.evaluate("document.activeElement.id") == "sg-review-quote"
-        page.add_script_tag(path=str(axe.AXE_FILE_PATH))
-        found = page.evaluate("""async () => (await axe.run(
-            document.getElementById('sg-review-panel'),
-            {runOnly: {type: 'tag', values: ['wcag2a', 'wcag2aa', 'wcag21a', 'wcag21aa']}}
-            )).violations.map(v => v.id + ': ' + v.nodes.length)""")
+        found = [f"{v['id']}: {len(v['nodes'])}"
+                 for v in axe_violations(page, within="sg-review-panel")]
         page.keyboard.press("Escape")
         closed = page.is_hidden("#sg-review-panel")
         focus_back = page.evaluate("document.activeElement.classList.contains('sg-review-toggle')")
-        browser.close()
     assert found == []
     assert closed and focus_back
