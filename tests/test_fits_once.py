@@ -8,7 +8,6 @@ it is compared with, whose strength records are the same series."""
 from __future__ import annotations
 
 from collections import Counter
-from pathlib import Path
 
 import pytest
 
@@ -16,8 +15,8 @@ from specgen import build
 from specgen.checks import fits as kept_fits
 from specgen.science import strength_inference as si
 from specgen.science import strength_models as sm
+from tests.conftest import DEMO
 
-DEMO = Path(__file__).resolve().parent.parent / "demo_project"
 
 
 @pytest.fixture

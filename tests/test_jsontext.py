@@ -13,8 +13,8 @@ import pytest
 from specgen import build
 from specgen.jsontext import dumps
 from specgen.synthetic import write_project
+from tests.conftest import DEMO
 
-DEMO = Path(__file__).resolve().parent.parent / "demo_project"
 
 
 def _reference(obj) -> str:

@@ -7,15 +7,14 @@ session's results are never changed: each test works on ``dataclasses.replace`` 
 from __future__ import annotations
 
 import dataclasses
-from pathlib import Path
 from types import SimpleNamespace
 
 from specgen.checks import audit_checks as au
 from specgen.checks.result import Basis, CheckResult, Finding, Limit, Quantity
 from specgen.checks.run import AuditContext, Previous
+from tests.conftest import DEMO
 from tests.helpers import Swapped, line_of
 
-DEMO = Path(__file__).resolve().parent.parent / "demo_project"
 LIMIT_FIX = ("justify the choice against this check and name it under covers (the clause then "
              "says so), or choose a mortar that meets the limit, or change the limit with a "
              "justified rule override.")

@@ -7,16 +7,15 @@ from __future__ import annotations
 import csv
 import dataclasses
 import datetime as dt
-from pathlib import Path
 
 import pytest
 
 from specgen.checks import works_checks as wks
 from specgen.checks.result import Basis, Input
 from specgen.checks.rules import RuleBook
+from tests.conftest import DEMO
 from tests.helpers import Swapped, checked_context
 
-DEMO = Path(__file__).resolve().parent.parent / "demo_project"
 PRACTICE = Basis("common practice", note="absolute-volume method; defaults in "
                  "content/data/mix_densities.yaml and content/rules/works.yaml")
 WORKS = Basis("common practice", note="quantities from the zone's dimensions; wastage "
